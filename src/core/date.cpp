@@ -1,0 +1,85 @@
+#include "core/date.h"
+
+#include <fmt/format.h>
+
+#include <chrono>
+#include <ctime>
+
+#include "core/error.h"
+
+namespace keel {
+namespace {
+
+namespace chr = std::chrono;
+
+chr::year_month_day to_ymd(int days) {
+  return chr::year_month_day{chr::sys_days{chr::days{days}}};
+}
+
+bool parse_fixed_digits(std::string_view text, std::size_t from, std::size_t count, int& out) {
+  out = 0;
+  for (std::size_t i = from; i < from + count; ++i) {
+    if (text[i] < '0' || text[i] > '9') return false;
+    out = out * 10 + (text[i] - '0');
+  }
+  return true;
+}
+
+}  // namespace
+
+bool Date::valid_ymd(int year, int month, int day) {
+  if (year < 1 || year > 9999 || month < 1 || month > 12 || day < 1) return false;
+  const chr::year_month_day ymd{chr::year{year}, chr::month{static_cast<unsigned>(month)},
+                                chr::day{static_cast<unsigned>(day)}};
+  return ymd.ok();
+}
+
+Date Date::from_ymd(int year, int month, int day) {
+  if (!valid_ymd(year, month, day))
+    throw InputError(fmt::format("{:04}-{:02}-{:02} is not a calendar date", year, month, day));
+  const chr::year_month_day ymd{chr::year{year}, chr::month{static_cast<unsigned>(month)},
+                                chr::day{static_cast<unsigned>(day)}};
+  return Date(static_cast<int>(chr::sys_days{ymd}.time_since_epoch().count()));
+}
+
+Date Date::parse(std::string_view text) {
+  int y = 0, m = 0, d = 0;
+  const bool shaped = text.size() == 10 && text[4] == '-' && text[7] == '-' &&
+                      parse_fixed_digits(text, 0, 4, y) && parse_fixed_digits(text, 5, 2, m) &&
+                      parse_fixed_digits(text, 8, 2, d);
+  if (!shaped) throw InputError(fmt::format("'{}' is not a date in the form YYYY-MM-DD", text));
+  if (!valid_ymd(y, m, d)) throw InputError(fmt::format("'{}' is not a calendar date", text));
+  return from_ymd(y, m, d);
+}
+
+Date Date::today() {
+  const std::time_t now = std::time(nullptr);
+  std::tm local{};
+  localtime_r(&now, &local);
+  return from_ymd(local.tm_year + 1900, local.tm_mon + 1, local.tm_mday);
+}
+
+int Date::year() const { return static_cast<int>(to_ymd(days_).year()); }
+int Date::month() const { return static_cast<int>(static_cast<unsigned>(to_ymd(days_).month())); }
+int Date::day() const { return static_cast<int>(static_cast<unsigned>(to_ymd(days_).day())); }
+
+std::string Date::str() const { return fmt::format("{:04}-{:02}-{:02}", year(), month(), day()); }
+
+Date Date::plus_months(int n) const {
+  const auto ymd = to_ymd(days_);
+  int total = static_cast<int>(ymd.year()) * 12 + static_cast<int>(unsigned(ymd.month())) - 1 + n;
+  const int y = total / 12;
+  const int m = total % 12 + 1;
+  const chr::year_month_day_last last{chr::year{y},
+                                      chr::month_day_last{chr::month{static_cast<unsigned>(m)}}};
+  const unsigned day = std::min(unsigned(ymd.day()), unsigned(last.day()));
+  return from_ymd(y, m, static_cast<int>(day));
+}
+
+Date Date::month_end() const {
+  const auto ymd = to_ymd(days_);
+  const chr::year_month_day_last last{ymd.year(), chr::month_day_last{ymd.month()}};
+  return Date(static_cast<int>(chr::sys_days{last}.time_since_epoch().count()));
+}
+
+}  // namespace keel

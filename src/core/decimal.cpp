@@ -1,0 +1,250 @@
+#include "core/decimal.h"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+
+#include "core/error.h"
+
+namespace keel {
+namespace {
+
+using Int = boost::multiprecision::cpp_int;
+
+Int pow10(int n) {
+  Int result = 1;
+  static const Int kTen18{"1000000000000000000"};
+  while (n >= 18) {
+    result *= kTen18;
+    n -= 18;
+  }
+  static constexpr long long kSmall[] = {1,
+                                         10,
+                                         100,
+                                         1000,
+                                         10000,
+                                         100000,
+                                         1000000,
+                                         10000000,
+                                         100000000,
+                                         1000000000,
+                                         10000000000,
+                                         100000000000,
+                                         1000000000000,
+                                         10000000000000,
+                                         100000000000000,
+                                         1000000000000000,
+                                         10000000000000000,
+                                         100000000000000000};
+  return result * kSmall[n];
+}
+
+// Divides `value` by 10^drop and rounds the quotient half-to-even.
+Int round_half_even(const Int& value, int drop) {
+  if (drop <= 0) return value;
+  const Int divisor = pow10(drop);
+  Int quotient = value / divisor;  // truncates toward zero
+  Int remainder = value % divisor;  // same sign as value
+  if (remainder.is_zero()) return quotient;
+  const Int twice = boost::multiprecision::abs(remainder) * 2;
+  const int direction = value.sign();
+  if (twice > divisor || (twice == divisor && (quotient % 2) != 0)) quotient += direction;
+  return quotient;
+}
+
+}  // namespace
+
+Decimal::Decimal(long long whole) : mantissa_(whole), scale_(0) {}
+
+Decimal::Decimal(Int mantissa, int scale) : mantissa_(std::move(mantissa)), scale_(scale) {
+  normalize();
+}
+
+void Decimal::normalize() {
+  if (mantissa_.is_zero()) {
+    scale_ = 0;
+    return;
+  }
+  while (scale_ > 0) {
+    Int quotient, remainder;
+    boost::multiprecision::divide_qr(mantissa_, Int(10), quotient, remainder);
+    if (!remainder.is_zero()) break;
+    mantissa_ = std::move(quotient);
+    --scale_;
+  }
+}
+
+Decimal::Int Decimal::scaled_to(int scale) const {
+  return scale == scale_ ? mantissa_ : mantissa_ * pow10(scale - scale_);
+}
+
+Decimal Decimal::parse(std::string_view text) {
+  std::string why;
+  auto value = parse_text(text, why);
+  if (!value) throw InputError(why);
+  return *value;
+}
+
+std::optional<Decimal> Decimal::try_parse(std::string_view text) noexcept {
+  try {
+    std::string why;
+    return parse_text(text, why);
+  } catch (...) {
+    return std::nullopt;
+  }
+}
+
+std::optional<Decimal> Decimal::parse_text(std::string_view text, std::string& why) {
+  auto fail = [&](std::string_view reason) {
+    why = fmt::format("'{}' is not a decimal number: {}", text, reason);
+    return std::nullopt;
+  };
+  std::size_t i = 0;
+  bool negative = false;
+  if (i < text.size() && (text[i] == '+' || text[i] == '-')) {
+    negative = text[i] == '-';
+    ++i;
+  }
+  std::string digits;
+  int scale = 0;
+  bool seen_point = false;
+  bool any_digit = false;
+  for (; i < text.size(); ++i) {
+    const char c = text[i];
+    if (c >= '0' && c <= '9') {
+      any_digit = true;
+      if (!digits.empty() || c != '0') digits.push_back(c);
+      if (seen_point) ++scale;
+    } else if (c == '.' && !seen_point) {
+      seen_point = true;
+    } else {
+      break;
+    }
+  }
+  if (!any_digit) return fail("expected digits");
+  long exponent = 0;
+  if (i < text.size() && (text[i] == 'e' || text[i] == 'E')) {
+    ++i;
+    bool exp_negative = false;
+    if (i < text.size() && (text[i] == '+' || text[i] == '-')) exp_negative = text[i++] == '-';
+    if (i == text.size()) return fail("exponent has no digits");
+    for (; i < text.size() && text[i] >= '0' && text[i] <= '9'; ++i) {
+      exponent = exponent * 10 + (text[i] - '0');
+      if (exponent > 1000) return fail("exponent is too large");
+    }
+    if (exp_negative) exponent = -exponent;
+  }
+  if (i != text.size()) return fail(fmt::format("unexpected character '{}'", text[i]));
+  // Trailing fractional zeros carry no value; drop them before the size checks.
+  while (scale > 0 && !digits.empty() && digits.back() == '0') {
+    digits.pop_back();
+    --scale;
+  }
+  if (digits.empty()) return Decimal();
+  long effective_scale = scale - exponent;
+  if (effective_scale < 0) {
+    digits.append(static_cast<std::size_t>(-effective_scale), '0');
+    effective_scale = 0;
+  }
+  if (static_cast<int>(digits.size()) > Decimal::kMaxDigits)
+    return fail(fmt::format("more than {} significant digits", Decimal::kMaxDigits));
+  if (effective_scale > Decimal::kMaxScale)
+    return fail(fmt::format("more than {} digits after the point", Decimal::kMaxScale));
+  Int mantissa(digits);
+  if (negative) mantissa = -mantissa;
+  return Decimal(std::move(mantissa), static_cast<int>(effective_scale));
+}
+
+std::string Decimal::str() const {
+  std::string digits = Int(boost::multiprecision::abs(mantissa_)).str();
+  std::string out;
+  if (is_negative()) out.push_back('-');
+  if (scale_ == 0) return out + digits;
+  if (static_cast<int>(digits.size()) <= scale_)
+    digits.insert(0, static_cast<std::size_t>(scale_ - static_cast<int>(digits.size()) + 1), '0');
+  out += digits.substr(0, digits.size() - static_cast<std::size_t>(scale_));
+  out.push_back('.');
+  out += digits.substr(digits.size() - static_cast<std::size_t>(scale_));
+  return out;
+}
+
+std::string Decimal::fixed(int places) const {
+  const Decimal r = rounded(places);
+  std::string digits = Int(boost::multiprecision::abs(r.scaled_to(places))).str();
+  if (places > 0 && static_cast<int>(digits.size()) <= places)
+    digits.insert(0, static_cast<std::size_t>(places - static_cast<int>(digits.size()) + 1), '0');
+  std::string out = r.is_negative() ? "-" : "";
+  if (places <= 0) return out + digits;
+  out += digits.substr(0, digits.size() - static_cast<std::size_t>(places));
+  out.push_back('.');
+  out += digits.substr(digits.size() - static_cast<std::size_t>(places));
+  return out;
+}
+
+Decimal Decimal::rounded(int places) const {
+  if (scale_ <= places) return *this;
+  return Decimal(round_half_even(mantissa_, scale_ - places), places);
+}
+
+Decimal Decimal::truncated(int places) const {
+  if (scale_ <= places) return *this;
+  return Decimal(mantissa_ / pow10(scale_ - places), places);
+}
+
+Decimal Decimal::floored(int places) const {
+  const Decimal t = truncated(places);
+  return (is_negative() && t != *this) ? t - Decimal(Int(1), places) : t;
+}
+
+Decimal Decimal::divide(const Decimal& numerator, const Decimal& denominator, int places) {
+  if (denominator.is_zero()) throw InputError("division by zero");
+  // (n / 10^a) / (d / 10^b) at `places` digits = n * 10^(b + places) / (d * 10^a).
+  const Int n = numerator.mantissa_ * pow10(denominator.scale_ + places);
+  const Int d = denominator.mantissa_ * pow10(numerator.scale_);
+  Int quotient, remainder;
+  boost::multiprecision::divide_qr(n, d, quotient, remainder);
+  if (!remainder.is_zero()) {
+    const Int twice = boost::multiprecision::abs(remainder) * 2;
+    const Int magnitude = boost::multiprecision::abs(d);
+    const int direction = n.sign() * d.sign();
+    if (twice > magnitude || (twice == magnitude && (quotient % 2) != 0)) quotient += direction;
+  }
+  return Decimal(std::move(quotient), places);
+}
+
+double Decimal::to_double() const {
+  // Via text keeps the conversion correctly rounded for every magnitude.
+  return std::stod(str());
+}
+
+Decimal Decimal::operator-() const { return Decimal(-mantissa_, scale_); }
+
+Decimal operator+(const Decimal& a, const Decimal& b) {
+  const int scale = std::max(a.scale_, b.scale_);
+  return Decimal(a.scaled_to(scale) + b.scaled_to(scale), scale);
+}
+
+Decimal operator-(const Decimal& a, const Decimal& b) {
+  const int scale = std::max(a.scale_, b.scale_);
+  return Decimal(a.scaled_to(scale) - b.scaled_to(scale), scale);
+}
+
+Decimal operator*(const Decimal& a, const Decimal& b) {
+  return Decimal(a.mantissa_ * b.mantissa_, a.scale_ + b.scale_);
+}
+
+bool operator==(const Decimal& a, const Decimal& b) {
+  // Normalized values compare equal only when both parts match.
+  return a.scale_ == b.scale_ && a.mantissa_ == b.mantissa_;
+}
+
+std::strong_ordering operator<=>(const Decimal& a, const Decimal& b) {
+  const int scale = std::max(a.scale_, b.scale_);
+  const auto x = a.scaled_to(scale);
+  const auto y = b.scaled_to(scale);
+  if (x < y) return std::strong_ordering::less;
+  if (x > y) return std::strong_ordering::greater;
+  return std::strong_ordering::equal;
+}
+
+}  // namespace keel

@@ -1,0 +1,79 @@
+// Decimal: an exact base-10 number for money, prices and quantities.
+//
+// Contract
+//  - Value is mantissa * 10^-scale with an arbitrary-precision integer mantissa
+//    (Boost.Multiprecision cpp_int); +, -, * and comparisons are exact.
+//  - Values are always kept normalized (no trailing fractional zeros), so the
+//    text form is canonical: "0.3", "-12.5", "0.00012345", "100".
+//  - Rounding happens only where a caller asks for it (rounded(), divide()),
+//    and always half-to-even ("banker's rounding").
+//  - parse() accepts [+|-]digits[.digits][(e|E)[+|-]digits] and throws
+//    keel::InputError with a message naming the text on anything else, or when
+//    the number has more than kMaxDigits significant digits or a scale beyond
+//    kMaxScale.
+//  - to_double() exists only for statistics; never feed its result back into a
+//    ledger amount.
+#pragma once
+
+#include <boost/multiprecision/cpp_int.hpp>
+#include <compare>
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <string_view>
+
+namespace keel {
+
+class Decimal {
+ public:
+  static constexpr int kMaxDigits = 60;
+  static constexpr int kMaxScale = 30;
+
+  Decimal() = default;
+  Decimal(long long whole);  // NOLINT: implicit from integers is natural for literals.
+
+  static Decimal parse(std::string_view text);
+  static std::optional<Decimal> try_parse(std::string_view text) noexcept;
+
+  // Exact quotient rounded half-to-even to `places` fractional digits.
+  // Throws InputError on division by zero.
+  static Decimal divide(const Decimal& numerator, const Decimal& denominator, int places);
+
+  std::string str() const;             // canonical, lossless
+  std::string fixed(int places) const;  // rounded half-to-even, exactly `places` digits
+  Decimal rounded(int places) const;    // half-to-even
+  Decimal truncated(int places) const;  // toward zero ("whole shares" style flooring of |x|)
+  Decimal floored(int places) const;    // toward minus infinity
+
+  int sign() const { return mantissa_.sign(); }
+  bool is_zero() const { return mantissa_.is_zero(); }
+  bool is_negative() const { return sign() < 0; }
+  bool is_positive() const { return sign() > 0; }
+  int scale() const { return scale_; }
+  double to_double() const;
+
+  Decimal operator-() const;
+  Decimal abs() const { return is_negative() ? -*this : *this; }
+  friend Decimal operator+(const Decimal& a, const Decimal& b);
+  friend Decimal operator-(const Decimal& a, const Decimal& b);
+  friend Decimal operator*(const Decimal& a, const Decimal& b);
+  Decimal& operator+=(const Decimal& other) { return *this = *this + other; }
+  Decimal& operator-=(const Decimal& other) { return *this = *this - other; }
+  Decimal& operator*=(const Decimal& other) { return *this = *this * other; }
+
+  friend bool operator==(const Decimal& a, const Decimal& b);
+  friend std::strong_ordering operator<=>(const Decimal& a, const Decimal& b);
+
+ private:
+  using Int = boost::multiprecision::cpp_int;
+  Decimal(Int mantissa, int scale);
+  // Parses without throwing; on failure, `why` says what is wrong.
+  static std::optional<Decimal> parse_text(std::string_view text, std::string& why);
+  void normalize();
+  Int scaled_to(int scale) const;  // mantissa expressed at a larger scale
+
+  Int mantissa_ = 0;
+  int scale_ = 0;
+};
+
+}  // namespace keel

@@ -1,0 +1,115 @@
+// Examples of keel::Decimal in use: exact arithmetic, canonical text,
+// half-to-even rounding.
+#include "core/decimal.h"
+
+#include <doctest/doctest.h>
+
+#include "core/error.h"
+
+using keel::Decimal;
+
+namespace {
+Decimal d(const char* text) { return Decimal::parse(text); }
+}  // namespace
+
+TEST_CASE("decimal: one tenth plus two tenths is exactly three tenths") {
+  CHECK(d("0.1") + d("0.2") == d("0.3"));
+  CHECK((d("0.1") + d("0.2")).str() == "0.3");
+}
+
+TEST_CASE("decimal: text round-trips without loss") {
+  for (const char* text : {"0", "1", "-1", "0.00012345", "123456789012345678901234567890.5",
+                           "-0.000000000001", "100", "42.125"}) {
+    CHECK(Decimal::parse(text).str() == text);
+  }
+}
+
+TEST_CASE("decimal: trailing zeros and plus signs are normalized away") {
+  CHECK(d("1.2300").str() == "1.23");
+  CHECK(d("+5.0").str() == "5");
+  CHECK(d("-0.000").str() == "0");
+  CHECK(d("000012.5").str() == "12.5");
+  CHECK(d(".5").str() == "0.5");
+  CHECK(d("5.").str() == "5");
+}
+
+TEST_CASE("decimal: exponent notation is read exactly") {
+  CHECK(d("1e-12").str() == "0.000000000001");
+  CHECK(d("2.5E3").str() == "2500");
+  CHECK(d("-1.5e+2").str() == "-150");
+}
+
+TEST_CASE("decimal: malformed text is refused with the text in the message") {
+  CHECK_THROWS_WITH_AS(Decimal::parse("12,5"),
+                       "'12,5' is not a decimal number: unexpected character ','",
+                       keel::InputError);
+  CHECK_THROWS_WITH_AS(Decimal::parse(""), "'' is not a decimal number: expected digits",
+                       keel::InputError);
+  CHECK_THROWS_AS(Decimal::parse("abc"), keel::InputError);
+  CHECK_THROWS_AS(Decimal::parse("1.2.3"), keel::InputError);
+  CHECK_THROWS_AS(Decimal::parse("1e"), keel::InputError);
+  CHECK_THROWS_AS(Decimal::parse("-"), keel::InputError);
+  CHECK_THROWS_AS(Decimal::parse(" 1"), keel::InputError);
+  CHECK_FALSE(Decimal::try_parse("nan").has_value());
+}
+
+TEST_CASE("decimal: numbers beyond the supported size are refused, not rounded") {
+  CHECK_THROWS_WITH_AS(Decimal::parse("1e-31"),
+                       "'1e-31' is not a decimal number: more than 30 digits after the point",
+                       keel::InputError);
+  CHECK_THROWS_AS(Decimal::parse(std::string(61, '9')), keel::InputError);
+  CHECK_NOTHROW(Decimal::parse(std::string(60, '9')));
+}
+
+TEST_CASE("decimal: multiplication is exact") {
+  CHECK((d("0.00012345") * d("12.5")).str() == "0.001543125");
+  CHECK((d("-3") * d("0.5")).str() == "-1.5");
+}
+
+TEST_CASE("decimal: rounding is half to even") {
+  CHECK(d("2.345").rounded(2).str() == "2.34");
+  CHECK(d("2.355").rounded(2).str() == "2.36");
+  CHECK(d("2.3451").rounded(2).str() == "2.35");
+  CHECK(d("-2.345").rounded(2).str() == "-2.34");
+  CHECK(d("0.5").rounded(0).str() == "0");
+  CHECK(d("1.5").rounded(0).str() == "2");
+  CHECK(d("2.5").rounded(0).str() == "2");
+}
+
+TEST_CASE("decimal: fixed shows exactly the asked number of places") {
+  CHECK(d("3").fixed(2) == "3.00");
+  CHECK(d("0.005").fixed(2) == "0.00");
+  CHECK(d("0.015").fixed(2) == "0.02");
+  CHECK(d("-0.1").fixed(3) == "-0.100");
+  CHECK(d("1234.5678").fixed(0) == "1235");
+}
+
+TEST_CASE("decimal: division rounds the exact quotient half to even") {
+  CHECK(Decimal::divide(d("1"), d("3"), 4).str() == "0.3333");
+  CHECK(Decimal::divide(d("2"), d("3"), 4).str() == "0.6667");
+  CHECK(Decimal::divide(d("1"), d("8"), 2).str() == "0.12");   // 0.125 ties to even
+  CHECK(Decimal::divide(d("3"), d("8"), 2).str() == "0.38");   // 0.375 ties to even
+  CHECK(Decimal::divide(d("-1"), d("8"), 2).str() == "-0.12");
+  CHECK(Decimal::divide(d("1.0000001"), d("8"), 2).str() == "0.13");
+  CHECK(Decimal::divide(d("10"), d("-4"), 0).str() == "-2");  // -2.5 ties to even
+  CHECK_THROWS_AS(Decimal::divide(d("1"), d("0"), 2), keel::InputError);
+}
+
+TEST_CASE("decimal: truncation and flooring for whole units") {
+  CHECK(d("7.9").truncated(0).str() == "7");
+  CHECK(d("-7.9").truncated(0).str() == "-7");
+  CHECK(d("-7.9").floored(0).str() == "-8");
+  CHECK(d("7.999").floored(2).str() == "7.99");
+}
+
+TEST_CASE("decimal: ordering compares values, not text") {
+  CHECK(d("0.10") == d("0.1"));
+  CHECK(d("2") > d("1.999999"));
+  CHECK(d("-1") < d("0"));
+  CHECK(d("100") > d("99.5"));
+}
+
+TEST_CASE("decimal: conversion to double is for statistics only and correctly rounded") {
+  CHECK(d("0.1").to_double() == 0.1);
+  CHECK(d("-12.5").to_double() == -12.5);
+}
