@@ -1,0 +1,34 @@
+// What every command shares: the global options and how to reach the ledger.
+// Commands only parse, call a module, and print; no ledger logic lives here.
+#pragma once
+
+#include <CLI/CLI.hpp>
+
+#include <cstdio>
+#include <filesystem>
+#include <functional>
+#include <string>
+
+#include "store/database.h"
+
+namespace keel::cli {
+
+struct Context {
+  std::string db_path;  // --db / KEEL_DB; empty means the default location
+  bool allow_unsafe_permissions = false;
+
+  std::filesystem::path ledger_path() const;
+  store::Database open_ledger(bool create = false) const;
+  bool colour() const;  // stdout is a terminal and NO_COLOR is not set
+};
+
+// Prints text to stdout exactly as given.
+void out(const std::string& text);
+
+// Each command family registers its subcommands on the root app. A
+// subcommand's callback runs inside main()'s error handling.
+using Registrar = void (*)(CLI::App& app, Context& context);
+void register_ledger_commands(CLI::App& app, Context& context);
+void register_report_commands(CLI::App& app, Context& context);
+
+}  // namespace keel::cli

@@ -1,0 +1,75 @@
+#include "core/text.h"
+
+#include <fmt/format.h>
+
+#include "core/error.h"
+
+namespace keel {
+
+bool valid_utf8(std::string_view s) {
+  std::size_t i = 0;
+  while (i < s.size()) {
+    const auto c = static_cast<unsigned char>(s[i]);
+    std::size_t extra = 0;
+    unsigned min = 0;
+    unsigned cp = 0;
+    if (c < 0x80) {
+      ++i;
+      continue;
+    } else if ((c & 0xE0) == 0xC0) {
+      extra = 1, cp = c & 0x1F, min = 0x80;
+    } else if ((c & 0xF0) == 0xE0) {
+      extra = 2, cp = c & 0x0F, min = 0x800;
+    } else if ((c & 0xF8) == 0xF0) {
+      extra = 3, cp = c & 0x07, min = 0x10000;
+    } else {
+      return false;
+    }
+    if (i + extra >= s.size()) return false;
+    for (std::size_t k = 1; k <= extra; ++k) {
+      const auto cc = static_cast<unsigned char>(s[i + k]);
+      if ((cc & 0xC0) != 0x80) return false;
+      cp = (cp << 6) | (cc & 0x3F);
+    }
+    if (cp < min || cp > 0x10FFFF || (cp >= 0xD800 && cp <= 0xDFFF)) return false;
+    i += extra + 1;
+  }
+  return true;
+}
+
+std::string printable(std::string_view s) {
+  std::string out;
+  out.reserve(s.size());
+  const bool utf8 = valid_utf8(s);
+  for (char ch : s) {
+    const auto c = static_cast<unsigned char>(ch);
+    if (c < 0x20 || c == 0x7F || (!utf8 && c >= 0x80))
+      out += fmt::format("\\x{:02x}", c);
+    else
+      out.push_back(ch);
+  }
+  return out;
+}
+
+void check_name(std::string_view field, std::string_view value, std::size_t max_bytes) {
+  if (value.empty()) throw InputError(fmt::format("{} must not be empty", field));
+  if (value.size() > max_bytes)
+    throw InputError(fmt::format("{} is longer than {} bytes", field, max_bytes));
+  if (!valid_utf8(value))
+    throw InputError(fmt::format("{} '{}' is not valid UTF-8", field, printable(value)));
+  for (char ch : value) {
+    const auto c = static_cast<unsigned char>(ch);
+    if (c < 0x20 || c == 0x7F)
+      throw InputError(
+          fmt::format("{} '{}' contains a control character", field, printable(value)));
+  }
+}
+
+std::string ascii_lower(std::string_view text) {
+  std::string out(text);
+  for (char& c : out)
+    if (c >= 'A' && c <= 'Z') c = static_cast<char>(c - 'A' + 'a');
+  return out;
+}
+
+}  // namespace keel

@@ -1,0 +1,19 @@
+// Text helpers for safe display and validation of user-supplied names.
+//  - printable(): the text with control characters and invalid UTF-8 shown as
+//    \xNN escapes, so hostile input cannot drive the terminal. Never throws.
+//  - check_name(): refuses empty text, text over max_chars bytes, invalid
+//    UTF-8 and control characters, with InputError naming `field`.
+#pragma once
+
+#include <string>
+#include <string_view>
+
+namespace keel {
+
+std::string printable(std::string_view text);
+bool valid_utf8(std::string_view text);
+void check_name(std::string_view field, std::string_view value, std::size_t max_bytes);
+// Lower-cases ASCII letters only.
+std::string ascii_lower(std::string_view text);
+
+}  // namespace keel

@@ -1,0 +1,83 @@
+// The ledger's records: accounts, transactions and splits, as plain values.
+//
+// All quantities and amounts are positive exact decimals; the kind gives the
+// direction. A Transaction mirrors one row of the append-only txn table.
+#pragma once
+
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "core/date.h"
+#include "core/decimal.h"
+
+namespace keel {
+
+enum class BasisMethod { fifo, lifo, hifo, average, specific };
+std::string_view to_string(BasisMethod method);
+BasisMethod parse_basis_method(std::string_view text);  // throws InputError naming the choices
+
+enum class TxnKind {
+  deposit,
+  withdrawal,
+  buy,
+  sell,
+  dividend,
+  interest,
+  tax,
+  fee,
+  transfer_in,
+  transfer_out,
+  void_entry,  // stored as "void"
+};
+std::string_view to_string(TxnKind kind);
+TxnKind parse_txn_kind(std::string_view text);  // throws InputError naming the choices
+// Kinds whose only figure is a cash amount.
+bool is_cash_kind(TxnKind kind);
+
+struct Account {
+  std::int64_t id = 0;
+  std::string name;
+  std::string currency = "USD";
+  BasisMethod basis = BasisMethod::fifo;
+  bool allow_negative_cash = false;
+};
+
+// One lot taken by a specific-lot sell: the lot's id and how much of it.
+struct LotPick {
+  std::int64_t lot_id = 0;
+  Decimal quantity;
+};
+// "12:5,14:2.5" -> picks; throws InputError on bad shape.
+std::vector<LotPick> parse_lot_picks(std::string_view text);
+std::string format_lot_picks(const std::vector<LotPick>& picks);
+
+struct Transaction {
+  std::int64_t id = 0;
+  std::int64_t account_id = 0;
+  Date date;
+  TxnKind kind = TxnKind::deposit;
+  std::optional<std::int64_t> security_id;
+  std::optional<Decimal> quantity;
+  std::optional<Decimal> price;
+  std::optional<Decimal> amount;
+  Decimal fee;
+  std::optional<Date> acquired;   // holding period start for a security brought in from outside
+  std::vector<LotPick> lots;      // specific lots for a sell or transfer out
+  std::optional<std::int64_t> link_id;   // other half of an internal transfer
+  std::optional<std::int64_t> voids_id;  // for kind void_entry
+  std::optional<std::string> ref;
+  std::optional<std::string> row_hash;
+  std::optional<std::string> note;
+};
+
+struct Split {
+  std::int64_t id = 0;
+  std::int64_t security_id = 0;
+  Date date;
+  Decimal ratio;  // new units per old unit: 2 = two-for-one, 0.1 = one-for-ten
+};
+
+}  // namespace keel

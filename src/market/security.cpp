@@ -1,0 +1,56 @@
+#include "market/security.h"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <array>
+#include <cctype>
+
+#include "core/error.h"
+#include "core/text.h"
+
+namespace keel {
+namespace {
+constexpr std::array<std::pair<SecurityKind, std::string_view>, 5> kKinds{{
+    {SecurityKind::stock, "stock"},
+    {SecurityKind::fund, "fund"},
+    {SecurityKind::bond, "bond"},
+    {SecurityKind::index, "index"},
+    {SecurityKind::currency, "currency"},
+}};
+}  // namespace
+
+std::string_view to_string(SecurityKind kind) {
+  for (const auto& [k, name] : kKinds)
+    if (k == kind) return name;
+  return "stock";
+}
+
+SecurityKind parse_security_kind(std::string_view text) {
+  for (const auto& [k, name] : kKinds)
+    if (name == text) return k;
+  throw InputError(fmt::format("unknown security kind '{}'; expected one of: stock, fund, bond, "
+                               "index, currency",
+                               printable(text)));
+}
+
+std::string normalize_currency(std::string_view code) {
+  std::string out;
+  for (char c : code) out.push_back(static_cast<char>(std::toupper(static_cast<unsigned char>(c))));
+  const bool ok = out.size() == 3 && std::all_of(out.begin(), out.end(), [](char c) {
+                    return c >= 'A' && c <= 'Z';
+                  });
+  if (!ok)
+    throw InputError(
+        fmt::format("currency '{}' is not a three-letter code such as EUR", printable(code)));
+  return out;
+}
+
+void validate(const Security& s) {
+  check_name("symbol", s.symbol, 40);
+  check_name("name", s.name, 200);
+  if (!s.lot_size.is_positive())
+    throw InputError(fmt::format("lot size of {} must be positive", printable(s.symbol)));
+}
+
+}  // namespace keel

@@ -1,0 +1,313 @@
+#include "store/ledger_store.h"
+
+#include <SQLiteCpp/Statement.h>
+#include <fmt/format.h>
+#include <sqlite3.h>
+
+#include <chrono>
+#include <ctime>
+
+#include "core/error.h"
+#include "core/text.h"
+
+namespace keel::store {
+namespace {
+
+template <typename T>
+void bind_optional(SQLite::Statement& st, int index, const std::optional<T>& value) {
+  if (value)
+    st.bind(index, *value);
+  else
+    st.bind(index);
+}
+
+void bind_decimal(SQLite::Statement& st, int index, const std::optional<Decimal>& value) {
+  if (value)
+    st.bind(index, value->str());
+  else
+    st.bind(index);
+}
+
+std::optional<std::string> opt_text(const SQLite::Column& c) {
+  if (c.isNull()) return std::nullopt;
+  return c.getString();
+}
+std::optional<Decimal> opt_decimal(const SQLite::Column& c) {
+  if (c.isNull()) return std::nullopt;
+  return Decimal::parse(c.getString());
+}
+std::optional<std::int64_t> opt_id(const SQLite::Column& c) {
+  if (c.isNull()) return std::nullopt;
+  return c.getInt64();
+}
+
+Account read_account(SQLite::Statement& st) {
+  Account a;
+  a.id = st.getColumn(0).getInt64();
+  a.name = st.getColumn(1).getString();
+  a.currency = st.getColumn(2).getString();
+  a.basis = parse_basis_method(st.getColumn(3).getString());
+  a.allow_negative_cash = st.getColumn(4).getInt() != 0;
+  return a;
+}
+
+Security read_security(SQLite::Statement& st) {
+  Security s;
+  s.id = st.getColumn(0).getInt64();
+  s.symbol = st.getColumn(1).getString();
+  s.name = st.getColumn(2).getString();
+  s.kind = parse_security_kind(st.getColumn(3).getString());
+  s.currency = st.getColumn(4).getString();
+  s.lot_size = Decimal::parse(st.getColumn(5).getString());
+  s.sector = opt_text(st.getColumn(6));
+  return s;
+}
+
+constexpr const char* kTxnColumns =
+    "id, account_id, date, kind, security_id, quantity, price, amount, fee, acquired, lots, "
+    "link_id, voids_id, ref, row_hash, note";
+
+Transaction read_txn(SQLite::Statement& st) {
+  Transaction t;
+  t.id = st.getColumn(0).getInt64();
+  t.account_id = st.getColumn(1).getInt64();
+  t.date = Date::parse(st.getColumn(2).getString());
+  const std::string kind = st.getColumn(3).getString();
+  t.kind = kind == "void" ? TxnKind::void_entry : parse_txn_kind(kind);
+  t.security_id = opt_id(st.getColumn(4));
+  t.quantity = opt_decimal(st.getColumn(5));
+  t.price = opt_decimal(st.getColumn(6));
+  t.amount = opt_decimal(st.getColumn(7));
+  t.fee = Decimal::parse(st.getColumn(8).getString());
+  if (auto acquired = opt_text(st.getColumn(9))) t.acquired = Date::parse(*acquired);
+  if (auto lots = opt_text(st.getColumn(10)); lots && !lots->empty())
+    t.lots = parse_lot_picks(*lots);
+  t.link_id = opt_id(st.getColumn(11));
+  t.voids_id = opt_id(st.getColumn(12));
+  t.ref = opt_text(st.getColumn(13));
+  t.row_hash = opt_text(st.getColumn(14));
+  t.note = opt_text(st.getColumn(15));
+  return t;
+}
+
+bool is_unique_violation(const SQLite::Exception& e) {
+  return e.getExtendedErrorCode() == SQLITE_CONSTRAINT_UNIQUE ||
+         e.getExtendedErrorCode() == SQLITE_CONSTRAINT_PRIMARYKEY;
+}
+
+}  // namespace
+
+std::string utc_timestamp() {
+  const std::time_t now = std::time(nullptr);
+  std::tm utc{};
+  gmtime_r(&now, &utc);
+  return fmt::format("{:04}-{:02}-{:02}T{:02}:{:02}:{:02}Z", utc.tm_year + 1900, utc.tm_mon + 1,
+                     utc.tm_mday, utc.tm_hour, utc.tm_min, utc.tm_sec);
+}
+
+std::int64_t insert_account(Database& db, const Account& a) {
+  check_name("account name", a.name, 200);
+  SQLite::Statement st(db.sql(),
+                       "INSERT INTO account (name, currency, basis_method, allow_negative_cash, "
+                       "created_at) VALUES (?, ?, ?, ?, ?)");
+  st.bind(1, a.name);
+  st.bind(2, a.currency);
+  st.bind(3, std::string(to_string(a.basis)));
+  st.bind(4, a.allow_negative_cash ? 1 : 0);
+  st.bind(5, utc_timestamp());
+  try {
+    st.exec();
+  } catch (const SQLite::Exception& e) {
+    if (is_unique_violation(e))
+      throw InputError(fmt::format("an account named '{}' already exists", printable(a.name)));
+    throw;
+  }
+  return db.sql().getLastInsertRowid();
+}
+
+std::optional<Account> find_account(Database& db, std::string_view name) {
+  SQLite::Statement st(db.sql(),
+                       "SELECT id, name, currency, basis_method, allow_negative_cash FROM account "
+                       "WHERE name = ?");
+  st.bind(1, std::string(name));
+  if (!st.executeStep()) return std::nullopt;
+  return read_account(st);
+}
+
+std::vector<Account> list_accounts(Database& db) {
+  SQLite::Statement st(db.sql(),
+                       "SELECT id, name, currency, basis_method, allow_negative_cash FROM account "
+                       "ORDER BY name");
+  std::vector<Account> out;
+  while (st.executeStep()) out.push_back(read_account(st));
+  return out;
+}
+
+Account account_named(Database& db, std::string_view name) {
+  if (auto a = find_account(db, name)) return *a;
+  std::string known;
+  for (const auto& a : list_accounts(db)) known += (known.empty() ? "" : ", ") + a.name;
+  throw InputError(fmt::format("unknown account '{}'{}", printable(name),
+                               known.empty() ? "; add one with 'keel account add NAME'"
+                                             : "; known accounts: " + printable(known)));
+}
+
+std::int64_t insert_security(Database& db, const Security& s) {
+  validate(s);
+  SQLite::Statement st(db.sql(),
+                       "INSERT INTO security (symbol, name, kind, currency, lot_size, sector) "
+                       "VALUES (?, ?, ?, ?, ?, ?)");
+  st.bind(1, s.symbol);
+  st.bind(2, s.name);
+  st.bind(3, std::string(to_string(s.kind)));
+  st.bind(4, s.currency);
+  st.bind(5, s.lot_size.str());
+  bind_optional(st, 6, s.sector);
+  try {
+    st.exec();
+  } catch (const SQLite::Exception& e) {
+    if (is_unique_violation(e))
+      throw InputError(fmt::format("a security with symbol '{}' already exists",
+                                   printable(s.symbol)));
+    throw;
+  }
+  return db.sql().getLastInsertRowid();
+}
+
+std::optional<Security> find_security(Database& db, std::string_view symbol) {
+  SQLite::Statement st(db.sql(),
+                       "SELECT id, symbol, name, kind, currency, lot_size, sector FROM security "
+                       "WHERE symbol = ?");
+  st.bind(1, std::string(symbol));
+  if (!st.executeStep()) return std::nullopt;
+  return read_security(st);
+}
+
+Security security_with_symbol(Database& db, std::string_view symbol) {
+  if (auto s = find_security(db, symbol)) return *s;
+  throw InputError(fmt::format("unknown security '{}'; add it with 'keel security add {}'",
+                               printable(symbol), printable(symbol)));
+}
+
+std::vector<Security> list_securities(Database& db) {
+  SQLite::Statement st(db.sql(),
+                       "SELECT id, symbol, name, kind, currency, lot_size, sector FROM security "
+                       "ORDER BY symbol");
+  std::vector<Security> out;
+  while (st.executeStep()) out.push_back(read_security(st));
+  return out;
+}
+
+std::int64_t insert_transaction(Database& db, const Transaction& t) {
+  SQLite::Statement st(db.sql(),
+                       "INSERT INTO txn (account_id, date, kind, security_id, quantity, price, "
+                       "amount, fee, acquired, lots, link_id, voids_id, ref, row_hash, note, "
+                       "recorded_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)");
+  st.bind(1, t.account_id);
+  st.bind(2, t.date.str());
+  st.bind(3, std::string(to_string(t.kind)));
+  bind_optional(st, 4, t.security_id);
+  bind_decimal(st, 5, t.quantity);
+  bind_decimal(st, 6, t.price);
+  bind_decimal(st, 7, t.amount);
+  st.bind(8, t.fee.str());
+  if (t.acquired)
+    st.bind(9, t.acquired->str());
+  else
+    st.bind(9);
+  if (t.lots.empty())
+    st.bind(10);
+  else
+    st.bind(10, format_lot_picks(t.lots));
+  bind_optional(st, 11, t.link_id);
+  bind_optional(st, 12, t.voids_id);
+  bind_optional(st, 13, t.ref);
+  bind_optional(st, 14, t.row_hash);
+  bind_optional(st, 15, t.note);
+  st.bind(16, utc_timestamp());
+  try {
+    st.exec();
+  } catch (const SQLite::Exception& e) {
+    if (is_unique_violation(e) && t.ref)
+      throw InputError(fmt::format("reference '{}' is already booked in this account",
+                                   printable(*t.ref)));
+    if (is_unique_violation(e) && t.voids_id)
+      throw InputError(fmt::format("transaction {} is already void", *t.voids_id));
+    if (is_unique_violation(e))
+      throw InputError("the same transaction line is already booked in this account");
+    throw;
+  }
+  return db.sql().getLastInsertRowid();
+}
+
+std::optional<Transaction> find_transaction(Database& db, std::int64_t id) {
+  SQLite::Statement st(db.sql(), fmt::format("SELECT {} FROM txn WHERE id = ?", kTxnColumns));
+  st.bind(1, id);
+  if (!st.executeStep()) return std::nullopt;
+  return read_txn(st);
+}
+
+std::vector<Transaction> list_transactions(Database& db) {
+  SQLite::Statement st(db.sql(),
+                       fmt::format("SELECT {} FROM txn ORDER BY date, id", kTxnColumns));
+  std::vector<Transaction> out;
+  while (st.executeStep()) out.push_back(read_txn(st));
+  return out;
+}
+
+bool ref_exists(Database& db, std::int64_t account_id, std::string_view ref) {
+  SQLite::Statement st(db.sql(), "SELECT 1 FROM txn WHERE account_id = ? AND ref = ?");
+  st.bind(1, account_id);
+  st.bind(2, std::string(ref));
+  return st.executeStep();
+}
+
+bool row_hash_exists(Database& db, std::int64_t account_id, std::string_view row_hash) {
+  SQLite::Statement st(db.sql(), "SELECT 1 FROM txn WHERE account_id = ? AND row_hash = ?");
+  st.bind(1, account_id);
+  st.bind(2, std::string(row_hash));
+  return st.executeStep();
+}
+
+std::optional<std::int64_t> void_of(Database& db, std::int64_t txn_id) {
+  SQLite::Statement st(db.sql(), "SELECT id FROM txn WHERE voids_id = ?");
+  st.bind(1, txn_id);
+  if (!st.executeStep()) return std::nullopt;
+  return st.getColumn(0).getInt64();
+}
+
+std::int64_t insert_split(Database& db, const Split& s) {
+  SQLite::Statement st(db.sql(),
+                       "INSERT INTO split (security_id, date, ratio, recorded_at) "
+                       "VALUES (?, ?, ?, ?)");
+  st.bind(1, s.security_id);
+  st.bind(2, s.date.str());
+  st.bind(3, s.ratio.str());
+  st.bind(4, utc_timestamp());
+  try {
+    st.exec();
+  } catch (const SQLite::Exception& e) {
+    if (is_unique_violation(e))
+      throw InputError(fmt::format("a split on {} is already recorded for this security",
+                                   s.date.str()));
+    throw;
+  }
+  return db.sql().getLastInsertRowid();
+}
+
+std::vector<Split> list_splits(Database& db) {
+  SQLite::Statement st(db.sql(),
+                       "SELECT id, security_id, date, ratio FROM split ORDER BY date, id");
+  std::vector<Split> out;
+  while (st.executeStep()) {
+    Split s;
+    s.id = st.getColumn(0).getInt64();
+    s.security_id = st.getColumn(1).getInt64();
+    s.date = Date::parse(st.getColumn(2).getString());
+    s.ratio = Decimal::parse(st.getColumn(3).getString());
+    out.push_back(s);
+  }
+  return out;
+}
+
+}  // namespace keel::store

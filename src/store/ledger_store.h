@@ -1,0 +1,45 @@
+// Store functions for accounts, securities, transactions and splits.
+//
+// Every SQL statement of the ledger lives here, with bound parameters only.
+// Lookups by name throw InputError naming what was asked for (and, where it
+// helps, what exists); inserts that break a uniqueness rule throw InputError
+// saying which. Callers wrap writes in a WriteTransaction.
+#pragma once
+
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "ledger/types.h"
+#include "market/security.h"
+#include "store/database.h"
+
+namespace keel::store {
+
+std::int64_t insert_account(Database& db, const Account& account);
+std::optional<Account> find_account(Database& db, std::string_view name);
+Account account_named(Database& db, std::string_view name);
+std::vector<Account> list_accounts(Database& db);
+
+std::int64_t insert_security(Database& db, const Security& security);
+std::optional<Security> find_security(Database& db, std::string_view symbol);
+Security security_with_symbol(Database& db, std::string_view symbol);
+std::vector<Security> list_securities(Database& db);
+
+std::int64_t insert_transaction(Database& db, const Transaction& txn);
+std::optional<Transaction> find_transaction(Database& db, std::int64_t id);
+// Every row, voids included, in posting order (date, then id).
+std::vector<Transaction> list_transactions(Database& db);
+bool ref_exists(Database& db, std::int64_t account_id, std::string_view ref);
+bool row_hash_exists(Database& db, std::int64_t account_id, std::string_view row_hash);
+std::optional<std::int64_t> void_of(Database& db, std::int64_t txn_id);
+
+std::int64_t insert_split(Database& db, const Split& split);
+std::vector<Split> list_splits(Database& db);  // by date, then id
+
+// The current UTC time as ISO 8601, for recorded_at columns.
+std::string utc_timestamp();
+
+}  // namespace keel::store
