@@ -1,8 +1,12 @@
-// Commands that write the ledger: init, account, security, record, void.
+// Commands that write the ledger: init, account add, security add, record, void.
 #include <fmt/format.h>
+
+#include <memory>
 
 #include "cli/context.h"
 #include "core/error.h"
+#include "core/text.h"
+#include "ledger/posting.h"
 #include "store/ledger_store.h"
 
 namespace keel::cli {
@@ -17,57 +21,208 @@ void add_init(CLI::App& app, Context& ctx) {
   });
 }
 
-void add_account(CLI::App& app, Context& ctx) {
-  auto* group = app.add_subcommand("account", "Add or list accounts");
-  group->require_subcommand(1);
+struct AccountAddOptions {
+  std::string name, currency = "USD", basis = "fifo";
+  bool allow_negative = false;
+};
 
-  auto* add = group->add_subcommand("add", "Add an account");
-  static std::string name, currency = "USD", basis = "fifo";
-  static bool allow_negative = false;
-  add->add_option("NAME", name, "Account name")->required();
-  add->add_option("--currency", currency, "Three-letter currency code");
-  add->add_option("--basis", basis, "Cost-basis method: fifo, lifo, hifo, average, specific");
-  add->add_flag("--allow-negative-cash", allow_negative, "Let cash go below zero (margin)");
-  add->callback([&ctx] {
+void add_account_add(CLI::App& group, Context& ctx) {
+  auto o = std::make_shared<AccountAddOptions>();
+  auto* cmd = group.add_subcommand("add", "Add an account");
+  cmd->add_option("NAME", o->name, "Account name")->required();
+  cmd->add_option("--currency", o->currency, "Three-letter currency code");
+  cmd->add_option("--basis", o->basis, "Cost-basis method: fifo, lifo, hifo, average, specific");
+  cmd->add_flag("--allow-negative-cash", o->allow_negative, "Let cash go below zero (margin)");
+  cmd->callback([&ctx, o] {
     Account a;
-    a.name = name;
-    a.currency = normalize_currency(currency);
-    a.basis = parse_basis_method(basis);
-    a.allow_negative_cash = allow_negative;
+    a.name = o->name;
+    a.currency = normalize_currency(o->currency);
+    a.basis = parse_basis_method(o->basis);
+    a.allow_negative_cash = o->allow_negative;
     auto db = ctx.open_ledger();
     store::WriteTransaction tx(db);
     const auto id = store::insert_account(db, a);
     tx.commit();
-    out(fmt::format("account {} '{}' added ({}, {})\n", id, a.name, a.currency,
-                    to_string(a.basis)));
+    out(fmt::format("account {} '{}' added ({}, {}{})\n", id, printable(a.name), a.currency,
+                    to_string(a.basis), a.allow_negative_cash ? ", negative cash allowed" : ""));
   });
 }
 
-void add_security(CLI::App& app, Context& ctx) {
-  auto* group = app.add_subcommand("security", "Add or list securities");
-  group->require_subcommand(1);
+struct SecurityAddOptions {
+  std::string symbol, name, kind, currency = "USD", lot_size = "1", sector;
+};
 
-  auto* add = group->add_subcommand("add", "Add a security");
-  static std::string symbol, name, kind, currency = "USD", lot_size = "1", sector;
-  add->add_option("SYMBOL", symbol, "Symbol, unique in the ledger")->required();
-  add->add_option("--name", name, "Full name")->required();
-  add->add_option("--kind", kind, "stock, fund, bond, index or currency")->required();
-  add->add_option("--currency", currency, "Three-letter currency code");
-  add->add_option("--lot-size", lot_size, "Smallest tradable multiple (1 = whole units)");
-  add->add_option("--sector", sector, "Sector label, for rule universes");
-  add->callback([&ctx] {
+void add_security_add(CLI::App& group, Context& ctx) {
+  auto o = std::make_shared<SecurityAddOptions>();
+  auto* cmd = group.add_subcommand("add", "Add a security");
+  cmd->add_option("SYMBOL", o->symbol, "Symbol, unique in the ledger")->required();
+  cmd->add_option("--name", o->name, "Full name")->required();
+  cmd->add_option("--kind", o->kind, "stock, fund, bond, index or currency")->required();
+  cmd->add_option("--currency", o->currency, "Three-letter currency code");
+  cmd->add_option("--lot-size", o->lot_size, "Smallest tradable multiple (1 = whole units)");
+  cmd->add_option("--sector", o->sector, "Sector label, for rule universes");
+  cmd->callback([&ctx, o] {
     Security s;
-    s.symbol = symbol;
-    s.name = name;
-    s.kind = parse_security_kind(kind);
-    s.currency = normalize_currency(currency);
-    s.lot_size = Decimal::parse(lot_size);
-    if (!sector.empty()) s.sector = sector;
+    s.symbol = o->symbol;
+    s.name = o->name;
+    s.kind = parse_security_kind(o->kind);
+    s.currency = normalize_currency(o->currency);
+    s.lot_size = Decimal::parse(o->lot_size);
+    if (!o->sector.empty()) s.sector = o->sector;
     auto db = ctx.open_ledger();
     store::WriteTransaction tx(db);
     const auto id = store::insert_security(db, s);
     tx.commit();
-    out(fmt::format("security {} '{}' added ({})\n", id, s.symbol, to_string(s.kind)));
+    out(fmt::format("security {} '{}' added ({})\n", id, printable(s.symbol), to_string(s.kind)));
+  });
+}
+
+// Raw text of every record flag; parsed only after CLI11 is done, so each
+// error names the flag.
+struct RecordOptions {
+  std::string date, account, symbol, quantity, price, fee, amount, ratio, lots, to_account,
+      acquired, ref, note;
+};
+
+std::optional<Decimal> decimal_flag(const std::string& text, std::string_view flag) {
+  if (text.empty()) return std::nullopt;
+  try {
+    return Decimal::parse(text);
+  } catch (const InputError& e) {
+    throw InputError(fmt::format("--{}: {}", flag, e.what()));
+  }
+}
+
+Date date_flag(const std::string& text, std::string_view flag) {
+  if (text.empty()) return Date::today();
+  try {
+    return Date::parse(text);
+  } catch (const InputError& e) {
+    throw InputError(fmt::format("--{}: {}", flag, e.what()));
+  }
+}
+
+std::optional<std::string> text_flag(const std::string& text) {
+  if (text.empty()) return std::nullopt;
+  return text;
+}
+
+ledger::PostRequest to_request(TxnKind kind, const RecordOptions& o) {
+  ledger::PostRequest r;
+  r.kind = kind;
+  r.date = date_flag(o.date, "date");
+  r.account = o.account;
+  r.symbol = text_flag(o.symbol);
+  r.quantity = decimal_flag(o.quantity, "quantity");
+  r.price = decimal_flag(o.price, "price");
+  r.fee = decimal_flag(o.fee, "fee");
+  r.amount = decimal_flag(o.amount, "amount");
+  if (!o.acquired.empty()) r.acquired = date_flag(o.acquired, "acquired");
+  if (!o.lots.empty()) r.lots = parse_lot_picks(o.lots);
+  r.to_account = text_flag(o.to_account);
+  r.ref = text_flag(o.ref);
+  r.note = text_flag(o.note);
+  return r;
+}
+
+struct KindSpec {
+  TxnKind kind;
+  const char* help;
+  bool units;      // --symbol --quantity
+  bool trade;      // --price --fee
+  bool cash;       // --amount
+  bool security;   // --symbol for cash kinds
+};
+
+constexpr KindSpec kKindSpecs[] = {
+    {TxnKind::deposit, "Cash paid into the account from outside", false, false, true, false},
+    {TxnKind::withdrawal, "Cash taken out of the account", false, false, true, false},
+    {TxnKind::buy, "Buy units: opens a lot whose cost includes the fee", true, true, false, false},
+    {TxnKind::sell, "Sell units: closes lots by the account's method (or --lots)", true, true,
+     false, false},
+    {TxnKind::dividend, "Cash dividend received (gross, before withholding)", false, false, true,
+     true},
+    {TxnKind::interest, "Interest received", false, false, true, true},
+    {TxnKind::tax, "Tax withheld (e.g. on a dividend)", false, false, true, true},
+    {TxnKind::fee, "A fee charged to the account", false, false, true, true},
+    {TxnKind::transfer_in, "Cash or units brought in from outside", true, true, true, false},
+    {TxnKind::transfer_out,
+     "Cash or units moved out; with --to-account, into another account of this ledger", true,
+     true, true, false},
+};
+
+void add_record_kind(CLI::App& group, Context& ctx, const KindSpec& spec) {
+  auto o = std::make_shared<RecordOptions>();
+  auto* cmd = group.add_subcommand(std::string(to_string(spec.kind)), spec.help);
+  cmd->add_option("--date", o->date, "Day of the transaction, YYYY-MM-DD (default: today)");
+  cmd->add_option("--account", o->account, "Account name")->required();
+  if (spec.units || spec.security)
+    cmd->add_option("--symbol", o->symbol,
+                    spec.units ? "Security symbol" : "Security the cash relates to (optional)");
+  if (spec.units) cmd->add_option("--quantity", o->quantity, "Number of units (positive)");
+  if (spec.trade) {
+    cmd->add_option("--price", o->price,
+                    spec.kind == TxnKind::transfer_in ? "Unit cost of units brought in"
+                                                      : "Price per unit");
+    cmd->add_option("--fee", o->fee, "Fee or commission (default 0)");
+  }
+  if (spec.cash) cmd->add_option("--amount", o->amount, "Cash amount (positive)");
+  if (spec.kind == TxnKind::sell || spec.kind == TxnKind::transfer_out)
+    cmd->add_option("--lots", o->lots, "Specific lots to take: LOT:QUANTITY[,LOT:QUANTITY...]");
+  if (spec.kind == TxnKind::transfer_out)
+    cmd->add_option("--to-account", o->to_account,
+                    "Receiving account of this ledger (books a linked pair)");
+  if (spec.kind == TxnKind::transfer_in)
+    cmd->add_option("--acquired", o->acquired,
+                    "Start of the holding period of units brought in (default: --date)");
+  cmd->add_option("--ref", o->ref, "External reference, unique per account");
+  cmd->add_option("--note", o->note, "Free text");
+  const TxnKind kind = spec.kind;
+  cmd->callback([&ctx, o, kind] {
+    const auto request = to_request(kind, *o);
+    auto db = ctx.open_ledger();
+    const auto ids = ledger::post(db, request);
+    std::string id_text = std::to_string(ids.front());
+    if (ids.size() > 1) id_text += fmt::format(" and {}", ids.back());
+    out(fmt::format("posted {}: {} on {} in '{}'\n", id_text, to_string(kind),
+                    request.date.str(), printable(request.account)));
+  });
+}
+
+void add_record_split(CLI::App& group, Context& ctx) {
+  auto o = std::make_shared<RecordOptions>();
+  auto* cmd = group.add_subcommand(
+      "split", "A split of a security, applied to every account's lots at the start of its day");
+  cmd->add_option("--date", o->date, "Day the split takes effect, YYYY-MM-DD")->required();
+  cmd->add_option("--symbol", o->symbol, "Security symbol")->required();
+  cmd->add_option("--ratio", o->ratio, "New units per old unit: 2 = two-for-one, 0.1 = one-for-ten")
+      ->required();
+  cmd->callback([&ctx, o] {
+    const Date date = date_flag(o->date, "date");
+    const auto ratio = decimal_flag(o->ratio, "ratio");
+    auto db = ctx.open_ledger();
+    const auto id = ledger::post_split(db, o->symbol, date, *ratio);
+    out(fmt::format("split {} posted: {} x{} on {}\n", id, printable(o->symbol), ratio->str(),
+                    date.str()));
+  });
+}
+
+struct VoidOptions {
+  std::int64_t id = 0;
+  std::string reason;
+};
+
+void add_void(CLI::App& app, Context& ctx) {
+  auto o = std::make_shared<VoidOptions>();
+  auto* cmd = app.add_subcommand(
+      "void", "Cancel a posted transaction by recording a reversal (nothing is ever deleted)");
+  cmd->add_option("ID", o->id, "Transaction id (see 'keel history')")->required();
+  cmd->add_option("--reason", o->reason, "Why it is cancelled")->required();
+  cmd->callback([&ctx, o] {
+    auto db = ctx.open_ledger();
+    const auto ids = ledger::void_transaction(db, o->id, o->reason);
+    out(fmt::format("voided {} ({} void entr{} recorded)\n", o->id, ids.size(),
+                    ids.size() == 1 ? "y" : "ies"));
   });
 }
 
@@ -75,8 +230,17 @@ void add_security(CLI::App& app, Context& ctx) {
 
 void register_ledger_commands(CLI::App& app, Context& ctx) {
   add_init(app, ctx);
-  add_account(app, ctx);
-  add_security(app, ctx);
+  auto* accounts = app.add_subcommand("account", "Add or list accounts");
+  accounts->require_subcommand(1);
+  add_account_add(*accounts, ctx);
+  auto* securities = app.add_subcommand("security", "Add or list securities");
+  securities->require_subcommand(1);
+  add_security_add(*securities, ctx);
+  auto* record = app.add_subcommand("record", "Post a transaction or a split");
+  record->require_subcommand(1);
+  for (const auto& spec : kKindSpecs) add_record_kind(*record, ctx, spec);
+  add_record_split(*record, ctx);
+  add_void(app, ctx);
 }
 
 }  // namespace keel::cli

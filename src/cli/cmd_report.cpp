@@ -1,10 +1,286 @@
 // Commands that read the ledger and print: holdings, lots, history, gains, lists.
 #include <fmt/format.h>
 
+#include <map>
+#include <memory>
+#include <nlohmann/json.hpp>
+
 #include "cli/context.h"
+#include "core/error.h"
+#include "ledger/holdings.h"
+#include "ledger/posting.h"
+#include "report/table.h"
+#include "store/ledger_store.h"
 
 namespace keel::cli {
+namespace {
 
-void register_report_commands(CLI::App& /*app*/, Context& /*ctx*/) {}
+using Json = nlohmann::ordered_json;
+using report::Align;
+using report::Table;
+
+void print_json(const Json& j) { out(j.dump(2) + "\n"); }
+std::string money(const Decimal& d) { return d.fixed(2); }
+std::string percent(const Decimal& part, const Decimal& whole) {
+  if (whole.is_zero()) return "";
+  return Decimal::divide(part * Decimal(100), whole, 2).fixed(2) + "%";
+}
+
+Date as_of_or_today(const std::string& text) {
+  if (text.empty()) return Date::today();
+  try {
+    return Date::parse(text);
+  } catch (const InputError& e) {
+    throw InputError(fmt::format("--as-of: {}", e.what()));
+  }
+}
+
+std::optional<std::string> optional_text(const std::string& s) {
+  return s.empty() ? std::nullopt : std::optional<std::string>(s);
+}
+
+struct ViewOptions {
+  std::string as_of, account, from, to;
+  int year = 0;
+  bool json = false;
+};
+
+void add_holdings(CLI::App& app, Context& ctx) {
+  auto o = std::make_shared<ViewOptions>();
+  auto* cmd = app.add_subcommand("holdings", "What is held, at cost and at market, with cash");
+  cmd->add_option("--as-of", o->as_of, "Day to value at, YYYY-MM-DD (default: today)");
+  cmd->add_option("--account", o->account, "Only this account");
+  cmd->add_flag("--json", o->json, "Print JSON for scripts");
+  cmd->callback([&ctx, o] {
+    auto db = ctx.open_ledger();
+    const auto h = ledger::holdings(db, as_of_or_today(o->as_of), optional_text(o->account));
+    if (o->json) {
+      Json j;
+      j["as_of"] = h.as_of.str();
+      j["positions"] = Json::array();
+      for (const auto& p : h.positions)
+        j["positions"].push_back({{"account", p.account},
+                                  {"symbol", p.symbol},
+                                  {"quantity", p.quantity.str()},
+                                  {"cost_basis", p.cost_basis.str()},
+                                  {"price", p.price.str()},
+                                  {"market_value", p.market_value.str()},
+                                  {"unrealized_gain", p.unrealized_gain.str()}});
+      j["cash"] = Json::array();
+      for (const auto& c : h.cash) j["cash"].push_back({{"account", c.account}, {"amount", c.amount.str()}});
+      j["total_value"] = h.total_value.str();
+      print_json(j);
+      return;
+    }
+    Table t({{"account"}, {"symbol"}, {"quantity", Align::right}, {"cost basis", Align::right},
+             {"price", Align::right}, {"market value", Align::right},
+             {"unrealized", Align::right}, {"weight", Align::right}});
+    for (const auto& p : h.positions)
+      t.add_row({p.account, p.symbol, p.quantity.str(), money(p.cost_basis),
+                 p.price.str() + (p.price_is_close ? "" : "*"), money(p.market_value),
+                 money(p.unrealized_gain), percent(p.market_value, h.total_value)});
+    for (const auto& c : h.cash)
+      t.add_row({c.account, "(cash)", "", "", "", money(c.amount), "",
+                 percent(c.amount, h.total_value)});
+    t.add_rule();
+    t.add_row({"total", "", "", "", "", money(h.total_value), "", ""});
+    out(fmt::format("Holdings as of {}\n\n", h.as_of.str()));
+    out(t.render({ctx.colour()}));
+    bool any_trade_price = false;
+    for (const auto& p : h.positions) any_trade_price |= !p.price_is_close;
+    if (any_trade_price) out("* no close on or before the day; valued at the last trade price\n");
+  });
+}
+
+void add_lots(CLI::App& app, Context& ctx) {
+  auto o = std::make_shared<ViewOptions>();
+  auto* cmd = app.add_subcommand("lots", "Open tax lots: acquisition day, quantity, cost");
+  cmd->add_option("--as-of", o->as_of, "Day, YYYY-MM-DD (default: today)");
+  cmd->add_option("--account", o->account, "Only this account");
+  cmd->add_flag("--json", o->json, "Print JSON for scripts");
+  cmd->callback([&ctx, o] {
+    auto db = ctx.open_ledger();
+    const auto lots = ledger::open_lots(db, as_of_or_today(o->as_of), optional_text(o->account));
+    if (o->json) {
+      Json j = Json::array();
+      for (const auto& l : lots)
+        j.push_back({{"account", l.account},
+                     {"symbol", l.symbol},
+                     {"lot", l.lot.lot_id},
+                     {"acquired", l.lot.acquired.str()},
+                     {"quantity", l.lot.quantity.str()},
+                     {"cost", l.lot.cost.str()}});
+      print_json(j);
+      return;
+    }
+    Table t({{"account"}, {"symbol"}, {"lot", Align::right}, {"acquired"},
+             {"quantity", Align::right}, {"cost", Align::right}, {"unit cost", Align::right}});
+    for (const auto& l : lots)
+      t.add_row({l.account, l.symbol, std::to_string(l.lot.lot_id), l.lot.acquired.str(),
+                 l.lot.quantity.str(), money(l.lot.cost),
+                 Decimal::divide(l.lot.cost, l.lot.quantity, 4).str()});
+    out(t.render({ctx.colour()}));
+  });
+}
+
+void add_gains(CLI::App& app, Context& ctx) {
+  auto o = std::make_shared<ViewOptions>();
+  auto* cmd = app.add_subcommand("gains", "Realized gains, one line per closed lot part");
+  cmd->add_option("--year", o->year, "Only disposals in this calendar year");
+  cmd->add_option("--account", o->account, "Only this account");
+  cmd->add_flag("--json", o->json, "Print JSON for scripts");
+  cmd->callback([&ctx, o] {
+    auto db = ctx.open_ledger();
+    const auto gains = ledger::realized_gains(
+        db, o->year ? std::optional<int>(o->year) : std::nullopt, optional_text(o->account));
+    Decimal total_short, total_long;
+    for (const auto& g : gains) (g.long_term ? total_long : total_short) += g.part.gain();
+    if (o->json) {
+      Json j;
+      j["gains"] = Json::array();
+      for (const auto& g : gains)
+        j["gains"].push_back({{"account", g.account},
+                              {"symbol", g.symbol},
+                              {"lot", g.part.lot_id},
+                              {"sell", g.part.sell_txn_id},
+                              {"acquired", g.part.acquired.str()},
+                              {"disposed", g.part.disposed.str()},
+                              {"quantity", g.part.quantity.str()},
+                              {"proceeds", g.part.proceeds.str()},
+                              {"cost", g.part.cost.str()},
+                              {"gain", g.part.gain().str()},
+                              {"term", g.long_term ? "long" : "short"}});
+      j["total_short"] = total_short.str();
+      j["total_long"] = total_long.str();
+      j["total"] = (total_short + total_long).str();
+      print_json(j);
+      return;
+    }
+    Table t({{"account"}, {"symbol"}, {"lot", Align::right}, {"acquired"}, {"disposed"},
+             {"quantity", Align::right}, {"proceeds", Align::right}, {"cost", Align::right},
+             {"gain", Align::right}, {"term"}});
+    for (const auto& g : gains)
+      t.add_row({g.account, g.symbol, std::to_string(g.part.lot_id), g.part.acquired.str(),
+                 g.part.disposed.str(), g.part.quantity.str(), money(g.part.proceeds),
+                 money(g.part.cost), money(g.part.gain()), g.long_term ? "long" : "short"});
+    t.add_rule();
+    t.add_row({"short-term", "", "", "", "", "", "", "", money(total_short), ""});
+    t.add_row({"long-term", "", "", "", "", "", "", "", money(total_long), ""});
+    t.add_row({"total", "", "", "", "", "", "", "", money(total_short + total_long), ""});
+    out(t.render({ctx.colour()}));
+    out("Tax treatment depends on local rules; check with your tax authority or a licensed "
+        "professional.\n");
+  });
+}
+
+void add_history(CLI::App& app, Context& ctx) {
+  auto o = std::make_shared<ViewOptions>();
+  auto* cmd = app.add_subcommand("history", "Posted transactions, voids included");
+  cmd->add_option("--account", o->account, "Only this account");
+  cmd->add_option("--from", o->from, "First day, YYYY-MM-DD");
+  cmd->add_option("--to", o->to, "Last day, YYYY-MM-DD");
+  cmd->add_flag("--json", o->json, "Print JSON for scripts");
+  cmd->callback([&ctx, o] {
+    const auto from = o->from.empty() ? std::nullopt : std::optional<Date>(Date::parse(o->from));
+    const auto to = o->to.empty() ? std::nullopt : std::optional<Date>(Date::parse(o->to));
+    auto db = ctx.open_ledger();
+    std::optional<std::int64_t> only;
+    if (!o->account.empty()) only = store::account_named(db, o->account).id;
+    std::map<std::int64_t, std::string> accounts, symbols;
+    for (const auto& a : store::list_accounts(db)) accounts[a.id] = a.name;
+    for (const auto& s : store::list_securities(db)) symbols[s.id] = s.symbol;
+    const auto txns = store::list_transactions(db);
+    const auto voided = voided_ids(txns);
+    auto opt = [](const std::optional<Decimal>& d) { return d ? d->str() : std::string(); };
+    Json j = Json::array();
+    Table t({{"id", Align::right}, {"date"}, {"account"}, {"kind"}, {"symbol"},
+             {"quantity", Align::right}, {"price", Align::right}, {"amount", Align::right},
+             {"fee", Align::right}, {"ref"}, {"note"}});
+    for (const auto& x : txns) {
+      if (only && x.account_id != *only) continue;
+      if ((from && x.date < *from) || (to && x.date > *to)) continue;
+      const std::string symbol = x.security_id ? symbols[*x.security_id] : "";
+      std::string note = x.note.value_or("");
+      if (x.voids_id) note = fmt::format("voids {}: {}", *x.voids_id, note);
+      if (voided.count(x.id)) note = "[void] " + note;
+      if (x.link_id) note += fmt::format(" (pair of {})", *x.link_id);
+      if (o->json) {
+        j.push_back({{"id", x.id},
+                     {"date", x.date.str()},
+                     {"account", accounts[x.account_id]},
+                     {"kind", to_string(x.kind)},
+                     {"symbol", symbol},
+                     {"quantity", opt(x.quantity)},
+                     {"price", opt(x.price)},
+                     {"amount", opt(x.amount)},
+                     {"fee", x.fee.str()},
+                     {"ref", x.ref.value_or("")},
+                     {"note", x.note.value_or("")},
+                     {"voided", voided.count(x.id) > 0},
+                     {"voids", x.voids_id ? Json(*x.voids_id) : Json()},
+                     {"link", x.link_id ? Json(*x.link_id) : Json()}});
+      } else {
+        t.add_row({std::to_string(x.id), x.date.str(), accounts[x.account_id],
+                   std::string(to_string(x.kind)), symbol, opt(x.quantity), opt(x.price),
+                   opt(x.amount), x.fee.is_zero() ? "" : x.fee.str(), x.ref.value_or(""), note});
+      }
+    }
+    if (o->json)
+      print_json(j);
+    else
+      out(t.render({ctx.colour()}));
+  });
+}
+
+void add_lists(CLI::App& app, Context& ctx) {
+  auto json_accounts = std::make_shared<bool>(false);
+  auto* accounts = app.get_subcommand("account")->add_subcommand("list", "List accounts");
+  accounts->add_flag("--json", *json_accounts, "Print JSON for scripts");
+  accounts->callback([&ctx, json_accounts] {
+    auto db = ctx.open_ledger();
+    Json j = Json::array();
+    Table t({{"id", Align::right}, {"name"}, {"currency"}, {"basis"}, {"negative cash"}});
+    for (const auto& a : store::list_accounts(db)) {
+      j.push_back({{"id", a.id},
+                   {"name", a.name},
+                   {"currency", a.currency},
+                   {"basis", to_string(a.basis)},
+                   {"allow_negative_cash", a.allow_negative_cash}});
+      t.add_row({std::to_string(a.id), a.name, a.currency, std::string(to_string(a.basis)),
+                 a.allow_negative_cash ? "allowed" : "no"});
+    }
+    *json_accounts ? print_json(j) : out(t.render({ctx.colour()}));
+  });
+
+  auto json_securities = std::make_shared<bool>(false);
+  auto* securities = app.get_subcommand("security")->add_subcommand("list", "List securities");
+  securities->add_flag("--json", *json_securities, "Print JSON for scripts");
+  securities->callback([&ctx, json_securities] {
+    auto db = ctx.open_ledger();
+    Json j = Json::array();
+    Table t({{"symbol"}, {"name"}, {"kind"}, {"currency"}, {"lot size", Align::right}, {"sector"}});
+    for (const auto& s : store::list_securities(db)) {
+      j.push_back({{"symbol", s.symbol},
+                   {"name", s.name},
+                   {"kind", to_string(s.kind)},
+                   {"currency", s.currency},
+                   {"lot_size", s.lot_size.str()},
+                   {"sector", s.sector ? Json(*s.sector) : Json()}});
+      t.add_row({s.symbol, s.name, std::string(to_string(s.kind)), s.currency, s.lot_size.str(),
+                 s.sector.value_or("")});
+    }
+    *json_securities ? print_json(j) : out(t.render({ctx.colour()}));
+  });
+}
+
+}  // namespace
+
+void register_report_commands(CLI::App& app, Context& ctx) {
+  add_holdings(app, ctx);
+  add_lots(app, ctx);
+  add_history(app, ctx);
+  add_gains(app, ctx);
+  add_lists(app, ctx);
+}
 
 }  // namespace keel::cli

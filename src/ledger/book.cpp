@@ -1,0 +1,357 @@
+#include "ledger/book.h"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+
+#include "core/error.h"
+#include "core/text.h"
+
+namespace keel {
+
+Decimal Position::quantity() const {
+  Decimal total;
+  for (const auto& lot : lots) total += lot.quantity;
+  return total;
+}
+
+Decimal Position::cost() const {
+  Decimal total;
+  for (const auto& lot : lots) total += lot.cost;
+  return total;
+}
+
+std::vector<Decimal> allocate(const Decimal& total, const std::vector<Decimal>& weights,
+                              int places) {
+  std::vector<Decimal> parts(weights.size());
+  if (weights.empty()) return parts;
+  Decimal weight_sum;
+  for (const auto& w : weights) weight_sum += w;
+  Decimal assigned;
+  for (std::size_t i = 0; i + 1 < weights.size(); ++i) {
+    parts[i] = Decimal::divide(total * weights[i], weight_sum, places);
+    assigned += parts[i];
+  }
+  parts.back() = total - assigned;
+  return parts;
+}
+
+Book::Book(const std::vector<Account>& accounts, std::unordered_set<std::int64_t> pending)
+    : accounts_(accounts), books_(accounts.size()), pending_(std::move(pending)) {
+  for (std::size_t i = 0; i < accounts_.size(); ++i) index_[accounts_[i].id] = i;
+}
+
+const AccountBook& Book::account(std::int64_t account_id) const {
+  return books_.at(index_.at(account_id));
+}
+
+const Account& Book::account_info(std::int64_t account_id) const {
+  return accounts_.at(index_.at(account_id));
+}
+
+AccountBook& Book::book_of(std::int64_t account_id) {
+  const auto it = index_.find(account_id);
+  if (it == index_.end())
+    throw InputError(fmt::format("transaction refers to unknown account id {}", account_id));
+  return books_[it->second];
+}
+
+void Book::apply_split(const Split& split) {
+  for (auto& book : books_) {
+    auto it = book.positions.find(split.security_id);
+    if (it == book.positions.end()) continue;
+    for (auto& lot : it->second.lots) lot.quantity *= split.ratio;
+    if (it->second.last_trade_price)
+      it->second.last_trade_price =
+          Decimal::divide(*it->second.last_trade_price, split.ratio, 10);
+  }
+  for (auto& [id, lots] : in_transit_)
+    for (auto& lot : lots) lot.quantity *= split.ratio;
+}
+
+namespace {
+
+}  // namespace
+
+std::string Book::describe(const Transaction& t) const {
+  const std::string where =
+      fmt::format("{} on {} in '{}'", to_string(t.kind), t.date.str(),
+                  printable(account_info(t.account_id).name));
+  if (pending_.count(t.id)) return "the new " + where;
+  return fmt::format("transaction {} ({})", t.id, where);
+}
+
+namespace {
+
+// Order in which lots are taken for a method; `lots` is left untouched.
+std::vector<std::size_t> taking_order(const std::vector<Lot>& lots, BasisMethod method) {
+  std::vector<std::size_t> order(lots.size());
+  for (std::size_t i = 0; i < order.size(); ++i) order[i] = i;
+  auto older = [&](std::size_t a, std::size_t b) {
+    return lots[a].acquired != lots[b].acquired ? lots[a].acquired < lots[b].acquired
+                                                : lots[a].lot_id < lots[b].lot_id;
+  };
+  switch (method) {
+    case BasisMethod::lifo:
+      std::stable_sort(order.begin(), order.end(), [&](auto a, auto b) { return older(b, a); });
+      break;
+    case BasisMethod::hifo:
+      std::stable_sort(order.begin(), order.end(), [&](auto a, auto b) {
+        // Compare unit costs exactly: cost_a / qty_a > cost_b / qty_b.
+        const Decimal lhs = lots[a].cost * lots[b].quantity;
+        const Decimal rhs = lots[b].cost * lots[a].quantity;
+        return lhs != rhs ? lhs > rhs : older(a, b);
+      });
+      break;
+    default:  // fifo, and average (which takes quantities oldest first)
+      std::stable_sort(order.begin(), order.end(), older);
+  }
+  return order;
+}
+
+// Removes `quantity` from `lot`, returning the removed part with its share of cost.
+Lot cut(Lot& lot, const Decimal& quantity) {
+  Lot part = lot;
+  part.quantity = quantity;
+  if (quantity == lot.quantity) {
+    lot.quantity = Decimal();
+    lot.cost = Decimal();
+    return part;
+  }
+  part.cost = Decimal::divide(lot.cost * quantity, lot.quantity, kCostPlaces);
+  lot.quantity -= quantity;
+  lot.cost -= part.cost;
+  return part;
+}
+
+void drop_empty(std::vector<Lot>& lots) {
+  lots.erase(std::remove_if(lots.begin(), lots.end(), [](const Lot& l) { return l.quantity.is_zero(); }),
+             lots.end());
+}
+
+}  // namespace
+
+std::vector<Lot> Book::take_lots(const Transaction& txn, const Account& account,
+                                 Position& position) {
+  const Decimal wanted = *txn.quantity;
+  const Decimal held = position.quantity();
+  if (wanted > held)
+    throw InputError(fmt::format("{}: cannot take {} units; only {} held", describe(txn),
+                                 wanted.str(), held.str()));
+  std::vector<Lot> taken;
+  if (!txn.lots.empty()) {
+    Decimal picked;
+    for (const auto& pick : txn.lots) {
+      auto it = std::find_if(position.lots.begin(), position.lots.end(),
+                             [&](const Lot& l) { return l.lot_id == pick.lot_id; });
+      if (it == position.lots.end())
+        throw InputError(fmt::format("{}: lot {} is not open in this position",
+                                     describe(txn), pick.lot_id));
+      if (pick.quantity > it->quantity)
+        throw InputError(fmt::format("{}: lot {} holds {}, fewer than the {} named",
+                                     describe(txn), pick.lot_id, it->quantity.str(),
+                                     pick.quantity.str()));
+      picked += pick.quantity;
+    }
+    if (picked != wanted)
+      throw InputError(fmt::format("{}: the lots named add up to {}, not the quantity {}",
+                                   describe(txn), picked.str(), wanted.str()));
+    for (const auto& pick : txn.lots) {
+      auto it = std::find_if(position.lots.begin(), position.lots.end(),
+                             [&](const Lot& l) { return l.lot_id == pick.lot_id; });
+      taken.push_back(cut(*it, pick.quantity));
+    }
+    drop_empty(position.lots);
+    return taken;
+  }
+  if (account.basis == BasisMethod::specific)
+    throw InputError(fmt::format(
+        "{}: account '{}' sells specific lots; name them with --lots LOT:QUANTITY (see 'keel lots')",
+        describe(txn), printable(account.name)));
+
+  const Decimal cost_before = position.cost();
+  Decimal remaining = wanted;
+  for (std::size_t i : taking_order(position.lots, account.basis)) {
+    if (remaining.is_zero()) break;
+    Lot& lot = position.lots[i];
+    const Decimal q = std::min(remaining, lot.quantity);
+    taken.push_back(cut(lot, q));
+    remaining -= q;
+  }
+  drop_empty(position.lots);
+  if (account.basis == BasisMethod::average) {
+    // Average cost: the units leave at the pooled average, and what stays is
+    // re-pooled so every open lot carries the same unit cost.
+    const Decimal taken_cost = Decimal::divide(cost_before * wanted, held, kCostPlaces);
+    std::vector<Decimal> taken_qty, open_qty;
+    for (const auto& l : taken) taken_qty.push_back(l.quantity);
+    for (const auto& l : position.lots) open_qty.push_back(l.quantity);
+    const auto taken_parts = allocate(taken_cost, taken_qty, kCostPlaces);
+    for (std::size_t i = 0; i < taken.size(); ++i) taken[i].cost = taken_parts[i];
+    const auto open_parts = allocate(cost_before - taken_cost, open_qty, kCostPlaces);
+    for (std::size_t i = 0; i < position.lots.size(); ++i) position.lots[i].cost = open_parts[i];
+  }
+  return taken;
+}
+
+void Book::apply_buy(const Transaction& txn, AccountBook& book) {
+  const Decimal gross = *txn.quantity * *txn.price;
+  auto& position = book.positions[*txn.security_id];
+  position.lots.push_back(Lot{txn.id, txn.date, *txn.quantity, gross + txn.fee});
+  position.last_trade_price = *txn.price;
+  book.cash -= gross + txn.fee;
+}
+
+void Book::apply_sell(const Transaction& txn, const Account& account, AccountBook& book) {
+  auto& position = book.positions[*txn.security_id];
+  const auto taken = take_lots(txn, account, position);
+  const Decimal proceeds = *txn.quantity * *txn.price - txn.fee;
+  std::vector<Decimal> quantities;
+  for (const auto& lot : taken) quantities.push_back(lot.quantity);
+  const auto proceeds_parts = allocate(proceeds, quantities, kCostPlaces);
+  for (std::size_t i = 0; i < taken.size(); ++i) {
+    realized_.push_back(RealizedPart{txn.account_id, *txn.security_id, taken[i].lot_id, txn.id,
+                                     taken[i].acquired, txn.date, taken[i].quantity,
+                                     proceeds_parts[i], taken[i].cost});
+  }
+  position.last_trade_price = *txn.price;
+  if (position.lots.empty()) book.positions.erase(*txn.security_id);
+  book.cash += proceeds;
+}
+
+void Book::apply_transfer_in(const Transaction& txn, AccountBook& book) {
+  if (!txn.security_id) {
+    book.cash += *txn.amount;
+    return;
+  }
+  auto& position = book.positions[*txn.security_id];
+  if (txn.link_id) {
+    auto it = in_transit_.find(*txn.link_id);
+    if (it == in_transit_.end())
+      throw InputError(fmt::format("transaction {}: its transfer out {} was not found",
+                                   txn.id, *txn.link_id));
+    for (auto& lot : it->second) position.lots.push_back(std::move(lot));
+    in_transit_.erase(it);
+  } else {
+    const Decimal unit = txn.price.value_or(Decimal());
+    position.lots.push_back(
+        Lot{txn.id, txn.acquired.value_or(txn.date), *txn.quantity, *txn.quantity * unit});
+    if (txn.price) position.last_trade_price = *txn.price;
+  }
+  book.cash -= txn.fee;
+}
+
+void Book::apply_transfer_out(const Transaction& txn, const Account& account, AccountBook& book) {
+  if (!txn.security_id) {
+    book.cash -= *txn.amount;
+    return;
+  }
+  auto& position = book.positions[*txn.security_id];
+  auto taken = take_lots(txn, account, position);
+  if (position.lots.empty()) book.positions.erase(*txn.security_id);
+  in_transit_[txn.id] = std::move(taken);
+  book.cash -= txn.fee;
+}
+
+void Book::apply(const Transaction& txn) {
+  AccountBook& book = book_of(txn.account_id);
+  const Account& account = account_info(txn.account_id);
+  switch (txn.kind) {
+    case TxnKind::deposit:
+    case TxnKind::dividend:
+    case TxnKind::interest:
+      book.cash += *txn.amount;
+      break;
+    case TxnKind::withdrawal:
+    case TxnKind::tax:
+    case TxnKind::fee:
+      book.cash -= *txn.amount;
+      break;
+    case TxnKind::buy:
+      apply_buy(txn, book);
+      break;
+    case TxnKind::sell:
+      apply_sell(txn, account, book);
+      break;
+    case TxnKind::transfer_in:
+      apply_transfer_in(txn, book);
+      break;
+    case TxnKind::transfer_out:
+      apply_transfer_out(txn, account, book);
+      break;
+    case TxnKind::void_entry:
+      break;  // replay() never passes voids here
+  }
+  touched_today_.insert(txn.account_id);
+  last_txn_today_[txn.account_id] = &txn;
+}
+
+void Book::close_day(Date day) {
+  for (const auto id : touched_today_) {
+    const Account& info = account_info(id);
+    const AccountBook& book = books_[index_.at(id)];
+    if (!info.allow_negative_cash && book.cash.is_negative())
+      throw InputError(fmt::format(
+          "cash in '{}' would be {} at the end of {} (after {}); the account does not allow "
+          "negative cash",
+          printable(info.name), book.cash.str(), day.str(), describe(*last_txn_today_[id])));
+  }
+  touched_today_.clear();
+  last_txn_today_.clear();
+}
+
+std::unordered_set<std::int64_t> voided_ids(const std::vector<Transaction>& transactions) {
+  std::unordered_set<std::int64_t> out;
+  for (const auto& t : transactions)
+    if (t.kind == TxnKind::void_entry && t.voids_id) out.insert(*t.voids_id);
+  return out;
+}
+
+Book replay(const LedgerLog& log, std::optional<Date> until, const DayObserver& observer) {
+  const auto voided = voided_ids(log.transactions);
+  std::vector<const Transaction*> live;
+  for (const auto& t : log.transactions)
+    if (t.kind != TxnKind::void_entry && !voided.count(t.id) && (!until || t.date <= *until))
+      live.push_back(&t);
+  std::sort(live.begin(), live.end(), [](const Transaction* a, const Transaction* b) {
+    return a->date != b->date ? a->date < b->date : a->id < b->id;
+  });
+  std::vector<const Split*> splits;
+  for (const auto& s : log.splits)
+    if (!until || s.date <= *until) splits.push_back(&s);
+  std::sort(splits.begin(), splits.end(),
+            [](const Split* a, const Split* b) { return a->date < b->date; });
+
+  Book book(log.accounts, log.pending);
+  std::size_t next_split = 0;
+  std::optional<Date> open_day;
+  auto finish_day = [&] {
+    if (!open_day) return;
+    book.close_day(*open_day);
+    if (observer) observer(*open_day, book);
+    open_day.reset();
+  };
+  auto splits_through = [&](Date day) {
+    while (next_split < splits.size() && splits[next_split]->date <= day) {
+      const Date split_day = splits[next_split]->date;
+      if (open_day && *open_day != split_day) finish_day();
+      open_day = split_day;
+      book.apply_split(*splits[next_split++]);
+    }
+  };
+  for (const Transaction* t : live) {
+    if (open_day && *open_day != t->date) finish_day();
+    splits_through(t->date);
+    if (open_day && *open_day != t->date) finish_day();
+    open_day = t->date;
+    book.apply(*t);
+  }
+  finish_day();
+  if (next_split < splits.size()) {
+    splits_through(splits.back()->date);
+    finish_day();
+  }
+  return book;
+}
+
+}  // namespace keel

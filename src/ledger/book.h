@@ -1,0 +1,131 @@
+// Book: what every account holds, derived by replaying the transaction log.
+//
+// The ledger stores only transactions and splits; positions, lots, cash and
+// realized gains are always recomputed from them, so there is nothing cached
+// that could drift. Replay order is (date, id); a split applies at the start
+// of its day, before that day's transactions.
+//
+// Rules enforced while replaying (each violation throws InputError naming the
+// transaction, account, day and figures):
+//  - no sell or transfer out of more units than are held (no short positions);
+//  - specific-lot picks name open lots of that position and add up exactly;
+//  - an account that does not allow negative cash ends no day below zero.
+//
+// Lots: every buy (and every security transfer in from outside) opens a lot
+// whose id is that transaction's id and whose cost includes the fee. Closing
+// part of a lot splits its cost in proportion to quantity, rounded half-to-even
+// to the cent (kCostPlaces); the remainder stays with the open part, so total
+// cost is conserved exactly. Splits multiply quantities and keep total cost.
+#pragma once
+
+#include <cstdint>
+#include <functional>
+#include <string>
+#include <map>
+#include <optional>
+#include <unordered_map>
+#include <unordered_set>
+#include <vector>
+
+#include "core/date.h"
+#include "core/decimal.h"
+#include "ledger/types.h"
+
+namespace keel {
+
+inline constexpr int kCostPlaces = 2;
+
+struct Lot {
+  std::int64_t lot_id = 0;  // id of the transaction that opened it
+  Date acquired;            // start of the holding period
+  Decimal quantity;
+  Decimal cost;  // total cost basis of this lot, fee included
+};
+
+struct RealizedPart {
+  std::int64_t account_id = 0;
+  std::int64_t security_id = 0;
+  std::int64_t lot_id = 0;
+  std::int64_t sell_txn_id = 0;
+  Date acquired;
+  Date disposed;
+  Decimal quantity;
+  Decimal proceeds;  // net of the sell's fee, allocated by quantity
+  Decimal cost;
+  Decimal gain() const { return proceeds - cost; }
+};
+
+struct Position {
+  std::vector<Lot> lots;  // open lots, oldest first
+  std::optional<Decimal> last_trade_price;
+  Decimal quantity() const;
+  Decimal cost() const;
+};
+
+struct AccountBook {
+  Decimal cash;
+  std::map<std::int64_t, Position> positions;  // by security id; only open positions
+};
+
+class Book {
+ public:
+  explicit Book(const std::vector<Account>& accounts,
+                std::unordered_set<std::int64_t> pending = {});
+
+  void apply_split(const Split& split);
+  void apply(const Transaction& txn);
+  // Checks end-of-day rules (cash) for every account touched on `day`.
+  void close_day(Date day);
+
+  const AccountBook& account(std::int64_t account_id) const;
+  const Account& account_info(std::int64_t account_id) const;
+  const std::vector<Account>& accounts() const { return accounts_; }
+  const std::vector<RealizedPart>& realized() const { return realized_; }
+
+ private:
+  AccountBook& book_of(std::int64_t account_id);
+  std::vector<Lot> take_lots(const Transaction& txn, const Account& account, Position& position);
+  void apply_buy(const Transaction& txn, AccountBook& book);
+  void apply_sell(const Transaction& txn, const Account& account, AccountBook& book);
+  void apply_transfer_in(const Transaction& txn, AccountBook& book);
+  void apply_transfer_out(const Transaction& txn, const Account& account, AccountBook& book);
+
+  std::vector<Account> accounts_;
+  std::unordered_map<std::int64_t, std::size_t> index_;
+  std::vector<AccountBook> books_;
+  std::vector<RealizedPart> realized_;
+  std::unordered_map<std::int64_t, std::vector<Lot>> in_transit_;  // by transfer_out id
+  std::unordered_set<std::int64_t> touched_today_;
+  std::unordered_map<std::int64_t, const Transaction*> last_txn_today_;
+  std::unordered_set<std::int64_t> pending_;
+  std::string describe(const Transaction& txn) const;
+};
+
+// Splits `total` into parts proportional to `weights`, each rounded
+// half-to-even to `places`, the last part taking the remainder so the parts
+// add up to `total` exactly.
+std::vector<Decimal> allocate(const Decimal& total, const std::vector<Decimal>& weights,
+                              int places);
+
+struct LedgerLog {
+  std::vector<Account> accounts;
+  std::vector<Transaction> transactions;  // any order; voids included
+  std::vector<Split> splits;
+  // Ids written in the current, uncommitted change: errors call them "the new
+  // <kind>" rather than by an id that will not exist once rolled back.
+  std::unordered_set<std::int64_t> pending;
+};
+
+// Called after the last transaction of each day that has one (and each split
+// day), with the book as it stands at that day's close.
+using DayObserver = std::function<void(Date day, const Book& book)>;
+
+// Replays every transaction and split dated on or before `until` (all, when
+// unset), skipping voided transactions and the voids themselves.
+Book replay(const LedgerLog& log, std::optional<Date> until = std::nullopt,
+            const DayObserver& observer = {});
+
+// Ids of transactions cancelled by a void entry in `transactions`.
+std::unordered_set<std::int64_t> voided_ids(const std::vector<Transaction>& transactions);
+
+}  // namespace keel

@@ -1,0 +1,97 @@
+#include "ledger/holdings.h"
+
+#include <algorithm>
+#include <map>
+
+#include "ledger/posting.h"
+#include "store/ledger_store.h"
+#include "store/prices.h"
+
+namespace keel::ledger {
+namespace {
+
+std::map<std::int64_t, std::string> symbols_by_id(store::Database& db) {
+  std::map<std::int64_t, std::string> out;
+  for (const auto& s : store::list_securities(db)) out[s.id] = s.symbol;
+  return out;
+}
+
+std::optional<std::int64_t> account_filter(store::Database& db,
+                                           const std::optional<std::string>& account) {
+  if (!account) return std::nullopt;
+  return store::account_named(db, *account).id;
+}
+
+}  // namespace
+
+bool held_long_term(Date acquired, Date disposed) { return disposed > acquired.plus_years(1); }
+
+Holdings holdings(store::Database& db, Date as_of, const std::optional<std::string>& account) {
+  const auto only = account_filter(db, account);
+  const auto symbols = symbols_by_id(db);
+  const Book book = replay(load_log(db), as_of);
+  Holdings out;
+  out.as_of = as_of;
+  for (const auto& info : book.accounts()) {
+    if (only && info.id != *only) continue;
+    const AccountBook& ab = book.account(info.id);
+    for (const auto& [security_id, position] : ab.positions) {
+      HoldingLine line;
+      line.account = info.name;
+      line.symbol = symbols.at(security_id);
+      line.quantity = position.quantity();
+      line.cost_basis = position.cost();
+      if (auto close = store::latest_close(db, security_id, as_of)) {
+        line.price = *close;
+      } else {
+        line.price = position.last_trade_price.value_or(Decimal());
+        line.price_is_close = false;
+      }
+      line.market_value = line.quantity * line.price;
+      line.unrealized_gain = line.market_value - line.cost_basis;
+      out.total_value += line.market_value;
+      out.positions.push_back(std::move(line));
+    }
+    out.cash.push_back(CashLine{info.name, ab.cash});
+    out.total_value += ab.cash;
+  }
+  std::sort(out.positions.begin(), out.positions.end(), [](const auto& a, const auto& b) {
+    return a.account != b.account ? a.account < b.account : a.symbol < b.symbol;
+  });
+  return out;
+}
+
+std::vector<LotLine> open_lots(store::Database& db, Date as_of,
+                               const std::optional<std::string>& account) {
+  const auto only = account_filter(db, account);
+  const auto symbols = symbols_by_id(db);
+  const Book book = replay(load_log(db), as_of);
+  std::vector<LotLine> out;
+  for (const auto& info : book.accounts()) {
+    if (only && info.id != *only) continue;
+    for (const auto& [security_id, position] : book.account(info.id).positions)
+      for (const auto& lot : position.lots)
+        out.push_back(LotLine{info.name, symbols.at(security_id), lot});
+  }
+  std::stable_sort(out.begin(), out.end(), [](const auto& a, const auto& b) {
+    return a.account != b.account ? a.account < b.account : a.symbol < b.symbol;
+  });
+  return out;
+}
+
+std::vector<GainLine> realized_gains(store::Database& db, std::optional<int> year,
+                                     const std::optional<std::string>& account) {
+  const auto only = account_filter(db, account);
+  const auto symbols = symbols_by_id(db);
+  const Book book = replay(load_log(db));
+  std::vector<GainLine> out;
+  for (const auto& part : book.realized()) {
+    if (only && part.account_id != *only) continue;
+    if (year && part.disposed.year() != *year) continue;
+    out.push_back(GainLine{book.account_info(part.account_id).name, symbols.at(part.security_id),
+                           part, held_long_term(part.acquired, part.disposed)});
+  }
+  return out;
+}
+
+}  // namespace keel::ledger

@@ -1,0 +1,196 @@
+#include "ledger/posting.h"
+
+#include <fmt/format.h>
+
+#include "core/error.h"
+#include "core/text.h"
+#include "store/ledger_store.h"
+
+namespace keel::ledger {
+namespace {
+
+void require(bool ok, std::string_view kind, std::string_view message) {
+  if (!ok) throw InputError(fmt::format("{}: {}", kind, message));
+}
+
+void require_positive(const std::optional<Decimal>& value, std::string_view kind,
+                      std::string_view field) {
+  require(value.has_value(), kind, fmt::format("--{} is required", field));
+  require(value->is_positive(), kind,
+          fmt::format("--{} must be positive, not {} (the kind gives the direction)", field,
+                      value->str()));
+}
+
+void forbid(bool present, std::string_view kind, std::string_view field) {
+  require(!present, kind, fmt::format("--{} does not apply", field));
+}
+
+}  // namespace
+
+void check_shape(const PostRequest& r) {
+  const std::string_view kind = to_string(r.kind);
+  require(r.kind != TxnKind::void_entry, kind, "use 'keel void ID --reason TEXT' instead");
+  if (r.fee) require(!r.fee->is_negative(), kind, "--fee must not be negative");
+  forbid(!r.lots.empty() && r.kind != TxnKind::sell && r.kind != TxnKind::transfer_out, kind,
+         "lots");
+  forbid(r.to_account && r.kind != TxnKind::transfer_out, kind, "to-account");
+  forbid(r.acquired && r.kind != TxnKind::transfer_in, kind, "acquired");
+  if (r.note) check_name("note", *r.note, 4000);
+  if (r.ref) check_name("ref", *r.ref, 200);
+
+  if (is_cash_kind(r.kind)) {
+    require_positive(r.amount, kind, "amount");
+    forbid(r.quantity.has_value(), kind, "quantity");
+    forbid(r.price.has_value(), kind, "price");
+    forbid(r.fee.has_value(), kind, "fee (record a separate fee)");
+    const bool may_name_security = r.kind != TxnKind::deposit && r.kind != TxnKind::withdrawal;
+    forbid(r.symbol && !may_name_security, kind, "symbol");
+    return;
+  }
+  if (r.kind == TxnKind::buy || r.kind == TxnKind::sell) {
+    require(r.symbol.has_value(), kind, "--symbol is required");
+    require_positive(r.quantity, kind, "quantity");
+    require_positive(r.price, kind, "price");
+    forbid(r.amount.has_value(), kind, "amount (give --quantity and --price)");
+    return;
+  }
+  // Transfers carry either cash (--amount) or units of a security (--symbol, --quantity).
+  if (r.symbol) {
+    require_positive(r.quantity, kind, "quantity");
+    forbid(r.amount.has_value(), kind, "amount together with --symbol");
+    const bool from_outside = r.kind == TxnKind::transfer_in;
+    if (from_outside)
+      require_positive(r.price, kind, "price (the unit cost of the units brought in)");
+    else
+      forbid(r.price.has_value(), kind, "price");
+  } else {
+    require_positive(r.amount, kind, "amount (or --symbol and --quantity for units)");
+    forbid(r.quantity.has_value(), kind, "quantity without --symbol");
+    forbid(r.price.has_value(), kind, "price");
+    forbid(r.acquired.has_value(), kind, "acquired");
+  }
+}
+
+std::vector<std::int64_t> write_unchecked(store::Database& db, const PostRequest& r) {
+  check_shape(r);
+  const Account account = store::account_named(db, r.account);
+  Transaction t;
+  t.account_id = account.id;
+  t.date = r.date;
+  t.kind = r.kind;
+  t.quantity = r.quantity;
+  t.price = r.price;
+  t.amount = r.amount;
+  t.fee = r.fee.value_or(Decimal());
+  t.acquired = r.acquired;
+  t.lots = r.lots;
+  t.ref = r.ref;
+  t.row_hash = r.row_hash;
+  t.note = r.note;
+  if (r.symbol) {
+    const Security security = store::security_with_symbol(db, *r.symbol);
+    const bool trades_units = !is_cash_kind(r.kind);
+    if (trades_units && security.currency != account.currency)
+      throw InputError(fmt::format(
+          "{}: {} is priced in {} but account '{}' keeps {}; keel does not convert currencies",
+          to_string(r.kind), printable(security.symbol), security.currency,
+          printable(account.name), account.currency));
+    if (trades_units && security.kind == SecurityKind::index)
+      throw InputError(fmt::format("{}: {} is an index; an index has levels, not units to hold",
+                                   to_string(r.kind), printable(security.symbol)));
+    t.security_id = security.id;
+  }
+  if (r.ref && store::ref_exists(db, account.id, *r.ref))
+    throw InputError(fmt::format("reference '{}' is already booked in account '{}'",
+                                 printable(*r.ref), printable(account.name)));
+
+  std::vector<std::int64_t> ids{store::insert_transaction(db, t)};
+  if (r.to_account) {
+    const Account receiver = store::account_named(db, *r.to_account);
+    if (receiver.id == account.id)
+      throw InputError("transfer_out: --to-account names the same account");
+    if (receiver.currency != account.currency)
+      throw InputError(fmt::format("transfer_out: '{}' keeps {} and '{}' keeps {}",
+                                   printable(account.name), account.currency,
+                                   printable(receiver.name), receiver.currency));
+    Transaction in = t;
+    in.account_id = receiver.id;
+    in.kind = TxnKind::transfer_in;
+    in.fee = Decimal();
+    in.lots.clear();
+    in.link_id = ids.front();
+    in.ref.reset();
+    in.row_hash.reset();
+    ids.push_back(store::insert_transaction(db, in));
+  }
+  return ids;
+}
+
+LedgerLog load_log(store::Database& db) {
+  LedgerLog log;
+  log.accounts = store::list_accounts(db);
+  log.transactions = store::list_transactions(db);
+  log.splits = store::list_splits(db);
+  return log;
+}
+
+Book check_ledger(store::Database& db, const std::vector<std::int64_t>& pending) {
+  LedgerLog log = load_log(db);
+  log.pending.insert(pending.begin(), pending.end());
+  return replay(log);
+}
+
+std::vector<std::int64_t> post(store::Database& db, const PostRequest& request) {
+  store::WriteTransaction tx(db);
+  auto ids = write_unchecked(db, request);
+  check_ledger(db, ids);
+  tx.commit();
+  return ids;
+}
+
+std::int64_t post_split(store::Database& db, const std::string& symbol, Date date,
+                        const Decimal& ratio) {
+  if (!ratio.is_positive())
+    throw InputError(fmt::format("split: --ratio must be positive, not {}", ratio.str()));
+  if (ratio == Decimal(1)) throw InputError("split: a ratio of 1 changes nothing");
+  store::WriteTransaction tx(db);
+  const Security security = store::security_with_symbol(db, symbol);
+  const auto id = store::insert_split(db, Split{0, security.id, date, ratio});
+  check_ledger(db);
+  tx.commit();
+  return id;
+}
+
+std::vector<std::int64_t> void_transaction(store::Database& db, std::int64_t id,
+                                           const std::string& reason) {
+  check_name("reason", reason, 4000);
+  store::WriteTransaction tx(db);
+  const auto target = store::find_transaction(db, id);
+  if (!target) throw InputError(fmt::format("there is no transaction {}", id));
+  if (target->kind == TxnKind::void_entry)
+    throw InputError(fmt::format("transaction {} is itself a void and cannot be voided", id));
+  if (auto existing = store::void_of(db, id))
+    throw InputError(fmt::format("transaction {} is already void (by {})", id, *existing));
+
+  std::vector<Transaction> targets{*target};
+  // The two halves of an internal transfer stand or fall together.
+  if (target->link_id) targets.push_back(*store::find_transaction(db, *target->link_id));
+  for (const auto& t : store::list_transactions(db))
+    if (t.link_id && *t.link_id == id && t.kind != TxnKind::void_entry) targets.push_back(t);
+
+  std::vector<std::int64_t> ids;
+  for (const auto& t : targets) {
+    Transaction v;
+    v.account_id = t.account_id;
+    v.date = t.date;
+    v.kind = TxnKind::void_entry;
+    v.voids_id = t.id;
+    v.note = reason;
+    ids.push_back(store::insert_transaction(db, v));
+  }
+  check_ledger(db);
+  tx.commit();
+  return ids;
+}
+
+}  // namespace keel::ledger

@@ -1,0 +1,64 @@
+// Posting: the only way transactions enter the ledger.
+//
+// A request names accounts and securities as a person types them. post()
+// checks its shape (which figures a kind needs, all positive), resolves the
+// names, writes the row(s) and replays the whole ledger inside one write
+// transaction; if any rule breaks (see ledger/book.h), it throws InputError
+// and nothing is written. void_transaction() cancels a posted row (and the
+// other half of a transfer pair) by recording void entries, under the same
+// all-or-nothing check.
+#pragma once
+
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "ledger/book.h"
+#include "ledger/types.h"
+#include "store/database.h"
+
+namespace keel::ledger {
+
+struct PostRequest {
+  TxnKind kind = TxnKind::deposit;
+  Date date;
+  std::string account;
+  std::optional<std::string> symbol;
+  std::optional<Decimal> quantity;
+  std::optional<Decimal> price;
+  std::optional<Decimal> amount;
+  std::optional<Decimal> fee;
+  std::optional<Date> acquired;
+  std::vector<LotPick> lots;
+  std::optional<std::string> to_account;  // transfer_out only: the receiving own account
+  std::optional<std::string> ref;
+  std::optional<std::string> note;
+  std::optional<std::string> row_hash;  // set by importers for rows without ref
+};
+
+// Throws InputError naming the first figure that is missing, extra or not positive.
+void check_shape(const PostRequest& request);
+
+// Posts one request; returns the ids written (two for an internal transfer).
+std::vector<std::int64_t> post(store::Database& db, const PostRequest& request);
+
+// Writes the rows of `requests` without replaying; the caller replays once
+// (check_ledger) and commits. For importers that post many rows in one go.
+std::vector<std::int64_t> write_unchecked(store::Database& db, const PostRequest& request);
+
+// Replays the whole ledger; throws InputError on the first broken rule.
+// `pending` are ids written by the change being checked (see LedgerLog).
+Book check_ledger(store::Database& db, const std::vector<std::int64_t>& pending = {});
+
+// Records a split of `symbol` on `date`; ratio = new units per old unit.
+std::int64_t post_split(store::Database& db, const std::string& symbol, Date date,
+                        const Decimal& ratio);
+
+// Cancels transaction `id`; returns the ids of the void entries written.
+std::vector<std::int64_t> void_transaction(store::Database& db, std::int64_t id,
+                                           const std::string& reason);
+
+LedgerLog load_log(store::Database& db);
+
+}  // namespace keel::ledger
