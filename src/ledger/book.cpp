@@ -45,6 +45,12 @@ const AccountBook& Book::account(std::int64_t account_id) const {
   return books_.at(index_.at(account_id));
 }
 
+std::optional<Decimal> Book::last_trade_price(std::int64_t security_id) const {
+  const auto it = last_trade_price_.find(security_id);
+  if (it == last_trade_price_.end()) return std::nullopt;
+  return it->second;
+}
+
 const Account& Book::account_info(std::int64_t account_id) const {
   return accounts_.at(index_.at(account_id));
 }
@@ -61,10 +67,9 @@ void Book::apply_split(const Split& split) {
     auto it = book.positions.find(split.security_id);
     if (it == book.positions.end()) continue;
     for (auto& lot : it->second.lots) lot.quantity *= split.ratio;
-    if (it->second.last_trade_price)
-      it->second.last_trade_price =
-          Decimal::divide(*it->second.last_trade_price, split.ratio, 10);
   }
+  if (auto it = last_trade_price_.find(split.security_id); it != last_trade_price_.end())
+    it->second = Decimal::divide(it->second, split.ratio, 10);
   for (auto& [id, lots] : in_transit_)
     for (auto& lot : lots) lot.quantity *= split.ratio;
 }
@@ -198,7 +203,7 @@ void Book::apply_buy(const Transaction& txn, AccountBook& book) {
   const Decimal gross = *txn.quantity * *txn.price;
   auto& position = book.positions[*txn.security_id];
   position.lots.push_back(Lot{txn.id, txn.date, *txn.quantity, gross + txn.fee});
-  position.last_trade_price = *txn.price;
+  last_trade_price_[*txn.security_id] = *txn.price;
   book.cash -= gross + txn.fee;
 }
 
@@ -214,7 +219,7 @@ void Book::apply_sell(const Transaction& txn, const Account& account, AccountBoo
                                      taken[i].acquired, txn.date, taken[i].quantity,
                                      proceeds_parts[i], taken[i].cost});
   }
-  position.last_trade_price = *txn.price;
+  last_trade_price_[*txn.security_id] = *txn.price;
   if (position.lots.empty()) book.positions.erase(*txn.security_id);
   book.cash += proceeds;
 }
@@ -236,7 +241,7 @@ void Book::apply_transfer_in(const Transaction& txn, AccountBook& book) {
     const Decimal unit = txn.price.value_or(Decimal());
     position.lots.push_back(
         Lot{txn.id, txn.acquired.value_or(txn.date), *txn.quantity, *txn.quantity * unit});
-    if (txn.price) position.last_trade_price = *txn.price;
+    if (txn.price) last_trade_price_[*txn.security_id] = *txn.price;
   }
   book.cash -= txn.fee;
 }

@@ -57,7 +57,6 @@ struct RealizedPart {
 
 struct Position {
   std::vector<Lot> lots;  // open lots, oldest first
-  std::optional<Decimal> last_trade_price;
   Decimal quantity() const;
   Decimal cost() const;
 };
@@ -81,6 +80,9 @@ class Book {
   const Account& account_info(std::int64_t account_id) const;
   const std::vector<Account>& accounts() const { return accounts_; }
   const std::vector<RealizedPart>& realized() const { return realized_; }
+  // The latest unit price the ledger traded `security_id` at, in any account
+  // (split-adjusted); unset if it never traded.
+  std::optional<Decimal> last_trade_price(std::int64_t security_id) const;
 
  private:
   AccountBook& book_of(std::int64_t account_id);
@@ -94,6 +96,7 @@ class Book {
   std::unordered_map<std::int64_t, std::size_t> index_;
   std::vector<AccountBook> books_;
   std::vector<RealizedPart> realized_;
+  std::unordered_map<std::int64_t, Decimal> last_trade_price_;
   std::unordered_map<std::int64_t, std::vector<Lot>> in_transit_;  // by transfer_out id
   std::unordered_set<std::int64_t> touched_today_;
   std::unordered_map<std::int64_t, const Transaction*> last_txn_today_;

@@ -44,7 +44,7 @@ Holdings holdings(store::Database& db, Date as_of, const std::optional<std::stri
       if (auto close = store::latest_close(db, security_id, as_of)) {
         line.price = *close;
       } else {
-        line.price = position.last_trade_price.value_or(Decimal());
+        line.price = book.last_trade_price(security_id).value_or(Decimal());
         line.price_is_close = false;
       }
       line.market_value = line.quantity * line.price;

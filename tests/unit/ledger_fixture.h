@@ -1,0 +1,76 @@
+// A small in-memory ledger for examples: accounts, securities and one-line
+// posting helpers, so each test reads as the story it checks.
+#pragma once
+
+#include <string>
+
+#include "core/error.h"
+
+#include "ledger/holdings.h"
+#include "ledger/posting.h"
+#include "store/database.h"
+#include "store/fingerprint.h"
+#include "store/ledger_store.h"
+
+namespace keel::testing {
+
+inline Decimal dec(const char* text) { return Decimal::parse(text); }
+inline Date day(const char* text) { return Date::parse(text); }
+
+struct LedgerFixture {
+  store::Database db = store::Database::in_memory();
+
+  void account(const std::string& name, BasisMethod basis = BasisMethod::fifo,
+               bool allow_negative = false) {
+    Account a;
+    a.name = name;
+    a.basis = basis;
+    a.allow_negative_cash = allow_negative;
+    store::insert_account(db, a);
+  }
+  void security(const std::string& symbol, SecurityKind kind = SecurityKind::stock) {
+    Security s;
+    s.symbol = symbol;
+    s.name = symbol + " (invented)";
+    s.kind = kind;
+    store::insert_security(db, s);
+  }
+  std::int64_t cash(TxnKind kind, const char* date, const std::string& account, const char* amount,
+                    std::optional<std::string> symbol = std::nullopt) {
+    ledger::PostRequest r;
+    r.kind = kind;
+    r.date = day(date);
+    r.account = account;
+    r.amount = dec(amount);
+    r.symbol = std::move(symbol);
+    return ledger::post(db, r).front();
+  }
+  std::int64_t trade(TxnKind kind, const char* date, const std::string& account,
+                     const std::string& symbol, const char* quantity, const char* price,
+                     const char* fee = "0", std::vector<LotPick> lots = {}) {
+    ledger::PostRequest r;
+    r.kind = kind;
+    r.date = day(date);
+    r.account = account;
+    r.symbol = symbol;
+    r.quantity = dec(quantity);
+    r.price = dec(price);
+    r.fee = dec(fee);
+    r.lots = std::move(lots);
+    return ledger::post(db, r).front();
+  }
+  std::int64_t buy(const char* date, const std::string& account, const std::string& symbol,
+                   const char* quantity, const char* price, const char* fee = "0") {
+    return trade(TxnKind::buy, date, account, symbol, quantity, price, fee);
+  }
+  std::int64_t sell(const char* date, const std::string& account, const std::string& symbol,
+                    const char* quantity, const char* price, const char* fee = "0",
+                    std::vector<LotPick> lots = {}) {
+    return trade(TxnKind::sell, date, account, symbol, quantity, price, fee, std::move(lots));
+  }
+  Book book() { return ledger::check_ledger(db); }
+  std::string dump() { return store::content_dump(db); }
+  std::vector<ledger::GainLine> gains() { return ledger::realized_gains(db, std::nullopt); }
+};
+
+}  // namespace keel::testing
