@@ -312,51 +312,54 @@ std::unordered_set<std::int64_t> voided_ids(const std::vector<Transaction>& tran
   return out;
 }
 
-Book replay(const LedgerLog& log, std::optional<Date> until, const DayObserver& observer) {
+Replayer::Replayer(const LedgerLog& log) : book_(log.accounts, log.pending) {
   const auto voided = voided_ids(log.transactions);
-  std::vector<const Transaction*> live;
   for (const auto& t : log.transactions)
-    if (t.kind != TxnKind::void_entry && !voided.count(t.id) && (!until || t.date <= *until))
-      live.push_back(&t);
-  std::sort(live.begin(), live.end(), [](const Transaction* a, const Transaction* b) {
+    if (t.kind != TxnKind::void_entry && !voided.count(t.id)) live_.push_back(&t);
+  std::sort(live_.begin(), live_.end(), [](const Transaction* a, const Transaction* b) {
     return a->date != b->date ? a->date < b->date : a->id < b->id;
   });
-  std::vector<const Split*> splits;
-  for (const auto& s : log.splits)
-    if (!until || s.date <= *until) splits.push_back(&s);
-  std::sort(splits.begin(), splits.end(),
-            [](const Split* a, const Split* b) { return a->date < b->date; });
+  for (const auto& split : log.splits) splits_.push_back(&split);
+  std::sort(splits_.begin(), splits_.end(), [](const Split* a, const Split* b) {
+    return a->date != b->date ? a->date < b->date : a->id < b->id;
+  });
+}
 
-  Book book(log.accounts, log.pending);
-  std::size_t next_split = 0;
-  std::optional<Date> open_day;
-  auto finish_day = [&] {
-    if (!open_day) return;
-    book.close_day(*open_day);
-    if (observer) observer(*open_day, book);
-    open_day.reset();
-  };
-  auto splits_through = [&](Date day) {
-    while (next_split < splits.size() && splits[next_split]->date <= day) {
-      const Date split_day = splits[next_split]->date;
-      if (open_day && *open_day != split_day) finish_day();
-      open_day = split_day;
-      book.apply_split(*splits[next_split++]);
-    }
-  };
-  for (const Transaction* t : live) {
-    if (open_day && *open_day != t->date) finish_day();
-    splits_through(t->date);
-    if (open_day && *open_day != t->date) finish_day();
-    open_day = t->date;
-    book.apply(*t);
+void Replayer::close_open_day(const DayObserver& observer) {
+  if (!open_day_) return;
+  book_.close_day(*open_day_);
+  if (observer) observer(*open_day_, book_);
+  open_day_.reset();
+}
+
+const Book& Replayer::advance_to(Date day, const DayObserver& observer) {
+  for (;;) {
+    // The next event is the earlier of the next split and the next
+    // transaction; a split goes first on a shared day (start of day).
+    const bool split_next =
+        next_split_ < splits_.size() && splits_[next_split_]->date <= day &&
+        (next_txn_ >= live_.size() || splits_[next_split_]->date <= live_[next_txn_]->date);
+    const bool txn_next = !split_next && next_txn_ < live_.size() && live_[next_txn_]->date <= day;
+    if (!split_next && !txn_next) break;
+    const Date event_day = split_next ? splits_[next_split_]->date : live_[next_txn_]->date;
+    if (open_day_ && *open_day_ != event_day) close_open_day(observer);
+    open_day_ = event_day;
+    if (split_next)
+      book_.apply_split(*splits_[next_split_++]);
+    else
+      book_.apply(*live_[next_txn_++]);
   }
-  finish_day();
-  if (next_split < splits.size()) {
-    splits_through(splits.back()->date);
-    finish_day();
-  }
-  return book;
+  close_open_day(observer);
+  return book_;
+}
+
+const Book& Replayer::finish(const DayObserver& observer) {
+  return advance_to(Date::from_ymd(9999, 12, 31), observer);
+}
+
+Book replay(const LedgerLog& log, std::optional<Date> until, const DayObserver& observer) {
+  Replayer replayer(log);
+  return until ? replayer.advance_to(*until, observer) : replayer.finish(observer);
 }
 
 }  // namespace keel

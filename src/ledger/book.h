@@ -123,6 +123,28 @@ struct LedgerLog {
 // day), with the book as it stands at that day's close.
 using DayObserver = std::function<void(Date day, const Book& book)>;
 
+// Steps through the log day by day: advance_to(d) applies every split and
+// transaction dated on or before d not yet applied, closing each day in turn.
+// The log must outlive the Replayer. Throws as Book::apply does.
+class Replayer {
+ public:
+  explicit Replayer(const LedgerLog& log);
+  const Book& advance_to(Date day, const DayObserver& observer = {});
+  const Book& finish(const DayObserver& observer = {});  // everything
+  const Book& book() const { return book_; }
+  // The live (not voided) transactions, in posting order.
+  const std::vector<const Transaction*>& live() const { return live_; }
+
+ private:
+  void close_open_day(const DayObserver& observer);
+  std::vector<const Transaction*> live_;
+  std::vector<const Split*> splits_;
+  Book book_;
+  std::size_t next_txn_ = 0;
+  std::size_t next_split_ = 0;
+  std::optional<Date> open_day_;
+};
+
 // Replays every transaction and split dated on or before `until` (all, when
 // unset), skipping voided transactions and the voids themselves.
 Book replay(const LedgerLog& log, std::optional<Date> until = std::nullopt,
