@@ -197,10 +197,14 @@ MwrSolution solve_mwr(std::span<const CashFlow> input, Date start, Date end) {
   const auto g = [&flows](double y) { return scaled_npv(flows, y); };
   const auto [lo, hi] = root_bounds(flows);
   std::vector<double> log_roots;
-  if (out.flow_sign_changes == 1) {
-    // Exactly one root, and f has opposite signs at the two bounds.
-    log_roots.push_back(brent(g, lo, hi, g(lo), g(hi)));
+  const double g_lo = g(lo);
+  const double g_hi = g(hi);
+  if (out.flow_sign_changes == 1 && opposite(g_lo, g_hi)) {
+    // Exactly one root, bracketed by the bounds.
+    log_roots.push_back(brent(g, lo, hi, g_lo, g_hi));
   } else {
+    // Several sign changes (or, defensively, bounds that do not bracket):
+    // scan the whole range where roots can lie.
     const std::vector<double> ys = scan_grid(lo, hi);
     std::vector<double> gs(ys.size());
     for (std::size_t k = 0; k < ys.size(); ++k) gs[k] = g(ys[k]);
