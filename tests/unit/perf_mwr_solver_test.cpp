@@ -5,6 +5,7 @@
 #include <doctest/doctest.h>
 
 #include <cmath>
+#include <random>
 #include <vector>
 
 #include "core/error.h"
@@ -175,4 +176,37 @@ TEST_CASE("perf mwr: several sign changes with a single root give that root") {
 TEST_CASE("perf mwr: a flow outside the period is refused") {
   const std::vector<CashFlow> flows{{at(0), 100.0}, {at(40), -101.0}};
   CHECK_THROWS_AS(solve_mwr(flows, at(0), at(30)), keel::InputError);
+}
+
+TEST_CASE("perf mwr: rates built into random flow sets are found back") {
+  // 200 invented cases, fixed seed: 2 to 40 payments in on random days over
+  // up to 10 years, some withdrawals, and a closing value grown at a rate r*
+  // between -90 % and +200 % a year. Whatever the sign pattern, the solver
+  // must give r* back (or, with several roots, list r* among them).
+  std::mt19937 gen(20250101);
+  std::uniform_real_distribution<double> rate(-0.9, 2.0);
+  std::uniform_real_distribution<double> amount(1.0, 1e6);
+  std::uniform_int_distribution<int> count(2, 40);
+  std::uniform_int_distribution<int> horizon(30, 3650);
+  std::bernoulli_distribution withdraw(0.2);
+  for (int c = 0; c < 200; ++c) {
+    const double r = rate(gen);
+    const int span = horizon(gen);
+    std::uniform_int_distribution<int> when(0, span - 1);
+    std::vector<CashFlow> flows{{at(0), amount(gen)}};
+    const int n = count(gen);
+    for (int i = 1; i < n; ++i)
+      flows.push_back({at(when(gen)), withdraw(gen) ? -0.1 * amount(gen) : amount(gen)});
+    const CashFlow closing = closing_for(flows, r, at(span));
+    if (closing.amount >= 0) continue;  // withdrawals exceeded the value: not a portfolio
+    flows.push_back(closing);
+    const MwrSolution s = solve_mwr(flows, at(0), at(span));
+    CAPTURE(c);
+    CAPTURE(r);
+    REQUIRE(s.status != MwrStatus::kNoRoot);
+    bool found = false;
+    for (double root : s.roots) found = found || std::fabs(root - r) <= 1e-9 * (1 + std::fabs(r));
+    CHECK(found);
+    if (s.status == MwrStatus::kOk) CHECK(*s.annual_rate == doctest::Approx(r).epsilon(1e-9));
+  }
 }
