@@ -128,10 +128,10 @@ ledger::PostRequest to_request(TxnKind kind, const RecordOptions& o) {
 struct KindSpec {
   TxnKind kind;
   const char* help;
-  bool units;      // --symbol --quantity
-  bool trade;      // --price --fee
-  bool cash;       // --amount
-  bool security;   // --symbol for cash kinds
+  bool units;     // --symbol --quantity
+  bool trade;     // --price --fee
+  bool cash;      // --amount
+  bool security;  // --symbol for cash kinds
 };
 
 constexpr KindSpec kKindSpecs[] = {
@@ -147,8 +147,8 @@ constexpr KindSpec kKindSpecs[] = {
     {TxnKind::fee, "A fee charged to the account", false, false, true, true},
     {TxnKind::transfer_in, "Cash or units brought in from outside", true, true, true, false},
     {TxnKind::transfer_out,
-     "Cash or units moved out; with --to-account, into another account of this ledger", true,
-     true, true, false},
+     "Cash or units moved out; with --to-account, into another account of this ledger", true, true,
+     true, false},
 };
 
 void add_record_kind(CLI::App& group, Context& ctx, const KindSpec& spec) {
@@ -161,9 +161,9 @@ void add_record_kind(CLI::App& group, Context& ctx, const KindSpec& spec) {
                     spec.units ? "Security symbol" : "Security the cash relates to (optional)");
   if (spec.units) cmd->add_option("--quantity", o->quantity, "Number of units (positive)");
   if (spec.trade) {
-    cmd->add_option("--price", o->price,
-                    spec.kind == TxnKind::transfer_in ? "Unit cost of units brought in"
-                                                      : "Price per unit");
+    cmd->add_option(
+        "--price", o->price,
+        spec.kind == TxnKind::transfer_in ? "Unit cost of units brought in" : "Price per unit");
     cmd->add_option("--fee", o->fee, "Fee or commission (default 0)");
   }
   if (spec.cash) cmd->add_option("--amount", o->amount, "Cash amount (positive)");
@@ -184,8 +184,8 @@ void add_record_kind(CLI::App& group, Context& ctx, const KindSpec& spec) {
     const auto ids = ledger::post(db, request);
     std::string id_text = std::to_string(ids.front());
     if (ids.size() > 1) id_text += fmt::format(" and {}", ids.back());
-    out(fmt::format("posted {}: {} on {} in '{}'\n", id_text, to_string(kind),
-                    request.date.str(), printable(request.account)));
+    out(fmt::format("posted {}: {} on {} in '{}'\n", id_text, to_string(kind), request.date.str(),
+                    printable(request.account)));
   });
 }
 

@@ -19,8 +19,12 @@ using Json = nlohmann::ordered_json;
 using report::Align;
 using report::Table;
 
-void print_json(const Json& j) { out(j.dump(2) + "\n"); }
-std::string money(const Decimal& d) { return d.fixed(2); }
+void print_json(const Json& j) {
+  out(j.dump(2) + "\n");
+}
+std::string money(const Decimal& d) {
+  return d.fixed(2);
+}
 std::string percent(const Decimal& part, const Decimal& whole) {
   if (whole.is_zero()) return "";
   return Decimal::divide(part * Decimal(100), whole, 2).fixed(2) + "%";
@@ -67,21 +71,27 @@ void add_holdings(CLI::App& app, Context& ctx) {
                                   {"market_value", p.market_value.str()},
                                   {"unrealized_gain", p.unrealized_gain.str()}});
       j["cash"] = Json::array();
-      for (const auto& c : h.cash) j["cash"].push_back({{"account", c.account}, {"amount", c.amount.str()}});
+      for (const auto& c : h.cash)
+        j["cash"].push_back({{"account", c.account}, {"amount", c.amount.str()}});
       j["total_value"] = h.total_value.str();
       print_json(j);
       return;
     }
-    Table t({{"account"}, {"symbol"}, {"quantity", Align::right}, {"cost basis", Align::right},
-             {"price", Align::right}, {"market value", Align::right},
-             {"unrealized", Align::right}, {"weight", Align::right}});
+    Table t({{"account"},
+             {"symbol"},
+             {"quantity", Align::right},
+             {"cost basis", Align::right},
+             {"price", Align::right},
+             {"market value", Align::right},
+             {"unrealized", Align::right},
+             {"weight", Align::right}});
     for (const auto& p : h.positions)
       t.add_row({p.account, p.symbol, p.quantity.str(), money(p.cost_basis),
                  p.price.str() + (p.price_is_close ? "" : "*"), money(p.market_value),
                  money(p.unrealized_gain), percent(p.market_value, h.total_value)});
     for (const auto& c : h.cash)
-      t.add_row({c.account, "(cash)", "", "", "", money(c.amount), "",
-                 percent(c.amount, h.total_value)});
+      t.add_row(
+          {c.account, "(cash)", "", "", "", money(c.amount), "", percent(c.amount, h.total_value)});
     t.add_rule();
     t.add_row({"total", "", "", "", "", money(h.total_value), "", ""});
     out(fmt::format("Holdings as of {}\n\n", h.as_of.str()));
@@ -113,8 +123,13 @@ void add_lots(CLI::App& app, Context& ctx) {
       print_json(j);
       return;
     }
-    Table t({{"account"}, {"symbol"}, {"lot", Align::right}, {"acquired"},
-             {"quantity", Align::right}, {"cost", Align::right}, {"unit cost", Align::right}});
+    Table t({{"account"},
+             {"symbol"},
+             {"lot", Align::right},
+             {"acquired"},
+             {"quantity", Align::right},
+             {"cost", Align::right},
+             {"unit cost", Align::right}});
     for (const auto& l : lots)
       t.add_row({l.account, l.symbol, std::to_string(l.lot.lot_id), l.lot.acquired.str(),
                  l.lot.quantity.str(), money(l.lot.cost),
@@ -156,9 +171,16 @@ void add_gains(CLI::App& app, Context& ctx) {
       print_json(j);
       return;
     }
-    Table t({{"account"}, {"symbol"}, {"lot", Align::right}, {"acquired"}, {"disposed"},
-             {"quantity", Align::right}, {"proceeds", Align::right}, {"cost", Align::right},
-             {"gain", Align::right}, {"term"}});
+    Table t({{"account"},
+             {"symbol"},
+             {"lot", Align::right},
+             {"acquired"},
+             {"disposed"},
+             {"quantity", Align::right},
+             {"proceeds", Align::right},
+             {"cost", Align::right},
+             {"gain", Align::right},
+             {"term"}});
     for (const auto& g : gains)
       t.add_row({g.account, g.symbol, std::to_string(g.part.lot_id), g.part.acquired.str(),
                  g.part.disposed.str(), g.part.quantity.str(), money(g.part.proceeds),
@@ -193,9 +215,17 @@ void add_history(CLI::App& app, Context& ctx) {
     const auto voided = voided_ids(txns);
     auto opt = [](const std::optional<Decimal>& d) { return d ? d->str() : std::string(); };
     Json j = Json::array();
-    Table t({{"id", Align::right}, {"date"}, {"account"}, {"kind"}, {"symbol"},
-             {"quantity", Align::right}, {"price", Align::right}, {"amount", Align::right},
-             {"fee", Align::right}, {"ref"}, {"note"}});
+    Table t({{"id", Align::right},
+             {"date"},
+             {"account"},
+             {"kind"},
+             {"symbol"},
+             {"quantity", Align::right},
+             {"price", Align::right},
+             {"amount", Align::right},
+             {"fee", Align::right},
+             {"ref"},
+             {"note"}});
     for (const auto& x : txns) {
       if (only && x.account_id != *only) continue;
       if ((from && x.date < *from) || (to && x.date > *to)) continue;

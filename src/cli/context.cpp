@@ -24,8 +24,12 @@ store::Database Context::open_ledger(bool create) const {
   return store::Database::open(ledger_path(), options);
 }
 
-bool Context::colour() const { return report::use_colour(stdout); }
+bool Context::colour() const {
+  return report::use_colour(stdout);
+}
 
-void out(const std::string& text) { std::fwrite(text.data(), 1, text.size(), stdout); }
+void out(const std::string& text) {
+  std::fwrite(text.data(), 1, text.size(), stdout);
+}
 
 }  // namespace keel::cli

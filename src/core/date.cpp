@@ -59,11 +59,19 @@ Date Date::today() {
   return from_ymd(local.tm_year + 1900, local.tm_mon + 1, local.tm_mday);
 }
 
-int Date::year() const { return static_cast<int>(to_ymd(days_).year()); }
-int Date::month() const { return static_cast<int>(static_cast<unsigned>(to_ymd(days_).month())); }
-int Date::day() const { return static_cast<int>(static_cast<unsigned>(to_ymd(days_).day())); }
+int Date::year() const {
+  return static_cast<int>(to_ymd(days_).year());
+}
+int Date::month() const {
+  return static_cast<int>(static_cast<unsigned>(to_ymd(days_).month()));
+}
+int Date::day() const {
+  return static_cast<int>(static_cast<unsigned>(to_ymd(days_).day()));
+}
 
-std::string Date::str() const { return fmt::format("{:04}-{:02}-{:02}", year(), month(), day()); }
+std::string Date::str() const {
+  return fmt::format("{:04}-{:02}-{:02}", year(), month(), day());
+}
 
 Date Date::plus_months(int n) const {
   const auto ymd = to_ymd(days_);

@@ -15,7 +15,7 @@ namespace keel {
 
 class Date {
  public:
-  Date() = default;  // 1970-01-01
+  Date() = default;                                    // 1970-01-01
   static Date from_ymd(int year, int month, int day);  // throws InputError
   static Date parse(std::string_view text);
   static bool valid_ymd(int year, int month, int day);

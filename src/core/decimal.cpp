@@ -43,7 +43,7 @@ Int pow10(int n) {
 Int round_half_even(const Int& value, int drop) {
   if (drop <= 0) return value;
   const Int divisor = pow10(drop);
-  Int quotient = value / divisor;  // truncates toward zero
+  Int quotient = value / divisor;   // truncates toward zero
   Int remainder = value % divisor;  // same sign as value
   if (remainder.is_zero()) return quotient;
   const Int twice = boost::multiprecision::abs(remainder) * 2;
@@ -217,7 +217,9 @@ double Decimal::to_double() const {
   return std::stod(str());
 }
 
-Decimal Decimal::operator-() const { return Decimal(-mantissa_, scale_); }
+Decimal Decimal::operator-() const {
+  return Decimal(-mantissa_, scale_);
+}
 
 Decimal operator+(const Decimal& a, const Decimal& b) {
   const int scale = std::max(a.scale_, b.scale_);

@@ -39,7 +39,7 @@ class Decimal {
   // Throws InputError on division by zero.
   static Decimal divide(const Decimal& numerator, const Decimal& denominator, int places);
 
-  std::string str() const;             // canonical, lossless
+  std::string str() const;              // canonical, lossless
   std::string fixed(int places) const;  // rounded half-to-even, exactly `places` digits
   Decimal rounded(int places) const;    // half-to-even
   Decimal truncated(int places) const;  // toward zero ("whole shares" style flooring of |x|)

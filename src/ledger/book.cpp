@@ -74,14 +74,11 @@ void Book::apply_split(const Split& split) {
     for (auto& lot : lots) lot.quantity *= split.ratio;
 }
 
-namespace {
-
-}  // namespace
+namespace {}  // namespace
 
 std::string Book::describe(const Transaction& t) const {
-  const std::string where =
-      fmt::format("{} on {} in '{}'", to_string(t.kind), t.date.str(),
-                  printable(account_info(t.account_id).name));
+  const std::string where = fmt::format("{} on {} in '{}'", to_string(t.kind), t.date.str(),
+                                        printable(account_info(t.account_id).name));
   if (pending_.count(t.id)) return "the new " + where;
   return fmt::format("transaction {} ({})", t.id, where);
 }
@@ -130,8 +127,9 @@ Lot cut(Lot& lot, const Decimal& quantity) {
 }
 
 void drop_empty(std::vector<Lot>& lots) {
-  lots.erase(std::remove_if(lots.begin(), lots.end(), [](const Lot& l) { return l.quantity.is_zero(); }),
-             lots.end());
+  lots.erase(
+      std::remove_if(lots.begin(), lots.end(), [](const Lot& l) { return l.quantity.is_zero(); }),
+      lots.end());
 }
 
 }  // namespace
@@ -150,12 +148,11 @@ std::vector<Lot> Book::take_lots(const Transaction& txn, const Account& account,
       auto it = std::find_if(position.lots.begin(), position.lots.end(),
                              [&](const Lot& l) { return l.lot_id == pick.lot_id; });
       if (it == position.lots.end())
-        throw InputError(fmt::format("{}: lot {} is not open in this position",
-                                     describe(txn), pick.lot_id));
+        throw InputError(
+            fmt::format("{}: lot {} is not open in this position", describe(txn), pick.lot_id));
       if (pick.quantity > it->quantity)
-        throw InputError(fmt::format("{}: lot {} holds {}, fewer than the {} named",
-                                     describe(txn), pick.lot_id, it->quantity.str(),
-                                     pick.quantity.str()));
+        throw InputError(fmt::format("{}: lot {} holds {}, fewer than the {} named", describe(txn),
+                                     pick.lot_id, it->quantity.str(), pick.quantity.str()));
       picked += pick.quantity;
     }
     if (picked != wanted)
@@ -170,9 +167,10 @@ std::vector<Lot> Book::take_lots(const Transaction& txn, const Account& account,
     return taken;
   }
   if (account.basis == BasisMethod::specific)
-    throw InputError(fmt::format(
-        "{}: account '{}' sells specific lots; name them with --lots LOT:QUANTITY (see 'keel lots')",
-        describe(txn), printable(account.name)));
+    throw InputError(
+        fmt::format("{}: account '{}' sells specific lots; name them with --lots LOT:QUANTITY (see "
+                    "'keel lots')",
+                    describe(txn), printable(account.name)));
 
   const Decimal cost_before = position.cost();
   Decimal remaining = wanted;
@@ -233,8 +231,8 @@ void Book::apply_transfer_in(const Transaction& txn, AccountBook& book) {
   if (txn.link_id) {
     auto it = in_transit_.find(*txn.link_id);
     if (it == in_transit_.end())
-      throw InputError(fmt::format("transaction {}: its transfer out {} was not found",
-                                   txn.id, *txn.link_id));
+      throw InputError(
+          fmt::format("transaction {}: its transfer out {} was not found", txn.id, *txn.link_id));
     for (auto& lot : it->second) position.lots.push_back(std::move(lot));
     in_transit_.erase(it);
   } else {

@@ -20,9 +20,9 @@
 
 #include <cstdint>
 #include <functional>
-#include <string>
 #include <map>
 #include <optional>
+#include <string>
 #include <unordered_map>
 #include <unordered_set>
 #include <vector>

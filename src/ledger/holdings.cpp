@@ -24,7 +24,9 @@ std::optional<std::int64_t> account_filter(store::Database& db,
 
 }  // namespace
 
-bool held_long_term(Date acquired, Date disposed) { return disposed > acquired.plus_years(1); }
+bool held_long_term(Date acquired, Date disposed) {
+  return disposed > acquired.plus_years(1);
+}
 
 Holdings holdings(store::Database& db, Date as_of, const std::optional<std::string>& account) {
   const auto only = account_filter(db, account);

@@ -23,7 +23,7 @@ struct HoldingLine {
   Decimal quantity;
   Decimal cost_basis;
   Decimal price;
-  Date price_date;       // day of the close used, or of the trade price
+  Date price_date;  // day of the close used, or of the trade price
   bool price_is_close = true;
   Decimal market_value;
   Decimal unrealized_gain;

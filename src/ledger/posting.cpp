@@ -93,8 +93,8 @@ std::vector<std::int64_t> write_unchecked(store::Database& db, const PostRequest
     if (trades_units && security.currency != account.currency)
       throw InputError(fmt::format(
           "{}: {} is priced in {} but account '{}' keeps {}; keel does not convert currencies",
-          to_string(r.kind), printable(security.symbol), security.currency,
-          printable(account.name), account.currency));
+          to_string(r.kind), printable(security.symbol), security.currency, printable(account.name),
+          account.currency));
     if (trades_units && security.kind == SecurityKind::index)
       throw InputError(fmt::format("{}: {} is an index; an index has levels, not units to hold",
                                    to_string(r.kind), printable(security.symbol)));

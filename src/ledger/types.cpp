@@ -91,18 +91,18 @@ std::vector<LotPick> parse_lot_picks(std::string_view text) {
   std::size_t start = 0;
   while (start <= text.size()) {
     const std::size_t comma = text.find(',', start);
-    const std::string_view item =
-        text.substr(start, comma == std::string_view::npos ? std::string_view::npos : comma - start);
+    const std::string_view item = text.substr(
+        start, comma == std::string_view::npos ? std::string_view::npos : comma - start);
     const std::size_t colon = item.find(':');
     LotPick pick;
     const auto id_text = item.substr(0, colon);
-    const auto [end, ec] = std::from_chars(id_text.data(), id_text.data() + id_text.size(),
-                                           pick.lot_id);
+    const auto [end, ec] =
+        std::from_chars(id_text.data(), id_text.data() + id_text.size(), pick.lot_id);
     if (colon == std::string_view::npos || ec != std::errc() ||
         end != id_text.data() + id_text.size() || pick.lot_id <= 0)
-      throw InputError(fmt::format(
-          "lots '{}' must look like LOT:QUANTITY[,LOT:QUANTITY...], e.g. 12:5,14:2.5",
-          printable(text)));
+      throw InputError(
+          fmt::format("lots '{}' must look like LOT:QUANTITY[,LOT:QUANTITY...], e.g. 12:5,14:2.5",
+                      printable(text)));
     pick.quantity = Decimal::parse(item.substr(colon + 1));
     if (!pick.quantity.is_positive())
       throw InputError(fmt::format("lot {} quantity must be positive", pick.lot_id));

@@ -64,8 +64,8 @@ struct Transaction {
   std::optional<Decimal> price;
   std::optional<Decimal> amount;
   Decimal fee;
-  std::optional<Date> acquired;   // holding period start for a security brought in from outside
-  std::vector<LotPick> lots;      // specific lots for a sell or transfer out
+  std::optional<Date> acquired;  // holding period start for a security brought in from outside
+  std::vector<LotPick> lots;     // specific lots for a sell or transfer out
   std::optional<std::int64_t> link_id;   // other half of an internal transfer
   std::optional<std::int64_t> voids_id;  // for kind void_entry
   std::optional<std::string> ref;

@@ -29,17 +29,17 @@ std::string_view to_string(SecurityKind kind) {
 SecurityKind parse_security_kind(std::string_view text) {
   for (const auto& [k, name] : kKinds)
     if (name == text) return k;
-  throw InputError(fmt::format("unknown security kind '{}'; expected one of: stock, fund, bond, "
-                               "index, currency",
-                               printable(text)));
+  throw InputError(
+      fmt::format("unknown security kind '{}'; expected one of: stock, fund, bond, "
+                  "index, currency",
+                  printable(text)));
 }
 
 std::string normalize_currency(std::string_view code) {
   std::string out;
   for (char c : code) out.push_back(static_cast<char>(std::toupper(static_cast<unsigned char>(c))));
-  const bool ok = out.size() == 3 && std::all_of(out.begin(), out.end(), [](char c) {
-                    return c >= 'A' && c <= 'Z';
-                  });
+  const bool ok = out.size() == 3 &&
+                  std::all_of(out.begin(), out.end(), [](char c) { return c >= 'A' && c <= 'Z'; });
   if (!ok)
     throw InputError(
         fmt::format("currency '{}' is not a three-letter code such as EUR", printable(code)));

@@ -29,7 +29,9 @@ void Table::add_row(std::vector<std::string> cells) {
   rows_.push_back(std::move(cells));
 }
 
-void Table::add_rule() { rows_.emplace_back(); }
+void Table::add_rule() {
+  rows_.emplace_back();
+}
 
 std::string Table::render(const Style& style) const {
   std::vector<std::size_t> widths(columns_.size());

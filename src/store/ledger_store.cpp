@@ -167,8 +167,8 @@ std::int64_t insert_security(Database& db, const Security& s) {
     st.exec();
   } catch (const SQLite::Exception& e) {
     if (is_unique_violation(e))
-      throw InputError(fmt::format("a security with symbol '{}' already exists",
-                                   printable(s.symbol)));
+      throw InputError(
+          fmt::format("a security with symbol '{}' already exists", printable(s.symbol)));
     throw;
   }
   return db.sql().getLastInsertRowid();
@@ -229,8 +229,8 @@ std::int64_t insert_transaction(Database& db, const Transaction& t) {
     st.exec();
   } catch (const SQLite::Exception& e) {
     if (is_unique_violation(e) && t.ref)
-      throw InputError(fmt::format("reference '{}' is already booked in this account",
-                                   printable(*t.ref)));
+      throw InputError(
+          fmt::format("reference '{}' is already booked in this account", printable(*t.ref)));
     if (is_unique_violation(e) && t.voids_id)
       throw InputError(fmt::format("transaction {} is already void", *t.voids_id));
     if (is_unique_violation(e))
@@ -248,8 +248,7 @@ std::optional<Transaction> find_transaction(Database& db, std::int64_t id) {
 }
 
 std::vector<Transaction> list_transactions(Database& db) {
-  SQLite::Statement st(db.sql(),
-                       fmt::format("SELECT {} FROM txn ORDER BY date, id", kTxnColumns));
+  SQLite::Statement st(db.sql(), fmt::format("SELECT {} FROM txn ORDER BY date, id", kTxnColumns));
   std::vector<Transaction> out;
   while (st.executeStep()) out.push_back(read_txn(st));
   return out;
@@ -288,8 +287,8 @@ std::int64_t insert_split(Database& db, const Split& s) {
     st.exec();
   } catch (const SQLite::Exception& e) {
     if (is_unique_violation(e))
-      throw InputError(fmt::format("a split on {} is already recorded for this security",
-                                   s.date.str()));
+      throw InputError(
+          fmt::format("a split on {} is already recorded for this security", s.date.str()));
     throw;
   }
   return db.sql().getLastInsertRowid();

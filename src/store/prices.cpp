@@ -19,7 +19,8 @@ std::optional<Decimal> latest_close(Database& db, std::int64_t security_id, Date
 
 PriceBook PriceBook::load(Database& db) {
   PriceBook book;
-  SQLite::Statement st(db.sql(), "SELECT security_id, date, close FROM price ORDER BY security_id, date");
+  SQLite::Statement st(db.sql(),
+                       "SELECT security_id, date, close FROM price ORDER BY security_id, date");
   while (st.executeStep())
     book.add(st.getColumn(0).getInt64(), Date::parse(st.getColumn(1).getString()),
              Decimal::parse(st.getColumn(2).getString()));

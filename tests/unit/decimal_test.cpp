@@ -9,7 +9,9 @@
 using keel::Decimal;
 
 namespace {
-Decimal d(const char* text) { return Decimal::parse(text); }
+Decimal d(const char* text) {
+  return Decimal::parse(text);
+}
 }  // namespace
 
 TEST_CASE("decimal: one tenth plus two tenths is exactly three tenths") {
@@ -87,8 +89,8 @@ TEST_CASE("decimal: fixed shows exactly the asked number of places") {
 TEST_CASE("decimal: division rounds the exact quotient half to even") {
   CHECK(Decimal::divide(d("1"), d("3"), 4).str() == "0.3333");
   CHECK(Decimal::divide(d("2"), d("3"), 4).str() == "0.6667");
-  CHECK(Decimal::divide(d("1"), d("8"), 2).str() == "0.12");   // 0.125 ties to even
-  CHECK(Decimal::divide(d("3"), d("8"), 2).str() == "0.38");   // 0.375 ties to even
+  CHECK(Decimal::divide(d("1"), d("8"), 2).str() == "0.12");  // 0.125 ties to even
+  CHECK(Decimal::divide(d("3"), d("8"), 2).str() == "0.38");  // 0.375 ties to even
   CHECK(Decimal::divide(d("-1"), d("8"), 2).str() == "-0.12");
   CHECK(Decimal::divide(d("1.0000001"), d("8"), 2).str() == "0.13");
   CHECK(Decimal::divide(d("10"), d("-4"), 0).str() == "-2");  // -2.5 ties to even

@@ -1,8 +1,7 @@
 // Every guard rail refuses with a clear message and leaves the ledger exactly
 // as it was (compared through a dump of every table).
-#include <doctest/doctest.h>
-
 #include <SQLiteCpp/Exception.h>
+#include <doctest/doctest.h>
 #include <fmt/format.h>
 
 #include "ledger_fixture.h"
@@ -178,8 +177,7 @@ TEST_CASE("void: voiding a buy that later sells depend on is refused") {
   const std::string before = f.dump();
   CHECK_THROWS_WITH_AS(
       ledger::void_transaction(f.db, 2, "wrong"),
-      "transaction 3 (sell on 2025-03-01 in 'Main'): cannot take 5 units; only 0 held",
-      InputError);
+      "transaction 3 (sell on 2025-03-01 in 'Main'): cannot take 5 units; only 0 held", InputError);
   CHECK(f.dump() == before);
 }
 
@@ -188,13 +186,13 @@ TEST_CASE("void: a transaction cannot be voided twice") {
   const auto id = f.cash(TxnKind::deposit, "2025-02-01", "Main", "50");
   const auto voids = ledger::void_transaction(f.db, id, "typed twice");
   const std::string before = f.dump();
-  CHECK_THROWS_WITH_AS(ledger::void_transaction(f.db, id, "again"),
-                       fmt::format("transaction {} is already void (by {})", id, voids.front()).c_str(),
-                       InputError);
-  CHECK_THROWS_WITH_AS(ledger::void_transaction(f.db, voids.front(), "undo"),
-                       fmt::format("transaction {} is itself a void and cannot be voided",
-                                   voids.front()).c_str(),
-                       InputError);
+  CHECK_THROWS_WITH_AS(
+      ledger::void_transaction(f.db, id, "again"),
+      fmt::format("transaction {} is already void (by {})", id, voids.front()).c_str(), InputError);
+  CHECK_THROWS_WITH_AS(
+      ledger::void_transaction(f.db, voids.front(), "undo"),
+      fmt::format("transaction {} is itself a void and cannot be voided", voids.front()).c_str(),
+      InputError);
   CHECK(f.dump() == before);
 }
 

@@ -5,7 +5,6 @@
 #include <string>
 
 #include "core/error.h"
-
 #include "ledger/holdings.h"
 #include "ledger/posting.h"
 #include "store/database.h"
@@ -14,8 +13,12 @@
 
 namespace keel::testing {
 
-inline Decimal dec(const char* text) { return Decimal::parse(text); }
-inline Date day(const char* text) { return Date::parse(text); }
+inline Decimal dec(const char* text) {
+  return Decimal::parse(text);
+}
+inline Date day(const char* text) {
+  return Date::parse(text);
+}
 
 struct LedgerFixture {
   store::Database db = store::Database::in_memory();
