@@ -36,7 +36,8 @@ std::vector<Decimal> allocate(const Decimal& total, const std::vector<Decimal>& 
   return parts;
 }
 
-Book::Book(const std::vector<Account>& accounts, std::unordered_set<std::int64_t> pending)
+Book::Book(const std::vector<Account>& accounts,
+           std::unordered_map<std::int64_t, std::string> pending)
     : accounts_(accounts), books_(accounts.size()), pending_(std::move(pending)) {
   for (std::size_t i = 0; i < accounts_.size(); ++i) index_[accounts_[i].id] = i;
 }
@@ -79,7 +80,8 @@ namespace {}  // namespace
 std::string Book::describe(const Transaction& t) const {
   const std::string where = fmt::format("{} on {} in '{}'", to_string(t.kind), t.date.str(),
                                         printable(account_info(t.account_id).name));
-  if (pending_.count(t.id)) return "the new " + where;
+  if (const auto it = pending_.find(t.id); it != pending_.end())
+    return it->second.empty() ? "the new " + where : it->second + ": " + where;
   return fmt::format("transaction {} ({})", t.id, where);
 }
 

@@ -69,7 +69,7 @@ struct AccountBook {
 class Book {
  public:
   explicit Book(const std::vector<Account>& accounts,
-                std::unordered_set<std::int64_t> pending = {});
+                std::unordered_map<std::int64_t, std::string> pending = {});
 
   void apply_split(const Split& split);
   void apply(const Transaction& txn);
@@ -100,7 +100,7 @@ class Book {
   std::unordered_map<std::int64_t, std::vector<Lot>> in_transit_;  // by transfer_out id
   std::unordered_set<std::int64_t> touched_today_;
   std::unordered_map<std::int64_t, const Transaction*> last_txn_today_;
-  std::unordered_set<std::int64_t> pending_;
+  std::unordered_map<std::int64_t, std::string> pending_;
   std::string describe(const Transaction& txn) const;
 };
 
@@ -114,9 +114,10 @@ struct LedgerLog {
   std::vector<Account> accounts;
   std::vector<Transaction> transactions;  // any order; voids included
   std::vector<Split> splits;
-  // Ids written in the current, uncommitted change: errors call them "the new
-  // <kind>" rather than by an id that will not exist once rolled back.
-  std::unordered_set<std::int64_t> pending;
+  // Ids written by the current, uncommitted change, each with where it came
+  // from ("broker.csv:12"; empty for a single command). Errors name them so,
+  // not by an id that will not exist once the change is rolled back.
+  std::unordered_map<std::int64_t, std::string> pending;
 };
 
 // Called after the last transaction of each day that has one (and each split

@@ -134,16 +134,40 @@ LedgerLog load_log(store::Database& db) {
   return log;
 }
 
-Book check_ledger(store::Database& db, const std::vector<std::int64_t>& pending) {
+Book check_ledger(store::Database& db,
+                  const std::unordered_map<std::int64_t, std::string>& pending) {
   LedgerLog log = load_log(db);
-  log.pending.insert(pending.begin(), pending.end());
+  log.pending = pending;
   return replay(log);
+}
+
+std::vector<std::int64_t> post_batch(store::Database& db, const std::vector<PostRequest>& requests,
+                                     const std::vector<std::string>& origins) {
+  store::WriteTransaction tx(db);
+  std::vector<std::int64_t> all;
+  std::unordered_map<std::int64_t, std::string> pending;
+  for (std::size_t i = 0; i < requests.size(); ++i) {
+    const std::string& origin = i < origins.size() ? origins[i] : std::string();
+    std::vector<std::int64_t> ids;
+    try {
+      ids = write_unchecked(db, requests[i]);
+    } catch (const InputError& e) {
+      throw InputError(origin.empty() ? e.what() : origin + ": " + e.what());
+    }
+    for (auto id : ids) pending[id] = origin;
+    all.insert(all.end(), ids.begin(), ids.end());
+  }
+  check_ledger(db, pending);
+  tx.commit();
+  return all;
 }
 
 std::vector<std::int64_t> post(store::Database& db, const PostRequest& request) {
   store::WriteTransaction tx(db);
   auto ids = write_unchecked(db, request);
-  check_ledger(db, ids);
+  std::unordered_map<std::int64_t, std::string> pending;
+  for (auto id : ids) pending[id] = "";
+  check_ledger(db, pending);
   tx.commit();
   return ids;
 }

@@ -12,6 +12,7 @@
 #include <cstdint>
 #include <optional>
 #include <string>
+#include <unordered_map>
 #include <vector>
 
 #include "ledger/book.h"
@@ -48,8 +49,16 @@ std::vector<std::int64_t> post(store::Database& db, const PostRequest& request);
 std::vector<std::int64_t> write_unchecked(store::Database& db, const PostRequest& request);
 
 // Replays the whole ledger; throws InputError on the first broken rule.
-// `pending` are ids written by the change being checked (see LedgerLog).
-Book check_ledger(store::Database& db, const std::vector<std::int64_t>& pending = {});
+// `pending`: ids written by the change being checked, with their origin (see LedgerLog).
+Book check_ledger(store::Database& db,
+                  const std::unordered_map<std::int64_t, std::string>& pending = {});
+
+// Posts many requests in one write transaction with a single replay, for
+// importers; `origins[i]` names where requests[i] came from ("file.csv:12").
+// All or nothing: the first broken rule throws and nothing is written.
+std::vector<std::int64_t> post_batch(store::Database& db,
+                                     const std::vector<PostRequest>& requests,
+                                     const std::vector<std::string>& origins);
 
 // Records a split of `symbol` on `date`; ratio = new units per old unit.
 std::int64_t post_split(store::Database& db, const std::string& symbol, Date date,

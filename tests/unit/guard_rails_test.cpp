@@ -228,3 +228,24 @@ TEST_CASE("splits: a ratio of zero or one is refused") {
                        "split: --ratio must be positive, not 0", InputError);
   CHECK_THROWS_AS(ledger::post_split(f.db, "ALFA", day("2025-02-01"), dec("1")), InputError);
 }
+
+TEST_CASE("batch: a batch is posted whole, or not at all, with the failing row named") {
+  Funded f;
+  auto deposit = request(TxnKind::deposit);
+  deposit.amount = dec("100");
+  auto oversell = request(TxnKind::sell);
+  oversell.symbol = "ALFA", oversell.quantity = dec("50"), oversell.price = dec("1");
+  const std::string before = f.dump();
+  CHECK_THROWS_WITH_AS(
+      ledger::post_batch(f.db, {deposit, oversell}, {"broker.csv:2", "broker.csv:3"}),
+      "broker.csv:3: sell on 2025-02-01 in 'Main': cannot take 50 units; only 5 held",
+      InputError);
+  CHECK(f.dump() == before);
+  auto unknown = request(TxnKind::deposit);
+  unknown.account = "Nobody", unknown.amount = dec("1");
+  CHECK_THROWS_WITH_AS(ledger::post_batch(f.db, {deposit, unknown}, {"b.csv:2", "b.csv:3"}),
+                       "b.csv:3: unknown account 'Nobody'; known accounts: Main", InputError);
+  CHECK(f.dump() == before);
+  CHECK(ledger::post_batch(f.db, {deposit, deposit}, {"b.csv:2", "b.csv:3"}).size() == 2);
+  CHECK(f.book().account(1).cash == dec("700"));
+}
