@@ -2,6 +2,8 @@
 
 #include <fmt/format.h>
 
+#include <algorithm>
+
 #include "core/text.h"
 
 namespace keel::io {
@@ -9,6 +11,11 @@ namespace keel::io {
 void ErrorList::add(std::uint64_t line, std::string_view column, std::string reason) {
   if (full()) return;
   entries_.push_back({line, std::string(column), std::move(reason)});
+}
+
+void ErrorList::sort_by_line() {
+  std::stable_sort(entries_.begin(), entries_.end(),
+                   [](const LocatedError& a, const LocatedError& b) { return a.line < b.line; });
 }
 
 std::string ErrorList::format(const LocatedError& e) const {

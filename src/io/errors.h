@@ -41,6 +41,8 @@ class ErrorList {
       : file_(std::move(file)), limit_(limit) {}
 
   void add(std::uint64_t line, std::string_view column, std::string reason);
+  // Orders entries by line (stable), for errors found out of file order.
+  void sort_by_line();
   bool full() const { return entries_.size() >= limit_; }
   bool empty() const { return entries_.empty(); }
   std::size_t size() const { return entries_.size(); }

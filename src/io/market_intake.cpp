@@ -36,6 +36,7 @@ std::vector<ColumnSpec> columns_for(MarketKind what) {
 // The state one import shares between its rows.
 struct Run {
   TableReader& t;
+  ErrorList& errors;
   store::MarketWriter& w;
   ImportSummary& sum;
   std::string existing;
@@ -103,18 +104,33 @@ void import_rows(MarketKind what, Run& r, const ImportOptions& options, CsvReade
     }
   };
   switch (what) {
-    case MarketKind::prices:
+    case MarketKind::prices: {
+      r.w.on_price_problem([&](std::uint64_t line, store::Upsert u, std::size_t sec,
+                               std::string_view date, std::string_view existing) {
+        const std::string& sym = r.w.symbol(sec);
+        if (u == store::Upsert::duplicate)
+          r.errors.add(line, "",
+                       fmt::format("{} on {} appears on an earlier line of this file", sym, date));
+        else
+          r.errors.add(line, t.header_name(2),
+                       fmt::format("{} on {}: the ledger already has close {}; use --replace to "
+                                   "overwrite it",
+                                   sym, date, existing));
+      });
       while (t.next()) {
         bool ok = t.date(0, a);
         const std::size_t sec = r.security(1);
         ok = t.decimal(2, b) && r.not_negative(2, b) && ok && sec != store::MarketWriter::kUnknown;
-        if (ok)
-          r.count(
-              r.w.price(sec, a, b, r.existing), 2,
-              [&] { return fmt::format("{} on {}", t.raw(1), a); }, "close");
+        if (ok) r.w.price(sec, a, b, t.line());
         progress();
       }
+      const auto counts = r.w.finish_prices();
+      r.sum.added += counts.added;
+      r.sum.unchanged += counts.unchanged;
+      r.sum.replaced += counts.replaced;
+      r.errors.sort_by_line();
       break;
+    }
     case MarketKind::metrics:
       while (t.next()) {
         bool ok = t.date(0, a);
@@ -292,11 +308,12 @@ ImportSummary import_market(store::Database& db, MarketKind what, const std::fil
   sum.file = file.string();
   sum.dry_run = options.dry_run;
 
+  store::ForeignKeyPause pause(db);
   store::WriteTransaction tx(db);
   {
     store::MarketWriter writer(db, options.replace);
     TableReader table(csv, mapping, columns_for(what), errors);
-    Run run{table, writer, sum, {}};
+    Run run{table, errors, writer, sum, {}};
     import_rows(what, run, options, csv);
     sum.rows = table.rows();
   }

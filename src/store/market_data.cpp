@@ -5,6 +5,7 @@
 #include <sqlite3.h>
 
 #include <algorithm>
+#include <array>
 
 #include "core/error.h"
 #include "store/ledger_store.h"
@@ -38,6 +39,14 @@ class Stmt {
     sqlite3_reset(st_);
     if (rc != SQLITE_DONE) fail(rc);
     return sqlite3_changes(db_);
+  }
+  // Runs a write; false (and nothing changed) on a constraint violation.
+  bool try_run() {
+    const int rc = sqlite3_step(st_);
+    sqlite3_reset(st_);
+    if (rc == SQLITE_DONE) return true;
+    if ((rc & 0xff) == SQLITE_CONSTRAINT) return false;
+    fail(rc);
   }
   // Steps once; true with a row (read it, then call reset()).
   bool row() {
@@ -91,11 +100,27 @@ struct MarketWriter::Impl {
   std::vector<std::array<Range, kKinds>> ranges;
   std::string key;  // reused lookup key
   std::vector<std::string> securities_seen;
-  bool seen_table = false;
+  std::vector<std::string> symbols;
+
+  // Buffered prices, see MarketWriter::price().
+  struct Pending {
+    std::uint32_t sec;
+    std::uint32_t close_len;
+    std::uint64_t line;
+    std::uint64_t close_off;
+    std::array<char, 10> date;
+  };
+  static constexpr std::size_t kBatch = 1 << 18;
+  static constexpr std::size_t kBlock = 64;
+  std::vector<Pending> pending;
+  std::string arena;
+  PriceProblem problem;
+  Counts counts;
+  std::string existing;
 
   Stmt range[kKinds];
   Stmt seen_insert;
-  Stmt price_insert, price_get, price_set;
+  Stmt price_insert, price_block, price_get, price_set;
   Stmt metric_insert, metric_get, metric_set;
   Stmt dist_insert, dist_get, dist_set;
   Stmt split_insert, split_get;
@@ -112,6 +137,7 @@ struct MarketWriter::Impl {
         price_insert(h,
                      "INSERT INTO price (security_id, date, close) VALUES (?, ?, ?) "
                      "ON CONFLICT DO NOTHING"),
+        price_block(h, block_insert_sql(kBlock).c_str()),
         price_get(h, "SELECT close FROM price WHERE security_id = ? AND date = ?"),
         price_set(h, "UPDATE price SET close = ? WHERE security_id = ? AND date = ?"),
         metric_insert(h,
@@ -136,14 +162,21 @@ struct MarketWriter::Impl {
                      "INSERT INTO split (security_id, date, ratio, recorded_at) "
                      "VALUES (?, ?, ?, ?) ON CONFLICT DO NOTHING"),
         split_get(h, "SELECT ratio FROM split WHERE security_id = ? AND date = ?") {
-    // Larger page cache for bulk work (32 MiB; SQLite's default is 2 MiB).
-    sqlite3_exec(h, "PRAGMA cache_size = -32768", nullptr, nullptr, nullptr);
+    // Larger page cache for bulk work (64 MiB; SQLite's default is 2 MiB).
+    sqlite3_exec(h, "PRAGMA cache_size = -65536", nullptr, nullptr, nullptr);
     SQLite::Statement st(db.sql(), "SELECT id, symbol FROM security");
     while (st.executeStep()) {
       by_symbol.emplace(st.getColumn(1).getString(), ids.size());
+      symbols.push_back(st.getColumn(1).getString());
       ids.push_back(st.getColumn(0).getInt64());
     }
     ranges.resize(ids.size());
+  }
+
+  static std::string block_insert_sql(std::size_t rows) {
+    std::string sql = "INSERT INTO price (security_id, date, close) VALUES (?, ?, ?)";
+    for (std::size_t i = 1; i < rows; ++i) sql += ", (?, ?, ?)";
+    return sql;
   }
 
   static const char* make_seen_table(sqlite3* h) {
@@ -177,6 +210,9 @@ struct MarketWriter::Impl {
     return r;
   }
 
+  void flush_prices();
+  Upsert upsert_price(std::size_t sec, std::string_view date, std::string_view close);
+
   // True when the key is new to this import (or cannot have been seen before
   // by the range rule); false for a duplicate within the import.
   // `overlap` says whether the ledger may already hold the key.
@@ -187,6 +223,18 @@ struct MarketWriter::Impl {
     return seen_insert.bind(1, std::int64_t{kind}).bind(2, ids[sec]).bind(3, k).run() == 1;
   }
 };
+
+ForeignKeyPause::ForeignKeyPause(Database& db) : db_(db) {
+  db_.sql().exec("PRAGMA foreign_keys = OFF");
+}
+
+ForeignKeyPause::~ForeignKeyPause() {
+  try {
+    db_.sql().exec("PRAGMA foreign_keys = ON");
+  } catch (...) {
+    // Never throw from a destructor; the next open turns checks on again.
+  }
+}
 
 MarketWriter::MarketWriter(Database& db, bool replace)
     : impl_(std::make_unique<Impl>(db, replace)) {}
@@ -202,21 +250,107 @@ std::size_t MarketWriter::security(std::string_view symbol) {
   return it == m.by_symbol.end() ? kUnknown : it->second;
 }
 
-Upsert MarketWriter::price(std::size_t sec, std::string_view date, std::string_view close,
-                           std::string& existing) {
+void MarketWriter::on_price_problem(PriceProblem fn) {
+  impl_->problem = std::move(fn);
+}
+
+const std::string& MarketWriter::symbol(std::size_t sec) const {
+  return impl_->symbols[sec];
+}
+
+void MarketWriter::price(std::size_t sec, std::string_view date, std::string_view close,
+                         std::uint64_t line) {
   auto& m = *impl_;
+  Impl::Pending p{static_cast<std::uint32_t>(sec),
+                  static_cast<std::uint32_t>(close.size()),
+                  line,
+                  m.arena.size(),
+                  {}};
+  std::copy_n(date.data(), std::min<std::size_t>(date.size(), 10), p.date.begin());
+  m.arena.append(close);
+  m.pending.push_back(p);
+  if (m.pending.size() >= Impl::kBatch) m.flush_prices();
+}
+
+MarketWriter::Counts MarketWriter::finish_prices() {
+  impl_->flush_prices();
+  return impl_->counts;
+}
+
+void MarketWriter::Impl::flush_prices() {
+  std::sort(pending.begin(), pending.end(), [](const Pending& a, const Pending& b) {
+    if (a.sec != b.sec) return a.sec < b.sec;
+    if (a.date != b.date) return a.date < b.date;
+    return a.line < b.line;
+  });
+  auto date_of = [](const Pending& p) { return std::string_view(p.date.data(), p.date.size()); };
+  auto close_of = [&](const Pending& p) {
+    return std::string_view(arena.data() + p.close_off, p.close_len);
+  };
+  auto one = [&](const Pending& p) {
+    const Upsert u = upsert_price(p.sec, date_of(p), close_of(p));
+    if (u == Upsert::added)
+      ++counts.added;
+    else if (u == Upsert::unchanged)
+      ++counts.unchanged;
+    else if (u == Upsert::replaced)
+      ++counts.replaced;
+    else if (problem)
+      problem(p.line, u, p.sec, date_of(p), existing);
+  };
+  // Rows outside the ledger's existing range for their security cannot meet
+  // a stored row; they go in blocks of kBlock through one multi-row INSERT.
+  // A plain INSERT that hits a key undoes the whole statement, and then the
+  // block is redone row by row to find the duplicate.
+  std::size_t block_rows = 0;
+  const Pending* block[kBlock];
+  auto run_block = [&] {
+    if (block_rows == kBlock) {
+      for (std::size_t i = 0; i < kBlock; ++i) {
+        price_block.bind(static_cast<int>(3 * i + 1), ids[block[i]->sec]);
+        price_block.bind(static_cast<int>(3 * i + 2), date_of(*block[i]));
+        price_block.bind(static_cast<int>(3 * i + 3), close_of(*block[i]));
+      }
+      if (price_block.try_run()) {
+        counts.added += kBlock;
+        block_rows = 0;
+        return;
+      }
+    }
+    for (std::size_t i = 0; i < block_rows; ++i) one(*block[i]);
+    block_rows = 0;
+  };
+  const Pending* prev = nullptr;
+  for (const Pending& p : pending) {
+    const bool repeat = prev && prev->sec == p.sec && prev->date == p.date;
+    prev = &p;
+    if (repeat || range_of(kPrice, p.sec).covers(date_of(p))) {
+      run_block();
+      one(p);  // a repeat inside the batch conflicts with its predecessor
+      continue;
+    }
+    block[block_rows++] = &p;
+    if (block_rows == kBlock) run_block();
+  }
+  run_block();
+  pending.clear();
+  arena.clear();
+}
+
+Upsert MarketWriter::Impl::upsert_price(std::size_t sec, std::string_view date,
+                                        std::string_view close) {
   bool overlap = false;
-  if (!m.first_time(kPrice, sec, date, date, overlap)) return Upsert::duplicate;
-  const std::int64_t id = m.ids[sec];
-  if (m.price_insert.bind(1, id).bind(2, date).bind(3, close).run() == 1) return Upsert::added;
+  if (!first_time(kPrice, sec, date, date, overlap)) return Upsert::duplicate;
+  const std::int64_t id = ids[sec];
+  if (price_insert.bind(1, id).bind(2, date).bind(3, close).run() == 1) return Upsert::added;
   if (!overlap) return Upsert::duplicate;
-  m.price_get.bind(1, id).bind(2, date);
-  m.price_get.row();
-  existing.assign(m.price_get.text(0));
-  m.price_get.reset();
+  price_get.bind(1, id).bind(2, date);
+  price_get.row();
+  existing.assign(price_get.text(0));
+  price_get.reset();
   if (existing == close) return Upsert::unchanged;
-  if (!m.replace) return Upsert::conflict;
-  m.price_set.bind(1, close).bind(2, id).bind(3, date).run();
+  if (!replace) return Upsert::conflict;
+  price_set.bind(1, close).bind(2, id).bind(3, date).run();
   return Upsert::replaced;
 }
 
@@ -295,6 +429,7 @@ Upsert MarketWriter::security_row(const Security& s, std::string& existing) {
   if (!old) {
     const std::int64_t id = insert_security(m.db, s);
     m.by_symbol.emplace(s.symbol, m.ids.size());
+    m.symbols.push_back(s.symbol);
     m.ids.push_back(id);
     m.ranges.emplace_back();
     return Upsert::added;

@@ -69,6 +69,20 @@ class MetricHistory {
 
 enum class Upsert { added, unchanged, replaced, conflict, duplicate };
 
+// Turns foreign-key checks off for a bulk load whose security ids come from
+// the security table itself, and back on afterwards. Take it before the
+// WriteTransaction: SQLite ignores the setting inside a transaction.
+class ForeignKeyPause {
+ public:
+  explicit ForeignKeyPause(Database& db);
+  ~ForeignKeyPause();
+  ForeignKeyPause(const ForeignKeyPause&) = delete;
+  ForeignKeyPause& operator=(const ForeignKeyPause&) = delete;
+
+ private:
+  Database& db_;
+};
+
 class MarketWriter {
  public:
   // The caller holds a WriteTransaction on `db` for the writer's lifetime.
@@ -82,8 +96,21 @@ class MarketWriter {
   std::size_t security(std::string_view symbol);
 
   // Text arguments are canonical (ISO dates, Decimal::str() numbers).
-  Upsert price(std::size_t sec, std::string_view date, std::string_view close,
-               std::string& existing);
+  //
+  // Prices are the bulk of most imports: they are buffered and written in
+  // batches (of bounded size) sorted by key, which keeps the table's pages
+  // hot however the file is ordered. Outcomes other than added/unchanged/
+  // replaced reach `on_problem` with the row's line, possibly later than the
+  // call; finish() writes what is buffered.
+  using PriceProblem = std::function<void(std::uint64_t line, Upsert outcome, std::size_t sec,
+                                          std::string_view date, std::string_view existing)>;
+  void on_price_problem(PriceProblem fn);
+  void price(std::size_t sec, std::string_view date, std::string_view close, std::uint64_t line);
+  struct Counts {
+    std::uint64_t added = 0, unchanged = 0, replaced = 0;
+  };
+  Counts finish_prices();
+  const std::string& symbol(std::size_t sec) const;
   Upsert metric(std::size_t sec, std::string_view name, std::string_view date,
                 std::string_view known_on, std::string_view value, std::string& existing);
   Upsert distribution(std::size_t sec, std::string_view ex_date, std::string_view pay_date,
