@@ -52,9 +52,7 @@ int Database::latest_schema_version() {
   return migrations().empty() ? 0 : migrations().back().version;
 }
 
-int Database::schema_version() {
-  return db_->execAndGet("PRAGMA user_version").getInt();
-}
+int Database::schema_version() { return db_->execAndGet("PRAGMA user_version").getInt(); }
 
 Database Database::open(const fs::path& path, const OpenOptions& options) {
   const bool exists = fs::exists(path);
@@ -89,10 +87,10 @@ Database Database::in_memory() {
 void Database::migrate() {
   const int current = schema_version();
   if (current > latest_schema_version())
-    throw LedgerError(
-        fmt::format("ledger {} has schema version {}, newer than this keel understands ({}); "
-                    "use a newer keel",
-                    path_.string(), current, latest_schema_version()));
+    throw LedgerError(fmt::format(
+        "ledger {} has schema version {}, newer than this keel understands ({}); "
+        "use a newer keel",
+        path_.string(), current, latest_schema_version()));
   db_->exec("PRAGMA foreign_keys = ON");
   if (path_ != ":memory:") db_->exec("PRAGMA journal_mode = WAL");
   db_->exec("PRAGMA synchronous = NORMAL");
@@ -103,8 +101,8 @@ void Database::migrate() {
       db_->exec(std::string(m.sql));
       db_->exec(fmt::format("PRAGMA user_version = {}", m.version));
     } catch (const SQLite::Exception& e) {
-      throw LedgerError(
-          fmt::format("migration {} failed on {}: {}", m.file_name, path_.string(), e.what()));
+      throw LedgerError(fmt::format("migration {} failed on {}: {}", m.file_name, path_.string(),
+                                    e.what()));
     }
     tx.commit();
   }
