@@ -65,7 +65,9 @@ Database Database::open(const fs::path& path, const OpenOptions& options) {
   if (exists && !options.allow_unsafe_permissions) check_permissions(path);
   std::unique_ptr<SQLite::Database> handle;
   try {
-    handle = std::make_unique<SQLite::Database>(path.string(), SQLite::OPEN_READWRITE);
+    // keel uses each connection from one thread only: skip SQLite's per-call mutex.
+    handle = std::make_unique<SQLite::Database>(path.string(),
+                                                SQLite::OPEN_READWRITE | SQLite::OPEN_NOMUTEX);
     handle->setBusyTimeout(options.busy_timeout_ms);
     // Reading the header catches a file that is not a database before any write.
     handle->exec("PRAGMA schema_version");

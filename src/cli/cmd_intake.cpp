@@ -1,0 +1,149 @@
+// Commands that move market data in and out: import, export, imports.
+#include <fmt/format.h>
+#include <unistd.h>
+
+#include <chrono>
+#include <cstdio>
+
+#include "cli/context.h"
+#include "core/error.h"
+#include "core/text.h"
+#include "io/errors.h"
+#include "io/market_intake.h"
+#include "store/market_data.h"
+
+namespace keel::cli {
+namespace {
+
+// Rows per second on stderr, redrawn in place; only on a terminal and only
+// once the file has passed 100,000 rows.
+class Progress {
+ public:
+  explicit Progress(bool enabled) : enabled_(enabled && ::isatty(STDERR_FILENO)) {}
+  void update(std::uint64_t rows, std::uint64_t bytes, std::uint64_t total) {
+    if (!enabled_ || rows < 100000) return;
+    shown_ = true;
+    const double secs = std::chrono::duration<double>(Clock::now() - start_).count();
+    const double rate = secs > 0 ? static_cast<double>(rows) / secs : 0.0;
+    const double pct = total ? 100.0 * static_cast<double>(bytes) / static_cast<double>(total) : 0;
+    std::fputs(fmt::format("\r{:>11} rows  {:>9.0f} rows/s  {:5.1f}%", rows, rate, pct).c_str(),
+               stderr);
+  }
+  ~Progress() {
+    if (shown_) std::fputs("\n", stderr);
+  }
+
+ private:
+  using Clock = std::chrono::steady_clock;
+  bool enabled_;
+  bool shown_ = false;
+  Clock::time_point start_ = Clock::now();
+};
+
+void add_import(CLI::App& app, Context& ctx) {
+  auto* cmd = app.add_subcommand("import", "Read market data from a CSV file into the ledger");
+  static std::string what, file, mapping;
+  static bool dry_run = false, replace = false, quiet = false;
+  cmd->add_option("WHAT", what, "securities, prices, metrics, distributions or splits")->required();
+  cmd->add_option("FILE", file, "CSV file (keel's layout, or another described by --map)")
+      ->required();
+  cmd->add_option("--map", mapping, "TOML file describing the file's layout");
+  cmd->add_flag("--dry-run", dry_run, "Check everything and report, but change nothing");
+  cmd->add_flag("--replace", replace, "Overwrite stored values that differ from the file");
+  cmd->add_flag("--quiet", quiet, "No progress display");
+  cmd->callback([&ctx] {
+    const io::MarketKind kind = io::parse_market_kind(what);
+    io::ImportOptions options;
+    if (!mapping.empty()) options.mapping = io::Mapping::load(mapping);
+    options.dry_run = dry_run;
+    options.replace = replace;
+    auto db = ctx.open_ledger();
+    io::ImportSummary sum;
+    {
+      Progress progress(!quiet);
+      options.progress = [&](std::uint64_t r, std::uint64_t b, std::uint64_t t) {
+        progress.update(r, b, t);
+      };
+      try {
+        sum = io::import_market(db, kind, file, options);
+      } catch (const io::ImportRefused& e) {
+        for (const auto& line : e.lines()) std::fputs((line + "\n").c_str(), stderr);
+        throw;
+      }
+    }
+    const std::string verb = sum.dry_run ? "would add" : "added";
+    std::string text = fmt::format("{}: {} rows read; {} {}, {} unchanged", printable(sum.file),
+                                   sum.rows, verb, sum.added, sum.unchanged);
+    if (sum.replaced)
+      text += fmt::format(", {} {}", sum.dry_run ? "would replace" : "replaced", sum.replaced);
+    if (sum.dry_run) text += " (dry run: nothing was changed)";
+    text += "\n";
+    if (sum.same_file_before)
+      text += fmt::format("note: the same file was imported as {} on {} (run {})\n",
+                          printable(sum.same_file_before->file_name),
+                          sum.same_file_before->imported_at, sum.same_file_before->id);
+    out(text);
+  });
+}
+
+void add_export(CLI::App& app, Context& ctx) {
+  auto* cmd = app.add_subcommand("export", "Write market data from the ledger as CSV or JSON");
+  static std::string what, file;
+  static bool csv = false, json = false;
+  cmd->add_option("WHAT", what, "securities, prices, metrics, distributions or splits")->required();
+  auto* c = cmd->add_flag("--csv", csv, "CSV in keel's import layout (the default)");
+  cmd->add_flag("--json", json, "A JSON array of objects; numbers as exact strings")->excludes(c);
+  cmd->add_option("--out", file, "Write to this file instead of standard output");
+  cmd->callback([&ctx] {
+    const io::MarketKind kind = io::parse_market_kind(what);
+    auto db = ctx.open_ledger();
+    std::FILE* f = stdout;
+    if (!file.empty()) {
+      f = std::fopen(file.c_str(), "wb");
+      if (!f) throw InputError(fmt::format("{}: cannot write", printable(file)));
+    }
+    std::uint64_t rows = 0;
+    try {
+      rows = io::export_market(db, kind, json ? io::ExportFormat::json : io::ExportFormat::csv, f);
+    } catch (...) {
+      if (f != stdout) std::fclose(f);
+      throw;
+    }
+    if (f != stdout) {
+      if (std::fclose(f) != 0) throw InputError(fmt::format("{}: cannot write", printable(file)));
+      std::fputs(
+          fmt::format("{} {} rows written to {}\n", rows, to_string(kind), printable(file)).c_str(),
+          stderr);
+    }
+  });
+}
+
+void add_imports(CLI::App& app, Context& ctx) {
+  auto* cmd = app.add_subcommand("imports", "List the imports that changed the ledger");
+  cmd->callback([&ctx] {
+    auto db = ctx.open_ledger();
+    const auto runs = store::list_import_runs(db);
+    if (runs.empty()) {
+      out("no imports yet\n");
+      return;
+    }
+    std::string text =
+        fmt::format("{:>4}  {:<20}  {:<13}  {:>10}  {:>10}  {:<16}  {}\n", "run", "imported at",
+                    "what", "rows read", "rows added", "sha256", "file");
+    for (const auto& r : runs)
+      text += fmt::format("{:>4}  {:<20}  {:<13}  {:>10}  {:>10}  {:<16}  {}\n", r.id,
+                          r.imported_at, r.what, r.rows_read, r.rows_added,
+                          r.file_sha256.substr(0, 16), printable(r.file_name));
+    out(text);
+  });
+}
+
+}  // namespace
+
+void register_intake_commands(CLI::App& app, Context& ctx) {
+  add_import(app, ctx);
+  add_export(app, ctx);
+  add_imports(app, ctx);
+}
+
+}  // namespace keel::cli

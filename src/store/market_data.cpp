@@ -1,0 +1,640 @@
+#include "store/market_data.h"
+
+#include <SQLiteCpp/Statement.h>
+#include <fmt/format.h>
+#include <sqlite3.h>
+
+#include <algorithm>
+#include <array>
+
+#include "core/error.h"
+#include "store/ledger_store.h"
+
+namespace keel::store {
+namespace {
+
+// A prepared statement on the raw handle, reset after each use: the intake
+// hot path binds text without copying it.
+class Stmt {
+ public:
+  Stmt(sqlite3* db, const char* sql) : db_(db) {
+    if (sqlite3_prepare_v3(db, sql, -1, SQLITE_PREPARE_PERSISTENT, &st_, nullptr) != SQLITE_OK)
+      throw std::runtime_error(fmt::format("prepare failed: {}: {}", sqlite3_errmsg(db), sql));
+  }
+  ~Stmt() { sqlite3_finalize(st_); }
+  Stmt(const Stmt&) = delete;
+  Stmt& operator=(const Stmt&) = delete;
+
+  Stmt& bind(int i, std::int64_t v) {
+    sqlite3_bind_int64(st_, i, v);
+    return *this;
+  }
+  Stmt& bind(int i, std::string_view v) {
+    sqlite3_bind_text(st_, i, v.data(), static_cast<int>(v.size()), SQLITE_STATIC);
+    return *this;
+  }
+  // Runs a statement that returns no rows; gives sqlite3_changes().
+  int run() {
+    const int rc = sqlite3_step(st_);
+    sqlite3_reset(st_);
+    if (rc != SQLITE_DONE) fail(rc);
+    return sqlite3_changes(db_);
+  }
+  // Runs a write; false (and nothing changed) on a constraint violation.
+  bool try_run() {
+    const int rc = sqlite3_step(st_);
+    sqlite3_reset(st_);
+    if (rc == SQLITE_DONE) return true;
+    if ((rc & 0xff) == SQLITE_CONSTRAINT) return false;
+    fail(rc);
+  }
+  // Steps once; true with a row (read it, then call reset()).
+  bool row() {
+    const int rc = sqlite3_step(st_);
+    if (rc == SQLITE_ROW) return true;
+    sqlite3_reset(st_);
+    if (rc != SQLITE_DONE) fail(rc);
+    return false;
+  }
+  void reset() { sqlite3_reset(st_); }
+  std::string_view text(int col) {
+    const auto* p = reinterpret_cast<const char*>(sqlite3_column_text(st_, col));
+    return p ? std::string_view(p, static_cast<std::size_t>(sqlite3_column_bytes(st_, col)))
+             : std::string_view{};
+  }
+  std::int64_t integer(int col) { return sqlite3_column_int64(st_, col); }
+  bool null(int col) { return sqlite3_column_type(st_, col) == SQLITE_NULL; }
+
+ private:
+  [[noreturn]] void fail(int rc) {
+    throw std::runtime_error(fmt::format("ledger write failed ({}): {}", rc, sqlite3_errmsg(db_)));
+  }
+  sqlite3* db_;
+  sqlite3_stmt* st_ = nullptr;
+};
+
+enum Kind { kPrice = 0, kMetric = 1, kDistribution = 2, kSplit = 3, kKinds = 4 };
+
+struct Range {
+  bool known = false;
+  bool any = false;
+  std::string min, max;
+  bool covers(std::string_view d) const { return any && d >= min && d <= max; }
+};
+
+std::string describe(const Security& s) {
+  return fmt::format("{},{},{},{}{}", s.name, to_string(s.kind), s.currency, s.lot_size.str(),
+                     s.sector ? "," + *s.sector : std::string());
+}
+
+}  // namespace
+
+// ---------------------------------------------------------------- writing
+
+struct MarketWriter::Impl {
+  Database& db;
+  sqlite3* h;
+  bool replace;
+  std::unordered_map<std::string, std::size_t> by_symbol;
+  std::vector<std::int64_t> ids;
+  std::vector<std::array<Range, kKinds>> ranges;
+  std::string key;  // reused lookup key
+  std::vector<std::string> securities_seen;
+  std::vector<std::string> symbols;
+
+  // Buffered prices, see MarketWriter::price().
+  struct Pending {
+    std::uint32_t sec;
+    std::uint32_t close_len;
+    std::uint64_t line;
+    std::uint64_t close_off;
+    std::array<char, 10> date;
+  };
+  static constexpr std::size_t kBatch = 1 << 18;
+  static constexpr std::size_t kBlock = 64;
+  std::vector<Pending> pending;
+  std::string arena;
+  PriceProblem problem;
+  Counts counts;
+  std::string existing;
+
+  Stmt range[kKinds];
+  Stmt seen_insert;
+  Stmt price_insert, price_block, price_get, price_set;
+  Stmt metric_insert, metric_get, metric_set;
+  Stmt dist_insert, dist_get, dist_set;
+  Stmt split_insert, split_get;
+
+  Impl(Database& d, bool r)
+      : db(d),
+        h(d.sql().getHandle()),
+        replace(r),
+        range{{h, "SELECT min(date), max(date) FROM price WHERE security_id = ?"},
+              {h, "SELECT min(date), max(date) FROM metric WHERE security_id = ?"},
+              {h, "SELECT min(ex_date), max(ex_date) FROM distribution WHERE security_id = ?"},
+              {h, "SELECT min(date), max(date) FROM split WHERE security_id = ?"}},
+        seen_insert(h, make_seen_table(h)),
+        price_insert(h,
+                     "INSERT INTO price (security_id, date, close) VALUES (?, ?, ?) "
+                     "ON CONFLICT DO NOTHING"),
+        price_block(h, block_insert_sql(kBlock).c_str()),
+        price_get(h, "SELECT close FROM price WHERE security_id = ? AND date = ?"),
+        price_set(h, "UPDATE price SET close = ? WHERE security_id = ? AND date = ?"),
+        metric_insert(h,
+                      "INSERT INTO metric (security_id, name, date, known_on, value) "
+                      "VALUES (?, ?, ?, ?, ?) ON CONFLICT DO NOTHING"),
+        metric_get(h,
+                   "SELECT value FROM metric WHERE security_id = ? AND name = ? AND date = ? "
+                   "AND known_on = ?"),
+        metric_set(h,
+                   "UPDATE metric SET value = ? WHERE security_id = ? AND name = ? AND date = ? "
+                   "AND known_on = ?"),
+        dist_insert(h,
+                    "INSERT INTO distribution (security_id, ex_date, pay_date, per_share) "
+                    "VALUES (?, ?, ?, ?) ON CONFLICT DO NOTHING"),
+        dist_get(h,
+                 "SELECT pay_date, per_share FROM distribution WHERE security_id = ? "
+                 "AND ex_date = ?"),
+        dist_set(h,
+                 "UPDATE distribution SET pay_date = ?, per_share = ? WHERE security_id = ? "
+                 "AND ex_date = ?"),
+        split_insert(h,
+                     "INSERT INTO split (security_id, date, ratio, recorded_at) "
+                     "VALUES (?, ?, ?, ?) ON CONFLICT DO NOTHING"),
+        split_get(h, "SELECT ratio FROM split WHERE security_id = ? AND date = ?") {
+    // Larger page cache for bulk work (64 MiB; SQLite's default is 2 MiB).
+    sqlite3_exec(h, "PRAGMA cache_size = -65536", nullptr, nullptr, nullptr);
+    SQLite::Statement st(db.sql(), "SELECT id, symbol FROM security");
+    while (st.executeStep()) {
+      by_symbol.emplace(st.getColumn(1).getString(), ids.size());
+      symbols.push_back(st.getColumn(1).getString());
+      ids.push_back(st.getColumn(0).getInt64());
+    }
+    ranges.resize(ids.size());
+  }
+
+  static std::string block_insert_sql(std::size_t rows) {
+    std::string sql = "INSERT INTO price (security_id, date, close) VALUES (?, ?, ?)";
+    for (std::size_t i = 1; i < rows; ++i) sql += ", (?, ?, ?)";
+    return sql;
+  }
+
+  static const char* make_seen_table(sqlite3* h) {
+    // Keys of this import that fall where the ledger already had rows: only
+    // there can a repeated key be either a re-import or a duplicate line.
+    if (sqlite3_exec(h,
+                     "CREATE TEMP TABLE IF NOT EXISTS intake_seen (kind INTEGER, security_id "
+                     "INTEGER, k TEXT, PRIMARY KEY (kind, security_id, k)) WITHOUT ROWID;"
+                     "DELETE FROM temp.intake_seen",
+                     nullptr, nullptr, nullptr) != SQLITE_OK)
+      throw std::runtime_error(sqlite3_errmsg(h));
+    return "INSERT INTO temp.intake_seen (kind, security_id, k) VALUES (?, ?, ?) "
+           "ON CONFLICT DO NOTHING";
+  }
+
+  Range& range_of(Kind kind, std::size_t sec) {
+    Range& r = ranges[sec][kind];
+    if (!r.known) {
+      r.known = true;
+      Stmt& q = range[kind];
+      q.bind(1, ids[sec]);
+      if (q.row()) {
+        r.any = !q.null(0);
+        if (r.any) {
+          r.min = q.text(0);
+          r.max = q.text(1);
+        }
+        q.reset();
+      }
+    }
+    return r;
+  }
+
+  void flush_prices();
+  Upsert upsert_price(std::size_t sec, std::string_view date, std::string_view close);
+
+  // True when the key is new to this import (or cannot have been seen before
+  // by the range rule); false for a duplicate within the import.
+  // `overlap` says whether the ledger may already hold the key.
+  bool first_time(Kind kind, std::size_t sec, std::string_view date, std::string_view k,
+                  bool& overlap) {
+    overlap = range_of(kind, sec).covers(date);
+    if (!overlap) return true;
+    return seen_insert.bind(1, std::int64_t{kind}).bind(2, ids[sec]).bind(3, k).run() == 1;
+  }
+};
+
+ForeignKeyPause::ForeignKeyPause(Database& db) : db_(db) {
+  db_.sql().exec("PRAGMA foreign_keys = OFF");
+}
+
+ForeignKeyPause::~ForeignKeyPause() {
+  try {
+    db_.sql().exec("PRAGMA foreign_keys = ON");
+  } catch (...) {
+    // Never throw from a destructor; the next open turns checks on again.
+  }
+}
+
+MarketWriter::MarketWriter(Database& db, bool replace)
+    : impl_(std::make_unique<Impl>(db, replace)) {}
+
+MarketWriter::~MarketWriter() {
+  if (impl_) sqlite3_exec(impl_->h, "DELETE FROM temp.intake_seen", nullptr, nullptr, nullptr);
+}
+
+std::size_t MarketWriter::security(std::string_view symbol) {
+  auto& m = *impl_;
+  m.key.assign(symbol);
+  const auto it = m.by_symbol.find(m.key);
+  return it == m.by_symbol.end() ? kUnknown : it->second;
+}
+
+void MarketWriter::on_price_problem(PriceProblem fn) {
+  impl_->problem = std::move(fn);
+}
+
+const std::string& MarketWriter::symbol(std::size_t sec) const {
+  return impl_->symbols[sec];
+}
+
+void MarketWriter::price(std::size_t sec, std::string_view date, std::string_view close,
+                         std::uint64_t line) {
+  auto& m = *impl_;
+  Impl::Pending p{static_cast<std::uint32_t>(sec),
+                  static_cast<std::uint32_t>(close.size()),
+                  line,
+                  m.arena.size(),
+                  {}};
+  std::copy_n(date.data(), std::min<std::size_t>(date.size(), 10), p.date.begin());
+  m.arena.append(close);
+  m.pending.push_back(p);
+  if (m.pending.size() >= Impl::kBatch) m.flush_prices();
+}
+
+MarketWriter::Counts MarketWriter::finish_prices() {
+  impl_->flush_prices();
+  return impl_->counts;
+}
+
+void MarketWriter::Impl::flush_prices() {
+  std::sort(pending.begin(), pending.end(), [](const Pending& a, const Pending& b) {
+    if (a.sec != b.sec) return a.sec < b.sec;
+    if (a.date != b.date) return a.date < b.date;
+    return a.line < b.line;
+  });
+  auto date_of = [](const Pending& p) { return std::string_view(p.date.data(), p.date.size()); };
+  auto close_of = [&](const Pending& p) {
+    return std::string_view(arena.data() + p.close_off, p.close_len);
+  };
+  auto one = [&](const Pending& p) {
+    const Upsert u = upsert_price(p.sec, date_of(p), close_of(p));
+    if (u == Upsert::added)
+      ++counts.added;
+    else if (u == Upsert::unchanged)
+      ++counts.unchanged;
+    else if (u == Upsert::replaced)
+      ++counts.replaced;
+    else if (problem)
+      problem(p.line, u, p.sec, date_of(p), existing);
+  };
+  // Rows outside the ledger's existing range for their security cannot meet
+  // a stored row; they go in blocks of kBlock through one multi-row INSERT.
+  // A plain INSERT that hits a key undoes the whole statement, and then the
+  // block is redone row by row to find the duplicate.
+  std::size_t block_rows = 0;
+  const Pending* block[kBlock];
+  auto run_block = [&] {
+    if (block_rows == kBlock) {
+      for (std::size_t i = 0; i < kBlock; ++i) {
+        price_block.bind(static_cast<int>(3 * i + 1), ids[block[i]->sec]);
+        price_block.bind(static_cast<int>(3 * i + 2), date_of(*block[i]));
+        price_block.bind(static_cast<int>(3 * i + 3), close_of(*block[i]));
+      }
+      if (price_block.try_run()) {
+        counts.added += kBlock;
+        block_rows = 0;
+        return;
+      }
+    }
+    for (std::size_t i = 0; i < block_rows; ++i) one(*block[i]);
+    block_rows = 0;
+  };
+  const Pending* prev = nullptr;
+  for (const Pending& p : pending) {
+    const bool repeat = prev && prev->sec == p.sec && prev->date == p.date;
+    prev = &p;
+    if (repeat || range_of(kPrice, p.sec).covers(date_of(p))) {
+      run_block();
+      one(p);  // a repeat inside the batch conflicts with its predecessor
+      continue;
+    }
+    block[block_rows++] = &p;
+    if (block_rows == kBlock) run_block();
+  }
+  run_block();
+  pending.clear();
+  arena.clear();
+}
+
+Upsert MarketWriter::Impl::upsert_price(std::size_t sec, std::string_view date,
+                                        std::string_view close) {
+  bool overlap = false;
+  if (!first_time(kPrice, sec, date, date, overlap)) return Upsert::duplicate;
+  const std::int64_t id = ids[sec];
+  if (price_insert.bind(1, id).bind(2, date).bind(3, close).run() == 1) return Upsert::added;
+  if (!overlap) return Upsert::duplicate;
+  price_get.bind(1, id).bind(2, date);
+  price_get.row();
+  existing.assign(price_get.text(0));
+  price_get.reset();
+  if (existing == close) return Upsert::unchanged;
+  if (!replace) return Upsert::conflict;
+  price_set.bind(1, close).bind(2, id).bind(3, date).run();
+  return Upsert::replaced;
+}
+
+Upsert MarketWriter::metric(std::size_t sec, std::string_view name, std::string_view date,
+                            std::string_view known_on, std::string_view value,
+                            std::string& existing) {
+  auto& m = *impl_;
+  m.key.assign(name).append("\x1f").append(date).append("\x1f").append(known_on);
+  bool overlap = false;
+  if (!m.first_time(kMetric, sec, date, m.key, overlap)) return Upsert::duplicate;
+  const std::int64_t id = m.ids[sec];
+  if (m.metric_insert.bind(1, id)
+          .bind(2, name)
+          .bind(3, date)
+          .bind(4, known_on)
+          .bind(5, value)
+          .run() == 1)
+    return Upsert::added;
+  if (!overlap) return Upsert::duplicate;
+  m.metric_get.bind(1, id).bind(2, name).bind(3, date).bind(4, known_on);
+  m.metric_get.row();
+  existing.assign(m.metric_get.text(0));
+  m.metric_get.reset();
+  if (existing == value) return Upsert::unchanged;
+  if (!m.replace) return Upsert::conflict;
+  m.metric_set.bind(1, value).bind(2, id).bind(3, name).bind(4, date).bind(5, known_on).run();
+  return Upsert::replaced;
+}
+
+Upsert MarketWriter::distribution(std::size_t sec, std::string_view ex_date,
+                                  std::string_view pay_date, std::string_view per_share,
+                                  std::string& existing) {
+  auto& m = *impl_;
+  bool overlap = false;
+  if (!m.first_time(kDistribution, sec, ex_date, ex_date, overlap)) return Upsert::duplicate;
+  const std::int64_t id = m.ids[sec];
+  if (m.dist_insert.bind(1, id).bind(2, ex_date).bind(3, pay_date).bind(4, per_share).run() == 1)
+    return Upsert::added;
+  if (!overlap) return Upsert::duplicate;
+  m.dist_get.bind(1, id).bind(2, ex_date);
+  m.dist_get.row();
+  const std::string old_pay(m.dist_get.text(0));
+  const std::string old_per(m.dist_get.text(1));
+  m.dist_get.reset();
+  if (old_pay == pay_date && old_per == per_share) return Upsert::unchanged;
+  existing = fmt::format("pay date {}, {} per share", old_pay, old_per);
+  if (!m.replace) return Upsert::conflict;
+  m.dist_set.bind(1, pay_date).bind(2, per_share).bind(3, id).bind(4, ex_date).run();
+  return Upsert::replaced;
+}
+
+Upsert MarketWriter::split(std::size_t sec, std::string_view date, std::string_view ratio,
+                           std::string& existing) {
+  auto& m = *impl_;
+  bool overlap = false;
+  if (!m.first_time(kSplit, sec, date, date, overlap)) return Upsert::duplicate;
+  const std::int64_t id = m.ids[sec];
+  const std::string now = utc_timestamp();
+  if (m.split_insert.bind(1, id).bind(2, date).bind(3, ratio).bind(4, now).run() == 1)
+    return Upsert::added;
+  if (!overlap) return Upsert::duplicate;
+  m.split_get.bind(1, id).bind(2, date);
+  m.split_get.row();
+  existing.assign(m.split_get.text(0));
+  m.split_get.reset();
+  return existing == ratio ? Upsert::unchanged : Upsert::conflict;
+}
+
+Upsert MarketWriter::security_row(const Security& s, std::string& existing) {
+  auto& m = *impl_;
+  if (std::find(m.securities_seen.begin(), m.securities_seen.end(), s.symbol) !=
+      m.securities_seen.end())
+    return Upsert::duplicate;
+  m.securities_seen.push_back(s.symbol);
+  const auto old = find_security(m.db, s.symbol);
+  if (!old) {
+    const std::int64_t id = insert_security(m.db, s);
+    m.by_symbol.emplace(s.symbol, m.ids.size());
+    m.symbols.push_back(s.symbol);
+    m.ids.push_back(id);
+    m.ranges.emplace_back();
+    return Upsert::added;
+  }
+  if (describe(*old) == describe(s)) return Upsert::unchanged;
+  existing = describe(*old);
+  if (!m.replace) return Upsert::conflict;
+  validate(s);
+  SQLite::Statement st(m.db.sql(),
+                       "UPDATE security SET name = ?, kind = ?, currency = ?, lot_size = ?, "
+                       "sector = ? WHERE id = ?");
+  st.bind(1, s.name);
+  st.bind(2, std::string(to_string(s.kind)));
+  st.bind(3, s.currency);
+  st.bind(4, s.lot_size.str());
+  if (s.sector)
+    st.bind(5, *s.sector);
+  else
+    st.bind(5);
+  st.bind(6, old->id);
+  st.exec();
+  return Upsert::replaced;
+}
+
+// ---------------------------------------------------------------- reading
+
+void for_each_price(
+    Database& db,
+    const std::function<void(const std::string&, std::string_view, std::string_view)>& fn) {
+  sqlite3* h = db.sql().getHandle();
+  Stmt q(h, "SELECT date, close FROM price WHERE security_id = ? ORDER BY date");
+  for (const Security& s : list_securities(db)) {
+    q.bind(1, s.id);
+    while (q.row()) fn(s.symbol, q.text(0), q.text(1));
+  }
+}
+
+void for_each_metric(Database& db,
+                     const std::function<void(const std::string&, const MetricRow&)>& fn) {
+  sqlite3* h = db.sql().getHandle();
+  Stmt q(h,
+         "SELECT date, name, value, known_on FROM metric WHERE security_id = ? "
+         "ORDER BY name, date, known_on");
+  for (const Security& s : list_securities(db)) {
+    q.bind(1, s.id);
+    while (q.row()) fn(s.symbol, MetricRow{q.text(0), q.text(1), q.text(2), q.text(3)});
+  }
+}
+
+void for_each_distribution(Database& db,
+                           const std::function<void(const std::string&, std::string_view,
+                                                    std::string_view, std::string_view)>& fn) {
+  sqlite3* h = db.sql().getHandle();
+  Stmt q(h,
+         "SELECT ex_date, pay_date, per_share FROM distribution WHERE security_id = ? "
+         "ORDER BY ex_date");
+  for (const Security& s : list_securities(db)) {
+    q.bind(1, s.id);
+    while (q.row()) fn(s.symbol, q.text(0), q.text(1), q.text(2));
+  }
+}
+
+// ---------------------------------------------------------- point in time
+
+std::optional<MetricPoint> metric_as_of(Database& db, std::int64_t security_id,
+                                        std::string_view metric, Date day) {
+  // The primary key (security_id, name, date, known_on) serves the order.
+  SQLite::Statement st(db.sql(),
+                       "SELECT date, known_on, value FROM metric WHERE security_id = ? AND "
+                       "name = ? AND known_on <= ? ORDER BY date DESC, known_on DESC LIMIT 1");
+  st.bind(1, security_id);
+  st.bind(2, std::string(metric));
+  st.bind(3, day.str());
+  if (!st.executeStep()) return std::nullopt;
+  return MetricPoint{security_id, Decimal::parse(st.getColumn(2).getString()),
+                     Date::parse(st.getColumn(0).getString()),
+                     Date::parse(st.getColumn(1).getString())};
+}
+
+std::vector<MetricPoint> metrics_as_of(Database& db, std::string_view metric, Date day) {
+  SQLite::Statement st(db.sql(),
+                       "SELECT security_id, date, known_on, value FROM ("
+                       "  SELECT security_id, date, known_on, value, row_number() OVER ("
+                       "    PARTITION BY security_id ORDER BY date DESC, known_on DESC) AS n"
+                       "  FROM metric WHERE name = ? AND known_on <= ?)"
+                       " WHERE n = 1 ORDER BY security_id");
+  st.bind(1, std::string(metric));
+  st.bind(2, day.str());
+  std::vector<MetricPoint> out;
+  while (st.executeStep())
+    out.push_back(MetricPoint{
+        st.getColumn(0).getInt64(), Decimal::parse(st.getColumn(3).getString()),
+        Date::parse(st.getColumn(1).getString()), Date::parse(st.getColumn(2).getString())});
+  return out;
+}
+
+MetricHistory MetricHistory::load(Database& db, std::string_view metric) {
+  MetricHistory h;
+  SQLite::Statement st(db.sql(),
+                       "SELECT security_id, date, known_on, value FROM metric WHERE name = ? "
+                       "ORDER BY security_id, date, known_on");
+  st.bind(1, std::string(metric));
+  while (st.executeStep()) {
+    const std::int64_t id = st.getColumn(0).getInt64();
+    auto& rows = h.rows_[id];
+    if (rows.empty()) h.ids_.push_back(id);
+    rows.push_back(Row{Date::parse(st.getColumn(1).getString()),
+                       Date::parse(st.getColumn(2).getString()),
+                       Decimal::parse(st.getColumn(3).getString())});
+  }
+  std::sort(h.ids_.begin(), h.ids_.end());
+  return h;
+}
+
+std::optional<MetricPoint> MetricHistory::at(std::int64_t security_id, Date day) const {
+  const auto it = rows_.find(security_id);
+  if (it == rows_.end()) return std::nullopt;
+  const auto& rows = it->second;
+  // Rows are ordered by (date, known_on) and known_on >= date, so no row with
+  // date > day can be known on day: walk back from the last date <= day.
+  auto pos = std::upper_bound(rows.begin(), rows.end(), day,
+                              [](Date d, const Row& r) { return d < r.date; });
+  while (pos != rows.begin()) {
+    --pos;
+    if (pos->known_on <= day) return MetricPoint{security_id, pos->value, pos->date, pos->known_on};
+  }
+  return std::nullopt;
+}
+
+std::vector<MetricPoint> MetricHistory::all_at(Date day) const {
+  std::vector<MetricPoint> out;
+  out.reserve(ids_.size());
+  for (std::int64_t id : ids_)
+    if (auto p = at(id, day)) out.push_back(std::move(*p));
+  return out;
+}
+
+// ------------------------------------------------------------ import runs
+
+std::int64_t record_import_run(Database& db, const ImportRun& run) {
+  SQLite::Statement st(db.sql(),
+                       "INSERT INTO import_run (what, file_name, file_sha256, rows_read, "
+                       "rows_added, imported_at) VALUES (?, ?, ?, ?, ?, ?)");
+  st.bind(1, run.what);
+  st.bind(2, run.file_name);
+  st.bind(3, run.file_sha256);
+  st.bind(4, run.rows_read);
+  st.bind(5, run.rows_added);
+  st.bind(6, utc_timestamp());
+  st.exec();
+  return db.sql().getLastInsertRowid();
+}
+
+namespace {
+ImportRun read_run(SQLite::Statement& st) {
+  return ImportRun{st.getColumn(0).getInt64(),  st.getColumn(1).getString(),
+                   st.getColumn(2).getString(), st.getColumn(3).getString(),
+                   st.getColumn(4).getInt64(),  st.getColumn(5).getInt64(),
+                   st.getColumn(6).getString()};
+}
+constexpr const char* kRunColumns =
+    "id, what, file_name, file_sha256, rows_read, rows_added, imported_at";
+}  // namespace
+
+std::vector<ImportRun> list_import_runs(Database& db) {
+  SQLite::Statement st(db.sql(), fmt::format("SELECT {} FROM import_run ORDER BY id", kRunColumns));
+  std::vector<ImportRun> out;
+  while (st.executeStep()) out.push_back(read_run(st));
+  return out;
+}
+
+std::optional<ImportRun> find_import_run(Database& db, std::string_view what,
+                                         std::string_view sha256) {
+  SQLite::Statement st(db.sql(),
+                       fmt::format("SELECT {} FROM import_run WHERE what = ? AND file_sha256 = ? "
+                                   "ORDER BY id DESC LIMIT 1",
+                                   kRunColumns));
+  st.bind(1, std::string(what));
+  st.bind(2, std::string(sha256));
+  if (!st.executeStep()) return std::nullopt;
+  return read_run(st);
+}
+
+std::string dump_all_tables(Database& db) {
+  std::vector<std::string> tables;
+  {
+    SQLite::Statement st(db.sql(),
+                         "SELECT name FROM sqlite_schema WHERE type = 'table' AND name NOT LIKE "
+                         "'sqlite_%' ORDER BY name");
+    while (st.executeStep()) tables.push_back(st.getColumn(0).getString());
+  }
+  std::string out;
+  for (const auto& t : tables) {
+    out += "== " + t + "\n";
+    // Table names come from the schema itself, not from input.
+    SQLite::Statement st(db.sql(), fmt::format("SELECT * FROM \"{}\" ORDER BY 1, 2, 3", t));
+    while (st.executeStep()) {
+      for (int c = 0; c < st.getColumnCount(); ++c) {
+        if (c) out += '|';
+        out += st.getColumn(c).isNull() ? "NULL" : st.getColumn(c).getString();
+      }
+      out += '\n';
+    }
+  }
+  return out;
+}
+
+}  // namespace keel::store

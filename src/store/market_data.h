@@ -1,0 +1,162 @@
+// Market data in the ledger: writing it in bulk, reading it back, and the
+// point-in-time view of metrics.
+//
+// Point in time
+//  - A metric row is a figure for the period ending `date`, first knowable on
+//    `known_on` (>= date). A restatement is another row with the same date
+//    and a later known_on; both are kept.
+//  - metric_as_of(S, M, D): among rows of metric M for security S with
+//    known_on <= D, the latest date, and for that date the latest known_on
+//    <= D. A row whose known_on is after D is invisible on D.
+//  - metrics_as_of(M, D): the same for every security at once, in one query.
+//  - MetricHistory: one metric preloaded for all securities, for callers that
+//    ask about many days (a monthly back-test); at()/all_at() give exactly
+//    what metric_as_of()/metrics_as_of() give.
+//
+// Writing
+//  - MarketWriter adds rows inside the caller's WriteTransaction. Each call
+//    says what happened to one row: added, unchanged (identical row already
+//    there), replaced (different value, replace mode), conflict (different
+//    value, `existing` says what is stored) or duplicate (the same key came
+//    earlier through this writer). Memory stays flat in the number of rows:
+//    keys are tracked in SQLite, and only where the ledger already held rows
+//    in the same date range for that security.
+#pragma once
+
+#include <cstdint>
+#include <functional>
+#include <memory>
+#include <optional>
+#include <string>
+#include <string_view>
+#include <unordered_map>
+#include <vector>
+
+#include "core/date.h"
+#include "core/decimal.h"
+#include "market/security.h"
+#include "store/database.h"
+
+namespace keel::store {
+
+struct MetricPoint {
+  std::int64_t security_id = 0;
+  Decimal value;
+  Date date;      // period the figure is for
+  Date known_on;  // first day it could be known
+};
+
+std::optional<MetricPoint> metric_as_of(Database& db, std::int64_t security_id,
+                                        std::string_view metric, Date day);
+// Every security with a visible value, ascending by security_id.
+std::vector<MetricPoint> metrics_as_of(Database& db, std::string_view metric, Date day);
+
+class MetricHistory {
+ public:
+  static MetricHistory load(Database& db, std::string_view metric);
+  std::optional<MetricPoint> at(std::int64_t security_id, Date day) const;
+  std::vector<MetricPoint> all_at(Date day) const;  // ascending by security_id
+
+ private:
+  struct Row {
+    Date date;
+    Date known_on;
+    Decimal value;
+  };
+  std::unordered_map<std::int64_t, std::vector<Row>> rows_;  // by (date, known_on)
+  std::vector<std::int64_t> ids_;                            // ascending
+};
+
+enum class Upsert { added, unchanged, replaced, conflict, duplicate };
+
+// Turns foreign-key checks off for a bulk load whose security ids come from
+// the security table itself, and back on afterwards. Take it before the
+// WriteTransaction: SQLite ignores the setting inside a transaction.
+class ForeignKeyPause {
+ public:
+  explicit ForeignKeyPause(Database& db);
+  ~ForeignKeyPause();
+  ForeignKeyPause(const ForeignKeyPause&) = delete;
+  ForeignKeyPause& operator=(const ForeignKeyPause&) = delete;
+
+ private:
+  Database& db_;
+};
+
+class MarketWriter {
+ public:
+  // The caller holds a WriteTransaction on `db` for the writer's lifetime.
+  MarketWriter(Database& db, bool replace);
+  ~MarketWriter();
+  MarketWriter(const MarketWriter&) = delete;
+  MarketWriter& operator=(const MarketWriter&) = delete;
+
+  static constexpr std::size_t kUnknown = static_cast<std::size_t>(-1);
+  // A handle for a security of the ledger, or kUnknown.
+  std::size_t security(std::string_view symbol);
+
+  // Text arguments are canonical (ISO dates, Decimal::str() numbers).
+  //
+  // Prices are the bulk of most imports: they are buffered and written in
+  // batches (of bounded size) sorted by key, which keeps the table's pages
+  // hot however the file is ordered. Outcomes other than added/unchanged/
+  // replaced reach `on_problem` with the row's line, possibly later than the
+  // call; finish() writes what is buffered.
+  using PriceProblem = std::function<void(std::uint64_t line, Upsert outcome, std::size_t sec,
+                                          std::string_view date, std::string_view existing)>;
+  void on_price_problem(PriceProblem fn);
+  void price(std::size_t sec, std::string_view date, std::string_view close, std::uint64_t line);
+  struct Counts {
+    std::uint64_t added = 0, unchanged = 0, replaced = 0;
+  };
+  Counts finish_prices();
+  const std::string& symbol(std::size_t sec) const;
+  Upsert metric(std::size_t sec, std::string_view name, std::string_view date,
+                std::string_view known_on, std::string_view value, std::string& existing);
+  Upsert distribution(std::size_t sec, std::string_view ex_date, std::string_view pay_date,
+                      std::string_view per_share, std::string& existing);
+  // Recorded splits never change: a different ratio is a conflict even when
+  // replacing.
+  Upsert split(std::size_t sec, std::string_view date, std::string_view ratio,
+               std::string& existing);
+  // By symbol; `existing` describes the stored security on conflict.
+  Upsert security_row(const Security& security, std::string& existing);
+
+ private:
+  struct Impl;
+  std::unique_ptr<Impl> impl_;
+};
+
+// Reading market data back in keel's canonical order (symbol, then key).
+void for_each_price(Database& db,
+                    const std::function<void(const std::string& symbol, std::string_view date,
+                                             std::string_view close)>& fn);
+struct MetricRow {
+  std::string_view date, name, value, known_on;
+};
+void for_each_metric(Database& db,
+                     const std::function<void(const std::string& symbol, const MetricRow&)>& fn);
+void for_each_distribution(
+    Database& db,
+    const std::function<void(const std::string& symbol, std::string_view ex_date,
+                             std::string_view pay_date, std::string_view per_share)>& fn);
+
+struct ImportRun {
+  std::int64_t id = 0;
+  std::string what;
+  std::string file_name;
+  std::string file_sha256;
+  std::int64_t rows_read = 0;
+  std::int64_t rows_added = 0;
+  std::string imported_at;
+};
+std::int64_t record_import_run(Database& db, const ImportRun& run);  // sets imported_at
+std::vector<ImportRun> list_import_runs(Database& db);               // oldest first
+std::optional<ImportRun> find_import_run(Database& db, std::string_view what,
+                                         std::string_view sha256);  // latest with this digest
+
+// Every row of every table as text, in a fixed order: for proving that a
+// refused command changed nothing.
+std::string dump_all_tables(Database& db);
+
+}  // namespace keel::store
