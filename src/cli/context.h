@@ -30,5 +30,6 @@ void out(const std::string& text);
 using Registrar = void (*)(CLI::App& app, Context& context);
 void register_ledger_commands(CLI::App& app, Context& context);
 void register_report_commands(CLI::App& app, Context& context);
+void register_returns_commands(CLI::App& app, Context& context);
 
 }  // namespace keel::cli
