@@ -157,7 +157,7 @@ while month <= END:
         post(date=dt.date(2021, 5, 12), account=TAX, kind="transfer_out", to_account=PEN,
              amount=q2(cash[TAX] / 2))
     if month == dt.date(2022, 3, 1):
-        post(date=dt.date(2022, 3, 21), account=PEN, kind="withdrawal", amount=Decimal(3000))
+        post(date=dt.date(2022, 3, 21), account=PEN, kind="withdrawal", amount=q2(cash[PEN] * Decimal("0.9")))
     if month == dt.date(2021, 11, 1):
         post(date=dt.date(2021, 11, 30), account=TAX, kind="fee", amount=Decimal(25))
     month = (month.replace(day=28) + dt.timedelta(days=4)).replace(day=1)
