@@ -1,0 +1,160 @@
+#include "perf/ledger_series.h"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <map>
+#include <unordered_set>
+
+#include "core/error.h"
+
+namespace keel::perf {
+namespace {
+
+// Days that get an entry: from - 1, and every transaction, split or close day
+// inside [from - 1, to].
+std::vector<Date> entry_days(const Replayer& replayer, const LedgerLog& log,
+                             const store::PriceBook& prices, Date first, Date to) {
+  std::vector<Date> days{first};
+  auto keep = [&](Date d) {
+    if (d > first && d <= to) days.push_back(d);
+  };
+  for (const Transaction* t : replayer.live()) keep(t->date);
+  for (const auto& s : log.splits) keep(s.date);
+  for (const Date d : prices.all_days()) keep(d);
+  std::sort(days.begin(), days.end());
+  days.erase(std::unique(days.begin(), days.end()), days.end());
+  return days;
+}
+
+}  // namespace
+
+LedgerSeries build_series(const LedgerLog& log, const store::PriceBook& prices,
+                          std::optional<std::int64_t> account_id, Date from, Date to) {
+  if (from > to)
+    throw InputError(
+        fmt::format("the period starts on {}, after its end {}", from.str(), to.str()));
+  Replayer replayer(log);
+  const Date first = from.plus_days(-1);
+  const auto& live = replayer.live();
+
+  // Transfer-out rows whose receiving half is live: an internal pair.
+  std::unordered_set<std::int64_t> paired_out;
+  for (const Transaction* t : live)
+    if (t->kind == TxnKind::transfer_in && t->link_id) paired_out.insert(*t->link_id);
+  auto internal_pair = [&](const Transaction& t) {
+    if (account_id) return false;
+    if (t.kind == TxnKind::transfer_in) return t.link_id && paired_out.count(*t.link_id) > 0;
+    if (t.kind == TxnKind::transfer_out) return paired_out.count(t.id) > 0;
+    return false;
+  };
+  auto in_scope = [&](const Transaction& t) { return !account_id || t.account_id == *account_id; };
+
+  LedgerSeries out;
+  const auto days = entry_days(replayer, log, prices, first, to);
+  out.series.reserve(days.size());
+  std::size_t cursor = 0;  // next live transaction not yet looked at for flows
+  std::vector<const Split*> splits;
+  for (const auto& sp : log.splits)
+    if (sp.date > first && sp.date <= to) splits.push_back(&sp);
+  std::sort(splits.begin(), splits.end(),
+            [](const Split* a, const Split* b) { return a->date < b->date; });
+  std::size_t split_cursor = 0;
+  // Open quantities in scope, by (account, security).
+  std::map<std::pair<std::int64_t, std::int64_t>, Decimal> held;
+  auto refresh = [&](const Book& book, std::int64_t account, std::int64_t security) {
+    const auto& positions = book.account(account).positions;
+    const auto it = positions.find(security);
+    if (it == positions.end())
+      held.erase({account, security});
+    else
+      held[{account, security}] = it->second.quantity();
+  };
+  for (const Date d : days) {
+    const Book& book = replayer.advance_to(d);
+    DayPoint point;
+    point.day = d;
+    auto unit_price = [&](std::int64_t security_id) -> std::optional<Decimal> {
+      if (auto close = prices.at(security_id, d)) return close;
+      return book.last_trade_price(security_id);
+    };
+    // Quantities change only where a transaction or split touched a
+    // position; refresh those, keep the rest (summing lots daily is slow).
+    if (d == first) {
+      for (const auto& info : book.accounts())
+        if (!account_id || info.id == *account_id)
+          for (const auto& [security_id, position] : book.account(info.id).positions)
+            held[{info.id, security_id}] = position.quantity();
+    } else {
+      for (std::size_t i = cursor; i < live.size() && live[i]->date == d; ++i)
+        if (live[i]->security_id && in_scope(*live[i]))
+          refresh(book, live[i]->account_id, *live[i]->security_id);
+      for (; split_cursor < splits.size() && splits[split_cursor]->date <= d; ++split_cursor)
+        for (const auto& info : book.accounts())
+          if (!account_id || info.id == *account_id)
+            refresh(book, info.id, splits[split_cursor]->security_id);
+    }
+    for (const auto& info : book.accounts())
+      if (!account_id || info.id == *account_id) point.value += book.account(info.id).cash;
+    for (const auto& [key, quantity] : held) {
+      if (auto price = unit_price(key.second))
+        point.value += quantity * *price;
+      else
+        out.unpriced.insert(key.second);
+    }
+    for (; cursor < live.size() && live[cursor]->date <= d; ++cursor) {
+      const Transaction& t = *live[cursor];
+      if (t.date != d || !in_scope(t)) continue;
+      const bool in_period = d >= from;
+      if (in_period) {
+        out.fees += t.fee;
+        switch (t.kind) {
+          case TxnKind::dividend:
+          case TxnKind::interest:
+            out.income += *t.amount;
+            break;
+          case TxnKind::tax:
+            out.tax += *t.amount;
+            break;
+          case TxnKind::fee:
+            out.fees += *t.amount;
+            break;
+          default:
+            break;
+        }
+      }
+      if (internal_pair(t)) continue;
+      auto transfer_value = [&]() -> Decimal {
+        if (!t.security_id) return *t.amount;
+        std::optional<Decimal> price = prices.at(*t.security_id, d);
+        if (!price) price = t.price;
+        if (!price) price = book.last_trade_price(*t.security_id);
+        if (!price) {
+          out.unpriced.insert(*t.security_id);
+          return Decimal();
+        }
+        return *t.quantity * *price;
+      };
+      switch (t.kind) {
+        case TxnKind::deposit:
+          point.inflow += *t.amount;
+          break;
+        case TxnKind::withdrawal:
+          point.outflow += *t.amount;
+          break;
+        case TxnKind::transfer_in:
+          point.inflow += transfer_value();
+          break;
+        case TxnKind::transfer_out:
+          point.outflow += transfer_value();
+          break;
+        default:
+          break;
+      }
+    }
+    out.series.push_back(std::move(point));
+  }
+  return out;
+}
+
+}  // namespace keel::perf

@@ -1,0 +1,47 @@
+// The value-and-flow series of a ledger scope, ready for perf::measure().
+//
+// Contract
+//  - Scope: one account (by id) or the whole ledger (nullopt).
+//  - One entry per day in [from - 1, to] on which a live transaction, a split
+//    or any close exists, plus from - 1 itself (the opening value).
+//  - V_t = sum over positions in scope of quantity x price + cash in scope, at
+//    the close of t (after the day's transactions); price = the close on or
+//    before t, else the ledger's last trade price, else the position cannot be
+//    valued: it counts as zero and its security is listed in `unpriced`.
+//  - External flows (positive amounts): deposits in, withdrawals out; cash
+//    transfers at their amount; security transfers at quantity x (close on or
+//    before the day, else the transfer's price, else the last trade price).
+//    For the whole ledger a linked transfer pair between its own accounts is
+//    internal (no flow); for one account both halves are flows.
+//    Dividends, interest, tax and fees stay inside (they move the value).
+//  - Totals over from..to (days inside the period only): income = dividends +
+//    interest; tax; fees = fee transactions + the fee of every transaction.
+//  - One replay of the log, stepping day by day; closes come from PriceBook.
+//  - Throws InputError when from > to, or as replay does for a broken ledger.
+#pragma once
+
+#include <cstdint>
+#include <optional>
+#include <set>
+#include <vector>
+
+#include "core/date.h"
+#include "core/decimal.h"
+#include "ledger/book.h"
+#include "perf/performance.h"
+#include "store/prices.h"
+
+namespace keel::perf {
+
+struct LedgerSeries {
+  std::vector<DayPoint> series;
+  Decimal income;  // dividends + interest, in the period
+  Decimal tax;
+  Decimal fees;                     // fee transactions + transaction fees
+  std::set<std::int64_t> unpriced;  // securities held without any price
+};
+
+LedgerSeries build_series(const LedgerLog& log, const store::PriceBook& prices,
+                          std::optional<std::int64_t> account_id, Date from, Date to);
+
+}  // namespace keel::perf

@@ -1,0 +1,46 @@
+// Returns of a ledger scope over a period: resolves the period, builds the
+// series (perf/ledger_series.h) and measures it (perf/performance.h).
+//
+// Contract
+//  - As-of: the request's, else the later of the latest close and the latest
+//    live transaction day. Inception: the first live transaction day.
+//  - Benchmark: the closes of the named security, which must have a close on
+//    or before the day before the period (InputError naming --benchmark).
+//  - Throws InputError for an unknown account (naming --account) or security,
+//    a ledger without transactions, and whatever resolve_period() and
+//    measure() reject.
+#pragma once
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "perf/ledger_series.h"
+#include "perf/performance.h"
+#include "perf/period.h"
+#include "store/database.h"
+
+namespace keel::perf {
+
+struct ReturnsRequest {
+  std::optional<std::string> account;  // nullopt: the whole ledger
+  PeriodRequest period;
+  std::optional<Date> as_of;
+  std::optional<std::string> benchmark;  // security symbol
+  std::optional<Decimal> risk_free_annual;
+};
+
+struct ReturnsReport {
+  std::string scope;  // account name, or "all accounts"
+  Date as_of;
+  Date inception;
+  Period period;
+  Decimal income, tax, fees;
+  std::vector<std::string> unpriced;  // symbols held without any price
+  std::optional<std::string> benchmark;
+  PerfResult result;
+};
+
+ReturnsReport returns_report(store::Database& db, const ReturnsRequest& request);
+
+}  // namespace keel::perf

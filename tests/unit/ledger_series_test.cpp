@@ -1,0 +1,173 @@
+// The value-and-flow series built from a ledger: what counts as an external
+// flow for one account and for the whole ledger. Every figure is worked out
+// by hand in the comments.
+#include "perf/ledger_series.h"
+
+#include <doctest/doctest.h>
+
+#include "ledger_fixture.h"
+#include "store/price_write.h"
+#include "store/prices.h"
+
+using namespace keel;
+using namespace keel::testing;
+
+namespace {
+
+struct SeriesFixture : LedgerFixture {
+  std::int64_t id_of(const std::string& symbol) { return store::find_security(db, symbol)->id; }
+  std::int64_t account_id(const std::string& name) { return store::account_named(db, name).id; }
+  void close(const std::string& symbol, const char* date, const char* price) {
+    store::upsert_price(db, id_of(symbol), day(date), dec(price));
+  }
+  void transfer(const char* date, const std::string& from, const std::string& to,
+                std::optional<std::string> symbol, const char* figure) {
+    ledger::PostRequest r;
+    r.kind = TxnKind::transfer_out;
+    r.date = day(date);
+    r.account = from;
+    r.to_account = to;
+    if (symbol) {
+      r.symbol = symbol;
+      r.quantity = dec(figure);
+    } else {
+      r.amount = dec(figure);
+    }
+    ledger::post(db, r);
+  }
+
+  // Two accounts; QUILL closes 50 on 01-03 and 55 on 01-04, none later.
+  SeriesFixture() {
+    account("Alder");
+    account("Birch");
+    security("QUILL");
+    security("MOSS");
+    cash(TxnKind::deposit, "2024-01-02", "Alder", "1000");
+    cash(TxnKind::deposit, "2024-01-02", "Birch", "500");
+    buy("2024-01-03", "Alder", "QUILL", "10", "50", "1");  // Alder cash 1000 - 501 = 499
+    close("QUILL", "2024-01-03", "50");
+    close("QUILL", "2024-01-04", "55");
+    transfer("2024-01-05", "Alder", "Birch", "QUILL", "5");  // 5 x 55 (close of 01-04) = 275
+    transfer("2024-01-06", "Alder", "Birch", std::nullopt, "100");
+    cash(TxnKind::withdrawal, "2024-01-08", "Birch", "50");
+    cash(TxnKind::dividend, "2024-01-08", "Alder", "7", "QUILL");
+    cash(TxnKind::tax, "2024-01-08", "Alder", "1", "QUILL");
+    cash(TxnKind::fee, "2024-01-08", "Alder", "2");
+    cash(TxnKind::interest, "2024-01-08", "Birch", "3");
+    // Units brought in from outside, never closed: valued at the transfer's price.
+    ledger::PostRequest in;
+    in.kind = TxnKind::transfer_in;
+    in.date = day("2024-01-09");
+    in.account = "Birch";
+    in.symbol = "MOSS";
+    in.quantity = dec("2");
+    in.price = dec("10");
+    ledger::post(db, in);
+  }
+
+  perf::LedgerSeries series(std::optional<std::string> account, const char* from, const char* to) {
+    const auto prices = store::PriceBook::load(db);
+    std::optional<std::int64_t> id;
+    if (account) id = account_id(*account);
+    return perf::build_series(ledger::load_log(db), prices, id, day(from), day(to));
+  }
+};
+
+struct Expect {
+  const char* day;
+  const char* value;
+  const char* in;
+  const char* out;
+};
+
+void check_series(const perf::LedgerSeries& s, const std::vector<Expect>& expected) {
+  REQUIRE(s.series.size() == expected.size());
+  for (std::size_t i = 0; i < expected.size(); ++i) {
+    INFO("entry " << i << " " << expected[i].day);
+    CHECK(s.series[i].day == day(expected[i].day));
+    CHECK(s.series[i].value == dec(expected[i].value));
+    CHECK(s.series[i].inflow == dec(expected[i].in));
+    CHECK(s.series[i].outflow == dec(expected[i].out));
+  }
+}
+
+}  // namespace
+
+TEST_CASE("whole ledger: deposits and withdrawals are flows, a transfer pair is internal") {
+  SeriesFixture f;
+  const auto s = f.series(std::nullopt, "2024-01-02", "2024-01-09");
+  // Cash 999 after the buy; QUILL 10 units at 50, then 55.
+  // 01-08: cash 999 - 50 + 7 - 1 - 2 + 3 = 956; 956 + 550 = 1506, out 50.
+  // 01-09: MOSS 2 x 10 = 20 comes in from outside: 1526, in 20.
+  check_series(s, {{"2024-01-01", "0", "0", "0"},
+                   {"2024-01-02", "1500", "1500", "0"},
+                   {"2024-01-03", "1499", "0", "0"},
+                   {"2024-01-04", "1549", "0", "0"},
+                   {"2024-01-05", "1549", "0", "0"},
+                   {"2024-01-06", "1549", "0", "0"},
+                   {"2024-01-08", "1506", "0", "50"},
+                   {"2024-01-09", "1526", "20", "0"}});
+  CHECK(s.income == dec("10"));  // dividend 7 + interest 3
+  CHECK(s.tax == dec("1"));
+  CHECK(s.fees == dec("3"));  // buy fee 1 + fee 2
+  CHECK(s.unpriced.empty());
+}
+
+TEST_CASE("one account: both halves of an own-account transfer are flows") {
+  SeriesFixture f;
+  // Alder: 01-05 sends 5 QUILL valued at the close on or before (55, not the
+  // trade price 50): 499 + 5 x 55 = 774, out 275. 01-06 sends 100 cash:
+  // 399 + 275 = 674, out 100. 01-08: 399 + 7 - 1 - 2 = 403; 403 + 275 = 678.
+  const auto alder = f.series("Alder", "2024-01-02", "2024-01-09");
+  check_series(alder, {{"2024-01-01", "0", "0", "0"},
+                       {"2024-01-02", "1000", "1000", "0"},
+                       {"2024-01-03", "999", "0", "0"},
+                       {"2024-01-04", "1049", "0", "0"},
+                       {"2024-01-05", "774", "0", "275"},
+                       {"2024-01-06", "674", "0", "100"},
+                       {"2024-01-08", "678", "0", "0"},
+                       {"2024-01-09", "678", "0", "0"}});
+  CHECK(alder.income == dec("7"));
+  CHECK(alder.tax == dec("1"));
+  CHECK(alder.fees == dec("3"));
+  // Birch receives the same amounts as inflows.
+  const auto birch = f.series("Birch", "2024-01-02", "2024-01-09");
+  check_series(birch, {{"2024-01-01", "0", "0", "0"},
+                       {"2024-01-02", "500", "500", "0"},
+                       {"2024-01-03", "500", "0", "0"},
+                       {"2024-01-04", "500", "0", "0"},
+                       {"2024-01-05", "775", "275", "0"},
+                       {"2024-01-06", "875", "100", "0"},
+                       {"2024-01-08", "828", "0", "50"},
+                       {"2024-01-09", "848", "20", "0"}});
+  CHECK(birch.income == dec("3"));
+}
+
+TEST_CASE("a later start: the opening entry is the day before, totals only inside") {
+  SeriesFixture f;
+  const auto s = f.series(std::nullopt, "2024-01-06", "2024-01-08");
+  check_series(s, {{"2024-01-05", "1549", "0", "0"},
+                   {"2024-01-06", "1549", "0", "0"},
+                   {"2024-01-08", "1506", "0", "50"}});
+  CHECK(s.income == dec("10"));
+  CHECK(s.fees == dec("2"));  // the buy's fee lies before the period
+}
+
+TEST_CASE("a security transfer without any close is valued at the last trade price") {
+  SeriesFixture f;
+  // FERN has no close at all: the transfer and the position fall back to
+  // the last trade price, 40.
+  f.security("FERN");
+  f.buy("2024-01-10", "Alder", "FERN", "2", "40");
+  f.transfer("2024-01-11", "Alder", "Birch", "FERN", "1");
+  const auto alder = f.series("Alder", "2024-01-11", "2024-01-11");
+  REQUIRE(alder.series.size() == 2);
+  CHECK(alder.series[1].outflow == dec("40"));
+  // Alder after 01-10: 403 - 80 = 323 cash, 5 QUILL x 55, 1 FERN x 40.
+  CHECK(alder.series[1].value == dec("638"));
+}
+
+TEST_CASE("a period that ends before it starts is refused") {
+  SeriesFixture f;
+  CHECK_THROWS_AS(f.series(std::nullopt, "2024-01-05", "2024-01-04"), InputError);
+}
