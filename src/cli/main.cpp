@@ -38,6 +38,7 @@ int main(int argc, char** argv) {
   keel::cli::register_intake_commands(app, context);
   keel::cli::register_returns_commands(app, context);
   keel::cli::register_maintenance_commands(app, context);
+  keel::cli::register_demo_commands(app, context);
   keel::cli::register_reference_command(app);
 
   try {

@@ -1,0 +1,171 @@
+// keel demo: a fresh ledger holding the invented scenario of examples/demo,
+// then a month in its life shown through keel's own commands.
+#include <fmt/format.h>
+#include <stdlib.h>
+
+#include <cstdio>
+#include <memory>
+#include <stdexcept>
+#include <system_error>
+
+#include "cli/context.h"
+#include "core/error.h"
+#include "core/text.h"
+#include "io/demo.h"
+#include "io/errors.h"
+
+#ifndef KEEL_SOURCE_DIR
+#error "KEEL_SOURCE_DIR must name the source tree (set in CMakeLists.txt)"
+#endif
+
+namespace keel::cli {
+namespace {
+namespace fs = std::filesystem;
+
+// One report of the demo: a heading, the command family that provides it,
+// and its arguments ({last_day}, {month_start}, {year}, {benchmark} and
+// {first_day} are filled in from scenario.toml; see io/demo.h).
+struct DemoStep {
+  const char* heading;
+  Registrar family;
+  std::vector<std::string> args;
+};
+
+// EXTENSION POINT: the demo's reports, in order. A new report is one line
+// here; the proposal and statement steps go at the marks below once their
+// commands exist.
+const std::vector<DemoStep>& demo_steps() {
+  static const std::vector<DemoStep> steps = {
+      {"The last month's transactions",
+       register_report_commands,
+       {"history", "--from", "{month_start}", "--to", "{last_day}"}},
+      {"Holdings on the last day", register_report_commands, {"holdings", "--as-of", "{last_day}"}},
+      {"The year's returns against the benchmark",
+       register_returns_commands,
+       {"returns", "--year", "{year}", "--benchmark", "{benchmark}"}},
+      // EXTENSION POINT (proposal): next month's orders under the rule, e.g.
+      // {"Next month's proposal", register_rules_commands, {"propose", ...}},
+      // EXTENSION POINT (statement): the year-end statement, e.g.
+      // {"Year-end statement", register_statement_commands, {"statement", ...}},
+  };
+  return steps;
+}
+
+struct DemoOptions {
+  std::string dir, data;
+};
+
+// Runs one step as its command would run from the command line, on the demo
+// ledger. A step that does not parse is a bug in the list above.
+void run_step(const DemoStep& step, const Context& base, const fs::path& ledger,
+              const io::DemoScenario& scenario) {
+  Context ctx;
+  ctx.db_path = ledger.string();
+  ctx.allow_unsafe_permissions = base.allow_unsafe_permissions;
+  CLI::App app{"keel demo step", "keel"};
+  app.option_defaults()->always_capture_default();
+  register_ledger_commands(app, ctx);  // other families add to its 'account' and 'security'
+  if (step.family != register_ledger_commands) step.family(app, ctx);
+  const auto args = io::expand_placeholders(step.args, scenario);
+  std::vector<std::string> reversed(args.rbegin(), args.rend());  // CLI11 parses from the back
+  out(fmt::format("\n== {} (keel {}) ==\n\n", step.heading, fmt::join(args, " ")));
+  std::fflush(stdout);
+  try {
+    app.parse(reversed);
+  } catch (const CLI::ParseError& e) {
+    throw std::logic_error(fmt::format("demo step '{}': {}", step.heading, e.what()));
+  }
+}
+
+// The folder for the demo ledger: --dir (created if missing, refused if it
+// already holds a ledger) or a new temporary folder. Returns whether it was
+// created here.
+bool prepare_dir(fs::path& dir, const std::string& option_value) {
+  std::error_code ec;
+  if (option_value.empty()) {
+    std::string pattern = (fs::temp_directory_path() / "keel-demo-XXXXXX").string();
+    if (!::mkdtemp(pattern.data()))
+      throw InputError(fmt::format("cannot create a temporary folder in {}; give one with --dir",
+                                   fs::temp_directory_path().string()));
+    dir = pattern;
+    return true;
+  }
+  dir = option_value;
+  if (fs::exists(dir / "keel.db", ec))
+    throw InputError(fmt::format(
+        "--dir: '{}' already holds a ledger (keel.db); the demo starts from an empty folder",
+        printable(dir.string())));
+  if (fs::exists(dir, ec)) {
+    if (!fs::is_directory(dir, ec))
+      throw InputError(fmt::format("--dir: '{}' is not a folder", printable(dir.string())));
+    return false;
+  }
+  if (!fs::create_directories(dir, ec))
+    throw InputError(
+        fmt::format("--dir: cannot create '{}': {}", printable(dir.string()), ec.message()));
+  return true;
+}
+
+void remove_ledger(const fs::path& dir, bool created) {
+  std::error_code ec;
+  for (const char* suffix : {"", "-wal", "-shm", "-journal"})
+    fs::remove(dir / (std::string("keel.db") + suffix), ec);
+  if (created) fs::remove(dir, ec);  // only if empty
+}
+
+void add_demo(CLI::App& app, Context& ctx) {
+  auto o = std::make_shared<DemoOptions>();
+  auto* cmd = app.add_subcommand(
+      "demo",
+      "Build a fresh ledger of an invented household and show a month in its life (never "
+      "touches your own ledger)");
+  cmd->add_option("--dir", o->dir,
+                  "Folder for the demo ledger, created if missing (default: a new temporary "
+                  "folder, printed)");
+  cmd->add_option("--data", o->data,
+                  "Folder holding the scenario's files (default: examples/demo/data of the "
+                  "source tree keel was built from)");
+  cmd->callback([&ctx, o] {
+    const bool from_option = !o->data.empty();
+    const fs::path data =
+        from_option ? fs::path(o->data) : fs::path(KEEL_SOURCE_DIR) / "examples" / "demo" / "data";
+    const auto scenario =
+        io::load_scenario(data, from_option ? "--data" : "demo data (give --data)");
+    fs::path dir;
+    const bool created = prepare_dir(dir, o->dir);
+    const fs::path ledger = dir / "keel.db";
+    out(fmt::format("keel demo: {}, {} to {}\n", printable(scenario.household),
+                    scenario.first_day.str(), scenario.last_day.str()));
+    out(fmt::format("Demo ledger: {}\n", printable(ledger.string())));
+    std::fflush(stdout);
+    try {
+      store::OpenOptions options;
+      options.create = true;
+      options.allow_unsafe_permissions = ctx.allow_unsafe_permissions;
+      auto db = store::Database::open(ledger, options);
+      for (const auto& d : io::import_scenario(db, scenario))
+        out(fmt::format("imported {:<13} {:>7} rows from {}\n", d.what, d.rows,
+                        printable(fs::path(d.file).filename().string())));
+    } catch (const io::ImportRefused& e) {
+      for (const auto& line : e.lines()) std::fputs((line + "\n").c_str(), stderr);
+      remove_ledger(dir, created);
+      throw;
+    } catch (...) {
+      remove_ledger(dir, created);
+      throw;
+    }
+    for (const auto& step : demo_steps()) run_step(step, ctx, ledger, scenario);
+    out("\n");
+    out(std::string(io::kDemoCautions));
+    out(fmt::format("\nThe demo ledger stays at {}; look around with keel --db {} ...\n",
+                    printable(ledger.string()), printable(ledger.string())));
+  });
+}
+
+}  // namespace
+
+void register_demo_commands(CLI::App& app, Context& ctx) {
+  add_demo(app, ctx);
+}
+
+}  // namespace keel::cli

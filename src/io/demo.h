@@ -1,0 +1,81 @@
+// The invented demo scenario (examples/demo): finding its files, reading its
+// scenario.toml, and loading it into a fresh ledger through the ordinary
+// importers.
+//
+// Contract
+//  - kDemoFiles lists the scenario's CSV files in import order: accounts,
+//    securities, prices, metrics, distributions, splits, transactions.
+//  - load_scenario(dir, option) checks that dir is a folder holding
+//    scenario.toml and every CSV file, and reads scenario.toml (keys
+//    household, first_day, last_day, benchmark, accounts; no others). Throws
+//    InputError naming `option` (the flag the folder came from) and the
+//    missing file, or naming scenario.toml's line and key for a bad value.
+//  - import_scenario(db, scenario) imports every file in order, each in its
+//    own write transaction (io::import_accounts, import_market,
+//    import_transactions). An importer's ImportRefused or InputError passes
+//    through unchanged; files imported before it stay in the ledger, so
+//    callers give it a ledger of their own (the demo's fresh one).
+//  - expand_placeholders() replaces {first_day}, {last_day}, {month_start}
+//    (first day of last_day's month), {year} (last_day's year) and
+//    {benchmark} in each argument; any other {name} is a logic_error (a
+//    wrong step list is a bug, not a user mistake).
+#pragma once
+
+#include <array>
+#include <cstdint>
+#include <filesystem>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "core/date.h"
+#include "store/database.h"
+
+namespace keel::io {
+
+struct DemoFile {
+  std::string_view what;  // the importer: accounts, securities, ..., transactions
+  std::string_view file;  // file name inside the scenario folder
+};
+inline constexpr std::array<DemoFile, 7> kDemoFiles{{{"accounts", "accounts.csv"},
+                                                     {"securities", "securities.csv"},
+                                                     {"prices", "prices.csv"},
+                                                     {"metrics", "metrics.csv"},
+                                                     {"distributions", "distributions.csv"},
+                                                     {"splits", "splits.csv"},
+                                                     {"transactions", "transactions.csv"}}};
+
+struct DemoScenario {
+  std::filesystem::path dir;
+  std::string household;
+  Date first_day;
+  Date last_day;
+  std::string benchmark;  // symbol of the index the returns are compared with
+  std::vector<std::string> accounts;
+};
+
+DemoScenario load_scenario(const std::filesystem::path& dir, std::string_view option);
+
+struct DemoImport {
+  std::string what;
+  std::string file;
+  std::uint64_t rows = 0;
+  std::uint64_t added = 0;
+};
+std::vector<DemoImport> import_scenario(store::Database& db, const DemoScenario& scenario);
+
+std::vector<std::string> expand_placeholders(const std::vector<std::string>& args,
+                                             const DemoScenario& scenario);
+
+// Printed after the demo's reports.
+inline constexpr std::string_view kDemoCautions =
+    "Cautions\n"
+    "- Everything above is invented: the household, the securities, their prices and figures.\n"
+    "- keel records and computes; it gives no investment advice. A rule such as 'hold low P/E "
+    "names' can lose money.\n"
+    "- Past results, real or simulated, do not predict future returns. A rule tried on past "
+    "data tends to overfit that past.\n"
+    "- Tax figures (the 15 % withholding here) are illustrations; tax depends on local rules; ask "
+    "your tax authority or a licensed professional.\n";
+
+}  // namespace keel::io
