@@ -16,7 +16,7 @@ void add_init(CLI::App& app, Context& ctx) {
   auto* cmd = app.add_subcommand("init", "Create an empty ledger (or bring an old one up to date)");
   cmd->callback([&ctx] {
     auto db = ctx.open_ledger(/*create=*/true);
-    out(fmt::format("ledger ready at {} (schema version {})\n", db.path().string(),
+    out(fmt::format("ledger ready at {} (schema version {})\n", printable(db.path().string()),
                     db.schema_version()));
   });
 }
@@ -67,7 +67,11 @@ void add_security_add(CLI::App& group, Context& ctx) {
     s.name = o->name;
     s.kind = parse_security_kind(o->kind);
     s.currency = normalize_currency(o->currency);
-    s.lot_size = Decimal::parse(o->lot_size);
+    try {
+      s.lot_size = Decimal::parse(o->lot_size);
+    } catch (const InputError& e) {
+      throw InputError(fmt::format("--lot-size: {}", e.what()));
+    }
     if (!o->sector.empty()) s.sector = o->sector;
     auto db = ctx.open_ledger();
     store::WriteTransaction tx(db);

@@ -145,6 +145,8 @@ void add_gains(CLI::App& app, Context& ctx) {
   cmd->add_option("--account", o->account, "Only this account");
   cmd->add_flag("--json", o->json, "Print JSON for scripts");
   cmd->callback([&ctx, o] {
+    if (o->year != 0 && (o->year < 1 || o->year > 9999))
+      throw InputError(fmt::format("--year: '{}' is not a calendar year (1 to 9999)", o->year));
     auto db = ctx.open_ledger();
     const auto gains = ledger::realized_gains(
         db, o->year ? std::optional<int>(o->year) : std::nullopt, optional_text(o->account));

@@ -6,6 +6,7 @@
 #include <ctime>
 
 #include "core/error.h"
+#include "core/text.h"
 
 namespace keel {
 namespace {
@@ -47,7 +48,9 @@ Date Date::parse(std::string_view text) {
   const bool shaped = text.size() == 10 && text[4] == '-' && text[7] == '-' &&
                       parse_fixed_digits(text, 0, 4, y) && parse_fixed_digits(text, 5, 2, m) &&
                       parse_fixed_digits(text, 8, 2, d);
-  if (!shaped) throw InputError(fmt::format("'{}' is not a date in the form YYYY-MM-DD", text));
+  // printable(): the text may hold any byte, NUL included, and what() is a C string.
+  if (!shaped)
+    throw InputError(fmt::format("'{}' is not a date in the form YYYY-MM-DD", printable(text)));
   if (!valid_ymd(y, m, d)) throw InputError(fmt::format("'{}' is not a calendar date", text));
   return from_ymd(y, m, d);
 }
@@ -75,9 +78,14 @@ std::string Date::str() const {
 
 Date Date::plus_months(int n) const {
   const auto ymd = to_ymd(days_);
-  int total = static_cast<int>(ymd.year()) * 12 + static_cast<int>(unsigned(ymd.month())) - 1 + n;
-  const int y = total / 12;
-  const int m = total % 12 + 1;
+  // Months since 1 January of year 0, in 64 bits so no step can overflow.
+  const long long total = static_cast<long long>(static_cast<int>(ymd.year())) * 12 +
+                          static_cast<int>(unsigned(ymd.month())) - 1 + n;
+  if (total < 12 || total >= 12LL * 10000)
+    throw InputError(
+        fmt::format("{} moved by {} months falls outside the years 1 to 9999", str(), n));
+  const int y = static_cast<int>(total / 12);
+  const int m = static_cast<int>(total % 12) + 1;
   const chr::year_month_day_last last{chr::year{y},
                                       chr::month_day_last{chr::month{static_cast<unsigned>(m)}}};
   const unsigned day = std::min(unsigned(ymd.day()), unsigned(last.day()));

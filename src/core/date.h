@@ -30,6 +30,7 @@ class Date {
 
   Date plus_days(int n) const { return Date(days_ + n); }
   // Same day of month n months later, clamped to the month's last day.
+  // Throws InputError when the result falls outside years 1 to 9999.
   Date plus_months(int n) const;
   Date plus_years(int n) const { return plus_months(12 * n); }
   Date month_end() const;

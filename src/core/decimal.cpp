@@ -5,6 +5,7 @@
 #include <algorithm>
 
 #include "core/error.h"
+#include "core/text.h"
 
 namespace keel {
 namespace {
@@ -96,7 +97,8 @@ std::optional<Decimal> Decimal::try_parse(std::string_view text) noexcept {
 
 std::optional<Decimal> Decimal::parse_text(std::string_view text, std::string& why) {
   auto fail = [&](std::string_view reason) {
-    why = fmt::format("'{}' is not a decimal number: {}", text, reason);
+    // printable(): the text may hold any byte, NUL included, and what() is a C string.
+    why = fmt::format("'{}' is not a decimal number: {}", printable(text), reason);
     return std::nullopt;
   };
   std::size_t i = 0;
@@ -134,7 +136,8 @@ std::optional<Decimal> Decimal::parse_text(std::string_view text, std::string& w
     }
     if (exp_negative) exponent = -exponent;
   }
-  if (i != text.size()) return fail(fmt::format("unexpected character '{}'", text[i]));
+  if (i != text.size())
+    return fail(fmt::format("unexpected character '{}'", printable(text.substr(i, 1))));
   // Trailing fractional zeros carry no value; drop them before the size checks.
   while (scale > 0 && !digits.empty() && digits.back() == '0') {
     digits.pop_back();

@@ -37,16 +37,32 @@ bool valid_utf8(std::string_view s) {
   return true;
 }
 
+namespace {
+
+// U+0080 to U+009F (C1 controls, e.g. U+009B, a one-character escape
+// sequence introducer on some terminals), written in UTF-8 at s[i].
+bool c1_control_at(std::string_view s, std::size_t i) {
+  return i + 1 < s.size() && static_cast<unsigned char>(s[i]) == 0xC2 &&
+         static_cast<unsigned char>(s[i + 1]) >= 0x80 &&
+         static_cast<unsigned char>(s[i + 1]) <= 0x9F;
+}
+
+}  // namespace
+
 std::string printable(std::string_view s) {
   std::string out;
   out.reserve(s.size());
   const bool utf8 = valid_utf8(s);
-  for (char ch : s) {
-    const auto c = static_cast<unsigned char>(ch);
-    if (c < 0x20 || c == 0x7F || (!utf8 && c >= 0x80))
+  for (std::size_t i = 0; i < s.size(); ++i) {
+    const auto c = static_cast<unsigned char>(s[i]);
+    if (utf8 && c1_control_at(s, i)) {
+      out += fmt::format("\\x{:02x}\\x{:02x}", c, static_cast<unsigned char>(s[i + 1]));
+      ++i;
+    } else if (c < 0x20 || c == 0x7F || (!utf8 && c >= 0x80)) {
       out += fmt::format("\\x{:02x}", c);
-    else
-      out.push_back(ch);
+    } else {
+      out.push_back(s[i]);
+    }
   }
   return out;
 }
@@ -57,9 +73,9 @@ void check_name(std::string_view field, std::string_view value, std::size_t max_
     throw InputError(fmt::format("{} is longer than {} bytes", field, max_bytes));
   if (!valid_utf8(value))
     throw InputError(fmt::format("{} '{}' is not valid UTF-8", field, printable(value)));
-  for (char ch : value) {
-    const auto c = static_cast<unsigned char>(ch);
-    if (c < 0x20 || c == 0x7F)
+  for (std::size_t i = 0; i < value.size(); ++i) {
+    const auto c = static_cast<unsigned char>(value[i]);
+    if (c < 0x20 || c == 0x7F || c1_control_at(value, i))
       throw InputError(
           fmt::format("{} '{}' contains a control character", field, printable(value)));
   }

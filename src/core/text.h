@@ -1,8 +1,10 @@
 // Text helpers for safe display and validation of user-supplied names.
-//  - printable(): the text with control characters and invalid UTF-8 shown as
-//    \xNN escapes, so hostile input cannot drive the terminal. Never throws.
+//  - printable(): the text with control characters (C0, DEL and the C1 range
+//    U+0080-U+009F) and invalid UTF-8 shown as \xNN escapes, so hostile input
+//    cannot drive the terminal. Never throws.
 //  - check_name(): refuses empty text, text over max_chars bytes, invalid
-//    UTF-8 and control characters, with InputError naming `field`.
+//    UTF-8 and control characters (the same set), with InputError naming
+//    `field`.
 #pragma once
 
 #include <string>

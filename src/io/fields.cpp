@@ -30,8 +30,11 @@ bool canonical_decimal(std::string_view text, std::string& out, std::string& why
     while (i < text.size() && digit(text[i])) ++i;
     frac_end = i;
   }
-  const bool simple =
-      i == text.size() && (int_end > int_begin || frac_end > frac_begin) && text.size() <= 40;
+  // Longer text, or more fractional digits than a Decimal may hold, goes
+  // through Decimal::parse so the limits and messages are the same.
+  const bool simple = i == text.size() && (int_end > int_begin || frac_end > frac_begin) &&
+                      text.size() <= 40 &&
+                      frac_end - frac_begin <= static_cast<std::size_t>(Decimal::kMaxScale);
   if (!simple) {
     auto d = Decimal::try_parse(text);
     if (!d) {

@@ -286,8 +286,8 @@ MarketKind parse_market_kind(std::string_view text) {
                  MarketKind::distributions, MarketKind::splits})
     if (to_string(k) == text) return k;
   throw InputError(
-      fmt::format("cannot import or export '{}'; expected one of: securities, "
-                  "prices, metrics, distributions, splits",
+      fmt::format("cannot import or export '{}'; expected one of: accounts, transactions, "
+                  "securities, prices, metrics, distributions, splits",
                   printable(text)));
 }
 

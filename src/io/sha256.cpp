@@ -65,6 +65,8 @@ void Sha256::block(const unsigned char* p) {
 }
 
 void Sha256::update(const void* data, std::size_t size) {
+  // An empty input may come with a null pointer, which memcpy must not see.
+  if (size == 0) return;
   const auto* p = static_cast<const unsigned char*>(data);
   total_ += size;
   if (buffered_ > 0) {

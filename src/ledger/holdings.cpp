@@ -25,6 +25,8 @@ std::optional<std::int64_t> account_filter(store::Database& db,
 }  // namespace
 
 bool held_long_term(Date acquired, Date disposed) {
+  // A lot acquired in year 9999 cannot be held a year within the calendar.
+  if (acquired.year() == 9999) return false;
   return disposed > acquired.plus_years(1);
 }
 

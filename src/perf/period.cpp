@@ -16,7 +16,12 @@ Date start_of_period(const std::string& word, Date as_of, Date inception) {
   if (word == "ytd") return Date::from_ymd(as_of.year(), 1, 1);
   if (word == "inception") return inception;
   for (const int n : {1, 3, 5, 10})
-    if (word == fmt::format("{}y", n)) return as_of.plus_years(-n).plus_days(1);
+    if (word == fmt::format("{}y", n)) {
+      // A start before year 1 is before any ledger day: the period is then
+      // clamped to the first transaction day like any other early start.
+      if (as_of.year() <= n) return Date::from_ymd(1, 1, 1);
+      return as_of.plus_years(-n).plus_days(1);
+    }
   throw InputError(fmt::format(
       "--period: '{}' is not a period; choose mtd, qtd, ytd, 1y, 3y, 5y, 10y or inception", word));
 }

@@ -93,6 +93,12 @@ void Database::migrate() {
         fmt::format("ledger {} has schema version {}, newer than this keel understands ({}); "
                     "use a newer keel",
                     path_.string(), current, latest_schema_version()));
+  // Version 0 with tables already in it is some other program's database:
+  // leave it exactly as it is rather than add the ledger's tables to it.
+  if (current == 0 && db_->execAndGet("SELECT count(*) FROM sqlite_master").getInt() > 0)
+    throw LedgerError(
+        fmt::format("{} is an SQLite database but not a keel ledger; choose another with --db",
+                    path_.string()));
   db_->exec("PRAGMA foreign_keys = ON");
   if (path_ != ":memory:") db_->exec("PRAGMA journal_mode = WAL");
   db_->exec("PRAGMA synchronous = NORMAL");

@@ -6,7 +6,8 @@
 //    migration newer than the file's PRAGMA user_version, each in its own
 //    transaction. A file whose version is newer than this program is refused
 //    with LedgerError and left untouched; so is a file others may write to,
-//    unless OpenOptions::allow_unsafe_permissions.
+//    unless OpenOptions::allow_unsafe_permissions, and an SQLite database of
+//    another program (version 0 but already holding tables).
 //  - The object owns the SQLite handle (RAII); it is movable, not copyable.
 //  - This is the only place outside src/store/ that hands out SQL access, and
 //    only to store-layer code: other modules call the store functions.

@@ -102,6 +102,27 @@ TEST_CASE("store: a file that is not a ledger is refused clearly") {
                        LedgerError);
 }
 
+TEST_CASE("store: another program's SQLite database is refused and left untouched") {
+  ScratchDir dir;
+  const fs::path file = dir.path / "other.db";
+  {
+    SQLite::Database other(file.string(), SQLite::OPEN_READWRITE | SQLite::OPEN_CREATE);
+    other.exec("CREATE TABLE notes (id INTEGER PRIMARY KEY, body TEXT)");
+    other.exec("INSERT INTO notes (body) VALUES ('kept')");
+  }
+  ::chmod(file.c_str(), 0600);
+  const std::string before = file_bytes(file);
+  store::OpenOptions options;
+  options.create = true;
+  CHECK_THROWS_WITH_AS(
+      store::Database::open(file, options),
+      (file.string() + " is an SQLite database but not a keel ledger; choose another with --db")
+          .c_str(),
+      LedgerError);
+  CHECK(file_bytes(file) == before);
+  CHECK_FALSE(fs::exists(file.string() + "-wal"));
+}
+
 TEST_CASE("store: a write transaction rolls back unless committed") {
   auto db = store::Database::in_memory();
   {

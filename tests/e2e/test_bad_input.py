@@ -1,0 +1,471 @@
+"""Malformed and hostile input, one table row each, against every importer and command.
+
+Every row states the command (and any files it reads), the exit status, the exact
+first line of stderr (or, where the importer lists problems, every line), and is
+proved harmless: a digest of every table, every row, in order, is the same before
+and after. A second part checks hostile-but-valid text is stored exactly and that
+extreme numbers and dates are exact or refused clearly.
+
+Set KEEL_SHOW=1 to print what each row produced instead of stopping at the first
+difference.
+"""
+import hashlib
+import os
+import sqlite3
+import sys
+
+sys.path.insert(0, os.path.dirname(__file__))
+from keel_cli import Ledger, check, equal  # noqa: E402
+
+SHOW = os.environ.get("KEEL_SHOW") == "1"
+INPUT, USAGE, LEDGER = 1, 2, 3
+
+
+def ledger_digest(path):
+    """SHA-256 over the schema version, every table's definition and all its rows, ordered."""
+    con = sqlite3.connect(f"file:{path}?mode=ro", uri=True)
+    try:
+        h = hashlib.sha256()
+        h.update(repr(con.execute("PRAGMA user_version").fetchone()).encode())
+        tables = con.execute("SELECT name, sql FROM sqlite_master WHERE type = 'table' "
+                             "ORDER BY name").fetchall()
+        for name, sql in tables:
+            h.update(repr((name, sql)).encode())
+            cols = [r[1] for r in con.execute(f'PRAGMA table_info("{name}")')]
+            order = ", ".join(f'"{c}"' for c in cols)
+            for row in con.execute(f'SELECT * FROM "{name}" ORDER BY {order}'):
+                h.update(repr(row).encode())
+        return h.hexdigest(), len(tables)
+    finally:
+        con.close()
+
+
+led = Ledger()
+D = led.dir.name
+T = "Alder Taxable"
+led.ok("account", "add", T)
+led.ok("account", "add", "Birch Pension", "--basis", "specific")
+led.ok("security", "add", "QRX", "--name", "Quarix Holdings", "--kind", "stock")
+led.ok("security", "add", "VLM", "--name", "Valmora Index Fund", "--kind", "fund", "--lot-size",
+       "0.001")
+led.ok("record", "deposit", "--date", "2024-01-02", "--account", T, "--amount", "10000")
+led.ok("record", "buy", "--date", "2024-01-03", "--account", T, "--symbol", "QRX", "--quantity", "10",
+       "--price", "50", "--ref", "b-1")
+mk = os.path.join(D, "seed-prices.csv")
+with open(mk, "w") as f:
+    f.write("date,symbol,close\n2024-01-03,QRX,50\n2024-02-01,QRX,55\n")
+led.ok("import", "prices", mk)
+
+digest, table_count = ledger_digest(led.path)
+check(table_count >= 5, f"the ledger digest covers only {table_count} tables")
+
+
+def path(name):
+    return os.path.join(D, name)
+
+
+# Each row: (name, args, exit status, expected stderr, files)
+#  - expected stderr is a string (the exact first line) or a list (every line);
+#  - files maps a file name in the ledger's folder to its bytes; "{d}" in args
+#    and messages is that folder.
+ROWS = []
+
+
+def row(name, args, code, message, files=None):
+    ROWS.append((name, args, code, message, files or {}))
+
+
+def imp(what, content, code, message, mapping=None, name=None):
+    fname = name or f"{what}-{len(ROWS)}.csv"
+    files = {fname: content if isinstance(content, bytes) else content.encode()}
+    args = ["import", what, "{d}/" + fname]
+    if mapping is not None:
+        files[f"map-{len(ROWS)}.toml"] = mapping.encode()
+        args += ["--map", "{d}/" + f"map-{len(ROWS)}.toml"]
+    return files, args, fname
+
+
+def import_row(name, what, content, code, message, mapping=None, fname=None):
+    files, args, fname = imp(what, content, code, message, mapping, fname)
+    if isinstance(message, list):
+        message = [m.replace("{f}", "{d}/" + fname) for m in message]
+    else:
+        message = message.replace("{f}", "{d}/" + fname)
+    row(name, args, code, message, files)
+
+
+def refused(*lines):
+    """The importer's listing: located lines, then the summary."""
+    n = len(lines)
+    return [*lines, f"keel: error: {{f}}: {n} error{'s' if n != 1 else ''}; nothing was changed"]
+
+
+# --- accounts -----------------------------------------------------------------------------
+import_row("accounts: missing required column", "accounts", "name\nCedar\n", INPUT,
+           refused("{f}:1: column 'currency': missing from the header"))
+import_row("accounts: unknown basis", "accounts", "name,currency,basis\nCedar,USD,newest\n", INPUT,
+           refused("{f}:2: unknown cost-basis method 'newest'; expected one of: "
+                   "fifo, lifo, hifo, average, specific"))
+import_row("accounts: name already in the ledger", "accounts", f"name,currency\n{T},EUR\n", INPUT,
+           refused(f"{{f}}:2: column 'name': account '{T}' already exists with other settings"))
+import_row("accounts: control character in a name", "accounts",
+           "name,currency\n\"Cedar\x1b[31m\",USD\n", INPUT,
+           refused("{f}:2: account name 'Cedar\\x1b[31m' contains a control character"))
+import_row("accounts: invalid UTF-8 in a name", "accounts", b"name,currency\nCedar\xff\xfe,USD\n",
+           INPUT, refused("{f}:2: account name 'Cedar\\xff\\xfe' is not valid UTF-8"))
+import_row("accounts: newline inside a quoted name", "accounts", "name,currency\n\"Ce\ndar\",USD\n",
+           INPUT, refused("{f}:2: account name 'Ce\\x0adar' contains a control character"))
+import_row("accounts: bad allow_negative_cash", "accounts",
+           "name,currency,allow_negative_cash\nCedar,USD,maybe\n", INPUT,
+           refused("{f}:2: allow_negative_cash must be yes or no"))
+import_row("accounts: bad currency", "accounts", "name,currency\nCedar,DOLLARS\n", INPUT,
+           refused("{f}:2: currency 'DOLLARS' is not a three-letter code such as EUR"))
+import_row("accounts: mapping for another kind", "accounts", "name,currency\nCedar,USD\n", INPUT,
+           "keel: error: {d}/map-%d.toml: this mapping is for importing prices, not accounts"
+           % len(ROWS), mapping='for = "prices"\n')
+
+# --- transactions -------------------------------------------------------------------------
+TX = "date,account,kind,symbol,quantity,price,amount,fee,ref,note\n"
+import_row("transactions: a day that does not exist", "transactions",
+           TX + f"2024-02-30,{T},deposit,,,,5,,,\n", INPUT,
+           refused("{f}:2: column 'date': 2024-02-30 is not a day of the calendar"))
+import_row("transactions: unknown account", "transactions", TX + "2024-03-01,Nobody,deposit,,,,5,,,\n",
+           INPUT, refused("{f}:2: column 'account': unknown account 'Nobody'"))
+import_row("transactions: oversell names the line", "transactions",
+           TX + f"2024-03-01,{T},sell,QRX,11,60,,,,\n", INPUT,
+           [f"{{f}}:2: sell on 2024-03-01 in '{T}': cannot take 11 units; only 10 held",
+            "keel: error: {f}: 1 error; nothing was changed"])
+import_row("transactions: wrong field count", "transactions", TX + f"2024-03-01,{T},deposit,,,,5\n",
+           INPUT, refused("{f}:2: has 7 fields but the header has 10 (RFC 4180 section 2.4)"))
+import_row("transactions: SQL in a ref is only text, and a duplicate ref is refused", "transactions",
+           TX + f"2024-03-01,{T},deposit,,,,5,,\"x'); DROP TABLE txn;--\",\n"
+                f"2024-03-02,{T},deposit,,,,6,,\"x'); DROP TABLE txn;--\",\n", INPUT,
+           refused("{f}:3: column 'ref': reference 'x'); DROP TABLE txn;--' also appears on line 2"))
+import_row("transactions: 31 digits after the point", "transactions",
+           TX + f"2024-03-01,{T},deposit,,,,0.0000000000000000000000000000001,,,\n", INPUT,
+           refused("{f}:2: column 'amount': '0.0000000000000000000000000000001' is not a decimal "
+                   "number: more than 30 digits after the point"))
+import_row("transactions: 61 significant digits", "transactions",
+           TX + f"2024-03-01,{T},deposit,,,,{'9' * 61},,,\n", INPUT,
+           refused(f"{{f}}:2: column 'amount': '{'9' * 61}' is not a decimal number: more than 60 "
+                   "significant digits"))
+import_row("transactions: negative amount", "transactions", TX + f"2024-03-01,{T},deposit,,,,-5,,,\n",
+           INPUT, refused("{f}:2: deposit: --amount must be positive, not -5 (the kind gives the "
+                          "direction)"))
+import_row("transactions: control character in a note", "transactions",
+           TX + f"2024-03-01,{T},deposit,,,,5,,,\"bell\x07\"\n", INPUT,
+           refused("{f}:2: note 'bell\\x07' contains a control character"))
+import_row("transactions: a 1 MB note", "transactions",
+           TX + f"2024-03-01,{T},deposit,,,,5,,,{'n' * (1 << 20)}\n", INPUT,
+           refused("{f}:2: note is longer than 4000 bytes"))
+import_row("transactions: unclosed quote", "transactions", TX + f"2024-03-01,{T},deposit,,,,5,,\"open\n",
+           INPUT, refused("{f}:2: column 'ref': quoted field is not closed before the end of the file "
+                          "(RFC 4180 section 2.7)"))
+import_row("transactions: a record over 16 MiB", "transactions",
+           TX + "\"" + "x" * (17 << 20) + "\"\n", INPUT,
+           "keel: error: {f}:2: a record is longer than 16 MiB; is the file CSV?")
+import_row("transactions: binary file", "transactions", bytes(range(256)) * 4, INPUT,
+           refused("{f}:1: column '\\x00\\x01\\x02\\x03\\x04\\x05\\x06\\x07\\x08\\x09': unknown column; "
+                   "expected date, account, kind, symbol, quantity, price, amount, fee, ref, note, "
+                   "to_account, lots, acquired (or list it under 'ignore' in a mapping)",
+                   "{f}:1: column 'date': missing from the header",
+                   "{f}:1: column 'account': missing from the header",
+                   "{f}:1: column 'kind': missing from the header"))
+import_row("transactions: mapping with a bad date format", "transactions",
+           TX + f"01/03/2024,{T},deposit,,,,5,,,\n", INPUT,
+           "keel: error: {d}/map-%d.toml:2: key 'dates.format': date format '%%d/%%m' must contain "
+           "%%Y, %%m and %%d" % len(ROWS), mapping='[dates]\nformat = "%d/%m"\n')
+import_row("transactions: date not matching the mapping's format", "transactions",
+           TX + f"2024-03-01,{T},deposit,,,,5,,,\n", INPUT,
+           refused("{f}:2: column 'date': '2024-03-01' does not match the date format '%d/%m/%Y'"),
+           mapping='[dates]\nformat = "%d/%m/%Y"\n')
+import_row("transactions: mapping that is not TOML", "transactions", TX, INPUT,
+           "keel: error: {d}/map-%d.toml:1:9: not valid TOML: Error while parsing array: "
+           "encountered end-of-file" % len(ROWS), mapping="for = [\n")
+
+# --- securities ---------------------------------------------------------------------------
+SEC = "symbol,name,kind,currency,lot_size,sector\n"
+import_row("securities: unknown kind", "securities", SEC + "ZRN,Zornet Ltd,warrant,USD,1,\n", INPUT,
+           refused("{f}:2: column 'kind': unknown security kind 'warrant'; expected one of: stock, "
+                   "fund, bond, index, currency"))
+import_row("securities: zero lot size", "securities", SEC + "ZRN,Zornet Ltd,stock,USD,0,\n", INPUT,
+           refused("{f}:2: column 'lot_size': must be greater than zero"))
+import_row("securities: 1 MB name", "securities", SEC + f"ZRN,{'N' * (1 << 20)},stock,USD,1,\n", INPUT,
+           refused("{f}:2: column 'name': name is longer than 200 bytes"))
+import_row("securities: escape sequence in a symbol", "securities",
+           SEC + "\"ZR\x1b]0;owned\x07\",Zornet Ltd,stock,USD,1,\n", INPUT,
+           refused("{f}:2: column 'symbol': symbol 'ZR\\x1b]0;owned\\x07' contains a control character"))
+import_row("securities: invalid UTF-8 in a sector", "securities",
+           SEC.encode() + b"ZRN,Zornet Ltd,stock,USD,1,Tech\xc3\n", INPUT,
+           refused("{f}:2: column 'sector': sector 'Tech\\xc3' is not valid UTF-8"))
+import_row("securities: symbol repeated in the file", "securities",
+           SEC + "ZRN,Zornet Ltd,stock,USD,1,\nZRN,Zornet Ltd,stock,USD,1,\n", INPUT,
+           refused("{f}:3: ZRN appears on an earlier line of this file"))
+import_row("securities: unknown column", "securities", "symbol,name,kind,currency,colour\n", INPUT,
+           refused("{f}:1: column 'colour': unknown column; expected symbol, name, kind, currency, "
+                   "lot_size, sector (or list it under 'ignore' in a mapping)"))
+import_row("securities: mapping with an unknown key", "securities", SEC, INPUT,
+           "keel: error: {d}/map-%d.toml:2: key 'file.quote': unknown key; expected one of: "
+           "delimiter, skip_lines, skip_rows_where" % len(ROWS), mapping='[file]\nquote = "\'"\n')
+
+# --- prices -------------------------------------------------------------------------------
+import_row("prices: unknown symbol", "prices", "date,symbol,close\n2024-03-01,NOPE,5\n", INPUT,
+           refused("{f}:2: column 'symbol': unknown security 'NOPE'; import or add it first"))
+import_row("prices: negative close", "prices", "date,symbol,close\n2024-03-01,QRX,-5\n", INPUT,
+           refused("{f}:2: column 'close': -5 must not be negative"))
+import_row("prices: close differs from the ledger's", "prices", "date,symbol,close\n2024-02-01,QRX,56\n",
+           INPUT, refused("{f}:2: column 'close': QRX on 2024-02-01: the ledger already has close 55; "
+                          "use --replace to overwrite it"))
+import_row("prices: year 0", "prices", "date,symbol,close\n0000-12-31,QRX,5\n", INPUT,
+           refused("{f}:2: column 'date': 0000-12-31 is not a day of the calendar"))
+import_row("prices: exponent too large", "prices", "date,symbol,close\n2024-03-01,QRX,1e1001\n", INPUT,
+           refused("{f}:2: column 'close': '1e1001' is not a decimal number: exponent is too large"))
+import_row("prices: decimal comma without a mapping", "prices", "date,symbol,close\n2024-03-01,QRX,5,5\n",
+           INPUT, refused("{f}:2: has 4 fields but the header has 3 (RFC 4180 section 2.4)"))
+import_row("prices: mapping decimal comma meets a point", "prices",
+           "date;symbol;close\n2024-03-01;QRX;5.5\n", INPUT,
+           refused("{f}:2: column 'close': '5.5' has '.' but the decimal mark is ','"),
+           mapping='[file]\ndelimiter = ";"\n[numbers]\ndecimal_mark = ","\n')
+import_row("prices: file name with a newline and an escape", "prices",
+           "date,symbol,close\n2024-03-01,QRX,x\n", INPUT,
+           ["{d}/bad\\x0aname\\x1b[2J.csv:2: column 'close': 'x' is not a decimal number: expected "
+            "digits", "keel: error: {d}/bad\\x0aname\\x1b[2J.csv: 1 error; nothing was changed"],
+           fname="bad\nname\x1b[2J.csv")
+import_row("prices: NUL byte in a close", "prices", b"date,symbol,close\n2024-03-01,QRX,5\x00\n",
+           INPUT, refused("{f}:2: column 'close': '5\\x00' is not a decimal number: unexpected "
+                          "character '\\x00'"))
+row("prices: file that does not exist", ["import", "prices", "{d}/missing.csv"], INPUT,
+    "keel: error: {d}/missing.csv: cannot open: No such file or directory")
+row("prices: a folder instead of a file", ["import", "prices", "{d}"], INPUT,
+    "keel: error: {d}: is a folder, not a file")
+row("prices: mapping file that does not exist",
+    ["import", "prices", "{d}/seed-prices.csv", "--map", "{d}/none.toml"], INPUT,
+    "keel: error: {d}/none.toml: cannot open mapping file")
+
+# --- metrics, distributions, splits -------------------------------------------------------
+import_row("metrics: known_on before the period end", "metrics",
+           "date,symbol,metric,value,known_on\n2024-03-31,QRX,pe,12,2024-03-01\n", INPUT,
+           refused("{f}:2: column 'known_on': 2024-03-01 is before the period date 2024-03-31; a "
+                   "figure cannot be known before its period ends"))
+import_row("metrics: metric name with a control character", "metrics",
+           "date,symbol,metric,value\n2024-03-31,QRX,\"p\te\",12\n", INPUT,
+           refused("{f}:2: column 'metric': metric name 'p\\x09e' contains a control character"))
+import_row("distributions: pay date before ex date", "distributions",
+           "ex_date,pay_date,symbol,per_share\n2024-03-10,2024-03-01,QRX,0.5\n", INPUT,
+           refused("{f}:2: column 'pay_date': 2024-03-01 is before the ex-date 2024-03-10"))
+import_row("distributions: zero per share", "distributions",
+           "ex_date,symbol,per_share\n2024-03-10,QRX,0\n", INPUT,
+           refused("{f}:2: column 'per_share': must be greater than zero"))
+import_row("splits: negative ratio", "splits", "date,symbol,ratio\n2024-03-10,QRX,-2\n", INPUT,
+           refused("{f}:2: column 'ratio': -2 must not be negative"))
+import_row("splits: header only in another layout, bad skip_lines", "splits", "x\n", INPUT,
+           "keel: error: {d}/map-%d.toml:2: key 'file.skip_lines': must be a whole number from 0 to "
+           "1000" % len(ROWS), mapping="[file]\nskip_lines = -1\n")
+row("import: unknown kind of data", ["import", "trades", "{d}/seed-prices.csv"], INPUT,
+    "keel: error: cannot import or export 'trades'; expected one of: accounts, transactions, "
+    "securities, prices, metrics, distributions, splits")
+
+# --- record, void, account add, security add ----------------------------------------------
+row("record: a day that does not exist",
+    ["record", "deposit", "--date", "2024-02-30", "--account", T, "--amount", "5"], INPUT,
+    "keel: error: --date: '2024-02-30' is not a calendar date")
+row("record: year 10000",
+    ["record", "deposit", "--date", "10000-01-01", "--account", T, "--amount", "5"], INPUT,
+    "keel: error: --date: '10000-01-01' is not a date in the form YYYY-MM-DD")
+row("record: amount with a unit", ["record", "deposit", "--account", T, "--amount", "5 USD"], INPUT,
+    "keel: error: --amount: '5 USD' is not a decimal number: unexpected character ' '")
+row("record: withdrawal beyond the cash",
+    ["record", "withdrawal", "--date", "2024-03-01", "--account", T, "--amount", "9500.01"], INPUT,
+    f"keel: error: cash in '{T}' would be -0.01 at the end of 2024-03-01 (after the new withdrawal "
+    f"on 2024-03-01 in '{T}'); the account does not allow negative cash")
+row("record: 1e-12 units at a price of 31 places",
+    ["record", "buy", "--date", "2024-03-01", "--account", T, "--symbol", "QRX", "--quantity",
+     "0.000000000001", "--price", "1." + "0" * 30 + "1"], INPUT,
+    "keel: error: --price: '1." + "0" * 30 + "1' is not a decimal number: more than 30 digits after "
+    "the point")
+row("record: unknown account with an escape sequence",
+    ["record", "deposit", "--date", "2024-03-01", "--account", "Al\x1b[2Jder", "--amount", "5"],
+    INPUT, f"keel: error: unknown account 'Al\\x1b[2Jder'; known accounts: {T}, Birch Pension")
+row("record: a 100 kB note", ["record", "deposit", "--date", "2024-03-01", "--account", T,
+                             "--amount", "5", "--note", "n" * 100000], INPUT,
+    "keel: error: note is longer than 4000 bytes")
+row("record: sell with a lot that does not exist",
+    ["record", "sell", "--date", "2024-03-01", "--account", T, "--symbol", "QRX", "--quantity", "1",
+     "--price", "60", "--lots", "999:1"], INPUT,
+    f"keel: error: the new sell on 2024-03-01 in '{T}': lot 999 is not open in this position")
+row("record: malformed lots", ["record", "sell", "--date", "2024-03-01", "--account", T, "--symbol",
+                               "QRX", "--quantity", "1", "--price", "60", "--lots", "1;2"], INPUT,
+    "keel: error: lots '1;2' must look like LOT:QUANTITY[,LOT:QUANTITY...], e.g. 12:5,14:2.5")
+row("record: duplicate ref", ["record", "deposit", "--date", "2024-03-01", "--account", T,
+                              "--amount", "5", "--ref", "b-1"], INPUT,
+    f"keel: error: reference 'b-1' is already booked in account '{T}'")
+row("record: split ratio zero",
+    ["record", "split", "--date", "2024-03-01", "--symbol", "QRX", "--ratio", "0"], INPUT,
+    "keel: error: split: --ratio must be positive, not 0")
+row("record: missing required option", ["record", "deposit", "--amount", "5"], USAGE,
+    "--account is required")
+row("void: a transaction that does not exist", ["void", "999", "--reason", "typo"], INPUT,
+    "keel: error: there is no transaction 999")
+row("void: id that is not a number", ["void", "abc", "--reason", "typo"], USAGE,
+    "Could not convert: ID = abc")
+row("void: reason with a control character", ["void", "1", "--reason", "oops\r\n"], INPUT,
+    "keel: error: reason 'oops\\x0d\\x0a' contains a control character")
+row("account add: duplicate name", ["account", "add", T], INPUT,
+    f"keel: error: an account named '{T}' already exists")
+row("account add: empty name", ["account", "add", ""], INPUT,
+    "keel: error: account name must not be empty")
+row("account add: invalid UTF-8 name", ["account", "add", "Cedar\udcff"], INPUT,
+    "keel: error: account name 'Cedar\\xff' is not valid UTF-8")
+row("account add: C1 control character (U+009B) in a name", ["account", "add", "Cedar\u009b2J"],
+    INPUT, "keel: error: account name 'Cedar\\xc2\\x9b2J' contains a control character")
+row("account add: unknown basis", ["account", "add", "Cedar", "--basis", "newest"], INPUT,
+    "keel: error: unknown cost-basis method 'newest'; expected one of: fifo, lifo, hifo, average, "
+    "specific")
+row("security add: duplicate symbol",
+    ["security", "add", "QRX", "--name", "Again", "--kind", "stock"], INPUT,
+    "keel: error: a security with symbol 'QRX' already exists")
+row("security add: lot size not a number",
+    ["security", "add", "ZRN", "--name", "Zornet", "--kind", "stock", "--lot-size", "one"], INPUT,
+    "keel: error: --lot-size: 'one' is not a decimal number: expected digits")
+row("security add: symbol with a newline",
+    ["security", "add", "ZR\nN", "--name", "Zornet", "--kind", "stock"], INPUT,
+    "keel: error: symbol 'ZR\\x0aN' contains a control character")
+
+# --- reports ------------------------------------------------------------------------------
+row("holdings: --as-of not a date", ["holdings", "--as-of", "yesterday"], INPUT,
+    "keel: error: --as-of: 'yesterday' is not a date in the form YYYY-MM-DD")
+row("holdings: --as-of year 0", ["holdings", "--as-of", "0000-01-01"], INPUT,
+    "keel: error: --as-of: '0000-01-01' is not a calendar date")
+row("holdings: unknown account", ["holdings", "--account", "Nobody"], INPUT,
+    f"keel: error: unknown account 'Nobody'; known accounts: {T}, Birch Pension")
+row("gains: --year not a number", ["gains", "--year", "twenty"], USAGE,
+    "Could not convert: --year = twenty")
+row("gains: --year out of range", ["gains", "--year", "10000"], INPUT,
+    "keel: error: --year: '10000' is not a calendar year (1 to 9999)")
+row("gains: negative --year", ["gains", "--year", "-5"], INPUT,
+    "keel: error: --year: '-5' is not a calendar year (1 to 9999)")
+row("returns: --from after --to", ["returns", "--from", "2024-03-01", "--to", "2024-02-01"], INPUT,
+    "keel: error: --from 2024-03-01 is after --to 2024-02-01")
+row("returns: --year and --period together", ["returns", "--year", "2024", "--period", "1y"], INPUT,
+    "keel: error: --year and --period cannot be combined; give a range (--from/--to), --year or "
+    "--period")
+row("returns: unknown period word", ["returns", "--period", "2w"], INPUT,
+    "keel: error: --period: '2w' is not a period; choose mtd, qtd, ytd, 1y, 3y, 5y, 10y or inception")
+row("returns: ten years back from year 5", ["returns", "--period", "10y", "--as-of", "0005-06-30"],
+    INPUT, "keel: error: --period 10y: ends on 0005-06-30, before the first transaction day "
+    "2024-01-02")
+row("returns: unknown benchmark", ["returns", "--benchmark", "NOPE"], INPUT,
+    "keel: error: --benchmark: there is no security with symbol 'NOPE'")
+row("returns: unknown method", ["returns", "--method", "geometric"], INPUT,
+    "keel: error: --method: 'geometric' is not a method; choose daily or dietz")
+row("returns: risk-free rate not a number", ["returns", "--risk-free", "2%"], INPUT,
+    "keel: error: --risk-free: '2%' is not a rate; give an annual fraction above -1, e.g. 0.02")
+
+
+# --- the ledger file itself ----------------------------------------------------------------
+failures = []
+
+
+def run_row(name, args, code, message, files, db=None):
+    for fname, content in files.items():
+        with open(os.path.join(D, fname), "wb") as f:
+            f.write(content)
+    expanded = [a.replace("{d}", D) for a in args]
+    if isinstance(message, list):
+        message = [m.replace("{d}", D) for m in message]
+    else:
+        message = message.replace("{d}", D)
+    before = ledger_digest(led.path)
+    if db is None:
+        got_code, out, err = led.run(*expanded)
+    else:
+        got_code, out, err = run_with_db(db, expanded)
+    after = ledger_digest(led.path)
+    lines = err.splitlines()
+    got = lines if isinstance(message, list) else (lines[0] if lines else "")
+    ok = got_code == code and got == message and before == after
+    if SHOW or not ok:
+        print(f"{'ok  ' if ok else 'FAIL'} {name}: exit {got_code} (want {code}); "
+              f"unchanged: {before == after}")
+        if got != message:
+            print(f"     got:  {got!r}\n     want: {message!r}")
+    if not ok:
+        failures.append(name)
+    for fname in files:
+        os.remove(os.path.join(D, fname))
+
+
+def run_with_db(db, args):
+    import subprocess
+    from keel_cli import KEEL
+    env = dict(os.environ, NO_COLOR="1")
+    p = subprocess.run([KEEL, "--db", db, *args], capture_output=True, text=True, env=env,
+                       timeout=300, errors="surrogateescape")
+    return p.returncode, p.stdout, p.stderr
+
+
+for r in ROWS:
+    run_row(*r)
+
+# A file that is not a ledger: refused, and left byte for byte as it was.
+other = path("other.db")
+con = sqlite3.connect(other)
+con.execute("CREATE TABLE notes (id INTEGER PRIMARY KEY, body TEXT)")
+con.execute("INSERT INTO notes (body) VALUES ('kept')")
+con.commit()
+con.close()
+text_file = path("plain.txt")
+with open(text_file, "w") as f:
+    f.write("this is not a database\n" * 200)
+DB_ROWS = [
+    ("--db: an SQLite file that is not a ledger", other, ["holdings"], LEDGER,
+     f"keel: error: {other} is an SQLite database but not a keel ledger; choose another with --db"),
+    ("--db: init on an SQLite file that is not a ledger", other, ["init"], LEDGER,
+     f"keel: error: {other} is an SQLite database but not a keel ledger; choose another with --db"),
+    ("--db: a text file", text_file, ["account", "list"], LEDGER,
+     f"keel: error: cannot open ledger {text_file}: file is not a database"),
+    ("--db: a folder", D, ["account", "list"], LEDGER,
+     f"keel: error: cannot open ledger {D}: unable to open database file"),
+    ("--db: a ledger that does not exist", path("none.db"), ["holdings"], LEDGER,
+     f"keel: error: no ledger at {path('none.db')}; create one with 'keel init' or choose another "
+     "with --db"),
+]
+for name, db, args, code, message in DB_ROWS:
+    snapshot = {p: open(p, "rb").read() for p in (other, text_file)}
+    run_row(name, args, code, message, {}, db=db)
+    for p, content in snapshot.items():
+        if open(p, "rb").read() != content:
+            print(f"FAIL {name}: {p} was changed")
+            failures.append(name + " (file changed)")
+check(not os.path.exists(path("none.db")), "a ledger was created without 'keel init'")
+
+total = len(ROWS) + len(DB_ROWS)
+print(f"{total} malformed inputs checked, {len(failures)} failed")
+check(total >= 50, f"only {total} rows")
+check(not failures, "rows failed: " + "; ".join(failures))
+check(ledger_digest(led.path)[0] == digest, "the ledger changed over the whole table")
+
+# --- hostile but valid text is stored exactly ----------------------------------------------
+h = Ledger()
+odd = "O'Neil \"Quoted\"; DROP TABLE account;-- Ωμέγα"
+h.ok("account", "add", odd)
+h.ok("security", "add", "ÅB-1", "--name", "Name, with comma; and \"quotes\"", "--kind", "stock",
+     "--lot-size", "0.000000000001")
+note = "semi;colon 'single' \"double\" \\backslash\\ tab-free ünïcödé"
+h.ok("record", "deposit", "--date", "0001-01-01", "--account", odd, "--amount",
+     "123456789012345678901234567890", "--note", note)
+h.ok("record", "buy", "--date", "9999-12-31", "--account", odd, "--symbol", "ÅB-1", "--quantity",
+     "0.000000000001", "--price", "0.000000000001")
+equal([a["name"] for a in h.json("account", "list")], [odd], "account name stored exactly")
+hist = h.json("history")
+equal([(t["date"], t.get("note")) for t in hist], [("0001-01-01", note), ("9999-12-31", "")],
+      "dates in year 1 and 9999 and the note stored exactly")
+held = h.json("holdings", "--as-of", "9999-12-31")
+equal([(p["symbol"], p["quantity"], p["cost_basis"]) for p in held["positions"]],
+      [("ÅB-1", "0.000000000001", "0.000000000000000000000001")],
+      "1e-12 units at 1e-12 kept exactly")
+equal([c["amount"] for c in held["cash"]], ["123456789012345678901234567889.999999999999999999999999"],
+      "30-digit cash less a 1e-24 cost, exact")
+exported = h.ok("export", "accounts")
+check(f'"{odd.replace(chr(34), chr(34) * 2)}"' in exported, f"account name quoted in CSV: {exported}")
+print("hostile text and extreme values stored exactly")

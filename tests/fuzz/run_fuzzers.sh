@@ -1,0 +1,56 @@
+#!/bin/sh
+# Builds the libFuzzer targets with clang in build-fuzz/ and runs each for
+# SECONDS (default 60), printing executions, executions per second and
+# crashes per target. Exits non-zero if any target found a crash.
+#
+#   tests/fuzz/run_fuzzers.sh [SECONDS]
+#
+# The seed corpus in tests/fuzz/corpus/<target>/ is only read; inputs the
+# fuzzer finds go to build-fuzz/corpus/<target>/, crashing inputs to
+# build-fuzz/artifacts/<target>/.
+set -eu
+seconds=${1:-60}
+case $seconds in '' | *[!0-9]*)
+  echo "run_fuzzers.sh: SECONDS must be a whole number, got '$seconds'" >&2
+  exit 2
+  ;;
+esac
+root=$(cd "$(dirname "$0")/../.." && pwd)
+build=$root/build-fuzz
+targets="csv decimal date mapping"
+
+mkdir -p "$build"
+cmake -S "$root" -B "$build" -G Ninja -DCMAKE_CXX_COMPILER=clang++ -DKEEL_FUZZ=ON \
+  -DCMAKE_BUILD_TYPE=RelWithDebInfo >"$build/configure.log" 2>&1 ||
+  { cat "$build/configure.log" >&2; exit 1; }
+set --
+for t in $targets; do set -- "$@" "fuzz_$t"; done
+cmake --build "$build" -j2 --target "$@"
+
+failed=0
+printf '%-10s %14s %10s %8s\n' target executions execs/s crashes
+for t in $targets; do
+  corpus=$build/corpus/$t
+  artifacts=$build/artifacts/$t
+  mkdir -p "$corpus" "$artifacts"
+  log=$build/fuzz_$t.log
+  # Count only crashes of this run, not artifacts left by earlier ones.
+  marker=$artifacts/.run-start
+  touch "$marker"
+  status=0
+  "$build/tests/fuzz/fuzz_$t" -max_total_time="$seconds" -print_final_stats=1 \
+    -artifact_prefix="$artifacts/" "$corpus" "$root/tests/fuzz/corpus/$t" >"$log" 2>&1 ||
+    status=$?
+  execs=$(sed -n 's/^stat::number_of_executed_units: *//p' "$log" | tail -n 1)
+  rate=$(sed -n 's/^stat::average_exec_per_sec: *//p' "$log" | tail -n 1)
+  crashes=$(find "$artifacts" -type f -newer "$marker" \( -name 'crash-*' -o -name 'leak-*' \
+    -o -name 'oom-*' -o -name 'timeout-*' \) | wc -l)
+  if [ "$status" -ne 0 ] && [ "$crashes" -eq 0 ]; then crashes=1; fi
+  printf '%-10s %14s %10s %8s\n' "$t" "${execs:-?}" "${rate:-?}" "$crashes"
+  if [ "$crashes" -ne 0 ]; then
+    failed=1
+    echo "  fuzz_$t: see $log and $artifacts/" >&2
+    grep -m 3 -E 'ERROR|invariant failed|runtime error' "$log" | sed 's/^/  /' >&2 || true
+  fi
+done
+exit $failed
