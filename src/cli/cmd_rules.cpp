@@ -3,6 +3,7 @@
 #include <fmt/format.h>
 
 #include <charconv>
+#include <cmath>
 #include <memory>
 #include <nlohmann/json.hpp>
 
@@ -36,67 +37,149 @@ struct ProposeOptions {
   bool save = false;
 };
 
-Json proposal_json(const rules::Proposal& p, std::optional<std::int64_t> saved_id) {
-  Json j;
-  j["as_of"] = p.as_of.str();
-  j["rule"] = p.rule_name;
-  j["rule_sha256"] = p.rule_sha256;
-  j["accounts"] = p.accounts;
-  j["pool_value"] = p.plan.pool_value.str();
-  j["screen"] = Json::array();
-  for (const auto& l : p.screen.lines)
-    j["screen"].push_back({{"symbol", l.symbol},
-                           {"value", l.figure ? Json(l.figure->value.str()) : Json()},
-                           {"period", l.figure ? Json(l.figure->period.str()) : Json()},
-                           {"known_on", l.figure ? Json(l.figure->known_on.str()) : Json()},
-                           {"age_days", l.figure ? Json(l.age_days) : Json()},
-                           {"z", l.z ? Json(*l.z) : Json()},
-                           {"held", l.held},
-                           {"selected", l.selected},
-                           {"excluded_reason", l.passed ? Json() : Json(l.excluded_reason)},
-                           {"note", l.note}});
-  j["orders"] = Json::array();
-  for (const auto& o : p.plan.orders) {
-    Json lots = Json::array();
-    for (const auto& l : o.lots)
-      lots.push_back({{"lot", l.lot_id},
-                      {"acquired", l.acquired.str()},
-                      {"quantity", l.quantity.str()},
-                      {"cost", l.cost.str()},
-                      {"est_gain", l.est_gain.str()},
-                      {"term", l.long_term ? "long" : "short"}});
-    j["orders"].push_back({{"account", o.account},
-                           {"symbol", o.symbol},
-                           {"side", std::string(rules::to_string(o.side))},
-                           {"quantity", o.quantity.str()},
-                           {"price", o.price.str()},
-                           {"value", o.value.str()},
-                           {"fee", o.fee.str()},
-                           {"weight_now", o.weight_now.str()},
-                           {"weight_target", o.weight_target.str()},
-                           {"reason", o.reason},
-                           {"lots", lots}});
+// A proposal's JSON is written directly: a screen of thousands of names
+// would otherwise spend most of the command's time building a document tree.
+// Strings are escaped as RFC 8259 section 7 asks; decimals go out as strings.
+class JsonText {
+ public:
+  static std::string q(std::string_view v) {
+    bool plain = true;
+    for (const char c : v) plain &= c != '"' && c != '\\' && static_cast<unsigned char>(c) >= 0x20;
+    if (plain) {
+      std::string out;
+      out.reserve(v.size() + 2);
+      return out.append(1, '"').append(v).append(1, '"');
+    }
+    std::string out = "\"";
+    for (const char c : v) {
+      switch (c) {
+        case '"':
+          out += "\\\"";
+          break;
+        case '\\':
+          out += "\\\\";
+          break;
+        case '\n':
+          out += "\\n";
+          break;
+        case '\t':
+          out += "\\t";
+          break;
+        case '\r':
+          out += "\\r";
+          break;
+        default:
+          if (static_cast<unsigned char>(c) < 0x20)
+            out += fmt::format("\\u{:04x}", static_cast<unsigned char>(c));
+          else
+            out += c;
+      }
+    }
+    return out + "\"";
   }
-  j["weights_after"] = Json::array();
+  static std::string q(const Decimal& d) { return q(d.str()); }
+  static std::string number(double x) {
+    return std::isfinite(x) ? fmt::format("{}", x) : std::string("null");
+  }
+  static std::string boolean(bool b) { return b ? "true" : "false"; }
+  // {"k": v, ...} from already rendered values.
+  static std::string object(std::initializer_list<std::pair<std::string_view, std::string>> kv) {
+    std::string out = "{";
+    bool first = true;
+    for (const auto& [k, v] : kv) {
+      out += first ? "" : ", ";
+      first = false;
+      out += q(k) + ": " + v;
+    }
+    return out + "}";
+  }
+  static std::string array(const std::vector<std::string>& items, bool one_per_line) {
+    if (items.empty()) return "[]";
+    std::string out = "[";
+    for (std::size_t i = 0; i < items.size(); ++i) {
+      out += i ? "," : "";
+      out += one_per_line ? "\n    " : (i ? " " : "");
+      out += items[i];
+    }
+    return out + (one_per_line ? "\n  ]" : "]");
+  }
+  static std::string strings(const std::vector<std::string>& items, bool one_per_line) {
+    std::vector<std::string> quoted;
+    for (const auto& s : items) quoted.push_back(q(s));
+    return array(quoted, one_per_line);
+  }
+};
+
+std::string proposal_json(const rules::Proposal& p, std::optional<std::int64_t> saved_id) {
+  using J = JsonText;
+  const std::string null = "null";
+  std::vector<std::string> screen;
+  screen.reserve(p.screen.lines.size());
+  for (const auto& l : p.screen.lines)
+    screen.push_back(J::object({{"symbol", J::q(l.symbol)},
+                                {"value", l.figure ? J::q(l.figure->value) : null},
+                                {"period", l.figure ? J::q(l.figure->period.str()) : null},
+                                {"known_on", l.figure ? J::q(l.figure->known_on.str()) : null},
+                                {"age_days", l.figure ? std::to_string(l.age_days) : null},
+                                {"z", l.z ? J::number(*l.z) : null},
+                                {"held", J::boolean(l.held)},
+                                {"selected", J::boolean(l.selected)},
+                                {"excluded_reason", l.passed ? null : J::q(l.excluded_reason)},
+                                {"note", J::q(l.note)}}));
+  std::vector<std::string> orders;
+  for (const auto& o : p.plan.orders) {
+    std::vector<std::string> lots;
+    for (const auto& l : o.lots)
+      lots.push_back(J::object({{"lot", std::to_string(l.lot_id)},
+                                {"acquired", J::q(l.acquired.str())},
+                                {"quantity", J::q(l.quantity)},
+                                {"cost", J::q(l.cost)},
+                                {"est_gain", J::q(l.est_gain)},
+                                {"term", J::q(l.long_term ? "long" : "short")}}));
+    orders.push_back(J::object({{"account", J::q(o.account)},
+                                {"symbol", J::q(o.symbol)},
+                                {"side", J::q(rules::to_string(o.side))},
+                                {"quantity", J::q(o.quantity)},
+                                {"price", J::q(o.price)},
+                                {"value", J::q(o.value)},
+                                {"fee", J::q(o.fee)},
+                                {"weight_now", J::q(o.weight_now)},
+                                {"weight_target", J::q(o.weight_target)},
+                                {"reason", J::q(o.reason)},
+                                {"lots", J::array(lots, false)}}));
+  }
+  std::vector<std::string> after, cash, skipped;
   for (const auto& w : p.plan.weights_after)
-    j["weights_after"].push_back({{"symbol", w.symbol},
-                                  {"value", w.value.str()},
-                                  {"weight", w.weight.str()},
-                                  {"target", w.target.str()}});
-  j["cash_after"] = p.plan.cash_after_total.str();
-  j["cash_after_by_account"] = Json::array();
+    after.push_back(J::object({{"symbol", J::q(w.symbol)},
+                               {"value", J::q(w.value)},
+                               {"weight", J::q(w.weight)},
+                               {"target", J::q(w.target)}}));
   for (const auto& c : p.plan.cash_after)
-    j["cash_after_by_account"].push_back(
-        {{"account", c.account}, {"cash", c.cash.str()}, {"reserve", c.reserve.str()}});
-  j["turnover"] = p.plan.turnover.str();
-  j["estimated_fees"] = p.plan.estimated_fees.str();
-  j["skipped"] = Json::array();
-  for (const auto& s : p.plan.skipped)
-    j["skipped"].push_back({{"symbol", s.symbol}, {"why", s.why}});
-  j["notes"] = p.notes;
-  j["cautions"] = p.cautions;
-  if (saved_id) j["proposal_id"] = *saved_id;
-  return j;
+    cash.push_back(J::object(
+        {{"account", J::q(c.account)}, {"cash", J::q(c.cash)}, {"reserve", J::q(c.reserve)}}));
+  for (const auto& k : p.plan.skipped)
+    skipped.push_back(J::object({{"symbol", J::q(k.symbol)}, {"why", J::q(k.why)}}));
+  std::string s = "{\n";
+  auto field = [&](std::string_view key, const std::string& value, bool last = false) {
+    s += "  " + J::q(key) + ": " + value + (last ? "\n" : ",\n");
+  };
+  field("as_of", J::q(p.as_of.str()));
+  field("rule", J::q(p.rule_name));
+  field("rule_sha256", J::q(p.rule_sha256));
+  field("accounts", J::strings(p.accounts, false));
+  field("pool_value", J::q(p.plan.pool_value));
+  field("screen", J::array(screen, true));
+  field("orders", J::array(orders, true));
+  field("weights_after", J::array(after, true));
+  field("cash_after", J::q(p.plan.cash_after_total));
+  field("cash_after_by_account", J::array(cash, true));
+  field("turnover", J::q(p.plan.turnover));
+  field("estimated_fees", J::q(p.plan.estimated_fees));
+  field("skipped", J::array(skipped, true));
+  field("notes", J::strings(p.notes, true));
+  field("cautions", J::strings(p.cautions, true), !saved_id);
+  if (saved_id) field("proposal_id", std::to_string(*saved_id), true);
+  return s + "}\n";
 }
 
 std::string proposal_text(const rules::Proposal& p, bool colour) {
@@ -204,7 +287,7 @@ void add_propose(CLI::App& app, Context& ctx) {
     std::optional<std::int64_t> id;
     if (o->save) id = rules::save(db, rule, proposal);
     if (o->json) {
-      out(proposal_json(proposal, id).dump(2) + "\n");
+      out(proposal_json(proposal, id));
       return;
     }
     out(proposal_text(proposal, ctx.colour()));

@@ -13,6 +13,16 @@
 namespace keel::rules {
 namespace {
 
+// Constants parsed once: 1 basis point and 1 percent as fractions.
+const Decimal& basis_point() {
+  static const Decimal bp = Decimal::parse("0.0001");
+  return bp;
+}
+const Decimal& one_percent() {
+  static const Decimal pc = Decimal::parse("0.01");
+  return pc;
+}
+
 std::string z_text(double z) {
   // Two places for people; "-0.00" reads as a bug, so print it as 0.00.
   const double shown = std::fabs(z) < 0.005 ? 0.0 : z;
@@ -285,7 +295,7 @@ OrderPlan plan_once(const Portfolio& portfolio, const std::vector<Target>& targe
     cash.push_back(acct.cash);
     // Money: the reserve is set to the cent, half-to-even.
     reserve.push_back(net.is_positive()
-                          ? (net * trading.cash_reserve_pct * Decimal::parse("0.01")).rounded(2)
+                          ? (net * trading.cash_reserve_pct * one_percent()).rounded(2)
                           : Decimal());
   }
   Decimal reserves;
@@ -325,7 +335,7 @@ OrderPlan plan_once(const Portfolio& portfolio, const std::vector<Target>& targe
     x.w_target = Decimal::divide(x.target_value, plan.pool_value, 6);
   }
 
-  const Decimal fraction_step = Decimal::parse("0.0001");
+  const Decimal fraction_step = Decimal::parse("0.0001");  // 10^-kFractionPlaces
   auto step_of = [&](const Quote& q) { return trading.fractional ? fraction_step : q.lot_size; };
   auto make_order = [&](const Work& x, std::size_t account, Side side, const Decimal& qty,
                         std::string reason) {
@@ -512,7 +522,7 @@ OrderPlan plan_once(const Portfolio& portfolio, const std::vector<Target>& targe
         it == b.by_account.end() ? Decimal() : it->second.value + it->second.fee;
     const Decimal limit = std::min(budget, spendable[a]);
     // Largest added quantity whose order (value + fee) grows by at most `limit`.
-    const Decimal unit = price * (Decimal(1) + trading.fee_bps * Decimal::parse("0.0001"));
+    const Decimal unit = price * (Decimal(1) + trading.fee_bps * basis_point());
     Decimal q =
         floor_to(Decimal::divide(limit + have_cost - trading.fee_fixed, unit, 10), step) - have_q;
     auto grown = [&](const Decimal& add_q) {
@@ -549,12 +559,11 @@ OrderPlan plan_once(const Portfolio& portfolio, const std::vector<Target>& targe
     }
   }
   // The fill: the gap to target in value, largest first.
-  std::vector<Buy*> by_gap;
-  for (auto& b : buys) by_gap.push_back(&b);
-  std::stable_sort(by_gap.begin(), by_gap.end(), [](const Buy* a, const Buy* b) {
-    return a->want - a->bought() > b->want - b->bought();
-  });
-  for (Buy* b : by_gap)
+  std::vector<std::pair<Decimal, Buy*>> by_gap;
+  for (auto& b : buys) by_gap.emplace_back(b.want - b.bought(), &b);
+  std::stable_sort(by_gap.begin(), by_gap.end(),
+                   [](const auto& a, const auto& b) { return a.first > b.first; });
+  for (auto& [gap0, b] : by_gap)
     for (std::size_t a : account_order(b->work->security_id)) {
       // Value left to target; fees come out of the cash, not the target.
       const Decimal gap = b->want - b->bought();

@@ -14,7 +14,6 @@
 #include "ledger/posting.h"
 #include "store/ledger_store.h"
 #include "store/point_in_time.h"
-#include "store/price_write.h"
 
 namespace keel::rules {
 namespace {
@@ -51,7 +50,7 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
   if (as_of_opt) {
     p.as_of = *as_of_opt;
   } else {
-    const auto latest = store::latest_price_day(db);
+    const auto latest = store::latest_close_day(db);
     if (!latest)
       throw InputError(
           "the ledger holds no closes to value the accounts at; import prices first "

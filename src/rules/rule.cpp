@@ -15,6 +15,12 @@
 namespace keel::rules {
 namespace {
 
+// 1 basis point as a fraction, parsed once.
+const Decimal& basis_point() {
+  static const Decimal bp = Decimal::parse("0.0001");
+  return bp;
+}
+
 // Every table and key of a rule file, with the default shown in messages
 // about a key the file left out. Keep in step with docs/rules.md.
 struct KeyInfo {
@@ -259,7 +265,7 @@ Decimal WeightRule::sleeve_total() const {
 Decimal TradingRule::fee(const Decimal& value) const {
   if (value.is_zero()) return Decimal();
   // Estimates are money: half-to-even to the cent.
-  return (fee_fixed + value * fee_bps * Decimal::parse("0.0001")).rounded(2);
+  return (fee_fixed + value * fee_bps * basis_point()).rounded(2);
 }
 
 std::string Rule::where(std::string_view key) const {

@@ -32,10 +32,17 @@ class PointInTime {
   std::optional<MetricPoint> metric(std::int64_t security_id, std::string_view metric, Date day);
 
  private:
+  const std::string& day_text(Date day);  // the last day's ISO text, kept
   SQLite::Statement close_;
   SQLite::Statement metric_;
+  std::optional<Date> day_;
+  std::string day_str_;
 };
 
+// The latest day with any close (as store::latest_price_day), found through
+// the (security_id, date) key one security at a time instead of a scan of
+// every close; unset when the ledger has no prices.
+std::optional<Date> latest_close_day(Database& db);
 // Whether any figure of `metric` is stored, and the names of those that are.
 bool metric_exists(Database& db, std::string_view metric);
 std::vector<std::string> metric_names(Database& db);

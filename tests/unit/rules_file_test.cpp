@@ -106,8 +106,9 @@ TEST_CASE("rule file: a value out of range is refused") {
   refused(std::string(kMinimal) + "[trading]\ncash_reserve_pct = 100\n",
           "r.toml:4: key 'trading.cash_reserve_pct': 100 is out of range; must be at least 0 and "
           "below 100");
-  refused(std::string(kMinimal) + "[screen]\nwinsorize_pct = [95, 5]\n",
-          "r.toml:4: key 'screen.winsorize_pct': the lower percentile 95 must be below the upper 5");
+  refused(
+      std::string(kMinimal) + "[screen]\nwinsorize_pct = [95, 5]\n",
+      "r.toml:4: key 'screen.winsorize_pct': the lower percentile 95 must be below the upper 5");
 }
 
 TEST_CASE("rule file: a wrong type is refused") {

@@ -213,8 +213,8 @@ TEST_CASE("orders: losses first, then long-term gains before short-term ones") {
 
 TEST_CASE("orders: a sell across lots splits the cost in proportion") {
   TradingRule g;
-  const auto plan = orders(three_lots(), {target(10, "X", "0.5")}, quotes({{10, "X", "70"}}), g,
-                           kAsOf);
+  const auto plan =
+      orders(three_lots(), {target(10, "X", "0.5")}, quotes({{10, "X", "70"}}), g, kAsOf);
   // 2100 pool, target 1050: sell 15 units, lot 102 whole then 5 of lot 103.
   REQUIRE(plan.orders.size() == 1);
   CHECK(plan.orders[0].quantity == Decimal(15));
@@ -267,10 +267,10 @@ TEST_CASE("orders: a trade below the minimum is skipped, an exit is not") {
   TradingRule g;
   g.min_trade = Decimal(100);
   // X: target 40 at 40 a share is one share, below 100.
-  const auto plan =
-      orders(Portfolio{{a}}, {target(11, "Y", "0.996"), target(10, "X", "0.004"),
-                              target(12, "Z", "0", "excluded: not positive (-1)")},
-             quotes({{10, "X", "40"}, {11, "Y", "10"}, {12, "Z", "20"}}), g, kAsOf);
+  const auto plan = orders(Portfolio{{a}},
+                           {target(11, "Y", "0.996"), target(10, "X", "0.004"),
+                            target(12, "Z", "0", "excluded: not positive (-1)")},
+                           quotes({{10, "X", "40"}, {11, "Y", "10"}, {12, "Z", "20"}}), g, kAsOf);
   bool sold_z = false;
   for (const auto& o : plan.orders) {
     CHECK(o.symbol != "X");
@@ -328,10 +328,10 @@ TEST_CASE("orders: short of cash, buys share it in proportion and then fill") {
   // the 70 left goes to the largest gap first: Y (85 short) takes one more.
   AccountState a = account(1, "Main", "1000");
   a.holdings[12] = HoldingState{Decimal(10), {}};
-  const auto plan = orders(
-      Portfolio{{a}},
-      {target(12, "H", "0.425"), target(10, "X", "0.2875"), target(11, "Y", "0.2875")},
-      quotes({{10, "X", "30"}, {11, "Y", "70"}, {12, "H", "100"}}), {}, kAsOf);
+  const auto plan =
+      orders(Portfolio{{a}},
+             {target(12, "H", "0.425"), target(10, "X", "0.2875"), target(11, "Y", "0.2875")},
+             quotes({{10, "X", "30"}, {11, "Y", "70"}, {12, "H", "100"}}), {}, kAsOf);
   REQUIRE(plan.orders.size() == 3);
   CHECK(plan.orders[0].symbol == "H");
   CHECK(plan.orders[0].side == Side::sell);
@@ -348,9 +348,9 @@ TEST_CASE("orders: a position without a close is valued but not traded") {
   a.holdings[12] = HoldingState{Decimal(5), {}};
   Quotes q = quotes({{10, "X", "10"}, {12, "Q", "8"}});
   q[12].tradable = false;
-  const auto plan = orders(Portfolio{{a}},
-                           {target(10, "X", "1"), target(12, "Q", "0", "not in the rule's universe")},
-                           q, {}, kAsOf);
+  const auto plan = orders(
+      Portfolio{{a}}, {target(10, "X", "1"), target(12, "Q", "0", "not in the rule's universe")}, q,
+      {}, kAsOf);
   CHECK(plan.pool_value == Decimal(1040));
   REQUIRE(plan.skipped.size() == 1);
   CHECK(plan.skipped[0].symbol == "Q");

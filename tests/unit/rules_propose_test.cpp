@@ -10,6 +10,7 @@
 #include "rules/propose.h"
 #include "store/market_data.h"
 #include "store/point_in_time.h"
+#include "store/price_write.h"
 
 using namespace keel;
 using namespace keel::testing;
@@ -36,9 +37,9 @@ struct Market : LedgerFixture {
     w.finish_prices();
     tx.commit();
   }
-  void figures(const std::string& metric,
-               const std::vector<std::tuple<std::string, std::string, std::string, std::string>>&
-                   rows) {
+  void figures(
+      const std::string& metric,
+      const std::vector<std::tuple<std::string, std::string, std::string, std::string>>& rows) {
     store::WriteTransaction tx(db);
     store::MarketWriter w(db, false);
     std::string existing;
@@ -182,6 +183,16 @@ TEST_CASE("point in time: the reader agrees with metric_as_of") {
         CHECK(a->known_on == b->known_on);
       }
     }
+}
+
+TEST_CASE("point in time: the latest close day agrees with latest_price_day") {
+  Month m;
+  CHECK(*store::latest_close_day(m.db) == *store::latest_price_day(m.db));
+  m.closes({{"E", "2024-06-07", "11"}});
+  CHECK(*store::latest_close_day(m.db) == day("2024-06-07"));
+  CHECK(*store::latest_close_day(m.db) == *store::latest_price_day(m.db));
+  LedgerFixture empty;
+  CHECK_FALSE(store::latest_close_day(empty.db));
 }
 
 TEST_CASE("propose: posting the orders and proposing again finds nothing to do") {
@@ -340,15 +351,18 @@ struct Generated : Market {
     account("Retirement");
     for (int i = 0; i < 40; ++i) stock(fmt::format("S{:02d}", i), i % 7 == 3 ? "5" : "1");
     stock("FUND", "1", SecurityKind::fund);
-    cash(TxnKind::deposit, "2024-01-02", "Taxable", std::to_string(rng.range(20000, 90000)).c_str());
+    cash(TxnKind::deposit, "2024-01-02", "Taxable",
+         std::to_string(rng.range(20000, 90000)).c_str());
     cash(TxnKind::deposit, "2024-01-02", "Retirement",
          std::to_string(rng.range(5000, 40000)).c_str());
     std::vector<std::tuple<std::string, std::string, std::string>> prices;
     std::vector<std::tuple<std::string, std::string, std::string, std::string>> pe;
     for (int i = 0; i < 40; ++i) {
       const std::string sym = fmt::format("S{:02d}", i);
-      prices.push_back({sym, "2024-01-03", fmt::format("{}.{:02d}", rng.range(5, 300), rng.range(0, 99))});
-      prices.push_back({sym, "2024-05-31", fmt::format("{}.{:02d}", rng.range(5, 300), rng.range(0, 99))});
+      prices.push_back(
+          {sym, "2024-01-03", fmt::format("{}.{:02d}", rng.range(5, 300), rng.range(0, 99))});
+      prices.push_back(
+          {sym, "2024-05-31", fmt::format("{}.{:02d}", rng.range(5, 300), rng.range(0, 99))});
       pe.push_back({sym, "2024-03-31", "2024-04-30",
                     fmt::format("{}.{}", rng.range(-5, 45), rng.range(0, 9))});
     }
