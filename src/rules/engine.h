@@ -1,0 +1,192 @@
+// The rule engine: screen, targets and orders on plain values, with no ledger
+// access, so a proposal and a back-test run exactly the same steps.
+//
+// screen(): every candidate gets a line. A name passes when it has a figure
+//   known on the as-of day, that figure's period is at most max_age_days old,
+//   (optionally) its value is above zero, and it has a close to trade at.
+//   Passing values are winsorized when asked (percentiles by linear
+//   interpolation between order statistics, numpy/pandas' default), then
+//   z = (x - mean) / sd with the sample sd (n - 1); z is negated when high
+//   values are cheap, so low z is always cheap. Selection then marks names:
+//   z <= z_max, the cheapest `count`, or the cheapest ceil(top_pct % of n);
+//   a held name that passes but is not selected stays while z <= exit_z.
+//   Throws InputError located at the rule key when fewer than min_names pass
+//   or nothing is selected.
+// targets(): weights (fractions of the invested value) for sleeves and
+//   selected names: equal, or raw exp(-tilt * z) normalized; a cap per name
+//   with the excess shared among the others in proportion. Held names that are
+//   not selected get weight 0 with the reason. Throws InputError when the
+//   weights cannot add up to one.
+// orders(): turns targets into orders for a portfolio (cash and holdings per
+//   account) at given prices. Sells come first, then buys that fit each
+//   account's cash above its reserve after estimated fees; quantities are
+//   rounded down to the security's lot size (or 10^-4 units when fractional).
+//   Never sells more than held nor spends more cash than an account has.
+//   Money is exact (Decimal); doubles appear only in the z statistics.
+#pragma once
+
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <unordered_map>
+#include <vector>
+
+#include "core/date.h"
+#include "core/decimal.h"
+#include "rules/rule.h"
+
+namespace keel::rules {
+
+// A figure as known on the as-of day (see store::metric_as_of).
+struct Figure {
+  Decimal value;
+  Date period;    // the period the figure is for
+  Date known_on;  // the first day it could be known
+};
+
+struct Candidate {
+  std::int64_t security_id = 0;
+  std::string symbol;
+  std::optional<Figure> figure;
+  bool has_price = false;  // a close on or before the as-of day
+  bool held = false;       // some account of the pool holds it
+};
+
+struct ScreenLine {
+  std::int64_t security_id = 0;
+  std::string symbol;
+  std::optional<Figure> figure;
+  int age_days = 0;             // as-of minus the figure's period
+  std::optional<double> value;  // the value z is computed from (after winsorizing)
+  std::optional<double> z;      // oriented: low = cheap
+  bool held = false;
+  bool passed = false;
+  bool selected = false;
+  std::string excluded_reason;  // why it did not pass; empty when it passed
+  std::string note;             // why it is, or is not, selected
+};
+
+struct ScreenResult {
+  Date as_of;
+  std::vector<ScreenLine> lines;  // passing names by z (then symbol), then the rest by symbol
+  std::size_t passed = 0;
+  std::size_t selected = 0;
+  double mean = 0, sd = 0;  // of the values z is computed from
+  std::optional<double> clip_low, clip_high;
+};
+
+ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candidates);
+
+struct Target {
+  std::int64_t security_id = 0;
+  std::string symbol;
+  Decimal weight;  // fraction of the invested value (pool less cash reserves)
+  bool sleeve = false;
+  std::optional<double> z;
+  bool held = false;
+  std::string why;  // "z = -1.32 <= -0.50", "sleeve at 20%", "excluded: ..."
+};
+
+// Sleeves first, then selected names by z, then zero-weight exits.
+std::vector<Target> targets(const Rule& rule, const ScreenResult& screened,
+                            const std::vector<std::int64_t>& sleeve_ids);
+
+// ---------------------------------------------------------------- orders
+
+struct LotState {
+  std::int64_t lot_id = 0;
+  Date acquired;
+  Decimal quantity;
+  Decimal cost;  // total basis of the lot
+};
+
+struct HoldingState {
+  Decimal quantity;
+  std::vector<LotState> lots;  // optional; when given, sells report the lots taken
+};
+
+struct AccountState {
+  std::int64_t id = 0;
+  std::string name;
+  Decimal cash;
+  std::unordered_map<std::int64_t, HoldingState> holdings;  // by security id
+};
+
+struct Portfolio {
+  std::vector<AccountState> accounts;
+};
+
+struct Quote {
+  std::string symbol;
+  Decimal price;         // close on or before the as-of day, else the last trade price
+  bool tradable = true;  // false: no close; valued, never traded
+  Decimal lot_size{1};
+};
+using Quotes = std::unordered_map<std::int64_t, Quote>;
+
+enum class Side { buy, sell };
+std::string_view to_string(Side side);
+
+struct LotTake {
+  std::int64_t lot_id = 0;
+  Date acquired;
+  Decimal quantity;
+  Decimal cost;      // basis of the part taken, to the cent
+  Decimal est_gain;  // quantity x price - cost, before fees
+  bool long_term = false;
+};
+
+struct Order {
+  std::int64_t account_id = 0;
+  std::string account;
+  std::int64_t security_id = 0;
+  std::string symbol;
+  Side side = Side::buy;
+  Decimal quantity;
+  Decimal price;                      // estimate: the quote
+  Decimal value;                      // quantity x price
+  Decimal fee;                        // estimate
+  Decimal weight_now, weight_target;  // fractions of the pool, 6 places
+  std::string reason;
+  std::vector<LotTake> lots;  // sells, when lots were given
+};
+
+struct Skipped {
+  std::string symbol;
+  std::string why;
+};
+
+struct WeightAfter {
+  std::int64_t security_id = 0;
+  std::string symbol;
+  Decimal value;
+  Decimal weight;  // of the pool after the orders, 6 places
+  Decimal target;  // of the pool, 6 places
+};
+
+struct CashAfter {
+  std::string account;
+  Decimal cash;
+  Decimal reserve;
+};
+
+struct OrderPlan {
+  Decimal pool_value;
+  Decimal invested_target;    // pool less cash reserves
+  std::vector<Order> orders;  // sells first
+  std::vector<WeightAfter> weights_after;
+  std::vector<CashAfter> cash_after;
+  Decimal cash_after_total;
+  Decimal turnover;  // (bought + sold) / 2 / pool, 6 places
+  Decimal estimated_fees;
+  std::vector<Skipped> skipped;
+};
+
+OrderPlan orders(const Portfolio& portfolio, const std::vector<Target>& targets,
+                 const Quotes& quotes, const TradingRule& trading, Date as_of);
+
+// Applies orders to a portfolio at their estimated prices and fees (for a
+// back-test, or to check a plan): quantities and cash move; lots are not kept.
+Portfolio apply(const Portfolio& portfolio, const std::vector<Order>& orders);
+
+}  // namespace keel::rules

@@ -1,0 +1,325 @@
+#include "rules/propose.h"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <map>
+#include <set>
+#include <unordered_map>
+#include <unordered_set>
+
+#include "core/error.h"
+#include "core/text.h"
+#include "io/sha256.h"
+#include "ledger/posting.h"
+#include "store/ledger_store.h"
+#include "store/point_in_time.h"
+
+namespace keel::rules {
+namespace {
+
+std::string join(const std::vector<std::string>& items) {
+  std::string out;
+  for (const auto& s : items) out += (out.empty() ? "" : ", ") + printable(s);
+  return out;
+}
+
+// A close this many days older than the as-of day earns a note.
+constexpr int kOldCloseDays = 7;
+
+}  // namespace
+
+std::vector<std::string> proposal_cautions(Date as_of) {
+  return {
+      "This is the output of your own rule applied to your own data; it is not investment "
+      "advice.",
+      "Valuation screens can stay wrong for years: a cheap name can keep getting cheaper, and "
+      "past results do not predict future ones.",
+      fmt::format("Prices and fees are estimates from closes on or before {}; check current "
+                  "prices, quantities and costs before trading.",
+                  as_of.str()),
+      "Tax effects of the sells depend on local rules; check them with your tax authority or a "
+      "licensed professional.",
+  };
+}
+
+Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_of_opt) {
+  Proposal p;
+  p.rule_name = rule.name;
+  p.rule_sha256 = io::sha256_hex(rule.text);
+  if (as_of_opt) {
+    p.as_of = *as_of_opt;
+  } else {
+    const auto latest = store::latest_close_day(db);
+    if (!latest)
+      throw InputError(
+          "the ledger holds no closes to value the accounts at; import prices first "
+          "('keel import prices FILE') or give --as-of");
+    p.as_of = *latest;
+  }
+  const Date as_of = p.as_of;
+
+  // The rule's accounts.
+  std::vector<Account> pool;
+  {
+    std::vector<std::string> known;
+    for (const auto& a : store::list_accounts(db)) known.push_back(a.name);
+    for (const auto& name : rule.accounts) {
+      auto a = store::find_account(db, name);
+      if (!a)
+        rule.fail("scope.accounts",
+                  fmt::format("no account named '{}' in the ledger{}", printable(name),
+                              known.empty() ? "" : " (accounts: " + join(known) + ")"));
+      pool.push_back(*a);
+      p.accounts.push_back(a->name);
+    }
+  }
+
+  // Securities: the universe and the sleeves.
+  const auto securities = store::list_securities(db);
+  std::unordered_map<std::string, const Security*> by_symbol;
+  std::unordered_map<std::int64_t, const Security*> by_id;
+  for (const auto& s : securities) {
+    by_symbol[s.symbol] = &s;
+    by_id[s.id] = &s;
+  }
+  std::vector<std::int64_t> sleeve_ids;
+  for (const auto& sl : rule.weights.sleeves) {
+    const auto it = by_symbol.find(sl.symbol);
+    if (it == by_symbol.end())
+      rule.fail("sleeve.symbol",
+                fmt::format("no security '{}' in the ledger", printable(sl.symbol)));
+    sleeve_ids.push_back(it->second->id);
+  }
+  const std::set<std::int64_t> sleeve_set(sleeve_ids.begin(), sleeve_ids.end());
+  std::vector<const Security*> universe;
+  if (rule.universe == Universe::list) {
+    for (const auto& sym : rule.symbols) {
+      const auto it = by_symbol.find(sym);
+      if (it == by_symbol.end())
+        rule.fail("scope.symbols", fmt::format("no security '{}' in the ledger", printable(sym)));
+      universe.push_back(it->second);
+    }
+  } else {
+    std::set<std::string> sectors;
+    for (const auto& s : securities) {
+      if (s.kind != SecurityKind::stock || sleeve_set.count(s.id)) continue;
+      if (s.sector) sectors.insert(*s.sector);
+      if (rule.universe == Universe::all_stocks || (s.sector && *s.sector == rule.sector))
+        universe.push_back(&s);
+    }
+    if (universe.empty() && rule.universe == Universe::sector)
+      rule.fail(
+          "scope.sector",
+          fmt::format(
+              "no stock in the ledger has sector '{}'{}", printable(rule.sector),
+              sectors.empty() ? "" : " (sectors: " + join({sectors.begin(), sectors.end()}) + ")"));
+    if (universe.empty())
+      throw InputError(fmt::format(
+          "{}: the universe is every stock in the ledger, and the ledger holds none; import "
+          "securities first",
+          printable(rule.source)));
+  }
+  if (!store::metric_exists(db, rule.screen.metric)) {
+    const auto names = store::metric_names(db);
+    std::string why =
+        fmt::format("the ledger holds no figures for metric '{}'", printable(rule.screen.metric));
+    if (auto near = nearest(rule.screen.metric, names))
+      why += fmt::format("; did you mean '{}'?", printable(*near));
+    else if (!names.empty())
+      why += fmt::format(" (stored metrics: {})", join(names));
+    else
+      why += "; import metrics first ('keel import metrics FILE')";
+    rule.fail("screen.metric", why);
+  }
+
+  // The pool's state on the as-of day.
+  const auto log = ledger::load_log(db);
+  Replayer replayer(log);
+  const Book& book = replayer.advance_to(as_of);
+  p.last_txn_id = store::last_transaction_id(db);
+  Portfolio portfolio;
+  std::unordered_set<std::int64_t> held;
+  for (const auto& a : pool) {
+    AccountState st;
+    st.id = a.id;
+    st.name = a.name;
+    const auto& ab = book.account(a.id);
+    st.cash = ab.cash;
+    for (const auto& [id, pos] : ab.positions) {
+      HoldingState h;
+      h.quantity = pos.quantity();
+      for (const auto& lot : pos.lots)
+        h.lots.push_back(LotState{lot.lot_id, lot.acquired, lot.quantity, lot.cost});
+      if (h.quantity.is_positive()) held.insert(id);
+      st.holdings[id] = std::move(h);
+    }
+    portfolio.accounts.push_back(std::move(st));
+  }
+
+  // Point-in-time figures and closes.
+  store::PointInTime pit(db);
+  std::unordered_map<std::int64_t, std::optional<std::pair<Date, Decimal>>> closes;
+  auto close_of = [&](std::int64_t id) -> const std::optional<std::pair<Date, Decimal>>& {
+    auto it = closes.find(id);
+    if (it == closes.end()) it = closes.emplace(id, pit.close(id, as_of)).first;
+    return it->second;
+  };
+  std::vector<Candidate> candidates;
+  candidates.reserve(universe.size());
+  for (const auto* s : universe) {
+    Candidate c;
+    c.security_id = s->id;
+    c.symbol = s->symbol;
+    c.held = held.count(s->id) > 0;
+    if (auto m = pit.metric(s->id, rule.screen.metric, as_of)) {
+      c.figure = Figure{m->value, m->date, m->known_on};
+      c.has_price = close_of(s->id).has_value();
+    }
+    candidates.push_back(std::move(c));
+  }
+  p.screen = screen(rule, as_of, std::move(candidates));
+  p.targets = targets(rule, p.screen, sleeve_ids);
+
+  // Held names outside the universe leave the pool.
+  std::set<std::int64_t> targeted;
+  for (const auto& t : p.targets) targeted.insert(t.security_id);
+  for (std::int64_t id : held)
+    if (!targeted.count(id))
+      p.targets.push_back(Target{id, by_id.at(id)->symbol, Decimal(), false, std::nullopt, true,
+                                 "not in the rule's universe"});
+  for (std::size_t i = 0; i < sleeve_ids.size(); ++i)
+    if (!close_of(sleeve_ids[i]))
+      rule.fail("sleeve.symbol",
+                fmt::format("sleeve '{}' has no close on or before {}",
+                            printable(rule.weights.sleeves[i].symbol), as_of.str()));
+
+  Quotes quotes;
+  for (const auto& t : p.targets) {
+    if (quotes.count(t.security_id)) continue;
+    const Security& s = *by_id.at(t.security_id);
+    Quote q;
+    q.symbol = s.symbol;
+    q.lot_size = s.lot_size;
+    if (const auto& c = close_of(s.id)) {
+      q.price = c->second;
+      if (as_of - c->first > kOldCloseDays && (t.weight.is_positive() || held.count(s.id)))
+        p.notes.push_back(fmt::format("{}: the latest close on or before {} is from {}",
+                                      printable(s.symbol), as_of.str(), c->first.str()));
+    } else {
+      q.tradable = false;
+      const auto trade = book.last_trade_price(s.id);
+      q.price = trade.value_or(Decimal());
+      p.notes.push_back(fmt::format(
+          "{}: no close on or before {}; valued at {}", printable(s.symbol), as_of.str(),
+          trade ? "its last trade price " + trade->str() : "zero (it never traded)"));
+    }
+    quotes.emplace(s.id, std::move(q));
+  }
+
+  Decimal pool_value;
+  for (const auto& a : portfolio.accounts) {
+    pool_value += a.cash;
+    for (const auto& [id, h] : a.holdings) pool_value += h.quantity * quotes.at(id).price;
+  }
+  if (!pool_value.is_positive())
+    rule.fail("scope.accounts",
+              fmt::format("the accounts {} hold nothing to invest on {} (value {}); deposit "
+                          "cash first",
+                          join(p.accounts), as_of.str(), pool_value.str()));
+
+  p.plan = orders(portfolio, p.targets, quotes, rule.trading, as_of);
+  p.cautions = proposal_cautions(as_of);
+  return p;
+}
+
+std::int64_t save(store::Database& db, const Rule& rule, const Proposal& p) {
+  store::ProposalRow row;
+  row.as_of = p.as_of;
+  row.rule_name = rule.name;
+  row.rule_file = rule.source;
+  row.rule_text = rule.text;
+  row.rule_sha256 = p.rule_sha256;
+  row.pool_value = p.plan.pool_value;
+  row.last_txn_id = p.last_txn_id;
+  for (const auto& o : p.plan.orders) {
+    store::ProposalOrderRow r;
+    r.account_id = o.account_id;
+    r.security_id = o.security_id;
+    r.side = std::string(to_string(o.side));
+    r.quantity = o.quantity;
+    r.price = o.price;
+    r.value = o.value;
+    r.fee = o.fee;
+    r.weight_now = o.weight_now;
+    r.weight_target = o.weight_target;
+    r.reason = o.reason;
+    for (const auto& l : o.lots) r.lots.push_back(LotPick{l.lot_id, l.quantity});
+    row.orders.push_back(std::move(r));
+  }
+  store::WriteTransaction tx(db);
+  const std::int64_t id = store::save_proposal(db, row);
+  tx.commit();
+  return id;
+}
+
+Review review(store::Database& db, std::int64_t proposal_id) {
+  auto found = store::find_proposal(db, proposal_id);
+  if (!found)
+    throw InputError(fmt::format("no saved proposal {}; see 'keel proposals list'", proposal_id));
+  Review out;
+  out.proposal = std::move(*found);
+  const auto& p = out.proposal;
+  const Rule rule = parse_rule(p.rule_text, p.rule_file);
+
+  std::map<std::int64_t, std::string> accounts, symbols;
+  for (const auto& a : store::list_accounts(db)) accounts[a.id] = a.name;
+  for (const auto& s : store::list_securities(db)) symbols[s.id] = s.symbol;
+  std::set<std::int64_t> pool;
+  for (const auto& [id, name] : accounts)
+    if (std::find(rule.accounts.begin(), rule.accounts.end(), name) != rule.accounts.end())
+      pool.insert(id);
+
+  struct Traded {
+    Decimal quantity, value;
+  };
+  using Key = std::tuple<std::int64_t, std::int64_t, std::string>;  // account, security, side
+  std::map<Key, Traded> traded;
+  std::vector<Key> seen_order;
+  const auto txns = store::list_transactions(db);
+  const auto voided = voided_ids(txns);
+  for (const auto& t : txns) {
+    if (t.id <= p.last_txn_id || voided.count(t.id) || !pool.count(t.account_id)) continue;
+    if (t.kind != TxnKind::buy && t.kind != TxnKind::sell) continue;
+    const Key k{t.account_id, *t.security_id, t.kind == TxnKind::buy ? "buy" : "sell"};
+    auto [it, fresh] = traded.try_emplace(k);
+    if (fresh) seen_order.push_back(k);
+    it->second.quantity += *t.quantity;
+    it->second.value += *t.quantity * *t.price;
+  }
+  for (const auto& o : p.orders) {
+    ReviewLine line{o.account, o.symbol, o.side, o.quantity, o.price, {}, std::nullopt, ""};
+    const Key k{o.account_id, o.security_id, o.side};
+    if (auto it = traded.find(k); it != traded.end()) {
+      line.traded = it->second.quantity;
+      line.avg_price = Decimal::divide(it->second.value, it->second.quantity, 4);
+      traded.erase(it);
+    }
+    line.status = line.traded.is_zero()       ? "not traded"
+                  : line.traded == o.quantity ? "done"
+                  : line.traded < o.quantity  ? "partly"
+                                              : "more than proposed";
+    out.lines.push_back(std::move(line));
+  }
+  for (const auto& k : seen_order) {
+    const auto it = traded.find(k);
+    if (it == traded.end()) continue;
+    out.lines.push_back(ReviewLine{accounts[std::get<0>(k)], symbols[std::get<1>(k)],
+                                   std::get<2>(k), Decimal(), Decimal(), it->second.quantity,
+                                   Decimal::divide(it->second.value, it->second.quantity, 4),
+                                   "not proposed"});
+  }
+  return out;
+}
+
+}  // namespace keel::rules

@@ -1,0 +1,117 @@
+// Rule: a written valuation rule, read from a TOML file (every key, its
+// default and an example in docs/rules.md).
+//
+// Contract
+//  - load_rule()/parse_rule() accept only the documented tables and keys. An
+//    unknown key is refused with the nearest valid key (by edit distance); a
+//    wrong type, a value out of range, or settings that contradict each other
+//    (an exit threshold tighter than the entry, sleeves taking the whole pool,
+//    a weight cap that cannot add up to one) are refused too. Every refusal is
+//    an InputError "FILE:LINE: key 'table.key': why".
+//  - Percent keys (*_pct) are percentages: 20 means 20 %; weights inside the
+//    engine are fractions of one. Money keys are in the accounts' currency.
+//  - Rule::fail() raises an error located at a key for problems found later,
+//    when the rule meets the ledger (a metric with no data, a threshold that
+//    selects nothing); a key left at its default is named with "(default X)".
+#pragma once
+
+#include <cstddef>
+#include <filesystem>
+#include <map>
+#include <optional>
+#include <string>
+#include <string_view>
+#include <utility>
+#include <vector>
+
+#include "core/decimal.h"
+
+namespace keel::rules {
+
+enum class Universe { all_stocks, sector, list };
+enum class Cheap { low, high };
+enum class SelectBy { z, count, top_pct };
+enum class Scheme { equal, tilt };
+enum class LotOrder { highest_cost, long_held, losses_first };
+
+std::string_view to_string(SelectBy by);
+std::string_view to_string(LotOrder order);
+
+struct Sleeve {
+  std::string symbol;
+  Decimal weight;  // fraction of the pool's invested value, 0 < weight < 1
+};
+
+struct ScreenRule {
+  std::string metric = "pe";
+  Cheap cheap = Cheap::low;
+  int max_age_days = 180;  // between a figure's period date and the as-of day
+  bool exclude_non_positive = true;
+  int min_names = 5;  // fewer names passing the screen is an error
+  // Percentiles (0..100) to clip values at before the z-score; unset = none.
+  std::optional<std::pair<double, double>> winsorize_pct;
+};
+
+struct SelectionRule {
+  SelectBy by = SelectBy::z;
+  double z_max = -0.5;  // by z: a name enters when z <= z_max
+  int count = 20;       // by count: the cheapest `count` names
+  Decimal top_pct{20};  // by top_pct: the cheapest ceil(top_pct % of passing names)
+  // Hysteresis: a name already held stays while its z <= exit_z.
+  std::optional<double> exit_z;
+};
+
+struct WeightRule {
+  Scheme scheme = Scheme::equal;
+  double tilt = 1.0;      // tilt scheme: raw weight exp(-tilt * z)
+  Decimal max_weight{1};  // fraction of the pool's invested value per screened name
+  std::vector<Sleeve> sleeves;
+  Decimal sleeve_total() const;
+};
+
+struct TradingRule {
+  Decimal drift_pct_points;  // 0 = off
+  Decimal drift_rel_pct;     // 0 = off
+  Decimal min_trade;         // smallest order value
+  Decimal cash_reserve_pct;  // share of each account's value kept in cash
+  bool fractional = false;   // quantities in steps of 10^-kFractionPlaces
+  Decimal fee_fixed;
+  Decimal fee_bps;
+  LotOrder lot_order = LotOrder::highest_cost;
+  static constexpr int kFractionPlaces = 4;
+  // Estimated fee of an order of `value`, half-to-even to the cent.
+  Decimal fee(const Decimal& value) const;
+};
+
+struct Rule {
+  std::string source;  // file name, for messages
+  std::string text;    // the file exactly as read
+  std::string name;
+  std::vector<std::string> accounts;
+  Universe universe = Universe::all_stocks;
+  std::vector<std::string> symbols;  // Universe::list
+  std::string sector;                // Universe::sector
+  ScreenRule screen;
+  SelectionRule selection;
+  WeightRule weights;
+  TradingRule trading;
+  int rebalance_months = 1;
+
+  // Line of each key given in the file ("select.z_max" -> 14).
+  std::map<std::string, std::int64_t> lines;
+  // InputError "FILE:LINE: key 'KEY': WHY", or "FILE: key 'KEY' (default D): WHY"
+  // when the file left the key out.
+  [[noreturn]] void fail(std::string_view key, std::string_view why) const;
+  // The key's line and a "(default ...)" note when not given.
+  std::string where(std::string_view key) const;
+};
+
+Rule load_rule(const std::filesystem::path& path);
+Rule parse_rule(std::string_view toml_text, std::string source);
+
+// Levenshtein distance between ASCII strings (insert, delete, substitute).
+std::size_t edit_distance(std::string_view a, std::string_view b);
+// The nearest of `choices` to `word`, if close enough to be a likely typo.
+std::optional<std::string> nearest(std::string_view word, const std::vector<std::string>& choices);
+
+}  // namespace keel::rules

@@ -1,0 +1,53 @@
+// Saved proposals: a rule's orders as proposed on a day, kept so they can be
+// set against what was traded afterwards.
+//
+// Contract
+//  - save_proposal() writes the proposal and its orders inside the caller's
+//    WriteTransaction and returns the new id. Rows are append-only (triggers).
+//  - find_proposal() returns the proposal with its orders in proposed order,
+//    or unset; list_proposals() gives every proposal without orders, oldest
+//    first. Decimals are stored as canonical text.
+#pragma once
+
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "core/date.h"
+#include "core/decimal.h"
+#include "ledger/types.h"
+#include "store/database.h"
+
+namespace keel::store {
+
+struct ProposalOrderRow {
+  std::int64_t account_id = 0;
+  std::string account;  // filled on reading
+  std::int64_t security_id = 0;
+  std::string symbol;  // filled on reading
+  std::string side;    // "buy" or "sell"
+  Decimal quantity, price, value, fee, weight_now, weight_target;
+  std::string reason;
+  std::vector<LotPick> lots;
+};
+
+struct ProposalRow {
+  std::int64_t id = 0;
+  Date as_of;
+  std::string rule_name;
+  std::string rule_file;
+  std::string rule_text;
+  std::string rule_sha256;
+  Decimal pool_value;
+  std::int64_t last_txn_id = 0;
+  std::string saved_at;
+  std::size_t order_count = 0;
+  std::vector<ProposalOrderRow> orders;
+};
+
+std::int64_t save_proposal(Database& db, const ProposalRow& proposal);
+std::optional<ProposalRow> find_proposal(Database& db, std::int64_t id);
+std::vector<ProposalRow> list_proposals(Database& db);
+
+}  // namespace keel::store

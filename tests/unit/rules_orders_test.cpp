@@ -1,0 +1,359 @@
+// Targets and orders on plain portfolios: weights, caps, sleeves, the guard
+// rails, lot preferences and cash. Expected quantities are worked out by hand
+// in the comments (floor of value / price to whole lots).
+#include <doctest/doctest.h>
+
+#include "core/error.h"
+#include "rules/engine.h"
+
+using namespace keel;
+using namespace keel::rules;
+
+namespace {
+
+const Date kAsOf = Date::parse("2024-05-31");
+
+Decimal dec(const char* s) {
+  return Decimal::parse(s);
+}
+
+Rule rule(const std::string& extra = "") {
+  return parse_rule("[scope]\naccounts = [\"Main\"]\n" + extra, "r.toml");
+}
+
+Candidate name(std::int64_t id, const std::string& symbol, const char* value, bool held = false) {
+  Candidate c;
+  c.security_id = id;
+  c.symbol = symbol;
+  c.figure = Figure{dec(value), Date::parse("2024-03-31"), Date::parse("2024-04-30")};
+  c.has_price = true;
+  c.held = held;
+  return c;
+}
+
+std::vector<Candidate> five(bool c_held = false) {
+  return {name(1, "A", "6"), name(2, "B", "8"), name(3, "C", "10", c_held), name(4, "D", "12"),
+          name(5, "E", "14")};
+}
+
+Target target(std::int64_t id, const std::string& symbol, const char* weight,
+              const std::string& why = "z = -1.00 <= -0.50") {
+  Target t;
+  t.security_id = id;
+  t.symbol = symbol;
+  t.weight = dec(weight);
+  t.why = why;
+  return t;
+}
+
+AccountState account(std::int64_t id, const std::string& name, const char* cash) {
+  AccountState a;
+  a.id = id;
+  a.name = name;
+  a.cash = dec(cash);
+  return a;
+}
+
+Quotes quotes(std::initializer_list<std::tuple<std::int64_t, const char*, const char*>> q) {
+  Quotes out;
+  for (const auto& [id, symbol, price] : q) out[id] = Quote{symbol, dec(price), true, Decimal(1)};
+  return out;
+}
+
+}  // namespace
+
+// ---------------------------------------------------------------- targets
+
+TEST_CASE("targets: equal weights share what the sleeve leaves") {
+  const Rule r = rule("[[sleeve]]\nsymbol = \"BOND\"\nweight_pct = 20\n");
+  const auto t = targets(r, screen(r, kAsOf, five()), {99});
+  REQUIRE(t.size() == 3);
+  CHECK(t[0].symbol == "BOND");
+  CHECK(t[0].weight == dec("0.2"));
+  CHECK(t[0].why == "sleeve at 20.00%");
+  CHECK(t[1].symbol == "A");
+  CHECK(t[1].weight == dec("0.4"));
+  CHECK(t[2].weight == dec("0.4"));
+}
+
+TEST_CASE("targets: a tilt weighs cheaper names more, in proportion to exp(-z)") {
+  const Rule r = rule("[select]\nby = \"count\"\ncount = 3\n[weights]\nscheme = \"tilt\"\n");
+  const auto t = targets(r, screen(r, kAsOf, five()), {});
+  REQUIRE(t.size() == 3);
+  // exp(4/sqrt(10)), exp(2/sqrt(10)), 1, normalized (computed with Python's math.exp).
+  CHECK(t[0].weight.to_double() == doctest::Approx(0.5514047011699162).epsilon(1e-10));
+  CHECK(t[1].weight.to_double() == doctest::Approx(0.29295338253984105).epsilon(1e-10));
+  CHECK(t[2].weight.to_double() == doctest::Approx(0.15564191629024277).epsilon(1e-10));
+}
+
+TEST_CASE("targets: a capped name's excess goes to the others in proportion") {
+  const Rule r = rule(
+      "[select]\nby = \"count\"\ncount = 3\n[weights]\nscheme = \"tilt\"\nmax_weight_pct = 50\n");
+  const auto t = targets(r, screen(r, kAsOf, five()), {});
+  CHECK(t[0].weight == dec("0.5"));
+  CHECK(t[0].why == "z = -1.26, rank 1 <= 3 (capped at 50.00%)");
+  CHECK(t[1].weight.to_double() == doctest::Approx(0.326523018970384).epsilon(1e-10));
+  CHECK(t[2].weight.to_double() == doctest::Approx(0.17347698102961606).epsilon(1e-10));
+}
+
+TEST_CASE("targets: a cap the day's selection cannot fill is refused") {
+  const Rule r = rule("[weights]\nmax_weight_pct = 40\n");
+  CHECK_THROWS_WITH_AS(targets(r, screen(r, kAsOf, five()), {}),
+                       "r.toml:4: key 'weights.max_weight_pct': weights cannot sum to one on "
+                       "2024-05-31: 2 selected names x 40.00% = 80.00% is less than the 100.00% "
+                       "they must fill",
+                       InputError);
+}
+
+TEST_CASE("targets: a held name that is not selected gets zero with the reason") {
+  const Rule r = rule();
+  const auto t = targets(r, screen(r, kAsOf, five(true)), {});
+  REQUIRE(t.size() == 3);
+  CHECK(t[2].symbol == "C");
+  CHECK(t[2].weight.is_zero());
+  CHECK(t[2].why == "z = 0.00 > -0.50");
+}
+
+// ----------------------------------------------------------------- orders
+
+TEST_CASE("orders: buys from cash round down to whole shares") {
+  Portfolio p{{account(1, "Main", "10000")}};
+  const auto plan = orders(p, {target(10, "X", "0.5"), target(11, "Y", "0.5")},
+                           quotes({{10, "X", "30"}, {11, "Y", "70"}}), {}, kAsOf);
+  REQUIRE(plan.orders.size() == 2);
+  CHECK(plan.orders[0].symbol == "X");
+  CHECK(plan.orders[0].quantity == Decimal(166));  // 5000 / 30 = 166.67
+  CHECK(plan.orders[0].value == Decimal(4980));
+  CHECK(plan.orders[0].reason == "z = -1.00 <= -0.50: new position");
+  CHECK(plan.orders[1].quantity == Decimal(71));  // 5000 / 70 = 71.43
+  CHECK(plan.cash_after_total == Decimal(50));
+  CHECK(plan.turnover == dec("0.4975"));  // 9950 / 2 / 10000
+}
+
+TEST_CASE("orders: fees come out of the cash and targets allow for them") {
+  Portfolio p{{account(1, "Main", "10000")}};
+  TradingRule g;
+  g.fee_fixed = Decimal(1);
+  g.fee_bps = Decimal(10);
+  const auto plan = orders(p, {target(10, "X", "0.5"), target(11, "Y", "0.5")},
+                           quotes({{10, "X", "30"}, {11, "Y", "70"}}), g, kAsOf);
+  REQUIRE(plan.orders.size() == 2);
+  // Targets on 10000 - 11.95 of fees: 4994.02 each; 166 x 30 and 71 x 70 still fit.
+  CHECK(plan.orders[0].quantity == Decimal(166));
+  CHECK(plan.orders[0].fee == dec("5.98"));  // 1 + 0.001 x 4980
+  CHECK(plan.orders[1].quantity == Decimal(71));
+  CHECK(plan.orders[1].fee == dec("5.97"));
+  CHECK(plan.estimated_fees == dec("11.95"));
+  CHECK(plan.cash_after_total == dec("38.05"));
+  CHECK(plan.invested_target == dec("9988.05"));
+}
+
+TEST_CASE("orders: sells come first and pay for the buys") {
+  AccountState a = account(1, "Main", "0");
+  a.holdings[10] = HoldingState{Decimal(100), {}};
+  Portfolio p{{a}};
+  const auto plan =
+      orders(p, {target(11, "Y", "1"), target(10, "X", "0", "held; z = 0.90 > exit 0.50")},
+             quotes({{10, "X", "50"}, {11, "Y", "25"}}), {}, kAsOf);
+  REQUIRE(plan.orders.size() == 2);
+  CHECK(plan.orders[0].side == Side::sell);
+  CHECK(plan.orders[0].quantity == Decimal(100));
+  CHECK(plan.orders[0].reason == "held; z = 0.90 > exit 0.50: sell all");
+  CHECK(plan.orders[0].weight_now == Decimal(1));
+  CHECK(plan.orders[1].side == Side::buy);
+  CHECK(plan.orders[1].quantity == Decimal(200));
+  CHECK(plan.cash_after_total.is_zero());
+}
+
+namespace {
+// Three lots of X: old and cheap, recent and dear, recent and middling.
+Portfolio three_lots() {
+  AccountState a = account(1, "Main", "0");
+  HoldingState h;
+  h.quantity = Decimal(30);
+  h.lots = {LotState{101, Date::parse("2020-01-02"), Decimal(10), Decimal(300)},
+            LotState{102, Date::parse("2023-12-01"), Decimal(10), Decimal(600)},
+            LotState{103, Date::parse("2024-03-01"), Decimal(10), Decimal(450)}};
+  a.holdings[10] = h;
+  return Portfolio{{a}};
+}
+// Trims X from 30 units to 20 at `price` (target 2/3 of the pool).
+std::vector<LotTake> trim_lots(LotOrder order, const char* price) {
+  TradingRule g;
+  g.lot_order = order;
+  const auto plan = orders(three_lots(), {target(10, "X", "0.666666666667")},
+                           quotes({{10, "X", price}}), g, kAsOf);
+  REQUIRE(plan.orders.size() == 1);
+  CHECK(plan.orders[0].quantity == Decimal(10));
+  return plan.orders[0].lots;
+}
+}  // namespace
+
+TEST_CASE("orders: a sell takes the highest-cost lot first") {
+  const auto lots = trim_lots(LotOrder::highest_cost, "70");
+  REQUIRE(lots.size() == 1);
+  CHECK(lots[0].lot_id == 102);
+  CHECK(lots[0].est_gain == Decimal(100));  // 10 x 70 - 600
+  CHECK_FALSE(lots[0].long_term);
+}
+
+TEST_CASE("orders: a sell takes the longest-held lot first") {
+  const auto lots = trim_lots(LotOrder::long_held, "70");
+  REQUIRE(lots.size() == 1);
+  CHECK(lots[0].lot_id == 101);
+  CHECK(lots[0].long_term);
+}
+
+TEST_CASE("orders: losses first, then long-term gains before short-term ones") {
+  // At 50 lot 102 (unit cost 60) is at a loss.
+  CHECK(trim_lots(LotOrder::losses_first, "50")[0].lot_id == 102);
+  // At 70 every lot gains; the long-term lot 101 goes first, not the dearest.
+  CHECK(trim_lots(LotOrder::losses_first, "70")[0].lot_id == 101);
+}
+
+TEST_CASE("orders: a sell across lots splits the cost in proportion") {
+  TradingRule g;
+  const auto plan =
+      orders(three_lots(), {target(10, "X", "0.5")}, quotes({{10, "X", "70"}}), g, kAsOf);
+  // 2100 pool, target 1050: sell 15 units, lot 102 whole then 5 of lot 103.
+  REQUIRE(plan.orders.size() == 1);
+  CHECK(plan.orders[0].quantity == Decimal(15));
+  REQUIRE(plan.orders[0].lots.size() == 2);
+  CHECK(plan.orders[0].lots[1].lot_id == 103);
+  CHECK(plan.orders[0].lots[1].quantity == Decimal(5));
+  CHECK(plan.orders[0].lots[1].cost == Decimal(225));
+}
+
+namespace {
+Portfolio drifted() {
+  AccountState a = account(1, "Main", "4800");
+  a.holdings[10] = HoldingState{Decimal(100), {}};  // 100 x 52 = 5200 of 10000
+  return Portfolio{{a}};
+}
+}  // namespace
+
+TEST_CASE("orders: a name inside the drift band is not traded") {
+  TradingRule g;
+  g.drift_pct_points = Decimal(3);
+  const auto plan = orders(drifted(), {target(10, "X", "0.5"), target(11, "Y", "0.5")},
+                           quotes({{10, "X", "52"}, {11, "Y", "10"}}), g, kAsOf);
+  REQUIRE(plan.orders.size() == 1);
+  CHECK(plan.orders[0].symbol == "Y");
+  CHECK(plan.orders[0].quantity == Decimal(480));  // all the cash; a new position ignores the band
+  REQUIRE(plan.skipped.size() == 1);
+  CHECK(plan.skipped[0].symbol == "X");
+  CHECK(plan.skipped[0].why == "within the drift band: 52.00% now, target 50.00%");
+}
+
+TEST_CASE("orders: a relative drift band is a share of the target weight") {
+  TradingRule wide;
+  wide.drift_rel_pct = Decimal(10);  // 2 points is within 10% of 50% (5 points)
+  auto plan = orders(drifted(), {target(10, "X", "0.5"), target(11, "Y", "0.5")},
+                     quotes({{10, "X", "52"}, {11, "Y", "10"}}), wide, kAsOf);
+  CHECK(plan.orders.size() == 1);
+  TradingRule narrow;
+  narrow.drift_rel_pct = Decimal(3);  // 2 points is beyond 3% of 50% (1.5 points)
+  plan = orders(drifted(), {target(10, "X", "0.5"), target(11, "Y", "0.5")},
+                quotes({{10, "X", "52"}, {11, "Y", "10"}}), narrow, kAsOf);
+  REQUIRE(plan.orders.size() == 2);
+  CHECK(plan.orders[0].side == Side::sell);
+  CHECK(plan.orders[0].quantity == Decimal(3));  // 200 over target / 52 = 3.8
+  CHECK(plan.orders[0].reason == "z = -1.00 <= -0.50: trim to target");
+}
+
+TEST_CASE("orders: a trade below the minimum is skipped, an exit is not") {
+  AccountState a = account(1, "Main", "9960");
+  a.holdings[12] = HoldingState{Decimal(2), {}};  // 2 x 20 = 40, leaving
+  TradingRule g;
+  g.min_trade = Decimal(100);
+  // X: target 40 at 40 a share is one share, below 100.
+  const auto plan = orders(Portfolio{{a}},
+                           {target(11, "Y", "0.996"), target(10, "X", "0.004"),
+                            target(12, "Z", "0", "excluded: not positive (-1)")},
+                           quotes({{10, "X", "40"}, {11, "Y", "10"}, {12, "Z", "20"}}), g, kAsOf);
+  bool sold_z = false;
+  for (const auto& o : plan.orders) {
+    CHECK(o.symbol != "X");
+    sold_z |= o.symbol == "Z" && o.side == Side::sell && o.quantity == Decimal(2);
+  }
+  CHECK(sold_z);
+  REQUIRE(plan.skipped.size() == 1);
+  CHECK(plan.skipped[0].why == "a buy of 40.00 is below the minimum trade (100)");
+}
+
+TEST_CASE("orders: the cash reserve stays in the account") {
+  TradingRule g;
+  g.cash_reserve_pct = Decimal(2);
+  const auto plan = orders(Portfolio{{account(1, "Main", "10000")}}, {target(10, "X", "1")},
+                           quotes({{10, "X", "10"}}), g, kAsOf);
+  REQUIRE(plan.orders.size() == 1);
+  CHECK(plan.orders[0].quantity == Decimal(980));
+  CHECK(plan.cash_after[0].reserve == Decimal(200));
+  CHECK(plan.cash_after_total == Decimal(200));
+}
+
+TEST_CASE("orders: quantities round down to the security's lot size") {
+  Quotes q = quotes({{10, "X", "7"}});
+  q[10].lot_size = Decimal(10);
+  const auto plan =
+      orders(Portfolio{{account(1, "Main", "1000")}}, {target(10, "X", "1")}, q, {}, kAsOf);
+  REQUIRE(plan.orders.size() == 1);
+  CHECK(plan.orders[0].quantity == Decimal(140));  // 142.86 down to tens
+}
+
+TEST_CASE("orders: fractional quantities go to four places") {
+  TradingRule g;
+  g.fractional = true;
+  const auto plan = orders(Portfolio{{account(1, "Main", "1000")}}, {target(10, "X", "1")},
+                           quotes({{10, "X", "7"}}), g, kAsOf);
+  REQUIRE(plan.orders.size() == 1);
+  CHECK(plan.orders[0].quantity == dec("142.8571"));
+  CHECK(plan.orders[0].value == dec("999.9997"));
+}
+
+TEST_CASE("orders: a buy spills into the next account and never overspends") {
+  Portfolio p{{account(1, "Taxable", "3000"), account(2, "Retirement", "2000")}};
+  const auto plan = orders(p, {target(10, "X", "1")}, quotes({{10, "X", "100"}}), {}, kAsOf);
+  REQUIRE(plan.orders.size() == 2);
+  CHECK(plan.orders[0].account == "Taxable");
+  CHECK(plan.orders[0].quantity == Decimal(30));
+  CHECK(plan.orders[1].account == "Retirement");
+  CHECK(plan.orders[1].quantity == Decimal(20));
+  for (const auto& c : plan.cash_after) CHECK_FALSE(c.cash.is_negative());
+}
+
+TEST_CASE("orders: short of cash, buys share it in proportion and then fill") {
+  // Pool 2000: H 10 x 100 held, target 850, sells 1 (cash 1100). X and Y want
+  // 575 each: 1100 / 1150 of it is 550 each, so 18 x 30 = 540 and 7 x 70 = 490;
+  // the 70 left goes to the largest gap first: Y (85 short) takes one more.
+  AccountState a = account(1, "Main", "1000");
+  a.holdings[12] = HoldingState{Decimal(10), {}};
+  const auto plan =
+      orders(Portfolio{{a}},
+             {target(12, "H", "0.425"), target(10, "X", "0.2875"), target(11, "Y", "0.2875")},
+             quotes({{10, "X", "30"}, {11, "Y", "70"}, {12, "H", "100"}}), {}, kAsOf);
+  REQUIRE(plan.orders.size() == 3);
+  CHECK(plan.orders[0].symbol == "H");
+  CHECK(plan.orders[0].side == Side::sell);
+  CHECK(plan.orders[0].quantity == Decimal(1));
+  CHECK(plan.orders[1].symbol == "X");
+  CHECK(plan.orders[1].quantity == Decimal(18));
+  CHECK(plan.orders[2].symbol == "Y");
+  CHECK(plan.orders[2].quantity == Decimal(8));
+  CHECK(plan.cash_after_total.is_zero());
+}
+
+TEST_CASE("orders: a position without a close is valued but not traded") {
+  AccountState a = account(1, "Main", "1000");
+  a.holdings[12] = HoldingState{Decimal(5), {}};
+  Quotes q = quotes({{10, "X", "10"}, {12, "Q", "8"}});
+  q[12].tradable = false;
+  const auto plan = orders(
+      Portfolio{{a}}, {target(10, "X", "1"), target(12, "Q", "0", "not in the rule's universe")}, q,
+      {}, kAsOf);
+  CHECK(plan.pool_value == Decimal(1040));
+  REQUIRE(plan.skipped.size() == 1);
+  CHECK(plan.skipped[0].symbol == "Q");
+  CHECK(plan.skipped[0].why ==
+        "no close on or before 2024-05-31; valued at the last trade price, not traded");
+}

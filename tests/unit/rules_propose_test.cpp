@@ -1,0 +1,416 @@
+// Proposals from a ledger: one month worked out by hand, point-in-time use of
+// figures, errors of a rule meeting the ledger, saving and review, and the
+// property that posting a proposal's orders leaves nothing more to propose.
+#include <doctest/doctest.h>
+#include <fmt/format.h>
+
+#include <map>
+
+#include "ledger_fixture.h"
+#include "rules/propose.h"
+#include "store/market_data.h"
+#include "store/point_in_time.h"
+#include "store/price_write.h"
+
+using namespace keel;
+using namespace keel::testing;
+using namespace keel::rules;
+
+namespace {
+
+struct Market : LedgerFixture {
+  void stock(const std::string& symbol, const char* lot_size = "1",
+             SecurityKind kind = SecurityKind::stock) {
+    Security s;
+    s.symbol = symbol;
+    s.name = symbol + " (invented)";
+    s.kind = kind;
+    s.lot_size = dec(lot_size);
+    store::insert_security(db, s);
+  }
+  // Closes and figures: {symbol, date, value} / {symbol, period, known_on, value}.
+  void closes(const std::vector<std::tuple<std::string, std::string, std::string>>& rows) {
+    store::WriteTransaction tx(db);
+    store::MarketWriter w(db, false);
+    std::uint64_t line = 0;
+    for (const auto& [sym, date, close] : rows) w.price(w.security(sym), date, close, ++line);
+    w.finish_prices();
+    tx.commit();
+  }
+  void figures(
+      const std::string& metric,
+      const std::vector<std::tuple<std::string, std::string, std::string, std::string>>& rows) {
+    store::WriteTransaction tx(db);
+    store::MarketWriter w(db, false);
+    std::string existing;
+    for (const auto& [sym, period, known, value] : rows)
+      w.metric(w.security(sym), metric, period, known, value, existing);
+    tx.commit();
+  }
+  void post_orders(const Proposal& p) {
+    for (const auto& o : p.plan.orders) {
+      ledger::PostRequest r;
+      r.kind = o.side == Side::buy ? TxnKind::buy : TxnKind::sell;
+      r.date = p.as_of;
+      r.account = o.account;
+      r.symbol = o.symbol;
+      r.quantity = o.quantity;
+      r.price = o.price;
+      r.fee = o.fee;
+      for (const auto& l : o.lots) r.lots.push_back(LotPick{l.lot_id, l.quantity});
+      ledger::post(db, r);
+    }
+  }
+};
+
+// The month of the example: five scored names, one excluded, two held, a bond sleeve.
+struct Month : Market {
+  Month() {
+    account("Main");
+    for (const char* s : {"A", "B", "C", "D", "E", "G"}) stock(s);
+    stock("BOND", "1", SecurityKind::fund);
+    cash(TxnKind::deposit, "2024-01-02", "Main", "10000");
+    buy("2024-01-03", "Main", "C", "100", "20");  // lot 2
+    buy("2024-01-03", "Main", "D", "50", "40");   // lot 3
+    closes({{"A", "2024-05-31", "25"},
+            {"B", "2024-05-31", "50"},
+            {"C", "2024-05-31", "22"},
+            {"D", "2024-05-31", "38"},
+            {"E", "2024-05-31", "10"},
+            {"G", "2024-05-31", "5"},
+            {"BOND", "2024-05-31", "100"}});
+    figures("pe", {{"A", "2024-03-31", "2024-04-30", "6"},
+                   {"B", "2024-03-31", "2024-04-30", "8"},
+                   {"C", "2024-03-31", "2024-04-30", "10"},
+                   {"D", "2024-03-31", "2024-04-30", "12"},
+                   {"E", "2024-03-31", "2024-04-30", "14"},
+                   {"G", "2024-03-31", "2024-04-30", "-2"},
+                   // Known only after the as-of day: invisible to it.
+                   {"A", "2024-03-31", "2024-06-15", "30"},
+                   {"B", "2024-05-31", "2024-06-20", "40"}});
+  }
+};
+
+const char* kMonthRule = R"([scope]
+accounts = ["Main"]
+
+[select]
+z_max = -0.5
+exit_z = 0
+
+[[sleeve]]
+symbol = "BOND"
+weight_pct = 20
+)";
+
+Rule month_rule(const std::string& text = kMonthRule) {
+  return parse_rule(text, "month.toml");
+}
+
+}  // namespace
+
+TEST_CASE("propose: one month on an invented ledger, worked out by hand") {
+  Month m;
+  const auto p = propose(m.db, month_rule());
+  CHECK(p.as_of == day("2024-05-31"));  // the latest close
+  // Pool: cash 6000 + C 100 x 22 + D 50 x 38 = 10100.
+  CHECK(p.plan.pool_value == Decimal(10100));
+  CHECK(p.screen.passed == 5);
+  // Targets: BOND 20% = 2020.00; A, B, C 80% / 3 = 2693.33 each.
+  // D leaves: sell 50 x 38 = 1900, cash 7900. Buys need 7899.99, all fit:
+  // BOND 2020 / 100 = 20; A 2693.33 / 25 = 107; B / 50 = 53; C (493.33 short) / 22 = 22.
+  REQUIRE(p.plan.orders.size() == 5);
+  const auto& d = p.plan.orders[0];
+  CHECK(d.symbol == "D");
+  CHECK(d.side == Side::sell);
+  CHECK(d.quantity == Decimal(50));
+  CHECK(d.value == Decimal(1900));
+  CHECK(d.weight_now == dec("0.188119"));
+  CHECK(d.weight_target.is_zero());
+  CHECK(d.reason == "held; z = 0.63 > exit 0.00: sell all");
+  REQUIRE(d.lots.size() == 1);
+  CHECK(d.lots[0].lot_id == 3);
+  CHECK(d.lots[0].est_gain == Decimal(-100));
+  const std::vector<std::tuple<std::string, long long, std::string>> buys{
+      {"BOND", 20, "sleeve at 20.00%: new position"},
+      {"A", 107, "z = -1.26 <= -0.50: new position"},
+      {"B", 53, "z = -0.63 <= -0.50: new position"},
+      {"C", 22, "held; z = 0.00 <= exit 0.00: add to target"}};
+  for (std::size_t i = 0; i < buys.size(); ++i) {
+    const auto& o = p.plan.orders[i + 1];
+    CHECK(o.side == Side::buy);
+    CHECK(o.symbol == std::get<0>(buys[i]));
+    CHECK(o.quantity == Decimal(std::get<1>(buys[i])));
+    CHECK(o.reason == std::get<2>(buys[i]));
+    CHECK(o.account == "Main");
+  }
+  CHECK(p.plan.orders[2].weight_target == dec("0.266666"));  // 2693.33 / 10100
+  // 7900 - 2000 - 2675 - 2650 - 484 = 91.
+  CHECK(p.plan.cash_after_total == Decimal(91));
+  CHECK(p.plan.turnover == dec("0.480644"));  // (1900 + 7809) / 2 / 10100
+  CHECK(p.plan.estimated_fees.is_zero());
+  CHECK(p.cautions.size() == 4);
+}
+
+TEST_CASE("propose: figures known after the as-of day are not used") {
+  Month m;
+  const auto p = propose(m.db, month_rule());
+  for (const auto& l : p.screen.lines) {
+    if (l.symbol == "A") CHECK(l.figure->value == Decimal(6));
+    if (l.symbol == "B") CHECK(l.figure->period == day("2024-03-31"));
+    if (l.symbol == "G") CHECK(l.excluded_reason == "not positive (-2)");
+  }
+  // On the later day the restatement and the new period are visible.
+  m.closes({{"A", "2024-06-28", "25"}});
+  const auto later = propose(m.db, month_rule(), day("2024-06-28"));
+  for (const auto& l : later.screen.lines) {
+    if (l.symbol == "A") CHECK(l.figure->value == Decimal(30));
+    if (l.symbol == "B") CHECK(l.figure->value == Decimal(40));
+  }
+}
+
+TEST_CASE("point in time: the reader agrees with metric_as_of") {
+  Month m;
+  store::PointInTime pit(m.db);
+  for (const auto& s : store::list_securities(m.db))
+    for (const char* d : {"2024-04-29", "2024-04-30", "2024-06-15", "2024-06-20", "2024-12-31"}) {
+      const auto a = pit.metric(s.id, "pe", day(d));
+      const auto b = store::metric_as_of(m.db, s.id, "pe", day(d));
+      REQUIRE(a.has_value() == b.has_value());
+      if (a) {
+        CHECK(a->value == b->value);
+        CHECK(a->date == b->date);
+        CHECK(a->known_on == b->known_on);
+      }
+    }
+}
+
+TEST_CASE("point in time: the latest close day agrees with latest_price_day") {
+  Month m;
+  CHECK(*store::latest_close_day(m.db) == *store::latest_price_day(m.db));
+  m.closes({{"E", "2024-06-07", "11"}});
+  CHECK(*store::latest_close_day(m.db) == day("2024-06-07"));
+  CHECK(*store::latest_close_day(m.db) == *store::latest_price_day(m.db));
+  LedgerFixture empty;
+  CHECK_FALSE(store::latest_close_day(empty.db));
+}
+
+TEST_CASE("propose: posting the orders and proposing again finds nothing to do") {
+  Month m;
+  const auto first = propose(m.db, month_rule());
+  m.post_orders(first);
+  const auto again = propose(m.db, month_rule());
+  CHECK(again.plan.orders.empty());
+  CHECK(again.plan.cash_after_total == Decimal(91));
+}
+
+TEST_CASE("propose: an account the ledger does not hold is named at its key") {
+  Month m;
+  CHECK_THROWS_WITH_AS(propose(m.db, month_rule("[scope]\naccounts = [\"Nope\"]\n")),
+                       "month.toml:2: key 'scope.accounts': no account named 'Nope' in the "
+                       "ledger (accounts: Main)",
+                       InputError);
+}
+
+TEST_CASE("propose: a metric with no data is refused with the nearest stored one") {
+  Month m;
+  CHECK_THROWS_WITH_AS(
+      propose(m.db, month_rule("[scope]\naccounts = [\"Main\"]\n[screen]\nmetric = \"pee\"\n")),
+      "month.toml:4: key 'screen.metric': the ledger holds no figures for metric 'pee'; did you "
+      "mean 'pe'?",
+      InputError);
+}
+
+TEST_CASE("propose: an unknown symbol or sector is named at its key") {
+  Month m;
+  CHECK_THROWS_WITH_AS(
+      propose(m.db, month_rule("[scope]\naccounts = [\"Main\"]\nsymbols = [\"A\", \"QQ\"]\n")),
+      "month.toml:3: key 'scope.symbols': no security 'QQ' in the ledger", InputError);
+  CHECK_THROWS_WITH_AS(
+      propose(m.db, month_rule("[scope]\naccounts = [\"Main\"]\nsector = \"Power\"\n")),
+      "month.toml:3: key 'scope.sector': no stock in the ledger has sector 'Power'", InputError);
+}
+
+TEST_CASE("propose: an empty pool is refused") {
+  Month m;
+  m.account("Empty");
+  CHECK_THROWS_WITH_AS(propose(m.db, month_rule("[scope]\naccounts = [\"Empty\"]\n")),
+                       "month.toml:2: key 'scope.accounts': the accounts Empty hold nothing to "
+                       "invest on 2024-05-31 (value 0); deposit cash first",
+                       InputError);
+}
+
+TEST_CASE("propose: reading and saving leave the rest of the ledger as it was") {
+  Month m;
+  const std::string before = m.dump();
+  const auto p = propose(m.db, month_rule());
+  CHECK(m.dump() == before);
+  const Rule r = month_rule();
+  const auto id = save(m.db, r, p);
+  CHECK(id == 1);
+  const auto row = store::find_proposal(m.db, id);
+  REQUIRE(row);
+  CHECK(row->rule_text == kMonthRule);
+  CHECK(row->rule_sha256.size() == 64);
+  CHECK(row->orders.size() == 5);
+  CHECK(row->orders[0].lots.size() == 1);
+}
+
+TEST_CASE("review: proposed orders against the trades posted since") {
+  Month m;
+  const Rule r = month_rule();
+  const auto p = propose(m.db, r);
+  const auto id = save(m.db, r, p);
+  m.sell("2024-06-03", "Main", "D", "50", "38.5");
+  m.buy("2024-06-03", "Main", "A", "100", "25.1");
+  m.buy("2024-06-03", "Main", "E", "10", "10");
+  const auto rv = review(m.db, id);
+  REQUIRE(rv.lines.size() == 6);
+  CHECK(rv.lines[0].symbol == "D");
+  CHECK(rv.lines[0].status == "done");
+  CHECK(*rv.lines[0].avg_price == dec("38.5"));
+  CHECK(rv.lines[1].symbol == "BOND");
+  CHECK(rv.lines[1].status == "not traded");
+  CHECK(rv.lines[2].symbol == "A");
+  CHECK(rv.lines[2].status == "partly");
+  CHECK(rv.lines[2].traded == Decimal(100));
+  CHECK(rv.lines[5].symbol == "E");
+  CHECK(rv.lines[5].status == "not proposed");
+  CHECK(rv.lines[5].proposed.is_zero());
+  CHECK_THROWS_WITH_AS(review(m.db, 7), "no saved proposal 7; see 'keel proposals list'",
+                       InputError);
+}
+
+// ------------------------------------------------------- property checks
+
+namespace {
+
+struct Rng {
+  std::uint64_t s;
+  std::uint64_t next() {
+    s = s * 6364136223846793005ULL + 1442695040888963407ULL;
+    return s >> 33;
+  }
+  int range(int lo, int hi) { return lo + static_cast<int>(next() % (hi - lo + 1)); }
+};
+
+const char* kVariants[] = {
+    // equal weights by z, fees, a reserve, a drift band
+    R"([scope]
+accounts = ["Taxable", "Retirement"]
+[screen]
+min_names = 10
+[select]
+z_max = -0.3
+exit_z = 0.3
+[trading]
+fee_fixed = 1
+fee_bps = 5
+cash_reserve_pct = 1.5
+lot_order = "losses-first"
+)",
+    // a tilt with a cap, by count, no band, larger fees
+    R"([scope]
+accounts = ["Taxable", "Retirement"]
+[select]
+by = "count"
+count = 12
+[weights]
+scheme = "tilt"
+tilt = 0.7
+max_weight_pct = 12
+[[sleeve]]
+symbol = "FUND"
+weight_pct = 15
+[trading]
+fee_fixed = 4.95
+fee_bps = 10
+lot_order = "long-held"
+)",
+    // top share, a minimum trade, fractional units
+    R"([scope]
+accounts = ["Taxable", "Retirement"]
+[screen]
+cheap = "high"
+winsorize_pct = [5, 95]
+[select]
+by = "top_pct"
+top_pct = 30
+[trading]
+min_trade = 250
+fractional = true
+fee_bps = 3
+drift_pct_points = 0.5
+)",
+};
+
+struct Generated : Market {
+  explicit Generated(std::uint64_t seed) {
+    Rng rng{seed};
+    account("Taxable");
+    account("Retirement");
+    for (int i = 0; i < 40; ++i) stock(fmt::format("S{:02d}", i), i % 7 == 3 ? "5" : "1");
+    stock("FUND", "1", SecurityKind::fund);
+    cash(TxnKind::deposit, "2024-01-02", "Taxable",
+         std::to_string(rng.range(20000, 90000)).c_str());
+    cash(TxnKind::deposit, "2024-01-02", "Retirement",
+         std::to_string(rng.range(5000, 40000)).c_str());
+    std::vector<std::tuple<std::string, std::string, std::string>> prices;
+    std::vector<std::tuple<std::string, std::string, std::string, std::string>> pe;
+    for (int i = 0; i < 40; ++i) {
+      const std::string sym = fmt::format("S{:02d}", i);
+      prices.push_back(
+          {sym, "2024-01-03", fmt::format("{}.{:02d}", rng.range(5, 300), rng.range(0, 99))});
+      prices.push_back(
+          {sym, "2024-05-31", fmt::format("{}.{:02d}", rng.range(5, 300), rng.range(0, 99))});
+      pe.push_back({sym, "2024-03-31", "2024-04-30",
+                    fmt::format("{}.{}", rng.range(-5, 45), rng.range(0, 9))});
+    }
+    prices.push_back({"FUND", "2024-01-03", "50"});
+    prices.push_back({"FUND", "2024-05-31", "51.37"});
+    closes(prices);
+    figures("pe", pe);
+    // Earlier buys at January's prices, in both accounts and in several lots.
+    for (int k = 0; k < 12; ++k) {
+      const int i = rng.range(0, 39);
+      const std::string sym = fmt::format("S{:02d}", i);
+      const std::string price = std::get<2>(prices[2 * static_cast<std::size_t>(i)]);
+      const char* acct = k % 3 == 0 ? "Retirement" : "Taxable";
+      const int qty = (i % 7 == 3 ? 5 : 1) * rng.range(1, 6);
+      buy(fmt::format("2024-01-{:02d}", 3 + k).c_str(), acct, sym, std::to_string(qty).c_str(),
+          price.c_str(), "1");
+    }
+  }
+};
+
+}  // namespace
+
+TEST_CASE("property: no proposal overspends or oversells, and a second one finds nothing") {
+  for (std::uint64_t seed = 1; seed <= 8; ++seed)
+    for (const char* text : kVariants) {
+      CAPTURE(seed);
+      CAPTURE(text);
+      Generated g(seed);
+      const Rule r = parse_rule(text, "p.toml");
+      const auto p = propose(g.db, r);
+      REQUIRE_FALSE(p.plan.orders.empty());
+      // Sells never exceed holdings; cash after is never below zero.
+      const Book book = g.book();
+      std::map<std::pair<std::int64_t, std::int64_t>, Decimal> sold;
+      for (const auto& o : p.plan.orders)
+        if (o.side == Side::sell) sold[{o.account_id, o.security_id}] += o.quantity;
+      for (const auto& [key, qty] : sold) {
+        const auto& positions = book.account(key.first).positions;
+        REQUIRE(positions.count(key.second));
+        CHECK(qty <= positions.at(key.second).quantity());
+      }
+      for (const auto& c : p.plan.cash_after) CHECK_FALSE(c.cash.is_negative());
+      // Posting the orders is accepted by the ledger's own guard rails.
+      g.post_orders(p);
+      const auto again = propose(g.db, r);
+      CHECK(again.plan.orders.empty());
+      for (const auto& o : again.plan.orders)
+        MESSAGE(o.account << " " << o.symbol << " " << std::string(to_string(o.side)) << " "
+                          << o.quantity.str() << ": " << o.reason);
+    }
+}

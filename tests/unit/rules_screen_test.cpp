@@ -1,0 +1,190 @@
+// The screen: exclusions, winsorizing, z-scores and selection with its
+// hysteresis band. Expected z values follow from the textbook formula
+// z = (x - mean) / s with the sample standard deviation s (n - 1); for
+// 6, 8, 10, 12, 14 the mean is 10 and s = sqrt(40 / 4) = sqrt(10).
+#include <doctest/doctest.h>
+
+#include <cmath>
+
+#include "core/error.h"
+#include "rules/engine.h"
+
+using namespace keel;
+using namespace keel::rules;
+
+namespace {
+
+const Date kAsOf = Date::parse("2024-05-31");
+
+Rule rule(const std::string& extra = "") {
+  return parse_rule("[scope]\naccounts = [\"Main\"]\n" + extra, "r.toml");
+}
+
+Candidate name(const std::string& symbol, const char* value, bool held = false,
+               const char* period = "2024-03-31") {
+  static std::int64_t next = 1;
+  Candidate c;
+  c.security_id = next++;
+  c.symbol = symbol;
+  c.figure = Figure{Decimal::parse(value), Date::parse(period), Date::parse("2024-04-30")};
+  c.has_price = true;
+  c.held = held;
+  return c;
+}
+
+// A, B, C, D, E with values 6, 8, 10, 12, 14.
+std::vector<Candidate> five(bool c_held = false, bool d_held = false) {
+  return {name("A", "6"), name("B", "8"), name("C", "10", c_held), name("D", "12", d_held),
+          name("E", "14")};
+}
+
+const ScreenLine& line(const ScreenResult& r, const std::string& symbol) {
+  for (const auto& l : r.lines)
+    if (l.symbol == symbol) return l;
+  throw std::runtime_error("no line " + symbol);
+}
+
+}  // namespace
+
+TEST_CASE("screen: z-scores use the sample standard deviation") {
+  const auto r = screen(rule(), kAsOf, five());
+  CHECK(r.passed == 5);
+  CHECK(r.mean == doctest::Approx(10.0).epsilon(1e-15));
+  CHECK(r.sd == doctest::Approx(std::sqrt(10.0)).epsilon(1e-15));
+  CHECK(*line(r, "A").z == doctest::Approx(-4.0 / std::sqrt(10.0)).epsilon(1e-15));
+  CHECK(*line(r, "B").z == doctest::Approx(-2.0 / std::sqrt(10.0)).epsilon(1e-15));
+  CHECK(*line(r, "C").z == doctest::Approx(0.0));
+  CHECK(*line(r, "E").z == doctest::Approx(4.0 / std::sqrt(10.0)).epsilon(1e-15));
+}
+
+TEST_CASE("screen: when high is cheap the z-score is negated") {
+  const auto r = screen(rule("[screen]\ncheap = \"high\"\n"), kAsOf, five());
+  CHECK(*line(r, "E").z == doctest::Approx(-4.0 / std::sqrt(10.0)).epsilon(1e-15));
+  CHECK(r.lines.front().symbol == "E");
+}
+
+TEST_CASE("screen: passing names come by z, the excluded after them by symbol") {
+  auto c = five();
+  c.push_back(name("Z", "-1"));
+  c.push_back(name("Y", "0"));
+  const auto r = screen(rule(), kAsOf, c);
+  std::vector<std::string> order;
+  for (const auto& l : r.lines) order.push_back(l.symbol);
+  CHECK(order == std::vector<std::string>{"A", "B", "C", "D", "E", "Y", "Z"});
+}
+
+TEST_CASE("screen: each exclusion says why") {
+  auto c = five();
+  Candidate none;
+  none.security_id = 900;
+  none.symbol = "NOFIG";
+  none.has_price = true;
+  c.push_back(none);
+  c.push_back(name("OLD", "9", false, "2023-10-31"));
+  c.push_back(name("NEG", "-3.5"));
+  auto no_close = name("NOCLOSE", "9");
+  no_close.has_price = false;
+  c.push_back(no_close);
+  const auto r = screen(rule(), kAsOf, c);
+  CHECK(r.passed == 5);
+  CHECK(line(r, "NOFIG").excluded_reason == "no 'pe' figure known on 2024-05-31");
+  CHECK(line(r, "OLD").excluded_reason ==
+        "stale: the figure for 2023-10-31 is 213 days old (max 180)");
+  CHECK(line(r, "NEG").excluded_reason == "not positive (-3.5)");
+  CHECK(line(r, "NOCLOSE").excluded_reason == "no close on or before 2024-05-31");
+  CHECK_FALSE(line(r, "NEG").z);
+  CHECK_FALSE(line(r, "NEG").selected);
+}
+
+TEST_CASE("screen: non-positive values pass when the rule keeps them") {
+  auto c = five();
+  c.push_back(name("NEG", "-3.5"));
+  const auto r = screen(rule("[screen]\nexclude_non_positive = false\n"), kAsOf, c);
+  CHECK(r.passed == 6);
+  CHECK(line(r, "NEG").passed);
+}
+
+TEST_CASE("screen: fewer names than the minimum is refused") {
+  std::vector<Candidate> c{name("A", "6"), name("B", "8"), name("C", "10")};
+  CHECK_THROWS_WITH_AS(screen(rule(), kAsOf, c),
+                       "r.toml: key 'screen.min_names' (default 5): only 3 names pass the screen "
+                       "on 2024-05-31; the rule needs at least 5",
+                       InputError);
+}
+
+TEST_CASE("screen: identical values leave nothing to score") {
+  std::vector<Candidate> c{name("A", "7"), name("B", "7"), name("C", "7"), name("D", "7"),
+                           name("E", "7")};
+  CHECK_THROWS_WITH_AS(screen(rule(), kAsOf, c),
+                       "r.toml: key 'screen.metric' (default \"pe\"): all 5 names passing the "
+                       "screen on 2024-05-31 have the same value; z-scores need some spread",
+                       InputError);
+}
+
+TEST_CASE("screen: winsorizing clips at linearly interpolated percentiles") {
+  // numpy.percentile([1, 2, 3, 4, 5], [10, 90]) = [1.4, 4.6] (linear: h = (n-1)p).
+  std::vector<Candidate> c{name("A", "1"), name("B", "2"), name("C", "3"), name("D", "4"),
+                           name("E", "5")};
+  const auto r = screen(rule("[screen]\nwinsorize_pct = [10, 90]\n"), kAsOf, c);
+  CHECK(*r.clip_low == doctest::Approx(1.4).epsilon(1e-15));
+  CHECK(*r.clip_high == doctest::Approx(4.6).epsilon(1e-15));
+  CHECK(*line(r, "A").value == doctest::Approx(1.4).epsilon(1e-15));
+  CHECK(*line(r, "C").value == 3.0);
+  CHECK(r.mean == doctest::Approx(3.0).epsilon(1e-15));
+}
+
+TEST_CASE("screen: an outlier is clipped before the z-score") {
+  std::vector<Candidate> c{name("A", "1"), name("B", "2"), name("C", "3"), name("D", "4"),
+                           name("E", "100")};
+  const auto r = screen(rule("[screen]\nwinsorize_pct = [0, 75]\n"), kAsOf, c);
+  CHECK(*r.clip_high == 4.0);  // h = 4 x 0.75 = 3: the fourth value
+  CHECK(*line(r, "E").value == 4.0);
+  CHECK(r.mean == doctest::Approx(2.8).epsilon(1e-15));
+}
+
+TEST_CASE("selection by z: at or below the threshold") {
+  const auto r = screen(rule(), kAsOf, five());
+  CHECK(r.selected == 2);
+  CHECK(line(r, "A").selected);
+  CHECK(line(r, "A").note == "z = -1.26 <= -0.50");
+  CHECK(line(r, "B").selected);
+  CHECK_FALSE(line(r, "C").selected);
+  CHECK(line(r, "C").note == "z = 0.00 > -0.50");
+}
+
+TEST_CASE("selection by count: the cheapest names by rank") {
+  const auto r = screen(rule("[select]\nby = \"count\"\ncount = 2\n"), kAsOf, five());
+  CHECK(r.selected == 2);
+  CHECK(line(r, "B").note == "z = -0.63, rank 2 <= 2");
+  CHECK(line(r, "C").note == "z = 0.00, rank 3 > 2");
+}
+
+TEST_CASE("selection by top_pct: ceil of the share of passing names") {
+  const auto thirty = screen(rule("[select]\nby = \"top_pct\"\ntop_pct = 30\n"), kAsOf, five());
+  CHECK(thirty.selected == 2);  // ceil(1.5)
+  const auto twenty = screen(rule("[select]\nby = \"top_pct\"\ntop_pct = 20\n"), kAsOf, five());
+  CHECK(twenty.selected == 1);  // exactly 1, not ceil(1.0000000001)
+  const auto tiny = screen(rule("[select]\nby = \"top_pct\"\ntop_pct = 0.1\n"), kAsOf, five());
+  CHECK(tiny.selected == 1);
+}
+
+TEST_CASE("selection: a held name stays inside the exit band and leaves past it") {
+  const auto r = screen(rule("[select]\nz_max = -0.5\nexit_z = 0.5\n"), kAsOf, five(true, true));
+  CHECK(line(r, "C").selected);
+  CHECK(line(r, "C").note == "held; z = 0.00 <= exit 0.50");
+  CHECK_FALSE(line(r, "D").selected);
+  CHECK(line(r, "D").note == "held; z = 0.63 > exit 0.50");
+  CHECK(r.selected == 3);
+}
+
+TEST_CASE("selection: without a band a held name is judged like any other") {
+  const auto r = screen(rule(), kAsOf, five(true));
+  CHECK_FALSE(line(r, "C").selected);
+}
+
+TEST_CASE("selection: a threshold that selects nothing is refused") {
+  CHECK_THROWS_WITH_AS(screen(rule("[select]\nz_max = -2\n"), kAsOf, five()),
+                       "r.toml:4: key 'select.z_max': selects no name on 2024-05-31: the lowest z "
+                       "among the 5 names passing the screen is -1.26",
+                       InputError);
+}
