@@ -9,6 +9,7 @@
 #include "core/error.h"
 #include "core/text.h"
 #include "io/errors.h"
+#include "io/ledger_intake.h"
 #include "io/market_intake.h"
 #include "store/market_data.h"
 
@@ -41,10 +42,12 @@ class Progress {
 };
 
 void add_import(CLI::App& app, Context& ctx) {
-  auto* cmd = app.add_subcommand("import", "Read market data from a CSV file into the ledger");
+  auto* cmd = app.add_subcommand("import", "Read a CSV file into the ledger, all or nothing");
   static std::string what, file, mapping;
   static bool dry_run = false, replace = false, quiet = false;
-  cmd->add_option("WHAT", what, "securities, prices, metrics, distributions or splits")->required();
+  cmd->add_option("WHAT", what,
+                  "accounts, transactions, securities, prices, metrics, distributions or splits")
+      ->required();
   cmd->add_option("FILE", file, "CSV file (keel's layout, or another described by --map)")
       ->required();
   cmd->add_option("--map", mapping, "TOML file describing the file's layout");
@@ -52,11 +55,26 @@ void add_import(CLI::App& app, Context& ctx) {
   cmd->add_flag("--replace", replace, "Overwrite stored values that differ from the file");
   cmd->add_flag("--quiet", quiet, "No progress display");
   cmd->callback([&ctx] {
-    const io::MarketKind kind = io::parse_market_kind(what);
     io::ImportOptions options;
     if (!mapping.empty()) options.mapping = io::Mapping::load(mapping);
     options.dry_run = dry_run;
     options.replace = replace;
+    if (what == "transactions" || what == "accounts") {
+      auto db = ctx.open_ledger();
+      io::LedgerImportSummary sum;
+      try {
+        sum = what == "accounts" ? io::import_accounts(db, file, options)
+                                 : io::import_transactions(db, file, options);
+      } catch (const io::ImportRefused& e) {
+        for (const auto& line : e.lines()) std::fputs((line + "\n").c_str(), stderr);
+        throw;
+      }
+      out(fmt::format("{}: {} rows read; {} {}, {} already booked{}\n", printable(sum.file),
+                      sum.rows, sum.dry_run ? "would add" : "added", sum.added, sum.already_booked,
+                      sum.dry_run ? " (dry run: nothing was changed)" : ""));
+      return;
+    }
+    const io::MarketKind kind = io::parse_market_kind(what);
     auto db = ctx.open_ledger();
     io::ImportSummary sum;
     {
@@ -87,15 +105,19 @@ void add_import(CLI::App& app, Context& ctx) {
 }
 
 void add_export(CLI::App& app, Context& ctx) {
-  auto* cmd = app.add_subcommand("export", "Write market data from the ledger as CSV or JSON");
+  auto* cmd = app.add_subcommand("export", "Write ledger or market data as CSV or JSON");
   static std::string what, file;
   static bool csv = false, json = false;
-  cmd->add_option("WHAT", what, "securities, prices, metrics, distributions or splits")->required();
+  cmd->add_option("WHAT", what,
+                  "accounts, transactions, securities, prices, metrics, distributions or splits")
+      ->required();
   auto* c = cmd->add_flag("--csv", csv, "CSV in keel's import layout (the default)");
   cmd->add_flag("--json", json, "A JSON array of objects; numbers as exact strings")->excludes(c);
   cmd->add_option("--out", file, "Write to this file instead of standard output");
   cmd->callback([&ctx] {
-    const io::MarketKind kind = io::parse_market_kind(what);
+    const bool ledger_data = what == "transactions" || what == "accounts";
+    const std::string kind_name =
+        ledger_data ? what : std::string(to_string(io::parse_market_kind(what)));
     auto db = ctx.open_ledger();
     std::FILE* f = stdout;
     if (!file.empty()) {
@@ -104,7 +126,13 @@ void add_export(CLI::App& app, Context& ctx) {
     }
     std::uint64_t rows = 0;
     try {
-      rows = io::export_market(db, kind, json ? io::ExportFormat::json : io::ExportFormat::csv, f);
+      const auto format = json ? io::ExportFormat::json : io::ExportFormat::csv;
+      if (what == "transactions")
+        rows = io::export_transactions(db, format, f);
+      else if (what == "accounts")
+        rows = io::export_accounts(db, format, f);
+      else
+        rows = io::export_market(db, io::parse_market_kind(what), format, f);
     } catch (...) {
       if (f != stdout) std::fclose(f);
       throw;
@@ -112,7 +140,7 @@ void add_export(CLI::App& app, Context& ctx) {
     if (f != stdout) {
       if (std::fclose(f) != 0) throw InputError(fmt::format("{}: cannot write", printable(file)));
       std::fputs(
-          fmt::format("{} {} rows written to {}\n", rows, to_string(kind), printable(file)).c_str(),
+          fmt::format("{} {} rows written to {}\n", rows, kind_name, printable(file)).c_str(),
           stderr);
     }
   });

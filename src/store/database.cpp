@@ -12,8 +12,6 @@
 namespace keel::store {
 namespace fs = std::filesystem;
 
-namespace {
-
 void create_private_file(const fs::path& path) {
   if (path.has_parent_path() && !fs::exists(path.parent_path())) {
     std::error_code ec;
@@ -32,6 +30,8 @@ void create_private_file(const fs::path& path) {
   std::fclose(f);
   ::chmod(path.c_str(), 0600);
 }
+
+namespace {
 
 void check_permissions(const fs::path& path) {
   struct stat st {};

@@ -44,6 +44,10 @@ class Database {
   std::filesystem::path path_;
 };
 
+// Creates an empty file readable and writable by the owner only (0600), and
+// its missing parent folders with 0700. Throws LedgerError.
+void create_private_file(const std::filesystem::path& path);
+
 // RAII write transaction taken with BEGIN IMMEDIATE, so two writers never
 // deadlock halfway: the second waits up to the busy timeout, then fails with
 // LedgerError("ledger is busy"). Rolls back unless commit() was called;

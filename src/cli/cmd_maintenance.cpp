@@ -1,0 +1,69 @@
+// Commands that look after the ledger file: verify, backup, restore.
+#include <fmt/format.h>
+
+#include <memory>
+
+#include "cli/context.h"
+#include "core/error.h"
+#include "ledger/restore.h"
+#include "ledger/verify.h"
+#include "store/maintenance.h"
+
+namespace keel::cli {
+namespace {
+
+void add_verify(CLI::App& app, Context& ctx) {
+  auto* cmd = app.add_subcommand(
+      "verify", "Check the ledger file and recount every balance from the raw transactions");
+  cmd->callback([&ctx] {
+    auto db = ctx.open_ledger();
+    const auto report = ledger::verify(db);
+    std::string text;
+    for (const auto& p : report.problems) text += "problem: " + p + "\n";
+    for (const auto& w : report.warnings) text += "warning: " + w + "\n";
+    out(text);
+    if (!report.ok())
+      throw LedgerError(fmt::format("{}: {} problem{} found", db.path().string(),
+                                    report.problems.size(),
+                                    report.problems.size() == 1 ? "" : "s"));
+    out(fmt::format("ledger {} verified: {} accounts, {} transactions, {} warning{}\n",
+                    db.path().string(), report.accounts, report.transactions,
+                    report.warnings.size(), report.warnings.size() == 1 ? "" : "s"));
+  });
+}
+
+void add_backup(CLI::App& app, Context& ctx) {
+  auto file = std::make_shared<std::string>();
+  auto* cmd = app.add_subcommand("backup",
+                                 "Copy the ledger to a new file, safely even while keel is in use");
+  cmd->add_option("FILE", *file, "The backup file to create (must not exist)")->required();
+  cmd->callback([&ctx, file] {
+    auto db = ctx.open_ledger();
+    store::backup_to(db, *file);
+    out(fmt::format("backed up {} to {}\n", db.path().string(), *file));
+  });
+}
+
+void add_restore(CLI::App& app, Context& ctx) {
+  auto file = std::make_shared<std::string>();
+  auto* cmd = app.add_subcommand(
+      "restore", "Replace the ledger with a backup, after checking it; the old file is kept");
+  cmd->add_option("FILE", *file, "The backup to restore")->required();
+  cmd->callback([&ctx, file] {
+    const auto result = ledger::restore_backup(ctx.ledger_path(), *file);
+    out(fmt::format("restored {} from {} ({} transactions)\n", ctx.ledger_path().string(), *file,
+                    result.transactions));
+    if (result.replaced_kept_at)
+      out(fmt::format("the ledger it replaced is kept at {}\n", result.replaced_kept_at->string()));
+  });
+}
+
+}  // namespace
+
+void register_maintenance_commands(CLI::App& app, Context& ctx) {
+  add_verify(app, ctx);
+  add_backup(app, ctx);
+  add_restore(app, ctx);
+}
+
+}  // namespace keel::cli

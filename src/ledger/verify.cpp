@@ -1,0 +1,140 @@
+#include "ledger/verify.h"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <map>
+
+#include "core/error.h"
+#include "core/text.h"
+#include "ledger/posting.h"
+#include "store/ledger_store.h"
+#include "store/maintenance.h"
+
+namespace keel::ledger {
+namespace {
+
+struct Recount {
+  std::map<std::int64_t, Decimal> cash;                            // by account
+  std::map<std::pair<std::int64_t, std::int64_t>, Decimal> units;  // (account, security)
+};
+
+// Cash and units from the raw rows, without the lot engine.
+Recount recount(const LedgerLog& log) {
+  const auto voided = voided_ids(log.transactions);
+  std::vector<const Transaction*> live;
+  for (const auto& t : log.transactions)
+    if (t.kind != TxnKind::void_entry && !voided.count(t.id)) live.push_back(&t);
+  std::stable_sort(live.begin(), live.end(),
+                   [](const Transaction* a, const Transaction* b) { return a->date < b->date; });
+  std::vector<const Split*> splits;
+  for (const auto& s : log.splits) splits.push_back(&s);
+  std::stable_sort(splits.begin(), splits.end(),
+                   [](const Split* a, const Split* b) { return a->date < b->date; });
+  Recount r;
+  std::size_t next_split = 0;
+  auto apply_splits_through = [&](Date day) {
+    for (; next_split < splits.size() && splits[next_split]->date <= day; ++next_split)
+      for (auto& [key, units] : r.units)
+        if (key.second == splits[next_split]->security_id) units *= splits[next_split]->ratio;
+  };
+  for (const Transaction* t : live) {
+    apply_splits_through(t->date);
+    Decimal& cash = r.cash[t->account_id];
+    const Decimal gross = t->quantity && t->price ? *t->quantity * *t->price : Decimal();
+    auto units = [&]() -> Decimal& { return r.units[{t->account_id, *t->security_id}]; };
+    switch (t->kind) {
+      case TxnKind::deposit:
+      case TxnKind::dividend:
+      case TxnKind::interest:
+        cash += *t->amount;
+        break;
+      case TxnKind::withdrawal:
+      case TxnKind::tax:
+      case TxnKind::fee:
+        cash -= *t->amount;
+        break;
+      case TxnKind::buy:
+        cash -= gross + t->fee;
+        units() += *t->quantity;
+        break;
+      case TxnKind::sell:
+        cash += gross - t->fee;
+        units() -= *t->quantity;
+        break;
+      case TxnKind::transfer_in:
+        if (t->security_id) {
+          units() += *t->quantity;
+          cash -= t->fee;
+        } else {
+          cash += *t->amount;
+        }
+        break;
+      case TxnKind::transfer_out:
+        if (t->security_id) {
+          units() -= *t->quantity;
+          cash -= t->fee;
+        } else {
+          cash -= *t->amount;
+        }
+        break;
+      case TxnKind::void_entry:
+        break;
+    }
+  }
+  apply_splits_through(Date::from_ymd(9999, 12, 31));
+  return r;
+}
+
+}  // namespace
+
+VerifyReport verify(store::Database& db) {
+  VerifyReport report;
+  report.problems = store::sqlite_problems(db);
+  if (!report.problems.empty()) return report;  // nothing above a damaged file can be trusted
+  const LedgerLog log = load_log(db);
+  report.transactions = log.transactions.size();
+  report.accounts = log.accounts.size();
+  std::map<std::int64_t, std::string> symbols;
+  for (const auto& s : store::list_securities(db)) symbols[s.id] = s.symbol;
+
+  for (const auto& t : log.transactions)
+    if (t.link_id) {
+      const bool partner_ok =
+          std::any_of(log.transactions.begin(), log.transactions.end(), [&](const Transaction& o) {
+            return o.id == *t.link_id && o.kind == TxnKind::transfer_out;
+          });
+      if (!partner_ok)
+        report.problems.push_back(
+            fmt::format("transaction {} is the receiving half of transfer {}, which is missing",
+                        t.id, *t.link_id));
+    }
+  try {
+    const Book book = replay(log);
+    const Recount counted = recount(log);
+    for (const auto& account : log.accounts) {
+      const AccountBook& held = book.account(account.id);
+      const auto cash_it = counted.cash.find(account.id);
+      const Decimal cash = cash_it == counted.cash.end() ? Decimal() : cash_it->second;
+      if (cash != held.cash)
+        report.problems.push_back(
+            fmt::format("cash of '{}': the rows add up to {}, the lots say {}",
+                        printable(account.name), cash.str(), held.cash.str()));
+      for (const auto& [key, units] : counted.units) {
+        if (key.first != account.id) continue;
+        const auto pos = held.positions.find(key.second);
+        const Decimal lots = pos == held.positions.end() ? Decimal() : pos->second.quantity();
+        if (lots != units)
+          report.problems.push_back(
+              fmt::format("{} in '{}': the rows add up to {} units, the lots hold {}",
+                          symbols[key.second], printable(account.name), units.str(), lots.str()));
+      }
+    }
+  } catch (const InputError& e) {
+    report.problems.push_back(std::string("replay: ") + e.what());
+  }
+  report.warnings = store::data_warnings(db);
+  return report;
+}
+
+}  // namespace keel::ledger
