@@ -1,0 +1,130 @@
+// Back-test: a rule run month by month over stored history, point in time,
+// on a simulated pool, next to an equal-weight baseline of every eligible
+// name. Methods and cautions: docs/backtest.md.
+//
+// Contract
+//  - At each rebalancing day (history.h: rebalance_days, every
+//    rule.rebalance_months) the rule engine (rules::screen, targets, and in
+//    the normal mode rules::orders and apply) sees only figures with
+//    known_on <= that day and closes on or before it. Orders fill at that
+//    close with the rule's fee model. Between rebalances holdings are kept.
+//  - A day on which the rule selects nothing (too few names pass, nothing
+//    selected, weights that cannot add up) moves the pool to cash, with a
+//    note naming the day and the reason.
+//  - Splits multiply units at the start of their date. A distribution is
+//    cash per unit held at the start of its ex-date: in the normal mode it
+//    is owed from the ex-date (counted in the value) and becomes cash on the
+//    first trading day on or after its pay date; in the frictionless mode it
+//    is reinvested in the same security at the ex-date's close.
+//  - Frictionless mode: no fees, bands, minimum trade, cash reserve or lot
+//    rounding; the pool is fully invested in the targets' weights (scaled to
+//    sum to one), units to 20 decimal places; all cash while nothing is
+//    selected.
+//  - The pool is valued at every day with any close in [from, to]; the value
+//    on the day before `from` is the start value. Returns, volatility and
+//    drawdown come from perf::measure on that series (no external flows).
+//  - Throws InputError naming the option for from > to, a start value that
+//    is not positive, no close in the period, an unknown or unpriced
+//    benchmark, and a rolling window outside 1..600 months; rule problems are
+//    located at the rule key.
+#pragma once
+
+#include <cstdint>
+#include <functional>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "backtest/history.h"
+#include "core/date.h"
+#include "core/decimal.h"
+#include "perf/performance.h"
+#include "rules/engine.h"
+#include "rules/rule.h"
+#include "store/database.h"
+
+namespace keel::backtest {
+
+struct Request {
+  Date from;
+  Date to;
+  Decimal start_value{100000};
+  std::optional<std::string> benchmark;  // a security's symbol
+  bool frictionless = false;
+  int rolling_months = 12;
+  // Called after each rebalancing day: (done, total, day).
+  std::function<void(std::size_t, std::size_t, Date)> progress;
+};
+
+struct CurvePoint {
+  Date day;
+  Decimal value;  // holdings at the day's closes, cash and distributions owed
+  Decimal cash;
+  int names = 0;  // securities held
+};
+
+struct Trade {
+  std::string symbol;
+  rules::Side side = rules::Side::buy;
+  Decimal quantity;
+  Decimal price;
+  Decimal fee;
+};
+
+struct RebalanceDay {
+  Date day;
+  std::size_t passed = 0;
+  std::size_t selected = 0;
+  int names_after = 0;
+  Decimal value_before;
+  Decimal traded;  // bought + sold, at the fills
+  Decimal fees;
+  std::vector<Trade> trades;
+  std::optional<std::string> no_selection;  // why the pool went to cash
+};
+
+struct StrategyRun {
+  std::string label;
+  std::vector<CurvePoint> curve;  // the day before `from`, then every day with a close
+  std::vector<RebalanceDay> rebalances;
+  perf::PerfResult perf;
+  Decimal fees;
+  Decimal distributions;
+  double turnover_per_year = 0;  // sum of (bought + sold) / 2 / value, per 365.25 days
+  int names_min = 0, names_max = 0;
+  double names_mean = 0;  // over rebalancing days, after trading
+};
+
+struct RollingRow {
+  std::string against;  // "benchmark SYMBOL" or "baseline"
+  int months = 0;
+  int windows = 0;
+  int beat = 0;  // windows in which the rule's return was higher
+  std::optional<double> median_excess, worst_excess, best_excess;  // rule - other
+};
+
+struct Result {
+  std::string rule_name;
+  Date from, to;
+  Decimal start_value;
+  bool frictionless = false;
+  std::vector<Date> rebalance_days;
+  StrategyRun rule;
+  StrategyRun baseline;
+  std::optional<std::string> benchmark;
+  std::vector<RollingRow> rolling;
+  std::vector<std::string> notes;
+  std::vector<std::string> cautions;
+};
+
+// The rule for the baseline: every name passing the screen, equal weights,
+// the same sleeves and trading settings.
+rules::Rule baseline_rule(const rules::Rule& rule);
+
+Result run(store::Database& db, const rules::Rule& rule, const Request& request);
+// The same on preloaded history (for tests and repeated runs).
+Result run(const History& history, const rules::Rule& rule, const Request& request);
+
+std::vector<std::string> backtest_cautions();
+
+}  // namespace keel::backtest

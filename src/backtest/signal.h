@@ -1,0 +1,74 @@
+// Signal check: does the rule's score rank the names' later returns?
+//
+// Contract
+//  - At each rebalancing day d (history.h: rebalance_days with the rule's
+//    rebalance_months) the engine's screen (rules::screen, nothing held)
+//    scores the passing names from figures with known_on <= d and closes on
+//    or before d. Each name's forward total return over h months runs from
+//    its close on or before d to its close on or before the last trading day
+//    of the month h months later, which must not be after `to`: splits
+//    multiply the units, cash distributions (ex-date in the window) are added
+//    as cash, not reinvested. A forward return is only ever paired with the
+//    score known at its start.
+//  - Information coefficient (IC) of a day: Spearman's rank correlation of z
+//    with the forward return (average ranks for ties; Pearson's r of the
+//    ranks), as scipy.stats.spearmanr computes it.
+//  - Sign convention: low z is cheap. A rule whose cheap names do better has
+//    a NEGATIVE IC; share_expected_sign counts the days with IC < 0.
+//  - Spread of a day: mean forward return of the cheapest fifth by z (floor(n/5)
+//    names, at least one) minus that of the dearest fifth.
+//  - Per horizon: mean IC, its t-statistic mean / (sd / sqrt(days)) with the
+//    sample sd (nullopt for fewer than two days or no spread), the share of
+//    days with the expected sign, and the mean spread. Days whose screen
+//    refuses (too few names) are skipped with a note.
+//  - Throws InputError naming the option for from > to, or a horizon outside
+//    1..240 months.
+#pragma once
+
+#include <optional>
+#include <span>
+#include <string>
+#include <vector>
+
+#include "backtest/history.h"
+#include "rules/rule.h"
+
+namespace keel::backtest {
+
+struct SignalRequest {
+  Date from;
+  Date to;
+  std::vector<int> horizons{1, 3, 6, 12, 24};
+};
+
+struct SignalDay {
+  Date day;
+  Date end;
+  int names = 0;
+  std::optional<double> ic;  // nullopt when the ranks have no spread
+  double spread = 0;
+};
+
+struct HorizonResult {
+  int months = 0;
+  std::vector<SignalDay> days;
+  int ic_days = 0;
+  std::optional<double> mean_ic, t_stat, share_expected_sign, mean_spread;
+};
+
+struct SignalResult {
+  std::string rule_name;
+  Date from, to;
+  std::vector<HorizonResult> horizons;
+  std::vector<std::string> notes;
+  std::vector<std::string> cautions;
+};
+
+SignalResult signal(const History& history, const rules::Rule& rule, const SignalRequest& request);
+
+// Spearman's rank correlation (average ranks for ties); nullopt when fewer
+// than two pairs or either side has no spread. Throws std::invalid_argument
+// for unequal lengths.
+std::optional<double> spearman(std::span<const double> x, std::span<const double> y);
+
+}  // namespace keel::backtest

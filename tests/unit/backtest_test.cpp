@@ -1,0 +1,192 @@
+// Back-test and signal check: no look-ahead, rebalancing days, Spearman's rho.
+#include "backtest/backtest.h"
+
+#include <doctest/doctest.h>
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <string>
+#include <tuple>
+#include <vector>
+
+#include "backtest/signal.h"
+#include "ledger_fixture.h"
+#include "rules/rule.h"
+#include "store/market_data.h"
+
+namespace {
+
+using keel::Date;
+using keel::Decimal;
+using keel::testing::day;
+namespace bt = keel::backtest;
+
+constexpr const char* kRule = R"(
+name = "Low P/E test"
+[scope]
+accounts = ["Sim"]
+[screen]
+metric = "pe"
+min_names = 5
+[select]
+by = "z"
+z_max = -0.3
+[trading]
+fee_fixed = 1
+fee_bps = 5
+)";
+
+struct Market {
+  keel::testing::LedgerFixture f;
+  std::vector<std::string> symbols;
+
+  Market() {
+    for (int i = 0; i < 8; ++i) {
+      symbols.push_back(fmt::format("S{}", i));
+      f.security(symbols.back());
+    }
+    // Weekday closes from 2024-01-01 to 2024-04-30, each name on its own path.
+    int n = 0;
+    for (Date d = day("2024-01-01"); d <= day("2024-04-30"); d = d.plus_days(1)) {
+      const int wd = (d.days_since_epoch() + 4) % 7;  // 0 = Sunday
+      if (wd == 0 || wd == 6) continue;
+      ++n;
+      for (int i = 0; i < 8; ++i)
+        prices(symbols[i], d.str(),
+               fmt::format("{}.{:02d}", 20 + i * 3 + (n * (i + 1)) % 7, n % 100));
+    }
+    for (int i = 0; i < 8; ++i)
+      metric(symbols[i], "2023-12-31", "2024-01-05", fmt::format("{}", 8 + i * 2 + (i % 3)));
+  }
+  void prices(const std::string& sym, const std::string& date, const std::string& close,
+              bool replace = false) {
+    keel::store::WriteTransaction tx(f.db);
+    keel::store::MarketWriter w(f.db, replace);
+    w.price(w.security(sym), date, close, 1);
+    w.finish_prices();
+    tx.commit();
+  }
+  void metric(const std::string& sym, const std::string& date, const std::string& known,
+              const std::string& value) {
+    keel::store::WriteTransaction tx(f.db);
+    keel::store::MarketWriter w(f.db, false);
+    std::string existing;
+    w.metric(w.security(sym), "pe", date, known, value, existing);
+    tx.commit();
+  }
+  bt::Result run(bool frictionless = false) {
+    bt::Request req;
+    req.from = day("2024-01-01");
+    req.to = day("2024-03-31");
+    req.frictionless = frictionless;
+    return bt::run(f.db, keel::rules::parse_rule(kRule, "test.toml"), req);
+  }
+};
+
+std::string trades_text(const bt::RebalanceDay& r) {
+  std::string s = r.day.str() + ":";
+  for (const auto& t : r.trades)
+    s += fmt::format(" {} {} {} @{} fee {};", keel::rules::to_string(t.side), t.quantity.str(),
+                     t.symbol, t.price.str(), t.fee.str());
+  return s;
+}
+
+}  // namespace
+
+TEST_CASE("backtest: a figure known after a rebalancing day does not change its orders") {
+  Market m;
+  const std::string before = trades_text(m.run().rule.rebalances.at(0));
+  CHECK(before.find("buy") != std::string::npos);
+  // S7 becomes the cheapest name, but only from 2024-02-01; and a restatement
+  // of the old figure is known from 2024-02-15.
+  m.metric("S7", "2024-01-31", "2024-02-01", "1");
+  m.metric("S0", "2023-12-31", "2024-02-15", "99");
+  const auto after = m.run();
+  CHECK(after.rebalance_days.at(0) == day("2024-01-31"));
+  CHECK(trades_text(after.rule.rebalances.at(0)) == before);
+  // It does count from the next rebalancing day on.
+  CHECK(trades_text(after.rule.rebalances.at(1)).find("buy") != std::string::npos);
+  CHECK(trades_text(after.rule.rebalances.at(1)).find(" S7 @") != std::string::npos);
+}
+
+TEST_CASE("backtest: the same figure known on the rebalancing day does change its orders") {
+  Market m;
+  const std::string before = trades_text(m.run().rule.rebalances.at(0));
+  m.metric("S7", "2024-01-31", "2024-01-31", "1");
+  CHECK(trades_text(m.run().rule.rebalances.at(0)) != before);
+}
+
+TEST_CASE("backtest: closes after a rebalancing day do not change its orders") {
+  Market m;
+  const auto first = m.run();
+  const std::string before = trades_text(first.rule.rebalances.at(0));
+  for (const auto& s : m.symbols) {
+    m.prices(s, "2024-02-01", "500", true);
+    m.prices(s, "2024-03-15", "1.5", true);
+  }
+  const auto after = m.run();
+  CHECK(trades_text(after.rule.rebalances.at(0)) == before);
+  // The changed close does reach the value of its own day.
+  auto value_on = [](const bt::Result& r, Date d) {
+    for (const auto& p : r.rule.curve)
+      if (p.day == d) return p.value;
+    FAIL("no curve point on " << d.str());
+    return Decimal();
+  };
+  CHECK(value_on(after, day("2024-02-01")) != value_on(first, day("2024-02-01")));
+}
+
+TEST_CASE("backtest: a close on the rebalancing day does change its orders") {
+  Market m;
+  const std::string before = trades_text(m.run().rule.rebalances.at(0));
+  for (const auto& s : m.symbols) m.prices(s, "2024-01-31", "77", true);
+  CHECK(trades_text(m.run().rule.rebalances.at(0)) != before);
+}
+
+TEST_CASE("backtest: rebalancing days are each month's last day with a close") {
+  const std::vector<Date> days{day("2024-01-30"), day("2024-01-31"), day("2024-02-28"),
+                               day("2024-03-01"), day("2024-03-28"), day("2024-04-02")};
+  CHECK(bt::rebalance_days(days, day("2024-01-01"), day("2024-03-31"), 1) ==
+        std::vector<Date>{day("2024-01-31"), day("2024-02-28"), day("2024-03-28")});
+  CHECK(bt::rebalance_days(days, day("2024-01-01"), day("2024-04-30"), 2) ==
+        std::vector<Date>{day("2024-01-31"), day("2024-03-28")});
+}
+
+TEST_CASE("backtest: the frictionless pool is fully invested at equal weight") {
+  Market m;
+  const auto r = m.run(true);
+  const auto& first = r.rule.rebalances.at(0);
+  REQUIRE(first.selected > 0);
+  CHECK(first.fees.is_zero());
+  const auto& point = r.rule.curve.at(static_cast<std::size_t>(
+      std::find_if(r.rule.curve.begin(), r.rule.curve.end(),
+                   [&](const bt::CurvePoint& p) { return p.day == first.day; }) -
+      r.rule.curve.begin()));
+  CHECK(point.cash.abs() < Decimal::parse("0.000000001"));
+  CHECK(point.names == static_cast<int>(first.selected));
+}
+
+TEST_CASE("backtest: the report always carries the cautions") {
+  Market m;
+  const auto r = m.run();
+  REQUIRE(r.cautions.size() == 3);
+  CHECK(r.cautions[0].rfind("Back-tests flatter", 0) == 0);
+  CHECK(r.cautions[2].rfind("Past results do not predict", 0) == 0);
+}
+
+// Expected values: scipy.stats.spearmanr 1.10.1 (Debian 12 python3-scipy).
+TEST_CASE("signal: Spearman's rho matches scipy without ties") {
+  const std::vector<double> x{1, 2, 3, 4, 5}, y{5, 6, 7, 8, 7};
+  CHECK(*bt::spearman(x, y) == doctest::Approx(0.8207826816681233).epsilon(1e-14));
+}
+
+TEST_CASE("signal: Spearman's rho matches scipy with ties on both sides") {
+  const std::vector<double> x{3.1, 1.2, 1.2, 4.0, 2.5, 2.5, 0.3};
+  const std::vector<double> y{0.05, -0.02, 0.01, 0.04, 0.0, -0.01, -0.03};
+  CHECK(*bt::spearman(x, y) == doctest::Approx(0.8001322641986389).epsilon(1e-14));
+}
+
+TEST_CASE("signal: Spearman's rho is undefined when one side has no spread") {
+  const std::vector<double> x{1, 2, 3}, y{4, 4, 4};
+  CHECK_FALSE(bt::spearman(x, y).has_value());
+}
