@@ -31,6 +31,7 @@ void register_ledger_commands(CLI::App& app, Context& context);
 void register_report_commands(CLI::App& app, Context& context);
 void register_intake_commands(CLI::App& app, Context& context);
 void register_returns_commands(CLI::App& app, Context& context);
+void register_statement_commands(CLI::App& app, Context& context);
 void register_reference_command(CLI::App& app);  // register last: it reads the others
 
 }  // namespace keel::cli

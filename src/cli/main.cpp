@@ -37,6 +37,7 @@ int main(int argc, char** argv) {
   keel::cli::register_report_commands(app, context);
   keel::cli::register_intake_commands(app, context);
   keel::cli::register_returns_commands(app, context);
+  keel::cli::register_statement_commands(app, context);
   keel::cli::register_reference_command(app);
 
   try {
