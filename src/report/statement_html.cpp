@@ -90,7 +90,7 @@ double nice_step(double span, int target) {
 }
 
 struct Frame {
-  double width = 680, height = 250, left = 52, right = 14, top = 16, bottom = 34;
+  double width = 680, height = 262, left = 52, right = 14, top = 28, bottom = 34;
   double x0() const { return left; }
   double x1() const { return width - right; }
   double y0() const { return height - bottom; }
@@ -125,12 +125,13 @@ std::string legend(const Frame& f, bool benchmark, const std::string& bench_name
   std::string out = fmt::format(
       "<rect x=\"{}\" y=\"{}\" width=\"12\" height=\"4\" fill=\"{}\"/><text x=\"{}\" y=\"{}\" "
       "class=\"legend\">portfolio</text>\n",
-      f1(f.x0() + 8), f1(f.y1() + 2), kCopper, f1(f.x0() + 24), f1(f.y1() + 7));
+      f1(f.x0() + 8), f1(f.y1() - 18), kCopper, f1(f.x0() + 24), f1(f.y1() - 13));
   if (benchmark)
     out += fmt::format(
         "<rect x=\"{}\" y=\"{}\" width=\"12\" height=\"4\" fill=\"{}\"/><text x=\"{}\" y=\"{}\" "
         "class=\"legend\">{}</text>\n",
-        f1(f.x0() + 96), f1(f.y1() + 2), kSage, f1(f.x0() + 112), f1(f.y1() + 7), esc(bench_name));
+        f1(f.x0() + 96), f1(f.y1() - 18), kSage, f1(f.x0() + 112), f1(f.y1() - 13),
+        esc(bench_name));
   return out;
 }
 
@@ -250,15 +251,19 @@ std::string allocation_chart(const Statement& s) {
 }
 
 std::string table_html(const Section& sec) {
-  std::string out = "<table>\n<thead><tr>";
+  // Tables that fit on a page are kept whole; longer ones break between rows.
+  std::string out =
+      sec.rows.size() <= 20 ? "<table class=\"short\">\n<thead><tr>" : "<table>\n<thead><tr>";
   for (const auto& c : sec.columns)
     out += fmt::format("<th{}>{}</th>", c.align == Align::right ? " class=\"num\"" : "",
                        esc(c.heading));
   out += "</tr></thead>\n<tbody>\n";
+  // Rows from the first emphasised one on are totals; a rule goes before each emphasised one.
+  const std::size_t first_total = sec.emphasised.empty() ? sec.rows.size() : sec.emphasised.front();
   for (std::size_t i = 0; i < sec.rows.size(); ++i) {
-    const bool total =
+    const bool ruled =
         std::find(sec.emphasised.begin(), sec.emphasised.end(), i) != sec.emphasised.end();
-    out += total ? "<tr class=\"total\">" : "<tr>";
+    out += i < first_total ? "<tr>" : ruled ? "<tr class=\"total ruled\">" : "<tr class=\"total\">";
     for (std::size_t c = 0; c < sec.rows[i].size(); ++c) {
       const bool num = sec.columns[c].align == Align::right;
       const bool negative =
@@ -296,9 +301,8 @@ h2 {{ font: 600 12.5pt/1.2 "DejaVu Serif", "Noto Serif", "Liberation Serif", ser
 .meta {{ color: var(--slate); margin: 0; }}
 .brief {{ margin: 3mm 0 0; padding: 2mm 3mm; border-left: 3pt solid var(--copper);
          background: #f3ede2; font-size: 9pt; }}
-section {{ break-inside: avoid-page; page-break-inside: avoid; }}
-section.long {{ break-inside: auto; page-break-inside: auto; }}
 table {{ border-collapse: collapse; width: 100%; font-size: 9pt; margin: 1mm 0 2mm; }}
+table.short {{ break-inside: avoid; page-break-inside: avoid; }}
 thead {{ display: table-header-group; }}
 tr {{ break-inside: avoid; page-break-inside: avoid; }}
 th {{ text-align: left; font-weight: 600; color: var(--slate); border-bottom: 1pt solid var(--ink);
@@ -306,7 +310,8 @@ th {{ text-align: left; font-weight: 600; color: var(--slate); border-bottom: 1p
 td {{ padding: .9mm 1.6mm; border-bottom: .4pt solid var(--rule); }}
 .num {{ text-align: right; white-space: nowrap; }}
 .neg {{ color: #8f3a22; }}
-tr.total td {{ border-top: 1pt solid var(--ink); font-weight: 600; background: #f3ede2; }}
+tr.total td {{ font-weight: 600; background: #f3ede2; }}
+tr.ruled td {{ border-top: 1pt solid var(--ink); }}
 .note {{ color: var(--slate); font-size: 8.5pt; margin: 1mm 0; }}
 figure {{ margin: 2mm 0 3mm; break-inside: avoid; page-break-inside: avoid; }}
 figcaption {{ font-size: 8.5pt; color: var(--slate); margin-top: 1mm; }}
@@ -370,15 +375,14 @@ std::string statement_html(const Statement& s) {
          (s.benchmark ? ", portfolio (copper) beside " + esc(*s.benchmark) + " (sage)"
                       : std::string()) +
          ".</figcaption>\n</figure>\n" + table_html(find("monthly")) + "</section>\n";
-  out += "<section class=\"long\">\n<h2>" + esc(find("holdings").title) + "</h2>\n" +
-         table_html(find("holdings"));
+  out += "<section>\n<h2>" + esc(find("holdings").title) + "</h2>\n" + table_html(find("holdings"));
   out += "<figure>\n" + allocation_chart(s) +
          "<figcaption>Allocation by security and cash, as a share of the closing value."
          "</figcaption>\n</figure>\n</section>\n";
-  out += "<section class=\"long\">\n<h2>" + esc(find("realized").title) + "</h2>\n" +
+  out += "<section>\n<h2>" + esc(find("realized").title) + "</h2>\n" +
          table_html(find("realized")) + "</section>\n";
-  out += "<section class=\"long\">\n<h2>" + esc(find("income").title) + "</h2>\n" +
-         table_html(find("income")) + "</section>\n";
+  out += "<section>\n<h2>" + esc(find("income").title) + "</h2>\n" + table_html(find("income")) +
+         "</section>\n";
   out += "<section class=\"cautions\">\n<h2>" + esc(find("cautions").title) + "</h2>\n<ul>\n";
   for (const auto& c : s.cautions) out += "<li>" + esc(c) + "</li>\n";
   out += "</ul>\n</section>\n";
