@@ -48,7 +48,7 @@ std::string esc(const std::string& raw) {
         break;
       default:
         if (static_cast<unsigned char>(c) < 0x20 && c != '\n' && c != '\t')
-          out += fmt::format("&#{};", static_cast<int>(c) == 0 ? 0xFFFD : static_cast<int>(c));
+          out += "&#xFFFD;";  // control characters have no place in a page
         else
           out += c;
     }

@@ -64,6 +64,19 @@ check(abs(year["mwr_annualized"] - rate) < 1e-9, f"MWR {year['mwr_annualized']} 
 check(year["twr"] is not None and year["benchmark"] is not None, "year figures present")
 check(abs(year["benchmark"] - 0.1) < 1e-12, "benchmark 1100/1000 - 1")
 check(abs(year["excess"] - (year["twr"] - year["benchmark"])) < 1e-12, "excess = TWR - benchmark")
+# Linking the twelve monthly returns gives the year's (pandas, Debian python3-pandas), and the
+# since-inception rate a year is (1 + R)^(365/days) - 1 (docs/methods-returns.md).
+import numpy as np  # noqa: E402
+import pandas as pd  # noqa: E402
+
+months = pd.Series([m["twr"] for m in s["months"]])
+equal(len(months), 12, "twelve months")
+check(abs((1 + months).prod() - 1 - year["twr"]) < 1e-12, "monthly returns link to the year's")
+since = s["performance"][1]
+check(abs(np.power(1 + since["twr"], 365 / since["days"]) - 1 - since["twr_annualized"]) < 1e-12,
+      "since-inception annualized")
+check(s["twr_mwr_explanation"] and "timing of deposits" in s["twr_mwr_explanation"],
+      "the TWR/MWR difference is explained")
 r = k.json("returns", "--year", "2025", "--benchmark", "IDXW")
 equal(year["twr"], r["twr"], "year TWR is the returns command's")
 equal([p["period"] for p in s["performance"]], ["this year", "since inception", "3 years", "5 years"],
