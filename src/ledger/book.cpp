@@ -235,13 +235,20 @@ void Book::apply_transfer_in(const Transaction& txn, AccountBook& book) {
     if (it == in_transit_.end())
       throw InputError(
           fmt::format("transaction {}: its transfer out {} was not found", txn.id, *txn.link_id));
-    for (auto& lot : it->second) position.lots.push_back(std::move(lot));
+    Decimal carried;
+    for (auto& lot : it->second) {
+      carried += lot.cost;
+      position.lots.push_back(std::move(lot));
+    }
     in_transit_.erase(it);
+    moved_.push_back(MovedCost{txn.id, txn.account_id, *txn.security_id, txn.date, true, carried});
   } else {
     const Decimal unit = txn.price.value_or(Decimal());
     position.lots.push_back(
         Lot{txn.id, txn.acquired.value_or(txn.date), *txn.quantity, *txn.quantity * unit});
     if (txn.price) last_trade_price_[*txn.security_id] = *txn.price;
+    moved_.push_back(
+        MovedCost{txn.id, txn.account_id, *txn.security_id, txn.date, true, *txn.quantity * unit});
   }
   book.cash -= txn.fee;
 }
@@ -254,6 +261,9 @@ void Book::apply_transfer_out(const Transaction& txn, const Account& account, Ac
   auto& position = book.positions[*txn.security_id];
   auto taken = take_lots(txn, account, position);
   if (position.lots.empty()) book.positions.erase(*txn.security_id);
+  Decimal cost;
+  for (const auto& lot : taken) cost += lot.cost;
+  moved_.push_back(MovedCost{txn.id, txn.account_id, *txn.security_id, txn.date, false, cost});
   in_transit_[txn.id] = std::move(taken);
   book.cash -= txn.fee;
 }

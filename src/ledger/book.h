@@ -16,6 +16,11 @@
 // part of a lot splits its cost in proportion to quantity, rounded half-to-even
 // to the cent (kCostPlaces); the remainder stays with the open part, so total
 // cost is conserved exactly. Splits multiply quantities and keep total cost.
+//
+// Transfers of units are recorded as MovedCost entries: the cost basis that
+// left an account (transfer out) or arrived in one (transfer in: the carried
+// lots' cost for the receiving half of an internal pair, quantity x price for
+// units from outside), so reports can account for every change in cost.
 #pragma once
 
 #include <cstdint>
@@ -55,6 +60,15 @@ struct RealizedPart {
   Decimal gain() const { return proceeds - cost; }
 };
 
+struct MovedCost {
+  std::int64_t txn_id = 0;
+  std::int64_t account_id = 0;
+  std::int64_t security_id = 0;
+  Date date;
+  bool incoming = false;  // transfer in; false for a transfer out
+  Decimal cost;           // cost basis that moved with the units
+};
+
 struct Position {
   std::vector<Lot> lots;  // open lots, oldest first
   Decimal quantity() const;
@@ -80,6 +94,7 @@ class Book {
   const Account& account_info(std::int64_t account_id) const;
   const std::vector<Account>& accounts() const { return accounts_; }
   const std::vector<RealizedPart>& realized() const { return realized_; }
+  const std::vector<MovedCost>& moved() const { return moved_; }  // in replay order
   // The latest unit price the ledger traded `security_id` at, in any account
   // (split-adjusted); unset if it never traded.
   std::optional<Decimal> last_trade_price(std::int64_t security_id) const;
@@ -96,6 +111,7 @@ class Book {
   std::unordered_map<std::int64_t, std::size_t> index_;
   std::vector<AccountBook> books_;
   std::vector<RealizedPart> realized_;
+  std::vector<MovedCost> moved_;
   std::unordered_map<std::int64_t, Decimal> last_trade_price_;
   std::unordered_map<std::int64_t, std::vector<Lot>> in_transit_;  // by transfer_out id
   std::unordered_set<std::int64_t> touched_today_;

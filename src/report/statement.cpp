@@ -1,0 +1,369 @@
+#include "report/statement.h"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <cmath>
+#include <map>
+#include <set>
+
+#include "core/error.h"
+#include "core/text.h"
+#include "ledger/posting.h"
+#include "store/ledger_store.h"
+#include "store/price_write.h"
+
+namespace keel::report {
+namespace {
+
+// Weights are shown as percentages with two places; six places of the fraction
+// keep that exact.
+constexpr int kWeightPlaces = 6;
+
+Decimal weight_of(const Decimal& part, const Decimal& whole) {
+  if (whole.is_zero()) return Decimal();
+  return Decimal::divide(part, whole, kWeightPlaces);
+}
+
+std::string mwr_note(const perf::MwrSolution& m) {
+  switch (m.status) {
+    case perf::MwrStatus::kOk:
+      return "";
+    case perf::MwrStatus::kNoCashFlows:
+      return "no money-weighted return: the period has no value and no flows";
+    case perf::MwrStatus::kNoRoot:
+      return "no money-weighted return: no rate makes the flows and values balance";
+    case perf::MwrStatus::kMultipleRoots:
+      return fmt::format("no single money-weighted return: {} rates balance the flows and values",
+                         m.roots.size());
+  }
+  return "";
+}
+
+PerformanceLine line_from(const std::string& label, const perf::ReturnsReport& rep) {
+  const auto& r = rep.result;
+  PerformanceLine line;
+  line.label = label;
+  line.available = true;
+  line.from = r.from;
+  line.to = r.to;
+  line.days = r.days;
+  line.twr = r.twr.period;
+  line.twr_annualized = r.twr.annualized;
+  if (r.mwr.status == perf::MwrStatus::kOk && r.mwr_figure) {
+    line.mwr_period = r.mwr_figure->period;
+    line.mwr_annualized = r.mwr_figure->annualized;
+  } else {
+    line.mwr_note = mwr_note(r.mwr);
+  }
+  if (r.benchmark) {
+    line.benchmark = r.benchmark->benchmark.period;
+    line.benchmark_annualized = r.benchmark->benchmark.annualized;
+    line.excess = r.benchmark->excess_arithmetic;
+    line.excess_annualized = r.benchmark->excess_arithmetic_annualized;
+  }
+  return line;
+}
+
+// Differences below half a basis point vanish when shown with two places.
+bool differ(double a, double b) {
+  return std::abs(a - b) >= 0.00005;
+}
+
+std::string twr_mwr_words(const PerformanceLine& year) {
+  if (!year.twr || !year.mwr_period || !differ(*year.twr, *year.mwr_period)) return "";
+  const bool higher = *year.mwr_period > *year.twr;
+  return fmt::format(
+      "The money-weighted return ({:.2f}%) is {} than the time-weighted return ({:.2f}%). The "
+      "time-weighted return measures the investments alone, whatever money came or went; the "
+      "money-weighted return weighs each part of the year by the money invested in it, so the "
+      "timing of deposits, withdrawals and transfers moves it. Here more money was at work in "
+      "the {} part of the year.",
+      *year.mwr_period * 100, higher ? "higher" : "lower", *year.twr * 100,
+      higher ? "stronger" : "weaker");
+}
+
+std::vector<GrowthPoint> portfolio_growth(const perf::PerfResult& r) {
+  std::vector<GrowthPoint> out{{r.from.plus_days(-1), 1.0}};
+  double level = 1.0;
+  for (const auto& d : r.daily) {
+    level *= 1.0 + d.r;
+    out.push_back({d.day, level});
+  }
+  if (out.back().day < r.to) out.push_back({r.to, level});
+  return out;
+}
+
+std::vector<GrowthPoint> benchmark_growth(store::Database& db, const std::string& symbol, Date from,
+                                          Date to) {
+  const auto security = store::security_with_symbol(db, symbol);
+  const Date before = from.plus_days(-1);
+  std::optional<Decimal> base;
+  std::vector<GrowthPoint> out;
+  for (const auto& [day, close] : store::closes_of(db, security.id)) {
+    if (day <= before) {
+      base = close;
+      continue;
+    }
+    if (day > to || !base) break;
+    if (out.empty()) out.push_back({before, 1.0});
+    out.push_back({day, close.to_double() / base->to_double()});
+  }
+  if (out.empty() && base) out.push_back({before, 1.0});
+  if (!out.empty() && out.back().day < to) out.push_back({to, out.back().level});
+  return out;
+}
+
+std::optional<Date> first_close(store::Database& db, const std::string& symbol) {
+  const auto security = store::find_security(db, symbol);
+  if (!security) return std::nullopt;
+  const auto closes = store::closes_of(db, security->id);
+  if (closes.empty()) return std::nullopt;
+  return closes.front().first;
+}
+
+Decimal unrealized_total(const ledger::Holdings& h) {
+  Decimal total;
+  for (const auto& p : h.positions) total += p.unrealized_gain;
+  return total;
+}
+
+}  // namespace
+
+Decimal YearSummary::explained_closing() const {
+  return opening_value + deposits - withdrawals + transfers_in - transfers_out + dividends -
+         withholding + interest - fees + realized_gain + unrealized_change() - unrealized_moved;
+}
+
+std::vector<std::string> statement_cautions() {
+  return {
+      "Past performance does not predict future results. These figures describe what happened, "
+      "not what will; they are not investment advice.",
+      "This statement is for your own records. It is not a tax form and does not replace the "
+      "documents your broker or bank must issue.",
+      "Tax treatment depends on local rules (what counts as long-term, how withholding is "
+      "credited, how fees are treated). Check with your local tax authority or a licensed "
+      "professional.",
+  };
+}
+
+Statement build_statement(store::Database& db, const StatementRequest& request) {
+  if (request.year < 1 || request.year > 9999)
+    throw InputError(fmt::format("--year: {} is not a calendar year", request.year));
+  if (request.long_term_days && *request.long_term_days < 1)
+    throw InputError(fmt::format("--long-term-days: {} is not a number of days; give 1 or more",
+                                 *request.long_term_days));
+
+  Statement s;
+  s.year = request.year;
+  std::optional<std::int64_t> account_id;
+  const auto accounts = store::list_accounts(db);
+  if (request.account) {
+    const auto account = store::find_account(db, *request.account);
+    if (!account)
+      throw InputError(
+          fmt::format("--account: there is no account named '{}'", printable(*request.account)));
+    account_id = account->id;
+    s.currency = account->currency;
+  } else {
+    std::set<std::string> currencies;
+    for (const auto& a : accounts) currencies.insert(a.currency);
+    if (currencies.size() > 1)
+      throw InputError(fmt::format(
+          "the ledger's accounts keep {}; keel does not convert currencies, so give --account "
+          "for a statement of one account",
+          fmt::join(currencies, ", ")));
+    if (!currencies.empty()) s.currency = *currencies.begin();
+  }
+  if (request.benchmark && !store::find_security(db, *request.benchmark))
+    throw InputError(fmt::format("--benchmark: there is no security with symbol '{}'",
+                                 printable(*request.benchmark)));
+
+  // The year itself: the returns module resolves the period and measures it.
+  perf::ReturnsRequest year_request;
+  year_request.account = request.account;
+  year_request.period.year = request.year;
+  year_request.benchmark = request.benchmark;
+  const perf::ReturnsReport year = perf::returns_report(db, year_request);
+  const perf::PerfResult& r = year.result;
+  s.scope = year.scope;
+  s.from = r.from;
+  s.to = r.to;
+  s.as_of = year.as_of;
+  s.inception = year.inception;
+  s.partial_year = s.to < Date::from_ymd(request.year, 12, 31);
+  s.started_in_year = year.period.clamped;
+  s.benchmark = year.benchmark;
+  s.unpriced = year.unpriced;
+  s.long_term_rule =
+      request.long_term_days
+          ? fmt::format("long-term: held more than {} days", *request.long_term_days)
+          : std::string("long-term: disposed of after the first anniversary of acquisition");
+
+  // Performance: this year, since inception, trailing 3 and 5 years where the
+  // ledger's history covers them. Each is one call of the returns module.
+  s.performance.push_back(line_from("this year", year));
+  const auto bench_first = request.benchmark ? first_close(db, *request.benchmark) : std::nullopt;
+  auto measured = [&](const std::string& label, Date from) {
+    perf::ReturnsRequest rq;
+    rq.account = request.account;
+    rq.period.from = from;
+    rq.period.to = s.to;
+    rq.as_of = s.to;
+    const bool bench_ok = request.benchmark && bench_first && *bench_first <= from.plus_days(-1);
+    if (bench_ok) rq.benchmark = request.benchmark;
+    auto line = line_from(label, perf::returns_report(db, rq));
+    if (request.benchmark && !bench_ok)
+      line.benchmark_note =
+          fmt::format("{} has no close before {}", printable(*request.benchmark), from.str());
+    return line;
+  };
+  s.performance.push_back(measured("since inception", s.inception));
+  for (const int n : {3, 5}) {
+    const Date from = s.to.plus_years(-n).plus_days(1);
+    if (from < s.inception) {
+      PerformanceLine line;
+      line.label = fmt::format("{} years", n);
+      line.from = from;
+      line.to = s.to;
+      line.unavailable_reason = fmt::format("the ledger starts on {}, less than {} years before {}",
+                                            s.inception.str(), n, s.to.str());
+      s.performance.push_back(std::move(line));
+    } else {
+      s.performance.push_back(measured(fmt::format("{} years", n), from));
+    }
+  }
+  s.twr_mwr_words = twr_mwr_words(s.performance.front());
+
+  for (const auto& m : r.months) s.months.push_back({m.month, m.complete, m.twr, m.benchmark});
+  s.growth = portfolio_growth(r);
+  if (s.benchmark) s.benchmark_growth = benchmark_growth(db, *s.benchmark, s.from, s.to);
+
+  // Holdings at the close of the period and of the day before it.
+  const auto opening = ledger::holdings(db, s.from.plus_days(-1), request.account);
+  const auto closing = ledger::holdings(db, s.to, request.account);
+  s.holdings_total = closing.total_value;
+  s.cash = closing.cash;
+  std::map<std::string, Decimal> by_symbol;
+  for (const auto& p : closing.positions) {
+    s.holdings.push_back({p, weight_of(p.market_value, closing.total_value)});
+    by_symbol[p.symbol] += p.market_value;
+  }
+  for (const auto& [symbol, value] : by_symbol)
+    s.allocation.push_back({symbol, value, weight_of(value, closing.total_value)});
+  std::sort(s.allocation.begin(), s.allocation.end(),
+            [](const auto& a, const auto& b) { return a.value > b.value; });
+  Decimal cash_total;
+  for (const auto& c : closing.cash) cash_total += c.amount;
+  s.allocation.push_back({"cash", cash_total, weight_of(cash_total, closing.total_value)});
+
+  // Realized gains: the lot engine's parts disposed in the period.
+  for (auto& g : ledger::realized_gains(db, request.year, request.account)) {
+    if (g.part.disposed < s.from || g.part.disposed > s.to) continue;
+    GainRow row;
+    row.days_held = g.part.disposed - g.part.acquired;
+    row.long_term = request.long_term_days
+                        ? row.days_held > *request.long_term_days
+                        : ledger::held_long_term(g.part.acquired, g.part.disposed);
+    GainTotals& totals = row.long_term ? s.long_term : s.short_term;
+    totals.proceeds += g.part.proceeds;
+    totals.cost += g.part.cost;
+    totals.gain += g.part.gain();
+    ++totals.parts;
+    row.gain = std::move(g);
+    s.gains.push_back(std::move(row));
+  }
+
+  // Transactions of the period in scope: flows, income, tax and fees.
+  const LedgerLog log = ledger::load_log(db);
+  const auto voided = voided_ids(log.transactions);
+  std::map<std::int64_t, std::string> symbols, account_names;
+  for (const auto& sec : store::list_securities(db)) symbols[sec.id] = sec.symbol;
+  for (const auto& a : accounts) account_names[a.id] = a.name;
+  std::vector<const Transaction*> live;
+  for (const auto& t : log.transactions) {
+    if (t.kind == TxnKind::void_entry || voided.count(t.id)) continue;
+    if (t.date < s.from || t.date > s.to) continue;
+    if (account_id && t.account_id != *account_id) continue;
+    live.push_back(&t);
+  }
+  std::sort(live.begin(), live.end(), [](const Transaction* a, const Transaction* b) {
+    return a->date != b->date ? a->date < b->date : a->id < b->id;
+  });
+  YearSummary& y = s.summary;
+  Decimal cash_moved;  // cash transfers in minus out, internal pairs included
+  std::vector<const Transaction*> taxes;
+  for (const Transaction* t : live) {
+    const std::string symbol = t->security_id ? symbols[*t->security_id] : std::string();
+    switch (t->kind) {
+      case TxnKind::deposit:
+        y.deposits += *t->amount;
+        break;
+      case TxnKind::withdrawal:
+        y.withdrawals += *t->amount;
+        break;
+      case TxnKind::dividend:
+      case TxnKind::interest:
+        (t->kind == TxnKind::dividend ? y.dividends : y.interest) += *t->amount;
+        s.income.push_back({account_names[t->account_id], t->date, std::string(to_string(t->kind)),
+                            symbol, *t->amount, Decimal()});
+        break;
+      case TxnKind::tax:
+        y.withholding += *t->amount;
+        taxes.push_back(t);
+        break;
+      case TxnKind::fee:
+        y.fees += *t->amount;
+        break;
+      case TxnKind::buy:
+      case TxnKind::sell:
+        y.trade_fees += t->fee;
+        break;
+      case TxnKind::transfer_in:
+      case TxnKind::transfer_out:
+        // The lot engine charges a transfer's fee to cash only when units move.
+        if (t->security_id)
+          y.fees += t->fee;
+        else
+          cash_moved += t->kind == TxnKind::transfer_in ? *t->amount : -*t->amount;
+        break;
+      case TxnKind::void_entry:
+        break;
+    }
+  }
+  for (const Transaction* t : taxes) {
+    const std::string account = account_names[t->account_id];
+    const std::string symbol = t->security_id ? symbols[*t->security_id] : std::string();
+    auto it = std::find_if(s.income.begin(), s.income.end(), [&](const IncomeRow& row) {
+      return row.account == account && row.day == t->date && row.symbol == symbol;
+    });
+    if (it != s.income.end())
+      it->withheld += *t->amount;
+    else
+      s.other_tax.push_back({account, t->date, symbol, *t->amount});
+  }
+
+  // Value pieces: the returns module's values and external flows; the lot
+  // engine's realized gains and the cost basis moved by transfers.
+  y.opening_value = r.opening_value;
+  y.closing_value = r.closing_value;
+  y.transfers_in = r.inflow - y.deposits;
+  y.transfers_out = r.outflow - y.withdrawals;
+  for (const auto& row : s.gains) y.realized_gain += row.gain.part.gain();
+  y.unrealized_opening = unrealized_total(opening);
+  y.unrealized_closing = unrealized_total(closing);
+  Decimal cost_moved;
+  const Book book = replay(log, s.to);
+  for (const auto& m : book.moved()) {
+    if (m.date < s.from || (account_id && m.account_id != *account_id)) continue;
+    cost_moved += m.incoming ? m.cost : -m.cost;
+  }
+  // What transfers added at market value, less the cash and cost basis they
+  // brought, is unrealized gain that arrived with the units (not earned here).
+  y.unrealized_moved = (y.transfers_in - y.transfers_out) - cash_moved - cost_moved;
+
+  s.cautions = statement_cautions();
+  return s;
+}
+
+}  // namespace keel::report

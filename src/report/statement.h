@@ -1,0 +1,168 @@
+// The year-end statement of one account or the whole ledger: every section as
+// plain data, assembled from the ledger and the performance module, for the
+// renderers in report/statement_forms.h.
+//
+// Contract
+//  - Period: the calendar year, cut at the ledger's as-of day (the later of
+//    the latest close and the latest transaction) when the year is still
+//    running, and started at the first transaction day when the ledger began
+//    during the year (see perf/period.h).
+//  - Money is exact Decimal in the ledger's currency, never rounded here;
+//    returns are fractions (0.05 = 5 %), taken from perf::returns_report()
+//    and never recomputed.
+//  - The year summary adds up exactly (docs/statement.md states the identity):
+//      closing = opening + deposits - withdrawals + transfers in - transfers out
+//                + dividends - withholding + interest - fees + realized gain
+//                + change in unrealized gain - unrealized gain moved by transfers
+//    `difference()` is the closing value minus the right-hand side; it is
+//    zero when the ledger is consistent and is shown, not hidden, otherwise.
+//    Trade fees sit inside cost basis and realized gain and are given as a
+//    memo line only, never subtracted again.
+//  - Realized gains are the lot engine's parts disposed in the period. A part
+//    is long-term when held longer than `long_term_days` days (disposal day
+//    minus acquisition day), or, when that is unset, when disposed of after
+//    the first anniversary of its acquisition.
+//  - Income detail: every dividend and interest payment in the period, each
+//    with the tax rows of the same account, day and security (or no security)
+//    as its withholding; tax rows without such a payment are listed apart.
+//  - Throws InputError (naming the option) for an unknown account or
+//    benchmark, a benchmark without a close before the year, a year outside
+//    the ledger's history, a long-term threshold below 1, and a ledger
+//    without transactions.
+#pragma once
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "core/date.h"
+#include "core/decimal.h"
+#include "ledger/holdings.h"
+#include "perf/returns_report.h"
+#include "store/database.h"
+
+namespace keel::report {
+
+struct StatementRequest {
+  int year = 0;
+  std::optional<std::string> account;    // nullopt: the whole ledger
+  std::optional<std::string> benchmark;  // security symbol
+  std::optional<int> long_term_days;     // nullopt: more than one calendar year
+};
+
+struct YearSummary {
+  Decimal opening_value;
+  Decimal deposits, withdrawals;
+  Decimal transfers_in, transfers_out;  // at market value on the day, as the returns count them
+  Decimal dividends;                    // gross
+  Decimal withholding;                  // every tax row in the period
+  Decimal interest;
+  Decimal fees;  // fee entries and the fees of transfers (charged to cash, not to a lot)
+  Decimal realized_gain;
+  Decimal unrealized_opening, unrealized_closing;
+  Decimal unrealized_moved;  // unrealized gain that arrived (+) or left (-) with transferred units
+  Decimal closing_value;
+  Decimal trade_fees;  // memo: buy and sell fees, already inside cost basis and realized gain
+
+  Decimal unrealized_change() const { return unrealized_closing - unrealized_opening; }
+  Decimal explained_closing() const;  // the right-hand side of the identity
+  Decimal difference() const { return closing_value - explained_closing(); }
+};
+
+struct PerformanceLine {
+  std::string label;  // "this year", "since inception", "3 years", "5 years"
+  bool available = false;
+  std::string unavailable_reason;  // when not available
+  Date from, to;
+  int days = 0;
+  std::optional<double> twr, twr_annualized;
+  std::optional<double> mwr_period, mwr_annualized;
+  std::string mwr_note;  // why there is no money-weighted return, when there is none
+  std::optional<double> benchmark, benchmark_annualized;
+  std::optional<double> excess, excess_annualized;  // arithmetic, R - B
+  std::string benchmark_note;                       // why there is no benchmark figure
+};
+
+struct MonthCell {
+  int month = 0;
+  bool complete = false;
+  double twr = 0;
+  std::optional<double> benchmark;
+};
+
+struct GrowthPoint {
+  Date day;
+  double level = 1;  // growth of 1 since the close before the period
+};
+
+struct HoldingRow {
+  ledger::HoldingLine line;
+  Decimal weight;  // fraction of the closing value, 6 places, half-to-even
+};
+
+struct AllocationSlice {
+  std::string label;  // symbol, or "cash"
+  Decimal value;
+  Decimal weight;  // fraction of the closing value
+};
+
+struct GainRow {
+  ledger::GainLine gain;
+  int days_held = 0;
+  bool long_term = false;
+};
+
+struct GainTotals {
+  Decimal proceeds, cost, gain;
+  int parts = 0;
+};
+
+struct IncomeRow {
+  std::string account;
+  Date day;
+  std::string kind;    // "dividend" or "interest"
+  std::string symbol;  // empty when none
+  Decimal gross, withheld;
+  Decimal net() const { return gross - withheld; }
+};
+
+struct TaxRow {
+  std::string account;
+  Date day;
+  std::string symbol;
+  Decimal amount;
+};
+
+struct Statement {
+  std::string scope;  // account name or "all accounts"
+  std::string currency;
+  int year = 0;
+  Date from, to, as_of, inception;
+  bool partial_year = false;  // the year is cut at the as-of day
+  bool started_in_year = false;
+  std::optional<std::string> benchmark;
+  std::string long_term_rule;  // words for the threshold in use
+  std::vector<std::string> unpriced;
+
+  YearSummary summary;
+  std::vector<PerformanceLine> performance;  // this year first
+  std::string twr_mwr_words;                 // empty when the two agree
+  std::vector<MonthCell> months;
+  std::vector<GrowthPoint> growth, benchmark_growth;
+  std::vector<HoldingRow> holdings;
+  std::vector<ledger::CashLine> cash;
+  Decimal holdings_total;  // positions and cash at the close of `to`
+  std::vector<AllocationSlice> allocation;
+  std::vector<GainRow> gains;
+  GainTotals short_term, long_term;
+  std::vector<IncomeRow> income;
+  std::vector<TaxRow> other_tax;  // tax rows not matched to a payment
+  std::vector<std::string> cautions;
+};
+
+Statement build_statement(store::Database& db, const StatementRequest& request);
+
+// The cautions every form of the statement shows.
+std::vector<std::string> statement_cautions();
+
+}  // namespace keel::report

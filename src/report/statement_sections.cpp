@@ -1,0 +1,329 @@
+// The statement as tables, one per section: the single source of every form.
+#include <fmt/format.h>
+
+#include "report/statement_forms.h"
+
+namespace keel::report {
+
+Cell Cell::of_text(std::string t) {
+  Cell c;
+  c.kind = CellKind::text;
+  c.text = std::move(t);
+  return c;
+}
+Cell Cell::of_money(const Decimal& d) {
+  Cell c;
+  c.kind = CellKind::money;
+  c.number = d;
+  return c;
+}
+Cell Cell::of_quantity(const Decimal& d) {
+  Cell c;
+  c.kind = CellKind::quantity;
+  c.number = d;
+  return c;
+}
+Cell Cell::of_percent(double x) {
+  Cell c;
+  c.kind = CellKind::percent;
+  c.ratio = x;
+  return c;
+}
+Cell Cell::of_percent(const std::optional<double>& x) {
+  return x ? of_percent(*x) : none();
+}
+Cell Cell::of_percent(const Decimal& fraction) {
+  return of_percent(fraction.to_double());
+}
+Cell Cell::of_date(Date d) {
+  Cell c;
+  c.kind = CellKind::date;
+  c.day = d;
+  return c;
+}
+Cell Cell::of_integer(long long n) {
+  Cell c;
+  c.kind = CellKind::integer;
+  c.whole = n;
+  return c;
+}
+
+std::string display(const Cell& cell) {
+  switch (cell.kind) {
+    case CellKind::empty:
+      return "";
+    case CellKind::text:
+      return cell.text;
+    case CellKind::money:
+      return cell.number.fixed(2);
+    case CellKind::quantity:
+      return cell.number.str();
+    case CellKind::percent:
+      return fmt::format("{:.2f}%", cell.ratio * 100);
+    case CellKind::date:
+      return cell.day.str();
+    case CellKind::integer:
+      return std::to_string(cell.whole);
+  }
+  return "";
+}
+
+namespace {
+
+using C = Cell;
+
+Section summary_section(const Statement& s) {
+  const YearSummary& y = s.summary;
+  Section sec;
+  sec.key = "summary";
+  sec.title = "The year in one table";
+  sec.columns = {{"item"}, {"amount", Align::right}};
+  auto row = [&](std::string label, const Decimal& amount) {
+    sec.rows.push_back({C::of_text(std::move(label)), C::of_money(amount)});
+  };
+  row(fmt::format("opening value (close of {})", s.from.plus_days(-1).str()), y.opening_value);
+  row("deposits", y.deposits);
+  row("withdrawals", -y.withdrawals);
+  row("transfers in (at market value)", y.transfers_in);
+  row("transfers out (at market value)", -y.transfers_out);
+  row("dividends, gross", y.dividends);
+  row("withholding and other tax", -y.withholding);
+  row("interest", y.interest);
+  row("fees (fee entries, transfer fees)", -y.fees);
+  row("realized gain", y.realized_gain);
+  row("change in unrealized gain", y.unrealized_change());
+  row("unrealized gain moved in by transfers", -y.unrealized_moved);
+  sec.emphasised.push_back(sec.rows.size());
+  row("opening value plus the pieces", y.explained_closing());
+  row(fmt::format("closing value (close of {})", s.to.str()), y.closing_value);
+  row("difference", y.difference());
+  sec.notes.push_back(
+      y.difference().is_zero()
+          ? "Check: the pieces add up to the closing value exactly."
+          : fmt::format("Check FAILED: the pieces miss the closing value by {}; the ledger and "
+                        "its prices disagree somewhere. Please report it.",
+                        y.difference().str()));
+  sec.notes.push_back(fmt::format(
+      "Trade fees of {} are inside the cost basis and the realized gain above; they are not "
+      "subtracted again.",
+      y.trade_fees.fixed(2)));
+  sec.notes.push_back(fmt::format("Unrealized gain: {} at the start, {} at the end.",
+                                  y.unrealized_opening.fixed(2), y.unrealized_closing.fixed(2)));
+  return sec;
+}
+
+Section performance_section(const Statement& s) {
+  Section sec;
+  sec.key = "performance";
+  sec.title = "Performance";
+  sec.columns = {{"figure"}};
+  for (const auto& p : s.performance) sec.columns.push_back({p.label, Align::right});
+  auto row = [&](std::string label, auto cell_of) {
+    std::vector<Cell> cells{C::of_text(std::move(label))};
+    for (const auto& p : s.performance) cells.push_back(p.available ? cell_of(p) : C::none());
+    sec.rows.push_back(std::move(cells));
+  };
+  row("from", [](const PerformanceLine& p) { return C::of_date(p.from); });
+  row("days", [](const PerformanceLine& p) { return C::of_integer(p.days); });
+  row("time-weighted", [](const PerformanceLine& p) { return C::of_percent(p.twr); });
+  row("time-weighted, a year",
+      [](const PerformanceLine& p) { return C::of_percent(p.twr_annualized); });
+  row("money-weighted", [](const PerformanceLine& p) { return C::of_percent(p.mwr_period); });
+  row("money-weighted, a year",
+      [](const PerformanceLine& p) { return C::of_percent(p.mwr_annualized); });
+  if (s.benchmark) {
+    row("benchmark " + *s.benchmark,
+        [](const PerformanceLine& p) { return C::of_percent(p.benchmark); });
+    row("benchmark, a year",
+        [](const PerformanceLine& p) { return C::of_percent(p.benchmark_annualized); });
+    row("excess over benchmark", [](const PerformanceLine& p) { return C::of_percent(p.excess); });
+    row("excess, a year",
+        [](const PerformanceLine& p) { return C::of_percent(p.excess_annualized); });
+  }
+  for (const auto& p : s.performance) {
+    if (!p.available) sec.notes.push_back(fmt::format("{}: {}.", p.label, p.unavailable_reason));
+    if (p.available && !p.mwr_note.empty())
+      sec.notes.push_back(fmt::format("{}: {}.", p.label, p.mwr_note));
+    if (p.available && !p.benchmark_note.empty())
+      sec.notes.push_back(fmt::format("{}: no benchmark figure, {}.", p.label, p.benchmark_note));
+  }
+  sec.notes.push_back(
+      "Returns of periods shorter than a year are not annualized. Excess is the time-weighted "
+      "return minus the benchmark's.");
+  if (!s.twr_mwr_words.empty()) sec.notes.push_back(s.twr_mwr_words);
+  return sec;
+}
+
+const char* const kMonthNames[] = {"Jan", "Feb", "Mar", "Apr", "May", "Jun",
+                                   "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"};
+
+Section monthly_section(const Statement& s) {
+  Section sec;
+  sec.key = "monthly";
+  sec.title = "Monthly returns (time-weighted)";
+  sec.columns = {{"month"}, {"portfolio", Align::right}};
+  if (s.benchmark)
+    sec.columns.insert(sec.columns.end(),
+                       {{"benchmark", Align::right}, {"difference", Align::right}});
+  bool partial = false;
+  for (const auto& m : s.months) {
+    partial |= !m.complete;
+    std::vector<Cell> cells{
+        C::of_text(fmt::format("{} {}{}", kMonthNames[m.month - 1], s.year, m.complete ? "" : "*")),
+        C::of_percent(m.twr)};
+    if (s.benchmark) {
+      cells.push_back(C::of_percent(m.benchmark));
+      cells.push_back(
+          C::of_percent(m.benchmark ? std::optional<double>(m.twr - *m.benchmark) : std::nullopt));
+    }
+    sec.rows.push_back(std::move(cells));
+  }
+  const auto& year = s.performance.front();
+  sec.emphasised.push_back(sec.rows.size());
+  std::vector<Cell> total{C::of_text("the year"), C::of_percent(year.twr)};
+  if (s.benchmark) {
+    total.push_back(C::of_percent(year.benchmark));
+    total.push_back(C::of_percent(year.excess));
+  }
+  sec.rows.push_back(std::move(total));
+  if (partial) sec.notes.push_back("* only part of the month lies in the statement's period.");
+  return sec;
+}
+
+Section holdings_section(const Statement& s) {
+  Section sec;
+  sec.key = "holdings";
+  sec.title = fmt::format("Holdings at the close of {}", s.to.str());
+  sec.columns = {{"account"},
+                 {"symbol"},
+                 {"quantity", Align::right},
+                 {"cost basis", Align::right},
+                 {"price", Align::right},
+                 {"value", Align::right},
+                 {"unrealized", Align::right},
+                 {"weight", Align::right}};
+  bool trade_price = false;
+  Decimal cost, value, unrealized;
+  for (const auto& h : s.holdings) {
+    const auto& p = h.line;
+    trade_price |= !p.price_is_close;
+    sec.rows.push_back({C::of_text(p.account), C::of_text(p.symbol + (p.price_is_close ? "" : "*")),
+                        C::of_quantity(p.quantity), C::of_money(p.cost_basis),
+                        C::of_quantity(p.price), C::of_money(p.market_value),
+                        C::of_money(p.unrealized_gain), C::of_percent(h.weight)});
+    cost += p.cost_basis;
+    value += p.market_value;
+    unrealized += p.unrealized_gain;
+  }
+  for (const auto& c : s.cash) {
+    const Decimal w =
+        s.holdings_total.is_zero() ? Decimal() : Decimal::divide(c.amount, s.holdings_total, 6);
+    sec.rows.push_back({C::of_text(c.account), C::of_text("cash"), C::none(), C::none(), C::none(),
+                        C::of_money(c.amount), C::none(), C::of_percent(w)});
+  }
+  sec.emphasised.push_back(sec.rows.size());
+  sec.rows.push_back({C::of_text("total"), C::none(), C::none(), C::of_money(cost), C::none(),
+                      C::of_money(s.holdings_total), C::of_money(unrealized), C::none()});
+  if (trade_price)
+    sec.notes.push_back(
+        "* no close on or before the day; valued at the ledger's last trade price.");
+  if (!s.unpriced.empty())
+    sec.notes.push_back(fmt::format("Held without any close or trade price, valued at zero: {}.",
+                                    fmt::join(s.unpriced, ", ")));
+  return sec;
+}
+
+Section gains_section(const Statement& s) {
+  Section sec;
+  sec.key = "realized";
+  sec.title = "Realized gains, by closed lot";
+  sec.columns = {{"account"},
+                 {"symbol"},
+                 {"lot", Align::right},
+                 {"acquired"},
+                 {"disposed"},
+                 {"quantity", Align::right},
+                 {"proceeds", Align::right},
+                 {"cost", Align::right},
+                 {"gain", Align::right},
+                 {"class"}};
+  for (const auto& row : s.gains) {
+    const auto& g = row.gain;
+    sec.rows.push_back({C::of_text(g.account), C::of_text(g.symbol), C::of_integer(g.part.lot_id),
+                        C::of_date(g.part.acquired), C::of_date(g.part.disposed),
+                        C::of_quantity(g.part.quantity), C::of_money(g.part.proceeds),
+                        C::of_money(g.part.cost), C::of_money(g.part.gain()),
+                        C::of_text(row.long_term ? "long" : "short")});
+  }
+  sec.emphasised.push_back(sec.rows.size());
+  auto total = [&](const char* label, const GainTotals& t, const char* cls) {
+    sec.rows.push_back({C::of_text(label), C::none(), C::none(), C::none(), C::none(), C::none(),
+                        C::of_money(t.proceeds), C::of_money(t.cost), C::of_money(t.gain),
+                        C::of_text(cls)});
+  };
+  total("total short-term", s.short_term, "short");
+  total("total long-term", s.long_term, "long");
+  GainTotals all{s.short_term.proceeds + s.long_term.proceeds, s.short_term.cost + s.long_term.cost,
+                 s.short_term.gain + s.long_term.gain, s.short_term.parts + s.long_term.parts};
+  total("total", all, "");
+  sec.notes.push_back(
+      fmt::format("Holding period: {}; otherwise short-term. Proceeds are net of "
+                  "the sell's fee; cost includes the buy's fee.",
+                  s.long_term_rule));
+  if (s.gains.empty()) sec.notes.push_back("Nothing was sold in the period.");
+  return sec;
+}
+
+Section income_section(const Statement& s) {
+  Section sec;
+  sec.key = "income";
+  sec.title = "Income and withholding";
+  sec.columns = {{"account"},
+                 {"date"},
+                 {"kind"},
+                 {"symbol"},
+                 {"gross", Align::right},
+                 {"withheld", Align::right},
+                 {"net", Align::right}};
+  Decimal gross, withheld;
+  for (const auto& r : s.income) {
+    sec.rows.push_back({C::of_text(r.account), C::of_date(r.day), C::of_text(r.kind),
+                        C::of_text(r.symbol), C::of_money(r.gross), C::of_money(r.withheld),
+                        C::of_money(r.net())});
+    gross += r.gross;
+    withheld += r.withheld;
+  }
+  for (const auto& t : s.other_tax) {
+    sec.rows.push_back({C::of_text(t.account), C::of_date(t.day), C::of_text("tax, unmatched"),
+                        C::of_text(t.symbol), C::none(), C::of_money(t.amount),
+                        C::of_money(-t.amount)});
+    withheld += t.amount;
+  }
+  sec.emphasised.push_back(sec.rows.size());
+  sec.rows.push_back({C::of_text("total"), C::none(), C::none(), C::none(), C::of_money(gross),
+                      C::of_money(withheld), C::of_money(gross - withheld)});
+  sec.notes.push_back(
+      "Withholding is the tax booked on the same day, in the same account, for the same security "
+      "as the payment; tax rows without such a payment are listed as unmatched.");
+  if (s.income.empty() && s.other_tax.empty())
+    sec.notes.push_back("No dividends, interest or tax in the period.");
+  return sec;
+}
+
+Section cautions_section(const Statement& s) {
+  Section sec;
+  sec.key = "cautions";
+  sec.title = "Please note";
+  sec.columns = {{"caution"}};
+  for (const auto& c : s.cautions) sec.rows.push_back({C::of_text(c)});
+  return sec;
+}
+
+}  // namespace
+
+std::vector<Section> statement_sections(const Statement& s) {
+  return {summary_section(s), performance_section(s), monthly_section(s), holdings_section(s),
+          gains_section(s),   income_section(s),      cautions_section(s)};
+}
+
+}  // namespace keel::report
