@@ -171,6 +171,28 @@ std::optional<Decimal> Decimal::try_parse(std::string_view text) noexcept {
 }
 
 std::optional<Decimal> Decimal::parse_text(std::string_view text, std::string& why) {
+  // The common shape, [-]digits[.digits] with at most 18 digits in all, read
+  // straight into a machine word; anything else takes the general path below.
+  if (text.size() <= 20) {
+    std::size_t i = text.empty() || text[0] != '-' ? 0 : 1;
+    long long value = 0;
+    int digits = 0;
+    int scale = -1;  // -1: no point seen
+    for (; i < text.size(); ++i) {
+      const char c = text[i];
+      if (c >= '0' && c <= '9') {
+        value = value * 10 + (c - '0');
+        ++digits;
+        if (scale >= 0) ++scale;
+      } else if (c == '.' && scale < 0) {
+        scale = 0;
+      } else {
+        break;
+      }
+    }
+    if (i == text.size() && digits > 0 && digits <= 18)
+      return Decimal(Int(text[0] == '-' ? -value : value), std::max(scale, 0));
+  }
   auto fail = [&](std::string_view reason) {
     why = fmt::format("'{}' is not a decimal number: {}", text, reason);
     return std::nullopt;
