@@ -205,8 +205,9 @@ void add_history(CLI::App& app, Context& ctx) {
   cmd->add_option("--to", o->to, "Last day, YYYY-MM-DD");
   cmd->add_flag("--json", o->json, "Print JSON for scripts");
   cmd->callback([&ctx, o] {
-    const auto from = o->from.empty() ? std::nullopt : std::optional<Date>(Date::parse(o->from));
-    const auto to = o->to.empty() ? std::nullopt : std::optional<Date>(Date::parse(o->to));
+    // Inclusive bounds; an absent one is the first or last day a Date can hold.
+    const Date from = o->from.empty() ? Date::from_ymd(1, 1, 1) : Date::parse(o->from);
+    const Date to = o->to.empty() ? Date::from_ymd(9999, 12, 31) : Date::parse(o->to);
     auto db = ctx.open_ledger();
     std::optional<std::int64_t> only;
     if (!o->account.empty()) only = store::account_named(db, o->account).id;
@@ -230,7 +231,7 @@ void add_history(CLI::App& app, Context& ctx) {
              {"note"}});
     for (const auto& x : txns) {
       if (only && x.account_id != *only) continue;
-      if ((from && x.date < *from) || (to && x.date > *to)) continue;
+      if (x.date < from || x.date > to) continue;
       const std::string symbol = x.security_id ? symbols[*x.security_id] : "";
       std::string note = x.note.value_or("");
       if (x.voids_id) note = fmt::format("voids {}: {}", *x.voids_id, note);

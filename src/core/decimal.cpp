@@ -3,6 +3,7 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <limits>
 
 #include "core/error.h"
 #include "core/text.h"
@@ -53,6 +54,68 @@ Int round_half_even(const Int& value, int drop) {
   return quotient;
 }
 
+__extension__ typedef __int128 Wide;  // GCC and Clang; -Wpedantic wants the marker
+__extension__ typedef unsigned __int128 UWide;
+
+// Most ledger numbers fit a machine word. These fast paths give exactly what
+// the general cpp_int code gives, only without its generic multi-limb work.
+
+// The value of `v` when it lies in [-(2^63 - 1), 2^63 - 1].
+bool small_value(const Int& v, long long& out) {
+  const auto& b = v.backend();
+  if (b.size() != 1) return false;
+  const unsigned long long m = *b.limbs();
+  if (m > static_cast<unsigned long long>(std::numeric_limits<long long>::max())) return false;
+  out = b.sign() ? -static_cast<long long>(m) : static_cast<long long>(m);
+  return true;
+}
+
+constexpr long long kPow10[] = {1,
+                                10,
+                                100,
+                                1000,
+                                10000,
+                                100000,
+                                1000000,
+                                10000000,
+                                100000000,
+                                1000000000,
+                                10000000000,
+                                100000000000,
+                                1000000000000,
+                                10000000000000,
+                                100000000000000,
+                                1000000000000000,
+                                10000000000000000,
+                                100000000000000000,
+                                1000000000000000000};
+
+// a * 10^(scale - a_scale) and b * 10^(scale - b_scale) as 128-bit integers,
+// when both mantissas are small and the shifts are at most 18 digits: then
+// each product is below 2^63 * 10^18 < 2^123, and a sum or difference of two
+// fits as well.
+bool small_aligned(const Int& a, int a_scale, const Int& b, int b_scale, Wide& x, Wide& y) {
+  long long sa = 0, sb = 0;
+  if (!small_value(a, sa) || !small_value(b, sb)) return false;
+  const int scale = std::max(a_scale, b_scale);
+  if (scale - a_scale > 18 || scale - b_scale > 18) return false;
+  x = static_cast<Wide>(sa) * kPow10[scale - a_scale];
+  y = static_cast<Wide>(sb) * kPow10[scale - b_scale];
+  return true;
+}
+
+// `v` as an Int: from a long long when it fits, else through two limbs.
+Int from_int128(Wide v) {
+  if (v >= std::numeric_limits<long long>::min() && v <= std::numeric_limits<long long>::max())
+    return Int(static_cast<long long>(v));
+  const bool negative = v < 0;
+  const UWide m = negative ? -static_cast<UWide>(v) : static_cast<UWide>(v);
+  Int out = Int(static_cast<unsigned long long>(m >> 64));
+  out <<= 64;
+  out += static_cast<unsigned long long>(m);
+  return negative ? Int(-out) : out;
+}
+
 }  // namespace
 
 Decimal::Decimal(long long whole) : mantissa_(whole), scale_(0) {}
@@ -64,6 +127,19 @@ Decimal::Decimal(Int mantissa, int scale) : mantissa_(std::move(mantissa)), scal
 void Decimal::normalize() {
   if (mantissa_.is_zero()) {
     scale_ = 0;
+    return;
+  }
+  long long small = 0;
+  if (scale_ > 0 && small_value(mantissa_, small)) {
+    int scale = scale_;
+    while (scale > 0 && small % 10 == 0) {
+      small /= 10;
+      --scale;
+    }
+    if (scale != scale_) {
+      mantissa_ = small;
+      scale_ = scale;
+    }
     return;
   }
   while (scale_ > 0) {
@@ -96,6 +172,28 @@ std::optional<Decimal> Decimal::try_parse(std::string_view text) noexcept {
 }
 
 std::optional<Decimal> Decimal::parse_text(std::string_view text, std::string& why) {
+  // The common shape, [-]digits[.digits] with at most 18 digits in all, read
+  // straight into a machine word; anything else takes the general path below.
+  if (text.size() <= 20) {
+    std::size_t i = text.empty() || text[0] != '-' ? 0 : 1;
+    long long value = 0;
+    int digits = 0;
+    int scale = -1;  // -1: no point seen
+    for (; i < text.size(); ++i) {
+      const char c = text[i];
+      if (c >= '0' && c <= '9') {
+        value = value * 10 + (c - '0');
+        ++digits;
+        if (scale >= 0) ++scale;
+      } else if (c == '.' && scale < 0) {
+        scale = 0;
+      } else {
+        break;
+      }
+    }
+    if (i == text.size() && digits > 0 && digits <= 18)
+      return Decimal(Int(text[0] == '-' ? -value : value), std::max(scale, 0));
+  }
   auto fail = [&](std::string_view reason) {
     // printable(): the text may hold any byte, NUL included, and what() is a C string.
     why = fmt::format("'{}' is not a decimal number: {}", printable(text), reason);
@@ -153,13 +251,23 @@ std::optional<Decimal> Decimal::parse_text(std::string_view text, std::string& w
     return fail(fmt::format("more than {} significant digits", Decimal::kMaxDigits));
   if (effective_scale > Decimal::kMaxScale)
     return fail(fmt::format("more than {} digits after the point", Decimal::kMaxScale));
-  Int mantissa(digits);
-  if (negative) mantissa = -mantissa;
+  Int mantissa;
+  if (digits.size() <= 18) {
+    long long value = 0;
+    for (const char c : digits) value = value * 10 + (c - '0');
+    mantissa = negative ? -value : value;
+  } else {
+    mantissa = Int(digits);
+    if (negative) mantissa = -mantissa;
+  }
   return Decimal(std::move(mantissa), static_cast<int>(effective_scale));
 }
 
 std::string Decimal::str() const {
-  std::string digits = Int(boost::multiprecision::abs(mantissa_)).str();
+  long long small = 0;
+  std::string digits = small_value(mantissa_, small)
+                           ? std::to_string(small < 0 ? -small : small)
+                           : Int(boost::multiprecision::abs(mantissa_)).str();
   std::string out;
   if (is_negative()) out.push_back('-');
   if (scale_ == 0) return out + digits;
@@ -216,6 +324,17 @@ Decimal Decimal::divide(const Decimal& numerator, const Decimal& denominator, in
 }
 
 double Decimal::to_double() const {
+  // A mantissa below 2^53 and a scale up to 22 are both exact doubles, so one
+  // IEEE division rounds the quotient correctly: the same double as the text
+  // route (Clinger 1990, "How to Read Floating Point Numbers Accurately").
+  long long small = 0;
+  constexpr long long kExact = 1LL << 53;
+  if (scale_ <= 22 && small_value(mantissa_, small) && small < kExact && small > -kExact) {
+    static constexpr double kTens[] = {1e0,  1e1,  1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
+                                       1e8,  1e9,  1e10, 1e11, 1e12, 1e13, 1e14, 1e15,
+                                       1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22};
+    return static_cast<double>(small) / kTens[scale_];
+  }
   // Via text keeps the conversion correctly rounded for every magnitude.
   return std::stod(str());
 }
@@ -226,15 +345,24 @@ Decimal Decimal::operator-() const {
 
 Decimal operator+(const Decimal& a, const Decimal& b) {
   const int scale = std::max(a.scale_, b.scale_);
+  Wide x = 0, y = 0;
+  if (small_aligned(a.mantissa_, a.scale_, b.mantissa_, b.scale_, x, y))
+    return Decimal(from_int128(x + y), scale);
   return Decimal(a.scaled_to(scale) + b.scaled_to(scale), scale);
 }
 
 Decimal operator-(const Decimal& a, const Decimal& b) {
   const int scale = std::max(a.scale_, b.scale_);
+  Wide x = 0, y = 0;
+  if (small_aligned(a.mantissa_, a.scale_, b.mantissa_, b.scale_, x, y))
+    return Decimal(from_int128(x - y), scale);
   return Decimal(a.scaled_to(scale) - b.scaled_to(scale), scale);
 }
 
 Decimal operator*(const Decimal& a, const Decimal& b) {
+  long long x = 0, y = 0;
+  if (small_value(a.mantissa_, x) && small_value(b.mantissa_, y))
+    return Decimal(from_int128(static_cast<Wide>(x) * y), a.scale_ + b.scale_);
   return Decimal(a.mantissa_ * b.mantissa_, a.scale_ + b.scale_);
 }
 
@@ -244,6 +372,8 @@ bool operator==(const Decimal& a, const Decimal& b) {
 }
 
 std::strong_ordering operator<=>(const Decimal& a, const Decimal& b) {
+  Wide sx = 0, sy = 0;
+  if (small_aligned(a.mantissa_, a.scale_, b.mantissa_, b.scale_, sx, sy)) return sx <=> sy;
   const int scale = std::max(a.scale_, b.scale_);
   const auto x = a.scaled_to(scale);
   const auto y = b.scaled_to(scale);

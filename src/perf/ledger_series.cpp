@@ -60,6 +60,7 @@ LedgerSeries build_series(const LedgerLog& log, const store::PriceBook& prices,
   std::sort(splits.begin(), splits.end(),
             [](const Split* a, const Split* b) { return a->date < b->date; });
   std::size_t split_cursor = 0;
+  store::PriceBook::Cursor closes(prices);  // the days below ascend
   // Open quantities in scope, by (account, security).
   std::map<std::pair<std::int64_t, std::int64_t>, Decimal> held;
   auto refresh = [&](const Book& book, std::int64_t account, std::int64_t security) {
@@ -74,10 +75,6 @@ LedgerSeries build_series(const LedgerLog& log, const store::PriceBook& prices,
     const Book& book = replayer.advance_to(d);
     DayPoint point;
     point.day = d;
-    auto unit_price = [&](std::int64_t security_id) -> std::optional<Decimal> {
-      if (auto close = prices.at(security_id, d)) return close;
-      return book.last_trade_price(security_id);
-    };
     // Quantities change only where a transaction or split touched a
     // position; refresh those, keep the rest (summing lots daily is slow).
     if (d == first) {
@@ -97,8 +94,10 @@ LedgerSeries build_series(const LedgerLog& log, const store::PriceBook& prices,
     for (const auto& info : book.accounts())
       if (!account_id || info.id == *account_id) point.value += book.account(info.id).cash;
     for (const auto& [key, quantity] : held) {
-      if (auto price = unit_price(key.second))
-        point.value += quantity * *price;
+      if (const Decimal* close = closes.at(key.second, d))
+        point.value += quantity * *close;
+      else if (const auto traded = book.last_trade_price(key.second))
+        point.value += quantity * *traded;
       else
         out.unpriced.insert(key.second);
     }
@@ -126,7 +125,8 @@ LedgerSeries build_series(const LedgerLog& log, const store::PriceBook& prices,
       if (internal_pair(t)) continue;
       auto transfer_value = [&]() -> Decimal {
         if (!t.security_id) return *t.amount;
-        std::optional<Decimal> price = prices.at(*t.security_id, d);
+        std::optional<Decimal> price;
+        if (const Decimal* close = closes.at(*t.security_id, d)) price = *close;
         if (!price) price = t.price;
         if (!price) price = book.last_trade_price(*t.security_id);
         if (!price) {

@@ -6,6 +6,8 @@
 #include <cmath>
 #include <limits>
 #include <map>
+#include <optional>
+#include <utility>
 
 #include "core/error.h"
 
@@ -145,6 +147,97 @@ std::vector<double> scan_grid(double lo, double hi) {
   return ys;
 }
 
+// Proof that f has no root on a stretch of the scan. Split f into its inflow
+// and outflow parts, f = P - N with P, N >= 0: each is a sum of c exp(-y t)
+// with t >= 0, so both fall as y rises. On [a, b] then P >= P(b) and N <= N(a):
+// if P(b) > N(a), f > 0 on all of [a, b] (and f < 0 if N(b) > P(a)). The parts
+// are compared as logarithms (log-sum-exp), which neither overflow nor
+// underflow, with a relative margin far above the rounding of scaled_npv, so
+// a stretch is passed over only where the full sum's sign is certain.
+class SignBound {
+ public:
+  explicit SignBound(const std::vector<Flow>& flows) {
+    for (const Flow& f : flows) {
+      (f.c > 0 ? in_ : out_).push_back({f.t, std::log(std::fabs(f.c))});
+    }
+  }
+  struct Logs {
+    double in;   // ln P(y)
+    double out;  // ln N(y)
+  };
+  Logs at(double y) const { return {log_sum(in_, y), log_sum(out_, y)}; }
+  // True when f keeps one strict sign on [a, b], given the logs at a and b.
+  static bool one_sign(const Logs& a, const Logs& b) {
+    constexpr double kMargin = 1e-8;  // relative; the sums are good to ~1e-13
+    return b.in > a.out + kMargin || b.out > a.in + kMargin;
+  }
+
+ private:
+  struct Term {
+    double t;
+    double log_c;
+  };
+  // ln sum exp(log_c - y t). A term below exp(-700) of the largest is left
+  // out: it cannot move the sum by a relative 1e-290, far inside the margin.
+  static double log_sum(const std::vector<Term>& terms, double y) {
+    if (terms.empty()) return -std::numeric_limits<double>::infinity();
+    double top = -std::numeric_limits<double>::infinity();
+    for (const Term& k : terms) top = std::max(top, k.log_c - y * k.t);
+    double sum = 0;
+    for (const Term& k : terms) {
+      const double x = k.log_c - y * k.t - top;
+      if (x > -700) sum += std::exp(x);
+    }
+    return top + std::log(sum);
+  }
+  std::vector<Term> in_;
+  std::vector<Term> out_;
+};
+
+// Every root of f on the scan grid, as a full evaluation of f at every grid
+// point would find it (a zero at a point, or Brent's method between adjacent
+// points of opposite sign), but f is only evaluated where SignBound cannot
+// rule a root out: the grid's index range is halved recursively and a half
+// proved to keep one sign is skipped.
+template <typename F>
+std::vector<double> scan_roots(const std::vector<Flow>& flows, const F& g, double lo, double hi) {
+  const std::vector<double> ys = scan_grid(lo, hi);
+  const SignBound bound(flows);
+  const std::size_t last = ys.size() - 1;
+  std::vector<std::optional<SignBound::Logs>> logs(ys.size());
+  const auto logs_at = [&](std::size_t k) -> const SignBound::Logs& {
+    if (!logs[k]) logs[k] = bound.at(ys[k]);
+    return *logs[k];
+  };
+  std::vector<std::optional<double>> gs(ys.size());
+  std::vector<std::pair<std::size_t, std::size_t>> pending{{0, last}};
+  while (!pending.empty()) {
+    const auto [i, j] = pending.back();
+    pending.pop_back();
+    if (SignBound::one_sign(logs_at(i), logs_at(j))) continue;
+    if (j - i == 1) {
+      if (!gs[i]) gs[i] = g(ys[i]);
+      if (!gs[j]) gs[j] = g(ys[j]);
+      continue;
+    }
+    const std::size_t m = i + (j - i) / 2;
+    pending.push_back({m, j});
+    pending.push_back({i, m});
+  }
+  // Points skipped lie where f keeps one strict sign: no zero there, and no
+  // sign change between a skipped point and its neighbours.
+  std::vector<double> roots;
+  for (std::size_t k = 0; k <= last; ++k) {
+    if (!gs[k]) continue;
+    if (*gs[k] == 0) {
+      roots.push_back(ys[k]);
+    } else if (k < last && gs[k + 1] && opposite(*gs[k], *gs[k + 1])) {
+      roots.push_back(brent(g, ys[k], ys[k + 1], *gs[k], *gs[k + 1]));
+    }
+  }
+  return roots;
+}
+
 }  // namespace
 
 const char* to_string(MwrStatus status) {
@@ -205,16 +298,7 @@ MwrSolution solve_mwr(std::span<const CashFlow> input, Date start, Date end) {
   } else {
     // Several sign changes (or, defensively, bounds that do not bracket):
     // scan the whole range where roots can lie.
-    const std::vector<double> ys = scan_grid(lo, hi);
-    std::vector<double> gs(ys.size());
-    for (std::size_t k = 0; k < ys.size(); ++k) gs[k] = g(ys[k]);
-    for (std::size_t k = 0; k < ys.size(); ++k) {
-      if (gs[k] == 0) {
-        log_roots.push_back(ys[k]);
-      } else if (k + 1 < ys.size() && opposite(gs[k], gs[k + 1])) {
-        log_roots.push_back(brent(g, ys[k], ys[k + 1], gs[k], gs[k + 1]));
-      }
-    }
+    log_roots = scan_roots(flows, g, lo, hi);
   }
 
   for (double y : log_roots) out.roots.push_back(std::expm1(y));

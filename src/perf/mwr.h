@@ -13,7 +13,9 @@
 //  - With one sign change in the date-ordered flows the root is unique
 //    (Descartes' rule of signs for real exponents). With more sign changes
 //    the whole range where roots can lie is scanned on a fine grid; roots
-//    closer together than the grid step could be seen as none.
+//    closer together than the grid step could be seen as none. Stretches of
+//    the grid where the discounted sum provably keeps one sign are skipped
+//    (the answer is the one every grid point would give).
 //  - Rates are fractions (0.05 = 5 %). period_rate covers start..end:
 //    (1+r)^(days/365) - 1 with days = end - start. Either is absent when it is
 //    too large for a double; log_rate = ln(1+r) is then still given.

@@ -37,11 +37,11 @@ ReturnsReport returns_report(store::Database& db, const ReturnsRequest& request)
   if (!first) throw InputError("the ledger has no transactions yet; there is nothing to measure");
   report.inception = *first;
   report.as_of = *last;
-  if (auto day = store::latest_price_day(db); day && *day > report.as_of) report.as_of = *day;
+  const auto prices = store::PriceBook::load(db);
+  if (auto day = prices.last_day(); day && *day > report.as_of) report.as_of = *day;
   if (request.as_of) report.as_of = *request.as_of;
   report.period = resolve_period(request.period, report.as_of, report.inception);
 
-  const auto prices = store::PriceBook::load(db);
   auto series = build_series(log, prices, account_id, report.period.from, report.period.to);
   report.income = series.income;
   report.tax = series.tax;

@@ -33,6 +33,12 @@ class Stmt {
     sqlite3_bind_text(st_, i, v.data(), static_cast<int>(v.size()), SQLITE_STATIC);
     return *this;
   }
+  // Text that ends with a NUL: SQLite then uses it in place even where it
+  // needs a terminated string (the GLOB checks), instead of copying it.
+  Stmt& bind_terminated(int i, const char* z) {
+    sqlite3_bind_text(st_, i, z, -1, SQLITE_STATIC);
+    return *this;
+  }
   // Runs a statement that returns no rows; gives sqlite3_changes().
   int run() {
     const int rc = sqlite3_step(st_);
@@ -104,6 +110,7 @@ struct MarketWriter::Impl {
 
   // Buffered prices, see MarketWriter::price().
   struct Pending {
+    std::uint64_t key;  // sec << 32 | YYYYMMDD: orders as (sec, date) does
     std::uint32_t sec;
     std::uint32_t close_len;
     std::uint64_t line;
@@ -111,9 +118,11 @@ struct MarketWriter::Impl {
     std::array<char, 10> date;
   };
   static constexpr std::size_t kBatch = 1 << 18;
-  static constexpr std::size_t kBlock = 64;
+  static constexpr std::size_t kBlock = 256;
   std::vector<Pending> pending;
-  std::string arena;
+  std::vector<std::uint32_t> order;    // of `pending`, in key order
+  std::vector<std::size_t> group_end;  // per security, into `order`
+  std::string arena;                   // closes, each followed by a NUL
   PriceProblem problem;
   Counts counts;
   std::string existing;
@@ -261,13 +270,19 @@ const std::string& MarketWriter::symbol(std::size_t sec) const {
 void MarketWriter::price(std::size_t sec, std::string_view date, std::string_view close,
                          std::uint64_t line) {
   auto& m = *impl_;
-  Impl::Pending p{static_cast<std::uint32_t>(sec),
+  // `date` is ISO YYYY-MM-DD here, so its digits read as YYYYMMDD.
+  std::uint64_t ymd = 0;
+  for (const char c : date)
+    if (c != '-') ymd = ymd * 10 + static_cast<std::uint64_t>(c - '0');
+  Impl::Pending p{static_cast<std::uint64_t>(sec) << 32 | ymd,
+                  static_cast<std::uint32_t>(sec),
                   static_cast<std::uint32_t>(close.size()),
                   line,
                   m.arena.size(),
                   {}};
   std::copy_n(date.data(), std::min<std::size_t>(date.size(), 10), p.date.begin());
   m.arena.append(close);
+  m.arena.push_back('\0');  // see Stmt::bind_terminated()
   m.pending.push_back(p);
   if (m.pending.size() >= Impl::kBatch) m.flush_prices();
 }
@@ -278,11 +293,24 @@ MarketWriter::Counts MarketWriter::finish_prices() {
 }
 
 void MarketWriter::Impl::flush_prices() {
-  std::sort(pending.begin(), pending.end(), [](const Pending& a, const Pending& b) {
-    if (a.sec != b.sec) return a.sec < b.sec;
-    if (a.date != b.date) return a.date < b.date;
-    return a.line < b.line;
-  });
+  // Order the rows by (security, day, line). A stable counting sort groups
+  // them by security keeping file order, which is line order; a group is
+  // then sorted only where the file did not already list it by day.
+  const auto before = [this](std::uint32_t a, std::uint32_t b) {
+    const Pending& x = pending[a];
+    const Pending& y = pending[b];
+    return x.key != y.key ? x.key < y.key : x.line < y.line;
+  };
+  group_end.assign(ids.size() + 1, 0);
+  for (const Pending& p : pending) ++group_end[p.sec + 1];
+  for (std::size_t g = 1; g < group_end.size(); ++g) group_end[g] += group_end[g - 1];
+  order.resize(pending.size());
+  for (std::uint32_t i = 0; i < pending.size(); ++i) order[group_end[pending[i].sec]++] = i;
+  for (std::size_t g = 0, begin = 0; g < ids.size(); begin = group_end[g++]) {
+    const auto first = order.begin() + static_cast<std::ptrdiff_t>(begin);
+    const auto last = order.begin() + static_cast<std::ptrdiff_t>(group_end[g]);
+    if (!std::is_sorted(first, last, before)) std::sort(first, last, before);
+  }
   auto date_of = [](const Pending& p) { return std::string_view(p.date.data(), p.date.size()); };
   auto close_of = [&](const Pending& p) {
     return std::string_view(arena.data() + p.close_off, p.close_len);
@@ -309,7 +337,8 @@ void MarketWriter::Impl::flush_prices() {
       for (std::size_t i = 0; i < kBlock; ++i) {
         price_block.bind(static_cast<int>(3 * i + 1), ids[block[i]->sec]);
         price_block.bind(static_cast<int>(3 * i + 2), date_of(*block[i]));
-        price_block.bind(static_cast<int>(3 * i + 3), close_of(*block[i]));
+        price_block.bind_terminated(static_cast<int>(3 * i + 3),
+                                    arena.data() + block[i]->close_off);
       }
       if (price_block.try_run()) {
         counts.added += kBlock;
@@ -321,8 +350,9 @@ void MarketWriter::Impl::flush_prices() {
     block_rows = 0;
   };
   const Pending* prev = nullptr;
-  for (const Pending& p : pending) {
-    const bool repeat = prev && prev->sec == p.sec && prev->date == p.date;
+  for (const std::uint32_t i : order) {
+    const Pending& p = pending[i];
+    const bool repeat = prev && prev->key == p.key;
     prev = &p;
     if (repeat || range_of(kPrice, p.sec).covers(date_of(p))) {
       run_block();

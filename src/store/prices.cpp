@@ -1,11 +1,31 @@
 #include "store/prices.h"
 
+#include <SQLiteCpp/Exception.h>
 #include <SQLiteCpp/Statement.h>
+#include <sqlite3.h>
 
 #include <algorithm>
-#include <set>
+#include <memory>
+#include <string_view>
 
 namespace keel::store {
+namespace {
+
+std::string_view column_text(sqlite3_stmt* st, int col) {
+  const auto* p = reinterpret_cast<const char*>(sqlite3_column_text(st, col));
+  return p ? std::string_view(p, static_cast<std::size_t>(sqlite3_column_bytes(st, col)))
+           : std::string_view{};
+}
+
+// Entries of `s` on or before `day`: the position one past the answer.
+template <typename Series>
+std::size_t on_or_before(const Series& s, Date day) {
+  const auto pos = std::upper_bound(s.begin(), s.end(), day,
+                                    [](Date d, const auto& entry) { return d < entry.first; });
+  return static_cast<std::size_t>(pos - s.begin());
+}
+
+}  // namespace
 
 std::optional<Decimal> latest_close(Database& db, std::int64_t security_id, Date day) {
   SQLite::Statement st(db.sql(),
@@ -19,33 +39,74 @@ std::optional<Decimal> latest_close(Database& db, std::int64_t security_id, Date
 
 PriceBook PriceBook::load(Database& db) {
   PriceBook book;
-  SQLite::Statement st(db.sql(),
-                       "SELECT security_id, date, close FROM price ORDER BY security_id, date");
-  while (st.executeStep())
-    book.add(st.getColumn(0).getInt64(), Date::parse(st.getColumn(1).getString()),
-             Decimal::parse(st.getColumn(2).getString()));
+  // Through the raw handle: text columns are parsed in place, not copied.
+  sqlite3* h = db.sql().getHandle();
+  sqlite3_stmt* raw = nullptr;
+  if (sqlite3_prepare_v2(h, "SELECT security_id, date, close FROM price ORDER BY security_id, date",
+                         -1, &raw, nullptr) != SQLITE_OK)
+    throw SQLite::Exception(h);
+  const std::unique_ptr<sqlite3_stmt, int (*)(sqlite3_stmt*)> owner(raw, sqlite3_finalize);
+  int rc = SQLITE_OK;
+  while ((rc = sqlite3_step(raw)) == SQLITE_ROW)
+    book.add(sqlite3_column_int64(raw, 0), Date::parse(column_text(raw, 1)),
+             Decimal::parse(column_text(raw, 2)));
+  if (rc != SQLITE_DONE) throw SQLite::Exception(h, rc);
   return book;
 }
 
 void PriceBook::add(std::int64_t security_id, Date day, Decimal close) {
-  series_[security_id].emplace_back(day, std::move(close));
+  const auto [it, added] = index_.try_emplace(security_id, series_.size());
+  if (added) series_.emplace_back();
+  series_[it->second].emplace_back(day, std::move(close));
+}
+
+const PriceBook::Series* PriceBook::series_of(std::int64_t security_id, std::size_t& index) const {
+  const auto it = index_.find(security_id);
+  if (it == index_.end()) return nullptr;
+  index = it->second;
+  return &series_[index];
 }
 
 std::optional<Decimal> PriceBook::at(std::int64_t security_id, Date day) const {
-  const auto it = series_.find(security_id);
-  if (it == series_.end()) return std::nullopt;
-  const auto& s = it->second;
-  auto pos = std::upper_bound(s.begin(), s.end(), day,
-                              [](Date d, const auto& entry) { return d < entry.first; });
-  if (pos == s.begin()) return std::nullopt;
-  return std::prev(pos)->second;
+  std::size_t index = 0;
+  const Series* s = series_of(security_id, index);
+  if (!s) return std::nullopt;
+  const std::size_t n = on_or_before(*s, day);
+  if (n == 0) return std::nullopt;
+  return (*s)[n - 1].second;
 }
 
 std::vector<Date> PriceBook::all_days() const {
-  std::set<Date> days;
-  for (const auto& [id, s] : series_)
-    for (const auto& [d, close] : s) days.insert(d);
-  return {days.begin(), days.end()};
+  std::vector<Date> days;
+  for (const Series& s : series_)
+    for (const auto& entry : s) days.push_back(entry.first);
+  std::sort(days.begin(), days.end());
+  days.erase(std::unique(days.begin(), days.end()), days.end());
+  return days;
+}
+
+std::optional<Date> PriceBook::last_day() const {
+  std::optional<Date> last;
+  for (const Series& s : series_)
+    if (!s.empty() && (!last || s.back().first > *last)) last = s.back().first;
+  return last;
+}
+
+PriceBook::Cursor::Cursor(const PriceBook& book)
+    : book_(book), next_(book.series_.size(), 0), asked_(book.series_.size()) {}
+
+const Decimal* PriceBook::Cursor::at(std::int64_t security_id, Date day) {
+  std::size_t index = 0;
+  const Series* s = book_.series_of(security_id, index);
+  if (!s) return nullptr;
+  std::size_t& n = next_[index];
+  if (n > 0 && day < asked_[index]) {
+    n = on_or_before(*s, day);
+  } else {
+    while (n < s->size() && (*s)[n].first <= day) ++n;
+  }
+  asked_[index] = day;
+  return n == 0 ? nullptr : &(*s)[n - 1].second;
 }
 
 }  // namespace keel::store

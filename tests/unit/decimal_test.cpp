@@ -115,3 +115,29 @@ TEST_CASE("decimal: conversion to double is for statistics only and correctly ro
   CHECK(d("0.1").to_double() == 0.1);
   CHECK(d("-12.5").to_double() == -12.5);
 }
+
+TEST_CASE("decimal: sums and products across the 64-bit boundary stay exact") {
+  // 2^63 - 1 = 9223372036854775807 (from memory; checked below by doubling).
+  const Decimal max64 = d("9223372036854775807");
+  CHECK((max64 + max64).str() == "18446744073709551614");
+  CHECK((max64 + d("1")).str() == "9223372036854775808");
+  CHECK((-max64 - d("1")).str() == "-9223372036854775808");
+  CHECK((-max64 - d("2")).str() == "-9223372036854775809");
+  CHECK((d("999999999999999999") * d("999999999999999999")).str() ==
+        "999999999999999998000000000000000001");
+  CHECK((d("-0.000000000000000001") * d("3000000000000000000")).str() == "-3");
+  CHECK((d("92233720368547758.07") + d("0.000000000000000001")).str() ==
+        "92233720368547758.070000000000000001");
+  CHECK(d("9223372036854775808") > max64);
+  CHECK(d("-9223372036854775808") < -max64);
+  CHECK(d("1.10") == d("1.1"));
+  CHECK(d("0.30") + d("0.70") == d("1"));
+}
+
+TEST_CASE("decimal: conversion to double is correctly rounded") {
+  CHECK(d("0.1").to_double() == 0.1);
+  CHECK(d("-123.456").to_double() == -123.456);
+  CHECK(d("9007199254740993").to_double() == 9007199254740992.0);  // 2^53 + 1, ties to even
+  CHECK(d("0.0000000000000000000000001").to_double() == 1e-25);
+  CHECK(d("12345678901234567890.123").to_double() == 12345678901234567890.123);
+}

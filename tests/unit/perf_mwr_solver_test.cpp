@@ -156,6 +156,17 @@ TEST_CASE("perf mwr: two roots from a series are reported by measure()") {
   CHECK(res.mwr.roots.size() == 2);
 }
 
+TEST_CASE("perf mwr: two roots two grid steps apart are both found") {
+  // +100, -200.5, +100.5 a year apart: x = (200.5 +- sqrt(200.5^2 - 4*100*100.5)) / 200
+  // = (200.5 +- 0.5) / 200, so 1+r is 1.0 or 1.005: rates of 0 % and 0.5 %.
+  const std::vector<CashFlow> flows{{at(0), 100.0}, {at(365), -200.5}, {at(730), 100.5}};
+  const MwrSolution s = solve_mwr(flows, at(0), at(730));
+  CHECK(s.status == MwrStatus::kMultipleRoots);
+  REQUIRE(s.roots.size() == 2);
+  CHECK(std::fabs(s.roots[0]) < 1e-12);
+  CHECK(s.roots[1] == doctest::Approx(0.005).epsilon(1e-10));
+}
+
 TEST_CASE("perf mwr: mixed signs whose discounted sum never crosses zero have no rate") {
   // 100 x^2 - 230 x + 140 has no real root (230^2 < 4 * 100 * 140).
   const std::vector<CashFlow> flows{{at(0), 100.0}, {at(365), -230.0}, {at(730), 140.0}};
