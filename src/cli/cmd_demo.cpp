@@ -43,10 +43,13 @@ const std::vector<DemoStep>& demo_steps() {
       {"The year's returns against the benchmark",
        register_returns_commands,
        {"returns", "--year", "{year}", "--benchmark", "{benchmark}"}},
-      // EXTENSION POINT (proposal): next month's orders under the rule, e.g.
-      // {"Next month's proposal", register_rules_commands, {"propose", ...}},
-      // EXTENSION POINT (statement): the year-end statement, e.g.
-      // {"Year-end statement", register_statement_commands, {"statement", ...}},
+      {"Next month's proposal under the example rule",
+       register_rules_commands,
+       {"propose", "--rule", "{scenario_dir}/../rule.toml", "--as-of", "{last_day}"}},
+      {"The year-end statement",
+       register_statement_commands,
+       {"statement", "--year", "{year}", "--benchmark", "{benchmark}", "--html",
+        "{ledger_dir}/statement-{year}.html"}},
   };
   return steps;
 }
@@ -66,7 +69,7 @@ void run_step(const DemoStep& step, const Context& base, const fs::path& ledger,
   app.option_defaults()->always_capture_default();
   register_ledger_commands(app, ctx);  // other families add to its 'account' and 'security'
   if (step.family != register_ledger_commands) step.family(app, ctx);
-  const auto args = io::expand_placeholders(step.args, scenario);
+  const auto args = io::expand_placeholders(step.args, scenario, ledger.parent_path());
   std::vector<std::string> reversed(args.rbegin(), args.rend());  // CLI11 parses from the back
   out(fmt::format("\n== {} (keel {}) ==\n\n", step.heading, fmt::join(args, " ")));
   std::fflush(stdout);

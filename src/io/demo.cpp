@@ -122,14 +122,14 @@ std::vector<DemoImport> import_scenario(store::Database& db, const DemoScenario&
 }
 
 std::vector<std::string> expand_placeholders(const std::vector<std::string>& args,
-                                             const DemoScenario& scenario) {
+                                             const DemoScenario& scenario,
+                                             const std::filesystem::path& ledger_dir) {
   const Date month_start = Date::from_ymd(scenario.last_day.year(), scenario.last_day.month(), 1);
   const std::pair<std::string_view, std::string> values[] = {
-      {"first_day", scenario.first_day.str()},
-      {"last_day", scenario.last_day.str()},
-      {"month_start", month_start.str()},
-      {"year", std::to_string(scenario.last_day.year())},
-      {"benchmark", scenario.benchmark}};
+      {"first_day", scenario.first_day.str()}, {"last_day", scenario.last_day.str()},
+      {"month_start", month_start.str()},      {"year", std::to_string(scenario.last_day.year())},
+      {"benchmark", scenario.benchmark},       {"ledger_dir", ledger_dir.string()},
+      {"scenario_dir", scenario.dir.string()}};
   std::vector<std::string> out;
   for (const auto& arg : args) {
     std::string text;

@@ -64,8 +64,11 @@ struct DemoImport {
 };
 std::vector<DemoImport> import_scenario(store::Database& db, const DemoScenario& scenario);
 
+// {ledger_dir} is the folder of the demo ledger (for files the demo writes);
+// {scenario_dir} the folder holding the scenario's data.
 std::vector<std::string> expand_placeholders(const std::vector<std::string>& args,
-                                             const DemoScenario& scenario);
+                                             const DemoScenario& scenario,
+                                             const std::filesystem::path& ledger_dir = {});
 
 // Printed after the demo's reports.
 inline constexpr std::string_view kDemoCautions =
