@@ -17,7 +17,7 @@ case $seconds in '' | *[!0-9]*)
 esac
 root=$(cd "$(dirname "$0")/../.." && pwd)
 build=$root/build-fuzz
-targets="csv decimal date mapping"
+targets="csv decimal date mapping rule"
 
 mkdir -p "$build"
 cmake -S "$root" -B "$build" -G Ninja -DCMAKE_CXX_COMPILER=clang++ -DKEEL_FUZZ=ON \
