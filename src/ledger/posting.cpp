@@ -65,6 +65,9 @@ void check_shape(const PostRequest& r) {
       forbid(r.price.has_value(), kind, "price");
   } else {
     require_positive(r.amount, kind, "amount (or --symbol and --quantity for units)");
+    // A charge for moving cash is its own 'fee' transaction; a fee here would
+    // have no side of the cash to come from.
+    forbid(r.fee.has_value(), kind, "fee on a cash transfer (record a separate fee)");
     forbid(r.quantity.has_value(), kind, "quantity without --symbol");
     forbid(r.price.has_value(), kind, "price");
     forbid(r.acquired.has_value(), kind, "acquired");

@@ -238,8 +238,7 @@ TEST_CASE("batch: a batch is posted whole, or not at all, with the failing row n
   const std::string before = f.dump();
   CHECK_THROWS_WITH_AS(
       ledger::post_batch(f.db, {deposit, oversell}, {"broker.csv:2", "broker.csv:3"}),
-      "broker.csv:3: sell on 2025-02-01 in 'Main': cannot take 50 units; only 5 held",
-      InputError);
+      "broker.csv:3: sell on 2025-02-01 in 'Main': cannot take 50 units; only 5 held", InputError);
   CHECK(f.dump() == before);
   auto unknown = request(TxnKind::deposit);
   unknown.account = "Nobody", unknown.amount = dec("1");
@@ -248,4 +247,14 @@ TEST_CASE("batch: a batch is posted whole, or not at all, with the failing row n
   CHECK(f.dump() == before);
   CHECK(ledger::post_batch(f.db, {deposit, deposit}, {"b.csv:2", "b.csv:3"}).size() == 2);
   CHECK(f.book().account(1).cash == dec("700"));
+}
+
+// Regression: a cash transfer took --fee, which the lot engine never charged
+// while the returns counted it; such a fee is now refused.
+TEST_CASE("guard rail: a fee on a cash transfer is refused") {
+  Funded f;
+  auto r = request(TxnKind::transfer_out);
+  r.amount = dec("50"), r.fee = dec("1");
+  expect_refused(f, r,
+                 "transfer_out: --fee on a cash transfer (record a separate fee) does not apply");
 }
