@@ -63,7 +63,18 @@ for what in ("accounts", "securities", "prices", "metrics", "distributions", "sp
 sections = dict(re.findall(r"^== (.+?) \(keel [^)]*\) ==\n(.*?)(?=^== |\nCautions\n)", out,
                            re.M | re.S))
 equal(sorted(sections), sorted(["The last month's transactions", "Holdings on the last day",
-                                "The year's returns against the benchmark"]), "demo sections")
+                                "The year's returns against the benchmark",
+                                "Next month's proposal under the example rule",
+                                "The year-end statement"]), "demo sections")
+proposal = sections["Next month's proposal under the example rule"]
+check(re.search(r"^\S.*\s(buy|sell)\s+\d+\s", proposal, re.M), "the demo's proposal has orders")
+html = os.path.join(demo_dir, "statement-2025.html")
+check(os.path.getsize(html) > 10000, "the demo writes the year's statement as HTML")
+statement = json.loads(subprocess.run([KEEL, "--db", ledger, "statement", "--year", "2025", "--json"],
+                                      capture_output=True, text=True, check=True).stdout)
+equal(statement["summary"]["difference"], "0", "the demo statement reconciles to the cent")
+equal(statement["summary"]["explained_closing"], statement["summary"]["closing_value"],
+      "the year's pieces add up to the closing value")
 printed_total = re.search(r"^total\s+(\S+)\s*$", sections["Holdings on the last day"], re.M)
 check(printed_total, "the holdings table ends with a total")
 returns = sections["The year's returns against the benchmark"]
