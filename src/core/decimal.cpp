@@ -182,6 +182,7 @@ std::optional<Decimal> Decimal::parse_text(std::string_view text, std::string& w
     for (; i < text.size(); ++i) {
       const char c = text[i];
       if (c >= '0' && c <= '9') {
+        if (digits == 18) break;  // a 19th digit could overflow; the general path takes it
         value = value * 10 + (c - '0');
         ++digits;
         if (scale >= 0) ++scale;

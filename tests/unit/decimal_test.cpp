@@ -141,3 +141,11 @@ TEST_CASE("decimal: conversion to double is correctly rounded") {
   CHECK(d("0.0000000000000000000000001").to_double() == 1e-25);
   CHECK(d("12345678901234567890.123").to_double() == 12345678901234567890.123);
 }
+
+// Regression (found by fuzz_decimal under UBSan): the machine-word fast path
+// multiplied a 19th and 20th digit into a long long before checking the count.
+TEST_CASE("decimal: twenty digits parse exactly without overflowing the fast path") {
+  CHECK(Decimal::parse("80080000008000080001").str() == "80080000008000080001");
+  CHECK(Decimal::parse("-9999999999999999999").str() == "-9999999999999999999");
+  CHECK(Decimal::parse("999999999999999999.9").str() == "999999999999999999.9");
+}
