@@ -13,32 +13,35 @@ namespace {
 
 using Int = boost::multiprecision::cpp_int;
 
+// 10^0 .. 10^18, every power of ten that fits a long long.
+constexpr long long kPow10[] = {1,
+                                10,
+                                100,
+                                1000,
+                                10000,
+                                100000,
+                                1000000,
+                                10000000,
+                                100000000,
+                                1000000000,
+                                10000000000,
+                                100000000000,
+                                1000000000000,
+                                10000000000000,
+                                100000000000000,
+                                1000000000000000,
+                                10000000000000000,
+                                100000000000000000,
+                                1000000000000000000};
+
 Int pow10(int n) {
   Int result = 1;
-  static const Int kTen18{"1000000000000000000"};
+  static const Int kTen18{kPow10[18]};
   while (n >= 18) {
     result *= kTen18;
     n -= 18;
   }
-  static constexpr long long kSmall[] = {1,
-                                         10,
-                                         100,
-                                         1000,
-                                         10000,
-                                         100000,
-                                         1000000,
-                                         10000000,
-                                         100000000,
-                                         1000000000,
-                                         10000000000,
-                                         100000000000,
-                                         1000000000000,
-                                         10000000000000,
-                                         100000000000000,
-                                         1000000000000000,
-                                         10000000000000000,
-                                         100000000000000000};
-  return result * kSmall[n];
+  return result * kPow10[n];
 }
 
 // Divides `value` by 10^drop and rounds the quotient half-to-even.
@@ -70,25 +73,6 @@ bool small_value(const Int& v, long long& out) {
   return true;
 }
 
-constexpr long long kPow10[] = {1,
-                                10,
-                                100,
-                                1000,
-                                10000,
-                                100000,
-                                1000000,
-                                10000000,
-                                100000000,
-                                1000000000,
-                                10000000000,
-                                100000000000,
-                                1000000000000,
-                                10000000000000,
-                                100000000000000,
-                                1000000000000000,
-                                10000000000000000,
-                                100000000000000000,
-                                1000000000000000000};
 
 // a * 10^(scale - a_scale) and b * 10^(scale - b_scale) as 128-bit integers,
 // when both mantissas are small and the shifts are at most 18 digits: then
