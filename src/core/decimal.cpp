@@ -73,7 +73,6 @@ bool small_value(const Int& v, long long& out) {
   return true;
 }
 
-
 // a * 10^(scale - a_scale) and b * 10^(scale - b_scale) as 128-bit integers,
 // when both mantissas are small and the shifts are at most 18 digits: then
 // each product is below 2^63 * 10^18 < 2^123, and a sum or difference of two

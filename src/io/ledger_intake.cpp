@@ -156,6 +156,21 @@ bool read_request(TableReader& t, ledger::PostRequest& r) {
   return ok;
 }
 
+// The file read as the mapping says, hashing as it goes (for the import log).
+CsvReader open_csv(const std::filesystem::path& file, const Mapping& mapping) {
+  CsvOptions csv_options;
+  csv_options.delimiter = mapping.delimiter;
+  csv_options.hash = true;
+  return CsvReader::open(file, csv_options);
+}
+
+LedgerImportSummary new_summary(const std::filesystem::path& file, const ImportOptions& options) {
+  LedgerImportSummary sum;
+  sum.file = file.string();
+  sum.dry_run = options.dry_run;
+  return sum;
+}
+
 void record_run(store::Database& db, std::string_view what, const std::filesystem::path& file,
                 LedgerImportSummary& sum) {
   store::ImportRun run;
@@ -172,14 +187,9 @@ void record_run(store::Database& db, std::string_view what, const std::filesyste
 LedgerImportSummary import_transactions(store::Database& db, const std::filesystem::path& file,
                                         const ImportOptions& options) {
   const Mapping mapping = checked_mapping(options, "transactions");
-  CsvOptions csv_options;
-  csv_options.delimiter = mapping.delimiter;
-  csv_options.hash = true;
-  CsvReader csv = CsvReader::open(file, csv_options);
+  CsvReader csv = open_csv(file, mapping);
   ErrorList errors(file.string());
-  LedgerImportSummary sum;
-  sum.file = file.string();
-  sum.dry_run = options.dry_run;
+  LedgerImportSummary sum = new_summary(file, options);
 
   store::WriteTransaction tx(db);
   const BookedKeys booked = BookedKeys::load(db);
@@ -251,14 +261,9 @@ LedgerImportSummary import_transactions(store::Database& db, const std::filesyst
 LedgerImportSummary import_accounts(store::Database& db, const std::filesystem::path& file,
                                     const ImportOptions& options) {
   const Mapping mapping = checked_mapping(options, "accounts");
-  CsvOptions csv_options;
-  csv_options.delimiter = mapping.delimiter;
-  csv_options.hash = true;
-  CsvReader csv = CsvReader::open(file, csv_options);
+  CsvReader csv = open_csv(file, mapping);
   ErrorList errors(file.string());
-  LedgerImportSummary sum;
-  sum.file = file.string();
-  sum.dry_run = options.dry_run;
+  LedgerImportSummary sum = new_summary(file, options);
   store::WriteTransaction tx(db);
   {
     TableReader t(csv, mapping,
