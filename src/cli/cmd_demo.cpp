@@ -13,6 +13,7 @@
 #include "core/text.h"
 #include "io/demo.h"
 #include "io/errors.h"
+#include "report/statement_forms.h"
 
 #ifndef KEEL_SOURCE_DIR
 #error "KEEL_SOURCE_DIR must name the source tree (set in CMakeLists.txt)"
@@ -23,17 +24,18 @@ namespace {
 namespace fs = std::filesystem;
 
 // One report of the demo: a heading, the command family that provides it,
-// and its arguments ({last_day}, {month_start}, {year}, {benchmark} and
-// {first_day} are filled in from scenario.toml; see io/demo.h).
+// its arguments ({last_day}, {month_start}, {year}, {benchmark} and
+// {first_day} are filled in from scenario.toml; see io/demo.h), and the
+// arguments added when Chromium is on PATH (the PDF is printed with it).
 struct DemoStep {
   const char* heading;
   Registrar family;
   std::vector<std::string> args;
+  std::vector<std::string> with_chromium = {};
 };
 
 // EXTENSION POINT: the demo's reports, in order. A new report is one line
-// here; the proposal and statement steps go at the marks below once their
-// commands exist.
+// here.
 const std::vector<DemoStep>& demo_steps() {
   static const std::vector<DemoStep> steps = {
       {"The last month's transactions",
@@ -49,7 +51,8 @@ const std::vector<DemoStep>& demo_steps() {
       {"The year-end statement",
        register_statement_commands,
        {"statement", "--year", "{year}", "--benchmark", "{benchmark}", "--html",
-        "{ledger_dir}/statement-{year}.html"}},
+        "{ledger_dir}/statement-{year}.html"},
+       {"--pdf", "{ledger_dir}/statement-{year}.pdf"}},
   };
   return steps;
 }
@@ -69,7 +72,10 @@ void run_step(const DemoStep& step, const Context& base, const fs::path& ledger,
   app.option_defaults()->always_capture_default();
   register_ledger_commands(app, ctx);  // other families add to its 'account' and 'security'
   if (step.family != register_ledger_commands) step.family(app, ctx);
-  const auto args = io::expand_placeholders(step.args, scenario, ledger.parent_path());
+  auto wanted = step.args;
+  if (!step.with_chromium.empty() && report::find_chromium())
+    wanted.insert(wanted.end(), step.with_chromium.begin(), step.with_chromium.end());
+  const auto args = io::expand_placeholders(wanted, scenario, ledger.parent_path());
   std::vector<std::string> reversed(args.rbegin(), args.rend());  // CLI11 parses from the back
   out(fmt::format("\n== {} (keel {}) ==\n\n", step.heading, fmt::join(args, " ")));
   std::fflush(stdout);

@@ -70,6 +70,12 @@ proposal = sections["Next month's proposal under the example rule"]
 check(re.search(r"^\S.*\s(buy|sell)\s+\d+\s", proposal, re.M), "the demo's proposal has orders")
 html = os.path.join(demo_dir, "statement-2025.html")
 check(os.path.getsize(html) > 10000, "the demo writes the year's statement as HTML")
+pdf = os.path.join(demo_dir, "statement-2025.pdf")
+if shutil.which("chromium"):
+    check(open(pdf, "rb").read(5) == b"%PDF-", "with Chromium on PATH the demo also writes a PDF")
+    check(f"wrote PDF {pdf}" in out, "the demo prints the PDF's path")
+else:
+    check(not os.path.exists(pdf), "without Chromium the demo writes no PDF")
 statement = json.loads(subprocess.run([KEEL, "--db", ledger, "statement", "--year", "2025", "--json"],
                                       capture_output=True, text=True, check=True).stdout)
 equal(statement["summary"]["difference"], "0", "the demo statement reconciles to the cent")
