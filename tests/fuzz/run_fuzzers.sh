@@ -1,13 +1,18 @@
 #!/bin/sh
-# Builds the libFuzzer targets with clang in build-fuzz/ and runs each for
-# SECONDS (default 60), printing executions, executions per second and
-# crashes per target. Exits non-zero if any target found a crash.
+# Builds the libFuzzer targets and runs each for SECONDS (default 60),
+# printing executions, executions per second and crashes per target. Exits
+# non-zero if any target found a crash.
 #
-#   tests/fuzz/run_fuzzers.sh [SECONDS]
+#   tests/fuzz/run_fuzzers.sh [SECONDS [BUILD_DIR]]
+#
+# Without BUILD_DIR the targets are built with clang, optimized, in
+# build-fuzz/. With it, they are built in that existing build folder, which
+# must have been configured with clang and -DKEEL_FUZZ=ON (CI reuses its
+# sanitizer build this way instead of compiling the library a third time).
 #
 # The seed corpus in tests/fuzz/corpus/<target>/ is only read; inputs the
-# fuzzer finds go to build-fuzz/corpus/<target>/, crashing inputs to
-# build-fuzz/artifacts/<target>/.
+# fuzzer finds go to BUILD/corpus/<target>/, crashing inputs to
+# BUILD/artifacts/<target>/.
 set -eu
 seconds=${1:-60}
 case $seconds in '' | *[!0-9]*)
@@ -16,13 +21,24 @@ case $seconds in '' | *[!0-9]*)
   ;;
 esac
 root=$(cd "$(dirname "$0")/../.." && pwd)
-build=$root/build-fuzz
 targets="csv decimal date mapping rule"
 
-mkdir -p "$build"
-cmake -S "$root" -B "$build" -G Ninja -DCMAKE_CXX_COMPILER=clang++ -DKEEL_FUZZ=ON \
-  -DCMAKE_BUILD_TYPE=RelWithDebInfo >"$build/configure.log" 2>&1 ||
-  { cat "$build/configure.log" >&2; exit 1; }
+if [ $# -ge 2 ]; then
+  build=$(cd "$2" 2>/dev/null && pwd) || {
+    echo "run_fuzzers.sh: BUILD_DIR '$2' is not a folder" >&2
+    exit 2
+  }
+  if ! grep -q '^KEEL_FUZZ:BOOL=ON$' "$build/CMakeCache.txt" 2>/dev/null; then
+    echo "run_fuzzers.sh: '$2' is not a build folder configured with -DKEEL_FUZZ=ON" >&2
+    exit 2
+  fi
+else
+  build=$root/build-fuzz
+  mkdir -p "$build"
+  cmake -S "$root" -B "$build" -G Ninja -DCMAKE_CXX_COMPILER=clang++ -DKEEL_FUZZ=ON \
+    -DCMAKE_BUILD_TYPE=RelWithDebInfo >"$build/configure.log" 2>&1 ||
+    { cat "$build/configure.log" >&2; exit 1; }
+fi
 set --
 for t in $targets; do set -- "$@" "fuzz_$t"; done
 cmake --build "$build" -j2 --target "$@"
