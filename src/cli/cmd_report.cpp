@@ -9,6 +9,7 @@
 #include "core/error.h"
 #include "ledger/holdings.h"
 #include "ledger/posting.h"
+#include "report/gain_rows.h"
 #include "report/table.h"
 #include "store/ledger_store.h"
 
@@ -150,8 +151,7 @@ void add_gains(CLI::App& app, Context& ctx) {
     auto db = ctx.open_ledger();
     const auto gains = ledger::realized_gains(
         db, o->year ? std::optional<int>(o->year) : std::nullopt, optional_text(o->account));
-    Decimal total_short, total_long;
-    for (const auto& g : gains) (g.long_term ? total_long : total_short) += g.part.gain();
+    const auto totals = ledger::totals_by_term(gains);
     if (o->json) {
       Json j;
       j["gains"] = Json::array();
@@ -167,30 +167,18 @@ void add_gains(CLI::App& app, Context& ctx) {
                               {"cost", g.part.cost.str()},
                               {"gain", g.part.gain().str()},
                               {"term", g.long_term ? "long" : "short"}});
-      j["total_short"] = total_short.str();
-      j["total_long"] = total_long.str();
-      j["total"] = (total_short + total_long).str();
+      j["total_short"] = totals.short_term.gain.str();
+      j["total_long"] = totals.long_term.gain.str();
+      j["total"] = totals.all().gain.str();
       print_json(j);
       return;
     }
-    Table t({{"account"},
-             {"symbol"},
-             {"lot", Align::right},
-             {"acquired"},
-             {"disposed"},
-             {"quantity", Align::right},
-             {"proceeds", Align::right},
-             {"cost", Align::right},
-             {"gain", Align::right},
-             {"term"}});
-    for (const auto& g : gains)
-      t.add_row({g.account, g.symbol, std::to_string(g.part.lot_id), g.part.acquired.str(),
-                 g.part.disposed.str(), g.part.quantity.str(), money(g.part.proceeds),
-                 money(g.part.cost), money(g.part.gain()), g.long_term ? "long" : "short"});
+    Table t(report::gain_columns("term"));
+    for (const auto& g : gains) t.add_row(report::displayed(report::gain_cells(g)));
     t.add_rule();
-    t.add_row({"short-term", "", "", "", "", "", "", "", money(total_short), ""});
-    t.add_row({"long-term", "", "", "", "", "", "", "", money(total_long), ""});
-    t.add_row({"total", "", "", "", "", "", "", "", money(total_short + total_long), ""});
+    t.add_row({"short-term", "", "", "", "", "", "", "", money(totals.short_term.gain), ""});
+    t.add_row({"long-term", "", "", "", "", "", "", "", money(totals.long_term.gain), ""});
+    t.add_row({"total", "", "", "", "", "", "", "", money(totals.all().gain), ""});
     out(t.render({ctx.colour()}));
     out("Tax treatment depends on local rules; check with your tax authority or a licensed "
         "professional.\n");

@@ -258,21 +258,12 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   s.allocation.push_back({"cash", cash_total, weight_of(cash_total, closing.total_value)});
 
   // Realized gains: the lot engine's parts disposed in the period.
-  for (auto& g : ledger::realized_gains(db, request.year, request.account)) {
+  for (auto& g :
+       ledger::realized_gains(db, request.year, request.account, request.long_term_days)) {
     if (g.part.disposed < s.from || g.part.disposed > s.to) continue;
-    GainRow row;
-    row.days_held = g.part.disposed - g.part.acquired;
-    row.long_term = request.long_term_days
-                        ? row.days_held > *request.long_term_days
-                        : ledger::held_long_term(g.part.acquired, g.part.disposed);
-    GainTotals& totals = row.long_term ? s.long_term : s.short_term;
-    totals.proceeds += g.part.proceeds;
-    totals.cost += g.part.cost;
-    totals.gain += g.part.gain();
-    ++totals.parts;
-    row.gain = std::move(g);
-    s.gains.push_back(std::move(row));
+    s.gains.push_back(std::move(g));
   }
+  s.realized_totals = ledger::totals_by_term(s.gains);
 
   // Transactions of the period in scope: flows, income, tax and fees.
   const LedgerLog log = ledger::load_log(db);
@@ -349,7 +340,7 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   y.closing_value = r.closing_value;
   y.transfers_in = r.inflow - y.deposits;
   y.transfers_out = r.outflow - y.withdrawals;
-  for (const auto& row : s.gains) y.realized_gain += row.gain.part.gain();
+  y.realized_gain = s.realized_totals.all().gain;
   y.unrealized_opening = unrealized_total(opening);
   y.unrealized_closing = unrealized_total(closing);
   Decimal cost_moved;

@@ -199,15 +199,15 @@ TEST_CASE("statement: realized gains are the lot engine's parts disposed in the 
     if (p.disposed.year() == 2025) engine.push_back(p);
   REQUIRE(s.gains.size() == engine.size());
   for (std::size_t i = 0; i < engine.size(); ++i) {
-    CHECK(s.gains[i].gain.part.lot_id == engine[i].lot_id);
-    CHECK(s.gains[i].gain.part.quantity == engine[i].quantity);
-    CHECK(s.gains[i].gain.part.proceeds == engine[i].proceeds);
-    CHECK(s.gains[i].gain.part.cost == engine[i].cost);
+    CHECK(s.gains[i].part.lot_id == engine[i].lot_id);
+    CHECK(s.gains[i].part.quantity == engine[i].quantity);
+    CHECK(s.gains[i].part.proceeds == engine[i].proceeds);
+    CHECK(s.gains[i].part.cost == engine[i].cost);
   }
-  CHECK(s.long_term.gain == dec("591"));
-  CHECK(s.long_term.proceeds == dec("2994"));
-  CHECK(s.short_term.gain == dec("98"));
-  CHECK(s.short_term.cost == dec("1001"));
+  CHECK(s.realized_totals.long_term.gain == dec("591"));
+  CHECK(s.realized_totals.long_term.proceeds == dec("2994"));
+  CHECK(s.realized_totals.short_term.gain == dec("98"));
+  CHECK(s.realized_totals.short_term.cost == dec("1001"));
 }
 
 TEST_CASE("statement: a long-term threshold in days reclassifies the gains") {
@@ -215,8 +215,8 @@ TEST_CASE("statement: a long-term threshold in days reclassifies the gains") {
   const auto s = k.statement(std::nullopt, 500);  // the ALDR part was held 424 days
   CHECK(s.gains.front().days_held == 424);
   CHECK_FALSE(s.gains.front().long_term);
-  CHECK(s.long_term.parts == 0);
-  CHECK(s.short_term.gain == dec("689"));
+  CHECK(s.realized_totals.long_term.parts == 0);
+  CHECK(s.realized_totals.short_term.gain == dec("689"));
   CHECK(s.long_term_rule == "long-term: held more than 500 days");
 }
 
