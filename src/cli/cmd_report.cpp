@@ -6,6 +6,7 @@
 #include <nlohmann/json.hpp>
 
 #include "cli/context.h"
+#include "cli/options.h"
 #include "core/error.h"
 #include "ledger/holdings.h"
 #include "ledger/posting.h"
@@ -31,19 +32,6 @@ std::string percent(const Decimal& part, const Decimal& whole) {
   return Decimal::divide(part * Decimal(100), whole, 2).fixed(2) + "%";
 }
 
-Date as_of_or_today(const std::string& text) {
-  if (text.empty()) return Date::today();
-  try {
-    return Date::parse(text);
-  } catch (const InputError& e) {
-    throw InputError(fmt::format("--as-of: {}", e.what()));
-  }
-}
-
-std::optional<std::string> optional_text(const std::string& s) {
-  return s.empty() ? std::nullopt : std::optional<std::string>(s);
-}
-
 struct ViewOptions {
   std::string as_of, account, from, to;
   int year = 0;
@@ -54,11 +42,12 @@ void add_holdings(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ViewOptions>();
   auto* cmd = app.add_subcommand("holdings", "What is held, at cost and at market, with cash");
   cmd->add_option("--as-of", o->as_of, "Day to value at, YYYY-MM-DD (default: today)");
-  cmd->add_option("--account", o->account, "Only this account");
-  cmd->add_flag("--json", o->json, "Print JSON for scripts");
+  add_account_option(*cmd, o->account);
+  add_json_flag(*cmd, o->json);
   cmd->callback([&ctx, o] {
     auto db = ctx.open_ledger();
-    const auto h = ledger::holdings(db, as_of_or_today(o->as_of), optional_text(o->account));
+    const auto h =
+        ledger::holdings(db, date_option_or_today(o->as_of, "--as-of"), text_option(o->account));
     if (o->json) {
       Json j;
       j["as_of"] = h.as_of.str();
@@ -107,11 +96,12 @@ void add_lots(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ViewOptions>();
   auto* cmd = app.add_subcommand("lots", "Open tax lots: acquisition day, quantity, cost");
   cmd->add_option("--as-of", o->as_of, "Day, YYYY-MM-DD (default: today)");
-  cmd->add_option("--account", o->account, "Only this account");
-  cmd->add_flag("--json", o->json, "Print JSON for scripts");
+  add_account_option(*cmd, o->account);
+  add_json_flag(*cmd, o->json);
   cmd->callback([&ctx, o] {
     auto db = ctx.open_ledger();
-    const auto lots = ledger::open_lots(db, as_of_or_today(o->as_of), optional_text(o->account));
+    const auto lots =
+        ledger::open_lots(db, date_option_or_today(o->as_of, "--as-of"), text_option(o->account));
     if (o->json) {
       Json j = Json::array();
       for (const auto& l : lots)
@@ -143,14 +133,14 @@ void add_gains(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ViewOptions>();
   auto* cmd = app.add_subcommand("gains", "Realized gains, one line per closed lot part");
   cmd->add_option("--year", o->year, "Only disposals in this calendar year");
-  cmd->add_option("--account", o->account, "Only this account");
-  cmd->add_flag("--json", o->json, "Print JSON for scripts");
+  add_account_option(*cmd, o->account);
+  add_json_flag(*cmd, o->json);
   cmd->callback([&ctx, o] {
     if (o->year != 0 && (o->year < 1 || o->year > 9999))
       throw InputError(fmt::format("--year: '{}' is not a calendar year (1 to 9999)", o->year));
     auto db = ctx.open_ledger();
     const auto gains = ledger::realized_gains(
-        db, o->year ? std::optional<int>(o->year) : std::nullopt, optional_text(o->account));
+        db, o->year ? std::optional<int>(o->year) : std::nullopt, text_option(o->account));
     const auto totals = ledger::totals_by_term(gains);
     if (o->json) {
       Json j;
@@ -188,10 +178,10 @@ void add_gains(CLI::App& app, Context& ctx) {
 void add_history(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ViewOptions>();
   auto* cmd = app.add_subcommand("history", "Posted transactions, voids included");
-  cmd->add_option("--account", o->account, "Only this account");
+  add_account_option(*cmd, o->account);
   cmd->add_option("--from", o->from, "First day, YYYY-MM-DD");
   cmd->add_option("--to", o->to, "Last day, YYYY-MM-DD");
-  cmd->add_flag("--json", o->json, "Print JSON for scripts");
+  add_json_flag(*cmd, o->json);
   cmd->callback([&ctx, o] {
     // Inclusive bounds; an absent one is the first or last day a Date can hold.
     const Date from = o->from.empty() ? Date::from_ymd(1, 1, 1) : Date::parse(o->from);
@@ -256,7 +246,7 @@ void add_history(CLI::App& app, Context& ctx) {
 void add_lists(CLI::App& app, Context& ctx) {
   auto json_accounts = std::make_shared<bool>(false);
   auto* accounts = app.get_subcommand("account")->add_subcommand("list", "List accounts");
-  accounts->add_flag("--json", *json_accounts, "Print JSON for scripts");
+  add_json_flag(*accounts, *json_accounts);
   accounts->callback([&ctx, json_accounts] {
     auto db = ctx.open_ledger();
     Json j = Json::array();
@@ -275,7 +265,7 @@ void add_lists(CLI::App& app, Context& ctx) {
 
   auto json_securities = std::make_shared<bool>(false);
   auto* securities = app.get_subcommand("security")->add_subcommand("list", "List securities");
-  securities->add_flag("--json", *json_securities, "Print JSON for scripts");
+  add_json_flag(*securities, *json_securities);
   securities->callback([&ctx, json_securities] {
     auto db = ctx.open_ledger();
     Json j = Json::array();
