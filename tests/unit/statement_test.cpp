@@ -269,6 +269,43 @@ TEST_CASE("statement: the year's returns are the returns module's") {
   CHECK(s.benchmark_growth.back().level == doctest::Approx(1.1).epsilon(1e-12));  // 1100 / 1000
 }
 
+TEST_CASE("returns: a report from data loaded once equals one that reads the ledger itself") {
+  StatementLedger k;
+  const auto data = perf::LedgerData::load(k.db);
+  for (const auto& account : {std::optional<std::string>(), std::optional<std::string>(P)}) {
+    perf::ReturnsRequest r;
+    r.account = account;
+    r.period.year = 2025;
+    r.benchmark = "IDXW";
+    const auto direct = perf::returns_report(k.db, r);
+    const auto shared = perf::returns_report(k.db, data, r);
+    CHECK(shared.scope == direct.scope);
+    CHECK(shared.inception == direct.inception);
+    CHECK(shared.result.opening_value == direct.result.opening_value);
+    CHECK(shared.result.closing_value == direct.result.closing_value);
+    CHECK(shared.result.twr.period == direct.result.twr.period);
+    CHECK(shared.income == direct.income);
+    CHECK(shared.fees == direct.fees);
+  }
+}
+
+TEST_CASE("returns: loaded data is a copy; a later deposit is not in it") {
+  StatementLedger k;
+  const auto data = perf::LedgerData::load(k.db);
+  perf::ReturnsRequest r;
+  r.period.year = 2025;
+  const auto before = perf::returns_report(k.db, r);
+  ledger::PostRequest deposit;
+  deposit.kind = TxnKind::deposit;
+  deposit.date = day("2025-12-30");
+  deposit.account = T;
+  deposit.amount = dec("250");
+  ledger::post(k.db, deposit);
+  CHECK(perf::returns_report(k.db, data, r).result.closing_value == before.result.closing_value);
+  CHECK(perf::returns_report(k.db, r).result.closing_value ==
+        before.result.closing_value + dec("250"));
+}
+
 TEST_CASE("statement: the year starting at a ledger's first day says so") {
   StatementLedger k;
   report::StatementRequest r;
