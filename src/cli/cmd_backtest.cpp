@@ -13,6 +13,7 @@
 #include "backtest/signal.h"
 #include "cli/context.h"
 #include "cli/options.h"
+#include "cli/print.h"
 #include "core/error.h"
 #include "core/text.h"
 #include "report/table.h"
@@ -24,13 +25,6 @@ namespace {
 using Json = nlohmann::ordered_json;
 using report::Align;
 using report::Table;
-
-Json number(const std::optional<double>& x) {
-  return x ? Json(*x) : Json();
-}
-std::string pct(const std::optional<double>& x) {
-  return x ? fmt::format("{:.2f}%", *x * 100) : std::string("n/a");
-}
 
 // A bar per rebalancing day on stderr, only when it is a terminal.
 class Progress {

@@ -7,6 +7,7 @@
 
 #include "cli/context.h"
 #include "cli/options.h"
+#include "cli/print.h"
 #include "core/error.h"
 #include "ledger/holdings.h"
 #include "ledger/posting.h"
@@ -23,9 +24,6 @@ using report::Table;
 
 void print_json(const Json& j) {
   out(j.dump(2) + "\n");
-}
-std::string money(const Decimal& d) {
-  return d.fixed(2);
 }
 std::string percent(const Decimal& part, const Decimal& whole) {
   if (whole.is_zero()) return "";

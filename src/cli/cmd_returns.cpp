@@ -7,6 +7,7 @@
 
 #include "cli/context.h"
 #include "cli/options.h"
+#include "cli/print.h"
 #include "core/error.h"
 #include "perf/returns_report.h"
 #include "report/table.h"
@@ -27,16 +28,6 @@ struct ReturnsOptions {
   bool monthly = false;
   bool json = false;
 };
-
-Json number(const std::optional<double>& x) {
-  return x ? Json(*x) : Json();
-}
-std::string pct(const std::optional<double>& x) {
-  return x ? fmt::format("{:.2f}%", *x * 100) : std::string("n/a");
-}
-std::string money(const Decimal& d) {
-  return d.fixed(2);
-}
 
 std::string mwr_words(const perf::MwrSolution& m) {
   switch (m.status) {

@@ -9,6 +9,7 @@
 
 #include "cli/context.h"
 #include "cli/options.h"
+#include "cli/print.h"
 #include "core/error.h"
 #include "core/text.h"
 #include "report/table.h"
@@ -21,9 +22,6 @@ using Json = nlohmann::ordered_json;
 using report::Align;
 using report::Table;
 
-std::string money(const Decimal& d) {
-  return d.fixed(2);
-}
 std::string pct(const Decimal& fraction) {
   return (fraction * Decimal(100)).fixed(2) + "%";
 }
