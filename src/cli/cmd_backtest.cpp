@@ -12,6 +12,8 @@
 #include "backtest/backtest.h"
 #include "backtest/signal.h"
 #include "cli/context.h"
+#include "cli/options.h"
+#include "cli/print.h"
 #include "core/error.h"
 #include "core/text.h"
 #include "report/table.h"
@@ -23,21 +25,6 @@ namespace {
 using Json = nlohmann::ordered_json;
 using report::Align;
 using report::Table;
-
-Date date_option(const std::string& text, const char* option) {
-  try {
-    return Date::parse(text);
-  } catch (const InputError& e) {
-    throw InputError(fmt::format("{}: {}", option, e.what()));
-  }
-}
-
-Json number(const std::optional<double>& x) {
-  return x ? Json(*x) : Json();
-}
-std::string pct(const std::optional<double>& x) {
-  return x ? fmt::format("{:.2f}%", *x * 100) : std::string("n/a");
-}
 
 // A bar per rebalancing day on stderr, only when it is a terminal.
 class Progress {
@@ -245,15 +232,15 @@ void add_backtest(CLI::App& app, Context& ctx) {
   cmd->add_option("--to", o->to, "Last day, YYYY-MM-DD")->required();
   cmd->add_option("--start-value", o->start_value, "Cash the simulated pool starts with");
   cmd->add_option("--benchmark", o->benchmark, "A security whose closes to compare with");
-  cmd->add_flag("--json", o->json, "Print JSON for scripts");
+  add_json_flag(*cmd, o->json);
   cmd->add_option("--curve", o->curve, "Write the daily values to this CSV file");
   cmd->add_flag("--frictionless", o->frictionless,
                 "No fees, bands, minimum trade or reserve; fractional units, fully invested");
   cmd->add_option("--rolling", o->rolling, "Months held in the rolling-window table");
   cmd->callback([&ctx, o] {
     backtest::Request req;
-    req.from = date_option(o->from, "--from");
-    req.to = date_option(o->to, "--to");
+    req.from = date_value(o->from, "--from");
+    req.to = date_value(o->to, "--to");
     const auto sv = Decimal::try_parse(o->start_value);
     if (!sv)
       throw InputError(
@@ -306,11 +293,11 @@ void add_signal(CLI::App& app, Context& ctx) {
   cmd->add_option("--from", o->from, "First day, YYYY-MM-DD")->required();
   cmd->add_option("--to", o->to, "Last day, YYYY-MM-DD")->required();
   cmd->add_option("--horizons", o->horizons, "Forward windows in months, comma-separated");
-  cmd->add_flag("--json", o->json, "Print JSON for scripts");
+  add_json_flag(*cmd, o->json);
   cmd->callback([&ctx, o] {
     backtest::SignalRequest req;
-    req.from = date_option(o->from, "--from");
-    req.to = date_option(o->to, "--to");
+    req.from = date_value(o->from, "--from");
+    req.to = date_value(o->to, "--to");
     req.horizons = horizons_option(o->horizons);
     const auto rule = rules::load_rule(o->rule);
     auto db = ctx.open_ledger();

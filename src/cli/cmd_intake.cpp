@@ -4,6 +4,7 @@
 
 #include <chrono>
 #include <cstdio>
+#include <memory>
 
 #include "cli/context.h"
 #include "core/error.h"
@@ -41,53 +42,60 @@ class Progress {
   Clock::time_point start_ = Clock::now();
 };
 
+// A refused import's lines (one per bad row) go to stderr before the error
+// itself reaches main().
+template <typename F>
+auto printing_refusals(F&& import) {
+  try {
+    return import();
+  } catch (const io::ImportRefused& e) {
+    for (const auto& line : e.lines()) std::fputs((line + "\n").c_str(), stderr);
+    throw;
+  }
+}
+
+struct ImportCommandOptions {
+  std::string what, file, mapping;
+  bool dry_run = false, replace = false, quiet = false;
+};
+
 void add_import(CLI::App& app, Context& ctx) {
+  auto o = std::make_shared<ImportCommandOptions>();
   auto* cmd = app.add_subcommand("import", "Read a CSV file into the ledger, all or nothing");
-  static std::string what, file, mapping;
-  static bool dry_run = false, replace = false, quiet = false;
-  cmd->add_option("WHAT", what,
+  cmd->add_option("WHAT", o->what,
                   "accounts, transactions, securities, prices, metrics, distributions or splits")
       ->required();
-  cmd->add_option("FILE", file, "CSV file (keel's layout, or another described by --map)")
+  cmd->add_option("FILE", o->file, "CSV file (keel's layout, or another described by --map)")
       ->required();
-  cmd->add_option("--map", mapping, "TOML file describing the file's layout");
-  cmd->add_flag("--dry-run", dry_run, "Check everything and report, but change nothing");
-  cmd->add_flag("--replace", replace, "Overwrite stored values that differ from the file");
-  cmd->add_flag("--quiet", quiet, "No progress display");
-  cmd->callback([&ctx] {
+  cmd->add_option("--map", o->mapping, "TOML file describing the file's layout");
+  cmd->add_flag("--dry-run", o->dry_run, "Check everything and report, but change nothing");
+  cmd->add_flag("--replace", o->replace, "Overwrite stored values that differ from the file");
+  cmd->add_flag("--quiet", o->quiet, "No progress display");
+  cmd->callback([&ctx, o] {
     io::ImportOptions options;
-    if (!mapping.empty()) options.mapping = io::Mapping::load(mapping);
-    options.dry_run = dry_run;
-    options.replace = replace;
-    if (what == "transactions" || what == "accounts") {
+    if (!o->mapping.empty()) options.mapping = io::Mapping::load(o->mapping);
+    options.dry_run = o->dry_run;
+    options.replace = o->replace;
+    if (o->what == "transactions" || o->what == "accounts") {
       auto db = ctx.open_ledger();
-      io::LedgerImportSummary sum;
-      try {
-        sum = what == "accounts" ? io::import_accounts(db, file, options)
-                                 : io::import_transactions(db, file, options);
-      } catch (const io::ImportRefused& e) {
-        for (const auto& line : e.lines()) std::fputs((line + "\n").c_str(), stderr);
-        throw;
-      }
+      const auto sum = printing_refusals([&] {
+        return o->what == "accounts" ? io::import_accounts(db, o->file, options)
+                                     : io::import_transactions(db, o->file, options);
+      });
       out(fmt::format("{}: {} rows read; {} {}, {} already booked{}\n", printable(sum.file),
                       sum.rows, sum.dry_run ? "would add" : "added", sum.added, sum.already_booked,
                       sum.dry_run ? " (dry run: nothing was changed)" : ""));
       return;
     }
-    const io::MarketKind kind = io::parse_market_kind(what);
+    const io::MarketKind kind = io::parse_market_kind(o->what);
     auto db = ctx.open_ledger();
     io::ImportSummary sum;
     {
-      Progress progress(!quiet);
+      Progress progress(!o->quiet);
       options.progress = [&](std::uint64_t r, std::uint64_t b, std::uint64_t t) {
         progress.update(r, b, t);
       };
-      try {
-        sum = io::import_market(db, kind, file, options);
-      } catch (const io::ImportRefused& e) {
-        for (const auto& line : e.lines()) std::fputs((line + "\n").c_str(), stderr);
-        throw;
-      }
+      sum = printing_refusals([&] { return io::import_market(db, kind, o->file, options); });
     }
     const std::string verb = sum.dry_run ? "would add" : "added";
     std::string text = fmt::format("{}: {} rows read; {} {}, {} unchanged", printable(sum.file),
@@ -104,17 +112,24 @@ void add_import(CLI::App& app, Context& ctx) {
   });
 }
 
+struct ExportCommandOptions {
+  std::string what, file;
+  bool csv = false, json = false;
+};
+
 void add_export(CLI::App& app, Context& ctx) {
+  auto o = std::make_shared<ExportCommandOptions>();
   auto* cmd = app.add_subcommand("export", "Write ledger or market data as CSV or JSON");
-  static std::string what, file;
-  static bool csv = false, json = false;
-  cmd->add_option("WHAT", what,
+  cmd->add_option("WHAT", o->what,
                   "accounts, transactions, securities, prices, metrics, distributions or splits")
       ->required();
-  auto* c = cmd->add_flag("--csv", csv, "CSV in keel's import layout (the default)");
-  cmd->add_flag("--json", json, "A JSON array of objects; numbers as exact strings")->excludes(c);
-  cmd->add_option("--out", file, "Write to this file instead of standard output");
-  cmd->callback([&ctx] {
+  auto* c = cmd->add_flag("--csv", o->csv, "CSV in keel's import layout (the default)");
+  cmd->add_flag("--json", o->json, "A JSON array of objects; numbers as exact strings")
+      ->excludes(c);
+  cmd->add_option("--out", o->file, "Write to this file instead of standard output");
+  cmd->callback([&ctx, o] {
+    const std::string& what = o->what;
+    const std::string& file = o->file;
     const bool ledger_data = what == "transactions" || what == "accounts";
     const std::string kind_name =
         ledger_data ? what : std::string(to_string(io::parse_market_kind(what)));
@@ -126,7 +141,7 @@ void add_export(CLI::App& app, Context& ctx) {
     }
     std::uint64_t rows = 0;
     try {
-      const auto format = json ? io::ExportFormat::json : io::ExportFormat::csv;
+      const auto format = o->json ? io::ExportFormat::json : io::ExportFormat::csv;
       if (what == "transactions")
         rows = io::export_transactions(db, format, f);
       else if (what == "accounts")

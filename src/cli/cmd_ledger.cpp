@@ -4,6 +4,7 @@
 #include <memory>
 
 #include "cli/context.h"
+#include "cli/options.h"
 #include "core/error.h"
 #include "core/text.h"
 #include "ledger/posting.h"
@@ -88,44 +89,21 @@ struct RecordOptions {
       acquired, ref, note;
 };
 
-std::optional<Decimal> decimal_flag(const std::string& text, std::string_view flag) {
-  if (text.empty()) return std::nullopt;
-  try {
-    return Decimal::parse(text);
-  } catch (const InputError& e) {
-    throw InputError(fmt::format("--{}: {}", flag, e.what()));
-  }
-}
-
-Date date_flag(const std::string& text, std::string_view flag) {
-  if (text.empty()) return Date::today();
-  try {
-    return Date::parse(text);
-  } catch (const InputError& e) {
-    throw InputError(fmt::format("--{}: {}", flag, e.what()));
-  }
-}
-
-std::optional<std::string> text_flag(const std::string& text) {
-  if (text.empty()) return std::nullopt;
-  return text;
-}
-
 ledger::PostRequest to_request(TxnKind kind, const RecordOptions& o) {
   ledger::PostRequest r;
   r.kind = kind;
-  r.date = date_flag(o.date, "date");
+  r.date = date_option_or_today(o.date, "--date");
   r.account = o.account;
-  r.symbol = text_flag(o.symbol);
-  r.quantity = decimal_flag(o.quantity, "quantity");
-  r.price = decimal_flag(o.price, "price");
-  r.fee = decimal_flag(o.fee, "fee");
-  r.amount = decimal_flag(o.amount, "amount");
-  if (!o.acquired.empty()) r.acquired = date_flag(o.acquired, "acquired");
+  r.symbol = text_option(o.symbol);
+  r.quantity = decimal_option(o.quantity, "--quantity");
+  r.price = decimal_option(o.price, "--price");
+  r.fee = decimal_option(o.fee, "--fee");
+  r.amount = decimal_option(o.amount, "--amount");
+  r.acquired = date_option(o.acquired, "--acquired");
   if (!o.lots.empty()) r.lots = parse_lot_picks(o.lots);
-  r.to_account = text_flag(o.to_account);
-  r.ref = text_flag(o.ref);
-  r.note = text_flag(o.note);
+  r.to_account = text_option(o.to_account);
+  r.ref = text_option(o.ref);
+  r.note = text_option(o.note);
   return r;
 }
 
@@ -202,8 +180,8 @@ void add_record_split(CLI::App& group, Context& ctx) {
   cmd->add_option("--ratio", o->ratio, "New units per old unit: 2 = two-for-one, 0.1 = one-for-ten")
       ->required();
   cmd->callback([&ctx, o] {
-    const Date date = date_flag(o->date, "date");
-    const auto ratio = decimal_flag(o->ratio, "ratio");
+    const Date date = date_option_or_today(o->date, "--date");
+    const auto ratio = decimal_option(o->ratio, "--ratio");
     auto db = ctx.open_ledger();
     const auto id = ledger::post_split(db, o->symbol, date, *ratio);
     out(fmt::format("split {} posted: {} x{} on {}\n", id, printable(o->symbol), ratio->str(),

@@ -6,9 +6,12 @@
 #include <nlohmann/json.hpp>
 
 #include "cli/context.h"
+#include "cli/options.h"
+#include "cli/print.h"
 #include "core/error.h"
 #include "ledger/holdings.h"
 #include "ledger/posting.h"
+#include "report/gain_rows.h"
 #include "report/table.h"
 #include "store/ledger_store.h"
 
@@ -22,25 +25,9 @@ using report::Table;
 void print_json(const Json& j) {
   out(j.dump(2) + "\n");
 }
-std::string money(const Decimal& d) {
-  return d.fixed(2);
-}
 std::string percent(const Decimal& part, const Decimal& whole) {
   if (whole.is_zero()) return "";
   return Decimal::divide(part * Decimal(100), whole, 2).fixed(2) + "%";
-}
-
-Date as_of_or_today(const std::string& text) {
-  if (text.empty()) return Date::today();
-  try {
-    return Date::parse(text);
-  } catch (const InputError& e) {
-    throw InputError(fmt::format("--as-of: {}", e.what()));
-  }
-}
-
-std::optional<std::string> optional_text(const std::string& s) {
-  return s.empty() ? std::nullopt : std::optional<std::string>(s);
 }
 
 struct ViewOptions {
@@ -53,11 +40,12 @@ void add_holdings(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ViewOptions>();
   auto* cmd = app.add_subcommand("holdings", "What is held, at cost and at market, with cash");
   cmd->add_option("--as-of", o->as_of, "Day to value at, YYYY-MM-DD (default: today)");
-  cmd->add_option("--account", o->account, "Only this account");
-  cmd->add_flag("--json", o->json, "Print JSON for scripts");
+  add_account_option(*cmd, o->account);
+  add_json_flag(*cmd, o->json);
   cmd->callback([&ctx, o] {
     auto db = ctx.open_ledger();
-    const auto h = ledger::holdings(db, as_of_or_today(o->as_of), optional_text(o->account));
+    const auto h =
+        ledger::holdings(db, date_option_or_today(o->as_of, "--as-of"), text_option(o->account));
     if (o->json) {
       Json j;
       j["as_of"] = h.as_of.str();
@@ -106,11 +94,12 @@ void add_lots(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ViewOptions>();
   auto* cmd = app.add_subcommand("lots", "Open tax lots: acquisition day, quantity, cost");
   cmd->add_option("--as-of", o->as_of, "Day, YYYY-MM-DD (default: today)");
-  cmd->add_option("--account", o->account, "Only this account");
-  cmd->add_flag("--json", o->json, "Print JSON for scripts");
+  add_account_option(*cmd, o->account);
+  add_json_flag(*cmd, o->json);
   cmd->callback([&ctx, o] {
     auto db = ctx.open_ledger();
-    const auto lots = ledger::open_lots(db, as_of_or_today(o->as_of), optional_text(o->account));
+    const auto lots =
+        ledger::open_lots(db, date_option_or_today(o->as_of, "--as-of"), text_option(o->account));
     if (o->json) {
       Json j = Json::array();
       for (const auto& l : lots)
@@ -142,16 +131,15 @@ void add_gains(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ViewOptions>();
   auto* cmd = app.add_subcommand("gains", "Realized gains, one line per closed lot part");
   cmd->add_option("--year", o->year, "Only disposals in this calendar year");
-  cmd->add_option("--account", o->account, "Only this account");
-  cmd->add_flag("--json", o->json, "Print JSON for scripts");
+  add_account_option(*cmd, o->account);
+  add_json_flag(*cmd, o->json);
   cmd->callback([&ctx, o] {
     if (o->year != 0 && (o->year < 1 || o->year > 9999))
       throw InputError(fmt::format("--year: '{}' is not a calendar year (1 to 9999)", o->year));
     auto db = ctx.open_ledger();
     const auto gains = ledger::realized_gains(
-        db, o->year ? std::optional<int>(o->year) : std::nullopt, optional_text(o->account));
-    Decimal total_short, total_long;
-    for (const auto& g : gains) (g.long_term ? total_long : total_short) += g.part.gain();
+        db, o->year ? std::optional<int>(o->year) : std::nullopt, text_option(o->account));
+    const auto totals = ledger::totals_by_term(gains);
     if (o->json) {
       Json j;
       j["gains"] = Json::array();
@@ -167,30 +155,18 @@ void add_gains(CLI::App& app, Context& ctx) {
                               {"cost", g.part.cost.str()},
                               {"gain", g.part.gain().str()},
                               {"term", g.long_term ? "long" : "short"}});
-      j["total_short"] = total_short.str();
-      j["total_long"] = total_long.str();
-      j["total"] = (total_short + total_long).str();
+      j["total_short"] = totals.short_term.gain.str();
+      j["total_long"] = totals.long_term.gain.str();
+      j["total"] = totals.all().gain.str();
       print_json(j);
       return;
     }
-    Table t({{"account"},
-             {"symbol"},
-             {"lot", Align::right},
-             {"acquired"},
-             {"disposed"},
-             {"quantity", Align::right},
-             {"proceeds", Align::right},
-             {"cost", Align::right},
-             {"gain", Align::right},
-             {"term"}});
-    for (const auto& g : gains)
-      t.add_row({g.account, g.symbol, std::to_string(g.part.lot_id), g.part.acquired.str(),
-                 g.part.disposed.str(), g.part.quantity.str(), money(g.part.proceeds),
-                 money(g.part.cost), money(g.part.gain()), g.long_term ? "long" : "short"});
+    Table t(report::gain_columns("term"));
+    for (const auto& g : gains) t.add_row(report::displayed(report::gain_cells(g)));
     t.add_rule();
-    t.add_row({"short-term", "", "", "", "", "", "", "", money(total_short), ""});
-    t.add_row({"long-term", "", "", "", "", "", "", "", money(total_long), ""});
-    t.add_row({"total", "", "", "", "", "", "", "", money(total_short + total_long), ""});
+    t.add_row({"short-term", "", "", "", "", "", "", "", money(totals.short_term.gain), ""});
+    t.add_row({"long-term", "", "", "", "", "", "", "", money(totals.long_term.gain), ""});
+    t.add_row({"total", "", "", "", "", "", "", "", money(totals.all().gain), ""});
     out(t.render({ctx.colour()}));
     out("Tax treatment depends on local rules; check with your tax authority or a licensed "
         "professional.\n");
@@ -200,10 +176,10 @@ void add_gains(CLI::App& app, Context& ctx) {
 void add_history(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ViewOptions>();
   auto* cmd = app.add_subcommand("history", "Posted transactions, voids included");
-  cmd->add_option("--account", o->account, "Only this account");
+  add_account_option(*cmd, o->account);
   cmd->add_option("--from", o->from, "First day, YYYY-MM-DD");
   cmd->add_option("--to", o->to, "Last day, YYYY-MM-DD");
-  cmd->add_flag("--json", o->json, "Print JSON for scripts");
+  add_json_flag(*cmd, o->json);
   cmd->callback([&ctx, o] {
     // Inclusive bounds; an absent one is the first or last day a Date can hold.
     const Date from = o->from.empty() ? Date::from_ymd(1, 1, 1) : Date::parse(o->from);
@@ -268,7 +244,7 @@ void add_history(CLI::App& app, Context& ctx) {
 void add_lists(CLI::App& app, Context& ctx) {
   auto json_accounts = std::make_shared<bool>(false);
   auto* accounts = app.get_subcommand("account")->add_subcommand("list", "List accounts");
-  accounts->add_flag("--json", *json_accounts, "Print JSON for scripts");
+  add_json_flag(*accounts, *json_accounts);
   accounts->callback([&ctx, json_accounts] {
     auto db = ctx.open_ledger();
     Json j = Json::array();
@@ -287,7 +263,7 @@ void add_lists(CLI::App& app, Context& ctx) {
 
   auto json_securities = std::make_shared<bool>(false);
   auto* securities = app.get_subcommand("security")->add_subcommand("list", "List securities");
-  securities->add_flag("--json", *json_securities, "Print JSON for scripts");
+  add_json_flag(*securities, *json_securities);
   securities->callback([&ctx, json_securities] {
     auto db = ctx.open_ledger();
     Json j = Json::array();

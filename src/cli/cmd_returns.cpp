@@ -2,11 +2,12 @@
 // for one account or the whole ledger.
 #include <fmt/format.h>
 
-#include <charconv>
 #include <memory>
 #include <nlohmann/json.hpp>
 
 #include "cli/context.h"
+#include "cli/options.h"
+#include "cli/print.h"
 #include "core/error.h"
 #include "perf/returns_report.h"
 #include "report/table.h"
@@ -27,38 +28,6 @@ struct ReturnsOptions {
   bool monthly = false;
   bool json = false;
 };
-
-std::optional<Date> date_option(const std::string& text, const char* option) {
-  if (text.empty()) return std::nullopt;
-  try {
-    return Date::parse(text);
-  } catch (const InputError& e) {
-    throw InputError(fmt::format("{}: {}", option, e.what()));
-  }
-}
-
-std::optional<std::string> text_option(const std::string& s) {
-  return s.empty() ? std::nullopt : std::optional<std::string>(s);
-}
-
-std::optional<int> year_option(const std::string& text) {
-  if (text.empty()) return std::nullopt;
-  int year = 0;
-  const auto [end, ec] = std::from_chars(text.data(), text.data() + text.size(), year);
-  if (ec != std::errc() || end != text.data() + text.size() || year < 1 || year > 9999)
-    throw InputError(fmt::format("--year: '{}' is not a calendar year (1 to 9999)", text));
-  return year;
-}
-
-Json number(const std::optional<double>& x) {
-  return x ? Json(*x) : Json();
-}
-std::string pct(const std::optional<double>& x) {
-  return x ? fmt::format("{:.2f}%", *x * 100) : std::string("n/a");
-}
-std::string money(const Decimal& d) {
-  return d.fixed(2);
-}
 
 std::string mwr_words(const perf::MwrSolution& m) {
   switch (m.status) {
@@ -238,7 +207,7 @@ void add_returns(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ReturnsOptions>();
   auto* cmd = app.add_subcommand(
       "returns", "Time- and money-weighted returns, risk and a monthly table over a period");
-  cmd->add_option("--account", o->account, "Only this account (default: the whole ledger)");
+  add_account_option(*cmd, o->account, "Only this account (default: the whole ledger)");
   cmd->add_option("--from", o->from, "First day of the period, YYYY-MM-DD");
   cmd->add_option("--to", o->to, "Last day of the period, YYYY-MM-DD");
   cmd->add_option("--year", o->year, "One calendar year");
@@ -253,7 +222,7 @@ void add_returns(CLI::App& app, Context& ctx) {
   cmd->add_option("--risk-free", o->risk_free,
                   "Annual risk-free rate as a fraction (0.02 = 2 %), for the Sharpe ratio");
   cmd->add_flag("--monthly", o->monthly, "Show the month-by-month table");
-  cmd->add_flag("--json", o->json, "Print JSON for scripts");
+  add_json_flag(*cmd, o->json);
   cmd->callback([&ctx, o] {
     if (o->method != "daily" && o->method != "dietz")
       throw InputError(
@@ -262,7 +231,8 @@ void add_returns(CLI::App& app, Context& ctx) {
     request.account = text_option(o->account);
     request.period.from = date_option(o->from, "--from");
     request.period.to = date_option(o->to, "--to");
-    request.period.year = year_option(o->year);
+    if (!o->year.empty())
+      request.period.year = whole_number(o->year, "--year", 1, 9999, "a calendar year (1 to 9999)");
     request.period.period = text_option(o->period);
     request.as_of = date_option(o->as_of, "--as-of");
     request.benchmark = text_option(o->benchmark);

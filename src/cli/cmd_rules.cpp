@@ -8,6 +8,8 @@
 #include <nlohmann/json.hpp>
 
 #include "cli/context.h"
+#include "cli/options.h"
+#include "cli/print.h"
 #include "core/error.h"
 #include "core/text.h"
 #include "report/table.h"
@@ -20,9 +22,6 @@ using Json = nlohmann::ordered_json;
 using report::Align;
 using report::Table;
 
-std::string money(const Decimal& d) {
-  return d.fixed(2);
-}
 std::string pct(const Decimal& fraction) {
   return (fraction * Decimal(100)).fixed(2) + "%";
 }
@@ -270,17 +269,10 @@ void add_propose(CLI::App& app, Context& ctx) {
   cmd->add_option("--rule", o->rule, "Rule file (TOML; see docs/rules.md)")->required();
   cmd->add_option("--as-of", o->as_of,
                   "Day to propose for, YYYY-MM-DD (default: the latest day with a close)");
-  cmd->add_flag("--json", o->json, "Print JSON for scripts");
+  add_json_flag(*cmd, o->json);
   cmd->add_flag("--save", o->save, "Keep the proposal, to compare with what is traded later");
   cmd->callback([&ctx, o] {
-    std::optional<Date> as_of;
-    if (!o->as_of.empty()) {
-      try {
-        as_of = Date::parse(o->as_of);
-      } catch (const InputError& e) {
-        throw InputError(fmt::format("--as-of: {}", e.what()));
-      }
-    }
+    const auto as_of = date_option(o->as_of, "--as-of");
     const auto rule = rules::load_rule(o->rule);
     auto db = ctx.open_ledger();
     const auto proposal = rules::propose(db, rule, as_of);
@@ -314,7 +306,7 @@ void add_proposals(CLI::App& app, Context& ctx) {
 
   auto lo = std::make_shared<ProposalsOptions>();
   auto* list = group->add_subcommand("list", "Every saved proposal, oldest first");
-  list->add_flag("--json", lo->json, "Print JSON for scripts");
+  add_json_flag(*list, lo->json);
   list->callback([&ctx, lo] {
     auto db = ctx.open_ledger();
     const auto all = store::list_proposals(db);
@@ -349,7 +341,7 @@ void add_proposals(CLI::App& app, Context& ctx) {
   auto* show = group->add_subcommand(
       "show", "A saved proposal's orders against the trades posted since it was saved");
   show->add_option("ID", so->id, "Proposal number (see 'keel proposals list')")->required();
-  show->add_flag("--json", so->json, "Print JSON for scripts");
+  add_json_flag(*show, so->json);
   show->callback([&ctx, so] {
     const std::int64_t id = id_option(so->id);
     auto db = ctx.open_ledger();

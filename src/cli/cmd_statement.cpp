@@ -3,12 +3,12 @@
 #include <fmt/format.h>
 #include <unistd.h>
 
-#include <charconv>
 #include <cstdlib>
 #include <filesystem>
 #include <memory>
 
 #include "cli/context.h"
+#include "cli/options.h"
 #include "core/error.h"
 #include "core/text.h"
 #include "report/statement.h"
@@ -23,15 +23,6 @@ struct StatementOptions {
   std::string year, account, benchmark, long_term_days, html, pdf, xlsx, csv;
   bool json = false;
 };
-
-int whole_number(const std::string& text, const char* option, int lo, int hi, const char* what) {
-  int value = 0;
-  const auto [end, ec] = std::from_chars(text.data(), text.data() + text.size(), value);
-  if (text.empty() || ec != std::errc() || end != text.data() + text.size() || value < lo ||
-      value > hi)
-    throw InputError(fmt::format("{}: '{}' is not {}", option, printable(text), what));
-  return value;
-}
 
 // Refuses an output path whose folder does not exist, before anything is written.
 void check_target(const std::string& path, const char* option, bool is_dir) {
@@ -64,7 +55,7 @@ void add_statement(CLI::App& app, Context& ctx) {
       "Year-end statement: the year's value changes, performance, holdings, realized gains and "
       "income");
   cmd->add_option("--year", o->year, "Calendar year of the statement")->required();
-  cmd->add_option("--account", o->account, "Only this account (default: the whole ledger)");
+  add_account_option(*cmd, o->account, "Only this account (default: the whole ledger)");
   cmd->add_option("--benchmark", o->benchmark, "Compare with the closes of this security");
   cmd->add_option("--long-term-days", o->long_term_days,
                   "Holding days beyond which a gain is long-term (default: more than one "
@@ -73,12 +64,12 @@ void add_statement(CLI::App& app, Context& ctx) {
   cmd->add_option("--pdf", o->pdf, "Write the statement as PDF (prints the HTML with Chromium)");
   cmd->add_option("--xlsx", o->xlsx, "Write the statement as an XLSX workbook, a sheet a section");
   cmd->add_option("--csv", o->csv, "Write one CSV file per section into this folder");
-  cmd->add_flag("--json", o->json, "Print JSON for scripts");
+  add_json_flag(*cmd, o->json);
   cmd->callback([&ctx, o] {
     report::StatementRequest request;
     request.year = whole_number(o->year, "--year", 1, 9999, "a calendar year (1 to 9999)");
-    if (!o->account.empty()) request.account = o->account;
-    if (!o->benchmark.empty()) request.benchmark = o->benchmark;
+    request.account = text_option(o->account);
+    request.benchmark = text_option(o->benchmark);
     if (!o->long_term_days.empty())
       request.long_term_days = whole_number(o->long_term_days, "--long-term-days", 1, 100000,
                                             "a number of days (1 or more)");

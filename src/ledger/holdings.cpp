@@ -84,7 +84,8 @@ std::vector<LotLine> open_lots(store::Database& db, Date as_of,
 }
 
 std::vector<GainLine> realized_gains(store::Database& db, std::optional<int> year,
-                                     const std::optional<std::string>& account) {
+                                     const std::optional<std::string>& account,
+                                     std::optional<int> long_term_days) {
   const auto only = account_filter(db, account);
   const auto symbols = symbols_by_id(db);
   const Book book = replay(load_log(db));
@@ -92,8 +93,28 @@ std::vector<GainLine> realized_gains(store::Database& db, std::optional<int> yea
   for (const auto& part : book.realized()) {
     if (only && part.account_id != *only) continue;
     if (year && part.disposed.year() != *year) continue;
-    out.push_back(GainLine{book.account_info(part.account_id).name, symbols.at(part.security_id),
-                           part, held_long_term(part.acquired, part.disposed)});
+    GainLine line{book.account_info(part.account_id).name, symbols.at(part.security_id), part};
+    line.days_held = part.disposed - part.acquired;
+    line.long_term = long_term_days ? line.days_held > *long_term_days
+                                    : held_long_term(part.acquired, part.disposed);
+    out.push_back(std::move(line));
+  }
+  return out;
+}
+
+GainTotals GainsByTerm::all() const {
+  return {short_term.proceeds + long_term.proceeds, short_term.cost + long_term.cost,
+          short_term.gain + long_term.gain, short_term.parts + long_term.parts};
+}
+
+GainsByTerm totals_by_term(const std::vector<GainLine>& gains) {
+  GainsByTerm out;
+  for (const auto& g : gains) {
+    GainTotals& t = g.long_term ? out.long_term : out.short_term;
+    t.proceeds += g.part.proceeds;
+    t.cost += g.part.cost;
+    t.gain += g.part.gain();
+    ++t.parts;
   }
   return out;
 }

@@ -56,11 +56,26 @@ struct GainLine {
   std::string account;
   std::string symbol;
   RealizedPart part;
-  bool long_term = false;  // held more than one year (disposed after the anniversary)
+  int days_held = 0;  // disposal day minus acquisition day
+  bool long_term = false;
 };
-// Realized gains of parts disposed in `year` (every year when unset).
+// Realized gains of parts disposed in `year` (every year when unset), in the
+// lot engine's order. A part is long-term when held more than
+// `long_term_days` days, or, when that is unset, when disposed of after the
+// first anniversary of its acquisition (held_long_term).
 std::vector<GainLine> realized_gains(store::Database& db, std::optional<int> year,
-                                     const std::optional<std::string>& account = std::nullopt);
+                                     const std::optional<std::string>& account = std::nullopt,
+                                     std::optional<int> long_term_days = std::nullopt);
 bool held_long_term(Date acquired, Date disposed);
+
+struct GainTotals {
+  Decimal proceeds, cost, gain;
+  int parts = 0;
+};
+struct GainsByTerm {
+  GainTotals short_term, long_term;
+  GainTotals all() const;
+};
+GainsByTerm totals_by_term(const std::vector<GainLine>& gains);
 
 }  // namespace keel::ledger

@@ -13,20 +13,32 @@
 
 namespace keel::perf {
 
-ReturnsReport returns_report(store::Database& db, const ReturnsRequest& request) {
-  ReturnsReport report;
-  std::optional<std::int64_t> account_id;
-  report.scope = "all accounts";
-  if (request.account) {
-    const auto account = store::find_account(db, *request.account);
+namespace {
+
+struct Scope {
+  std::string name = "all accounts";
+  std::optional<std::int64_t> account_id;  // nullopt: the whole ledger
+};
+
+Scope scope_of(store::Database& db, const std::optional<std::string>& account_name) {
+  Scope scope;
+  if (account_name) {
+    const auto account = store::find_account(db, *account_name);
     if (!account)
       throw InputError(
-          fmt::format("--account: there is no account named '{}'", printable(*request.account)));
-    account_id = account->id;
-    report.scope = account->name;
+          fmt::format("--account: there is no account named '{}'", printable(*account_name)));
+    scope.account_id = account->id;
+    scope.name = account->name;
   }
+  return scope;
+}
 
-  const LedgerLog log = ledger::load_log(db);
+ReturnsReport report_of(store::Database& db, const LedgerData& data, const Scope& scope,
+                        const ReturnsRequest& request) {
+  ReturnsReport report;
+  report.scope = scope.name;
+  const std::optional<std::int64_t> account_id = scope.account_id;
+  const LedgerLog& log = data.log;
   const auto voided = voided_ids(log.transactions);
   std::optional<Date> first, last;
   for (const auto& t : log.transactions) {
@@ -37,7 +49,7 @@ ReturnsReport returns_report(store::Database& db, const ReturnsRequest& request)
   if (!first) throw InputError("the ledger has no transactions yet; there is nothing to measure");
   report.inception = *first;
   report.as_of = *last;
-  const auto prices = store::PriceBook::load(db);
+  const store::PriceBook& prices = data.prices;
   if (auto day = prices.last_day(); day && *day > report.as_of) report.as_of = *day;
   if (request.as_of) report.as_of = *request.as_of;
   report.period = resolve_period(request.period, report.as_of, report.inception);
@@ -47,9 +59,10 @@ ReturnsReport returns_report(store::Database& db, const ReturnsRequest& request)
   report.tax = series.tax;
   report.fees = series.fees;
 
-  std::map<std::int64_t, std::string> symbols;
-  for (const auto& s : store::list_securities(db)) symbols[s.id] = s.symbol;
-  for (const auto id : series.unpriced) report.unpriced.push_back(symbols[id]);
+  for (const auto id : series.unpriced) {
+    const auto it = data.symbols.find(id);
+    report.unpriced.push_back(it == data.symbols.end() ? std::string() : it->second);
+  }
 
   PerfInput input;
   input.from = report.period.from;
@@ -76,6 +89,26 @@ ReturnsReport returns_report(store::Database& db, const ReturnsRequest& request)
   }
   report.result = measure(input);
   return report;
+}
+
+}  // namespace
+
+LedgerData LedgerData::load(store::Database& db) {
+  LedgerData data{ledger::load_log(db), store::PriceBook::load(db), {}};
+  for (const auto& s : store::list_securities(db)) data.symbols[s.id] = s.symbol;
+  return data;
+}
+
+// The scope is checked before anything is loaded, so an unknown account is
+// reported as such whatever the rest of the ledger holds.
+ReturnsReport returns_report(store::Database& db, const ReturnsRequest& request) {
+  const Scope scope = scope_of(db, request.account);
+  return report_of(db, LedgerData::load(db), scope, request);
+}
+
+ReturnsReport returns_report(store::Database& db, const LedgerData& data,
+                             const ReturnsRequest& request) {
+  return report_of(db, data, scope_of(db, request.account), request);
 }
 
 }  // namespace keel::perf

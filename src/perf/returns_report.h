@@ -9,8 +9,14 @@
 //  - Throws InputError for an unknown account (naming --account) or security,
 //    a ledger without transactions, and whatever resolve_period() and
 //    measure() reject.
+//  - Several reports of one ledger (the statement measures four periods) can
+//    share one LedgerData: the log, the closes and the symbols are then read
+//    once. It is a copy taken by load(); later changes to the ledger are not
+//    in it.
 #pragma once
 
+#include <cstdint>
+#include <map>
 #include <optional>
 #include <string>
 #include <vector>
@@ -41,6 +47,15 @@ struct ReturnsReport {
   PerfResult result;
 };
 
+struct LedgerData {
+  LedgerLog log;
+  store::PriceBook prices;
+  std::map<std::int64_t, std::string> symbols;  // security id -> symbol
+  static LedgerData load(store::Database& db);
+};
+
 ReturnsReport returns_report(store::Database& db, const ReturnsRequest& request);
+ReturnsReport returns_report(store::Database& db, const LedgerData& data,
+                             const ReturnsRequest& request);
 
 }  // namespace keel::perf

@@ -179,12 +179,15 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
     throw InputError(fmt::format("--benchmark: there is no security with symbol '{}'",
                                  printable(*request.benchmark)));
 
+  // The ledger is read once; every period below is measured from this copy.
+  const perf::LedgerData data = perf::LedgerData::load(db);
+
   // The year itself: the returns module resolves the period and measures it.
   perf::ReturnsRequest year_request;
   year_request.account = request.account;
   year_request.period.year = request.year;
   year_request.benchmark = request.benchmark;
-  const perf::ReturnsReport year = perf::returns_report(db, year_request);
+  const perf::ReturnsReport year = perf::returns_report(db, data, year_request);
   const perf::PerfResult& r = year.result;
   s.scope = year.scope;
   s.from = r.from;
@@ -212,7 +215,7 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
     rq.as_of = s.to;
     const bool bench_ok = request.benchmark && bench_first && *bench_first <= from.plus_days(-1);
     if (bench_ok) rq.benchmark = request.benchmark;
-    auto line = line_from(label, perf::returns_report(db, rq));
+    auto line = line_from(label, perf::returns_report(db, data, rq));
     if (request.benchmark && !bench_ok)
       line.benchmark_note =
           fmt::format("{} has no close before {}", printable(*request.benchmark), from.str());
@@ -258,27 +261,17 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   s.allocation.push_back({"cash", cash_total, weight_of(cash_total, closing.total_value)});
 
   // Realized gains: the lot engine's parts disposed in the period.
-  for (auto& g : ledger::realized_gains(db, request.year, request.account)) {
+  for (auto& g :
+       ledger::realized_gains(db, request.year, request.account, request.long_term_days)) {
     if (g.part.disposed < s.from || g.part.disposed > s.to) continue;
-    GainRow row;
-    row.days_held = g.part.disposed - g.part.acquired;
-    row.long_term = request.long_term_days
-                        ? row.days_held > *request.long_term_days
-                        : ledger::held_long_term(g.part.acquired, g.part.disposed);
-    GainTotals& totals = row.long_term ? s.long_term : s.short_term;
-    totals.proceeds += g.part.proceeds;
-    totals.cost += g.part.cost;
-    totals.gain += g.part.gain();
-    ++totals.parts;
-    row.gain = std::move(g);
-    s.gains.push_back(std::move(row));
+    s.gains.push_back(std::move(g));
   }
+  s.realized_totals = ledger::totals_by_term(s.gains);
 
   // Transactions of the period in scope: flows, income, tax and fees.
-  const LedgerLog log = ledger::load_log(db);
+  const LedgerLog& log = data.log;
   const auto voided = voided_ids(log.transactions);
-  std::map<std::int64_t, std::string> symbols, account_names;
-  for (const auto& sec : store::list_securities(db)) symbols[sec.id] = sec.symbol;
+  std::map<std::int64_t, std::string> symbols = data.symbols, account_names;
   for (const auto& a : accounts) account_names[a.id] = a.name;
   std::vector<const Transaction*> live;
   for (const auto& t : log.transactions) {
@@ -349,7 +342,7 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   y.closing_value = r.closing_value;
   y.transfers_in = r.inflow - y.deposits;
   y.transfers_out = r.outflow - y.withdrawals;
-  for (const auto& row : s.gains) y.realized_gain += row.gain.part.gain();
+  y.realized_gain = s.realized_totals.all().gain;
   y.unrealized_opening = unrealized_total(opening);
   y.unrealized_closing = unrealized_total(closing);
   Decimal cost_moved;

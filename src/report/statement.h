@@ -106,17 +106,6 @@ struct AllocationSlice {
   Decimal weight;  // fraction of the closing value
 };
 
-struct GainRow {
-  ledger::GainLine gain;
-  int days_held = 0;
-  bool long_term = false;
-};
-
-struct GainTotals {
-  Decimal proceeds, cost, gain;
-  int parts = 0;
-};
-
 struct IncomeRow {
   std::string account;
   Date day;
@@ -153,8 +142,8 @@ struct Statement {
   std::vector<ledger::CashLine> cash;
   Decimal holdings_total;  // positions and cash at the close of `to`
   std::vector<AllocationSlice> allocation;
-  std::vector<GainRow> gains;
-  GainTotals short_term, long_term;
+  std::vector<ledger::GainLine> gains;  // classified by the request's long-term rule
+  ledger::GainsByTerm realized_totals;
   std::vector<IncomeRow> income;
   std::vector<TaxRow> other_tax;  // tax rows not matched to a payment
   std::vector<std::string> cautions;

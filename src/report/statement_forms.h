@@ -22,36 +22,14 @@
 #include <string>
 #include <vector>
 
+#include "report/cells.h"
 #include "report/statement.h"
 #include "report/table.h"
 
 namespace keel::report {
 
-enum class CellKind { empty, text, money, quantity, percent, date, integer };
-
-struct Cell {
-  CellKind kind = CellKind::empty;
-  std::string text;  // text cells
-  Decimal number;    // money and quantity cells
-  double ratio = 0;  // percent cells (a fraction)
-  Date day;          // date cells
-  long long whole = 0;
-
-  static Cell none() { return {}; }
-  static Cell of_text(std::string t);
-  static Cell of_money(const Decimal& d);
-  static Cell of_quantity(const Decimal& d);
-  static Cell of_percent(double x);
-  static Cell of_percent(const std::optional<double>& x);  // empty when unset
-  static Cell of_percent(const Decimal& fraction);
-  static Cell of_date(Date d);
-  static Cell of_integer(long long n);
-};
-
-struct SectionColumn {
-  std::string heading;
-  Align align = Align::left;
-};
+// Headings and alignment, as for a terminal table.
+using SectionColumn = Table::Column;
 
 struct Section {
   std::string key;    // file and sheet name: "summary", "performance", ...
@@ -63,10 +41,6 @@ struct Section {
 };
 
 std::vector<Section> statement_sections(const Statement& s);
-
-// Display forms of cells: money with two places, percent with two places and
-// a % sign, quantities exact; "" for an empty cell.
-std::string display(const Cell& cell);
 
 std::string statement_text(const Statement& s, bool colour);
 std::string statement_html(const Statement& s);

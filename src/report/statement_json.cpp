@@ -95,27 +95,27 @@ nlohmann::ordered_json statement_json(const Statement& s) {
   j["holdings_total"] = s.holdings_total.str();
 
   j["realized"] = Json::array();
-  for (const auto& row : s.gains) {
-    const auto& g = row.gain;
+  for (const auto& g : s.gains) {
     j["realized"].push_back({{"account", g.account},
                              {"symbol", g.symbol},
                              {"lot", g.part.lot_id},
                              {"acquired", g.part.acquired.str()},
                              {"disposed", g.part.disposed.str()},
-                             {"days_held", row.days_held},
+                             {"days_held", g.days_held},
                              {"quantity", g.part.quantity.str()},
                              {"proceeds", g.part.proceeds.str()},
                              {"cost", g.part.cost.str()},
                              {"gain", g.part.gain().str()},
-                             {"class", row.long_term ? "long" : "short"}});
+                             {"class", g.long_term ? "long" : "short"}});
   }
-  auto totals = [](const GainTotals& t) {
+  auto totals = [](const ledger::GainTotals& t) {
     return Json{{"parts", t.parts},
                 {"proceeds", t.proceeds.str()},
                 {"cost", t.cost.str()},
                 {"gain", t.gain.str()}};
   };
-  j["realized_totals"] = {{"short", totals(s.short_term)}, {"long", totals(s.long_term)}};
+  j["realized_totals"] = {{"short", totals(s.realized_totals.short_term)},
+                          {"long", totals(s.realized_totals.long_term)}};
 
   j["income"] = Json::array();
   for (const auto& r : s.income)

@@ -1,72 +1,10 @@
 // The statement as tables, one per section: the single source of every form.
 #include <fmt/format.h>
 
+#include "report/gain_rows.h"
 #include "report/statement_forms.h"
 
 namespace keel::report {
-
-Cell Cell::of_text(std::string t) {
-  Cell c;
-  c.kind = CellKind::text;
-  c.text = std::move(t);
-  return c;
-}
-Cell Cell::of_money(const Decimal& d) {
-  Cell c;
-  c.kind = CellKind::money;
-  c.number = d;
-  return c;
-}
-Cell Cell::of_quantity(const Decimal& d) {
-  Cell c;
-  c.kind = CellKind::quantity;
-  c.number = d;
-  return c;
-}
-Cell Cell::of_percent(double x) {
-  Cell c;
-  c.kind = CellKind::percent;
-  c.ratio = x;
-  return c;
-}
-Cell Cell::of_percent(const std::optional<double>& x) {
-  return x ? of_percent(*x) : none();
-}
-Cell Cell::of_percent(const Decimal& fraction) {
-  return of_percent(fraction.to_double());
-}
-Cell Cell::of_date(Date d) {
-  Cell c;
-  c.kind = CellKind::date;
-  c.day = d;
-  return c;
-}
-Cell Cell::of_integer(long long n) {
-  Cell c;
-  c.kind = CellKind::integer;
-  c.whole = n;
-  return c;
-}
-
-std::string display(const Cell& cell) {
-  switch (cell.kind) {
-    case CellKind::empty:
-      return "";
-    case CellKind::text:
-      return cell.text;
-    case CellKind::money:
-      return cell.number.fixed(2);
-    case CellKind::quantity:
-      return cell.number.str();
-    case CellKind::percent:
-      return fmt::format("{:.2f}%", cell.ratio * 100);
-    case CellKind::date:
-      return cell.day.str();
-    case CellKind::integer:
-      return std::to_string(cell.whole);
-  }
-  return "";
-}
 
 namespace {
 
@@ -237,35 +175,17 @@ Section gains_section(const Statement& s) {
   Section sec;
   sec.key = "realized";
   sec.title = "Realized gains, by closed lot";
-  sec.columns = {{"account"},
-                 {"symbol"},
-                 {"lot", Align::right},
-                 {"acquired"},
-                 {"disposed"},
-                 {"quantity", Align::right},
-                 {"proceeds", Align::right},
-                 {"cost", Align::right},
-                 {"gain", Align::right},
-                 {"class"}};
-  for (const auto& row : s.gains) {
-    const auto& g = row.gain;
-    sec.rows.push_back({C::of_text(g.account), C::of_text(g.symbol), C::of_integer(g.part.lot_id),
-                        C::of_date(g.part.acquired), C::of_date(g.part.disposed),
-                        C::of_quantity(g.part.quantity), C::of_money(g.part.proceeds),
-                        C::of_money(g.part.cost), C::of_money(g.part.gain()),
-                        C::of_text(row.long_term ? "long" : "short")});
-  }
+  sec.columns = gain_columns("class");
+  for (const auto& g : s.gains) sec.rows.push_back(gain_cells(g));
   sec.emphasised.push_back(sec.rows.size());
-  auto total = [&](const char* label, const GainTotals& t, const char* cls) {
+  auto total = [&](const char* label, const ledger::GainTotals& t, const char* cls) {
     sec.rows.push_back({C::of_text(label), C::none(), C::none(), C::none(), C::none(), C::none(),
                         C::of_money(t.proceeds), C::of_money(t.cost), C::of_money(t.gain),
                         C::of_text(cls)});
   };
-  total("total short-term", s.short_term, "short");
-  total("total long-term", s.long_term, "long");
-  GainTotals all{s.short_term.proceeds + s.long_term.proceeds, s.short_term.cost + s.long_term.cost,
-                 s.short_term.gain + s.long_term.gain, s.short_term.parts + s.long_term.parts};
-  total("total", all, "");
+  total("total short-term", s.realized_totals.short_term, "short");
+  total("total long-term", s.realized_totals.long_term, "long");
+  total("total", s.realized_totals.all(), "");
   sec.notes.push_back(
       fmt::format("Holding period: {}; otherwise short-term. Proceeds are net of "
                   "the sell's fee; cost includes the buy's fee.",

@@ -55,15 +55,11 @@ std::string statement_text(const Statement& s, bool colour) {
       for (const auto& row : sec.rows) out += wrap("- " + display(row.front()), kWidth, "  ");
       continue;
     }
-    std::vector<Table::Column> columns;
-    for (const auto& c : sec.columns) columns.push_back({c.heading, c.align});
-    Table table(std::move(columns));
+    Table table(sec.columns);
     for (std::size_t i = 0; i < sec.rows.size(); ++i) {
       if (std::find(sec.emphasised.begin(), sec.emphasised.end(), i) != sec.emphasised.end())
         table.add_rule();
-      std::vector<std::string> cells;
-      for (const auto& cell : sec.rows[i]) cells.push_back(display(cell));
-      table.add_row(std::move(cells));
+      table.add_row(displayed(sec.rows[i]));
     }
     out += table.render({colour});
     for (const auto& note : sec.notes) out += wrap(printable(note), kWidth);

@@ -643,28 +643,4 @@ std::optional<ImportRun> find_import_run(Database& db, std::string_view what,
   return read_run(st);
 }
 
-std::string dump_all_tables(Database& db) {
-  std::vector<std::string> tables;
-  {
-    SQLite::Statement st(db.sql(),
-                         "SELECT name FROM sqlite_schema WHERE type = 'table' AND name NOT LIKE "
-                         "'sqlite_%' ORDER BY name");
-    while (st.executeStep()) tables.push_back(st.getColumn(0).getString());
-  }
-  std::string out;
-  for (const auto& t : tables) {
-    out += "== " + t + "\n";
-    // Table names come from the schema itself, not from input.
-    SQLite::Statement st(db.sql(), fmt::format("SELECT * FROM \"{}\" ORDER BY 1, 2, 3", t));
-    while (st.executeStep()) {
-      for (int c = 0; c < st.getColumnCount(); ++c) {
-        if (c) out += '|';
-        out += st.getColumn(c).isNull() ? "NULL" : st.getColumn(c).getString();
-      }
-      out += '\n';
-    }
-  }
-  return out;
-}
-
 }  // namespace keel::store

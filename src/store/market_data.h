@@ -155,8 +155,4 @@ std::vector<ImportRun> list_import_runs(Database& db);               // oldest f
 std::optional<ImportRun> find_import_run(Database& db, std::string_view what,
                                          std::string_view sha256);  // latest with this digest
 
-// Every row of every table as text, in a fixed order: for proving that a
-// refused command changed nothing.
-std::string dump_all_tables(Database& db);
-
 }  // namespace keel::store

@@ -77,11 +77,21 @@ std::optional<Decimal> PriceBook::at(std::int64_t security_id, Date day) const {
 }
 
 std::vector<Date> PriceBook::all_days() const {
-  std::vector<Date> days;
+  // Marks each close's day in a bitmap over the book's span: linear in the
+  // closes, where sorting a copy of every close's day dominated a statement.
+  std::optional<Date> lo, hi;
   for (const Series& s : series_)
-    for (const auto& entry : s) days.push_back(entry.first);
-  std::sort(days.begin(), days.end());
-  days.erase(std::unique(days.begin(), days.end()), days.end());
+    for (const auto& entry : s) {
+      if (!lo || entry.first < *lo) lo = entry.first;
+      if (!hi || entry.first > *hi) hi = entry.first;
+    }
+  if (!lo) return {};
+  std::vector<bool> seen(static_cast<std::size_t>(*hi - *lo) + 1);
+  for (const Series& s : series_)
+    for (const auto& entry : s) seen[static_cast<std::size_t>(entry.first - *lo)] = true;
+  std::vector<Date> days;
+  for (std::size_t i = 0; i < seen.size(); ++i)
+    if (seen[i]) days.push_back(lo->plus_days(static_cast<int>(i)));
   return days;
 }
 

@@ -6,6 +6,7 @@
 #include "io/errors.h"
 #include "io/market_intake.h"
 #include "io/sha256.h"
+#include "store/fingerprint.h"
 #include "store/ledger_store.h"
 #include "store/market_data.h"
 #include "store/prices.h"
@@ -38,7 +39,7 @@ struct Ledger {
   // ledger is byte-for-byte what it was.
   std::vector<std::string> refused(const std::string& name, MarketKind what,
                                    const std::string& text, ImportOptions options = {}) {
-    const std::string before = keel::store::dump_all_tables(db);
+    const std::string before = keel::store::content_dump(db);
     std::vector<std::string> lines;
     try {
       import(name, what, text, options);
@@ -46,7 +47,7 @@ struct Ledger {
     } catch (const ImportRefused& e) {
       lines = e.lines();
     }
-    CHECK(keel::store::dump_all_tables(db) == before);
+    CHECK(keel::store::content_dump(db) == before);
     return lines;
   }
   std::string path(const std::string& name) const { return (dir.path() / name).string(); }
@@ -79,13 +80,13 @@ TEST_CASE("re-importing the same prices adds nothing and records no run") {
   Ledger l;
   const std::string text = prices_csv("2024-01-02,QRX,10.5\n2024-01-03,QRX,10.6\n");
   l.import("p.csv", MarketKind::prices, text);
-  const std::string before = keel::store::dump_all_tables(l.db);
+  const std::string before = keel::store::content_dump(l.db);
   const auto again = l.import("p.csv", MarketKind::prices, text);
   CHECK(again.added == 0);
   CHECK(again.unchanged == 2);
   CHECK_FALSE(again.run_id);
   REQUIRE(again.same_file_before);
-  CHECK(keel::store::dump_all_tables(l.db) == before);
+  CHECK(keel::store::content_dump(l.db) == before);
 }
 
 TEST_CASE("a bad date is refused with file, line and column, and nothing is written") {
@@ -166,14 +167,14 @@ TEST_CASE("--replace overwrites a conflicting value and counts it") {
 
 TEST_CASE("--dry-run reports what would be added and changes nothing") {
   Ledger l;
-  const std::string before = keel::store::dump_all_tables(l.db);
+  const std::string before = keel::store::content_dump(l.db);
   ImportOptions o;
   o.dry_run = true;
   const auto sum =
       l.import("p.csv", MarketKind::prices, prices_csv("2024-01-02,QRX,1\n2024-01-03,QRX,2\n"), o);
   CHECK(sum.added == 2);
   CHECK(sum.dry_run);
-  CHECK(keel::store::dump_all_tables(l.db) == before);
+  CHECK(keel::store::content_dump(l.db) == before);
 }
 
 TEST_CASE("errors are collected across the file, up to 50, then reading stops") {

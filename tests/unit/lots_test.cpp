@@ -209,6 +209,44 @@ TEST_CASE("gains: a lot held more than a year is long-term") {
   CHECK(ledger::held_long_term(day("2024-02-29"), day("2025-03-01")));
 }
 
+TEST_CASE("gains: a threshold in days is long-term only beyond it, not on the day itself") {
+  LedgerFixture f;
+  three_lots(f, BasisMethod::fifo);
+  f.sell("2025-01-04", "Main", "ALFA", "15", "130", "5");  // lot 2 held 367 days, lot 3 336
+  const auto by_anniversary = ledger::realized_gains(f.db, std::nullopt);
+  REQUIRE(by_anniversary.size() == 2);
+  CHECK(by_anniversary[0].days_held == 367);
+  CHECK(by_anniversary[0].long_term);
+  CHECK(by_anniversary[1].days_held == 336);
+  CHECK_FALSE(by_anniversary[1].long_term);
+  const auto at_367 = ledger::realized_gains(f.db, std::nullopt, std::nullopt, 367);
+  CHECK_FALSE(at_367[0].long_term);
+  const auto at_335 = ledger::realized_gains(f.db, std::nullopt, std::nullopt, 335);
+  CHECK(at_335[0].long_term);
+  CHECK(at_335[1].long_term);
+}
+
+TEST_CASE("gains: totals by term put each part in its own term and add up to the whole") {
+  LedgerFixture f;
+  three_lots(f, BasisMethod::fifo);
+  // Proceeds 15 x 130 - 5 = 1945, split 10:5 between lot 2 (long) and lot 3 (short).
+  f.sell("2025-01-04", "Main", "ALFA", "15", "130", "5");
+  const auto t = ledger::totals_by_term(f.gains());
+  CHECK(t.long_term.proceeds == dec("1296.67"));
+  CHECK(t.long_term.cost == dec("1005"));
+  CHECK(t.long_term.gain == dec("291.67"));
+  CHECK(t.long_term.parts == 1);
+  CHECK(t.short_term.proceeds == dec("648.33"));
+  CHECK(t.short_term.cost == dec("602.5"));
+  CHECK(t.short_term.gain == dec("45.83"));
+  CHECK(t.short_term.parts == 1);
+  const auto all = t.all();
+  CHECK(all.proceeds == dec("1945"));
+  CHECK(all.cost == dec("1607.5"));
+  CHECK(all.gain == dec("337.5"));
+  CHECK(all.parts == 2);
+}
+
 // Published worked example: IRS Publication 564 (2009), "Mutual Fund
 // Distributions", Table 3 "Example of How To Figure Basis of Shares Sold":
 // 160 shares for $4,000 on 2008-02-06, 240 for $4,800 on 2008-08-07, a $300

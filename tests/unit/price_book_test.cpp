@@ -59,6 +59,23 @@ TEST_CASE("price book: closes on or before a day, none before the first") {
   CHECK(text(cursor.at(8, day("2024-03-05"))) == "none");
 }
 
+TEST_CASE("price book: every day with a close, once each, ascending across securities") {
+  PriceBook book;
+  book.add(3, day("2024-12-30"), Decimal::parse("5"));
+  book.add(3, day("2025-01-02"), Decimal::parse("5.5"));
+  book.add(1, day("2024-12-27"), Decimal::parse("40"));
+  book.add(1, day("2024-12-30"), Decimal::parse("41"));
+  book.add(1, day("2025-01-03"), Decimal::parse("42"));
+  book.add(2, day("2025-01-02"), Decimal::parse("7"));
+  const std::vector<Date> expected{day("2024-12-27"), day("2024-12-30"), day("2025-01-02"),
+                                   day("2025-01-03")};
+  CHECK(book.all_days() == expected);
+  CHECK(PriceBook().all_days().empty());
+  PriceBook one;
+  one.add(4, day("2025-06-02"), Decimal::parse("1"));
+  CHECK(one.all_days() == std::vector<Date>{day("2025-06-02")});
+}
+
 TEST_CASE("price book: the last day with any close") {
   CHECK(sample().last_day() == day("2024-03-08"));
   CHECK_FALSE(PriceBook().last_day().has_value());

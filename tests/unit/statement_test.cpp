@@ -199,15 +199,15 @@ TEST_CASE("statement: realized gains are the lot engine's parts disposed in the 
     if (p.disposed.year() == 2025) engine.push_back(p);
   REQUIRE(s.gains.size() == engine.size());
   for (std::size_t i = 0; i < engine.size(); ++i) {
-    CHECK(s.gains[i].gain.part.lot_id == engine[i].lot_id);
-    CHECK(s.gains[i].gain.part.quantity == engine[i].quantity);
-    CHECK(s.gains[i].gain.part.proceeds == engine[i].proceeds);
-    CHECK(s.gains[i].gain.part.cost == engine[i].cost);
+    CHECK(s.gains[i].part.lot_id == engine[i].lot_id);
+    CHECK(s.gains[i].part.quantity == engine[i].quantity);
+    CHECK(s.gains[i].part.proceeds == engine[i].proceeds);
+    CHECK(s.gains[i].part.cost == engine[i].cost);
   }
-  CHECK(s.long_term.gain == dec("591"));
-  CHECK(s.long_term.proceeds == dec("2994"));
-  CHECK(s.short_term.gain == dec("98"));
-  CHECK(s.short_term.cost == dec("1001"));
+  CHECK(s.realized_totals.long_term.gain == dec("591"));
+  CHECK(s.realized_totals.long_term.proceeds == dec("2994"));
+  CHECK(s.realized_totals.short_term.gain == dec("98"));
+  CHECK(s.realized_totals.short_term.cost == dec("1001"));
 }
 
 TEST_CASE("statement: a long-term threshold in days reclassifies the gains") {
@@ -215,8 +215,8 @@ TEST_CASE("statement: a long-term threshold in days reclassifies the gains") {
   const auto s = k.statement(std::nullopt, 500);  // the ALDR part was held 424 days
   CHECK(s.gains.front().days_held == 424);
   CHECK_FALSE(s.gains.front().long_term);
-  CHECK(s.long_term.parts == 0);
-  CHECK(s.short_term.gain == dec("689"));
+  CHECK(s.realized_totals.long_term.parts == 0);
+  CHECK(s.realized_totals.short_term.gain == dec("689"));
   CHECK(s.long_term_rule == "long-term: held more than 500 days");
 }
 
@@ -267,6 +267,43 @@ TEST_CASE("statement: the year's returns are the returns module's") {
   CHECK(s.months[4].twr == rep.result.months[4].twr);
   CHECK(s.growth.back().level == doctest::Approx(1 + rep.result.twr.period).epsilon(1e-12));
   CHECK(s.benchmark_growth.back().level == doctest::Approx(1.1).epsilon(1e-12));  // 1100 / 1000
+}
+
+TEST_CASE("returns: a report from data loaded once equals one that reads the ledger itself") {
+  StatementLedger k;
+  const auto data = perf::LedgerData::load(k.db);
+  for (const auto& account : {std::optional<std::string>(), std::optional<std::string>(P)}) {
+    perf::ReturnsRequest r;
+    r.account = account;
+    r.period.year = 2025;
+    r.benchmark = "IDXW";
+    const auto direct = perf::returns_report(k.db, r);
+    const auto shared = perf::returns_report(k.db, data, r);
+    CHECK(shared.scope == direct.scope);
+    CHECK(shared.inception == direct.inception);
+    CHECK(shared.result.opening_value == direct.result.opening_value);
+    CHECK(shared.result.closing_value == direct.result.closing_value);
+    CHECK(shared.result.twr.period == direct.result.twr.period);
+    CHECK(shared.income == direct.income);
+    CHECK(shared.fees == direct.fees);
+  }
+}
+
+TEST_CASE("returns: loaded data is a copy; a later deposit is not in it") {
+  StatementLedger k;
+  const auto data = perf::LedgerData::load(k.db);
+  perf::ReturnsRequest r;
+  r.period.year = 2025;
+  const auto before = perf::returns_report(k.db, r);
+  ledger::PostRequest deposit;
+  deposit.kind = TxnKind::deposit;
+  deposit.date = day("2025-12-30");
+  deposit.account = T;
+  deposit.amount = dec("250");
+  ledger::post(k.db, deposit);
+  CHECK(perf::returns_report(k.db, data, r).result.closing_value == before.result.closing_value);
+  CHECK(perf::returns_report(k.db, r).result.closing_value ==
+        before.result.closing_value + dec("250"));
 }
 
 TEST_CASE("statement: the year starting at a ledger's first day says so") {

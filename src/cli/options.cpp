@@ -1,0 +1,61 @@
+#include "cli/options.h"
+
+#include <fmt/format.h>
+
+#include <charconv>
+
+#include "core/error.h"
+#include "core/text.h"
+
+namespace keel::cli {
+
+void add_json_flag(CLI::App& cmd, bool& json) {
+  cmd.add_flag("--json", json, "Print JSON for scripts");
+}
+
+void add_account_option(CLI::App& cmd, std::string& account, const std::string& help) {
+  cmd.add_option("--account", account, help);
+}
+
+std::optional<std::string> text_option(const std::string& text) {
+  if (text.empty()) return std::nullopt;
+  return text;
+}
+
+Date date_value(const std::string& text, std::string_view option) {
+  try {
+    return Date::parse(text);
+  } catch (const InputError& e) {
+    throw InputError(fmt::format("{}: {}", option, e.what()));
+  }
+}
+
+std::optional<Date> date_option(const std::string& text, std::string_view option) {
+  if (text.empty()) return std::nullopt;
+  return date_value(text, option);
+}
+
+Date date_option_or_today(const std::string& text, std::string_view option) {
+  return date_option(text, option).value_or(Date::today());
+}
+
+std::optional<Decimal> decimal_option(const std::string& text, std::string_view option) {
+  if (text.empty()) return std::nullopt;
+  try {
+    return Decimal::parse(text);
+  } catch (const InputError& e) {
+    throw InputError(fmt::format("{}: {}", option, e.what()));
+  }
+}
+
+int whole_number(const std::string& text, std::string_view option, int lo, int hi,
+                 std::string_view what) {
+  int value = 0;
+  const auto [end, ec] = std::from_chars(text.data(), text.data() + text.size(), value);
+  if (text.empty() || ec != std::errc() || end != text.data() + text.size() || value < lo ||
+      value > hi)
+    throw InputError(fmt::format("{}: '{}' is not {}", option, printable(text), what));
+  return value;
+}
+
+}  // namespace keel::cli

@@ -1,0 +1,35 @@
+// Options many commands share, declared and parsed one way everywhere.
+//  - add_json_flag() and add_account_option() declare --json and --account
+//    with the wording every command uses (the reference in docs/commands.md
+//    is generated from it).
+//  - The parsers turn option text into domain values. An empty text means the
+//    option was not given; the optional forms then return nullopt. Every
+//    error is an InputError that starts with the option's name, e.g.
+//    "--as-of: '2025-02-30' is not a calendar date".
+#pragma once
+
+#include <CLI/CLI.hpp>
+#include <optional>
+#include <string>
+#include <string_view>
+
+#include "core/date.h"
+#include "core/decimal.h"
+
+namespace keel::cli {
+
+void add_json_flag(CLI::App& cmd, bool& json);
+void add_account_option(CLI::App& cmd, std::string& account,
+                        const std::string& help = "Only this account");
+
+std::optional<std::string> text_option(const std::string& text);
+Date date_value(const std::string& text, std::string_view option);  // empty text is refused
+std::optional<Date> date_option(const std::string& text, std::string_view option);
+Date date_option_or_today(const std::string& text, std::string_view option);
+std::optional<Decimal> decimal_option(const std::string& text, std::string_view option);
+// A whole number in [lo, hi]; `what` names it in the error ("a calendar year
+// (1 to 9999)"). Empty text is refused like any other.
+int whole_number(const std::string& text, std::string_view option, int lo, int hi,
+                 std::string_view what);
+
+}  // namespace keel::cli

@@ -1,0 +1,26 @@
+#include "report/gain_rows.h"
+
+namespace keel::report {
+
+std::vector<Table::Column> gain_columns(const std::string& term_heading) {
+  return {{"account"},
+          {"symbol"},
+          {"lot", Align::right},
+          {"acquired"},
+          {"disposed"},
+          {"quantity", Align::right},
+          {"proceeds", Align::right},
+          {"cost", Align::right},
+          {"gain", Align::right},
+          {term_heading}};
+}
+
+std::vector<Cell> gain_cells(const ledger::GainLine& g) {
+  return {Cell::of_text(g.account),        Cell::of_text(g.symbol),
+          Cell::of_integer(g.part.lot_id), Cell::of_date(g.part.acquired),
+          Cell::of_date(g.part.disposed),  Cell::of_quantity(g.part.quantity),
+          Cell::of_money(g.part.proceeds), Cell::of_money(g.part.cost),
+          Cell::of_money(g.part.gain()),   Cell::of_text(g.long_term ? "long" : "short")};
+}
+
+}  // namespace keel::report
