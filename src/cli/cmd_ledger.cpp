@@ -182,6 +182,8 @@ void add_record_split(CLI::App& group, Context& ctx) {
   cmd->callback([&ctx, o] {
     const Date date = date_option_or_today(o->date, "--date");
     const auto ratio = decimal_option(o->ratio, "--ratio");
+    // CLI11's required() accepts an empty value ('--ratio ""').
+    if (!ratio) throw InputError("split: --ratio needs a number, such as 2 for two-for-one");
     auto db = ctx.open_ledger();
     const auto id = ledger::post_split(db, o->symbol, date, *ratio);
     out(fmt::format("split {} posted: {} x{} on {}\n", id, printable(o->symbol), ratio->str(),

@@ -182,8 +182,8 @@ void add_history(CLI::App& app, Context& ctx) {
   add_json_flag(*cmd, o->json);
   cmd->callback([&ctx, o] {
     // Inclusive bounds; an absent one is the first or last day a Date can hold.
-    const Date from = o->from.empty() ? Date::from_ymd(1, 1, 1) : Date::parse(o->from);
-    const Date to = o->to.empty() ? Date::from_ymd(9999, 12, 31) : Date::parse(o->to);
+    const Date from = date_option(o->from, "--from").value_or(Date::from_ymd(1, 1, 1));
+    const Date to = date_option(o->to, "--to").value_or(Date::from_ymd(9999, 12, 31));
     auto db = ctx.open_ledger();
     std::optional<std::int64_t> only;
     if (!o->account.empty()) only = store::account_named(db, o->account).id;

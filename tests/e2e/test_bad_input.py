@@ -299,6 +299,15 @@ row("record: malformed lots", ["record", "sell", "--date", "2024-03-01", "--acco
 row("record: duplicate ref", ["record", "deposit", "--date", "2024-03-01", "--account", T,
                               "--amount", "5", "--ref", "b-1"], INPUT,
     f"keel: error: reference 'b-1' is already booked in account '{T}'")
+# Regression: an empty --ratio passed CLI11's required() and crashed (exit 139).
+row("record: split ratio empty",
+    ["record", "split", "--date", "2024-03-01", "--symbol", "QRX", "--ratio", ""], INPUT,
+    "keel: error: split: --ratio needs a number, such as 2 for two-for-one")
+# Regression: history's date errors did not name the option.
+row("history: --from not a calendar date", ["history", "--from", "2025-02-30"], INPUT,
+    "keel: error: --from: '2025-02-30' is not a calendar date")
+row("history: --to not a date", ["history", "--to", "soon"], INPUT,
+    "keel: error: --to: 'soon' is not a date in the form YYYY-MM-DD")
 row("record: split ratio zero",
     ["record", "split", "--date", "2024-03-01", "--symbol", "QRX", "--ratio", "0"], INPUT,
     "keel: error: split: --ratio must be positive, not 0")
