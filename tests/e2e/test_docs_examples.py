@@ -1,6 +1,6 @@
 """Every command the documentation shows is run, and its output compared with what is printed.
 
-A ```console block in README.md, docs/*.md or examples/**/README.md is a transcript:
+A ```console block in README.md, docs/*.md or examples/**/README.md is a terminal session:
 
     $ keel record deposit --date 2025-01-02 --account Taxable --amount 10000
     posted #1 deposit 2025-01-02 Taxable 10000
@@ -34,7 +34,7 @@ import tempfile
 sys.path.insert(0, os.path.dirname(__file__))
 from keel_cli import KEEL, SOURCE, check  # noqa: E402
 
-# Shell lines that may appear outside a transcript, and the test that covers each.
+# Shell lines that may appear outside a session, and the test that covers each.
 SH_ALLOWED = {
     "keel completion": "test_docs_reference.py",
     "keel manpage": "test_docs_reference.py",
@@ -50,7 +50,7 @@ def documents():
     return names
 
 
-def parse_transcript(text):
+def parse_session(text):
     """[(command line, expected lines, expected exit)] of one console block."""
     steps = []
     for line in text.splitlines():
@@ -102,7 +102,7 @@ class Session:
             self.env[name] = self.expand(value)
             return [], 0
         if words[0] != "keel":
-            raise ValueError(f"a transcript runs keel and export only, not {words[0]!r}")
+            raise ValueError(f"a session runs keel and export only, not {words[0]!r}")
         p = subprocess.run([KEEL, *map(self.expand, words[1:])], cwd=SOURCE, env=self.env,
                            stdout=subprocess.PIPE, stderr=subprocess.STDOUT, text=True,
                            timeout=300)
@@ -126,8 +126,8 @@ def check_sh_block(doc, body):
         shown = re.sub(r"^(source <\(|man -l )", "", line)
         if shown.startswith(("keel ", "build/keel ")):
             check(any(shown.startswith(a) for a in SH_ALLOWED),
-                  f"{doc}: '{line}' is a command outside a ```console transcript, so no test "
-                  "compares its output; show it as a transcript")
+                  f"{doc}: '{line}' is a command outside a ```console session, so no test "
+                  "compares its output; show it as a session")
 
 
 def run_document(doc, update):
@@ -141,7 +141,7 @@ def run_document(doc, update):
             check_sh_block(doc, body)
         if kind != "console":
             continue
-        steps = parse_transcript(body)
+        steps = parse_session(body)
         outputs = [session.run(command) for command, _, _ in steps]
         ran += len(steps)
         block_ok = True
@@ -180,5 +180,5 @@ counts = {doc: run_document(doc, update) for doc in documents()}
 shown = {doc: n for doc, n in counts.items() if n}
 check(sum(shown.values()) >= 60, f"only {sum(shown.values())} commands found in the docs")
 for doc in ("README.md", "docs/guide.md"):
-    check(counts[doc] > 0, f"{doc} shows no transcript")
+    check(counts[doc] > 0, f"{doc} shows no session")
 print("docs examples: " + ", ".join(f"{doc} {n}" for doc, n in shown.items()))
