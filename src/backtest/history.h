@@ -27,7 +27,7 @@
 
 #include "core/date.h"
 #include "core/decimal.h"
-#include "market/security.h"
+#include "model/security.h"
 #include "rules/engine.h"
 #include "rules/rule.h"
 #include "store/database.h"

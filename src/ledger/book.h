@@ -34,7 +34,7 @@
 
 #include "core/date.h"
 #include "core/decimal.h"
-#include "ledger/types.h"
+#include "model/records.h"
 
 namespace keel {
 

@@ -16,7 +16,7 @@
 #include <vector>
 
 #include "ledger/book.h"
-#include "ledger/types.h"
+#include "model/records.h"
 #include "store/database.h"
 
 namespace keel::ledger {
@@ -56,8 +56,7 @@ Book check_ledger(store::Database& db,
 // Posts many requests in one write transaction with a single replay, for
 // importers; `origins[i]` names where requests[i] came from ("file.csv:12").
 // All or nothing: the first broken rule throws and nothing is written.
-std::vector<std::int64_t> post_batch(store::Database& db,
-                                     const std::vector<PostRequest>& requests,
+std::vector<std::int64_t> post_batch(store::Database& db, const std::vector<PostRequest>& requests,
                                      const std::vector<std::string>& origins);
 
 // Records a split of `symbol` on `date`; ratio = new units per old unit.

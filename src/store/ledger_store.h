@@ -12,8 +12,8 @@
 #include <string_view>
 #include <vector>
 
-#include "ledger/types.h"
-#include "market/security.h"
+#include "model/records.h"
+#include "model/security.h"
 #include "store/database.h"
 
 namespace keel::store {

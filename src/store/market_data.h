@@ -34,7 +34,7 @@
 
 #include "core/date.h"
 #include "core/decimal.h"
-#include "market/security.h"
+#include "model/security.h"
 #include "store/database.h"
 
 namespace keel::store {

@@ -16,7 +16,7 @@
 
 #include "core/date.h"
 #include "core/decimal.h"
-#include "ledger/types.h"
+#include "model/records.h"
 #include "store/database.h"
 
 namespace keel::store {

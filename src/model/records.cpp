@@ -1,4 +1,4 @@
-#include "ledger/types.h"
+#include "model/records.h"
 
 #include <fmt/format.h>
 

@@ -1,4 +1,4 @@
-#include "market/security.h"
+#include "model/security.h"
 
 #include <fmt/format.h>
 
