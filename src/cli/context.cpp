@@ -2,8 +2,11 @@
 
 #include <fmt/format.h>
 
+#include <cerrno>
 #include <cstdlib>
 
+#include "core/error.h"
+#include "core/files.h"
 #include "report/table.h"
 
 namespace keel::cli {
@@ -29,7 +32,13 @@ bool Context::colour() const {
 }
 
 void out(const std::string& text) {
-  std::fwrite(text.data(), 1, text.size(), stdout);
+  if (std::fwrite(text.data(), 1, text.size(), stdout) != text.size())
+    throw InputError(fmt::format("cannot write to standard output: {}", os_error_text(errno)));
+}
+
+void finish_output() {
+  if (std::fflush(stdout) != 0 || std::ferror(stdout))
+    throw InputError(fmt::format("cannot write to standard output: {}", os_error_text(errno)));
 }
 
 }  // namespace keel::cli

@@ -21,8 +21,11 @@ struct Context {
   bool colour() const;  // stdout is a terminal and NO_COLOR is not set
 };
 
-// Prints text to stdout exactly as given.
+// Prints text to stdout exactly as given; a failed write is an InputError
+// ("cannot write to standard output: disk full").
 void out(const std::string& text);
+// Flushes stdout at the end of a command, with the same error.
+void finish_output();
 
 // Each command family registers its subcommands on the root app. A
 // subcommand's callback runs inside main()'s error handling.

@@ -9,35 +9,15 @@ extreme numbers and dates are exact or refused clearly.
 Set KEEL_SHOW=1 to print what each row produced instead of stopping at the first
 difference.
 """
-import hashlib
 import os
 import sqlite3
 import sys
 
 sys.path.insert(0, os.path.dirname(__file__))
-from keel_cli import Ledger, check, equal  # noqa: E402
+from keel_cli import Ledger, check, equal, ledger_digest  # noqa: E402
 
 SHOW = os.environ.get("KEEL_SHOW") == "1"
 INPUT, USAGE, LEDGER = 1, 2, 3
-
-
-def ledger_digest(path):
-    """SHA-256 over the schema version, every table's definition and all its rows, ordered."""
-    con = sqlite3.connect(f"file:{path}?mode=ro", uri=True)
-    try:
-        h = hashlib.sha256()
-        h.update(repr(con.execute("PRAGMA user_version").fetchone()).encode())
-        tables = con.execute("SELECT name, sql FROM sqlite_master WHERE type = 'table' "
-                             "ORDER BY name").fetchall()
-        for name, sql in tables:
-            h.update(repr((name, sql)).encode())
-            cols = [r[1] for r in con.execute(f'PRAGMA table_info("{name}")')]
-            order = ", ".join(f'"{c}"' for c in cols)
-            for row in con.execute(f'SELECT * FROM "{name}" ORDER BY {order}'):
-                h.update(repr(row).encode())
-        return h.hexdigest(), len(tables)
-    finally:
-        con.close()
 
 
 led = Ledger()
