@@ -10,6 +10,7 @@
 #include "core/error.h"
 #include "core/files.h"
 #include "core/text.h"
+#include "store/sqlite_error.h"
 
 namespace {
 
@@ -64,7 +65,7 @@ int main(int argc, char** argv) {
     report_error(e.what());
     return keel::kExitLedger;
   } catch (const SQLite::Exception& e) {
-    report_error(fmt::format("ledger database: {}", e.what()));
+    report_error(keel::store::ledger_error(e).what());
     return keel::kExitLedger;
   } catch (const std::exception& e) {
     report_error(fmt::format("internal error (please report): {}", e.what()));

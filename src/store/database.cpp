@@ -4,10 +4,12 @@
 #include <sqlite3.h>
 #include <sys/stat.h>
 
+#include <exception>
 #include <system_error>
 
 #include "core/error.h"
 #include "store/migrations.h"
+#include "store/sqlite_error.h"
 
 namespace keel::store {
 namespace fs = std::filesystem;
@@ -48,6 +50,11 @@ void check_permissions(const fs::path& path) {
 Database::Database(std::unique_ptr<SQLite::Database> db, fs::path path)
     : db_(std::move(db)), path_(std::move(path)) {}
 
+Database::~Database() {
+  if (db_ && std::uncaught_exceptions() > 0)
+    unwound_ledger() = {path_, sqlite3_system_errno(db_->getHandle())};
+}
+
 int Database::latest_schema_version() {
   return migrations().empty() ? 0 : migrations().back().version;
 }
@@ -72,7 +79,9 @@ Database Database::open(const fs::path& path, const OpenOptions& options) {
     // Reading the header catches a file that is not a database before any write.
     handle->exec("PRAGMA schema_version");
   } catch (const SQLite::Exception& e) {
-    throw LedgerError(fmt::format("cannot open ledger {}: {}", path.string(), e.what()));
+    const int system_errno = handle ? sqlite3_system_errno(handle->getHandle()) : 0;
+    throw ledger_error(e.getExtendedErrorCode(), system_errno, e.what(), path,
+                       "cannot open ledger");
   }
   Database db(std::move(handle), path);
   db.migrate();
@@ -109,8 +118,8 @@ void Database::migrate() {
       db_->exec(std::string(m.sql));
       db_->exec(fmt::format("PRAGMA user_version = {}", m.version));
     } catch (const SQLite::Exception& e) {
-      throw LedgerError(
-          fmt::format("migration {} failed on {}: {}", m.file_name, path_.string(), e.what()));
+      throw_sqlite_error(db_->getHandle(), e.getErrorCode(),
+                         fmt::format("migration {} failed on ledger", m.file_name));
     }
     tx.commit();
   }
@@ -120,9 +129,7 @@ WriteTransaction::WriteTransaction(Database& db) : db_(db.sql()) {
   try {
     db_.exec("BEGIN IMMEDIATE");
   } catch (const SQLite::Exception& e) {
-    if (e.getErrorCode() == SQLITE_BUSY || e.getErrorCode() == SQLITE_LOCKED)
-      throw LedgerError("ledger is busy: another keel is writing to it; try again in a moment");
-    throw;
+    throw_sqlite_error(db_.getHandle(), e.getErrorCode());
   }
   open_ = true;
 }
@@ -137,7 +144,11 @@ WriteTransaction::~WriteTransaction() {
 }
 
 void WriteTransaction::commit() {
-  db_.exec("COMMIT");
+  try {
+    db_.exec("COMMIT");
+  } catch (const SQLite::Exception& e) {
+    throw_sqlite_error(db_.getHandle(), e.getErrorCode());
+  }
   open_ = false;
 }
 

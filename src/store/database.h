@@ -30,6 +30,11 @@ struct OpenOptions {
 class Database {
  public:
   static Database open(const std::filesystem::path& path, const OpenOptions& options = {});
+  // Records the file and its system error for the error policy when closed
+  // by an exception (store/sqlite_error.h).
+  ~Database();
+  Database(Database&&) noexcept = default;
+  Database& operator=(Database&&) noexcept = default;
   static Database in_memory();  // for tests: a fresh, fully migrated ledger
 
   int schema_version();
@@ -52,7 +57,7 @@ void create_private_file(const std::filesystem::path& path);
 // RAII write transaction taken with BEGIN IMMEDIATE, so two writers never
 // deadlock halfway: the second waits up to the busy timeout, then fails with
 // LedgerError("ledger is busy"). Rolls back unless commit() was called;
-// the destructor never throws.
+// the destructor never throws. Errors follow store/sqlite_error.h.
 class WriteTransaction {
  public:
   explicit WriteTransaction(Database& db);
