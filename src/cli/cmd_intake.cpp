@@ -78,7 +78,7 @@ void add_import(CLI::App& app, Context& ctx) {
     options.dry_run = o->dry_run;
     options.replace = o->replace;
     if (o->what == "transactions" || o->what == "accounts") {
-      auto db = ctx.open_ledger();
+      auto db = ctx.open_ledger(store::Access::write);
       const auto sum = printing_refusals([&] {
         return o->what == "accounts" ? io::import_accounts(db, o->file, options)
                                      : io::import_transactions(db, o->file, options);
@@ -89,7 +89,7 @@ void add_import(CLI::App& app, Context& ctx) {
       return;
     }
     const io::MarketKind kind = io::parse_market_kind(o->what);
-    auto db = ctx.open_ledger();
+    auto db = ctx.open_ledger(store::Access::write);
     io::ImportSummary sum;
     {
       Progress progress(!o->quiet);

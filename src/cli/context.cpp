@@ -20,9 +20,9 @@ std::filesystem::path Context::ledger_path() const {
          "keel.db";
 }
 
-store::Database Context::open_ledger(bool create) const {
+store::Database Context::open_ledger(store::Access access) const {
   store::OpenOptions options;
-  options.create = create;
+  options.access = access;
   options.allow_unsafe_permissions = allow_unsafe_permissions;
   return store::Database::open(ledger_path(), options);
 }

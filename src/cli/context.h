@@ -17,7 +17,9 @@ struct Context {
   bool allow_unsafe_permissions = false;
 
   std::filesystem::path ledger_path() const;
-  store::Database open_ledger(bool create = false) const;
+  // Reports read (and still work where the ledger cannot be written);
+  // commands that change it ask for Access::write, init for Access::create.
+  store::Database open_ledger(store::Access access = store::Access::read) const;
   bool colour() const;  // stdout is a terminal and NO_COLOR is not set
 };
 

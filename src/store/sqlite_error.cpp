@@ -44,6 +44,10 @@ std::string sqlite_reason(int extended_code, int system_errno, std::string_view 
   }
 }
 
+int sqlite_code(const SQLite::Exception& e) {
+  return e.getExtendedErrorCode() >= 0 ? e.getExtendedErrorCode() : e.getErrorCode();
+}
+
 bool is_moved_error(int extended_code) {
   return extended_code == SQLITE_READONLY_DBMOVED;
 }
@@ -65,7 +69,7 @@ LedgerError ledger_error(int extended_code, int system_errno, std::string_view s
 
 LedgerError ledger_error(const SQLite::Exception& e, std::string_view doing) {
   const UnwoundLedger& last = unwound_ledger();
-  return ledger_error(e.getExtendedErrorCode(), last.system_errno, e.what(), last.file, doing);
+  return ledger_error(sqlite_code(e), last.system_errno, e.what(), last.file, doing);
 }
 
 void throw_sqlite_error(sqlite3* handle, int rc, std::string_view doing) {

@@ -41,6 +41,10 @@ LedgerError ledger_error(int extended_code, int system_errno, std::string_view s
 LedgerError ledger_error(const SQLite::Exception& e, std::string_view doing = "ledger");
 [[noreturn]] void throw_sqlite_error(sqlite3* handle, int rc, std::string_view doing = "ledger");
 
+// An SQLiteCpp exception's extended code, or its primary code where it has
+// none (SQLiteCpp's backup errors).
+int sqlite_code(const SQLite::Exception& e);
+
 // True for SQLite's "file moved or replaced since it was opened" refusal.
 bool is_moved_error(int extended_code);
 

@@ -69,7 +69,7 @@ TEST_CASE("sqlite errors: an exception that closed the ledger is reported with i
   test::TempDir dir;
   const auto file = dir.path() / "ledger.db";
   store::OpenOptions options;
-  options.create = true;
+  options.access = store::Access::create;
   try {
     auto db = store::Database::open(file, options);
     db.sql().exec("SELECT * FROM no_such_table");
