@@ -8,8 +8,12 @@
 
 #include <cerrno>
 
+#include "core/decimal.h"
 #include "core/error.h"
+#include "model/security.h"
 #include "store/database.h"
+#include "store/ledger_store.h"
+#include "store/market_data.h"
 #include "test_files.h"
 
 using namespace keel;
@@ -78,4 +82,24 @@ TEST_CASE("sqlite errors: an exception that closed the ledger is reported with i
     CHECK(std::string(store::ledger_error(e).what()) ==
           "ledger " + file.string() + ": no such table: no_such_table");
   }
+}
+
+TEST_CASE(
+    "sqlite errors: market intake's statements fail as LedgerError, not as an internal error") {
+  // Its raw statement wrapper threw std::runtime_error (exit 70) where the
+  // others gave exit 3.
+  auto db = store::Database::in_memory();
+  Security s;
+  s.symbol = "QRX";
+  s.name = "Quarix Holdings";
+  s.kind = SecurityKind::stock;
+  s.lot_size = Decimal::parse("1");
+  store::insert_security(db, s);
+  store::WriteTransaction tx(db);
+  store::MarketWriter writer(db, false);
+  db.sql().exec("PRAGMA query_only = ON");  // every write now fails in SQLite
+  std::string existing;
+  CHECK_THROWS_WITH_AS(writer.split(writer.security("QRX"), "2024-06-03", "2", existing),
+                       "ledger: the file or its folder is read-only", LedgerError);
+  db.sql().exec("PRAGMA query_only = OFF");
 }
