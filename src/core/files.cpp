@@ -180,6 +180,9 @@ OutputFile::OutputFile(const fs::path& target, OutputOptions options)
     if (!options_.replace)
       throw InputError(fmt::format("{} {}: already exists; choose a new file", options_.option,
                                    printable(target_.string())));
+    // A rename would replace a file its owner made read-only; writing in
+    // place would not, nor would the shell's '>'.
+    if (::faccessat(AT_FDCWD, dest_.c_str(), W_OK, AT_EACCESS) != 0) fail(errno);
     mode_bits_ = st.st_mode & 07777;
   } else if (errno != ENOENT) {
     fail(errno, "open");

@@ -10,7 +10,8 @@
 //    exactly as it was; the destructor removes the temporary file (and any
 //    SQLite companion of it) and never throws.
 //  - A new file is private to its owner (0600): it holds the same figures as
-//    the ledger. Replacing an existing file keeps that file's permission bits.
+//    the ledger. Replacing an existing file keeps that file's permission bits;
+//    a file this process may not write is refused, not replaced.
 //    A symbolic link is followed: the file it names is replaced, the link stays.
 //  - "-" is standard output. A device, FIFO or socket (/dev/null, /dev/stdout)
 //    is written in place. Neither can be replaced atomically; every write is

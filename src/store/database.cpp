@@ -269,10 +269,18 @@ WriteTransaction::WriteTransaction(Database& db) : db_(db) {
   } catch (const SQLite::Exception& e) {
     throw_sqlite_error(db_.sql().getHandle(), e.getErrorCode());
   }
-  open_ = true;
   // Writing to a file moved aside would lose the change, and in WAL mode pair
-  // this file's log with whatever now has the name.
-  if (db_.file_replaced()) throw ledger_error(SQLITE_READONLY_DBMOVED, 0, "", db_.path());
+  // this file's log with whatever now has the name. (The destructor does not
+  // run for a constructor that throws: roll back here.)
+  if (db_.file_replaced()) {
+    try {
+      db_.sql().exec("ROLLBACK");
+    } catch (...) {
+      // Closing the connection rolls back too.
+    }
+    throw ledger_error(SQLITE_READONLY_DBMOVED, 0, "", db_.path());
+  }
+  open_ = true;
 }
 
 WriteTransaction::~WriteTransaction() {

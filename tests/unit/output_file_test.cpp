@@ -263,3 +263,17 @@ TEST_CASE("files: system errors read as words") {
   CHECK(os_error_text(EACCES) == "permission denied");
   CHECK(os_error_text(ENOENT) == "no such file or directory");
 }
+
+TEST_CASE("files: a file its owner made read-only is refused, not replaced") {
+  if (::geteuid() == 0) return;  // root may write any file; nothing to refuse
+  test::TempDir dir;
+  const auto kept = dir.write("kept.csv", "old");
+  ::chmod(kept.c_str(), 0444);
+  CHECK_THROWS_WITH_AS(OutputFile(kept, {"--out"}),
+                       ("--out " + kept.string() +
+                        ": cannot write: permission denied; the existing file is unchanged")
+                           .c_str(),
+                       InputError);
+  CHECK(bytes_of(kept) == "old");
+  CHECK(leftovers(dir.path()) == 0);
+}
