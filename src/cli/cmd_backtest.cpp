@@ -5,9 +5,9 @@
 
 #include <charconv>
 #include <cstdio>
-#include <fstream>
 #include <memory>
 #include <nlohmann/json.hpp>
+#include <optional>
 
 #include "backtest/backtest.h"
 #include "backtest/signal.h"
@@ -15,6 +15,7 @@
 #include "cli/options.h"
 #include "cli/print.h"
 #include "core/error.h"
+#include "core/files.h"
 #include "core/text.h"
 #include "report/table.h"
 #include "rules/rule.h"
@@ -209,16 +210,15 @@ std::string result_text(const backtest::Result& r, bool colour) {
   return s;
 }
 
-void write_curve(const std::string& path, const backtest::Result& r) {
-  std::ofstream f(path, std::ios::binary | std::ios::trunc);
-  if (!f) throw InputError(fmt::format("--curve: cannot write '{}'", printable(path)));
-  f << "date,value,cash,names,baseline_value\n";
+void write_curve(OutputFile& file, const backtest::Result& r) {
+  std::string text = "date,value,cash,names,baseline_value\n";
   for (std::size_t i = 0; i < r.rule.curve.size(); ++i) {
     const auto& c = r.rule.curve[i];
-    f << c.day.str() << ',' << c.value.fixed(6) << ',' << c.cash.fixed(6) << ',' << c.names << ','
-      << r.baseline.curve[i].value.fixed(6) << '\n';
+    text += fmt::format("{},{},{},{},{}\n", c.day.str(), c.value.fixed(6), c.cash.fixed(6), c.names,
+                        r.baseline.curve[i].value.fixed(6));
   }
-  if (!f) throw InputError(fmt::format("--curve: writing '{}' failed", printable(path)));
+  file.write(text);
+  file.commit();
 }
 
 void add_backtest(CLI::App& app, Context& ctx) {
@@ -233,7 +233,9 @@ void add_backtest(CLI::App& app, Context& ctx) {
   cmd->add_option("--start-value", o->start_value, "Cash the simulated pool starts with");
   cmd->add_option("--benchmark", o->benchmark, "A security whose closes to compare with");
   add_json_flag(*cmd, o->json);
-  cmd->add_option("--curve", o->curve, "Write the daily values to this CSV file");
+  cmd->add_option("--curve", o->curve,
+                  "Write the daily values to this CSV file ('-': standard output, with the report "
+                  "on standard error)");
   cmd->add_flag("--frictionless", o->frictionless,
                 "No fees, bands, minimum trade or reserve; fractional units, fully invested");
   cmd->add_option("--rolling", o->rolling, "Months held in the rolling-window table");
@@ -253,10 +255,20 @@ void add_backtest(CLI::App& app, Context& ctx) {
     req.progress = [&progress](std::size_t done, std::size_t total, Date day) {
       progress(done, total, day);
     };
+    if (o->curve == "-" && o->json)
+      throw InputError("--curve -: standard output already carries the JSON");
     const auto rule = rules::load_rule(o->rule);
+    // Opened (and so checked) before the run; written after it.
+    std::optional<OutputFile> curve;
+    if (!o->curve.empty()) curve.emplace(o->curve, OutputOptions{"--curve"});
     auto db = ctx.open_ledger();
     const auto result = backtest::run(db, rule, req);
-    if (!o->curve.empty()) write_curve(o->curve, result);
+    if (curve) write_curve(*curve, result);
+    if (curve && curve->to_stdout()) {
+      // The curve has standard output; the report goes to standard error.
+      std::fputs(result_text(result, report::use_colour(stderr)).c_str(), stderr);
+      return;
+    }
     out(o->json ? result_json(result).dump(2) + "\n" : result_text(result, ctx.colour()));
   });
 }

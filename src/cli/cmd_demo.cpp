@@ -149,7 +149,7 @@ void add_demo(CLI::App& app, Context& ctx) {
     std::fflush(stdout);
     try {
       store::OpenOptions options;
-      options.create = true;
+      options.access = store::Access::create;
       options.allow_unsafe_permissions = ctx.allow_unsafe_permissions;
       auto db = store::Database::open(ledger, options);
       for (const auto& d : io::import_scenario(db, scenario))

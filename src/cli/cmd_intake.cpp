@@ -8,6 +8,7 @@
 
 #include "cli/context.h"
 #include "core/error.h"
+#include "core/files.h"
 #include "core/text.h"
 #include "io/errors.h"
 #include "io/ledger_intake.h"
@@ -77,7 +78,7 @@ void add_import(CLI::App& app, Context& ctx) {
     options.dry_run = o->dry_run;
     options.replace = o->replace;
     if (o->what == "transactions" || o->what == "accounts") {
-      auto db = ctx.open_ledger();
+      auto db = ctx.open_ledger(store::Access::write);
       const auto sum = printing_refusals([&] {
         return o->what == "accounts" ? io::import_accounts(db, o->file, options)
                                      : io::import_transactions(db, o->file, options);
@@ -88,7 +89,7 @@ void add_import(CLI::App& app, Context& ctx) {
       return;
     }
     const io::MarketKind kind = io::parse_market_kind(o->what);
-    auto db = ctx.open_ledger();
+    auto db = ctx.open_ledger(store::Access::write);
     io::ImportSummary sum;
     {
       Progress progress(!o->quiet);
@@ -126,7 +127,8 @@ void add_export(CLI::App& app, Context& ctx) {
   auto* c = cmd->add_flag("--csv", o->csv, "CSV in keel's import layout (the default)");
   cmd->add_flag("--json", o->json, "A JSON array of objects; numbers as exact strings")
       ->excludes(c);
-  cmd->add_option("--out", o->file, "Write to this file instead of standard output");
+  cmd->add_option("--out", o->file,
+                  "Write to this file instead of standard output ('-': standard output)");
   cmd->callback([&ctx, o] {
     const std::string& what = o->what;
     const std::string& file = o->file;
@@ -134,30 +136,20 @@ void add_export(CLI::App& app, Context& ctx) {
     const std::string kind_name =
         ledger_data ? what : std::string(to_string(io::parse_market_kind(what)));
     auto db = ctx.open_ledger();
-    std::FILE* f = stdout;
-    if (!file.empty()) {
-      f = std::fopen(file.c_str(), "wb");
-      if (!f) throw InputError(fmt::format("{}: cannot write", printable(file)));
-    }
+    OutputFile f(file.empty() ? "-" : file, {"--out"});
+    const auto format = o->json ? io::ExportFormat::json : io::ExportFormat::csv;
     std::uint64_t rows = 0;
-    try {
-      const auto format = o->json ? io::ExportFormat::json : io::ExportFormat::csv;
-      if (what == "transactions")
-        rows = io::export_transactions(db, format, f);
-      else if (what == "accounts")
-        rows = io::export_accounts(db, format, f);
-      else
-        rows = io::export_market(db, io::parse_market_kind(what), format, f);
-    } catch (...) {
-      if (f != stdout) std::fclose(f);
-      throw;
-    }
-    if (f != stdout) {
-      if (std::fclose(f) != 0) throw InputError(fmt::format("{}: cannot write", printable(file)));
+    if (what == "transactions")
+      rows = io::export_transactions(db, format, f);
+    else if (what == "accounts")
+      rows = io::export_accounts(db, format, f);
+    else
+      rows = io::export_market(db, io::parse_market_kind(what), format, f);
+    f.commit();
+    if (!f.to_stdout())
       std::fputs(
           fmt::format("{} {} rows written to {}\n", rows, kind_name, printable(file)).c_str(),
           stderr);
-    }
   });
 }
 

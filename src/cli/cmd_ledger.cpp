@@ -16,7 +16,7 @@ namespace {
 void add_init(CLI::App& app, Context& ctx) {
   auto* cmd = app.add_subcommand("init", "Create an empty ledger (or bring an old one up to date)");
   cmd->callback([&ctx] {
-    auto db = ctx.open_ledger(/*create=*/true);
+    auto db = ctx.open_ledger(store::Access::create);
     out(fmt::format("ledger ready at {} (schema version {})\n", printable(db.path().string()),
                     db.schema_version()));
   });
@@ -40,7 +40,7 @@ void add_account_add(CLI::App& group, Context& ctx) {
     a.currency = normalize_currency(o->currency);
     a.basis = parse_basis_method(o->basis);
     a.allow_negative_cash = o->allow_negative;
-    auto db = ctx.open_ledger();
+    auto db = ctx.open_ledger(store::Access::write);
     store::WriteTransaction tx(db);
     const auto id = store::insert_account(db, a);
     tx.commit();
@@ -74,7 +74,7 @@ void add_security_add(CLI::App& group, Context& ctx) {
       throw InputError(fmt::format("--lot-size: {}", e.what()));
     }
     if (!o->sector.empty()) s.sector = o->sector;
-    auto db = ctx.open_ledger();
+    auto db = ctx.open_ledger(store::Access::write);
     store::WriteTransaction tx(db);
     const auto id = store::insert_security(db, s);
     tx.commit();
@@ -162,7 +162,7 @@ void add_record_kind(CLI::App& group, Context& ctx, const KindSpec& spec) {
   const TxnKind kind = spec.kind;
   cmd->callback([&ctx, o, kind] {
     const auto request = to_request(kind, *o);
-    auto db = ctx.open_ledger();
+    auto db = ctx.open_ledger(store::Access::write);
     const auto ids = ledger::post(db, request);
     std::string id_text = std::to_string(ids.front());
     if (ids.size() > 1) id_text += fmt::format(" and {}", ids.back());
@@ -184,7 +184,7 @@ void add_record_split(CLI::App& group, Context& ctx) {
     const auto ratio = decimal_option(o->ratio, "--ratio");
     // CLI11's required() accepts an empty value ('--ratio ""').
     if (!ratio) throw InputError("split: --ratio needs a number, such as 2 for two-for-one");
-    auto db = ctx.open_ledger();
+    auto db = ctx.open_ledger(store::Access::write);
     const auto id = ledger::post_split(db, o->symbol, date, *ratio);
     out(fmt::format("split {} posted: {} x{} on {}\n", id, printable(o->symbol), ratio->str(),
                     date.str()));
@@ -203,7 +203,7 @@ void add_void(CLI::App& app, Context& ctx) {
   cmd->add_option("ID", o->id, "Transaction id (see 'keel history')")->required();
   cmd->add_option("--reason", o->reason, "Why it is cancelled")->required();
   cmd->callback([&ctx, o] {
-    auto db = ctx.open_ledger();
+    auto db = ctx.open_ledger(store::Access::write);
     const auto ids = ledger::void_transaction(db, o->id, o->reason);
     out(fmt::format("voided {} ({} void entr{} recorded)\n", o->id, ids.size(),
                     ids.size() == 1 ? "y" : "ies"));

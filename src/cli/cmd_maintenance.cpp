@@ -1,6 +1,7 @@
 // Commands that look after the ledger file: verify, backup, restore.
 #include <fmt/format.h>
 
+#include <cstdio>
 #include <memory>
 
 #include "cli/context.h"
@@ -36,11 +37,18 @@ void add_backup(CLI::App& app, Context& ctx) {
   auto file = std::make_shared<std::string>();
   auto* cmd = app.add_subcommand("backup",
                                  "Copy the ledger to a new file, safely even while keel is in use");
-  cmd->add_option("FILE", *file, "The backup file to create (must not exist)")->required();
+  cmd->add_option("FILE", *file,
+                  "The backup file to create (must not exist; '-': standard output, not a "
+                  "terminal)")
+      ->required();
   cmd->callback([&ctx, file] {
     auto db = ctx.open_ledger();
     store::backup_to(db, *file);
-    out(fmt::format("backed up {} to {}\n", db.path().string(), *file));
+    const std::string line = fmt::format("backed up {} to {}\n", db.path().string(), *file);
+    if (*file == "-")
+      std::fputs(line.c_str(), stderr);
+    else
+      out(line);
   });
 }
 
@@ -51,6 +59,8 @@ void add_restore(CLI::App& app, Context& ctx) {
   cmd->add_option("FILE", *file, "The backup to restore")->required();
   cmd->callback([&ctx, file] {
     const auto result = ledger::restore_backup(ctx.ledger_path(), *file);
+    for (const auto& stale : result.stale_removed)
+      out(fmt::format("removed {}, left by an interrupted restore\n", stale.string()));
     out(fmt::format("restored {} from {} ({} transactions)\n", ctx.ledger_path().string(), *file,
                     result.transactions));
     if (result.replaced_kept_at)

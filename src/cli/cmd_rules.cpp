@@ -274,7 +274,7 @@ void add_propose(CLI::App& app, Context& ctx) {
   cmd->callback([&ctx, o] {
     const auto as_of = date_option(o->as_of, "--as-of");
     const auto rule = rules::load_rule(o->rule);
-    auto db = ctx.open_ledger();
+    auto db = ctx.open_ledger(o->save ? store::Access::write : store::Access::read);
     const auto proposal = rules::propose(db, rule, as_of);
     std::optional<std::int64_t> id;
     if (o->save) id = rules::save(db, rule, proposal);

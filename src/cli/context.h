@@ -17,12 +17,17 @@ struct Context {
   bool allow_unsafe_permissions = false;
 
   std::filesystem::path ledger_path() const;
-  store::Database open_ledger(bool create = false) const;
+  // Reports read (and still work where the ledger cannot be written);
+  // commands that change it ask for Access::write, init for Access::create.
+  store::Database open_ledger(store::Access access = store::Access::read) const;
   bool colour() const;  // stdout is a terminal and NO_COLOR is not set
 };
 
-// Prints text to stdout exactly as given.
+// Prints text to stdout exactly as given; a failed write is an InputError
+// ("cannot write to standard output: disk full").
 void out(const std::string& text);
+// Flushes stdout at the end of a command, with the same error.
+void finish_output();
 
 // Each command family registers its subcommands on the root app. A
 // subcommand's callback runs inside main()'s error handling.

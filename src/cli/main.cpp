@@ -3,11 +3,14 @@
 #include <fmt/format.h>
 
 #include <CLI/CLI.hpp>
+#include <csignal>
 #include <cstdio>
 
 #include "cli/context.h"
 #include "core/error.h"
+#include "core/files.h"
 #include "core/text.h"
+#include "store/sqlite_error.h"
 
 namespace {
 
@@ -43,9 +46,15 @@ int main(int argc, char** argv) {
   keel::cli::register_backtest_commands(app, context);
   keel::cli::register_statement_commands(app, context);
   keel::cli::register_reference_command(app);
+  // Before any command runs: no file keel writes may be the ledger.
+  app.parse_complete_callback([&context] { keel::protect_from_output(context.ledger_path()); });
+  // A file size limit (ulimit -f) then fails a write with EFBIG, reported like
+  // a full disk, instead of killing keel mid-write.
+  std::signal(SIGXFSZ, SIG_IGN);
 
   try {
     app.parse(argc, argv);
+    keel::cli::finish_output();
   } catch (const CLI::ParseError& e) {
     const int code = app.exit(e);
     return code == 0 ? 0 : keel::kExitUsage;
@@ -56,7 +65,7 @@ int main(int argc, char** argv) {
     report_error(e.what());
     return keel::kExitLedger;
   } catch (const SQLite::Exception& e) {
-    report_error(fmt::format("ledger database: {}", e.what()));
+    report_error(keel::store::ledger_error(e).what());
     return keel::kExitLedger;
   } catch (const std::exception& e) {
     report_error(fmt::format("internal error (please report): {}", e.what()));

@@ -316,7 +316,7 @@ LedgerImportSummary import_accounts(store::Database& db, const std::filesystem::
 namespace {
 
 void write_rows(ExportFormat format, const std::vector<std::string>& header,
-                const std::vector<std::vector<std::string>>& rows, std::FILE* out) {
+                const std::vector<std::vector<std::string>>& rows, OutputFile& out) {
   std::string text;
   if (format == ExportFormat::csv) {
     std::vector<std::string_view> fields(header.begin(), header.end());
@@ -335,12 +335,12 @@ void write_rows(ExportFormat format, const std::vector<std::string>& header,
     }
     text = array.dump(2) + "\n";
   }
-  std::fwrite(text.data(), 1, text.size(), out);
+  out.write(text);
 }
 
 }  // namespace
 
-std::uint64_t export_transactions(store::Database& db, ExportFormat format, std::FILE* out) {
+std::uint64_t export_transactions(store::Database& db, ExportFormat format, OutputFile& out) {
   std::unordered_map<std::int64_t, std::string> accounts, symbols;
   for (const auto& a : store::list_accounts(db)) accounts[a.id] = a.name;
   for (const auto& s : store::list_securities(db)) symbols[s.id] = s.symbol;
@@ -367,7 +367,7 @@ std::uint64_t export_transactions(store::Database& db, ExportFormat format, std:
   return rows.size();
 }
 
-std::uint64_t export_accounts(store::Database& db, ExportFormat format, std::FILE* out) {
+std::uint64_t export_accounts(store::Database& db, ExportFormat format, OutputFile& out) {
   std::vector<std::vector<std::string>> rows;
   for (const auto& a : store::list_accounts(db))
     rows.push_back({a.name, a.currency, std::string(to_string(a.basis)),

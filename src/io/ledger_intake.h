@@ -18,7 +18,6 @@
 #pragma once
 
 #include <cstdint>
-#include <cstdio>
 #include <filesystem>
 
 #include "io/market_intake.h"
@@ -41,7 +40,8 @@ LedgerImportSummary import_transactions(store::Database& db, const std::filesyst
 LedgerImportSummary import_accounts(store::Database& db, const std::filesystem::path& file,
                                     const ImportOptions& options);
 
-std::uint64_t export_transactions(store::Database& db, ExportFormat format, std::FILE* out);
-std::uint64_t export_accounts(store::Database& db, ExportFormat format, std::FILE* out);
+// Write to `out` without committing it; return the number of rows written.
+std::uint64_t export_transactions(store::Database& db, ExportFormat format, OutputFile& out);
+std::uint64_t export_accounts(store::Database& db, ExportFormat format, OutputFile& out);
 
 }  // namespace keel::io

@@ -336,30 +336,29 @@ ImportSummary import_market(store::Database& db, MarketKind what, const std::fil
 
 namespace {
 
-// Buffered output to a FILE*, flushed in large pieces.
+// Buffered output, written in large pieces. What is still buffered when an
+// error unwinds the export is dropped, never written from a destructor.
 class Sink {
  public:
-  explicit Sink(std::FILE* f) : f_(f) { buf_.reserve(1 << 20); }
-  ~Sink() { flush(); }
+  explicit Sink(OutputFile& out) : out_(out) { buf_.reserve(1 << 20); }
   std::string& buf() { return buf_; }
   void maybe_flush() {
     if (buf_.size() >= (1 << 20)) flush();
   }
   void flush() {
-    if (!buf_.empty() && std::fwrite(buf_.data(), 1, buf_.size(), f_) != buf_.size())
-      throw InputError("cannot write the export (disk full or output closed?)");
+    out_.write(buf_);
     buf_.clear();
   }
 
  private:
-  std::FILE* f_;
+  OutputFile& out_;
   std::string buf_;
 };
 
 class Writer {
  public:
-  Writer(std::FILE* f, ExportFormat format, std::vector<std::string_view> names)
-      : sink_(f), format_(format), names_(std::move(names)) {
+  Writer(OutputFile& out, ExportFormat format, std::vector<std::string_view> names)
+      : sink_(out), format_(format), names_(std::move(names)) {
     if (format_ == ExportFormat::csv)
       append_csv_record(sink_.buf(), names_);
     else
@@ -399,7 +398,7 @@ class Writer {
 }  // namespace
 
 std::uint64_t export_market(store::Database& db, MarketKind what, ExportFormat format,
-                            std::FILE* out) {
+                            OutputFile& out) {
   std::vector<std::string> names;
   for (const auto& c : columns_for(what)) names.push_back(c.name);
   std::vector<std::string_view> views(names.begin(), names.end());

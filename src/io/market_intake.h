@@ -19,13 +19,13 @@
 #pragma once
 
 #include <cstdint>
-#include <cstdio>
 #include <filesystem>
 #include <functional>
 #include <optional>
 #include <string>
 #include <string_view>
 
+#include "core/files.h"
 #include "io/mapping.h"
 #include "store/database.h"
 #include "store/market_data.h"
@@ -61,8 +61,8 @@ ImportSummary import_market(store::Database& db, MarketKind what, const std::fil
                             const ImportOptions& options);
 
 enum class ExportFormat { csv, json };
-// Returns the number of rows written.
+// Writes to `out` without committing it; returns the number of rows written.
 std::uint64_t export_market(store::Database& db, MarketKind what, ExportFormat format,
-                            std::FILE* out);
+                            OutputFile& out);
 
 }  // namespace keel::io

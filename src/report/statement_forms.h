@@ -10,10 +10,10 @@
 //  - Text fits 100 columns for ordinary names and amounts. HTML needs no
 //    network (inline CSS and SVG, no scripts, no links out); every piece of
 //    user text is escaped.
-//  - write_* functions write to a temporary file beside the target and rename
-//    it into place, so a failure leaves no half-written file; they throw
-//    InputError naming the path and the reason. print_pdf() throws InputError
-//    when Chromium is missing (saying how to install it) or fails.
+//  - The writers fill an OutputFile (core/files.h) and commit it, so a failure
+//    leaves no half-written file and never touches the ledger; they throw
+//    InputError naming the option, the path and the reason. print_pdf() throws
+//    InputError when Chromium is missing (saying how to install it) or fails.
 #pragma once
 
 #include <filesystem>
@@ -22,6 +22,7 @@
 #include <string>
 #include <vector>
 
+#include "core/files.h"
 #include "report/cells.h"
 #include "report/statement.h"
 #include "report/table.h"
@@ -46,15 +47,15 @@ std::string statement_text(const Statement& s, bool colour);
 std::string statement_html(const Statement& s);
 nlohmann::ordered_json statement_json(const Statement& s);
 
-void write_text_file(const std::filesystem::path& file, const std::string& content);
 // One CSV file per section, DIR/<key>.csv; DIR is created if missing (its
-// parent must exist).
-void write_statement_csv(const Statement& s, const std::filesystem::path& dir);
-void write_statement_xlsx(const Statement& s, const std::filesystem::path& file);
+// parent must exist). `option` names the folder in messages ("--csv").
+void write_statement_csv(const Statement& s, const std::filesystem::path& dir,
+                         const std::string& option);
+void write_statement_xlsx(const Statement& s, OutputFile& out);
 
 // The first of chromium, chromium-browser on PATH; nullopt when there is none.
 std::optional<std::filesystem::path> find_chromium();
 // Prints an HTML file to PDF with a headless Chromium and a fresh profile.
-void print_pdf(const std::filesystem::path& html, const std::filesystem::path& pdf);
+void print_pdf(const std::filesystem::path& html, OutputFile& pdf);
 
 }  // namespace keel::report

@@ -4,6 +4,7 @@
 #include <xlsxwriter.h>
 
 #include <algorithm>
+#include <cerrno>
 #include <cstdio>
 #include <cstdlib>
 
@@ -48,23 +49,17 @@ Formats make_formats(lxw_workbook* wb) {
   return f;
 }
 
-void check(lxw_error err, const std::filesystem::path& file) {
+void check(lxw_error err, const OutputFile& out) {
   if (err != LXW_NO_ERROR)
-    throw InputError(
-        fmt::format("cannot write '{}': {}", printable(file.string()), lxw_strerror(err)));
+    throw InputError(fmt::format("{} {}: cannot write: {}", out.option(),
+                                 printable(out.target().string()), lxw_strerror(err)));
 }
 
 }  // namespace
 
-void write_statement_xlsx(const Statement& s, const std::filesystem::path& file) {
-  const auto parent = file.has_parent_path() ? file.parent_path() : std::filesystem::path(".");
-  std::error_code ec;
-  if (!std::filesystem::is_directory(parent, ec))
-    throw InputError(fmt::format("cannot write '{}': the folder '{}' does not exist",
-                                 printable(file.string()), printable(parent.string())));
-  const std::string temp = (parent / ("." + file.filename().string() + ".keel-tmp.xlsx")).string();
-  lxw_workbook* wb = workbook_new(temp.c_str());
-  if (!wb) throw InputError(fmt::format("cannot write '{}'", printable(file.string())));
+void write_statement_xlsx(const Statement& s, OutputFile& out) {
+  lxw_workbook* wb = workbook_new(out.path_for_writer().c_str());
+  if (!wb) check(LXW_ERROR_CREATING_XLSX_FILE, out);
   const Formats f = make_formats(wb);
   lxw_doc_properties props{};
   std::string title = fmt::format("keel statement {}: {}", s.year, s.scope);
@@ -73,12 +68,12 @@ void write_statement_xlsx(const Statement& s, const std::filesystem::path& file)
   try {
     for (const auto& sec : statement_sections(s)) {
       lxw_worksheet* ws = workbook_add_worksheet(wb, sec.key.c_str());
-      check(worksheet_write_string(ws, 0, 0, sec.title.c_str(), f.title), file);
+      check(worksheet_write_string(ws, 0, 0, sec.title.c_str(), f.title), out);
       std::vector<double> widths(sec.columns.size(), 10);
       for (std::size_t c = 0; c < sec.columns.size(); ++c) {
         check(worksheet_write_string(ws, 2, static_cast<lxw_col_t>(c),
                                      sec.columns[c].heading.c_str(), f.heading),
-              file);
+              out);
         widths[c] = std::max(widths[c], static_cast<double>(sec.columns[c].heading.size()) + 2);
       }
       lxw_row_t r = 3;
@@ -92,38 +87,38 @@ void write_statement_xlsx(const Statement& s, const std::filesystem::path& file)
             case CellKind::empty:
               break;
             case CellKind::text:
-              check(worksheet_write_string(ws, r, col, cell.text.c_str(), nullptr), file);
+              check(worksheet_write_string(ws, r, col, cell.text.c_str(), nullptr), out);
               if (sec.key != "cautions")
                 widths[c] = std::max(widths[c], static_cast<double>(cell.text.size()) + 2);
               break;
             case CellKind::money:
               check(worksheet_write_number(ws, r, col, cell.number.to_double(),
                                            total ? f.money_total : f.money),
-                    file);
+                    out);
               widths[c] = std::max(widths[c], 14.0);
               break;
             case CellKind::quantity:
-              check(worksheet_write_number(ws, r, col, cell.number.to_double(), nullptr), file);
+              check(worksheet_write_number(ws, r, col, cell.number.to_double(), nullptr), out);
               break;
             case CellKind::percent:
-              check(worksheet_write_number(ws, r, col, cell.ratio, f.percent), file);
+              check(worksheet_write_number(ws, r, col, cell.ratio, f.percent), out);
               break;
             case CellKind::date: {
               lxw_datetime dt{cell.day.year(), cell.day.month(), cell.day.day(), 0, 0, 0};
-              check(worksheet_write_datetime(ws, r, col, &dt, f.date), file);
+              check(worksheet_write_datetime(ws, r, col, &dt, f.date), out);
               widths[c] = std::max(widths[c], 12.0);
               break;
             }
             case CellKind::integer:
               check(worksheet_write_number(ws, r, col, static_cast<double>(cell.whole), nullptr),
-                    file);
+                    out);
               break;
           }
         }
       }
       ++r;
       for (const auto& note : sec.notes)
-        check(worksheet_write_string(ws, r++, 0, note.c_str(), f.note), file);
+        check(worksheet_write_string(ws, r++, 0, note.c_str(), f.note), out);
       for (std::size_t c = 0; c < widths.size(); ++c)
         worksheet_set_column(ws, static_cast<lxw_col_t>(c), static_cast<lxw_col_t>(c),
                              sec.key == "cautions" ? 120 : std::min(widths[c], 48.0), nullptr);
@@ -131,18 +126,17 @@ void write_statement_xlsx(const Statement& s, const std::filesystem::path& file)
     }
   } catch (...) {
     workbook_close(wb);
-    std::remove(temp.c_str());
     throw;
   }
-  const lxw_error err = workbook_close(wb);
-  if (err != LXW_NO_ERROR) {
-    std::remove(temp.c_str());
-    check(err, file);
-  }
-  if (std::rename(temp.c_str(), file.c_str()) != 0) {
-    std::remove(temp.c_str());
-    throw InputError(fmt::format("cannot write '{}'", printable(file.string())));
-  }
+  // The workbook is written here; libxlsxwriter's own text for a failed
+  // write ("file operation") does not say why, the system's error does.
+  errno = 0;
+  const lxw_error closed = workbook_close(wb);
+  if (closed != LXW_NO_ERROR && errno != 0)
+    throw InputError(fmt::format("{} {}: cannot write: {}", out.option(),
+                                 printable(out.target().string()), os_error_text(errno)));
+  check(closed, out);
+  out.commit();
 }
 
 }  // namespace keel::report

@@ -9,6 +9,7 @@
 
 #include "core/error.h"
 #include "store/ledger_store.h"
+#include "store/sqlite_error.h"
 
 namespace keel::store {
 namespace {
@@ -18,8 +19,9 @@ namespace {
 class Stmt {
  public:
   Stmt(sqlite3* db, const char* sql) : db_(db) {
-    if (sqlite3_prepare_v3(db, sql, -1, SQLITE_PREPARE_PERSISTENT, &st_, nullptr) != SQLITE_OK)
-      throw std::runtime_error(fmt::format("prepare failed: {}: {}", sqlite3_errmsg(db), sql));
+    if (const int rc = sqlite3_prepare_v3(db, sql, -1, SQLITE_PREPARE_PERSISTENT, &st_, nullptr);
+        rc != SQLITE_OK)
+      throw_sqlite_error(db, rc);
   }
   ~Stmt() { sqlite3_finalize(st_); }
   Stmt(const Stmt&) = delete;
@@ -72,9 +74,7 @@ class Stmt {
   bool null(int col) { return sqlite3_column_type(st_, col) == SQLITE_NULL; }
 
  private:
-  [[noreturn]] void fail(int rc) {
-    throw std::runtime_error(fmt::format("ledger write failed ({}): {}", rc, sqlite3_errmsg(db_)));
-  }
+  [[noreturn]] void fail(int rc) { throw_sqlite_error(db_, rc); }
   sqlite3* db_;
   sqlite3_stmt* st_ = nullptr;
 };
@@ -191,12 +191,13 @@ struct MarketWriter::Impl {
   static const char* make_seen_table(sqlite3* h) {
     // Keys of this import that fall where the ledger already had rows: only
     // there can a repeated key be either a re-import or a duplicate line.
-    if (sqlite3_exec(h,
-                     "CREATE TEMP TABLE IF NOT EXISTS intake_seen (kind INTEGER, security_id "
-                     "INTEGER, k TEXT, PRIMARY KEY (kind, security_id, k)) WITHOUT ROWID;"
-                     "DELETE FROM temp.intake_seen",
-                     nullptr, nullptr, nullptr) != SQLITE_OK)
-      throw std::runtime_error(sqlite3_errmsg(h));
+    if (const int rc = sqlite3_exec(h,
+                                    "CREATE TEMP TABLE IF NOT EXISTS intake_seen (kind INTEGER, "
+                                    "security_id INTEGER, k TEXT, PRIMARY KEY (kind, security_id, "
+                                    "k)) WITHOUT ROWID; DELETE FROM temp.intake_seen",
+                                    nullptr, nullptr, nullptr);
+        rc != SQLITE_OK)
+      throw_sqlite_error(h, rc);
     return "INSERT INTO temp.intake_seen (kind, security_id, k) VALUES (?, ?, ?) "
            "ON CONFLICT DO NOTHING";
   }

@@ -1,12 +1,13 @@
 #include "store/prices.h"
 
-#include <SQLiteCpp/Exception.h>
 #include <SQLiteCpp/Statement.h>
 #include <sqlite3.h>
 
 #include <algorithm>
 #include <memory>
 #include <string_view>
+
+#include "store/sqlite_error.h"
 
 namespace keel::store {
 namespace {
@@ -42,15 +43,17 @@ PriceBook PriceBook::load(Database& db) {
   // Through the raw handle: text columns are parsed in place, not copied.
   sqlite3* h = db.sql().getHandle();
   sqlite3_stmt* raw = nullptr;
-  if (sqlite3_prepare_v2(h, "SELECT security_id, date, close FROM price ORDER BY security_id, date",
-                         -1, &raw, nullptr) != SQLITE_OK)
-    throw SQLite::Exception(h);
+  if (const int rc = sqlite3_prepare_v2(
+          h, "SELECT security_id, date, close FROM price ORDER BY security_id, date", -1, &raw,
+          nullptr);
+      rc != SQLITE_OK)
+    throw_sqlite_error(h, rc);
   const std::unique_ptr<sqlite3_stmt, int (*)(sqlite3_stmt*)> owner(raw, sqlite3_finalize);
   int rc = SQLITE_OK;
   while ((rc = sqlite3_step(raw)) == SQLITE_ROW)
     book.add(sqlite3_column_int64(raw, 0), Date::parse(column_text(raw, 1)),
              Decimal::parse(column_text(raw, 2)));
-  if (rc != SQLITE_DONE) throw SQLite::Exception(h, rc);
+  if (rc != SQLITE_DONE) throw_sqlite_error(h, rc);
   return book;
 }
 

@@ -9,35 +9,15 @@ extreme numbers and dates are exact or refused clearly.
 Set KEEL_SHOW=1 to print what each row produced instead of stopping at the first
 difference.
 """
-import hashlib
 import os
 import sqlite3
 import sys
 
 sys.path.insert(0, os.path.dirname(__file__))
-from keel_cli import Ledger, check, equal  # noqa: E402
+from keel_cli import Ledger, check, equal, ledger_digest  # noqa: E402
 
 SHOW = os.environ.get("KEEL_SHOW") == "1"
 INPUT, USAGE, LEDGER = 1, 2, 3
-
-
-def ledger_digest(path):
-    """SHA-256 over the schema version, every table's definition and all its rows, ordered."""
-    con = sqlite3.connect(f"file:{path}?mode=ro", uri=True)
-    try:
-        h = hashlib.sha256()
-        h.update(repr(con.execute("PRAGMA user_version").fetchone()).encode())
-        tables = con.execute("SELECT name, sql FROM sqlite_master WHERE type = 'table' "
-                             "ORDER BY name").fetchall()
-        for name, sql in tables:
-            h.update(repr((name, sql)).encode())
-            cols = [r[1] for r in con.execute(f'PRAGMA table_info("{name}")')]
-            order = ", ".join(f'"{c}"' for c in cols)
-            for row in con.execute(f'SELECT * FROM "{name}" ORDER BY {order}'):
-                h.update(repr(row).encode())
-        return h.hexdigest(), len(tables)
-    finally:
-        con.close()
 
 
 led = Ledger()
@@ -426,6 +406,16 @@ con.close()
 text_file = path("plain.txt")
 with open(text_file, "w") as f:
     f.write("this is not a database\n" * 200)
+empty_file = path("empty.db")  # 0 bytes: once taken for a new, empty ledger
+open(empty_file, "w").close()
+os.chmod(empty_file, 0o600)
+empty_db = path("nothing.db")  # an SQLite database without a single table
+con = sqlite3.connect(empty_db)
+con.execute("PRAGMA user_version = 0")
+con.close()
+os.chmod(empty_db, 0o600)
+EMPTY = (f"keel: error: {empty_file} is an empty file, not a keel ledger; only 'keel init' makes "
+         "a ledger; choose another with --db")
 DB_ROWS = [
     ("--db: an SQLite file that is not a ledger", other, ["holdings"], LEDGER,
      f"keel: error: {other} is an SQLite database but not a keel ledger; choose another with --db"),
@@ -434,19 +424,32 @@ DB_ROWS = [
     ("--db: a text file", text_file, ["account", "list"], LEDGER,
      f"keel: error: cannot open ledger {text_file}: file is not a database"),
     ("--db: a folder", D, ["account", "list"], LEDGER,
-     f"keel: error: cannot open ledger {D}: unable to open database file"),
+     f"keel: error: cannot open ledger {D}: it is a folder"),
+    ("--db: an empty file, verify", empty_file, ["verify"], LEDGER, EMPTY),
+    ("--db: an empty file, a report", empty_file, ["holdings"], LEDGER, EMPTY),
+    ("--db: an empty file, a change", empty_file,
+     ["account", "add", "Quill Savings"], LEDGER, EMPTY),
+    ("--db: an empty file, an import", empty_file, ["import", "accounts", "{d}/none.csv"], LEDGER,
+     EMPTY),
+    ("--db: an empty file, a backup", empty_file, ["backup", "{d}/copy.db"], LEDGER, EMPTY),
+    ("--db: an SQLite file without tables", empty_db, ["verify"], LEDGER,
+     f"keel: error: {empty_db} is an empty database, not a keel ledger; only 'keel init' makes a "
+     "ledger; choose another with --db"),
     ("--db: a ledger that does not exist", path("none.db"), ["holdings"], LEDGER,
      f"keel: error: no ledger at {path('none.db')}; create one with 'keel init' or choose another "
      "with --db"),
 ]
 for name, db, args, code, message in DB_ROWS:
-    snapshot = {p: open(p, "rb").read() for p in (other, text_file)}
+    snapshot = {p: open(p, "rb").read() for p in (other, text_file, empty_file, empty_db)}
     run_row(name, args, code, message, {}, db=db)
     for p, content in snapshot.items():
         if open(p, "rb").read() != content:
             print(f"FAIL {name}: {p} was changed")
             failures.append(name + " (file changed)")
 check(not os.path.exists(path("none.db")), "a ledger was created without 'keel init'")
+check(not os.path.exists(path("copy.db")), "a backup was made of an empty file")
+for companion in ("-wal", "-shm", "-journal"):
+    check(not os.path.exists(empty_file + companion), f"an empty file got a {companion}")
 
 total = len(ROWS) + len(DB_ROWS)
 print(f"{total} malformed inputs checked, {len(failures)} failed")

@@ -408,7 +408,7 @@ TEST_CASE("statement forms: CSV writes one file per section and refuses a missin
   const auto dir =
       std::filesystem::temp_directory_path() / ("keel-csv-" + std::to_string(::getpid()));
   std::filesystem::remove_all(dir);
-  report::write_statement_csv(s, dir);
+  report::write_statement_csv(s, dir, "--csv");
   for (const char* key :
        {"summary", "performance", "monthly", "holdings", "realized", "income", "cautions"})
     CHECK(std::filesystem::exists(dir / (std::string(key) + ".csv")));
@@ -419,6 +419,6 @@ TEST_CASE("statement forms: CSV writes one file per section and refuses a missin
   CHECK(header == "item,amount\r");
   CHECK(first == "opening value (close of 2024-12-31),10495\r");
   std::filesystem::remove_all(dir);
-  CHECK_THROWS_WITH_AS(report::write_statement_csv(s, dir / "a" / "b"),
+  CHECK_THROWS_WITH_AS(report::write_statement_csv(s, dir / "a" / "b", "--csv"),
                        doctest::Contains("cannot create the folder"), InputError);
 }
