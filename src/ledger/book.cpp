@@ -3,6 +3,7 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <stdexcept>
 
 #include "core/error.h"
 #include "core/text.h"
@@ -24,16 +25,53 @@ Decimal Position::cost() const {
 std::vector<Decimal> allocate(const Decimal& total, const std::vector<Decimal>& weights,
                               int places) {
   std::vector<Decimal> parts(weights.size());
-  if (weights.empty()) return parts;
   Decimal weight_sum;
-  for (const auto& w : weights) weight_sum += w;
-  Decimal assigned;
-  for (std::size_t i = 0; i + 1 < weights.size(); ++i) {
-    parts[i] = Decimal::divide(total * weights[i], weight_sum, places);
-    assigned += parts[i];
+  for (const auto& w : weights) {
+    if (w.is_negative()) throw std::invalid_argument("allocate: a weight is negative");
+    weight_sum += w;
   }
-  parts.back() = total - assigned;
+  if (weights.empty()) return parts;
+  if (!weight_sum.is_positive()) throw std::invalid_argument("allocate: the weights are all zero");
+
+  // Work on the magnitude; every part takes the sign of the total.
+  const Decimal magnitude = total.abs();
+  const Decimal on_grid = magnitude.truncated(places);  // whole units of 10^-places
+  const Decimal below_grid = magnitude - on_grid;       // less than one unit
+  const Decimal unit = Decimal::parse(fmt::format("1e-{}", places));
+  // Quotas on_grid * w / W, floored to the grid; what each quota loses to the
+  // floor, times W, ranks the parts for the units left over (exact, no division).
+  std::vector<Decimal> remainder(weights.size());
+  Decimal assigned;
+  for (std::size_t i = 0; i < weights.size(); ++i) {
+    const Decimal quota_times_w = on_grid * weights[i];
+    Decimal floor = Decimal::divide(quota_times_w, weight_sum, places);
+    if (floor * weight_sum > quota_times_w) floor -= unit;
+    parts[i] = floor;
+    remainder[i] = quota_times_w - floor * weight_sum;
+    assigned += floor;
+  }
+  std::vector<std::size_t> order(weights.size());
+  for (std::size_t i = 0; i < order.size(); ++i) order[i] = i;
+  std::stable_sort(order.begin(), order.end(),
+                   [&](std::size_t a, std::size_t b) { return remainder[a] > remainder[b]; });
+  // Fewer units are left than parts with a nonzero remainder, so a part of
+  // weight zero never gets one and no part passes the total.
+  for (std::size_t k = 0; assigned < on_grid && k < order.size(); ++k) {
+    parts[order[k]] += unit;
+    assigned += unit;
+  }
+  // What lies below the grid stays with the last part that has weight.
+  std::size_t last = weights.size() - 1;
+  while (weights[last].is_zero()) --last;
+  parts[last] += below_grid;
+  if (total.is_negative())
+    for (auto& p : parts) p = -p;
   return parts;
+}
+
+Decimal cost_share(const Decimal& cost, const Decimal& taken, const Decimal& held) {
+  if (taken == held) return cost;
+  return allocate(cost, {taken, held - taken}, kCostPlaces).front();
 }
 
 Book::Book(const std::vector<Account>& accounts,
@@ -74,8 +112,6 @@ void Book::apply_split(const Split& split) {
   for (auto& [id, lots] : in_transit_)
     for (auto& lot : lots) lot.quantity *= split.ratio;
 }
-
-namespace {}  // namespace
 
 std::string Book::describe(const Transaction& t) const {
   const std::string where = fmt::format("{} on {} in '{}'", to_string(t.kind), t.date.str(),
@@ -122,7 +158,7 @@ Lot cut(Lot& lot, const Decimal& quantity) {
     lot.cost = Decimal();
     return part;
   }
-  part.cost = Decimal::divide(lot.cost * quantity, lot.quantity, kCostPlaces);
+  part.cost = cost_share(lot.cost, quantity, lot.quantity);
   lot.quantity -= quantity;
   lot.cost -= part.cost;
   return part;
@@ -187,7 +223,7 @@ std::vector<Lot> Book::take_lots(const Transaction& txn, const Account& account,
   if (account.basis == BasisMethod::average) {
     // Average cost: the units leave at the pooled average, and what stays is
     // re-pooled so every open lot carries the same unit cost.
-    const Decimal taken_cost = Decimal::divide(cost_before * wanted, held, kCostPlaces);
+    const Decimal taken_cost = cost_share(cost_before, wanted, held);
     std::vector<Decimal> taken_qty, open_qty;
     for (const auto& l : taken) taken_qty.push_back(l.quantity);
     for (const auto& l : position.lots) open_qty.push_back(l.quantity);

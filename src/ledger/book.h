@@ -13,9 +13,11 @@
 //
 // Lots: every buy (and every security transfer in from outside) opens a lot
 // whose id is that transaction's id and whose cost includes the fee. Closing
-// part of a lot splits its cost in proportion to quantity, rounded half-to-even
-// to the cent (kCostPlaces); the remainder stays with the open part, so total
-// cost is conserved exactly. Splits multiply quantities and keep total cost.
+// part of a lot splits its cost by quantity with allocate() (largest
+// remainder, to the cent: kCostPlaces), so neither part is ever negative or
+// above the lot's cost and total cost is conserved exactly. A sell's proceeds
+// (net of its fee) are shared among the lots it closes the same way. Splits
+// multiply quantities and keep total cost.
 //
 // Transfers of units are recorded as MovedCost entries: the cost basis that
 // left an account (transfer out) or arrived in one (transfer in: the carried
@@ -120,11 +122,19 @@ class Book {
   std::string describe(const Transaction& txn) const;
 };
 
-// Splits `total` into parts proportional to `weights`, each rounded
-// half-to-even to `places`, the last part taking the remainder so the parts
-// add up to `total` exactly.
+// Splits `total` into parts proportional to `weights` (none negative, not all
+// zero) by the largest-remainder method: each part's exact quota is floored to
+// `places` digits, the units of 10^-places still missing go one each to the
+// parts whose quotas lost most to the floor (ties: the earlier part), and a
+// rest below one unit (when `total` has more digits than `places`) goes to
+// the last part with weight. Every part lies between zero and `total`, has
+// its sign, and the parts add up to `total` exactly. Throws
+// std::invalid_argument on a negative weight or all-zero weights.
 std::vector<Decimal> allocate(const Decimal& total, const std::vector<Decimal>& weights,
                               int places);
+// The share of a lot's `cost` that goes with `taken` of its `held` units:
+// allocate(cost, {taken, held - taken}, kCostPlaces), all of it when every unit goes.
+Decimal cost_share(const Decimal& cost, const Decimal& taken, const Decimal& held);
 
 struct LedgerLog {
   std::vector<Account> accounts;

@@ -6,7 +6,10 @@
 //  3. an independent recount: each account's cash and each position's units
 //     summed straight from the raw rows (splits applied by date), compared
 //     with what the lot engine holds. keel stores nothing derived, so this
-//     cross-checks the engine itself.
+//     cross-checks the engine itself;
+//  4. signs (check_signs): no open lot and no realized part may carry a cost
+//     below zero, nor a part proceeds below zero unless the whole sale's
+//     net proceeds are (a fee above the gross: a warning, not a problem).
 // Problems make the ledger suspect; warnings are facts worth a look.
 #pragma once
 
@@ -14,6 +17,8 @@
 #include <string>
 #include <vector>
 
+#include "ledger/book.h"
+#include "ledger/holdings.h"
 #include "store/database.h"
 
 namespace keel::ledger {
@@ -27,5 +32,11 @@ struct VerifyReport {
 };
 
 VerifyReport verify(store::Database& db);
+
+struct Findings {
+  std::vector<std::string> problems;
+  std::vector<std::string> warnings;
+};
+Findings check_signs(const std::vector<RealizedPart>& realized, const std::vector<LotLine>& open);
 
 }  // namespace keel::ledger

@@ -71,6 +71,19 @@ struct LedgerFixture {
                     std::vector<LotPick> lots = {}) {
     return trade(TxnKind::sell, date, account, symbol, quantity, price, fee, std::move(lots));
   }
+  // Account "Main" holding ALFA after a deposit of `cash` on 2024-01-02.
+  void main_with_alfa(const char* cash, BasisMethod basis = BasisMethod::fifo) {
+    account("Main", basis);
+    security("ALFA");
+    this->cash(TxnKind::deposit, "2024-01-02", "Main", cash);
+  }
+  // One unit of ALFA bought for 0.0151, then 0.999 of it sold at 0.02: a lot
+  // whose cost has digits below the cent, cut nearly whole.
+  void sub_cent_lot(BasisMethod basis = BasisMethod::fifo) {
+    main_with_alfa("1", basis);
+    buy("2024-01-03", "Main", "ALFA", "1", "0.0151");
+    sell("2024-02-01", "Main", "ALFA", "0.999", "0.02");
+  }
   Book book() { return ledger::check_ledger(db); }
   std::string dump() { return store::content_dump(db); }
   std::vector<ledger::GainLine> gains() { return ledger::realized_gains(db, std::nullopt); }
