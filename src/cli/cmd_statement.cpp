@@ -67,7 +67,9 @@ void add_statement(CLI::App& app, Context& ctx) {
   add_json_flag(*cmd, o->json);
   cmd->callback([&ctx, o] {
     report::StatementRequest request;
-    request.year = whole_number(o->year, "--year", 1, 9999, "a calendar year (1 to 9999)");
+    request.year =
+        whole_number(o->year, "--year", report::kFirstStatementYear, report::kLastStatementYear,
+                     fmt::format("a year a statement covers ({})", report::statement_years()));
     request.account = text_option(o->account);
     request.benchmark = text_option(o->benchmark);
     if (!o->long_term_days.empty())

@@ -147,9 +147,15 @@ std::vector<std::string> statement_cautions() {
   };
 }
 
+std::string statement_years() {
+  return fmt::format("{} to {}; it looks back {} years", kFirstStatementYear, kLastStatementYear,
+                     kFirstStatementYear - 1);
+}
+
 Statement build_statement(store::Database& db, const StatementRequest& request) {
-  if (request.year < 1 || request.year > 9999)
-    throw InputError(fmt::format("--year: {} is not a calendar year", request.year));
+  if (request.year < kFirstStatementYear || request.year > kLastStatementYear)
+    throw InputError(fmt::format("--year: {} is outside the years a statement covers ({})",
+                                 request.year, statement_years()));
   if (request.long_term_days && *request.long_term_days < 1)
     throw InputError(fmt::format("--long-term-days: {} is not a number of days; give 1 or more",
                                  *request.long_term_days));
@@ -222,7 +228,7 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
     return line;
   };
   s.performance.push_back(measured("since inception", s.inception));
-  for (const int n : {3, 5}) {
+  for (const int n : kTrailingYears) {
     const Date from = s.to.plus_years(-n).plus_days(1);
     if (from < s.inception) {
       PerformanceLine line;

@@ -353,6 +353,11 @@ row("gains: --year out of range", ["gains", "--year", "10000"], INPUT,
     "keel: error: --year: '10000' is not a calendar year (1 to 9999)")
 row("gains: negative --year", ["gains", "--year", "-5"], INPUT,
     "keel: error: --year: '-5' is not a calendar year (1 to 9999)")
+row("statement: year before the trailing five years fit", ["statement", "--year", "4"], INPUT,
+    "keel: error: --year: '4' is not a year a statement covers (6 to 9999; it looks back 5 years)")
+row("statement: year 10000", ["statement", "--year", "10000"], INPUT,
+    "keel: error: --year: '10000' is not a year a statement covers (6 to 9999; it looks back 5 "
+    "years)")
 row("returns: --from after --to", ["returns", "--from", "2024-03-01", "--to", "2024-02-01"], INPUT,
     "keel: error: --from 2024-03-01 is after --to 2024-02-01")
 row("returns: --year and --period together", ["returns", "--year", "2024", "--period", "1y"], INPUT,
