@@ -139,7 +139,7 @@ void import_rows(MarketKind what, Run& r, const ImportOptions& options, CsvReade
         std::string_view name;
         if (t.text(2, name)) {
           try {
-            check_name("metric name", name, 60);
+            check_identifier("metric name", name, 60);
           } catch (const InputError& e) {
             t.error(2, e.what());
             ok = false;
@@ -226,13 +226,13 @@ void import_rows(MarketKind what, Run& r, const ImportOptions& options, CsvReade
         };
         if (t.text(0, text)) {
           s.symbol = text;
-          field(0, [&] { check_name("symbol", s.symbol, 40); });
+          field(0, [&] { check_identifier("symbol", s.symbol, 40); });
         } else {
           ok = false;
         }
         if (t.text(1, text)) {
           s.name = text;
-          field(1, [&] { check_name("name", s.name, 200); });
+          field(1, [&] { check_identifier("name", s.name, 200); });
         } else {
           ok = false;
         }
@@ -252,7 +252,7 @@ void import_rows(MarketKind what, Run& r, const ImportOptions& options, CsvReade
         }
         if (t.has(5)) {
           s.sector = std::string(t.raw(5));
-          field(5, [&] { check_name("sector", *s.sector, 100); });
+          field(5, [&] { check_identifier("sector", *s.sector, 100); });
         }
         if (ok)
           r.count(

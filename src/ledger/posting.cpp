@@ -36,7 +36,7 @@ void check_shape(const PostRequest& r) {
   forbid(r.to_account && r.kind != TxnKind::transfer_out, kind, "to-account");
   forbid(r.acquired && r.kind != TxnKind::transfer_in, kind, "acquired");
   if (r.note) check_name("note", *r.note, 4000);
-  if (r.ref) check_name("ref", *r.ref, 200);
+  if (r.ref) check_identifier("ref", *r.ref, 200);
 
   if (is_cash_kind(r.kind)) {
     require_positive(r.amount, kind, "amount");

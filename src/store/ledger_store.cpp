@@ -106,7 +106,7 @@ std::string utc_timestamp() {
 }
 
 std::int64_t insert_account(Database& db, const Account& a) {
-  check_name("account name", a.name, 200);
+  check_identifier("account name", a.name, 200);
   SQLite::Statement st(db.sql(),
                        "INSERT INTO account (name, currency, basis_method, allow_negative_cash, "
                        "created_at) VALUES (?, ?, ?, ?, ?)");

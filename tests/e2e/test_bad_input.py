@@ -336,6 +336,23 @@ row("security add: duplicate symbol",
 row("security add: lot size not a number",
     ["security", "add", "ZRN", "--name", "Zornet", "--kind", "stock", "--lot-size", "one"], INPUT,
     "keel: error: --lot-size: 'one' is not a decimal number: expected digits")
+INVISIBLE = ", an invisible character; names may not contain invisible or direction-changing " \
+    "characters"
+row("security add: zero-width space after a symbol", ["security", "add", "QRX\u200b", "--name",
+    "Quarix look-alike", "--kind", "stock"], INPUT,
+    "keel: error: symbol 'QRX<U+200B>' contains U+200B ZERO WIDTH SPACE" + INVISIBLE)
+row("security add: right-to-left override in a symbol", ["security", "add", "QRX\u202e", "--name",
+    "Quarix look-alike", "--kind", "stock"], INPUT,
+    "keel: error: symbol 'QRX<U+202E>' contains U+202E RIGHT-TO-LEFT OVERRIDE" + INVISIBLE)
+row("security add: space at the end of a symbol", ["security", "add", "QRX ", "--name",
+    "Quarix look-alike", "--kind", "stock"], INPUT,
+    "keel: error: symbol 'QRX ' ends with white space (U+0020 SPACE); names may not start or end "
+    "with it")
+row("account add: left-to-right isolate in a name", ["account", "add", "Cedar\u2066"], INPUT,
+    "keel: error: account name 'Cedar<U+2066>' contains U+2066 LEFT-TO-RIGHT ISOLATE" + INVISIBLE)
+import_row("transactions: word joiner in a ref", "transactions",
+           TX + f"2024-03-01,{T},deposit,,,,5,,r\u20601,\n", INPUT,
+           refused("{f}:2: ref 'r<U+2060>1' contains U+2060 WORD JOINER" + INVISIBLE))
 row("security add: symbol with a newline",
     ["security", "add", "ZR\nN", "--name", "Zornet", "--kind", "stock"], INPUT,
     "keel: error: symbol 'ZR\\x0aN' contains a control character")
@@ -483,3 +500,30 @@ equal([c["amount"] for c in held["cash"]], ["123456789012345678901234567889.9999
 exported = h.ok("export", "accounts")
 check(f'"{odd.replace(chr(34), chr(34) * 2)}"' in exported, f"account name quoted in CSV: {exported}")
 print("hostile text and extreme values stored exactly")
+
+# --- every invisible format character is refused in names, named as Python's unicodedata names it
+import unicodedata  # noqa: E402
+
+formats = [cp for cp in range(0x110000) if unicodedata.category(chr(cp)) in ("Cf", "Zl", "Zp")]
+v = Ledger()
+checked = 0
+for start in range(0, len(formats), 50):
+    chunk = formats[start:start + 50]
+    sec_file = os.path.join(v.dir.name, f"invisible-{start}.csv")
+    with open(sec_file, "w", encoding="utf-8", newline="") as f:
+        f.write("symbol,name,kind,currency\n")
+        for cp in chunk:
+            f.write(f"Z{chr(cp)}Q,Invisible test,stock,USD\n")
+    code, out, err = v.run("import", "securities", sec_file)
+    lines = err.splitlines()
+    equal(code, INPUT, f"import of {len(chunk)} symbols with invisible characters")
+    equal(len(lines), len(chunk) + 1, "one refusal per invisible character, then the summary")
+    for line, cp in zip(lines, chunk):
+        want = (f"{sec_file}:{chunk.index(cp) + 2}: column 'symbol': symbol 'Z<U+{cp:04X}>Q' "
+                f"contains U+{cp:04X} {unicodedata.name(chr(cp))}" + INVISIBLE)
+        equal(line, want, f"U+{cp:04X}")
+        checked += 1
+check(checked >= 150, f"only {checked} format characters checked")
+equal(v.json("security", "list"), [], "no symbol with an invisible character was added")
+print(f"{checked} invisible characters refused (Unicode {unicodedata.unidata_version} as Python "
+      f"knows it), each named as unicodedata names it")
