@@ -16,6 +16,7 @@
 #include "cli/print.h"
 #include "core/error.h"
 #include "core/text.h"
+#include "io/json.h"
 #include "report/table.h"
 #include "rules/rule.h"
 
@@ -257,7 +258,7 @@ void add_backtest(CLI::App& app, Context& ctx) {
     auto db = ctx.open_ledger();
     const auto result = backtest::run(db, rule, req);
     if (!o->curve.empty()) write_curve(o->curve, result);
-    out(o->json ? result_json(result).dump(2) + "\n" : result_text(result, ctx.colour()));
+    out(o->json ? io::dump_json(result_json(result)) + "\n" : result_text(result, ctx.colour()));
   });
 }
 
@@ -330,7 +331,7 @@ void add_signal(CLI::App& app, Context& ctx) {
       }
       j["notes"] = r.notes;
       j["cautions"] = r.cautions;
-      out(j.dump(2) + "\n");
+      out(io::dump_json(j) + "\n");
       return;
     }
     std::string s = fmt::format("Signal check of rule '{}' from {} to {}\n", printable(r.rule_name),

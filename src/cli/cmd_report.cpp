@@ -9,6 +9,7 @@
 #include "cli/options.h"
 #include "cli/print.h"
 #include "core/error.h"
+#include "io/json.h"
 #include "ledger/holdings.h"
 #include "ledger/posting.h"
 #include "report/gain_rows.h"
@@ -23,7 +24,7 @@ using report::Align;
 using report::Table;
 
 void print_json(const Json& j) {
-  out(j.dump(2) + "\n");
+  out(io::dump_json(j) + "\n");
 }
 std::string percent(const Decimal& part, const Decimal& whole) {
   if (whole.is_zero()) return "";

@@ -11,6 +11,7 @@
 #include "cli/options.h"
 #include "core/error.h"
 #include "core/text.h"
+#include "io/json.h"
 #include "report/statement.h"
 #include "report/statement_forms.h"
 
@@ -87,7 +88,7 @@ void add_statement(CLI::App& app, Context& ctx) {
     auto db = ctx.open_ledger();
     const report::Statement s = report::build_statement(db, request);
     if (o->json) {
-      out(report::statement_json(s).dump(2) + "\n");
+      out(io::dump_json(report::statement_json(s)) + "\n");
     } else if (o->html.empty() && o->pdf.empty() && o->xlsx.empty() && o->csv.empty()) {
       out(report::statement_text(s, ctx.colour()));
     }

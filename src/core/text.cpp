@@ -115,8 +115,10 @@ void each_code_point(std::string_view s, F&& f) {
   }
 }
 
-// The text with each invisible character written as <U+XXXX>, for messages.
-std::string shown_with_invisibles(std::string_view s) {
+}  // namespace
+
+std::string mark_invisible(std::string_view s) {
+  if (!valid_utf8(s)) return printable(s);
   std::string out;
   each_code_point(s, [&](UChar32 c, std::size_t at, std::size_t n) {
     out += invisible(c) ? fmt::format("<U+{:04X}>", static_cast<unsigned>(c))
@@ -125,8 +127,6 @@ std::string shown_with_invisibles(std::string_view s) {
   });
   return out;
 }
-
-}  // namespace
 
 std::optional<std::string> invisible_code_point(std::string_view text) {
   if (!valid_utf8(text)) return std::nullopt;
@@ -144,7 +144,7 @@ void check_identifier(std::string_view field, std::string_view value, std::size_
     throw InputError(fmt::format(
         "{} '{}' contains {}, an invisible character; names may not contain invisible or "
         "direction-changing characters",
-        field, shown_with_invisibles(value), *which));
+        field, mark_invisible(value), *which));
   UChar32 first = -1, last = -1;
   each_code_point(value, [&](UChar32 c, std::size_t, std::size_t) {
     if (first < 0) first = c;

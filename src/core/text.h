@@ -13,6 +13,8 @@
 //    ("U+202E RIGHT-TO-LEFT OVERRIDE"). For names, symbols and references.
 //  - invisible_code_point(): the first such invisible character, described
 //    as above; unset if there is none (or the text is not valid UTF-8).
+//  - mark_invisible(): printable(), with each such invisible character
+//    written as <U+XXXX>, for messages about them.
 //  - to_valid_utf8(): the text with every ill-formed UTF-8 sequence replaced
 //    by U+FFFD REPLACEMENT CHARACTER (one per maximal subpart, as the Unicode
 //    Standard's chapter 3 recommends); valid text comes back unchanged.
@@ -30,6 +32,7 @@ bool valid_utf8(std::string_view text);
 void check_name(std::string_view field, std::string_view value, std::size_t max_bytes);
 void check_identifier(std::string_view field, std::string_view value, std::size_t max_bytes);
 std::optional<std::string> invisible_code_point(std::string_view text);
+std::string mark_invisible(std::string_view text);
 std::string to_valid_utf8(std::string_view text);
 // Lower-cases ASCII letters only.
 std::string ascii_lower(std::string_view text);

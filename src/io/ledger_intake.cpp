@@ -12,6 +12,7 @@
 #include "core/text.h"
 #include "io/csv.h"
 #include "io/errors.h"
+#include "io/json.h"
 #include "io/sha256.h"
 #include "io/table.h"
 #include "ledger/posting.h"
@@ -333,7 +334,7 @@ void write_rows(ExportFormat format, const std::vector<std::string>& header,
         if (!row[i].empty()) object[header[i]] = row[i];
       array.push_back(std::move(object));
     }
-    text = array.dump(2) + "\n";
+    text = dump_json(array) + "\n";
   }
   std::fwrite(text.data(), 1, text.size(), out);
 }

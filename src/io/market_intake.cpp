@@ -8,6 +8,7 @@
 #include "core/text.h"
 #include "io/csv.h"
 #include "io/errors.h"
+#include "io/json.h"
 #include "io/table.h"
 #include "store/ledger_store.h"
 
@@ -379,7 +380,7 @@ class Writer {
           o[std::string(names_[i])] = std::string(values[i]);
       }
       sink_.buf() += rows_ == 1 ? "\n" : ",\n";
-      sink_.buf() += o.dump();
+      sink_.buf() += dump_json(o, -1);
     }
     sink_.maybe_flush();
   }

@@ -10,7 +10,11 @@
 //  4. signs (check_signs): no open lot and no realized part may carry a cost
 //     below zero, nor a part proceeds below zero unless the whole sale's
 //     net proceeds are (a fee above the gross: a warning, not a problem).
-// Problems make the ledger suspect; warnings are facts worth a look.
+//  5. text: cells that are not valid UTF-8, and names, symbols and references
+//     holding invisible characters (store::text_problems, name_warnings).
+// Problems make the ledger suspect; warnings are facts worth a look (text
+// problems are warnings: every figure is still sound, and reports replace
+// ill-formed bytes with U+FFFD in JSON and show them escaped on terminals).
 #pragma once
 
 #include <cstddef>

@@ -9,6 +9,12 @@
 //  - data_warnings(): facts worth a person's look that the schema cannot
 //    forbid: metrics known before their period ends, transactions in a
 //    security dated before its first close.
+//  - text_problems(): every text cell of every table that is not valid UTF-8
+//    (keel never writes one; it comes from outside), naming the table, the
+//    row by its key and the column, with the bytes shown escaped.
+//  - name_warnings(): names, symbols, sectors, metric names and references
+//    stored with an invisible character (as check_identifier refuses today),
+//    naming it.
 #pragma once
 
 #include <filesystem>
@@ -22,6 +28,8 @@ namespace keel::store {
 std::vector<std::string> sqlite_problems(Database& db);
 void backup_to(Database& db, const std::filesystem::path& target);
 std::vector<std::string> data_warnings(Database& db);
+std::vector<std::string> text_problems(Database& db);
+std::vector<std::string> name_warnings(Database& db);
 
 // Opens `path` read-only without migrating; for checking a backup before
 // trusting it. Throws LedgerError if it is not a keel ledger this program can read.

@@ -57,3 +57,34 @@ TEST_CASE("regression: verify passed a ledger whose rounding left a lot's cost a
   CHECK(report.ok());
   CHECK(report.warnings.empty());
 }
+
+TEST_CASE("regression: text that is not UTF-8 passed verify without a word") {
+  LedgerFixture f;
+  f.main_with_alfa("100");
+  // Written from outside keel, as another program or an old version could.
+  f.db.sql().exec(
+      "INSERT INTO txn (account_id, date, kind, amount, fee, note, recorded_at) VALUES (1, "
+      "'2024-01-05', 'deposit', '3', '0', CAST(X'636166E9' AS TEXT), 'x')");
+  f.db.sql().exec(
+      "INSERT INTO price (security_id, date, close) VALUES (1, '2024-01-05', "
+      "CAST(X'31FF' AS TEXT))");
+  const auto report = ledger::verify(f.db);
+  CHECK(report.ok());
+  CHECK(report.warnings ==
+        std::vector<std::string>{
+            "table price, row security_id 1, date 2024-01-05, column close: '1\\xff' is not "
+            "valid UTF-8",
+            "table txn, row id 2, column note: 'caf\\xe9' is not valid UTF-8"});
+}
+
+TEST_CASE("verify: a stored name with an invisible character is a warning naming it") {
+  LedgerFixture f;
+  f.account("Main");
+  f.db.sql().exec(
+      "INSERT INTO account (name, currency, created_at) VALUES ('Main' || char(8203), 'USD', 'x')");
+  const auto report = ledger::verify(f.db);
+  CHECK(report.ok());
+  CHECK(report.warnings == std::vector<std::string>{"account 2: account name 'Main<U+200B>' "
+                                                    "contains U+200B ZERO WIDTH SPACE, an "
+                                                    "invisible character"});
+}
