@@ -324,7 +324,7 @@ void write_rows(ExportFormat format, const std::vector<std::string>& header,
     append_csv_record(text, fields);
     for (const auto& row : rows) {
       fields.assign(row.begin(), row.end());
-      append_csv_record(text, fields);
+      append_export_record(text, fields);
     }
   } else {
     nlohmann::ordered_json array = nlohmann::ordered_json::array();

@@ -370,7 +370,7 @@ class Writer {
   void row(const std::vector<std::string_view>& values, std::size_t nullable = npos) {
     ++rows_;
     if (format_ == ExportFormat::csv) {
-      append_csv_record(sink_.buf(), values);
+      append_export_record(sink_.buf(), values);
     } else {
       nlohmann::ordered_json o;
       for (std::size_t i = 0; i < names_.size(); ++i) {

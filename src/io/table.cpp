@@ -157,7 +157,8 @@ std::string_view TableReader::raw(std::size_t col) const {
     return negative ? mapping_.sign_rule->negative : mapping_.sign_rule->positive;
   }
   std::string_view v;
-  if (c.field != npos) v = record_.fields[c.field];
+  // A cell guarded against spreadsheet formulas on export reads back as it was.
+  if (c.field != npos) v = formula_unguarded(record_.fields[c.field]);
   if (v.empty()) v = c.default_value;
   if (c.values && !v.empty()) {
     lower_ = ascii_lower(v);
