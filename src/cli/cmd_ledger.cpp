@@ -4,6 +4,7 @@
 #include <memory>
 
 #include "cli/context.h"
+#include "cli/history_rows.h"
 #include "cli/options.h"
 #include "core/error.h"
 #include "core/text.h"
@@ -204,9 +205,30 @@ void add_void(CLI::App& app, Context& ctx) {
   cmd->add_option("--reason", o->reason, "Why it is cancelled")->required();
   cmd->callback([&ctx, o] {
     auto db = ctx.open_ledger();
-    const auto ids = ledger::void_transaction(db, o->id, o->reason);
-    out(fmt::format("voided {} ({} void entr{} recorded)\n", o->id, ids.size(),
-                    ids.size() == 1 ? "y" : "ies"));
+    const auto result = ledger::void_transaction(db, o->id, o->reason);
+    const bool reinstating = result.cancelled.empty();
+    const auto& shown = reinstating ? result.reinstated : result.cancelled;
+    const bool one = shown.size() == 1;
+    auto ids = [](const std::vector<std::int64_t>& list) {
+      std::string text;
+      for (std::size_t i = 0; i < list.size(); ++i)
+        text += (i == 0 ? "" : i + 1 == list.size() ? " and " : ", ") + std::to_string(list[i]);
+      return text;
+    };
+    std::string text = fmt::format("void entr{} {} recorded; ",
+                                   result.void_ids.size() == 1 ? "y" : "ies", ids(result.void_ids));
+    text += reinstating ? fmt::format("{} back in the books:\n", one ? "this is" : "these are")
+                        : fmt::format("{} now out of the books:\n", one ? "this is" : "these are");
+    const auto names = LedgerNames::load(db);
+    const auto voided = voided_ids(store::list_transactions(db));
+    auto table = history_table();
+    for (const auto& t : shown) table.add_row(history_cells(t, names, voided));
+    text += table.render({ctx.colour()});
+    const char* it = one ? "it" : "them";
+    text += reinstating
+                ? fmt::format("To take {} out again, void {}.\n", it, result.void_ids.front())
+                : fmt::format("To put {} back, void {}.\n", it, result.void_ids.front());
+    out(text);
   });
 }
 

@@ -352,9 +352,40 @@ void Book::close_day(Date day) {
 }
 
 std::unordered_set<std::int64_t> voided_ids(const std::vector<Transaction>& transactions) {
-  std::unordered_set<std::int64_t> out;
+  std::unordered_map<std::int64_t, std::int64_t> voider;  // row -> the void naming it
   for (const auto& t : transactions)
-    if (t.kind == TxnKind::void_entry && t.voids_id) out.insert(*t.voids_id);
+    if (t.kind == TxnKind::void_entry && t.voids_id) voider[*t.voids_id] = t.id;
+  // Along a chain row <- void <- void of the void <- ..., the last void is in
+  // force, so the rows below it alternate: cancelled, in force, cancelled...
+  std::unordered_map<std::int64_t, bool> cancelled;
+  for (const auto& entry : voider) {
+    const std::int64_t row = entry.first;
+    if (cancelled.count(row)) continue;
+    std::vector<std::int64_t> chain{row};
+    std::unordered_set<std::int64_t> seen{row};
+    for (std::int64_t at = row;;) {
+      const auto it = voider.find(at);
+      if (it == voider.end()) break;  // `at` is the top: in force
+      const std::int64_t next = it->second;
+      if (cancelled.count(next)) {  // known already: anchor the chain on it
+        chain.push_back(next);
+        break;
+      }
+      if (!seen.insert(next).second) break;  // a loop (cannot be written through keel)
+      chain.push_back(next);
+      at = next;
+    }
+    const auto anchor = cancelled.find(chain.back());
+    bool state = anchor != cancelled.end() && anchor->second;
+    cancelled[chain.back()] = state;
+    for (std::size_t i = chain.size() - 1; i-- > 0;) {
+      state = !state;
+      cancelled[chain[i]] = state;
+    }
+  }
+  std::unordered_set<std::int64_t> out;
+  for (const auto& [id, is_cancelled] : cancelled)
+    if (is_cancelled) out.insert(id);
   return out;
 }
 

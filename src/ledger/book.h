@@ -177,7 +177,10 @@ class Replayer {
 Book replay(const LedgerLog& log, std::optional<Date> until = std::nullopt,
             const DayObserver& observer = {});
 
-// Ids of transactions cancelled by a void entry in `transactions`.
+// Ids of the rows of `transactions` that a void in force cancels. A void is
+// in force unless it is itself cancelled: voiding a void reinstates what it
+// had cancelled, and voiding that void cancels it again. Voids that are
+// cancelled are in the set too.
 std::unordered_set<std::int64_t> voided_ids(const std::vector<Transaction>& transactions);
 
 }  // namespace keel

@@ -5,8 +5,8 @@
 // names, writes the row(s) and replays the whole ledger inside one write
 // transaction; if any rule breaks (see ledger/book.h), it throws InputError
 // and nothing is written. void_transaction() cancels a posted row (and the
-// other half of a transfer pair) by recording void entries, under the same
-// all-or-nothing check.
+// other half of a transfer pair), or reinstates it by voiding its void, by
+// recording void entries, under the same all-or-nothing check.
 #pragma once
 
 #include <cstdint>
@@ -63,9 +63,18 @@ std::vector<std::int64_t> post_batch(store::Database& db, const std::vector<Post
 std::int64_t post_split(store::Database& db, const std::string& symbol, Date date,
                         const Decimal& ratio);
 
-// Cancels transaction `id`; returns the ids of the void entries written.
-std::vector<std::int64_t> void_transaction(store::Database& db, std::int64_t id,
-                                           const std::string& reason);
+// Records a void of row `id` (and of the rows that stand or fall with it:
+// the other half of a transfer pair; for a void, the voids of that pair).
+// Voiding a transaction takes it out of the books; voiding a void puts what
+// it had cancelled back (voided_ids() in ledger/book.h). Refuses a row that
+// already has a void, saying which void to void instead. Same all-or-nothing
+// check as post().
+struct VoidResult {
+  std::vector<std::int64_t> void_ids;   // the void entries written
+  std::vector<Transaction> cancelled;   // transactions now out of the books
+  std::vector<Transaction> reinstated;  // transactions back in the books
+};
+VoidResult void_transaction(store::Database& db, std::int64_t id, const std::string& reason);
 
 LedgerLog load_log(store::Database& db);
 

@@ -74,6 +74,42 @@ equal(err.splitlines()[0], f"{oversell}:2: sell on 2024-06-05 in 'Alder Taxable'
       "units; only 25 held", "oversell names the line")
 equal(b.ok("export", "transactions"), before, "ledger unchanged after refused imports")
 
+# Void and put back: the void command shows the rows it takes out or puts back; a voided
+# row stays booked for imports (the same line is not booked again), and voiding the void
+# brings it back everywhere: holdings, history, export.
+v = Ledger()
+v.ok("account", "add", "Main", "--currency", "EUR")
+one = os.path.join(v.dir.name, "one.csv")
+with open(one, "w") as f:
+    f.write("date,account,kind,amount,note\n2024-03-01,Main,deposit,40,march\n")
+v.ok("import", "transactions", one)
+cash = lambda: v.json("holdings", "--as-of", "2024-12-31")["cash"][0]["amount"]  # noqa: E731
+equal(v.ok("void", "1", "--reason", "not ours"),
+      "void entry 2 recorded; this is now out of the books:\n"
+      "id  date        account  kind     symbol  quantity  price  amount  fee  ref  note\n"
+      "-----------------------------------------------------------------------------------------\n"
+      " 1  2024-03-01  Main     deposit                               40            [void] march\n"
+      "To put it back, void 2.\n", "void output")
+equal(cash(), "0", "cash after the void")
+out = v.ok("import", "transactions", one)
+check("added 0, 1 already booked" in out, f"a voided line is still booked: {out}")
+equal(v.ok("void", "2", "--reason", "ours after all"),
+      "void entry 3 recorded; this is back in the books:\n"
+      "id  date        account  kind     symbol  quantity  price  amount  fee  ref  note\n"
+      "----------------------------------------------------------------------------------\n"
+      " 1  2024-03-01  Main     deposit                               40            march\n"
+      "To take it out again, void 3.\n", "void of the void output")
+equal(cash(), "40", "cash after putting the deposit back")
+out = v.ok("import", "transactions", one)
+check("added 0, 1 already booked" in out, f"a line put back is booked once: {out}")
+equal([(t["id"], t["kind"], t["voided"], t["voids"]) for t in v.json("history")],
+      [(1, "deposit", False, None), (2, "void", True, 1), (3, "void", False, 2)],
+      "history keeps the deposit, its void and the void of the void")
+check("2024-03-01,Main,deposit,,,,40,,,march" in v.ok("export", "transactions"),
+      "the deposit put back is exported")
+code, out, err = v.run("verify")
+equal(code, 0, f"verify after void and put back: {err}")
+
 # The invented broker's own layout, read through its mapping file.
 c = Ledger()
 c.ok("account", "add", "Brokerage")
