@@ -88,7 +88,14 @@ void add_security_add(CLI::App& group, Context& ctx) {
 struct RecordOptions {
   std::string date, account, symbol, quantity, price, fee, amount, ratio, lots, to_account,
       acquired, ref, note;
+  bool allow_future = false;
 };
+
+void add_allow_future_flag(CLI::App& cmd, bool& allow) {
+  cmd.add_flag(ledger::kAllowFutureFlag, allow,
+               "Accept a --date after today, e.g. a trade booked before it settles (without it "
+               "such a date is refused as a likely slip)");
+}
 
 ledger::PostRequest to_request(TxnKind kind, const RecordOptions& o) {
   ledger::PostRequest r;
@@ -105,6 +112,7 @@ ledger::PostRequest to_request(TxnKind kind, const RecordOptions& o) {
   r.to_account = text_option(o.to_account);
   r.ref = text_option(o.ref);
   r.note = text_option(o.note);
+  r.allow_future = o.allow_future;
   return r;
 }
 
@@ -160,6 +168,7 @@ void add_record_kind(CLI::App& group, Context& ctx, const KindSpec& spec) {
                     "Start of the holding period of units brought in (default: --date)");
   cmd->add_option("--ref", o->ref, "External reference, unique per account");
   cmd->add_option("--note", o->note, "Free text");
+  add_allow_future_flag(*cmd, o->allow_future);
   const TxnKind kind = spec.kind;
   cmd->callback([&ctx, o, kind] {
     const auto request = to_request(kind, *o);
@@ -180,13 +189,14 @@ void add_record_split(CLI::App& group, Context& ctx) {
   cmd->add_option("--symbol", o->symbol, "Security symbol")->required();
   cmd->add_option("--ratio", o->ratio, "New units per old unit: 2 = two-for-one, 0.1 = one-for-ten")
       ->required();
+  add_allow_future_flag(*cmd, o->allow_future);
   cmd->callback([&ctx, o] {
     const Date date = date_option_or_today(o->date, "--date");
     const auto ratio = decimal_option(o->ratio, "--ratio");
     // CLI11's required() accepts an empty value ('--ratio ""').
     if (!ratio) throw InputError("split: --ratio needs a number, such as 2 for two-for-one");
     auto db = ctx.open_ledger();
-    const auto id = ledger::post_split(db, o->symbol, date, *ratio);
+    const auto id = ledger::post_split(db, o->symbol, date, *ratio, o->allow_future);
     out(fmt::format("split {} posted: {} x{} on {}\n", id, printable(o->symbol), ratio->str(),
                     date.str()));
   });

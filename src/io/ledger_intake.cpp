@@ -202,6 +202,8 @@ LedgerImportSummary import_transactions(store::Database& db, const std::filesyst
     while (t.next()) {
       ledger::PostRequest r;
       if (!read_request(t, r)) continue;
+      r.allow_future = options.allow_future;
+      if (!r.allow_future && !t.not_future(kDate, r.date)) continue;
       const auto account = store::find_account(db, r.account);
       if (!account) {
         t.error(kAccount, fmt::format("unknown account '{}'", printable(r.account)));

@@ -198,6 +198,7 @@ void import_rows(MarketKind what, Run& r, const ImportOptions& options, CsvReade
     case MarketKind::splits:
       while (t.next()) {
         bool ok = t.date(0, a);
+        if (ok && !options.allow_future) ok = t.not_future(0, Date::parse(a));
         const std::size_t sec = r.security(1);
         ok = t.decimal(2, b) && r.positive(2, b) && ok && sec != store::MarketWriter::kUnknown;
         if (ok) {

@@ -5,6 +5,7 @@
 #include <algorithm>
 
 #include "core/text.h"
+#include "ledger/posting.h"
 
 namespace keel::io {
 namespace {
@@ -165,6 +166,13 @@ std::string_view TableReader::raw(std::size_t col) const {
     if (auto it = c.values->find(lower_); it != c.values->end()) return it->second;
   }
   return v;
+}
+
+bool TableReader::not_future(std::size_t col, Date date) {
+  const auto why = ledger::future_date(date);
+  if (why)
+    error(col, fmt::format("{}; give {} to import it anyway", *why, ledger::kAllowFutureFlag));
+  return !why;
 }
 
 void TableReader::error(std::size_t col, std::string reason) {

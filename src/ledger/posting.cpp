@@ -25,10 +25,24 @@ void forbid(bool present, std::string_view kind, std::string_view field) {
   require(!present, kind, fmt::format("--{} does not apply", field));
 }
 
+void refuse_future(Date date, bool allowed, std::string_view what) {
+  if (allowed) return;
+  if (const auto why = future_date(date))
+    throw InputError(
+        fmt::format("{}: --date {}; give {} to post it anyway", what, *why, kAllowFutureFlag));
+}
+
 }  // namespace
+
+std::optional<std::string> future_date(Date date) {
+  const Date today = Date::today();
+  if (date <= today) return std::nullopt;
+  return fmt::format("{} is after today ({})", date.str(), today.str());
+}
 
 void check_shape(const PostRequest& r) {
   const std::string_view kind = to_string(r.kind);
+  refuse_future(r.date, r.allow_future, kind);
   require(r.kind != TxnKind::void_entry, kind, "use 'keel void ID --reason TEXT' instead");
   if (r.fee) require(!r.fee->is_negative(), kind, "--fee must not be negative");
   forbid(!r.lots.empty() && r.kind != TxnKind::sell && r.kind != TxnKind::transfer_out, kind,
@@ -176,7 +190,8 @@ std::vector<std::int64_t> post(store::Database& db, const PostRequest& request) 
 }
 
 std::int64_t post_split(store::Database& db, const std::string& symbol, Date date,
-                        const Decimal& ratio) {
+                        const Decimal& ratio, bool allow_future) {
+  refuse_future(date, allow_future, "split");
   if (!ratio.is_positive())
     throw InputError(fmt::format("split: --ratio must be positive, not {}", ratio.str()));
   if (ratio == Decimal(1)) throw InputError("split: a ratio of 1 changes nothing");

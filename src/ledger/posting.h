@@ -36,9 +36,20 @@ struct PostRequest {
   std::optional<std::string> ref;
   std::optional<std::string> note;
   std::optional<std::string> row_hash;  // set by importers for rows without ref
+  bool allow_future = false;            // accept a date after today
 };
 
-// Throws InputError naming the first figure that is missing, extra or not positive.
+// Why `date` may not be posted without an explicit override: "2099-12-31 is
+// after today (2026-12-03)"; unset when it is today or earlier. Today is the
+// local calendar day (Date::today, which follows TZ). A posting in the future
+// is far more often a slip of the keyboard than a trade booked ahead of
+// settlement, and year-to-date reports would run to it.
+std::optional<std::string> future_date(Date date);
+// The flag that overrides it, named in every refusal.
+inline constexpr const char* kAllowFutureFlag = "--allow-future-date";
+
+// Throws InputError naming the first figure that is missing, extra or not
+// positive, or a date after today without allow_future.
 void check_shape(const PostRequest& request);
 
 // Posts one request; returns the ids written (two for an internal transfer).
@@ -60,8 +71,9 @@ std::vector<std::int64_t> post_batch(store::Database& db, const std::vector<Post
                                      const std::vector<std::string>& origins);
 
 // Records a split of `symbol` on `date`; ratio = new units per old unit.
+// A date after today is refused unless `allow_future`.
 std::int64_t post_split(store::Database& db, const std::string& symbol, Date date,
-                        const Decimal& ratio);
+                        const Decimal& ratio, bool allow_future = false);
 
 // Records a void of row `id` (and of the rows that stand or fall with it:
 // the other half of a transfer pair; for a void, the voids of that pair).

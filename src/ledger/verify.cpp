@@ -170,7 +170,8 @@ VerifyReport verify(store::Database& db) {
   report.warnings = store::data_warnings(db);
   // Text that is not UTF-8 or names with invisible characters leave every
   // figure sound: worth a look (reports replace or mark them), not suspect.
-  for (auto more : {store::text_problems(db), store::name_warnings(db)})
+  for (auto more :
+       {store::future_rows(db, Date::today()), store::text_problems(db), store::name_warnings(db)})
     report.warnings.insert(report.warnings.end(), more.begin(), more.end());
   report.warnings.insert(report.warnings.end(), sign_warnings.begin(), sign_warnings.end());
   return report;

@@ -170,6 +170,40 @@ std::vector<std::string> name_warnings(Database& db) {
   return out;
 }
 
+std::vector<std::string> future_rows(Database& db, Date today) {
+  const std::string day = today.str();
+  std::vector<std::string> out;
+  // Postings one by one: (what, its date).
+  static const char* const kPostings[] = {
+      "SELECT 'transaction ' || id || ' (' || kind || ')', date FROM txn WHERE date > ? AND "
+      "kind <> 'void' ORDER BY date, id",
+      "SELECT 'the split of ' || s.symbol, p.date FROM split p JOIN security s ON s.id = "
+      "p.security_id WHERE p.date > ? ORDER BY p.date, s.symbol",
+  };
+  for (const char* sql : kPostings) {
+    SQLite::Statement st(db.sql(), sql);
+    st.bind(1, day);
+    while (st.executeStep())
+      out.push_back(fmt::format("{} is dated {}, after today ({})",
+                                printable(st.getColumn(0).getString()), st.getColumn(1).getString(),
+                                day));
+  }
+  static const std::pair<const char*, const char*> kMarket[] = {
+      {"closes are dated", "SELECT count(*), max(date) FROM price WHERE date > ?"},
+      {"metric figures become known",
+       "SELECT count(*), max(known_on) FROM metric WHERE known_on > ?"},
+  };
+  for (const auto& [what, sql] : kMarket) {
+    SQLite::Statement st(db.sql(), sql);
+    st.bind(1, day);
+    if (st.executeStep() && st.getColumn(0).getInt64() > 0)
+      out.push_back(fmt::format("{} {} after today ({}), the latest on {}",
+                                st.getColumn(0).getInt64(), what, day,
+                                st.getColumn(1).getString()));
+  }
+  return out;
+}
+
 BackupFacts inspect_backup(const fs::path& path) {
   if (!fs::exists(path)) throw LedgerError(fmt::format("no file at {}", path.string()));
   try {

@@ -21,6 +21,7 @@
 #include <string>
 #include <vector>
 
+#include "core/date.h"
 #include "store/database.h"
 
 namespace keel::store {
@@ -30,6 +31,9 @@ void backup_to(Database& db, const std::filesystem::path& target);
 std::vector<std::string> data_warnings(Database& db);
 std::vector<std::string> text_problems(Database& db);
 std::vector<std::string> name_warnings(Database& db);
+// Rows dated after `today`: each transaction and split, and per table the
+// closes and metric figures (count and latest day).
+std::vector<std::string> future_rows(Database& db, Date today);
 
 // Opens `path` read-only without migrating; for checking a backup before
 // trusting it. Throws LedgerError if it is not a keel ledger this program can read.

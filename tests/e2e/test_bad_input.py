@@ -9,6 +9,7 @@ extreme numbers and dates are exact or refused clearly.
 Set KEEL_SHOW=1 to print what each row produced instead of stopping at the first
 difference.
 """
+import datetime
 import hashlib
 import os
 import sqlite3
@@ -18,6 +19,8 @@ sys.path.insert(0, os.path.dirname(__file__))
 from keel_cli import Ledger, check, equal  # noqa: E402
 
 SHOW = os.environ.get("KEEL_SHOW") == "1"
+# keel's today is the local calendar day; so is Python's (both follow TZ).
+TODAY = datetime.date.today().isoformat()
 INPUT, USAGE, LEDGER = 1, 2, 3
 
 
@@ -129,6 +132,10 @@ TX = "date,account,kind,symbol,quantity,price,amount,fee,ref,note\n"
 import_row("transactions: a day that does not exist", "transactions",
            TX + f"2024-02-30,{T},deposit,,,,5,,,\n", INPUT,
            refused("{f}:2: column 'date': 2024-02-30 is not a day of the calendar"))
+import_row("transactions: a row dated 2099-12-31", "transactions",
+           TX + f"2099-12-31,{T},deposit,,,,5,,,\n", INPUT,
+           refused(f"{{f}}:2: column 'date': 2099-12-31 is after today ({TODAY}); give "
+                   "--allow-future-date to import it anyway"))
 import_row("transactions: unknown account", "transactions", TX + "2024-03-01,Nobody,deposit,,,,5,,,\n",
            INPUT, refused("{f}:2: column 'account': unknown account 'Nobody'"))
 import_row("transactions: oversell names the line", "transactions",
@@ -256,6 +263,9 @@ import_row("distributions: pay date before ex date", "distributions",
 import_row("distributions: zero per share", "distributions",
            "ex_date,symbol,per_share\n2024-03-10,QRX,0\n", INPUT,
            refused("{f}:2: column 'per_share': must be greater than zero"))
+import_row("splits: dated 2099-12-31", "splits", "date,symbol,ratio\n2099-12-31,QRX,2\n", INPUT,
+           refused(f"{{f}}:2: column 'date': 2099-12-31 is after today ({TODAY}); give "
+                   "--allow-future-date to import it anyway"))
 import_row("splits: negative ratio", "splits", "date,symbol,ratio\n2024-03-10,QRX,-2\n", INPUT,
            refused("{f}:2: column 'ratio': -2 must not be negative"))
 import_row("splits: header only in another layout, bad skip_lines", "splits", "x\n", INPUT,
@@ -269,6 +279,14 @@ row("import: unknown kind of data", ["import", "trades", "{d}/seed-prices.csv"],
 row("record: a day that does not exist",
     ["record", "deposit", "--date", "2024-02-30", "--account", T, "--amount", "5"], INPUT,
     "keel: error: --date: '2024-02-30' is not a calendar date")
+row("record: a deposit dated 2099-12-31",
+    ["record", "deposit", "--date", "2099-12-31", "--account", T, "--amount", "5"], INPUT,
+    f"keel: error: deposit: --date 2099-12-31 is after today ({TODAY}); give --allow-future-date "
+    "to post it anyway")
+row("record: a split dated 2099-12-31",
+    ["record", "split", "--date", "2099-12-31", "--symbol", "QRX", "--ratio", "2"], INPUT,
+    f"keel: error: split: --date 2099-12-31 is after today ({TODAY}); give --allow-future-date to "
+    "post it anyway")
 row("record: year 10000",
     ["record", "deposit", "--date", "10000-01-01", "--account", T, "--amount", "5"], INPUT,
     "keel: error: --date: '10000-01-01' is not a date in the form YYYY-MM-DD")
@@ -486,7 +504,7 @@ note = "semi;colon 'single' \"double\" \\backslash\\ tab-free ünïcödé"
 h.ok("record", "deposit", "--date", "0001-01-01", "--account", odd, "--amount",
      "123456789012345678901234567890", "--note", note)
 h.ok("record", "buy", "--date", "9999-12-31", "--account", odd, "--symbol", "ÅB-1", "--quantity",
-     "0.000000000001", "--price", "0.000000000001")
+     "0.000000000001", "--price", "0.000000000001", "--allow-future-date")
 equal([a["name"] for a in h.json("account", "list")], [odd], "account name stored exactly")
 hist = h.json("history")
 equal([(t["date"], t.get("note")) for t in hist], [("0001-01-01", note), ("9999-12-31", "")],

@@ -4,6 +4,7 @@ Round trip (export, then import into an empty ledger, gives identical holdings,
 lots and gains), exactly-once re-imports, all-or-nothing refusals with every
 error listed, and the invented broker layout in examples/import.
 """
+import datetime
 import os
 import sys
 
@@ -109,6 +110,28 @@ check("2024-03-01,Main,deposit,,,,40,,,march" in v.ok("export", "transactions"),
       "the deposit put back is exported")
 code, out, err = v.run("verify")
 equal(code, 0, f"verify after void and put back: {err}")
+
+# Dates after today (the local calendar day, as keel and Python both take it from TZ): a
+# posting or an imported row is refused unless --allow-future-date; verify then warns.
+fut = Ledger()
+fut.ok("account", "add", "Main", "--currency", "EUR")
+today = datetime.date.today()
+tomorrow = (today + datetime.timedelta(days=1)).isoformat()
+err = fut.fails("record", "deposit", "--date", tomorrow, "--account", "Main", "--amount", "1")
+equal(err, f"keel: error: deposit: --date {tomorrow} is after today ({today.isoformat()}); give "
+      "--allow-future-date to post it anyway", "tomorrow refused")
+fut.ok("record", "deposit", "--date", today.isoformat(), "--account", "Main", "--amount", "1")
+ahead = os.path.join(fut.dir.name, "ahead.csv")
+with open(ahead, "w") as f:
+    f.write(f"date,account,kind,amount\n{tomorrow},Main,deposit,2\n")
+err = fut.fails("import", "transactions", ahead)
+check(f"column 'date': {tomorrow} is after today" in err, err)
+out = fut.ok("import", "transactions", ahead, "--allow-future-date")
+check("added 1" in out, out)
+code, out, err = fut.run("verify")
+equal(code, 0, f"verify with a row after today: {err}")
+check(f"warning: transaction 2 (deposit) is dated {tomorrow}, after today ({today.isoformat()})"
+      in out, out)
 
 # The invented broker's own layout, read through its mapping file.
 c = Ledger()

@@ -164,6 +164,43 @@ TEST_CASE("guard rail: a transfer to the same account is refused") {
   expect_refused(f, r, "transfer_out: --to-account names the same account");
 }
 
+TEST_CASE("regression: a deposit dated 2099-12-31 was posted without a word") {
+  Funded f;
+  auto r = request(TxnKind::deposit);
+  r.amount = dec("5"), r.date = day("2099-12-31");
+  expect_refused(f, r,
+                 fmt::format("deposit: --date 2099-12-31 is after today ({}); give "
+                             "--allow-future-date to post it anyway",
+                             Date::today().str()));
+}
+
+TEST_CASE("future dates: tomorrow is refused, today is posted, and the override posts tomorrow") {
+  Funded f;
+  auto r = request(TxnKind::deposit);
+  r.amount = dec("5"), r.date = Date::today().plus_days(1);
+  const std::string before = f.dump();
+  CHECK_THROWS_AS(ledger::post(f.db, r), InputError);
+  CHECK(f.dump() == before);
+  r.allow_future = true;
+  CHECK_NOTHROW(ledger::post(f.db, r));
+  r.allow_future = false, r.date = Date::today();
+  CHECK_NOTHROW(ledger::post(f.db, r));
+}
+
+TEST_CASE("future dates: a split dated after today is refused unless allowed") {
+  Funded f;
+  const Date later = Date::today().plus_days(30);
+  const std::string before = f.dump();
+  CHECK_THROWS_WITH_AS(ledger::post_split(f.db, "ALFA", later, dec("2")),
+                       fmt::format("split: --date {} is after today ({}); give "
+                                   "--allow-future-date to post it anyway",
+                                   later.str(), Date::today().str())
+                           .c_str(),
+                       InputError);
+  CHECK(f.dump() == before);
+  CHECK_NOTHROW(ledger::post_split(f.db, "ALFA", later, dec("2"), true));
+}
+
 TEST_CASE("void: a voided transaction no longer counts, and the row stays") {
   Funded f;
   const auto id = f.cash(TxnKind::deposit, "2025-02-01", "Main", "50");

@@ -2,6 +2,7 @@
 #include "ledger/verify.h"
 
 #include <doctest/doctest.h>
+#include <fmt/format.h>
 
 #include "ledger_fixture.h"
 
@@ -56,6 +57,26 @@ TEST_CASE("regression: verify passed a ledger whose rounding left a lot's cost a
   const auto report = ledger::verify(f.db);
   CHECK(report.ok());
   CHECK(report.warnings.empty());
+}
+
+TEST_CASE("regression: verify reported 0 warnings for a deposit dated 2099-12-31") {
+  LedgerFixture f;
+  f.main_with_alfa("100");
+  ledger::PostRequest r;
+  r.kind = TxnKind::deposit;
+  r.date = day("2099-12-31");
+  r.account = "Main";
+  r.amount = dec("5");
+  r.allow_future = true;
+  ledger::post(f.db, r);
+  ledger::post_split(f.db, "ALFA", day("2099-06-01"), dec("2"), true);
+  const auto report = ledger::verify(f.db);
+  CHECK(report.ok());
+  const std::string today = Date::today().str();
+  CHECK(report.warnings ==
+        std::vector<std::string>{
+            fmt::format("transaction 2 (deposit) is dated 2099-12-31, after today ({})", today),
+            fmt::format("the split of ALFA is dated 2099-06-01, after today ({})", today)});
 }
 
 TEST_CASE("regression: text that is not UTF-8 passed verify without a word") {
