@@ -8,6 +8,7 @@
 #include "cli/options.h"
 #include "core/error.h"
 #include "core/text.h"
+#include "ledger/accounts.h"
 #include "ledger/posting.h"
 #include "store/ledger_store.h"
 
@@ -15,16 +16,33 @@ namespace keel::cli {
 namespace {
 
 void add_init(CLI::App& app, Context& ctx) {
+  auto currency = std::make_shared<std::string>();
   auto* cmd = app.add_subcommand("init", "Create an empty ledger (or bring an old one up to date)");
-  cmd->callback([&ctx] {
+  cmd->add_option("--currency", *currency,
+                  "The ledger's own currency, a three-letter code: accounts and securities added "
+                  "without --currency take it (default: the first account's currency)");
+  cmd->callback([&ctx, currency] {
+    const auto code = currency->empty() ? std::string() : normalize_currency(*currency);
     auto db = ctx.open_ledger(/*create=*/true);
-    out(fmt::format("ledger ready at {} (schema version {})\n", printable(db.path().string()),
-                    db.schema_version()));
+    if (!code.empty()) {
+      store::WriteTransaction tx(db);
+      try {
+        store::set_ledger_currency(db, code);
+      } catch (const InputError& e) {
+        throw InputError(fmt::format("--currency: {}", e.what()));
+      }
+      tx.commit();
+    }
+    const auto ledger_currency = store::ledger_currency(db);
+    out(fmt::format("ledger ready at {} (schema version {}, {})\n", printable(db.path().string()),
+                    db.schema_version(),
+                    ledger_currency ? "currency " + *ledger_currency
+                                    : std::string("currency: the first account's")));
   });
 }
 
 struct AccountAddOptions {
-  std::string name, currency = "USD", basis = "fifo";
+  std::string name, currency, basis = "fifo";
   bool allow_negative = false;
 };
 
@@ -32,18 +50,21 @@ void add_account_add(CLI::App& group, Context& ctx) {
   auto o = std::make_shared<AccountAddOptions>();
   auto* cmd = group.add_subcommand("add", "Add an account");
   cmd->add_option("NAME", o->name, "Account name")->required();
-  cmd->add_option("--currency", o->currency, "Three-letter currency code");
+  cmd->add_option("--currency", o->currency,
+                  "Three-letter currency code (default: the ledger's; the first account's "
+                  "becomes the ledger's)");
   cmd->add_option("--basis", o->basis, "Cost-basis method: fifo, lifo, hifo, average, specific");
   cmd->add_flag("--allow-negative-cash", o->allow_negative, "Let cash go below zero (margin)");
   cmd->callback([&ctx, o] {
     Account a;
     a.name = o->name;
-    a.currency = normalize_currency(o->currency);
+    if (!o->currency.empty()) a.currency = normalize_currency(o->currency);
     a.basis = parse_basis_method(o->basis);
     a.allow_negative_cash = o->allow_negative;
     auto db = ctx.open_ledger();
     store::WriteTransaction tx(db);
-    const auto id = store::insert_account(db, a);
+    const auto id = ledger::add_account(db, a);
+    a = *store::find_account(db, a.name);
     tx.commit();
     out(fmt::format("account {} '{}' added ({}, {}{})\n", id, printable(a.name), a.currency,
                     to_string(a.basis), a.allow_negative_cash ? ", negative cash allowed" : ""));
@@ -51,7 +72,7 @@ void add_account_add(CLI::App& group, Context& ctx) {
 }
 
 struct SecurityAddOptions {
-  std::string symbol, name, kind, currency = "USD", lot_size = "1", sector;
+  std::string symbol, name, kind, currency, lot_size = "1", sector;
 };
 
 void add_security_add(CLI::App& group, Context& ctx) {
@@ -60,7 +81,7 @@ void add_security_add(CLI::App& group, Context& ctx) {
   cmd->add_option("SYMBOL", o->symbol, "Symbol, unique in the ledger")->required();
   cmd->add_option("--name", o->name, "Full name")->required();
   cmd->add_option("--kind", o->kind, "stock, fund, bond, index or currency")->required();
-  cmd->add_option("--currency", o->currency, "Three-letter currency code");
+  cmd->add_option("--currency", o->currency, "Three-letter currency code (default: the ledger's)");
   cmd->add_option("--lot-size", o->lot_size, "Smallest tradable multiple (1 = whole units)");
   cmd->add_option("--sector", o->sector, "Sector label, for rule universes");
   cmd->callback([&ctx, o] {
@@ -68,7 +89,7 @@ void add_security_add(CLI::App& group, Context& ctx) {
     s.symbol = o->symbol;
     s.name = o->name;
     s.kind = parse_security_kind(o->kind);
-    s.currency = normalize_currency(o->currency);
+    if (!o->currency.empty()) s.currency = normalize_currency(o->currency);
     try {
       s.lot_size = Decimal::parse(o->lot_size);
     } catch (const InputError& e) {
@@ -77,7 +98,7 @@ void add_security_add(CLI::App& group, Context& ctx) {
     if (!o->sector.empty()) s.sector = o->sector;
     auto db = ctx.open_ledger();
     store::WriteTransaction tx(db);
-    const auto id = store::insert_security(db, s);
+    const auto id = ledger::add_security(db, s);
     tx.commit();
     out(fmt::format("security {} '{}' added ({})\n", id, printable(s.symbol), to_string(s.kind)));
   });

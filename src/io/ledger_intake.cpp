@@ -15,6 +15,7 @@
 #include "io/json.h"
 #include "io/sha256.h"
 #include "io/table.h"
+#include "ledger/accounts.h"
 #include "ledger/posting.h"
 #include "store/ledger_store.h"
 #include "store/market_data.h"
@@ -300,7 +301,7 @@ LedgerImportSummary import_accounts(store::Database& db, const std::filesystem::
             ++sum.already_booked;
           continue;
         }
-        store::insert_account(db, a);
+        ledger::add_account(db, a);
         ++sum.added;
       } catch (const InputError& e) {
         t.error(npos, e.what());

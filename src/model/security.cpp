@@ -48,6 +48,7 @@ std::string normalize_currency(std::string_view code) {
 
 void validate(const Security& s) {
   check_identifier("symbol", s.symbol, 40);
+  normalize_currency(s.currency);  // refuses anything but three letters
   check_identifier("name", s.name, 200);
   if (s.sector) check_identifier("sector", *s.sector, 100);
   if (!s.lot_size.is_positive())

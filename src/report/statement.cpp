@@ -9,6 +9,7 @@
 
 #include "core/error.h"
 #include "core/text.h"
+#include "ledger/accounts.h"
 #include "ledger/posting.h"
 #include "store/ledger_store.h"
 #include "store/price_write.h"
@@ -171,15 +172,8 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
           fmt::format("--account: there is no account named '{}'", printable(*request.account)));
     account_id = account->id;
     s.currency = account->currency;
-  } else {
-    std::set<std::string> currencies;
-    for (const auto& a : accounts) currencies.insert(a.currency);
-    if (currencies.size() > 1)
-      throw InputError(fmt::format(
-          "the ledger's accounts keep {}; keel does not convert currencies, so give --account "
-          "for a statement of one account",
-          fmt::join(currencies, ", ")));
-    if (!currencies.empty()) s.currency = *currencies.begin();
+  } else if (const auto currency = ledger::one_currency(accounts, "statement")) {
+    s.currency = *currency;
   }
   if (request.benchmark && !store::find_security(db, *request.benchmark))
     throw InputError(fmt::format("--benchmark: there is no security with symbol '{}'",

@@ -11,6 +11,7 @@
 #include "core/error.h"
 #include "core/text.h"
 #include "io/sha256.h"
+#include "ledger/accounts.h"
 #include "ledger/posting.h"
 #include "store/ledger_store.h"
 #include "store/point_in_time.h"
@@ -28,6 +29,32 @@ std::string join(const std::vector<std::string>& items) {
 constexpr int kOldCloseDays = 7;
 
 }  // namespace
+
+std::optional<std::string> keep_currency(const Rule& rule, const std::string& currency,
+                                         const std::vector<const Security*>& sleeves,
+                                         std::vector<const Security*>& universe) {
+  auto refuse = [&](std::string_view key, const Security& s) {
+    rule.fail(key, fmt::format("{} is priced in {} and the rule trades in {}; keel does not "
+                               "convert between currencies yet",
+                               printable(s.symbol), s.currency, currency));
+  };
+  for (const Security* s : sleeves)
+    if (s->currency != currency) refuse("sleeve.symbol", *s);
+  if (rule.universe == Universe::list) {
+    for (const Security* s : universe)
+      if (s->currency != currency) refuse("scope.symbols", *s);
+    return std::nullopt;
+  }
+  const auto kept = std::stable_partition(
+      universe.begin(), universe.end(), [&](const Security* s) { return s->currency == currency; });
+  const auto left_out = static_cast<std::size_t>(universe.end() - kept);
+  universe.erase(kept, universe.end());
+  if (left_out == 0) return std::nullopt;
+  return fmt::format(
+      "{} stock{} priced in other currencies than {} {} left out of the universe "
+      "(keel does not convert between currencies yet)",
+      left_out, left_out == 1 ? "" : "s", currency, left_out == 1 ? "is" : "are");
+}
 
 std::vector<std::string> proposal_cautions(Date as_of) {
   return {
@@ -73,6 +100,11 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
       pool.push_back(*a);
       p.accounts.push_back(a->name);
     }
+    if (const auto mixed = ledger::mixed_currencies(pool))
+      rule.fail("scope.accounts",
+                fmt::format("the accounts keep different currencies ({}) and keel does not convert "
+                            "between them yet; give each currency a rule of its own",
+                            *mixed));
   }
 
   // Securities: the universe and the sleeves.
@@ -84,12 +116,14 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
     by_id[s.id] = &s;
   }
   std::vector<std::int64_t> sleeve_ids;
+  std::vector<const Security*> sleeves;
   for (const auto& sl : rule.weights.sleeves) {
     const auto it = by_symbol.find(sl.symbol);
     if (it == by_symbol.end())
       rule.fail("sleeve.symbol",
                 fmt::format("no security '{}' in the ledger", printable(sl.symbol)));
     sleeve_ids.push_back(it->second->id);
+    sleeves.push_back(it->second);
   }
   const std::set<std::int64_t> sleeve_set(sleeve_ids.begin(), sleeve_ids.end());
   std::vector<const Security*> universe;
@@ -120,6 +154,8 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
           "securities first",
           printable(rule.source)));
   }
+  if (auto note = keep_currency(rule, pool.front().currency, sleeves, universe))
+    p.notes.push_back(std::move(*note));
   if (!store::metric_exists(db, rule.screen.metric)) {
     const auto names = store::metric_names(db);
     std::string why =

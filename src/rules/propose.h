@@ -22,6 +22,7 @@
 #include <vector>
 
 #include "core/date.h"
+#include "model/security.h"
 #include "rules/engine.h"
 #include "rules/rule.h"
 #include "store/database.h"
@@ -43,6 +44,14 @@ struct Proposal {
 };
 
 Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_of = std::nullopt);
+
+// A rule trades in one currency (keel does not convert between currencies
+// yet): a sleeve or a listed symbol priced in another than `currency` is
+// refused at its key; stocks of the whole ledger or of a sector priced in
+// another are left out of `universe`, and the note returned says how many.
+std::optional<std::string> keep_currency(const Rule& rule, const std::string& currency,
+                                         const std::vector<const Security*>& sleeves,
+                                         std::vector<const Security*>& universe);
 
 // The cautions every proposal ends with.
 std::vector<std::string> proposal_cautions(Date as_of);

@@ -345,6 +345,11 @@ row("account add: invalid UTF-8 name", ["account", "add", "Cedar\udcff"], INPUT,
     "keel: error: account name 'Cedar\\xff' is not valid UTF-8")
 row("account add: C1 control character (U+009B) in a name", ["account", "add", "Cedar\u009b2J"],
     INPUT, "keel: error: account name 'Cedar\\xc2\\x9b2J' contains a control character")
+row("init: --currency not a three-letter code", ["init", "--currency", "EURO"], INPUT,
+    "keel: error: currency 'EURO' is not a three-letter code such as EUR")
+row("init: --currency other than the ledger's", ["init", "--currency", "EUR"], INPUT,
+    "keel: error: --currency: the ledger's currency is USD; it is set once and never changed (keel "
+    "does not convert amounts already booked)")
 row("account add: unknown basis", ["account", "add", "Cedar", "--basis", "newest"], INPUT,
     "keel: error: unknown cost-basis method 'newest'; expected one of: fifo, lifo, hifo, average, "
     "specific")

@@ -24,9 +24,10 @@ struct LedgerFixture {
   store::Database db = store::Database::in_memory();
 
   void account(const std::string& name, BasisMethod basis = BasisMethod::fifo,
-               bool allow_negative = false) {
+               bool allow_negative = false, const char* currency = "USD") {
     Account a;
     a.name = name;
+    a.currency = currency;
     a.basis = basis;
     a.allow_negative_cash = allow_negative;
     store::insert_account(db, a);
@@ -35,6 +36,7 @@ struct LedgerFixture {
     Security s;
     s.symbol = symbol;
     s.name = symbol + " (invented)";
+    s.currency = "USD";
     s.kind = kind;
     store::insert_security(db, s);
   }

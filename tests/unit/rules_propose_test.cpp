@@ -4,6 +4,7 @@
 #include <doctest/doctest.h>
 #include <fmt/format.h>
 
+#include <algorithm>
 #include <map>
 
 #include "ledger_fixture.h"
@@ -20,12 +21,13 @@ namespace {
 
 struct Market : LedgerFixture {
   void stock(const std::string& symbol, const char* lot_size = "1",
-             SecurityKind kind = SecurityKind::stock) {
+             SecurityKind kind = SecurityKind::stock, const char* currency = "USD") {
     Security s;
     s.symbol = symbol;
     s.name = symbol + " (invented)";
     s.kind = kind;
     s.lot_size = dec(lot_size);
+    s.currency = currency;
     store::insert_security(db, s);
   }
   // Closes and figures: {symbol, date, value} / {symbol, period, known_on, value}.
@@ -202,6 +204,45 @@ TEST_CASE("propose: posting the orders and proposing again finds nothing to do")
   const auto again = propose(m.db, month_rule());
   CHECK(again.plan.orders.empty());
   CHECK(again.plan.cash_after_total == Decimal(91));
+}
+
+TEST_CASE("propose: stocks priced in another currency are left out of the universe, with a note") {
+  Month m;
+  m.stock("EURO", "1", SecurityKind::stock, "EUR");
+  m.closes({{"EURO", "2024-05-31", "3"}});
+  m.figures("pe", {{"EURO", "2024-03-31", "2024-04-30", "1"}});  // the cheapest of all
+  const auto p = propose(m.db, month_rule());
+  for (const auto& line : p.screen.lines) CHECK(line.symbol != "EURO");
+  CHECK(std::find(p.notes.begin(), p.notes.end(),
+                  "1 stock priced in other currencies than USD is left out of the universe (keel "
+                  "does not convert between currencies yet)") != p.notes.end());
+}
+
+TEST_CASE("propose: a listed symbol or a sleeve in another currency is refused at its key") {
+  Month m;
+  m.stock("EURO", "1", SecurityKind::stock, "EUR");
+  CHECK_THROWS_WITH_AS(
+      propose(m.db, month_rule("[scope]\naccounts = [\"Main\"]\nsymbols = [\"A\", \"EURO\"]\n")),
+      "month.toml:3: key 'scope.symbols': EURO is priced in EUR and the rule trades in USD; keel "
+      "does not convert between currencies yet",
+      InputError);
+  CHECK_THROWS_WITH_AS(
+      propose(m.db, month_rule("[scope]\naccounts = [\"Main\"]\n[[sleeve]]\nsymbol = \"EURO\"\n"
+                               "weight_pct = 10\n")),
+      "month.toml:4: key 'sleeve.symbol': EURO is priced in EUR and the rule trades in USD; keel "
+      "does not convert between currencies yet",
+      InputError);
+}
+
+TEST_CASE("propose: a pool of accounts in two currencies is refused at scope.accounts") {
+  Month m;
+  m.account("Euro", BasisMethod::fifo, false, "EUR");
+  CHECK_THROWS_WITH_AS(
+      propose(m.db, month_rule("[scope]\naccounts = [\"Main\", \"Euro\"]\n")),
+      "month.toml:2: key 'scope.accounts': the accounts keep different currencies (Main: USD; "
+      "Euro: EUR) and keel does not convert between them yet; give each currency a rule of its "
+      "own",
+      InputError);
 }
 
 TEST_CASE("propose: an account the ledger does not hold is named at its key") {

@@ -370,8 +370,9 @@ TEST_CASE("statement: a ledger whose accounts keep different currencies needs --
   report::StatementRequest r;
   r.year = 2025;
   CHECK(error_of(k, r) ==
-        "the ledger's accounts keep GBP, USD; keel does not convert currencies, so give --account "
-        "for a statement of one account");
+        "statement: the accounts keep different currencies (Harbor Pension: USD; Harbor Sterling: "
+        "GBP; Harbor Taxable: USD) and keel does not convert between them yet; give --account for "
+        "one account");
 }
 
 TEST_CASE("statement: building it changes nothing in the ledger") {
