@@ -84,10 +84,15 @@ const AccountBook& Book::account(std::int64_t account_id) const {
   return books_.at(index_.at(account_id));
 }
 
-std::optional<Decimal> Book::last_trade_price(std::int64_t security_id) const {
-  const auto it = last_trade_price_.find(security_id);
-  if (it == last_trade_price_.end()) return std::nullopt;
+std::optional<Book::TradePrice> Book::last_trade(std::int64_t security_id) const {
+  const auto it = last_trade_.find(security_id);
+  if (it == last_trade_.end()) return std::nullopt;
   return it->second;
+}
+
+std::optional<Decimal> Book::last_trade_price(std::int64_t security_id) const {
+  if (auto trade = last_trade(security_id)) return trade->price;
+  return std::nullopt;
 }
 
 const Account& Book::account_info(std::int64_t account_id) const {
@@ -107,8 +112,8 @@ void Book::apply_split(const Split& split) {
     if (it == book.positions.end()) continue;
     for (auto& lot : it->second.lots) lot.quantity *= split.ratio;
   }
-  if (auto it = last_trade_price_.find(split.security_id); it != last_trade_price_.end())
-    it->second = Decimal::divide(it->second, split.ratio, 10);
+  if (auto it = last_trade_.find(split.security_id); it != last_trade_.end())
+    it->second.price = Decimal::divide(it->second.price, split.ratio, 10);
   for (auto& [id, lots] : in_transit_)
     for (auto& lot : lots) lot.quantity *= split.ratio;
 }
@@ -239,7 +244,7 @@ void Book::apply_buy(const Transaction& txn, AccountBook& book) {
   const Decimal gross = *txn.quantity * *txn.price;
   auto& position = book.positions[*txn.security_id];
   position.lots.push_back(Lot{txn.id, txn.date, *txn.quantity, gross + txn.fee});
-  last_trade_price_[*txn.security_id] = *txn.price;
+  last_trade_[*txn.security_id] = TradePrice{txn.date, *txn.price};
   book.cash -= gross + txn.fee;
 }
 
@@ -255,7 +260,7 @@ void Book::apply_sell(const Transaction& txn, const Account& account, AccountBoo
                                      taken[i].acquired, txn.date, taken[i].quantity,
                                      proceeds_parts[i], taken[i].cost});
   }
-  last_trade_price_[*txn.security_id] = *txn.price;
+  last_trade_[*txn.security_id] = TradePrice{txn.date, *txn.price};
   if (position.lots.empty()) book.positions.erase(*txn.security_id);
   book.cash += proceeds;
 }
@@ -282,7 +287,7 @@ void Book::apply_transfer_in(const Transaction& txn, AccountBook& book) {
     const Decimal unit = txn.price.value_or(Decimal());
     position.lots.push_back(
         Lot{txn.id, txn.acquired.value_or(txn.date), *txn.quantity, *txn.quantity * unit});
-    if (txn.price) last_trade_price_[*txn.security_id] = *txn.price;
+    if (txn.price) last_trade_[*txn.security_id] = TradePrice{txn.date, *txn.price};
     moved_.push_back(
         MovedCost{txn.id, txn.account_id, *txn.security_id, txn.date, true, *txn.quantity * unit});
   }

@@ -98,7 +98,12 @@ class Book {
   const std::vector<RealizedPart>& realized() const { return realized_; }
   const std::vector<MovedCost>& moved() const { return moved_; }  // in replay order
   // The latest unit price the ledger traded `security_id` at, in any account
-  // (split-adjusted); unset if it never traded.
+  // (split-adjusted), and the day of that trade; unset if it never traded.
+  struct TradePrice {
+    Date day;
+    Decimal price;
+  };
+  std::optional<TradePrice> last_trade(std::int64_t security_id) const;
   std::optional<Decimal> last_trade_price(std::int64_t security_id) const;
 
  private:
@@ -114,7 +119,7 @@ class Book {
   std::vector<AccountBook> books_;
   std::vector<RealizedPart> realized_;
   std::vector<MovedCost> moved_;
-  std::unordered_map<std::int64_t, Decimal> last_trade_price_;
+  std::unordered_map<std::int64_t, TradePrice> last_trade_;
   std::unordered_map<std::int64_t, std::vector<Lot>> in_transit_;  // by transfer_out id
   std::unordered_set<std::int64_t> touched_today_;
   std::unordered_map<std::int64_t, const Transaction*> last_txn_today_;
