@@ -347,6 +347,7 @@ Result run(const History& h, const rules::Rule& rule, const Request& req) {
     res.benchmark = *req.benchmark;
   }
 
+  res.notes = h.notes;
   res.rule = simulate(h, rule, req, res.rebalance_days, "rule", true, res.notes);
   res.baseline =
       simulate(h, baseline_rule(rule), req, res.rebalance_days, "baseline", false, res.notes);

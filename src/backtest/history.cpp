@@ -1,12 +1,14 @@
 #include "backtest/history.h"
 
 #include <fmt/format.h>
+#include <fmt/ranges.h>
 
 #include <set>
 #include <string>
 
 #include "core/error.h"
 #include "core/text.h"
+#include "rules/propose.h"
 #include "store/ledger_store.h"
 #include "store/point_in_time.h"
 
@@ -70,7 +72,25 @@ History load_history(store::Database& db, const rules::Rule& rule) {
           "securities first",
           printable(rule.source)));
   }
-  for (const auto& [sym, id] : chosen) h.universe.push_back(id);
+  std::vector<const Security*> universe, sleeve_securities;
+  for (const auto& [sym, id] : chosen) universe.push_back(&h.security(id));
+  for (const auto id : h.sleeve_ids) sleeve_securities.push_back(&h.security(id));
+  std::optional<std::string> currency = store::ledger_currency(db);
+  if (!currency && !sleeve_securities.empty()) currency = sleeve_securities.front()->currency;
+  if (!currency) {
+    std::set<std::string> seen;
+    for (const Security* s : universe) seen.insert(s->currency);
+    if (seen.size() > 1)
+      rule.fail("scope", fmt::format("the universe holds stocks priced in {}; keel does not "
+                                     "convert between currencies yet: narrow it to one with "
+                                     "scope.sector or scope.symbols",
+                                     fmt::join(seen, ", ")));
+    if (!seen.empty()) currency = *seen.begin();
+  }
+  if (currency)
+    if (auto note = rules::keep_currency(rule, *currency, sleeve_securities, universe))
+      h.notes.push_back(std::move(*note));
+  for (const Security* s : universe) h.universe.push_back(s->id);
   if (!store::metric_exists(db, rule.screen.metric)) {
     std::string why =
         fmt::format("the ledger holds no figures for metric '{}'", printable(rule.screen.metric));

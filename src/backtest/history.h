@@ -7,7 +7,10 @@
 //    sector's stocks, or a fixed list) and preloads closes (store::PriceBook),
 //    the rule's metric (store::MetricHistory), splits and cash distributions.
 //    A universe, sleeve or metric the ledger does not hold is an InputError
-//    located at the rule key (Rule::fail).
+//    located at the rule key (Rule::fail). The rule trades in one currency
+//    (rules::keep_currency): the ledger's when it has one, else the first
+//    sleeve's, else the one its universe shares; with none of these, a
+//    universe in several currencies is refused.
 //  - candidates(d) gives the engine what was knowable on day d and nothing
 //    later: the figure with known_on <= d (latest period, then latest
 //    known_on), and whether a close exists on or before d.
@@ -21,6 +24,7 @@
 #include <cstdint>
 #include <map>
 #include <optional>
+#include <string>
 #include <unordered_map>
 #include <unordered_set>
 #include <vector>
@@ -58,6 +62,7 @@ struct History {
   std::vector<Date> days;                                   // every day with a close
   std::map<Date, std::vector<SplitEvent>> splits;           // by date
   std::map<Date, std::vector<Distribution>> distributions;  // by ex-date
+  std::vector<std::string> notes;                           // about the universe
 
   const Security& security(std::int64_t id) const { return securities.at(index.at(id)); }
   std::vector<rules::Candidate> candidates(const rules::Rule& rule, Date day,

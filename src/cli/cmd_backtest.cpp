@@ -17,6 +17,7 @@
 #include "core/error.h"
 #include "core/files.h"
 #include "core/text.h"
+#include "io/json.h"
 #include "report/table.h"
 #include "rules/rule.h"
 
@@ -269,7 +270,7 @@ void add_backtest(CLI::App& app, Context& ctx) {
       std::fputs(result_text(result, report::use_colour(stderr)).c_str(), stderr);
       return;
     }
-    out(o->json ? result_json(result).dump(2) + "\n" : result_text(result, ctx.colour()));
+    out(o->json ? io::dump_json(result_json(result)) + "\n" : result_text(result, ctx.colour()));
   });
 }
 
@@ -342,7 +343,7 @@ void add_signal(CLI::App& app, Context& ctx) {
       }
       j["notes"] = r.notes;
       j["cautions"] = r.cautions;
-      out(j.dump(2) + "\n");
+      out(io::dump_json(j) + "\n");
       return;
     }
     std::string s = fmt::format("Signal check of rule '{}' from {} to {}\n", printable(r.rule_name),

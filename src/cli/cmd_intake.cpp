@@ -13,6 +13,7 @@
 #include "io/errors.h"
 #include "io/ledger_intake.h"
 #include "io/market_intake.h"
+#include "ledger/posting.h"
 #include "store/market_data.h"
 
 namespace keel::cli {
@@ -57,7 +58,7 @@ auto printing_refusals(F&& import) {
 
 struct ImportCommandOptions {
   std::string what, file, mapping;
-  bool dry_run = false, replace = false, quiet = false;
+  bool dry_run = false, replace = false, quiet = false, allow_future = false;
 };
 
 void add_import(CLI::App& app, Context& ctx) {
@@ -72,11 +73,15 @@ void add_import(CLI::App& app, Context& ctx) {
   cmd->add_flag("--dry-run", o->dry_run, "Check everything and report, but change nothing");
   cmd->add_flag("--replace", o->replace, "Overwrite stored values that differ from the file");
   cmd->add_flag("--quiet", o->quiet, "No progress display");
+  cmd->add_flag(ledger::kAllowFutureFlag, o->allow_future,
+                "Accept transactions and splits dated after today, e.g. trades booked before "
+                "they settle (without it such rows are refused as likely slips)");
   cmd->callback([&ctx, o] {
     io::ImportOptions options;
     if (!o->mapping.empty()) options.mapping = io::Mapping::load(o->mapping);
     options.dry_run = o->dry_run;
     options.replace = o->replace;
+    options.allow_future = o->allow_future;
     if (o->what == "transactions" || o->what == "accounts") {
       auto db = ctx.open_ledger(store::Access::write);
       const auto sum = printing_refusals([&] {

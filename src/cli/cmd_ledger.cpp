@@ -4,9 +4,11 @@
 #include <memory>
 
 #include "cli/context.h"
+#include "cli/history_rows.h"
 #include "cli/options.h"
 #include "core/error.h"
 #include "core/text.h"
+#include "ledger/accounts.h"
 #include "ledger/posting.h"
 #include "store/ledger_store.h"
 
@@ -14,16 +16,33 @@ namespace keel::cli {
 namespace {
 
 void add_init(CLI::App& app, Context& ctx) {
+  auto currency = std::make_shared<std::string>();
   auto* cmd = app.add_subcommand("init", "Create an empty ledger (or bring an old one up to date)");
-  cmd->callback([&ctx] {
+  cmd->add_option("--currency", *currency,
+                  "The ledger's own currency, a three-letter code: accounts and securities added "
+                  "without --currency take it (default: the first account's currency)");
+  cmd->callback([&ctx, currency] {
+    const auto code = currency->empty() ? std::string() : normalize_currency(*currency);
     auto db = ctx.open_ledger(store::Access::create);
-    out(fmt::format("ledger ready at {} (schema version {})\n", printable(db.path().string()),
-                    db.schema_version()));
+    if (!code.empty()) {
+      store::WriteTransaction tx(db);
+      try {
+        store::set_ledger_currency(db, code);
+      } catch (const InputError& e) {
+        throw InputError(fmt::format("--currency: {}", e.what()));
+      }
+      tx.commit();
+    }
+    const auto ledger_currency = store::ledger_currency(db);
+    out(fmt::format("ledger ready at {} (schema version {}, {})\n", printable(db.path().string()),
+                    db.schema_version(),
+                    ledger_currency ? "currency " + *ledger_currency
+                                    : std::string("currency: the first account's")));
   });
 }
 
 struct AccountAddOptions {
-  std::string name, currency = "USD", basis = "fifo";
+  std::string name, currency, basis = "fifo";
   bool allow_negative = false;
 };
 
@@ -31,18 +50,21 @@ void add_account_add(CLI::App& group, Context& ctx) {
   auto o = std::make_shared<AccountAddOptions>();
   auto* cmd = group.add_subcommand("add", "Add an account");
   cmd->add_option("NAME", o->name, "Account name")->required();
-  cmd->add_option("--currency", o->currency, "Three-letter currency code");
+  cmd->add_option("--currency", o->currency,
+                  "Three-letter currency code (default: the ledger's; the first account's "
+                  "becomes the ledger's)");
   cmd->add_option("--basis", o->basis, "Cost-basis method: fifo, lifo, hifo, average, specific");
   cmd->add_flag("--allow-negative-cash", o->allow_negative, "Let cash go below zero (margin)");
   cmd->callback([&ctx, o] {
     Account a;
     a.name = o->name;
-    a.currency = normalize_currency(o->currency);
+    if (!o->currency.empty()) a.currency = normalize_currency(o->currency);
     a.basis = parse_basis_method(o->basis);
     a.allow_negative_cash = o->allow_negative;
     auto db = ctx.open_ledger(store::Access::write);
     store::WriteTransaction tx(db);
-    const auto id = store::insert_account(db, a);
+    const auto id = ledger::add_account(db, a);
+    a = *store::find_account(db, a.name);
     tx.commit();
     out(fmt::format("account {} '{}' added ({}, {}{})\n", id, printable(a.name), a.currency,
                     to_string(a.basis), a.allow_negative_cash ? ", negative cash allowed" : ""));
@@ -50,7 +72,7 @@ void add_account_add(CLI::App& group, Context& ctx) {
 }
 
 struct SecurityAddOptions {
-  std::string symbol, name, kind, currency = "USD", lot_size = "1", sector;
+  std::string symbol, name, kind, currency, lot_size = "1", sector;
 };
 
 void add_security_add(CLI::App& group, Context& ctx) {
@@ -59,7 +81,7 @@ void add_security_add(CLI::App& group, Context& ctx) {
   cmd->add_option("SYMBOL", o->symbol, "Symbol, unique in the ledger")->required();
   cmd->add_option("--name", o->name, "Full name")->required();
   cmd->add_option("--kind", o->kind, "stock, fund, bond, index or currency")->required();
-  cmd->add_option("--currency", o->currency, "Three-letter currency code");
+  cmd->add_option("--currency", o->currency, "Three-letter currency code (default: the ledger's)");
   cmd->add_option("--lot-size", o->lot_size, "Smallest tradable multiple (1 = whole units)");
   cmd->add_option("--sector", o->sector, "Sector label, for rule universes");
   cmd->callback([&ctx, o] {
@@ -67,7 +89,7 @@ void add_security_add(CLI::App& group, Context& ctx) {
     s.symbol = o->symbol;
     s.name = o->name;
     s.kind = parse_security_kind(o->kind);
-    s.currency = normalize_currency(o->currency);
+    if (!o->currency.empty()) s.currency = normalize_currency(o->currency);
     try {
       s.lot_size = Decimal::parse(o->lot_size);
     } catch (const InputError& e) {
@@ -76,7 +98,7 @@ void add_security_add(CLI::App& group, Context& ctx) {
     if (!o->sector.empty()) s.sector = o->sector;
     auto db = ctx.open_ledger(store::Access::write);
     store::WriteTransaction tx(db);
-    const auto id = store::insert_security(db, s);
+    const auto id = ledger::add_security(db, s);
     tx.commit();
     out(fmt::format("security {} '{}' added ({})\n", id, printable(s.symbol), to_string(s.kind)));
   });
@@ -87,7 +109,14 @@ void add_security_add(CLI::App& group, Context& ctx) {
 struct RecordOptions {
   std::string date, account, symbol, quantity, price, fee, amount, ratio, lots, to_account,
       acquired, ref, note;
+  bool allow_future = false;
 };
+
+void add_allow_future_flag(CLI::App& cmd, bool& allow) {
+  cmd.add_flag(ledger::kAllowFutureFlag, allow,
+               "Accept a --date after today, e.g. a trade booked before it settles (without it "
+               "such a date is refused as a likely slip)");
+}
 
 ledger::PostRequest to_request(TxnKind kind, const RecordOptions& o) {
   ledger::PostRequest r;
@@ -104,6 +133,7 @@ ledger::PostRequest to_request(TxnKind kind, const RecordOptions& o) {
   r.to_account = text_option(o.to_account);
   r.ref = text_option(o.ref);
   r.note = text_option(o.note);
+  r.allow_future = o.allow_future;
   return r;
 }
 
@@ -159,6 +189,7 @@ void add_record_kind(CLI::App& group, Context& ctx, const KindSpec& spec) {
                     "Start of the holding period of units brought in (default: --date)");
   cmd->add_option("--ref", o->ref, "External reference, unique per account");
   cmd->add_option("--note", o->note, "Free text");
+  add_allow_future_flag(*cmd, o->allow_future);
   const TxnKind kind = spec.kind;
   cmd->callback([&ctx, o, kind] {
     const auto request = to_request(kind, *o);
@@ -179,13 +210,14 @@ void add_record_split(CLI::App& group, Context& ctx) {
   cmd->add_option("--symbol", o->symbol, "Security symbol")->required();
   cmd->add_option("--ratio", o->ratio, "New units per old unit: 2 = two-for-one, 0.1 = one-for-ten")
       ->required();
+  add_allow_future_flag(*cmd, o->allow_future);
   cmd->callback([&ctx, o] {
     const Date date = date_option_or_today(o->date, "--date");
     const auto ratio = decimal_option(o->ratio, "--ratio");
     // CLI11's required() accepts an empty value ('--ratio ""').
     if (!ratio) throw InputError("split: --ratio needs a number, such as 2 for two-for-one");
     auto db = ctx.open_ledger(store::Access::write);
-    const auto id = ledger::post_split(db, o->symbol, date, *ratio);
+    const auto id = ledger::post_split(db, o->symbol, date, *ratio, o->allow_future);
     out(fmt::format("split {} posted: {} x{} on {}\n", id, printable(o->symbol), ratio->str(),
                     date.str()));
   });
@@ -204,9 +236,30 @@ void add_void(CLI::App& app, Context& ctx) {
   cmd->add_option("--reason", o->reason, "Why it is cancelled")->required();
   cmd->callback([&ctx, o] {
     auto db = ctx.open_ledger(store::Access::write);
-    const auto ids = ledger::void_transaction(db, o->id, o->reason);
-    out(fmt::format("voided {} ({} void entr{} recorded)\n", o->id, ids.size(),
-                    ids.size() == 1 ? "y" : "ies"));
+    const auto result = ledger::void_transaction(db, o->id, o->reason);
+    const bool reinstating = result.cancelled.empty();
+    const auto& shown = reinstating ? result.reinstated : result.cancelled;
+    const bool one = shown.size() == 1;
+    auto ids = [](const std::vector<std::int64_t>& list) {
+      std::string text;
+      for (std::size_t i = 0; i < list.size(); ++i)
+        text += (i == 0 ? "" : i + 1 == list.size() ? " and " : ", ") + std::to_string(list[i]);
+      return text;
+    };
+    std::string text = fmt::format("void entr{} {} recorded; ",
+                                   result.void_ids.size() == 1 ? "y" : "ies", ids(result.void_ids));
+    text += reinstating ? fmt::format("{} back in the books:\n", one ? "this is" : "these are")
+                        : fmt::format("{} now out of the books:\n", one ? "this is" : "these are");
+    const auto names = LedgerNames::load(db);
+    const auto voided = voided_ids(store::list_transactions(db));
+    auto table = history_table();
+    for (const auto& t : shown) table.add_row(history_cells(t, names, voided));
+    text += table.render({ctx.colour()});
+    const char* it = one ? "it" : "them";
+    text += reinstating
+                ? fmt::format("To take {} out again, void {}.\n", it, result.void_ids.front())
+                : fmt::format("To put {} back, void {}.\n", it, result.void_ids.front());
+    out(text);
   });
 }
 

@@ -6,9 +6,11 @@
 #include <nlohmann/json.hpp>
 
 #include "cli/context.h"
+#include "cli/history_rows.h"
 #include "cli/options.h"
 #include "cli/print.h"
 #include "core/error.h"
+#include "io/json.h"
 #include "ledger/holdings.h"
 #include "ledger/posting.h"
 #include "report/gain_rows.h"
@@ -23,7 +25,7 @@ using report::Align;
 using report::Table;
 
 void print_json(const Json& j) {
-  out(j.dump(2) + "\n");
+  out(io::dump_json(j) + "\n");
 }
 std::string percent(const Decimal& part, const Decimal& whole) {
   if (whole.is_zero()) return "";
@@ -187,52 +189,18 @@ void add_history(CLI::App& app, Context& ctx) {
     auto db = ctx.open_ledger();
     std::optional<std::int64_t> only;
     if (!o->account.empty()) only = store::account_named(db, o->account).id;
-    std::map<std::int64_t, std::string> accounts, symbols;
-    for (const auto& a : store::list_accounts(db)) accounts[a.id] = a.name;
-    for (const auto& s : store::list_securities(db)) symbols[s.id] = s.symbol;
+    const auto names = LedgerNames::load(db);
     const auto txns = store::list_transactions(db);
     const auto voided = voided_ids(txns);
-    auto opt = [](const std::optional<Decimal>& d) { return d ? d->str() : std::string(); };
     Json j = Json::array();
-    Table t({{"id", Align::right},
-             {"date"},
-             {"account"},
-             {"kind"},
-             {"symbol"},
-             {"quantity", Align::right},
-             {"price", Align::right},
-             {"amount", Align::right},
-             {"fee", Align::right},
-             {"ref"},
-             {"note"}});
+    Table t = history_table();
     for (const auto& x : txns) {
       if (only && x.account_id != *only) continue;
       if (x.date < from || x.date > to) continue;
-      const std::string symbol = x.security_id ? symbols[*x.security_id] : "";
-      std::string note = x.note.value_or("");
-      if (x.voids_id) note = fmt::format("voids {}: {}", *x.voids_id, note);
-      if (voided.count(x.id)) note = "[void] " + note;
-      if (x.link_id) note += fmt::format(" (pair of {})", *x.link_id);
-      if (o->json) {
-        j.push_back({{"id", x.id},
-                     {"date", x.date.str()},
-                     {"account", accounts[x.account_id]},
-                     {"kind", to_string(x.kind)},
-                     {"symbol", symbol},
-                     {"quantity", opt(x.quantity)},
-                     {"price", opt(x.price)},
-                     {"amount", opt(x.amount)},
-                     {"fee", x.fee.str()},
-                     {"ref", x.ref.value_or("")},
-                     {"note", x.note.value_or("")},
-                     {"voided", voided.count(x.id) > 0},
-                     {"voids", x.voids_id ? Json(*x.voids_id) : Json()},
-                     {"link", x.link_id ? Json(*x.link_id) : Json()}});
-      } else {
-        t.add_row({std::to_string(x.id), x.date.str(), accounts[x.account_id],
-                   std::string(to_string(x.kind)), symbol, opt(x.quantity), opt(x.price),
-                   opt(x.amount), x.fee.is_zero() ? "" : x.fee.str(), x.ref.value_or(""), note});
-      }
+      if (o->json)
+        j.push_back(history_json(x, names, voided));
+      else
+        t.add_row(history_cells(x, names, voided));
     }
     if (o->json)
       print_json(j);

@@ -9,6 +9,7 @@
 #include "cli/options.h"
 #include "cli/print.h"
 #include "core/error.h"
+#include "io/json.h"
 #include "perf/returns_report.h"
 #include "report/table.h"
 
@@ -247,7 +248,7 @@ void add_returns(CLI::App& app, Context& ctx) {
     auto db = ctx.open_ledger();
     const auto rep = perf::returns_report(db, request);
     if (o->json) {
-      out(to_json(rep, o->method, o->monthly).dump(2) + "\n");
+      out(io::dump_json(to_json(rep, o->method, o->monthly)) + "\n");
       return;
     }
     out(fmt::format("Returns of {} from {} to {} ({} days)\n\n", rep.scope, rep.result.from.str(),

@@ -12,6 +12,7 @@
 #include "cli/print.h"
 #include "core/error.h"
 #include "core/text.h"
+#include "io/json.h"
 #include "report/table.h"
 #include "rules/propose.h"
 
@@ -42,6 +43,8 @@ struct ProposeOptions {
 class JsonText {
  public:
   static std::string q(std::string_view v) {
+    // Text stored from outside keel may not be UTF-8; JSON must be (as io::dump_json).
+    if (!valid_utf8(v)) return q(to_valid_utf8(v));
     bool plain = true;
     for (const char c : v) plain &= c != '"' && c != '\\' && static_cast<unsigned char>(c) >= 0x20;
     if (plain) {
@@ -321,7 +324,7 @@ void add_proposals(CLI::App& app, Context& ctx) {
                      {"pool_value", p.pool_value.str()},
                      {"orders", p.order_count},
                      {"saved_at", p.saved_at}});
-      out(j.dump(2) + "\n");
+      out(io::dump_json(j) + "\n");
       return;
     }
     Table t({{"id", Align::right},
@@ -367,7 +370,7 @@ void add_proposals(CLI::App& app, Context& ctx) {
                               {"avg_price", l.avg_price ? Json(l.avg_price->str()) : Json()},
                               {"status", l.status}});
       j["cautions"] = rules::proposal_cautions(p.as_of);
-      out(j.dump(2) + "\n");
+      out(io::dump_json(j) + "\n");
       return;
     }
     out(fmt::format("Proposal {} of rule '{}' as of {}, saved {}\n", p.id, printable(p.rule_name),

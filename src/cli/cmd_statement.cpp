@@ -16,6 +16,7 @@
 #include "core/error.h"
 #include "core/files.h"
 #include "core/text.h"
+#include "io/json.h"
 #include "report/statement.h"
 #include "report/statement_forms.h"
 
@@ -77,7 +78,9 @@ void add_statement(CLI::App& app, Context& ctx) {
   add_json_flag(*cmd, o->json);
   cmd->callback([&ctx, o] {
     report::StatementRequest request;
-    request.year = whole_number(o->year, "--year", 1, 9999, "a calendar year (1 to 9999)");
+    request.year =
+        whole_number(o->year, "--year", report::kFirstStatementYear, report::kLastStatementYear,
+                     fmt::format("a year a statement covers ({})", report::statement_years()));
     request.account = text_option(o->account);
     request.benchmark = text_option(o->benchmark);
     if (!o->long_term_days.empty())
@@ -107,7 +110,7 @@ void add_statement(CLI::App& app, Context& ctx) {
     auto db = ctx.open_ledger();
     const report::Statement s = report::build_statement(db, request);
     if (o->json) {
-      out(report::statement_json(s).dump(2) + "\n");
+      out(io::dump_json(report::statement_json(s)) + "\n");
     } else if (o->html.empty() && o->pdf.empty() && o->xlsx.empty() && o->csv.empty()) {
       out(report::statement_text(s, ctx.colour()));
     }

@@ -12,8 +12,10 @@
 #include "core/text.h"
 #include "io/csv.h"
 #include "io/errors.h"
+#include "io/json.h"
 #include "io/sha256.h"
 #include "io/table.h"
+#include "ledger/accounts.h"
 #include "ledger/posting.h"
 #include "store/ledger_store.h"
 #include "store/market_data.h"
@@ -201,6 +203,8 @@ LedgerImportSummary import_transactions(store::Database& db, const std::filesyst
     while (t.next()) {
       ledger::PostRequest r;
       if (!read_request(t, r)) continue;
+      r.allow_future = options.allow_future;
+      if (!r.allow_future && !t.not_future(kDate, r.date)) continue;
       const auto account = store::find_account(db, r.account);
       if (!account) {
         t.error(kAccount, fmt::format("unknown account '{}'", printable(r.account)));
@@ -297,7 +301,7 @@ LedgerImportSummary import_accounts(store::Database& db, const std::filesystem::
             ++sum.already_booked;
           continue;
         }
-        store::insert_account(db, a);
+        ledger::add_account(db, a);
         ++sum.added;
       } catch (const InputError& e) {
         t.error(npos, e.what());
@@ -323,7 +327,7 @@ void write_rows(ExportFormat format, const std::vector<std::string>& header,
     append_csv_record(text, fields);
     for (const auto& row : rows) {
       fields.assign(row.begin(), row.end());
-      append_csv_record(text, fields);
+      append_export_record(text, fields);
     }
   } else {
     nlohmann::ordered_json array = nlohmann::ordered_json::array();
@@ -333,7 +337,7 @@ void write_rows(ExportFormat format, const std::vector<std::string>& header,
         if (!row[i].empty()) object[header[i]] = row[i];
       array.push_back(std::move(object));
     }
-    text = array.dump(2) + "\n";
+    text = dump_json(array) + "\n";
   }
   out.write(text);
 }

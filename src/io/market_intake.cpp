@@ -8,6 +8,7 @@
 #include "core/text.h"
 #include "io/csv.h"
 #include "io/errors.h"
+#include "io/json.h"
 #include "io/table.h"
 #include "store/ledger_store.h"
 
@@ -139,7 +140,7 @@ void import_rows(MarketKind what, Run& r, const ImportOptions& options, CsvReade
         std::string_view name;
         if (t.text(2, name)) {
           try {
-            check_name("metric name", name, 60);
+            check_identifier("metric name", name, 60);
           } catch (const InputError& e) {
             t.error(2, e.what());
             ok = false;
@@ -197,6 +198,7 @@ void import_rows(MarketKind what, Run& r, const ImportOptions& options, CsvReade
     case MarketKind::splits:
       while (t.next()) {
         bool ok = t.date(0, a);
+        if (ok && !options.allow_future) ok = t.not_future(0, Date::parse(a));
         const std::size_t sec = r.security(1);
         ok = t.decimal(2, b) && r.positive(2, b) && ok && sec != store::MarketWriter::kUnknown;
         if (ok) {
@@ -226,13 +228,13 @@ void import_rows(MarketKind what, Run& r, const ImportOptions& options, CsvReade
         };
         if (t.text(0, text)) {
           s.symbol = text;
-          field(0, [&] { check_name("symbol", s.symbol, 40); });
+          field(0, [&] { check_identifier("symbol", s.symbol, 40); });
         } else {
           ok = false;
         }
         if (t.text(1, text)) {
           s.name = text;
-          field(1, [&] { check_name("name", s.name, 200); });
+          field(1, [&] { check_identifier("name", s.name, 200); });
         } else {
           ok = false;
         }
@@ -252,7 +254,7 @@ void import_rows(MarketKind what, Run& r, const ImportOptions& options, CsvReade
         }
         if (t.has(5)) {
           s.sector = std::string(t.raw(5));
-          field(5, [&] { check_name("sector", *s.sector, 100); });
+          field(5, [&] { check_identifier("sector", *s.sector, 100); });
         }
         if (ok)
           r.count(
@@ -368,7 +370,7 @@ class Writer {
   void row(const std::vector<std::string_view>& values, std::size_t nullable = npos) {
     ++rows_;
     if (format_ == ExportFormat::csv) {
-      append_csv_record(sink_.buf(), values);
+      append_export_record(sink_.buf(), values);
     } else {
       nlohmann::ordered_json o;
       for (std::size_t i = 0; i < names_.size(); ++i) {
@@ -378,7 +380,7 @@ class Writer {
           o[std::string(names_[i])] = std::string(values[i]);
       }
       sink_.buf() += rows_ == 1 ? "\n" : ",\n";
-      sink_.buf() += o.dump();
+      sink_.buf() += dump_json(o, -1);
     }
     sink_.maybe_flush();
   }

@@ -40,6 +40,7 @@ struct ImportOptions {
   std::optional<Mapping> mapping;
   bool dry_run = false;
   bool replace = false;
+  bool allow_future = false;  // accept transactions and splits dated after today
   // Called every so many rows with (rows so far, bytes read, file size).
   std::function<void(std::uint64_t, std::uint64_t, std::uint64_t)> progress;
 };

@@ -5,6 +5,7 @@
 #include <algorithm>
 
 #include "core/text.h"
+#include "ledger/posting.h"
 
 namespace keel::io {
 namespace {
@@ -157,13 +158,21 @@ std::string_view TableReader::raw(std::size_t col) const {
     return negative ? mapping_.sign_rule->negative : mapping_.sign_rule->positive;
   }
   std::string_view v;
-  if (c.field != npos) v = record_.fields[c.field];
+  // A cell guarded against spreadsheet formulas on export reads back as it was.
+  if (c.field != npos) v = formula_unguarded(record_.fields[c.field]);
   if (v.empty()) v = c.default_value;
   if (c.values && !v.empty()) {
     lower_ = ascii_lower(v);
     if (auto it = c.values->find(lower_); it != c.values->end()) return it->second;
   }
   return v;
+}
+
+bool TableReader::not_future(std::size_t col, Date date) {
+  const auto why = ledger::future_date(date);
+  if (why)
+    error(col, fmt::format("{}; give {} to import it anyway", *why, ledger::kAllowFutureFlag));
+  return !why;
 }
 
 void TableReader::error(std::size_t col, std::string reason) {

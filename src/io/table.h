@@ -23,6 +23,7 @@
 #include <string_view>
 #include <vector>
 
+#include "core/date.h"
 #include "io/csv.h"
 #include "io/errors.h"
 #include "io/mapping.h"
@@ -55,6 +56,9 @@ class TableReader {
   bool date(std::size_t col, std::string& out);
   bool decimal(std::size_t col, std::string& out);
   void error(std::size_t col, std::string reason);  // col = npos: the row as a whole
+  // Whether a posting `date` read from column `col` is today or earlier
+  // (ledger::future_date); records the error, naming the override, if not.
+  bool not_future(std::size_t col, Date date);
   const std::string& header_name(std::size_t col) const { return columns_[col].shown; }
 
  private:

@@ -25,10 +25,24 @@ void forbid(bool present, std::string_view kind, std::string_view field) {
   require(!present, kind, fmt::format("--{} does not apply", field));
 }
 
+void refuse_future(Date date, bool allowed, std::string_view what) {
+  if (allowed) return;
+  if (const auto why = future_date(date))
+    throw InputError(
+        fmt::format("{}: --date {}; give {} to post it anyway", what, *why, kAllowFutureFlag));
+}
+
 }  // namespace
+
+std::optional<std::string> future_date(Date date) {
+  const Date today = Date::today();
+  if (date <= today) return std::nullopt;
+  return fmt::format("{} is after today ({})", date.str(), today.str());
+}
 
 void check_shape(const PostRequest& r) {
   const std::string_view kind = to_string(r.kind);
+  refuse_future(r.date, r.allow_future, kind);
   require(r.kind != TxnKind::void_entry, kind, "use 'keel void ID --reason TEXT' instead");
   if (r.fee) require(!r.fee->is_negative(), kind, "--fee must not be negative");
   forbid(!r.lots.empty() && r.kind != TxnKind::sell && r.kind != TxnKind::transfer_out, kind,
@@ -36,7 +50,7 @@ void check_shape(const PostRequest& r) {
   forbid(r.to_account && r.kind != TxnKind::transfer_out, kind, "to-account");
   forbid(r.acquired && r.kind != TxnKind::transfer_in, kind, "acquired");
   if (r.note) check_name("note", *r.note, 4000);
-  if (r.ref) check_name("ref", *r.ref, 200);
+  if (r.ref) check_identifier("ref", *r.ref, 200);
 
   if (is_cash_kind(r.kind)) {
     require_positive(r.amount, kind, "amount");
@@ -176,7 +190,8 @@ std::vector<std::int64_t> post(store::Database& db, const PostRequest& request) 
 }
 
 std::int64_t post_split(store::Database& db, const std::string& symbol, Date date,
-                        const Decimal& ratio) {
+                        const Decimal& ratio, bool allow_future) {
+  refuse_future(date, allow_future, "split");
   if (!ratio.is_positive())
     throw InputError(fmt::format("split: --ratio must be positive, not {}", ratio.str()));
   if (ratio == Decimal(1)) throw InputError("split: a ratio of 1 changes nothing");
@@ -188,36 +203,84 @@ std::int64_t post_split(store::Database& db, const std::string& symbol, Date dat
   return id;
 }
 
-std::vector<std::int64_t> void_transaction(store::Database& db, std::int64_t id,
-                                           const std::string& reason) {
+namespace {
+
+// The rows that stand or fall together with `row`: a transaction and the
+// other half of its transfer pair; for a void, the voids of that group's rows.
+std::vector<Transaction> void_group(const std::vector<Transaction>& all, const Transaction& row) {
+  auto by_id = [&](std::int64_t id) -> const Transaction* {
+    for (const auto& t : all)
+      if (t.id == id) return &t;
+    return nullptr;
+  };
+  // Down the chain of voids to the transaction they concern.
+  std::vector<const Transaction*> chain{&row};
+  while (chain.back()->kind == TxnKind::void_entry && chain.back()->voids_id) {
+    const Transaction* below = by_id(*chain.back()->voids_id);
+    if (!below || chain.size() > all.size()) break;
+    chain.push_back(below);
+  }
+  std::vector<const Transaction*> group{chain.back()};
+  const Transaction& base = *chain.back();
+  for (const auto& t : all)
+    if (t.kind != TxnKind::void_entry &&
+        ((base.link_id && t.id == *base.link_id) || (t.link_id && *t.link_id == base.id)))
+      group.push_back(&t);
+  // Back up: each level is the voids of the level below.
+  for (std::size_t level = chain.size() - 1; level-- > 0;) {
+    std::vector<const Transaction*> up;
+    for (const Transaction* member : group)
+      for (const auto& t : all)
+        if (t.kind == TxnKind::void_entry && t.voids_id && *t.voids_id == member->id)
+          up.push_back(&t);
+    group = std::move(up);
+  }
+  std::vector<Transaction> out;
+  for (const Transaction* t : group) out.push_back(*t);
+  return out;
+}
+
+}  // namespace
+
+VoidResult void_transaction(store::Database& db, std::int64_t id, const std::string& reason) {
   check_name("reason", reason, 4000);
   store::WriteTransaction tx(db);
   const auto target = store::find_transaction(db, id);
   if (!target) throw InputError(fmt::format("there is no transaction {}", id));
-  if (target->kind == TxnKind::void_entry)
-    throw InputError(fmt::format("transaction {} is itself a void and cannot be voided", id));
-  if (auto existing = store::void_of(db, id))
-    throw InputError(fmt::format("transaction {} is already void (by {})", id, *existing));
+  const auto all = store::list_transactions(db);
+  const auto cancelled_before = voided_ids(all);
+  if (auto by = store::void_of(db, id)) {
+    if (cancelled_before.count(id))
+      throw InputError(fmt::format(
+          "transaction {} is already void (by {}); to put it back in the books, void {}", id, *by,
+          *by));
+    const auto again = store::void_of(db, *by);
+    throw InputError(
+        fmt::format("transaction {} was voided by {} and put back by {}; to void it again, void {}",
+                    id, *by, again ? *again : *by, again ? *again : *by));
+  }
 
-  std::vector<Transaction> targets{*target};
-  // The two halves of an internal transfer stand or fall together.
-  if (target->link_id) targets.push_back(*store::find_transaction(db, *target->link_id));
-  for (const auto& t : store::list_transactions(db))
-    if (t.link_id && *t.link_id == id && t.kind != TxnKind::void_entry) targets.push_back(t);
-
-  std::vector<std::int64_t> ids;
-  for (const auto& t : targets) {
+  VoidResult result;
+  for (const auto& t : void_group(all, *target)) {
     Transaction v;
     v.account_id = t.account_id;
     v.date = t.date;
     v.kind = TxnKind::void_entry;
     v.voids_id = t.id;
     v.note = reason;
-    ids.push_back(store::insert_transaction(db, v));
+    result.void_ids.push_back(store::insert_transaction(db, v));
   }
   check_ledger(db);
+  // What changed: rows cancelled now that were not, and rows back in force.
+  const auto after = store::list_transactions(db);
+  const auto cancelled_after = voided_ids(after);
+  for (const auto& t : after) {
+    const bool was = cancelled_before.count(t.id) > 0, is = cancelled_after.count(t.id) > 0;
+    if (t.kind != TxnKind::void_entry && is && !was) result.cancelled.push_back(t);
+    if (t.kind != TxnKind::void_entry && was && !is) result.reinstated.push_back(t);
+  }
   tx.commit();
-  return ids;
+  return result;
 }
 
 }  // namespace keel::ledger

@@ -5,8 +5,8 @@
 // names, writes the row(s) and replays the whole ledger inside one write
 // transaction; if any rule breaks (see ledger/book.h), it throws InputError
 // and nothing is written. void_transaction() cancels a posted row (and the
-// other half of a transfer pair) by recording void entries, under the same
-// all-or-nothing check.
+// other half of a transfer pair), or reinstates it by voiding its void, by
+// recording void entries, under the same all-or-nothing check.
 #pragma once
 
 #include <cstdint>
@@ -36,9 +36,20 @@ struct PostRequest {
   std::optional<std::string> ref;
   std::optional<std::string> note;
   std::optional<std::string> row_hash;  // set by importers for rows without ref
+  bool allow_future = false;            // accept a date after today
 };
 
-// Throws InputError naming the first figure that is missing, extra or not positive.
+// Why `date` may not be posted without an explicit override: "2099-12-31 is
+// after today (2026-12-03)"; unset when it is today or earlier. Today is the
+// local calendar day (Date::today, which follows TZ). A posting in the future
+// is far more often a slip of the keyboard than a trade booked ahead of
+// settlement, and year-to-date reports would run to it.
+std::optional<std::string> future_date(Date date);
+// The flag that overrides it, named in every refusal.
+inline constexpr const char* kAllowFutureFlag = "--allow-future-date";
+
+// Throws InputError naming the first figure that is missing, extra or not
+// positive, or a date after today without allow_future.
 void check_shape(const PostRequest& request);
 
 // Posts one request; returns the ids written (two for an internal transfer).
@@ -60,12 +71,22 @@ std::vector<std::int64_t> post_batch(store::Database& db, const std::vector<Post
                                      const std::vector<std::string>& origins);
 
 // Records a split of `symbol` on `date`; ratio = new units per old unit.
+// A date after today is refused unless `allow_future`.
 std::int64_t post_split(store::Database& db, const std::string& symbol, Date date,
-                        const Decimal& ratio);
+                        const Decimal& ratio, bool allow_future = false);
 
-// Cancels transaction `id`; returns the ids of the void entries written.
-std::vector<std::int64_t> void_transaction(store::Database& db, std::int64_t id,
-                                           const std::string& reason);
+// Records a void of row `id` (and of the rows that stand or fall with it:
+// the other half of a transfer pair; for a void, the voids of that pair).
+// Voiding a transaction takes it out of the books; voiding a void puts what
+// it had cancelled back (voided_ids() in ledger/book.h). Refuses a row that
+// already has a void, saying which void to void instead. Same all-or-nothing
+// check as post().
+struct VoidResult {
+  std::vector<std::int64_t> void_ids;   // the void entries written
+  std::vector<Transaction> cancelled;   // transactions now out of the books
+  std::vector<Transaction> reinstated;  // transactions back in the books
+};
+VoidResult void_transaction(store::Database& db, std::int64_t id, const std::string& reason);
 
 LedgerLog load_log(store::Database& db);
 

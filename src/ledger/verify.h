@@ -6,14 +6,23 @@
 //  3. an independent recount: each account's cash and each position's units
 //     summed straight from the raw rows (splits applied by date), compared
 //     with what the lot engine holds. keel stores nothing derived, so this
-//     cross-checks the engine itself.
-// Problems make the ledger suspect; warnings are facts worth a look.
+//     cross-checks the engine itself;
+//  4. signs (check_signs): no open lot and no realized part may carry a cost
+//     below zero, nor a part proceeds below zero unless the whole sale's
+//     net proceeds are (a fee above the gross: a warning, not a problem).
+//  5. text: cells that are not valid UTF-8, and names, symbols and references
+//     holding invisible characters (store::text_problems, name_warnings).
+// Problems make the ledger suspect; warnings are facts worth a look (text
+// problems are warnings: every figure is still sound, and reports replace
+// ill-formed bytes with U+FFFD in JSON and show them escaped on terminals).
 #pragma once
 
 #include <cstddef>
 #include <string>
 #include <vector>
 
+#include "ledger/book.h"
+#include "ledger/holdings.h"
 #include "store/database.h"
 
 namespace keel::ledger {
@@ -27,5 +36,11 @@ struct VerifyReport {
 };
 
 VerifyReport verify(store::Database& db);
+
+struct Findings {
+  std::vector<std::string> problems;
+  std::vector<std::string> warnings;
+};
+Findings check_signs(const std::vector<RealizedPart>& realized, const std::vector<LotLine>& open);
 
 }  // namespace keel::ledger

@@ -465,10 +465,8 @@ OrderPlan plan_once(const Portfolio& portfolio, const std::vector<Target>& targe
       if (fresh) it->second = make_order(x, p.account, Side::sell, Decimal(), reason);
       it->second.quantity += take;
       if (p.real) {
-        // Basis of the part taken, in proportion, to the cent (as the ledger cuts lots).
-        const Decimal cost = take == p.lot.quantity
-                                 ? p.lot.cost
-                                 : Decimal::divide(p.lot.cost * take, p.lot.quantity, 2);
+        // Basis of the part taken, exactly as the ledger will cut the lot.
+        const Decimal cost = cost_share(p.lot.cost, take, p.lot.quantity);
         it->second.lots.push_back(LotTake{p.lot.lot_id, p.lot.acquired, take, cost,
                                           take * price - cost,
                                           ledger::held_long_term(p.lot.acquired, as_of)});

@@ -11,6 +11,7 @@
 #include "core/error.h"
 #include "core/text.h"
 #include "io/sha256.h"
+#include "ledger/accounts.h"
 #include "ledger/posting.h"
 #include "store/ledger_store.h"
 #include "store/point_in_time.h"
@@ -28,6 +29,32 @@ std::string join(const std::vector<std::string>& items) {
 constexpr int kOldCloseDays = 7;
 
 }  // namespace
+
+std::optional<std::string> keep_currency(const Rule& rule, const std::string& currency,
+                                         const std::vector<const Security*>& sleeves,
+                                         std::vector<const Security*>& universe) {
+  auto refuse = [&](std::string_view key, const Security& s) {
+    rule.fail(key, fmt::format("{} is priced in {} and the rule trades in {}; keel does not "
+                               "convert between currencies yet",
+                               printable(s.symbol), s.currency, currency));
+  };
+  for (const Security* s : sleeves)
+    if (s->currency != currency) refuse("sleeve.symbol", *s);
+  if (rule.universe == Universe::list) {
+    for (const Security* s : universe)
+      if (s->currency != currency) refuse("scope.symbols", *s);
+    return std::nullopt;
+  }
+  const auto kept = std::stable_partition(
+      universe.begin(), universe.end(), [&](const Security* s) { return s->currency == currency; });
+  const auto left_out = static_cast<std::size_t>(universe.end() - kept);
+  universe.erase(kept, universe.end());
+  if (left_out == 0) return std::nullopt;
+  return fmt::format(
+      "{} stock{} priced in other currencies than {} {} left out of the universe "
+      "(keel does not convert between currencies yet)",
+      left_out, left_out == 1 ? "" : "s", currency, left_out == 1 ? "is" : "are");
+}
 
 std::vector<std::string> proposal_cautions(Date as_of) {
   return {
@@ -47,18 +74,6 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
   Proposal p;
   p.rule_name = rule.name;
   p.rule_sha256 = io::sha256_hex(rule.text);
-  if (as_of_opt) {
-    p.as_of = *as_of_opt;
-  } else {
-    const auto latest = store::latest_close_day(db);
-    if (!latest)
-      throw InputError(
-          "the ledger holds no closes to value the accounts at; import prices first "
-          "('keel import prices FILE') or give --as-of");
-    p.as_of = *latest;
-  }
-  const Date as_of = p.as_of;
-
   // The rule's accounts.
   std::vector<Account> pool;
   {
@@ -73,7 +88,54 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
       pool.push_back(*a);
       p.accounts.push_back(a->name);
     }
+    if (const auto mixed = ledger::mixed_currencies(pool))
+      rule.fail("scope.accounts",
+                fmt::format("the accounts keep different currencies ({}) and keel does not convert "
+                            "between them yet; give each currency a rule of its own",
+                            *mixed));
   }
+
+  // The as-of day. By default it takes in every transaction of the rule's
+  // accounts: trades recorded after the latest close (the fills of the last
+  // proposal, say) must count, or their orders would be proposed again.
+  const auto log = ledger::load_log(db);
+  std::optional<Date> last_posting;
+  std::size_t later_postings = 0;
+  {
+    const auto voided = voided_ids(log.transactions);
+    std::set<std::int64_t> pool_ids;
+    for (const auto& a : pool) pool_ids.insert(a.id);
+    for (const auto& t : log.transactions) {
+      if (t.kind == TxnKind::void_entry || voided.count(t.id) || !pool_ids.count(t.account_id))
+        continue;
+      if (!last_posting || t.date > *last_posting) last_posting = t.date;
+      if (as_of_opt && t.date > *as_of_opt) ++later_postings;
+    }
+  }
+  if (as_of_opt) {
+    p.as_of = *as_of_opt;
+    if (later_postings > 0)
+      p.notes.push_back(fmt::format(
+          "{} transaction{} in the rule's accounts {} dated after {} and not taken into account: "
+          "this proposal may repeat orders already filled",
+          later_postings, later_postings == 1 ? "" : "s", later_postings == 1 ? "is" : "are",
+          as_of_opt->str()));
+  } else {
+    const auto latest = store::latest_close_day(db);
+    if (!latest)
+      throw InputError(
+          "the ledger holds no closes to value the accounts at; import prices first "
+          "('keel import prices FILE') or give --as-of");
+    p.as_of = *latest;
+    if (last_posting && *last_posting > *latest) {
+      p.as_of = *last_posting;
+      p.notes.push_back(fmt::format(
+          "as of {}, the day of the latest transaction in the rule's accounts, after the latest "
+          "close ({}): what was traded since that close is valued at its trade price",
+          last_posting->str(), latest->str()));
+    }
+  }
+  const Date as_of = p.as_of;
 
   // Securities: the universe and the sleeves.
   const auto securities = store::list_securities(db);
@@ -84,12 +146,14 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
     by_id[s.id] = &s;
   }
   std::vector<std::int64_t> sleeve_ids;
+  std::vector<const Security*> sleeves;
   for (const auto& sl : rule.weights.sleeves) {
     const auto it = by_symbol.find(sl.symbol);
     if (it == by_symbol.end())
       rule.fail("sleeve.symbol",
                 fmt::format("no security '{}' in the ledger", printable(sl.symbol)));
     sleeve_ids.push_back(it->second->id);
+    sleeves.push_back(it->second);
   }
   const std::set<std::int64_t> sleeve_set(sleeve_ids.begin(), sleeve_ids.end());
   std::vector<const Security*> universe;
@@ -120,6 +184,8 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
           "securities first",
           printable(rule.source)));
   }
+  if (auto note = keep_currency(rule, pool.front().currency, sleeves, universe))
+    p.notes.push_back(std::move(*note));
   if (!store::metric_exists(db, rule.screen.metric)) {
     const auto names = store::metric_names(db);
     std::string why =
@@ -134,7 +200,6 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
   }
 
   // The pool's state on the as-of day.
-  const auto log = ledger::load_log(db);
   Replayer replayer(log);
   const Book& book = replayer.advance_to(as_of);
   p.last_txn_id = store::last_transaction_id(db);
@@ -201,18 +266,25 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
     Quote q;
     q.symbol = s.symbol;
     q.lot_size = s.lot_size;
-    if (const auto& c = close_of(s.id)) {
+    const auto trade = book.last_trade(s.id);
+    if (const auto& c = close_of(s.id); c && trade && trade->day > c->first) {
+      // Traded after its latest close: the trade is the fresher price.
+      q.price = trade->price;
+      p.notes.push_back(
+          fmt::format("{}: valued at its trade price {} of {}, later than its "
+                      "latest close ({})",
+                      printable(s.symbol), trade->price.str(), trade->day.str(), c->first.str()));
+    } else if (c) {
       q.price = c->second;
       if (as_of - c->first > kOldCloseDays && (t.weight.is_positive() || held.count(s.id)))
         p.notes.push_back(fmt::format("{}: the latest close on or before {} is from {}",
                                       printable(s.symbol), as_of.str(), c->first.str()));
     } else {
       q.tradable = false;
-      const auto trade = book.last_trade_price(s.id);
-      q.price = trade.value_or(Decimal());
+      q.price = trade ? trade->price : Decimal();
       p.notes.push_back(fmt::format(
           "{}: no close on or before {}; valued at {}", printable(s.symbol), as_of.str(),
-          trade ? "its last trade price " + trade->str() : "zero (it never traded)"));
+          trade ? "its last trade price " + trade->price.str() : "zero (it never traded)"));
     }
     quotes.emplace(s.id, std::move(q));
   }

@@ -2,6 +2,7 @@
 
 #include <SQLiteCpp/Statement.h>
 
+#include <algorithm>
 #include <vector>
 
 namespace keel::store {
@@ -18,7 +19,13 @@ std::string content_dump(Database& db) {
   for (const auto& table : tables) {
     dump += "== " + table + "\n";
     // Table names come from the schema itself, never from a user.
-    SQLite::Statement st(db.sql(), "SELECT * FROM \"" + table + "\" ORDER BY 1, 2, 3");
+    SQLite::Statement count(db.sql(), "SELECT count(*) FROM pragma_table_info(?)");
+    count.bind(1, table);
+    count.executeStep();
+    std::string order = "1";
+    for (int c = 2; c <= std::min(3, count.getColumn(0).getInt()); ++c)
+      order += ", " + std::to_string(c);
+    SQLite::Statement st(db.sql(), "SELECT * FROM \"" + table + "\" ORDER BY " + order);
     while (st.executeStep()) {
       for (int c = 0; c < st.getColumnCount(); ++c) {
         const auto col = st.getColumn(c);

@@ -105,8 +105,28 @@ std::string utc_timestamp() {
                      utc.tm_mday, utc.tm_hour, utc.tm_min, utc.tm_sec);
 }
 
+std::optional<std::string> ledger_currency(Database& db) {
+  SQLite::Statement st(db.sql(), "SELECT currency FROM ledger_setting WHERE id = 1");
+  if (!st.executeStep()) return std::nullopt;
+  return opt_text(st.getColumn(0));
+}
+
+void set_ledger_currency(Database& db, const std::string& currency) {
+  if (const auto now = ledger_currency(db)) {
+    if (*now == currency) return;
+    throw InputError(fmt::format(
+        "the ledger's currency is {}; it is set once and never changed (keel does not convert "
+        "amounts already booked)",
+        *now));
+  }
+  SQLite::Statement st(db.sql(), "UPDATE ledger_setting SET currency = ? WHERE id = 1");
+  st.bind(1, currency);
+  st.exec();
+}
+
 std::int64_t insert_account(Database& db, const Account& a) {
-  check_name("account name", a.name, 200);
+  check_identifier("account name", a.name, 200);
+  normalize_currency(a.currency);  // refuses anything but three letters
   SQLite::Statement st(db.sql(),
                        "INSERT INTO account (name, currency, basis_method, allow_negative_cash, "
                        "created_at) VALUES (?, ?, ?, ?, ?)");

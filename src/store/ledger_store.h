@@ -18,6 +18,11 @@
 
 namespace keel::store {
 
+// The ledger's own currency (schema version 3), unset until recorded.
+std::optional<std::string> ledger_currency(Database& db);
+// Records it; throws InputError if another one is recorded already.
+void set_ledger_currency(Database& db, const std::string& currency);
+
 std::int64_t insert_account(Database& db, const Account& account);
 std::optional<Account> find_account(Database& db, std::string_view name);
 Account account_named(Database& db, std::string_view name);

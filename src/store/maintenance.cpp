@@ -3,13 +3,16 @@
 #include <SQLiteCpp/Backup.h>
 #include <SQLiteCpp/Statement.h>
 #include <fmt/format.h>
+#include <sqlite3.h>
 #include <unistd.h>
 
+#include <algorithm>
 #include <cerrno>
 #include <utility>
 
 #include "core/error.h"
 #include "core/files.h"
+#include "core/text.h"
 #include "store/ledger_lock.h"
 #include "store/ledger_store.h"
 #include "store/sqlite_error.h"
@@ -211,6 +214,128 @@ std::vector<std::string> data_warnings(Database& db) {
     out.push_back(fmt::format("transaction {} on {} trades {}, whose first close is on {}",
                               st.getColumn(0).getInt64(), st.getColumn(1).getString(),
                               st.getColumn(2).getString(), st.getColumn(3).getString()));
+  return out;
+}
+
+namespace {
+
+void sql_valid_utf8(sqlite3_context* context, int, sqlite3_value** args) {
+  const auto* text = static_cast<const char*>(sqlite3_value_blob(args[0]));
+  const auto size = static_cast<std::size_t>(sqlite3_value_bytes(args[0]));
+  sqlite3_result_int(context, valid_utf8(std::string_view(text ? text : "", size)) ? 1 : 0);
+}
+
+std::string quoted_identifier(const std::string& name) {
+  std::string out = "\"";
+  for (const char c : name) out += c == '"' ? std::string("\"\"") : std::string(1, c);
+  return out + "\"";
+}
+
+}  // namespace
+
+std::vector<std::string> text_problems(Database& db) {
+  db.sql().createFunction("keel_valid_utf8", 1, true, nullptr, &sql_valid_utf8);
+  std::vector<std::string> tables;
+  {
+    SQLite::Statement st(db.sql(),
+                         "SELECT name FROM sqlite_schema WHERE type = 'table' AND name NOT LIKE "
+                         "'sqlite\\_%' ESCAPE '\\' ORDER BY name");
+    while (st.executeStep()) tables.push_back(st.getColumn(0).getString());
+  }
+  std::vector<std::string> out;
+  for (const auto& table : tables) {
+    std::vector<std::string> columns, key;
+    {
+      // Table and column names come from the schema itself, never from input.
+      SQLite::Statement info(db.sql(), "SELECT name, pk FROM pragma_table_info(?) ORDER BY cid");
+      info.bind(1, table);
+      std::vector<std::pair<int, std::string>> pk;
+      while (info.executeStep()) {
+        columns.push_back(info.getColumn(0).getString());
+        if (const int n = info.getColumn(1).getInt(); n > 0) pk.emplace_back(n, columns.back());
+      }
+      std::sort(pk.begin(), pk.end());
+      for (const auto& [n, name] : pk) key.push_back(name);
+      if (key.empty()) key.push_back("rowid");
+    }
+    std::string key_list;
+    for (const auto& k : key) key_list += (key_list.empty() ? "" : ", ") + quoted_identifier(k);
+    for (const auto& column : columns) {
+      const std::string c = quoted_identifier(column);
+      SQLite::Statement st(db.sql(),
+                           fmt::format("SELECT {}, {} FROM {} WHERE typeof({}) = 'text' AND NOT "
+                                       "keel_valid_utf8({}) ORDER BY {}",
+                                       key_list, c, quoted_identifier(table), c, c, key_list));
+      while (st.executeStep()) {
+        std::string where;
+        for (std::size_t i = 0; i < key.size(); ++i)
+          where += fmt::format("{}{} {}", i ? ", " : "", key[i],
+                               printable(st.getColumn(static_cast<int>(i)).getString()));
+        out.push_back(
+            fmt::format("table {}, row {}, column {}: '{}' is not valid UTF-8", table, where,
+                        column, printable(st.getColumn(static_cast<int>(key.size())).getString())));
+      }
+    }
+  }
+  return out;
+}
+
+std::vector<std::string> name_warnings(Database& db) {
+  // (what, SQL giving a row label and the text)
+  static const std::pair<const char*, const char*> kNames[] = {
+      {"account name", "SELECT 'account ' || id, name FROM account ORDER BY id"},
+      {"symbol", "SELECT 'security ' || id, symbol FROM security ORDER BY id"},
+      {"security name", "SELECT 'security ' || id, name FROM security ORDER BY id"},
+      {"sector",
+       "SELECT 'security ' || id, sector FROM security WHERE sector IS NOT NULL "
+       "ORDER BY id"},
+      {"metric name", "SELECT 'metric', name FROM metric GROUP BY name ORDER BY name"},
+      {"ref", "SELECT 'transaction ' || id, ref FROM txn WHERE ref IS NOT NULL ORDER BY id"},
+  };
+  std::vector<std::string> out;
+  for (const auto& [what, sql] : kNames) {
+    SQLite::Statement st(db.sql(), sql);
+    while (st.executeStep()) {
+      const std::string text = st.getColumn(1).getString();
+      if (const auto which = invisible_code_point(text))
+        out.push_back(fmt::format("{}: {} '{}' contains {}, an invisible character",
+                                  st.getColumn(0).getString(), what, mark_invisible(text), *which));
+    }
+  }
+  return out;
+}
+
+std::vector<std::string> future_rows(Database& db, Date today) {
+  const std::string day = today.str();
+  std::vector<std::string> out;
+  // Postings one by one: (what, its date).
+  static const char* const kPostings[] = {
+      "SELECT 'transaction ' || id || ' (' || kind || ')', date FROM txn WHERE date > ? AND "
+      "kind <> 'void' ORDER BY date, id",
+      "SELECT 'the split of ' || s.symbol, p.date FROM split p JOIN security s ON s.id = "
+      "p.security_id WHERE p.date > ? ORDER BY p.date, s.symbol",
+  };
+  for (const char* sql : kPostings) {
+    SQLite::Statement st(db.sql(), sql);
+    st.bind(1, day);
+    while (st.executeStep())
+      out.push_back(fmt::format("{} is dated {}, after today ({})",
+                                printable(st.getColumn(0).getString()), st.getColumn(1).getString(),
+                                day));
+  }
+  static const std::pair<const char*, const char*> kMarket[] = {
+      {"closes are dated", "SELECT count(*), max(date) FROM price WHERE date > ?"},
+      {"metric figures become known",
+       "SELECT count(*), max(known_on) FROM metric WHERE known_on > ?"},
+  };
+  for (const auto& [what, sql] : kMarket) {
+    SQLite::Statement st(db.sql(), sql);
+    st.bind(1, day);
+    if (st.executeStep() && st.getColumn(0).getInt64() > 0)
+      out.push_back(fmt::format("{} {} after today ({}), the latest on {}",
+                                st.getColumn(0).getInt64(), what, day,
+                                st.getColumn(1).getString()));
+  }
   return out;
 }
 

@@ -24,6 +24,12 @@
 //  - data_warnings(): facts worth a person's look that the schema cannot
 //    forbid: metrics known before their period ends, transactions in a
 //    security dated before its first close.
+//  - text_problems(): every text cell of every table that is not valid UTF-8
+//    (keel never writes one; it comes from outside), naming the table, the
+//    row by its key and the column, with the bytes shown escaped.
+//  - name_warnings(): names, symbols, sectors, metric names and references
+//    stored with an invisible character (as check_identifier refuses today),
+//    naming it.
 #pragma once
 
 #include <filesystem>
@@ -31,6 +37,7 @@
 #include <string>
 #include <vector>
 
+#include "core/date.h"
 #include "store/database.h"
 
 namespace keel::store {
@@ -41,6 +48,11 @@ void copy_ledger_file(const std::filesystem::path& from, const std::filesystem::
 std::optional<std::filesystem::path> replace_ledger_file(const std::filesystem::path& ledger,
                                                          const std::filesystem::path& replacement);
 std::vector<std::string> data_warnings(Database& db);
+std::vector<std::string> text_problems(Database& db);
+std::vector<std::string> name_warnings(Database& db);
+// Rows dated after `today`: each transaction and split, and per table the
+// closes and metric figures (count and latest day).
+std::vector<std::string> future_rows(Database& db, Date today);
 
 // Opens `path` read-only without migrating; for checking a backup before
 // trusting it. Throws LedgerError if it is not a keel ledger this program can read.

@@ -8,6 +8,7 @@
 #include <array>
 
 #include "core/error.h"
+#include "core/text.h"
 #include "store/ledger_store.h"
 #include "store/sqlite_error.h"
 
@@ -605,7 +606,8 @@ std::int64_t record_import_run(Database& db, const ImportRun& run) {
                        "INSERT INTO import_run (what, file_name, file_sha256, rows_read, "
                        "rows_added, imported_at) VALUES (?, ?, ?, ?, ?, ?)");
   st.bind(1, run.what);
-  st.bind(2, run.file_name);
+  // A file name may hold any bytes; the ledger keeps only UTF-8 text, escaped as shown.
+  st.bind(2, printable(run.file_name));
   st.bind(3, run.file_sha256);
   st.bind(4, run.rows_read);
   st.bind(5, run.rows_added);

@@ -11,12 +11,15 @@ SOURCE = os.environ.get("KEEL_SOURCE_DIR", os.path.dirname(os.path.dirname(os.pa
 
 
 class Ledger:
-    """A fresh ledger in a temporary folder; run() returns (code, stdout, stderr)."""
+    """A fresh ledger in a temporary folder; run() returns (code, stdout, stderr).
 
-    def __init__(self):
+    Its own currency is `currency` (accounts and securities added without --currency take
+    it); None leaves it to the first account, as `keel init` without --currency does."""
+
+    def __init__(self, currency="USD"):
         self.dir = tempfile.TemporaryDirectory(prefix="keel-e2e-")
         self.path = os.path.join(self.dir.name, "ledger.db")
-        self.ok("init")
+        self.ok("init", *(["--currency", currency] if currency else []))
 
     def run(self, *args, stdin=None):
         env = dict(os.environ, NO_COLOR="1")

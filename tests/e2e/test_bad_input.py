@@ -9,6 +9,8 @@ extreme numbers and dates are exact or refused clearly.
 Set KEEL_SHOW=1 to print what each row produced instead of stopping at the first
 difference.
 """
+import datetime
+import hashlib
 import os
 import sqlite3
 import sys
@@ -17,6 +19,8 @@ sys.path.insert(0, os.path.dirname(__file__))
 from keel_cli import Ledger, check, equal, ledger_digest  # noqa: E402
 
 SHOW = os.environ.get("KEEL_SHOW") == "1"
+# keel's today is the local calendar day; so is Python's (both follow TZ).
+TODAY = datetime.date.today().isoformat()
 INPUT, USAGE, LEDGER = 1, 2, 3
 
 
@@ -109,6 +113,10 @@ TX = "date,account,kind,symbol,quantity,price,amount,fee,ref,note\n"
 import_row("transactions: a day that does not exist", "transactions",
            TX + f"2024-02-30,{T},deposit,,,,5,,,\n", INPUT,
            refused("{f}:2: column 'date': 2024-02-30 is not a day of the calendar"))
+import_row("transactions: a row dated 2099-12-31", "transactions",
+           TX + f"2099-12-31,{T},deposit,,,,5,,,\n", INPUT,
+           refused(f"{{f}}:2: column 'date': 2099-12-31 is after today ({TODAY}); give "
+                   "--allow-future-date to import it anyway"))
 import_row("transactions: unknown account", "transactions", TX + "2024-03-01,Nobody,deposit,,,,5,,,\n",
            INPUT, refused("{f}:2: column 'account': unknown account 'Nobody'"))
 import_row("transactions: oversell names the line", "transactions",
@@ -236,6 +244,9 @@ import_row("distributions: pay date before ex date", "distributions",
 import_row("distributions: zero per share", "distributions",
            "ex_date,symbol,per_share\n2024-03-10,QRX,0\n", INPUT,
            refused("{f}:2: column 'per_share': must be greater than zero"))
+import_row("splits: dated 2099-12-31", "splits", "date,symbol,ratio\n2099-12-31,QRX,2\n", INPUT,
+           refused(f"{{f}}:2: column 'date': 2099-12-31 is after today ({TODAY}); give "
+                   "--allow-future-date to import it anyway"))
 import_row("splits: negative ratio", "splits", "date,symbol,ratio\n2024-03-10,QRX,-2\n", INPUT,
            refused("{f}:2: column 'ratio': -2 must not be negative"))
 import_row("splits: header only in another layout, bad skip_lines", "splits", "x\n", INPUT,
@@ -249,6 +260,14 @@ row("import: unknown kind of data", ["import", "trades", "{d}/seed-prices.csv"],
 row("record: a day that does not exist",
     ["record", "deposit", "--date", "2024-02-30", "--account", T, "--amount", "5"], INPUT,
     "keel: error: --date: '2024-02-30' is not a calendar date")
+row("record: a deposit dated 2099-12-31",
+    ["record", "deposit", "--date", "2099-12-31", "--account", T, "--amount", "5"], INPUT,
+    f"keel: error: deposit: --date 2099-12-31 is after today ({TODAY}); give --allow-future-date "
+    "to post it anyway")
+row("record: a split dated 2099-12-31",
+    ["record", "split", "--date", "2099-12-31", "--symbol", "QRX", "--ratio", "2"], INPUT,
+    f"keel: error: split: --date 2099-12-31 is after today ({TODAY}); give --allow-future-date to "
+    "post it anyway")
 row("record: year 10000",
     ["record", "deposit", "--date", "10000-01-01", "--account", T, "--amount", "5"], INPUT,
     "keel: error: --date: '10000-01-01' is not a date in the form YYYY-MM-DD")
@@ -307,6 +326,11 @@ row("account add: invalid UTF-8 name", ["account", "add", "Cedar\udcff"], INPUT,
     "keel: error: account name 'Cedar\\xff' is not valid UTF-8")
 row("account add: C1 control character (U+009B) in a name", ["account", "add", "Cedar\u009b2J"],
     INPUT, "keel: error: account name 'Cedar\\xc2\\x9b2J' contains a control character")
+row("init: --currency not a three-letter code", ["init", "--currency", "EURO"], INPUT,
+    "keel: error: currency 'EURO' is not a three-letter code such as EUR")
+row("init: --currency other than the ledger's", ["init", "--currency", "EUR"], INPUT,
+    "keel: error: --currency: the ledger's currency is USD; it is set once and never changed (keel "
+    "does not convert amounts already booked)")
 row("account add: unknown basis", ["account", "add", "Cedar", "--basis", "newest"], INPUT,
     "keel: error: unknown cost-basis method 'newest'; expected one of: fifo, lifo, hifo, average, "
     "specific")
@@ -316,6 +340,23 @@ row("security add: duplicate symbol",
 row("security add: lot size not a number",
     ["security", "add", "ZRN", "--name", "Zornet", "--kind", "stock", "--lot-size", "one"], INPUT,
     "keel: error: --lot-size: 'one' is not a decimal number: expected digits")
+INVISIBLE = ", an invisible character; names may not contain invisible or direction-changing " \
+    "characters"
+row("security add: zero-width space after a symbol", ["security", "add", "QRX\u200b", "--name",
+    "Quarix look-alike", "--kind", "stock"], INPUT,
+    "keel: error: symbol 'QRX<U+200B>' contains U+200B ZERO WIDTH SPACE" + INVISIBLE)
+row("security add: right-to-left override in a symbol", ["security", "add", "QRX\u202e", "--name",
+    "Quarix look-alike", "--kind", "stock"], INPUT,
+    "keel: error: symbol 'QRX<U+202E>' contains U+202E RIGHT-TO-LEFT OVERRIDE" + INVISIBLE)
+row("security add: space at the end of a symbol", ["security", "add", "QRX ", "--name",
+    "Quarix look-alike", "--kind", "stock"], INPUT,
+    "keel: error: symbol 'QRX ' ends with white space (U+0020 SPACE); names may not start or end "
+    "with it")
+row("account add: left-to-right isolate in a name", ["account", "add", "Cedar\u2066"], INPUT,
+    "keel: error: account name 'Cedar<U+2066>' contains U+2066 LEFT-TO-RIGHT ISOLATE" + INVISIBLE)
+import_row("transactions: word joiner in a ref", "transactions",
+           TX + f"2024-03-01,{T},deposit,,,,5,,r\u20601,\n", INPUT,
+           refused("{f}:2: ref 'r<U+2060>1' contains U+2060 WORD JOINER" + INVISIBLE))
 row("security add: symbol with a newline",
     ["security", "add", "ZR\nN", "--name", "Zornet", "--kind", "stock"], INPUT,
     "keel: error: symbol 'ZR\\x0aN' contains a control character")
@@ -333,6 +374,11 @@ row("gains: --year out of range", ["gains", "--year", "10000"], INPUT,
     "keel: error: --year: '10000' is not a calendar year (1 to 9999)")
 row("gains: negative --year", ["gains", "--year", "-5"], INPUT,
     "keel: error: --year: '-5' is not a calendar year (1 to 9999)")
+row("statement: year before the trailing five years fit", ["statement", "--year", "4"], INPUT,
+    "keel: error: --year: '4' is not a year a statement covers (6 to 9999; it looks back 5 years)")
+row("statement: year 10000", ["statement", "--year", "10000"], INPUT,
+    "keel: error: --year: '10000' is not a year a statement covers (6 to 9999; it looks back 5 "
+    "years)")
 row("returns: --from after --to", ["returns", "--from", "2024-03-01", "--to", "2024-02-01"], INPUT,
     "keel: error: --from 2024-03-01 is after --to 2024-02-01")
 row("returns: --year and --period together", ["returns", "--year", "2024", "--period", "1y"], INPUT,
@@ -467,7 +513,7 @@ note = "semi;colon 'single' \"double\" \\backslash\\ tab-free ünïcödé"
 h.ok("record", "deposit", "--date", "0001-01-01", "--account", odd, "--amount",
      "123456789012345678901234567890", "--note", note)
 h.ok("record", "buy", "--date", "9999-12-31", "--account", odd, "--symbol", "ÅB-1", "--quantity",
-     "0.000000000001", "--price", "0.000000000001")
+     "0.000000000001", "--price", "0.000000000001", "--allow-future-date")
 equal([a["name"] for a in h.json("account", "list")], [odd], "account name stored exactly")
 hist = h.json("history")
 equal([(t["date"], t.get("note")) for t in hist], [("0001-01-01", note), ("9999-12-31", "")],
@@ -481,3 +527,30 @@ equal([c["amount"] for c in held["cash"]], ["123456789012345678901234567889.9999
 exported = h.ok("export", "accounts")
 check(f'"{odd.replace(chr(34), chr(34) * 2)}"' in exported, f"account name quoted in CSV: {exported}")
 print("hostile text and extreme values stored exactly")
+
+# --- every invisible format character is refused in names, named as Python's unicodedata names it
+import unicodedata  # noqa: E402
+
+formats = [cp for cp in range(0x110000) if unicodedata.category(chr(cp)) in ("Cf", "Zl", "Zp")]
+v = Ledger()
+checked = 0
+for start in range(0, len(formats), 50):
+    chunk = formats[start:start + 50]
+    sec_file = os.path.join(v.dir.name, f"invisible-{start}.csv")
+    with open(sec_file, "w", encoding="utf-8", newline="") as f:
+        f.write("symbol,name,kind,currency\n")
+        for cp in chunk:
+            f.write(f"Z{chr(cp)}Q,Invisible test,stock,USD\n")
+    code, out, err = v.run("import", "securities", sec_file)
+    lines = err.splitlines()
+    equal(code, INPUT, f"import of {len(chunk)} symbols with invisible characters")
+    equal(len(lines), len(chunk) + 1, "one refusal per invisible character, then the summary")
+    for line, cp in zip(lines, chunk):
+        want = (f"{sec_file}:{chunk.index(cp) + 2}: column 'symbol': symbol 'Z<U+{cp:04X}>Q' "
+                f"contains U+{cp:04X} {unicodedata.name(chr(cp))}" + INVISIBLE)
+        equal(line, want, f"U+{cp:04X}")
+        checked += 1
+check(checked >= 150, f"only {checked} format characters checked")
+equal(v.json("security", "list"), [], "no symbol with an invisible character was added")
+print(f"{checked} invisible characters refused (Unicode {unicodedata.unidata_version} as Python "
+      f"knows it), each named as unicodedata names it")

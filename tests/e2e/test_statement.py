@@ -157,7 +157,8 @@ equal(pension["summary"]["transfers_in"], "1100", "internal transfer is a flow f
 # 8. Refused requests: a clear message naming the option, exit 1, nothing written or changed.
 before = k.ok("history", "--json")
 cases = [
-    (["--year", "twenty"], "keel: error: --year: 'twenty' is not a calendar year (1 to 9999)"),
+    (["--year", "twenty"], "keel: error: --year: 'twenty' is not a year a statement covers (6 to "
+                              "9999; it looks back 5 years)"),
     (["--year", "2025", "--account", "Nobody"], "keel: error: --account: there is no account named 'Nobody'"),
     (["--year", "2025", "--long-term-days", "-3"],
      "keel: error: --long-term-days: '-3' is not a number of days (1 or more)"),

@@ -4,6 +4,7 @@
 #include "report/statement.h"
 
 #include <doctest/doctest.h>
+#include <fmt/format.h>
 #include <unistd.h>
 
 #include <filesystem>
@@ -339,6 +340,17 @@ TEST_CASE("statement: a year before the ledger's first day is refused") {
         "--year: ends on 2023-12-31, before the first transaction day 2024-03-01");
 }
 
+TEST_CASE("regression: a statement of years 1 to 5 failed with an internal date-range message") {
+  StatementLedger k;
+  report::StatementRequest r;
+  for (const int year : {0, 1, 4, 5, 10000}) {
+    r.year = year;
+    CHECK(error_of(k, r) == fmt::format("--year: {} is outside the years a statement covers (6 to "
+                                        "9999; it looks back 5 years)",
+                                        year));
+  }
+}
+
 TEST_CASE("statement: a benchmark without a close before the year is refused") {
   StatementLedger k;
   report::StatementRequest r;
@@ -358,8 +370,9 @@ TEST_CASE("statement: a ledger whose accounts keep different currencies needs --
   report::StatementRequest r;
   r.year = 2025;
   CHECK(error_of(k, r) ==
-        "the ledger's accounts keep GBP, USD; keel does not convert currencies, so give --account "
-        "for a statement of one account");
+        "statement: the accounts keep different currencies (Harbor Pension: USD; Harbor Sterling: "
+        "GBP; Harbor Taxable: USD) and keel does not convert between them yet; give --account for "
+        "one account");
 }
 
 TEST_CASE("statement: building it changes nothing in the ledger") {
