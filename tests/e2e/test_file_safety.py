@@ -65,7 +65,7 @@ def full_disk(work, prices):
     subprocess.run(["mount", "-t", "tmpfs", "-o", "size=1m", "none", disk], check=True)
     ledger = os.path.join(disk, "ledger.db")
     db = ["--db", ledger]
-    for args in (["init"], ["account", "add", "Juniper Taxable"],
+    for args in (["init", "--currency", "EUR"], ["account", "add", "Juniper Taxable"],
                  ["record", "deposit", "--date", "2020-01-06", "--account", "Juniper Taxable",
                   "--amount", "900"],
                  ["import", "securities", os.path.join(work, "market", "securities.csv")]):
@@ -391,7 +391,7 @@ if as_user and not shutil.which("setpriv"):
 else:
     ro_ledger = os.path.join(ro_base, "ro", "ledger.db")
     subprocess.run(as_user + ["mkdir", os.path.join(ro_base, "ro")], check=True)
-    for args in (["init"], ["account", "add", "Juniper Taxable"],
+    for args in (["init", "--currency", "EUR"], ["account", "add", "Juniper Taxable"],
                  ["record", "deposit", "--date", "2024-01-02", "--account", "Juniper Taxable",
                   "--amount", "10"]):
         code, _, err = run_as(*args)

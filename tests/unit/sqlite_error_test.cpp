@@ -93,6 +93,7 @@ TEST_CASE(
   s.symbol = "QRX";
   s.name = "Quarix Holdings";
   s.kind = SecurityKind::stock;
+  s.currency = "EUR";
   s.lot_size = Decimal::parse("1");
   store::insert_security(db, s);
   store::WriteTransaction tx(db);
