@@ -53,7 +53,7 @@ void write_text_file(const std::filesystem::path& file, const std::string& conte
                                  printable(file.string()), printable(parent.string())));
   if (std::filesystem::is_directory(file, ec))
     throw InputError(fmt::format("cannot write '{}': it is a folder", printable(file.string())));
-  std::string temp = (parent / ("." + file.filename().string() + ".keel-XXXXXX")).string();
+  std::string temp = (parent / fmt::format(".{}.keel-XXXXXX", file.filename().string())).string();
   const int fd = ::mkstemp(temp.data());
   if (fd < 0)
     throw InputError(
@@ -93,11 +93,16 @@ void write_statement_csv(const Statement& s, const std::filesystem::path& dir) {
   }
   for (const auto& sec : statement_sections(s)) {
     std::string text;
-    for (std::size_t c = 0; c < sec.columns.size(); ++c)
-      text += (c ? "," : "") + quoted(sec.columns[c].heading);
+    for (std::size_t c = 0; c < sec.columns.size(); ++c) {
+      if (c) text += ',';
+      text += quoted(sec.columns[c].heading);
+    }
     text += "\r\n";
     for (const auto& row : sec.rows) {
-      for (std::size_t c = 0; c < row.size(); ++c) text += (c ? "," : "") + csv_field(row[c]);
+      for (std::size_t c = 0; c < row.size(); ++c) {
+        if (c) text += ',';
+        text += csv_field(row[c]);
+      }
       text += "\r\n";
     }
     write_text_file(dir / (sec.key + ".csv"), text);

@@ -83,7 +83,7 @@ void print_pdf(const std::filesystem::path& html, const std::filesystem::path& p
     throw InputError("cannot make a temporary folder for Chromium's profile");
   TempDir profile{profile_template};
   const auto temp_pdf =
-      std::filesystem::absolute(parent / ("." + pdf.filename().string() + ".keel-tmp.pdf"));
+      std::filesystem::absolute(parent / fmt::format(".{}.keel-tmp.pdf", pdf.filename().string()));
 
   std::vector<std::string> args{chromium->string(),
                                 "--headless",

@@ -62,7 +62,8 @@ void write_statement_xlsx(const Statement& s, const std::filesystem::path& file)
   if (!std::filesystem::is_directory(parent, ec))
     throw InputError(fmt::format("cannot write '{}': the folder '{}' does not exist",
                                  printable(file.string()), printable(parent.string())));
-  const std::string temp = (parent / ("." + file.filename().string() + ".keel-tmp.xlsx")).string();
+  const std::string temp =
+      (parent / fmt::format(".{}.keel-tmp.xlsx", file.filename().string())).string();
   lxw_workbook* wb = workbook_new(temp.c_str());
   if (!wb) throw InputError(fmt::format("cannot write '{}'", printable(file.string())));
   const Formats f = make_formats(wb);
