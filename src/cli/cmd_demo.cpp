@@ -10,6 +10,7 @@
 #include <system_error>
 
 #include "cli/context.h"
+#include "cli/options.h"
 #include "core/error.h"
 #include "core/text.h"
 #include "io/demo.h"
@@ -133,6 +134,7 @@ void add_demo(CLI::App& app, Context& ctx) {
       "demo",
       "Build a fresh ledger of an invented household and show a month in its life (never "
       "touches your own ledger)");
+  add_examples(*cmd, {"keel demo", "keel demo --dir keel-demo"});
   cmd->add_option("--dir", o->dir,
                   "Folder for the demo ledger, created if missing (default: a new temporary "
                   "folder, printed)");

@@ -54,6 +54,9 @@ void add_statement(CLI::App& app, Context& ctx) {
       "statement",
       "Year-end statement: the year's value changes, performance, holdings, realized gains and "
       "income");
+  add_examples(*cmd, {"keel statement --year 2025 --benchmark ZXTR --html statement-2025.html "
+                      "--pdf statement-2025.pdf",
+                      "keel statement --year 2025 --account Taxable --xlsx statement-2025.xlsx"});
   cmd->add_option("--year", o->year, "Calendar year of the statement")->required();
   add_account_option(*cmd, o->account, "Only this account (default: the whole ledger)");
   cmd->add_option("--benchmark", o->benchmark, "Compare with the closes of this security");

@@ -7,6 +7,7 @@
 
 #include "cli/context.h"
 #include "cli/mistakes.h"
+#include "cli/options.h"
 #include "core/error.h"
 #include "core/text.h"
 
@@ -47,6 +48,8 @@ int main(int argc, char** argv) {
   keel::cli::register_backtest_commands(app, context);
   keel::cli::register_statement_commands(app, context);
   keel::cli::register_reference_command(app);
+  // Set last: commands added before would inherit it.
+  keel::cli::add_examples(app, {"keel demo", "keel help record buy"});
 
   try {
     app.parse(argc, argv);

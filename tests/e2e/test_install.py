@@ -130,7 +130,7 @@ with gzip.open(page, "rt", encoding="utf-8") as f:
 p = run(["man", "--warnings", "-l", page],
         env=dict(os.environ, MANPAGER="cat", MANWIDTH="80", LANG="C.UTF-8"))
 equal((p.returncode, p.stderr), (0, ""), "man -l on the installed page: status and warnings")
-for section in ("NAME", "SYNOPSIS", "DESCRIPTION", "COMMANDS",
+for section in ("NAME", "SYNOPSIS", "DESCRIPTION", "COMMANDS", "EXAMPLES", "ENVIRONMENT", "FILES",
                 "EXIT STATUS"):
     check(re.search(rf"^{section}$", p.stdout, re.M), f"man shows the section {section}")
 
