@@ -118,6 +118,9 @@ std::string manpage(const CLI::App& app) {
   out += roff_item("PATH",
                    "Searched for chromium (or chromium-browser), which prints the statement as "
                    "PDF.");
+  out += roff_item("LC_ALL, LC_PAPER, LANG",
+                   "The locale whose paper size (letter or A4) the statement takes when "
+                   "--paper is not given; A4 without one.");
   out += roff_item("TMPDIR",
                    "Where temporary folders go: the demo's ledger without --dir, and the page "
                    "Chromium prints.");

@@ -20,7 +20,7 @@ namespace {
 namespace fs = std::filesystem;
 
 struct StatementOptions {
-  std::string year, account, benchmark, long_term_days, html, pdf, xlsx, csv;
+  std::string year, account, benchmark, long_term_days, html, pdf, xlsx, csv, paper;
   bool json = false;
 };
 
@@ -54,9 +54,11 @@ void add_statement(CLI::App& app, Context& ctx) {
       "statement",
       "Year-end statement: the year's value changes, performance, holdings, realized gains and "
       "income");
-  add_examples(*cmd, {"keel statement --year 2025 --benchmark ZXTR --html statement-2025.html "
-                      "--pdf statement-2025.pdf",
-                      "keel statement --year 2025 --account Taxable --xlsx statement-2025.xlsx"});
+  add_examples(
+      *cmd,
+      {"keel statement --year 2025 --benchmark ZXTR --html statement-2025.html "
+       "--pdf statement-2025.pdf",
+       "keel statement --year 2025 --account Taxable --xlsx statement-2025.xlsx --paper letter"});
   cmd->add_option("--year", o->year, "Calendar year of the statement")->required();
   add_account_option(*cmd, o->account, "Only this account (default: the whole ledger)");
   cmd->add_option("--benchmark", o->benchmark, "Compare with the closes of this security");
@@ -67,6 +69,9 @@ void add_statement(CLI::App& app, Context& ctx) {
   cmd->add_option("--pdf", o->pdf, "Write the statement as PDF (prints the HTML with Chromium)");
   cmd->add_option("--xlsx", o->xlsx, "Write the statement as an XLSX workbook, a sheet a section");
   cmd->add_option("--csv", o->csv, "Write one CSV file per section into this folder");
+  cmd->add_option("--paper", o->paper,
+                  "Paper of the HTML, PDF and XLSX: a4 or letter (default: the locale's paper "
+                  "size, else a4)");
   add_json_flag(*cmd, o->json);
   cmd->callback([&ctx, o] {
     report::StatementRequest request;
@@ -76,6 +81,13 @@ void add_statement(CLI::App& app, Context& ctx) {
     if (!o->long_term_days.empty())
       request.long_term_days = whole_number(o->long_term_days, "--long-term-days", 1, 100000,
                                             "a number of days (1 or more)");
+    const report::Paper paper = o->paper.empty() ? report::default_paper() : [&] {
+      try {
+        return report::parse_paper(o->paper);
+      } catch (const InputError& e) {
+        throw InputError(fmt::format("--paper: {}", e.what()));
+      }
+    }();
     check_target(o->html, "--html", false);
     check_target(o->pdf, "--pdf", false);
     check_target(o->xlsx, "--xlsx", false);
@@ -96,7 +108,7 @@ void add_statement(CLI::App& app, Context& ctx) {
       if (!o->json) out(fmt::format("wrote {} {}\n", what, printable(path)));
     };
     if (!o->html.empty() || !o->pdf.empty()) {
-      const std::string html = report::statement_html(s);
+      const std::string html = report::statement_html(s, paper);
       if (!o->html.empty()) {
         with_option("--html", [&] { report::write_text_file(o->html, html); });
         wrote("HTML", o->html);
@@ -121,7 +133,7 @@ void add_statement(CLI::App& app, Context& ctx) {
       }
     }
     if (!o->xlsx.empty()) {
-      with_option("--xlsx", [&] { report::write_statement_xlsx(s, o->xlsx); });
+      with_option("--xlsx", [&] { report::write_statement_xlsx(s, o->xlsx, paper); });
       wrote("XLSX", o->xlsx);
     }
     if (!o->csv.empty()) {

@@ -370,6 +370,10 @@ row("returns: unknown method", ["returns", "--method", "geometric"], INPUT,
 row("returns: risk-free rate not a number", ["returns", "--risk-free", "2%"], INPUT,
     "keel: error: --risk-free: '2%' is not a rate; give an annual fraction above -1, e.g. 0.02")
 
+row("statement: unknown paper", ["statement", "--year", "2024", "--paper", "legal"], INPUT,
+    "keel: error: --paper: 'legal' is not a paper size; expected a4 or letter")
+row("statement: paper with a control character", ["statement", "--year", "2024", "--paper", "a4\x1b"],
+    INPUT, "keel: error: --paper: 'a4\\x1b' is not a paper size; expected a4 or letter")
 
 # --- the command line itself: mistyped and missing commands and options ---------------------
 row("command: mistyped", ["holdngs"], USAGE,
