@@ -228,6 +228,10 @@ void add_backtest(CLI::App& app, Context& ctx) {
       app.add_subcommand("backtest",
                          "A rule month by month over stored history, point in time, next to an "
                          "equal-weight baseline");
+  add_examples(*cmd,
+               {"keel backtest --rule rule.toml --from 2019-01-01 --to 2025-12-31 --benchmark ZXTR",
+                "keel backtest --rule rule.toml --from 2019-01-01 --to 2025-12-31 --frictionless "
+                "--curve curve.csv"});
   cmd->add_option("--rule", o->rule, "Rule file (TOML; see docs/rules.md)")->required();
   cmd->add_option("--from", o->from, "First day, YYYY-MM-DD")->required();
   cmd->add_option("--to", o->to, "Last day, YYYY-MM-DD")->required();
@@ -302,6 +306,8 @@ void add_signal(CLI::App& app, Context& ctx) {
       "signal",
       "How well a rule's score ranked later returns: information coefficients and "
       "the cheapest-less-dearest spread");
+  add_examples(
+      *cmd, {"keel signal --rule rule.toml --from 2017-01-01 --to 2025-12-31 --horizons 1,3,12"});
   cmd->add_option("--rule", o->rule, "Rule file (TOML; see docs/rules.md)")->required();
   cmd->add_option("--from", o->from, "First day, YYYY-MM-DD")->required();
   cmd->add_option("--to", o->to, "Last day, YYYY-MM-DD")->required();

@@ -7,6 +7,7 @@
 #include <memory>
 
 #include "cli/context.h"
+#include "cli/options.h"
 #include "core/error.h"
 #include "core/files.h"
 #include "core/text.h"
@@ -64,6 +65,8 @@ struct ImportCommandOptions {
 void add_import(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ImportCommandOptions>();
   auto* cmd = app.add_subcommand("import", "Read a CSV file into the ledger, all or nothing");
+  add_examples(*cmd, {"keel import prices closes.csv",
+                      "keel import transactions broker.csv --map broker.toml --dry-run"});
   cmd->add_option("WHAT", o->what,
                   "accounts, transactions, securities, prices, metrics, distributions or splits")
       ->required();
@@ -126,6 +129,8 @@ struct ExportCommandOptions {
 void add_export(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ExportCommandOptions>();
   auto* cmd = app.add_subcommand("export", "Write ledger or market data as CSV or JSON");
+  add_examples(*cmd,
+               {"keel export transactions --out transactions.csv", "keel export prices --json"});
   cmd->add_option("WHAT", o->what,
                   "accounts, transactions, securities, prices, metrics, distributions or splits")
       ->required();
@@ -160,6 +165,7 @@ void add_export(CLI::App& app, Context& ctx) {
 
 void add_imports(CLI::App& app, Context& ctx) {
   auto* cmd = app.add_subcommand("imports", "List the imports that changed the ledger");
+  add_examples(*cmd, {"keel imports"});
   cmd->callback([&ctx] {
     auto db = ctx.open_ledger();
     const auto runs = store::list_import_runs(db);

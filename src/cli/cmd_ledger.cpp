@@ -18,6 +18,7 @@ namespace {
 void add_init(CLI::App& app, Context& ctx) {
   auto currency = std::make_shared<std::string>();
   auto* cmd = app.add_subcommand("init", "Create an empty ledger (or bring an old one up to date)");
+  add_examples(*cmd, {"keel init --currency EUR", "keel init --db household.db --currency EUR"});
   cmd->add_option("--currency", *currency,
                   "The ledger's own currency, a three-letter code: accounts and securities added "
                   "without --currency take it (default: the first account's currency)");
@@ -49,6 +50,8 @@ struct AccountAddOptions {
 void add_account_add(CLI::App& group, Context& ctx) {
   auto o = std::make_shared<AccountAddOptions>();
   auto* cmd = group.add_subcommand("add", "Add an account");
+  add_examples(*cmd, {"keel account add Taxable --currency EUR --basis fifo",
+                      "keel account add Margin --allow-negative-cash"});
   cmd->add_option("NAME", o->name, "Account name")->required();
   cmd->add_option("--currency", o->currency,
                   "Three-letter currency code (default: the ledger's; the first account's "
@@ -78,6 +81,10 @@ struct SecurityAddOptions {
 void add_security_add(CLI::App& group, Context& ctx) {
   auto o = std::make_shared<SecurityAddOptions>();
   auto* cmd = group.add_subcommand("add", "Add a security");
+  add_examples(
+      *cmd, {"keel security add KESTR --name \"Kestrel Looms\" --kind stock --currency EUR "
+             "--sector textiles",
+             "keel security add ZXTR --name \"Zenith Total Return\" --kind index --currency EUR"});
   cmd->add_option("SYMBOL", o->symbol, "Symbol, unique in the ledger")->required();
   cmd->add_option("--name", o->name, "Full name")->required();
   cmd->add_option("--kind", o->kind, "stock, fund, bond, index or currency")->required();
@@ -140,6 +147,7 @@ ledger::PostRequest to_request(TxnKind kind, const RecordOptions& o) {
 struct KindSpec {
   TxnKind kind;
   const char* help;
+  const char* example;
   bool units;     // --symbol --quantity
   bool trade;     // --price --fee
   bool cash;      // --amount
@@ -147,25 +155,47 @@ struct KindSpec {
 };
 
 constexpr KindSpec kKindSpecs[] = {
-    {TxnKind::deposit, "Cash paid into the account from outside", false, false, true, false},
-    {TxnKind::withdrawal, "Cash taken out of the account", false, false, true, false},
-    {TxnKind::buy, "Buy units: opens a lot whose cost includes the fee", true, true, false, false},
-    {TxnKind::sell, "Sell units: closes lots by the account's method (or --lots)", true, true,
-     false, false},
-    {TxnKind::dividend, "Cash dividend received (gross, before withholding)", false, false, true,
+    {TxnKind::deposit, "Cash paid into the account from outside",
+     "keel record deposit --date 2025-01-02 --account Taxable --amount 10000", false, false, true,
+     false},
+    {TxnKind::withdrawal, "Cash taken out of the account",
+     "keel record withdrawal --date 2025-06-30 --account Taxable --amount 2500", false, false, true,
+     false},
+    {TxnKind::buy, "Buy units: opens a lot whose cost includes the fee",
+     "keel record buy --date 2025-01-06 --account Taxable --symbol KESTR --quantity 100 --price 50 "
+     "--fee 10",
+     true, true, false, false},
+    {TxnKind::sell, "Sell units: closes lots by the account's method (or --lots)",
+     "keel record sell --date 2025-09-15 --account Taxable --symbol KESTR --quantity 40 --price "
+     "61.20 --fee 10",
+     true, true, false, false},
+    {TxnKind::dividend, "Cash dividend received (gross, before withholding)",
+     "keel record dividend --date 2025-04-15 --account Taxable --symbol KESTR --amount 120", false,
+     false, true, true},
+    {TxnKind::interest, "Interest received",
+     "keel record interest --date 2025-03-31 --account Taxable --amount 4.17", false, false, true,
      true},
-    {TxnKind::interest, "Interest received", false, false, true, true},
-    {TxnKind::tax, "Tax withheld (e.g. on a dividend)", false, false, true, true},
-    {TxnKind::fee, "A fee charged to the account", false, false, true, true},
-    {TxnKind::transfer_in, "Cash or units brought in from outside", true, true, true, false},
+    {TxnKind::tax, "Tax withheld (e.g. on a dividend)",
+     "keel record tax --date 2025-04-15 --account Taxable --symbol KESTR --amount 18", false, false,
+     true, true},
+    {TxnKind::fee, "A fee charged to the account",
+     "keel record fee --date 2025-12-31 --account Taxable --amount 25 --note \"custody fee\"",
+     false, false, true, true},
+    {TxnKind::transfer_in, "Cash or units brought in from outside",
+     "keel record transfer_in --date 2025-02-03 --account Taxable --symbol KESTR --quantity 50 "
+     "--price 42 --acquired 2021-05-10",
+     true, true, true, false},
     {TxnKind::transfer_out,
-     "Cash or units moved out; with --to-account, into another account of this ledger", true, true,
-     true, false},
+     "Cash or units moved out; with --to-account, into another account of this ledger",
+     "keel record transfer_out --date 2025-03-02 --account Taxable --amount 8000 --to-account "
+     "Retirement",
+     true, true, true, false},
 };
 
 void add_record_kind(CLI::App& group, Context& ctx, const KindSpec& spec) {
   auto o = std::make_shared<RecordOptions>();
   auto* cmd = group.add_subcommand(std::string(to_string(spec.kind)), spec.help);
+  add_examples(*cmd, {spec.example});
   cmd->add_option("--date", o->date, "Day of the transaction, YYYY-MM-DD (default: today)");
   cmd->add_option("--account", o->account, "Account name")->required();
   if (spec.units || spec.security)
@@ -206,6 +236,8 @@ void add_record_split(CLI::App& group, Context& ctx) {
   auto o = std::make_shared<RecordOptions>();
   auto* cmd = group.add_subcommand(
       "split", "A split of a security, applied to every account's lots at the start of its day");
+  add_examples(*cmd, {"keel record split --date 2025-06-02 --symbol KESTR --ratio 2",
+                      "keel record split --date 2025-06-02 --symbol KESTR --ratio 0.1"});
   cmd->add_option("--date", o->date, "Day the split takes effect, YYYY-MM-DD")->required();
   cmd->add_option("--symbol", o->symbol, "Security symbol")->required();
   cmd->add_option("--ratio", o->ratio, "New units per old unit: 2 = two-for-one, 0.1 = one-for-ten")
@@ -232,6 +264,7 @@ void add_void(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<VoidOptions>();
   auto* cmd = app.add_subcommand(
       "void", "Cancel a posted transaction by recording a reversal (nothing is ever deleted)");
+  add_examples(*cmd, {"keel void 7 --reason \"entered twice\""});
   cmd->add_option("ID", o->id, "Transaction id (see 'keel history')")->required();
   cmd->add_option("--reason", o->reason, "Why it is cancelled")->required();
   cmd->callback([&ctx, o] {
@@ -278,6 +311,15 @@ void register_ledger_commands(CLI::App& app, Context& ctx) {
   for (const auto& spec : kKindSpecs) add_record_kind(*record, ctx, spec);
   add_record_split(*record, ctx);
   add_void(app, ctx);
+  // After their subcommands, which would inherit these footers.
+  add_examples(*accounts, {"keel account add Taxable --currency EUR", "keel account list"});
+  add_examples(*securities,
+               {"keel security add KESTR --name \"Kestrel Looms\" --kind stock --currency EUR",
+                "keel security list"});
+  add_examples(*record,
+               {"keel record deposit --date 2025-01-02 --account Taxable --amount 10000",
+                "keel record buy --date 2025-01-06 --account Taxable --symbol KESTR --quantity 100 "
+                "--price 50"});
 }
 
 }  // namespace keel::cli

@@ -5,6 +5,7 @@
 #include <memory>
 
 #include "cli/context.h"
+#include "cli/options.h"
 #include "core/error.h"
 #include "ledger/restore.h"
 #include "ledger/verify.h"
@@ -16,6 +17,7 @@ namespace {
 void add_verify(CLI::App& app, Context& ctx) {
   auto* cmd = app.add_subcommand(
       "verify", "Check the ledger file and recount every balance from the raw transactions");
+  add_examples(*cmd, {"keel verify"});
   cmd->callback([&ctx] {
     auto db = ctx.open_ledger();
     const auto report = ledger::verify(db);
@@ -37,6 +39,7 @@ void add_backup(CLI::App& app, Context& ctx) {
   auto file = std::make_shared<std::string>();
   auto* cmd = app.add_subcommand("backup",
                                  "Copy the ledger to a new file, safely even while keel is in use");
+  add_examples(*cmd, {"keel backup household-2025-12-31.db"});
   cmd->add_option("FILE", *file,
                   "The backup file to create (must not exist; '-': standard output, not a "
                   "terminal)")
@@ -56,6 +59,7 @@ void add_restore(CLI::App& app, Context& ctx) {
   auto file = std::make_shared<std::string>();
   auto* cmd = app.add_subcommand(
       "restore", "Replace the ledger with a backup, after checking it; the old file is kept");
+  add_examples(*cmd, {"keel restore household-2025-12-31.db"});
   cmd->add_option("FILE", *file, "The backup to restore")->required();
   cmd->callback([&ctx, file] {
     const auto result = ledger::restore_backup(ctx.ledger_path(), *file);

@@ -41,6 +41,8 @@ struct ViewOptions {
 void add_holdings(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ViewOptions>();
   auto* cmd = app.add_subcommand("holdings", "What is held, at cost and at market, with cash");
+  add_examples(*cmd,
+               {"keel holdings --as-of 2025-12-31", "keel holdings --account Taxable --json"});
   cmd->add_option("--as-of", o->as_of, "Day to value at, YYYY-MM-DD (default: today)");
   add_account_option(*cmd, o->account);
   add_json_flag(*cmd, o->json);
@@ -95,6 +97,7 @@ void add_holdings(CLI::App& app, Context& ctx) {
 void add_lots(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ViewOptions>();
   auto* cmd = app.add_subcommand("lots", "Open tax lots: acquisition day, quantity, cost");
+  add_examples(*cmd, {"keel lots --as-of 2025-12-31 --account Taxable"});
   cmd->add_option("--as-of", o->as_of, "Day, YYYY-MM-DD (default: today)");
   add_account_option(*cmd, o->account);
   add_json_flag(*cmd, o->json);
@@ -132,6 +135,7 @@ void add_lots(CLI::App& app, Context& ctx) {
 void add_gains(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ViewOptions>();
   auto* cmd = app.add_subcommand("gains", "Realized gains, one line per closed lot part");
+  add_examples(*cmd, {"keel gains --year 2025", "keel gains --year 2025 --account Taxable --json"});
   cmd->add_option("--year", o->year, "Only disposals in this calendar year");
   add_account_option(*cmd, o->account);
   add_json_flag(*cmd, o->json);
@@ -178,6 +182,8 @@ void add_gains(CLI::App& app, Context& ctx) {
 void add_history(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ViewOptions>();
   auto* cmd = app.add_subcommand("history", "Posted transactions, voids included");
+  add_examples(*cmd, {"keel history --from 2025-12-01 --to 2025-12-31",
+                      "keel history --account Taxable --json"});
   add_account_option(*cmd, o->account);
   cmd->add_option("--from", o->from, "First day, YYYY-MM-DD");
   cmd->add_option("--to", o->to, "Last day, YYYY-MM-DD");
@@ -212,6 +218,7 @@ void add_history(CLI::App& app, Context& ctx) {
 void add_lists(CLI::App& app, Context& ctx) {
   auto json_accounts = std::make_shared<bool>(false);
   auto* accounts = app.get_subcommand("account")->add_subcommand("list", "List accounts");
+  add_examples(*accounts, {"keel account list", "keel account list --json"});
   add_json_flag(*accounts, *json_accounts);
   accounts->callback([&ctx, json_accounts] {
     auto db = ctx.open_ledger();
@@ -231,6 +238,7 @@ void add_lists(CLI::App& app, Context& ctx) {
 
   auto json_securities = std::make_shared<bool>(false);
   auto* securities = app.get_subcommand("security")->add_subcommand("list", "List securities");
+  add_examples(*securities, {"keel security list", "keel security list --json"});
   add_json_flag(*securities, *json_securities);
   securities->callback([&ctx, json_securities] {
     auto db = ctx.open_ledger();

@@ -26,7 +26,7 @@ namespace {
 namespace fs = std::filesystem;
 
 struct StatementOptions {
-  std::string year, account, benchmark, long_term_days, html, pdf, xlsx, csv;
+  std::string year, account, benchmark, long_term_days, html, pdf, xlsx, csv, paper;
   bool json = false;
 };
 
@@ -60,6 +60,11 @@ void add_statement(CLI::App& app, Context& ctx) {
       "statement",
       "Year-end statement: the year's value changes, performance, holdings, realized gains and "
       "income");
+  add_examples(
+      *cmd,
+      {"keel statement --year 2025 --benchmark ZXTR --html statement-2025.html "
+       "--pdf statement-2025.pdf",
+       "keel statement --year 2025 --account Taxable --xlsx statement-2025.xlsx --paper letter"});
   cmd->add_option("--year", o->year, "Calendar year of the statement")->required();
   add_account_option(*cmd, o->account, "Only this account (default: the whole ledger)");
   cmd->add_option("--benchmark", o->benchmark, "Compare with the closes of this security");
@@ -75,6 +80,9 @@ void add_statement(CLI::App& app, Context& ctx) {
                   "Write the statement as an XLSX workbook, a sheet a section ('-': standard "
                   "output, not a terminal)");
   cmd->add_option("--csv", o->csv, "Write one CSV file per section into this folder");
+  cmd->add_option("--paper", o->paper,
+                  "Paper of the HTML, PDF and XLSX: a4 or letter (default: the locale's paper "
+                  "size, else a4)");
   add_json_flag(*cmd, o->json);
   cmd->callback([&ctx, o] {
     report::StatementRequest request;
@@ -86,6 +94,13 @@ void add_statement(CLI::App& app, Context& ctx) {
     if (!o->long_term_days.empty())
       request.long_term_days = whole_number(o->long_term_days, "--long-term-days", 1, 100000,
                                             "a number of days (1 or more)");
+    const report::Paper paper = o->paper.empty() ? report::default_paper() : [&] {
+      try {
+        return report::parse_paper(o->paper);
+      } catch (const InputError& e) {
+        throw InputError(fmt::format("--paper: {}", e.what()));
+      }
+    }();
     // Standard output carries one thing: the JSON, or one file given as "-".
     const std::vector<std::pair<const char*, const std::string*>> files{
         {"--html", &o->html}, {"--pdf", &o->pdf}, {"--xlsx", &o->xlsx}};
@@ -124,7 +139,7 @@ void add_statement(CLI::App& app, Context& ctx) {
         out(line);
     };
     if (html_file || pdf_file) {
-      const std::string html = report::statement_html(s);
+      const std::string html = report::statement_html(s, paper);
       if (html_file) {
         html_file->write(html);
         html_file->commit();
@@ -150,7 +165,7 @@ void add_statement(CLI::App& app, Context& ctx) {
       }
     }
     if (xlsx_file) {
-      report::write_statement_xlsx(s, *xlsx_file);
+      report::write_statement_xlsx(s, *xlsx_file, paper);
       wrote("XLSX", o->xlsx);
     }
     if (!o->csv.empty()) {

@@ -158,14 +158,6 @@ bool read_request(TableReader& t, ledger::PostRequest& r) {
   return ok;
 }
 
-// The file read as the mapping says, hashing as it goes (for the import log).
-CsvReader open_csv(const std::filesystem::path& file, const Mapping& mapping) {
-  CsvOptions csv_options;
-  csv_options.delimiter = mapping.delimiter;
-  csv_options.hash = true;
-  return CsvReader::open(file, csv_options);
-}
-
 LedgerImportSummary new_summary(const std::filesystem::path& file, const ImportOptions& options) {
   LedgerImportSummary sum;
   sum.file = file.string();
@@ -189,7 +181,7 @@ void record_run(store::Database& db, std::string_view what, const std::filesyste
 LedgerImportSummary import_transactions(store::Database& db, const std::filesystem::path& file,
                                         const ImportOptions& options) {
   const Mapping mapping = checked_mapping(options, "transactions");
-  CsvReader csv = open_csv(file, mapping);
+  CsvReader csv = open_import_csv(file, mapping, options);
   ErrorList errors(file.string());
   LedgerImportSummary sum = new_summary(file, options);
 
@@ -265,7 +257,7 @@ LedgerImportSummary import_transactions(store::Database& db, const std::filesyst
 LedgerImportSummary import_accounts(store::Database& db, const std::filesystem::path& file,
                                     const ImportOptions& options) {
   const Mapping mapping = checked_mapping(options, "accounts");
-  CsvReader csv = open_csv(file, mapping);
+  CsvReader csv = open_import_csv(file, mapping, options);
   ErrorList errors(file.string());
   LedgerImportSummary sum = new_summary(file, options);
   store::WriteTransaction tx(db);

@@ -293,6 +293,16 @@ MarketKind parse_market_kind(std::string_view text) {
                   printable(text)));
 }
 
+CsvReader open_import_csv(const std::filesystem::path& file, const Mapping& mapping,
+                          const ImportOptions& options) {
+  CsvOptions csv_options;
+  csv_options.delimiter = mapping.delimiter;
+  csv_options.hash = true;
+  if (options.content)
+    return CsvReader::from_text(std::string(*options.content), file.string(), csv_options);
+  return CsvReader::open(file, csv_options);
+}
+
 ImportSummary import_market(store::Database& db, MarketKind what, const std::filesystem::path& file,
                             const ImportOptions& options) {
   const Mapping mapping = options.mapping ? *options.mapping : Mapping{};
@@ -300,10 +310,7 @@ ImportSummary import_market(store::Database& db, MarketKind what, const std::fil
     throw InputError(fmt::format("{}: this mapping is for importing {}, not {}",
                                  printable(mapping.source), printable(mapping.applies_to),
                                  to_string(what)));
-  CsvOptions csv_options;
-  csv_options.delimiter = mapping.delimiter;
-  csv_options.hash = true;
-  CsvReader csv = CsvReader::open(file, csv_options);
+  CsvReader csv = open_import_csv(file, mapping, options);
   ErrorList errors(file.string());
   ImportSummary sum;
   sum.what = what;

@@ -26,6 +26,7 @@
 #include <string_view>
 
 #include "core/files.h"
+#include "io/csv.h"
 #include "io/mapping.h"
 #include "store/database.h"
 #include "store/market_data.h"
@@ -43,7 +44,15 @@ struct ImportOptions {
   bool allow_future = false;  // accept transactions and splits dated after today
   // Called every so many rows with (rows so far, bytes read, file size).
   std::function<void(std::uint64_t, std::uint64_t, std::uint64_t)> progress;
+  // When set, the import reads these bytes and the file only names them (in
+  // messages and the import log); the demo's built-in scenario.
+  std::optional<std::string_view> content;
 };
+
+// The CSV an import reads: the file, or options.content under the file's
+// name; delimited as the mapping says, hashed for the import log.
+CsvReader open_import_csv(const std::filesystem::path& file, const Mapping& mapping,
+                          const ImportOptions& options);
 
 struct ImportSummary {
   MarketKind what = MarketKind::prices;

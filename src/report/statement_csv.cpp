@@ -53,11 +53,16 @@ void write_statement_csv(const Statement& s, const std::filesystem::path& dir,
   }
   for (const auto& sec : statement_sections(s)) {
     std::string text;
-    for (std::size_t c = 0; c < sec.columns.size(); ++c)
-      text += (c ? "," : "") + quoted(sec.columns[c].heading);
+    for (std::size_t c = 0; c < sec.columns.size(); ++c) {
+      if (c) text += ',';
+      text += quoted(sec.columns[c].heading);
+    }
     text += "\r\n";
     for (const auto& row : sec.rows) {
-      for (std::size_t c = 0; c < row.size(); ++c) text += (c ? "," : "") + csv_field(row[c]);
+      for (std::size_t c = 0; c < row.size(); ++c) {
+        if (c) text += ',';
+        text += csv_field(row[c]);
+      }
       text += "\r\n";
     }
     OutputFile file(dir / (sec.key + ".csv"), {option});

@@ -57,7 +57,11 @@ LedgerError ledger_error(int extended_code, int system_errno, std::string_view s
   const int primary = extended_code & 0xff;
   if (primary == SQLITE_BUSY || primary == SQLITE_LOCKED)
     return LedgerError("ledger is busy: another keel is using it; try again in a moment");
-  const std::string shown = file.empty() ? std::string() : " " + printable(file.string());
+  std::string shown;
+  if (!file.empty()) {
+    shown = " ";  // appended, not "" + text: GCC 12 -O3 warns on the insert (-Wrestrict)
+    shown += printable(file.string());
+  }
   if (is_moved_error(extended_code))
     return LedgerError(fmt::format(
         "ledger{} was replaced or moved while this command ran (by 'keel restore'?); nothing "

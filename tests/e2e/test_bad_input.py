@@ -396,6 +396,50 @@ row("returns: unknown method", ["returns", "--method", "geometric"], INPUT,
 row("returns: risk-free rate not a number", ["returns", "--risk-free", "2%"], INPUT,
     "keel: error: --risk-free: '2%' is not a rate; give an annual fraction above -1, e.g. 0.02")
 
+row("statement: unknown paper", ["statement", "--year", "2024", "--paper", "legal"], INPUT,
+    "keel: error: --paper: 'legal' is not a paper size; expected a4 or letter")
+row("statement: paper with a control character", ["statement", "--year", "2024", "--paper", "a4\x1b"],
+    INPUT, "keel: error: --paper: 'a4\\x1b' is not a paper size; expected a4 or letter")
+
+# --- the command line itself: mistyped and missing commands and options ---------------------
+row("command: mistyped", ["holdngs"], USAGE,
+    ["keel: error: 'holdngs' is not a keel command", "Did you mean 'holdings'?",
+     "Run 'keel help' for the list of commands."])
+row("command: two letters swapped", ["recrod", "deposit"], USAGE,
+    ["keel: error: 'recrod' is not a keel command", "Did you mean 'record'?",
+     "Run 'keel help' for the list of commands."])
+row("command: the start of several", ["re"], USAGE,
+    ["keel: error: 're' is not a keel command",
+     "Did you mean one of: 'record', 'returns', 'restore', 'reference'?",
+     "Run 'keel help' for the list of commands."])
+row("command: nothing close", ["zebra"], USAGE,
+    ["keel: error: 'zebra' is not a keel command", "Run 'keel help' for the list of commands."])
+row("command: control characters in the word", ["hold\x1b[2J"], USAGE,
+    ["keel: error: 'hold\\x1b[2J' is not a keel command", "Run 'keel help' for the list of commands."])
+row("command: mistyped subcommand", ["record", "buyy"], USAGE,
+    ["keel: error: 'buyy' is not a command of 'keel record'", "Did you mean 'buy'?",
+     "Run 'keel help record' for its commands."])
+row("command: none given", [], USAGE,
+    ["keel: error: no command given",
+     "Run 'keel help' for the list of commands, or 'keel demo' to see keel at work."])
+row("command: a group without its command", ["account"], USAGE,
+    ["keel: error: 'keel account' needs one of its commands: add, list",
+     "Run 'keel help account' for what each does."])
+row("option: mistyped", ["holdings", "--as-off", "2024-01-31"], USAGE,
+    ["keel: error: 'keel holdings' has no option '--as-off'", "Did you mean '--as-of'?",
+     "Run 'keel help holdings' for its options."])
+row("option: mistyped, with =", ["holdings", "--acount=Nobody"], USAGE,
+    ["keel: error: 'keel holdings' has no option '--acount'", "Did you mean '--account'?",
+     "Run 'keel help holdings' for its options."])
+row("option: mistyped while a required one is missing", ["record", "deposit", "--amont", "5"],
+    USAGE, ["keel: error: 'keel record deposit' has no option '--amont'",
+            "Did you mean '--amount'?", "Run 'keel help record deposit' for its options."])
+row("option: a global option mistyped after the command", ["holdings", "--dbb", "x.db"], USAGE,
+    ["keel: error: 'keel holdings' has no option '--dbb'", "Did you mean '--db'?",
+     "Run 'keel help holdings' for its options."])
+row("help: an unknown command", ["help", "record", "buyy"], USAGE,
+    ["keel: error: 'buyy' is not a command of 'keel record'", "Did you mean 'buy'?",
+     "Run 'keel help record' for its commands."])
 
 # --- the ledger file itself ----------------------------------------------------------------
 failures = []
