@@ -40,6 +40,11 @@ struct ImportOptions {
   std::optional<Mapping> mapping;
   bool dry_run = false;
   bool replace = false;
+  // Transactions: a row whose ref is booked with other content is booked as
+  // a correction (void of the old row + the new row) instead of refused.
+  bool book_corrections = false;
+  // Transactions from an OFX statement: the keel account it is for.
+  std::optional<std::string> account;
   // Called every so many rows with (rows so far, bytes read, file size).
   std::function<void(std::uint64_t, std::uint64_t, std::uint64_t)> progress;
 };
