@@ -36,6 +36,7 @@ void register_demo_commands(CLI::App& app, Context& context);
 void register_rules_commands(CLI::App& app, Context& context);
 void register_backtest_commands(CLI::App& app, Context& context);
 void register_statement_commands(CLI::App& app, Context& context);
+void register_reconcile_commands(CLI::App& app, Context& context);
 void register_reference_command(CLI::App& app);  // register last: it reads the others
 
 }  // namespace keel::cli

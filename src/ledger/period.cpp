@@ -45,7 +45,7 @@ void PeriodLocks::check_open(const Account& account, Date day, std::string_view 
   if (!lock || day > *lock) return;
   throw InputError(fmt::format(
       "{} would change '{}', which is reconciled through {}; if the statement was wrong, "
-      "reopen the period first: keel reconcile reopen --account '{}' --from {} --reason TEXT",
+      "reopen the period first: keel reopen --account '{}' --from {} --reason TEXT",
       what, printable(account.name), lock->str(), printable(account.name), day.str()));
 }
 

@@ -7,9 +7,11 @@
 
 #include "core/error.h"
 #include "core/text.h"
+#include "ledger/period.h"
 #include "ledger/posting.h"
 #include "store/ledger_store.h"
 #include "store/maintenance.h"
+#include "store/period_store.h"
 
 namespace keel::ledger {
 namespace {
@@ -134,6 +136,11 @@ VerifyReport verify(store::Database& db) {
     report.problems.push_back(std::string("replay: ") + e.what());
   }
   report.warnings = store::data_warnings(db);
+  const PeriodLocks locks = PeriodLocks::load(db);
+  for (const auto& [account_id, day] : store::last_reconciled_days(db))
+    for (const auto& a : log.accounts)
+      if (a.id == account_id)
+        report.reconciled.push_back({a.name, day, locks.locked_through(a.id)});
   return report;
 }
 

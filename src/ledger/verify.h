@@ -7,13 +7,16 @@
 //     summed straight from the raw rows (splits applied by date), compared
 //     with what the lot engine holds. keel stores nothing derived, so this
 //     cross-checks the engine itself.
-// Problems make the ledger suspect; warnings are facts worth a look.
+// Problems make the ledger suspect; warnings are facts worth a look. The
+// report also gives each account's last reconciled day (keel reconcile).
 #pragma once
 
 #include <cstddef>
+#include <optional>
 #include <string>
 #include <vector>
 
+#include "core/date.h"
 #include "store/database.h"
 
 namespace keel::ledger {
@@ -23,6 +26,14 @@ struct VerifyReport {
   std::vector<std::string> warnings;
   std::size_t transactions = 0;
   std::size_t accounts = 0;
+  // Each reconciled account's last reconciled day and the day it is locked
+  // through (earlier when a period was reopened), by account name.
+  struct Reconciled {
+    std::string account;
+    Date last;
+    std::optional<Date> locked_through;
+  };
+  std::vector<Reconciled> reconciled;
   bool ok() const { return problems.empty(); }
 };
 

@@ -42,7 +42,7 @@ TEST_CASE("period lock: a posting dated on the reconciled day is refused, nothin
   CHECK_THROWS_WITH_AS(
       ledger::post(f.db, deposit("2024-01-31")),
       "a deposit dated 2024-01-31 would change 'Main', which is reconciled through 2024-01-31; "
-      "if the statement was wrong, reopen the period first: keel reconcile reopen --account "
+      "if the statement was wrong, reopen the period first: keel reopen --account "
       "'Main' --from 2024-01-31 --reason TEXT",
       InputError);
   CHECK(f.dump() == before);
