@@ -258,10 +258,10 @@ bool TableReader::choose_rule() {
     if (source.column.empty() && !field_text(source.credit).empty() &&
         !field_text(source.debit).empty()) {
       errors_.add(record_.line, "",
-                  fmt::format("columns '{}' and '{}' are both filled; a {} row has money in or "
+                  fmt::format("columns '{}' and '{}' are both filled; a row has money in or "
                               "money out, not both",
                               printable(header_shown_[source.credit]),
-                              printable(header_shown_[source.debit]), rule_->kind));
+                              printable(header_shown_[source.debit])));
       return false;
     }
   }
@@ -365,7 +365,15 @@ bool TableReader::decimal(std::size_t col, std::string& out) {
   if (c.magnitude && !out.empty() && out.front() == '-') out.erase(0, 1);
   if (figure_source(col)) {
     const auto it = rule_->signs.find(c.name);
-    const FigureSign sign = it == rule_->signs.end() ? FigureSign::positive : it->second;
+    FigureSign sign = it == rule_->signs.end() ? FigureSign::positive : it->second;
+    // A credit/debit pair says the direction itself: unless the rule says
+    // otherwise, money out (a debit) is expected for kinds that take money out.
+    if (it == rule_->signs.end() && figure_source(col)->column.empty()) {
+      const std::string& k = rule_->kind;
+      const bool out_kind =
+          k == "withdrawal" || k == "tax" || k == "fee" || k == "buy" || k == "transfer_out";
+      sign = out_kind ? FigureSign::negative : FigureSign::positive;
+    }
     const bool negative = out.front() == '-';
     const bool zero = out == "0";
     if (negative && sign == FigureSign::positive) {
