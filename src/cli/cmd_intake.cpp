@@ -43,18 +43,6 @@ class Progress {
   Clock::time_point start_ = Clock::now();
 };
 
-// A refused import's lines (one per bad row) go to stderr before the error
-// itself reaches main().
-template <typename F>
-auto printing_refusals(F&& import) {
-  try {
-    return import();
-  } catch (const io::ImportRefused& e) {
-    for (const auto& line : e.lines()) std::fputs((line + "\n").c_str(), stderr);
-    throw;
-  }
-}
-
 struct ImportCommandOptions {
   std::string what, file, mapping, account;
   bool dry_run = false, replace = false, quiet = false, book_corrections = false;

@@ -1,6 +1,7 @@
 // Commands that set the ledger against a broker's statement: reconcile, reopen.
 #include <fmt/format.h>
 
+#include <cstdio>
 #include <memory>
 
 #include "cli/context.h"
@@ -57,17 +58,22 @@ void add_reconcile(CLI::App& app, Context& ctx) {
       if (!o->mapping.empty()) throw InputError("--map: only for CSV statements");
       if (o->account.empty())
         throw InputError("--account: name the keel account the OFX statement is for");
-      st = reconcile::read_statement_ofx(db, o->file, o->account);
+      st =
+          printing_refusals([&] { return reconcile::read_statement_ofx(db, o->file, o->account); });
     } else {
       if (!o->account.empty())
         throw InputError("--account: a CSV statement names its accounts on each row");
+      if (o->date.empty())
+        throw InputError("--date: a CSV statement needs its day, written YYYY-MM-DD");
       const Date day = date_value(o->date, "--date");
       std::optional<io::Mapping> mapping;
       if (!o->mapping.empty()) mapping = io::Mapping::load(o->mapping);
-      st = reconcile::read_statement_csv(db, o->file, day, mapping);
+      st = printing_refusals(
+          [&] { return reconcile::read_statement_csv(db, o->file, day, mapping); });
     }
     const auto r = reconcile::reconcile(db, st);
     out(render(r, o->file));
+    std::fflush(stdout);  // the report before the error line, on a terminal and in a pipe
     if (r.accounts.empty())
       throw InputError(fmt::format("{}: names no account", printable(o->file)));
     if (!r.differences.empty())

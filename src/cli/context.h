@@ -8,6 +8,7 @@
 #include <functional>
 #include <string>
 
+#include "io/errors.h"
 #include "store/database.h"
 
 namespace keel::cli {
@@ -23,6 +24,18 @@ struct Context {
 
 // Prints text to stdout exactly as given.
 void out(const std::string& text);
+
+// Runs `read`; a refused file's lines (one per bad row) go to stderr before
+// the error itself reaches main().
+template <typename F>
+auto printing_refusals(F&& read) {
+  try {
+    return read();
+  } catch (const io::ImportRefused& e) {
+    for (const auto& line : e.lines()) std::fputs((line + "\n").c_str(), stderr);
+    throw;
+  }
+}
 
 // Each command family registers its subcommands on the root app. A
 // subcommand's callback runs inside main()'s error handling.

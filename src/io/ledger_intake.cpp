@@ -103,7 +103,8 @@ std::string content_key(const ledger::PostRequest& r) {
 }
 
 // A booked row as a request would give it, field by field, for comparing a
-// re-imported line with what the ledger holds.
+// re-imported line with what the ledger holds. The note is left out: a
+// broker's memo, or a note typed by hand, says nothing about the money.
 using Fields = std::vector<std::pair<std::string, std::string>>;
 
 Fields fields_of(const ledger::PostRequest& r) {
@@ -115,7 +116,6 @@ Fields fields_of(const ledger::PostRequest& r) {
           {"price", opt(r.price)},
           {"amount", opt(r.amount)},
           {"fee", r.fee && !r.fee->is_zero() ? r.fee->str() : ""},
-          {"note", r.note.value_or("")},
           {"to_account", r.to_account.value_or("")},
           {"lots", r.lots.empty() ? "" : format_lot_picks(r.lots)},
           {"acquired", r.acquired ? r.acquired->str() : ""}};
@@ -157,7 +157,6 @@ struct BookedKeys {
           r.price = t.price;
           r.amount = t.amount;
           r.fee = t.fee;
-          r.note = t.note;
           if (auto it = receiver_of.find(t.id); it != receiver_of.end())
             r.to_account = accounts[it->second];
           r.lots = t.lots;

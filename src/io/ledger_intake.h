@@ -9,8 +9,8 @@
 //    problem found (up to 50) as FILE:LINE[: column 'x']: reason, and the
 //    ledger is left exactly as it was.
 //  - Exactly once: a row whose (account, ref) is already booked with the
-//    same content (date, kind, symbol, quantity, price, amount, fee, note,
-//    to_account, lots, acquired), or, without ref, whose content matches a
+//    same content (date, kind, symbol, quantity, price, amount, fee,
+//    to_account, lots, acquired; not the note), or, without ref, whose content matches a
 //    booked row of that account, is skipped and counted as already booked.
 //    The same key twice inside one file is an error.
 //  - Corrections: a row whose ref is booked with other content is refused,

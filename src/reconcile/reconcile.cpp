@@ -93,9 +93,7 @@ Decimal cash_effect(const io::OfxTransaction& t) {
   x.amount = t.amount;
   x.fee = t.fee.value_or(Decimal());
   if (!t.security.empty() && !is_cash_kind(t.kind)) x.security_id = 1;
-  Decimal e = t.amount || x.quantity ? cash_effect(x) : Decimal();
-  if (t.withheld) e -= *t.withheld;
-  return e;
+  return t.amount || x.quantity ? cash_effect(x) : Decimal();
 }
 
 // A split ratio small enough to be a real one: n, 1/n or p/q with p, q <= 10.
@@ -164,9 +162,21 @@ std::vector<std::string> explain(Context& c, const Account& account,
     if (c.voided.count(t.id) && t.date <= day && day - t.date <= kNearbyDays)
       out.push_back({effect, fmt::format("{} was voided", describe(t, sym))});
   }
+  // Tax withheld from income is its own row in the ledger (see io/ofx.h).
+  auto withheld = [&](const io::OfxTransaction& t) {
+    const std::string tax_ref = t.fitid + ":withholding";
+    if (units || !t.withheld || c.refs.count({account.id, tax_ref})) return;
+    out.push_back(
+        {-*t.withheld, fmt::format("the statement lists tax of {} withheld on {} (FITID "
+                                   "{}, line {}) that the ledger does not hold",
+                                   t.withheld->str(), t.date.str(), printable(tax_ref), t.line)});
+  };
   for (const auto& t : c.statement.listed) {
     if (!t.refused.empty() || t.skipped || t.date > day) continue;
-    if (c.refs.count({account.id, t.fitid})) continue;
+    if (c.refs.count({account.id, t.fitid})) {
+      withheld(t);
+      continue;
+    }
     Decimal effect;
     if (units) {
       const auto sec = store::find_security(c.db, t.security);
@@ -183,6 +193,7 @@ std::vector<std::string> explain(Context& c, const Account& account,
                                        "that the ledger does not hold",
                                        to_string(t.kind), printable(figures), t.date.str(),
                                        printable(t.fitid), t.line)});
+    withheld(t);
   }
   if (!units) {
     // A distribution in the market data, times the units held on its ex-date.
