@@ -8,6 +8,7 @@
 #include "io/market_intake.h"
 #include "ledger/period.h"
 #include "ledger_fixture.h"
+#include "report/statement.h"
 #include "store/period_store.h"
 #include "test_files.h"
 
@@ -114,4 +115,15 @@ TEST_CASE("reconcile: a statement naming an unknown account or security is refus
     CHECK(e.lines()[1] == (b.dir.path() / "s.csv").string() +
                               ":3: column 'symbol': unknown security 'QXR'; did you mean 'QRX'?");
   }
+}
+
+TEST_CASE("statement: an account's last reconciled day is noted beside the holdings") {
+  Books b;
+  reconcile::reconcile(b.f.db,
+                       b.statement(std::string(kHeader) + "Main,QRX,10,,,\nMain,,,,USD,500\n"));
+  report::StatementRequest request;
+  request.year = 2024;
+  const auto s = report::build_statement(b.f.db, request);
+  REQUIRE(s.reconciled.size() == 1);
+  CHECK(s.reconciled[0] == std::pair<std::string, Date>{"Main", day("2024-01-31")});
 }
