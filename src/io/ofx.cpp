@@ -131,7 +131,6 @@ class Scanner {
         ++scan_.statements;
       }
       stack.push_back(std::move(open));
-      stack_ = &stack;
     }
     if (!root_seen) fail(0, "OFX", "no <OFX> element: this is not an OFX file");
     if (!stack.empty()) fail(stack.back().line, stack.back().name, "opened here and never closed");
@@ -210,7 +209,6 @@ class Scanner {
   std::size_t pos_ = 0, counted_ = 0;
   std::uint64_t line_ = 1;
   Scan scan_;
-  const void* stack_ = nullptr;
 };
 
 std::string cstr(const char* s, std::size_t max) {
