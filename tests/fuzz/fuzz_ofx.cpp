@@ -17,11 +17,14 @@
 #include "io/ofx.h"
 
 extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {
-  // libofx reads files, not buffers: one scratch file per process.
-  static const std::string path = [] {
-    std::string p = "/tmp/keel-fuzz-ofx-" + std::to_string(::getpid()) + ".ofx";
-    return p;
-  }();
+  // libofx reads files, not buffers: one scratch file per process, removed
+  // when the fuzzer exits.
+  struct Scratch {
+    std::string path = "/tmp/keel-fuzz-ofx-" + std::to_string(::getpid()) + ".ofx";
+    ~Scratch() { std::remove(path.c_str()); }
+  };
+  static const Scratch scratch;
+  const std::string& path = scratch.path;
   std::FILE* f = std::fopen(path.c_str(), "wb");
   KEEL_FUZZ_CHECK(f != nullptr);
   if (size > 0) KEEL_FUZZ_CHECK(std::fwrite(data, 1, size, f) == size);
