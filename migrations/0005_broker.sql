@@ -21,6 +21,8 @@ CREATE TABLE correction (
   run_id        INTEGER NOT NULL REFERENCES import_run (id)
 ) STRICT;
 
+CREATE INDEX correction_by_ref ON correction (ref);
+
 -- A statement that matched the ledger: the day, the file and its SHA-256.
 CREATE TABLE reconciliation (
   id          INTEGER PRIMARY KEY,

@@ -259,11 +259,13 @@ std::vector<Transaction> list_transactions(Database& db) {
   return out;
 }
 
+// Looked up once per imported row: both halves go through an index
+// (txn (account_id, ref); correction (ref)), never a scan of the account.
 bool ref_exists(Database& db, std::int64_t account_id, std::string_view ref) {
   SQLite::Statement st(db.sql(),
                        "SELECT 1 FROM txn WHERE account_id = ?1 AND ref = ?2 UNION ALL "
-                       "SELECT 1 FROM correction JOIN txn ON txn.id = correction.new_txn_id "
-                       "WHERE txn.account_id = ?1 AND correction.ref = ?2");
+                       "SELECT 1 FROM correction c WHERE c.ref = ?2 AND EXISTS (SELECT 1 FROM "
+                       "txn WHERE txn.id = c.new_txn_id AND txn.account_id = ?1)");
   st.bind(1, account_id);
   st.bind(2, std::string(ref));
   return st.executeStep();
