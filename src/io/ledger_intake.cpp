@@ -384,6 +384,8 @@ void book_rows(store::Database& db, const std::filesystem::path& file, std::vect
     sum.preview.push_back(fresh_rows[i]);
   if (!fresh_rows.empty()) record_run(db, "transactions", file, sum);
   const ledger::PeriodLocks locks = ledger::PeriodLocks::load(db);
+  std::optional<store::ImportLinks> links;
+  if (sum.run_id) links.emplace(db, *sum.run_id);
   std::unordered_map<std::int64_t, std::string> pending;
   for (std::size_t i = 0; i < fresh_rows.size(); ++i) {
     IntakeRow& row = fresh_rows[i];
@@ -394,7 +396,7 @@ void book_rows(store::Database& db, const std::filesystem::path& file, std::vect
             fmt::format("corrected by {} line {}", file.filename().string(), row.line);
         for (auto id : ledger::write_void_unchecked(db, replaces[i], reason, &locks)) {
           pending[id] = origin;
-          store::link_import_txn(db, *sum.run_id, id, store::ImportRole::void_entry);
+          links->add(id, store::ImportRole::void_entry);
         }
         const std::string ref = *row.request.ref;
         row.request.ref.reset();  // the voided row keeps the ref in txn
@@ -402,14 +404,14 @@ void book_rows(store::Database& db, const std::filesystem::path& file, std::vect
         store::insert_correction(db, {ids.front(), replaces[i], ref, *sum.run_id});
         for (auto id : ids) {
           pending[id] = origin;
-          store::link_import_txn(db, *sum.run_id, id, store::ImportRole::correction);
+          links->add(id, store::ImportRole::correction);
         }
         ++sum.corrected;
         continue;
       }
       for (auto id : ledger::write_unchecked(db, row.request, &locks)) {
         pending[id] = origin;
-        store::link_import_txn(db, *sum.run_id, id, store::ImportRole::added);
+        links->add(id, store::ImportRole::added);
       }
     } catch (const ledger::ShapeError& e) {
       add_shape_error(errors, row, e);

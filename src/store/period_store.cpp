@@ -9,14 +9,18 @@
 
 namespace keel::store {
 
-void link_import_txn(Database& db, std::int64_t run_id, std::int64_t txn_id, ImportRole role) {
-  SQLite::Statement st(db.sql(), "INSERT INTO import_txn (run_id, txn_id, role) VALUES (?, ?, ?)");
-  st.bind(1, run_id);
-  st.bind(2, txn_id);
-  st.bind(3, role == ImportRole::added        ? "added"
-             : role == ImportRole::void_entry ? "void"
-                                              : "correction");
-  st.exec();
+ImportLinks::ImportLinks(Database& db, std::int64_t run_id)
+    : st_(db.sql(), "INSERT INTO import_txn (run_id, txn_id, role) VALUES (?, ?, ?)"),
+      run_id_(run_id) {}
+
+void ImportLinks::add(std::int64_t txn_id, ImportRole role) {
+  st_.reset();
+  st_.bind(1, run_id_);
+  st_.bind(2, txn_id);
+  st_.bind(3, role == ImportRole::added        ? "added"
+              : role == ImportRole::void_entry ? "void"
+                                               : "correction");
+  st_.exec();
 }
 
 void insert_correction(Database& db, const Correction& c) {

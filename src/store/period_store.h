@@ -9,6 +9,8 @@
 //  - Bound parameters only; callers wrap writes in a WriteTransaction.
 #pragma once
 
+#include <SQLiteCpp/Statement.h>
+
 #include <cstdint>
 #include <optional>
 #include <string>
@@ -21,7 +23,17 @@
 namespace keel::store {
 
 enum class ImportRole { added, void_entry, correction };
-void link_import_txn(Database& db, std::int64_t run_id, std::int64_t txn_id, ImportRole role);
+// Records which rows one import run wrote; the statement is prepared once
+// for the whole run.
+class ImportLinks {
+ public:
+  ImportLinks(Database& db, std::int64_t run_id);
+  void add(std::int64_t txn_id, ImportRole role);
+
+ private:
+  SQLite::Statement st_;
+  std::int64_t run_id_;
+};
 
 struct Correction {
   std::int64_t new_txn_id = 0;
