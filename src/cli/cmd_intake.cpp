@@ -15,6 +15,7 @@
 #include "io/ledger_intake.h"
 #include "io/market_intake.h"
 #include "ledger/posting.h"
+#include "report/table.h"
 #include "store/market_data.h"
 
 namespace keel::cli {
@@ -45,22 +46,58 @@ class Progress {
   Clock::time_point start_ = Clock::now();
 };
 
-// A refused import's lines (one per bad row) go to stderr before the error
-// itself reaches main().
-template <typename F>
-auto printing_refusals(F&& import) {
-  try {
-    return import();
-  } catch (const io::ImportRefused& e) {
-    for (const auto& line : e.lines()) std::fputs((line + "\n").c_str(), stderr);
-    throw;
+struct ImportCommandOptions {
+  std::string what, file, mapping, account;
+  bool dry_run = false, replace = false, quiet = false, allow_future = false,
+       book_corrections = false;
+};
+
+// The first rows of a dry run, as keel would book them.
+std::string preview_table(const io::LedgerImportSummary& sum) {
+  report::Table table({{"line", report::Align::right},
+                       {"date"},
+                       {"account"},
+                       {"kind"},
+                       {"symbol"},
+                       {"quantity", report::Align::right},
+                       {"price", report::Align::right},
+                       {"amount", report::Align::right},
+                       {"fee", report::Align::right},
+                       {"ref"}});
+  auto opt = [](const std::optional<Decimal>& d) { return d ? d->str() : std::string(); };
+  for (const auto& row : sum.preview) {
+    const auto& r = row.request;
+    table.add_row({std::to_string(row.line), r.date.str(), r.account,
+                   std::string(to_string(r.kind)), r.symbol.value_or(""), opt(r.quantity),
+                   opt(r.price), opt(r.amount), r.fee && !r.fee->is_zero() ? r.fee->str() : "",
+                   r.ref.value_or("")});
   }
+  std::string text = table.render();
+  if (sum.added + sum.corrected > sum.preview.size())
+    text += fmt::format("... and {} more\n", sum.added + sum.corrected - sum.preview.size());
+  return text;
 }
 
-struct ImportCommandOptions {
-  std::string what, file, mapping;
-  bool dry_run = false, replace = false, quiet = false, allow_future = false;
-};
+std::string ledger_summary(const io::LedgerImportSummary& sum) {
+  std::string text =
+      fmt::format("{}: {} rows read; {} {}, {} already booked", printable(sum.file), sum.rows,
+                  sum.dry_run ? "would add" : "added", sum.added, sum.already_booked);
+  if (sum.corrected)
+    text += fmt::format(", {} {}", sum.dry_run ? "would correct" : "corrected", sum.corrected);
+  if (!sum.skipped.empty()) {
+    std::uint64_t total = 0;
+    std::string per;
+    for (const auto& [action, n] : sum.skipped) {
+      total += n;
+      per += fmt::format("{}{} {}", per.empty() ? "" : ", ", printable(action), n);
+    }
+    text += fmt::format("; skipped {} ({})", total, per);
+  }
+  if (sum.dry_run) text += " (dry run: nothing was changed)";
+  text += "\n";
+  if (sum.dry_run && !sum.preview.empty()) text += "\n" + preview_table(sum);
+  return text;
+}
 
 void add_import(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ImportCommandOptions>();
@@ -70,7 +107,9 @@ void add_import(CLI::App& app, Context& ctx) {
   cmd->add_option("WHAT", o->what,
                   "accounts, transactions, securities, prices, metrics, distributions or splits")
       ->required();
-  cmd->add_option("FILE", o->file, "CSV file (keel's layout, or another described by --map)")
+  cmd->add_option("FILE", o->file,
+                  "CSV file (keel's layout, or another described by --map); transactions also "
+                  "from an OFX investment statement")
       ->required();
   cmd->add_option("--map", o->mapping, "TOML file describing the file's layout");
   cmd->add_flag("--dry-run", o->dry_run, "Check everything and report, but change nothing");
@@ -79,21 +118,29 @@ void add_import(CLI::App& app, Context& ctx) {
   cmd->add_flag(ledger::kAllowFutureFlag, o->allow_future,
                 "Accept transactions and splits dated after today, e.g. trades booked before "
                 "they settle (without it such rows are refused as likely slips)");
+  cmd->add_flag("--book-corrections", o->book_corrections,
+                "Transactions: book a booked ref whose content changed as a void of the old row "
+                "plus the new row (refused otherwise)");
+  cmd->add_option("--account", o->account,
+                  "Transactions from an OFX statement: the keel account it belongs to");
   cmd->callback([&ctx, o] {
     io::ImportOptions options;
     if (!o->mapping.empty()) options.mapping = io::Mapping::load(o->mapping);
     options.dry_run = o->dry_run;
     options.replace = o->replace;
     options.allow_future = o->allow_future;
+    options.book_corrections = o->book_corrections;
+    if (!o->account.empty()) options.account = o->account;
+    if (o->what != "transactions" && (o->book_corrections || options.account))
+      throw InputError(fmt::format("{}: only for importing transactions",
+                                   o->book_corrections ? "--book-corrections" : "--account"));
     if (o->what == "transactions" || o->what == "accounts") {
       auto db = ctx.open_ledger(store::Access::write);
       const auto sum = printing_refusals([&] {
         return o->what == "accounts" ? io::import_accounts(db, o->file, options)
                                      : io::import_transactions(db, o->file, options);
       });
-      out(fmt::format("{}: {} rows read; {} {}, {} already booked{}\n", printable(sum.file),
-                      sum.rows, sum.dry_run ? "would add" : "added", sum.added, sum.already_booked,
-                      sum.dry_run ? " (dry run: nothing was changed)" : ""));
+      out(ledger_summary(sum));
       return;
     }
     const io::MarketKind kind = io::parse_market_kind(o->what);

@@ -7,6 +7,7 @@
 #include "cli/context.h"
 #include "cli/options.h"
 #include "core/error.h"
+#include "core/text.h"
 #include "ledger/restore.h"
 #include "ledger/verify.h"
 #include "store/maintenance.h"
@@ -24,6 +25,14 @@ void add_verify(CLI::App& app, Context& ctx) {
     std::string text;
     for (const auto& p : report.problems) text += "problem: " + p + "\n";
     for (const auto& w : report.warnings) text += "warning: " + w + "\n";
+    for (const auto& r : report.reconciled) {
+      text += fmt::format("reconciled: '{}' last on {}", printable(r.account), r.last.str());
+      if (r.locked_through != r.last)
+        text += r.locked_through
+                    ? fmt::format(" (reopened: locked through {})", r.locked_through->str())
+                    : std::string(" (reopened: not locked)");
+      text += "\n";
+    }
     out(text);
     if (!report.ok())
       throw LedgerError(fmt::format("{}: {} problem{} found", db.path().string(),

@@ -8,6 +8,7 @@
 #include <functional>
 #include <string>
 
+#include "io/errors.h"
 #include "store/database.h"
 
 namespace keel::cli {
@@ -29,6 +30,18 @@ void out(const std::string& text);
 // Flushes stdout at the end of a command, with the same error.
 void finish_output();
 
+// Runs `read`; a refused file's lines (one per bad row) go to stderr before
+// the error itself reaches main().
+template <typename F>
+auto printing_refusals(F&& read) {
+  try {
+    return read();
+  } catch (const io::ImportRefused& e) {
+    for (const auto& line : e.lines()) std::fputs((line + "\n").c_str(), stderr);
+    throw;
+  }
+}
+
 // Each command family registers its subcommands on the root app. A
 // subcommand's callback runs inside main()'s error handling.
 using Registrar = void (*)(CLI::App& app, Context& context);
@@ -41,6 +54,7 @@ void register_demo_commands(CLI::App& app, Context& context);
 void register_rules_commands(CLI::App& app, Context& context);
 void register_backtest_commands(CLI::App& app, Context& context);
 void register_statement_commands(CLI::App& app, Context& context);
+void register_reconcile_commands(CLI::App& app, Context& context);
 void register_reference_command(CLI::App& app);  // register last: it reads the others
 
 }  // namespace keel::cli

@@ -50,6 +50,7 @@ int main(int argc, char** argv) {
   keel::cli::register_rules_commands(app, context);
   keel::cli::register_backtest_commands(app, context);
   keel::cli::register_statement_commands(app, context);
+  keel::cli::register_reconcile_commands(app, context);
   keel::cli::register_reference_command(app);
   // Before any command runs: no file keel writes may be the ledger.
   app.parse_complete_callback([&context] { keel::protect_from_output(context.ledger_path()); });

@@ -42,6 +42,11 @@ struct ImportOptions {
   bool dry_run = false;
   bool replace = false;
   bool allow_future = false;  // accept transactions and splits dated after today
+  // Transactions: a row whose ref is booked with other content is booked as
+  // a correction (void of the old row + the new row) instead of refused.
+  bool book_corrections = false;
+  // Transactions from an OFX statement: the keel account it is for.
+  std::optional<std::string> account;
   // Called every so many rows with (rows so far, bytes read, file size).
   std::function<void(std::uint64_t, std::uint64_t, std::uint64_t)> progress;
   // When set, the import reads these bytes and the file only names them (in

@@ -27,5 +27,7 @@ class Sha256 {
 };
 
 std::string sha256_hex(std::string_view text);
+// The digest of a whole file; throws InputError naming it when it cannot be read.
+std::string sha256_file_hex(const std::filesystem::path& file);
 
 }  // namespace keel::io

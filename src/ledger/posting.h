@@ -4,9 +4,11 @@
 // checks its shape (which figures a kind needs, all positive), resolves the
 // names, writes the row(s) and replays the whole ledger inside one write
 // transaction; if any rule breaks (see ledger/book.h), it throws InputError
-// and nothing is written. void_transaction() cancels a posted row (and the
-// other half of a transfer pair), or reinstates it by voiding its void, by
-// recording void entries, under the same all-or-nothing check.
+// and nothing is written. Every write here checks the period locks
+// (ledger/period.h): nothing dated in a reconciled period gets in.
+// void_transaction() cancels a posted row (and the other half of a transfer
+// pair), or reinstates it by voiding its void, by recording void entries,
+// under the same all-or-nothing check.
 #pragma once
 
 #include <cstdint>
@@ -15,7 +17,9 @@
 #include <unordered_map>
 #include <vector>
 
+#include "core/error.h"
 #include "ledger/book.h"
+#include "ledger/period.h"
 #include "model/records.h"
 #include "store/database.h"
 
@@ -48,8 +52,21 @@ std::optional<std::string> future_date(Date date);
 // The flag that overrides it, named in every refusal.
 inline constexpr const char* kAllowFutureFlag = "--allow-future-date";
 
-// Throws InputError naming the first figure that is missing, extra or not
-// positive, or a date after today without allow_future.
+// A request of the wrong shape; field() names the request's field at fault
+// ("amount", "quantity"; empty for the row as a whole) and reason() says why
+// without naming an option, so an importer can name the file's column instead.
+class ShapeError : public InputError {
+ public:
+  ShapeError(std::string message, std::string field, std::string reason);
+  const std::string& field() const { return field_; }
+  const std::string& reason() const { return reason_; }
+
+ private:
+  std::string field_, reason_;
+};
+
+// Throws ShapeError naming the first figure that is missing, extra or not
+// positive, or InputError for a date after today without allow_future.
 void check_shape(const PostRequest& request);
 
 // Posts one request; returns the ids written (two for an internal transfer).
@@ -57,7 +74,16 @@ std::vector<std::int64_t> post(store::Database& db, const PostRequest& request);
 
 // Writes the rows of `requests` without replaying; the caller replays once
 // (check_ledger) and commits. For importers that post many rows in one go.
-std::vector<std::int64_t> write_unchecked(store::Database& db, const PostRequest& request);
+// `locks`: the period locks loaded once by the caller (loaded here if null).
+std::vector<std::int64_t> write_unchecked(store::Database& db, const PostRequest& request,
+                                          const PeriodLocks* locks = nullptr);
+
+// Writes the void entries cancelling `id` (and the other half of a transfer
+// pair) without replaying; returns their ids. Throws InputError for an
+// unknown id, a void, an already voided row or a locked period.
+std::vector<std::int64_t> write_void_unchecked(store::Database& db, std::int64_t id,
+                                               const std::string& reason,
+                                               const PeriodLocks* locks = nullptr);
 
 // Replays the whole ledger; throws InputError on the first broken rule.
 // `pending`: ids written by the change being checked, with their origin (see LedgerLog).

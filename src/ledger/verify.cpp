@@ -7,9 +7,11 @@
 
 #include "core/error.h"
 #include "core/text.h"
+#include "ledger/period.h"
 #include "ledger/posting.h"
 #include "store/ledger_store.h"
 #include "store/maintenance.h"
+#include "store/period_store.h"
 
 namespace keel::ledger {
 namespace {
@@ -174,6 +176,11 @@ VerifyReport verify(store::Database& db) {
        {store::future_rows(db, Date::today()), store::text_problems(db), store::name_warnings(db)})
     report.warnings.insert(report.warnings.end(), more.begin(), more.end());
   report.warnings.insert(report.warnings.end(), sign_warnings.begin(), sign_warnings.end());
+  const PeriodLocks locks = PeriodLocks::load(db);
+  for (const auto& [account_id, day] : store::last_reconciled_days(db))
+    for (const auto& a : log.accounts)
+      if (a.id == account_id)
+        report.reconciled.push_back({a.name, day, locks.locked_through(a.id)});
   return report;
 }
 

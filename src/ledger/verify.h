@@ -15,14 +15,17 @@
 // Problems make the ledger suspect; warnings are facts worth a look (text
 // problems are warnings: every figure is still sound, and reports replace
 // ill-formed bytes with U+FFFD in JSON and show them escaped on terminals).
+// The report also gives each account's last reconciled day (keel reconcile).
 #pragma once
 
 #include <cstddef>
+#include <optional>
 #include <string>
 #include <vector>
 
 #include "ledger/book.h"
 #include "ledger/holdings.h"
+#include "core/date.h"
 #include "store/database.h"
 
 namespace keel::ledger {
@@ -32,6 +35,14 @@ struct VerifyReport {
   std::vector<std::string> warnings;
   std::size_t transactions = 0;
   std::size_t accounts = 0;
+  // Each reconciled account's last reconciled day and the day it is locked
+  // through (earlier when a period was reopened), by account name.
+  struct Reconciled {
+    std::string account;
+    Date last;
+    std::optional<Date> locked_through;
+  };
+  std::vector<Reconciled> reconciled;
   bool ok() const { return problems.empty(); }
 };
 

@@ -12,6 +12,7 @@
 #include "ledger/accounts.h"
 #include "ledger/posting.h"
 #include "store/ledger_store.h"
+#include "store/period_store.h"
 #include "store/price_write.h"
 
 namespace keel::report {
@@ -175,6 +176,9 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   } else if (const auto currency = ledger::one_currency(accounts, "statement")) {
     s.currency = *currency;
   }
+  for (const auto& [id, day] : store::last_reconciled_days(db))
+    for (const auto& a : accounts)
+      if (a.id == id && (!account_id || *account_id == id)) s.reconciled.emplace_back(a.name, day);
   if (request.benchmark && !store::find_security(db, *request.benchmark))
     throw InputError(fmt::format("--benchmark: there is no security with symbol '{}'",
                                  printable(*request.benchmark)));

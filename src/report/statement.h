@@ -143,6 +143,9 @@ struct Statement {
   std::optional<std::string> benchmark;
   std::string long_term_rule;  // words for the threshold in use
   std::vector<std::string> unpriced;
+  // Each account in scope that was reconciled with a broker's statement
+  // (keel reconcile), with its last reconciled day.
+  std::vector<std::pair<std::string, Date>> reconciled;
 
   YearSummary summary;
   std::vector<PerformanceLine> performance;  // this year first

@@ -26,6 +26,9 @@ nlohmann::ordered_json statement_json(const Statement& s) {
   j["benchmark"] = s.benchmark ? Json(*s.benchmark) : Json();
   j["long_term_rule"] = s.long_term_rule;
   j["unpriced"] = s.unpriced;
+  j["reconciled"] = Json::array();
+  for (const auto& [account, day] : s.reconciled)
+    j["reconciled"].push_back({{"account", account}, {"day", day.str()}});
 
   const YearSummary& y = s.summary;
   j["summary"] = {{"opening_value", y.opening_value.str()},

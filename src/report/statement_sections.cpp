@@ -175,6 +175,9 @@ Section holdings_section(const Statement& s) {
   if (!s.unpriced.empty())
     sec.notes.push_back(fmt::format("Held without any close or trade price, valued at zero: {}.",
                                     fmt::join(s.unpriced, ", ")));
+  for (const auto& [account, day] : s.reconciled)
+    sec.notes.push_back(fmt::format("'{}' was last reconciled with its broker's statement on {}.",
+                                    account, day.str()));
   return sec;
 }
 

@@ -35,7 +35,8 @@ std::vector<Security> list_securities(Database& db);
 
 std::int64_t insert_transaction(Database& db, const Transaction& txn);
 std::optional<Transaction> find_transaction(Database& db, std::int64_t id);
-// Every row, voids included, in posting order (date, then id).
+// Every row, voids included, in posting order (date, then id). A
+// correction's replacement row carries the ref it corrects.
 std::vector<Transaction> list_transactions(Database& db);
 bool ref_exists(Database& db, std::int64_t account_id, std::string_view ref);
 bool row_hash_exists(Database& db, std::int64_t account_id, std::string_view row_hash);

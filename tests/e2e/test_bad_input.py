@@ -16,7 +16,7 @@ import sqlite3
 import sys
 
 sys.path.insert(0, os.path.dirname(__file__))
-from keel_cli import Ledger, check, equal, ledger_digest  # noqa: E402
+from keel_cli import SOURCE, Ledger, check, equal, ledger_digest  # noqa: E402
 
 SHOW = os.environ.get("KEEL_SHOW") == "1"
 # keel's today is the local calendar day; so is Python's (both follow TZ).
@@ -138,8 +138,8 @@ import_row("transactions: 61 significant digits", "transactions",
            refused(f"{{f}}:2: column 'amount': '{'9' * 61}' is not a decimal number: more than 60 "
                    "significant digits"))
 import_row("transactions: negative amount", "transactions", TX + f"2024-03-01,{T},deposit,,,,-5,,,\n",
-           INPUT, refused("{f}:2: deposit: --amount must be positive, not -5 (the kind gives the "
-                          "direction)"))
+           INPUT, refused("{f}:2: column 'amount' = -5: deposit: must be positive, not -5 (the kind "
+                          "gives the direction)"))
 import_row("transactions: control character in a note", "transactions",
            TX + f"2024-03-01,{T},deposit,,,,5,,,\"bell\x07\"\n", INPUT,
            refused("{f}:2: note 'bell\\x07' contains a control character"))
@@ -155,7 +155,7 @@ import_row("transactions: a record over 16 MiB", "transactions",
 import_row("transactions: binary file", "transactions", bytes(range(256)) * 4, INPUT,
            refused("{f}:1: column '\\x00\\x01\\x02\\x03\\x04\\x05\\x06\\x07\\x08\\x09': unknown column; "
                    "expected date, account, kind, symbol, quantity, price, amount, fee, ref, note, "
-                   "to_account, lots, acquired (or list it under 'ignore' in a mapping)",
+                   "to_account, lots, acquired, currency, rate (or list it under 'ignore' in a mapping)",
                    "{f}:1: column 'date': missing from the header",
                    "{f}:1: column 'account': missing from the header",
                    "{f}:1: column 'kind': missing from the header"))
@@ -170,6 +170,80 @@ import_row("transactions: date not matching the mapping's format", "transactions
 import_row("transactions: mapping that is not TOML", "transactions", TX, INPUT,
            "keel: error: {d}/map-%d.toml:1:9: not valid TOML: Error while parsing array: "
            "encountered end-of-file" % len(ROWS), mapping="for = [\n")
+
+# --- broker files: action rules, currencies, OFX, reconcile --------------------------------
+ACT = f'for = "transactions"\n[defaults]\naccount = "{T}"\n[actions]\ncolumn = "Action"\n'
+BUY = '[[actions.rule]]\nwhen = "Buy"\nkind = "buy"\nquantity = "Qty"\nprice = "Price"\n'
+MIXED = "Date,Action,Symbol,Qty,Price\n"
+import_row("transactions: a mapping sends an action to no kind", "transactions", MIXED, INPUT,
+           "keel: error: {d}/map-%d.toml:6: key 'actions.rule': action 'Buy' goes to no kind; add "
+           "kind = \"...\"" % len(ROWS), mapping=ACT + '[[actions.rule]]\nwhen = "Buy"\n')
+import_row("transactions: two mapping rules match the same rows", "transactions", MIXED, INPUT,
+           "keel: error: {d}/map-%d.toml:11: key 'actions.rule': matches the same rows as the rule "
+           "on line 6 (action 'buy')" % len(ROWS),
+           mapping=ACT + BUY + '[[actions.rule]]\nwhen = "buy"\nkind = "sell"\n')
+import_row("transactions: an action no rule books", "transactions",
+           MIXED + "2024-03-01,Split,QRX,2,\n", INPUT,
+           refused("{f}:2: column 'Action' = Split: no rule of the mapping books this action "
+                   "(rules: 'Buy'); add a rule or list it under actions.skip"), mapping=ACT + BUY)
+import_row("transactions: a figure of the wrong sign names the file's column", "transactions",
+           MIXED + "2024-03-01,Buy,QRX,-2,50\n", INPUT,
+           refused("{f}:2: column 'Qty' = -2: a buy row's quantity must be positive here; if the "
+                   "file writes it negative, say sign = \"negative\" or \"either\" in the "
+                   "mapping's rule on line 6"), mapping=ACT + BUY)
+import_row("transactions: a row in another currency", "transactions",
+           "date,account,kind,amount,currency\n" f"2024-03-01,{T},deposit,5,CHF\n", INPUT,
+           refused(f"{{f}}:2: column 'currency' = CHF: account '{T}' keeps USD; keel does not "
+                   "convert currencies yet, so book this row in an account that keeps CHF"))
+import_row("transactions: a changed line with a booked ref", "transactions",
+           TX + f"2024-01-03,{T},buy,QRX,10,51,,,b-1,\n", INPUT,
+           refused("{f}:2: column 'ref' = b-1: already booked as transaction 2 with other content: "
+                   "price 50 -> 51; to book the change, import with --book-corrections (voids 2 "
+                   "and books this row)"))
+OFX_HEAD = "OFXHEADER:100\nDATA:OFXSGML\nVERSION:102\n\n<OFX>\n"
+row("transactions: an OFX file with an aggregate left open",
+    ["import", "transactions", "{d}/open.ofx", "--account", T], INPUT,
+    "keel: error: {d}/open.ofx:9: element <INVSTMTMSGSRSV1>: closes an element while "
+    "<INVSTMTRS> opened on line 7 is still open",
+    {"open.ofx": (OFX_HEAD + "<INVSTMTMSGSRSV1>\n<INVSTMTRS>\n<DTASOF>20240131\n"
+                  "</INVSTMTMSGSRSV1>\n</OFX>\n").encode()})
+row("transactions: an OFX closing tag that closes nothing",
+    ["import", "transactions", "{d}/close.ofx", "--account", T], INPUT,
+    "keel: error: {d}/close.ofx:6: element <BUYSTOCK>: closes no open element",
+    {"close.ofx": (OFX_HEAD + "</BUYSTOCK>\n</OFX>\n").encode()})
+row("transactions: an OFX statement without --account",
+    ["import", "transactions", os.path.join(SOURCE, "examples/import/broker-statement.ofx")],
+    INPUT, "keel: error: --account: the statement is for 'brokerage.invalid 77-1234'; name the "
+    "keel account it belongs to")
+row("import: --book-corrections outside transactions",
+    ["import", "prices", "{d}/seed-prices.csv", "--book-corrections"], INPUT,
+    "keel: error: --book-corrections: only for importing transactions")
+STMT = "account,symbol,quantity,cost_basis,currency,cash\n"
+row("reconcile: an unknown account and security, with the nearest names",
+    ["reconcile", "{d}/stmt.csv", "--date", "2024-01-31"], INPUT,
+    ["{d}/stmt.csv:2: column 'account': unknown account 'Alder Taxabel'; did you mean "
+     "'Alder Taxable'?",
+     "{d}/stmt.csv:3: column 'symbol': unknown security 'QXR'; did you mean 'QRX'?",
+     "keel: error: {d}/stmt.csv: 2 errors; nothing was recorded"],
+    {"stmt.csv": (STMT + "Alder Taxabel,QRX,10,,,\nAlder Taxable,QXR,10,,,\n").encode()})
+row("reconcile: a CSV statement without --date", ["reconcile", "{d}/stmt2.csv"], INPUT,
+    "keel: error: --date: a CSV statement needs its day, written YYYY-MM-DD",
+    {"stmt2.csv": (STMT + "Alder Taxable,QRX,10,,,\n").encode()})
+row("reconcile: --date not a calendar day",
+    ["reconcile", "{d}/stmt3.csv", "--date", "2024-02-30"], INPUT,
+    "keel: error: --date: '2024-02-30' is not a calendar date",
+    {"stmt3.csv": (STMT + "Alder Taxable,QRX,10,,,\n").encode()})
+row("reconcile: a row both position and cash",
+    ["reconcile", "{d}/stmt4.csv", "--date", "2024-01-31"], INPUT,
+    ["{d}/stmt4.csv:2: a row is either a position (symbol and quantity) or cash (cash and "
+     "currency)", "keel: error: {d}/stmt4.csv: 1 error; nothing was recorded"],
+    {"stmt4.csv": (STMT + "Alder Taxable,QRX,10,,USD,5\n").encode()})
+row("reopen: an account never reconciled",
+    ["reopen", "--account", T, "--from", "2024-01-01", "--reason", "x"], INPUT,
+    f"keel: error: --account: '{T}' has no reconciled period to reopen")
+row("reopen: --from not a calendar day",
+    ["reopen", "--account", T, "--from", "2024-13-01", "--reason", "x"], INPUT,
+    "keel: error: --from: '2024-13-01' is not a calendar date")
 
 # --- securities ---------------------------------------------------------------------------
 SEC = "symbol,name,kind,currency,lot_size,sector\n"
@@ -410,7 +484,7 @@ row("command: two letters swapped", ["recrod", "deposit"], USAGE,
      "Run 'keel help' for the list of commands."])
 row("command: the start of several", ["re"], USAGE,
     ["keel: error: 're' is not a keel command",
-     "Did you mean one of: 'record', 'returns', 'restore', 'reference'?",
+     "Did you mean one of: 'record', 'returns', 'restore', 'reconcile', 'reopen', 'reference'?",
      "Run 'keel help' for the list of commands."])
 row("command: nothing close", ["zebra"], USAGE,
     ["keel: error: 'zebra' is not a keel command", "Run 'keel help' for the list of commands."])

@@ -12,7 +12,10 @@ import sqlite3
 import sys
 
 sys.path.insert(0, os.path.dirname(__file__))
-from keel_cli import Ledger, check, equal  # noqa: E402
+from keel_cli import SOURCE, Ledger, check, equal  # noqa: E402
+
+# The newest schema version: one migration file per version.
+SCHEMA = len([f for f in os.listdir(os.path.join(SOURCE, "migrations")) if f.endswith(".sql")])
 
 
 def digest(path):
@@ -33,7 +36,7 @@ def refused(led, args, message):
 
 # No currency at init: the first account gives one; until then nothing defaults to USD.
 led = Ledger(currency=None)
-equal(led.ok("init"), f"ledger ready at {led.path} (schema version 3, currency: the first "
+equal(led.ok("init"), f"ledger ready at {led.path} (schema version {SCHEMA}, currency: the first "
       "account's)\n", "init without a currency")
 NO_CURRENCY = ("this ledger has no currency yet; give --currency (such as --currency EUR), or "
                "record one for the ledger with 'keel init --currency CODE'")
@@ -42,7 +45,7 @@ refused(led, ["security", "add", "ZQA", "--name", "Zeqa Alloys", "--kind", "stoc
         f"keel: error: security add: {NO_CURRENCY}")
 equal(led.ok("account", "add", "Main", "--currency", "eur"), "account 1 'Main' added (EUR, fifo)\n",
       "the first account")
-equal(led.ok("init"), f"ledger ready at {led.path} (schema version 3, currency EUR)\n",
+equal(led.ok("init"), f"ledger ready at {led.path} (schema version {SCHEMA}, currency EUR)\n",
       "the first account's currency became the ledger's")
 equal(led.ok("account", "add", "Second"), "account 2 'Second' added (EUR, fifo)\n",
       "an account without --currency takes the ledger's")

@@ -30,7 +30,9 @@ def complete(line):
     return sorted(out.split())
 
 
-equal(complete("keel rec"), ["record"], "command completion")
+equal(complete("keel rec"), ["reconcile", "record"], "command completion")
+equal(complete("keel reco"), ["reconcile", "record"], "command completion, two choices")
+equal(complete("keel recor"), ["record"], "command completion, one choice")
 equal(complete("keel record bu"), ["buy"], "subcommand completion")
 equal(complete("keel record buy --acc"), ["--account"], "option completion")
 equal(complete("keel --db x.db account l"), ["list"], "completion past a global option")
