@@ -232,7 +232,8 @@ void add_backtest(CLI::App& app, Context& ctx) {
                {"keel backtest --rule rule.toml --from 2019-01-01 --to 2025-12-31 --benchmark ZXTR",
                 "keel backtest --rule rule.toml --from 2019-01-01 --to 2025-12-31 --frictionless "
                 "--curve curve.csv"});
-  cmd->add_option("--rule", o->rule, "Rule file (TOML; see docs/rules.md)")->required();
+  cmd->add_option("--rule", o->rule, "Rule file (TOML; see docs/rules.md; '-': standard input)")
+      ->required();
   cmd->add_option("--from", o->from, "First day, YYYY-MM-DD")->required();
   cmd->add_option("--to", o->to, "Last day, YYYY-MM-DD")->required();
   cmd->add_option("--start-value", o->start_value, "Cash the simulated pool starts with");
@@ -308,7 +309,8 @@ void add_signal(CLI::App& app, Context& ctx) {
       "the cheapest-less-dearest spread");
   add_examples(
       *cmd, {"keel signal --rule rule.toml --from 2017-01-01 --to 2025-12-31 --horizons 1,3,12"});
-  cmd->add_option("--rule", o->rule, "Rule file (TOML; see docs/rules.md)")->required();
+  cmd->add_option("--rule", o->rule, "Rule file (TOML; see docs/rules.md; '-': standard input)")
+      ->required();
   cmd->add_option("--from", o->from, "First day, YYYY-MM-DD")->required();
   cmd->add_option("--to", o->to, "Last day, YYYY-MM-DD")->required();
   cmd->add_option("--horizons", o->horizons, "Forward windows in months, comma-separated");
@@ -367,7 +369,7 @@ void add_signal(CLI::App& app, Context& ctx) {
                  h.mean_ic ? fmt::format("{:.4f}", *h.mean_ic) : "n/a",
                  h.t_stat ? fmt::format("{:.2f}", *h.t_stat) : "n/a", pct(h.share_expected_sign),
                  pct(h.mean_spread)});
-    s += t.render({ctx.colour()});
+    s += t.render(ctx.style());
     if (!r.notes.empty()) {
       s += "\nNotes:\n";
       for (const auto& n : r.notes) s += "  " + printable(n) + "\n";

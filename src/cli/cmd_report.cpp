@@ -6,7 +6,9 @@
 #include <nlohmann/json.hpp>
 
 #include "cli/context.h"
+#include "cli/csv_rows.h"
 #include "cli/history_rows.h"
+#include "cli/json_schema.h"
 #include "cli/options.h"
 #include "cli/print.h"
 #include "core/error.h"
@@ -35,7 +37,7 @@ std::string percent(const Decimal& part, const Decimal& whole) {
 struct ViewOptions {
   std::string as_of, account, from, to;
   int year = 0;
-  bool json = false;
+  bool json = false, csv = false;
 };
 
 void add_holdings(CLI::App& app, Context& ctx) {
@@ -45,13 +47,13 @@ void add_holdings(CLI::App& app, Context& ctx) {
                {"keel holdings --as-of 2025-12-31", "keel holdings --account Taxable --json"});
   cmd->add_option("--as-of", o->as_of, "Day to value at, YYYY-MM-DD (default: today)");
   add_account_option(*cmd, o->account);
-  add_json_flag(*cmd, o->json);
+  add_json_and_csv_flags(*cmd, o->json, o->csv);
   cmd->callback([&ctx, o] {
     auto db = ctx.open_ledger();
     const auto h =
         ledger::holdings(db, date_option_or_today(o->as_of, "--as-of"), text_option(o->account));
     if (o->json) {
-      Json j;
+      Json j = json_document("holdings", 1);
       j["as_of"] = h.as_of.str();
       j["positions"] = Json::array();
       for (const auto& p : h.positions)
@@ -69,14 +71,26 @@ void add_holdings(CLI::App& app, Context& ctx) {
       print_json(j);
       return;
     }
-    Table t({{"account"},
+    if (o->csv) {
+      CsvRows csv({"account", "symbol", "quantity", "cost_basis", "price", "price_is_close",
+                   "market_value", "unrealized_gain"});
+      for (const auto& p : h.positions)
+        csv.add({p.account, p.symbol, p.quantity.str(), p.cost_basis.str(), p.price.str(),
+                 p.price_is_close ? "yes" : "no", p.market_value.str(), p.unrealized_gain.str()});
+      for (const auto& c : h.cash) csv.add({c.account, "", "", "", "", "", c.amount.str(), ""});
+      out(csv.text());
+      return;
+    }
+    // Too narrow a terminal loses the price first, then the weight, then
+    // the cost basis; names shorten before any of them.
+    Table t({{"account", Align::left, true},
              {"symbol"},
              {"quantity", Align::right},
-             {"cost basis", Align::right},
-             {"price", Align::right},
+             {"cost basis", Align::right, false, 1},
+             {"price", Align::right, false, 3},
              {"market value", Align::right},
              {"unrealized", Align::right},
-             {"weight", Align::right}});
+             {"weight", Align::right, false, 2}});
     for (const auto& p : h.positions)
       t.add_row({p.account, p.symbol, p.quantity.str(), money(p.cost_basis),
                  p.price.str() + (p.price_is_close ? "" : "*"), money(p.market_value),
@@ -87,7 +101,7 @@ void add_holdings(CLI::App& app, Context& ctx) {
     t.add_rule();
     t.add_row({"total", "", "", "", "", money(h.total_value), "", ""});
     out(fmt::format("Holdings as of {}\n\n", h.as_of.str()));
-    out(t.render({ctx.colour()}));
+    out(t.render(ctx.style()));
     bool any_trade_price = false;
     for (const auto& p : h.positions) any_trade_price |= !p.price_is_close;
     if (any_trade_price) out("* no close on or before the day; valued at the last trade price\n");
@@ -100,35 +114,44 @@ void add_lots(CLI::App& app, Context& ctx) {
   add_examples(*cmd, {"keel lots --as-of 2025-12-31 --account Taxable"});
   cmd->add_option("--as-of", o->as_of, "Day, YYYY-MM-DD (default: today)");
   add_account_option(*cmd, o->account);
-  add_json_flag(*cmd, o->json);
+  add_json_and_csv_flags(*cmd, o->json, o->csv);
   cmd->callback([&ctx, o] {
     auto db = ctx.open_ledger();
     const auto lots =
         ledger::open_lots(db, date_option_or_today(o->as_of, "--as-of"), text_option(o->account));
     if (o->json) {
-      Json j = Json::array();
+      Json j = json_document("lots", 1);
+      j["lots"] = Json::array();
       for (const auto& l : lots)
-        j.push_back({{"account", l.account},
-                     {"symbol", l.symbol},
-                     {"lot", l.lot.lot_id},
-                     {"acquired", l.lot.acquired.str()},
-                     {"quantity", l.lot.quantity.str()},
-                     {"cost", l.lot.cost.str()}});
+        j["lots"].push_back({{"account", l.account},
+                             {"symbol", l.symbol},
+                             {"lot", l.lot.lot_id},
+                             {"acquired", l.lot.acquired.str()},
+                             {"quantity", l.lot.quantity.str()},
+                             {"cost", l.lot.cost.str()}});
       print_json(j);
       return;
     }
-    Table t({{"account"},
+    if (o->csv) {
+      CsvRows csv({"account", "symbol", "lot", "acquired", "quantity", "cost"});
+      for (const auto& l : lots)
+        csv.add({l.account, l.symbol, std::to_string(l.lot.lot_id), l.lot.acquired.str(),
+                 l.lot.quantity.str(), l.lot.cost.str()});
+      out(csv.text());
+      return;
+    }
+    Table t({{"account", Align::left, true},
              {"symbol"},
              {"lot", Align::right},
              {"acquired"},
              {"quantity", Align::right},
              {"cost", Align::right},
-             {"unit cost", Align::right}});
+             {"unit cost", Align::right, false, 1}});
     for (const auto& l : lots)
       t.add_row({l.account, l.symbol, std::to_string(l.lot.lot_id), l.lot.acquired.str(),
                  l.lot.quantity.str(), money(l.lot.cost),
                  Decimal::divide(l.lot.cost, l.lot.quantity, 4).str()});
-    out(t.render({ctx.colour()}));
+    out(t.render(ctx.style()));
   });
 }
 
@@ -138,7 +161,7 @@ void add_gains(CLI::App& app, Context& ctx) {
   add_examples(*cmd, {"keel gains --year 2025", "keel gains --year 2025 --account Taxable --json"});
   cmd->add_option("--year", o->year, "Only disposals in this calendar year");
   add_account_option(*cmd, o->account);
-  add_json_flag(*cmd, o->json);
+  add_json_and_csv_flags(*cmd, o->json, o->csv);
   cmd->callback([&ctx, o] {
     if (o->year != 0 && (o->year < 1 || o->year > 9999))
       throw InputError(fmt::format("--year: '{}' is not a calendar year (1 to 9999)", o->year));
@@ -147,7 +170,7 @@ void add_gains(CLI::App& app, Context& ctx) {
         db, o->year ? std::optional<int>(o->year) : std::nullopt, text_option(o->account));
     const auto totals = ledger::totals_by_term(gains);
     if (o->json) {
-      Json j;
+      Json j = json_document("gains", 1);
       j["gains"] = Json::array();
       for (const auto& g : gains)
         j["gains"].push_back({{"account", g.account},
@@ -167,13 +190,24 @@ void add_gains(CLI::App& app, Context& ctx) {
       print_json(j);
       return;
     }
+    if (o->csv) {
+      CsvRows csv({"account", "symbol", "lot", "sell", "acquired", "disposed", "quantity",
+                   "proceeds", "cost", "gain", "term"});
+      for (const auto& g : gains)
+        csv.add({g.account, g.symbol, std::to_string(g.part.lot_id),
+                 std::to_string(g.part.sell_txn_id), g.part.acquired.str(), g.part.disposed.str(),
+                 g.part.quantity.str(), g.part.proceeds.str(), g.part.cost.str(),
+                 g.part.gain().str(), g.long_term ? "long" : "short"});
+      out(csv.text());
+      return;
+    }
     Table t(report::gain_columns("term"));
     for (const auto& g : gains) t.add_row(report::displayed(report::gain_cells(g)));
     t.add_rule();
     t.add_row({"short-term", "", "", "", "", "", "", "", money(totals.short_term.gain), ""});
     t.add_row({"long-term", "", "", "", "", "", "", "", money(totals.long_term.gain), ""});
     t.add_row({"total", "", "", "", "", "", "", "", money(totals.all().gain), ""});
-    out(t.render({ctx.colour()}));
+    out(t.render(ctx.style()));
     out("Tax treatment depends on local rules; check with your tax authority or a licensed "
         "professional.\n");
   });
@@ -187,7 +221,7 @@ void add_history(CLI::App& app, Context& ctx) {
   add_account_option(*cmd, o->account);
   cmd->add_option("--from", o->from, "First day, YYYY-MM-DD");
   cmd->add_option("--to", o->to, "Last day, YYYY-MM-DD");
-  add_json_flag(*cmd, o->json);
+  add_json_and_csv_flags(*cmd, o->json, o->csv);
   cmd->callback([&ctx, o] {
     // Inclusive bounds; an absent one is the first or last day a Date can hold.
     const Date from = date_option(o->from, "--from").value_or(Date::from_ymd(1, 1, 1));
@@ -198,20 +232,26 @@ void add_history(CLI::App& app, Context& ctx) {
     const auto names = LedgerNames::load(db);
     const auto txns = store::list_transactions(db);
     const auto voided = voided_ids(txns);
-    Json j = Json::array();
+    Json j = json_document("history", 1);
+    j["transactions"] = Json::array();
     Table t = history_table();
+    CsvRows csv = history_csv();
     for (const auto& x : txns) {
       if (only && x.account_id != *only) continue;
       if (x.date < from || x.date > to) continue;
       if (o->json)
-        j.push_back(history_json(x, names, voided));
+        j["transactions"].push_back(history_json(x, names, voided));
+      else if (o->csv)
+        csv.add(history_csv_cells(x, names, voided));
       else
         t.add_row(history_cells(x, names, voided));
     }
     if (o->json)
       print_json(j);
+    else if (o->csv)
+      out(csv.text());
     else
-      out(t.render({ctx.colour()}));
+      out(t.render(ctx.style()));
   });
 }
 
@@ -222,18 +262,23 @@ void add_lists(CLI::App& app, Context& ctx) {
   add_json_flag(*accounts, *json_accounts);
   accounts->callback([&ctx, json_accounts] {
     auto db = ctx.open_ledger();
-    Json j = Json::array();
-    Table t({{"id", Align::right}, {"name"}, {"currency"}, {"basis"}, {"negative cash"}});
+    Json j = json_document("accounts", 1);
+    j["accounts"] = Json::array();
+    Table t({{"id", Align::right},
+             {"name", Align::left, true},
+             {"currency"},
+             {"basis"},
+             {"negative cash"}});
     for (const auto& a : store::list_accounts(db)) {
-      j.push_back({{"id", a.id},
-                   {"name", a.name},
-                   {"currency", a.currency},
-                   {"basis", to_string(a.basis)},
-                   {"allow_negative_cash", a.allow_negative_cash}});
+      j["accounts"].push_back({{"id", a.id},
+                               {"name", a.name},
+                               {"currency", a.currency},
+                               {"basis", to_string(a.basis)},
+                               {"allow_negative_cash", a.allow_negative_cash}});
       t.add_row({std::to_string(a.id), a.name, a.currency, std::string(to_string(a.basis)),
                  a.allow_negative_cash ? "allowed" : "no"});
     }
-    *json_accounts ? print_json(j) : out(t.render({ctx.colour()}));
+    *json_accounts ? print_json(j) : out(t.render(ctx.style()));
   });
 
   auto json_securities = std::make_shared<bool>(false);
@@ -242,19 +287,25 @@ void add_lists(CLI::App& app, Context& ctx) {
   add_json_flag(*securities, *json_securities);
   securities->callback([&ctx, json_securities] {
     auto db = ctx.open_ledger();
-    Json j = Json::array();
-    Table t({{"symbol"}, {"name"}, {"kind"}, {"currency"}, {"lot size", Align::right}, {"sector"}});
+    Json j = json_document("securities", 1);
+    j["securities"] = Json::array();
+    Table t({{"symbol"},
+             {"name", Align::left, true},
+             {"kind"},
+             {"currency"},
+             {"lot size", Align::right, false, 1},
+             {"sector", Align::left, true}});
     for (const auto& s : store::list_securities(db)) {
-      j.push_back({{"symbol", s.symbol},
-                   {"name", s.name},
-                   {"kind", to_string(s.kind)},
-                   {"currency", s.currency},
-                   {"lot_size", s.lot_size.str()},
-                   {"sector", s.sector ? Json(*s.sector) : Json()}});
+      j["securities"].push_back({{"symbol", s.symbol},
+                                 {"name", s.name},
+                                 {"kind", to_string(s.kind)},
+                                 {"currency", s.currency},
+                                 {"lot_size", s.lot_size.str()},
+                                 {"sector", s.sector ? Json(*s.sector) : Json()}});
       t.add_row({s.symbol, s.name, std::string(to_string(s.kind)), s.currency, s.lot_size.str(),
                  s.sector.value_or("")});
     }
-    *json_securities ? print_json(j) : out(t.render({ctx.colour()}));
+    *json_securities ? print_json(j) : out(t.render(ctx.style()));
   });
 }
 

@@ -271,7 +271,8 @@ void add_propose(CLI::App& app, Context& ctx) {
       "propose", "A rule's orders for a day: the screen, the orders and the result");
   add_examples(*cmd, {"keel propose --rule rule.toml --as-of 2025-12-31",
                       "keel propose --rule rule.toml --save"});
-  cmd->add_option("--rule", o->rule, "Rule file (TOML; see docs/rules.md)")->required();
+  cmd->add_option("--rule", o->rule, "Rule file (TOML; see docs/rules.md; '-': standard input)")
+      ->required();
   cmd->add_option("--as-of", o->as_of,
                   "Day to propose for, YYYY-MM-DD (default: the latest day with a close)");
   add_json_flag(*cmd, o->json);
@@ -333,15 +334,15 @@ void add_proposals(CLI::App& app, Context& ctx) {
     }
     Table t({{"id", Align::right},
              {"as of"},
-             {"rule"},
+             {"rule", Align::left, true},
              {"orders", Align::right},
              {"pool value", Align::right},
-             {"rule sha256"},
-             {"saved at"}});
+             {"rule sha256", Align::left, false, 2},
+             {"saved at", Align::left, false, 1}});
     for (const auto& p : all)
       t.add_row({std::to_string(p.id), p.as_of.str(), p.rule_name, std::to_string(p.order_count),
                  money(p.pool_value), p.rule_sha256.substr(0, 12), p.saved_at});
-    out(t.render({ctx.colour()}));
+    out(t.render(ctx.style()));
   });
 
   auto so = std::make_shared<ProposalsOptions>();
@@ -382,7 +383,7 @@ void add_proposals(CLI::App& app, Context& ctx) {
                     p.as_of.str(), p.saved_at));
     out(fmt::format("Rule file {} (sha256 {}); pool value {}\n\n", printable(p.rule_file),
                     p.rule_sha256, money(p.pool_value)));
-    Table t({{"account"},
+    Table t({{"account", Align::left, true},
              {"symbol"},
              {"side"},
              {"proposed", Align::right},
@@ -397,7 +398,7 @@ void add_proposals(CLI::App& app, Context& ctx) {
     if (r.lines.empty())
       out("The proposal had no orders and nothing was traded since.\n");
     else
-      out(t.render({ctx.colour()}));
+      out(t.render(ctx.style()));
     out("\nThe proposal was the output of your own rule, not advice; past results do not predict "
         "future ones.\n");
   });

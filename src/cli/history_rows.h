@@ -11,6 +11,7 @@
 #include <unordered_set>
 #include <vector>
 
+#include "cli/csv_rows.h"
 #include "model/records.h"
 #include "report/table.h"
 #include "store/ledger_store.h"
@@ -39,21 +40,32 @@ struct LedgerNames {
 
 inline report::Table history_table() {
   using report::Align;
+  // Names and notes shorten to fit a terminal; then the ref and the fee
+  // make way, never the figures of the trade itself.
   return report::Table({{"id", Align::right},
                         {"date"},
-                        {"account"},
+                        {"account", Align::left, true},
                         {"kind"},
                         {"symbol"},
                         {"quantity", Align::right},
                         {"price", Align::right},
                         {"amount", Align::right},
-                        {"fee", Align::right},
-                        {"ref"},
-                        {"note"}});
+                        {"fee", Align::right, false, 1},
+                        {"ref", Align::left, false, 2},
+                        {"note", Align::left, true}});
 }
 
 inline std::string history_opt(const std::optional<Decimal>& d) {
   return d ? d->str() : std::string();
+}
+
+// What the table and the CSV show alike: id, date, account, kind, symbol,
+// quantity, price and amount.
+inline std::vector<std::string> history_figures(const Transaction& x, const LedgerNames& names) {
+  return {std::to_string(x.id),        x.date.str(),
+          names.account(x.account_id), std::string(to_string(x.kind)),
+          names.symbol(x.security_id), history_opt(x.quantity),
+          history_opt(x.price),        history_opt(x.amount)};
 }
 
 inline std::vector<std::string> history_cells(const Transaction& x, const LedgerNames& names,
@@ -62,17 +74,26 @@ inline std::vector<std::string> history_cells(const Transaction& x, const Ledger
   if (x.voids_id) note = fmt::format("voids {}: {}", *x.voids_id, note);
   if (voided.count(x.id)) note = "[void] " + note;
   if (x.link_id) note += fmt::format(" (pair of {})", *x.link_id);
-  return {std::to_string(x.id),
-          x.date.str(),
-          names.account(x.account_id),
-          std::string(to_string(x.kind)),
-          names.symbol(x.security_id),
-          history_opt(x.quantity),
-          history_opt(x.price),
-          history_opt(x.amount),
-          x.fee.is_zero() ? "" : x.fee.str(),
-          x.ref.value_or(""),
-          note};
+  auto cells = history_figures(x, names);
+  cells.insert(cells.end(), {x.fee.is_zero() ? "" : x.fee.str(), x.ref.value_or(""), note});
+  return cells;
+}
+
+// The same row for --csv, with the JSON member names as headings.
+inline CsvRows history_csv() {
+  return CsvRows({"id", "date", "account", "kind", "symbol", "quantity", "price", "amount", "fee",
+                  "ref", "note", "voided", "voids", "link"});
+}
+
+inline std::vector<std::string> history_csv_cells(const Transaction& x, const LedgerNames& names,
+                                                  const std::unordered_set<std::int64_t>& voided) {
+  auto id = [](const std::optional<std::int64_t>& v) {
+    return v ? std::to_string(*v) : std::string();
+  };
+  auto cells = history_figures(x, names);
+  cells.insert(cells.end(), {x.fee.str(), x.ref.value_or(""), x.note.value_or(""),
+                             voided.count(x.id) ? "yes" : "no", id(x.voids_id), id(x.link_id)});
+  return cells;
 }
 
 inline nlohmann::ordered_json history_json(const Transaction& x, const LedgerNames& names,
