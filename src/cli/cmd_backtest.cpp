@@ -18,6 +18,7 @@
 #include "core/files.h"
 #include "core/text.h"
 #include "io/json.h"
+#include "report/json_schema.h"
 #include "report/table.h"
 #include "rules/rule.h"
 
@@ -101,7 +102,7 @@ Json run_json(const backtest::StrategyRun& s) {
 }
 
 Json result_json(const backtest::Result& r) {
-  Json j;
+  Json j = report::json_document("backtest", 1);
   j["rule"] = r.rule_name;
   j["from"] = r.from.str();
   j["to"] = r.to.str();
@@ -140,7 +141,7 @@ Json result_json(const backtest::Result& r) {
   return j;
 }
 
-std::string result_text(const backtest::Result& r, bool colour) {
+std::string result_text(const backtest::Result& r, const report::Style& style) {
   std::string s = fmt::format("Back-test of rule '{}' from {} to {} ({})\n", printable(r.rule_name),
                               r.from.str(), r.to.str(),
                               r.frictionless ? "frictionless: no fees, fractional units, fully "
@@ -149,7 +150,8 @@ std::string result_text(const backtest::Result& r, bool colour) {
   s += fmt::format("Start value {}; {} rebalancing days, {} to {}\n\n", r.start_value.fixed(2),
                    r.rebalance_days.size(), r.rebalance_days.front().str(),
                    r.rebalance_days.back().str());
-  std::vector<Table::Column> cols{{""}, {"rule", Align::right}, {"baseline", Align::right}};
+  std::vector<Table::Column> cols{
+      {"", Align::left, true}, {"rule", Align::right}, {"baseline", Align::right}};
   const bool bench = r.benchmark && r.rule.perf.benchmark;
   if (bench) cols.push_back({"benchmark " + *r.benchmark, Align::right});
   Table t(cols);
@@ -187,7 +189,7 @@ std::string result_text(const backtest::Result& r, bool colour) {
   row("names held (min/mean/max)",
       fmt::format("{}/{:.1f}/{}", a.names_min, a.names_mean, a.names_max),
       fmt::format("{}/{:.1f}/{}", b.names_min, b.names_mean, b.names_max), "");
-  s += t.render({colour});
+  s += t.render(style);
 
   for (const auto& w : r.rolling) {
     if (&w == &r.rolling.front())
@@ -272,10 +274,10 @@ void add_backtest(CLI::App& app, Context& ctx) {
     if (curve) write_curve(*curve, result);
     if (curve && curve->to_stdout()) {
       // The curve has standard output; the report goes to standard error.
-      std::fputs(result_text(result, report::use_colour(stderr)).c_str(), stderr);
+      std::fputs(result_text(result, report::terminal_style(stderr)).c_str(), stderr);
       return;
     }
-    out(o->json ? io::dump_json(result_json(result)) + "\n" : result_text(result, ctx.colour()));
+    out(o->json ? io::dump_json(result_json(result)) + "\n" : result_text(result, ctx.style()));
   });
 }
 
@@ -325,7 +327,7 @@ void add_signal(CLI::App& app, Context& ctx) {
     const auto history = backtest::load_history(db, rule);
     const auto r = backtest::signal(history, rule, req);
     if (o->json) {
-      Json j;
+      Json j = report::json_document("signal", 1);
       j["rule"] = r.rule_name;
       j["from"] = r.from.str();
       j["to"] = r.to.str();

@@ -9,7 +9,6 @@
 
 #include "cli/context.h"
 #include "cli/csv_rows.h"
-#include "cli/json_schema.h"
 #include "cli/options.h"
 #include "core/error.h"
 #include "core/files.h"
@@ -19,6 +18,7 @@
 #include "io/ledger_intake.h"
 #include "io/market_intake.h"
 #include "ledger/posting.h"
+#include "report/json_schema.h"
 #include "report/table.h"
 #include "store/market_data.h"
 
@@ -231,7 +231,7 @@ void add_imports(CLI::App& app, Context& ctx) {
     auto db = ctx.open_ledger();
     const auto runs = store::list_import_runs(db);
     if (o->json) {
-      auto j = json_document("imports", 1);
+      auto j = report::json_document("imports", 1);
       j["imports"] = nlohmann::ordered_json::array();
       for (const auto& r : runs)
         j["imports"].push_back({{"run", r.id},

@@ -6,13 +6,13 @@
 #include <nlohmann/json.hpp>
 
 #include "cli/context.h"
-#include "cli/json_schema.h"
 #include "cli/options.h"
 #include "core/error.h"
 #include "core/text.h"
 #include "io/json.h"
 #include "ledger/restore.h"
 #include "ledger/verify.h"
+#include "report/json_schema.h"
 #include "store/maintenance.h"
 
 namespace keel::cli {
@@ -30,7 +30,7 @@ void add_verify(CLI::App& app, Context& ctx) {
     if (*json) {
       // The document comes out whole either way; problems still end in a
       // LedgerError, so the exit status says the same as the text form.
-      auto j = json_document("verify", 1);
+      auto j = report::json_document("verify", 1);
       j["ledger"] = db.path().string();
       j["ok"] = report.ok();
       j["accounts"] = report.accounts;

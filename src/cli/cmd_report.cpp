@@ -8,7 +8,6 @@
 #include "cli/context.h"
 #include "cli/csv_rows.h"
 #include "cli/history_rows.h"
-#include "cli/json_schema.h"
 #include "cli/options.h"
 #include "cli/print.h"
 #include "core/error.h"
@@ -16,6 +15,7 @@
 #include "ledger/holdings.h"
 #include "ledger/posting.h"
 #include "report/gain_rows.h"
+#include "report/json_schema.h"
 #include "report/table.h"
 #include "store/ledger_store.h"
 
@@ -53,7 +53,7 @@ void add_holdings(CLI::App& app, Context& ctx) {
     const auto h =
         ledger::holdings(db, date_option_or_today(o->as_of, "--as-of"), text_option(o->account));
     if (o->json) {
-      Json j = json_document("holdings", 1);
+      Json j = report::json_document("holdings", 1);
       j["as_of"] = h.as_of.str();
       j["positions"] = Json::array();
       for (const auto& p : h.positions)
@@ -120,7 +120,7 @@ void add_lots(CLI::App& app, Context& ctx) {
     const auto lots =
         ledger::open_lots(db, date_option_or_today(o->as_of, "--as-of"), text_option(o->account));
     if (o->json) {
-      Json j = json_document("lots", 1);
+      Json j = report::json_document("lots", 1);
       j["lots"] = Json::array();
       for (const auto& l : lots)
         j["lots"].push_back({{"account", l.account},
@@ -170,7 +170,7 @@ void add_gains(CLI::App& app, Context& ctx) {
         db, o->year ? std::optional<int>(o->year) : std::nullopt, text_option(o->account));
     const auto totals = ledger::totals_by_term(gains);
     if (o->json) {
-      Json j = json_document("gains", 1);
+      Json j = report::json_document("gains", 1);
       j["gains"] = Json::array();
       for (const auto& g : gains)
         j["gains"].push_back({{"account", g.account},
@@ -232,7 +232,7 @@ void add_history(CLI::App& app, Context& ctx) {
     const auto names = LedgerNames::load(db);
     const auto txns = store::list_transactions(db);
     const auto voided = voided_ids(txns);
-    Json j = json_document("history", 1);
+    Json j = report::json_document("history", 1);
     j["transactions"] = Json::array();
     Table t = history_table();
     CsvRows csv = history_csv();
@@ -262,7 +262,7 @@ void add_lists(CLI::App& app, Context& ctx) {
   add_json_flag(*accounts, *json_accounts);
   accounts->callback([&ctx, json_accounts] {
     auto db = ctx.open_ledger();
-    Json j = json_document("accounts", 1);
+    Json j = report::json_document("accounts", 1);
     j["accounts"] = Json::array();
     Table t({{"id", Align::right},
              {"name", Align::left, true},
@@ -287,7 +287,7 @@ void add_lists(CLI::App& app, Context& ctx) {
   add_json_flag(*securities, *json_securities);
   securities->callback([&ctx, json_securities] {
     auto db = ctx.open_ledger();
-    Json j = json_document("securities", 1);
+    Json j = report::json_document("securities", 1);
     j["securities"] = Json::array();
     Table t({{"symbol"},
              {"name", Align::left, true},

@@ -11,6 +11,7 @@
 #include "core/error.h"
 #include "io/json.h"
 #include "perf/returns_report.h"
+#include "report/json_schema.h"
 #include "report/table.h"
 
 namespace keel::cli {
@@ -71,7 +72,7 @@ Figures figures(const perf::PerfResult& r, bool dietz) {
 Json to_json(const perf::ReturnsReport& rep, const std::string& method, bool monthly) {
   const auto& r = rep.result;
   const Figures f = figures(r, method == "dietz");
-  Json j;
+  Json j = report::json_document("returns", 1);
   j["from"] = r.from.str();
   j["to"] = r.to.str();
   j["scope"] = rep.scope;
@@ -130,7 +131,8 @@ Json to_json(const perf::ReturnsReport& rep, const std::string& method, bool mon
   return j;
 }
 
-std::string summary_table(const perf::ReturnsReport& rep, const std::string& method, bool colour) {
+std::string summary_table(const perf::ReturnsReport& rep, const std::string& method,
+                          const report::Style& style) {
   const auto& r = rep.result;
   const Figures f = figures(r, method == "dietz");
   const std::string twr_name = method == "dietz" ? "time-weighted (Modified Dietz, monthly linked)"
@@ -166,7 +168,7 @@ std::string summary_table(const perf::ReturnsReport& rep, const std::string& met
   else
     t.add_row({"max drawdown", r.risk.daily_observations > 0 ? "0.00%" : "n/a", ""});
   t.add_row({"Sharpe ratio", "", r.risk.sharpe ? fmt::format("{:.2f}", *r.risk.sharpe) : "n/a"});
-  std::string text = t.render({colour});
+  std::string text = t.render(style);
   if (r.mwr.status != perf::MwrStatus::kOk) text += mwr_words(r.mwr) + "\n";
   if (!r.twr.annualized) text += "Periods shorter than 365 days are not annualized.\n";
   if (!r.risk.sharpe)
@@ -174,12 +176,12 @@ std::string summary_table(const perf::ReturnsReport& rep, const std::string& met
   return text;
 }
 
-std::string monthly_table(const perf::ReturnsReport& rep, bool colour) {
+std::string monthly_table(const perf::ReturnsReport& rep, const report::Style& style) {
   const auto& r = rep.result;
   std::vector<Table::Column> cols{{"month"},
                                   {"opening", Align::right},
-                                  {"inflows", Align::right},
-                                  {"outflows", Align::right},
+                                  {"inflows", Align::right, false, 2},
+                                  {"outflows", Align::right, false, 1},
                                   {"closing", Align::right},
                                   {"time-weighted", Align::right},
                                   {"Modified Dietz", Align::right}};
@@ -199,7 +201,7 @@ std::string monthly_table(const perf::ReturnsReport& rep, bool colour) {
     if (rep.benchmark) row.push_back(pct(m.benchmark));
     t.add_row(std::move(row));
   }
-  std::string text = t.render({colour});
+  std::string text = t.render(style);
   if (partial) text += "* part of the month lies outside the period\n";
   return text;
 }
@@ -255,8 +257,7 @@ void add_returns(CLI::App& app, Context& ctx) {
     }
     out(fmt::format("Returns of {} from {} to {} ({} days)\n\n", rep.scope, rep.result.from.str(),
                     rep.result.to.str(), rep.result.days));
-    out(o->monthly ? monthly_table(rep, ctx.colour())
-                   : summary_table(rep, o->method, ctx.colour()));
+    out(o->monthly ? monthly_table(rep, ctx.style()) : summary_table(rep, o->method, ctx.style()));
     if (rep.period.clamped)
       out(fmt::format("The ledger starts on {}; the period starts there.\n", rep.inception.str()));
     if (!rep.unpriced.empty())

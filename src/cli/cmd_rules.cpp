@@ -13,6 +13,7 @@
 #include "core/error.h"
 #include "core/text.h"
 #include "io/json.h"
+#include "report/json_schema.h"
 #include "report/table.h"
 #include "rules/propose.h"
 
@@ -165,6 +166,7 @@ std::string proposal_json(const rules::Proposal& p, std::optional<std::int64_t> 
   auto field = [&](std::string_view key, const std::string& value, bool last = false) {
     s += "  " + J::q(key) + ": " + value + (last ? "\n" : ",\n");
   };
+  field("schema", J::object({{"name", J::q("keel.propose")}, {"version", "1"}}));
   field("as_of", J::q(p.as_of.str()));
   field("rule", J::q(p.rule_name));
   field("rule_sha256", J::q(p.rule_sha256));
@@ -184,7 +186,7 @@ std::string proposal_json(const rules::Proposal& p, std::optional<std::int64_t> 
   return s + "}\n";
 }
 
-std::string proposal_text(const rules::Proposal& p, bool colour) {
+std::string proposal_text(const rules::Proposal& p, const report::Style& style) {
   std::string s =
       fmt::format("Proposal of rule '{}' as of {}\n", printable(p.rule_name), p.as_of.str());
   std::string accounts;
@@ -197,36 +199,40 @@ std::string proposal_text(const rules::Proposal& p, bool colour) {
   if (sc.clip_low)
     s += fmt::format("; values clipped to [{:.6g}, {:.6g}]", *sc.clip_low, *sc.clip_high);
   s += fmt::format("; {} selected\n", sc.selected);
+  // A narrow terminal shortens the why, then loses the period, the day the
+  // figure was known and its age; the figure, z and the verdict stay.
   Table screen({{"symbol"},
                 {"value", Align::right},
-                {"period"},
-                {"age", Align::right},
-                {"known on"},
+                {"period", Align::left, false, 3},
+                {"age", Align::right, false, 1},
+                {"known on", Align::left, false, 2},
                 {"z", Align::right},
                 {"held"},
                 {"in/out"},
-                {"why"}});
+                {"why", Align::left, true}});
   for (const auto& l : sc.lines)
     screen.add_row(
         {l.symbol, l.figure ? l.figure->value.str() : "", l.figure ? l.figure->period.str() : "",
          l.figure ? std::to_string(l.age_days) : "", l.figure ? l.figure->known_on.str() : "",
          z_text(l.z), l.held ? "yes" : "", l.selected ? "in" : "out", l.note});
-  s += screen.render({colour}) + "\n";
+  s += screen.render(style) + "\n";
 
   s += "2. Orders (estimates at the closes used)\n";
   if (p.plan.orders.empty()) {
     s += "No orders.\n\n";
   } else {
-    Table t({{"account"},
+    // The reason (and the account) shorten first; then the weights now and
+    // the fee make way, never the order itself.
+    Table t({{"account", Align::left, true},
              {"symbol"},
              {"side"},
              {"quantity", Align::right},
              {"est. price", Align::right},
              {"est. value", Align::right},
-             {"est. fee", Align::right},
-             {"now", Align::right},
+             {"est. fee", Align::right, false, 1},
+             {"now", Align::right, false, 2},
              {"target", Align::right},
-             {"reason"}});
+             {"reason", Align::left, true}});
     for (const auto& o : p.plan.orders) {
       t.add_row({o.account, o.symbol, std::string(rules::to_string(o.side)), o.quantity.str(),
                  o.price.str(), money(o.value), money(o.fee), pct(o.weight_now),
@@ -237,7 +243,7 @@ std::string proposal_text(const rules::Proposal& p, bool colour) {
                                l.acquired.str(), money(l.cost), money(l.est_gain),
                                l.long_term ? "long" : "short")});
     }
-    s += t.render({colour}) + "\n";
+    s += t.render(style) + "\n";
   }
 
   s += "3. Result\n";
@@ -250,7 +256,7 @@ std::string proposal_text(const rules::Proposal& p, bool colour) {
   for (const auto& c : p.plan.cash_after)
     w.add_row({"(cash) " + c.account, money(c.cash), "",
                c.reserve.is_zero() ? "" : "reserve " + money(c.reserve)});
-  s += w.render({colour});
+  s += w.render(style);
   s += fmt::format("Cash after: {}; turnover {}; estimated fees {}\n",
                    money(p.plan.cash_after_total), pct(p.plan.turnover),
                    money(p.plan.estimated_fees));
@@ -288,7 +294,7 @@ void add_propose(CLI::App& app, Context& ctx) {
       out(proposal_json(proposal, id));
       return;
     }
-    out(proposal_text(proposal, ctx.colour()));
+    out(proposal_text(proposal, ctx.style()));
     if (id) out(fmt::format("\nSaved as proposal {}; see 'keel proposals show {}'.\n", *id, *id));
   });
 }
@@ -319,16 +325,17 @@ void add_proposals(CLI::App& app, Context& ctx) {
     auto db = ctx.open_ledger();
     const auto all = store::list_proposals(db);
     if (lo->json) {
-      Json j = Json::array();
+      Json j = report::json_document("proposals-list", 1);
+      j["proposals"] = Json::array();
       for (const auto& p : all)
-        j.push_back({{"id", p.id},
-                     {"as_of", p.as_of.str()},
-                     {"rule", p.rule_name},
-                     {"rule_file", p.rule_file},
-                     {"rule_sha256", p.rule_sha256},
-                     {"pool_value", p.pool_value.str()},
-                     {"orders", p.order_count},
-                     {"saved_at", p.saved_at}});
+        j["proposals"].push_back({{"id", p.id},
+                                  {"as_of", p.as_of.str()},
+                                  {"rule", p.rule_name},
+                                  {"rule_file", p.rule_file},
+                                  {"rule_sha256", p.rule_sha256},
+                                  {"pool_value", p.pool_value.str()},
+                                  {"orders", p.order_count},
+                                  {"saved_at", p.saved_at}});
       out(io::dump_json(j) + "\n");
       return;
     }
@@ -357,7 +364,7 @@ void add_proposals(CLI::App& app, Context& ctx) {
     const auto r = rules::review(db, id);
     const auto& p = r.proposal;
     if (so->json) {
-      Json j;
+      Json j = report::json_document("proposal", 1);
       j["id"] = p.id;
       j["as_of"] = p.as_of.str();
       j["rule"] = p.rule_name;

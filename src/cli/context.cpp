@@ -14,6 +14,7 @@
 #include "core/error.h"
 #include "core/files.h"
 #include "report/table.h"
+#include "report/wrap.h"
 
 namespace keel::cli {
 
@@ -118,19 +119,25 @@ void release_held_output() noexcept {
   h.text.clear();
 }
 
+// At a terminal, prose lines wider than it break at spaces, so that no
+// number is split by the terminal's own wrapping (tables already fit).
+static std::string fitted(const std::string& text) {
+  return report::wrap_to_width(text, report::terminal_width(stdout));
+}
+
 void out(const std::string& text) {
   if (held().holding) {
     held().text += text;
     return;
   }
-  write_stdout(text);
+  write_stdout(fitted(text));
 }
 
 void finish_output() {
   Held& h = held();
   if (h.holding) {
     h.holding = false;
-    std::string text = std::move(h.text);
+    std::string text = fitted(h.text);
     h.text.clear();
     const std::size_t columns = std::max<std::size_t>(report::terminal_width(stdout), 1);
     if (text.empty() || screen_lines(text, columns) < terminal_rows() || !page(text))

@@ -1,5 +1,6 @@
 // The statement as JSON for scripts: decimals as exact strings, returns as
 // fractions (numbers), absent figures as null.
+#include "report/json_schema.h"
 #include "report/statement_forms.h"
 
 namespace keel::report {
@@ -14,7 +15,7 @@ Json number(const std::optional<double>& x) {
 }  // namespace
 
 nlohmann::ordered_json statement_json(const Statement& s) {
-  Json j;
+  Json j = json_document("statement", 1);
   j["year"] = s.year;
   j["scope"] = s.scope;
   j["currency"] = s.currency;

@@ -11,6 +11,7 @@
 #include <cstdlib>
 
 #include "core/text.h"
+#include "report/wrap.h"
 
 namespace keel::report {
 
@@ -88,6 +89,62 @@ std::string shorten_to_width(const std::string& text, std::size_t width) {
   return text.substr(0, end) + "…";
 }
 
+namespace {
+
+// Columns a line takes, colour sequences (ESC [ ... m) not counted.
+std::size_t visible_width(const std::string& line) {
+  if (line.find('\x1b') == std::string::npos) return display_width(line);
+  std::string plain;
+  for (std::size_t i = 0; i < line.size(); ++i) {
+    if (line[i] == '\x1b' && i + 1 < line.size() && line[i + 1] == '[') {
+      i += 2;
+      while (i < line.size() && !(line[i] >= '@' && line[i] <= '~')) ++i;
+      continue;
+    }
+    plain += line[i];
+  }
+  return display_width(plain);
+}
+
+std::string wrap_line(const std::string& line, std::size_t width) {
+  const std::size_t indent_size = line.find_first_not_of(' ');
+  if (indent_size == std::string::npos || visible_width(line) <= width) return line;
+  const std::string indent(std::min(indent_size, width / 2), ' ');
+  std::string out, current = line.substr(0, indent_size);
+  bool has_word = false;
+  for (std::size_t at = indent_size; at < line.size();) {
+    std::size_t end = line.find(' ', at);
+    if (end == std::string::npos) end = line.size();
+    const std::string word = line.substr(at, end - at);
+    const std::string candidate = has_word ? current + " " + word : current + word;
+    if (has_word && visible_width(candidate) > width) {
+      out += current + "\n";
+      current = indent + word;
+    } else {
+      current = candidate;
+    }
+    has_word = has_word || !word.empty();
+    at = end + 1;
+  }
+  return out + current;
+}
+
+}  // namespace
+
+std::string wrap_to_width(const std::string& text, std::size_t width) {
+  if (width == 0) return text;
+  std::string out;
+  for (std::size_t at = 0; at < text.size();) {
+    std::size_t end = text.find('\n', at);
+    const bool newline = end != std::string::npos;
+    if (!newline) end = text.size();
+    out += wrap_line(text.substr(at, end - at), width);
+    if (newline) out += '\n';
+    at = end + 1;
+  }
+  return out;
+}
+
 void Table::add_row(std::vector<std::string> cells) {
   cells.resize(columns_.size());
   for (auto& cell : cells) cell = printable(cell);
@@ -156,6 +213,12 @@ std::string Table::render(const Style& style) const {
       widths = natural;
       shorten_columns(widths, least, columns_, shown, style.width);
     }
+    // Last: shorter names still, down to their headings (the contract's
+    // "never below their heading"; the 10-column floor holds until then).
+    std::vector<std::size_t> heading_only(n);
+    for (std::size_t c = 0; c < n; ++c)
+      heading_only[c] = std::max<std::size_t>(display_width(columns_[c].heading), 1);
+    shorten_columns(widths, heading_only, columns_, shown, style.width);
   }
 
   auto cell = [&](const std::string& full, std::size_t c) {

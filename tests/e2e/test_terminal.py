@@ -12,6 +12,7 @@
 import fcntl
 import os
 import pty
+import re
 import select
 import struct
 import subprocess
@@ -54,7 +55,10 @@ def at_terminal(args, columns, rows=50, env_extra=None):
 
 
 def width(line):
-    """Terminal columns by Python's unicodedata (UAX #11): W and F take 2, marks 0."""
+    """Terminal columns by Python's unicodedata (UAX #11): W and F take 2, marks 0. Control
+    sequences (the progress display's ESC [ K) and what a carriage return overwrote take
+    none."""
+    line = re.sub(r"\x1b\[[0-9;?]*[A-Za-z]", "", line).split("\r")[-1]
     return sum(0 if unicodedata.combining(c) else
                2 if unicodedata.east_asian_width(c) in "WF" else 1 for c in line)
 
@@ -189,4 +193,48 @@ p = subprocess.run([KEEL, *db, "import", "prices", "-", "--map", "-"], capture_o
 equal((p.returncode, p.stderr.strip()),
       (1, "keel: error: --map -: the file is read from standard input already; give the "
           "mapping as a file"), "only one input can be standard input")
+# Every report of the demo scenario (invented) at an 80-column terminal: no line wider than
+# the terminal, so the terminal never breaks one, and every figure of the piped report is
+# still there, whole.
+from keel_cli import SOURCE  # noqa: E402
+
+demo = Ledger(currency=None)
+data = os.path.join(SOURCE, "examples", "demo", "data")
+for what in ["accounts", "securities", "prices", "metrics", "distributions", "splits",
+             "transactions"]:
+    demo.ok("import", what, os.path.join(data, f"{what}.csv"),
+            *([] if what in ("accounts", "transactions") else ["--quiet"]))
+rule = os.path.join(SOURCE, "examples", "demo", "rule.toml")
+REPORTS = [
+    ["holdings", "--as-of", "2025-12-31"],
+    ["lots", "--as-of", "2025-12-31", "--account", "Ardwyn Retirement"],
+    ["gains", "--year", "2025"],
+    ["history", "--from", "2025-12-01"],
+    ["imports"],
+    ["account", "list"],
+    ["security", "list"],
+    ["returns", "--year", "2025", "--benchmark", "ZXTR"],
+    ["returns", "--year", "2025", "--benchmark", "ZXTR", "--monthly"],
+    ["propose", "--rule", rule, "--as-of", "2025-12-31"],
+    ["backtest", "--rule", rule, "--from", "2024-01-01", "--to", "2025-12-31", "--benchmark",
+     "ZXTR"],
+    ["signal", "--rule", rule, "--from", "2024-01-01", "--to", "2025-12-31"],
+]
+NUMBER = re.compile(r"-?[0-9][0-9.,%]*[0-9%]")
+for args in REPORTS:
+    code, screen = at_terminal(["--db", demo.path, "--no-pager", *args], 80)
+    equal(code, 0, f"keel {' '.join(args)} at 80 columns")
+    wide = [line for line in screen.splitlines() if width(line) > 80]
+    check(not wide, f"keel {' '.join(args)} fits 80 columns; too wide: {wide[:2]}")
+    seen = [re.sub(r"\x1b\[[0-9;?]*[A-Za-z]", "", line).split("\r")[-1]
+            for line in screen.splitlines()]
+    shown = set(NUMBER.findall("\n".join(line for line in seen
+                                          if not line.startswith("(left out to fit")
+                                          and not re.match(r"\[[# ]+\] ", line))))
+    _, piped_out, piped_err = demo.run(*args)
+    piped = piped_out + piped_err  # the terminal shows both streams
+    # A figure at the terminal is one the full report has too: none was cut into pieces.
+    # (The progress display on standard error is left aside.)
+    cut = sorted(n for n in shown if n not in piped)
+    equal(cut, [], f"keel {' '.join(args)}: figures at 80 columns that the piped report lacks")
 print("ok")

@@ -7,6 +7,8 @@
 #include <cwchar>
 #include <string>
 
+#include "report/wrap.h"
+
 using keel::report::Align;
 using keel::report::display_width;
 using keel::report::shorten_to_width;
@@ -100,4 +102,27 @@ TEST_CASE("table: numbers are never cut, even when nothing more can be left out"
   const std::string text = names_table().render(Style{false, 20});
   CHECK(text.find("1234567.89") != std::string::npos);
   CHECK(text.find("(left out to fit 20 columns: price, weight;") != std::string::npos);
+}
+
+TEST_CASE("table: after leaving columns out, names shorten down to their headings") {
+  Table t({{"id", Align::right}, {"account", Align::left, true}, {"amount", Align::right}});
+  t.add_row({"2003", "Ardwyn Joint Taxable", "1234567.89"});
+  CHECK(t.render(Style{false, 25}) ==
+        "  id  account      amount\n"
+        "-------------------------\n"
+        "2003  Ardwyn…  1234567.89\n");
+}
+
+TEST_CASE("wrapping: prose breaks at spaces, never inside a number, keeping its indent") {
+  CHECK(keel::report::wrap_to_width("  - values clipped to [12.842, 29.812]; 10 selected\n", 24) ==
+        "  - values clipped to\n"
+        "  [12.842, 29.812]; 10\n"
+        "  selected\n");
+  CHECK(keel::report::wrap_to_width("short line\n", 24) == "short line\n");
+  CHECK(keel::report::wrap_to_width("no limit at all here", 0) == "no limit at all here");
+}
+
+TEST_CASE("wrapping: colour sequences take no columns") {
+  const std::string bold = "\x1b[1mname  value\x1b[0m\n";
+  CHECK(keel::report::wrap_to_width(bold, 11) == bold);
 }

@@ -9,7 +9,7 @@
 #include <string>
 #include <string_view>
 
-namespace keel::cli {
+namespace keel::report {
 
 inline nlohmann::ordered_json schema_tag(std::string_view report, int version) {
   return {{"name", "keel." + std::string(report)}, {"version", version}};
@@ -22,4 +22,4 @@ inline nlohmann::ordered_json json_document(std::string_view report, int version
   return j;
 }
 
-}  // namespace keel::cli
+}  // namespace keel::report
