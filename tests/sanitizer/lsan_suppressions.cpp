@@ -6,7 +6,9 @@ extern "C" const char* __lsan_default_suppressions();
 extern "C" const char* __lsan_default_options();
 
 // Tests compare stderr exactly, so a suppressed leak must stay silent.
-extern "C" const char* __lsan_default_options() { return "print_suppressions=0"; }
+extern "C" const char* __lsan_default_options() {
+  return "print_suppressions=0";
+}
 
 extern "C" const char* __lsan_default_suppressions() {
   // glibc's newlocale() splits $LOCPATH with argz_add_sep() and keeps that
