@@ -2,13 +2,14 @@
 
 #include <fmt/format.h>
 
+#include <algorithm>
 #include <set>
 #include <string>
 
 #include "core/error.h"
 #include "core/text.h"
 #include "store/ledger_store.h"
-#include "store/point_in_time.h"
+#include "store/market_rows.h"
 
 namespace keel::backtest {
 
@@ -71,10 +72,10 @@ History load_history(store::Database& db, const rules::Rule& rule) {
           printable(rule.source)));
   }
   for (const auto& [sym, id] : chosen) h.universe.push_back(id);
-  if (!store::metric_exists(db, rule.screen.metric)) {
+  const auto names = store::metric_names(db);
+  if (std::find(names.begin(), names.end(), rule.screen.metric) == names.end()) {
     std::string why =
         fmt::format("the ledger holds no figures for metric '{}'", printable(rule.screen.metric));
-    const auto names = store::metric_names(db);
     if (auto near = rules::nearest(rule.screen.metric, names))
       why += fmt::format("; did you mean '{}'?", printable(*near));
     else if (names.empty())

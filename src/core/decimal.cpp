@@ -4,6 +4,7 @@
 
 #include <algorithm>
 #include <limits>
+#include <stdexcept>
 
 #include "core/error.h"
 #include "core/text.h"
@@ -105,6 +106,12 @@ Decimal::Decimal(long long whole) : mantissa_(whole), scale_(0) {}
 
 Decimal::Decimal(Int mantissa, int scale) : mantissa_(std::move(mantissa)), scale_(scale) {
   normalize();
+}
+
+Decimal Decimal::scaled(long long mantissa, int scale) {
+  if (scale < 0 || scale > kMaxScale)
+    throw std::invalid_argument(fmt::format("Decimal::scaled: scale {} out of range", scale));
+  return Decimal(Int(mantissa), scale);
 }
 
 void Decimal::normalize() {

@@ -12,8 +12,8 @@
 #include "core/text.h"
 #include "io/sha256.h"
 #include "ledger/posting.h"
+#include "market/day_view.h"
 #include "store/ledger_store.h"
-#include "store/point_in_time.h"
 
 namespace keel::rules {
 namespace {
@@ -47,10 +47,11 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
   Proposal p;
   p.rule_name = rule.name;
   p.rule_sha256 = io::sha256_hex(rule.text);
+  const market::DayView view(db);
   if (as_of_opt) {
     p.as_of = *as_of_opt;
   } else {
-    const auto latest = store::latest_close_day(db);
+    const auto latest = view.latest_close_day();
     if (!latest)
       throw InputError(
           "the ledger holds no closes to value the accounts at; import prices first "
@@ -76,7 +77,7 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
   }
 
   // Securities: the universe and the sleeves.
-  const auto securities = store::list_securities(db);
+  const auto& securities = view.securities();
   std::unordered_map<std::string, const Security*> by_symbol;
   std::unordered_map<std::int64_t, const Security*> by_id;
   for (const auto& s : securities) {
@@ -120,8 +121,8 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
           "securities first",
           printable(rule.source)));
   }
-  if (!store::metric_exists(db, rule.screen.metric)) {
-    const auto names = store::metric_names(db);
+  const auto names = view.metric_names();
+  if (std::find(names.begin(), names.end(), rule.screen.metric) == names.end()) {
     std::string why =
         fmt::format("the ledger holds no figures for metric '{}'", printable(rule.screen.metric));
     if (auto near = nearest(rule.screen.metric, names))
@@ -158,11 +159,10 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
   }
 
   // Point-in-time figures and closes.
-  store::PointInTime pit(db);
-  std::unordered_map<std::int64_t, std::optional<std::pair<Date, Decimal>>> closes;
-  auto close_of = [&](std::int64_t id) -> const std::optional<std::pair<Date, Decimal>>& {
+  std::unordered_map<std::int64_t, std::optional<market::Close>> closes;
+  auto close_of = [&](std::int64_t id) -> const std::optional<market::Close>& {
     auto it = closes.find(id);
-    if (it == closes.end()) it = closes.emplace(id, pit.close(id, as_of)).first;
+    if (it == closes.end()) it = closes.emplace(id, view.close(id, as_of)).first;
     return it->second;
   };
   std::vector<Candidate> candidates;
@@ -172,8 +172,8 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
     c.security_id = s->id;
     c.symbol = s->symbol;
     c.held = held.count(s->id) > 0;
-    if (auto m = pit.metric(s->id, rule.screen.metric, as_of)) {
-      c.figure = Figure{m->value, m->date, m->known_on};
+    if (auto m = view.figure(s->id, rule.screen.metric, as_of)) {
+      c.figure = Figure{m->value, m->period, m->known_on};
       c.has_price = close_of(s->id).has_value();
     }
     candidates.push_back(std::move(c));
@@ -202,10 +202,10 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
     q.symbol = s.symbol;
     q.lot_size = s.lot_size;
     if (const auto& c = close_of(s.id)) {
-      q.price = c->second;
-      if (as_of - c->first > kOldCloseDays && (t.weight.is_positive() || held.count(s.id)))
+      q.price = c->price;
+      if (as_of - c->day > kOldCloseDays && (t.weight.is_positive() || held.count(s.id)))
         p.notes.push_back(fmt::format("{}: the latest close on or before {} is from {}",
-                                      printable(s.symbol), as_of.str(), c->first.str()));
+                                      printable(s.symbol), as_of.str(), c->day.str()));
     } else {
       q.tradable = false;
       const auto trade = book.last_trade_price(s.id);

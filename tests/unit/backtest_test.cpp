@@ -12,7 +12,6 @@
 #include "backtest/signal.h"
 #include "ledger_fixture.h"
 #include "rules/rule.h"
-#include "store/market_data.h"
 
 namespace {
 
@@ -46,33 +45,27 @@ struct Market {
       f.security(symbols.back());
     }
     // Weekday closes from 2024-01-01 to 2024-04-30, each name on its own path.
+    std::vector<std::tuple<std::string, std::string, std::string>> rows;
     int n = 0;
     for (Date d = day("2024-01-01"); d <= day("2024-04-30"); d = d.plus_days(1)) {
       const int wd = (d.days_since_epoch() + 4) % 7;  // 0 = Sunday
       if (wd == 0 || wd == 6) continue;
       ++n;
       for (int i = 0; i < 8; ++i)
-        prices(symbols[i], d.str(),
-               fmt::format("{}.{:02d}", 20 + i * 3 + (n * (i + 1)) % 7, n % 100));
+        rows.emplace_back(symbols[i], d.str(),
+                          fmt::format("{}.{:02d}", 20 + i * 3 + (n * (i + 1)) % 7, n % 100));
     }
+    f.closes(rows);
     for (int i = 0; i < 8; ++i)
       metric(symbols[i], "2023-12-31", "2024-01-05", fmt::format("{}", 8 + i * 2 + (i % 3)));
   }
   void prices(const std::string& sym, const std::string& date, const std::string& close,
               bool replace = false) {
-    keel::store::WriteTransaction tx(f.db);
-    keel::store::MarketWriter w(f.db, replace);
-    w.price(w.security(sym), date, close, 1);
-    w.finish_prices();
-    tx.commit();
+    f.closes({{sym, date, close}}, replace);
   }
   void metric(const std::string& sym, const std::string& date, const std::string& known,
               const std::string& value) {
-    keel::store::WriteTransaction tx(f.db);
-    keel::store::MarketWriter w(f.db, false);
-    std::string existing;
-    w.metric(w.security(sym), "pe", date, known, value, existing);
-    tx.commit();
+    f.figures("pe", {{sym, date, known, value}});
   }
   bt::Result run(bool frictionless = false) {
     bt::Request req;
