@@ -30,7 +30,7 @@ struct State {
 };
 
 Decimal price_on(const History& h, std::int64_t id, Date day) {
-  const auto p = h.prices.at(id, day);
+  const auto p = h.close(id, day);
   // A held security always has a close on or before any later day: it was
   // bought at one.
   if (!p)
@@ -55,7 +55,7 @@ Selection select(const History& h, const rules::Rule& rule, Date day, const Stat
   std::unordered_set<std::int64_t> held;
   for (const auto& [id, q] : s.units) held.insert(id);
   try {
-    const auto screened = rules::screen(rule, day, h.candidates(rule, day, held));
+    const auto screened = rules::screen(rule, day, h.candidates(day, held));
     out.passed = screened.passed;
     out.selected = screened.selected;
     out.targets = rules::targets(rule, screened, h.sleeve_ids);
@@ -66,7 +66,7 @@ Selection select(const History& h, const rules::Rule& rule, Date day, const Stat
   }
   if (!out.none)
     for (std::size_t i = 0; i < h.sleeve_ids.size(); ++i)
-      if (!h.prices.at(h.sleeve_ids[i], day))
+      if (!h.close(h.sleeve_ids[i], day))
         rule.fail("sleeve.symbol",
                   fmt::format("sleeve '{}' has no close on or before {}",
                               printable(rule.weights.sleeves[i].symbol), day.str()));
@@ -156,24 +156,34 @@ StrategyRun simulate(const History& h, const rules::Rule& rule, const Request& r
   double turnover_sum = 0;
   double names_sum = 0;
   run.names_min = std::numeric_limits<int>::max();
-  const auto first = std::lower_bound(h.days.begin(), h.days.end(), req.from);
-  for (auto it = first; it != h.days.end() && *it <= req.to; ++it) {
+  const auto& days = h.market.trading_days();
+  const auto& splits = h.market.split_events();
+  const auto& distributions = h.market.distribution_events();
+  std::size_t next_split = 0, next_distribution = 0;
+  while (next_split < splits.size() && splits[next_split].date <= prev) ++next_split;
+  while (next_distribution < distributions.size() &&
+         distributions[next_distribution].ex_date <= prev)
+    ++next_distribution;
+  const auto first = std::lower_bound(days.begin(), days.end(), req.from);
+  for (auto it = first; it != days.end() && *it <= req.to; ++it) {
     const Date day = *it;
-    for (auto e = h.splits.upper_bound(prev); e != h.splits.end() && e->first <= day; ++e)
-      for (const auto& sp : e->second)
-        if (auto u = s.units.find(sp.security_id); u != s.units.end()) u->second *= sp.ratio;
-    for (auto e = h.distributions.upper_bound(prev); e != h.distributions.end() && e->first <= day;
-         ++e)
-      for (const auto& d : e->second) {
-        const auto u = s.units.find(d.security_id);
-        if (u == s.units.end()) continue;
-        const Decimal amount = u->second * d.per_share;
-        run.distributions += amount;
-        if (req.frictionless)
-          u->second += Decimal::divide(amount, price_on(h, d.security_id, day), kUnitPlaces);
-        else
-          s.owed.push_back(Owed{d.pay_date, amount});
-      }
+    for (; next_split < splits.size() && splits[next_split].date <= day; ++next_split) {
+      const auto& sp = splits[next_split];
+      if (auto u = s.units.find(sp.security_id); u != s.units.end()) u->second *= sp.ratio;
+    }
+    for (; next_distribution < distributions.size() &&
+           distributions[next_distribution].ex_date <= day;
+         ++next_distribution) {
+      const auto& d = distributions[next_distribution];
+      const auto u = s.units.find(d.security_id);
+      if (u == s.units.end()) continue;
+      const Decimal amount = u->second * d.per_share;
+      run.distributions += amount;
+      if (req.frictionless)
+        u->second += Decimal::divide(amount, price_on(h, d.security_id, day), kUnitPlaces);
+      else
+        s.owed.push_back(Owed{d.pay_date, amount});
+    }
     std::erase_if(s.owed, [&](const Owed& o) {
       if (o.pay > day) return false;
       s.cash += o.amount;
@@ -296,12 +306,9 @@ rules::Rule baseline_rule(const rules::Rule& rule) {
   return b;
 }
 
-Result run(store::Database& db, const rules::Rule& rule, const Request& request) {
-  const History h = load_history(db, rule);
-  return run(h, rule, request);
-}
+namespace {
 
-Result run(const History& h, const rules::Rule& rule, const Request& req) {
+void check_request(const Request& req) {
   if (req.from > req.to)
     throw InputError(fmt::format("--from: {} is after --to {}", req.from.str(), req.to.str()));
   if (!req.start_value.is_positive())
@@ -309,8 +316,23 @@ Result run(const History& h, const rules::Rule& rule, const Request& req) {
   if (req.rolling_months < 1 || req.rolling_months > 600)
     throw InputError(
         fmt::format("--rolling: {} is not a number of months from 1 to 600", req.rolling_months));
-  const auto first = std::lower_bound(h.days.begin(), h.days.end(), req.from);
-  if (first == h.days.end() || *first > req.to)
+}
+
+}  // namespace
+
+Result run(store::Database& db, const rules::Rule& rule, const Request& request) {
+  check_request(request);
+  std::vector<std::string> extra;
+  if (request.benchmark) extra.push_back(*request.benchmark);
+  const History h = load_history(db, rule, request.from.plus_days(-1), request.to, extra);
+  return run(h, rule, request);
+}
+
+Result run(const History& h, const rules::Rule& rule, const Request& req) {
+  check_request(req);
+  const auto& days = h.market.trading_days();
+  const auto first = std::lower_bound(days.begin(), days.end(), req.from);
+  if (first == days.end() || *first > req.to)
     throw InputError(fmt::format("--from/--to: the ledger holds no close from {} to {}",
                                  req.from.str(), req.to.str()));
 
@@ -320,7 +342,8 @@ Result run(const History& h, const rules::Rule& rule, const Request& req) {
   res.to = req.to;
   res.start_value = req.start_value;
   res.frictionless = req.frictionless;
-  res.rebalance_days = rebalance_days(h.days, req.from, req.to, rule.rebalance_months);
+  res.rebalance_days =
+      rebalance_days(days, h.market.next_trading_day(), req.from, req.to, rule.rebalance_months);
   if (res.rebalance_days.empty())
     throw InputError(fmt::format(
         "--from/--to: no month's last trading day falls between {} and {}; the rule never "
@@ -330,20 +353,19 @@ Result run(const History& h, const rules::Rule& rule, const Request& req) {
   std::optional<std::vector<perf::LevelPoint>> bench;
   if (req.benchmark) {
     std::optional<std::int64_t> id;
-    for (const auto& s : h.securities)
-      if (s.symbol == *req.benchmark) id = s.id;
+    if (const Security* s = h.market.security(*req.benchmark)) id = s->id;
     if (!id)
       throw InputError(
           fmt::format("--benchmark: no security '{}' in the ledger", printable(*req.benchmark)));
     const Date opening = req.from.plus_days(-1);
-    const auto open_level = h.prices.at(*id, opening);
+    const auto open_level = h.close(*id, opening);
     if (!open_level)
       throw InputError(fmt::format("--benchmark: '{}' has no close on or before {}",
                                    printable(*req.benchmark), opening.str()));
     bench.emplace();
     bench->push_back(perf::LevelPoint{opening, *open_level});
-    for (auto it = first; it != h.days.end() && *it <= req.to; ++it)
-      if (auto p = h.prices.at(*id, *it)) bench->push_back(perf::LevelPoint{*it, *p});
+    for (auto it = first; it != days.end() && *it <= req.to; ++it)
+      if (auto p = h.close(*id, *it)) bench->push_back(perf::LevelPoint{*it, *p});
     res.benchmark = *req.benchmark;
   }
 

@@ -122,7 +122,7 @@ struct Result {
 rules::Rule baseline_rule(const rules::Rule& rule);
 
 Result run(store::Database& db, const rules::Rule& rule, const Request& request);
-// The same on preloaded history (for tests and repeated runs).
+// The same on preloaded history spanning [from - 1, to] (for tests and repeated runs).
 Result run(const History& history, const rules::Rule& rule, const Request& request);
 
 std::vector<std::string> backtest_cautions();

@@ -3,51 +3,59 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <map>
 #include <set>
 #include <string>
+#include <unordered_map>
 
 #include "core/error.h"
 #include "core/text.h"
-#include "store/ledger_store.h"
-#include "store/market_rows.h"
+#include "market/day_view.h"
 
 namespace keel::backtest {
 
+std::optional<Decimal> History::close(std::int64_t id, Date day) const {
+  const int c = market.column(id);
+  const std::size_t r = market.row(day);
+  if (c < 0 || !market.has(r, c)) return std::nullopt;
+  return market.exact(r, c);
+}
+
 std::vector<rules::Candidate> History::candidates(
-    const rules::Rule& rule, Date day, const std::unordered_set<std::int64_t>& held) const {
-  (void)rule;
+    Date day, const std::unordered_set<std::int64_t>& held) const {
+  figures.advance_to(day);
+  const std::size_t r = market.row(day);
   std::vector<rules::Candidate> out;
   out.reserve(universe.size());
   for (std::int64_t id : universe) {
-    rules::Candidate c;
-    c.security_id = id;
-    c.symbol = security(id).symbol;
-    c.held = held.count(id) > 0;
-    if (auto m = metric.at(id, day)) {
-      c.figure = rules::Figure{m->value, m->date, m->known_on};
-      c.has_price = prices.at(id, day).has_value();
+    const int c = market.column(id);
+    rules::Candidate cand;
+    cand.security_id = id;
+    cand.symbol = security(id).symbol;
+    cand.held = held.count(id) > 0;
+    if (const auto* f = figures.at(c)) {
+      cand.figure = rules::Figure{f->value, f->period, f->known_on};
+      cand.has_price = market.has(r, c);
     }
-    out.push_back(std::move(c));
+    out.push_back(std::move(cand));
   }
   return out;
 }
 
-History load_history(store::Database& db, const rules::Rule& rule) {
-  History h;
-  h.securities = store::list_securities(db);
+History load_history(store::Database& db, const rules::Rule& rule, Date from, Date to,
+                     const std::vector<std::string>& extra) {
+  std::vector<std::int64_t> universe, sleeve_ids;
+  const market::DayView catalog(db);
   std::unordered_map<std::string, std::int64_t> by_symbol;
-  for (std::size_t i = 0; i < h.securities.size(); ++i) {
-    h.index[h.securities[i].id] = i;
-    by_symbol[h.securities[i].symbol] = h.securities[i].id;
-  }
+  for (const auto& s : catalog.securities()) by_symbol[s.symbol] = s.id;
   for (const auto& sl : rule.weights.sleeves) {
     const auto it = by_symbol.find(sl.symbol);
     if (it == by_symbol.end())
       rule.fail("sleeve.symbol",
                 fmt::format("no security '{}' in the ledger", printable(sl.symbol)));
-    h.sleeve_ids.push_back(it->second);
+    sleeve_ids.push_back(it->second);
   }
-  const std::set<std::int64_t> sleeves(h.sleeve_ids.begin(), h.sleeve_ids.end());
+  const std::set<std::int64_t> sleeves(sleeve_ids.begin(), sleeve_ids.end());
   std::map<std::string, std::int64_t> chosen;  // by symbol
   if (rule.universe == rules::Universe::list) {
     for (const auto& sym : rule.symbols) {
@@ -57,7 +65,7 @@ History load_history(store::Database& db, const rules::Rule& rule) {
       chosen[sym] = it->second;
     }
   } else {
-    for (const auto& s : h.securities) {
+    for (const auto& s : catalog.securities()) {
       if (s.kind != SecurityKind::stock || sleeves.count(s.id)) continue;
       if (rule.universe == rules::Universe::all_stocks || (s.sector && *s.sector == rule.sector))
         chosen[s.symbol] = s.id;
@@ -71,8 +79,8 @@ History load_history(store::Database& db, const rules::Rule& rule) {
           "securities first",
           printable(rule.source)));
   }
-  for (const auto& [sym, id] : chosen) h.universe.push_back(id);
-  const auto names = store::metric_names(db);
+  for (const auto& [sym, id] : chosen) universe.push_back(id);
+  const auto names = catalog.metric_names();
   if (std::find(names.begin(), names.end(), rule.screen.metric) == names.end()) {
     std::string why =
         fmt::format("the ledger holds no figures for metric '{}'", printable(rule.screen.metric));
@@ -83,28 +91,29 @@ History load_history(store::Database& db, const rules::Rule& rule) {
     rule.fail("screen.metric", why);
   }
 
-  h.prices = store::PriceBook::load(db);
-  h.metric = store::MetricHistory::load(db, rule.screen.metric);
-  h.days = h.prices.all_days();
-  for (const auto& s : store::list_splits(db))
-    h.splits[s.date].push_back(SplitEvent{s.security_id, s.ratio});
-  store::for_each_distribution(db, [&](const std::string& symbol, std::string_view ex,
-                                       std::string_view pay, std::string_view per_share) {
-    const std::int64_t id = by_symbol.at(symbol);
-    const Date ex_date = Date::parse(ex);
-    h.distributions[ex_date].push_back(
-        Distribution{id, ex_date, Date::parse(pay), Decimal::parse(per_share)});
-  });
-  return h;
+  std::vector<std::int64_t> ids = universe;
+  ids.insert(ids.end(), sleeve_ids.begin(), sleeve_ids.end());
+  for (const auto& sym : extra)
+    if (const auto it = by_symbol.find(sym); it != by_symbol.end()) ids.push_back(it->second);
+  market::Series::Request request;
+  request.securities = std::move(ids);
+  request.from = from;
+  request.to = to;
+  request.metrics = {rule.screen.metric};
+  auto series = market::Series::load(db, request);
+  auto cursor = series.figures(rule.screen.metric);
+  return History{std::move(universe), std::move(sleeve_ids), rule.screen.metric, std::move(series),
+                 std::move(cursor)};
 }
 
-std::vector<Date> rebalance_days(const std::vector<Date>& trading_days, Date from, Date to,
-                                 int every_months) {
+std::vector<Date> rebalance_days(const std::vector<Date>& trading_days, std::optional<Date> next,
+                                 Date from, Date to, int every_months) {
   std::vector<Date> month_last;
   for (std::size_t i = 0; i < trading_days.size(); ++i) {
     const Date d = trading_days[i];
-    const bool last = i + 1 == trading_days.size() || trading_days[i + 1].month() != d.month() ||
-                      trading_days[i + 1].year() != d.year();
+    const std::optional<Date> after =
+        i + 1 < trading_days.size() ? std::optional<Date>(trading_days[i + 1]) : next;
+    const bool last = !after || after->month() != d.month() || after->year() != d.year();
     if (last && d >= from && d <= to) month_last.push_back(d);
   }
   std::vector<Date> out;

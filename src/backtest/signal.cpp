@@ -56,34 +56,49 @@ std::optional<double> spearman(std::span<const double> x, std::span<const double
   return sxy / std::sqrt(sxx * syy);
 }
 
-SignalResult signal(const History& h, const rules::Rule& rule, const SignalRequest& req) {
+namespace {
+
+void check_request(const SignalRequest& req) {
   if (req.from > req.to)
     throw InputError(fmt::format("--from: {} is after --to {}", req.from.str(), req.to.str()));
   for (int m : req.horizons)
     if (m < 1 || m > 240)
       throw InputError(fmt::format("--horizons: {} is not a number of months from 1 to 240", m));
+}
+
+}  // namespace
+
+SignalResult signal(store::Database& db, const rules::Rule& rule, const SignalRequest& req) {
+  check_request(req);
+  return signal(load_history(db, rule, req.from, req.to), rule, req);
+}
+
+SignalResult signal(const History& h, const rules::Rule& rule, const SignalRequest& req) {
+  check_request(req);
   SignalResult res;
   res.rule_name = rule.name;
   res.from = req.from;
   res.to = req.to;
-  const auto starts = rebalance_days(h.days, req.from, req.to, rule.rebalance_months);
-  const auto month_last = rebalance_days(h.days, req.from, req.to, 1);
+  const auto& days = h.market.trading_days();
+  const auto next = h.market.next_trading_day();
+  const auto starts = rebalance_days(days, next, req.from, req.to, rule.rebalance_months);
+  const auto month_last = rebalance_days(days, next, req.from, req.to, 1);
   std::map<int, Date> by_month;  // year * 12 + month - 1
   for (Date d : month_last) by_month[d.year() * 12 + d.month() - 1] = d;
 
   // Each security's splits and distributions in date order (splits first on a day).
   std::unordered_map<std::int64_t, std::vector<Event>> events;
-  for (const auto& [day, list] : h.splits)
-    for (const auto& s : list) events[s.security_id].push_back(Event{day, true, s.ratio});
-  for (const auto& [day, list] : h.distributions)
-    for (const auto& d : list) events[d.security_id].push_back(Event{day, false, d.per_share});
+  for (const auto& s : h.market.split_events())
+    events[s.security_id].push_back(Event{s.date, true, s.ratio});
+  for (const auto& d : h.market.distribution_events())
+    events[d.security_id].push_back(Event{d.ex_date, false, d.per_share});
   for (auto& [id, ev] : events)
     std::stable_sort(ev.begin(), ev.end(), [](const Event& a, const Event& b) {
       return a.day != b.day ? a.day < b.day : a.split > b.split;
     });
   auto forward = [&](std::int64_t id, Date start, Date end) -> std::optional<double> {
-    const auto p0 = h.prices.at(id, start);
-    const auto p1 = h.prices.at(id, end);
+    const auto p0 = h.close(id, start);
+    const auto p1 = h.close(id, end);
     if (!p0 || !p1 || !p0->is_positive()) return std::nullopt;
     Decimal units(1), cash;
     if (auto it = events.find(id); it != events.end())
@@ -105,7 +120,7 @@ SignalResult signal(const History& h, const rules::Rule& rule, const SignalReque
   for (Date day : starts) {
     rules::ScreenResult screened;
     try {
-      screened = rules::screen(rule, day, h.candidates(rule, day, {}));
+      screened = rules::screen(rule, day, h.candidates(day, {}));
     } catch (const InputError& e) {
       res.notes.push_back(fmt::format("{}: skipped: {}", day.str(), e.what()));
       continue;

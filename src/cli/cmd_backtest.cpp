@@ -301,8 +301,7 @@ void add_signal(CLI::App& app, Context& ctx) {
     req.horizons = horizons_option(o->horizons);
     const auto rule = rules::load_rule(o->rule);
     auto db = ctx.open_ledger();
-    const auto history = backtest::load_history(db, rule);
-    const auto r = backtest::signal(history, rule, req);
+    const auto r = backtest::signal(db, rule, req);
     if (o->json) {
       Json j;
       j["rule"] = r.rule_name;

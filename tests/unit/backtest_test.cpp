@@ -139,10 +139,15 @@ TEST_CASE("backtest: a close on the rebalancing day does change its orders") {
 TEST_CASE("backtest: rebalancing days are each month's last day with a close") {
   const std::vector<Date> days{day("2024-01-30"), day("2024-01-31"), day("2024-02-28"),
                                day("2024-03-01"), day("2024-03-28"), day("2024-04-02")};
-  CHECK(bt::rebalance_days(days, day("2024-01-01"), day("2024-03-31"), 1) ==
+  CHECK(bt::rebalance_days(days, std::nullopt, day("2024-01-01"), day("2024-03-31"), 1) ==
         std::vector<Date>{day("2024-01-31"), day("2024-02-28"), day("2024-03-28")});
-  CHECK(bt::rebalance_days(days, day("2024-01-01"), day("2024-04-30"), 2) ==
+  CHECK(bt::rebalance_days(days, std::nullopt, day("2024-01-01"), day("2024-04-30"), 2) ==
         std::vector<Date>{day("2024-01-31"), day("2024-03-28")});
+  // The day after the last one given decides whether that one ends its month.
+  CHECK(
+      bt::rebalance_days(days, day("2024-04-03"), day("2024-04-01"), day("2024-04-30"), 1).empty());
+  CHECK(bt::rebalance_days(days, day("2024-05-01"), day("2024-04-01"), day("2024-04-30"), 1) ==
+        std::vector<Date>{day("2024-04-02")});
 }
 
 TEST_CASE("backtest: the frictionless pool is fully invested at equal weight") {
