@@ -63,4 +63,12 @@ std::optional<Date> DayView::latest_close_day() const {
   return Date::parse(*day);
 }
 
+std::optional<Date> DayView::first_close_after(std::int64_t security_id, Date day) const {
+  auto& rows = rows_.first_close_after(security_id, text(day));
+  if (!rows.next()) return std::nullopt;
+  const Date d = Date::parse(rows.text(0));
+  rows.reset();
+  return d;
+}
+
 }  // namespace keel::market

@@ -32,6 +32,8 @@ class DayView final : public View {
 
   // The latest day with any close; unset when the ledger has none.
   std::optional<Date> latest_close_day() const;
+  // The first day after `day` with a close of the security; unset when none.
+  std::optional<Date> first_close_after(std::int64_t security_id, Date day) const;
 
  private:
   const std::string& text(Date day) const;  // the last day's ISO text, kept

@@ -260,6 +260,16 @@ Decimal Series::exact(std::size_t row, int column) const {
   return *ex.seed;
 }
 
+std::vector<Close> Series::closes(std::int64_t security_id) const {
+  const int c = column(security_id);
+  if (c < 0)
+    throw std::out_of_range(fmt::format("market::Series: security {} is not loaded", security_id));
+  std::vector<Close> out;
+  for (std::size_t r = 0; r < rows_; ++r)
+    if (has(r, c) && (r == 0 || fresh(r, c))) out.push_back(Close{close_day(r, c), exact(r, c)});
+  return out;
+}
+
 std::optional<Close> Series::close(std::int64_t security_id, Date day) const {
   const int c = column(security_id);
   if (c < 0)

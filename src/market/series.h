@@ -77,7 +77,10 @@ class Series final : public View {
     return cells_[row * ids_.size() + static_cast<std::size_t>(column)];
   }
   bool has(std::size_t row, int column) const { return !std::isnan(value(row, column)); }
-  Decimal exact(std::size_t row, int column) const;   // requires has(row, column)
+  Decimal exact(std::size_t row, int column) const;  // requires has(row, column)
+  // The closes that matter to the span: the close on or before its first day
+  // (if any), then every close dated after that day, ascending.
+  std::vector<Close> closes(std::int64_t security_id) const;
   Date close_day(std::size_t row, int column) const;  // requires has(row, column)
 
   struct FigureRow {

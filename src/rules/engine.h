@@ -37,7 +37,7 @@
 
 namespace keel::rules {
 
-// A figure as known on the as-of day (see store::metric_as_of).
+// A figure as known on the as-of day (see market/view.h).
 struct Figure {
   Decimal value;
   Date period;    // the period the figure is for

@@ -5,7 +5,7 @@
 //  - propose() uses only what was knowable on the as-of day: positions and
 //    cash replayed to that day; closes on or before it (else a position's
 //    last trade price, which is never traded on); metric figures with
-//    known_on <= as-of (store::metric_as_of). The default as-of is the latest
+//    known_on <= as-of (market/view.h). The default as-of is the latest
 //    day with a close. It reads the ledger and writes nothing.
 //  - Problems of the rule meeting this ledger (an account, symbol, sector or
 //    metric it does not hold; too few names; nothing selected; weights that
