@@ -10,6 +10,7 @@
 
 #include "core/error.h"
 #include "core/text.h"
+#include "rules/inputs.h"
 
 namespace keel::backtest {
 namespace {
@@ -50,26 +51,20 @@ struct Selection {
   std::optional<std::string> none;  // why nothing is held
 };
 
-Selection select(const History& h, const rules::Rule& rule, Date day, const State& s) {
-  Selection out;
-  std::unordered_set<std::int64_t> held;
+std::set<std::int64_t> held_in(const State& s) {
+  std::set<std::int64_t> held;
   for (const auto& [id, q] : s.units) held.insert(id);
-  try {
-    const auto screened = rules::screen(rule, day, h.candidates(day, held));
-    out.passed = screened.passed;
-    out.selected = screened.selected;
-    out.targets = rules::targets(rule, screened, h.sleeve_ids);
-  } catch (const InputError& e) {
-    out.targets.clear();
-    out.selected = 0;
-    out.none = e.what();
-  }
-  if (!out.none)
-    for (std::size_t i = 0; i < h.sleeve_ids.size(); ++i)
-      if (!h.close(h.sleeve_ids[i], day))
-        rule.fail("sleeve.symbol",
-                  fmt::format("sleeve '{}' has no close on or before {}",
-                              printable(rule.weights.sleeves[i].symbol), day.str()));
+  return held;
+}
+
+Selection select(const History& h, const rules::Inputs& inputs, const rules::Rule& rule, Date day,
+                 const State& s) {
+  auto chosen = inputs.select(h.market, day, held_in(s));
+  Selection out;
+  out.passed = chosen.screen.passed;
+  out.selected = chosen.screen.selected;
+  out.targets = std::move(chosen.targets);
+  if (chosen.refusal) out.none = chosen.refusal->text(rule);
   return out;
 }
 
@@ -108,8 +103,8 @@ void rebalance_frictionless(const History& h, const Selection& sel, Date day, St
   s.cash = value - invested;
 }
 
-void rebalance_with_orders(const History& h, const rules::Rule& rule, const Selection& sel,
-                           Date day, State& s, RebalanceDay& rd) {
+void rebalance_with_orders(const History& h, const rules::Inputs& inputs, const rules::Rule& rule,
+                           const Selection& sel, Date day, State& s, RebalanceDay& rd) {
   rules::Portfolio p;
   rules::AccountState acct;
   acct.id = 1;
@@ -117,18 +112,14 @@ void rebalance_with_orders(const History& h, const rules::Rule& rule, const Sele
   acct.cash = s.cash;
   for (const auto& [id, q] : s.units) acct.holdings[id] = rules::HoldingState{q, {}};
   p.accounts.push_back(std::move(acct));
-  rules::Quotes quotes;
-  auto quote = [&](std::int64_t id) {
-    if (quotes.count(id)) return;
-    const Security& sec = h.security(id);
-    rules::Quote q;
-    q.symbol = sec.symbol;
-    q.lot_size = sec.lot_size;
-    q.price = price_on(h, id, day);
-    quotes.emplace(id, std::move(q));
+  // A held security always has a close on or before any later day: it was
+  // bought at one.
+  const auto unpriced = [&](std::int64_t id) -> std::optional<Decimal> {
+    throw std::logic_error(fmt::format("backtest: no close for security {} on {}", id, day.str()));
   };
-  for (const auto& t : sel.targets) quote(t.security_id);
-  for (const auto& [id, q] : s.units) quote(id);
+  std::vector<std::string> quote_notes;  // stale closes: the back-test trades at them as they are
+  const rules::Quotes quotes =
+      inputs.quotes(h.market, day, sel.targets, held_in(s), unpriced, quote_notes);
   const auto plan = rules::orders(p, sel.targets, quotes, rule.trading, day);
   const auto after = rules::apply(p, plan.orders);
   for (const auto& o : plan.orders) {
@@ -145,6 +136,7 @@ void rebalance_with_orders(const History& h, const rules::Rule& rule, const Sele
 StrategyRun simulate(const History& h, const rules::Rule& rule, const Request& req,
                      const std::vector<Date>& rebalance, std::string label, bool report_progress,
                      std::vector<std::string>& notes) {
+  const rules::Inputs inputs(rule, h.market);
   StrategyRun run;
   run.label = std::move(label);
   State s;
@@ -193,7 +185,7 @@ StrategyRun simulate(const History& h, const rules::Rule& rule, const Request& r
       RebalanceDay rd;
       rd.day = day;
       rd.value_before = s.cash + holdings_value(h, s, day);
-      const Selection sel = select(h, rule, day, s);
+      const Selection sel = select(h, inputs, rule, day, s);
       rd.passed = sel.passed;
       rd.selected = sel.selected;
       rd.no_selection = sel.none;
@@ -203,7 +195,7 @@ StrategyRun simulate(const History& h, const rules::Rule& rule, const Request& r
       if (req.frictionless)
         rebalance_frictionless(h, sel, day, s, rd);
       else
-        rebalance_with_orders(h, rule, sel, day, s, rd);
+        rebalance_with_orders(h, inputs, rule, sel, day, s, rd);
       rd.names_after = static_cast<int>(s.units.size());
       run.fees += rd.fees;
       if (rd.value_before.is_positive())

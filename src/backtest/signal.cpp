@@ -12,6 +12,7 @@
 #include "backtest/backtest.h"
 #include "core/error.h"
 #include "perf/stats.h"
+#include "rules/inputs.h"
 
 namespace keel::backtest {
 namespace {
@@ -117,12 +118,11 @@ SignalResult signal(const History& h, const rules::Rule& rule, const SignalReque
     hr.months = months;
     res.horizons.push_back(std::move(hr));
   }
+  const rules::Inputs inputs(rule, h.market);
   for (Date day : starts) {
-    rules::ScreenResult screened;
-    try {
-      screened = rules::screen(rule, day, h.candidates(day, {}));
-    } catch (const InputError& e) {
-      res.notes.push_back(fmt::format("{}: skipped: {}", day.str(), e.what()));
+    const auto screened = rules::screen(rule, day, inputs.candidates(h.market, day, {}));
+    if (screened.refusal) {
+      res.notes.push_back(fmt::format("{}: skipped: {}", day.str(), screened.refusal->text(rule)));
       continue;
     }
     for (auto& hr : res.horizons) {

@@ -261,19 +261,26 @@ Decimal Series::exact(std::size_t row, int column) const {
 }
 
 std::vector<Close> Series::closes(std::int64_t security_id) const {
-  const int c = column(security_id);
-  if (c < 0)
-    throw std::out_of_range(fmt::format("market::Series: security {} is not loaded", security_id));
+  const int c = loaded(security_id);
   std::vector<Close> out;
   for (std::size_t r = 0; r < rows_; ++r)
     if (has(r, c) && (r == 0 || fresh(r, c))) out.push_back(Close{close_day(r, c), exact(r, c)});
   return out;
 }
 
-std::optional<Close> Series::close(std::int64_t security_id, Date day) const {
+int Series::loaded(std::int64_t security_id) const {
   const int c = column(security_id);
   if (c < 0)
     throw std::out_of_range(fmt::format("market::Series: security {} is not loaded", security_id));
+  return c;
+}
+
+bool Series::has_close(std::int64_t security_id, Date day) const {
+  return has(row(day), loaded(security_id));
+}
+
+std::optional<Close> Series::close(std::int64_t security_id, Date day) const {
+  const int c = loaded(security_id);
   const std::size_t r = row(day);
   if (!has(r, c)) return std::nullopt;
   return Close{close_day(r, c), exact(r, c)};
@@ -307,9 +314,7 @@ void Series::FigureCursor::advance_to(Date day) {
 
 std::optional<Figure> Series::figure(std::int64_t security_id, std::string_view metric,
                                      Date day) const {
-  const int c = column(security_id);
-  if (c < 0)
-    throw std::out_of_range(fmt::format("market::Series: security {} is not loaded", security_id));
+  const int c = loaded(security_id);
   row(day);  // inside the span
   const auto it = std::find(metrics_.begin(), metrics_.end(), metric);
   if (it == metrics_.end())
@@ -338,8 +343,7 @@ std::vector<Event> events_between(const std::vector<Event>& all, std::optional<s
 void Series::check_span(std::optional<std::int64_t> security_id, Date from, Date to) const {
   row(from);
   row(to);
-  if (security_id && column(*security_id) < 0)
-    throw std::out_of_range(fmt::format("market::Series: security {} is not loaded", *security_id));
+  if (security_id) loaded(*security_id);
 }
 
 std::vector<Distribution> Series::distributions(std::optional<std::int64_t> security_id, Date from,

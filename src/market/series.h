@@ -53,6 +53,7 @@ class Series final : public View {
   Series& operator=(const Series&) = delete;
 
   std::optional<Close> close(std::int64_t security_id, Date day) const override;
+  bool has_close(std::int64_t security_id, Date day) const override;
   std::optional<Figure> figure(std::int64_t security_id, std::string_view metric,
                                Date day) const override;
   std::vector<Distribution> distributions(std::optional<std::int64_t> security_id, Date from,
@@ -122,6 +123,7 @@ class Series final : public View {
     std::optional<Decimal> seed;                          // the close before `from`
   };
   bool fresh(std::size_t row, int column) const;
+  int loaded(std::int64_t security_id) const;  // the column; std::out_of_range when not loaded
   void check_span(std::optional<std::int64_t> security_id, Date from, Date to) const;
 
   Date from_, to_;

@@ -75,6 +75,10 @@ class View {
   virtual ~View() = default;
 
   virtual std::optional<Close> close(std::int64_t security_id, Date day) const = 0;
+  // Whether close() has an answer; cheaper where a view can tell without one.
+  virtual bool has_close(std::int64_t security_id, Date day) const {
+    return close(security_id, day).has_value();
+  }
   virtual std::optional<Figure> figure(std::int64_t security_id, std::string_view metric,
                                        Date day) const = 0;
   virtual std::vector<Distribution> distributions(std::optional<std::int64_t> security_id,

@@ -46,6 +46,10 @@ double percentile(const std::vector<double>& sorted, double pct_value) {
 
 // ----------------------------------------------------------------- screen
 
+std::string Refusal::text(const Rule& rule) const {
+  return fmt::format("{}: {}", rule.where(key), why);
+}
+
 ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candidates) {
   ScreenResult out;
   out.as_of = as_of;
@@ -79,11 +83,25 @@ ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candida
     }
   }
   out.passed = pass.size();
+  // A refused screen keeps its lines (nothing selected), so it can be shown.
+  auto refuse = [&](std::string key, std::string why) {
+    out.refusal = Refusal{std::move(key), std::move(why)};
+    out.selected = 0;
+    for (auto& l : pass) l.selected = false;
+    std::sort(pass.begin(), pass.end(), [](const ScreenLine& a, const ScreenLine& b) {
+      return a.z && b.z && *a.z != *b.z ? *a.z < *b.z : a.symbol < b.symbol;
+    });
+    std::sort(rest.begin(), rest.end(),
+              [](const ScreenLine& a, const ScreenLine& b) { return a.symbol < b.symbol; });
+    out.lines = std::move(pass);
+    for (auto& l : rest) out.lines.push_back(std::move(l));
+    return out;
+  };
   if (pass.size() < static_cast<std::size_t>(s.min_names))
-    rule.fail("screen.min_names",
-              fmt::format("only {} name{} pass{} the screen on {}; the rule needs at least {}",
-                          pass.size(), pass.size() == 1 ? "" : "s", pass.size() == 1 ? "es" : "",
-                          as_of.str(), s.min_names));
+    return refuse("screen.min_names",
+                  fmt::format("only {} name{} pass{} the screen on {}; the rule needs at least {}",
+                              pass.size(), pass.size() == 1 ? "" : "s",
+                              pass.size() == 1 ? "es" : "", as_of.str(), s.min_names));
 
   if (s.winsorize_pct) {
     std::vector<double> sorted;
@@ -103,10 +121,10 @@ ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candida
   for (const auto& l : pass) ss += (*l.value - out.mean) * (*l.value - out.mean);
   out.sd = std::sqrt(ss / (n - 1));
   if (!(out.sd > 0))
-    rule.fail("screen.metric",
-              fmt::format("all {} names passing the screen on {} have the same value; z-scores "
-                          "need some spread",
-                          pass.size(), as_of.str()));
+    return refuse("screen.metric",
+                  fmt::format("all {} names passing the screen on {} have the same value; "
+                              "z-scores need some spread",
+                              pass.size(), as_of.str()));
   const double sign = s.cheap == Cheap::low ? 1.0 : -1.0;
   for (auto& l : pass) l.z = sign * (*l.value - out.mean) / out.sd;
   std::sort(pass.begin(), pass.end(), [](const ScreenLine& a, const ScreenLine& b) {
@@ -151,10 +169,10 @@ ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candida
     if (l.selected) ++out.selected;
   }
   if (out.selected == 0)
-    rule.fail("select.z_max",
-              fmt::format("selects no name on {}: the lowest z among the {} names passing the "
-                          "screen is {}",
-                          as_of.str(), pass.size(), z_text(*pass.front().z)));
+    return refuse("select.z_max",
+                  fmt::format("selects no name on {}: the lowest z among the {} names passing "
+                              "the screen is {}",
+                              as_of.str(), pass.size(), z_text(*pass.front().z)));
 
   std::sort(rest.begin(), rest.end(),
             [](const ScreenLine& a, const ScreenLine& b) { return a.symbol < b.symbol; });
@@ -165,9 +183,14 @@ ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candida
 
 // ---------------------------------------------------------------- targets
 
-std::vector<Target> targets(const Rule& rule, const ScreenResult& screened,
-                            const std::vector<std::int64_t>& sleeve_ids) {
-  std::vector<Target> out;
+Targets targets(const Rule& rule, const ScreenResult& screened,
+                const std::vector<std::int64_t>& sleeve_ids) {
+  Targets result;
+  if (screened.refusal) {
+    result.refusal = screened.refusal;
+    return result;
+  }
+  std::vector<Target>& out = result.list;
   const auto& w = rule.weights;
   for (std::size_t i = 0; i < w.sleeves.size(); ++i)
     out.push_back(Target{sleeve_ids.at(i), w.sleeves[i].symbol, w.sleeves[i].weight, true,
@@ -179,12 +202,16 @@ std::vector<Target> targets(const Rule& rule, const ScreenResult& screened,
     if (l.selected) chosen.push_back(&l);
   const Decimal share = Decimal(1) - w.sleeve_total();
   const Decimal n(static_cast<long long>(chosen.size()));
-  if (n * w.max_weight < share)
-    rule.fail("weights.max_weight_pct",
-              fmt::format("weights cannot sum to one on {}: {} selected names x {} = {} is less "
-                          "than the {} they must fill",
-                          screened.as_of.str(), chosen.size(), pct(w.max_weight),
-                          pct(n * w.max_weight), pct(share)));
+  if (n * w.max_weight < share) {
+    result.refusal = Refusal{
+        "weights.max_weight_pct",
+        fmt::format("weights cannot sum to one on {}: {} selected names x {} = {} is less than "
+                    "the {} they must fill",
+                    screened.as_of.str(), chosen.size(), pct(w.max_weight), pct(n * w.max_weight),
+                    pct(share))};
+    out.clear();
+    return result;
+  }
 
   // Raw weights: equal, or exp(-tilt * z) (a double statistic, brought into
   // Decimal at 12 significant digits; only ratios matter).
@@ -225,7 +252,7 @@ std::vector<Target> targets(const Rule& rule, const ScreenResult& screened,
     if (l.held && !l.selected)
       out.push_back(Target{l.security_id, l.symbol, Decimal(), false, l.z, true,
                            l.passed ? l.note : "excluded: " + l.excluded_reason});
-  return out;
+  return result;
 }
 
 // ----------------------------------------------------------------- orders

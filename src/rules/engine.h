@@ -10,13 +10,14 @@
 //   values are cheap, so low z is always cheap. Selection then marks names:
 //   z <= z_max, the cheapest `count`, or the cheapest ceil(top_pct % of n);
 //   a held name that passes but is not selected stays while z <= exit_z.
-//   Throws InputError located at the rule key when fewer than min_names pass
-//   or nothing is selected.
+//   Fewer than min_names passing, no spread, or nothing selected is a normal
+//   result: `refusal` names the rule key and says why, and nothing is
+//   selected.
 // targets(): weights (fractions of the invested value) for sleeves and
 //   selected names: equal, or raw exp(-tilt * z) normalized; a cap per name
 //   with the excess shared among the others in proportion. Held names that are
-//   not selected get weight 0 with the reason. Throws InputError when the
-//   weights cannot add up to one.
+//   not selected get weight 0 with the reason. A refused screen, or weights
+//   that cannot add up to one, give no targets and the refusal.
 // orders(): turns targets into orders for a portfolio (cash and holdings per
 //   account) at given prices. Sells come first, then buys that fit each
 //   account's cash above its reserve after estimated fees; quantities are
@@ -66,9 +67,18 @@ struct ScreenLine {
   std::string note;             // why it is, or is not, selected
 };
 
+// Why a rule holds nothing on a day: the rule key responsible and the reason.
+struct Refusal {
+  std::string key;
+  std::string why;
+  // "FILE:LINE: key 'KEY': WHY", as Rule::fail words it.
+  std::string text(const Rule& rule) const;
+};
+
 struct ScreenResult {
   Date as_of;
-  std::vector<ScreenLine> lines;  // passing names by z (then symbol), then the rest by symbol
+  std::optional<Refusal> refusal;  // set when the screen selects nothing
+  std::vector<ScreenLine> lines;   // passing names by z (then symbol), then the rest by symbol
   std::size_t passed = 0;
   std::size_t selected = 0;
   double mean = 0, sd = 0;  // of the values z is computed from
@@ -87,9 +97,13 @@ struct Target {
   std::string why;  // "z = -1.32 <= -0.50", "sleeve at 20%", "excluded: ..."
 };
 
-// Sleeves first, then selected names by z, then zero-weight exits.
-std::vector<Target> targets(const Rule& rule, const ScreenResult& screened,
-                            const std::vector<std::int64_t>& sleeve_ids);
+struct Targets {
+  std::vector<Target> list;  // sleeves first, then selected names by z, then zero-weight exits
+  std::optional<Refusal> refusal;  // the screen's, or weights that cannot add up; list is empty
+};
+
+Targets targets(const Rule& rule, const ScreenResult& screened,
+                const std::vector<std::int64_t>& sleeve_ids);
 
 // ---------------------------------------------------------------- orders
 

@@ -5,30 +5,16 @@
 #include <algorithm>
 #include <map>
 #include <set>
-#include <unordered_map>
-#include <unordered_set>
 
 #include "core/error.h"
 #include "core/text.h"
 #include "io/sha256.h"
 #include "ledger/posting.h"
 #include "market/day_view.h"
+#include "rules/inputs.h"
 #include "store/ledger_store.h"
 
 namespace keel::rules {
-namespace {
-
-std::string join(const std::vector<std::string>& items) {
-  std::string out;
-  for (const auto& s : items) out += (out.empty() ? "" : ", ") + printable(s);
-  return out;
-}
-
-// A close this many days older than the as-of day earns a note.
-constexpr int kOldCloseDays = 7;
-
-}  // namespace
-
 std::vector<std::string> proposal_cautions(Date as_of) {
   return {
       "This is the output of your own rule applied to your own data; it is not investment "
@@ -70,69 +56,14 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
       if (!a)
         rule.fail("scope.accounts",
                   fmt::format("no account named '{}' in the ledger{}", printable(name),
-                              known.empty() ? "" : " (accounts: " + join(known) + ")"));
+                              known.empty() ? "" : " (accounts: " + printable_list(known) + ")"));
       pool.push_back(*a);
       p.accounts.push_back(a->name);
     }
   }
 
-  // Securities: the universe and the sleeves.
-  const auto& securities = view.securities();
-  std::unordered_map<std::string, const Security*> by_symbol;
-  std::unordered_map<std::int64_t, const Security*> by_id;
-  for (const auto& s : securities) {
-    by_symbol[s.symbol] = &s;
-    by_id[s.id] = &s;
-  }
-  std::vector<std::int64_t> sleeve_ids;
-  for (const auto& sl : rule.weights.sleeves) {
-    const auto it = by_symbol.find(sl.symbol);
-    if (it == by_symbol.end())
-      rule.fail("sleeve.symbol",
-                fmt::format("no security '{}' in the ledger", printable(sl.symbol)));
-    sleeve_ids.push_back(it->second->id);
-  }
-  const std::set<std::int64_t> sleeve_set(sleeve_ids.begin(), sleeve_ids.end());
-  std::vector<const Security*> universe;
-  if (rule.universe == Universe::list) {
-    for (const auto& sym : rule.symbols) {
-      const auto it = by_symbol.find(sym);
-      if (it == by_symbol.end())
-        rule.fail("scope.symbols", fmt::format("no security '{}' in the ledger", printable(sym)));
-      universe.push_back(it->second);
-    }
-  } else {
-    std::set<std::string> sectors;
-    for (const auto& s : securities) {
-      if (s.kind != SecurityKind::stock || sleeve_set.count(s.id)) continue;
-      if (s.sector) sectors.insert(*s.sector);
-      if (rule.universe == Universe::all_stocks || (s.sector && *s.sector == rule.sector))
-        universe.push_back(&s);
-    }
-    if (universe.empty() && rule.universe == Universe::sector)
-      rule.fail(
-          "scope.sector",
-          fmt::format(
-              "no stock in the ledger has sector '{}'{}", printable(rule.sector),
-              sectors.empty() ? "" : " (sectors: " + join({sectors.begin(), sectors.end()}) + ")"));
-    if (universe.empty())
-      throw InputError(fmt::format(
-          "{}: the universe is every stock in the ledger, and the ledger holds none; import "
-          "securities first",
-          printable(rule.source)));
-  }
-  const auto names = view.metric_names();
-  if (std::find(names.begin(), names.end(), rule.screen.metric) == names.end()) {
-    std::string why =
-        fmt::format("the ledger holds no figures for metric '{}'", printable(rule.screen.metric));
-    if (auto near = nearest(rule.screen.metric, names))
-      why += fmt::format("; did you mean '{}'?", printable(*near));
-    else if (!names.empty())
-      why += fmt::format(" (stored metrics: {})", join(names));
-    else
-      why += "; import metrics first ('keel import metrics FILE')";
-    rule.fail("screen.metric", why);
-  }
+  // The universe and the sleeves, checked before the ledger is replayed.
+  const Inputs inputs(rule, view);
 
   // The pool's state on the as-of day.
   const auto log = ledger::load_log(db);
@@ -140,7 +71,7 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
   const Book& book = replayer.advance_to(as_of);
   p.last_txn_id = store::last_transaction_id(db);
   Portfolio portfolio;
-  std::unordered_set<std::int64_t> held;
+  std::set<std::int64_t> held;
   for (const auto& a : pool) {
     AccountState st;
     st.id = a.id;
@@ -158,64 +89,13 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
     portfolio.accounts.push_back(std::move(st));
   }
 
-  // Point-in-time figures and closes.
-  std::unordered_map<std::int64_t, std::optional<market::Close>> closes;
-  auto close_of = [&](std::int64_t id) -> const std::optional<market::Close>& {
-    auto it = closes.find(id);
-    if (it == closes.end()) it = closes.emplace(id, view.close(id, as_of)).first;
-    return it->second;
-  };
-  std::vector<Candidate> candidates;
-  candidates.reserve(universe.size());
-  for (const auto* s : universe) {
-    Candidate c;
-    c.security_id = s->id;
-    c.symbol = s->symbol;
-    c.held = held.count(s->id) > 0;
-    if (auto m = view.figure(s->id, rule.screen.metric, as_of)) {
-      c.figure = Figure{m->value, m->period, m->known_on};
-      c.has_price = close_of(s->id).has_value();
-    }
-    candidates.push_back(std::move(c));
-  }
-  p.screen = screen(rule, as_of, std::move(candidates));
-  p.targets = targets(rule, p.screen, sleeve_ids);
-
-  // Held names outside the universe leave the pool.
-  std::set<std::int64_t> targeted;
-  for (const auto& t : p.targets) targeted.insert(t.security_id);
-  for (std::int64_t id : held)
-    if (!targeted.count(id))
-      p.targets.push_back(Target{id, by_id.at(id)->symbol, Decimal(), false, std::nullopt, true,
-                                 "not in the rule's universe"});
-  for (std::size_t i = 0; i < sleeve_ids.size(); ++i)
-    if (!close_of(sleeve_ids[i]))
-      rule.fail("sleeve.symbol",
-                fmt::format("sleeve '{}' has no close on or before {}",
-                            printable(rule.weights.sleeves[i].symbol), as_of.str()));
-
-  Quotes quotes;
-  for (const auto& t : p.targets) {
-    if (quotes.count(t.security_id)) continue;
-    const Security& s = *by_id.at(t.security_id);
-    Quote q;
-    q.symbol = s.symbol;
-    q.lot_size = s.lot_size;
-    if (const auto& c = close_of(s.id)) {
-      q.price = c->price;
-      if (as_of - c->day > kOldCloseDays && (t.weight.is_positive() || held.count(s.id)))
-        p.notes.push_back(fmt::format("{}: the latest close on or before {} is from {}",
-                                      printable(s.symbol), as_of.str(), c->day.str()));
-    } else {
-      q.tradable = false;
-      const auto trade = book.last_trade_price(s.id);
-      q.price = trade.value_or(Decimal());
-      p.notes.push_back(fmt::format(
-          "{}: no close on or before {}; valued at {}", printable(s.symbol), as_of.str(),
-          trade ? "its last trade price " + trade->str() : "zero (it never traded)"));
-    }
-    quotes.emplace(s.id, std::move(q));
-  }
+  auto chosen = inputs.select(view, as_of, held);
+  if (chosen.refusal) rule.fail(chosen.refusal->key, chosen.refusal->why);
+  p.screen = std::move(chosen.screen);
+  p.targets = std::move(chosen.targets);
+  const Quotes quotes = inputs.quotes(
+      view, as_of, p.targets, held, [&](std::int64_t id) { return book.last_trade_price(id); },
+      p.notes);
 
   Decimal pool_value;
   for (const auto& a : portfolio.accounts) {
@@ -226,7 +106,7 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
     rule.fail("scope.accounts",
               fmt::format("the accounts {} hold nothing to invest on {} (value {}); deposit "
                           "cash first",
-                          join(p.accounts), as_of.str(), pool_value.str()));
+                          printable_list(p.accounts), as_of.str(), pool_value.str()));
 
   p.plan = orders(portfolio, p.targets, quotes, rule.trading, as_of);
   p.cautions = proposal_cautions(as_of);

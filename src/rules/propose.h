@@ -7,9 +7,12 @@
 //    last trade price, which is never traded on); metric figures with
 //    known_on <= as-of (market/view.h). The default as-of is the latest
 //    day with a close. It reads the ledger and writes nothing.
-//  - Problems of the rule meeting this ledger (an account, symbol, sector or
-//    metric it does not hold; too few names; nothing selected; weights that
-//    cannot add up) are InputErrors located at the rule key (Rule::fail).
+//  - Problems of the rule meeting this ledger are InputErrors located at the
+//    rule key (Rule::fail): an account it does not hold, and whatever
+//    rules::Inputs refuses (rules/inputs.h), in the words the back-test and
+//    the signal check use too. A day on which the rule selects nothing (too
+//    few names, no spread, nothing selected, weights that cannot add up) is
+//    refused with the engine's reason: a proposal always has targets.
 //  - save() stores a proposal in one write transaction and returns its id.
 //  - review() matches a saved proposal's orders with the live buys and sells
 //    posted after it was saved in the rule's accounts, by account, security

@@ -66,7 +66,7 @@ Quotes quotes(std::initializer_list<std::tuple<std::int64_t, const char*, const 
 
 TEST_CASE("targets: equal weights share what the sleeve leaves") {
   const Rule r = rule("[[sleeve]]\nsymbol = \"BOND\"\nweight_pct = 20\n");
-  const auto t = targets(r, screen(r, kAsOf, five()), {99});
+  const auto t = targets(r, screen(r, kAsOf, five()), {99}).list;
   REQUIRE(t.size() == 3);
   CHECK(t[0].symbol == "BOND");
   CHECK(t[0].weight == dec("0.2"));
@@ -78,7 +78,7 @@ TEST_CASE("targets: equal weights share what the sleeve leaves") {
 
 TEST_CASE("targets: a tilt weighs cheaper names more, in proportion to exp(-z)") {
   const Rule r = rule("[select]\nby = \"count\"\ncount = 3\n[weights]\nscheme = \"tilt\"\n");
-  const auto t = targets(r, screen(r, kAsOf, five()), {});
+  const auto t = targets(r, screen(r, kAsOf, five()), {}).list;
   REQUIRE(t.size() == 3);
   // exp(4/sqrt(10)), exp(2/sqrt(10)), 1, normalized (computed with Python's math.exp).
   CHECK(t[0].weight.to_double() == doctest::Approx(0.5514047011699162).epsilon(1e-10));
@@ -89,25 +89,34 @@ TEST_CASE("targets: a tilt weighs cheaper names more, in proportion to exp(-z)")
 TEST_CASE("targets: a capped name's excess goes to the others in proportion") {
   const Rule r = rule(
       "[select]\nby = \"count\"\ncount = 3\n[weights]\nscheme = \"tilt\"\nmax_weight_pct = 50\n");
-  const auto t = targets(r, screen(r, kAsOf, five()), {});
+  const auto t = targets(r, screen(r, kAsOf, five()), {}).list;
   CHECK(t[0].weight == dec("0.5"));
   CHECK(t[0].why == "z = -1.26, rank 1 <= 3 (capped at 50.00%)");
   CHECK(t[1].weight.to_double() == doctest::Approx(0.326523018970384).epsilon(1e-10));
   CHECK(t[2].weight.to_double() == doctest::Approx(0.17347698102961606).epsilon(1e-10));
 }
 
-TEST_CASE("targets: a cap the day's selection cannot fill is refused") {
+TEST_CASE("targets: a cap the day's selection cannot fill holds nothing, and says why") {
   const Rule r = rule("[weights]\nmax_weight_pct = 40\n");
-  CHECK_THROWS_WITH_AS(targets(r, screen(r, kAsOf, five()), {}),
-                       "r.toml:4: key 'weights.max_weight_pct': weights cannot sum to one on "
-                       "2024-05-31: 2 selected names x 40.00% = 80.00% is less than the 100.00% "
-                       "they must fill",
-                       InputError);
+  const auto t = targets(r, screen(r, kAsOf, five()), {});
+  CHECK(t.list.empty());
+  REQUIRE(t.refusal);
+  CHECK(t.refusal->text(r) ==
+        "r.toml:4: key 'weights.max_weight_pct': weights cannot sum to one on 2024-05-31: 2 "
+        "selected names x 40.00% = 80.00% is less than the 100.00% they must fill");
+}
+
+TEST_CASE("targets: a refused screen gives no targets and its refusal") {
+  const Rule r = rule("[select]\nz_max = -2\n[[sleeve]]\nsymbol = \"BOND\"\nweight_pct = 20\n");
+  const auto t = targets(r, screen(r, kAsOf, five()), {99});
+  CHECK(t.list.empty());
+  REQUIRE(t.refusal);
+  CHECK(t.refusal->key == "select.z_max");
 }
 
 TEST_CASE("targets: a held name that is not selected gets zero with the reason") {
   const Rule r = rule();
-  const auto t = targets(r, screen(r, kAsOf, five(true)), {});
+  const auto t = targets(r, screen(r, kAsOf, five(true)), {}).list;
   REQUIRE(t.size() == 3);
   CHECK(t[2].symbol == "C");
   CHECK(t[2].weight.is_zero());

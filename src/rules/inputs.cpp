@@ -1,0 +1,134 @@
+#include "rules/inputs.h"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <map>
+
+#include "core/error.h"
+#include "core/text.h"
+
+namespace keel::rules {
+Inputs::Inputs(const Rule& rule, const market::View& view) : rule_(rule) {
+  auto find = [&](const std::string& symbol, std::string_view key) {
+    const Security* s = view.security(symbol);
+    if (!s) rule.fail(key, fmt::format("no security '{}' in the ledger", printable(symbol)));
+    return s->id;
+  };
+  for (const auto& sl : rule.weights.sleeves) sleeves_.push_back(find(sl.symbol, "sleeve.symbol"));
+  std::map<std::string, std::int64_t> chosen;  // by symbol
+  if (rule.universe == Universe::list) {
+    for (const auto& sym : rule.symbols) chosen[sym] = find(sym, "scope.symbols");
+  } else {
+    for (const auto& s : view.securities()) {
+      if (s.kind != SecurityKind::stock) continue;
+      if (std::find(sleeves_.begin(), sleeves_.end(), s.id) != sleeves_.end()) continue;
+      if (rule.universe == Universe::all_stocks || (s.sector && *s.sector == rule.sector))
+        chosen[s.symbol] = s.id;
+    }
+    if (chosen.empty() && rule.universe == Universe::sector) {
+      const auto sectors = view.sectors();
+      rule.fail("scope.sector",
+                fmt::format("no stock in the ledger has sector '{}'{}", printable(rule.sector),
+                            sectors.empty() ? "" : " (sectors: " + printable_list(sectors) + ")"));
+    }
+    if (chosen.empty())
+      throw InputError(fmt::format(
+          "{}: the universe is every stock in the ledger, and the ledger holds none; import "
+          "securities first",
+          printable(rule.source)));
+  }
+  for (const auto& [symbol, id] : chosen) universe_.push_back(id);
+
+  const auto names = view.metric_names();
+  if (std::find(names.begin(), names.end(), rule.screen.metric) == names.end()) {
+    std::string why =
+        fmt::format("the ledger holds no figures for metric '{}'", printable(rule.screen.metric));
+    if (auto near = nearest(rule.screen.metric, names))
+      why += fmt::format("; did you mean '{}'?", printable(*near));
+    else if (!names.empty())
+      why += fmt::format(" (stored metrics: {})", printable_list(names));
+    else
+      why += "; import metrics first ('keel import metrics FILE')";
+    rule.fail("screen.metric", why);
+  }
+}
+
+std::vector<std::int64_t> Inputs::securities() const {
+  std::vector<std::int64_t> out = universe_;
+  out.insert(out.end(), sleeves_.begin(), sleeves_.end());
+  return out;
+}
+
+std::vector<Candidate> Inputs::candidates(const market::View& view, Date day,
+                                          const std::set<std::int64_t>& held) const {
+  std::vector<Candidate> out;
+  out.reserve(universe_.size());
+  for (const std::int64_t id : universe_) {
+    Candidate c;
+    c.security_id = id;
+    c.symbol = view.security(id)->symbol;
+    c.held = held.count(id) > 0;
+    if (auto f = view.figure(id, rule_.screen.metric, day)) {
+      c.figure = Figure{std::move(f->value), f->period, f->known_on};
+      c.has_price = view.has_close(id, day);
+    }
+    out.push_back(std::move(c));
+  }
+  return out;
+}
+
+Selection Inputs::select(const market::View& view, Date day,
+                         const std::set<std::int64_t>& held) const {
+  Selection out;
+  out.screen = screen(rule_, day, candidates(view, day, held));
+  auto chosen = targets(rule_, out.screen, sleeves_);
+  out.refusal = std::move(chosen.refusal);
+  out.targets = std::move(chosen.list);
+  if (out.refusal) return out;
+  // Held names outside the universe leave the pool.
+  std::set<std::int64_t> targeted;
+  for (const auto& t : out.targets) targeted.insert(t.security_id);
+  for (const std::int64_t id : held)
+    if (!targeted.count(id))
+      out.targets.push_back(Target{id, view.security(id)->symbol, Decimal(), false, std::nullopt,
+                                   true, "not in the rule's universe"});
+  for (std::size_t i = 0; i < sleeves_.size(); ++i)
+    if (!view.has_close(sleeves_[i], day))
+      rule_.fail("sleeve.symbol",
+                 fmt::format("sleeve '{}' has no close on or before {}",
+                             printable(rule_.weights.sleeves[i].symbol), day.str()));
+  return out;
+}
+
+Quotes Inputs::quotes(const market::View& view, Date day, const std::vector<Target>& targets,
+                      const std::set<std::int64_t>& held, const Fallback& fallback,
+                      std::vector<std::string>& notes) const {
+  Quotes quotes;
+  auto add = [&](std::int64_t id, bool wanted) {
+    if (quotes.count(id)) return;
+    const Security& s = *view.security(id);
+    Quote q;
+    q.symbol = s.symbol;
+    q.lot_size = s.lot_size;
+    if (const auto c = view.close(id, day)) {
+      q.price = c->price;
+      if (day - c->day > kOldCloseDays && (wanted || held.count(id)))
+        notes.push_back(fmt::format("{}: the latest close on or before {} is from {}",
+                                    printable(s.symbol), day.str(), c->day.str()));
+    } else {
+      q.tradable = false;
+      const auto trade = fallback(id);
+      q.price = trade.value_or(Decimal());
+      notes.push_back(
+          fmt::format("{}: no close on or before {}; valued at {}", printable(s.symbol), day.str(),
+                      trade ? "its last trade price " + trade->str() : "zero (it never traded)"));
+    }
+    quotes.emplace(id, std::move(q));
+  };
+  for (const auto& t : targets) add(t.security_id, t.weight.is_positive());
+  for (const std::int64_t id : held) add(id, false);
+  return quotes;
+}
+
+}  // namespace keel::rules
