@@ -85,7 +85,7 @@ void add_statement(CLI::App& app, Context& ctx) {
     auto db = ctx.open_ledger();
     const report::Statement s = report::build_statement(db, request);
     if (o->json) {
-      out(report::statement_json(s).dump(2) + "\n");
+      out(report::statement_json(s));
     } else if (o->html.empty() && o->pdf.empty() && o->xlsx.empty() && o->csv.empty()) {
       out(report::statement_text(s, ctx.colour()));
     }

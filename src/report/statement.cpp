@@ -26,21 +26,6 @@ Decimal weight_of(const Decimal& part, const Decimal& whole) {
   return Decimal::divide(part, whole, kWeightPlaces);
 }
 
-std::string mwr_note(const perf::MwrSolution& m) {
-  switch (m.status) {
-    case perf::MwrStatus::kOk:
-      return "";
-    case perf::MwrStatus::kNoCashFlows:
-      return "no money-weighted return: the period has no value and no flows";
-    case perf::MwrStatus::kNoRoot:
-      return "no money-weighted return: no rate makes the flows and values balance";
-    case perf::MwrStatus::kMultipleRoots:
-      return fmt::format("no single money-weighted return: {} rates balance the flows and values",
-                         m.roots.size());
-  }
-  return "";
-}
-
 PerformanceLine line_from(const std::string& label, const perf::ReturnsReport& rep) {
   const auto& r = rep.result;
   PerformanceLine line;
@@ -55,7 +40,7 @@ PerformanceLine line_from(const std::string& label, const perf::ReturnsReport& r
     line.mwr_period = r.mwr_figure->period;
     line.mwr_annualized = r.mwr_figure->annualized;
   } else {
-    line.mwr_note = mwr_note(r.mwr);
+    line.mwr_note = perf::mwr_words(r.mwr);
   }
   if (r.benchmark) {
     line.benchmark = r.benchmark->benchmark.period;

@@ -17,7 +17,6 @@
 #pragma once
 
 #include <filesystem>
-#include <nlohmann/json.hpp>
 #include <optional>
 #include <string>
 #include <vector>
@@ -44,7 +43,7 @@ std::vector<Section> statement_sections(const Statement& s);
 
 std::string statement_text(const Statement& s, bool colour);
 std::string statement_html(const Statement& s);
-nlohmann::ordered_json statement_json(const Statement& s);
+std::string statement_json(const Statement& s);  // ends with a newline
 
 void write_text_file(const std::filesystem::path& file, const std::string& content);
 // One CSV file per section, DIR/<key>.csv; DIR is created if missing (its
