@@ -19,8 +19,8 @@
 //   not selected get weight 0 with the reason. A refused screen, or weights
 //   that cannot add up to one, give no targets and the refusal.
 // orders(): turns targets into orders for a portfolio (cash and holdings per
-//   account) at given prices. Sells come first, then buys that fit each
-//   account's cash above its reserve after estimated fees; quantities are
+//   account) at given prices, in the named steps of rules/order_steps.h. Sells come first, then
+//   buys that fit each account's cash above its reserve after estimated fees; quantities are
 //   rounded down to the security's lot size (or 10^-4 units when fractional).
 //   Never sells more than held nor spends more cash than an account has.
 //   Money is exact (Decimal); doubles appear only in the z statistics.
