@@ -18,8 +18,12 @@
 //    is reinvested in the same security at the ex-date's close.
 //  - Frictionless mode: no fees, bands, minimum trade, cash reserve or lot
 //    rounding; the pool is fully invested in the targets' weights (scaled to
-//    sum to one), units to 20 decimal places; all cash while nothing is
-//    selected.
+//    sum to one); all cash while nothing is selected. Its units and values
+//    are binary doubles, which agree with the exact computation (units to 20
+//    places, Request::exact_frictionless) to 1e-12 relative
+//    (docs/methods.md). With the rule's frictions, fills, fees, cash, units
+//    and distributions are exact decimals; the pool's value each day is
+//    summed in doubles.
 //  - The pool is valued at every day with any close in [from, to]; the value
 //    on the day before `from` is the start value. Returns, volatility and
 //    drawdown come from perf::measure on that series (no external flows).
@@ -51,6 +55,10 @@ struct Request {
   Decimal start_value{100000};
   std::optional<std::string> benchmark;  // a security's symbol
   bool frictionless = false;
+  // The frictionless pool in exact decimals (units to 20 places) instead of
+  // doubles: slow; for checking that the doubles agree (backtest_test.cpp).
+  bool exact_frictionless = false;
+  bool keep_trades = true;  // false: RebalanceDay::trades stay empty (a report that shows none)
   int rolling_months = 12;
   // Called after each rebalancing day: (done, total, day).
   std::function<void(std::size_t, std::size_t, Date)> progress;
@@ -66,7 +74,8 @@ struct CurvePoint {
 struct Trade {
   std::string symbol;
   rules::Side side = rules::Side::buy;
-  Decimal quantity;
+  Decimal quantity;             // exact units: fills with the rule's frictions
+  std::optional<double> units;  // a frictionless run's units, in binary floating point
   Decimal price;
   Decimal fee;
 };

@@ -35,7 +35,7 @@ std::vector<double> average_ranks(std::span<const double> x) {
 struct Event {
   Date day;
   bool split;
-  Decimal amount;  // ratio, or cash per unit
+  double amount;  // ratio, or cash per unit
 };
 
 }  // namespace
@@ -90,18 +90,21 @@ SignalResult signal(const History& h, const rules::Rule& rule, const SignalReque
   // Each security's splits and distributions in date order (splits first on a day).
   std::unordered_map<std::int64_t, std::vector<Event>> events;
   for (const auto& s : h.market.split_events())
-    events[s.security_id].push_back(Event{s.date, true, s.ratio});
+    events[s.security_id].push_back(Event{s.date, true, s.ratio.to_double()});
   for (const auto& d : h.market.distribution_events())
-    events[d.security_id].push_back(Event{d.ex_date, false, d.per_share});
+    events[d.security_id].push_back(Event{d.ex_date, false, d.per_share.to_double()});
   for (auto& [id, ev] : events)
     std::stable_sort(ev.begin(), ev.end(), [](const Event& a, const Event& b) {
       return a.day != b.day ? a.day < b.day : a.split > b.split;
     });
+  // A statistic, in doubles: the closes as the nearest doubles to the stored
+  // decimals (as scipy reads them).
+  const auto& m = h.market;
   auto forward = [&](std::int64_t id, Date start, Date end) -> std::optional<double> {
-    const auto p0 = h.close(id, start);
-    const auto p1 = h.close(id, end);
-    if (!p0 || !p1 || !p0->is_positive()) return std::nullopt;
-    Decimal units(1), cash;
+    const int c = m.column(id);
+    const double p0 = m.value(m.row(start), c), p1 = m.value(m.row(end), c);
+    if (std::isnan(p0) || std::isnan(p1) || !(p0 > 0)) return std::nullopt;
+    double units = 1, cash = 0;
     if (auto it = events.find(id); it != events.end())
       for (const auto& e : it->second) {
         if (e.day <= start || e.day > end) continue;
@@ -110,7 +113,7 @@ SignalResult signal(const History& h, const rules::Rule& rule, const SignalReque
         else
           cash += units * e.amount;
       }
-    return (units * *p1 + cash).to_double() / p0->to_double() - 1;
+    return (units * p1 + cash) / p0 - 1;
   };
 
   for (int months : req.horizons) {
@@ -120,7 +123,8 @@ SignalResult signal(const History& h, const rules::Rule& rule, const SignalReque
   }
   const rules::Inputs inputs(rule, h.market);
   for (Date day : starts) {
-    const auto screened = rules::screen(rule, day, inputs.candidates(h.market, day, {}));
+    const auto screened =
+        rules::screen(rule, day, inputs.candidates(h.market, day, {}), rules::Explain::none);
     if (screened.refusal) {
       res.notes.push_back(fmt::format("{}: skipped: {}", day.str(), screened.refusal->text(rule)));
       continue;

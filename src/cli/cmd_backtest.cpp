@@ -79,6 +79,7 @@ void add_backtest(CLI::App& app, Context& ctx) {
     req.start_value = *sv;
     if (!o->benchmark.empty()) req.benchmark = o->benchmark;
     req.frictionless = o->frictionless;
+    req.keep_trades = o->json;  // the text report lists no trades
     req.rolling_months = o->rolling;
     const Progress progress;
     req.progress = [&progress](std::size_t done, std::size_t total, Date day) {

@@ -3,7 +3,9 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <array>
 #include <cmath>
+#include <cstring>
 #include <limits>
 #include <set>
 #include <stdexcept>
@@ -45,12 +47,41 @@ bool plain_decimal(std::string_view s, long long& mantissa, int& scale) {
   return true;
 }
 
+// The ISO text of every day of the span, to find a row's day by comparing
+// text instead of parsing it: rows of a security come by date, so the next
+// one is a few days after the last (else Date::parse decides).
+class SpanDays {
+ public:
+  SpanDays(Date from, std::size_t n) : from_(from), text_(n) {
+    for (std::size_t r = 0; r < n; ++r) {
+      const std::string t = from.plus_days(static_cast<int>(r)).str();
+      std::copy_n(t.data(), 10, text_[r].data());
+    }
+  }
+  // The row of `day`, which must be on or after row `hint` (rows come by
+  // date; std::logic_error otherwise); size() for a day after the span.
+  std::size_t row(std::string_view day, std::size_t hint) const {
+    if (day.size() == 10)
+      for (std::size_t r = hint; r < text_.size() && r < hint + 8; ++r)
+        if (std::memcmp(day.data(), text_[r].data(), 10) == 0) return r;
+    const int at = Date::parse(day) - from_;
+    if (at < static_cast<int>(hint))
+      throw std::logic_error("market::Series: rows out of date order");
+    return std::min(static_cast<std::size_t>(at), text_.size());
+  }
+  std::size_t size() const { return text_.size(); }
+
+ private:
+  Date from_;
+  std::vector<std::array<char, 10>> text_;
+};
+
 // Reads the closes of one security into `column` (one value per row of the
 // span, forward-filled) and says how its doubles map back to decimals.
 struct ColumnReader {
   store::MarketRows& rows;
-  Date from;
-  std::string before_text, from_text, to_text;
+  const SpanDays& days;
+  std::string before_text, from_text;
 
   struct Result {
     std::optional<Date> seed_day;
@@ -84,15 +115,17 @@ struct ColumnReader {
       seed.reset();
     }
     std::size_t r = 0;
-    auto& st = rows.closes_between(id, from_text, to_text);
-    while (st.next()) {
-      const auto at = static_cast<std::size_t>(Date::parse(st.text(0)) - from);
+    auto row = [&](const store::MarketRows::Row& x) {
+      const std::size_t at = days.row(x[0], r);
+      if (at >= n_rows) return false;  // past the span: the rest are later still
       for (; r < at; ++r) column[r] = last;
-      take(st.text(1));
+      take(x[1]);
       column[r] = last;
       fresh(r);
       ++r;
-    }
+      return true;
+    };
+    rows.scan_closes(id, from_text, row);
     for (; r < n_rows; ++r) column[r] = last;
     if (max_value * kPow10[out.scale] >= kExactLimit) out.fits = false;
     return out;
@@ -135,7 +168,9 @@ Series Series::load(store::Database& db, const Request& req) {
   std::vector<char> any_close(n_rows, 0);
 
   store::MarketRows rows(db);
-  ColumnReader reader{rows, req.from, req.from.plus_days(-1).str(), req.from.str(), req.to.str()};
+  const SpanDays span(req.from, n_rows);
+  const std::string to_text = req.to.str();
+  ColumnReader reader{rows, span, req.from.plus_days(-1).str(), req.from.str()};
   // A block of columns is read column by column, then written into the
   // row-major grid row by row: both sides stay sequential in memory.
   constexpr std::size_t kBlock = 64;
@@ -161,10 +196,14 @@ Series Series::load(store::Database& db, const Request& req) {
           if (seed.next()) ex.seed = Decimal::parse(seed.text(1));
           seed.reset();
         }
-        auto& st = rows.closes_between(s.ids_[c], reader.from_text, reader.to_text);
-        while (st.next())
-          ex.list.emplace_back(static_cast<std::uint32_t>(Date::parse(st.text(0)) - req.from),
-                               Decimal::parse(st.text(1)));
+        std::size_t r = 0;
+        auto keep = [&](const store::MarketRows::Row& x) {
+          r = span.row(x[0], r);
+          if (r >= n_rows) return false;
+          ex.list.emplace_back(static_cast<std::uint32_t>(r), Decimal::parse(x[1]));
+          return true;
+        };
+        rows.scan_closes(s.ids_[c], reader.from_text, keep);
       }
     }
     for (std::size_t r = 0; r < n_rows; ++r) {
@@ -176,10 +215,16 @@ Series Series::load(store::Database& db, const Request& req) {
   // The trading calendar: days with a close of any security of the ledger.
   for (const auto& sec : s.securities_) {
     if (!s.column_of_.count(sec.id)) {
-      auto& st = rows.close_days_between(sec.id, reader.from_text, reader.to_text);
-      while (st.next()) any_close[static_cast<std::size_t>(Date::parse(st.text(0)) - req.from)] = 1;
+      std::size_t r = 0;
+      auto day = [&](const store::MarketRows::Row& x) {
+        r = span.row(x[0], r);
+        if (r >= n_rows) return false;
+        any_close[r] = 1;
+        return true;
+      };
+      rows.scan_close_days(sec.id, reader.from_text, day);
     }
-    auto& next = rows.first_close_after(sec.id, reader.to_text);
+    auto& next = rows.first_close_after(sec.id, to_text);
     if (next.next()) {
       const Date d = Date::parse(next.text(0));
       if (!s.next_trading_day_ || d < *s.next_trading_day_) s.next_trading_day_ = d;
@@ -192,20 +237,40 @@ Series Series::load(store::Database& db, const Request& req) {
   for (const auto& metric : req.metrics) {
     if (std::find(s.metrics_.begin(), s.metrics_.end(), metric) != s.metrics_.end()) continue;
     s.metrics_.push_back(metric);
+    // Each security's rows in key order, then all of them by known_on: a
+    // stable counting sort on the day, which keeps (security, period) order
+    // within a day.
+    std::vector<FigureRow> rows_read;
+    for (std::size_t c = 0; c < n_cols; ++c) {
+      auto take = [&](const store::MarketRows::Row& x) {
+        if (x[1] > std::string_view(to_text)) return true;  // unknown within the span
+        rows_read.push_back(FigureRow{static_cast<int>(c), Date::parse(x[0]), Date::parse(x[1]),
+                                      Decimal::parse(x[2])});
+        return true;
+      };
+      rows.scan_figures(s.ids_[c], metric, take);
+    }
     auto& list = s.figure_rows_.emplace_back();
-    auto& st = rows.figures_by_known_on(metric, reader.to_text);
-    while (st.next()) {
-      const auto it = s.column_of_.find(st.integer(0));
-      if (it == s.column_of_.end()) continue;
-      list.push_back(FigureRow{it->second, Date::parse(st.text(1)), Date::parse(st.text(2)),
-                               Decimal::parse(st.text(3))});
+    if (!rows_read.empty()) {
+      auto [lo, hi] = std::minmax_element(
+          rows_read.begin(), rows_read.end(),
+          [](const FigureRow& a, const FigureRow& b) { return a.known_on < b.known_on; });
+      const Date first = lo->known_on;
+      std::vector<std::size_t> start(static_cast<std::size_t>(hi->known_on - first) + 2, 0);
+      for (const auto& f : rows_read) ++start[static_cast<std::size_t>(f.known_on - first) + 1];
+      for (std::size_t i = 1; i < start.size(); ++i) start[i] += start[i - 1];
+      std::vector<std::size_t> order(rows_read.size());
+      for (std::size_t i = 0; i < rows_read.size(); ++i)
+        order[start[static_cast<std::size_t>(rows_read[i].known_on - first)]++] = i;
+      list.reserve(rows_read.size());
+      for (const std::size_t i : order) list.push_back(std::move(rows_read[i]));
     }
   }
   s.cursors_.resize(s.metrics_.size());
   for (std::size_t i = 0; i < s.metrics_.size(); ++i) s.cursors_[i] = s.figures(s.metrics_[i]);
 
   {
-    auto& st = rows.distributions_between(std::nullopt, reader.from_text, reader.to_text);
+    auto& st = rows.distributions_between(std::nullopt, reader.from_text, to_text);
     while (st.next())
       if (s.column_of_.count(st.integer(0)))
         s.distributions_.push_back(Distribution{st.integer(0), Date::parse(st.text(1)),
@@ -213,7 +278,7 @@ Series Series::load(store::Database& db, const Request& req) {
                                                 Decimal::parse(st.text(3))});
   }
   {
-    auto& st = rows.splits_between(std::nullopt, reader.from_text, reader.to_text);
+    auto& st = rows.splits_between(std::nullopt, reader.from_text, to_text);
     while (st.next())
       if (s.column_of_.count(st.integer(0)))
         s.splits_.push_back(
@@ -312,14 +377,18 @@ void Series::FigureCursor::advance_to(Date day) {
   }
 }
 
+Series::FigureCursor& Series::cursor(std::string_view metric) const {
+  const auto it = std::find(metrics_.begin(), metrics_.end(), metric);
+  if (it == metrics_.end())
+    throw std::out_of_range(fmt::format("market::Series: metric '{}' is not loaded", metric));
+  return cursors_[static_cast<std::size_t>(it - metrics_.begin())];
+}
+
 std::optional<Figure> Series::figure(std::int64_t security_id, std::string_view metric,
                                      Date day) const {
   const int c = loaded(security_id);
   row(day);  // inside the span
-  const auto it = std::find(metrics_.begin(), metrics_.end(), metric);
-  if (it == metrics_.end())
-    throw std::out_of_range(fmt::format("market::Series: metric '{}' is not loaded", metric));
-  auto& cursor = cursors_[static_cast<std::size_t>(it - metrics_.begin())];
+  auto& cursor = this->cursor(metric);
   cursor.advance_to(day);
   const FigureRow* f = cursor.at(c);
   if (!f) return std::nullopt;

@@ -106,6 +106,8 @@ class Series final : public View {
     std::optional<Date> day_;
   };
   FigureCursor figures(std::string_view metric) const;
+  // The series' own cursor of a loaded metric, as figure() uses it.
+  FigureCursor& cursor(std::string_view metric) const;
 
   // Every loaded event, by date and then security id.
   const std::vector<Distribution>& distribution_events() const { return distributions_; }

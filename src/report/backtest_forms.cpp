@@ -10,6 +10,15 @@
 namespace keel::report {
 namespace {
 
+// A trade's units: exact, or a frictionless run's double to 10 places.
+std::string units_text(const backtest::Trade& t) {
+  if (!t.units) return t.quantity.str();
+  std::string s = fmt::format("{:.10f}", *t.units);
+  while (s.back() == '0') s.pop_back();
+  if (s.back() == '.') s.pop_back();
+  return s;
+}
+
 void drawdown_json(JsonWriter& j, const perf::RiskFigures& r) {
   if (!r.max_drawdown) {
     j.null();
@@ -57,7 +66,7 @@ void run_json(JsonWriter& j, const backtest::StrategyRun& s) {
     for (const auto& t : r.trades) {
       j.begin_object();
       j.member("symbol", t.symbol).member("side", std::string(rules::to_string(t.side)));
-      j.member("quantity", t.quantity).member("price", t.price).member("fee", t.fee);
+      j.member("quantity", units_text(t)).member("price", t.price).member("fee", t.fee);
       j.end_object();
     }
     j.end_array();

@@ -31,6 +31,26 @@ double percentile(const std::vector<double>& sorted, double pct_value) {
   return sorted[lo] + (h - static_cast<double>(lo)) * (sorted[lo + 1] - sorted[lo]);
 }
 
+// Sorts lines by moving each once: the comparisons work on indices (a line
+// is large, and a screen of a thousand names is sorted on every day of a
+// back-test).
+template <typename Less>
+void sort_lines(std::vector<ScreenLine>& lines, Less less) {
+  if (std::is_sorted(lines.begin(), lines.end(), less)) return;
+  std::vector<std::size_t> order(lines.size());
+  for (std::size_t i = 0; i < order.size(); ++i) order[i] = i;
+  std::sort(order.begin(), order.end(),
+            [&](std::size_t a, std::size_t b) { return less(lines[a], lines[b]); });
+  std::vector<ScreenLine> sorted;
+  sorted.reserve(lines.size());
+  for (const std::size_t i : order) sorted.push_back(std::move(lines[i]));
+  lines = std::move(sorted);
+}
+
+bool by_symbol(const ScreenLine& a, const ScreenLine& b) {
+  return a.symbol < b.symbol;
+}
+
 }  // namespace
 
 // ----------------------------------------------------------------- screen
@@ -39,35 +59,46 @@ std::string Refusal::text(const Rule& rule) const {
   return fmt::format("{}: {}", rule.where(key), why);
 }
 
-ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candidates) {
+ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candidates,
+                    Explain explain) {
   ScreenResult out;
   out.as_of = as_of;
+  out.explained = explain == Explain::all;
+  const bool words = out.explained;
   const auto& s = rule.screen;
   std::vector<ScreenLine> pass, rest;
+  pass.reserve(candidates.size());
   for (auto& c : candidates) {
     ScreenLine line;
     line.security_id = c.security_id;
     line.symbol = std::move(c.symbol);
-    line.figure = c.figure;
+    line.figure = std::move(c.figure);
     line.held = c.held;
-    if (!c.figure) {
-      line.excluded_reason = fmt::format("no '{}' figure known on {}", s.metric, as_of.str());
+    const auto& f = line.figure;
+    bool out_of_screen = true;
+    if (!f) {
+      if (words)
+        line.excluded_reason = fmt::format("no '{}' figure known on {}", s.metric, as_of.str());
     } else {
-      line.age_days = as_of - c.figure->period;
-      if (line.age_days > s.max_age_days)
-        line.excluded_reason = fmt::format("stale: the figure for {} is {} days old (max {})",
-                                           c.figure->period.str(), line.age_days, s.max_age_days);
-      else if (s.exclude_non_positive && !c.figure->value.is_positive())
-        line.excluded_reason = fmt::format("not positive ({})", c.figure->value.str());
-      else if (!c.has_price)
-        line.excluded_reason = fmt::format("no close on or before {}", as_of.str());
+      line.age_days = as_of - f->period;
+      if (line.age_days > s.max_age_days) {
+        if (words)
+          line.excluded_reason = fmt::format("stale: the figure for {} is {} days old (max {})",
+                                             f->period.str(), line.age_days, s.max_age_days);
+      } else if (s.exclude_non_positive && !f->value.is_positive()) {
+        if (words) line.excluded_reason = fmt::format("not positive ({})", f->value.str());
+      } else if (!c.has_price) {
+        if (words) line.excluded_reason = fmt::format("no close on or before {}", as_of.str());
+      } else {
+        out_of_screen = false;
+      }
     }
-    if (line.excluded_reason.empty()) {
+    if (!out_of_screen) {
       line.passed = true;
-      line.value = line.figure->value.to_double();
+      line.value = f->value.to_double();
       pass.push_back(std::move(line));
     } else {
-      line.note = "out: " + line.excluded_reason;
+      if (words) line.note = "out: " + line.excluded_reason;
       rest.push_back(std::move(line));
     }
   }
@@ -77,11 +108,10 @@ ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candida
     out.refusal = Refusal{std::move(key), std::move(why)};
     out.selected = 0;
     for (auto& l : pass) l.selected = false;
-    std::sort(pass.begin(), pass.end(), [](const ScreenLine& a, const ScreenLine& b) {
+    sort_lines(pass, [](const ScreenLine& a, const ScreenLine& b) {
       return a.z && b.z && *a.z != *b.z ? *a.z < *b.z : a.symbol < b.symbol;
     });
-    std::sort(rest.begin(), rest.end(),
-              [](const ScreenLine& a, const ScreenLine& b) { return a.symbol < b.symbol; });
+    sort_lines(rest, by_symbol);
     out.lines = std::move(pass);
     for (auto& l : rest) out.lines.push_back(std::move(l));
     return out;
@@ -116,7 +146,7 @@ ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candida
                               pass.size(), as_of.str()));
   const double sign = s.cheap == Cheap::low ? 1.0 : -1.0;
   for (auto& l : pass) l.z = sign * (*l.value - out.mean) / out.sd;
-  std::sort(pass.begin(), pass.end(), [](const ScreenLine& a, const ScreenLine& b) {
+  sort_lines(pass, [](const ScreenLine& a, const ScreenLine& b) {
     return *a.z != *b.z ? *a.z < *b.z : a.symbol < b.symbol;
   });
 
@@ -135,25 +165,23 @@ ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candida
   for (std::size_t i = 0; i < pass.size(); ++i) {
     auto& l = pass[i];
     const double z = *l.z;
-    bool entered = false;
-    std::string test;
-    if (sel.by == SelectBy::z) {
-      entered = z <= sel.z_max;
-      test = fmt::format("z = {} {} {}", z_text(z), entered ? "<=" : ">", z_text(sel.z_max));
-    } else {
-      entered = i < keep;
-      test = fmt::format("z = {}, rank {} {} {}", z_text(z), i + 1, entered ? "<=" : ">", keep);
-    }
+    const bool entered = sel.by == SelectBy::z ? z <= sel.z_max : i < keep;
+    auto test = [&] {
+      return sel.by == SelectBy::z
+                 ? fmt::format("z = {} {} {}", z_text(z), entered ? "<=" : ">", z_text(sel.z_max))
+                 : fmt::format("z = {}, rank {} {} {}", z_text(z), i + 1, entered ? "<=" : ">",
+                               keep);
+    };
     if (entered) {
       l.selected = true;
-      l.note = test;
+      if (words) l.note = test();
     } else if (l.held && sel.exit_z && z <= *sel.exit_z) {
       l.selected = true;
-      l.note = fmt::format("held; z = {} <= exit {}", z_text(z), z_text(*sel.exit_z));
-    } else if (l.held && sel.exit_z) {
+      if (words) l.note = fmt::format("held; z = {} <= exit {}", z_text(z), z_text(*sel.exit_z));
+    } else if (words && l.held && sel.exit_z) {
       l.note = fmt::format("held; z = {} > exit {}", z_text(z), z_text(*sel.exit_z));
-    } else {
-      l.note = test;
+    } else if (words) {
+      l.note = test();
     }
     if (l.selected) ++out.selected;
   }
@@ -163,8 +191,7 @@ ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candida
                               "the screen is {}",
                               as_of.str(), pass.size(), z_text(*pass.front().z)));
 
-  std::sort(rest.begin(), rest.end(),
-            [](const ScreenLine& a, const ScreenLine& b) { return a.symbol < b.symbol; });
+  sort_lines(rest, by_symbol);
   out.lines = std::move(pass);
   for (auto& l : rest) out.lines.push_back(std::move(l));
   return out;
@@ -219,8 +246,17 @@ Targets targets(const Rule& rule, const ScreenResult& screened,
     for (std::size_t i = 0; i < chosen.size(); ++i)
       if (!capped[i]) raw_sum += raw[i];
     if (raw_sum.is_zero()) break;
-    for (std::size_t i = 0; i < chosen.size(); ++i)
-      if (!capped[i]) weight[i] = Decimal::divide(left * raw[i], raw_sum, 12);
+    // Equal raw weights give one quotient for all: divide once.
+    std::optional<Decimal> same;
+    for (std::size_t i = 0; i < chosen.size(); ++i) {
+      if (capped[i]) continue;
+      if (w.scheme == Scheme::equal) {
+        if (!same) same = Decimal::divide(left * raw[i], raw_sum, 12);
+        weight[i] = *same;
+      } else {
+        weight[i] = Decimal::divide(left * raw[i], raw_sum, 12);
+      }
+    }
     bool any = false;
     for (std::size_t i = 0; i < chosen.size(); ++i)
       if (!capped[i] && weight[i] > w.max_weight) {
@@ -233,14 +269,16 @@ Targets targets(const Rule& rule, const ScreenResult& screened,
   }
   for (std::size_t i = 0; i < chosen.size(); ++i) {
     std::string why = chosen[i]->note;
-    if (capped[i]) why += fmt::format(" (capped at {})", pct(w.max_weight));
+    if (capped[i] && screened.explained) why += fmt::format(" (capped at {})", pct(w.max_weight));
     out.push_back(Target{chosen[i]->security_id, chosen[i]->symbol, weight[i], false, chosen[i]->z,
                          chosen[i]->held, why});
   }
   for (const auto& l : screened.lines)
     if (l.held && !l.selected)
       out.push_back(Target{l.security_id, l.symbol, Decimal(), false, l.z, true,
-                           l.passed ? l.note : "excluded: " + l.excluded_reason});
+                           !screened.explained ? std::string()
+                           : l.passed          ? l.note
+                                               : "excluded: " + l.excluded_reason});
   return result;
 }
 

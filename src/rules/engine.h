@@ -77,6 +77,7 @@ struct Refusal {
 
 struct ScreenResult {
   Date as_of;
+  bool explained = true;           // notes and reasons were written (Explain::all)
   std::optional<Refusal> refusal;  // set when the screen selects nothing
   std::vector<ScreenLine> lines;   // passing names by z (then symbol), then the rest by symbol
   std::size_t passed = 0;
@@ -85,7 +86,11 @@ struct ScreenResult {
   std::optional<double> clip_low, clip_high;
 };
 
-ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candidates);
+// Explain::none leaves the notes and reasons of the lines (and the targets'
+// `why`) empty: for runs that only need the selection, many days over.
+enum class Explain { all, none };
+ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candidates,
+                    Explain explain = Explain::all);
 
 struct Target {
   std::int64_t security_id = 0;

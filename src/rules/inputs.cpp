@@ -4,9 +4,11 @@
 
 #include <algorithm>
 #include <map>
+#include <stdexcept>
 
 #include "core/error.h"
 #include "core/text.h"
+#include "market/series.h"
 
 namespace keel::rules {
 Inputs::Inputs(const Rule& rule, const market::View& view) : rule_(rule) {
@@ -38,7 +40,10 @@ Inputs::Inputs(const Rule& rule, const market::View& view) : rule_(rule) {
           "securities first",
           printable(rule.source)));
   }
-  for (const auto& [symbol, id] : chosen) universe_.push_back(id);
+  for (const auto& [symbol, id] : chosen) {
+    universe_.push_back(id);
+    symbols_.push_back(symbol);
+  }
 
   const auto names = view.metric_names();
   if (std::find(names.begin(), names.end(), rule.screen.metric) == names.end()) {
@@ -64,10 +69,33 @@ std::vector<Candidate> Inputs::candidates(const market::View& view, Date day,
                                           const std::set<std::int64_t>& held) const {
   std::vector<Candidate> out;
   out.reserve(universe_.size());
-  for (const std::int64_t id : universe_) {
+  if (const auto* series = dynamic_cast<const market::Series*>(&view)) {
+    // Preloaded: the figures by the series' cursor, closes from the grid.
+    auto& figures = series->cursor(rule_.screen.metric);
+    figures.advance_to(day);
+    const std::size_t row = series->row(day);
+    for (std::size_t i = 0; i < universe_.size(); ++i) {
+      const std::int64_t id = universe_[i];
+      const int col = series->column(id);
+      if (col < 0)
+        throw std::out_of_range(fmt::format("rules::Inputs: security {} is not loaded", id));
+      Candidate c;
+      c.security_id = id;
+      c.symbol = symbols_[i];
+      c.held = held.count(id) > 0;
+      if (const auto* f = figures.at(col)) {
+        c.figure = Figure{f->value, f->period, f->known_on};
+        c.has_price = series->has(row, col);
+      }
+      out.push_back(std::move(c));
+    }
+    return out;
+  }
+  for (std::size_t i = 0; i < universe_.size(); ++i) {
+    const std::int64_t id = universe_[i];
     Candidate c;
     c.security_id = id;
-    c.symbol = view.security(id)->symbol;
+    c.symbol = symbols_[i];
     c.held = held.count(id) > 0;
     if (auto f = view.figure(id, rule_.screen.metric, day)) {
       c.figure = Figure{std::move(f->value), f->period, f->known_on};
@@ -78,10 +106,10 @@ std::vector<Candidate> Inputs::candidates(const market::View& view, Date day,
   return out;
 }
 
-Selection Inputs::select(const market::View& view, Date day,
-                         const std::set<std::int64_t>& held) const {
+Selection Inputs::select(const market::View& view, Date day, const std::set<std::int64_t>& held,
+                         Explain explain) const {
   Selection out;
-  out.screen = screen(rule_, day, candidates(view, day, held));
+  out.screen = screen(rule_, day, candidates(view, day, held), explain);
   auto chosen = targets(rule_, out.screen, sleeves_);
   out.refusal = std::move(chosen.refusal);
   out.targets = std::move(chosen.list);

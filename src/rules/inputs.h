@@ -60,7 +60,8 @@ class Inputs {
   // What the engine may know on `day`: one candidate per universe name.
   std::vector<Candidate> candidates(const market::View& view, Date day,
                                     const std::set<std::int64_t>& held) const;
-  Selection select(const market::View& view, Date day, const std::set<std::int64_t>& held) const;
+  Selection select(const market::View& view, Date day, const std::set<std::int64_t>& held,
+                   Explain explain = Explain::all) const;
 
   using Fallback = std::function<std::optional<Decimal>(std::int64_t security_id)>;
   Quotes quotes(const market::View& view, Date day, const std::vector<Target>& targets,
@@ -70,6 +71,7 @@ class Inputs {
  private:
   const Rule& rule_;
   std::vector<std::int64_t> universe_;
+  std::vector<std::string> symbols_;  // of the universe
   std::vector<std::int64_t> sleeves_;
 };
 

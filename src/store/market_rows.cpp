@@ -2,19 +2,91 @@
 
 #include <SQLiteCpp/Statement.h>
 
+#include <exception>
+#include <utility>
+
 namespace keel::store {
+namespace {
+
+constexpr const char* kScanFunction = "keel_market_rows";
+
+}  // namespace
 
 struct MarketRows::Impl {
+  // The aggregate that hands each row to `take`; registered on the
+  // connection for the reader's lifetime (before the statements using it).
+  struct Scan {
+    sqlite3* h;
+    Take take = nullptr;
+    void* context = nullptr;
+    bool stopped = false;
+    std::exception_ptr failed;
+    explicit Scan(sqlite3* handle) : h(handle) {
+      const int rc =
+          sqlite3_create_function_v2(h, kScanFunction, 3, SQLITE_UTF8 | SQLITE_DIRECTONLY, this,
+                                     nullptr, &step, &final, nullptr);
+      if (rc != SQLITE_OK) throw sql_error(h, rc, "function");
+    }
+    ~Scan() {
+      sqlite3_create_function_v2(h, kScanFunction, 3, SQLITE_UTF8, nullptr, nullptr, nullptr,
+                                 nullptr, nullptr);
+    }
+    Scan(const Scan&) = delete;
+    Scan& operator=(const Scan&) = delete;
+    static std::string_view text(sqlite3_value* v) {
+      const auto* p = reinterpret_cast<const char*>(sqlite3_value_text(v));
+      return p ? std::string_view(p, static_cast<std::size_t>(sqlite3_value_bytes(v)))
+               : std::string_view{};
+    }
+    static void step(sqlite3_context* ctx, int, sqlite3_value** args) {
+      auto* scan = static_cast<Scan*>(sqlite3_user_data(ctx));
+      if (scan->stopped) return;
+      try {
+        if (!scan->take(scan->context, Row{text(args[0]), text(args[1]), text(args[2])})) {
+          // Ends the statement here: the rows left are not wanted.
+          scan->stopped = true;
+          sqlite3_result_error(ctx, "enough", -1);
+        }
+      } catch (...) {
+        // Never through SQLite's C frames: stop the scan, throw again after it.
+        scan->failed = std::current_exception();
+        sqlite3_result_error(ctx, "interrupted", -1);
+      }
+    }
+    static void final(sqlite3_context* ctx) { sqlite3_result_null(ctx); }
+    void run(Statement& st, Take t, void* c) {
+      take = t;
+      context = c;
+      stopped = false;
+      failed = nullptr;
+      try {
+        while (st.next()) {
+        }
+      } catch (...) {
+        st.reset();
+        if (!failed && !stopped) throw;
+      }
+      if (failed) std::rethrow_exception(std::exchange(failed, nullptr));
+    }
+  } scan;
+
   explicit Impl(sqlite3* h)
-      : closes_until(h,
+      : scan(h),
+        // The primary key (security_id, date) gives the rows in date order;
+        // the reader checks that they come so.
+        scan_closes(h,
+                    "SELECT keel_market_rows(date, close, '') FROM price "
+                    "WHERE security_id = ? AND date >= ?"),
+        scan_close_days(h,
+                        "SELECT keel_market_rows(date, '', '') FROM price "
+                        "WHERE security_id = ? AND date >= ?"),
+        // The primary key (security_id, name, date, known_on) gives the order.
+        scan_figures(h,
+                     "SELECT keel_market_rows(date, known_on, value) FROM metric "
+                     "WHERE security_id = ? AND name = ?"),
+        closes_until(h,
                      "SELECT date, close FROM price WHERE security_id = ? AND date <= ? "
                      "ORDER BY date DESC"),
-        closes_between(h,
-                       "SELECT date, close FROM price WHERE security_id = ? AND date >= ? "
-                       "AND date <= ? ORDER BY date"),
-        close_days_between(h,
-                           "SELECT date FROM price WHERE security_id = ? AND date >= ? "
-                           "AND date <= ? ORDER BY date"),
         first_close_after(h,
                           "SELECT date FROM price WHERE security_id = ? AND date > ? "
                           "ORDER BY date LIMIT 1"),
@@ -22,11 +94,6 @@ struct MarketRows::Impl {
         figures_until(h,
                       "SELECT date, known_on, value FROM metric WHERE security_id = ? AND "
                       "name = ? AND known_on <= ? ORDER BY date DESC, known_on DESC"),
-        // The index metric_by_name_known (name, known_on) serves the order.
-        figures_by_known_on(h,
-                            "SELECT security_id, date, known_on, value FROM metric "
-                            "WHERE name = ? AND known_on <= ? "
-                            "ORDER BY known_on, security_id, date"),
         distributions_of(h,
                          "SELECT security_id, ex_date, pay_date, per_share FROM distribution "
                          "WHERE security_id = ? AND ex_date >= ? AND ex_date <= ? "
@@ -41,8 +108,9 @@ struct MarketRows::Impl {
                    "SELECT security_id, date, ratio FROM split WHERE date >= ? AND date <= ? "
                    "ORDER BY date, security_id") {}
 
-  Statement closes_until, closes_between, close_days_between, first_close_after;
-  Statement figures_until, figures_by_known_on;
+  Statement scan_closes, scan_close_days, scan_figures;
+  Statement closes_until, first_close_after;
+  Statement figures_until;
   Statement distributions_of, distributions_all, splits_of, splits_all;
   // Bound text must outlive the statement's run: kept here.
   std::string a, b, c;
@@ -75,14 +143,22 @@ Statement& MarketRows::closes_until(std::int64_t security_id, std::string_view d
   return restart(impl_->closes_until, security_id, impl_->a, day);
 }
 
-Statement& MarketRows::closes_between(std::int64_t security_id, std::string_view from,
-                                      std::string_view to) {
-  return restart(impl_->closes_between, security_id, impl_->a, from, impl_->b, to);
+void MarketRows::scan_closes(std::int64_t security_id, std::string_view from, Take take,
+                             void* context) {
+  auto& m = *impl_;
+  m.scan.run(restart(m.scan_closes, security_id, m.a, from), take, context);
 }
 
-Statement& MarketRows::close_days_between(std::int64_t security_id, std::string_view from,
-                                          std::string_view to) {
-  return restart(impl_->close_days_between, security_id, impl_->a, from, impl_->b, to);
+void MarketRows::scan_close_days(std::int64_t security_id, std::string_view from, Take take,
+                                 void* context) {
+  auto& m = *impl_;
+  m.scan.run(restart(m.scan_close_days, security_id, m.a, from), take, context);
+}
+
+void MarketRows::scan_figures(std::int64_t security_id, std::string_view metric, Take take,
+                              void* context) {
+  auto& m = *impl_;
+  m.scan.run(restart(m.scan_figures, security_id, m.a, metric), take, context);
 }
 
 Statement& MarketRows::first_close_after(std::int64_t security_id, std::string_view day) {
@@ -92,14 +168,6 @@ Statement& MarketRows::first_close_after(std::int64_t security_id, std::string_v
 Statement& MarketRows::figures_until(std::int64_t security_id, std::string_view metric,
                                      std::string_view day) {
   return restart(impl_->figures_until, security_id, impl_->a, metric, impl_->b, day);
-}
-
-Statement& MarketRows::figures_by_known_on(std::string_view metric, std::string_view day) {
-  auto& m = *impl_;
-  m.figures_by_known_on.reset();
-  m.a.assign(metric);
-  m.b.assign(day);
-  return m.figures_by_known_on.bind(1, m.a).bind(2, m.b);
 }
 
 namespace {

@@ -13,6 +13,7 @@
 //  - SQLite failures throw as store/statement.h says.
 #pragma once
 
+#include <array>
 #include <cstdint>
 #include <memory>
 #include <optional>
@@ -34,11 +35,33 @@ class MarketRows {
 
   // (date, close) of one security dated on or before `day`, newest first.
   Statement& closes_until(std::int64_t security_id, std::string_view day);
-  // (date, close) of one security dated in [from, to], oldest first.
-  Statement& closes_between(std::int64_t security_id, std::string_view from, std::string_view to);
-  // (date) of one security's closes in [from, to], oldest first.
-  Statement& close_days_between(std::int64_t security_id, std::string_view from,
-                                std::string_view to);
+  // Scans hand each row to `take` from inside SQLite's own scan (an
+  // application-defined aggregate): no return to the caller for each row,
+  // which halves the cost of reading millions of rows. Rows come in key
+  // order, as text; `take` returns false to stop (rows after a span's end).
+  // An exception thrown by `take` stops the scan and is thrown again here.
+  using Row = std::array<std::string_view, 3>;
+  using Take = bool (*)(void* context, const Row& row);
+  // (date, close, "") of one security dated on or after `from`.
+  void scan_closes(std::int64_t security_id, std::string_view from, Take take, void* context);
+  // (date, "", "") of one security's closes on or after `from`.
+  void scan_close_days(std::int64_t security_id, std::string_view from, Take take, void* context);
+  // (date, known_on, value) of one security's figures of `metric`, by period
+  // and then known_on.
+  void scan_figures(std::int64_t security_id, std::string_view metric, Take take, void* context);
+  template <typename F>
+  void scan_closes(std::int64_t security_id, std::string_view from, F& f) {
+    scan_closes(security_id, from, &call<F>, &f);
+  }
+  template <typename F>
+  void scan_close_days(std::int64_t security_id, std::string_view from, F& f) {
+    scan_close_days(security_id, from, &call<F>, &f);
+  }
+  template <typename F>
+  void scan_figures(std::int64_t security_id, std::string_view metric, F& f) {
+    scan_figures(security_id, metric, &call<F>, &f);
+  }
+
   // (date) of one security's first close after `day`: at most one row.
   Statement& first_close_after(std::int64_t security_id, std::string_view day);
 
@@ -46,9 +69,6 @@ class MarketRows {
   // or before `day`: the latest period first, and within a period the
   // latest known_on first.
   Statement& figures_until(std::int64_t security_id, std::string_view metric, std::string_view day);
-  // (security_id, date, known_on, value) of every figure of `metric` known
-  // on or before `day`, by known_on, then security and period.
-  Statement& figures_by_known_on(std::string_view metric, std::string_view day);
 
   // (security_id, ex_date, pay_date, per_share) with ex_date in [from, to],
   // by ex_date, then security; of one security or of all.
@@ -60,6 +80,10 @@ class MarketRows {
                             std::string_view to);
 
  private:
+  template <typename F>
+  static bool call(void* f, const Row& row) {
+    return (*static_cast<F*>(f))(row);
+  }
   struct Impl;
   std::unique_ptr<Impl> impl_;
 };

@@ -188,3 +188,53 @@ TEST_CASE("signal: Spearman's rho is undefined when one side has no spread") {
   const std::vector<double> x{1, 2, 3}, y{4, 4, 4};
   CHECK_FALSE(bt::spearman(x, y).has_value());
 }
+
+// The frictionless pool counts in doubles; the same run in exact decimals
+// (units to 20 places) is the reference. Over a year of monthly rebalancing
+// with a split and reinvested distributions, every value agrees to 1e-12.
+TEST_CASE("backtest: frictionless doubles agree with the exact computation to 1e-12") {
+  keel::testing::LedgerFixture f;
+  std::vector<std::tuple<std::string, std::string, std::string>> closes;
+  std::vector<std::tuple<std::string, std::string, std::string, std::string>> figures;
+  for (int i = 0; i < 12; ++i) f.security(fmt::format("N{:02d}", i));
+  int n = 0;
+  for (Date d = day("2023-01-02"); d <= day("2023-12-29"); d = d.plus_days(1)) {
+    const int wd = (d.days_since_epoch() + 4) % 7;  // 0 = Sunday
+    if (wd == 0 || wd == 6) continue;
+    ++n;
+    for (int i = 0; i < 12; ++i)
+      closes.emplace_back(fmt::format("N{:02d}", i), d.str(),
+                          fmt::format("{}.{:02d}", 15 + i + (n * (i + 3)) % 11, (n * 7 + i) % 100));
+    if (d.day() == 2 || (d.day() == 3 && wd == 1))
+      for (int i = 0; i < 12; ++i)
+        figures.emplace_back(fmt::format("N{:02d}", i), d.str(), d.str(),
+                             fmt::format("{}.{}", 5 + (i * 7 + n) % 13, i));
+  }
+  f.closes(closes);
+  f.figures("pe", figures);
+  f.split_of("N03", "2023-06-10", "3");
+  for (int i = 0; i < 12; i += 2)
+    f.distribution(fmt::format("N{:02d}", i), "2023-05-13", "2023-05-20", "0.37");
+  bt::Request req;
+  req.from = day("2023-01-03");
+  req.to = day("2023-12-29");
+  req.frictionless = true;
+  const auto rule = keel::rules::parse_rule(kRule, "test.toml");
+  const auto binary = bt::run(f.db, rule, req);
+  req.exact_frictionless = true;
+  const auto exact = bt::run(f.db, rule, req);
+  REQUIRE(binary.rule.curve.size() == exact.rule.curve.size());
+  REQUIRE(exact.rule.rebalances.size() >= 11);
+  CHECK(exact.rule.distributions.is_positive());
+  double worst = 0;
+  for (const auto* runs : {&binary.rule, &binary.baseline}) {
+    const auto& other = runs == &binary.rule ? exact.rule : exact.baseline;
+    for (std::size_t i = 0; i < runs->curve.size(); ++i) {
+      const double a = runs->curve[i].value.to_double(), b = other.curve[i].value.to_double();
+      worst = std::max(worst, std::abs(a - b) / b);
+    }
+  }
+  MESSAGE("largest relative difference of a day's value: " << worst);
+  CHECK(worst <= 1e-12);
+  CHECK(binary.rule.perf.twr.period == doctest::Approx(exact.rule.perf.twr.period).epsilon(1e-12));
+}

@@ -293,3 +293,13 @@ TEST_CASE("day view: the latest day with a close, of any security") {
   LedgerFixture empty;
   CHECK_FALSE(market::DayView(empty.db).latest_close_day().has_value());
 }
+
+TEST_CASE("series: a malformed date stored by other means stops the load, naming it") {
+  MarketLedger m;
+  m.db.sql().exec("INSERT INTO price (security_id, date, close) VALUES (1, '2024-02-30', '5')");
+  market::Series::Request r;
+  r.from = day("2024-01-01");
+  r.to = day("2024-03-31");
+  CHECK_THROWS_WITH_AS(market::Series::load(m.db, r), "'2024-02-30' is not a calendar date",
+                       InputError);
+}
