@@ -168,15 +168,12 @@ class FrictionlessPool {
       const Num size = P::positive(diff) ? diff : Num{} - diff;
       traded += size * price;
       if (!keep_trades_) continue;
-      Trade t;
-      t.symbol = h_.security(h_.market.security_id(c)).symbol;
-      t.side = P::positive(diff) ? rules::Side::buy : rules::Side::sell;
+      const auto side = P::positive(diff) ? rules::Side::buy : rules::Side::sell;
       if constexpr (std::is_same_v<Num, double>)
-        t.units = size;
+        rd.shifts.push_back(
+            Shift{h_.market.security_id(c), side, size, price, h_.market.price_places(c)});
       else
-        t.quantity = size;
-      t.price = h_.market.exact(row, c);
-      rd.trades.push_back(std::move(t));
+        rd.trades.push_back(Trade{h_.market.security_id(c), side, size, price, Decimal()});
     }
     for (const int c : held_.columns) unit(c) = Num{};
     held_.clear();
@@ -269,19 +266,14 @@ class OrderPool {
     std::vector<std::string> quote_notes;  // stale closes: traded at as they are
     const rules::Quotes quotes =
         inputs_.quotes(h_.market, day, sel.targets, held(), unpriced, quote_notes);
-    const auto plan = rules::orders(p, sel.targets, quotes, rule_.trading, day);
+    const auto plan =
+        rules::orders(p, sel.targets, quotes, rule_.trading, day, rules::Explain::none);
     const auto after = rules::apply(p, plan.orders);
     for (const auto& o : plan.orders) {
       rd.traded += o.value;
       rd.fees += o.fee;
       if (!keep_trades_) continue;
-      Trade t;
-      t.symbol = o.symbol;
-      t.side = o.side;
-      t.quantity = o.quantity;
-      t.price = o.price;
-      t.fee = o.fee;
-      rd.trades.push_back(std::move(t));
+      rd.trades.push_back(Trade{o.security_id, o.side, o.quantity, o.price, o.fee});
     }
     cash_ = after.accounts.front().cash;
     for (const int c : held_.columns) set(c, Decimal());
@@ -545,6 +537,10 @@ Result run(const History& h, const rules::Rule& rule, const Request& req) {
     res.benchmark = *req.benchmark;
   }
 
+  for (int c = 0; c < h.market.columns(); ++c) {
+    const std::int64_t id = h.market.security_id(c);
+    res.symbols.emplace(id, h.security(id).symbol);
+  }
   res.rule = simulate(h, rule, req, res.rebalance_days, "rule", true, res.notes);
   res.baseline =
       simulate(h, baseline_rule(rule), req, res.rebalance_days, "baseline", false, res.notes);

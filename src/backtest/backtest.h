@@ -35,6 +35,7 @@
 
 #include <cstdint>
 #include <functional>
+#include <map>
 #include <optional>
 #include <string>
 #include <vector>
@@ -58,7 +59,7 @@ struct Request {
   // The frictionless pool in exact decimals (units to 20 places) instead of
   // doubles: slow; for checking that the doubles agree (backtest_test.cpp).
   bool exact_frictionless = false;
-  bool keep_trades = true;  // false: RebalanceDay::trades stay empty (a report that shows none)
+  bool keep_trades = true;  // false: no trades or shifts are kept (a report that shows none)
   int rolling_months = 12;
   // Called after each rebalancing day: (done, total, day).
   std::function<void(std::size_t, std::size_t, Date)> progress;
@@ -71,13 +72,25 @@ struct CurvePoint {
   int names = 0;  // securities held
 };
 
+// A fill with the rule's frictions, exactly.
 struct Trade {
-  std::string symbol;
+  std::int64_t security_id = 0;
   rules::Side side = rules::Side::buy;
-  Decimal quantity;             // exact units: fills with the rule's frictions
-  std::optional<double> units;  // a frictionless run's units, in binary floating point
+  Decimal quantity;
   Decimal price;
   Decimal fee;
+};
+
+// A frictionless run's change of a holding, in doubles: `units` bought or
+// sold at the close `price` (the double nearest the stored decimal, which
+// `price_places` digits after the point give back exactly; -1 when they
+// cannot).
+struct Shift {
+  std::int64_t security_id = 0;
+  rules::Side side = rules::Side::buy;
+  double units = 0;
+  double price = 0;
+  int price_places = -1;
 };
 
 struct RebalanceDay {
@@ -88,7 +101,8 @@ struct RebalanceDay {
   Decimal value_before;
   Decimal traded;  // bought + sold, at the fills
   Decimal fees;
-  std::vector<Trade> trades;
+  std::vector<Trade> trades;                // with the rule's frictions
+  std::vector<Shift> shifts;                // frictionless
   std::optional<std::string> no_selection;  // why the pool went to cash
 };
 
@@ -114,6 +128,7 @@ struct RollingRow {
 
 struct Result {
   std::string rule_name;
+  std::map<std::int64_t, std::string> symbols;  // of the securities the run read
   Date from, to;
   Decimal start_value;
   bool frictionless = false;

@@ -89,7 +89,10 @@ void add_backtest(CLI::App& app, Context& ctx) {
     auto db = ctx.open_ledger();
     const auto result = backtest::run(db, rule, req);
     if (!o->curve.empty()) write_curve(o->curve, result);
-    out(o->json ? report::backtest_json(result) : report::backtest_text(result, ctx.colour()));
+    if (o->json)
+      report::backtest_json(result, out);
+    else
+      out(report::backtest_text(result, ctx.colour()));
   });
 }
 

@@ -312,6 +312,11 @@ Date Series::close_day(std::size_t row, int column) const {
   return *seed;
 }
 
+int Series::price_places(int column) const {
+  const Exact& ex = exact_[static_cast<std::size_t>(column)];
+  return ex.listed ? -1 : ex.scale;
+}
+
 Decimal Series::exact(std::size_t row, int column) const {
   const Exact& ex = exact_[static_cast<std::size_t>(column)];
   if (!ex.listed) {

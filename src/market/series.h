@@ -83,6 +83,10 @@ class Series final : public View {
   // (if any), then every close dated after that day, ascending.
   std::vector<Close> closes(std::int64_t security_id) const;
   Date close_day(std::size_t row, int column) const;  // requires has(row, column)
+  // Digits after the point that turn a column's doubles back into its stored
+  // decimals (exact() rounds value x 10^places); -1 for a column kept as a
+  // list of decimals.
+  int price_places(int column) const;
 
   struct FigureRow {
     int column = 0;

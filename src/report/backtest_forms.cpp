@@ -2,6 +2,8 @@
 
 #include <fmt/format.h>
 
+#include <cmath>
+
 #include "core/json.h"
 #include "core/text.h"
 #include "report/format.h"
@@ -10,13 +12,20 @@
 namespace keel::report {
 namespace {
 
-// A trade's units: exact, or a frictionless run's double to 10 places.
-std::string units_text(const backtest::Trade& t) {
-  if (!t.units) return t.quantity.str();
-  std::string s = fmt::format("{:.10f}", *t.units);
+// A frictionless run's units, to 10 places.
+std::string units_text(double units) {
+  std::string s = fmt::format("{:.10f}", units);
   while (s.back() == '0') s.pop_back();
   if (s.back() == '.') s.pop_back();
   return s;
+}
+
+// A close read as a double, as the decimal it was stored as.
+std::string price_text(const backtest::Shift& t) {
+  if (t.price_places < 0) return fmt::format("{}", t.price);
+  static constexpr double kTens[] = {1e0, 1e1, 1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
+                                     1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15};
+  return Decimal::scaled(std::llround(t.price * kTens[t.price_places]), t.price_places).str();
 }
 
 void drawdown_json(JsonWriter& j, const perf::RiskFigures& r) {
@@ -35,7 +44,8 @@ void drawdown_json(JsonWriter& j, const perf::RiskFigures& r) {
   j.end_object();
 }
 
-void run_json(JsonWriter& j, const backtest::StrategyRun& s) {
+void run_json(JsonWriter& j, std::string& text, const Emit& emit, const backtest::Result& result,
+              const backtest::StrategyRun& s) {
   const auto& p = s.perf;
   j.begin_object();
   j.member("end_value", p.closing_value.rounded(10));
@@ -64,13 +74,24 @@ void run_json(JsonWriter& j, const backtest::StrategyRun& s) {
     j.member("no_selection", r.no_selection);
     j.key("trades").begin_array();
     for (const auto& t : r.trades) {
-      j.begin_object();
-      j.member("symbol", t.symbol).member("side", std::string(rules::to_string(t.side)));
-      j.member("quantity", units_text(t)).member("price", t.price).member("fee", t.fee);
+      j.begin_object().member("symbol", result.symbols.at(t.security_id));
+      j.member("side", std::string(rules::to_string(t.side)));
+      j.member("quantity", t.quantity).member("price", t.price).member("fee", t.fee);
       j.end_object();
+    }
+    for (const auto& t : r.shifts) {
+      j.begin_object().member("symbol", result.symbols.at(t.security_id));
+      j.member("side", std::string(rules::to_string(t.side)));
+      j.member("quantity", units_text(t.units)).member("price", price_text(t));
+      j.member("fee", "0").end_object();
     }
     j.end_array();
     j.end_object();
+    // Hands the text over as it grows: a run's trades can be tens of MB.
+    if (text.size() >= (1u << 16)) {
+      emit(text);
+      text.clear();
+    }
   }
   j.end_array();
   j.end_object();
@@ -79,6 +100,12 @@ void run_json(JsonWriter& j, const backtest::StrategyRun& s) {
 }  // namespace
 
 std::string backtest_json(const backtest::Result& r) {
+  std::string all;
+  backtest_json(r, [&](const std::string& part) { all += part; });
+  return all;
+}
+
+void backtest_json(const backtest::Result& r, const Emit& emit) {
   std::string s;
   JsonWriter j(s);
   j.begin_object();
@@ -93,9 +120,9 @@ std::string backtest_json(const backtest::Result& r) {
   for (Date d : r.rebalance_days) j.value(d.str());
   j.end_array();
   j.key("rule_run");
-  run_json(j, r.rule);
+  run_json(j, s, emit, r, r.rule);
   j.key("baseline_run");
-  run_json(j, r.baseline);
+  run_json(j, s, emit, r, r.baseline);
   j.key("rolling").begin_array();
   for (const auto& w : r.rolling) {
     j.begin_object();
@@ -117,7 +144,7 @@ std::string backtest_json(const backtest::Result& r) {
   j.end_array();
   j.member("notes", r.notes).member("cautions", r.cautions);
   j.end_object();
-  return s + "\n";
+  emit(s + "\n");
 }
 
 std::string backtest_text(const backtest::Result& r, bool colour) {

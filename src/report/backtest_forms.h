@@ -11,6 +11,7 @@
 //    the day before the start and each day with a close, values to 6 places.
 #pragma once
 
+#include <functional>
 #include <string>
 
 #include "backtest/backtest.h"
@@ -20,6 +21,10 @@ namespace keel::report {
 
 std::string backtest_text(const backtest::Result& r, bool colour);
 std::string backtest_json(const backtest::Result& r);
+// The same JSON handed to `emit` in parts as it is written (a run's trades
+// can be tens of MB).
+using Emit = std::function<void(const std::string&)>;
+void backtest_json(const backtest::Result& r, const Emit& emit);
 std::string backtest_curve_csv(const backtest::Result& r);
 
 std::string signal_text(const backtest::SignalResult& r, bool colour);

@@ -201,8 +201,10 @@ struct OrderPlan {
   std::vector<Skipped> skipped;
 };
 
+// Explain::none leaves the orders' reasons and the skips' words empty.
 OrderPlan orders(const Portfolio& portfolio, const std::vector<Target>& targets,
-                 const Quotes& quotes, const TradingRule& trading, Date as_of);
+                 const Quotes& quotes, const TradingRule& trading, Date as_of,
+                 Explain explain = Explain::all);
 
 // Applies orders to a portfolio at their estimated prices and fees (for a
 // back-test, or to check a plan): quantities and cash move; lots are not kept.

@@ -64,7 +64,9 @@ struct Decision {
   Decimal sell_units;  // sell: the units
   std::string reason;  // buy and sell: the order's reason
 };
-Decision decide(const Work& work, const TradingRule& trading, Date as_of);
+// Explain::none leaves the reasons empty (for runs that do not show them).
+Decision decide(const Work& work, const TradingRule& trading, Date as_of,
+                Explain explain = Explain::all);
 
 // Quantities are in whole steps of this size: the lot size, or 10^-4 units
 // when the rule trades fractions.
@@ -86,7 +88,7 @@ struct Buys {
 };
 Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
                 std::vector<Decimal>& cash, const std::vector<Decimal>& reserve,
-                const TradingRule& trading);
+                const TradingRule& trading, Explain explain = Explain::all);
 
 void summarize(OrderPlan& plan, const Portfolio& portfolio, const std::vector<Work>& work,
                const PoolValue& pool);

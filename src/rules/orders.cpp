@@ -151,18 +151,22 @@ std::vector<Work> work_list(const Portfolio& portfolio, const std::vector<Target
   return work;
 }
 
-Decision decide(const Work& x, const TradingRule& trading, Date as_of) {
+Decision decide(const Work& x, const TradingRule& trading, Date as_of, Explain explain) {
   Decision d;
   const Decimal diff = x.target_value - x.now_value;
   if (diff.is_zero()) return d;
-  auto skip = [&](std::string why) {
+  const bool words = explain == Explain::all;
+  // Reasons are formatted only when they are shown.
+  auto skip = [&](auto why) {
     d.kind = Decision::Kind::skip;
-    d.why = std::move(why);
+    if (words) d.why = why();
     return d;
   };
   if (!x.quote->tradable)
-    return skip(fmt::format("no close on or before {}; valued at the last trade price, not traded",
-                            as_of.str()));
+    return skip([&] {
+      return fmt::format("no close on or before {}; valued at the last trade price, not traded",
+                         as_of.str());
+    });
   if (x.now_value.is_positive() && x.target_value.is_positive()) {
     // The drift band applies to names that stay; entries and exits always trade.
     const Decimal gap = (x.w_now - x.w_target).abs();
@@ -172,28 +176,34 @@ Decision decide(const Work& x, const TradingRule& trading, Date as_of) {
                          (pp_on && gap * Decimal(100) > trading.drift_pct_points) ||
                          (rel_on && gap * Decimal(100) > trading.drift_rel_pct * x.w_target);
     if (!outside)
-      return skip(
-          fmt::format("within the drift band: {} now, target {}", pct(x.w_now), pct(x.w_target)));
+      return skip([&] {
+        return fmt::format("within the drift band: {} now, target {}", pct(x.w_now),
+                           pct(x.w_target));
+      });
   }
   if (diff.is_positive()) {
     d.kind = Decision::Kind::buy;
     d.buy_value = diff;
-    d.reason =
-        fmt::format("{}: {}", x.why, x.now_value.is_positive() ? "add to target" : "new position");
+    if (words)
+      d.reason = fmt::format("{}: {}", x.why,
+                             x.now_value.is_positive() ? "add to target" : "new position");
     return d;
   }
   const Decimal step = step_of(*x.quote, trading);
   const bool exit = !x.target_value.is_positive();
   const Decimal qty = exit ? x.held : std::min(x.held, units_within(-diff, x.quote->price, step));
   if (!qty.is_positive())
-    return skip(
-        fmt::format("{} above target is less than one lot ({})", (-diff).fixed(2), step.str()));
+    return skip([&] {
+      return fmt::format("{} above target is less than one lot ({})", (-diff).fixed(2), step.str());
+    });
   if (!exit && qty * x.quote->price < trading.min_trade)
-    return skip(fmt::format("a sell of {} is below the minimum trade ({})",
-                            (qty * x.quote->price).fixed(2), trading.min_trade.str()));
+    return skip([&] {
+      return fmt::format("a sell of {} is below the minimum trade ({})",
+                         (qty * x.quote->price).fixed(2), trading.min_trade.str());
+    });
   d.kind = Decision::Kind::sell;
   d.sell_units = qty;
-  d.reason = fmt::format("{}: {}", x.why, exit ? "sell all" : "trim to target");
+  if (words) d.reason = fmt::format("{}: {}", x.why, exit ? "sell all" : "trim to target");
   return d;
 }
 
@@ -261,7 +271,8 @@ std::vector<Order> sell_orders(const Work& x, const Decimal& units, const std::s
 
 Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
                 std::vector<Decimal>& cash, const std::vector<Decimal>& reserve,
-                const TradingRule& trading) {
+                const TradingRule& trading, Explain explain) {
+  const bool words = explain == Explain::all;
   struct Buy {
     const BuyWish* wish = nullptr;
     std::string why_none = "no cash left above the reserve";
@@ -329,13 +340,15 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
     if (max_q && q > *max_q) q = *max_q;
     while (q.is_positive() && grown(q) > limit) q -= step;
     if (!q.is_positive()) {
-      b.why_none = fmt::format("less than one lot ({} at {}) fits the cash to spend", step.str(),
-                               price.str());
+      if (words)
+        b.why_none = fmt::format("less than one lot ({} at {}) fits the cash to spend", step.str(),
+                                 price.str());
       return Decimal();
     }
     if ((have_q + q) * price < trading.min_trade) {
-      b.why_none = fmt::format("a buy of {} is below the minimum trade ({})",
-                               ((have_q + q) * price).fixed(2), trading.min_trade.str());
+      if (words)
+        b.why_none = fmt::format("a buy of {} is below the minimum trade ({})",
+                                 ((have_q + q) * price).fixed(2), trading.min_trade.str());
       return Decimal();
     }
     const Decimal spent = grown(q);
@@ -417,7 +430,7 @@ namespace {
 // each account a (the fees the plan itself is expected to cost).
 OrderPlan plan_once(const Portfolio& portfolio, const std::vector<Target>& targets,
                     const Quotes& quotes, const TradingRule& trading, Date as_of,
-                    const std::vector<Decimal>& fee_guess) {
+                    const std::vector<Decimal>& fee_guess, Explain explain) {
   OrderPlan plan;
   steps::PoolValue pool = steps::value_pool(portfolio, quotes, trading, fee_guess);
   plan.pool_value = pool.value;
@@ -427,7 +440,7 @@ OrderPlan plan_once(const Portfolio& portfolio, const std::vector<Target>& targe
   const auto work = steps::work_list(portfolio, targets, quotes, pool);
   std::vector<steps::BuyWish> wishes;
   for (const auto& x : work) {
-    auto d = steps::decide(x, trading, as_of);
+    auto d = steps::decide(x, trading, as_of, explain);
     switch (d.kind) {
       case steps::Decision::Kind::none:
         break;
@@ -446,7 +459,7 @@ OrderPlan plan_once(const Portfolio& portfolio, const std::vector<Target>& targe
         break;
     }
   }
-  auto buys = steps::buy_orders(wishes, portfolio, pool.cash, pool.reserve, trading);
+  auto buys = steps::buy_orders(wishes, portfolio, pool.cash, pool.reserve, trading, explain);
   for (auto& o : buys.orders) plan.orders.push_back(std::move(o));
   for (auto& s : buys.skipped) plan.skipped.push_back(std::move(s));
   steps::summarize(plan, portfolio, work, pool);
@@ -456,13 +469,13 @@ OrderPlan plan_once(const Portfolio& portfolio, const std::vector<Target>& targe
 }  // namespace
 
 OrderPlan orders(const Portfolio& portfolio, const std::vector<Target>& targets,
-                 const Quotes& quotes, const TradingRule& trading, Date as_of) {
+                 const Quotes& quotes, const TradingRule& trading, Date as_of, Explain explain) {
   // Targets are set on the pool as it will stand after this plan's own fees,
   // so that posting the orders and proposing again finds nothing to do. The
   // fees depend on the orders, so iterate to a fixed point (a few rounds;
   // the last plan is used if it has not settled).
   std::vector<Decimal> guess(portfolio.accounts.size());
-  OrderPlan plan = plan_once(portfolio, targets, quotes, trading, as_of, guess);
+  OrderPlan plan = plan_once(portfolio, targets, quotes, trading, as_of, guess, explain);
   for (int round = 0; round < 8; ++round) {
     std::vector<Decimal> fees(portfolio.accounts.size());
     for (const auto& o : plan.orders)
@@ -470,7 +483,7 @@ OrderPlan orders(const Portfolio& portfolio, const std::vector<Target>& targets,
         if (portfolio.accounts[a].id == o.account_id) fees[a] += o.fee;
     if (fees == guess) break;
     guess = std::move(fees);
-    plan = plan_once(portfolio, targets, quotes, trading, as_of, guess);
+    plan = plan_once(portfolio, targets, quotes, trading, as_of, guess, explain);
   }
   return plan;
 }

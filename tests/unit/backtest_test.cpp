@@ -76,11 +76,13 @@ struct Market {
   }
 };
 
-std::string trades_text(const bt::RebalanceDay& r) {
+// The trades of the rule's i-th rebalancing day.
+std::string trades_text(const bt::Result& res, std::size_t i) {
+  const auto& r = res.rule.rebalances.at(i);
   std::string s = r.day.str() + ":";
   for (const auto& t : r.trades)
     s += fmt::format(" {} {} {} @{} fee {};", keel::rules::to_string(t.side), t.quantity.str(),
-                     t.symbol, t.price.str(), t.fee.str());
+                     res.symbols.at(t.security_id), t.price.str(), t.fee.str());
   return s;
 }
 
@@ -88,7 +90,7 @@ std::string trades_text(const bt::RebalanceDay& r) {
 
 TEST_CASE("backtest: a figure known after a rebalancing day does not change its orders") {
   Market m;
-  const std::string before = trades_text(m.run().rule.rebalances.at(0));
+  const std::string before = trades_text(m.run(), 0);
   CHECK(before.find("buy") != std::string::npos);
   // S7 becomes the cheapest name, but only from 2024-02-01; and a restatement
   // of the old figure is known from 2024-02-15.
@@ -96,29 +98,29 @@ TEST_CASE("backtest: a figure known after a rebalancing day does not change its 
   m.metric("S0", "2023-12-31", "2024-02-15", "99");
   const auto after = m.run();
   CHECK(after.rebalance_days.at(0) == day("2024-01-31"));
-  CHECK(trades_text(after.rule.rebalances.at(0)) == before);
+  CHECK(trades_text(after, 0) == before);
   // It does count from the next rebalancing day on.
-  CHECK(trades_text(after.rule.rebalances.at(1)).find("buy") != std::string::npos);
-  CHECK(trades_text(after.rule.rebalances.at(1)).find(" S7 @") != std::string::npos);
+  CHECK(trades_text(after, 1).find("buy") != std::string::npos);
+  CHECK(trades_text(after, 1).find(" S7 @") != std::string::npos);
 }
 
 TEST_CASE("backtest: the same figure known on the rebalancing day does change its orders") {
   Market m;
-  const std::string before = trades_text(m.run().rule.rebalances.at(0));
+  const std::string before = trades_text(m.run(), 0);
   m.metric("S7", "2024-01-31", "2024-01-31", "1");
-  CHECK(trades_text(m.run().rule.rebalances.at(0)) != before);
+  CHECK(trades_text(m.run(), 0) != before);
 }
 
 TEST_CASE("backtest: closes after a rebalancing day do not change its orders") {
   Market m;
   const auto first = m.run();
-  const std::string before = trades_text(first.rule.rebalances.at(0));
+  const std::string before = trades_text(first, 0);
   for (const auto& s : m.symbols) {
     m.prices(s, "2024-02-01", "500", true);
     m.prices(s, "2024-03-15", "1.5", true);
   }
   const auto after = m.run();
-  CHECK(trades_text(after.rule.rebalances.at(0)) == before);
+  CHECK(trades_text(after, 0) == before);
   // The changed close does reach the value of its own day.
   auto value_on = [](const bt::Result& r, Date d) {
     for (const auto& p : r.rule.curve)
@@ -131,9 +133,9 @@ TEST_CASE("backtest: closes after a rebalancing day do not change its orders") {
 
 TEST_CASE("backtest: a close on the rebalancing day does change its orders") {
   Market m;
-  const std::string before = trades_text(m.run().rule.rebalances.at(0));
+  const std::string before = trades_text(m.run(), 0);
   for (const auto& s : m.symbols) m.prices(s, "2024-01-31", "77", true);
-  CHECK(trades_text(m.run().rule.rebalances.at(0)) != before);
+  CHECK(trades_text(m.run(), 0) != before);
 }
 
 TEST_CASE("backtest: rebalancing days are each month's last day with a close") {
