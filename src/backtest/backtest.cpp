@@ -258,14 +258,10 @@ class OrderPool {
       acct.holdings[h_.market.security_id(c)] = rules::HoldingState{unit(c), {}};
     p.accounts.push_back(std::move(acct));
     // A held security always has a close on or before any later day: it was
-    // bought at one.
-    const auto unpriced = [&](std::int64_t id) -> std::optional<Decimal> {
-      throw std::logic_error(
-          fmt::format("backtest: no close for security {} on {}", id, day.str()));
-    };
+    // bought at one. The simulated pool has no ledger trades.
     std::vector<std::string> quote_notes;  // stale closes: traded at as they are
     const rules::Quotes quotes =
-        inputs_.quotes(h_.market, day, sel.targets, held(), unpriced, quote_notes);
+        inputs_.quotes(h_.market, day, sel.targets, held(), {}, quote_notes);
     const auto plan =
         rules::orders(p, sel.targets, quotes, rule_.trading, day, rules::Explain::none);
     const auto after = rules::apply(p, plan.orders);
@@ -382,7 +378,7 @@ StrategyRun simulate(const History& h, const rules::Rule& rule, const Request& r
 StrategyRun simulate(const History& h, const rules::Rule& rule, const Request& req,
                      const std::vector<Date>& rebalance, std::string label, bool report_progress,
                      std::vector<std::string>& notes) {
-  const rules::Inputs inputs(rule, h.market);
+  const rules::Inputs inputs(rule, h.market, h.currency);
   if (!req.frictionless) {
     OrderPool pool(h, inputs, rule, req.start_value, req.keep_trades);
     return simulate(h, rule, req, rebalance, std::move(label), report_progress, notes, pool,
@@ -541,6 +537,7 @@ Result run(const History& h, const rules::Rule& rule, const Request& req) {
     const std::int64_t id = h.market.security_id(c);
     res.symbols.emplace(id, h.security(id).symbol);
   }
+  res.notes = h.notes;
   res.rule = simulate(h, rule, req, res.rebalance_days, "rule", true, res.notes);
   res.baseline =
       simulate(h, baseline_rule(rule), req, res.rebalance_days, "baseline", false, res.notes);

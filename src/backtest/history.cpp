@@ -2,6 +2,7 @@
 
 #include "market/day_view.h"
 #include "rules/inputs.h"
+#include "store/ledger_store.h"
 
 namespace keel::backtest {
 
@@ -15,7 +16,7 @@ std::optional<Decimal> History::close(std::int64_t id, Date day) const {
 History load_history(store::Database& db, const rules::Rule& rule, Date from, Date to,
                      const std::vector<std::string>& extra) {
   const market::DayView catalog(db);
-  const rules::Inputs inputs(rule, catalog);
+  const rules::Inputs inputs(rule, catalog, store::ledger_currency(db));
   market::Series::Request request;
   request.securities = inputs.securities();
   for (const auto& symbol : extra)
@@ -23,7 +24,8 @@ History load_history(store::Database& db, const rules::Rule& rule, Date from, Da
   request.from = from;
   request.to = to;
   request.metrics = {rule.screen.metric};
-  return History{market::Series::load(db, request)};
+  History h{market::Series::load(db, request), inputs.currency(), inputs.notes()};
+  return h;
 }
 
 std::vector<Date> rebalance_days(const std::vector<Date>& trading_days, std::optional<Date> next,

@@ -8,6 +8,10 @@
 //    the closes of the universe, the sleeves and the `extra` symbols that the
 //    ledger holds (a benchmark), the rule's metric, splits and cash
 //    distributions (market/series.h).
+//    The rule trades in one currency (rules::Inputs): the ledger's when it
+//    has one, else the first sleeve's, else the one its universe shares; with
+//    none of these, a universe in several currencies is refused. Stocks left
+//    out for their currency are told in `notes`.
 //  - rebalance_days(): the last day with any close of each calendar month
 //    (over every close in the ledger: `next` is the first close day after
 //    the days given), kept when inside [from, to], then every k-th of them
@@ -30,6 +34,8 @@ namespace keel::backtest {
 
 struct History {
   market::Series market;  // the universe, sleeves and extras over the span, with the metric
+  std::optional<std::string> currency;  // the rule's (rules::Inputs)
+  std::vector<std::string> notes;       // about the universe
 
   const Security& security(std::int64_t id) const { return *market.security(id); }
   // The close on or before `day` (inside the span), exactly; unset when none.

@@ -121,7 +121,7 @@ SignalResult signal(const History& h, const rules::Rule& rule, const SignalReque
     hr.months = months;
     res.horizons.push_back(std::move(hr));
   }
-  const rules::Inputs inputs(rule, h.market);
+  const rules::Inputs inputs(rule, h.market, h.currency);
   for (Date day : starts) {
     const auto screened =
         rules::screen(rule, day, inputs.candidates(h.market, day, {}), rules::Explain::none);

@@ -5,16 +5,18 @@
 
 #include <charconv>
 #include <cstdio>
-#include <fstream>
 #include <memory>
+#include <optional>
 
 #include "backtest/backtest.h"
 #include "backtest/signal.h"
 #include "cli/context.h"
 #include "cli/options.h"
 #include "core/error.h"
+#include "core/files.h"
 #include "core/text.h"
 #include "report/backtest_forms.h"
+#include "report/table.h"
 #include "rules/rule.h"
 
 namespace keel::cli {
@@ -45,11 +47,9 @@ struct BacktestOptions {
   int rolling = 12;
 };
 
-void write_curve(const std::string& path, const backtest::Result& r) {
-  std::ofstream f(path, std::ios::binary | std::ios::trunc);
-  if (!f) throw InputError(fmt::format("--curve: cannot write '{}'", printable(path)));
-  f << report::backtest_curve_csv(r);
-  if (!f) throw InputError(fmt::format("--curve: writing '{}' failed", printable(path)));
+void write_curve(OutputFile& file, const backtest::Result& r) {
+  file.write(report::backtest_curve_csv(r));
+  file.commit();
 }
 
 void add_backtest(CLI::App& app, Context& ctx) {
@@ -58,13 +58,19 @@ void add_backtest(CLI::App& app, Context& ctx) {
       app.add_subcommand("backtest",
                          "A rule month by month over stored history, point in time, next to an "
                          "equal-weight baseline");
+  add_examples(*cmd,
+               {"keel backtest --rule rule.toml --from 2019-01-01 --to 2025-12-31 --benchmark ZXTR",
+                "keel backtest --rule rule.toml --from 2019-01-01 --to 2025-12-31 --frictionless "
+                "--curve curve.csv"});
   cmd->add_option("--rule", o->rule, "Rule file (TOML; see docs/rules.md)")->required();
   cmd->add_option("--from", o->from, "First day, YYYY-MM-DD")->required();
   cmd->add_option("--to", o->to, "Last day, YYYY-MM-DD")->required();
   cmd->add_option("--start-value", o->start_value, "Cash the simulated pool starts with");
   cmd->add_option("--benchmark", o->benchmark, "A security whose closes to compare with");
   add_json_flag(*cmd, o->json);
-  cmd->add_option("--curve", o->curve, "Write the daily values to this CSV file");
+  cmd->add_option("--curve", o->curve,
+                  "Write the daily values to this CSV file ('-': standard output, with the report "
+                  "on standard error)");
   cmd->add_flag("--frictionless", o->frictionless,
                 "No fees, bands, minimum trade or reserve; fractional units, fully invested");
   cmd->add_option("--rolling", o->rolling, "Months held in the rolling-window table");
@@ -85,10 +91,20 @@ void add_backtest(CLI::App& app, Context& ctx) {
     req.progress = [&progress](std::size_t done, std::size_t total, Date day) {
       progress(done, total, day);
     };
+    if (o->curve == "-" && o->json)
+      throw InputError("--curve -: standard output already carries the JSON");
     const auto rule = rules::load_rule(o->rule);
+    // Opened (and so checked) before the run; written after it.
+    std::optional<OutputFile> curve;
+    if (!o->curve.empty()) curve.emplace(o->curve, OutputOptions{"--curve"});
     auto db = ctx.open_ledger();
     const auto result = backtest::run(db, rule, req);
-    if (!o->curve.empty()) write_curve(o->curve, result);
+    if (curve) write_curve(*curve, result);
+    if (curve && curve->to_stdout()) {
+      // The curve has standard output; the report goes to standard error.
+      std::fputs(report::backtest_text(result, report::use_colour(stderr)).c_str(), stderr);
+      return;
+    }
     if (o->json)
       report::backtest_json(result, out);
     else
@@ -124,6 +140,8 @@ void add_signal(CLI::App& app, Context& ctx) {
       "signal",
       "How well a rule's score ranked later returns: information coefficients and "
       "the cheapest-less-dearest spread");
+  add_examples(
+      *cmd, {"keel signal --rule rule.toml --from 2017-01-01 --to 2025-12-31 --horizons 1,3,12"});
   cmd->add_option("--rule", o->rule, "Rule file (TOML; see docs/rules.md)")->required();
   cmd->add_option("--from", o->from, "First day, YYYY-MM-DD")->required();
   cmd->add_option("--to", o->to, "Last day, YYYY-MM-DD")->required();

@@ -1,5 +1,6 @@
-// keel demo: a fresh ledger holding the invented scenario of examples/demo,
-// then a month in its life shown through keel's own commands.
+// keel demo: a fresh ledger holding the invented scenario of examples/demo
+// (built into keel, or a folder given with --data), then a month in its life
+// shown through keel's own commands.
 #include <fmt/format.h>
 #include <stdlib.h>
 
@@ -9,23 +10,21 @@
 #include <system_error>
 
 #include "cli/context.h"
+#include "cli/options.h"
 #include "core/error.h"
+#include "core/files.h"
 #include "core/text.h"
 #include "io/demo.h"
 #include "io/errors.h"
 #include "report/statement_forms.h"
-
-#ifndef KEEL_SOURCE_DIR
-#error "KEEL_SOURCE_DIR must name the source tree (set in CMakeLists.txt)"
-#endif
 
 namespace keel::cli {
 namespace {
 namespace fs = std::filesystem;
 
 // One report of the demo: a heading, the command family that provides it,
-// its arguments ({last_day}, {month_start}, {year}, {benchmark} and
-// {first_day} are filled in from scenario.toml; see io/demo.h), and the
+// its arguments ({last_day}, {month_start}, {year}, {benchmark},
+// {first_day}, {ledger_dir} and {rule} are filled in; see io/demo.h), and the
 // arguments added when Chromium is on PATH (the PDF is printed with it).
 struct DemoStep {
   const char* heading;
@@ -47,7 +46,7 @@ const std::vector<DemoStep>& demo_steps() {
        {"returns", "--year", "{year}", "--benchmark", "{benchmark}"}},
       {"Next month's proposal under the example rule",
        register_rules_commands,
-       {"propose", "--rule", "{scenario_dir}/../rule.toml", "--as-of", "{last_day}"}},
+       {"propose", "--rule", "{rule}", "--as-of", "{last_day}"}},
       {"The year-end statement",
        register_statement_commands,
        {"statement", "--year", "{year}", "--benchmark", "{benchmark}", "--html",
@@ -87,9 +86,9 @@ void run_step(const DemoStep& step, const Context& base, const fs::path& ledger,
 }
 
 // The folder for the demo ledger: --dir (created if missing, refused if it
-// already holds a ledger) or a new temporary folder. Returns whether it was
-// created here.
-bool prepare_dir(fs::path& dir, const std::string& option_value) {
+// already holds a ledger, or a rule file when the demo writes one) or a new
+// temporary folder. Returns whether it was created here.
+bool prepare_dir(fs::path& dir, const std::string& option_value, bool writes_rule) {
   std::error_code ec;
   if (option_value.empty()) {
     std::string pattern = (fs::temp_directory_path() / "keel-demo-XXXXXX").string();
@@ -104,6 +103,10 @@ bool prepare_dir(fs::path& dir, const std::string& option_value) {
     throw InputError(fmt::format(
         "--dir: '{}' already holds a ledger (keel.db); the demo starts from an empty folder",
         printable(dir.string())));
+  if (writes_rule && fs::exists(dir / "rule.toml", ec))
+    throw InputError(fmt::format(
+        "--dir: '{}' already holds a rule file (rule.toml); the demo starts from an empty folder",
+        printable(dir.string())));
   if (fs::exists(dir, ec)) {
     if (!fs::is_directory(dir, ec))
       throw InputError(fmt::format("--dir: '{}' is not a folder", printable(dir.string())));
@@ -115,10 +118,14 @@ bool prepare_dir(fs::path& dir, const std::string& option_value) {
   return true;
 }
 
-void remove_ledger(const fs::path& dir, bool created) {
+// Removes what a failed demo wrote: the ledger, the rule file when this demo
+// writes one (prepare_dir made sure the folder had none), the folder when it
+// made it.
+void remove_ledger(const fs::path& dir, bool created, bool writes_rule) {
   std::error_code ec;
   for (const char* suffix : {"", "-wal", "-shm", "-journal"})
     fs::remove(dir / (std::string("keel.db") + suffix), ec);
+  if (writes_rule) fs::remove(dir / "rule.toml", ec);
   if (created) fs::remove(dir, ec);  // only if empty
 }
 
@@ -128,20 +135,18 @@ void add_demo(CLI::App& app, Context& ctx) {
       "demo",
       "Build a fresh ledger of an invented household and show a month in its life (never "
       "touches your own ledger)");
+  add_examples(*cmd, {"keel demo", "keel demo --dir keel-demo"});
   cmd->add_option("--dir", o->dir,
                   "Folder for the demo ledger, created if missing (default: a new temporary "
                   "folder, printed)");
   cmd->add_option("--data", o->data,
-                  "Folder holding the scenario's files (default: examples/demo/data of the "
-                  "source tree keel was built from)");
+                  "Folder holding a scenario's files, laid out as examples/demo/data, with "
+                  "its rule in ../rule.toml (default: the scenario built into keel)");
   cmd->callback([&ctx, o] {
-    const bool from_option = !o->data.empty();
-    const fs::path data =
-        from_option ? fs::path(o->data) : fs::path(KEEL_SOURCE_DIR) / "examples" / "demo" / "data";
     const auto scenario =
-        io::load_scenario(data, from_option ? "--data" : "demo data (give --data)");
+        o->data.empty() ? io::built_in_scenario() : io::load_scenario(o->data, "--data");
     fs::path dir;
-    const bool created = prepare_dir(dir, o->dir);
+    const bool created = prepare_dir(dir, o->dir, scenario.built_in());
     const fs::path ledger = dir / "keel.db";
     out(fmt::format("keel demo: {}, {} to {}\n", printable(scenario.household),
                     scenario.first_day.str(), scenario.last_day.str()));
@@ -149,18 +154,24 @@ void add_demo(CLI::App& app, Context& ctx) {
     std::fflush(stdout);
     try {
       store::OpenOptions options;
-      options.create = true;
+      options.access = store::Access::create;
       options.allow_unsafe_permissions = ctx.allow_unsafe_permissions;
       auto db = store::Database::open(ledger, options);
       for (const auto& d : io::import_scenario(db, scenario))
         out(fmt::format("imported {:<13} {:>7} rows from {}\n", d.what, d.rows,
                         printable(fs::path(d.file).filename().string())));
+      if (scenario.built_in())
+      {
+        OutputFile rule(scenario.rule_file(dir), {"--dir"});
+        rule.write(io::built_in_rule());
+        rule.commit();
+      }
     } catch (const io::ImportRefused& e) {
       for (const auto& line : e.lines()) std::fputs((line + "\n").c_str(), stderr);
-      remove_ledger(dir, created);
+      remove_ledger(dir, created, scenario.built_in());
       throw;
     } catch (...) {
-      remove_ledger(dir, created);
+      remove_ledger(dir, created, scenario.built_in());
       throw;
     }
     for (const auto& step : demo_steps()) run_step(step, ctx, ledger, scenario);

@@ -7,11 +7,15 @@
 #include <memory>
 
 #include "cli/context.h"
+#include "cli/options.h"
 #include "core/error.h"
+#include "core/files.h"
 #include "core/text.h"
 #include "io/errors.h"
 #include "io/ledger_intake.h"
 #include "io/market_intake.h"
+#include "ledger/posting.h"
+#include "report/table.h"
 #include "store/market_data.h"
 
 namespace keel::cli {
@@ -42,53 +46,105 @@ class Progress {
   Clock::time_point start_ = Clock::now();
 };
 
-// A refused import's lines (one per bad row) go to stderr before the error
-// itself reaches main().
-template <typename F>
-auto printing_refusals(F&& import) {
-  try {
-    return import();
-  } catch (const io::ImportRefused& e) {
-    for (const auto& line : e.lines()) std::fputs((line + "\n").c_str(), stderr);
-    throw;
+struct ImportCommandOptions {
+  std::string what, file, mapping, account;
+  bool dry_run = false, replace = false, quiet = false, allow_future = false,
+       book_corrections = false;
+};
+
+// The first rows of a dry run, as keel would book them.
+std::string preview_table(const io::LedgerImportSummary& sum) {
+  report::Table table({{"line", report::Align::right},
+                       {"date"},
+                       {"account"},
+                       {"kind"},
+                       {"symbol"},
+                       {"quantity", report::Align::right},
+                       {"price", report::Align::right},
+                       {"amount", report::Align::right},
+                       {"fee", report::Align::right},
+                       {"ref"}});
+  auto opt = [](const std::optional<Decimal>& d) { return d ? d->str() : std::string(); };
+  for (const auto& row : sum.preview) {
+    const auto& r = row.request;
+    table.add_row({std::to_string(row.line), r.date.str(), r.account,
+                   std::string(to_string(r.kind)), r.symbol.value_or(""), opt(r.quantity),
+                   opt(r.price), opt(r.amount), r.fee && !r.fee->is_zero() ? r.fee->str() : "",
+                   r.ref.value_or("")});
   }
+  std::string text = table.render();
+  if (sum.added + sum.corrected > sum.preview.size())
+    text += fmt::format("... and {} more\n", sum.added + sum.corrected - sum.preview.size());
+  return text;
 }
 
-struct ImportCommandOptions {
-  std::string what, file, mapping;
-  bool dry_run = false, replace = false, quiet = false;
-};
+std::string ledger_summary(const io::LedgerImportSummary& sum) {
+  std::string text =
+      fmt::format("{}: {} rows read; {} {}, {} already booked", printable(sum.file), sum.rows,
+                  sum.dry_run ? "would add" : "added", sum.added, sum.already_booked);
+  if (sum.corrected)
+    text += fmt::format(", {} {}", sum.dry_run ? "would correct" : "corrected", sum.corrected);
+  if (!sum.skipped.empty()) {
+    std::uint64_t total = 0;
+    std::string per;
+    for (const auto& [action, n] : sum.skipped) {
+      total += n;
+      per += fmt::format("{}{} {}", per.empty() ? "" : ", ", printable(action), n);
+    }
+    text += fmt::format("; skipped {} ({})", total, per);
+  }
+  if (sum.dry_run) text += " (dry run: nothing was changed)";
+  text += "\n";
+  if (sum.dry_run && !sum.preview.empty()) text += "\n" + preview_table(sum);
+  return text;
+}
 
 void add_import(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ImportCommandOptions>();
   auto* cmd = app.add_subcommand("import", "Read a CSV file into the ledger, all or nothing");
+  add_examples(*cmd, {"keel import prices closes.csv",
+                      "keel import transactions broker.csv --map broker.toml --dry-run"});
   cmd->add_option("WHAT", o->what,
                   "accounts, transactions, securities, prices, metrics, distributions or splits")
       ->required();
-  cmd->add_option("FILE", o->file, "CSV file (keel's layout, or another described by --map)")
+  cmd->add_option("FILE", o->file,
+                  "CSV file (keel's layout, or another described by --map); transactions also "
+                  "from an OFX investment statement")
       ->required();
   cmd->add_option("--map", o->mapping, "TOML file describing the file's layout");
   cmd->add_flag("--dry-run", o->dry_run, "Check everything and report, but change nothing");
   cmd->add_flag("--replace", o->replace, "Overwrite stored values that differ from the file");
   cmd->add_flag("--quiet", o->quiet, "No progress display");
+  cmd->add_flag(ledger::kAllowFutureFlag, o->allow_future,
+                "Accept transactions and splits dated after today, e.g. trades booked before "
+                "they settle (without it such rows are refused as likely slips)");
+  cmd->add_flag("--book-corrections", o->book_corrections,
+                "Transactions: book a booked ref whose content changed as a void of the old row "
+                "plus the new row (refused otherwise)");
+  cmd->add_option("--account", o->account,
+                  "Transactions from an OFX statement: the keel account it belongs to");
   cmd->callback([&ctx, o] {
     io::ImportOptions options;
     if (!o->mapping.empty()) options.mapping = io::Mapping::load(o->mapping);
     options.dry_run = o->dry_run;
     options.replace = o->replace;
+    options.allow_future = o->allow_future;
+    options.book_corrections = o->book_corrections;
+    if (!o->account.empty()) options.account = o->account;
+    if (o->what != "transactions" && (o->book_corrections || options.account))
+      throw InputError(fmt::format("{}: only for importing transactions",
+                                   o->book_corrections ? "--book-corrections" : "--account"));
     if (o->what == "transactions" || o->what == "accounts") {
-      auto db = ctx.open_ledger();
+      auto db = ctx.open_ledger(store::Access::write);
       const auto sum = printing_refusals([&] {
         return o->what == "accounts" ? io::import_accounts(db, o->file, options)
                                      : io::import_transactions(db, o->file, options);
       });
-      out(fmt::format("{}: {} rows read; {} {}, {} already booked{}\n", printable(sum.file),
-                      sum.rows, sum.dry_run ? "would add" : "added", sum.added, sum.already_booked,
-                      sum.dry_run ? " (dry run: nothing was changed)" : ""));
+      out(ledger_summary(sum));
       return;
     }
     const io::MarketKind kind = io::parse_market_kind(o->what);
-    auto db = ctx.open_ledger();
+    auto db = ctx.open_ledger(store::Access::write);
     io::ImportSummary sum;
     {
       Progress progress(!o->quiet);
@@ -120,13 +176,16 @@ struct ExportCommandOptions {
 void add_export(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ExportCommandOptions>();
   auto* cmd = app.add_subcommand("export", "Write ledger or market data as CSV or JSON");
+  add_examples(*cmd,
+               {"keel export transactions --out transactions.csv", "keel export prices --json"});
   cmd->add_option("WHAT", o->what,
                   "accounts, transactions, securities, prices, metrics, distributions or splits")
       ->required();
   auto* c = cmd->add_flag("--csv", o->csv, "CSV in keel's import layout (the default)");
   cmd->add_flag("--json", o->json, "A JSON array of objects; numbers as exact strings")
       ->excludes(c);
-  cmd->add_option("--out", o->file, "Write to this file instead of standard output");
+  cmd->add_option("--out", o->file,
+                  "Write to this file instead of standard output ('-': standard output)");
   cmd->callback([&ctx, o] {
     const std::string& what = o->what;
     const std::string& file = o->file;
@@ -134,35 +193,26 @@ void add_export(CLI::App& app, Context& ctx) {
     const std::string kind_name =
         ledger_data ? what : std::string(to_string(io::parse_market_kind(what)));
     auto db = ctx.open_ledger();
-    std::FILE* f = stdout;
-    if (!file.empty()) {
-      f = std::fopen(file.c_str(), "wb");
-      if (!f) throw InputError(fmt::format("{}: cannot write", printable(file)));
-    }
+    OutputFile f(file.empty() ? "-" : file, {"--out"});
+    const auto format = o->json ? io::ExportFormat::json : io::ExportFormat::csv;
     std::uint64_t rows = 0;
-    try {
-      const auto format = o->json ? io::ExportFormat::json : io::ExportFormat::csv;
-      if (what == "transactions")
-        rows = io::export_transactions(db, format, f);
-      else if (what == "accounts")
-        rows = io::export_accounts(db, format, f);
-      else
-        rows = io::export_market(db, io::parse_market_kind(what), format, f);
-    } catch (...) {
-      if (f != stdout) std::fclose(f);
-      throw;
-    }
-    if (f != stdout) {
-      if (std::fclose(f) != 0) throw InputError(fmt::format("{}: cannot write", printable(file)));
+    if (what == "transactions")
+      rows = io::export_transactions(db, format, f);
+    else if (what == "accounts")
+      rows = io::export_accounts(db, format, f);
+    else
+      rows = io::export_market(db, io::parse_market_kind(what), format, f);
+    f.commit();
+    if (!f.to_stdout())
       std::fputs(
           fmt::format("{} {} rows written to {}\n", rows, kind_name, printable(file)).c_str(),
           stderr);
-    }
   });
 }
 
 void add_imports(CLI::App& app, Context& ctx) {
   auto* cmd = app.add_subcommand("imports", "List the imports that changed the ledger");
+  add_examples(*cmd, {"keel imports"});
   cmd->callback([&ctx] {
     auto db = ctx.open_ledger();
     const auto runs = store::list_import_runs(db);

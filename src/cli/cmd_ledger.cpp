@@ -4,9 +4,11 @@
 #include <memory>
 
 #include "cli/context.h"
+#include "cli/history_rows.h"
 #include "cli/options.h"
 #include "core/error.h"
 #include "core/text.h"
+#include "ledger/accounts.h"
 #include "ledger/posting.h"
 #include "store/ledger_store.h"
 
@@ -14,35 +16,58 @@ namespace keel::cli {
 namespace {
 
 void add_init(CLI::App& app, Context& ctx) {
+  auto currency = std::make_shared<std::string>();
   auto* cmd = app.add_subcommand("init", "Create an empty ledger (or bring an old one up to date)");
-  cmd->callback([&ctx] {
-    auto db = ctx.open_ledger(/*create=*/true);
-    out(fmt::format("ledger ready at {} (schema version {})\n", printable(db.path().string()),
-                    db.schema_version()));
+  add_examples(*cmd, {"keel init --currency EUR", "keel init --db household.db --currency EUR"});
+  cmd->add_option("--currency", *currency,
+                  "The ledger's own currency, a three-letter code: accounts and securities added "
+                  "without --currency take it (default: the first account's currency)");
+  cmd->callback([&ctx, currency] {
+    const auto code = currency->empty() ? std::string() : normalize_currency(*currency);
+    auto db = ctx.open_ledger(store::Access::create);
+    if (!code.empty()) {
+      store::WriteTransaction tx(db);
+      try {
+        store::set_ledger_currency(db, code);
+      } catch (const InputError& e) {
+        throw InputError(fmt::format("--currency: {}", e.what()));
+      }
+      tx.commit();
+    }
+    const auto ledger_currency = store::ledger_currency(db);
+    out(fmt::format("ledger ready at {} (schema version {}, {})\n", printable(db.path().string()),
+                    db.schema_version(),
+                    ledger_currency ? "currency " + *ledger_currency
+                                    : std::string("currency: the first account's")));
   });
 }
 
 struct AccountAddOptions {
-  std::string name, currency = "USD", basis = "fifo";
+  std::string name, currency, basis = "fifo";
   bool allow_negative = false;
 };
 
 void add_account_add(CLI::App& group, Context& ctx) {
   auto o = std::make_shared<AccountAddOptions>();
   auto* cmd = group.add_subcommand("add", "Add an account");
+  add_examples(*cmd, {"keel account add Taxable --currency EUR --basis fifo",
+                      "keel account add Margin --allow-negative-cash"});
   cmd->add_option("NAME", o->name, "Account name")->required();
-  cmd->add_option("--currency", o->currency, "Three-letter currency code");
+  cmd->add_option("--currency", o->currency,
+                  "Three-letter currency code (default: the ledger's; the first account's "
+                  "becomes the ledger's)");
   cmd->add_option("--basis", o->basis, "Cost-basis method: fifo, lifo, hifo, average, specific");
   cmd->add_flag("--allow-negative-cash", o->allow_negative, "Let cash go below zero (margin)");
   cmd->callback([&ctx, o] {
     Account a;
     a.name = o->name;
-    a.currency = normalize_currency(o->currency);
+    if (!o->currency.empty()) a.currency = normalize_currency(o->currency);
     a.basis = parse_basis_method(o->basis);
     a.allow_negative_cash = o->allow_negative;
-    auto db = ctx.open_ledger();
+    auto db = ctx.open_ledger(store::Access::write);
     store::WriteTransaction tx(db);
-    const auto id = store::insert_account(db, a);
+    const auto id = ledger::add_account(db, a);
+    a = *store::find_account(db, a.name);
     tx.commit();
     out(fmt::format("account {} '{}' added ({}, {}{})\n", id, printable(a.name), a.currency,
                     to_string(a.basis), a.allow_negative_cash ? ", negative cash allowed" : ""));
@@ -50,16 +75,20 @@ void add_account_add(CLI::App& group, Context& ctx) {
 }
 
 struct SecurityAddOptions {
-  std::string symbol, name, kind, currency = "USD", lot_size = "1", sector;
+  std::string symbol, name, kind, currency, lot_size = "1", sector;
 };
 
 void add_security_add(CLI::App& group, Context& ctx) {
   auto o = std::make_shared<SecurityAddOptions>();
   auto* cmd = group.add_subcommand("add", "Add a security");
+  add_examples(
+      *cmd, {"keel security add KESTR --name \"Kestrel Looms\" --kind stock --currency EUR "
+             "--sector textiles",
+             "keel security add ZXTR --name \"Zenith Total Return\" --kind index --currency EUR"});
   cmd->add_option("SYMBOL", o->symbol, "Symbol, unique in the ledger")->required();
   cmd->add_option("--name", o->name, "Full name")->required();
   cmd->add_option("--kind", o->kind, "stock, fund, bond, index or currency")->required();
-  cmd->add_option("--currency", o->currency, "Three-letter currency code");
+  cmd->add_option("--currency", o->currency, "Three-letter currency code (default: the ledger's)");
   cmd->add_option("--lot-size", o->lot_size, "Smallest tradable multiple (1 = whole units)");
   cmd->add_option("--sector", o->sector, "Sector label, for rule universes");
   cmd->callback([&ctx, o] {
@@ -67,16 +96,16 @@ void add_security_add(CLI::App& group, Context& ctx) {
     s.symbol = o->symbol;
     s.name = o->name;
     s.kind = parse_security_kind(o->kind);
-    s.currency = normalize_currency(o->currency);
+    if (!o->currency.empty()) s.currency = normalize_currency(o->currency);
     try {
       s.lot_size = Decimal::parse(o->lot_size);
     } catch (const InputError& e) {
       throw InputError(fmt::format("--lot-size: {}", e.what()));
     }
     if (!o->sector.empty()) s.sector = o->sector;
-    auto db = ctx.open_ledger();
+    auto db = ctx.open_ledger(store::Access::write);
     store::WriteTransaction tx(db);
-    const auto id = store::insert_security(db, s);
+    const auto id = ledger::add_security(db, s);
     tx.commit();
     out(fmt::format("security {} '{}' added ({})\n", id, printable(s.symbol), to_string(s.kind)));
   });
@@ -87,7 +116,14 @@ void add_security_add(CLI::App& group, Context& ctx) {
 struct RecordOptions {
   std::string date, account, symbol, quantity, price, fee, amount, ratio, lots, to_account,
       acquired, ref, note;
+  bool allow_future = false;
 };
+
+void add_allow_future_flag(CLI::App& cmd, bool& allow) {
+  cmd.add_flag(ledger::kAllowFutureFlag, allow,
+               "Accept a --date after today, e.g. a trade booked before it settles (without it "
+               "such a date is refused as a likely slip)");
+}
 
 ledger::PostRequest to_request(TxnKind kind, const RecordOptions& o) {
   ledger::PostRequest r;
@@ -104,12 +140,14 @@ ledger::PostRequest to_request(TxnKind kind, const RecordOptions& o) {
   r.to_account = text_option(o.to_account);
   r.ref = text_option(o.ref);
   r.note = text_option(o.note);
+  r.allow_future = o.allow_future;
   return r;
 }
 
 struct KindSpec {
   TxnKind kind;
   const char* help;
+  const char* example;
   bool units;     // --symbol --quantity
   bool trade;     // --price --fee
   bool cash;      // --amount
@@ -117,25 +155,47 @@ struct KindSpec {
 };
 
 constexpr KindSpec kKindSpecs[] = {
-    {TxnKind::deposit, "Cash paid into the account from outside", false, false, true, false},
-    {TxnKind::withdrawal, "Cash taken out of the account", false, false, true, false},
-    {TxnKind::buy, "Buy units: opens a lot whose cost includes the fee", true, true, false, false},
-    {TxnKind::sell, "Sell units: closes lots by the account's method (or --lots)", true, true,
-     false, false},
-    {TxnKind::dividend, "Cash dividend received (gross, before withholding)", false, false, true,
+    {TxnKind::deposit, "Cash paid into the account from outside",
+     "keel record deposit --date 2025-01-02 --account Taxable --amount 10000", false, false, true,
+     false},
+    {TxnKind::withdrawal, "Cash taken out of the account",
+     "keel record withdrawal --date 2025-06-30 --account Taxable --amount 2500", false, false, true,
+     false},
+    {TxnKind::buy, "Buy units: opens a lot whose cost includes the fee",
+     "keel record buy --date 2025-01-06 --account Taxable --symbol KESTR --quantity 100 --price 50 "
+     "--fee 10",
+     true, true, false, false},
+    {TxnKind::sell, "Sell units: closes lots by the account's method (or --lots)",
+     "keel record sell --date 2025-09-15 --account Taxable --symbol KESTR --quantity 40 --price "
+     "61.20 --fee 10",
+     true, true, false, false},
+    {TxnKind::dividend, "Cash dividend received (gross, before withholding)",
+     "keel record dividend --date 2025-04-15 --account Taxable --symbol KESTR --amount 120", false,
+     false, true, true},
+    {TxnKind::interest, "Interest received",
+     "keel record interest --date 2025-03-31 --account Taxable --amount 4.17", false, false, true,
      true},
-    {TxnKind::interest, "Interest received", false, false, true, true},
-    {TxnKind::tax, "Tax withheld (e.g. on a dividend)", false, false, true, true},
-    {TxnKind::fee, "A fee charged to the account", false, false, true, true},
-    {TxnKind::transfer_in, "Cash or units brought in from outside", true, true, true, false},
+    {TxnKind::tax, "Tax withheld (e.g. on a dividend)",
+     "keel record tax --date 2025-04-15 --account Taxable --symbol KESTR --amount 18", false, false,
+     true, true},
+    {TxnKind::fee, "A fee charged to the account",
+     "keel record fee --date 2025-12-31 --account Taxable --amount 25 --note \"custody fee\"",
+     false, false, true, true},
+    {TxnKind::transfer_in, "Cash or units brought in from outside",
+     "keel record transfer_in --date 2025-02-03 --account Taxable --symbol KESTR --quantity 50 "
+     "--price 42 --acquired 2021-05-10",
+     true, true, true, false},
     {TxnKind::transfer_out,
-     "Cash or units moved out; with --to-account, into another account of this ledger", true, true,
-     true, false},
+     "Cash or units moved out; with --to-account, into another account of this ledger",
+     "keel record transfer_out --date 2025-03-02 --account Taxable --amount 8000 --to-account "
+     "Retirement",
+     true, true, true, false},
 };
 
 void add_record_kind(CLI::App& group, Context& ctx, const KindSpec& spec) {
   auto o = std::make_shared<RecordOptions>();
   auto* cmd = group.add_subcommand(std::string(to_string(spec.kind)), spec.help);
+  add_examples(*cmd, {spec.example});
   cmd->add_option("--date", o->date, "Day of the transaction, YYYY-MM-DD (default: today)");
   cmd->add_option("--account", o->account, "Account name")->required();
   if (spec.units || spec.security)
@@ -159,10 +219,11 @@ void add_record_kind(CLI::App& group, Context& ctx, const KindSpec& spec) {
                     "Start of the holding period of units brought in (default: --date)");
   cmd->add_option("--ref", o->ref, "External reference, unique per account");
   cmd->add_option("--note", o->note, "Free text");
+  add_allow_future_flag(*cmd, o->allow_future);
   const TxnKind kind = spec.kind;
   cmd->callback([&ctx, o, kind] {
     const auto request = to_request(kind, *o);
-    auto db = ctx.open_ledger();
+    auto db = ctx.open_ledger(store::Access::write);
     const auto ids = ledger::post(db, request);
     std::string id_text = std::to_string(ids.front());
     if (ids.size() > 1) id_text += fmt::format(" and {}", ids.back());
@@ -175,17 +236,20 @@ void add_record_split(CLI::App& group, Context& ctx) {
   auto o = std::make_shared<RecordOptions>();
   auto* cmd = group.add_subcommand(
       "split", "A split of a security, applied to every account's lots at the start of its day");
+  add_examples(*cmd, {"keel record split --date 2025-06-02 --symbol KESTR --ratio 2",
+                      "keel record split --date 2025-06-02 --symbol KESTR --ratio 0.1"});
   cmd->add_option("--date", o->date, "Day the split takes effect, YYYY-MM-DD")->required();
   cmd->add_option("--symbol", o->symbol, "Security symbol")->required();
   cmd->add_option("--ratio", o->ratio, "New units per old unit: 2 = two-for-one, 0.1 = one-for-ten")
       ->required();
+  add_allow_future_flag(*cmd, o->allow_future);
   cmd->callback([&ctx, o] {
     const Date date = date_option_or_today(o->date, "--date");
     const auto ratio = decimal_option(o->ratio, "--ratio");
     // CLI11's required() accepts an empty value ('--ratio ""').
     if (!ratio) throw InputError("split: --ratio needs a number, such as 2 for two-for-one");
-    auto db = ctx.open_ledger();
-    const auto id = ledger::post_split(db, o->symbol, date, *ratio);
+    auto db = ctx.open_ledger(store::Access::write);
+    const auto id = ledger::post_split(db, o->symbol, date, *ratio, o->allow_future);
     out(fmt::format("split {} posted: {} x{} on {}\n", id, printable(o->symbol), ratio->str(),
                     date.str()));
   });
@@ -200,13 +264,35 @@ void add_void(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<VoidOptions>();
   auto* cmd = app.add_subcommand(
       "void", "Cancel a posted transaction by recording a reversal (nothing is ever deleted)");
+  add_examples(*cmd, {"keel void 7 --reason \"entered twice\""});
   cmd->add_option("ID", o->id, "Transaction id (see 'keel history')")->required();
   cmd->add_option("--reason", o->reason, "Why it is cancelled")->required();
   cmd->callback([&ctx, o] {
-    auto db = ctx.open_ledger();
-    const auto ids = ledger::void_transaction(db, o->id, o->reason);
-    out(fmt::format("voided {} ({} void entr{} recorded)\n", o->id, ids.size(),
-                    ids.size() == 1 ? "y" : "ies"));
+    auto db = ctx.open_ledger(store::Access::write);
+    const auto result = ledger::void_transaction(db, o->id, o->reason);
+    const bool reinstating = result.cancelled.empty();
+    const auto& shown = reinstating ? result.reinstated : result.cancelled;
+    const bool one = shown.size() == 1;
+    auto ids = [](const std::vector<std::int64_t>& list) {
+      std::string text;
+      for (std::size_t i = 0; i < list.size(); ++i)
+        text += (i == 0 ? "" : i + 1 == list.size() ? " and " : ", ") + std::to_string(list[i]);
+      return text;
+    };
+    std::string text = fmt::format("void entr{} {} recorded; ",
+                                   result.void_ids.size() == 1 ? "y" : "ies", ids(result.void_ids));
+    text += reinstating ? fmt::format("{} back in the books:\n", one ? "this is" : "these are")
+                        : fmt::format("{} now out of the books:\n", one ? "this is" : "these are");
+    const auto names = LedgerNames::load(db);
+    const auto voided = voided_ids(store::list_transactions(db));
+    auto table = history_table();
+    for (const auto& t : shown) table.add_row(history_cells(t, names, voided));
+    text += table.render({ctx.colour()});
+    const char* it = one ? "it" : "them";
+    text += reinstating
+                ? fmt::format("To take {} out again, void {}.\n", it, result.void_ids.front())
+                : fmt::format("To put {} back, void {}.\n", it, result.void_ids.front());
+    out(text);
   });
 }
 
@@ -225,6 +311,15 @@ void register_ledger_commands(CLI::App& app, Context& ctx) {
   for (const auto& spec : kKindSpecs) add_record_kind(*record, ctx, spec);
   add_record_split(*record, ctx);
   add_void(app, ctx);
+  // After their subcommands, which would inherit these footers.
+  add_examples(*accounts, {"keel account add Taxable --currency EUR", "keel account list"});
+  add_examples(*securities,
+               {"keel security add KESTR --name \"Kestrel Looms\" --kind stock --currency EUR",
+                "keel security list"});
+  add_examples(*record,
+               {"keel record deposit --date 2025-01-02 --account Taxable --amount 10000",
+                "keel record buy --date 2025-01-06 --account Taxable --symbol KESTR --quantity 100 "
+                "--price 50"});
 }
 
 }  // namespace keel::cli

@@ -1,10 +1,13 @@
 // Commands that look after the ledger file: verify, backup, restore.
 #include <fmt/format.h>
 
+#include <cstdio>
 #include <memory>
 
 #include "cli/context.h"
+#include "cli/options.h"
 #include "core/error.h"
+#include "core/text.h"
 #include "ledger/restore.h"
 #include "ledger/verify.h"
 #include "store/maintenance.h"
@@ -15,12 +18,21 @@ namespace {
 void add_verify(CLI::App& app, Context& ctx) {
   auto* cmd = app.add_subcommand(
       "verify", "Check the ledger file and recount every balance from the raw transactions");
+  add_examples(*cmd, {"keel verify"});
   cmd->callback([&ctx] {
     auto db = ctx.open_ledger();
     const auto report = ledger::verify(db);
     std::string text;
     for (const auto& p : report.problems) text += "problem: " + p + "\n";
     for (const auto& w : report.warnings) text += "warning: " + w + "\n";
+    for (const auto& r : report.reconciled) {
+      text += fmt::format("reconciled: '{}' last on {}", printable(r.account), r.last.str());
+      if (r.locked_through != r.last)
+        text += r.locked_through
+                    ? fmt::format(" (reopened: locked through {})", r.locked_through->str())
+                    : std::string(" (reopened: not locked)");
+      text += "\n";
+    }
     out(text);
     if (!report.ok())
       throw LedgerError(fmt::format("{}: {} problem{} found", db.path().string(),
@@ -36,11 +48,19 @@ void add_backup(CLI::App& app, Context& ctx) {
   auto file = std::make_shared<std::string>();
   auto* cmd = app.add_subcommand("backup",
                                  "Copy the ledger to a new file, safely even while keel is in use");
-  cmd->add_option("FILE", *file, "The backup file to create (must not exist)")->required();
+  add_examples(*cmd, {"keel backup household-2025-12-31.db"});
+  cmd->add_option("FILE", *file,
+                  "The backup file to create (must not exist; '-': standard output, not a "
+                  "terminal)")
+      ->required();
   cmd->callback([&ctx, file] {
     auto db = ctx.open_ledger();
     store::backup_to(db, *file);
-    out(fmt::format("backed up {} to {}\n", db.path().string(), *file));
+    const std::string line = fmt::format("backed up {} to {}\n", db.path().string(), *file);
+    if (*file == "-")
+      std::fputs(line.c_str(), stderr);
+    else
+      out(line);
   });
 }
 
@@ -48,9 +68,12 @@ void add_restore(CLI::App& app, Context& ctx) {
   auto file = std::make_shared<std::string>();
   auto* cmd = app.add_subcommand(
       "restore", "Replace the ledger with a backup, after checking it; the old file is kept");
+  add_examples(*cmd, {"keel restore household-2025-12-31.db"});
   cmd->add_option("FILE", *file, "The backup to restore")->required();
   cmd->callback([&ctx, file] {
     const auto result = ledger::restore_backup(ctx.ledger_path(), *file);
+    for (const auto& stale : result.stale_removed)
+      out(fmt::format("removed {}, left by an interrupted restore\n", stale.string()));
     out(fmt::format("restored {} from {} ({} transactions)\n", ctx.ledger_path().string(), *file,
                     result.transactions));
     if (result.replaced_kept_at)

@@ -5,6 +5,7 @@
 #include <memory>
 
 #include "cli/context.h"
+#include "cli/history_rows.h"
 #include "cli/options.h"
 #include "core/error.h"
 #include "core/json.h"
@@ -44,6 +45,8 @@ struct ViewOptions {
 void add_holdings(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ViewOptions>();
   auto* cmd = app.add_subcommand("holdings", "What is held, at cost and at market, with cash");
+  add_examples(*cmd,
+               {"keel holdings --as-of 2025-12-31", "keel holdings --account Taxable --json"});
   cmd->add_option("--as-of", o->as_of, "Day to value at, YYYY-MM-DD (default: today)");
   add_account_option(*cmd, o->account);
   add_json_flag(*cmd, o->json);
@@ -96,6 +99,7 @@ void add_holdings(CLI::App& app, Context& ctx) {
 void add_lots(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ViewOptions>();
   auto* cmd = app.add_subcommand("lots", "Open tax lots: acquisition day, quantity, cost");
+  add_examples(*cmd, {"keel lots --as-of 2025-12-31 --account Taxable"});
   cmd->add_option("--as-of", o->as_of, "Day, YYYY-MM-DD (default: today)");
   add_account_option(*cmd, o->account);
   add_json_flag(*cmd, o->json);
@@ -134,6 +138,7 @@ void add_lots(CLI::App& app, Context& ctx) {
 void add_gains(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ViewOptions>();
   auto* cmd = app.add_subcommand("gains", "Realized gains, one line per closed lot part");
+  add_examples(*cmd, {"keel gains --year 2025", "keel gains --year 2025 --account Taxable --json"});
   cmd->add_option("--year", o->year, "Only disposals in this calendar year");
   add_account_option(*cmd, o->account);
   add_json_flag(*cmd, o->json);
@@ -177,6 +182,8 @@ void add_gains(CLI::App& app, Context& ctx) {
 void add_history(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ViewOptions>();
   auto* cmd = app.add_subcommand("history", "Posted transactions, voids included");
+  add_examples(*cmd, {"keel history --from 2025-12-01 --to 2025-12-31",
+                      "keel history --account Taxable --json"});
   add_account_option(*cmd, o->account);
   cmd->add_option("--from", o->from, "First day, YYYY-MM-DD");
   cmd->add_option("--to", o->to, "Last day, YYYY-MM-DD");
@@ -188,48 +195,20 @@ void add_history(CLI::App& app, Context& ctx) {
     auto db = ctx.open_ledger();
     std::optional<std::int64_t> only;
     if (!o->account.empty()) only = store::account_named(db, o->account).id;
-    std::map<std::int64_t, std::string> accounts, symbols;
-    for (const auto& a : store::list_accounts(db)) accounts[a.id] = a.name;
-    for (const auto& s : store::list_securities(db)) symbols[s.id] = s.symbol;
+    const auto names = LedgerNames::load(db);
     const auto txns = store::list_transactions(db);
     const auto voided = voided_ids(txns);
-    auto opt = [](const std::optional<Decimal>& d) { return d ? d->str() : std::string(); };
     std::string json;
     JsonWriter j(json);
     j.begin_array();
-    Table t({{"id", Align::right},
-             {"date"},
-             {"account"},
-             {"kind"},
-             {"symbol"},
-             {"quantity", Align::right},
-             {"price", Align::right},
-             {"amount", Align::right},
-             {"fee", Align::right},
-             {"ref"},
-             {"note"}});
+    Table t = history_table();
     for (const auto& x : txns) {
       if (only && x.account_id != *only) continue;
       if (x.date < from || x.date > to) continue;
-      const std::string symbol = x.security_id ? symbols[*x.security_id] : "";
-      std::string note = x.note.value_or("");
-      if (x.voids_id) note = fmt::format("voids {}: {}", *x.voids_id, note);
-      if (voided.count(x.id)) note = "[void] " + note;
-      if (x.link_id) note += fmt::format(" (pair of {})", *x.link_id);
-      if (o->json) {
-        j.begin_object().member("id", static_cast<long long>(x.id)).member("date", x.date.str());
-        j.member("account", accounts[x.account_id]);
-        j.member("kind", std::string(to_string(x.kind))).member("symbol", symbol);
-        j.member("quantity", opt(x.quantity)).member("price", opt(x.price));
-        j.member("amount", opt(x.amount)).member("fee", x.fee);
-        j.member("ref", x.ref.value_or("")).member("note", x.note.value_or(""));
-        j.member("voided", voided.count(x.id) > 0);
-        j.member("voids", x.voids_id).member("link", x.link_id).end_object();
-      } else {
-        t.add_row({std::to_string(x.id), x.date.str(), accounts[x.account_id],
-                   std::string(to_string(x.kind)), symbol, opt(x.quantity), opt(x.price),
-                   opt(x.amount), x.fee.is_zero() ? "" : x.fee.str(), x.ref.value_or(""), note});
-      }
+      if (o->json)
+        history_json(j, x, names, voided);
+      else
+        t.add_row(history_cells(x, names, voided));
     }
     j.end_array();
     out(o->json ? json + "\n" : t.render({ctx.colour()}));
@@ -239,6 +218,7 @@ void add_history(CLI::App& app, Context& ctx) {
 void add_lists(CLI::App& app, Context& ctx) {
   auto json_accounts = std::make_shared<bool>(false);
   auto* accounts = app.get_subcommand("account")->add_subcommand("list", "List accounts");
+  add_examples(*accounts, {"keel account list", "keel account list --json"});
   add_json_flag(*accounts, *json_accounts);
   accounts->callback([&ctx, json_accounts] {
     auto db = ctx.open_ledger();
@@ -259,6 +239,7 @@ void add_lists(CLI::App& app, Context& ctx) {
 
   auto json_securities = std::make_shared<bool>(false);
   auto* securities = app.get_subcommand("security")->add_subcommand("list", "List securities");
+  add_examples(*securities, {"keel security list", "keel security list --json"});
   add_json_flag(*securities, *json_securities);
   securities->callback([&ctx, json_securities] {
     auto db = ctx.open_ledger();

@@ -23,6 +23,8 @@ void add_returns(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ReturnsOptions>();
   auto* cmd = app.add_subcommand(
       "returns", "Time- and money-weighted returns, risk and a monthly table over a period");
+  add_examples(*cmd,
+               {"keel returns --year 2025 --benchmark ZXTR", "keel returns --period 3y --monthly"});
   add_account_option(*cmd, o->account, "Only this account (default: the whole ledger)");
   cmd->add_option("--from", o->from, "First day of the period, YYYY-MM-DD");
   cmd->add_option("--to", o->to, "Last day of the period, YYYY-MM-DD");

@@ -25,6 +25,8 @@ void add_propose(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ProposeOptions>();
   auto* cmd = app.add_subcommand(
       "propose", "A rule's orders for a day: the screen, the orders and the result");
+  add_examples(*cmd, {"keel propose --rule rule.toml --as-of 2025-12-31",
+                      "keel propose --rule rule.toml --save"});
   cmd->add_option("--rule", o->rule, "Rule file (TOML; see docs/rules.md)")->required();
   cmd->add_option("--as-of", o->as_of,
                   "Day to propose for, YYYY-MM-DD (default: the latest day with a close)");
@@ -33,7 +35,7 @@ void add_propose(CLI::App& app, Context& ctx) {
   cmd->callback([&ctx, o] {
     const auto as_of = date_option(o->as_of, "--as-of");
     const auto rule = rules::load_rule(o->rule);
-    auto db = ctx.open_ledger();
+    auto db = ctx.open_ledger(o->save ? store::Access::write : store::Access::read);
     const auto proposal = rules::propose(db, rule, as_of);
     std::optional<std::int64_t> id;
     if (o->save) id = rules::save(db, rule, proposal);
@@ -61,10 +63,12 @@ std::int64_t id_option(const std::string& text) {
 
 void add_proposals(CLI::App& app, Context& ctx) {
   auto* group = app.add_subcommand("proposals", "Saved proposals");
+  add_examples(*group, {"keel proposals list", "keel proposals show 1"});
   group->require_subcommand(1);
 
   auto lo = std::make_shared<ProposalsOptions>();
   auto* list = group->add_subcommand("list", "Every saved proposal, oldest first");
+  add_examples(*list, {"keel proposals list", "keel proposals list --json"});
   add_json_flag(*list, lo->json);
   list->callback([&ctx, lo] {
     auto db = ctx.open_ledger();
@@ -76,6 +80,7 @@ void add_proposals(CLI::App& app, Context& ctx) {
   auto so = std::make_shared<ProposalsOptions>();
   auto* show = group->add_subcommand(
       "show", "A saved proposal's orders against the trades posted since it was saved");
+  add_examples(*show, {"keel proposals show 1", "keel proposals show 1 --json"});
   show->add_option("ID", so->id, "Proposal number (see 'keel proposals list')")->required();
   add_json_flag(*show, so->json);
   show->callback([&ctx, so] {

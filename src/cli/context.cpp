@@ -2,8 +2,11 @@
 
 #include <fmt/format.h>
 
+#include <cerrno>
 #include <cstdlib>
 
+#include "core/error.h"
+#include "core/files.h"
 #include "report/table.h"
 
 namespace keel::cli {
@@ -17,9 +20,9 @@ std::filesystem::path Context::ledger_path() const {
          "keel.db";
 }
 
-store::Database Context::open_ledger(bool create) const {
+store::Database Context::open_ledger(store::Access access) const {
   store::OpenOptions options;
-  options.create = create;
+  options.access = access;
   options.allow_unsafe_permissions = allow_unsafe_permissions;
   return store::Database::open(ledger_path(), options);
 }
@@ -29,7 +32,13 @@ bool Context::colour() const {
 }
 
 void out(const std::string& text) {
-  std::fwrite(text.data(), 1, text.size(), stdout);
+  if (std::fwrite(text.data(), 1, text.size(), stdout) != text.size())
+    throw InputError(fmt::format("cannot write to standard output: {}", os_error_text(errno)));
+}
+
+void finish_output() {
+  if (std::fflush(stdout) != 0 || std::ferror(stdout))
+    throw InputError(fmt::format("cannot write to standard output: {}", os_error_text(errno)));
 }
 
 }  // namespace keel::cli

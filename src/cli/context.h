@@ -8,6 +8,7 @@
 #include <functional>
 #include <string>
 
+#include "io/errors.h"
 #include "store/database.h"
 
 namespace keel::cli {
@@ -17,12 +18,29 @@ struct Context {
   bool allow_unsafe_permissions = false;
 
   std::filesystem::path ledger_path() const;
-  store::Database open_ledger(bool create = false) const;
+  // Reports read (and still work where the ledger cannot be written);
+  // commands that change it ask for Access::write, init for Access::create.
+  store::Database open_ledger(store::Access access = store::Access::read) const;
   bool colour() const;  // stdout is a terminal and NO_COLOR is not set
 };
 
-// Prints text to stdout exactly as given.
+// Prints text to stdout exactly as given; a failed write is an InputError
+// ("cannot write to standard output: disk full").
 void out(const std::string& text);
+// Flushes stdout at the end of a command, with the same error.
+void finish_output();
+
+// Runs `read`; a refused file's lines (one per bad row) go to stderr before
+// the error itself reaches main().
+template <typename F>
+auto printing_refusals(F&& read) {
+  try {
+    return read();
+  } catch (const io::ImportRefused& e) {
+    for (const auto& line : e.lines()) std::fputs((line + "\n").c_str(), stderr);
+    throw;
+  }
+}
 
 // Each command family registers its subcommands on the root app. A
 // subcommand's callback runs inside main()'s error handling.
@@ -36,6 +54,7 @@ void register_demo_commands(CLI::App& app, Context& context);
 void register_rules_commands(CLI::App& app, Context& context);
 void register_backtest_commands(CLI::App& app, Context& context);
 void register_statement_commands(CLI::App& app, Context& context);
+void register_reconcile_commands(CLI::App& app, Context& context);
 void register_reference_command(CLI::App& app);  // register last: it reads the others
 
 }  // namespace keel::cli

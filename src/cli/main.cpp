@@ -3,11 +3,16 @@
 #include <fmt/format.h>
 
 #include <CLI/CLI.hpp>
+#include <csignal>
 #include <cstdio>
 
 #include "cli/context.h"
+#include "cli/mistakes.h"
+#include "cli/options.h"
 #include "core/error.h"
+#include "core/files.h"
 #include "core/text.h"
+#include "store/sqlite_error.h"
 
 namespace {
 
@@ -24,6 +29,9 @@ int main(int argc, char** argv) {
       "back-tests and year-end statements.",
       "keel"};
   app.require_subcommand(1);
+  // Options a command does not know go up to the commands above it, so the
+  // global options may follow the command too: keel holdings --db x.db.
+  app.fallthrough();
   app.option_defaults()->always_capture_default();
   app.set_version_flag("--version", "keel 0.1.0");
   app.add_option("--db", context.db_path,
@@ -42,13 +50,31 @@ int main(int argc, char** argv) {
   keel::cli::register_rules_commands(app, context);
   keel::cli::register_backtest_commands(app, context);
   keel::cli::register_statement_commands(app, context);
+  keel::cli::register_reconcile_commands(app, context);
   keel::cli::register_reference_command(app);
+  // Before any command runs: no file keel writes may be the ledger.
+  app.parse_complete_callback([&context] { keel::protect_from_output(context.ledger_path()); });
+  // A file size limit (ulimit -f) then fails a write with EFBIG, reported like
+  // a full disk, instead of killing keel mid-write.
+  std::signal(SIGXFSZ, SIG_IGN);
+  // Set last: commands added before would inherit it.
+  keel::cli::add_examples(app, {"keel demo", "keel help record buy"});
 
   try {
     app.parse(argc, argv);
+    keel::cli::finish_output();
   } catch (const CLI::ParseError& e) {
+    if (dynamic_cast<const CLI::ExtrasError*>(&e) || dynamic_cast<const CLI::RequiredError*>(&e))
+      if (const auto why =
+              keel::cli::explain_refusal(app, std::vector<std::string>(argv + 1, argv + argc))) {
+        std::fputs(fmt::format("keel: error: {}\n", *why).c_str(), stderr);
+        return keel::kExitUsage;
+      }
     const int code = app.exit(e);
     return code == 0 ? 0 : keel::kExitUsage;
+  } catch (const keel::cli::UsageError& e) {
+    std::fputs(fmt::format("keel: error: {}\n", e.what()).c_str(), stderr);
+    return keel::kExitUsage;
   } catch (const keel::InputError& e) {
     report_error(e.what());
     return keel::kExitInput;
@@ -56,7 +82,7 @@ int main(int argc, char** argv) {
     report_error(e.what());
     return keel::kExitLedger;
   } catch (const SQLite::Exception& e) {
-    report_error(fmt::format("ledger database: {}", e.what()));
+    report_error(keel::store::ledger_error(e).what());
     return keel::kExitLedger;
   } catch (const std::exception& e) {
     report_error(fmt::format("internal error (please report): {}", e.what()));

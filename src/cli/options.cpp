@@ -9,6 +9,32 @@
 
 namespace keel::cli {
 
+namespace {
+constexpr std::string_view kExamplesHeading = "Examples:";
+constexpr std::string_view kExampleIndent = "  ";
+}  // namespace
+
+void add_examples(CLI::App& cmd, std::initializer_list<const char*> lines) {
+  std::string footer(kExamplesHeading);
+  for (const char* line : lines) footer += fmt::format("\n{}{}", kExampleIndent, line);
+  cmd.footer(footer);
+}
+
+std::vector<std::string> examples(const CLI::App& cmd) {
+  std::vector<std::string> lines;
+  const std::string footer = cmd.get_footer();
+  if (!footer.starts_with(kExamplesHeading)) return lines;
+  std::size_t start = kExamplesHeading.size() + 1;
+  while (start < footer.size()) {
+    std::size_t end = footer.find('\n', start);
+    if (end == std::string::npos) end = footer.size();
+    lines.push_back(
+        footer.substr(start + kExampleIndent.size(), end - start - kExampleIndent.size()));
+    start = end + 1;
+  }
+  return lines;
+}
+
 void add_json_flag(CLI::App& cmd, bool& json) {
   cmd.add_flag("--json", json, "Print JSON for scripts");
 }

@@ -1,4 +1,5 @@
-// Options many commands share, declared and parsed one way everywhere.
+// Options many commands share, declared and parsed one way everywhere, and
+// the examples that end each command's help.
 //  - add_json_flag() and add_account_option() declare --json and --account
 //    with the wording every command uses (the reference in docs/commands.md
 //    is generated from it).
@@ -9,14 +10,23 @@
 #pragma once
 
 #include <CLI/CLI.hpp>
+#include <initializer_list>
 #include <optional>
 #include <string>
 #include <string_view>
+#include <vector>
 
 #include "core/date.h"
 #include "core/decimal.h"
 
 namespace keel::cli {
+
+// Ends the command's --help with one or two example command lines, each
+// starting "keel <the command>"; the reference and the manual page show them
+// too (examples()). A group's subcommands inherit its footer when created,
+// so each command sets its own.
+void add_examples(CLI::App& cmd, std::initializer_list<const char*> lines);
+std::vector<std::string> examples(const CLI::App& cmd);
 
 void add_json_flag(CLI::App& cmd, bool& json);
 void add_account_option(CLI::App& cmd, std::string& account,

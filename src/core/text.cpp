@@ -1,6 +1,8 @@
 #include "core/text.h"
 
 #include <fmt/format.h>
+#include <unicode/uchar.h>
+#include <unicode/utf8.h>
 
 #include "core/error.h"
 
@@ -85,6 +87,96 @@ void check_name(std::string_view field, std::string_view value, std::size_t max_
       throw InputError(
           fmt::format("{} '{}' contains a control character", field, printable(value)));
   }
+}
+
+namespace {
+
+// "U+202E RIGHT-TO-LEFT OVERRIDE" (the name from ICU; the number alone if it has none).
+std::string describe(UChar32 c) {
+  char name[128];
+  UErrorCode status = U_ZERO_ERROR;
+  const int32_t n = u_charName(c, U_UNICODE_CHAR_NAME, name, sizeof name, &status);
+  if (U_FAILURE(status) || n <= 0) return fmt::format("U+{:04X}", static_cast<unsigned>(c));
+  return fmt::format("U+{:04X} {}", static_cast<unsigned>(c), std::string_view(name, n));
+}
+
+bool invisible(UChar32 c) {
+  const auto type = u_charType(c);
+  return u_hasBinaryProperty(c, UCHAR_DEFAULT_IGNORABLE_CODE_POINT) || type == U_FORMAT_CHAR ||
+         type == U_LINE_SEPARATOR || type == U_PARAGRAPH_SEPARATOR;
+}
+
+// Calls f(code point, offset, length) for each character of valid UTF-8 text
+// until f returns false.
+template <typename F>
+void each_code_point(std::string_view s, F&& f) {
+  const auto* bytes = reinterpret_cast<const uint8_t*>(s.data());
+  const auto length = static_cast<int32_t>(s.size());
+  int32_t i = 0;
+  while (i < length) {
+    const int32_t start = i;
+    UChar32 c = 0;
+    U8_NEXT(bytes, i, length, c);
+    if (!f(c, static_cast<std::size_t>(start), static_cast<std::size_t>(i - start))) return;
+  }
+}
+
+}  // namespace
+
+std::string mark_invisible(std::string_view s) {
+  if (!valid_utf8(s)) return printable(s);
+  std::string out;
+  each_code_point(s, [&](UChar32 c, std::size_t at, std::size_t n) {
+    out += invisible(c) ? fmt::format("<U+{:04X}>", static_cast<unsigned>(c))
+                        : printable(s.substr(at, n));
+    return true;
+  });
+  return out;
+}
+
+std::optional<std::string> invisible_code_point(std::string_view text) {
+  if (!valid_utf8(text)) return std::nullopt;
+  std::optional<std::string> found;
+  each_code_point(text, [&](UChar32 c, std::size_t, std::size_t) {
+    if (invisible(c)) found = describe(c);
+    return !found;
+  });
+  return found;
+}
+
+void check_identifier(std::string_view field, std::string_view value, std::size_t max_bytes) {
+  check_name(field, value, max_bytes);
+  if (const auto which = invisible_code_point(value))
+    throw InputError(fmt::format(
+        "{} '{}' contains {}, an invisible character; names may not contain invisible or "
+        "direction-changing characters",
+        field, mark_invisible(value), *which));
+  UChar32 first = -1, last = -1;
+  each_code_point(value, [&](UChar32 c, std::size_t, std::size_t) {
+    if (first < 0) first = c;
+    last = c;
+    return true;
+  });
+  for (const auto& [c, where] : {std::pair{first, "starts"}, std::pair{last, "ends"}})
+    if (u_isUWhiteSpace(c))
+      throw InputError(
+          fmt::format("{} '{}' {} with white space ({}); names may not start or end "
+                      "with it",
+                      field, printable(value), where, describe(c)));
+}
+
+std::string to_valid_utf8(std::string_view text) {
+  if (valid_utf8(text)) return std::string(text);
+  std::string out;
+  out.reserve(text.size() + 8);
+  each_code_point(text, [&](UChar32 c, std::size_t at, std::size_t n) {
+    if (c < 0)
+      out += "\xEF\xBF\xBD";
+    else
+      out.append(text.substr(at, n));
+    return true;
+  });
+  return out;
 }
 
 std::string ascii_lower(std::string_view text) {

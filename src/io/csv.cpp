@@ -276,4 +276,54 @@ void append_csv_record(std::string& out, const std::vector<std::string_view>& fi
   out.append(crlf ? "\r\n" : "\n");
 }
 
+namespace {
+
+bool formula_start(char c) {
+  return c == '=' || c == '+' || c == '-' || c == '@' || c == '\t' || c == '\r';
+}
+
+bool plain_number(std::string_view s) {
+  std::size_t i = s.size() > 1 && s[0] == '-' ? 1 : 0;
+  const std::size_t digits = i;
+  while (i < s.size() && s[i] >= '0' && s[i] <= '9') ++i;
+  if (i == digits) return false;
+  if (i == s.size()) return true;
+  if (s[i] != '.' || i + 1 == s.size()) return false;
+  for (++i; i < s.size(); ++i)
+    if (s[i] < '0' || s[i] > '9') return false;
+  return true;
+}
+
+bool escaped_apostrophe(std::string_view s) {
+  return s.size() >= 2 && s[0] == '\'' && (formula_start(s[1]) || s[1] == '\'');
+}
+
+bool needs_guard(std::string_view s) {
+  return !s.empty() && ((formula_start(s[0]) && !plain_number(s)) || escaped_apostrophe(s));
+}
+
+}  // namespace
+
+std::string_view formula_guarded(std::string_view cell, std::string& scratch) {
+  if (!needs_guard(cell)) return cell;
+  scratch.assign(1, '\'');
+  scratch.append(cell);
+  return scratch;
+}
+
+std::string_view formula_unguarded(std::string_view cell) {
+  return escaped_apostrophe(cell) ? cell.substr(1) : cell;
+}
+
+void append_export_record(std::string& out, const std::vector<std::string_view>& fields) {
+  bool any = false;
+  for (const auto f : fields) any = any || needs_guard(f);
+  if (!any) return append_csv_record(out, fields);
+  std::vector<std::string> scratch(fields.size());
+  std::vector<std::string_view> guarded(fields.size());
+  for (std::size_t i = 0; i < fields.size(); ++i)
+    guarded[i] = formula_guarded(fields[i], scratch[i]);
+  append_csv_record(out, guarded);
+}
+
 }  // namespace keel::io

@@ -111,4 +111,18 @@ class CsvReader {
 void append_csv_record(std::string& out, const std::vector<std::string_view>& fields,
                        bool crlf = false);
 
+// Cells a spreadsheet cannot run, that still import back exactly (the rule
+// of docs/import-formats.md, "Spreadsheets"):
+//  - formula_guarded(): a cell starting with = + - @ TAB or CR, or with an
+//    apostrophe followed by one of those or by another apostrophe, gets one
+//    more apostrophe in front; a plain number (-?digits[.digits], keel's
+//    canonical form) is left alone, so numbers stay numbers. Other cells come
+//    back as they are. `scratch` holds a guarded cell.
+//  - formula_unguarded(): drops one leading apostrophe when the next
+//    character is = + - @ TAB CR or an apostrophe; unguard(guard(x)) == x.
+//  - append_export_record(): append_csv_record() of the guarded cells.
+std::string_view formula_guarded(std::string_view cell, std::string& scratch);
+std::string_view formula_unguarded(std::string_view cell);
+void append_export_record(std::string& out, const std::vector<std::string_view>& fields);
+
 }  // namespace keel::io

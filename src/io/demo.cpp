@@ -9,6 +9,7 @@
 
 #include "core/error.h"
 #include "core/text.h"
+#include "io/demo_data.h"
 #include "io/ledger_intake.h"
 #include "io/market_intake.h"
 
@@ -44,7 +45,66 @@ struct TomlFile {
   }
 };
 
+// The bytes of one built-in file; a name missing from the build is a bug.
+std::string_view built_in_file(std::string_view name) {
+  for (const auto& f : embedded_demo_files())
+    if (f.name == name) return f.text;
+  throw std::logic_error(fmt::format("the built-in demo data has no {}", name));
+}
+
+constexpr std::string_view kBuiltInFolder = "built-in demo data";
+
+// scenario.toml's keys; `name` names the file in messages.
+DemoScenario parse_scenario(const std::string& text, const std::string& name) {
+  const TomlFile file{name};
+  toml::table root;
+  try {
+    root = toml::parse(text, file.name);
+  } catch (const toml::parse_error& e) {
+    throw InputError(fmt::format("{}:{}:{}: not valid TOML: {}", printable(file.name),
+                                 e.source().begin.line, e.source().begin.column,
+                                 printable(e.description())));
+  }
+  for (const auto& [k, v] : root) {
+    const auto key = k.str();
+    if (key != "household" && key != "first_day" && key != "last_day" && key != "benchmark" &&
+        key != "accounts")
+      file.fail(v, key,
+                "unknown key; expected one of: household, first_day, last_day, benchmark, "
+                "accounts");
+  }
+  DemoScenario s;
+  s.household = file.text(root, "household");
+  s.first_day = file.date(root, "first_day");
+  s.last_day = file.date(root, "last_day");
+  if (s.last_day < s.first_day)
+    file.fail(file.need(root, "last_day"), "last_day", "is before first_day");
+  s.benchmark = file.text(root, "benchmark");
+  const toml::node& accounts = file.need(root, "accounts");
+  const toml::array* list = accounts.as_array();
+  if (!list || list->empty()) file.fail(accounts, "accounts", "must be a list of account names");
+  for (const auto& a : *list) {
+    auto name = a.value<std::string>();
+    if (!name || name->empty()) file.fail(a, "accounts", "must be a list of account names");
+    s.accounts.push_back(*name);
+  }
+  return s;
+}
+
 }  // namespace
+
+fs::path DemoScenario::rule_file(const fs::path& ledger_dir) const {
+  return built_in() ? ledger_dir / "rule.toml" : dir / ".." / "rule.toml";
+}
+
+DemoScenario built_in_scenario() {
+  return parse_scenario(std::string(built_in_file("scenario.toml")),
+                        (fs::path(kBuiltInFolder) / "scenario.toml").string());
+}
+
+std::string_view built_in_rule() {
+  return built_in_file("rule.toml");
+}
 
 DemoScenario load_scenario(const fs::path& dir, std::string_view option) {
   std::error_code ec;
@@ -64,47 +124,17 @@ DemoScenario load_scenario(const fs::path& dir, std::string_view option) {
                     option, printable(dir.string())));
   std::stringstream buffer;
   buffer << in.rdbuf();
-  const TomlFile file{toml_path.string()};
-  toml::table root;
-  try {
-    root = toml::parse(buffer.str(), file.name);
-  } catch (const toml::parse_error& e) {
-    throw InputError(fmt::format("{}:{}:{}: not valid TOML: {}", printable(file.name),
-                                 e.source().begin.line, e.source().begin.column,
-                                 printable(e.description())));
-  }
-  for (const auto& [k, v] : root) {
-    const auto key = k.str();
-    if (key != "household" && key != "first_day" && key != "last_day" && key != "benchmark" &&
-        key != "accounts")
-      file.fail(v, key,
-                "unknown key; expected one of: household, first_day, last_day, benchmark, "
-                "accounts");
-  }
-  DemoScenario s;
+  DemoScenario s = parse_scenario(buffer.str(), toml_path.string());
   s.dir = dir;
-  s.household = file.text(root, "household");
-  s.first_day = file.date(root, "first_day");
-  s.last_day = file.date(root, "last_day");
-  if (s.last_day < s.first_day)
-    file.fail(file.need(root, "last_day"), "last_day", "is before first_day");
-  s.benchmark = file.text(root, "benchmark");
-  const toml::node& accounts = file.need(root, "accounts");
-  const toml::array* list = accounts.as_array();
-  if (!list || list->empty()) file.fail(accounts, "accounts", "must be a list of account names");
-  for (const auto& a : *list) {
-    auto name = a.value<std::string>();
-    if (!name || name->empty()) file.fail(a, "accounts", "must be a list of account names");
-    s.accounts.push_back(*name);
-  }
   return s;
 }
 
 std::vector<DemoImport> import_scenario(store::Database& db, const DemoScenario& scenario) {
   std::vector<DemoImport> done;
-  const ImportOptions options;  // keel's own layouts; nothing to map
+  ImportOptions options;  // keel's own layouts; nothing to map
   for (const auto& f : kDemoFiles) {
-    const fs::path path = scenario.dir / f.file;
+    const fs::path path = (scenario.built_in() ? fs::path(kBuiltInFolder) : scenario.dir) / f.file;
+    if (scenario.built_in()) options.content = built_in_file(f.file);
     DemoImport d{std::string(f.what), path.string()};
     if (f.what == "accounts" || f.what == "transactions") {
       const auto sum = f.what == "accounts" ? import_accounts(db, path, options)
@@ -126,10 +156,13 @@ std::vector<std::string> expand_placeholders(const std::vector<std::string>& arg
                                              const std::filesystem::path& ledger_dir) {
   const Date month_start = Date::from_ymd(scenario.last_day.year(), scenario.last_day.month(), 1);
   const std::pair<std::string_view, std::string> values[] = {
-      {"first_day", scenario.first_day.str()}, {"last_day", scenario.last_day.str()},
-      {"month_start", month_start.str()},      {"year", std::to_string(scenario.last_day.year())},
-      {"benchmark", scenario.benchmark},       {"ledger_dir", ledger_dir.string()},
-      {"scenario_dir", scenario.dir.string()}};
+      {"first_day", scenario.first_day.str()},
+      {"last_day", scenario.last_day.str()},
+      {"month_start", month_start.str()},
+      {"year", std::to_string(scenario.last_day.year())},
+      {"benchmark", scenario.benchmark},
+      {"ledger_dir", ledger_dir.string()},
+      {"rule", scenario.rule_file(ledger_dir).string()}};
   std::vector<std::string> out;
   for (const auto& arg : args) {
     std::string text;

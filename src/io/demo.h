@@ -1,24 +1,31 @@
-// The invented demo scenario (examples/demo): finding its files, reading its
-// scenario.toml, and loading it into a fresh ledger through the ordinary
-// importers.
+// The invented demo scenario (examples/demo): the copy built into keel or a
+// folder of its files, reading its scenario.toml, and loading it into a fresh
+// ledger through the ordinary importers.
 //
 // Contract
 //  - kDemoFiles lists the scenario's CSV files in import order: accounts,
 //    securities, prices, metrics, distributions, splits, transactions.
+//  - built_in_scenario() reads the scenario compiled into keel (io/demo_data.h);
+//    its files are named "built-in demo data/<file>" in messages and the
+//    import log.
 //  - load_scenario(dir, option) checks that dir is a folder holding
 //    scenario.toml and every CSV file, and reads scenario.toml (keys
 //    household, first_day, last_day, benchmark, accounts; no others). Throws
 //    InputError naming `option` (the flag the folder came from) and the
 //    missing file, or naming scenario.toml's line and key for a bad value.
-//  - import_scenario(db, scenario) imports every file in order, each in its
-//    own write transaction (io::import_accounts, import_market,
-//    import_transactions). An importer's ImportRefused or InputError passes
-//    through unchanged; files imported before it stay in the ledger, so
-//    callers give it a ledger of their own (the demo's fresh one).
+//  - import_scenario(db, scenario) imports every file in order (from the
+//    folder, or the built-in bytes), each in its own write transaction (io::import_accounts,
+//    import_market, import_transactions). An importer's ImportRefused or InputError passes through
+//    unchanged; files imported before it stay in the ledger, so callers give it a ledger of their
+//    own (the demo's fresh one).
 //  - expand_placeholders() replaces {first_day}, {last_day}, {month_start}
-//    (first day of last_day's month), {year} (last_day's year) and
-//    {benchmark} in each argument; any other {name} is a logic_error (a
-//    wrong step list is a bug, not a user mistake).
+//    (first day of last_day's month), {year} (last_day's year), {benchmark},
+//    {ledger_dir} and {rule} in each argument; any other {name} is a
+//    logic_error (a wrong step list is a bug, not a user mistake).
+//  - rule_file(): the example rule of a scenario folder is rule.toml beside
+//    it (DIR/../rule.toml); the built-in scenario's rule is written by the
+//    demo beside its ledger (LEDGER_DIR/rule.toml, text from
+//    built_in_rule()).
 #pragma once
 
 #include <array>
@@ -46,15 +53,20 @@ inline constexpr std::array<DemoFile, 7> kDemoFiles{{{"accounts", "accounts.csv"
                                                      {"transactions", "transactions.csv"}}};
 
 struct DemoScenario {
-  std::filesystem::path dir;
+  std::filesystem::path dir;  // the scenario folder; empty for the built-in scenario
   std::string household;
   Date first_day;
   Date last_day;
   std::string benchmark;  // symbol of the index the returns are compared with
   std::vector<std::string> accounts;
+
+  bool built_in() const { return dir.empty(); }
+  std::filesystem::path rule_file(const std::filesystem::path& ledger_dir) const;
 };
 
 DemoScenario load_scenario(const std::filesystem::path& dir, std::string_view option);
+DemoScenario built_in_scenario();
+std::string_view built_in_rule();  // examples/demo/rule.toml
 
 struct DemoImport {
   std::string what;
@@ -65,7 +77,7 @@ struct DemoImport {
 std::vector<DemoImport> import_scenario(store::Database& db, const DemoScenario& scenario);
 
 // {ledger_dir} is the folder of the demo ledger (for files the demo writes);
-// {scenario_dir} the folder holding the scenario's data.
+// {rule} the scenario's rule_file() there.
 std::vector<std::string> expand_placeholders(const std::vector<std::string>& args,
                                              const DemoScenario& scenario,
                                              const std::filesystem::path& ledger_dir = {});

@@ -10,7 +10,7 @@ namespace keel::io {
 
 void ErrorList::add(std::uint64_t line, std::string_view column, std::string reason) {
   if (full()) return;
-  entries_.push_back({line, std::string(column), std::move(reason)});
+  entries_.push_back({line, std::string(column), std::move(reason), std::nullopt});
 }
 
 void ErrorList::sort_by_line() {
@@ -18,11 +18,20 @@ void ErrorList::sort_by_line() {
                    [](const LocatedError& a, const LocatedError& b) { return a.line < b.line; });
 }
 
+void ErrorList::add(std::uint64_t line, std::string_view column, std::string_view value,
+                    std::string reason) {
+  if (full()) return;
+  entries_.push_back({line, std::string(column), std::move(reason), std::string(value)});
+}
+
 std::string ErrorList::format(const LocatedError& e) const {
   std::string out = printable(file_);
   if (e.line > 0) out += fmt::format(":{}", e.line);
   out += ": ";
-  if (!e.column.empty()) out += fmt::format("column '{}': ", printable(e.column));
+  if (!e.column.empty() && e.value)
+    out += fmt::format("column '{}' = {}: ", printable(e.column), printable(*e.value));
+  else if (!e.column.empty())
+    out += fmt::format("column '{}': ", printable(e.column));
   out += printable(e.reason);
   return out;
 }

@@ -1,7 +1,8 @@
 // Located errors: what is wrong with one input file, line by line.
 //
 // Contract
-//  - add() records "FILE:LINE: column 'x': reason" (column and line optional);
+//  - add() records "FILE:LINE: column 'x': reason" (column and line optional),
+//    or "FILE:LINE: column 'x' = VALUE: reason" when given the cell's value;
 //    at most `limit` entries are kept (50 by default) and full() says when the
 //    caller should stop reading.
 //  - raise() throws ImportRefused carrying every entry; its what() is a
@@ -10,6 +11,7 @@
 #pragma once
 
 #include <cstdint>
+#include <optional>
 #include <string>
 #include <string_view>
 #include <vector>
@@ -22,6 +24,7 @@ struct LocatedError {
   std::uint64_t line = 0;  // 0: the file as a whole
   std::string column;      // empty: not about one column
   std::string reason;
+  std::optional<std::string> value;  // the cell as written, shown as "column 'x' = value"
 };
 
 class ImportRefused : public InputError {
@@ -41,6 +44,7 @@ class ErrorList {
       : file_(std::move(file)), limit_(limit) {}
 
   void add(std::uint64_t line, std::string_view column, std::string reason);
+  void add(std::uint64_t line, std::string_view column, std::string_view value, std::string reason);
   // Orders entries by line (stable), for errors found out of file order.
   void sort_by_line();
   bool full() const { return entries_.size() >= limit_; }

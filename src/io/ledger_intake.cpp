@@ -2,6 +2,7 @@
 
 #include <fmt/format.h>
 
+#include <algorithm>
 #include <map>
 #include <set>
 #include <unordered_map>
@@ -12,11 +13,16 @@
 #include "core/text.h"
 #include "io/csv.h"
 #include "io/errors.h"
+#include "io/ofx.h"
 #include "io/sha256.h"
 #include "io/table.h"
+#include "ledger/accounts.h"
+#include "ledger/period.h"
 #include "ledger/posting.h"
+#include "model/security.h"
 #include "store/ledger_store.h"
 #include "store/market_data.h"
+#include "store/period_store.h"
 
 namespace keel::io {
 namespace {
@@ -37,17 +43,38 @@ enum TxnColumn : std::size_t {
   kToAccount,
   kLots,
   kAcquired,
+  kCurrency,
+  kRate,
 };
 
+// Columns an export writes; an import also reads currency and rate.
+constexpr std::size_t kExportedColumns = kAcquired + 1;
+
 const std::vector<ColumnSpec>& transaction_columns() {
-  static const std::vector<ColumnSpec> columns = {
-      {"date"},           {"account"},           {"kind"},
-      {"symbol", false},  {"quantity", false},   {"price", false},
-      {"amount", false},  {"fee", false},        {"ref", false},
-      {"note", false},    {"to_account", false}, {"lots", false},
-      {"acquired", false}};
+  static const std::vector<ColumnSpec> columns = {{"date"},
+                                                  {"account"},
+                                                  {"kind"},
+                                                  {"symbol", false},
+                                                  {"quantity", false},
+                                                  {"price", false},
+                                                  {"amount", false},
+                                                  {"fee", false},
+                                                  {"ref", false},
+                                                  {"note", false},
+                                                  {"to_account", false},
+                                                  {"lots", false},
+                                                  {"acquired", false},
+                                                  {"currency", false},
+                                                  {"rate", false}};
   return columns;
 }
+
+// The request's field names (as ShapeError gives them) and their columns.
+constexpr std::pair<const char*, TxnColumn> kFieldColumns[] = {
+    {"symbol", kSymbol},        {"quantity", kQuantity}, {"price", kPrice},
+    {"amount", kAmount},        {"fee", kFee},           {"ref", kRef},
+    {"to-account", kToAccount}, {"lots", kLots},         {"acquired", kAcquired},
+};
 
 Mapping checked_mapping(const ImportOptions& options, std::string_view what) {
   Mapping mapping = options.mapping ? *options.mapping : Mapping{};
@@ -76,20 +103,69 @@ std::string content_key(const ledger::PostRequest& r) {
   return content_key(t, r.symbol.value_or(""));
 }
 
-// Keys of every booked row (voided ones too: a line once booked stays booked).
+// A booked row as a request would give it, field by field, for comparing a
+// re-imported line with what the ledger holds. The note is left out: a
+// broker's memo, or a note typed by hand, says nothing about the money.
+using Fields = std::vector<std::pair<std::string, std::string>>;
+
+Fields fields_of(const ledger::PostRequest& r) {
+  auto opt = [](const std::optional<Decimal>& d) { return d ? d->str() : std::string(); };
+  return {{"date", r.date.str()},
+          {"kind", std::string(to_string(r.kind))},
+          {"symbol", r.symbol.value_or("")},
+          {"quantity", opt(r.quantity)},
+          {"price", opt(r.price)},
+          {"amount", opt(r.amount)},
+          {"fee", r.fee && !r.fee->is_zero() ? r.fee->str() : ""},
+          {"to_account", r.to_account.value_or("")},
+          {"lots", r.lots.empty() ? "" : format_lot_picks(r.lots)},
+          {"acquired", r.acquired ? r.acquired->str() : ""}};
+}
+
+struct BookedRow {
+  std::int64_t id = 0;
+  Fields fields;
+};
+
+// Keys of every booked row (voided ones too: a line once booked stays booked),
+// and for each ref its live row.
 struct BookedKeys {
   std::set<std::pair<std::int64_t, std::string>> refs;
   std::set<std::pair<std::int64_t, std::string>> contents;
+  std::map<std::pair<std::int64_t, std::string>, BookedRow> live;
 
   static BookedKeys load(store::Database& db) {
-    std::unordered_map<std::int64_t, std::string> symbols;
+    std::unordered_map<std::int64_t, std::string> symbols, accounts;
     for (const auto& s : store::list_securities(db)) symbols[s.id] = s.symbol;
+    for (const auto& a : store::list_accounts(db)) accounts[a.id] = a.name;
+    const auto txns = store::list_transactions(db);
+    const auto voided = voided_ids(txns);
+    std::unordered_map<std::int64_t, std::int64_t> receiver_of;
+    for (const auto& t : txns)
+      if (t.link_id) receiver_of[*t.link_id] = t.account_id;
     BookedKeys keys;
-    for (const auto& t : store::list_transactions(db)) {
+    for (const auto& t : txns) {
       if (t.kind == TxnKind::void_entry || t.link_id) continue;
-      if (t.ref) keys.refs.emplace(t.account_id, *t.ref);
-      keys.contents.emplace(t.account_id,
-                            content_key(t, t.security_id ? symbols[*t.security_id] : ""));
+      const std::string symbol = t.security_id ? symbols[*t.security_id] : "";
+      if (t.ref) {
+        keys.refs.emplace(t.account_id, *t.ref);
+        if (!voided.count(t.id)) {
+          ledger::PostRequest r;
+          r.date = t.date;
+          r.kind = t.kind;
+          if (t.security_id) r.symbol = symbol;
+          r.quantity = t.quantity;
+          r.price = t.price;
+          r.amount = t.amount;
+          r.fee = t.fee;
+          if (auto it = receiver_of.find(t.id); it != receiver_of.end())
+            r.to_account = accounts[it->second];
+          r.lots = t.lots;
+          r.acquired = t.acquired;
+          keys.live[{t.account_id, *t.ref}] = BookedRow{t.id, fields_of(r)};
+        }
+      }
+      keys.contents.emplace(t.account_id, content_key(t, symbol));
     }
     return keys;
   }
@@ -101,7 +177,8 @@ std::optional<std::string> optional_text(TableReader& t, std::size_t col) {
 }
 
 // Reads one row into a request; false (with errors recorded) if a field is bad.
-bool read_request(TableReader& t, ledger::PostRequest& r) {
+bool read_request(TableReader& t, IntakeRow& row) {
+  ledger::PostRequest& r = row.request;
   std::string buf;
   bool ok = true;
   if (t.date(kDate, buf)) {
@@ -153,15 +230,43 @@ bool read_request(TableReader& t, ledger::PostRequest& r) {
     else
       ok = false;
   }
+  for (const auto& [field, col] : kFieldColumns)
+    if (t.has(col)) row.sources[field] = {t.shown(col), t.cell(col)};
+  row.sources["ref"] = {t.shown(kRef), t.cell(kRef)};
+  row.sources["account"] = {t.shown(kAccount), t.cell(kAccount)};
   return ok;
 }
 
-// The file read as the mapping says, hashing as it goes (for the import log).
-CsvReader open_csv(const std::filesystem::path& file, const Mapping& mapping) {
-  CsvOptions csv_options;
-  csv_options.delimiter = mapping.delimiter;
-  csv_options.hash = true;
-  return CsvReader::open(file, csv_options);
+// The currency and rate columns: kept for when keel converts; for now a row
+// must be in its account's currency.
+bool check_currency(TableReader& t, const Account& account) {
+  std::optional<std::string> currency;
+  if (t.has(kCurrency)) {
+    try {
+      currency = normalize_currency(t.raw(kCurrency));
+    } catch (const InputError& e) {
+      t.error_with_value(kCurrency, e.what());
+      return false;
+    }
+    if (*currency != account.currency) {
+      t.error_with_value(kCurrency,
+                         fmt::format("account '{}' keeps {}; keel does not convert currencies "
+                                     "yet, so book this row in an account that keeps {}",
+                                     printable(account.name), account.currency, *currency));
+      return false;
+    }
+  }
+  if (t.has(kRate)) {
+    std::string buf;
+    if (!t.decimal(kRate, buf)) return false;
+    if (Decimal::parse(buf) != Decimal(1)) {
+      t.error_with_value(kRate, fmt::format("the row is in the account's currency {}, so its "
+                                            "rate must be 1",
+                                            account.currency));
+      return false;
+    }
+  }
+  return true;
 }
 
 LedgerImportSummary new_summary(const std::filesystem::path& file, const ImportOptions& options) {
@@ -182,67 +287,132 @@ void record_run(store::Database& db, std::string_view what, const std::filesyste
   sum.run_id = store::record_import_run(db, run);
 }
 
+// "price 1250 -> 1252.5, fee 4.95 -> 5.95"
+std::string differences(const Fields& booked, const Fields& row) {
+  std::string out;
+  for (std::size_t i = 0; i < booked.size(); ++i) {
+    if (booked[i].second == row[i].second) continue;
+    auto shown = [](const std::string& v) { return v.empty() ? std::string("(none)") : v; };
+    out += fmt::format("{}{} {} -> {}", out.empty() ? "" : ", ", booked[i].first,
+                       printable(shown(booked[i].second)), printable(shown(row[i].second)));
+  }
+  return out;
+}
+
+// A ShapeError about a field, told in the file's words.
+void add_shape_error(ErrorList& errors, const IntakeRow& row, const ledger::ShapeError& e) {
+  const auto it = row.sources.find(e.field());
+  if (it == row.sources.end() || it->second.first.empty()) {
+    errors.add(row.line, "", e.what());
+    return;
+  }
+  errors.add(row.line, it->second.first, it->second.second,
+             fmt::format("{}: {}", to_string(row.request.kind), e.reason()));
+}
+
 }  // namespace
 
-LedgerImportSummary import_transactions(store::Database& db, const std::filesystem::path& file,
-                                        const ImportOptions& options) {
-  const Mapping mapping = checked_mapping(options, "transactions");
-  CsvReader csv = open_csv(file, mapping);
-  ErrorList errors(file.string());
-  LedgerImportSummary sum = new_summary(file, options);
-
-  store::WriteTransaction tx(db);
+void book_rows(store::Database& db, const std::filesystem::path& file, std::vector<IntakeRow> rows,
+               const ImportOptions& options, ErrorList& errors, LedgerImportSummary& sum) {
   const BookedKeys booked = BookedKeys::load(db);
   std::map<std::pair<std::string, std::string>, std::uint64_t> refs_in_file, contents_in_file;
-  std::vector<ledger::PostRequest> requests;
-  std::vector<std::uint64_t> lines;
-  {
-    TableReader t(csv, mapping, transaction_columns(), errors);
-    while (t.next()) {
-      ledger::PostRequest r;
-      if (!read_request(t, r)) continue;
-      const auto account = store::find_account(db, r.account);
-      if (!account) {
-        t.error(kAccount, fmt::format("unknown account '{}'", printable(r.account)));
-        continue;
-      }
-      // Exactly once: against the ledger, then within this file.
-      const bool has_ref = r.ref.has_value();
-      const std::string key = has_ref ? *r.ref : content_key(r);
-      auto& seen = has_ref ? refs_in_file : contents_in_file;
-      const auto [it, fresh] = seen.emplace(std::make_pair(r.account, key), t.line());
-      if (!fresh) {
-        t.error(has_ref ? kRef : npos,
-                has_ref ? fmt::format("reference '{}' also appears on line {}", printable(key),
-                                      it->second)
-                        : fmt::format("the same {} also appears on line {}; give each a ref to "
-                                      "book both",
-                                      to_string(r.kind), it->second));
-        continue;
-      }
-      const auto& booked_keys = has_ref ? booked.refs : booked.contents;
-      if (booked_keys.count({account->id, key})) {
-        ++sum.already_booked;
-        continue;
-      }
-      if (!has_ref) r.row_hash = key;
-      requests.push_back(std::move(r));
-      lines.push_back(t.line());
+  std::vector<IntakeRow> fresh_rows;
+  std::vector<std::int64_t> replaces;  // per fresh row: the booked row it corrects, or 0
+  for (auto& row : rows) {
+    ledger::PostRequest& r = row.request;
+    r.allow_future = options.allow_future;
+    const auto account = store::find_account(db, r.account);
+    if (!account) {
+      const auto& src = row.sources["account"];
+      errors.add(row.line, src.first, fmt::format("unknown account '{}'", printable(r.account)));
+      continue;
     }
-    sum.rows = t.rows();
+    // Exactly once: against the ledger, then within this file.
+    const bool has_ref = r.ref.has_value();
+    const std::string key = has_ref ? *r.ref : content_key(r);
+    auto& seen = has_ref ? refs_in_file : contents_in_file;
+    const auto [it, fresh] = seen.emplace(std::make_pair(r.account, key), row.line);
+    if (!fresh) {
+      errors.add(row.line, has_ref ? row.sources["ref"].first : "",
+                 has_ref ? fmt::format("reference '{}' also appears on line {}", printable(key),
+                                       it->second)
+                         : fmt::format("the same {} also appears on line {}; give each a ref to "
+                                       "book both",
+                                       to_string(r.kind), it->second));
+      continue;
+    }
+    std::int64_t corrects = 0;
+    if (has_ref) {
+      const auto live = booked.live.find({account->id, key});
+      if (live != booked.live.end()) {
+        const std::string diff = differences(live->second.fields, fields_of(r));
+        if (diff.empty()) {
+          ++sum.already_booked;
+          continue;
+        }
+        if (!options.book_corrections) {
+          errors.add(row.line, row.sources["ref"].first, key,
+                     fmt::format("already booked as transaction {} with other content: {}; to "
+                                 "book the change, import with --book-corrections (voids {} and "
+                                 "books this row)",
+                                 live->second.id, diff, live->second.id));
+          continue;
+        }
+        corrects = live->second.id;
+      } else if (booked.refs.count({account->id, key})) {
+        ++sum.already_booked;  // booked once and voided by hand: stays booked
+        continue;
+      }
+    } else if (booked.contents.count({account->id, key})) {
+      ++sum.already_booked;
+      continue;
+    }
+    if (!has_ref) r.row_hash = key;
+    fresh_rows.push_back(std::move(row));
+    replaces.push_back(corrects);
   }
-  sum.sha256 = csv.sha256_hex();
   if (!errors.empty()) errors.raise("nothing was changed");
 
+  sum.added = static_cast<std::uint64_t>(std::count(replaces.begin(), replaces.end(), 0));
+  for (std::size_t i = 0; i < fresh_rows.size() && sum.preview.size() < kPreviewRows; ++i)
+    sum.preview.push_back(fresh_rows[i]);
+  if (!fresh_rows.empty()) record_run(db, "transactions", file, sum);
+  const ledger::PeriodLocks locks = ledger::PeriodLocks::load(db);
+  std::optional<store::ImportLinks> links;
+  if (sum.run_id) links.emplace(db, *sum.run_id);
   std::unordered_map<std::int64_t, std::string> pending;
-  for (std::size_t i = 0; i < requests.size(); ++i) {
+  for (std::size_t i = 0; i < fresh_rows.size(); ++i) {
+    IntakeRow& row = fresh_rows[i];
+    const std::string origin = fmt::format("{}:{}", printable(file.string()), row.line);
     try {
-      for (auto id : ledger::write_unchecked(db, requests[i]))
-        pending[id] = fmt::format("{}:{}", printable(file.string()), lines[i]);
+      if (replaces[i] != 0) {
+        const std::string reason =
+            fmt::format("corrected by {} line {}", file.filename().string(), row.line);
+        for (auto id : ledger::write_void_unchecked(db, replaces[i], reason, &locks)) {
+          pending[id] = origin;
+          links->add(id, store::ImportRole::void_entry);
+        }
+        const std::string ref = *row.request.ref;
+        row.request.ref.reset();  // the voided row keeps the ref in txn
+        const auto ids = ledger::write_unchecked(db, row.request, &locks);
+        store::insert_correction(db, {ids.front(), replaces[i], ref, *sum.run_id});
+        for (auto id : ids) {
+          pending[id] = origin;
+          links->add(id, store::ImportRole::correction);
+        }
+        ++sum.corrected;
+        continue;
+      }
+      for (auto id : ledger::write_unchecked(db, row.request, &locks)) {
+        pending[id] = origin;
+        links->add(id, store::ImportRole::added);
+      }
+    } catch (const ledger::ShapeError& e) {
+      add_shape_error(errors, row, e);
     } catch (const InputError& e) {
-      errors.add(lines[i], "", e.what());
-      if (errors.full()) break;
+      errors.add(row.line, "", e.what());
     }
+    if (errors.full()) break;
   }
   if (!errors.empty()) errors.raise("nothing was changed");
   try {
@@ -251,9 +421,44 @@ LedgerImportSummary import_transactions(store::Database& db, const std::filesyst
     throw ImportRefused(fmt::format("{}: 1 error; nothing was changed", printable(file.string())),
                         {e.what()});
   }
-  sum.added = requests.size();
+}
+
+LedgerImportSummary import_transactions(store::Database& db, const std::filesystem::path& file,
+                                        const ImportOptions& options) {
+  if (is_ofx_file(file)) return import_ofx_transactions(db, file, options);
+  if (options.account)
+    throw InputError(
+        "--account: only an OFX statement needs it; a CSV row names its account "
+        "(or the mapping's defaults do)");
+  const Mapping mapping = checked_mapping(options, "transactions");
+  CsvReader csv = open_import_csv(file, mapping, options);
+  ErrorList errors(file.string());
+  LedgerImportSummary sum = new_summary(file, options);
+
+  store::WriteTransaction tx(db);
+  std::vector<IntakeRow> rows;
+  {
+    TableReader t(csv, mapping, transaction_columns(), errors);
+    while (t.next()) {
+      IntakeRow row;
+      row.line = t.line();
+      if (!read_request(t, row)) continue;
+      if (!options.allow_future && !t.not_future(kDate, row.request.date)) continue;
+      const auto account = store::find_account(db, row.request.account);
+      if (!account) {
+        t.error(kAccount, fmt::format("unknown account '{}'", printable(row.request.account)));
+        continue;
+      }
+      if (!check_currency(t, *account)) continue;
+      rows.push_back(std::move(row));
+    }
+    sum.rows = t.rows();
+    sum.skipped = t.skipped_actions();
+  }
+  sum.sha256 = csv.sha256_hex();
+  if (!errors.empty()) errors.raise("nothing was changed");
+  book_rows(db, file, std::move(rows), options, errors, sum);
   if (options.dry_run) return sum;  // rolls back
-  if (sum.added > 0) record_run(db, "transactions", file, sum);
   tx.commit();
   return sum;
 }
@@ -261,7 +466,7 @@ LedgerImportSummary import_transactions(store::Database& db, const std::filesyst
 LedgerImportSummary import_accounts(store::Database& db, const std::filesystem::path& file,
                                     const ImportOptions& options) {
   const Mapping mapping = checked_mapping(options, "accounts");
-  CsvReader csv = open_csv(file, mapping);
+  CsvReader csv = open_import_csv(file, mapping, options);
   ErrorList errors(file.string());
   LedgerImportSummary sum = new_summary(file, options);
   store::WriteTransaction tx(db);
@@ -297,7 +502,7 @@ LedgerImportSummary import_accounts(store::Database& db, const std::filesystem::
             ++sum.already_booked;
           continue;
         }
-        store::insert_account(db, a);
+        ledger::add_account(db, a);
         ++sum.added;
       } catch (const InputError& e) {
         t.error(npos, e.what());
@@ -316,14 +521,14 @@ LedgerImportSummary import_accounts(store::Database& db, const std::filesystem::
 namespace {
 
 void write_rows(ExportFormat format, const std::vector<std::string>& header,
-                const std::vector<std::vector<std::string>>& rows, std::FILE* out) {
+                const std::vector<std::vector<std::string>>& rows, OutputFile& out) {
   std::string text;
   if (format == ExportFormat::csv) {
     std::vector<std::string_view> fields(header.begin(), header.end());
     append_csv_record(text, fields);
     for (const auto& row : rows) {
       fields.assign(row.begin(), row.end());
-      append_csv_record(text, fields);
+      append_export_record(text, fields);
     }
   } else {
     JsonWriter j(text);
@@ -337,12 +542,12 @@ void write_rows(ExportFormat format, const std::vector<std::string>& header,
     j.end_array();
     text += "\n";
   }
-  std::fwrite(text.data(), 1, text.size(), out);
+  out.write(text);
 }
 
 }  // namespace
 
-std::uint64_t export_transactions(store::Database& db, ExportFormat format, std::FILE* out) {
+std::uint64_t export_transactions(store::Database& db, ExportFormat format, OutputFile& out) {
   std::unordered_map<std::int64_t, std::string> accounts, symbols;
   for (const auto& a : store::list_accounts(db)) accounts[a.id] = a.name;
   for (const auto& s : store::list_securities(db)) symbols[s.id] = s.symbol;
@@ -364,12 +569,13 @@ std::uint64_t export_transactions(store::Database& db, ExportFormat format, std:
          t.lots.empty() ? "" : format_lot_picks(t.lots), t.acquired ? t.acquired->str() : ""});
   }
   std::vector<std::string> header;
-  for (const auto& c : transaction_columns()) header.push_back(c.name);
+  for (std::size_t i = 0; i < kExportedColumns; ++i)
+    header.push_back(transaction_columns()[i].name);
   write_rows(format, header, rows, out);
   return rows.size();
 }
 
-std::uint64_t export_accounts(store::Database& db, ExportFormat format, std::FILE* out) {
+std::uint64_t export_accounts(store::Database& db, ExportFormat format, OutputFile& out) {
   std::vector<std::vector<std::string>> rows;
   for (const auto& a : store::list_accounts(db))
     rows.push_back({a.name, a.currency, std::string(to_string(a.basis)),

@@ -3,11 +3,13 @@
 #include <fmt/format.h>
 #include <toml++/toml.h>
 
+#include <array>
 #include <fstream>
 #include <sstream>
 
 #include "core/error.h"
 #include "core/text.h"
+#include "model/records.h"
 
 namespace keel::io {
 namespace {
@@ -60,6 +62,143 @@ char one_char(const Ctx& ctx, const toml::node& n, std::string_view key, bool al
   return s[0];
 }
 
+std::size_t line_of(const toml::node& n) {
+  return static_cast<std::size_t>(n.source().begin.line);
+}
+
+FigureSource figure_source(const Ctx& ctx, const toml::node& n, const std::string& key) {
+  FigureSource f;
+  if (n.is_string()) {
+    f.column = ascii_lower(text(ctx, n, key));
+    if (f.column.empty()) ctx.fail(n, key, "names no column");
+    return f;
+  }
+  const auto* t = n.as_table();
+  if (!t) ctx.fail(n, key, "must be a column name or { credit = \"...\", debit = \"...\" }");
+  only_keys(ctx, *t, key, {"credit", "debit"});
+  const auto* c = t->get("credit");
+  const auto* d = t->get("debit");
+  if (!c || !d) ctx.fail(n, key, "needs both 'credit' and 'debit' columns");
+  f.credit = ascii_lower(text(ctx, *c, key + ".credit"));
+  f.debit = ascii_lower(text(ctx, *d, key + ".debit"));
+  if (f.credit.empty() || f.debit.empty() || f.credit == f.debit)
+    ctx.fail(n, key, "'credit' and 'debit' must name two different columns");
+  return f;
+}
+
+FigureSign figure_sign(const Ctx& ctx, const toml::node& n, const std::string& key) {
+  const std::string v = text(ctx, n, key);
+  if (v == "positive") return FigureSign::positive;
+  if (v == "negative") return FigureSign::negative;
+  if (v == "either") return FigureSign::either;
+  ctx.fail(n, key,
+           fmt::format("'{}' is not a sign; expected positive, negative or either", printable(v)));
+}
+
+constexpr std::array<std::string_view, 4> kFigures = {"quantity", "price", "amount", "fee"};
+
+ActionRule action_rule(const Ctx& ctx, const toml::node& n) {
+  const std::string key = "actions.rule";
+  const auto& t = table(ctx, n, key);
+  only_keys(ctx, t, key,
+            {"when", "kind", "when_amount", "quantity", "price", "amount", "fee", "sign"});
+  ActionRule r;
+  r.line = line_of(n);
+  const auto* when = t.get("when");
+  if (!when) ctx.fail(n, key, "needs 'when': the action value(s) this rule books");
+  if (when->is_string())
+    r.when.push_back(text(ctx, *when, key + ".when"));
+  else
+    r.when = text_list(ctx, *when, key + ".when");
+  if (r.when.empty()) ctx.fail(*when, key + ".when", "names no action");
+  for (const auto& w : r.when)
+    if (w.empty()) ctx.fail(*when, key + ".when", "an action value must not be empty");
+  const auto* kind = t.get("kind");
+  if (!kind)
+    ctx.fail(
+        n, key,
+        fmt::format("action '{}' goes to no kind; add kind = \"...\"", printable(r.when.front())));
+  r.kind = ascii_lower(text(ctx, *kind, key + ".kind"));
+  try {
+    (void)parse_txn_kind(r.kind);
+  } catch (const InputError& e) {
+    ctx.fail(*kind, key + ".kind",
+             fmt::format("action '{}' goes to no kind: {}", printable(r.when.front()), e.what()));
+  }
+  for (auto figure : kFigures)
+    if (const auto* f = t.get(figure))
+      r.figures[std::string(figure)] = figure_source(ctx, *f, fmt::format("{}.{}", key, figure));
+  if (const auto* a = t.get("when_amount")) {
+    const std::string v = text(ctx, *a, key + ".when_amount");
+    if (v != "negative" && v != "positive")
+      ctx.fail(*a, key + ".when_amount", "must be \"negative\" or \"positive\"");
+    if (!r.figures.count("amount"))
+      ctx.fail(*a, key + ".when_amount", "needs the rule's 'amount' column to test");
+    r.when_amount_negative = v == "negative";
+  }
+  if (const auto* sign = t.get("sign")) {
+    if (sign->is_string()) {
+      const FigureSign all = figure_sign(ctx, *sign, key + ".sign");
+      for (const auto& [figure, source] : r.figures) r.signs[figure] = all;
+    } else {
+      const auto& st = table(ctx, *sign, key + ".sign");
+      only_keys(ctx, st, key + ".sign", {"quantity", "price", "amount", "fee"});
+      for (const auto& [figure, v] : st) {
+        const std::string fk = fmt::format("{}.sign.{}", key, figure.str());
+        if (!r.figures.count(std::string(figure.str())))
+          ctx.fail(v, fk, "the rule reads no such figure");
+        r.signs[std::string(figure.str())] = figure_sign(ctx, v, fk);
+      }
+    }
+  }
+  return r;
+}
+
+ActionRules action_rules(const Ctx& ctx, const toml::node& n) {
+  const auto& t = table(ctx, n, "actions");
+  only_keys(ctx, t, "actions", {"column", "skip", "rule"});
+  ActionRules a;
+  const auto* column = t.get("column");
+  if (!column) ctx.fail(n, "actions", "needs 'column': the file's column that names the action");
+  a.column = ascii_lower(text(ctx, *column, "actions.column"));
+  if (const auto* skip = t.get("skip")) a.skip = text_list(ctx, *skip, "actions.skip");
+  const auto* rules = t.get("rule");
+  if (!rules || !rules->is_array_of_tables())
+    ctx.fail(n, "actions", "needs at least one [[actions.rule]]");
+  for (const auto& r : *rules->as_array()) a.rules.push_back(action_rule(ctx, r));
+
+  // Each row must match at most one rule: the same action (compared without
+  // regard to ASCII case) in two rules is allowed only when their
+  // when_amount signs differ.
+  auto fail_at = [&](const ActionRule& r, std::string why) -> void {
+    throw InputError(
+        fmt::format("{}:{}: key 'actions.rule': {}", printable(ctx.source), r.line, why));
+  };
+  for (std::size_t j = 0; j < a.rules.size(); ++j) {
+    const ActionRule& rj = a.rules[j];
+    for (const auto& w : rj.when) {
+      const std::string lw = ascii_lower(w);
+      for (const auto& s : a.skip)
+        if (ascii_lower(s) == lw)
+          fail_at(rj, fmt::format("action '{}' is also listed in actions.skip", printable(w)));
+      for (std::size_t i = 0; i <= j; ++i) {
+        const ActionRule& ri = a.rules[i];
+        std::size_t same = 0;
+        for (const auto& v : ri.when) same += ascii_lower(v) == lw;
+        if (i == j ? same < 2 : same == 0) continue;
+        const bool disjoint = i != j && ri.when_amount_negative && rj.when_amount_negative &&
+                              *ri.when_amount_negative != *rj.when_amount_negative;
+        if (disjoint) continue;
+        fail_at(rj, i == j ? fmt::format("action '{}' is named twice", printable(w))
+                           : fmt::format("matches the same rows as the rule on line {} "
+                                         "(action '{}')",
+                                         ri.line, printable(w)));
+      }
+    }
+  }
+  return a;
+}
+
 }  // namespace
 
 Mapping Mapping::load(const std::filesystem::path& path) {
@@ -82,9 +221,9 @@ Mapping Mapping::parse(std::string_view toml_text, std::string source) {
                                  printable(e.description())));
   }
   const Ctx ctx{m.source};
-  only_keys(
-      ctx, root, "",
-      {"for", "file", "columns", "ignore", "dates", "numbers", "values", "signs", "defaults"});
+  only_keys(ctx, root, "",
+            {"for", "file", "columns", "ignore", "dates", "numbers", "values", "signs", "defaults",
+             "actions"});
   if (const auto* n = root.get("for")) m.applies_to = text(ctx, *n, "for");
 
   if (const auto* n = root.get("file")) {
@@ -178,6 +317,12 @@ Mapping Mapping::parse(std::string_view toml_text, std::string source) {
       r.sets = ascii_lower(r.sets);
       m.sign_rule = r;
     }
+  }
+
+  if (const auto* n = root.get("actions")) {
+    m.actions = action_rules(ctx, *n);
+    if (m.sign_rule && m.sign_rule->sets == "kind")
+      ctx.fail(*n, "actions", "the kind comes either from [actions] or from signs.kind_from_sign");
   }
 
   if (const auto* n = root.get("defaults"))

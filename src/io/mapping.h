@@ -8,6 +8,9 @@
 //  - Column names compare case-insensitively (ASCII), like CSV headers.
 //  - The mapping only describes the file; which keel columns exist is up to
 //    the reader of each kind of record (see io/table.h).
+//  - [actions] rules are checked when read: a rule sending an action to no
+//    keel kind, or two rules (or a rule and actions.skip) that match the same
+//    rows, are refused naming the rule's line.
 #pragma once
 
 #include <filesystem>
@@ -35,6 +38,37 @@ struct SkipRule {
   std::vector<std::string> values;  // rows whose cell equals one of these are skipped
 };
 
+// Where one figure of an action's rows comes from: a column of the file, or a
+// pair of columns holding money in (credit) and money out (debit), read as
+// credit minus debit.
+struct FigureSource {
+  std::string column;  // file header, lower case; empty for a credit/debit pair
+  std::string credit, debit;
+};
+
+// How the file writes a figure's sign for one action: always positive (keel
+// books it as written), always negative (keel books its magnitude), or
+// either (keel books its magnitude: the kind gives the direction).
+enum class FigureSign { positive, negative, either };
+
+// One rule of an action column: rows whose action is one of `when` (and,
+// with when_amount, whose amount has that sign) are booked as `kind`, their
+// figures read from the rule's own columns.
+struct ActionRule {
+  std::size_t line = 0;           // the rule's line in the mapping file
+  std::vector<std::string> when;  // action values as written in the mapping
+  std::string kind;               // a keel kind, e.g. "dividend"
+  std::optional<bool> when_amount_negative;
+  std::map<std::string, FigureSource> figures;  // "quantity", "price", "amount", "fee"
+  std::map<std::string, FigureSign> signs;      // per figure; absent: positive
+};
+
+struct ActionRules {
+  std::string column;             // file header, lower case
+  std::vector<std::string> skip;  // action values to pass over (counted)
+  std::vector<ActionRule> rules;
+};
+
 struct Mapping {
   std::string source;      // where the mapping came from, for messages
   std::string applies_to;  // optional: "prices", "transactions", ...
@@ -51,6 +85,7 @@ struct Mapping {
   std::vector<std::string> negate;  // keel columns whose sign the file writes reversed
   std::optional<SignRule> sign_rule;
   std::map<std::string, std::string> defaults;  // keel column -> value when absent or empty
+  std::optional<ActionRules> actions;           // kinds from an action column
 
   static Mapping load(const std::filesystem::path& path);
   static Mapping parse(std::string_view toml_text, std::string source);

@@ -138,7 +138,7 @@ void import_rows(MarketKind what, Run& r, const ImportOptions& options, CsvReade
         std::string_view name;
         if (t.text(2, name)) {
           try {
-            check_name("metric name", name, 60);
+            check_identifier("metric name", name, 60);
           } catch (const InputError& e) {
             t.error(2, e.what());
             ok = false;
@@ -196,6 +196,7 @@ void import_rows(MarketKind what, Run& r, const ImportOptions& options, CsvReade
     case MarketKind::splits:
       while (t.next()) {
         bool ok = t.date(0, a);
+        if (ok && !options.allow_future) ok = t.not_future(0, Date::parse(a));
         const std::size_t sec = r.security(1);
         ok = t.decimal(2, b) && r.positive(2, b) && ok && sec != store::MarketWriter::kUnknown;
         if (ok) {
@@ -225,13 +226,13 @@ void import_rows(MarketKind what, Run& r, const ImportOptions& options, CsvReade
         };
         if (t.text(0, text)) {
           s.symbol = text;
-          field(0, [&] { check_name("symbol", s.symbol, 40); });
+          field(0, [&] { check_identifier("symbol", s.symbol, 40); });
         } else {
           ok = false;
         }
         if (t.text(1, text)) {
           s.name = text;
-          field(1, [&] { check_name("name", s.name, 200); });
+          field(1, [&] { check_identifier("name", s.name, 200); });
         } else {
           ok = false;
         }
@@ -251,7 +252,7 @@ void import_rows(MarketKind what, Run& r, const ImportOptions& options, CsvReade
         }
         if (t.has(5)) {
           s.sector = std::string(t.raw(5));
-          field(5, [&] { check_name("sector", *s.sector, 100); });
+          field(5, [&] { check_identifier("sector", *s.sector, 100); });
         }
         if (ok)
           r.count(
@@ -290,6 +291,16 @@ MarketKind parse_market_kind(std::string_view text) {
                   printable(text)));
 }
 
+CsvReader open_import_csv(const std::filesystem::path& file, const Mapping& mapping,
+                          const ImportOptions& options) {
+  CsvOptions csv_options;
+  csv_options.delimiter = mapping.delimiter;
+  csv_options.hash = true;
+  if (options.content)
+    return CsvReader::from_text(std::string(*options.content), file.string(), csv_options);
+  return CsvReader::open(file, csv_options);
+}
+
 ImportSummary import_market(store::Database& db, MarketKind what, const std::filesystem::path& file,
                             const ImportOptions& options) {
   const Mapping mapping = options.mapping ? *options.mapping : Mapping{};
@@ -297,10 +308,7 @@ ImportSummary import_market(store::Database& db, MarketKind what, const std::fil
     throw InputError(fmt::format("{}: this mapping is for importing {}, not {}",
                                  printable(mapping.source), printable(mapping.applies_to),
                                  to_string(what)));
-  CsvOptions csv_options;
-  csv_options.delimiter = mapping.delimiter;
-  csv_options.hash = true;
-  CsvReader csv = CsvReader::open(file, csv_options);
+  CsvReader csv = open_import_csv(file, mapping, options);
   ErrorList errors(file.string());
   ImportSummary sum;
   sum.what = what;
@@ -335,30 +343,29 @@ ImportSummary import_market(store::Database& db, MarketKind what, const std::fil
 
 namespace {
 
-// Buffered output to a FILE*, flushed in large pieces.
+// Buffered output, written in large pieces. What is still buffered when an
+// error unwinds the export is dropped, never written from a destructor.
 class Sink {
  public:
-  explicit Sink(std::FILE* f) : f_(f) { buf_.reserve(1 << 20); }
-  ~Sink() { flush(); }
+  explicit Sink(OutputFile& out) : out_(out) { buf_.reserve(1 << 20); }
   std::string& buf() { return buf_; }
   void maybe_flush() {
     if (buf_.size() >= (1 << 20)) flush();
   }
   void flush() {
-    if (!buf_.empty() && std::fwrite(buf_.data(), 1, buf_.size(), f_) != buf_.size())
-      throw InputError("cannot write the export (disk full or output closed?)");
+    out_.write(buf_);
     buf_.clear();
   }
 
  private:
-  std::FILE* f_;
+  OutputFile& out_;
   std::string buf_;
 };
 
 class Writer {
  public:
-  Writer(std::FILE* f, ExportFormat format, std::vector<std::string_view> names)
-      : sink_(f), format_(format), names_(std::move(names)) {
+  Writer(OutputFile& out, ExportFormat format, std::vector<std::string_view> names)
+      : sink_(out), format_(format), names_(std::move(names)) {
     if (format_ == ExportFormat::csv)
       append_csv_record(sink_.buf(), names_);
     else
@@ -368,7 +375,7 @@ class Writer {
   void row(const std::vector<std::string_view>& values, std::size_t nullable = npos) {
     ++rows_;
     if (format_ == ExportFormat::csv) {
-      append_csv_record(sink_.buf(), values);
+      append_export_record(sink_.buf(), values);
     } else {
       sink_.buf() += rows_ == 1 ? "\n" : ",\n";
       JsonWriter o(sink_.buf(), -1);
@@ -400,7 +407,7 @@ class Writer {
 }  // namespace
 
 std::uint64_t export_market(store::Database& db, MarketKind what, ExportFormat format,
-                            std::FILE* out) {
+                            OutputFile& out) {
   std::vector<std::string> names;
   for (const auto& c : columns_for(what)) names.push_back(c.name);
   std::vector<std::string_view> views(names.begin(), names.end());

@@ -19,13 +19,14 @@
 #pragma once
 
 #include <cstdint>
-#include <cstdio>
 #include <filesystem>
 #include <functional>
 #include <optional>
 #include <string>
 #include <string_view>
 
+#include "core/files.h"
+#include "io/csv.h"
 #include "io/mapping.h"
 #include "store/database.h"
 #include "store/market_data.h"
@@ -40,9 +41,23 @@ struct ImportOptions {
   std::optional<Mapping> mapping;
   bool dry_run = false;
   bool replace = false;
+  bool allow_future = false;  // accept transactions and splits dated after today
+  // Transactions: a row whose ref is booked with other content is booked as
+  // a correction (void of the old row + the new row) instead of refused.
+  bool book_corrections = false;
+  // Transactions from an OFX statement: the keel account it is for.
+  std::optional<std::string> account;
   // Called every so many rows with (rows so far, bytes read, file size).
   std::function<void(std::uint64_t, std::uint64_t, std::uint64_t)> progress;
+  // When set, the import reads these bytes and the file only names them (in
+  // messages and the import log); the demo's built-in scenario.
+  std::optional<std::string_view> content;
 };
+
+// The CSV an import reads: the file, or options.content under the file's
+// name; delimited as the mapping says, hashed for the import log.
+CsvReader open_import_csv(const std::filesystem::path& file, const Mapping& mapping,
+                          const ImportOptions& options);
 
 struct ImportSummary {
   MarketKind what = MarketKind::prices;
@@ -61,8 +76,8 @@ ImportSummary import_market(store::Database& db, MarketKind what, const std::fil
                             const ImportOptions& options);
 
 enum class ExportFormat { csv, json };
-// Returns the number of rows written.
+// Writes to `out` without committing it; returns the number of rows written.
 std::uint64_t export_market(store::Database& db, MarketKind what, ExportFormat format,
-                            std::FILE* out);
+                            OutputFile& out);
 
 }  // namespace keel::io

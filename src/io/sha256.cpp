@@ -1,8 +1,14 @@
 #include "io/sha256.h"
 
+#include <fmt/format.h>
 #include <openssl/evp.h>
 
+#include <array>
+#include <fstream>
 #include <stdexcept>
+
+#include "core/error.h"
+#include "core/text.h"
 
 namespace keel::io {
 
@@ -48,6 +54,16 @@ std::string sha256_hex(std::string_view text) {
   Sha256 s;
   s.update(text);
   return s.hex();
+}
+
+std::string sha256_file_hex(const std::filesystem::path& file) {
+  std::ifstream in(file, std::ios::binary);
+  if (!in) throw InputError(fmt::format("{}: cannot open", printable(file.string())));
+  Sha256 sha;
+  std::array<char, 1 << 16> buf{};
+  while (in.read(buf.data(), buf.size()) || in.gcount() > 0)
+    sha.update(buf.data(), static_cast<std::size_t>(in.gcount()));
+  return sha.hex();
 }
 
 }  // namespace keel::io

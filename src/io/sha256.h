@@ -6,6 +6,7 @@
 #pragma once
 
 #include <cstddef>
+#include <filesystem>
 #include <memory>
 #include <string>
 #include <string_view>
@@ -28,5 +29,7 @@ class Sha256 {
 };
 
 std::string sha256_hex(std::string_view text);
+// The digest of a whole file; throws InputError naming it when it cannot be read.
+std::string sha256_file_hex(const std::filesystem::path& file);
 
 }  // namespace keel::io

@@ -16,13 +16,22 @@
 //    keel's canonical text into the caller's buffer, and on failure record
 //    "FILE:LINE: column 'x': reason" and return false. Nothing allocates per
 //    row once buffers have grown.
+//  - With the mapping's [actions], each row's action cell picks one rule: the
+//    kind comes from it, and quantity, price, amount and fee come only from
+//    the rule's columns, with its sign convention applied (a figure of the
+//    wrong sign is an error naming the file's column and the value). Rows
+//    whose action is in actions.skip are passed over and counted; an action
+//    no rule books is an error on that row.
 #pragma once
 
 #include <cstdint>
+#include <map>
 #include <string>
 #include <string_view>
+#include <utility>
 #include <vector>
 
+#include "core/date.h"
 #include "io/csv.h"
 #include "io/errors.h"
 #include "io/mapping.h"
@@ -55,7 +64,22 @@ class TableReader {
   bool date(std::size_t col, std::string& out);
   bool decimal(std::size_t col, std::string& out);
   void error(std::size_t col, std::string reason);  // col = npos: the row as a whole
+  // Whether a posting `date` read from column `col` is today or earlier
+  // (ledger::future_date); records the error, naming the override, if not.
+  bool not_future(std::size_t col, Date date);
+  // The same, showing the cell as written: "column 'x' = VALUE: reason".
+  void error_with_value(std::size_t col, std::string reason);
   const std::string& header_name(std::size_t col) const { return columns_[col].shown; }
+  // The file's header this row's column `col` was read from (for figures of
+  // an action rule, the rule's column) and the cell as written.
+  std::string shown(std::size_t col) const;
+  std::string cell(std::size_t col) const;
+
+  // With [actions]: rows passed over per action value (as first written), in
+  // order of first appearance.
+  const std::vector<std::pair<std::string, std::uint64_t>>& skipped_actions() const {
+    return skipped_actions_;
+  }
 
  private:
   struct Column {
@@ -68,11 +92,18 @@ class TableReader {
     bool negate = false;
     bool magnitude = false;  // the signed column of a sign rule
     bool derived = false;    // set by a sign rule
+    bool figure = false;     // with [actions]: read from the row's rule
   };
   static constexpr std::size_t npos = static_cast<std::size_t>(-1);
 
   void read_header();
   bool skipped() const;
+  // With [actions]: picks the row's rule; false (error recorded, or counted
+  // as skipped) when the row is not to be read.
+  bool choose_rule();
+  std::string_view field_text(const std::string& header) const;
+  std::string_view figure(const FigureSource& source, std::string& buffer) const;
+  const FigureSource* figure_source(std::size_t col) const;
 
   CsvReader& csv_;
   const Mapping& mapping_;
@@ -84,6 +115,12 @@ class TableReader {
   bool header_ok_ = false;
   CsvRecord record_;
   std::uint64_t rows_ = 0;
+  const ActionRule* rule_ = nullptr;
+  std::size_t action_field_ = npos;
+  std::map<std::string, std::size_t> rule_fields_;   // header (lower case) -> field
+  std::map<std::string, std::string> header_shown_;  // header (lower case) -> as written
+  std::vector<std::pair<std::string, std::uint64_t>> skipped_actions_;
+  mutable std::string figure_buf_;
   mutable std::string lower_;
   std::string number_;
   std::string why_;

@@ -3,6 +3,7 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <stdexcept>
 
 #include "core/error.h"
 #include "core/text.h"
@@ -24,16 +25,53 @@ Decimal Position::cost() const {
 std::vector<Decimal> allocate(const Decimal& total, const std::vector<Decimal>& weights,
                               int places) {
   std::vector<Decimal> parts(weights.size());
-  if (weights.empty()) return parts;
   Decimal weight_sum;
-  for (const auto& w : weights) weight_sum += w;
-  Decimal assigned;
-  for (std::size_t i = 0; i + 1 < weights.size(); ++i) {
-    parts[i] = Decimal::divide(total * weights[i], weight_sum, places);
-    assigned += parts[i];
+  for (const auto& w : weights) {
+    if (w.is_negative()) throw std::invalid_argument("allocate: a weight is negative");
+    weight_sum += w;
   }
-  parts.back() = total - assigned;
+  if (weights.empty()) return parts;
+  if (!weight_sum.is_positive()) throw std::invalid_argument("allocate: the weights are all zero");
+
+  // Work on the magnitude; every part takes the sign of the total.
+  const Decimal magnitude = total.abs();
+  const Decimal on_grid = magnitude.truncated(places);  // whole units of 10^-places
+  const Decimal below_grid = magnitude - on_grid;       // less than one unit
+  const Decimal unit = Decimal::parse(fmt::format("1e-{}", places));
+  // Quotas on_grid * w / W, floored to the grid; what each quota loses to the
+  // floor, times W, ranks the parts for the units left over (exact, no division).
+  std::vector<Decimal> remainder(weights.size());
+  Decimal assigned;
+  for (std::size_t i = 0; i < weights.size(); ++i) {
+    const Decimal quota_times_w = on_grid * weights[i];
+    Decimal floor = Decimal::divide(quota_times_w, weight_sum, places);
+    if (floor * weight_sum > quota_times_w) floor -= unit;
+    parts[i] = floor;
+    remainder[i] = quota_times_w - floor * weight_sum;
+    assigned += floor;
+  }
+  std::vector<std::size_t> order(weights.size());
+  for (std::size_t i = 0; i < order.size(); ++i) order[i] = i;
+  std::stable_sort(order.begin(), order.end(),
+                   [&](std::size_t a, std::size_t b) { return remainder[a] > remainder[b]; });
+  // Fewer units are left than parts with a nonzero remainder, so a part of
+  // weight zero never gets one and no part passes the total.
+  for (std::size_t k = 0; assigned < on_grid && k < order.size(); ++k) {
+    parts[order[k]] += unit;
+    assigned += unit;
+  }
+  // What lies below the grid stays with the last part that has weight.
+  std::size_t last = weights.size() - 1;
+  while (weights[last].is_zero()) --last;
+  parts[last] += below_grid;
+  if (total.is_negative())
+    for (auto& p : parts) p = -p;
   return parts;
+}
+
+Decimal cost_share(const Decimal& cost, const Decimal& taken, const Decimal& held) {
+  if (taken == held) return cost;
+  return allocate(cost, {taken, held - taken}, kCostPlaces).front();
 }
 
 Book::Book(const std::vector<Account>& accounts,
@@ -46,10 +84,15 @@ const AccountBook& Book::account(std::int64_t account_id) const {
   return books_.at(index_.at(account_id));
 }
 
-std::optional<Decimal> Book::last_trade_price(std::int64_t security_id) const {
-  const auto it = last_trade_price_.find(security_id);
-  if (it == last_trade_price_.end()) return std::nullopt;
+std::optional<Book::TradePrice> Book::last_trade(std::int64_t security_id) const {
+  const auto it = last_trade_.find(security_id);
+  if (it == last_trade_.end()) return std::nullopt;
   return it->second;
+}
+
+std::optional<Decimal> Book::last_trade_price(std::int64_t security_id) const {
+  if (auto trade = last_trade(security_id)) return trade->price;
+  return std::nullopt;
 }
 
 const Account& Book::account_info(std::int64_t account_id) const {
@@ -69,13 +112,11 @@ void Book::apply_split(const Split& split) {
     if (it == book.positions.end()) continue;
     for (auto& lot : it->second.lots) lot.quantity *= split.ratio;
   }
-  if (auto it = last_trade_price_.find(split.security_id); it != last_trade_price_.end())
-    it->second = Decimal::divide(it->second, split.ratio, 10);
+  if (auto it = last_trade_.find(split.security_id); it != last_trade_.end())
+    it->second.price = Decimal::divide(it->second.price, split.ratio, 10);
   for (auto& [id, lots] : in_transit_)
     for (auto& lot : lots) lot.quantity *= split.ratio;
 }
-
-namespace {}  // namespace
 
 std::string Book::describe(const Transaction& t) const {
   const std::string where = fmt::format("{} on {} in '{}'", to_string(t.kind), t.date.str(),
@@ -122,7 +163,7 @@ Lot cut(Lot& lot, const Decimal& quantity) {
     lot.cost = Decimal();
     return part;
   }
-  part.cost = Decimal::divide(lot.cost * quantity, lot.quantity, kCostPlaces);
+  part.cost = cost_share(lot.cost, quantity, lot.quantity);
   lot.quantity -= quantity;
   lot.cost -= part.cost;
   return part;
@@ -187,7 +228,7 @@ std::vector<Lot> Book::take_lots(const Transaction& txn, const Account& account,
   if (account.basis == BasisMethod::average) {
     // Average cost: the units leave at the pooled average, and what stays is
     // re-pooled so every open lot carries the same unit cost.
-    const Decimal taken_cost = Decimal::divide(cost_before * wanted, held, kCostPlaces);
+    const Decimal taken_cost = cost_share(cost_before, wanted, held);
     std::vector<Decimal> taken_qty, open_qty;
     for (const auto& l : taken) taken_qty.push_back(l.quantity);
     for (const auto& l : position.lots) open_qty.push_back(l.quantity);
@@ -203,7 +244,7 @@ void Book::apply_buy(const Transaction& txn, AccountBook& book) {
   const Decimal gross = *txn.quantity * *txn.price;
   auto& position = book.positions[*txn.security_id];
   position.lots.push_back(Lot{txn.id, txn.date, *txn.quantity, gross + txn.fee});
-  last_trade_price_[*txn.security_id] = *txn.price;
+  last_trade_[*txn.security_id] = TradePrice{txn.date, *txn.price};
   book.cash -= gross + txn.fee;
 }
 
@@ -219,7 +260,7 @@ void Book::apply_sell(const Transaction& txn, const Account& account, AccountBoo
                                      taken[i].acquired, txn.date, taken[i].quantity,
                                      proceeds_parts[i], taken[i].cost});
   }
-  last_trade_price_[*txn.security_id] = *txn.price;
+  last_trade_[*txn.security_id] = TradePrice{txn.date, *txn.price};
   if (position.lots.empty()) book.positions.erase(*txn.security_id);
   book.cash += proceeds;
 }
@@ -246,7 +287,7 @@ void Book::apply_transfer_in(const Transaction& txn, AccountBook& book) {
     const Decimal unit = txn.price.value_or(Decimal());
     position.lots.push_back(
         Lot{txn.id, txn.acquired.value_or(txn.date), *txn.quantity, *txn.quantity * unit});
-    if (txn.price) last_trade_price_[*txn.security_id] = *txn.price;
+    if (txn.price) last_trade_[*txn.security_id] = TradePrice{txn.date, *txn.price};
     moved_.push_back(
         MovedCost{txn.id, txn.account_id, *txn.security_id, txn.date, true, *txn.quantity * unit});
   }
@@ -316,9 +357,40 @@ void Book::close_day(Date day) {
 }
 
 std::unordered_set<std::int64_t> voided_ids(const std::vector<Transaction>& transactions) {
-  std::unordered_set<std::int64_t> out;
+  std::unordered_map<std::int64_t, std::int64_t> voider;  // row -> the void naming it
   for (const auto& t : transactions)
-    if (t.kind == TxnKind::void_entry && t.voids_id) out.insert(*t.voids_id);
+    if (t.kind == TxnKind::void_entry && t.voids_id) voider[*t.voids_id] = t.id;
+  // Along a chain row <- void <- void of the void <- ..., the last void is in
+  // force, so the rows below it alternate: cancelled, in force, cancelled...
+  std::unordered_map<std::int64_t, bool> cancelled;
+  for (const auto& entry : voider) {
+    const std::int64_t row = entry.first;
+    if (cancelled.count(row)) continue;
+    std::vector<std::int64_t> chain{row};
+    std::unordered_set<std::int64_t> seen{row};
+    for (std::int64_t at = row;;) {
+      const auto it = voider.find(at);
+      if (it == voider.end()) break;  // `at` is the top: in force
+      const std::int64_t next = it->second;
+      if (cancelled.count(next)) {  // known already: anchor the chain on it
+        chain.push_back(next);
+        break;
+      }
+      if (!seen.insert(next).second) break;  // a loop (cannot be written through keel)
+      chain.push_back(next);
+      at = next;
+    }
+    const auto anchor = cancelled.find(chain.back());
+    bool state = anchor != cancelled.end() && anchor->second;
+    cancelled[chain.back()] = state;
+    for (std::size_t i = chain.size() - 1; i-- > 0;) {
+      state = !state;
+      cancelled[chain[i]] = state;
+    }
+  }
+  std::unordered_set<std::int64_t> out;
+  for (const auto& [id, is_cancelled] : cancelled)
+    if (is_cancelled) out.insert(id);
   return out;
 }
 

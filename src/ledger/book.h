@@ -13,9 +13,11 @@
 //
 // Lots: every buy (and every security transfer in from outside) opens a lot
 // whose id is that transaction's id and whose cost includes the fee. Closing
-// part of a lot splits its cost in proportion to quantity, rounded half-to-even
-// to the cent (kCostPlaces); the remainder stays with the open part, so total
-// cost is conserved exactly. Splits multiply quantities and keep total cost.
+// part of a lot splits its cost by quantity with allocate() (largest
+// remainder, to the cent: kCostPlaces), so neither part is ever negative or
+// above the lot's cost and total cost is conserved exactly. A sell's proceeds
+// (net of its fee) are shared among the lots it closes the same way. Splits
+// multiply quantities and keep total cost.
 //
 // Transfers of units are recorded as MovedCost entries: the cost basis that
 // left an account (transfer out) or arrived in one (transfer in: the carried
@@ -96,7 +98,12 @@ class Book {
   const std::vector<RealizedPart>& realized() const { return realized_; }
   const std::vector<MovedCost>& moved() const { return moved_; }  // in replay order
   // The latest unit price the ledger traded `security_id` at, in any account
-  // (split-adjusted); unset if it never traded.
+  // (split-adjusted), and the day of that trade; unset if it never traded.
+  struct TradePrice {
+    Date day;
+    Decimal price;
+  };
+  std::optional<TradePrice> last_trade(std::int64_t security_id) const;
   std::optional<Decimal> last_trade_price(std::int64_t security_id) const;
 
  private:
@@ -112,7 +119,7 @@ class Book {
   std::vector<AccountBook> books_;
   std::vector<RealizedPart> realized_;
   std::vector<MovedCost> moved_;
-  std::unordered_map<std::int64_t, Decimal> last_trade_price_;
+  std::unordered_map<std::int64_t, TradePrice> last_trade_;
   std::unordered_map<std::int64_t, std::vector<Lot>> in_transit_;  // by transfer_out id
   std::unordered_set<std::int64_t> touched_today_;
   std::unordered_map<std::int64_t, const Transaction*> last_txn_today_;
@@ -120,11 +127,19 @@ class Book {
   std::string describe(const Transaction& txn) const;
 };
 
-// Splits `total` into parts proportional to `weights`, each rounded
-// half-to-even to `places`, the last part taking the remainder so the parts
-// add up to `total` exactly.
+// Splits `total` into parts proportional to `weights` (none negative, not all
+// zero) by the largest-remainder method: each part's exact quota is floored to
+// `places` digits, the units of 10^-places still missing go one each to the
+// parts whose quotas lost most to the floor (ties: the earlier part), and a
+// rest below one unit (when `total` has more digits than `places`) goes to
+// the last part with weight. Every part lies between zero and `total`, has
+// its sign, and the parts add up to `total` exactly. Throws
+// std::invalid_argument on a negative weight or all-zero weights.
 std::vector<Decimal> allocate(const Decimal& total, const std::vector<Decimal>& weights,
                               int places);
+// The share of a lot's `cost` that goes with `taken` of its `held` units:
+// allocate(cost, {taken, held - taken}, kCostPlaces), all of it when every unit goes.
+Decimal cost_share(const Decimal& cost, const Decimal& taken, const Decimal& held);
 
 struct LedgerLog {
   std::vector<Account> accounts;
@@ -167,7 +182,10 @@ class Replayer {
 Book replay(const LedgerLog& log, std::optional<Date> until = std::nullopt,
             const DayObserver& observer = {});
 
-// Ids of transactions cancelled by a void entry in `transactions`.
+// Ids of the rows of `transactions` that a void in force cancels. A void is
+// in force unless it is itself cancelled: voiding a void reinstates what it
+// had cancelled, and voiding that void cancels it again. Voids that are
+// cancelled are in the set too.
 std::unordered_set<std::int64_t> voided_ids(const std::vector<Transaction>& transactions);
 
 }  // namespace keel

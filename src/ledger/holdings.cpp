@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <map>
 
+#include "ledger/accounts.h"
 #include "ledger/posting.h"
 #include "market/day_view.h"
 #include "store/ledger_store.h"
@@ -34,6 +35,7 @@ Holdings holdings(store::Database& db, Date as_of, const std::optional<std::stri
   const auto only = account_filter(db, account);
   const auto symbols = symbols_by_id(db);
   const Book book = replay(load_log(db), as_of);
+  if (!only) one_currency(book.accounts(), "holdings");
   const market::DayView view(db);
   Holdings out;
   out.as_of = as_of;
@@ -100,6 +102,13 @@ std::vector<GainLine> realized_gains(store::Database& db, std::optional<int> yea
                                     : held_long_term(part.acquired, part.disposed);
     out.push_back(std::move(line));
   }
+  // The lines are in each account's own currency; their totals may not mix.
+  std::vector<Account> selling;
+  for (const auto& info : book.accounts())
+    if (std::any_of(out.begin(), out.end(),
+                    [&](const GainLine& g) { return g.part.account_id == info.id; }))
+      selling.push_back(info);
+  one_currency(selling, "gains");
   return out;
 }
 

@@ -2,8 +2,10 @@
 //
 // A position's price is its latest close on or before the day, else its
 // latest trade price; market value is quantity x price, exact. Amounts are
-// in the accounts' own currency (keel does not convert between currencies).
-// Throws InputError for an unknown account name.
+// in the accounts' own currency (keel does not convert between currencies):
+// holdings of every account, and gains whose sales span several accounts,
+// are refused when those accounts keep different currencies (one_currency,
+// ledger/accounts.h). Throws InputError for an unknown account name.
 #pragma once
 
 #include <optional>

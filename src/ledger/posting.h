@@ -4,9 +4,11 @@
 // checks its shape (which figures a kind needs, all positive), resolves the
 // names, writes the row(s) and replays the whole ledger inside one write
 // transaction; if any rule breaks (see ledger/book.h), it throws InputError
-// and nothing is written. void_transaction() cancels a posted row (and the
-// other half of a transfer pair) by recording void entries, under the same
-// all-or-nothing check.
+// and nothing is written. Every write here checks the period locks
+// (ledger/period.h): nothing dated in a reconciled period gets in.
+// void_transaction() cancels a posted row (and the other half of a transfer
+// pair), or reinstates it by voiding its void, by recording void entries,
+// under the same all-or-nothing check.
 #pragma once
 
 #include <cstdint>
@@ -15,7 +17,9 @@
 #include <unordered_map>
 #include <vector>
 
+#include "core/error.h"
 #include "ledger/book.h"
+#include "ledger/period.h"
 #include "model/records.h"
 #include "store/database.h"
 
@@ -36,9 +40,33 @@ struct PostRequest {
   std::optional<std::string> ref;
   std::optional<std::string> note;
   std::optional<std::string> row_hash;  // set by importers for rows without ref
+  bool allow_future = false;            // accept a date after today
 };
 
-// Throws InputError naming the first figure that is missing, extra or not positive.
+// Why `date` may not be posted without an explicit override: "2099-12-31 is
+// after today (2026-12-03)"; unset when it is today or earlier. Today is the
+// local calendar day (Date::today, which follows TZ). A posting in the future
+// is far more often a slip of the keyboard than a trade booked ahead of
+// settlement, and year-to-date reports would run to it.
+std::optional<std::string> future_date(Date date);
+// The flag that overrides it, named in every refusal.
+inline constexpr const char* kAllowFutureFlag = "--allow-future-date";
+
+// A request of the wrong shape; field() names the request's field at fault
+// ("amount", "quantity"; empty for the row as a whole) and reason() says why
+// without naming an option, so an importer can name the file's column instead.
+class ShapeError : public InputError {
+ public:
+  ShapeError(std::string message, std::string field, std::string reason);
+  const std::string& field() const { return field_; }
+  const std::string& reason() const { return reason_; }
+
+ private:
+  std::string field_, reason_;
+};
+
+// Throws ShapeError naming the first figure that is missing, extra or not
+// positive, or InputError for a date after today without allow_future.
 void check_shape(const PostRequest& request);
 
 // Posts one request; returns the ids written (two for an internal transfer).
@@ -46,7 +74,16 @@ std::vector<std::int64_t> post(store::Database& db, const PostRequest& request);
 
 // Writes the rows of `requests` without replaying; the caller replays once
 // (check_ledger) and commits. For importers that post many rows in one go.
-std::vector<std::int64_t> write_unchecked(store::Database& db, const PostRequest& request);
+// `locks`: the period locks loaded once by the caller (loaded here if null).
+std::vector<std::int64_t> write_unchecked(store::Database& db, const PostRequest& request,
+                                          const PeriodLocks* locks = nullptr);
+
+// Writes the void entries cancelling `id` (and the other half of a transfer
+// pair) without replaying; returns their ids. Throws InputError for an
+// unknown id, a void, an already voided row or a locked period.
+std::vector<std::int64_t> write_void_unchecked(store::Database& db, std::int64_t id,
+                                               const std::string& reason,
+                                               const PeriodLocks* locks = nullptr);
 
 // Replays the whole ledger; throws InputError on the first broken rule.
 // `pending`: ids written by the change being checked, with their origin (see LedgerLog).
@@ -60,12 +97,22 @@ std::vector<std::int64_t> post_batch(store::Database& db, const std::vector<Post
                                      const std::vector<std::string>& origins);
 
 // Records a split of `symbol` on `date`; ratio = new units per old unit.
+// A date after today is refused unless `allow_future`.
 std::int64_t post_split(store::Database& db, const std::string& symbol, Date date,
-                        const Decimal& ratio);
+                        const Decimal& ratio, bool allow_future = false);
 
-// Cancels transaction `id`; returns the ids of the void entries written.
-std::vector<std::int64_t> void_transaction(store::Database& db, std::int64_t id,
-                                           const std::string& reason);
+// Records a void of row `id` (and of the rows that stand or fall with it:
+// the other half of a transfer pair; for a void, the voids of that pair).
+// Voiding a transaction takes it out of the books; voiding a void puts what
+// it had cancelled back (voided_ids() in ledger/book.h). Refuses a row that
+// already has a void, saying which void to void instead. Same all-or-nothing
+// check as post().
+struct VoidResult {
+  std::vector<std::int64_t> void_ids;   // the void entries written
+  std::vector<Transaction> cancelled;   // transactions now out of the books
+  std::vector<Transaction> reinstated;  // transactions back in the books
+};
+VoidResult void_transaction(store::Database& db, std::int64_t id, const std::string& reason);
 
 LedgerLog load_log(store::Database& db);
 

@@ -40,7 +40,7 @@ bool is_cash_kind(TxnKind kind);
 struct Account {
   std::int64_t id = 0;
   std::string name;
-  std::string currency = "USD";
+  std::string currency;  // ISO 4217 code; empty: the ledger's (ledger::add_account)
   BasisMethod basis = BasisMethod::fifo;
   bool allow_negative_cash = false;
 };

@@ -47,8 +47,10 @@ std::string normalize_currency(std::string_view code) {
 }
 
 void validate(const Security& s) {
-  check_name("symbol", s.symbol, 40);
-  check_name("name", s.name, 200);
+  check_identifier("symbol", s.symbol, 40);
+  normalize_currency(s.currency);  // refuses anything but three letters
+  check_identifier("name", s.name, 200);
+  if (s.sector) check_identifier("sector", *s.sector, 100);
   if (!s.lot_size.is_positive())
     throw InputError(fmt::format("lot size of {} must be positive", printable(s.symbol)));
 }

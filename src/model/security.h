@@ -21,8 +21,8 @@ struct Security {
   std::string symbol;
   std::string name;
   SecurityKind kind = SecurityKind::stock;
-  std::string currency = "USD";
-  Decimal lot_size{1};  // smallest tradable unit multiple; 1 = whole shares
+  std::string currency;  // ISO 4217 code; empty: the ledger's (ledger::add_security)
+  Decimal lot_size{1};   // smallest tradable unit multiple; 1 = whole shares
   std::optional<std::string> sector;
 };
 

@@ -6,6 +6,7 @@
 
 #include "core/error.h"
 #include "core/text.h"
+#include "ledger/accounts.h"
 #include "ledger/posting.h"
 #include "market/day_view.h"
 #include "market/series.h"
@@ -29,6 +30,8 @@ Scope scope_of(store::Database& db, const std::optional<std::string>& account_na
           fmt::format("--account: there is no account named '{}'", printable(*account_name)));
     scope.account_id = account->id;
     scope.name = account->name;
+  } else {
+    ledger::one_currency(store::list_accounts(db), "returns");
   }
   return scope;
 }

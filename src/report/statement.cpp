@@ -9,10 +9,13 @@
 
 #include "core/error.h"
 #include "core/text.h"
+#include "ledger/accounts.h"
 #include "ledger/posting.h"
 #include "market/day_view.h"
 #include "market/series.h"
 #include "store/ledger_store.h"
+#include "store/period_store.h"
+#include "store/price_write.h"
 
 namespace keel::report {
 namespace {
@@ -130,9 +133,15 @@ std::vector<std::string> statement_cautions() {
   };
 }
 
+std::string statement_years() {
+  return fmt::format("{} to {}; it looks back {} years", kFirstStatementYear, kLastStatementYear,
+                     kFirstStatementYear - 1);
+}
+
 Statement build_statement(store::Database& db, const StatementRequest& request) {
-  if (request.year < 1 || request.year > 9999)
-    throw InputError(fmt::format("--year: {} is not a calendar year", request.year));
+  if (request.year < kFirstStatementYear || request.year > kLastStatementYear)
+    throw InputError(fmt::format("--year: {} is outside the years a statement covers ({})",
+                                 request.year, statement_years()));
   if (request.long_term_days && *request.long_term_days < 1)
     throw InputError(fmt::format("--long-term-days: {} is not a number of days; give 1 or more",
                                  *request.long_term_days));
@@ -148,16 +157,12 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
           fmt::format("--account: there is no account named '{}'", printable(*request.account)));
     account_id = account->id;
     s.currency = account->currency;
-  } else {
-    std::set<std::string> currencies;
-    for (const auto& a : accounts) currencies.insert(a.currency);
-    if (currencies.size() > 1)
-      throw InputError(fmt::format(
-          "the ledger's accounts keep {}; keel does not convert currencies, so give --account "
-          "for a statement of one account",
-          fmt::join(currencies, ", ")));
-    if (!currencies.empty()) s.currency = *currencies.begin();
+  } else if (const auto currency = ledger::one_currency(accounts, "statement")) {
+    s.currency = *currency;
   }
+  for (const auto& [id, day] : store::last_reconciled_days(db))
+    for (const auto& a : accounts)
+      if (a.id == id && (!account_id || *account_id == id)) s.reconciled.emplace_back(a.name, day);
   if (request.benchmark && !store::find_security(db, *request.benchmark))
     throw InputError(fmt::format("--benchmark: there is no security with symbol '{}'",
                                  printable(*request.benchmark)));
@@ -206,7 +211,7 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
     return line;
   };
   s.performance.push_back(measured("since inception", s.inception));
-  for (const int n : {3, 5}) {
+  for (const int n : kTrailingYears) {
     const Date from = s.to.plus_years(-n).plus_days(1);
     if (from < s.inception) {
       PerformanceLine line;

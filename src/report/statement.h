@@ -27,10 +27,11 @@
 //    as its withholding; tax rows without such a payment are listed apart.
 //  - Throws InputError (naming the option) for an unknown account or
 //    benchmark, a benchmark without a close before the year, a year outside
-//    the ledger's history, a long-term threshold below 1, and a ledger
-//    without transactions.
+//    kFirstStatementYear to kLastStatementYear or the ledger's history, a long-term threshold below
+//    1, and a ledger without transactions.
 #pragma once
 
+#include <iterator>
 #include <optional>
 #include <string>
 #include <vector>
@@ -42,6 +43,16 @@
 #include "store/database.h"
 
 namespace keel::report {
+
+// The years a statement can cover: its trailing 5-year line starts five years
+// before the year ends, and no date lies before year 1.
+inline constexpr int kTrailingYears[] = {3, 5};
+inline constexpr int kFirstStatementYear = 6;
+inline constexpr int kLastStatementYear = 9999;
+
+static_assert(kFirstStatementYear == 1 + kTrailingYears[std::size(kTrailingYears) - 1]);
+// "6 to 9999; it looks back 5 years", for messages.
+std::string statement_years();
 
 struct StatementRequest {
   int year = 0;
@@ -132,6 +143,9 @@ struct Statement {
   std::optional<std::string> benchmark;
   std::string long_term_rule;  // words for the threshold in use
   std::vector<std::string> unpriced;
+  // Each account in scope that was reconciled with a broker's statement
+  // (keel reconcile), with its last reconciled day.
+  std::vector<std::pair<std::string, Date>> reconciled;
 
   YearSummary summary;
   std::vector<PerformanceLine> performance;  // this year first

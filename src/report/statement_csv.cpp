@@ -1,11 +1,7 @@
 // Writing statement files: the safe file writer and the CSV form (one file
 // per section, RFC 4180, exact decimals, fractions for percentages).
-#include <fcntl.h>
 #include <fmt/format.h>
-#include <sys/stat.h>
-#include <unistd.h>
 
-#include <cerrno>
 #include <cstring>
 #include <system_error>
 
@@ -45,44 +41,8 @@ std::string csv_field(const Cell& cell) {
 
 }  // namespace
 
-void write_text_file(const std::filesystem::path& file, const std::string& content) {
-  const auto parent = file.has_parent_path() ? file.parent_path() : std::filesystem::path(".");
-  std::error_code ec;
-  if (!std::filesystem::is_directory(parent, ec))
-    throw InputError(fmt::format("cannot write '{}': the folder '{}' does not exist",
-                                 printable(file.string()), printable(parent.string())));
-  if (std::filesystem::is_directory(file, ec))
-    throw InputError(fmt::format("cannot write '{}': it is a folder", printable(file.string())));
-  std::string temp = (parent / ("." + file.filename().string() + ".keel-XXXXXX")).string();
-  const int fd = ::mkstemp(temp.data());
-  if (fd < 0)
-    throw InputError(
-        fmt::format("cannot write '{}': {}", printable(file.string()), std::strerror(errno)));
-  std::size_t done = 0;
-  while (done < content.size()) {
-    const ssize_t n = ::write(fd, content.data() + done, content.size() - done);
-    if (n < 0) {
-      const int err = errno;
-      ::close(fd);
-      ::unlink(temp.c_str());
-      throw InputError(
-          fmt::format("cannot write '{}': {}", printable(file.string()), std::strerror(err)));
-    }
-    done += static_cast<std::size_t>(n);
-  }
-  // Files keep the permissions an ordinary new file would get (mkstemp makes 0600).
-  const mode_t mask = ::umask(0);
-  ::umask(mask);
-  ::fchmod(fd, 0666 & ~mask);
-  if (::close(fd) != 0 || std::rename(temp.c_str(), file.c_str()) != 0) {
-    const int err = errno;
-    ::unlink(temp.c_str());
-    throw InputError(
-        fmt::format("cannot write '{}': {}", printable(file.string()), std::strerror(err)));
-  }
-}
-
-void write_statement_csv(const Statement& s, const std::filesystem::path& dir) {
+void write_statement_csv(const Statement& s, const std::filesystem::path& dir,
+                         const std::string& option) {
   std::error_code ec;
   if (!std::filesystem::exists(dir, ec)) {
     if (!std::filesystem::create_directory(dir, ec))
@@ -93,14 +53,21 @@ void write_statement_csv(const Statement& s, const std::filesystem::path& dir) {
   }
   for (const auto& sec : statement_sections(s)) {
     std::string text;
-    for (std::size_t c = 0; c < sec.columns.size(); ++c)
-      text += (c ? "," : "") + quoted(sec.columns[c].heading);
+    for (std::size_t c = 0; c < sec.columns.size(); ++c) {
+      if (c) text += ',';
+      text += quoted(sec.columns[c].heading);
+    }
     text += "\r\n";
     for (const auto& row : sec.rows) {
-      for (std::size_t c = 0; c < row.size(); ++c) text += (c ? "," : "") + csv_field(row[c]);
+      for (std::size_t c = 0; c < row.size(); ++c) {
+        if (c) text += ',';
+        text += csv_field(row[c]);
+      }
       text += "\r\n";
     }
-    write_text_file(dir / (sec.key + ".csv"), text);
+    OutputFile file(dir / (sec.key + ".csv"), {option});
+    file.write(text);
+    file.commit();
   }
 }
 

@@ -1,7 +1,9 @@
 // The statement as one self-contained HTML page: inline CSS, three inline SVG
 // charts drawn here (growth, monthly returns, allocation), no scripts and no
-// references outside the file. Laid out for screens and for printing on A4 or
-// Letter (content no wider than A4 less its margins).
+// references outside the file. Laid out for screens and for printing on the
+// paper asked for (CSS @page size), each printed page with a running title
+// and "page N of M" in its margins (CSS page margin boxes, which Chromium
+// draws when it prints the PDF). Dates never break across lines.
 #include <fmt/format.h>
 
 #include <algorithm>
@@ -22,8 +24,9 @@ constexpr const char* kRule = "#d9d2c5";
 constexpr const char* kCopper = "#b5562b";
 constexpr const char* kSage = "#6f8f72";
 constexpr const char* kPaper = "#fbf8f2";
-constexpr const char* kSliceColours[] = {"#b5562b", "#6f8f72", "#3f6e8c", "#c99a3b", "#8c5a7a",
-                                         "#4f7d6b", "#a3785a", "#59788e", "#9a9a5a", "#7a5c4f"};
+// The allocation's bars: one colour, neither the portfolio's nor the
+// benchmark's, so no bar reads as either; each bar carries its own labels.
+constexpr const char* kAllocation = kSlate;
 
 std::string esc(const std::string& raw) {
   const std::string text = valid_utf8(raw) ? raw : printable(raw);
@@ -57,19 +60,67 @@ std::string esc(const std::string& raw) {
 }
 
 // 1234567.5 -> "1,234,567.50"
+// Built front to back: GCC 12 reports -Wrestrict (a false positive) when
+// separators are inserted into the middle of a string at -O2 and above.
 std::string grouped(const Decimal& d) {
-  std::string s = d.fixed(2);
-  const bool negative = !s.empty() && s.front() == '-';
-  if (negative) s.erase(0, 1);
-  const auto point = s.find('.');
-  std::string whole = s.substr(0, point);
-  for (int i = static_cast<int>(whole.size()) - 3; i > 0; i -= 3) whole.insert(i, ",");
-  return (negative ? "-" : "") + whole + s.substr(point);
+  const std::string s = d.fixed(2);
+  const std::size_t first = !s.empty() && s.front() == '-' ? 1 : 0;
+  const std::size_t point = std::min(s.find('.'), s.size());
+  std::string out(s, 0, first);
+  for (std::size_t i = first; i < point; ++i) {
+    if (i > first && (point - i) % 3 == 0) out += ',';
+    out += s[i];
+  }
+  out.append(s, point);
+  return out;
+}
+
+bool is_digit(char c) {
+  return c >= '0' && c <= '9';
+}
+
+// Escaped text with every YYYY-MM-DD in it kept on one line (a browser may
+// break after a hyphen).
+std::string esc_dates_whole(const std::string& raw) {
+  const std::string text = esc(raw);
+  std::string out;
+  std::size_t i = 0;
+  while (i < text.size()) {
+    const bool date = i + 10 <= text.size() && is_digit(text[i]) && is_digit(text[i + 1]) &&
+                      is_digit(text[i + 2]) && is_digit(text[i + 3]) && text[i + 4] == '-' &&
+                      is_digit(text[i + 5]) && is_digit(text[i + 6]) && text[i + 7] == '-' &&
+                      is_digit(text[i + 8]) && is_digit(text[i + 9]);
+    if (date) {
+      out += "<span class=\"date\">" + text.substr(i, 10) + "</span>";
+      i += 10;
+    } else {
+      out += text[i++];
+    }
+  }
+  return out;
 }
 
 std::string html_cell(const Cell& cell) {
   if (cell.kind == CellKind::money) return grouped(cell.number);
-  return esc(display(cell));
+  if (cell.kind == CellKind::date) return esc(display(cell));  // the cell itself does not wrap
+  return esc_dates_whole(display(cell));
+}
+
+// A CSS string literal of user text, safe inside a <style> element: quotes,
+// backslashes, control characters and markup characters as CSS escapes.
+std::string css_string(const std::string& raw) {
+  const std::string text = valid_utf8(raw) ? raw : printable(raw);
+  std::string out = "\"";
+  for (const char c : text) {
+    const auto u = static_cast<unsigned char>(c);
+    if (c == '"' || c == '\\')
+      out += fmt::format("\\{}", c);
+    else if (u < 0x20 || u == 0x7f || c == '<' || c == '>' || c == '&')
+      out += fmt::format("\\{:x} ", u);
+    else
+      out += c;
+  }
+  return out + "\"";
 }
 
 std::string f1(double x) {
@@ -224,7 +275,7 @@ std::string monthly_chart(const Statement& s) {
 std::string allocation_chart(const Statement& s) {
   Frame f;
   f.left = 110;
-  f.right = 70;
+  f.right = 150;
   f.top = 10;
   f.bottom = 10;
   const double row = 22;
@@ -238,13 +289,12 @@ std::string allocation_chart(const Statement& s) {
     const double w = a.weight.to_double();
     const double top = f.top + row * static_cast<double>(i);
     const double length = std::max(0.0, (f.x1() - f.x0()) * w / most);
-    const char* colour = a.label == "cash" ? kSlate : kSliceColours[i % 10];
     out += fmt::format(
         "<text x=\"{}\" y=\"{}\" text-anchor=\"end\" class=\"label\">{}</text>\n"
         "<rect x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\" fill=\"{}\" rx=\"1.5\"/>\n"
-        "<text x=\"{}\" y=\"{}\" class=\"label\">{:.2f}%</text>\n",
+        "<text x=\"{}\" y=\"{}\" class=\"label\">{:.2f}% \u00b7 {}</text>\n",
         f1(f.x0() - 8), f1(top + 15), esc(a.label), f1(f.x0()), f1(top + 4), f1(length),
-        f1(row - 8), colour, f1(f.x0() + length + 6), f1(top + 15), w * 100);
+        f1(row - 8), kAllocation, f1(f.x0() + length + 6), f1(top + 15), w * 100, grouped(a.value));
   }
   out += "</svg>\n";
   return out;
@@ -271,17 +321,19 @@ std::string table_html(const Section& sec) {
           (sec.rows[i][c].kind == CellKind::percent && sec.rows[i][c].ratio < 0);
       std::string cls = num ? "num" : "";
       if (negative) cls += " neg";
+      if (sec.rows[i][c].kind == CellKind::date) cls += cls.empty() ? "date" : " date";
       out += fmt::format("<td{}>{}</td>", cls.empty() ? "" : " class=\"" + cls + "\"",
                          html_cell(sec.rows[i][c]));
     }
     out += "</tr>\n";
   }
   out += "</tbody>\n</table>\n";
-  for (const auto& note : sec.notes) out += "<p class=\"note\">" + esc(note) + "</p>\n";
+  for (const auto& note : sec.notes) out += "<p class=\"note\">" + esc_dates_whole(note) + "</p>\n";
   return out;
 }
 
-std::string css() {
+// `title` and `period` are CSS strings (css_string()) for the page margins.
+std::string css(Paper paper, const std::string& title, const std::string& period) {
   return fmt::format(R"(
 :root {{ --ink: {ink}; --slate: {slate}; --rule: {rule}; --copper: {copper}; --sage: {sage};
         --paper: {paper}; }}
@@ -308,7 +360,8 @@ tr {{ break-inside: avoid; page-break-inside: avoid; }}
 th {{ text-align: left; font-weight: 600; color: var(--slate); border-bottom: 1pt solid var(--ink);
      padding: 1.2mm 1.6mm; white-space: nowrap; }}
 td {{ padding: .9mm 1.6mm; border-bottom: .4pt solid var(--rule); }}
-.num {{ text-align: right; white-space: nowrap; }}
+.num, .date {{ white-space: nowrap; }}
+.num {{ text-align: right; }}
 .neg {{ color: #8f3a22; }}
 tr.total td {{ font-weight: 600; background: #f3ede2; }}
 tr.ruled td {{ border-top: 1pt solid var(--ink); }}
@@ -324,7 +377,14 @@ svg .legend, svg .label {{ font-size: 10px; }}
 .cautions h2 {{ border: 0; margin-top: 2mm; }}
 .cautions li {{ margin: 1mm 0; }}
 footer {{ margin-top: 6mm; color: var(--slate); font-size: 8pt; }}
-@page {{ margin: 13mm 12mm 14mm; }}
+@page {{ size: {size}; margin: 16mm 12mm 16mm;
+  @top-left {{ content: {title}; font: 7.5pt "DejaVu Sans", "Noto Sans", sans-serif;
+              color: {slate}; }}
+  @top-right {{ content: {period}; font: 7.5pt "DejaVu Sans", "Noto Sans", sans-serif;
+               color: {slate}; }}
+  @bottom-center {{ content: "page " counter(page) " of " counter(pages);
+                   font: 7.5pt "DejaVu Sans", "Noto Sans", sans-serif; color: {slate}; }}
+}}
 @media print {{
   html, body {{ background: #fff; }}
   body {{ padding: 0; max-width: none; }}
@@ -334,12 +394,13 @@ footer {{ margin-top: 6mm; color: var(--slate); font-size: 8pt; }}
 )",
                      fmt::arg("ink", kInk), fmt::arg("slate", kSlate), fmt::arg("rule", kRule),
                      fmt::arg("copper", kCopper), fmt::arg("sage", kSage),
-                     fmt::arg("paper", kPaper));
+                     fmt::arg("paper", kPaper), fmt::arg("size", css_page_size(paper)),
+                     fmt::arg("title", title), fmt::arg("period", period));
 }
 
 }  // namespace
 
-std::string statement_html(const Statement& s) {
+std::string statement_html(const Statement& s, Paper paper) {
   const auto sections = statement_sections(s);
   auto find = [&](const char* key) -> const Section& {
     return *std::find_if(sections.begin(), sections.end(),
@@ -348,7 +409,10 @@ std::string statement_html(const Statement& s) {
   const std::string title = fmt::format("Statement {} \u2014 {}", s.year, s.scope);
   std::string out = "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\"/>\n";
   out += "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\"/>\n";
-  out += "<title>" + esc(title) + "</title>\n<style>" + css() + "</style>\n</head>\n<body>\n";
+  out +=
+      "<title>" + esc(title) + "</title>\n<style>" +
+      css(paper, css_string(title), css_string(fmt::format("{} to {}", s.from.str(), s.to.str()))) +
+      "</style>\n</head>\n<body>\n";
   out += "<header>\n<div class=\"mark\">keel \u00b7 year-end statement</div>\n";
   out += "<h1>" + esc(title) + "</h1>\n";
   out += fmt::format(
@@ -375,9 +439,11 @@ std::string statement_html(const Statement& s) {
          (s.benchmark ? ", portfolio (copper) beside " + esc(*s.benchmark) + " (sage)"
                       : std::string()) +
          ".</figcaption>\n</figure>\n" + table_html(find("monthly")) + "</section>\n";
-  out += "<section>\n<h2>" + esc(find("holdings").title) + "</h2>\n" + table_html(find("holdings"));
+  out += "<section>\n<h2>" + esc_dates_whole(find("holdings").title) + "</h2>\n" +
+         table_html(find("holdings"));
   out += "<figure>\n" + allocation_chart(s) +
-         "<figcaption>Allocation by security and cash, as a share of the closing value."
+         "<figcaption>Allocation by security and cash: each one's share of the closing value "
+         "and its value."
          "</figcaption>\n</figure>\n</section>\n";
   out += "<section>\n<h2>" + esc(find("realized").title) + "</h2>\n" +
          table_html(find("realized")) + "</section>\n";

@@ -31,6 +31,10 @@ std::string statement_json(const Statement& s) {
   j.member("inception", s.inception.str()).member("partial_year", s.partial_year);
   j.member("benchmark", s.benchmark).member("long_term_rule", s.long_term_rule);
   j.member("unpriced", s.unpriced);
+  j.key("reconciled").begin_array();
+  for (const auto& [account, day] : s.reconciled)
+    j.begin_object().member("account", account).member("day", day.str()).end_object();
+  j.end_array();
 
   const YearSummary& y = s.summary;
   j.key("summary").begin_object();

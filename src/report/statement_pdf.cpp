@@ -66,24 +66,23 @@ std::optional<std::filesystem::path> find_chromium() {
   return std::nullopt;
 }
 
-void print_pdf(const std::filesystem::path& html, const std::filesystem::path& pdf) {
+void print_pdf(const std::filesystem::path& html, OutputFile& pdf) {
   const auto chromium = find_chromium();
   if (!chromium)
-    throw InputError(
-        "no Chromium found on PATH to print the PDF; install it (Debian: apt-get install "
-        "chromium) or write --html and print that");
-  const auto parent = pdf.has_parent_path() ? pdf.parent_path() : std::filesystem::path(".");
+    throw InputError(fmt::format(
+        "{}: no Chromium found on PATH to print the PDF; install it (Debian: apt-get install "
+        "chromium) or write --html and print that",
+        pdf.option()));
   std::error_code ec;
-  if (!std::filesystem::is_directory(parent, ec))
-    throw InputError(fmt::format("cannot write '{}': the folder '{}' does not exist",
-                                 printable(pdf.string()), printable(parent.string())));
   std::string profile_template =
       (std::filesystem::temp_directory_path() / "keel-chromium-XXXXXX").string();
   if (!::mkdtemp(profile_template.data()))
-    throw InputError("cannot make a temporary folder for Chromium's profile");
+    throw InputError(
+        fmt::format("{}: cannot make a temporary folder for Chromium's profile", pdf.option()));
   TempDir profile{profile_template};
-  const auto temp_pdf =
-      std::filesystem::absolute(parent / ("." + pdf.filename().string() + ".keel-tmp.pdf"));
+  // Chromium fills the OutputFile's empty temporary file; it is put in place
+  // only when Chromium succeeded.
+  const auto temp_pdf = std::filesystem::absolute(pdf.path_for_writer());
 
   std::vector<std::string> args{chromium->string(),
                                 "--headless",
@@ -103,7 +102,8 @@ void print_pdf(const std::filesystem::path& html, const std::filesystem::path& p
   const std::string log_path = (profile.path / "chromium.log").string();
 
   const pid_t pid = ::fork();
-  if (pid < 0) throw InputError("cannot start Chromium: fork failed");
+  if (pid < 0)
+    throw InputError(fmt::format("{}: cannot start Chromium: fork failed", pdf.option()));
   if (pid == 0) {
     const int null_in = ::open("/dev/null", O_RDONLY);
     const int log = ::open(log_path.c_str(), O_WRONLY | O_CREAT | O_TRUNC, 0600);
@@ -124,25 +124,19 @@ void print_pdf(const std::filesystem::path& html, const std::filesystem::path& p
     if (std::chrono::steady_clock::now() > deadline) {
       ::kill(-pid, SIGKILL);
       ::waitpid(pid, &status, 0);
-      std::filesystem::remove(temp_pdf, ec);
-      throw InputError(
-          fmt::format("Chromium did not finish printing within {} seconds", kTimeoutSeconds));
+      throw InputError(fmt::format("{}: Chromium did not finish printing within {} seconds",
+                                   pdf.option(), kTimeoutSeconds));
     }
     std::this_thread::sleep_for(std::chrono::milliseconds(50));
   }
   const bool ok = WIFEXITED(status) && WEXITSTATUS(status) == 0 &&
                   std::filesystem::exists(temp_pdf, ec) &&
                   std::filesystem::file_size(temp_pdf, ec) > 0;
-  if (!ok) {
-    std::filesystem::remove(temp_pdf, ec);
-    throw InputError(fmt::format("Chromium ({}) could not print the PDF (exit status {})",
-                                 chromium->string(), WIFEXITED(status) ? WEXITSTATUS(status) : -1));
-  }
-  std::filesystem::rename(temp_pdf, pdf, ec);
-  if (ec) {
-    std::filesystem::remove(temp_pdf, ec);
-    throw InputError(fmt::format("cannot write '{}'", printable(pdf.string())));
-  }
+  if (!ok)
+    throw InputError(fmt::format("{}: Chromium ({}) could not print the PDF (exit status {})",
+                                 pdf.option(), chromium->string(),
+                                 WIFEXITED(status) ? WEXITSTATUS(status) : -1));
+  pdf.commit();
 }
 
 }  // namespace keel::report

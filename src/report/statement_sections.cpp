@@ -31,10 +31,13 @@ Section summary_section(const Statement& s) {
   row("realized gain", y.realized_gain);
   row("change in unrealized gain", y.unrealized_change());
   row("unrealized gain moved in by transfers", -y.unrealized_moved);
-  sec.emphasised.push_back(sec.rows.size());
+  const std::size_t explained = sec.rows.size();
+  sec.emphasised.push_back(explained);
   row("opening value plus the pieces", y.explained_closing());
   row(fmt::format("closing value (close of {})", s.to.str()), y.closing_value);
   row("difference", y.difference());
+  sec.formulas = {Formula::sum(explained, 1, 0, explained - 1),
+                  Formula::difference(explained + 2, 1, explained + 1, explained)};
   sec.notes.push_back(
       y.difference().is_zero()
           ? "Check: the pieces add up to the closing value exactly."
@@ -159,15 +162,22 @@ Section holdings_section(const Statement& s) {
     sec.rows.push_back({C::of_text(c.account), C::of_text("cash"), C::none(), C::none(), C::none(),
                         C::of_money(c.amount), C::none(), C::of_percent(w)});
   }
-  sec.emphasised.push_back(sec.rows.size());
+  const std::size_t total_row = sec.rows.size();
+  sec.emphasised.push_back(total_row);
   sec.rows.push_back({C::of_text("total"), C::none(), C::none(), C::of_money(cost), C::none(),
                       C::of_money(s.holdings_total), C::of_money(unrealized), C::none()});
+  if (total_row > 0)
+    for (const std::size_t column : {3, 5, 6})
+      sec.formulas.push_back(Formula::sum(total_row, column, 0, total_row - 1));
   if (trade_price)
     sec.notes.push_back(
         "* no close on or before the day; valued at the ledger's last trade price.");
   if (!s.unpriced.empty())
     sec.notes.push_back(fmt::format("Held without any close or trade price, valued at zero: {}.",
                                     fmt::join(s.unpriced, ", ")));
+  for (const auto& [account, day] : s.reconciled)
+    sec.notes.push_back(fmt::format("'{}' was last reconciled with its broker's statement on {}.",
+                                    account, day.str()));
   return sec;
 }
 
@@ -177,7 +187,16 @@ Section gains_section(const Statement& s) {
   sec.title = "Realized gains, by closed lot";
   sec.columns = gain_columns("class");
   for (const auto& g : s.gains) sec.rows.push_back(gain_cells(g));
-  sec.emphasised.push_back(sec.rows.size());
+  const std::size_t parts = sec.rows.size();
+  sec.emphasised.push_back(parts);
+  // Proceeds, cost and gain: the columns before the class, the last one.
+  const std::size_t term = sec.columns.size() - 1;
+  if (parts > 0)
+    for (const std::size_t column : {term - 3, term - 2, term - 1}) {
+      sec.formulas.push_back(Formula::sum_if(parts, column, 0, parts - 1, term, "short"));
+      sec.formulas.push_back(Formula::sum_if(parts + 1, column, 0, parts - 1, term, "long"));
+      sec.formulas.push_back(Formula::sum(parts + 2, column, 0, parts - 1));
+    }
   auto total = [&](const char* label, const ledger::GainTotals& t, const char* cls) {
     sec.rows.push_back({C::of_text(label), C::none(), C::none(), C::none(), C::none(), C::none(),
                         C::of_money(t.proceeds), C::of_money(t.cost), C::of_money(t.gain),
@@ -219,9 +238,13 @@ Section income_section(const Statement& s) {
                         C::of_money(-t.amount)});
     withheld += t.amount;
   }
-  sec.emphasised.push_back(sec.rows.size());
+  const std::size_t total_row = sec.rows.size();
+  sec.emphasised.push_back(total_row);
   sec.rows.push_back({C::of_text("total"), C::none(), C::none(), C::none(), C::of_money(gross),
                       C::of_money(withheld), C::of_money(gross - withheld)});
+  if (total_row > 0)
+    for (const std::size_t column : {4, 5, 6})
+      sec.formulas.push_back(Formula::sum(total_row, column, 0, total_row - 1));
   sec.notes.push_back(
       "Withholding is the tax booked on the same day, in the same account, for the same security "
       "as the payment; tax rows without such a payment are listed as unmatched.");

@@ -50,7 +50,8 @@ std::string statement_text(const Statement& s, bool colour) {
                   s.benchmark ? fmt::format(" Benchmark: {}.", *s.benchmark) : std::string()),
       kWidth);
   for (const auto& sec : statement_sections(s)) {
-    out += "\n" + heading(sec.title, colour);
+    out += '\n';
+    out += heading(sec.title, colour);
     if (sec.key == "cautions") {
       for (const auto& row : sec.rows) out += wrap("- " + display(row.front()), kWidth, "  ");
       continue;

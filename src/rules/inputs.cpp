@@ -1,6 +1,7 @@
 #include "rules/inputs.h"
 
 #include <fmt/format.h>
+#include <fmt/ranges.h>
 
 #include <algorithm>
 #include <map>
@@ -11,7 +12,35 @@
 #include "market/series.h"
 
 namespace keel::rules {
-Inputs::Inputs(const Rule& rule, const market::View& view) : rule_(rule) {
+
+std::optional<std::string> keep_currency(const Rule& rule, const std::string& currency,
+                                         const std::vector<const Security*>& sleeves,
+                                         std::vector<const Security*>& universe) {
+  auto refuse = [&](std::string_view key, const Security& s) {
+    rule.fail(key, fmt::format("{} is priced in {} and the rule trades in {}; keel does not "
+                               "convert between currencies yet",
+                               printable(s.symbol), s.currency, currency));
+  };
+  for (const Security* s : sleeves)
+    if (s->currency != currency) refuse("sleeve.symbol", *s);
+  if (rule.universe == Universe::list) {
+    for (const Security* s : universe)
+      if (s->currency != currency) refuse("scope.symbols", *s);
+    return std::nullopt;
+  }
+  const auto kept = std::stable_partition(
+      universe.begin(), universe.end(), [&](const Security* s) { return s->currency == currency; });
+  const auto left_out = static_cast<std::size_t>(universe.end() - kept);
+  universe.erase(kept, universe.end());
+  if (left_out == 0) return std::nullopt;
+  return fmt::format(
+      "{} stock{} priced in other currencies than {} {} left out of the universe "
+      "(keel does not convert between currencies yet)",
+      left_out, left_out == 1 ? "" : "s", currency, left_out == 1 ? "is" : "are");
+}
+
+Inputs::Inputs(const Rule& rule, const market::View& view, std::optional<std::string> currency)
+    : rule_(rule), currency_(std::move(currency)) {
   auto find = [&](const std::string& symbol, std::string_view key) {
     const Security* s = view.security(symbol);
     if (!s) rule.fail(key, fmt::format("no security '{}' in the ledger", printable(symbol)));
@@ -40,9 +69,26 @@ Inputs::Inputs(const Rule& rule, const market::View& view) : rule_(rule) {
           "securities first",
           printable(rule.source)));
   }
-  for (const auto& [symbol, id] : chosen) {
-    universe_.push_back(id);
-    symbols_.push_back(symbol);
+  std::vector<const Security*> universe, sleeves;
+  for (const auto& [symbol, id] : chosen) universe.push_back(view.security(id));
+  for (const std::int64_t id : sleeves_) sleeves.push_back(view.security(id));
+  if (!currency_ && !sleeves.empty()) currency_ = sleeves.front()->currency;
+  if (!currency_) {
+    std::set<std::string> seen;
+    for (const Security* s : universe) seen.insert(s->currency);
+    if (seen.size() > 1)
+      rule.fail("scope", fmt::format("the universe holds stocks priced in {}; keel does not "
+                                     "convert between currencies yet: narrow it to one with "
+                                     "scope.sector or scope.symbols",
+                                     fmt::join(seen, ", ")));
+    if (!seen.empty()) currency_ = *seen.begin();
+  }
+  if (currency_)
+    if (auto note = keep_currency(rule, *currency_, sleeves, universe))
+      notes_.push_back(std::move(*note));
+  for (const Security* s : universe) {
+    universe_.push_back(s->id);
+    symbols_.push_back(s->symbol);
   }
 
   const auto names = view.metric_names();
@@ -130,7 +176,7 @@ Selection Inputs::select(const market::View& view, Date day, const std::set<std:
 }
 
 Quotes Inputs::quotes(const market::View& view, Date day, const std::vector<Target>& targets,
-                      const std::set<std::int64_t>& held, const Fallback& fallback,
+                      const std::set<std::int64_t>& held, const LastTrade& last_trade,
                       std::vector<std::string>& notes) const {
   Quotes quotes;
   auto add = [&](std::int64_t id, bool wanted) {
@@ -139,18 +185,28 @@ Quotes Inputs::quotes(const market::View& view, Date day, const std::vector<Targ
     Quote q;
     q.symbol = s.symbol;
     q.lot_size = s.lot_size;
-    if (const auto c = view.close(id, day)) {
+    const auto trade = last_trade ? last_trade(id) : std::nullopt;
+    if (const auto c = view.close(id, day); c && trade && trade->day > c->day) {
+      // Traded after its latest close: the trade is the fresher price.
+      q.price = trade->price;
+      notes.push_back(
+          fmt::format("{}: valued at its trade price {} of {}, later than its "
+                      "latest close ({})",
+                      printable(s.symbol), trade->price.str(), trade->day.str(), c->day.str()));
+    } else if (c) {
       q.price = c->price;
       if (day - c->day > kOldCloseDays && (wanted || held.count(id)))
         notes.push_back(fmt::format("{}: the latest close on or before {} is from {}",
                                     printable(s.symbol), day.str(), c->day.str()));
     } else {
+      if (!last_trade)
+        throw std::logic_error(
+            fmt::format("rules::Inputs: no close for security {} on {}", id, day.str()));
       q.tradable = false;
-      const auto trade = fallback(id);
-      q.price = trade.value_or(Decimal());
-      notes.push_back(
-          fmt::format("{}: no close on or before {}; valued at {}", printable(s.symbol), day.str(),
-                      trade ? "its last trade price " + trade->str() : "zero (it never traded)"));
+      q.price = trade ? trade->price : Decimal();
+      notes.push_back(fmt::format(
+          "{}: no close on or before {}; valued at {}", printable(s.symbol), day.str(),
+          trade ? "its last trade price " + trade->price.str() : "zero (it never traded)"));
     }
     quotes.emplace(id, std::move(q));
   };

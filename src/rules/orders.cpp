@@ -251,10 +251,8 @@ std::vector<Order> sell_orders(const Work& x, const Decimal& units, const std::s
       it->second = make_order(x, portfolio, p.account, Side::sell, Decimal(), reason, trading);
     it->second.quantity += take;
     if (p.real) {
-      // Basis of the part taken, in proportion, to the cent (as the ledger cuts lots).
-      const Decimal cost = take == p.lot.quantity
-                               ? p.lot.cost
-                               : Decimal::divide(p.lot.cost * take, p.lot.quantity, 2);
+      // Basis of the part taken, exactly as the ledger will cut the lot.
+      const Decimal cost = cost_share(p.lot.cost, take, p.lot.quantity);
       it->second.lots.push_back(LotTake{p.lot.lot_id, p.lot.acquired, take, cost,
                                         take * price - cost,
                                         ledger::held_long_term(p.lot.acquired, as_of)});

@@ -9,6 +9,7 @@
 #include "core/error.h"
 #include "core/text.h"
 #include "io/sha256.h"
+#include "ledger/accounts.h"
 #include "ledger/posting.h"
 #include "market/day_view.h"
 #include "rules/inputs.h"
@@ -34,18 +35,6 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
   p.rule_name = rule.name;
   p.rule_sha256 = io::sha256_hex(rule.text);
   const market::DayView view(db);
-  if (as_of_opt) {
-    p.as_of = *as_of_opt;
-  } else {
-    const auto latest = view.latest_close_day();
-    if (!latest)
-      throw InputError(
-          "the ledger holds no closes to value the accounts at; import prices first "
-          "('keel import prices FILE') or give --as-of");
-    p.as_of = *latest;
-  }
-  const Date as_of = p.as_of;
-
   // The rule's accounts.
   std::vector<Account> pool;
   {
@@ -60,13 +49,60 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
       pool.push_back(*a);
       p.accounts.push_back(a->name);
     }
+    if (const auto mixed = ledger::mixed_currencies(pool))
+      rule.fail("scope.accounts",
+                fmt::format("the accounts keep different currencies ({}) and keel does not convert "
+                            "between them yet; give each currency a rule of its own",
+                            *mixed));
   }
 
+  // The as-of day. By default it takes in every transaction of the rule's
+  // accounts: trades recorded after the latest close (the fills of the last
+  // proposal, say) must count, or their orders would be proposed again.
+  const auto log = ledger::load_log(db);
+  std::optional<Date> last_posting;
+  std::size_t later_postings = 0;
+  {
+    const auto voided = voided_ids(log.transactions);
+    std::set<std::int64_t> pool_ids;
+    for (const auto& a : pool) pool_ids.insert(a.id);
+    for (const auto& t : log.transactions) {
+      if (t.kind == TxnKind::void_entry || voided.count(t.id) || !pool_ids.count(t.account_id))
+        continue;
+      if (!last_posting || t.date > *last_posting) last_posting = t.date;
+      if (as_of_opt && t.date > *as_of_opt) ++later_postings;
+    }
+  }
+  if (as_of_opt) {
+    p.as_of = *as_of_opt;
+    if (later_postings > 0)
+      p.notes.push_back(fmt::format(
+          "{} transaction{} in the rule's accounts {} dated after {} and not taken into account: "
+          "this proposal may repeat orders already filled",
+          later_postings, later_postings == 1 ? "" : "s", later_postings == 1 ? "is" : "are",
+          as_of_opt->str()));
+  } else {
+    const auto latest = view.latest_close_day();
+    if (!latest)
+      throw InputError(
+          "the ledger holds no closes to value the accounts at; import prices first "
+          "('keel import prices FILE') or give --as-of");
+    p.as_of = *latest;
+    if (last_posting && *last_posting > *latest) {
+      p.as_of = *last_posting;
+      p.notes.push_back(fmt::format(
+          "as of {}, the day of the latest transaction in the rule's accounts, after the latest "
+          "close ({}): what was traded since that close is valued at its trade price",
+          last_posting->str(), latest->str()));
+    }
+  }
+  const Date as_of = p.as_of;
+
   // The universe and the sleeves, checked before the ledger is replayed.
-  const Inputs inputs(rule, view);
+  const Inputs inputs(rule, view, pool.front().currency);
+  p.notes.insert(p.notes.end(), inputs.notes().begin(), inputs.notes().end());
 
   // The pool's state on the as-of day.
-  const auto log = ledger::load_log(db);
   Replayer replayer(log);
   const Book& book = replayer.advance_to(as_of);
   p.last_txn_id = store::last_transaction_id(db);
@@ -94,7 +130,11 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
   p.screen = std::move(chosen.screen);
   p.targets = std::move(chosen.targets);
   const Quotes quotes = inputs.quotes(
-      view, as_of, p.targets, held, [&](std::int64_t id) { return book.last_trade_price(id); },
+      view, as_of, p.targets, held,
+      [&](std::int64_t id) -> std::optional<Inputs::Trade> {
+        if (const auto t = book.last_trade(id)) return Inputs::Trade{t->day, t->price};
+        return std::nullopt;
+      },
       p.notes);
 
   Decimal pool_value;

@@ -4,15 +4,20 @@
 // Contract
 //  - propose() uses only what was knowable on the as-of day: positions and
 //    cash replayed to that day; closes on or before it (else a position's
-//    last trade price, which is never traded on); metric figures with
-//    known_on <= as-of (market/view.h). The default as-of is the latest
-//    day with a close. It reads the ledger and writes nothing.
+//    last trade price, which is never traded on; and the trade price when
+//    the ledger traded it after its latest close, with a note); metric
+//    figures with known_on <= as-of (market/view.h). The default as-of is
+//    the later of the latest day with a close and the latest transaction in
+//    the rule's accounts, so orders already filled are not proposed again; a
+//    given as-of with transactions after it gets a note saying so. It reads
+//    the ledger and writes nothing.
 //  - Problems of the rule meeting this ledger are InputErrors located at the
-//    rule key (Rule::fail): an account it does not hold, and whatever
-//    rules::Inputs refuses (rules/inputs.h), in the words the back-test and
-//    the signal check use too. A day on which the rule selects nothing (too
-//    few names, no spread, nothing selected, weights that cannot add up) is
-//    refused with the engine's reason: a proposal always has targets.
+//    rule key (Rule::fail): an account it does not hold, accounts keeping
+//    different currencies, and whatever rules::Inputs refuses
+//    (rules/inputs.h), in the words the back-test and the signal check use
+//    too. A day on which the rule selects nothing (too few names, no spread,
+//    nothing selected, weights that cannot add up) is refused with the
+//    engine's reason: a proposal always has targets.
 //  - save() stores a proposal in one write transaction and returns its id.
 //  - review() matches a saved proposal's orders with the live buys and sells
 //    posted after it was saved in the rule's accounts, by account, security
@@ -25,6 +30,7 @@
 #include <vector>
 
 #include "core/date.h"
+#include "model/security.h"
 #include "rules/engine.h"
 #include "rules/rule.h"
 #include "store/database.h"

@@ -2,6 +2,7 @@
 
 #include <SQLiteCpp/Statement.h>
 
+#include <algorithm>
 #include <vector>
 
 namespace keel::store {
@@ -17,8 +18,15 @@ std::string content_dump(Database& db) {
   std::string dump;
   for (const auto& table : tables) {
     dump += "== " + table + "\n";
-    // Table names come from the schema itself, never from a user.
-    SQLite::Statement st(db.sql(), "SELECT * FROM \"" + table + "\" ORDER BY 1, 2, 3");
+    // Table names come from the schema itself, never from a user. Rows are
+    // ordered by every column, whatever the table's width.
+    SQLite::Statement width(db.sql(), "SELECT count(*) FROM pragma_table_info(?)");
+    width.bind(1, table);
+    width.executeStep();
+    std::string order;
+    for (int c = 1; c <= width.getColumn(0).getInt(); ++c)
+      order += (c == 1 ? " ORDER BY " : ", ") + std::to_string(c);
+    SQLite::Statement st(db.sql(), "SELECT * FROM \"" + table + "\"" + order);
     while (st.executeStep()) {
       for (int c = 0; c < st.getColumnCount(); ++c) {
         const auto col = st.getColumn(c);

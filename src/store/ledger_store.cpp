@@ -63,9 +63,12 @@ Security read_security(SQLite::Statement& st) {
   return s;
 }
 
+// A correction's replacement row carries its reference in the correction
+// table (the voided row keeps it in txn, where a ref is unique per account).
 constexpr const char* kTxnColumns =
     "id, account_id, date, kind, security_id, quantity, price, amount, fee, acquired, lots, "
-    "link_id, voids_id, ref, row_hash, note";
+    "link_id, voids_id, coalesce(txn.ref, correction.ref), row_hash, note";
+constexpr const char* kTxnFrom = "txn LEFT JOIN correction ON correction.new_txn_id = txn.id";
 
 Transaction read_txn(SQLite::Statement& st) {
   Transaction t;
@@ -105,8 +108,28 @@ std::string utc_timestamp() {
                      utc.tm_mday, utc.tm_hour, utc.tm_min, utc.tm_sec);
 }
 
+std::optional<std::string> ledger_currency(Database& db) {
+  SQLite::Statement st(db.sql(), "SELECT currency FROM ledger_setting WHERE id = 1");
+  if (!st.executeStep()) return std::nullopt;
+  return opt_text(st.getColumn(0));
+}
+
+void set_ledger_currency(Database& db, const std::string& currency) {
+  if (const auto now = ledger_currency(db)) {
+    if (*now == currency) return;
+    throw InputError(fmt::format(
+        "the ledger's currency is {}; it is set once and never changed (keel does not convert "
+        "amounts already booked)",
+        *now));
+  }
+  SQLite::Statement st(db.sql(), "UPDATE ledger_setting SET currency = ? WHERE id = 1");
+  st.bind(1, currency);
+  st.exec();
+}
+
 std::int64_t insert_account(Database& db, const Account& a) {
-  check_name("account name", a.name, 200);
+  check_identifier("account name", a.name, 200);
+  normalize_currency(a.currency);  // refuses anything but three letters
   SQLite::Statement st(db.sql(),
                        "INSERT INTO account (name, currency, basis_method, allow_negative_cash, "
                        "created_at) VALUES (?, ?, ?, ?, ?)");
@@ -241,21 +264,28 @@ std::int64_t insert_transaction(Database& db, const Transaction& t) {
 }
 
 std::optional<Transaction> find_transaction(Database& db, std::int64_t id) {
-  SQLite::Statement st(db.sql(), fmt::format("SELECT {} FROM txn WHERE id = ?", kTxnColumns));
+  SQLite::Statement st(db.sql(),
+                       fmt::format("SELECT {} FROM {} WHERE id = ?", kTxnColumns, kTxnFrom));
   st.bind(1, id);
   if (!st.executeStep()) return std::nullopt;
   return read_txn(st);
 }
 
 std::vector<Transaction> list_transactions(Database& db) {
-  SQLite::Statement st(db.sql(), fmt::format("SELECT {} FROM txn ORDER BY date, id", kTxnColumns));
+  SQLite::Statement st(db.sql(),
+                       fmt::format("SELECT {} FROM {} ORDER BY date, id", kTxnColumns, kTxnFrom));
   std::vector<Transaction> out;
   while (st.executeStep()) out.push_back(read_txn(st));
   return out;
 }
 
+// Looked up once per imported row: both halves go through an index
+// (txn (account_id, ref); correction (ref)), never a scan of the account.
 bool ref_exists(Database& db, std::int64_t account_id, std::string_view ref) {
-  SQLite::Statement st(db.sql(), "SELECT 1 FROM txn WHERE account_id = ? AND ref = ?");
+  SQLite::Statement st(db.sql(),
+                       "SELECT 1 FROM txn WHERE account_id = ?1 AND ref = ?2 UNION ALL "
+                       "SELECT 1 FROM correction c WHERE c.ref = ?2 AND EXISTS (SELECT 1 FROM "
+                       "txn WHERE txn.id = c.new_txn_id AND txn.account_id = ?1)");
   st.bind(1, account_id);
   st.bind(2, std::string(ref));
   return st.executeStep();

@@ -18,6 +18,11 @@
 
 namespace keel::store {
 
+// The ledger's own currency (schema version 3), unset until recorded.
+std::optional<std::string> ledger_currency(Database& db);
+// Records it; throws InputError if another one is recorded already.
+void set_ledger_currency(Database& db, const std::string& currency);
+
 std::int64_t insert_account(Database& db, const Account& account);
 std::optional<Account> find_account(Database& db, std::string_view name);
 Account account_named(Database& db, std::string_view name);
@@ -30,7 +35,8 @@ std::vector<Security> list_securities(Database& db);
 
 std::int64_t insert_transaction(Database& db, const Transaction& txn);
 std::optional<Transaction> find_transaction(Database& db, std::int64_t id);
-// Every row, voids included, in posting order (date, then id).
+// Every row, voids included, in posting order (date, then id). A
+// correction's replacement row carries the ref it corrects.
 std::vector<Transaction> list_transactions(Database& db);
 bool ref_exists(Database& db, std::int64_t account_id, std::string_view ref);
 bool row_hash_exists(Database& db, std::int64_t account_id, std::string_view row_hash);

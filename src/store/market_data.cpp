@@ -8,7 +8,9 @@
 #include <array>
 
 #include "core/error.h"
+#include "core/text.h"
 #include "store/ledger_store.h"
+#include "store/sqlite_error.h"
 #include "store/statement.h"
 
 namespace keel::store {
@@ -126,12 +128,13 @@ struct MarketWriter::Impl {
   static const char* make_seen_table(sqlite3* h) {
     // Keys of this import that fall where the ledger already had rows: only
     // there can a repeated key be either a re-import or a duplicate line.
-    if (sqlite3_exec(h,
-                     "CREATE TEMP TABLE IF NOT EXISTS intake_seen (kind INTEGER, security_id "
-                     "INTEGER, k TEXT, PRIMARY KEY (kind, security_id, k)) WITHOUT ROWID;"
-                     "DELETE FROM temp.intake_seen",
-                     nullptr, nullptr, nullptr) != SQLITE_OK)
-      throw std::runtime_error(sqlite3_errmsg(h));
+    if (const int rc = sqlite3_exec(h,
+                                    "CREATE TEMP TABLE IF NOT EXISTS intake_seen (kind INTEGER, "
+                                    "security_id INTEGER, k TEXT, PRIMARY KEY (kind, security_id, "
+                                    "k)) WITHOUT ROWID; DELETE FROM temp.intake_seen",
+                                    nullptr, nullptr, nullptr);
+        rc != SQLITE_OK)
+      throw_sqlite_error(h, rc);
     return "INSERT INTO temp.intake_seen (kind, security_id, k) VALUES (?, ?, ?) "
            "ON CONFLICT DO NOTHING";
   }
@@ -464,7 +467,8 @@ std::int64_t record_import_run(Database& db, const ImportRun& run) {
                        "INSERT INTO import_run (what, file_name, file_sha256, rows_read, "
                        "rows_added, imported_at) VALUES (?, ?, ?, ?, ?, ?)");
   st.bind(1, run.what);
-  st.bind(2, run.file_name);
+  // A file name may hold any bytes; the ledger keeps only UTF-8 text, escaped as shown.
+  st.bind(2, printable(run.file_name));
   st.bind(3, run.file_sha256);
   st.bind(4, run.rows_read);
   st.bind(5, run.rows_added);

@@ -25,7 +25,7 @@ struct MarketRows::Impl {
       const int rc =
           sqlite3_create_function_v2(h, kScanFunction, 3, SQLITE_UTF8 | SQLITE_DIRECTONLY, this,
                                      nullptr, &step, &final, nullptr);
-      if (rc != SQLITE_OK) throw sql_error(h, rc, "function");
+      if (rc != SQLITE_OK) throw_sqlite_error(h, rc);
     }
     ~Scan() {
       sqlite3_create_function_v2(h, kScanFunction, 3, SQLITE_UTF8, nullptr, nullptr, nullptr,

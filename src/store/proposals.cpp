@@ -2,6 +2,7 @@
 
 #include <SQLiteCpp/Statement.h>
 
+#include "core/text.h"
 #include "store/ledger_store.h"
 
 namespace keel::store {
@@ -12,7 +13,7 @@ std::int64_t save_proposal(Database& db, const ProposalRow& p) {
                        "pool_value, last_txn_id, saved_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?)");
   st.bind(1, p.as_of.str());
   st.bind(2, p.rule_name);
-  st.bind(3, p.rule_file);
+  st.bind(3, printable(p.rule_file));  // a path may hold any bytes; keep UTF-8 text
   st.bind(4, p.rule_text);
   st.bind(5, p.rule_sha256);
   st.bind(6, p.pool_value.str());

@@ -9,22 +9,20 @@
 //  - next() steps to the next row (false at the end, and the statement is
 //    then reset); the column accessors read the current row, and the views
 //    they return stay valid until the next step or reset.
-//  - A failure of SQLite throws sql_error(): a std::runtime_error naming
-//    SQLite's code and message. That is the one policy of this wrapper.
+//  - A failure of SQLite throws through the ledger's one error policy
+//    (store/sqlite_error.h): a LedgerError saying in words what happened.
 //  - Not copyable; it borrows the connection, which must outlive it.
 #pragma once
 
 #include <sqlite3.h>
 
 #include <cstdint>
-#include <stdexcept>
 #include <string>
 #include <string_view>
 
-namespace keel::store {
+#include "store/sqlite_error.h"
 
-// The error thrown for a failed SQLite call on `db` with result code `rc`.
-std::runtime_error sql_error(sqlite3* db, int rc, std::string_view what);
+namespace keel::store {
 
 class Statement {
  public:
@@ -51,7 +49,7 @@ class Statement {
   int run() {
     const int rc = sqlite3_step(st_);
     sqlite3_reset(st_);
-    if (rc != SQLITE_DONE) throw sql_error(db_, rc, "write");
+    if (rc != SQLITE_DONE) throw_sqlite_error(db_, rc);
     return sqlite3_changes(db_);
   }
   // Runs a write; false (and nothing changed) on a constraint violation.
@@ -60,14 +58,14 @@ class Statement {
     sqlite3_reset(st_);
     if (rc == SQLITE_DONE) return true;
     if ((rc & 0xff) == SQLITE_CONSTRAINT) return false;
-    throw sql_error(db_, rc, "write");
+    throw_sqlite_error(db_, rc);
   }
   // Steps once; true with a row. At the end the statement is reset.
   bool next() {
     const int rc = sqlite3_step(st_);
     if (rc == SQLITE_ROW) return true;
     sqlite3_reset(st_);
-    if (rc != SQLITE_DONE) throw sql_error(db_, rc, "read");
+    if (rc != SQLITE_DONE) throw_sqlite_error(db_, rc);
     return false;
   }
   // Ends a row loop early.

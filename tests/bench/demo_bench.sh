@@ -1,41 +1,45 @@
 #!/bin/sh
-# Times the demo: the scenario generator (default scale and --scale 4) and
-# `keel demo` on the committed scenario, and prints the figures with the
-# committed data's size and keel's peak resident memory. Run by hand.
+# Times `keel demo` (without Chromium, so no PDF) from two builds of keel,
+# interleaved in one run, and prints each run, the minimum and median of each
+# and the ratio of the medians: for instance an optimised (Release) build
+# against one configured without a build type (-O0).
 #
-#   tests/bench/demo_bench.sh [KEEL_BINARY] [WORK_DIR]
+#   tests/bench/demo_bench.sh KEEL_A KEEL_B [PAIRS]
 #
-# Target: keel demo under 60 s on the shared build machine, ideally under 15 s.
-# Needs Debian's /usr/bin/python3 and GNU time (/usr/bin/time).
+# PAIRS defaults to 5 (at least 3). Each run builds a fresh demo ledger in a
+# scratch folder, which is removed.
 set -eu
-here=$(cd "$(dirname "$0")" && pwd)
-src=$(cd "$here/../.." && pwd)
-keel=${1:-$src/build/keel}
-work=${2:-${TMPDIR:-/tmp}/keel-demo-bench}
-for tool in /usr/bin/python3 /usr/bin/time; do
-  [ -x "$tool" ] || { echo "missing $tool" >&2; exit 1; }
+a=$1
+b=$2
+pairs=${3:-5}
+[ "$pairs" -ge 3 ] || { echo "PAIRS must be 3 or more" >&2; exit 1; }
+work=$(mktemp -d "${TMPDIR:-/tmp}/keel-demo-bench-XXXXXX")
+trap 'rm -rf "$work"' EXIT
+
+run() {  # prints the seconds one demo took
+  rm -rf "$work/demo"
+  t0=$(date +%s.%N)
+  PATH=/nonexistent "$1" demo --dir "$work/demo" > /dev/null
+  t1=$(date +%s.%N)
+  echo "$t0 $t1" | awk '{ printf "%.3f\n", $2 - $1 }'
+}
+
+: > "$work/a"
+: > "$work/b"
+i=1
+while [ "$i" -le "$pairs" ]; do
+  run "$a" >> "$work/a"
+  run "$b" >> "$work/b"
+  i=$((i + 1))
 done
-rm -rf "$work"
-mkdir -p "$work"
-
-now() { date +%s.%N; }
-since() { echo "$1 $(now)" | awk '{ printf "%.2f", $2 - $1 }'; }
-
-echo "committed scenario: $(du -sh "$src/examples/demo/data" | cut -f1)," \
-  "$(cat "$src"/examples/demo/data/*.csv | wc -l) lines"
-t=$(now)
-/usr/bin/python3 "$src/examples/demo/generate.py" --out "$work/scale1"
-echo "generator, scale 1: $(since "$t") s"
-t=$(now)
-/usr/bin/python3 "$src/examples/demo/generate.py" --out "$work/scale4" --scale 4
-echo "generator, scale 4: $(since "$t") s, $(du -sh "$work/scale4" | cut -f1)"
-
-/usr/bin/time -v -o "$work/demo.time" "$keel" demo --dir "$work/ledger" > "$work/demo.out"
-wall=$(sed -n 's/.*Elapsed (wall clock) time (h:mm:ss or m:ss): //p' "$work/demo.time")
-rss=$(sed -n 's/.*Maximum resident set size (kbytes): //p' "$work/demo.time")
-echo "keel demo, scale 1: $wall wall, peak RSS $((rss / 1024)) MiB, ledger $(du -h "$work/ledger/keel.db" | cut -f1)"
-/usr/bin/time -v -o "$work/demo4.time" "$keel" demo --data "$work/scale4" --dir "$work/ledger4" \
-  > "$work/demo4.out"
-wall=$(sed -n 's/.*Elapsed (wall clock) time (h:mm:ss or m:ss): //p' "$work/demo4.time")
-rss=$(sed -n 's/.*Maximum resident set size (kbytes): //p' "$work/demo4.time")
-echo "keel demo, scale 4: $wall wall, peak RSS $((rss / 1024)) MiB"
+stats() {  # min median
+  sort -n "$1" | awk '{ v[NR] = $1 } END { m = (NR % 2) ? v[(NR + 1) / 2] : (v[NR / 2] + v[NR / 2 + 1]) / 2;
+    printf "%.3f %.3f\n", v[1], m }'
+}
+set -- $(stats "$work/a") $(stats "$work/b")
+echo "keel demo, $pairs interleaved pairs (seconds)"
+echo "A $a: $(tr '\n' ' ' < "$work/a")"
+echo "B $b: $(tr '\n' ' ' < "$work/b")"
+printf 'A min %s median %s\nB min %s median %s\n' "$1" "$2" "$3" "$4"
+echo "$2 $4" | awk '{ printf "median B / median A: %.2f\n", $2 / $1 }'
+echo "$1 $3" | awk '{ printf "min B / min A: %.2f\n", $2 / $1 }'

@@ -1,6 +1,8 @@
 """Helpers for end-to-end tests: run the built keel binary on a scratch ledger."""
+import hashlib
 import json
 import os
+import sqlite3
 import subprocess
 import tempfile
 
@@ -9,12 +11,15 @@ SOURCE = os.environ.get("KEEL_SOURCE_DIR", os.path.dirname(os.path.dirname(os.pa
 
 
 class Ledger:
-    """A fresh ledger in a temporary folder; run() returns (code, stdout, stderr)."""
+    """A fresh ledger in a temporary folder; run() returns (code, stdout, stderr).
 
-    def __init__(self):
+    Its own currency is `currency` (accounts and securities added without --currency take
+    it); None leaves it to the first account, as `keel init` without --currency does."""
+
+    def __init__(self, currency="USD"):
         self.dir = tempfile.TemporaryDirectory(prefix="keel-e2e-")
         self.path = os.path.join(self.dir.name, "ledger.db")
-        self.ok("init")
+        self.ok("init", *(["--currency", currency] if currency else []))
 
     def run(self, *args, stdin=None):
         env = dict(os.environ, NO_COLOR="1")
@@ -47,3 +52,34 @@ def check(condition, message):
 def equal(actual, expected, what):
     if actual != expected:
         raise AssertionError(f"{what}: expected {expected!r}, got {actual!r}")
+
+
+def ledger_digest(path):
+    """SHA-256 over the schema version, every table's definition and all its rows, ordered."""
+    con = sqlite3.connect(f"file:{path}?mode=ro", uri=True)
+    try:
+        h = hashlib.sha256()
+        h.update(repr(con.execute("PRAGMA user_version").fetchone()).encode())
+        tables = con.execute("SELECT name, sql FROM sqlite_master WHERE type = 'table' "
+                             "ORDER BY name").fetchall()
+        for name, sql in tables:
+            h.update(repr((name, sql)).encode())
+            cols = [r[1] for r in con.execute(f'PRAGMA table_info("{name}")')]
+            order = ", ".join(f'"{c}"' for c in cols)
+            for row in con.execute(f'SELECT * FROM "{name}" ORDER BY {order}'):
+                h.update(repr(row).encode())
+        return h.hexdigest(), len(tables)
+    finally:
+        con.close()
+
+
+def sound(path, keel_args=()):
+    """Checks that a ledger is whole: the sqlite3 tool's integrity check says ok and
+    keel verify passes. Returns its digest (ledger_digest), to compare contents."""
+    p = subprocess.run(["sqlite3", path, "PRAGMA integrity_check"], capture_output=True, text=True,
+                       timeout=300)
+    equal((p.returncode, p.stdout.strip()), (0, "ok"), f"integrity_check of {path}")
+    p = subprocess.run([KEEL, "--db", path, *keel_args, "verify"], capture_output=True, text=True,
+                       env=dict(os.environ, NO_COLOR="1"), timeout=300)
+    equal(p.returncode, 0, f"keel verify of {path}: {p.stderr}")
+    return ledger_digest(path)[0]

@@ -9,35 +9,19 @@ extreme numbers and dates are exact or refused clearly.
 Set KEEL_SHOW=1 to print what each row produced instead of stopping at the first
 difference.
 """
+import datetime
 import hashlib
 import os
 import sqlite3
 import sys
 
 sys.path.insert(0, os.path.dirname(__file__))
-from keel_cli import Ledger, check, equal  # noqa: E402
+from keel_cli import SOURCE, Ledger, check, equal, ledger_digest  # noqa: E402
 
 SHOW = os.environ.get("KEEL_SHOW") == "1"
+# keel's today is the local calendar day; so is Python's (both follow TZ).
+TODAY = datetime.date.today().isoformat()
 INPUT, USAGE, LEDGER = 1, 2, 3
-
-
-def ledger_digest(path):
-    """SHA-256 over the schema version, every table's definition and all its rows, ordered."""
-    con = sqlite3.connect(f"file:{path}?mode=ro", uri=True)
-    try:
-        h = hashlib.sha256()
-        h.update(repr(con.execute("PRAGMA user_version").fetchone()).encode())
-        tables = con.execute("SELECT name, sql FROM sqlite_master WHERE type = 'table' "
-                             "ORDER BY name").fetchall()
-        for name, sql in tables:
-            h.update(repr((name, sql)).encode())
-            cols = [r[1] for r in con.execute(f'PRAGMA table_info("{name}")')]
-            order = ", ".join(f'"{c}"' for c in cols)
-            for row in con.execute(f'SELECT * FROM "{name}" ORDER BY {order}'):
-                h.update(repr(row).encode())
-        return h.hexdigest(), len(tables)
-    finally:
-        con.close()
 
 
 led = Ledger()
@@ -129,6 +113,10 @@ TX = "date,account,kind,symbol,quantity,price,amount,fee,ref,note\n"
 import_row("transactions: a day that does not exist", "transactions",
            TX + f"2024-02-30,{T},deposit,,,,5,,,\n", INPUT,
            refused("{f}:2: column 'date': 2024-02-30 is not a day of the calendar"))
+import_row("transactions: a row dated 2099-12-31", "transactions",
+           TX + f"2099-12-31,{T},deposit,,,,5,,,\n", INPUT,
+           refused(f"{{f}}:2: column 'date': 2099-12-31 is after today ({TODAY}); give "
+                   "--allow-future-date to import it anyway"))
 import_row("transactions: unknown account", "transactions", TX + "2024-03-01,Nobody,deposit,,,,5,,,\n",
            INPUT, refused("{f}:2: column 'account': unknown account 'Nobody'"))
 import_row("transactions: oversell names the line", "transactions",
@@ -150,8 +138,8 @@ import_row("transactions: 61 significant digits", "transactions",
            refused(f"{{f}}:2: column 'amount': '{'9' * 61}' is not a decimal number: more than 60 "
                    "significant digits"))
 import_row("transactions: negative amount", "transactions", TX + f"2024-03-01,{T},deposit,,,,-5,,,\n",
-           INPUT, refused("{f}:2: deposit: --amount must be positive, not -5 (the kind gives the "
-                          "direction)"))
+           INPUT, refused("{f}:2: column 'amount' = -5: deposit: must be positive, not -5 (the kind "
+                          "gives the direction)"))
 import_row("transactions: control character in a note", "transactions",
            TX + f"2024-03-01,{T},deposit,,,,5,,,\"bell\x07\"\n", INPUT,
            refused("{f}:2: note 'bell\\x07' contains a control character"))
@@ -167,7 +155,7 @@ import_row("transactions: a record over 16 MiB", "transactions",
 import_row("transactions: binary file", "transactions", bytes(range(256)) * 4, INPUT,
            refused("{f}:1: column '\\x00\\x01\\x02\\x03\\x04\\x05\\x06\\x07\\x08\\x09': unknown column; "
                    "expected date, account, kind, symbol, quantity, price, amount, fee, ref, note, "
-                   "to_account, lots, acquired (or list it under 'ignore' in a mapping)",
+                   "to_account, lots, acquired, currency, rate (or list it under 'ignore' in a mapping)",
                    "{f}:1: column 'date': missing from the header",
                    "{f}:1: column 'account': missing from the header",
                    "{f}:1: column 'kind': missing from the header"))
@@ -182,6 +170,80 @@ import_row("transactions: date not matching the mapping's format", "transactions
 import_row("transactions: mapping that is not TOML", "transactions", TX, INPUT,
            "keel: error: {d}/map-%d.toml:1:9: not valid TOML: Error while parsing array: "
            "encountered end-of-file" % len(ROWS), mapping="for = [\n")
+
+# --- broker files: action rules, currencies, OFX, reconcile --------------------------------
+ACT = f'for = "transactions"\n[defaults]\naccount = "{T}"\n[actions]\ncolumn = "Action"\n'
+BUY = '[[actions.rule]]\nwhen = "Buy"\nkind = "buy"\nquantity = "Qty"\nprice = "Price"\n'
+MIXED = "Date,Action,Symbol,Qty,Price\n"
+import_row("transactions: a mapping sends an action to no kind", "transactions", MIXED, INPUT,
+           "keel: error: {d}/map-%d.toml:6: key 'actions.rule': action 'Buy' goes to no kind; add "
+           "kind = \"...\"" % len(ROWS), mapping=ACT + '[[actions.rule]]\nwhen = "Buy"\n')
+import_row("transactions: two mapping rules match the same rows", "transactions", MIXED, INPUT,
+           "keel: error: {d}/map-%d.toml:11: key 'actions.rule': matches the same rows as the rule "
+           "on line 6 (action 'buy')" % len(ROWS),
+           mapping=ACT + BUY + '[[actions.rule]]\nwhen = "buy"\nkind = "sell"\n')
+import_row("transactions: an action no rule books", "transactions",
+           MIXED + "2024-03-01,Split,QRX,2,\n", INPUT,
+           refused("{f}:2: column 'Action' = Split: no rule of the mapping books this action "
+                   "(rules: 'Buy'); add a rule or list it under actions.skip"), mapping=ACT + BUY)
+import_row("transactions: a figure of the wrong sign names the file's column", "transactions",
+           MIXED + "2024-03-01,Buy,QRX,-2,50\n", INPUT,
+           refused("{f}:2: column 'Qty' = -2: a buy row's quantity must be positive here; if the "
+                   "file writes it negative, say sign = \"negative\" or \"either\" in the "
+                   "mapping's rule on line 6"), mapping=ACT + BUY)
+import_row("transactions: a row in another currency", "transactions",
+           "date,account,kind,amount,currency\n" f"2024-03-01,{T},deposit,5,CHF\n", INPUT,
+           refused(f"{{f}}:2: column 'currency' = CHF: account '{T}' keeps USD; keel does not "
+                   "convert currencies yet, so book this row in an account that keeps CHF"))
+import_row("transactions: a changed line with a booked ref", "transactions",
+           TX + f"2024-01-03,{T},buy,QRX,10,51,,,b-1,\n", INPUT,
+           refused("{f}:2: column 'ref' = b-1: already booked as transaction 2 with other content: "
+                   "price 50 -> 51; to book the change, import with --book-corrections (voids 2 "
+                   "and books this row)"))
+OFX_HEAD = "OFXHEADER:100\nDATA:OFXSGML\nVERSION:102\n\n<OFX>\n"
+row("transactions: an OFX file with an aggregate left open",
+    ["import", "transactions", "{d}/open.ofx", "--account", T], INPUT,
+    "keel: error: {d}/open.ofx:9: element <INVSTMTMSGSRSV1>: closes an element while "
+    "<INVSTMTRS> opened on line 7 is still open",
+    {"open.ofx": (OFX_HEAD + "<INVSTMTMSGSRSV1>\n<INVSTMTRS>\n<DTASOF>20240131\n"
+                  "</INVSTMTMSGSRSV1>\n</OFX>\n").encode()})
+row("transactions: an OFX closing tag that closes nothing",
+    ["import", "transactions", "{d}/close.ofx", "--account", T], INPUT,
+    "keel: error: {d}/close.ofx:6: element <BUYSTOCK>: closes no open element",
+    {"close.ofx": (OFX_HEAD + "</BUYSTOCK>\n</OFX>\n").encode()})
+row("transactions: an OFX statement without --account",
+    ["import", "transactions", os.path.join(SOURCE, "examples/import/broker-statement.ofx")],
+    INPUT, "keel: error: --account: the statement is for 'brokerage.invalid 77-1234'; name the "
+    "keel account it belongs to")
+row("import: --book-corrections outside transactions",
+    ["import", "prices", "{d}/seed-prices.csv", "--book-corrections"], INPUT,
+    "keel: error: --book-corrections: only for importing transactions")
+STMT = "account,symbol,quantity,cost_basis,currency,cash\n"
+row("reconcile: an unknown account and security, with the nearest names",
+    ["reconcile", "{d}/stmt.csv", "--date", "2024-01-31"], INPUT,
+    ["{d}/stmt.csv:2: column 'account': unknown account 'Alder Taxabel'; did you mean "
+     "'Alder Taxable'?",
+     "{d}/stmt.csv:3: column 'symbol': unknown security 'QXR'; did you mean 'QRX'?",
+     "keel: error: {d}/stmt.csv: 2 errors; nothing was recorded"],
+    {"stmt.csv": (STMT + "Alder Taxabel,QRX,10,,,\nAlder Taxable,QXR,10,,,\n").encode()})
+row("reconcile: a CSV statement without --date", ["reconcile", "{d}/stmt2.csv"], INPUT,
+    "keel: error: --date: a CSV statement needs its day, written YYYY-MM-DD",
+    {"stmt2.csv": (STMT + "Alder Taxable,QRX,10,,,\n").encode()})
+row("reconcile: --date not a calendar day",
+    ["reconcile", "{d}/stmt3.csv", "--date", "2024-02-30"], INPUT,
+    "keel: error: --date: '2024-02-30' is not a calendar date",
+    {"stmt3.csv": (STMT + "Alder Taxable,QRX,10,,,\n").encode()})
+row("reconcile: a row both position and cash",
+    ["reconcile", "{d}/stmt4.csv", "--date", "2024-01-31"], INPUT,
+    ["{d}/stmt4.csv:2: a row is either a position (symbol and quantity) or cash (cash and "
+     "currency)", "keel: error: {d}/stmt4.csv: 1 error; nothing was recorded"],
+    {"stmt4.csv": (STMT + "Alder Taxable,QRX,10,,USD,5\n").encode()})
+row("reopen: an account never reconciled",
+    ["reopen", "--account", T, "--from", "2024-01-01", "--reason", "x"], INPUT,
+    f"keel: error: --account: '{T}' has no reconciled period to reopen")
+row("reopen: --from not a calendar day",
+    ["reopen", "--account", T, "--from", "2024-13-01", "--reason", "x"], INPUT,
+    "keel: error: --from: '2024-13-01' is not a calendar date")
 
 # --- securities ---------------------------------------------------------------------------
 SEC = "symbol,name,kind,currency,lot_size,sector\n"
@@ -256,6 +318,9 @@ import_row("distributions: pay date before ex date", "distributions",
 import_row("distributions: zero per share", "distributions",
            "ex_date,symbol,per_share\n2024-03-10,QRX,0\n", INPUT,
            refused("{f}:2: column 'per_share': must be greater than zero"))
+import_row("splits: dated 2099-12-31", "splits", "date,symbol,ratio\n2099-12-31,QRX,2\n", INPUT,
+           refused(f"{{f}}:2: column 'date': 2099-12-31 is after today ({TODAY}); give "
+                   "--allow-future-date to import it anyway"))
 import_row("splits: negative ratio", "splits", "date,symbol,ratio\n2024-03-10,QRX,-2\n", INPUT,
            refused("{f}:2: column 'ratio': -2 must not be negative"))
 import_row("splits: header only in another layout, bad skip_lines", "splits", "x\n", INPUT,
@@ -269,6 +334,14 @@ row("import: unknown kind of data", ["import", "trades", "{d}/seed-prices.csv"],
 row("record: a day that does not exist",
     ["record", "deposit", "--date", "2024-02-30", "--account", T, "--amount", "5"], INPUT,
     "keel: error: --date: '2024-02-30' is not a calendar date")
+row("record: a deposit dated 2099-12-31",
+    ["record", "deposit", "--date", "2099-12-31", "--account", T, "--amount", "5"], INPUT,
+    f"keel: error: deposit: --date 2099-12-31 is after today ({TODAY}); give --allow-future-date "
+    "to post it anyway")
+row("record: a split dated 2099-12-31",
+    ["record", "split", "--date", "2099-12-31", "--symbol", "QRX", "--ratio", "2"], INPUT,
+    f"keel: error: split: --date 2099-12-31 is after today ({TODAY}); give --allow-future-date to "
+    "post it anyway")
 row("record: year 10000",
     ["record", "deposit", "--date", "10000-01-01", "--account", T, "--amount", "5"], INPUT,
     "keel: error: --date: '10000-01-01' is not a date in the form YYYY-MM-DD")
@@ -327,6 +400,11 @@ row("account add: invalid UTF-8 name", ["account", "add", "Cedar\udcff"], INPUT,
     "keel: error: account name 'Cedar\\xff' is not valid UTF-8")
 row("account add: C1 control character (U+009B) in a name", ["account", "add", "Cedar\u009b2J"],
     INPUT, "keel: error: account name 'Cedar\\xc2\\x9b2J' contains a control character")
+row("init: --currency not a three-letter code", ["init", "--currency", "EURO"], INPUT,
+    "keel: error: currency 'EURO' is not a three-letter code such as EUR")
+row("init: --currency other than the ledger's", ["init", "--currency", "EUR"], INPUT,
+    "keel: error: --currency: the ledger's currency is USD; it is set once and never changed (keel "
+    "does not convert amounts already booked)")
 row("account add: unknown basis", ["account", "add", "Cedar", "--basis", "newest"], INPUT,
     "keel: error: unknown cost-basis method 'newest'; expected one of: fifo, lifo, hifo, average, "
     "specific")
@@ -336,6 +414,23 @@ row("security add: duplicate symbol",
 row("security add: lot size not a number",
     ["security", "add", "ZRN", "--name", "Zornet", "--kind", "stock", "--lot-size", "one"], INPUT,
     "keel: error: --lot-size: 'one' is not a decimal number: expected digits")
+INVISIBLE = ", an invisible character; names may not contain invisible or direction-changing " \
+    "characters"
+row("security add: zero-width space after a symbol", ["security", "add", "QRX\u200b", "--name",
+    "Quarix look-alike", "--kind", "stock"], INPUT,
+    "keel: error: symbol 'QRX<U+200B>' contains U+200B ZERO WIDTH SPACE" + INVISIBLE)
+row("security add: right-to-left override in a symbol", ["security", "add", "QRX\u202e", "--name",
+    "Quarix look-alike", "--kind", "stock"], INPUT,
+    "keel: error: symbol 'QRX<U+202E>' contains U+202E RIGHT-TO-LEFT OVERRIDE" + INVISIBLE)
+row("security add: space at the end of a symbol", ["security", "add", "QRX ", "--name",
+    "Quarix look-alike", "--kind", "stock"], INPUT,
+    "keel: error: symbol 'QRX ' ends with white space (U+0020 SPACE); names may not start or end "
+    "with it")
+row("account add: left-to-right isolate in a name", ["account", "add", "Cedar\u2066"], INPUT,
+    "keel: error: account name 'Cedar<U+2066>' contains U+2066 LEFT-TO-RIGHT ISOLATE" + INVISIBLE)
+import_row("transactions: word joiner in a ref", "transactions",
+           TX + f"2024-03-01,{T},deposit,,,,5,,r\u20601,\n", INPUT,
+           refused("{f}:2: ref 'r<U+2060>1' contains U+2060 WORD JOINER" + INVISIBLE))
 row("security add: symbol with a newline",
     ["security", "add", "ZR\nN", "--name", "Zornet", "--kind", "stock"], INPUT,
     "keel: error: symbol 'ZR\\x0aN' contains a control character")
@@ -353,6 +448,11 @@ row("gains: --year out of range", ["gains", "--year", "10000"], INPUT,
     "keel: error: --year: '10000' is not a calendar year (1 to 9999)")
 row("gains: negative --year", ["gains", "--year", "-5"], INPUT,
     "keel: error: --year: '-5' is not a calendar year (1 to 9999)")
+row("statement: year before the trailing five years fit", ["statement", "--year", "4"], INPUT,
+    "keel: error: --year: '4' is not a year a statement covers (6 to 9999; it looks back 5 years)")
+row("statement: year 10000", ["statement", "--year", "10000"], INPUT,
+    "keel: error: --year: '10000' is not a year a statement covers (6 to 9999; it looks back 5 "
+    "years)")
 row("returns: --from after --to", ["returns", "--from", "2024-03-01", "--to", "2024-02-01"], INPUT,
     "keel: error: --from 2024-03-01 is after --to 2024-02-01")
 row("returns: --year and --period together", ["returns", "--year", "2024", "--period", "1y"], INPUT,
@@ -370,6 +470,50 @@ row("returns: unknown method", ["returns", "--method", "geometric"], INPUT,
 row("returns: risk-free rate not a number", ["returns", "--risk-free", "2%"], INPUT,
     "keel: error: --risk-free: '2%' is not a rate; give an annual fraction above -1, e.g. 0.02")
 
+row("statement: unknown paper", ["statement", "--year", "2024", "--paper", "legal"], INPUT,
+    "keel: error: --paper: 'legal' is not a paper size; expected a4 or letter")
+row("statement: paper with a control character", ["statement", "--year", "2024", "--paper", "a4\x1b"],
+    INPUT, "keel: error: --paper: 'a4\\x1b' is not a paper size; expected a4 or letter")
+
+# --- the command line itself: mistyped and missing commands and options ---------------------
+row("command: mistyped", ["holdngs"], USAGE,
+    ["keel: error: 'holdngs' is not a keel command", "Did you mean 'holdings'?",
+     "Run 'keel help' for the list of commands."])
+row("command: two letters swapped", ["recrod", "deposit"], USAGE,
+    ["keel: error: 'recrod' is not a keel command", "Did you mean 'record'?",
+     "Run 'keel help' for the list of commands."])
+row("command: the start of several", ["re"], USAGE,
+    ["keel: error: 're' is not a keel command",
+     "Did you mean one of: 'record', 'returns', 'restore', 'reconcile', 'reopen', 'reference'?",
+     "Run 'keel help' for the list of commands."])
+row("command: nothing close", ["zebra"], USAGE,
+    ["keel: error: 'zebra' is not a keel command", "Run 'keel help' for the list of commands."])
+row("command: control characters in the word", ["hold\x1b[2J"], USAGE,
+    ["keel: error: 'hold\\x1b[2J' is not a keel command", "Run 'keel help' for the list of commands."])
+row("command: mistyped subcommand", ["record", "buyy"], USAGE,
+    ["keel: error: 'buyy' is not a command of 'keel record'", "Did you mean 'buy'?",
+     "Run 'keel help record' for its commands."])
+row("command: none given", [], USAGE,
+    ["keel: error: no command given",
+     "Run 'keel help' for the list of commands, or 'keel demo' to see keel at work."])
+row("command: a group without its command", ["account"], USAGE,
+    ["keel: error: 'keel account' needs one of its commands: add, list",
+     "Run 'keel help account' for what each does."])
+row("option: mistyped", ["holdings", "--as-off", "2024-01-31"], USAGE,
+    ["keel: error: 'keel holdings' has no option '--as-off'", "Did you mean '--as-of'?",
+     "Run 'keel help holdings' for its options."])
+row("option: mistyped, with =", ["holdings", "--acount=Nobody"], USAGE,
+    ["keel: error: 'keel holdings' has no option '--acount'", "Did you mean '--account'?",
+     "Run 'keel help holdings' for its options."])
+row("option: mistyped while a required one is missing", ["record", "deposit", "--amont", "5"],
+    USAGE, ["keel: error: 'keel record deposit' has no option '--amont'",
+            "Did you mean '--amount'?", "Run 'keel help record deposit' for its options."])
+row("option: a global option mistyped after the command", ["holdings", "--dbb", "x.db"], USAGE,
+    ["keel: error: 'keel holdings' has no option '--dbb'", "Did you mean '--db'?",
+     "Run 'keel help holdings' for its options."])
+row("help: an unknown command", ["help", "record", "buyy"], USAGE,
+    ["keel: error: 'buyy' is not a command of 'keel record'", "Did you mean 'buy'?",
+     "Run 'keel help record' for its commands."])
 
 # --- the ledger file itself ----------------------------------------------------------------
 failures = []
@@ -426,6 +570,16 @@ con.close()
 text_file = path("plain.txt")
 with open(text_file, "w") as f:
     f.write("this is not a database\n" * 200)
+empty_file = path("empty.db")  # 0 bytes: once taken for a new, empty ledger
+open(empty_file, "w").close()
+os.chmod(empty_file, 0o600)
+empty_db = path("nothing.db")  # an SQLite database without a single table
+con = sqlite3.connect(empty_db)
+con.execute("PRAGMA user_version = 0")
+con.close()
+os.chmod(empty_db, 0o600)
+EMPTY = (f"keel: error: {empty_file} is an empty file, not a keel ledger; only 'keel init' makes "
+         "a ledger; choose another with --db")
 DB_ROWS = [
     ("--db: an SQLite file that is not a ledger", other, ["holdings"], LEDGER,
      f"keel: error: {other} is an SQLite database but not a keel ledger; choose another with --db"),
@@ -434,19 +588,32 @@ DB_ROWS = [
     ("--db: a text file", text_file, ["account", "list"], LEDGER,
      f"keel: error: cannot open ledger {text_file}: file is not a database"),
     ("--db: a folder", D, ["account", "list"], LEDGER,
-     f"keel: error: cannot open ledger {D}: unable to open database file"),
+     f"keel: error: cannot open ledger {D}: it is a folder"),
+    ("--db: an empty file, verify", empty_file, ["verify"], LEDGER, EMPTY),
+    ("--db: an empty file, a report", empty_file, ["holdings"], LEDGER, EMPTY),
+    ("--db: an empty file, a change", empty_file,
+     ["account", "add", "Quill Savings"], LEDGER, EMPTY),
+    ("--db: an empty file, an import", empty_file, ["import", "accounts", "{d}/none.csv"], LEDGER,
+     EMPTY),
+    ("--db: an empty file, a backup", empty_file, ["backup", "{d}/copy.db"], LEDGER, EMPTY),
+    ("--db: an SQLite file without tables", empty_db, ["verify"], LEDGER,
+     f"keel: error: {empty_db} is an empty database, not a keel ledger; only 'keel init' makes a "
+     "ledger; choose another with --db"),
     ("--db: a ledger that does not exist", path("none.db"), ["holdings"], LEDGER,
      f"keel: error: no ledger at {path('none.db')}; create one with 'keel init' or choose another "
      "with --db"),
 ]
 for name, db, args, code, message in DB_ROWS:
-    snapshot = {p: open(p, "rb").read() for p in (other, text_file)}
+    snapshot = {p: open(p, "rb").read() for p in (other, text_file, empty_file, empty_db)}
     run_row(name, args, code, message, {}, db=db)
     for p, content in snapshot.items():
         if open(p, "rb").read() != content:
             print(f"FAIL {name}: {p} was changed")
             failures.append(name + " (file changed)")
 check(not os.path.exists(path("none.db")), "a ledger was created without 'keel init'")
+check(not os.path.exists(path("copy.db")), "a backup was made of an empty file")
+for companion in ("-wal", "-shm", "-journal"):
+    check(not os.path.exists(empty_file + companion), f"an empty file got a {companion}")
 
 total = len(ROWS) + len(DB_ROWS)
 print(f"{total} malformed inputs checked, {len(failures)} failed")
@@ -464,7 +631,7 @@ note = "semi;colon 'single' \"double\" \\backslash\\ tab-free ünïcödé"
 h.ok("record", "deposit", "--date", "0001-01-01", "--account", odd, "--amount",
      "123456789012345678901234567890", "--note", note)
 h.ok("record", "buy", "--date", "9999-12-31", "--account", odd, "--symbol", "ÅB-1", "--quantity",
-     "0.000000000001", "--price", "0.000000000001")
+     "0.000000000001", "--price", "0.000000000001", "--allow-future-date")
 equal([a["name"] for a in h.json("account", "list")], [odd], "account name stored exactly")
 hist = h.json("history")
 equal([(t["date"], t.get("note")) for t in hist], [("0001-01-01", note), ("9999-12-31", "")],
@@ -478,3 +645,30 @@ equal([c["amount"] for c in held["cash"]], ["123456789012345678901234567889.9999
 exported = h.ok("export", "accounts")
 check(f'"{odd.replace(chr(34), chr(34) * 2)}"' in exported, f"account name quoted in CSV: {exported}")
 print("hostile text and extreme values stored exactly")
+
+# --- every invisible format character is refused in names, named as Python's unicodedata names it
+import unicodedata  # noqa: E402
+
+formats = [cp for cp in range(0x110000) if unicodedata.category(chr(cp)) in ("Cf", "Zl", "Zp")]
+v = Ledger()
+checked = 0
+for start in range(0, len(formats), 50):
+    chunk = formats[start:start + 50]
+    sec_file = os.path.join(v.dir.name, f"invisible-{start}.csv")
+    with open(sec_file, "w", encoding="utf-8", newline="") as f:
+        f.write("symbol,name,kind,currency\n")
+        for cp in chunk:
+            f.write(f"Z{chr(cp)}Q,Invisible test,stock,USD\n")
+    code, out, err = v.run("import", "securities", sec_file)
+    lines = err.splitlines()
+    equal(code, INPUT, f"import of {len(chunk)} symbols with invisible characters")
+    equal(len(lines), len(chunk) + 1, "one refusal per invisible character, then the summary")
+    for line, cp in zip(lines, chunk):
+        want = (f"{sec_file}:{chunk.index(cp) + 2}: column 'symbol': symbol 'Z<U+{cp:04X}>Q' "
+                f"contains U+{cp:04X} {unicodedata.name(chr(cp))}" + INVISIBLE)
+        equal(line, want, f"U+{cp:04X}")
+        checked += 1
+check(checked >= 150, f"only {checked} format characters checked")
+equal(v.json("security", "list"), [], "no symbol with an invisible character was added")
+print(f"{checked} invisible characters refused (Unicode {unicodedata.unidata_version} as Python "
+      f"knows it), each named as unicodedata names it")

@@ -8,7 +8,8 @@ sys.path.insert(0, os.path.dirname(__file__))
 from keel_cli import SOURCE, equal  # noqa: E402
 
 readme = open(os.path.join(SOURCE, "README.md"), encoding="utf-8").read()
-quick = readme[readme.index("## Quick start"):readme.index("## A short tour")]
+start = readme.index("## Quick start")
+quick = readme[start:readme.index("\n## ", start)]
 first, test = re.findall(r"```sh\n(.*?)\n```", quick, flags=re.S)
 ci = [line for line in open(os.path.join(SOURCE, ".ci", "run"), encoding="utf-8").read().splitlines()
       if line and not line.startswith("#")]

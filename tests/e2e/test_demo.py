@@ -6,15 +6,20 @@
   total is what `keel holdings --json` says, the total is cash plus positions,
   and positions and cash are what an independent replay of the scenario's
   transactions.csv and splits.csv (below, in Python's decimal) gives.
+- The scenario is built into keel: the demo imports exactly the committed
+  files (their SHA-256 in the import log) and writes the committed rule file
+  beside its ledger, the one its proposal uses.
 - Refusals: a missing scenario folder or file, a folder already holding a
-  ledger (left untouched), and a scenario whose transactions keel refuses
-  (no ledger is left behind).
+  ledger or a rule file (left untouched), and a scenario whose transactions
+  keel refuses (no ledger is left behind).
 """
 import filecmp
+import hashlib
 import json
 import os
 import re
 import shutil
+import sqlite3
 import subprocess
 import sys
 import tempfile
@@ -60,6 +65,16 @@ for what in ("accounts", "securities", "prices", "metrics", "distributions", "sp
              "transactions"):
     check(re.search(rf"^imported {what} +\d+ rows from {what}\.csv$", out, re.M),
           f"the demo imports {what}")
+rule = os.path.join(demo_dir, "rule.toml")
+check(filecmp.cmp(rule, os.path.join(SOURCE, "examples", "demo", "rule.toml"), shallow=False),
+      "the demo writes the committed rule file beside its ledger")
+check(f"(keel propose --rule {rule} --as-of 2025-12-31)" in out, "the proposal uses that rule file")
+with sqlite3.connect(f"file:{ledger}?mode=ro", uri=True) as log:
+    imported = dict(log.execute("SELECT file_name, file_sha256 FROM import_run"))
+equal(sorted(imported), sorted(f for f in FILES if f.endswith(".csv")), "files in the import log")
+for name, digest in imported.items():
+    with open(os.path.join(DATA, name), "rb") as f:
+        equal(digest, hashlib.sha256(f.read()).hexdigest(), f"SHA-256 of the built-in {name}")
 sections = dict(re.findall(r"^== (.+?) \(keel [^)]*\) ==\n(.*?)(?=^== |\nCautions\n)", out,
                            re.M | re.S))
 equal(sorted(sections), sorted(["The last month's transactions", "Holdings on the last day",
@@ -169,6 +184,17 @@ equal((code, err.strip()), (1, f"keel: error: --dir: '{demo_dir}' already holds 
                                "(keel.db); the demo starts from an empty folder"),
       "a folder with a ledger")
 check(open(ledger, "rb").read() == before, "the existing ledger is untouched")
+
+with_rule = os.path.join(work.name, "with-rule")
+os.makedirs(with_rule)
+with open(os.path.join(with_rule, "rule.toml"), "w") as f:
+    f.write("# my own rule\n")
+code, _, err = keel("demo", "--dir", with_rule)
+equal((code, err.strip()), (1, f"keel: error: --dir: '{with_rule}' already holds a rule file "
+                               "(rule.toml); the demo starts from an empty folder"),
+      "a folder with a rule file")
+equal(sorted(os.listdir(with_rule)), ["rule.toml"], "nothing written beside the rule file")
+equal(open(os.path.join(with_rule, "rule.toml")).read(), "# my own rule\n", "the rule file is kept")
 
 bad = os.path.join(work.name, "bad")
 os.makedirs(bad)

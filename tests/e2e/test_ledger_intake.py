@@ -4,6 +4,7 @@ Round trip (export, then import into an empty ledger, gives identical holdings,
 lots and gains), exactly-once re-imports, all-or-nothing refusals with every
 error listed, and the invented broker layout in examples/import.
 """
+import datetime
 import os
 import sys
 
@@ -73,6 +74,64 @@ err = b.fails("import", "transactions", oversell)
 equal(err.splitlines()[0], f"{oversell}:2: sell on 2024-06-05 in 'Alder Taxable': cannot take 26 "
       "units; only 25 held", "oversell names the line")
 equal(b.ok("export", "transactions"), before, "ledger unchanged after refused imports")
+
+# Void and put back: the void command shows the rows it takes out or puts back; a voided
+# row stays booked for imports (the same line is not booked again), and voiding the void
+# brings it back everywhere: holdings, history, export.
+v = Ledger()
+v.ok("account", "add", "Main", "--currency", "EUR")
+one = os.path.join(v.dir.name, "one.csv")
+with open(one, "w") as f:
+    f.write("date,account,kind,amount,note\n2024-03-01,Main,deposit,40,march\n")
+v.ok("import", "transactions", one)
+cash = lambda: v.json("holdings", "--as-of", "2024-12-31")["cash"][0]["amount"]  # noqa: E731
+equal(v.ok("void", "1", "--reason", "not ours"),
+      "void entry 2 recorded; this is now out of the books:\n"
+      "id  date        account  kind     symbol  quantity  price  amount  fee  ref  note\n"
+      "-----------------------------------------------------------------------------------------\n"
+      " 1  2024-03-01  Main     deposit                               40            [void] march\n"
+      "To put it back, void 2.\n", "void output")
+equal(cash(), "0", "cash after the void")
+out = v.ok("import", "transactions", one)
+check("added 0, 1 already booked" in out, f"a voided line is still booked: {out}")
+equal(v.ok("void", "2", "--reason", "ours after all"),
+      "void entry 3 recorded; this is back in the books:\n"
+      "id  date        account  kind     symbol  quantity  price  amount  fee  ref  note\n"
+      "----------------------------------------------------------------------------------\n"
+      " 1  2024-03-01  Main     deposit                               40            march\n"
+      "To take it out again, void 3.\n", "void of the void output")
+equal(cash(), "40", "cash after putting the deposit back")
+out = v.ok("import", "transactions", one)
+check("added 0, 1 already booked" in out, f"a line put back is booked once: {out}")
+equal([(t["id"], t["kind"], t["voided"], t["voids"]) for t in v.json("history")],
+      [(1, "deposit", False, None), (2, "void", True, 1), (3, "void", False, 2)],
+      "history keeps the deposit, its void and the void of the void")
+check("2024-03-01,Main,deposit,,,,40,,,march" in v.ok("export", "transactions"),
+      "the deposit put back is exported")
+code, out, err = v.run("verify")
+equal(code, 0, f"verify after void and put back: {err}")
+
+# Dates after today (the local calendar day, as keel and Python both take it from TZ): a
+# posting or an imported row is refused unless --allow-future-date; verify then warns.
+fut = Ledger()
+fut.ok("account", "add", "Main", "--currency", "EUR")
+today = datetime.date.today()
+tomorrow = (today + datetime.timedelta(days=1)).isoformat()
+err = fut.fails("record", "deposit", "--date", tomorrow, "--account", "Main", "--amount", "1")
+equal(err, f"keel: error: deposit: --date {tomorrow} is after today ({today.isoformat()}); give "
+      "--allow-future-date to post it anyway", "tomorrow refused")
+fut.ok("record", "deposit", "--date", today.isoformat(), "--account", "Main", "--amount", "1")
+ahead = os.path.join(fut.dir.name, "ahead.csv")
+with open(ahead, "w") as f:
+    f.write(f"date,account,kind,amount\n{tomorrow},Main,deposit,2\n")
+err = fut.fails("import", "transactions", ahead)
+check(f"column 'date': {tomorrow} is after today" in err, err)
+out = fut.ok("import", "transactions", ahead, "--allow-future-date")
+check("added 1" in out, out)
+code, out, err = fut.run("verify")
+equal(code, 0, f"verify with a row after today: {err}")
+check(f"warning: transaction 2 (deposit) is dated {tomorrow}, after today ({today.isoformat()})"
+      in out, out)
 
 # The invented broker's own layout, read through its mapping file.
 c = Ledger()

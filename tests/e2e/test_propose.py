@@ -165,6 +165,44 @@ def main():
         equal(err, "keel: error: no saved proposal 99; see 'keel proposals list'", "unknown id")
         print("propose: save, review and refusals behave")
 
+        # At rest: propose (default day), record every fill after the latest close, propose
+        # again (default day): the fills count, so nothing is proposed twice.
+        # Figures known after the latest close are left out, so that between the two
+        # proposals nothing changes but the fills.
+        latest_close = max(prices.date)
+        known = pd.read_csv(os.path.join(data, "metrics.csv"), dtype=str)
+        known[known.known_on <= latest_close].to_csv(os.path.join(tmp, "known.csv"), index=False)
+        rest = Ledger()
+        for kind in ("securities", "prices"):
+            rest.ok("import", kind, os.path.join(data, f"{kind}.csv"), "--quiet")
+        rest.ok("import", "metrics", os.path.join(tmp, "known.csv"), "--quiet")
+        rest.ok("account", "add", "Household taxable")
+        rest.ok("record", "deposit", "--date", "2010-02-01", "--account", "Household taxable",
+                "--amount", "250000")
+        rest.ok("record", "buy", "--date", "2010-03-01", "--account", "Household taxable",
+                "--symbol", "K0003", "--quantity", "40", "--price", "100", "--fee", "1")
+        rule = write(os.path.join(tmp, "rest.toml"),
+                     '[scope]\naccounts = ["Household taxable"]\n[screen]\n'
+                     'metric = "earnings_yield"\ncheap = "high"\nmax_age_days = 400\n'
+                     '[select]\nby = "count"\ncount = 10\n[trading]\nfee_fixed = 1\n')
+        first = rest.json("propose", "--rule", rule, "--save")
+        equal(first["as_of"], latest_close, "the default day is the latest close")
+        check(any(o["side"] == "sell" for o in first["orders"]), "the first proposal sells")
+        fill_day = (pd.Timestamp(latest_close) + pd.Timedelta(days=3)).date().isoformat()
+        for o in first["orders"]:
+            lots = ",".join(f"{l['lot']}:{l['quantity']}" for l in o["lots"])
+            rest.ok("record", o["side"], "--date", fill_day, "--account", o["account"],
+                    "--symbol", o["symbol"], "--quantity", o["quantity"], "--price", o["price"],
+                    "--fee", o["fee"], *(["--lots", lots] if lots else []))
+        again = rest.json("propose", "--rule", rule)
+        equal(again["as_of"], fill_day, "the default day takes in the fills")
+        equal(again["orders"], [], "orders after the fills were recorded")
+        check(any("after the latest close" in n for n in again["notes"]), again["notes"])
+        shown = rest.json("proposals", "show", str(first["proposal_id"]))
+        equal({l["status"] for l in shown["lines"]}, {"done"}, "every saved order is done")
+        print(f"propose at rest: {len(first['orders'])} orders filled on {fill_day}, none "
+              "proposed again")
+
 
 if __name__ == "__main__":
     main()

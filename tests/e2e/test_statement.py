@@ -13,6 +13,7 @@ import os
 import re
 import sys
 import xml.etree.ElementTree as ET
+import zipfile
 from decimal import Decimal
 
 sys.path.insert(0, os.path.dirname(__file__))
@@ -112,8 +113,8 @@ import openpyxl  # noqa: E402
 book_path = os.path.join(out_dir, "statement.xlsx")
 k.ok("statement", "--year", "2025", "--benchmark", "IDXW", "--xlsx", book_path)
 wb = openpyxl.load_workbook(book_path)
-equal(wb.sheetnames, ["summary", "performance", "monthly", "holdings", "realized", "income", "cautions"],
-      "sheets")
+equal(wb.sheetnames, ["summary", "performance", "growth", "monthly", "holdings", "realized", "income",
+                     "cautions"], "sheets")
 ws = wb["summary"]
 equal(ws["A3"].value, "item", "summary heading")
 rows = {ws.cell(row=i, column=1).value: ws.cell(row=i, column=2) for i in range(4, ws.max_row + 1)}
@@ -133,10 +134,99 @@ check(isinstance(acquired.value, datetime.datetime), f"acquired is a date, not {
 equal(acquired.value.date(), datetime.date(2024, 3, 4), "acquired day")
 check(abs(real.cell(row=4, column=9).value - 591) < 1e-9, "gain of the first part")
 
+# 5b. XLSX totals are formulas over their own column; the cached result is keel's exact figure
+# (statement --json), and the formula, worked out here in Python's decimal from the cells it
+# names, gives that figure too.
+values = openpyxl.load_workbook(book_path, data_only=True)  # cached results
+
+
+def cell_decimal(sheet, ref):
+    """A cell's number; a cell that is itself a total counts with its cached result."""
+    v = wb[sheet][ref].value
+    if isinstance(v, str) and v.startswith("="):
+        v = values[sheet][ref].value
+    return Decimal(0) if v is None else Decimal(repr(v))
+
+
+def evaluate(sheet, formula):
+    m = re.fullmatch(r"=SUM\(([A-Z])(\d+):([A-Z])(\d+)\)", formula)
+    if m:
+        col, a, _, b = m.groups()
+        return sum(cell_decimal(sheet, f"{col}{r}") for r in range(int(a), int(b) + 1))
+    m = re.fullmatch(r'=SUMIF\(([A-Z])(\d+):[A-Z](\d+),"(\w+)",([A-Z])\d+:[A-Z]\d+\)', formula)
+    if m:
+        key, a, b, text, col = m.groups()
+        return sum(cell_decimal(sheet, f"{col}{r}") for r in range(int(a), int(b) + 1)
+                   if wb[sheet][f"{key}{r}"].value == text)
+    m = re.fullmatch(r"=([A-Z]\d+)-([A-Z]\d+)", formula)
+    check(m, f"a formula keel writes: {formula}")
+    return cell_decimal(sheet, m.group(1)) - cell_decimal(sheet, m.group(2))
+
+
+def total(sheet, label, column, expected):
+    row = next(r for r in range(4, wb[sheet].max_row + 1) if wb[sheet][f"A{r}"].value == label)
+    formula = wb[sheet][f"{column}{row}"].value
+    check(isinstance(formula, str) and formula.startswith("="), f"{sheet} {label}: {formula!r}")
+    cached = values[sheet][f"{column}{row}"].value
+    equal(cached, float(Decimal(expected)), f"{sheet} {label} {column}: cached value")
+    equal(evaluate(sheet, formula), Decimal(expected), f"{sheet} {label} {column}: {formula}")
+    return formula
+
+
+statement_json = k.json("statement", "--year", "2025", "--benchmark", "IDXW")
+sj = statement_json["summary"]
+equal(total("summary", "opening value plus the pieces", "B", sj["explained_closing"]), "=SUM(B4:B15)",
+      "the pieces' formula")
+equal(total("summary", "difference", "B", sj["difference"]), "=B17-B16", "the difference's formula")
+cost = sum(Decimal(h["cost_basis"]) for h in statement_json["holdings"])
+unrealized = sum(Decimal(h["unrealized_gain"]) for h in statement_json["holdings"])
+total("holdings", "total", "D", cost)
+total("holdings", "total", "F", statement_json["holdings_total"])
+total("holdings", "total", "G", unrealized)
+rt = statement_json["realized_totals"]
+for label, term in (("total short-term", "short"), ("total long-term", "long")):
+    for column, key in (("G", "proceeds"), ("H", "cost"), ("I", "gain")):
+        check(total("realized", label, column, rt[term][key]).startswith("=SUMIF("), label)
+for column, key in (("G", "proceeds"), ("H", "cost"), ("I", "gain")):
+    total("realized", "total", column, Decimal(rt["short"][key]) + Decimal(rt["long"][key]))
+income = statement_json["income"] + statement_json["unmatched_tax"]
+total("income", "total", "E", sum(Decimal(r.get("gross", "0")) for r in statement_json["income"]))
+withheld = sum(Decimal(r["withheld"]) for r in statement_json["income"]) + sum(
+    Decimal(r["amount"]) for r in statement_json["unmatched_tax"])
+total("income", "total", "F", withheld)
+
+# Autofilters: over each table's heading and detail rows, the totals left out.
+filters = {name: wb[name].auto_filter.ref for name in wb.sheetnames}
+equal(filters["summary"], "A3:B15", "summary autofilter")
+equal(filters["holdings"], f"A3:H{3 + len(statement_json['holdings']) + len(statement_json['cash'])}",
+      "holdings autofilter")
+equal(filters["realized"], f"A3:J{3 + len(statement_json['realized'])}", "realized autofilter")
+equal(filters["monthly"], "A3:D15", "monthly autofilter")
+check(filters["cautions"] is None, "no autofilter on the cautions")
+
+# Native charts, as the workbook's drawing parts declare them (ECMA-376 DrawingML charts).
+with zipfile.ZipFile(book_path) as z:
+    charts = sorted(n for n in z.namelist() if re.fullmatch(r"xl/charts/chart\d+\.xml", n))
+    chart_xml = [z.read(n).decode() for n in charts]
+equal(len(charts), 2, "two charts")
+line = next(x for x in chart_xml if "<c:lineChart>" in x)
+bars = next(x for x in chart_xml if "<c:barChart>" in x)
+equal(re.findall(r"<c:val><c:numRef><c:f>([^<]+)</c:f>", line),
+      ["growth!$B$4:$B$" + str(3 + wb["growth"].max_row - 3), "growth!$C$4:$C$" + str(wb["growth"].max_row)],
+      "the growth chart's series")
+equal(re.findall(r"<c:val><c:numRef><c:f>([^<]+)</c:f>", bars),
+      ["monthly!$B$4:$B$15", "monthly!$C$4:$C$15"], "the monthly chart's series")
+growth_rows = [(wb["growth"][f"A{r}"].value, wb["growth"][f"B{r}"].value)
+               for r in range(4, wb["growth"].max_row + 1)]
+check(len(growth_rows) >= 13, f"the growth sheet has a point per valuation day ({len(growth_rows)})")
+check(all(isinstance(d, datetime.datetime) for d, _ in growth_rows), "growth days are dates")
+check(abs(growth_rows[-1][1] - year["twr"]) < 1e-9, "the growth ends at the year's TWR")
+
 # 6. CSV: one file per section; the summary's signed pieces add up to the closing value.
 csv_dir = os.path.join(out_dir, "csv")
 k.ok("statement", "--year", "2025", "--benchmark", "IDXW", "--csv", csv_dir)
-equal(sorted(os.listdir(csv_dir)), sorted(f"{n}.csv" for n in wb.sheetnames), "CSV files")
+equal(sorted(os.listdir(csv_dir)), sorted(f"{n}.csv" for n in wb.sheetnames if n != "growth"),
+      "CSV files")
 with open(os.path.join(csv_dir, "summary.csv"), newline="") as f:
     summary_rows = list(csv.reader(f))
 pieces = summary_rows[1:summary_rows.index(next(r for r in summary_rows if r[0] == "opening value plus the pieces"))]
@@ -157,7 +247,8 @@ equal(pension["summary"]["transfers_in"], "1100", "internal transfer is a flow f
 # 8. Refused requests: a clear message naming the option, exit 1, nothing written or changed.
 before = k.ok("history", "--json")
 cases = [
-    (["--year", "twenty"], "keel: error: --year: 'twenty' is not a calendar year (1 to 9999)"),
+    (["--year", "twenty"], "keel: error: --year: 'twenty' is not a year a statement covers (6 to "
+                              "9999; it looks back 5 years)"),
     (["--year", "2025", "--account", "Nobody"], "keel: error: --account: there is no account named 'Nobody'"),
     (["--year", "2025", "--long-term-days", "-3"],
      "keel: error: --long-term-days: '-3' is not a number of days (1 or more)"),

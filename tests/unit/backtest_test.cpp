@@ -174,6 +174,27 @@ TEST_CASE("backtest: the report always carries the cautions") {
   CHECK(r.cautions[2].rfind("Past results do not predict", 0) == 0);
 }
 
+TEST_CASE("backtest: a universe in two currencies is refused while the ledger has no currency") {
+  Market m;
+  keel::Security s;
+  s.symbol = "EURO";
+  s.name = "Euro stock (invented)";
+  s.currency = "EUR";
+  keel::store::insert_security(m.f.db, s);
+  CHECK_THROWS_WITH_AS(
+      m.run(),
+      "test.toml:3: key 'scope': the universe holds stocks priced in EUR, USD; keel "
+      "does not convert between currencies yet: narrow it to one with "
+      "scope.sector or scope.symbols",
+      keel::InputError);
+  // With the ledger's currency recorded, the other one's stocks are left out, with a note.
+  keel::store::set_ledger_currency(m.f.db, "USD");
+  const auto r = m.run();
+  CHECK(std::find(r.notes.begin(), r.notes.end(),
+                  "1 stock priced in other currencies than USD is left out of the universe (keel "
+                  "does not convert between currencies yet)") != r.notes.end());
+}
+
 // Expected values: scipy.stats.spearmanr 1.10.1 (Debian 12 python3-scipy).
 TEST_CASE("signal: Spearman's rho matches scipy without ties") {
   const std::vector<double> x{1, 2, 3, 4, 5}, y{5, 6, 7, 8, 7};

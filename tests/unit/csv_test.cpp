@@ -4,6 +4,7 @@
 
 #include <doctest/doctest.h>
 
+#include <regex>
 #include <string>
 #include <vector>
 
@@ -169,4 +170,46 @@ TEST_CASE("a missing file is an error naming it") {
   CHECK_THROWS_WITH_AS(CsvReader::open("/nonexistent/keel/none.csv"),
                        doctest::Contains("/nonexistent/keel/none.csv: cannot open"),
                        keel::InputError);
+}
+
+TEST_CASE("export cells: text a spreadsheet would run as a formula gets a leading apostrophe") {
+  std::string scratch;
+  for (const char* cell :
+       {"=1+1", "+cmd", "-2+3", "@SUM(A1)", "\tx", "\rx", "-", "+5", "-1e5", "'=x", "''", "'-"}) {
+    CAPTURE(cell);
+    CHECK(keel::io::formula_guarded(cell, scratch) == std::string("'") + cell);
+  }
+  for (const char* cell : {"plain", "'plain", "'", "12.5", "-0.25", "-12", "0", "2024-01-02", ""}) {
+    CAPTURE(cell);
+    CHECK(keel::io::formula_guarded(cell, scratch) == cell);
+  }
+}
+
+TEST_CASE("export cells: every guarded cell reads back exactly and runs no formula") {
+  // Every string of up to four characters over the characters that matter.
+  const std::string alphabet = "'=+-@\t\r.1a";
+  std::vector<std::string> cells{""};
+  for (int length = 1; length <= 4; ++length) {
+    const std::size_t before = cells.size();
+    for (std::size_t i = 0; i < before; ++i)
+      if (cells[i].size() == static_cast<std::size_t>(length - 1))
+        for (const char c : alphabet) cells.push_back(cells[i] + c);
+  }
+  std::string scratch;
+  int checked = 0;
+  for (const auto& cell : cells) {
+    const std::string guarded(keel::io::formula_guarded(cell, scratch));
+    CHECK(std::string(keel::io::formula_unguarded(guarded)) == cell);
+    const bool number = std::regex_match(guarded, std::regex("-?[0-9]+(\\.[0-9]+)?"));
+    if (!guarded.empty() && std::string("=+-@\t\r").find(guarded.front()) != std::string::npos)
+      CHECK(number);
+    ++checked;
+  }
+  CHECK(checked == 11111);
+}
+
+TEST_CASE("regression: export --csv wrote text starting with = raw, and import read it raw") {
+  std::string out;
+  keel::io::append_export_record(out, {"=HYPERLINK(\"x\")", "-0.25", "'=a"});
+  CHECK(out == "\"'=HYPERLINK(\"\"x\"\")\",-0.25,''=a\n");
 }

@@ -4,9 +4,12 @@
 
 #include <doctest/doctest.h>
 
+#include <fstream>
+#include <iterator>
 #include <stdexcept>
 
 #include "core/error.h"
+#include "io/demo_data.h"
 #include "io/errors.h"
 #include "ledger/holdings.h"
 #include "store/ledger_store.h"
@@ -174,4 +177,48 @@ TEST_CASE("demo: a step naming no scenario value is a bug") {
   const auto sc = load_scenario(s.dir.path(), "--data");
   CHECK_THROWS_AS(expand_placeholders({"{tomorrow}"}, sc), std::logic_error);
   CHECK_THROWS_AS(expand_placeholders({"{last_day"}, sc), std::logic_error);
+}
+
+TEST_CASE("demo: the {rule} of a scenario folder is rule.toml beside it") {
+  Scenario s;
+  const auto sc = load_scenario(s.dir.path(), "--data");
+  CHECK(expand_placeholders({"--rule", "{rule}"}, sc, "/tmp/ledger") ==
+        std::vector<std::string>{"--rule", s.path() + "/../rule.toml"});
+}
+
+TEST_CASE("demo: the built-in scenario's {rule} is written beside the demo ledger") {
+  const auto sc = keel::io::built_in_scenario();
+  CHECK(sc.built_in());
+  CHECK(expand_placeholders({"--rule", "{rule}"}, sc, "/tmp/ledger") ==
+        std::vector<std::string>{"--rule", "/tmp/ledger/rule.toml"});
+}
+
+TEST_CASE("demo: the built-in files are examples/demo's, byte for byte") {
+  const std::filesystem::path demo = std::filesystem::path(KEEL_SOURCE_DIR) / "examples" / "demo";
+  std::vector<std::string> names;
+  for (const auto& f : keel::io::embedded_demo_files()) {
+    names.emplace_back(f.name);
+    const auto path = f.name == "rule.toml" ? demo / f.name : demo / "data" / f.name;
+    std::ifstream in(path, std::ios::binary);
+    REQUIRE_MESSAGE(in, path.string());
+    const std::string committed{std::istreambuf_iterator<char>(in), {}};
+    CHECK_MESSAGE(committed == f.text, f.name);
+  }
+  CHECK(names == std::vector<std::string>{"accounts.csv", "distributions.csv", "metrics.csv",
+                                          "prices.csv", "scenario.toml", "securities.csv",
+                                          "splits.csv", "transactions.csv", "rule.toml"});
+}
+
+TEST_CASE("demo: the built-in scenario reads and imports without any file") {
+  const auto sc = keel::io::built_in_scenario();
+  CHECK(sc.household == "the Ardwyn household of Thistlecombe (invented)");
+  CHECK(sc.last_day == Date::parse("2025-12-31"));
+  CHECK(sc.benchmark == "ZXTR");
+  auto db = keel::store::Database::in_memory();
+  const auto done = import_scenario(db, sc);
+  REQUIRE(done.size() == 7);
+  CHECK(done[0].file == "built-in demo data/accounts.csv");
+  CHECK(done[6].file == "built-in demo data/transactions.csv");
+  CHECK(done[6].rows == 2030);
+  CHECK(keel::store::list_transactions(db).size() == 2031);
 }

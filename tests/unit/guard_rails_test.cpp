@@ -4,6 +4,8 @@
 #include <doctest/doctest.h>
 #include <fmt/format.h>
 
+#include <unordered_set>
+
 #include "ledger_fixture.h"
 
 using namespace keel;
@@ -162,6 +164,43 @@ TEST_CASE("guard rail: a transfer to the same account is refused") {
   expect_refused(f, r, "transfer_out: --to-account names the same account");
 }
 
+TEST_CASE("regression: a deposit dated 2099-12-31 was posted without a word") {
+  Funded f;
+  auto r = request(TxnKind::deposit);
+  r.amount = dec("5"), r.date = day("2099-12-31");
+  expect_refused(f, r,
+                 fmt::format("deposit: --date 2099-12-31 is after today ({}); give "
+                             "--allow-future-date to post it anyway",
+                             Date::today().str()));
+}
+
+TEST_CASE("future dates: tomorrow is refused, today is posted, and the override posts tomorrow") {
+  Funded f;
+  auto r = request(TxnKind::deposit);
+  r.amount = dec("5"), r.date = Date::today().plus_days(1);
+  const std::string before = f.dump();
+  CHECK_THROWS_AS(ledger::post(f.db, r), InputError);
+  CHECK(f.dump() == before);
+  r.allow_future = true;
+  CHECK_NOTHROW(ledger::post(f.db, r));
+  r.allow_future = false, r.date = Date::today();
+  CHECK_NOTHROW(ledger::post(f.db, r));
+}
+
+TEST_CASE("future dates: a split dated after today is refused unless allowed") {
+  Funded f;
+  const Date later = Date::today().plus_days(30);
+  const std::string before = f.dump();
+  CHECK_THROWS_WITH_AS(ledger::post_split(f.db, "ALFA", later, dec("2")),
+                       fmt::format("split: --date {} is after today ({}); give "
+                                   "--allow-future-date to post it anyway",
+                                   later.str(), Date::today().str())
+                           .c_str(),
+                       InputError);
+  CHECK(f.dump() == before);
+  CHECK_NOTHROW(ledger::post_split(f.db, "ALFA", later, dec("2"), true));
+}
+
 TEST_CASE("void: a voided transaction no longer counts, and the row stays") {
   Funded f;
   const auto id = f.cash(TxnKind::deposit, "2025-02-01", "Main", "50");
@@ -181,22 +220,85 @@ TEST_CASE("void: voiding a buy that later sells depend on is refused") {
   CHECK(f.dump() == before);
 }
 
-TEST_CASE("void: a transaction cannot be voided twice") {
+TEST_CASE("void: a transaction cannot be voided twice; the message says which void to void") {
   Funded f;
   const auto id = f.cash(TxnKind::deposit, "2025-02-01", "Main", "50");
-  const auto voids = ledger::void_transaction(f.db, id, "typed twice");
+  const auto voids = ledger::void_transaction(f.db, id, "typed twice").void_ids;
   const std::string before = f.dump();
-  CHECK_THROWS_WITH_AS(
-      ledger::void_transaction(f.db, id, "again"),
-      fmt::format("transaction {} is already void (by {})", id, voids.front()).c_str(), InputError);
-  CHECK_THROWS_WITH_AS(
-      ledger::void_transaction(f.db, voids.front(), "undo"),
-      fmt::format("transaction {} is itself a void and cannot be voided", voids.front()).c_str(),
-      InputError);
+  CHECK_THROWS_WITH_AS(ledger::void_transaction(f.db, id, "again"),
+                       fmt::format("transaction {} is already void (by {}); to put it back in "
+                                   "the books, void {}",
+                                   id, voids.front(), voids.front())
+                           .c_str(),
+                       InputError);
   CHECK(f.dump() == before);
 }
 
-TEST_CASE("void: an unknown id and a void itself are refused") {
+TEST_CASE("regression: a void could not be undone; voiding the void puts the transaction back") {
+  Funded f;
+  const auto id = f.cash(TxnKind::deposit, "2025-02-01", "Main", "50");
+  const auto first = ledger::void_transaction(f.db, id, "typed twice");
+  REQUIRE(first.cancelled.size() == 1);
+  CHECK(first.cancelled.front().id == id);
+  CHECK(first.reinstated.empty());
+  CHECK(f.book().account(1).cash == dec("500"));
+
+  const auto undo = ledger::void_transaction(f.db, first.void_ids.front(), "it was right");
+  CHECK(undo.cancelled.empty());
+  REQUIRE(undo.reinstated.size() == 1);
+  CHECK(undo.reinstated.front().id == id);
+  CHECK(f.book().account(1).cash == dec("550"));
+  // All three rows stay: the deposit, its void, the void of the void.
+  const auto rows = store::list_transactions(f.db);
+  CHECK(rows.size() == 5);
+  CHECK(voided_ids(rows) == std::unordered_set<std::int64_t>{first.void_ids.front()});
+
+  // Voided again by voiding the void that put it back.
+  const std::string before = f.dump();
+  CHECK_THROWS_WITH_AS(
+      ledger::void_transaction(f.db, id, "again"),
+      fmt::format("transaction {} was voided by {} and put back by {}; to void "
+                  "it again, void {}",
+                  id, first.void_ids.front(), undo.void_ids.front(), undo.void_ids.front())
+          .c_str(),
+      InputError);
+  CHECK(f.dump() == before);
+  const auto again = ledger::void_transaction(f.db, undo.void_ids.front(), "no, twice after all");
+  REQUIRE(again.cancelled.size() == 1);
+  CHECK(again.cancelled.front().id == id);
+  CHECK(f.book().account(1).cash == dec("500"));
+}
+
+TEST_CASE("void: putting a transaction back is refused when the ledger would break") {
+  Funded f;  // cash 500 after the buy
+  const auto id = f.cash(TxnKind::withdrawal, "2025-02-01", "Main", "400");
+  const auto v = ledger::void_transaction(f.db, id, "not taken").void_ids.front();
+  f.cash(TxnKind::withdrawal, "2025-02-02", "Main", "300");
+  const std::string before = f.dump();
+  CHECK_THROWS_WITH_AS(ledger::void_transaction(f.db, v, "it was taken"),
+                       "cash in 'Main' would be -200 at the end of 2025-02-02 (after transaction "
+                       "5 (withdrawal on 2025-02-02 in 'Main')); the account does not allow "
+                       "negative cash",
+                       InputError);
+  CHECK(f.dump() == before);
+}
+
+TEST_CASE("void: along a chain of voids the last one is in force") {
+  auto row = [](std::int64_t id, std::optional<std::int64_t> voids) {
+    Transaction t;
+    t.id = id;
+    t.kind = voids ? TxnKind::void_entry : TxnKind::deposit;
+    t.voids_id = voids;
+    return t;
+  };
+  // 1 <- 2 <- 3 <- 4: 4 in force cancels 3; 3 cancelled, so 2 is in force and cancels 1.
+  CHECK(voided_ids({row(1, {}), row(2, 1), row(3, 2), row(4, 3)}) ==
+        std::unordered_set<std::int64_t>{1, 3});
+  CHECK(voided_ids({row(1, {}), row(2, 1), row(3, 2)}) == std::unordered_set<std::int64_t>{2});
+  CHECK(voided_ids({row(1, {}), row(2, 1)}) == std::unordered_set<std::int64_t>{1});
+}
+
+TEST_CASE("void: an unknown id and an empty reason are refused") {
   Funded f;
   CHECK_THROWS_WITH_AS(ledger::void_transaction(f.db, 99, "x"), "there is no transaction 99",
                        InputError);
@@ -204,16 +306,24 @@ TEST_CASE("void: an unknown id and a void itself are refused") {
                        InputError);
 }
 
-TEST_CASE("void: voiding one half of a transfer voids both") {
+TEST_CASE("void: voiding one half of a transfer voids both, and voiding a void puts both back") {
   Funded f;
   f.account("Other");
   auto r = request(TxnKind::transfer_out);
   r.amount = dec("100"), r.to_account = "Other";
   const auto ids = ledger::post(f.db, r);
-  ledger::void_transaction(f.db, ids.back(), "wrong account");
-  const Book book = f.book();
+  const auto voided = ledger::void_transaction(f.db, ids.back(), "wrong account");
+  CHECK(voided.void_ids.size() == 2);
+  CHECK(voided.cancelled.size() == 2);
+  Book book = f.book();
   CHECK(book.account(1).cash == dec("500"));
   CHECK(book.account(2).cash == dec("0"));
+  const auto back = ledger::void_transaction(f.db, voided.void_ids.front(), "right account");
+  CHECK(back.void_ids.size() == 2);
+  CHECK(back.reinstated.size() == 2);
+  book = f.book();
+  CHECK(book.account(1).cash == dec("400"));
+  CHECK(book.account(2).cash == dec("100"));
 }
 
 TEST_CASE("append-only: the schema refuses edits and deletions of posted rows") {

@@ -27,9 +27,10 @@ struct LedgerFixture {
   store::Database db = store::Database::in_memory();
 
   void account(const std::string& name, BasisMethod basis = BasisMethod::fifo,
-               bool allow_negative = false) {
+               bool allow_negative = false, const char* currency = "USD") {
     Account a;
     a.name = name;
+    a.currency = currency;
     a.basis = basis;
     a.allow_negative_cash = allow_negative;
     store::insert_account(db, a);
@@ -38,6 +39,7 @@ struct LedgerFixture {
     Security s;
     s.symbol = symbol;
     s.name = symbol + " (invented)";
+    s.currency = "USD";
     s.kind = kind;
     store::insert_security(db, s);
   }
@@ -111,6 +113,19 @@ struct LedgerFixture {
     tx.commit();
   }
 
+  // Account "Main" holding ALFA after a deposit of `cash` on 2024-01-02.
+  void main_with_alfa(const char* cash, BasisMethod basis = BasisMethod::fifo) {
+    account("Main", basis);
+    security("ALFA");
+    this->cash(TxnKind::deposit, "2024-01-02", "Main", cash);
+  }
+  // One unit of ALFA bought for 0.0151, then 0.999 of it sold at 0.02: a lot
+  // whose cost has digits below the cent, cut nearly whole.
+  void sub_cent_lot(BasisMethod basis = BasisMethod::fifo) {
+    main_with_alfa("1", basis);
+    buy("2024-01-03", "Main", "ALFA", "1", "0.0151");
+    sell("2024-02-01", "Main", "ALFA", "0.999", "0.02");
+  }
   Book book() { return ledger::check_ledger(db); }
   std::string dump() { return store::content_dump(db); }
   std::vector<ledger::GainLine> gains() { return ledger::realized_gains(db, std::nullopt); }

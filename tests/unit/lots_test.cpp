@@ -1,5 +1,9 @@
 // Lots and cost basis under every method, splits and transfers.
 #include <doctest/doctest.h>
+#include <fmt/format.h>
+
+#include <cstdint>
+#include <stdexcept>
 
 #include "ledger_fixture.h"
 
@@ -296,4 +300,138 @@ TEST_CASE("published example: average basis of IRS Publication 564 worksheet is 
   Decimal cost;
   for (const auto& g : f.gains()) cost += g.part.cost;
   CHECK(cost == dec("2400"));
+}
+
+// --- Splitting an amount: the largest-remainder method ----------------------
+
+namespace {
+
+Decimal sum(const std::vector<Decimal>& parts) {
+  Decimal total;
+  for (const auto& p : parts) total += p;
+  return total;
+}
+
+std::vector<Decimal> decs(std::initializer_list<const char*> texts) {
+  std::vector<Decimal> out;
+  for (const char* t : texts) out.push_back(dec(t));
+  return out;
+}
+
+}  // namespace
+
+// Published worked example: the Hamilton (largest-remainder) apportionment of
+// 60 seats among the 15 states of the 1790 United States census, as worked in
+// electowiki.org's article "Hamilton method" (quotas floored to 52 seats, the
+// 8 left to the largest remainders).
+TEST_CASE("allocate: apportions the 1790 census example exactly as the Hamilton method does") {
+  const auto populations =
+      decs({"630560", "475327", "432879", "353523", "331589", "278514", "236841", "206236",
+            "179570", "141822", "85533", "70835", "68705", "68446", "55540"});
+  const auto seats = allocate(dec("60"), populations, 0);
+  CHECK(seats ==
+        decs({"11", "8", "7", "6", "6", "5", "4", "3", "3", "2", "1", "1", "1", "1", "1"}));
+}
+
+TEST_CASE("allocate: a rest below the cent stays with the last part that has weight") {
+  // 0.0151 over 999:1 -> the cent goes to the larger quota, 0.0051 below the grid to the last.
+  CHECK(allocate(dec("0.0151"), decs({"0.999", "0.001"}), 2) == decs({"0.01", "0.0051"}));
+  // Everything to the only weighted part, even when a zero weight comes last.
+  CHECK(allocate(dec("0.0151"), decs({"5", "0"}), 2) == decs({"0.0151", "0"}));
+}
+
+TEST_CASE("allocate: a negative total gives parts of its sign that add up to it") {
+  const auto parts = allocate(dec("-4.99"), decs({"1", "1", "1"}), 2);
+  CHECK(parts == decs({"-1.67", "-1.66", "-1.66"}));
+  CHECK(sum(parts) == dec("-4.99"));
+}
+
+TEST_CASE("allocate: ties in the remainders go to the earlier parts") {
+  CHECK(allocate(dec("0.02"), decs({"1", "1", "1"}), 2) == decs({"0.01", "0.01", "0"}));
+}
+
+TEST_CASE("allocate: refuses negative weights and weights that are all zero") {
+  CHECK_THROWS_AS(allocate(dec("1"), decs({"1", "-1"}), 2), std::invalid_argument);
+  CHECK_THROWS_AS(allocate(dec("1"), decs({"0", "0"}), 2), std::invalid_argument);
+  CHECK(allocate(dec("1"), {}, 2).empty());
+}
+
+TEST_CASE("allocate: on many generated splits every part lies within the total and they add up") {
+  // A fixed linear congruential sequence (Knuth's MMIX constants): the same cases every run.
+  std::uint64_t state = 12345;
+  auto next = [&](std::uint64_t bound) {
+    state = state * 6364136223846793005ULL + 1442695040888963407ULL;
+    return (state >> 33) % bound;
+  };
+  for (int round = 0; round < 2000; ++round) {
+    const int places = static_cast<int>(next(3));
+    Decimal total = Decimal::parse(fmt::format("{}e-{}", next(100000), next(5)));
+    if (next(4) == 0) total = -total;
+    std::vector<Decimal> weights;
+    const std::size_t n = 1 + next(12);
+    for (std::size_t i = 0; i < n; ++i)
+      weights.push_back(
+          Decimal::parse(fmt::format("{}e-{}", next(4) == 0 ? 0 : next(5000), next(4))));
+    if (sum(weights).is_zero()) weights.back() = dec("1");
+    const auto parts = allocate(total, weights, places);
+    REQUIRE(sum(parts) == total);
+    for (std::size_t i = 0; i < n; ++i) {
+      CHECK(parts[i].abs() <= total.abs());
+      CHECK((parts[i].is_zero() || parts[i].sign() == total.sign()));
+      if (weights[i].is_zero()) CHECK(parts[i].is_zero());
+    }
+  }
+}
+
+TEST_CASE("regression: selling 0.999 of a lot costing 0.0151 left the open part at -0.0049") {
+  LedgerFixture f;
+  f.sub_cent_lot();
+  CHECK(f.gains().at(0).part.cost == dec("0.01"));
+  const Book book = f.book();
+  const auto& lot = book.account(1).positions.at(1).lots.at(0);
+  CHECK(lot.quantity == dec("0.001"));
+  CHECK(lot.cost == dec("0.0051"));
+}
+
+TEST_CASE("regression: average cost split a lot costing 0.0151 into 0.02 sold and -0.0049 kept") {
+  LedgerFixture f;
+  f.sub_cent_lot(BasisMethod::average);
+  CHECK(f.gains().at(0).part.cost == dec("0.01"));
+  CHECK(f.book().account(1).positions.at(1).cost() == dec("0.0051"));
+  f.sell("2024-02-02", "Main", "ALFA", "0.001", "0.02");
+  CHECK(f.gains().at(1).part.cost == dec("0.0051"));
+}
+
+TEST_CASE("regression: 1000 one-unit lots sold at 0.006 gave the last part proceeds of -3.99") {
+  LedgerFixture f;
+  f.account("Main");
+  f.security("ALFA");
+  f.cash(TxnKind::deposit, "2020-01-02", "Main", "100");
+  std::vector<ledger::PostRequest> buys;
+  for (int i = 0; i < 1000; ++i) {
+    ledger::PostRequest r;
+    r.kind = TxnKind::buy;
+    r.date = day(i < 999 ? "2020-01-03" : "2024-06-03");  // 999 long-held lots, one recent
+    r.account = "Main";
+    r.symbol = "ALFA";
+    r.quantity = dec("1");
+    r.price = dec("0.005");
+    buys.push_back(r);
+  }
+  ledger::post_batch(f.db, buys, {});
+  f.sell("2024-07-01", "Main", "ALFA", "1000", "0.006");
+  const auto gains = f.gains();
+  REQUIRE(gains.size() == 1000);
+  for (const auto& g : gains) {
+    CHECK(g.part.proceeds >= Decimal());
+    CHECK(g.part.proceeds <= dec("6"));
+  }
+  // 600 cents over 1000 equal quotas of 0.6 cent: the first 600 parts (oldest
+  // first) take a cent each.
+  CHECK(gains[599].part.proceeds == dec("0.01"));
+  CHECK(gains[600].part.proceeds == dec("0"));
+  const auto t = ledger::totals_by_term(gains);
+  CHECK(t.long_term.proceeds == dec("6"));
+  CHECK(t.short_term.proceeds == dec("0"));
+  CHECK(t.all().proceeds == dec("6"));
 }

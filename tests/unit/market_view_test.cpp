@@ -33,6 +33,7 @@ struct MarketLedger : LedgerFixture {
     fund.name = "Evenfund (invented)";
     fund.kind = SecurityKind::fund;
     fund.sector = "Funds";
+    fund.currency = "USD";
     store::insert_security(db, fund);
     closes({{"AVEL", "2023-12-29", "9.5"},
             {"AVEL", "2024-03-01", "10.25"},
@@ -65,6 +66,7 @@ struct MarketLedger : LedgerFixture {
     s.symbol = symbol;
     s.name = symbol + " (invented)";
     s.sector = sector;
+    s.currency = "USD";
     store::insert_security(db, s);
   }
   std::int64_t id(const std::string& symbol) { return store::security_with_symbol(db, symbol).id; }

@@ -1,118 +1,102 @@
-// Period resolution: which days a returns report covers.
-#include "perf/period.h"
+// Period locks: a matched statement closes an account's past until reopened.
+#include "ledger/period.h"
 
 #include <doctest/doctest.h>
 
-#include <string>
+#include "ledger_fixture.h"
+#include "store/period_store.h"
 
-#include "core/error.h"
-
-using keel::Date;
-using keel::InputError;
-using namespace keel::perf;
+using namespace keel;
+using namespace keel::testing;
 
 namespace {
 
-const Date kAsOf = Date::parse("2025-08-20");
-const Date kInception = Date::parse("2012-03-05");
-
-Period words(const char* word) {
-  PeriodRequest r;
-  r.period = word;
-  return resolve_period(r, kAsOf, kInception);
+void reconciled(LedgerFixture& f, const char* on) {
+  store::Reconciliation r;
+  r.day = day(on);
+  r.file_name = "statement.csv";
+  r.file_sha256 = std::string(64, 'a');
+  r.account_ids = {store::account_named(f.db, "Main").id};
+  store::WriteTransaction tx(f.db);
+  store::insert_reconciliation(f.db, r);
+  tx.commit();
 }
 
-std::string error_of(const PeriodRequest& r, Date as_of = kAsOf, Date inception = kInception) {
-  try {
-    resolve_period(r, as_of, inception);
-  } catch (const InputError& e) {
-    return e.what();
-  }
-  return "(no error)";
+ledger::PostRequest deposit(const char* on) {
+  ledger::PostRequest r;
+  r.kind = TxnKind::deposit;
+  r.date = day(on);
+  r.account = "Main";
+  r.amount = dec("5");
+  return r;
 }
 
 }  // namespace
 
-TEST_CASE("period words count back from the as-of day") {
-  CHECK(words("mtd").from == Date::parse("2025-08-01"));
-  CHECK(words("qtd").from == Date::parse("2025-07-01"));
-  CHECK(words("ytd").from == Date::parse("2025-01-01"));
-  CHECK(words("1y").from == Date::parse("2024-08-21"));
-  CHECK(words("3y").from == Date::parse("2022-08-21"));
-  CHECK(words("5y").from == Date::parse("2020-08-21"));
-  CHECK(words("10y").from == Date::parse("2015-08-21"));
-  CHECK(words("inception").from == kInception);
-  for (const char* w : {"mtd", "qtd", "ytd", "1y", "10y", "inception"}) {
-    CHECK(words(w).to == kAsOf);
-    CHECK_FALSE(words(w).clamped);
-  }
-  // 1y over a leap day: 2024-02-29 lies inside, so 366 days.
-  const Period y = resolve_period({std::nullopt, std::nullopt, std::nullopt, "1y"},
-                                  Date::parse("2024-12-31"), kInception);
-  CHECK(y.to - y.from + 1 == 366);
-  // Quarters: November belongs to the one starting in October.
-  const Period q = resolve_period({std::nullopt, std::nullopt, std::nullopt, "qtd"},
-                                  Date::parse("2025-11-30"), kInception);
-  CHECK(q.from == Date::parse("2025-10-01"));
+TEST_CASE("period lock: a posting dated on the reconciled day is refused, nothing changes") {
+  LedgerFixture f;
+  f.account("Main");
+  f.cash(TxnKind::deposit, "2024-01-02", "Main", "100");
+  reconciled(f, "2024-01-31");
+  const std::string before = f.dump();
+  CHECK_THROWS_WITH_AS(
+      ledger::post(f.db, deposit("2024-01-31")),
+      "a deposit dated 2024-01-31 would change 'Main', which is reconciled through 2024-01-31; "
+      "if the statement was wrong, reopen the period first: keel reopen --account "
+      "'Main' --from 2024-01-31 --reason TEXT",
+      InputError);
+  CHECK(f.dump() == before);
+  CHECK_NOTHROW(ledger::post(f.db, deposit("2024-02-01")));
 }
 
-TEST_CASE("a start before inception moves to inception") {
-  const Period p = resolve_period({std::nullopt, std::nullopt, std::nullopt, "10y"}, kAsOf,
-                                  Date::parse("2020-01-15"));
-  CHECK(p.from == Date::parse("2020-01-15"));
-  CHECK(p.clamped);
+TEST_CASE("period lock: voiding a row of a reconciled period is refused") {
+  LedgerFixture f;
+  f.account("Main");
+  const auto id = f.cash(TxnKind::deposit, "2024-01-02", "Main", "100");
+  reconciled(f, "2024-01-31");
+  const std::string before = f.dump();
+  CHECK_THROWS_WITH_AS(ledger::void_transaction(f.db, id, "typo"),
+                       doctest::Contains("voiding transaction 1 (a deposit dated 2024-01-02) "
+                                         "would change 'Main'"),
+                       InputError);
+  CHECK(f.dump() == before);
 }
 
-TEST_CASE("ranges and years") {
-  PeriodRequest none;
-  CHECK(resolve_period(none, kAsOf, kInception).from == kInception);
-  CHECK(resolve_period(none, kAsOf, kInception).to == kAsOf);
-
-  PeriodRequest range;
-  range.from = Date::parse("2020-02-01");
-  range.to = Date::parse("2020-02-29");
-  const Period p = resolve_period(range, kAsOf, kInception);
-  CHECK(p.from == Date::parse("2020-02-01"));
-  CHECK(p.to == Date::parse("2020-02-29"));
-
-  PeriodRequest from_only;
-  from_only.from = Date::parse("2025-01-10");
-  CHECK(resolve_period(from_only, kAsOf, kInception).to == kAsOf);
-
-  PeriodRequest year;
-  year.year = 2019;
-  CHECK(resolve_period(year, kAsOf, kInception).from == Date::parse("2019-01-01"));
-  CHECK(resolve_period(year, kAsOf, kInception).to == Date::parse("2019-12-31"));
-  year.year = 2025;  // the as-of year: cut at the as-of day
-  CHECK(resolve_period(year, kAsOf, kInception).to == kAsOf);
+TEST_CASE("period lock: a split dated in a reconciled period of a holder is refused") {
+  LedgerFixture f;
+  f.account("Main");
+  f.security("QRX");
+  f.cash(TxnKind::deposit, "2024-01-02", "Main", "1000");
+  f.buy("2024-01-03", "Main", "QRX", "10", "50");
+  reconciled(f, "2024-01-31");
+  CHECK_THROWS_WITH_AS(ledger::post_split(f.db, "QRX", day("2024-01-15"), dec("2")),
+                       doctest::Contains("a split of QRX dated 2024-01-15 would change 'Main'"),
+                       InputError);
+  CHECK_NOTHROW(ledger::post_split(f.db, "QRX", day("2024-02-15"), dec("2")));
 }
 
-TEST_CASE("conflicting or impossible options are refused, naming the options") {
-  PeriodRequest both;
-  both.from = Date::parse("2020-01-01");
-  both.year = 2020;
-  CHECK(error_of(both).find("--from and --year cannot be combined") != std::string::npos);
+TEST_CASE("period lock: reopening lets postings from its first day in and is recorded") {
+  LedgerFixture f;
+  f.account("Main");
+  f.cash(TxnKind::deposit, "2024-01-02", "Main", "100");
+  reconciled(f, "2024-01-31");
+  ledger::reopen(f.db, "Main", day("2024-01-20"), "statement showed a late fee");
+  const auto main_id = store::account_named(f.db, "Main").id;
+  CHECK(ledger::PeriodLocks::load(f.db).locked_through(main_id) == day("2024-01-19"));
+  CHECK_NOTHROW(ledger::post(f.db, deposit("2024-01-20")));
+  CHECK_THROWS_AS(ledger::post(f.db, deposit("2024-01-19")), InputError);
+  const auto events = store::period_events(f.db, main_id);
+  REQUIRE(events.size() == 2);
+  CHECK(events[1].kind == store::PeriodEvent::Kind::reopened);
+  CHECK(events[1].day == day("2024-01-20"));
+  // A later match closes the period again.
+  reconciled(f, "2024-01-31");
+  CHECK(ledger::PeriodLocks::load(f.db).locked_through(main_id) == day("2024-01-31"));
+}
 
-  PeriodRequest year_and_word;
-  year_and_word.year = 2020;
-  year_and_word.period = "ytd";
-  CHECK(error_of(year_and_word).find("--year and --period") != std::string::npos);
-
-  PeriodRequest backwards;
-  backwards.from = Date::parse("2020-03-01");
-  backwards.to = Date::parse("2020-02-01");
-  CHECK(error_of(backwards) == "--from 2020-03-01 is after --to 2020-02-01");
-
-  PeriodRequest unknown;
-  unknown.period = "2y";
-  CHECK(error_of(unknown).find("--period: '2y' is not a period") != std::string::npos);
-
-  PeriodRequest future;
-  future.year = 2026;
-  CHECK(error_of(future).find("--year 2026: starts after the as-of day 2025-08-20") !=
-        std::string::npos);
-
-  PeriodRequest early;
-  early.year = 2011;
-  CHECK(error_of(early).find("before the first transaction day 2012-03-05") != std::string::npos);
+TEST_CASE("period lock: reopening an account with nothing reconciled is refused") {
+  LedgerFixture f;
+  f.account("Main");
+  CHECK_THROWS_WITH_AS(ledger::reopen(f.db, "Main", day("2024-01-20"), "why"),
+                       "--account: 'Main' has no reconciled period to reopen", InputError);
 }

@@ -32,6 +32,7 @@ struct Small : LedgerFixture {
     s.name = symbol + " (invented)";
     s.kind = kind;
     s.sector = sector;
+    s.currency = "USD";
     store::insert_security(db, s);
   }
   std::int64_t id(const char* symbol) { return store::security_with_symbol(db, symbol).id; }
@@ -137,7 +138,10 @@ TEST_CASE("inputs: quotes at the latest close, with notes for old and missing on
   std::vector<std::string> notes;
   const auto q = in.quotes(
       view, day("2024-05-31"), t, {m.id("CEDAR")},
-      [](std::int64_t) { return std::optional<Decimal>(dec("7.5")); }, notes);
+      [](std::int64_t) {
+        return std::optional<Inputs::Trade>({day("2024-01-02"), dec("7.5")});
+      },
+      notes);
   CHECK(q.at(m.id("ALDER")).price == Decimal(10));
   CHECK(q.at(m.id("BIRCH")).price == Decimal(20));
   CHECK(q.at(m.id("CEDAR")).price == dec("7.5"));

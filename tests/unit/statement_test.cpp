@@ -4,10 +4,12 @@
 #include "report/statement.h"
 
 #include <doctest/doctest.h>
+#include <fmt/format.h>
 #include <unistd.h>
 
 #include <filesystem>
 #include <fstream>
+#include <set>
 #include <sstream>
 
 #include "ledger_fixture.h"
@@ -339,6 +341,17 @@ TEST_CASE("statement: a year before the ledger's first day is refused") {
         "--year: ends on 2023-12-31, before the first transaction day 2024-03-01");
 }
 
+TEST_CASE("regression: a statement of years 1 to 5 failed with an internal date-range message") {
+  StatementLedger k;
+  report::StatementRequest r;
+  for (const int year : {0, 1, 4, 5, 10000}) {
+    r.year = year;
+    CHECK(error_of(k, r) == fmt::format("--year: {} is outside the years a statement covers (6 to "
+                                        "9999; it looks back 5 years)",
+                                        year));
+  }
+}
+
 TEST_CASE("statement: a benchmark without a close before the year is refused") {
   StatementLedger k;
   report::StatementRequest r;
@@ -358,8 +371,9 @@ TEST_CASE("statement: a ledger whose accounts keep different currencies needs --
   report::StatementRequest r;
   r.year = 2025;
   CHECK(error_of(k, r) ==
-        "the ledger's accounts keep GBP, USD; keel does not convert currencies, so give --account "
-        "for a statement of one account");
+        "statement: the accounts keep different currencies (Harbor Pension: USD; Harbor Sterling: "
+        "GBP; Harbor Taxable: USD) and keel does not convert between them yet; give --account for "
+        "one account");
 }
 
 TEST_CASE("statement: building it changes nothing in the ledger") {
@@ -392,7 +406,7 @@ TEST_CASE("statement forms: terminal text stays within 100 columns") {
 TEST_CASE("statement forms: HTML escapes user text and refers to nothing outside") {
   StatementLedger k;
   k.account("<b>Tom & \"Jerry\"</b>");
-  const auto html = report::statement_html(k.statement());
+  const auto html = report::statement_html(k.statement(), report::Paper::a4);
   CHECK(html.find("&lt;b&gt;Tom &amp; &quot;Jerry&quot;&lt;/b&gt;") != std::string::npos);
   CHECK(html.find("<b>Tom") == std::string::npos);
   CHECK(html.find("http") == std::string::npos);
@@ -408,7 +422,7 @@ TEST_CASE("statement forms: CSV writes one file per section and refuses a missin
   const auto dir =
       std::filesystem::temp_directory_path() / ("keel-csv-" + std::to_string(::getpid()));
   std::filesystem::remove_all(dir);
-  report::write_statement_csv(s, dir);
+  report::write_statement_csv(s, dir, "--csv");
   for (const char* key :
        {"summary", "performance", "monthly", "holdings", "realized", "income", "cautions"})
     CHECK(std::filesystem::exists(dir / (std::string(key) + ".csv")));
@@ -419,6 +433,99 @@ TEST_CASE("statement forms: CSV writes one file per section and refuses a missin
   CHECK(header == "item,amount\r");
   CHECK(first == "opening value (close of 2024-12-31),10495\r");
   std::filesystem::remove_all(dir);
-  CHECK_THROWS_WITH_AS(report::write_statement_csv(s, dir / "a" / "b"),
+  CHECK_THROWS_WITH_AS(report::write_statement_csv(s, dir / "a" / "b", "--csv"),
                        doctest::Contains("cannot create the folder"), InputError);
+}
+
+TEST_CASE("statement forms: every formula gives its total exactly from the section's cells") {
+  StatementLedger k;
+  std::size_t checked = 0;
+  for (const auto& sec : report::statement_sections(k.statement())) {
+    for (const auto& f : sec.formulas) {
+      Decimal value;
+      if (f.kind == report::Formula::Kind::difference) {
+        value = sec.rows[f.first][f.column].number - sec.rows[f.last][f.column].number;
+      } else {
+        for (std::size_t r = f.first; r <= f.last; ++r)
+          if (f.kind == report::Formula::Kind::sum || sec.rows[r][f.if_column].text == f.if_text)
+            value += sec.rows[r][f.column].number;
+      }
+      CHECK_MESSAGE(value == sec.rows[f.row][f.column].number, sec.key, " row ", f.row);
+      ++checked;
+    }
+  }
+  // summary 2, holdings 3, realized 9, income 3
+  CHECK(checked == 17);
+}
+
+TEST_CASE(
+    "statement forms: the summary's formulas add the pieces and subtract for the difference") {
+  StatementLedger k;
+  const auto sections = report::statement_sections(k.statement());
+  const auto& summary = sections.front();
+  REQUIRE(summary.formulas.size() == 2);
+  CHECK(summary.formulas[0].kind == report::Formula::Kind::sum);
+  CHECK(summary.formulas[0].first == 0);
+  CHECK(summary.formulas[0].last == 11);
+  CHECK(summary.rows[summary.formulas[0].row][0].text == "opening value plus the pieces");
+  CHECK(summary.formulas[1].kind == report::Formula::Kind::difference);
+  CHECK(summary.rows[summary.formulas[1].row][0].text == "difference");
+}
+
+TEST_CASE("statement forms: HTML is laid out for the paper asked for") {
+  StatementLedger k;
+  const auto s = k.statement();
+  CHECK(report::statement_html(s, report::Paper::a4).find("@page { size: A4;") !=
+        std::string::npos);
+  CHECK(report::statement_html(s, report::Paper::letter).find("@page { size: letter;") !=
+        std::string::npos);
+}
+
+TEST_CASE("statement forms: the running title cannot end the style element") {
+  StatementLedger k;
+  auto s = k.statement();
+  s.scope = "</style><b>\"x\\";
+  const auto html = report::statement_html(s, report::Paper::a4);
+  CHECK(html.find("</style><b>") == std::string::npos);
+  CHECK(html.find("@top-left { content: \"Statement 2025 \u2014 \\3c /style\\3e \\3c b\\3e "
+                  "\\\"x\\\\\";") != std::string::npos);
+}
+
+TEST_CASE("statement forms: HTML date cells never wrap, dates inside text neither") {
+  StatementLedger k;
+  const auto html = report::statement_html(k.statement(), report::Paper::a4);
+  CHECK(html.find(".num, .date { white-space: nowrap; }") != std::string::npos);
+  CHECK(html.find("<td class=\"date\">2024-03-04</td>") != std::string::npos);
+  CHECK(html.find("opening value (close of <span class=\"date\">2024-12-31</span>)") !=
+        std::string::npos);
+}
+
+TEST_CASE("statement forms: the allocation chart has one colour, not the portfolio's") {
+  StatementLedger k;
+  const auto html = report::statement_html(k.statement(), report::Paper::a4);
+  const auto start = html.find("aria-label=\"Allocation at the end of the period\"");
+  REQUIRE(start != std::string::npos);
+  const auto chart = html.substr(start, html.find("</svg>", start) - start);
+  std::set<std::string> fills;
+  for (auto at = chart.find("fill=\""); at != std::string::npos; at = chart.find("fill=\"", at + 1))
+    fills.insert(chart.substr(at + 6, 7));
+  CHECK(fills == std::set<std::string>{"#5b6b76"});
+  CHECK(chart.find("#b5562b") == std::string::npos);  // the portfolio's copper
+  CHECK(chart.find(">cash</text>") != std::string::npos);
+}
+
+TEST_CASE("statement paper: a4 and letter, any case; anything else is refused") {
+  CHECK(report::parse_paper("a4") == report::Paper::a4);
+  CHECK(report::parse_paper("LETTER") == report::Paper::letter);
+  CHECK_THROWS_WITH_AS(report::parse_paper("legal"),
+                       "'legal' is not a paper size; expected a4 or letter", InputError);
+}
+
+// Sizes as glibc's locale data give them (LC_PAPER height and width in mm):
+// 297 x 210 for A4 (ISO 216), 279 x 216 for Letter (8.5 x 11 in, rounded).
+TEST_CASE("statement paper: the locale's size picks letter only for 279 x 216 mm") {
+  CHECK(report::paper_of_size(279, 216) == report::Paper::letter);
+  CHECK(report::paper_of_size(297, 210) == report::Paper::a4);
+  CHECK(report::paper_of_size(356, 216) == report::Paper::a4);  // legal: A4, the default
+  CHECK(report::paper_of_size(0, 0) == report::Paper::a4);
 }

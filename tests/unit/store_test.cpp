@@ -33,7 +33,7 @@ std::string file_bytes(const fs::path& p) {
 TEST_CASE("store: a new ledger is migrated to the latest schema version") {
   ScratchDir dir;
   store::OpenOptions options;
-  options.create = true;
+  options.access = store::Access::create;
   auto db = store::Database::open(dir.path / "ledger.db", options);
   CHECK(db.schema_version() == store::Database::latest_schema_version());
   CHECK(store::Database::latest_schema_version() == store::migrations().back().version);
@@ -47,7 +47,7 @@ TEST_CASE("store: migrations are numbered from 1 without gaps") {
 TEST_CASE("store: a new ledger and its folder are private to the owner") {
   ScratchDir dir;
   store::OpenOptions options;
-  options.create = true;
+  options.access = store::Access::create;
   const fs::path file = dir.path / "sub" / "ledger.db";
   store::Database::open(file, options);
   struct stat st {};
@@ -82,7 +82,7 @@ TEST_CASE("store: a ledger from a newer keel is refused and left untouched") {
 TEST_CASE("store: a ledger others can write to is refused unless overridden") {
   ScratchDir dir;
   store::OpenOptions options;
-  options.create = true;
+  options.access = store::Access::create;
   const fs::path file = dir.path / "shared.db";
   store::Database::open(file, options);
   ::chmod(file.c_str(), 0666);
@@ -113,7 +113,7 @@ TEST_CASE("store: another program's SQLite database is refused and left untouche
   ::chmod(file.c_str(), 0600);
   const std::string before = file_bytes(file);
   store::OpenOptions options;
-  options.create = true;
+  options.access = store::Access::create;
   CHECK_THROWS_WITH_AS(
       store::Database::open(file, options),
       (file.string() + " is an SQLite database but not a keel ledger; choose another with --db")
@@ -131,4 +131,54 @@ TEST_CASE("store: a write transaction rolls back unless committed") {
         "INSERT INTO account (name, currency, created_at) VALUES ('Scratch', 'EUR', 'now')");
   }
   CHECK(db.sql().execAndGet("SELECT count(*) FROM account").getInt() == 0);
+}
+
+TEST_CASE("store: an empty file is not a ledger: refused by name and left empty") {
+  ScratchDir dir;
+  const fs::path file = dir.path / "empty.db";
+  std::ofstream(file).close();
+  ::chmod(file.c_str(), 0600);
+  for (const auto access : {store::Access::read, store::Access::write}) {
+    store::OpenOptions options;
+    options.access = access;
+    CHECK_THROWS_WITH_AS(
+        store::Database::open(file, options),
+        (file.string() + " is an empty file, not a keel ledger; only 'keel init' makes a ledger; "
+                         "choose another with --db")
+            .c_str(),
+        LedgerError);
+  }
+  CHECK(fs::file_size(file) == 0);
+  for (const char* suffix : {"-wal", "-shm", "-journal"})
+    CHECK_FALSE(fs::exists(file.string() + suffix));
+}
+
+TEST_CASE("store: init makes a ledger of an empty file") {
+  ScratchDir dir;
+  const fs::path file = dir.path / "empty.db";
+  std::ofstream(file).close();
+  ::chmod(file.c_str(), 0600);
+  store::OpenOptions options;
+  options.access = store::Access::create;
+  auto db = store::Database::open(file, options);
+  CHECK(db.schema_version() == store::Database::latest_schema_version());
+}
+
+TEST_CASE("store: a write to a ledger file replaced since it was opened is refused") {
+  ScratchDir dir;
+  const fs::path file = dir.path / "ledger.db";
+  store::OpenOptions create;
+  create.access = store::Access::create;
+  store::Database::open(file, create);
+  auto db = store::Database::open(file);
+  CHECK_FALSE(db.file_replaced());
+  fs::rename(file, dir.path / "aside.db");
+  fs::copy_file(dir.path / "aside.db", file);
+  CHECK(db.file_replaced());
+  CHECK_THROWS_WITH_AS(store::WriteTransaction{db},
+                       ("ledger " + file.string() +
+                        " was replaced or moved while this command ran (by 'keel restore'?); "
+                        "nothing was changed; run the command again")
+                           .c_str(),
+                       LedgerError);
 }

@@ -1,0 +1,90 @@
+// How a posted transaction is shown, the same in `history` and `void`: one
+// table row (or JSON object) with its kind, figures, ref and note; a row out
+// of the books is marked "[void]", a void says what it voids.
+#pragma once
+
+#include <fmt/format.h>
+
+#include <map>
+#include <string>
+#include <unordered_set>
+#include <vector>
+
+#include "core/json.h"
+#include "model/records.h"
+#include "report/table.h"
+#include "store/ledger_store.h"
+
+namespace keel::cli {
+
+struct LedgerNames {
+  std::map<std::int64_t, std::string> accounts, symbols;
+  static LedgerNames load(store::Database& db) {
+    LedgerNames names;
+    for (const auto& a : store::list_accounts(db)) names.accounts[a.id] = a.name;
+    for (const auto& s : store::list_securities(db)) names.symbols[s.id] = s.symbol;
+    return names;
+  }
+  std::string account(std::int64_t id) const { return find(accounts, id); }
+  std::string symbol(const std::optional<std::int64_t>& id) const {
+    return id ? find(symbols, *id) : std::string();
+  }
+
+ private:
+  static std::string find(const std::map<std::int64_t, std::string>& m, std::int64_t id) {
+    const auto it = m.find(id);
+    return it == m.end() ? std::string() : it->second;
+  }
+};
+
+inline report::Table history_table() {
+  using report::Align;
+  return report::Table({{"id", Align::right},
+                        {"date"},
+                        {"account"},
+                        {"kind"},
+                        {"symbol"},
+                        {"quantity", Align::right},
+                        {"price", Align::right},
+                        {"amount", Align::right},
+                        {"fee", Align::right},
+                        {"ref"},
+                        {"note"}});
+}
+
+inline std::string history_opt(const std::optional<Decimal>& d) {
+  return d ? d->str() : std::string();
+}
+
+inline std::vector<std::string> history_cells(const Transaction& x, const LedgerNames& names,
+                                              const std::unordered_set<std::int64_t>& voided) {
+  std::string note = x.note.value_or("");
+  if (x.voids_id) note = fmt::format("voids {}: {}", *x.voids_id, note);
+  if (voided.count(x.id)) note = "[void] " + note;
+  if (x.link_id) note += fmt::format(" (pair of {})", *x.link_id);
+  return {std::to_string(x.id),
+          x.date.str(),
+          names.account(x.account_id),
+          std::string(to_string(x.kind)),
+          names.symbol(x.security_id),
+          history_opt(x.quantity),
+          history_opt(x.price),
+          history_opt(x.amount),
+          x.fee.is_zero() ? "" : x.fee.str(),
+          x.ref.value_or(""),
+          note};
+}
+
+inline void history_json(JsonWriter& j, const Transaction& x, const LedgerNames& names,
+                         const std::unordered_set<std::int64_t>& voided) {
+  j.begin_object().member("id", static_cast<long long>(x.id)).member("date", x.date.str());
+  j.member("account", names.account(x.account_id));
+  j.member("kind", std::string(to_string(x.kind))).member("symbol", names.symbol(x.security_id));
+  j.member("quantity", history_opt(x.quantity)).member("price", history_opt(x.price));
+  j.member("amount", history_opt(x.amount)).member("fee", x.fee);
+  j.member("ref", x.ref.value_or("")).member("note", x.note.value_or(""));
+  j.member("voided", voided.count(x.id) > 0);
+  j.member("voids", x.voids_id).member("link", x.link_id).end_object();
+}
+
+}  // namespace keel::cli

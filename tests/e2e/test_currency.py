@@ -1,0 +1,71 @@
+"""The ledger's own currency, and reports that never add amounts of two currencies.
+
+keel does not convert between currencies yet. So: no account or security silently becomes
+USD; the ledger's currency is the one given to `keel init --currency`, else the first
+account's; accounts and securities added without --currency take it; and a report adding up
+accounts that keep different currencies is refused, naming each, until --account narrows it.
+Refusals change nothing (SHA-256 of every table's rows before and after).
+"""
+import hashlib
+import os
+import sqlite3
+import sys
+
+sys.path.insert(0, os.path.dirname(__file__))
+from keel_cli import SOURCE, Ledger, check, equal  # noqa: E402
+
+# The newest schema version: one migration file per version.
+SCHEMA = len([f for f in os.listdir(os.path.join(SOURCE, "migrations")) if f.endswith(".sql")])
+
+
+def digest(path):
+    con = sqlite3.connect(f"file:{path}?mode=ro", uri=True)
+    h = hashlib.sha256()
+    for (name,) in con.execute("SELECT name FROM sqlite_master WHERE type = 'table' ORDER BY name"):
+        for row in con.execute(f'SELECT * FROM "{name}" ORDER BY 1'):
+            h.update(repr((name, row)).encode())
+    con.close()
+    return h.hexdigest()
+
+
+def refused(led, args, message):
+    before = digest(led.path)
+    equal(led.fails(*args), message, " ".join(args))
+    equal(digest(led.path), before, f"{' '.join(args)} changed the ledger")
+
+
+# No currency at init: the first account gives one; until then nothing defaults to USD.
+led = Ledger(currency=None)
+equal(led.ok("init"), f"ledger ready at {led.path} (schema version {SCHEMA}, currency: the first "
+      "account's)\n", "init without a currency")
+NO_CURRENCY = ("this ledger has no currency yet; give --currency (such as --currency EUR), or "
+               "record one for the ledger with 'keel init --currency CODE'")
+refused(led, ["account", "add", "Main"], f"keel: error: account add: {NO_CURRENCY}")
+refused(led, ["security", "add", "ZQA", "--name", "Zeqa Alloys", "--kind", "stock"],
+        f"keel: error: security add: {NO_CURRENCY}")
+equal(led.ok("account", "add", "Main", "--currency", "eur"), "account 1 'Main' added (EUR, fifo)\n",
+      "the first account")
+equal(led.ok("init"), f"ledger ready at {led.path} (schema version {SCHEMA}, currency EUR)\n",
+      "the first account's currency became the ledger's")
+equal(led.ok("account", "add", "Second"), "account 2 'Second' added (EUR, fifo)\n",
+      "an account without --currency takes the ledger's")
+led.ok("security", "add", "ZQA", "--name", "Zeqa Alloys", "--kind", "stock")
+equal([s["currency"] for s in led.json("security", "list")], ["EUR"], "a security takes it too")
+refused(led, ["init", "--currency", "USD"],
+        "keel: error: --currency: the ledger's currency is EUR; it is set once and never changed "
+        "(keel does not convert amounts already booked)")
+
+# Accounts in two currencies: every report that adds them up refuses, naming each account.
+led.ok("account", "add", "Dollar", "--currency", "USD")
+led.ok("record", "deposit", "--date", "2024-01-02", "--account", "Main", "--amount", "100")
+led.ok("record", "deposit", "--date", "2024-01-02", "--account", "Dollar", "--amount", "100")
+MIXED = ("the accounts keep different currencies (Dollar: USD; Main: EUR; Second: EUR) and keel "
+         "does not convert between them yet; give --account for one account")
+for args, what in ((["holdings", "--as-of", "2024-12-31"], "holdings"),
+                   (["returns", "--from", "2024-01-02", "--to", "2024-12-31"], "returns"),
+                   (["statement", "--year", "2024"], "statement")):
+    refused(led, args, f"keel: error: {what}: {MIXED}")
+equal(led.json("holdings", "--as-of", "2024-12-31", "--account", "Dollar")["total_value"], "100",
+      "one account at a time")
+print("currency: no silent USD; the first account's currency is the ledger's; three reports "
+      "refuse two currencies")
