@@ -97,6 +97,19 @@ void run_json(JsonWriter& j, std::string& text, const Emit& emit, const backtest
   j.end_object();
 }
 
+// The closing notes (when there are any) and cautions of a back-test or a signal check.
+std::string notes_and_cautions(const std::vector<std::string>& notes,
+                               const std::vector<std::string>& cautions) {
+  std::string s;
+  if (!notes.empty()) {
+    s += "\nNotes:\n";
+    for (const auto& n : notes) s += "  " + printable(n) + "\n";
+  }
+  s += "\nCautions:\n";
+  for (const auto& c : cautions) s += "  - " + c + "\n";
+  return s;
+}
+
 }  // namespace
 
 std::string backtest_json(const backtest::Result& r) {
@@ -209,13 +222,7 @@ std::string backtest_text(const backtest::Result& r, bool colour) {
         w.against, w.beat, w.windows, 100.0 * w.beat / w.windows, pct(w.median_excess),
         pct(w.worst_excess), pct(w.best_excess));
   }
-  if (!r.notes.empty()) {
-    s += "\nNotes:\n";
-    for (const auto& n : r.notes) s += "  " + printable(n) + "\n";
-  }
-  s += "\nCautions:\n";
-  for (const auto& c : r.cautions) s += "  - " + c + "\n";
-  return s;
+  return s + notes_and_cautions(r.notes, r.cautions);
 }
 
 std::string backtest_curve_csv(const backtest::Result& r) {
@@ -275,13 +282,7 @@ std::string signal_text(const backtest::SignalResult& r, bool colour) {
                h.t_stat ? fmt::format("{:.2f}", *h.t_stat) : "n/a", pct(h.share_expected_sign),
                pct(h.mean_spread)});
   s += t.render({colour});
-  if (!r.notes.empty()) {
-    s += "\nNotes:\n";
-    for (const auto& n : r.notes) s += "  " + printable(n) + "\n";
-  }
-  s += "\nCautions:\n";
-  for (const auto& c : r.cautions) s += "  - " + c + "\n";
-  return s;
+  return s + notes_and_cautions(r.notes, r.cautions);
 }
 
 }  // namespace keel::report

@@ -26,13 +26,14 @@ struct Small : LedgerFixture {
                    {"BIRCH", "2024-03-31", "2024-04-30", "12"},
                    {"CEDAR", "2024-03-31", "2024-04-30", "9"}});
   }
-  void add(const std::string& symbol, SecurityKind kind, const std::string& sector) {
+  void add(const std::string& symbol, SecurityKind kind, const std::string& sector,
+           const char* currency = "USD") {
     Security s;
     s.symbol = symbol;
     s.name = symbol + " (invented)";
     s.kind = kind;
     s.sector = sector;
-    s.currency = "USD";
+    s.currency = currency;
     store::insert_security(db, s);
   }
   std::int64_t id(const char* symbol) { return store::security_with_symbol(db, symbol).id; }
@@ -150,4 +151,53 @@ TEST_CASE("inputs: quotes at the latest close, with notes for old and missing on
         std::vector<std::string>{
             "BIRCH: the latest close on or before 2024-05-31 is from 2024-05-10",
             "CEDAR: no close on or before 2024-05-31; valued at its last trade price 7.5"});
+}
+
+TEST_CASE("inputs: a universe in two currencies is refused while nothing sets the rule's") {
+  Small m;
+  m.add("ELM", SecurityKind::stock, "Tools", "EUR");
+  const market::DayView view(m.db);
+  const Rule r = rule("");
+  std::string message;
+  try {
+    const Inputs in(r, view);
+  } catch (const InputError& e) {
+    message = e.what();
+  }
+  CHECK(message.find("the universe holds stocks priced in EUR, USD; keel does not convert "
+                     "between currencies yet: narrow it to one with scope.sector or "
+                     "scope.symbols") != std::string::npos);
+}
+
+TEST_CASE("inputs: stocks priced in another than the rule's currency leave the universe, noted") {
+  Small m;
+  m.add("ELM", SecurityKind::stock, "Tools", "EUR");
+  const market::DayView view(m.db);
+  const Rule r = rule("");
+  const Inputs in(r, view, "USD");
+  CHECK(in.universe() == std::vector<std::int64_t>{m.id("ALDER"), m.id("BIRCH"), m.id("CEDAR")});
+  REQUIRE(in.currency());
+  CHECK(*in.currency() == "USD");
+  CHECK(in.notes() ==
+        std::vector<std::string>{"1 stock priced in other currencies than USD is left out of the "
+                                 "universe (keel does not convert between currencies yet)"});
+}
+
+TEST_CASE("inputs: a name traded after its latest close is quoted at the trade's price") {
+  Small m;
+  const market::DayView view(m.db);
+  const Rule r = rule("");
+  const Inputs in(r, view);
+  const std::vector<Target> t{{m.id("BIRCH"), "BIRCH", dec("1"), false, std::nullopt, false, ""}};
+  std::vector<std::string> notes;
+  const auto q = in.quotes(
+      view, day("2024-05-31"), t, {},
+      [](std::int64_t) {
+        return std::optional<Inputs::Trade>({day("2024-05-20"), dec("21.5")});
+      },
+      notes);
+  CHECK(q.at(m.id("BIRCH")).price == dec("21.5"));
+  CHECK(q.at(m.id("BIRCH")).tradable);
+  CHECK(notes == std::vector<std::string>{"BIRCH: valued at its trade price 21.5 of 2024-05-20, "
+                                          "later than its latest close (2024-05-10)"});
 }
