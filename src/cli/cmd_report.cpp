@@ -3,16 +3,15 @@
 
 #include <map>
 #include <memory>
-#include <nlohmann/json.hpp>
 
 #include "cli/context.h"
 #include "cli/history_rows.h"
 #include "cli/options.h"
-#include "cli/print.h"
 #include "core/error.h"
-#include "io/json.h"
+#include "core/json.h"
 #include "ledger/holdings.h"
 #include "ledger/posting.h"
+#include "report/format.h"
 #include "report/gain_rows.h"
 #include "report/table.h"
 #include "store/ledger_store.h"
@@ -20,12 +19,17 @@
 namespace keel::cli {
 namespace {
 
-using Json = nlohmann::ordered_json;
 using report::Align;
+using report::money;
 using report::Table;
 
-void print_json(const Json& j) {
-  out(io::dump_json(j) + "\n");
+// Runs `write` on a JSON writer and prints the document.
+template <typename Write>
+void print_json(Write&& write) {
+  std::string text;
+  JsonWriter j(text);
+  write(j);
+  out(text + "\n");
 }
 std::string percent(const Decimal& part, const Decimal& whole) {
   if (whole.is_zero()) return "";
@@ -51,22 +55,20 @@ void add_holdings(CLI::App& app, Context& ctx) {
     const auto h =
         ledger::holdings(db, date_option_or_today(o->as_of, "--as-of"), text_option(o->account));
     if (o->json) {
-      Json j;
-      j["as_of"] = h.as_of.str();
-      j["positions"] = Json::array();
-      for (const auto& p : h.positions)
-        j["positions"].push_back({{"account", p.account},
-                                  {"symbol", p.symbol},
-                                  {"quantity", p.quantity.str()},
-                                  {"cost_basis", p.cost_basis.str()},
-                                  {"price", p.price.str()},
-                                  {"market_value", p.market_value.str()},
-                                  {"unrealized_gain", p.unrealized_gain.str()}});
-      j["cash"] = Json::array();
-      for (const auto& c : h.cash)
-        j["cash"].push_back({{"account", c.account}, {"amount", c.amount.str()}});
-      j["total_value"] = h.total_value.str();
-      print_json(j);
+      print_json([&](JsonWriter& j) {
+        j.begin_object().member("as_of", h.as_of.str());
+        j.key("positions").begin_array();
+        for (const auto& p : h.positions) {
+          j.begin_object().member("account", p.account).member("symbol", p.symbol);
+          j.member("quantity", p.quantity).member("cost_basis", p.cost_basis);
+          j.member("price", p.price).member("market_value", p.market_value);
+          j.member("unrealized_gain", p.unrealized_gain).end_object();
+        }
+        j.end_array().key("cash").begin_array();
+        for (const auto& c : h.cash)
+          j.begin_object().member("account", c.account).member("amount", c.amount).end_object();
+        j.end_array().member("total_value", h.total_value).end_object();
+      });
       return;
     }
     Table t({{"account"},
@@ -106,15 +108,16 @@ void add_lots(CLI::App& app, Context& ctx) {
     const auto lots =
         ledger::open_lots(db, date_option_or_today(o->as_of, "--as-of"), text_option(o->account));
     if (o->json) {
-      Json j = Json::array();
-      for (const auto& l : lots)
-        j.push_back({{"account", l.account},
-                     {"symbol", l.symbol},
-                     {"lot", l.lot.lot_id},
-                     {"acquired", l.lot.acquired.str()},
-                     {"quantity", l.lot.quantity.str()},
-                     {"cost", l.lot.cost.str()}});
-      print_json(j);
+      print_json([&](JsonWriter& j) {
+        j.begin_array();
+        for (const auto& l : lots) {
+          j.begin_object().member("account", l.account).member("symbol", l.symbol);
+          j.member("lot", static_cast<long long>(l.lot.lot_id));
+          j.member("acquired", l.lot.acquired.str()).member("quantity", l.lot.quantity);
+          j.member("cost", l.lot.cost).end_object();
+        }
+        j.end_array();
+      });
       return;
     }
     Table t({{"account"},
@@ -147,24 +150,21 @@ void add_gains(CLI::App& app, Context& ctx) {
         db, o->year ? std::optional<int>(o->year) : std::nullopt, text_option(o->account));
     const auto totals = ledger::totals_by_term(gains);
     if (o->json) {
-      Json j;
-      j["gains"] = Json::array();
-      for (const auto& g : gains)
-        j["gains"].push_back({{"account", g.account},
-                              {"symbol", g.symbol},
-                              {"lot", g.part.lot_id},
-                              {"sell", g.part.sell_txn_id},
-                              {"acquired", g.part.acquired.str()},
-                              {"disposed", g.part.disposed.str()},
-                              {"quantity", g.part.quantity.str()},
-                              {"proceeds", g.part.proceeds.str()},
-                              {"cost", g.part.cost.str()},
-                              {"gain", g.part.gain().str()},
-                              {"term", g.long_term ? "long" : "short"}});
-      j["total_short"] = totals.short_term.gain.str();
-      j["total_long"] = totals.long_term.gain.str();
-      j["total"] = totals.all().gain.str();
-      print_json(j);
+      print_json([&](JsonWriter& j) {
+        j.begin_object().key("gains").begin_array();
+        for (const auto& g : gains) {
+          j.begin_object().member("account", g.account).member("symbol", g.symbol);
+          j.member("lot", static_cast<long long>(g.part.lot_id));
+          j.member("sell", static_cast<long long>(g.part.sell_txn_id));
+          j.member("acquired", g.part.acquired.str()).member("disposed", g.part.disposed.str());
+          j.member("quantity", g.part.quantity).member("proceeds", g.part.proceeds);
+          j.member("cost", g.part.cost).member("gain", g.part.gain());
+          j.member("term", g.long_term ? "long" : "short").end_object();
+        }
+        j.end_array();
+        j.member("total_short", totals.short_term.gain).member("total_long", totals.long_term.gain);
+        j.member("total", totals.all().gain).end_object();
+      });
       return;
     }
     Table t(report::gain_columns("term"));
@@ -198,20 +198,20 @@ void add_history(CLI::App& app, Context& ctx) {
     const auto names = LedgerNames::load(db);
     const auto txns = store::list_transactions(db);
     const auto voided = voided_ids(txns);
-    Json j = Json::array();
+    std::string json;
+    JsonWriter j(json);
+    j.begin_array();
     Table t = history_table();
     for (const auto& x : txns) {
       if (only && x.account_id != *only) continue;
       if (x.date < from || x.date > to) continue;
       if (o->json)
-        j.push_back(history_json(x, names, voided));
+        history_json(j, x, names, voided);
       else
         t.add_row(history_cells(x, names, voided));
     }
-    if (o->json)
-      print_json(j);
-    else
-      out(t.render({ctx.colour()}));
+    j.end_array();
+    out(o->json ? json + "\n" : t.render({ctx.colour()}));
   });
 }
 
@@ -222,18 +222,19 @@ void add_lists(CLI::App& app, Context& ctx) {
   add_json_flag(*accounts, *json_accounts);
   accounts->callback([&ctx, json_accounts] {
     auto db = ctx.open_ledger();
-    Json j = Json::array();
+    std::string json;
+    JsonWriter j(json);
+    j.begin_array();
     Table t({{"id", Align::right}, {"name"}, {"currency"}, {"basis"}, {"negative cash"}});
     for (const auto& a : store::list_accounts(db)) {
-      j.push_back({{"id", a.id},
-                   {"name", a.name},
-                   {"currency", a.currency},
-                   {"basis", to_string(a.basis)},
-                   {"allow_negative_cash", a.allow_negative_cash}});
+      j.begin_object().member("id", static_cast<long long>(a.id)).member("name", a.name);
+      j.member("currency", a.currency).member("basis", std::string(to_string(a.basis)));
+      j.member("allow_negative_cash", a.allow_negative_cash).end_object();
       t.add_row({std::to_string(a.id), a.name, a.currency, std::string(to_string(a.basis)),
                  a.allow_negative_cash ? "allowed" : "no"});
     }
-    *json_accounts ? print_json(j) : out(t.render({ctx.colour()}));
+    j.end_array();
+    out(*json_accounts ? json + "\n" : t.render({ctx.colour()}));
   });
 
   auto json_securities = std::make_shared<bool>(false);
@@ -242,19 +243,19 @@ void add_lists(CLI::App& app, Context& ctx) {
   add_json_flag(*securities, *json_securities);
   securities->callback([&ctx, json_securities] {
     auto db = ctx.open_ledger();
-    Json j = Json::array();
+    std::string json;
+    JsonWriter j(json);
+    j.begin_array();
     Table t({{"symbol"}, {"name"}, {"kind"}, {"currency"}, {"lot size", Align::right}, {"sector"}});
     for (const auto& s : store::list_securities(db)) {
-      j.push_back({{"symbol", s.symbol},
-                   {"name", s.name},
-                   {"kind", to_string(s.kind)},
-                   {"currency", s.currency},
-                   {"lot_size", s.lot_size.str()},
-                   {"sector", s.sector ? Json(*s.sector) : Json()}});
+      j.begin_object().member("symbol", s.symbol).member("name", s.name);
+      j.member("kind", std::string(to_string(s.kind))).member("currency", s.currency);
+      j.member("lot_size", s.lot_size).member("sector", s.sector).end_object();
       t.add_row({s.symbol, s.name, std::string(to_string(s.kind)), s.currency, s.lot_size.str(),
                  s.sector.value_or("")});
     }
-    *json_securities ? print_json(j) : out(t.render({ctx.colour()}));
+    j.end_array();
+    out(*json_securities ? json + "\n" : t.render({ctx.colour()}));
   });
 }
 

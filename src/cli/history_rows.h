@@ -6,11 +6,11 @@
 #include <fmt/format.h>
 
 #include <map>
-#include <nlohmann/json.hpp>
 #include <string>
 #include <unordered_set>
 #include <vector>
 
+#include "core/json.h"
 #include "model/records.h"
 #include "report/table.h"
 #include "store/ledger_store.h"
@@ -75,23 +75,16 @@ inline std::vector<std::string> history_cells(const Transaction& x, const Ledger
           note};
 }
 
-inline nlohmann::ordered_json history_json(const Transaction& x, const LedgerNames& names,
-                                           const std::unordered_set<std::int64_t>& voided) {
-  using Json = nlohmann::ordered_json;
-  return {{"id", x.id},
-          {"date", x.date.str()},
-          {"account", names.account(x.account_id)},
-          {"kind", to_string(x.kind)},
-          {"symbol", names.symbol(x.security_id)},
-          {"quantity", history_opt(x.quantity)},
-          {"price", history_opt(x.price)},
-          {"amount", history_opt(x.amount)},
-          {"fee", x.fee.str()},
-          {"ref", x.ref.value_or("")},
-          {"note", x.note.value_or("")},
-          {"voided", voided.count(x.id) > 0},
-          {"voids", x.voids_id ? Json(*x.voids_id) : Json()},
-          {"link", x.link_id ? Json(*x.link_id) : Json()}};
+inline void history_json(JsonWriter& j, const Transaction& x, const LedgerNames& names,
+                         const std::unordered_set<std::int64_t>& voided) {
+  j.begin_object().member("id", static_cast<long long>(x.id)).member("date", x.date.str());
+  j.member("account", names.account(x.account_id));
+  j.member("kind", std::string(to_string(x.kind))).member("symbol", names.symbol(x.security_id));
+  j.member("quantity", history_opt(x.quantity)).member("price", history_opt(x.price));
+  j.member("amount", history_opt(x.amount)).member("fee", x.fee);
+  j.member("ref", x.ref.value_or("")).member("note", x.note.value_or(""));
+  j.member("voided", voided.count(x.id) > 0);
+  j.member("voids", x.voids_id).member("link", x.link_id).end_object();
 }
 
 }  // namespace keel::cli

@@ -4,16 +4,15 @@
 
 #include <algorithm>
 #include <map>
-#include <nlohmann/json.hpp>
 #include <set>
 #include <unordered_map>
 #include <unordered_set>
 
 #include "core/error.h"
+#include "core/json.h"
 #include "core/text.h"
 #include "io/csv.h"
 #include "io/errors.h"
-#include "io/json.h"
 #include "io/ofx.h"
 #include "io/sha256.h"
 #include "io/table.h"
@@ -532,14 +531,16 @@ void write_rows(ExportFormat format, const std::vector<std::string>& header,
       append_export_record(text, fields);
     }
   } else {
-    nlohmann::ordered_json array = nlohmann::ordered_json::array();
+    JsonWriter j(text);
+    j.begin_array();
     for (const auto& row : rows) {
-      nlohmann::ordered_json object;
+      j.begin_object();
       for (std::size_t i = 0; i < header.size(); ++i)
-        if (!row[i].empty()) object[header[i]] = row[i];
-      array.push_back(std::move(object));
+        if (!row[i].empty()) j.member(header[i], row[i]);
+      j.end_object();
     }
-    text = dump_json(array) + "\n";
+    j.end_array();
+    text += "\n";
   }
   out.write(text);
 }

@@ -2,13 +2,11 @@
 
 #include <fmt/format.h>
 
-#include <nlohmann/json.hpp>
-
 #include "core/error.h"
+#include "core/json.h"
 #include "core/text.h"
 #include "io/csv.h"
 #include "io/errors.h"
-#include "io/json.h"
 #include "io/table.h"
 #include "store/ledger_store.h"
 
@@ -379,15 +377,17 @@ class Writer {
     if (format_ == ExportFormat::csv) {
       append_export_record(sink_.buf(), values);
     } else {
-      nlohmann::ordered_json o;
-      for (std::size_t i = 0; i < names_.size(); ++i) {
-        if (i == nullable && values[i].empty())
-          o[std::string(names_[i])] = nullptr;
-        else
-          o[std::string(names_[i])] = std::string(values[i]);
-      }
       sink_.buf() += rows_ == 1 ? "\n" : ",\n";
-      sink_.buf() += dump_json(o, -1);
+      JsonWriter o(sink_.buf(), -1);
+      o.begin_object();
+      for (std::size_t i = 0; i < names_.size(); ++i) {
+        o.key(names_[i]);
+        if (i == nullable && values[i].empty())
+          o.null();
+        else
+          o.value(values[i]);
+      }
+      o.end_object();
     }
     sink_.maybe_flush();
   }

@@ -5,8 +5,8 @@
 
 #include "ledger/accounts.h"
 #include "ledger/posting.h"
+#include "market/day_view.h"
 #include "store/ledger_store.h"
-#include "store/prices.h"
 
 namespace keel::ledger {
 namespace {
@@ -36,6 +36,7 @@ Holdings holdings(store::Database& db, Date as_of, const std::optional<std::stri
   const auto symbols = symbols_by_id(db);
   const Book book = replay(load_log(db), as_of);
   if (!only) one_currency(book.accounts(), "holdings");
+  const market::DayView view(db);
   Holdings out;
   out.as_of = as_of;
   for (const auto& info : book.accounts()) {
@@ -47,8 +48,8 @@ Holdings holdings(store::Database& db, Date as_of, const std::optional<std::stri
       line.symbol = symbols.at(security_id);
       line.quantity = position.quantity();
       line.cost_basis = position.cost();
-      if (auto close = store::latest_close(db, security_id, as_of)) {
-        line.price = *close;
+      if (auto close = view.close(security_id, as_of)) {
+        line.price = close->price;
       } else {
         line.price = book.last_trade_price(security_id).value_or(Decimal());
         line.price_is_close = false;

@@ -11,6 +11,8 @@
 #include "core/text.h"
 #include "ledger/accounts.h"
 #include "ledger/posting.h"
+#include "market/day_view.h"
+#include "market/series.h"
 #include "store/ledger_store.h"
 #include "store/period_store.h"
 #include "store/price_write.h"
@@ -27,21 +29,6 @@ Decimal weight_of(const Decimal& part, const Decimal& whole) {
   return Decimal::divide(part, whole, kWeightPlaces);
 }
 
-std::string mwr_note(const perf::MwrSolution& m) {
-  switch (m.status) {
-    case perf::MwrStatus::kOk:
-      return "";
-    case perf::MwrStatus::kNoCashFlows:
-      return "no money-weighted return: the period has no value and no flows";
-    case perf::MwrStatus::kNoRoot:
-      return "no money-weighted return: no rate makes the flows and values balance";
-    case perf::MwrStatus::kMultipleRoots:
-      return fmt::format("no single money-weighted return: {} rates balance the flows and values",
-                         m.roots.size());
-  }
-  return "";
-}
-
 PerformanceLine line_from(const std::string& label, const perf::ReturnsReport& rep) {
   const auto& r = rep.result;
   PerformanceLine line;
@@ -56,7 +43,7 @@ PerformanceLine line_from(const std::string& label, const perf::ReturnsReport& r
     line.mwr_period = r.mwr_figure->period;
     line.mwr_annualized = r.mwr_figure->annualized;
   } else {
-    line.mwr_note = mwr_note(r.mwr);
+    line.mwr_note = perf::mwr_words(r.mwr);
   }
   if (r.benchmark) {
     line.benchmark = r.benchmark->benchmark.period;
@@ -100,28 +87,25 @@ std::vector<GrowthPoint> benchmark_growth(store::Database& db, const std::string
                                           Date to) {
   const auto security = store::security_with_symbol(db, symbol);
   const Date before = from.plus_days(-1);
-  std::optional<Decimal> base;
+  market::Series::Request span;
+  span.securities = std::vector<std::int64_t>{security.id};
+  span.from = before;
+  span.to = to;
+  const auto closes = market::Series::load(db, span).closes(security.id);
   std::vector<GrowthPoint> out;
-  for (const auto& [day, close] : store::closes_of(db, security.id)) {
-    if (day <= before) {
-      base = close;
-      continue;
-    }
-    if (day > to || !base) break;
-    if (out.empty()) out.push_back({before, 1.0});
-    out.push_back({day, close.to_double() / base->to_double()});
-  }
-  if (out.empty() && base) out.push_back({before, 1.0});
-  if (!out.empty() && out.back().day < to) out.push_back({to, out.back().level});
+  if (closes.empty() || closes.front().day > before) return out;
+  const double base = closes.front().price.to_double();
+  out.push_back({before, 1.0});
+  for (std::size_t i = 1; i < closes.size(); ++i)
+    out.push_back({closes[i].day, closes[i].price.to_double() / base});
+  if (out.back().day < to) out.push_back({to, out.back().level});
   return out;
 }
 
-std::optional<Date> first_close(store::Database& db, const std::string& symbol) {
-  const auto security = store::find_security(db, symbol);
-  if (!security) return std::nullopt;
-  const auto closes = store::closes_of(db, security->id);
-  if (closes.empty()) return std::nullopt;
-  return closes.front().first;
+// Whether the benchmark has a close on or before `day`.
+bool priced_by(const market::View& view, const std::string& symbol, Date day) {
+  const Security* security = view.security(symbol);
+  return security && view.close(security->id, day).has_value();
 }
 
 Decimal unrealized_total(const ledger::Holdings& h) {
@@ -210,14 +194,15 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   // Performance: this year, since inception, trailing 3 and 5 years where the
   // ledger's history covers them. Each is one call of the returns module.
   s.performance.push_back(line_from("this year", year));
-  const auto bench_first = request.benchmark ? first_close(db, *request.benchmark) : std::nullopt;
+  const market::DayView view(db);
   auto measured = [&](const std::string& label, Date from) {
     perf::ReturnsRequest rq;
     rq.account = request.account;
     rq.period.from = from;
     rq.period.to = s.to;
     rq.as_of = s.to;
-    const bool bench_ok = request.benchmark && bench_first && *bench_first <= from.plus_days(-1);
+    const bool bench_ok =
+        request.benchmark && priced_by(view, *request.benchmark, from.plus_days(-1));
     if (bench_ok) rq.benchmark = request.benchmark;
     auto line = line_from(label, perf::returns_report(db, data, rq));
     if (request.benchmark && !bench_ok)

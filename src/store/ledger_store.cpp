@@ -305,6 +305,12 @@ std::optional<std::int64_t> void_of(Database& db, std::int64_t txn_id) {
   return st.getColumn(0).getInt64();
 }
 
+std::int64_t last_transaction_id(Database& db) {
+  SQLite::Statement st(db.sql(), "SELECT coalesce(max(id), 0) FROM txn");
+  st.executeStep();
+  return st.getColumn(0).getInt64();
+}
+
 std::int64_t insert_split(Database& db, const Split& s) {
   SQLite::Statement st(db.sql(),
                        "INSERT INTO split (security_id, date, ratio, recorded_at) "

@@ -41,6 +41,8 @@ std::vector<Transaction> list_transactions(Database& db);
 bool ref_exists(Database& db, std::int64_t account_id, std::string_view ref);
 bool row_hash_exists(Database& db, std::int64_t account_id, std::string_view row_hash);
 std::optional<std::int64_t> void_of(Database& db, std::int64_t txn_id);
+// Highest transaction id, 0 for an empty ledger.
+std::int64_t last_transaction_id(Database& db);
 
 std::int64_t insert_split(Database& db, const Split& split);
 std::vector<Split> list_splits(Database& db);  // by date, then id
