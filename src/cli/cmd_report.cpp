@@ -1,6 +1,7 @@
 // Commands that read the ledger and print: holdings, lots, history, gains, lists.
 #include <fmt/format.h>
 
+#include <algorithm>
 #include <map>
 #include <memory>
 #include <nlohmann/json.hpp>
@@ -54,17 +55,37 @@ void add_holdings(CLI::App& app, Context& ctx) {
       Json j;
       j["as_of"] = h.as_of.str();
       j["positions"] = Json::array();
-      for (const auto& p : h.positions)
-        j["positions"].push_back({{"account", p.account},
-                                  {"symbol", p.symbol},
-                                  {"quantity", p.quantity.str()},
-                                  {"cost_basis", p.cost_basis.str()},
-                                  {"price", p.price.str()},
-                                  {"market_value", p.market_value.str()},
-                                  {"unrealized_gain", p.unrealized_gain.str()}});
+      auto add_rate = [](Json& line, const market::FxQuote& q) {
+        line["rate"] = {{"pair", q.base + "/" + q.quote},
+                        {"rate", q.rate.str()},
+                        {"day", q.day.str()},
+                        {"derived", q.how == market::FxHow::direct ? "" : q.describe()}};
+      };
+      for (const auto& p : h.positions) {
+        Json line = {{"account", p.account},
+                     {"symbol", p.symbol},
+                     {"quantity", p.quantity.str()},
+                     {"cost_basis", p.cost_basis.str()},
+                     {"price", p.price.str()},
+                     {"market_value", p.market_value.str()},
+                     {"unrealized_gain", p.unrealized_gain.str()}};
+        if (p.rate) {
+          line["currency"] = p.currency;
+          line["local_value"] = p.local_value.str();
+          add_rate(line, *p.rate);
+        }
+        j["positions"].push_back(std::move(line));
+      }
       j["cash"] = Json::array();
-      for (const auto& c : h.cash)
-        j["cash"].push_back({{"account", c.account}, {"amount", c.amount.str()}});
+      for (const auto& c : h.cash) {
+        Json line = {{"account", c.account}, {"amount", c.amount.str()}};
+        if (c.rate) {
+          line["currency"] = c.currency;
+          line["value"] = c.value.str();
+          add_rate(line, *c.rate);
+        }
+        j["cash"].push_back(std::move(line));
+      }
       j["total_value"] = h.total_value.str();
       print_json(j);
       return;
@@ -77,13 +98,34 @@ void add_holdings(CLI::App& app, Context& ctx) {
              {"market value", Align::right},
              {"unrealized", Align::right},
              {"weight", Align::right}});
-    for (const auto& p : h.positions)
-      t.add_row({p.account, p.symbol, p.quantity.str(), money(p.cost_basis),
-                 p.price.str() + (p.price_is_close ? "" : "*"), money(p.market_value),
-                 money(p.unrealized_gain), percent(p.market_value, h.total_value)});
-    for (const auto& c : h.cash)
+    // A line in another currency shows its local price and amount; the
+    // rates used are listed under the table.
+    std::vector<std::string> rates_used;
+    auto note_rate = [&](const market::FxQuote& q) {
+      const std::string text = q.describe();
+      if (std::find(rates_used.begin(), rates_used.end(), text) == rates_used.end())
+        rates_used.push_back(text);
+    };
+    for (const auto& p : h.positions) {
+      std::string price = p.price.str() + (p.price_is_close ? "" : "*");
+      if (p.rate) {
+        price += " " + p.currency;
+        note_rate(*p.rate);
+      }
+      t.add_row({p.account, p.symbol, p.quantity.str(), money(p.cost_basis), price,
+                 money(p.market_value), money(p.unrealized_gain),
+                 percent(p.market_value, h.total_value)});
+    }
+    for (const auto& c : h.cash) {
+      if (c.rate) {
+        note_rate(*c.rate);
+        t.add_row({c.account, "(cash " + c.currency + ")", c.amount.str(), "", "", money(c.value),
+                   "", percent(c.value, h.total_value)});
+        continue;
+      }
       t.add_row(
           {c.account, "(cash)", "", "", "", money(c.amount), "", percent(c.amount, h.total_value)});
+    }
     t.add_rule();
     t.add_row({"total", "", "", "", "", money(h.total_value), "", ""});
     out(fmt::format("Holdings as of {}\n\n", h.as_of.str()));
@@ -91,6 +133,7 @@ void add_holdings(CLI::App& app, Context& ctx) {
     bool any_trade_price = false;
     for (const auto& p : h.positions) any_trade_price |= !p.price_is_close;
     if (any_trade_price) out("* no close on or before the day; valued at the last trade price\n");
+    for (const auto& r : rates_used) out(fmt::format("converted at {}\n", r));
   });
 }
 
@@ -149,18 +192,28 @@ void add_gains(CLI::App& app, Context& ctx) {
     if (o->json) {
       Json j;
       j["gains"] = Json::array();
-      for (const auto& g : gains)
-        j["gains"].push_back({{"account", g.account},
-                              {"symbol", g.symbol},
-                              {"lot", g.part.lot_id},
-                              {"sell", g.part.sell_txn_id},
-                              {"acquired", g.part.acquired.str()},
-                              {"disposed", g.part.disposed.str()},
-                              {"quantity", g.part.quantity.str()},
-                              {"proceeds", g.part.proceeds.str()},
-                              {"cost", g.part.cost.str()},
-                              {"gain", g.part.gain().str()},
-                              {"term", g.long_term ? "long" : "short"}});
+      for (const auto& g : gains) {
+        Json line = {{"account", g.account},
+                     {"symbol", g.symbol},
+                     {"lot", g.part.lot_id},
+                     {"sell", g.part.sell_txn_id},
+                     {"acquired", g.part.acquired.str()},
+                     {"disposed", g.part.disposed.str()},
+                     {"quantity", g.part.quantity.str()},
+                     {"proceeds", g.part.proceeds.str()},
+                     {"cost", g.part.cost.str()},
+                     {"gain", g.part.gain().str()},
+                     {"term", g.long_term ? "long" : "short"}};
+        // A security in another currency: its local figures and the split
+        // of the gain (docs/methods-ledger.md).
+        if (g.part.local_cost) {
+          line["local_proceeds"] = g.part.local_proceeds->str();
+          line["local_cost"] = g.part.local_cost->str();
+          line["price_part"] = g.part.price_part().str();
+          line["currency_part"] = g.part.currency_part().str();
+        }
+        j["gains"].push_back(std::move(line));
+      }
       j["total_short"] = totals.short_term.gain.str();
       j["total_long"] = totals.long_term.gain.str();
       j["total"] = totals.all().gain.str();

@@ -62,15 +62,24 @@ inline std::vector<std::string> history_cells(const Transaction& x, const Ledger
   if (x.voids_id) note = fmt::format("voids {}: {}", *x.voids_id, note);
   if (voided.count(x.id)) note = "[void] " + note;
   if (x.link_id) note += fmt::format(" (pair of {})", *x.link_id);
+  // Figures in another currency than the account's carry its code; a rate
+  // says how the row was settled or exchanged.
+  const std::string in = x.currency ? " " + *x.currency : std::string();
+  auto figure = [&](const std::optional<Decimal>& d) { return d ? d->str() + in : std::string(); };
+  if (x.to_currency)
+    note = fmt::format("into {} at {}{}{}", *x.to_currency, x.rate->str(), note.empty() ? "" : "; ",
+                       note);
+  else if (x.rate)
+    note = fmt::format("settled at {}{}{}", x.rate->str(), note.empty() ? "" : "; ", note);
   return {std::to_string(x.id),
           x.date.str(),
           names.account(x.account_id),
           std::string(to_string(x.kind)),
           names.symbol(x.security_id),
           history_opt(x.quantity),
-          history_opt(x.price),
-          history_opt(x.amount),
-          x.fee.is_zero() ? "" : x.fee.str(),
+          figure(x.price),
+          figure(x.amount),
+          x.fee.is_zero() ? "" : x.fee.str() + in,
           x.ref.value_or(""),
           note};
 }
@@ -78,20 +87,24 @@ inline std::vector<std::string> history_cells(const Transaction& x, const Ledger
 inline nlohmann::ordered_json history_json(const Transaction& x, const LedgerNames& names,
                                            const std::unordered_set<std::int64_t>& voided) {
   using Json = nlohmann::ordered_json;
-  return {{"id", x.id},
-          {"date", x.date.str()},
-          {"account", names.account(x.account_id)},
-          {"kind", to_string(x.kind)},
-          {"symbol", names.symbol(x.security_id)},
-          {"quantity", history_opt(x.quantity)},
-          {"price", history_opt(x.price)},
-          {"amount", history_opt(x.amount)},
-          {"fee", x.fee.str()},
-          {"ref", x.ref.value_or("")},
-          {"note", x.note.value_or("")},
-          {"voided", voided.count(x.id) > 0},
-          {"voids", x.voids_id ? Json(*x.voids_id) : Json()},
-          {"link", x.link_id ? Json(*x.link_id) : Json()}};
+  Json j = {{"id", x.id},
+            {"date", x.date.str()},
+            {"account", names.account(x.account_id)},
+            {"kind", to_string(x.kind)},
+            {"symbol", names.symbol(x.security_id)},
+            {"quantity", history_opt(x.quantity)},
+            {"price", history_opt(x.price)},
+            {"amount", history_opt(x.amount)},
+            {"fee", x.fee.str()},
+            {"ref", x.ref.value_or("")},
+            {"note", x.note.value_or("")},
+            {"voided", voided.count(x.id) > 0},
+            {"voids", x.voids_id ? Json(*x.voids_id) : Json()},
+            {"link", x.link_id ? Json(*x.link_id) : Json()}};
+  if (x.currency) j["currency"] = *x.currency;
+  if (x.rate) j["rate"] = x.rate->str();
+  if (x.to_currency) j["to_currency"] = *x.to_currency;
+  return j;
 }
 
 }  // namespace keel::cli
