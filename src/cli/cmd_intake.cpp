@@ -102,10 +102,11 @@ std::string ledger_summary(const io::LedgerImportSummary& sum) {
 void add_import(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ImportCommandOptions>();
   auto* cmd = app.add_subcommand("import", "Read a CSV file into the ledger, all or nothing");
-  add_examples(*cmd, {"keel import prices closes.csv",
+  add_examples(*cmd, {"keel import fx rates.csv",
                       "keel import transactions broker.csv --map broker.toml --dry-run"});
   cmd->add_option("WHAT", o->what,
-                  "accounts, transactions, securities, prices, metrics, distributions or splits")
+                  "accounts, transactions, securities, prices, metrics, distributions, splits or "
+                  "fx (exchange rates)")
       ->required();
   cmd->add_option("FILE", o->file,
                   "CSV file (keel's layout, or another described by --map); transactions also "
@@ -179,7 +180,8 @@ void add_export(CLI::App& app, Context& ctx) {
   add_examples(*cmd,
                {"keel export transactions --out transactions.csv", "keel export prices --json"});
   cmd->add_option("WHAT", o->what,
-                  "accounts, transactions, securities, prices, metrics, distributions or splits")
+                  "accounts, transactions, securities, prices, metrics, distributions, splits or "
+                  "fx (exchange rates)")
       ->required();
   auto* c = cmd->add_flag("--csv", o->csv, "CSV in keel's import layout (the default)");
   cmd->add_flag("--json", o->json, "A JSON array of objects; numbers as exact strings")

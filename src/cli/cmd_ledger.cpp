@@ -6,6 +6,7 @@
 #include "cli/context.h"
 #include "cli/history_rows.h"
 #include "cli/options.h"
+#include "core/currency.h"
 #include "core/error.h"
 #include "core/text.h"
 #include "ledger/accounts.h"
@@ -115,7 +116,7 @@ void add_security_add(CLI::App& group, Context& ctx) {
 // error names the flag.
 struct RecordOptions {
   std::string date, account, symbol, quantity, price, fee, amount, ratio, lots, to_account,
-      acquired, ref, note;
+      acquired, ref, note, currency, rate, to_currency;
   bool allow_future = false;
 };
 
@@ -141,6 +142,9 @@ ledger::PostRequest to_request(TxnKind kind, const RecordOptions& o) {
   r.ref = text_option(o.ref);
   r.note = text_option(o.note);
   r.allow_future = o.allow_future;
+  if (!o.currency.empty()) r.currency = parse_currency(o.currency, "--currency");
+  if (!o.to_currency.empty()) r.to_currency = parse_currency(o.to_currency, "--to-currency");
+  r.rate = decimal_option(o.rate, "--rate");
   return r;
 }
 
@@ -190,6 +194,10 @@ constexpr KindSpec kKindSpecs[] = {
      "keel record transfer_out --date 2025-03-02 --account Taxable --amount 8000 --to-account "
      "Retirement",
      true, true, true, false},
+    {TxnKind::exchange, "Cash of one currency exchanged for another inside the account",
+     "keel record exchange --date 2025-01-03 --account Taxable --amount 5000 --to-currency USD "
+     "--rate 1.0412 --fee 2.50",
+     false, false, true, false},
 };
 
 void add_record_kind(CLI::App& group, Context& ctx, const KindSpec& spec) {
@@ -208,7 +216,26 @@ void add_record_kind(CLI::App& group, Context& ctx, const KindSpec& spec) {
         spec.kind == TxnKind::transfer_in ? "Unit cost of units brought in" : "Price per unit");
     cmd->add_option("--fee", o->fee, "Fee or commission (default 0)");
   }
-  if (spec.cash) cmd->add_option("--amount", o->amount, "Cash amount (positive)");
+  if (spec.cash)
+    cmd->add_option("--amount", o->amount,
+                    spec.kind == TxnKind::exchange ? "Amount sold, in --currency (positive)"
+                                                   : "Cash amount (positive)");
+  cmd->add_option("--currency", o->currency,
+                  spec.kind == TxnKind::exchange
+                      ? "Currency sold (default: the account's)"
+                      : "ISO 4217 currency of the figures (default: the security's, else the "
+                        "account's)");
+  if (spec.kind == TxnKind::exchange) {
+    cmd->add_option("--to-currency", o->to_currency, "Currency bought")->required();
+    cmd->add_option("--rate", o->rate, "Units of --to-currency one unit of --currency bought");
+    cmd->add_option("--fee", o->fee, "Fee, in --currency, on top of --amount (default 0)");
+  } else if (spec.kind == TxnKind::buy || spec.kind == TxnKind::sell ||
+             spec.kind == TxnKind::dividend || spec.kind == TxnKind::interest ||
+             spec.kind == TxnKind::tax) {
+    cmd->add_option("--rate", o->rate,
+                    "Settle in the account's currency at this rate: units of --currency one unit "
+                    "of the account's currency bought (the broker's rate)");
+  }
   if (spec.kind == TxnKind::sell || spec.kind == TxnKind::transfer_out)
     cmd->add_option("--lots", o->lots, "Specific lots to take: LOT:QUANTITY[,LOT:QUANTITY...]");
   if (spec.kind == TxnKind::transfer_out)

@@ -1,6 +1,7 @@
 // Commands that read the ledger and print: holdings, lots, history, gains, lists.
 #include <fmt/format.h>
 
+#include <algorithm>
 #include <map>
 #include <memory>
 
@@ -56,17 +57,34 @@ void add_holdings(CLI::App& app, Context& ctx) {
         ledger::holdings(db, date_option_or_today(o->as_of, "--as-of"), text_option(o->account));
     if (o->json) {
       print_json([&](JsonWriter& j) {
+        // A position or cash in another currency: its own figures and the rate used.
+        auto rate = [&](const market::FxQuote& q) {
+          j.key("rate").begin_object().member("pair", q.base + "/" + q.quote);
+          j.member("rate", q.rate).member("day", q.day.str());
+          j.member("derived", q.how == market::FxHow::direct ? "" : q.describe()).end_object();
+        };
         j.begin_object().member("as_of", h.as_of.str());
         j.key("positions").begin_array();
         for (const auto& p : h.positions) {
           j.begin_object().member("account", p.account).member("symbol", p.symbol);
           j.member("quantity", p.quantity).member("cost_basis", p.cost_basis);
           j.member("price", p.price).member("market_value", p.market_value);
-          j.member("unrealized_gain", p.unrealized_gain).end_object();
+          j.member("unrealized_gain", p.unrealized_gain);
+          if (p.rate) {
+            j.member("currency", p.currency).member("local_value", p.local_value);
+            rate(*p.rate);
+          }
+          j.end_object();
         }
         j.end_array().key("cash").begin_array();
-        for (const auto& c : h.cash)
-          j.begin_object().member("account", c.account).member("amount", c.amount).end_object();
+        for (const auto& c : h.cash) {
+          j.begin_object().member("account", c.account).member("amount", c.amount);
+          if (c.rate) {
+            j.member("currency", c.currency).member("value", c.value);
+            rate(*c.rate);
+          }
+          j.end_object();
+        }
         j.end_array().member("total_value", h.total_value).end_object();
       });
       return;
@@ -79,13 +97,34 @@ void add_holdings(CLI::App& app, Context& ctx) {
              {"market value", Align::right},
              {"unrealized", Align::right},
              {"weight", Align::right}});
-    for (const auto& p : h.positions)
-      t.add_row({p.account, p.symbol, p.quantity.str(), money(p.cost_basis),
-                 p.price.str() + (p.price_is_close ? "" : "*"), money(p.market_value),
-                 money(p.unrealized_gain), percent(p.market_value, h.total_value)});
-    for (const auto& c : h.cash)
+    // A line in another currency shows its local price and amount; the
+    // rates used are listed under the table.
+    std::vector<std::string> rates_used;
+    auto note_rate = [&](const market::FxQuote& q) {
+      const std::string text = q.describe();
+      if (std::find(rates_used.begin(), rates_used.end(), text) == rates_used.end())
+        rates_used.push_back(text);
+    };
+    for (const auto& p : h.positions) {
+      std::string price = p.price.str() + (p.price_is_close ? "" : "*");
+      if (p.rate) {
+        price += " " + p.currency;
+        note_rate(*p.rate);
+      }
+      t.add_row({p.account, p.symbol, p.quantity.str(), money(p.cost_basis), price,
+                 money(p.market_value), money(p.unrealized_gain),
+                 percent(p.market_value, h.total_value)});
+    }
+    for (const auto& c : h.cash) {
+      if (c.rate) {
+        note_rate(*c.rate);
+        t.add_row({c.account, "(cash " + c.currency + ")", c.amount.str(), "", "", money(c.value),
+                   "", percent(c.value, h.total_value)});
+        continue;
+      }
       t.add_row(
           {c.account, "(cash)", "", "", "", money(c.amount), "", percent(c.amount, h.total_value)});
+    }
     t.add_rule();
     t.add_row({"total", "", "", "", "", money(h.total_value), "", ""});
     out(fmt::format("Holdings as of {}\n\n", h.as_of.str()));
@@ -93,6 +132,7 @@ void add_holdings(CLI::App& app, Context& ctx) {
     bool any_trade_price = false;
     for (const auto& p : h.positions) any_trade_price |= !p.price_is_close;
     if (any_trade_price) out("* no close on or before the day; valued at the last trade price\n");
+    for (const auto& r : rates_used) out(fmt::format("converted at {}\n", r));
   });
 }
 
@@ -159,7 +199,16 @@ void add_gains(CLI::App& app, Context& ctx) {
           j.member("acquired", g.part.acquired.str()).member("disposed", g.part.disposed.str());
           j.member("quantity", g.part.quantity).member("proceeds", g.part.proceeds);
           j.member("cost", g.part.cost).member("gain", g.part.gain());
-          j.member("term", g.long_term ? "long" : "short").end_object();
+          j.member("term", g.long_term ? "long" : "short");
+          // A security in another currency: its local figures and the split
+          // of the gain (docs/methods-ledger.md).
+          if (g.part.local_cost) {
+            j.member("local_proceeds", *g.part.local_proceeds);
+            j.member("local_cost", *g.part.local_cost);
+            j.member("price_part", g.part.price_part());
+            j.member("currency_part", g.part.currency_part());
+          }
+          j.end_object();
         }
         j.end_array();
         j.member("total_short", totals.short_term.gain).member("total_long", totals.long_term.gain);

@@ -62,15 +62,24 @@ inline std::vector<std::string> history_cells(const Transaction& x, const Ledger
   if (x.voids_id) note = fmt::format("voids {}: {}", *x.voids_id, note);
   if (voided.count(x.id)) note = "[void] " + note;
   if (x.link_id) note += fmt::format(" (pair of {})", *x.link_id);
+  // Figures in another currency than the account's carry its code; a rate
+  // says how the row was settled or exchanged.
+  const std::string in = x.currency ? " " + *x.currency : std::string();
+  auto figure = [&](const std::optional<Decimal>& d) { return d ? d->str() + in : std::string(); };
+  if (x.to_currency)
+    note = fmt::format("into {} at {}{}{}", *x.to_currency, x.rate->str(), note.empty() ? "" : "; ",
+                       note);
+  else if (x.rate)
+    note = fmt::format("settled at {}{}{}", x.rate->str(), note.empty() ? "" : "; ", note);
   return {std::to_string(x.id),
           x.date.str(),
           names.account(x.account_id),
           std::string(to_string(x.kind)),
           names.symbol(x.security_id),
           history_opt(x.quantity),
-          history_opt(x.price),
-          history_opt(x.amount),
-          x.fee.is_zero() ? "" : x.fee.str(),
+          figure(x.price),
+          figure(x.amount),
+          x.fee.is_zero() ? "" : x.fee.str() + in,
           x.ref.value_or(""),
           note};
 }
@@ -84,7 +93,11 @@ inline void history_json(JsonWriter& j, const Transaction& x, const LedgerNames&
   j.member("amount", history_opt(x.amount)).member("fee", x.fee);
   j.member("ref", x.ref.value_or("")).member("note", x.note.value_or(""));
   j.member("voided", voided.count(x.id) > 0);
-  j.member("voids", x.voids_id).member("link", x.link_id).end_object();
+  j.member("voids", x.voids_id).member("link", x.link_id);
+  if (x.currency) j.member("currency", *x.currency);
+  if (x.rate) j.member("rate", *x.rate);
+  if (x.to_currency) j.member("to_currency", *x.to_currency);
+  j.end_object();
 }
 
 }  // namespace keel::cli

@@ -8,6 +8,7 @@
 #include <unordered_map>
 #include <unordered_set>
 
+#include "core/currency.h"
 #include "core/error.h"
 #include "core/json.h"
 #include "core/text.h"
@@ -45,10 +46,13 @@ enum TxnColumn : std::size_t {
   kAcquired,
   kCurrency,
   kRate,
+  kToCurrency,
 };
 
-// Columns an export writes; an import also reads currency and rate.
+// Columns an export writes for a ledger all in its accounts' own
+// currencies; one with a row in another currency also gets the last three.
 constexpr std::size_t kExportedColumns = kAcquired + 1;
+constexpr std::size_t kExportedCurrencyColumns = kToCurrency + 1;
 
 const std::vector<ColumnSpec>& transaction_columns() {
   static const std::vector<ColumnSpec> columns = {{"date"},
@@ -65,7 +69,8 @@ const std::vector<ColumnSpec>& transaction_columns() {
                                                   {"lots", false},
                                                   {"acquired", false},
                                                   {"currency", false},
-                                                  {"rate", false}};
+                                                  {"rate", false},
+                                                  {"to_currency", false}};
   return columns;
 }
 
@@ -74,6 +79,7 @@ constexpr std::pair<const char*, TxnColumn> kFieldColumns[] = {
     {"symbol", kSymbol},        {"quantity", kQuantity}, {"price", kPrice},
     {"amount", kAmount},        {"fee", kFee},           {"ref", kRef},
     {"to-account", kToAccount}, {"lots", kLots},         {"acquired", kAcquired},
+    {"currency", kCurrency},    {"rate", kRate},         {"to-currency", kToCurrency},
 };
 
 Mapping checked_mapping(const ImportOptions& options, std::string_view what) {
@@ -87,9 +93,14 @@ Mapping checked_mapping(const ImportOptions& options, std::string_view what) {
 // What makes two rows of one account "the same line" when they carry no ref.
 std::string content_key(const Transaction& t, const std::string& symbol) {
   auto opt = [](const std::optional<Decimal>& d) { return d ? d->str() : std::string(); };
-  return sha256_hex(fmt::format("{}\x1f{}\x1f{}\x1f{}\x1f{}\x1f{}\x1f{}", t.date.str(),
-                                to_string(t.kind), symbol, opt(t.quantity), opt(t.price),
-                                opt(t.amount), t.fee.str()));
+  std::string text =
+      fmt::format("{}\x1f{}\x1f{}\x1f{}\x1f{}\x1f{}\x1f{}", t.date.str(), to_string(t.kind), symbol,
+                  opt(t.quantity), opt(t.price), opt(t.amount), t.fee.str());
+  // Only rows in another currency carry these, so older keys stay as they were.
+  if (t.currency || t.rate || t.to_currency)
+    text += fmt::format("\x1f{}\x1f{}\x1f{}", t.currency.value_or(""), opt(t.rate),
+                        t.to_currency.value_or(""));
+  return sha256_hex(text);
 }
 
 std::string content_key(const ledger::PostRequest& r) {
@@ -100,6 +111,9 @@ std::string content_key(const ledger::PostRequest& r) {
   t.price = r.price;
   t.amount = r.amount;
   t.fee = r.fee.value_or(Decimal());
+  t.currency = r.currency;
+  t.rate = r.rate;
+  t.to_currency = r.to_currency;
   return content_key(t, r.symbol.value_or(""));
 }
 
@@ -119,7 +133,9 @@ Fields fields_of(const ledger::PostRequest& r) {
           {"fee", r.fee && !r.fee->is_zero() ? r.fee->str() : ""},
           {"to_account", r.to_account.value_or("")},
           {"lots", r.lots.empty() ? "" : format_lot_picks(r.lots)},
-          {"acquired", r.acquired ? r.acquired->str() : ""}};
+          {"acquired", r.acquired ? r.acquired->str() : ""},
+          {"rate", opt(r.rate)},
+          {"to_currency", r.to_currency.value_or("")}};
 }
 
 struct BookedRow {
@@ -162,6 +178,8 @@ struct BookedKeys {
             r.to_account = accounts[it->second];
           r.lots = t.lots;
           r.acquired = t.acquired;
+          r.rate = t.rate;
+          r.to_currency = t.to_currency;
           keys.live[{t.account_id, *t.ref}] = BookedRow{t.id, fields_of(r)};
         }
       }
@@ -230,43 +248,27 @@ bool read_request(TableReader& t, IntakeRow& row) {
     else
       ok = false;
   }
+  auto currency = [&](std::size_t col, std::optional<std::string>& out) {
+    if (!t.has(col)) return;
+    try {
+      out = parse_currency(t.raw(col), "");
+    } catch (const InputError& e) {
+      t.error_with_value(col, e.what());
+      ok = false;
+    }
+  };
+  currency(kCurrency, r.currency);
+  currency(kToCurrency, r.to_currency);
+  decimal(kRate, r.rate);
+  if (r.rate && !r.rate->is_positive()) {
+    t.error_with_value(kRate, "a rate must be greater than zero");
+    ok = false;
+  }
   for (const auto& [field, col] : kFieldColumns)
     if (t.has(col)) row.sources[field] = {t.shown(col), t.cell(col)};
   row.sources["ref"] = {t.shown(kRef), t.cell(kRef)};
   row.sources["account"] = {t.shown(kAccount), t.cell(kAccount)};
   return ok;
-}
-
-// The currency and rate columns: kept for when keel converts; for now a row
-// must be in its account's currency.
-bool check_currency(TableReader& t, const Account& account) {
-  std::optional<std::string> currency;
-  if (t.has(kCurrency)) {
-    try {
-      currency = normalize_currency(t.raw(kCurrency));
-    } catch (const InputError& e) {
-      t.error_with_value(kCurrency, e.what());
-      return false;
-    }
-    if (*currency != account.currency) {
-      t.error_with_value(kCurrency,
-                         fmt::format("account '{}' keeps {}; keel does not convert currencies "
-                                     "yet, so book this row in an account that keeps {}",
-                                     printable(account.name), account.currency, *currency));
-      return false;
-    }
-  }
-  if (t.has(kRate)) {
-    std::string buf;
-    if (!t.decimal(kRate, buf)) return false;
-    if (Decimal::parse(buf) != Decimal(1)) {
-      t.error_with_value(kRate, fmt::format("the row is in the account's currency {}, so its "
-                                            "rate must be 1",
-                                            account.currency));
-      return false;
-    }
-  }
-  return true;
 }
 
 LedgerImportSummary new_summary(const std::filesystem::path& file, const ImportOptions& options) {
@@ -449,7 +451,6 @@ LedgerImportSummary import_transactions(store::Database& db, const std::filesyst
         t.error(kAccount, fmt::format("unknown account '{}'", printable(row.request.account)));
         continue;
       }
-      if (!check_currency(t, *account)) continue;
       rows.push_back(std::move(row));
     }
     sum.rows = t.rows();
@@ -558,6 +559,7 @@ std::uint64_t export_transactions(store::Database& db, ExportFormat format, Outp
     if (t.link_id && !voided.count(t.id)) receiver_of[*t.link_id] = t.account_id;
   auto opt = [](const std::optional<Decimal>& d) { return d ? d->str() : std::string(); };
   std::vector<std::vector<std::string>> rows;
+  bool foreign = false;
   for (const auto& t : txns) {
     if (t.kind == TxnKind::void_entry || voided.count(t.id) || t.link_id) continue;
     const auto receiver = receiver_of.find(t.id);
@@ -566,11 +568,14 @@ std::uint64_t export_transactions(store::Database& db, ExportFormat format, Outp
          t.security_id ? symbols[*t.security_id] : "", opt(t.quantity), opt(t.price), opt(t.amount),
          t.fee.is_zero() ? "" : t.fee.str(), t.ref.value_or(""), t.note.value_or(""),
          receiver != receiver_of.end() ? accounts[receiver->second] : "",
-         t.lots.empty() ? "" : format_lot_picks(t.lots), t.acquired ? t.acquired->str() : ""});
+         t.lots.empty() ? "" : format_lot_picks(t.lots), t.acquired ? t.acquired->str() : "",
+         t.currency.value_or(""), opt(t.rate), t.to_currency.value_or("")});
+    foreign = foreign || t.currency || t.to_currency;
   }
+  const std::size_t columns = foreign ? kExportedCurrencyColumns : kExportedColumns;
+  for (auto& row : rows) row.resize(columns);
   std::vector<std::string> header;
-  for (std::size_t i = 0; i < kExportedColumns; ++i)
-    header.push_back(transaction_columns()[i].name);
+  for (std::size_t i = 0; i < columns; ++i) header.push_back(transaction_columns()[i].name);
   write_rows(format, header, rows, out);
   return rows.size();
 }

@@ -74,9 +74,20 @@ Decimal cost_share(const Decimal& cost, const Decimal& taken, const Decimal& hel
   return allocate(cost, {taken, held - taken}, kCostPlaces).front();
 }
 
+Decimal AccountBook::foreign_balance(const std::string& currency) const {
+  Decimal total;
+  if (const auto it = foreign_cash.find(currency); it != foreign_cash.end())
+    for (const auto& lot : it->second) total += lot.quantity;
+  return total;
+}
+
 Book::Book(const std::vector<Account>& accounts,
-           std::unordered_map<std::int64_t, std::string> pending)
-    : accounts_(accounts), books_(accounts.size()), pending_(std::move(pending)) {
+           std::unordered_map<std::int64_t, std::string> pending,
+           std::shared_ptr<const market::FxRates> rates)
+    : accounts_(accounts),
+      books_(accounts.size()),
+      rates_(std::move(rates)),
+      pending_(std::move(pending)) {
   for (std::size_t i = 0; i < accounts_.size(); ++i) index_[accounts_[i].id] = i;
 }
 
@@ -164,6 +175,10 @@ Lot cut(Lot& lot, const Decimal& quantity) {
     return part;
   }
   part.cost = cost_share(lot.cost, quantity, lot.quantity);
+  if (lot.local_cost) {
+    part.local_cost = cost_share(*lot.local_cost, quantity, lot.quantity);
+    *lot.local_cost -= *part.local_cost;
+  }
   lot.quantity -= quantity;
   lot.cost -= part.cost;
   return part;
@@ -236,6 +251,18 @@ std::vector<Lot> Book::take_lots(const Transaction& txn, const Account& account,
     for (std::size_t i = 0; i < taken.size(); ++i) taken[i].cost = taken_parts[i];
     const auto open_parts = allocate(cost_before - taken_cost, open_qty, kCostPlaces);
     for (std::size_t i = 0; i < position.lots.size(); ++i) position.lots[i].cost = open_parts[i];
+    // A foreign position pools its cost in the security's currency the same way.
+    if (!taken.empty() && taken.front().local_cost) {
+      Decimal local_before;
+      for (const auto& l : taken) local_before += l.local_cost.value_or(Decimal());
+      for (const auto& l : position.lots) local_before += l.local_cost.value_or(Decimal());
+      const Decimal taken_local = cost_share(local_before, wanted, held);
+      const auto taken_local_parts = allocate(taken_local, taken_qty, kCostPlaces);
+      for (std::size_t i = 0; i < taken.size(); ++i) taken[i].local_cost = taken_local_parts[i];
+      const auto open_local_parts = allocate(local_before - taken_local, open_qty, kCostPlaces);
+      for (std::size_t i = 0; i < position.lots.size(); ++i)
+        position.lots[i].local_cost = open_local_parts[i];
+    }
   }
   return taken;
 }
@@ -312,6 +339,11 @@ void Book::apply_transfer_out(const Transaction& txn, const Account& account, Ac
 void Book::apply(const Transaction& txn) {
   AccountBook& book = book_of(txn.account_id);
   const Account& account = account_info(txn.account_id);
+  if (apply_foreign(txn, account, book)) {
+    touched_today_.insert(txn.account_id);
+    last_txn_today_[txn.account_id] = &txn;
+    return;
+  }
   switch (txn.kind) {
     case TxnKind::deposit:
     case TxnKind::dividend:
@@ -335,6 +367,7 @@ void Book::apply(const Transaction& txn) {
     case TxnKind::transfer_out:
       apply_transfer_out(txn, account, book);
       break;
+    case TxnKind::exchange:  // apply_foreign() books every exchange
     case TxnKind::void_entry:
       break;  // replay() never passes voids here
   }
@@ -394,7 +427,7 @@ std::unordered_set<std::int64_t> voided_ids(const std::vector<Transaction>& tran
   return out;
 }
 
-Replayer::Replayer(const LedgerLog& log) : book_(log.accounts, log.pending) {
+Replayer::Replayer(const LedgerLog& log) : book_(log.accounts, log.pending, log.rates) {
   const auto voided = voided_ids(log.transactions);
   for (const auto& t : log.transactions)
     if (t.kind != TxnKind::void_entry && !voided.count(t.id)) live_.push_back(&t);

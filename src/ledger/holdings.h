@@ -2,9 +2,13 @@
 //
 // A position's price is its latest close on or before the day, else its
 // latest trade price; market value is quantity x price, exact. Amounts are
-// in the accounts' own currency (keel does not convert between currencies):
-// holdings of every account, and gains whose sales span several accounts,
-// are refused when those accounts keep different currencies (one_currency,
+// in each account's own currency: a position in another currency and cash
+// in another currency are converted at the latest stored rate on or before
+// the day (market/fx_rates.h; rounded to the account currency's minor
+// units), and the line keeps its local figures and the rate used; a missing
+// rate throws InputError naming the pair and the day. Holdings of every
+// account, and gains whose sales span several accounts, are refused when
+// those accounts keep different currencies (one_currency,
 // ledger/accounts.h). Throws InputError for an unknown account name.
 #pragma once
 
@@ -29,11 +33,21 @@ struct HoldingLine {
   bool price_is_close = true;
   Decimal market_value;
   Decimal unrealized_gain;
+  // A security in another currency than the account's: that currency, the
+  // rate used (account currency -> security currency) and the value in it.
+  std::string currency = {};
+  std::optional<market::FxQuote> rate = std::nullopt;
+  Decimal local_value = {};
 };
 
 struct CashLine {
   std::string account;
-  Decimal amount;
+  Decimal amount;  // in `currency`
+  // Cash in another currency: its code, the rate used and its value in the
+  // account's currency; empty currency: the account's own cash.
+  std::string currency = {};
+  std::optional<market::FxQuote> rate = std::nullopt;
+  Decimal value = {};
 };
 
 struct Holdings {

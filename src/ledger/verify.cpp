@@ -5,10 +5,13 @@
 #include <algorithm>
 #include <map>
 
+#include "core/currency.h"
 #include "core/error.h"
 #include "core/text.h"
+#include "ledger/fx_cash.h"
 #include "ledger/period.h"
 #include "ledger/posting.h"
+#include "store/fx_store.h"
 #include "store/ledger_store.h"
 #include "store/maintenance.h"
 #include "store/period_store.h"
@@ -17,8 +20,9 @@ namespace keel::ledger {
 namespace {
 
 struct Recount {
-  std::map<std::int64_t, Decimal> cash;                            // by account
-  std::map<std::pair<std::int64_t, std::int64_t>, Decimal> units;  // (account, security)
+  std::map<std::int64_t, Decimal> cash;                             // by account
+  std::map<std::pair<std::int64_t, std::string>, Decimal> foreign;  // (account, currency)
+  std::map<std::pair<std::int64_t, std::int64_t>, Decimal> units;   // (account, security)
 };
 
 // Cash and units from the raw rows, without the lot engine.
@@ -40,10 +44,37 @@ Recount recount(const LedgerLog& log) {
       for (auto& [key, units] : r.units)
         if (key.second == splits[next_split]->security_id) units *= splits[next_split]->ratio;
   };
+  std::map<std::int64_t, std::string> own;
+  for (const auto& a : log.accounts) own[a.id] = a.currency;
   for (const Transaction* t : live) {
     apply_splits_through(t->date);
-    Decimal& cash = r.cash[t->account_id];
+    const std::string& account_currency = own[t->account_id];
+    const std::string currency = t->currency.value_or(account_currency);
+    // A row in another currency moves that currency's cash, unless a
+    // settlement rate converts it into the account's.
+    const bool settled = t->rate && t->kind != TxnKind::exchange;
+    Decimal& cash = currency == account_currency || settled ? r.cash[t->account_id]
+                                                            : r.foreign[{t->account_id, currency}];
     const Decimal gross = t->quantity && t->price ? *t->quantity * *t->price : Decimal();
+    if (t->kind == TxnKind::exchange) {
+      cash -= *t->amount + t->fee;
+      const Decimal bought = exchanged(*t->amount, *t->rate, *t->to_currency);
+      (*t->to_currency == account_currency ? r.cash[t->account_id]
+                                           : r.foreign[{t->account_id, *t->to_currency}]) += bought;
+      continue;
+    }
+    if (settled) {
+      const Decimal local = t->kind == TxnKind::buy    ? gross + t->fee
+                            : t->kind == TxnKind::sell ? gross - t->fee
+                                                       : *t->amount;
+      const Decimal moved = settle(local, *t->rate, account_currency);
+      const bool in =
+          t->kind == TxnKind::sell || t->kind == TxnKind::dividend || t->kind == TxnKind::interest;
+      cash += in ? moved : -moved;
+      if (t->kind == TxnKind::buy) r.units[{t->account_id, *t->security_id}] += *t->quantity;
+      if (t->kind == TxnKind::sell) r.units[{t->account_id, *t->security_id}] -= *t->quantity;
+      continue;
+    }
     auto units = [&]() -> Decimal& { return r.units[{t->account_id, *t->security_id}]; };
     switch (t->kind) {
       case TxnKind::deposit:
@@ -80,6 +111,7 @@ Recount recount(const LedgerLog& log) {
           cash -= *t->amount;
         }
         break;
+      case TxnKind::exchange:
       case TxnKind::void_entry:
         break;
     }
@@ -156,6 +188,15 @@ VerifyReport verify(store::Database& db) {
         report.problems.push_back(
             fmt::format("cash of '{}': the rows add up to {}, the lots say {}",
                         printable(account.name), cash.str(), held.cash.str()));
+      std::map<std::string, Decimal> foreign;
+      for (const auto& [key, amount] : counted.foreign)
+        if (key.first == account.id) foreign[key.second] += amount;
+      for (const auto& [code, lots] : held.foreign_cash) foreign.try_emplace(code);
+      for (const auto& [code, amount] : foreign)
+        if (amount != held.foreign_balance(code))
+          report.problems.push_back(
+              fmt::format("cash in {} of '{}': the rows add up to {}, the lots say {}", code,
+                          printable(account.name), amount.str(), held.foreign_balance(code).str()));
       for (const auto& [key, units] : counted.units) {
         if (key.first != account.id) continue;
         const auto pos = held.positions.find(key.second);
@@ -169,6 +210,18 @@ VerifyReport verify(store::Database& db) {
   } catch (const InputError& e) {
     report.problems.push_back(std::string("replay: ") + e.what());
   }
+  // Exchange rates: the table's checks hold the shape; the codes must be ISO 4217.
+  for (const auto& r : store::list_fx_rates(db))
+    for (const auto& code : {r.base, r.quote})
+      if (!is_currency(code))
+        report.problems.push_back(
+            fmt::format("exchange rate {}/{} on {}: {} is not an ISO 4217 "
+                        "currency code",
+                        r.base, r.quote, r.date.str(), code));
+  for (const auto& a : log.accounts)
+    if (!is_currency(a.currency))
+      report.problems.push_back(fmt::format("account '{}' keeps {}, not an ISO 4217 currency code",
+                                            printable(a.name), a.currency));
   report.warnings = store::data_warnings(db);
   // Text that is not UTF-8 or names with invisible characters leave every
   // figure sound: worth a look (reports replace or mark them), not suspect.

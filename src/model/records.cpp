@@ -19,7 +19,7 @@ constexpr std::array<std::pair<BasisMethod, std::string_view>, 5> kMethods{{
     {BasisMethod::specific, "specific"},
 }};
 
-constexpr std::array<std::pair<TxnKind, std::string_view>, 11> kKinds{{
+constexpr std::array<std::pair<TxnKind, std::string_view>, 12> kKinds{{
     {TxnKind::deposit, "deposit"},
     {TxnKind::withdrawal, "withdrawal"},
     {TxnKind::buy, "buy"},
@@ -30,6 +30,7 @@ constexpr std::array<std::pair<TxnKind, std::string_view>, 11> kKinds{{
     {TxnKind::fee, "fee"},
     {TxnKind::transfer_in, "transfer_in"},
     {TxnKind::transfer_out, "transfer_out"},
+    {TxnKind::exchange, "exchange"},
     {TxnKind::void_entry, "void"},
 }};
 

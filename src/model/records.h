@@ -1,7 +1,8 @@
 // The ledger's records: accounts, transactions and splits, as plain values.
 //
 // All quantities and amounts are positive exact decimals; the kind gives the
-// direction. A Transaction mirrors one row of the append-only txn table.
+// direction. Figures are in the transaction's currency (the account's unless
+// it names another). A Transaction mirrors one row of the append-only txn table.
 #pragma once
 
 #include <cstdint>
@@ -30,6 +31,7 @@ enum class TxnKind {
   fee,
   transfer_in,
   transfer_out,
+  exchange,    // cash of one currency into another inside an account
   void_entry,  // stored as "void"
 };
 std::string_view to_string(TxnKind kind);
@@ -71,6 +73,13 @@ struct Transaction {
   std::optional<std::string> ref;
   std::optional<std::string> row_hash;
   std::optional<std::string> note;
+  // The currency of price, amount and fee; unset: the account's own.
+  std::optional<std::string> currency;
+  // A foreign-currency row settled in the account's own cash: how many
+  // `currency` units one account-currency unit bought. An exchange: how many
+  // `to_currency` units one `currency` unit bought.
+  std::optional<Decimal> rate;
+  std::optional<std::string> to_currency;  // an exchange: the currency bought
 };
 
 struct Split {

@@ -6,6 +6,7 @@
 #include <array>
 #include <cctype>
 
+#include "core/currency.h"
 #include "core/error.h"
 #include "core/text.h"
 
@@ -43,6 +44,9 @@ std::string normalize_currency(std::string_view code) {
   if (!ok)
     throw InputError(
         fmt::format("currency '{}' is not a three-letter code such as EUR", printable(code)));
+  if (!is_currency(out))
+    throw InputError(fmt::format("currency '{}' is not an ISO 4217 code (such as EUR, USD, JPY)",
+                                 printable(code)));
   return out;
 }
 

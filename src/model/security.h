@@ -28,6 +28,6 @@ struct Security {
 
 // Checks symbol, name and currency shape; throws InputError naming the field.
 void validate(const Security& security);
-std::string normalize_currency(std::string_view code);  // "usd" -> "USD"; throws on bad shape
+std::string normalize_currency(std::string_view code);  // "usd" -> "USD"; throws unless ISO 4217
 
 }  // namespace keel

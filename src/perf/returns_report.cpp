@@ -7,6 +7,7 @@
 #include "core/error.h"
 #include "core/text.h"
 #include "ledger/accounts.h"
+#include "ledger/fx_cash.h"
 #include "ledger/posting.h"
 #include "market/day_view.h"
 #include "market/series.h"
@@ -105,6 +106,7 @@ ReturnsReport report_of(store::Database& db, const LedgerData& data, const Scope
 
 LedgerData LedgerData::load(store::Database& db) {
   LedgerData data{ledger::load_log(db), {}, market::DayView(db).latest_close_day()};
+  ledger::refuse_other_currencies(data.log, "returns and statements");
   for (const auto& s : store::list_securities(db)) data.symbols[s.id] = s.symbol;
   return data;
 }

@@ -309,6 +309,7 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
         else
           cash_moved += t->kind == TxnKind::transfer_in ? *t->amount : -*t->amount;
         break;
+      case TxnKind::exchange:  // no flow: cash changes currency inside the account
       case TxnKind::void_entry:
         break;
     }

@@ -10,6 +10,7 @@
 #include "core/text.h"
 #include "io/sha256.h"
 #include "ledger/accounts.h"
+#include "ledger/fx_cash.h"
 #include "ledger/posting.h"
 #include "market/day_view.h"
 #include "rules/inputs.h"
@@ -60,6 +61,11 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
   // accounts: trades recorded after the latest close (the fills of the last
   // proposal, say) must count, or their orders would be proposed again.
   const auto log = ledger::load_log(db);
+  {
+    std::vector<std::int64_t> ids;
+    for (const auto& a : pool) ids.push_back(a.id);
+    ledger::refuse_other_currencies(log, "propose", ids);
+  }
   std::optional<Date> last_posting;
   std::size_t later_postings = 0;
   {

@@ -67,7 +67,8 @@ Security read_security(SQLite::Statement& st) {
 // table (the voided row keeps it in txn, where a ref is unique per account).
 constexpr const char* kTxnColumns =
     "id, account_id, date, kind, security_id, quantity, price, amount, fee, acquired, lots, "
-    "link_id, voids_id, coalesce(txn.ref, correction.ref), row_hash, note";
+    "link_id, voids_id, coalesce(txn.ref, correction.ref), row_hash, note, txn.currency, "
+    "txn.rate, txn.to_currency";
 constexpr const char* kTxnFrom = "txn LEFT JOIN correction ON correction.new_txn_id = txn.id";
 
 Transaction read_txn(SQLite::Statement& st) {
@@ -90,6 +91,9 @@ Transaction read_txn(SQLite::Statement& st) {
   t.ref = opt_text(st.getColumn(13));
   t.row_hash = opt_text(st.getColumn(14));
   t.note = opt_text(st.getColumn(15));
+  t.currency = opt_text(st.getColumn(16));
+  t.rate = opt_decimal(st.getColumn(17));
+  t.to_currency = opt_text(st.getColumn(18));
   return t;
 }
 
@@ -225,7 +229,8 @@ std::int64_t insert_transaction(Database& db, const Transaction& t) {
   SQLite::Statement st(db.sql(),
                        "INSERT INTO txn (account_id, date, kind, security_id, quantity, price, "
                        "amount, fee, acquired, lots, link_id, voids_id, ref, row_hash, note, "
-                       "recorded_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)");
+                       "recorded_at, currency, rate, to_currency) VALUES (?, ?, ?, ?, ?, ?, ?, ?, "
+                       "?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)");
   st.bind(1, t.account_id);
   st.bind(2, t.date.str());
   st.bind(3, std::string(to_string(t.kind)));
@@ -248,6 +253,9 @@ std::int64_t insert_transaction(Database& db, const Transaction& t) {
   bind_optional(st, 14, t.row_hash);
   bind_optional(st, 15, t.note);
   st.bind(16, utc_timestamp());
+  bind_optional(st, 17, t.currency);
+  bind_decimal(st, 18, t.rate);
+  bind_optional(st, 19, t.to_currency);
   try {
     st.exec();
   } catch (const SQLite::Exception& e) {
