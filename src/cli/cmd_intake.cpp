@@ -105,7 +105,8 @@ void add_import(CLI::App& app, Context& ctx) {
   add_examples(*cmd, {"keel import prices closes.csv",
                       "keel import transactions broker.csv --map broker.toml --dry-run"});
   cmd->add_option("WHAT", o->what,
-                  "accounts, transactions, securities, prices, metrics, distributions or splits")
+                  "accounts, transactions, actions (corporate actions), securities, prices, "
+                  "metrics, distributions or splits")
       ->required();
   cmd->add_option("FILE", o->file,
                   "CSV file (keel's layout, or another described by --map); transactions also "
@@ -134,9 +135,10 @@ void add_import(CLI::App& app, Context& ctx) {
     if (o->what != "transactions" && (o->book_corrections || options.account))
       throw InputError(fmt::format("{}: only for importing transactions",
                                    o->book_corrections ? "--book-corrections" : "--account"));
-    if (o->what == "transactions" || o->what == "accounts") {
+    if (o->what == "transactions" || o->what == "accounts" || o->what == "actions") {
       auto db = ctx.open_ledger(store::Access::write);
       const auto sum = printing_refusals([&] {
+        if (o->what == "actions") return io::import_actions(db, o->file, options);
         return o->what == "accounts" ? io::import_accounts(db, o->file, options)
                                      : io::import_transactions(db, o->file, options);
       });

@@ -5,6 +5,7 @@
 #include <memory>
 #include <nlohmann/json.hpp>
 
+#include "cli/action_rows.h"
 #include "cli/context.h"
 #include "cli/history_rows.h"
 #include "cli/options.h"
@@ -15,6 +16,7 @@
 #include "ledger/posting.h"
 #include "report/gain_rows.h"
 #include "report/table.h"
+#include "store/action_store.h"
 #include "store/ledger_store.h"
 
 namespace keel::cli {
@@ -149,18 +151,22 @@ void add_gains(CLI::App& app, Context& ctx) {
     if (o->json) {
       Json j;
       j["gains"] = Json::array();
-      for (const auto& g : gains)
-        j["gains"].push_back({{"account", g.account},
-                              {"symbol", g.symbol},
-                              {"lot", g.part.lot_id},
-                              {"sell", g.part.sell_txn_id},
-                              {"acquired", g.part.acquired.str()},
-                              {"disposed", g.part.disposed.str()},
-                              {"quantity", g.part.quantity.str()},
-                              {"proceeds", g.part.proceeds.str()},
-                              {"cost", g.part.cost.str()},
-                              {"gain", g.part.gain().str()},
-                              {"term", g.long_term ? "long" : "short"}});
+      for (const auto& g : gains) {
+        Json line = {{"account", g.account}, {"symbol", g.symbol}, {"lot", g.part.lot_id}};
+        // A disposal is by a sell or by a corporate action (keel action list).
+        if (g.part.action_id != 0)
+          line["action"] = g.part.action_id;
+        else
+          line["sell"] = g.part.sell_txn_id;
+        line.update(Json{{"acquired", g.part.acquired.str()},
+                         {"disposed", g.part.disposed.str()},
+                         {"quantity", g.part.quantity.str()},
+                         {"proceeds", g.part.proceeds.str()},
+                         {"cost", g.part.cost.str()},
+                         {"gain", g.part.gain().str()},
+                         {"term", g.long_term ? "long" : "short"}});
+        j["gains"].push_back(std::move(line));
+      }
       j["total_short"] = totals.short_term.gain.str();
       j["total_long"] = totals.long_term.gain.str();
       j["total"] = totals.all().gain.str();
@@ -208,10 +214,19 @@ void add_history(CLI::App& app, Context& ctx) {
       else
         t.add_row(history_cells(x, names, voided));
     }
+    // Corporate actions concern every account that holds the security: they
+    // are listed under the transactions, in the text form only.
+    const auto actions = store::list_actions(db);
+    const ActionRows rows(names.symbols, actions);
+    Table at = ActionRows::table();
+    for (const auto& a : actions)
+      if (a.date >= from && a.date <= to) at.add_row(rows.cells(a));
     if (o->json)
       print_json(j);
-    else
+    else if (at.empty())
       out(t.render({ctx.colour()}));
+    else
+      out(t.render({ctx.colour()}) + "\nCorporate actions:\n" + at.render({ctx.colour()}));
   });
 }
 

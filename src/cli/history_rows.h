@@ -14,23 +14,41 @@
 #include "model/records.h"
 #include "report/table.h"
 #include "store/ledger_store.h"
+#include "store/record_change_store.h"
 
 namespace keel::cli {
 
 struct LedgerNames {
   std::map<std::int64_t, std::string> accounts, symbols;
+  std::vector<store::RecordChange> changes;  // by effective day
   static LedgerNames load(store::Database& db) {
     LedgerNames names;
     for (const auto& a : store::list_accounts(db)) names.accounts[a.id] = a.name;
     for (const auto& s : store::list_securities(db)) names.symbols[s.id] = s.symbol;
+    names.changes = store::list_record_changes(db);
     return names;
   }
   std::string account(std::int64_t id) const { return find(accounts, id); }
   std::string symbol(const std::optional<std::int64_t>& id) const {
     return id ? find(symbols, *id) : std::string();
   }
+  // The name or symbol as it was on `day`: the old value of the first change
+  // that took effect after it, else the current one.
+  std::string account_on(std::int64_t id, Date day) const {
+    return as_of("account", "name", id, day, account(id));
+  }
+  std::string symbol_on(const std::optional<std::int64_t>& id, Date day) const {
+    return id ? as_of("security", "symbol", *id, day, symbol(id)) : std::string();
+  }
 
  private:
+  std::string as_of(std::string_view record, std::string_view field, std::int64_t id, Date day,
+                    std::string current) const {
+    for (const auto& c : changes)
+      if (c.record == record && c.field == field && c.record_id == id && c.effective > day)
+        return c.old_value.value_or(current);
+    return current;
+  }
   static std::string find(const std::map<std::int64_t, std::string>& m, std::int64_t id) {
     const auto it = m.find(id);
     return it == m.end() ? std::string() : it->second;
@@ -64,9 +82,9 @@ inline std::vector<std::string> history_cells(const Transaction& x, const Ledger
   if (x.link_id) note += fmt::format(" (pair of {})", *x.link_id);
   return {std::to_string(x.id),
           x.date.str(),
-          names.account(x.account_id),
+          names.account_on(x.account_id, x.date),
           std::string(to_string(x.kind)),
-          names.symbol(x.security_id),
+          names.symbol_on(x.security_id, x.date),
           history_opt(x.quantity),
           history_opt(x.price),
           history_opt(x.amount),
@@ -80,9 +98,9 @@ inline nlohmann::ordered_json history_json(const Transaction& x, const LedgerNam
   using Json = nlohmann::ordered_json;
   return {{"id", x.id},
           {"date", x.date.str()},
-          {"account", names.account(x.account_id)},
+          {"account", names.account_on(x.account_id, x.date)},
           {"kind", to_string(x.kind)},
-          {"symbol", names.symbol(x.security_id)},
+          {"symbol", names.symbol_on(x.security_id, x.date)},
           {"quantity", history_opt(x.quantity)},
           {"price", history_opt(x.price)},
           {"amount", history_opt(x.amount)},

@@ -18,6 +18,7 @@
 #include "io/sha256.h"
 #include "io/table.h"
 #include "ledger/accounts.h"
+#include "ledger/action_posting.h"
 #include "ledger/period.h"
 #include "ledger/posting.h"
 #include "model/security.h"
@@ -515,6 +516,82 @@ LedgerImportSummary import_accounts(store::Database& db, const std::filesystem::
   if (!errors.empty()) errors.raise("nothing was changed");
   if (options.dry_run) return sum;
   if (sum.added > 0) record_run(db, "accounts", file, sum);
+  tx.commit();
+  return sum;
+}
+
+LedgerImportSummary import_actions(store::Database& db, const std::filesystem::path& file,
+                                   const ImportOptions& options) {
+  const Mapping mapping = checked_mapping(options, "actions");
+  CsvReader csv = open_import_csv(file, mapping, options);
+  ErrorList errors(file.string());
+  LedgerImportSummary sum = new_summary(file, options);
+  store::WriteTransaction tx(db);
+  {
+    enum { kDate, kSymbol, kAction, kInto, kRatio, kCash, kPercent, kInLieu, kNote };
+    TableReader t(csv, mapping,
+                  {{"date"},
+                   {"symbol"},
+                   {"action"},
+                   {"into", false},
+                   {"ratio", false},
+                   {"cash", false},
+                   {"cost_percent", false},
+                   {"cash_in_lieu", false},
+                   {"note", false}},
+                  errors);
+    const std::map<std::string, std::size_t> column_of{{"into", kInto},
+                                                       {"ratio", kRatio},
+                                                       {"cash", kCash},
+                                                       {"cost-percent", kPercent},
+                                                       {"cash-in-lieu", kInLieu}};
+    while (t.next()) {
+      std::string date, ratio, cash, percent, in_lieu;
+      std::string_view symbol, action;
+      if (!t.date(kDate, date) || !t.text(kSymbol, symbol) || !t.text(kAction, action)) continue;
+      if ((t.has(kRatio) && !t.decimal(kRatio, ratio)) ||
+          (t.has(kCash) && !t.decimal(kCash, cash)) ||
+          (t.has(kPercent) && !t.decimal(kPercent, percent)))
+        continue;
+      ledger::ActionRequest r;
+      try {
+        r.kind = parse_action_kind(ascii_lower(action));
+      } catch (const InputError& e) {
+        t.error(kAction, e.what());
+        continue;
+      }
+      r.date = Date::parse(date);
+      if (!options.allow_future && !t.not_future(kDate, r.date)) continue;
+      r.allow_future = true;  // checked just above, naming the column
+      r.symbol = std::string(symbol);
+      if (t.has(kInto)) r.target = std::string(t.raw(kInto));
+      if (!ratio.empty()) r.ratio = Decimal::parse(ratio);
+      if (!cash.empty()) r.cash = Decimal::parse(cash);
+      if (!percent.empty()) r.cost_percent = Decimal::parse(percent);
+      r.cash_in_lieu = t.has(kInLieu);  // its value is the price per unit
+      if (t.has(kInLieu)) {
+        if (!t.decimal(kInLieu, in_lieu)) continue;
+        r.in_lieu_price = Decimal::parse(in_lieu);
+      }
+      if (t.has(kNote)) r.note = std::string(t.raw(kNote));
+      try {
+        ledger::write_action_unchecked(db, r);
+        ++sum.added;
+      } catch (const ledger::ShapeError& e) {
+        const auto it = column_of.find(e.field());
+        t.error(it == column_of.end() ? npos : it->second,
+                fmt::format("{}: {}", to_string(r.kind), e.reason()));
+      } catch (const InputError& e) {
+        t.error(npos, e.what());
+      }
+    }
+    sum.rows = t.rows();
+  }
+  sum.sha256 = csv.sha256_hex();
+  if (!errors.empty()) errors.raise("nothing was changed");
+  ledger::check_ledger(db);
+  if (options.dry_run) return sum;
+  if (sum.added > 0) record_run(db, "actions", file, sum);
   tx.commit();
   return sum;
 }

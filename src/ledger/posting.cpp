@@ -6,6 +6,7 @@
 
 #include "core/error.h"
 #include "core/text.h"
+#include "store/action_store.h"
 #include "store/ledger_store.h"
 
 namespace keel::ledger {
@@ -169,6 +170,7 @@ LedgerLog load_log(store::Database& db) {
   log.accounts = store::list_accounts(db);
   log.transactions = store::list_transactions(db);
   log.splits = store::list_splits(db);
+  log.actions = store::list_actions(db);
   return log;
 }
 

@@ -14,8 +14,9 @@ import sys
 sys.path.insert(0, os.path.dirname(__file__))
 from keel_cli import SOURCE, Ledger, check, equal  # noqa: E402
 
-# The newest schema version: one migration file per version.
-SCHEMA = len([f for f in os.listdir(os.path.join(SOURCE, "migrations")) if f.endswith(".sql")])
+# The newest schema version: the highest migration number.
+SCHEMA = max(int(f.split("_")[0]) for f in os.listdir(os.path.join(SOURCE, "migrations"))
+             if f.endswith(".sql"))
 
 
 def digest(path):
