@@ -144,4 +144,14 @@ equal([(a["id"], a["action"], a["symbol"], a["voided_by"]) for a in listing],
 history = led.ok("history")
 check("Corporate actions:" in history and "[void by 8]" in history, "history lists the actions")
 verified(led)
+
+# The year-end statement's pieces (realized gains from the actions, the change in unrealized
+# gain, the cash they paid) add up to its closing value: the value series counts the units each
+# action hands out or takes away (it once kept the units from before the action).
+kite = os.path.join(led.dir.name, "kite.csv")
+with open(kite, "w") as f:
+    f.write("date,symbol,close\n2024-12-31,KITE,30\n")
+led.ok("import", "prices", kite)
+statement = led.ok("statement", "--year", "2024")
+check("Check: the pieces add up to the closing value exactly." in statement, statement[:2000])
 print("corporate actions: every kind recorded, imported, voided and verified")
