@@ -95,6 +95,7 @@ std::string ledger_summary(const io::LedgerImportSummary& sum) {
   }
   if (sum.dry_run) text += " (dry run: nothing was changed)";
   text += "\n";
+  for (const auto& note : sum.notes) text += "note: " + note + "\n";
   if (sum.dry_run && !sum.preview.empty()) text += "\n" + preview_table(sum);
   return text;
 }

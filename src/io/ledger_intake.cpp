@@ -25,6 +25,7 @@
 #include "store/ledger_store.h"
 #include "store/market_data.h"
 #include "store/period_store.h"
+#include "store/record_change_store.h"
 
 namespace keel::io {
 namespace {
@@ -320,6 +321,12 @@ void book_rows(store::Database& db, const std::filesystem::path& file, std::vect
   std::map<std::pair<std::string, std::string>, std::uint64_t> refs_in_file, contents_in_file;
   std::vector<IntakeRow> fresh_rows;
   std::vector<std::int64_t> replaces;  // per fresh row: the booked row it corrects, or 0
+  for (const auto& row : rows)
+    if (row.request.symbol && !store::find_security(db, *row.request.symbol))
+      if (const auto now = store::find_security_by_former_symbol(db, *row.request.symbol))
+        sum.notes.push_back(fmt::format("{}:{}: '{}' is a former symbol of '{}'; booked to it",
+                                        file.string(), row.line, printable(*row.request.symbol),
+                                        printable(now->symbol)));
   for (auto& row : rows) {
     ledger::PostRequest& r = row.request;
     r.allow_future = options.allow_future;

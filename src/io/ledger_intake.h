@@ -62,6 +62,8 @@ struct LedgerImportSummary {
   // Rows passed over by the mapping's actions.skip, per action as written.
   std::vector<std::pair<std::string, std::uint64_t>> skipped;
   std::vector<IntakeRow> preview;  // the first rows as they will be booked
+  // "FILE:LINE: ..." for rows worth a word, e.g. a security named by a former symbol.
+  std::vector<std::string> notes;
   bool dry_run = false;
   std::optional<std::int64_t> run_id;
 };

@@ -143,6 +143,17 @@ equal([(a["id"], a["action"], a["symbol"], a["voided_by"]) for a in listing],
       "action list, by date")
 history = led.ok("history")
 check("Corporate actions:" in history and "[void by 8]" in history, "history lists the actions")
+# --- a symbol change: the old symbol still resolves in an import, with a note -------------------
+led.ok("security", "change", "RAIL", "--symbol", "RLFY", "--date", "2024-07-01")
+trades = os.path.join(led.dir.name, "trades.csv")
+with open(trades, "w") as f:
+    f.write("date,account,kind,symbol,quantity,price\n2024-07-02,Rowan,sell,RAIL,10,12\n")
+out = led.ok("import", "transactions", trades)
+equal(out.splitlines()[1], f"note: {trades}:2: 'RAIL' is a former symbol of 'RLFY'; booked to it",
+      "the import's note")
+equal(lots(led, "RLFY"), [("Rowan", 7, "2024-02-05", "90", "818.18")], "sold from the same lot")
+check(" RAIL " in led.ok("history", "--from", "2024-06-03", "--to", "2024-06-03"),
+      "history shows the symbol of the day")
 verified(led)
 
 # The year-end statement's pieces (realized gains from the actions, the change in unrealized
