@@ -95,6 +95,7 @@ std::string ledger_summary(const io::LedgerImportSummary& sum) {
   }
   if (sum.dry_run) text += " (dry run: nothing was changed)";
   text += "\n";
+  for (const auto& note : sum.notes) text += "note: " + note + "\n";
   if (sum.dry_run && !sum.preview.empty()) text += "\n" + preview_table(sum);
   return text;
 }
@@ -105,8 +106,8 @@ void add_import(CLI::App& app, Context& ctx) {
   add_examples(*cmd, {"keel import fx rates.csv",
                       "keel import transactions broker.csv --map broker.toml --dry-run"});
   cmd->add_option("WHAT", o->what,
-                  "accounts, transactions, securities, prices, metrics, distributions, splits or "
-                  "fx (exchange rates)")
+                  "accounts, transactions, actions (corporate actions), securities, prices, "
+                  "metrics, distributions, splits or fx (exchange rates)")
       ->required();
   cmd->add_option("FILE", o->file,
                   "CSV file (keel's layout, or another described by --map); transactions also "
@@ -135,9 +136,10 @@ void add_import(CLI::App& app, Context& ctx) {
     if (o->what != "transactions" && (o->book_corrections || options.account))
       throw InputError(fmt::format("{}: only for importing transactions",
                                    o->book_corrections ? "--book-corrections" : "--account"));
-    if (o->what == "transactions" || o->what == "accounts") {
+    if (o->what == "transactions" || o->what == "accounts" || o->what == "actions") {
       auto db = ctx.open_ledger(store::Access::write);
       const auto sum = printing_refusals([&] {
+        if (o->what == "actions") return io::import_actions(db, o->file, options);
         return o->what == "accounts" ? io::import_accounts(db, o->file, options)
                                      : io::import_transactions(db, o->file, options);
       });

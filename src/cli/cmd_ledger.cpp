@@ -2,6 +2,7 @@
 #include <fmt/format.h>
 
 #include <memory>
+#include <set>
 
 #include "cli/context.h"
 #include "cli/history_rows.h"
@@ -10,6 +11,8 @@
 #include "core/error.h"
 #include "core/text.h"
 #include "ledger/accounts.h"
+#include "ledger/action_posting.h"
+#include "ledger/plausibility.h"
 #include "ledger/posting.h"
 #include "store/ledger_store.h"
 
@@ -254,8 +257,14 @@ void add_record_kind(CLI::App& group, Context& ctx, const KindSpec& spec) {
     const auto ids = ledger::post(db, request);
     std::string id_text = std::to_string(ids.front());
     if (ids.size() > 1) id_text += fmt::format(" and {}", ids.back());
-    out(fmt::format("posted {}: {} on {} in '{}'\n", id_text, to_string(kind), request.date.str(),
-                    printable(request.account)));
+    std::string text = fmt::format("posted {}: {} on {} in '{}'\n", id_text, to_string(kind),
+                                   request.date.str(), printable(request.account));
+    // Posted, but worth a second look: said here and by 'keel verify'.
+    for (const auto& flag : ledger::plausibility_flags(
+             db, ledger::load_log(db), std::set<std::int64_t>(ids.begin(), ids.end())))
+      text += fmt::format("warning: {}; if it is right: keel confirm {} --reason ...\n",
+                          flag.message, flag.txn_id);
+    out(text);
   });
 }
 
@@ -263,18 +272,37 @@ void add_record_split(CLI::App& group, Context& ctx) {
   auto o = std::make_shared<RecordOptions>();
   auto* cmd = group.add_subcommand(
       "split", "A split of a security, applied to every account's lots at the start of its day");
-  add_examples(*cmd, {"keel record split --date 2025-06-02 --symbol KESTR --ratio 2",
-                      "keel record split --date 2025-06-02 --symbol KESTR --ratio 0.1"});
+  add_examples(
+      *cmd, {"keel record split --date 2025-06-02 --symbol KESTR --ratio 2",
+             "keel record split --date 2025-06-02 --symbol KESTR --ratio 0.1 --cash-in-lieu 41.5"});
   cmd->add_option("--date", o->date, "Day the split takes effect, YYYY-MM-DD")->required();
   cmd->add_option("--symbol", o->symbol, "Security symbol")->required();
   cmd->add_option("--ratio", o->ratio, "New units per old unit: 2 = two-for-one, 0.1 = one-for-ten")
       ->required();
+  cmd->add_option("--cash-in-lieu", o->price,
+                  "Pay the fraction of a unit each account is left with in cash, at this price "
+                  "per unit (recorded as a corporate action, see 'keel action list')");
   add_allow_future_flag(*cmd, o->allow_future);
-  cmd->callback([&ctx, o] {
+  cmd->callback([&ctx, o, cmd] {
     const Date date = date_option_or_today(o->date, "--date");
     const auto ratio = decimal_option(o->ratio, "--ratio");
     // CLI11's required() accepts an empty value ('--ratio ""').
     if (!ratio) throw InputError("split: --ratio needs a number, such as 2 for two-for-one");
+    if (cmd->count("--cash-in-lieu") > 0) {
+      ledger::ActionRequest r;
+      r.kind = ActionKind::split;
+      r.date = date;
+      r.symbol = o->symbol;
+      r.ratio = ratio;
+      r.cash_in_lieu = true;
+      r.in_lieu_price = decimal_option(o->price, "--cash-in-lieu");
+      r.allow_future = o->allow_future;
+      auto db = ctx.open_ledger(store::Access::write);
+      const auto posted = ledger::post_action(db, r);
+      out(fmt::format("action {} posted: split of {} x{} on {}, fractions paid at {}\n", posted.id,
+                      printable(o->symbol), ratio->str(), date.str(), r.in_lieu_price->str()));
+      return;
+    }
     auto db = ctx.open_ledger(store::Access::write);
     const auto id = ledger::post_split(db, o->symbol, date, *ratio, o->allow_future);
     out(fmt::format("split {} posted: {} x{} on {}\n", id, printable(o->symbol), ratio->str(),
@@ -323,21 +351,37 @@ void add_void(CLI::App& app, Context& ctx) {
   });
 }
 
+void add_confirm(CLI::App& app, Context& ctx) {
+  auto o = std::make_shared<VoidOptions>();
+  auto* cmd = app.add_subcommand(
+      "confirm",
+      "Mark a transaction a plausibility check flags as right, so it is flagged no more");
+  add_examples(*cmd, {"keel confirm 12 --reason \"bought in the closing auction\""});
+  cmd->add_option("ID", o->id, "Transaction id (see 'keel verify')")->required();
+  cmd->add_option("--reason", o->reason, "Why it is right")->required();
+  cmd->callback([&ctx, o] {
+    auto db = ctx.open_ledger(store::Access::write);
+    ledger::confirm(db, o->id, o->reason);
+    out(fmt::format("transaction {} confirmed; it is flagged no more\n", o->id));
+  });
+}
+
 }  // namespace
 
 void register_ledger_commands(CLI::App& app, Context& ctx) {
   add_init(app, ctx);
-  auto* accounts = app.add_subcommand("account", "Add or list accounts");
+  auto* accounts = app.add_subcommand("account", "Add, list or rename accounts");
   accounts->require_subcommand(1);
   add_account_add(*accounts, ctx);
-  auto* securities = app.add_subcommand("security", "Add or list securities");
+  auto* securities = app.add_subcommand("security", "Add, list or change securities");
   securities->require_subcommand(1);
   add_security_add(*securities, ctx);
-  auto* record = app.add_subcommand("record", "Post a transaction or a split");
+  auto* record = app.add_subcommand("record", "Post a transaction, a split or a corporate action");
   record->require_subcommand(1);
   for (const auto& spec : kKindSpecs) add_record_kind(*record, ctx, spec);
   add_record_split(*record, ctx);
   add_void(app, ctx);
+  add_confirm(app, ctx);
   // After their subcommands, which would inherit these footers.
   add_examples(*accounts, {"keel account add Taxable --currency EUR", "keel account list"});
   add_examples(*securities,

@@ -5,6 +5,7 @@
 #include <map>
 #include <memory>
 
+#include "cli/action_rows.h"
 #include "cli/context.h"
 #include "cli/history_rows.h"
 #include "cli/options.h"
@@ -15,6 +16,7 @@
 #include "report/format.h"
 #include "report/gain_rows.h"
 #include "report/table.h"
+#include "store/action_store.h"
 #include "store/ledger_store.h"
 
 namespace keel::cli {
@@ -195,7 +197,11 @@ void add_gains(CLI::App& app, Context& ctx) {
         for (const auto& g : gains) {
           j.begin_object().member("account", g.account).member("symbol", g.symbol);
           j.member("lot", static_cast<long long>(g.part.lot_id));
-          j.member("sell", static_cast<long long>(g.part.sell_txn_id));
+          // A disposal is by a sell or by a corporate action (keel action list).
+          if (g.part.action_id != 0)
+            j.member("action", static_cast<long long>(g.part.action_id));
+          else
+            j.member("sell", static_cast<long long>(g.part.sell_txn_id));
           j.member("acquired", g.part.acquired.str()).member("disposed", g.part.disposed.str());
           j.member("quantity", g.part.quantity).member("proceeds", g.part.proceeds);
           j.member("cost", g.part.cost).member("gain", g.part.gain());
@@ -260,7 +266,19 @@ void add_history(CLI::App& app, Context& ctx) {
         t.add_row(history_cells(x, names, voided));
     }
     j.end_array();
-    out(o->json ? json + "\n" : t.render({ctx.colour()}));
+    // Corporate actions concern every account that holds the security: they
+    // are listed under the transactions, in the text form only.
+    const auto actions = store::list_actions(db);
+    const ActionRows rows(names.symbols, actions);
+    Table at = ActionRows::table();
+    for (const auto& a : actions)
+      if (a.date >= from && a.date <= to) at.add_row(rows.cells(a));
+    if (o->json)
+      out(json + "\n");
+    else if (at.empty())
+      out(t.render({ctx.colour()}));
+    else
+      out(t.render({ctx.colour()}) + "\nCorporate actions:\n" + at.render({ctx.colour()}));
   });
 }
 

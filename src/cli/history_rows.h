@@ -14,23 +14,41 @@
 #include "model/records.h"
 #include "report/table.h"
 #include "store/ledger_store.h"
+#include "store/record_change_store.h"
 
 namespace keel::cli {
 
 struct LedgerNames {
   std::map<std::int64_t, std::string> accounts, symbols;
+  std::vector<store::RecordChange> changes;  // by effective day
   static LedgerNames load(store::Database& db) {
     LedgerNames names;
     for (const auto& a : store::list_accounts(db)) names.accounts[a.id] = a.name;
     for (const auto& s : store::list_securities(db)) names.symbols[s.id] = s.symbol;
+    names.changes = store::list_record_changes(db);
     return names;
   }
   std::string account(std::int64_t id) const { return find(accounts, id); }
   std::string symbol(const std::optional<std::int64_t>& id) const {
     return id ? find(symbols, *id) : std::string();
   }
+  // The name or symbol as it was on `day`: the old value of the first change
+  // that took effect after it, else the current one.
+  std::string account_on(std::int64_t id, Date day) const {
+    return as_of("account", "name", id, day, account(id));
+  }
+  std::string symbol_on(const std::optional<std::int64_t>& id, Date day) const {
+    return id ? as_of("security", "symbol", *id, day, symbol(id)) : std::string();
+  }
 
  private:
+  std::string as_of(std::string_view record, std::string_view field, std::int64_t id, Date day,
+                    std::string current) const {
+    for (const auto& c : changes)
+      if (c.record == record && c.field == field && c.record_id == id && c.effective > day)
+        return c.old_value.value_or(current);
+    return current;
+  }
   static std::string find(const std::map<std::int64_t, std::string>& m, std::int64_t id) {
     const auto it = m.find(id);
     return it == m.end() ? std::string() : it->second;
@@ -73,9 +91,9 @@ inline std::vector<std::string> history_cells(const Transaction& x, const Ledger
     note = fmt::format("settled at {}{}{}", x.rate->str(), note.empty() ? "" : "; ", note);
   return {std::to_string(x.id),
           x.date.str(),
-          names.account(x.account_id),
+          names.account_on(x.account_id, x.date),
           std::string(to_string(x.kind)),
-          names.symbol(x.security_id),
+          names.symbol_on(x.security_id, x.date),
           history_opt(x.quantity),
           figure(x.price),
           figure(x.amount),
@@ -87,8 +105,8 @@ inline std::vector<std::string> history_cells(const Transaction& x, const Ledger
 inline void history_json(JsonWriter& j, const Transaction& x, const LedgerNames& names,
                          const std::unordered_set<std::int64_t>& voided) {
   j.begin_object().member("id", static_cast<long long>(x.id)).member("date", x.date.str());
-  j.member("account", names.account(x.account_id));
-  j.member("kind", std::string(to_string(x.kind))).member("symbol", names.symbol(x.security_id));
+  j.member("account", names.account_on(x.account_id, x.date));
+  j.member("kind", std::string(to_string(x.kind))).member("symbol", names.symbol_on(x.security_id, x.date));
   j.member("quantity", history_opt(x.quantity)).member("price", history_opt(x.price));
   j.member("amount", history_opt(x.amount)).member("fee", x.fee);
   j.member("ref", x.ref.value_or("")).member("note", x.note.value_or(""));

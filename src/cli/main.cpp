@@ -42,6 +42,8 @@ int main(int argc, char** argv) {
                "Open a ledger file that other users can write to");
 
   keel::cli::register_ledger_commands(app, context);
+  keel::cli::register_action_commands(app, context);
+  keel::cli::register_change_commands(app, context);
   keel::cli::register_report_commands(app, context);
   keel::cli::register_intake_commands(app, context);
   keel::cli::register_returns_commands(app, context);

@@ -18,12 +18,14 @@
 #include "io/sha256.h"
 #include "io/table.h"
 #include "ledger/accounts.h"
+#include "ledger/action_posting.h"
 #include "ledger/period.h"
 #include "ledger/posting.h"
 #include "model/security.h"
 #include "store/ledger_store.h"
 #include "store/market_data.h"
 #include "store/period_store.h"
+#include "store/record_change_store.h"
 
 namespace keel::io {
 namespace {
@@ -320,6 +322,12 @@ void book_rows(store::Database& db, const std::filesystem::path& file, std::vect
   std::map<std::pair<std::string, std::string>, std::uint64_t> refs_in_file, contents_in_file;
   std::vector<IntakeRow> fresh_rows;
   std::vector<std::int64_t> replaces;  // per fresh row: the booked row it corrects, or 0
+  for (const auto& row : rows)
+    if (row.request.symbol && !store::find_security(db, *row.request.symbol))
+      if (const auto now = store::find_security_by_former_symbol(db, *row.request.symbol))
+        sum.notes.push_back(fmt::format("{}:{}: '{}' is a former symbol of '{}'; booked to it",
+                                        file.string(), row.line, printable(*row.request.symbol),
+                                        printable(now->symbol)));
   for (auto& row : rows) {
     ledger::PostRequest& r = row.request;
     r.allow_future = options.allow_future;
@@ -515,6 +523,82 @@ LedgerImportSummary import_accounts(store::Database& db, const std::filesystem::
   if (!errors.empty()) errors.raise("nothing was changed");
   if (options.dry_run) return sum;
   if (sum.added > 0) record_run(db, "accounts", file, sum);
+  tx.commit();
+  return sum;
+}
+
+LedgerImportSummary import_actions(store::Database& db, const std::filesystem::path& file,
+                                   const ImportOptions& options) {
+  const Mapping mapping = checked_mapping(options, "actions");
+  CsvReader csv = open_import_csv(file, mapping, options);
+  ErrorList errors(file.string());
+  LedgerImportSummary sum = new_summary(file, options);
+  store::WriteTransaction tx(db);
+  {
+    enum { kDate, kSymbol, kAction, kInto, kRatio, kCash, kPercent, kInLieu, kNote };
+    TableReader t(csv, mapping,
+                  {{"date"},
+                   {"symbol"},
+                   {"action"},
+                   {"into", false},
+                   {"ratio", false},
+                   {"cash", false},
+                   {"cost_percent", false},
+                   {"cash_in_lieu", false},
+                   {"note", false}},
+                  errors);
+    const std::map<std::string, std::size_t> column_of{{"into", kInto},
+                                                       {"ratio", kRatio},
+                                                       {"cash", kCash},
+                                                       {"cost-percent", kPercent},
+                                                       {"cash-in-lieu", kInLieu}};
+    while (t.next()) {
+      std::string date, ratio, cash, percent, in_lieu;
+      std::string_view symbol, action;
+      if (!t.date(kDate, date) || !t.text(kSymbol, symbol) || !t.text(kAction, action)) continue;
+      if ((t.has(kRatio) && !t.decimal(kRatio, ratio)) ||
+          (t.has(kCash) && !t.decimal(kCash, cash)) ||
+          (t.has(kPercent) && !t.decimal(kPercent, percent)))
+        continue;
+      ledger::ActionRequest r;
+      try {
+        r.kind = parse_action_kind(ascii_lower(action));
+      } catch (const InputError& e) {
+        t.error(kAction, e.what());
+        continue;
+      }
+      r.date = Date::parse(date);
+      if (!options.allow_future && !t.not_future(kDate, r.date)) continue;
+      r.allow_future = true;  // checked just above, naming the column
+      r.symbol = std::string(symbol);
+      if (t.has(kInto)) r.target = std::string(t.raw(kInto));
+      if (!ratio.empty()) r.ratio = Decimal::parse(ratio);
+      if (!cash.empty()) r.cash = Decimal::parse(cash);
+      if (!percent.empty()) r.cost_percent = Decimal::parse(percent);
+      r.cash_in_lieu = t.has(kInLieu);  // its value is the price per unit
+      if (t.has(kInLieu)) {
+        if (!t.decimal(kInLieu, in_lieu)) continue;
+        r.in_lieu_price = Decimal::parse(in_lieu);
+      }
+      if (t.has(kNote)) r.note = std::string(t.raw(kNote));
+      try {
+        ledger::write_action_unchecked(db, r);
+        ++sum.added;
+      } catch (const ledger::ShapeError& e) {
+        const auto it = column_of.find(e.field());
+        t.error(it == column_of.end() ? npos : it->second,
+                fmt::format("{}: {}", to_string(r.kind), e.reason()));
+      } catch (const InputError& e) {
+        t.error(npos, e.what());
+      }
+    }
+    sum.rows = t.rows();
+  }
+  sum.sha256 = csv.sha256_hex();
+  if (!errors.empty()) errors.raise("nothing was changed");
+  ledger::check_ledger(db);
+  if (options.dry_run) return sum;
+  if (sum.added > 0) record_run(db, "actions", file, sum);
   tx.commit();
   return sum;
 }

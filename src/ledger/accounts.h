@@ -12,6 +12,11 @@
 //    figure adding amounts of several accounts is refused when they keep
 //    different ones: InputError "WHAT: the accounts keep different currencies
 //    (A: EUR; B: USD) ...", naming each.
+//  - change_security() / rename_account(): new descriptive values for a record
+//    that keeps its id (and so its history, closes and figures); each changed
+//    field's old value is kept with `effective`, the first day of the new
+//    one. A change to the same value, or to a symbol or name another record
+//    has, is refused. Runs inside the caller's WriteTransaction.
 #pragma once
 
 #include <cstdint>
@@ -28,6 +33,15 @@ namespace keel::ledger {
 
 std::int64_t add_account(store::Database& db, Account account);
 std::int64_t add_security(store::Database& db, Security security);
+struct SecurityChange {
+  std::optional<std::string> symbol, name, sector;
+  std::optional<Decimal> lot_size;
+};
+// Returns the security as it now is.
+Security change_security(store::Database& db, const std::string& symbol,
+                         const SecurityChange& change, Date effective);
+void rename_account(store::Database& db, const std::string& name, const std::string& new_name,
+                    Date effective);
 std::optional<std::string> one_currency(const std::vector<Account>& accounts,
                                         std::string_view what);
 // "A: EUR; B: USD" when `accounts` keep more than one currency; else unset.

@@ -7,6 +7,7 @@
 
 #include "core/error.h"
 #include "core/text.h"
+#include "ledger/actions.h"
 
 namespace keel {
 
@@ -137,7 +138,9 @@ std::string Book::describe(const Transaction& t) const {
   return fmt::format("transaction {} ({})", t.id, where);
 }
 
-namespace {
+void Book::apply_action(const CorporateAction& action) {
+  ActionEngine(*this).apply(action);
+}
 
 // Order in which lots are taken for a method; `lots` is left untouched.
 std::vector<std::size_t> taking_order(const std::vector<Lot>& lots, BasisMethod method) {
@@ -189,8 +192,6 @@ void drop_empty(std::vector<Lot>& lots) {
       std::remove_if(lots.begin(), lots.end(), [](const Lot& l) { return l.quantity.is_zero(); }),
       lots.end());
 }
-
-}  // namespace
 
 std::vector<Lot> Book::take_lots(const Transaction& txn, const Account& account,
                                  Position& position) {
@@ -434,6 +435,7 @@ Replayer::Replayer(const LedgerLog& log) : book_(log.accounts, log.pending, log.
   std::sort(live_.begin(), live_.end(), [](const Transaction* a, const Transaction* b) {
     return a->date != b->date ? a->date < b->date : a->id < b->id;
   });
+  actions_ = live_actions(log.actions);
   for (const auto& split : log.splits) splits_.push_back(&split);
   std::sort(splits_.begin(), splits_.end(), [](const Split* a, const Split* b) {
     return a->date != b->date ? a->date < b->date : a->id < b->id;
@@ -449,18 +451,30 @@ void Replayer::close_open_day(const DayObserver& observer) {
 
 const Book& Replayer::advance_to(Date day, const DayObserver& observer) {
   for (;;) {
-    // The next event is the earlier of the next split and the next
-    // transaction; a split goes first on a shared day (start of day).
-    const bool split_next =
-        next_split_ < splits_.size() && splits_[next_split_]->date <= day &&
-        (next_txn_ >= live_.size() || splits_[next_split_]->date <= live_[next_txn_]->date);
-    const bool txn_next = !split_next && next_txn_ < live_.size() && live_[next_txn_]->date <= day;
-    if (!split_next && !txn_next) break;
-    const Date event_day = split_next ? splits_[next_split_]->date : live_[next_txn_]->date;
+    // The next event is the earliest of the next split, corporate action and
+    // transaction; on a shared day splits go first, then actions (start of day).
+    const std::optional<Date> split_day =
+        next_split_ < splits_.size() && splits_[next_split_]->date <= day
+            ? std::optional(splits_[next_split_]->date)
+            : std::nullopt;
+    const std::optional<Date> action_day =
+        next_action_ < actions_.size() && actions_[next_action_]->date <= day
+            ? std::optional(actions_[next_action_]->date)
+            : std::nullopt;
+    const std::optional<Date> txn_day = next_txn_ < live_.size() && live_[next_txn_]->date <= day
+                                            ? std::optional(live_[next_txn_]->date)
+                                            : std::nullopt;
+    const bool split_next = split_day && (!action_day || *split_day <= *action_day) &&
+                            (!txn_day || *split_day <= *txn_day);
+    const bool action_next = !split_next && action_day && (!txn_day || *action_day <= *txn_day);
+    if (!split_next && !action_next && !txn_day) break;
+    const Date event_day = split_next ? *split_day : action_next ? *action_day : *txn_day;
     if (open_day_ && *open_day_ != event_day) close_open_day(observer);
     open_day_ = event_day;
     if (split_next)
       book_.apply_split(*splits_[next_split_++]);
+    else if (action_next)
+      book_.apply_action(*actions_[next_action_++]);
     else
       book_.apply(*live_[next_txn_++]);
   }

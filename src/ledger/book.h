@@ -2,8 +2,9 @@
 //
 // The ledger stores only transactions and splits; positions, lots, cash and
 // realized gains are always recomputed from them, so there is nothing cached
-// that could drift. Replay order is (date, id); a split applies at the start
-// of its day, before that day's transactions.
+// that could drift. Replay order is (date, id); splits and then corporate
+// actions (ledger/actions.h) apply at the start of their day, before that
+// day's transactions.
 //
 // Rules enforced while replaying (each violation throws InputError naming the
 // transaction, account, day and figures):
@@ -73,6 +74,7 @@ struct RealizedPart {
   Decimal quantity;
   Decimal proceeds;  // net of the sell's fee, allocated by quantity
   Decimal cost;
+  std::int64_t action_id = 0;  // the corporate action that disposed of it (sell_txn_id is 0)
   Decimal gain() const { return proceeds - cost; }
   // A security in another currency: proceeds and cost in that currency, and
   // the part of gain() that the price made (see docs/methods-ledger.md).
@@ -128,6 +130,7 @@ class Book {
                 std::shared_ptr<const market::FxRates> rates = nullptr);
 
   void apply_split(const Split& split);
+  void apply_action(const CorporateAction& action);  // ledger/actions.h
   void apply(const Transaction& txn);
   // Checks end-of-day rules (cash) for every account touched on `day`.
   void close_day(Date day);
@@ -148,6 +151,7 @@ class Book {
   std::optional<Decimal> last_trade_price(std::int64_t security_id) const;
 
  private:
+  friend class ActionEngine;
   AccountBook& book_of(std::int64_t account_id);
   std::vector<Lot> take_lots(const Transaction& txn, const Account& account, Position& position);
   void apply_buy(const Transaction& txn, AccountBook& book);
@@ -198,10 +202,18 @@ std::vector<Decimal> allocate(const Decimal& total, const std::vector<Decimal>& 
 // allocate(cost, {taken, held - taken}, kCostPlaces), all of it when every unit goes.
 Decimal cost_share(const Decimal& cost, const Decimal& taken, const Decimal& held);
 
+// Lot-taking helpers shared with the action engine: the order in which a
+// method takes lots (`lots` untouched), cutting `quantity` off a lot with its
+// share of cost, and dropping lots left empty.
+std::vector<std::size_t> taking_order(const std::vector<Lot>& lots, BasisMethod method);
+Lot cut(Lot& lot, const Decimal& quantity);
+void drop_empty(std::vector<Lot>& lots);
+
 struct LedgerLog {
   std::vector<Account> accounts;
   std::vector<Transaction> transactions;  // any order; voids included
   std::vector<Split> splits;
+  std::vector<CorporateAction> actions;  // any order; voids included
   // Ids written by the current, uncommitted change, each with where it came
   // from ("broker.csv:12"; empty for a single command). Errors name them so,
   // not by an id that will not exist once the change is rolled back.
@@ -211,7 +223,7 @@ struct LedgerLog {
 };
 
 // Called after the last transaction of each day that has one (and each split
-// day), with the book as it stands at that day's close.
+// or corporate action day), with the book as it stands at that day's close.
 using DayObserver = std::function<void(Date day, const Book& book)>;
 
 // Steps through the log day by day: advance_to(d) applies every split and
@@ -230,13 +242,15 @@ class Replayer {
   void close_open_day(const DayObserver& observer);
   std::vector<const Transaction*> live_;
   std::vector<const Split*> splits_;
+  std::vector<const CorporateAction*> actions_;
   Book book_;
   std::size_t next_txn_ = 0;
   std::size_t next_split_ = 0;
+  std::size_t next_action_ = 0;
   std::optional<Date> open_day_;
 };
 
-// Replays every transaction and split dated on or before `until` (all, when
+// Replays every transaction, split and corporate action dated on or before `until` (all, when
 // unset), skipping voided transactions and the voids themselves.
 Book replay(const LedgerLog& log, std::optional<Date> until = std::nullopt,
             const DayObserver& observer = {});

@@ -8,6 +8,7 @@
 #include "core/text.h"
 #include "market/fx_rates.h"
 #include "model/security.h"
+#include "store/action_store.h"
 #include "store/ledger_store.h"
 
 namespace keel::ledger {
@@ -260,6 +261,7 @@ LedgerLog load_log(store::Database& db) {
   log.transactions = store::list_transactions(db);
   log.splits = store::list_splits(db);
   log.rates = std::make_shared<const market::FxRates>(market::FxRates::load(db));
+  log.actions = store::list_actions(db);
   return log;
 }
 

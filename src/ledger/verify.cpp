@@ -9,7 +9,9 @@
 #include "core/error.h"
 #include "core/text.h"
 #include "ledger/fx_cash.h"
+#include "ledger/actions.h"
 #include "ledger/period.h"
+#include "ledger/plausibility.h"
 #include "ledger/posting.h"
 #include "store/fx_store.h"
 #include "store/ledger_store.h"
@@ -25,7 +27,7 @@ struct Recount {
   std::map<std::pair<std::int64_t, std::int64_t>, Decimal> units;   // (account, security)
 };
 
-// Cash and units from the raw rows, without the lot engine.
+// Cash and units from the raw rows and corporate actions, without the lot engine.
 Recount recount(const LedgerLog& log) {
   const auto voided = voided_ids(log.transactions);
   std::vector<const Transaction*> live;
@@ -37,12 +39,68 @@ Recount recount(const LedgerLog& log) {
   for (const auto& s : log.splits) splits.push_back(&s);
   std::stable_sort(splits.begin(), splits.end(),
                    [](const Split* a, const Split* b) { return a->date < b->date; });
+  const auto actions = live_actions(log.actions);
   Recount r;
-  std::size_t next_split = 0;
+  std::size_t next_split = 0, next_action = 0;
+  // Units of one security in every account that has a count of it.
+  auto holdings = [&](std::int64_t security_id) {
+    std::vector<std::pair<std::int64_t, Decimal*>> out;
+    for (auto& [key, units] : r.units)
+      if (key.second == security_id && units.is_positive()) out.emplace_back(key.first, &units);
+    return out;
+  };
+  // Whole units kept; the fraction of what was received paid at the in-lieu price.
+  auto in_lieu = [&](const CorporateAction& a, std::int64_t account, Decimal& units,
+                     const Decimal& received) {
+    if (!a.in_lieu) return;
+    const Decimal fraction = received - received.truncated(0);
+    units -= fraction;
+    r.cash[account] += (fraction * *a.in_lieu).rounded(kCostPlaces);
+  };
+  auto apply_action = [&](const CorporateAction& a) {
+    for (auto [account, units] : holdings(a.security_id)) {
+      const Decimal held = *units;
+      const Decimal cash = a.cash ? (held * *a.cash).rounded(kCostPlaces) : Decimal();
+      switch (a.kind) {
+        case ActionKind::split:
+        case ActionKind::stock_dividend:
+          *units = held * (a.kind == ActionKind::split ? *a.ratio : Decimal(1) + *a.ratio);
+          in_lieu(a, account, *units, *units);
+          break;
+        case ActionKind::return_of_capital:
+          r.cash[account] += cash;
+          break;
+        case ActionKind::delisting:
+        case ActionKind::merger:
+        case ActionKind::spinoff: {
+          r.cash[account] += cash;
+          if (a.kind != ActionKind::spinoff) *units = Decimal();
+          if (a.ratio && a.target_id) {
+            Decimal& target = r.units[{account, *a.target_id}];
+            target += held * *a.ratio;
+            in_lieu(a, account, target, held * *a.ratio);
+          }
+          break;
+        }
+        case ActionKind::void_entry:
+          break;
+      }
+    }
+  };
   auto apply_splits_through = [&](Date day) {
-    for (; next_split < splits.size() && splits[next_split]->date <= day; ++next_split)
-      for (auto& [key, units] : r.units)
-        if (key.second == splits[next_split]->security_id) units *= splits[next_split]->ratio;
+    for (;;) {
+      const bool split = next_split < splits.size() && splits[next_split]->date <= day;
+      const bool action = next_action < actions.size() && actions[next_action]->date <= day;
+      if (split && (!action || splits[next_split]->date <= actions[next_action]->date)) {
+        for (auto& [key, units] : r.units)
+          if (key.second == splits[next_split]->security_id) units *= splits[next_split]->ratio;
+        ++next_split;
+      } else if (action) {
+        apply_action(*actions[next_action++]);
+      } else {
+        break;
+      }
+    }
   };
   std::map<std::int64_t, std::string> own;
   for (const auto& a : log.accounts) own[a.id] = a.currency;
@@ -229,6 +287,9 @@ VerifyReport verify(store::Database& db) {
        {store::future_rows(db, Date::today()), store::text_problems(db), store::name_warnings(db)})
     report.warnings.insert(report.warnings.end(), more.begin(), more.end());
   report.warnings.insert(report.warnings.end(), sign_warnings.begin(), sign_warnings.end());
+  for (const auto& flag : plausibility_flags(db, log))
+    report.warnings.push_back(
+        flag.message + fmt::format(" (if it is right: keel confirm {} --reason ...)", flag.txn_id));
   const PeriodLocks locks = PeriodLocks::load(db);
   for (const auto& [account_id, day] : store::last_reconciled_days(db))
     for (const auto& a : log.accounts)

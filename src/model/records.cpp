@@ -73,6 +73,31 @@ TxnKind parse_txn_kind(std::string_view text) {
                                printable(text), choices(kKinds, kKinds.size() - 1)));
 }
 
+namespace {
+constexpr std::array<std::pair<ActionKind, std::string_view>, 7> kActionKinds{{
+    {ActionKind::split, "split"},
+    {ActionKind::merger, "merger"},
+    {ActionKind::spinoff, "spinoff"},
+    {ActionKind::return_of_capital, "return_of_capital"},
+    {ActionKind::stock_dividend, "stock_dividend"},
+    {ActionKind::delisting, "delisting"},
+    {ActionKind::void_entry, "void"},
+}};
+}  // namespace
+
+std::string_view to_string(ActionKind kind) {
+  for (const auto& [k, name] : kActionKinds)
+    if (k == kind) return name;
+  return "split";
+}
+
+ActionKind parse_action_kind(std::string_view text) {
+  for (std::size_t i = 0; i + 1 < kActionKinds.size(); ++i)
+    if (kActionKinds[i].second == text) return kActionKinds[i].first;
+  throw InputError(fmt::format("unknown corporate action '{}'; expected one of: {}",
+                               printable(text), choices(kActionKinds, kActionKinds.size() - 1)));
+}
+
 bool is_cash_kind(TxnKind kind) {
   switch (kind) {
     case TxnKind::deposit:

@@ -7,12 +7,13 @@
 #include <unordered_set>
 
 #include "core/error.h"
+#include "ledger/actions.h"
 
 namespace keel::perf {
 namespace {
 
-// Days that get an entry: from - 1, and every transaction, split or close day
-// inside [from - 1, to].
+// Days that get an entry: from - 1, and every transaction, split, corporate
+// action or close day inside [from - 1, to].
 std::vector<Date> entry_days(const Replayer& replayer, const LedgerLog& log,
                              const market::Series& prices, Date first, Date to) {
   std::vector<Date> days{first};
@@ -21,6 +22,7 @@ std::vector<Date> entry_days(const Replayer& replayer, const LedgerLog& log,
   };
   for (const Transaction* t : replayer.live()) keep(t->date);
   for (const auto& s : log.splits) keep(s.date);
+  for (const auto* a : live_actions(log.actions)) keep(a->date);
   for (const Date d : prices.trading_days()) keep(d);
   std::sort(days.begin(), days.end());
   days.erase(std::unique(days.begin(), days.end()), days.end());
@@ -68,6 +70,11 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
     if (!prices.has(r, c)) return std::nullopt;
     return prices.exact(r, c);
   };
+  // Corporate actions change the units of their security and of the one it
+  // merges or spins into, in every account.
+  const auto actions = live_actions(log.actions);
+  std::size_t action_cursor = 0;
+  while (action_cursor < actions.size() && actions[action_cursor]->date <= first) ++action_cursor;
   // Open quantities in scope, by (account, security).
   std::map<std::pair<std::int64_t, std::int64_t>, Decimal> held;
   auto refresh = [&](const Book& book, std::int64_t account, std::int64_t security) {
@@ -97,6 +104,13 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
         for (const auto& info : book.accounts())
           if (!account_id || info.id == *account_id)
             refresh(book, info.id, splits[split_cursor]->security_id);
+      for (; action_cursor < actions.size() && actions[action_cursor]->date <= d; ++action_cursor)
+        for (const auto& info : book.accounts())
+          if (!account_id || info.id == *account_id) {
+            refresh(book, info.id, actions[action_cursor]->security_id);
+            if (actions[action_cursor]->target_id)
+              refresh(book, info.id, *actions[action_cursor]->target_id);
+          }
     }
     for (const auto& info : book.accounts())
       if (!account_id || info.id == *account_id) point.value += book.account(info.id).cash;

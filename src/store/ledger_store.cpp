@@ -4,42 +4,19 @@
 #include <fmt/format.h>
 #include <sqlite3.h>
 
+#include <algorithm>
+#include <cctype>
 #include <chrono>
 #include <ctime>
 
 #include "core/error.h"
+#include "core/suggest.h"
 #include "core/text.h"
+#include "store/record_change_store.h"
+#include "store/sql_values.h"
 
 namespace keel::store {
 namespace {
-
-template <typename T>
-void bind_optional(SQLite::Statement& st, int index, const std::optional<T>& value) {
-  if (value)
-    st.bind(index, *value);
-  else
-    st.bind(index);
-}
-
-void bind_decimal(SQLite::Statement& st, int index, const std::optional<Decimal>& value) {
-  if (value)
-    st.bind(index, value->str());
-  else
-    st.bind(index);
-}
-
-std::optional<std::string> opt_text(const SQLite::Column& c) {
-  if (c.isNull()) return std::nullopt;
-  return c.getString();
-}
-std::optional<Decimal> opt_decimal(const SQLite::Column& c) {
-  if (c.isNull()) return std::nullopt;
-  return Decimal::parse(c.getString());
-}
-std::optional<std::int64_t> opt_id(const SQLite::Column& c) {
-  if (c.isNull()) return std::nullopt;
-  return c.getInt64();
-}
 
 Account read_account(SQLite::Statement& st) {
   Account a;
@@ -103,6 +80,26 @@ bool is_unique_violation(const SQLite::Exception& e) {
 }
 
 }  // namespace
+
+std::optional<std::string> nearest_names(std::string_view name,
+                                         const std::vector<std::string>& known) {
+  for (const auto& k : known)
+    if (k.size() == name.size() && std::equal(k.begin(), k.end(), name.begin(), [](char a, char b) {
+          return std::tolower(static_cast<unsigned char>(a)) ==
+                 std::tolower(static_cast<unsigned char>(b));
+        }))
+      return fmt::format("did you mean '{}'? (it differs in letter case only)", printable(k));
+  const auto close = closest(name, known);
+  if (close.empty()) return std::nullopt;
+  std::string list;
+  for (std::size_t i = 0; i < close.size(); ++i)
+    list += fmt::format("{}'{}'",
+                        i == 0                  ? ""
+                        : i + 1 == close.size() ? " or "
+                                                : ", ",
+                        printable(close[i]));
+  return fmt::format("did you mean {}?", list);
+}
 
 std::string utc_timestamp() {
   const std::time_t now = std::time(nullptr);
@@ -173,7 +170,13 @@ std::vector<Account> list_accounts(Database& db) {
 Account account_named(Database& db, std::string_view name) {
   if (auto a = find_account(db, name)) return *a;
   std::string known;
-  for (const auto& a : list_accounts(db)) known += (known.empty() ? "" : ", ") + a.name;
+  std::vector<std::string> names;
+  for (const auto& a : list_accounts(db)) {
+    known += (known.empty() ? "" : ", ") + a.name;
+    names.push_back(a.name);
+  }
+  if (const auto hint = nearest_names(name, names))
+    throw InputError(fmt::format("unknown account '{}'; {}", printable(name), *hint));
   throw InputError(fmt::format("unknown account '{}'{}", printable(name),
                                known.empty() ? "; add one with 'keel account add NAME'"
                                              : "; known accounts: " + printable(known)));
@@ -212,6 +215,20 @@ std::optional<Security> find_security(Database& db, std::string_view symbol) {
 
 Security security_with_symbol(Database& db, std::string_view symbol) {
   if (auto s = find_security(db, symbol)) return *s;
+  // A symbol the security had before a change still names it.
+  if (auto s = find_security_by_former_symbol(db, std::string(symbol))) return *s;
+  std::vector<std::string> symbols;
+  for (const auto& s : list_securities(db)) symbols.push_back(s.symbol);
+  const auto hint = nearest_names(symbol, symbols);
+  // A symbol that differs only in letter case is surely the one meant: no
+  // invitation to add a near-duplicate.
+  if (hint && hint->find("letter case") != std::string::npos)
+    throw InputError(fmt::format("unknown security '{}'; {}", printable(symbol), *hint));
+  if (hint)
+    throw InputError(
+        fmt::format("unknown security '{}'; {} To add a new one: 'keel security "
+                    "add {}'",
+                    printable(symbol), *hint, printable(symbol)));
   throw InputError(fmt::format("unknown security '{}'; add it with 'keel security add {}'",
                                printable(symbol), printable(symbol)));
 }

@@ -47,6 +47,12 @@ std::int64_t last_transaction_id(Database& db);
 std::int64_t insert_split(Database& db, const Split& split);
 std::vector<Split> list_splits(Database& db);  // by date, then id
 
+// "did you mean 'QRX'?" for a name not among `known`: the one that differs
+// only in ASCII letter case (said so), else the nearest by core/suggest.h;
+// unset when nothing is close.
+std::optional<std::string> nearest_names(std::string_view name,
+                                         const std::vector<std::string>& known);
+
 // The current UTC time as ISO 8601, for recorded_at columns.
 std::string utc_timestamp();
 

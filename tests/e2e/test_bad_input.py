@@ -581,7 +581,7 @@ row("command: none given", [], USAGE,
     ["keel: error: no command given",
      "Run 'keel help' for the list of commands, or 'keel demo' to see keel at work."])
 row("command: a group without its command", ["account"], USAGE,
-    ["keel: error: 'keel account' needs one of its commands: add, list",
+    ["keel: error: 'keel account' needs one of its commands: add, rename, list",
      "Run 'keel help account' for what each does."])
 row("option: mistyped", ["holdings", "--as-off", "2024-01-31"], USAGE,
     ["keel: error: 'keel holdings' has no option '--as-off'", "Did you mean '--as-of'?",
@@ -598,6 +598,52 @@ row("option: a global option mistyped after the command", ["holdings", "--dbb", 
 row("help: an unknown command", ["help", "record", "buyy"], USAGE,
     ["keel: error: 'buyy' is not a command of 'keel record'", "Did you mean 'buy'?",
      "Run 'keel help record' for its commands."])
+
+# --- corporate actions ----------------------------------------------------------------------
+row("action: a ratio of zero", ["record", "split", "--date", "2024-03-01", "--symbol", "QRX",
+                                "--ratio", "0", "--cash-in-lieu", "5"], INPUT,
+    "keel: error: split: --ratio must be positive, not 0")
+row("action: a negative ratio", ["record", "stock-dividend", "--date", "2024-03-01", "--symbol",
+                                 "QRX", "--ratio", "-0.5"], INPUT,
+    "keel: error: stock-dividend: --ratio must be positive, not -0.5")
+row("action: a percentage over 100", ["record", "spinoff", "--date", "2024-03-01", "--symbol", "QRX",
+                                      "--into", "VLM", "--ratio", "1", "--cost-percent", "101"],
+    INPUT, "keel: error: spinoff: --cost-percent must be at most 100, not 101")
+row("action: a day when no account holds the security",
+    ["record", "return-of-capital", "--date", "2024-03-01", "--symbol", "VLM", "--cash", "1"], INPUT,
+    "keel: error: a return-of-capital of VLM dated 2024-03-01: no account holds VLM when "
+    "2024-03-01 begins")
+row("action: a day before the security was held",
+    ["record", "delisting", "--date", "2024-01-03", "--symbol", "QRX", "--cash", "0"], INPUT,
+    "keel: error: a delisting of QRX dated 2024-01-03: no account holds QRX when 2024-01-03 begins")
+row("action: cash in lieu without a price",
+    ["record", "split", "--date", "2024-03-01", "--symbol", "QRX", "--ratio", "0.3",
+     "--cash-in-lieu", ""], INPUT,
+    "keel: error: split: --cash-in-lieu needs the price per unit at which fractions are paid")
+row("action: a merger into a security that does not exist",
+    ["record", "merger", "--date", "2024-03-01", "--symbol", "QRX", "--into", "QRXX", "--ratio", "1"],
+    INPUT, "keel: error: a merger of QRX dated 2024-03-01: --into 'QRXX' is not a security of this "
+    "ledger; add it first with 'keel security add'")
+row("action: a void of an action that does not exist", ["action", "void", "99", "--reason", "x"],
+    INPUT, "keel: error: there is no corporate action 99")
+ACT = "date,symbol,action,into,ratio,cash,cost_percent,cash_in_lieu,note\n"
+import_row("actions: a second action of the same kind on the same day", "actions",
+           ACT + "2024-03-01,QRX,return_of_capital,,,1,,,\n2024-03-01,QRX,return_of_capital,,,2,,,\n",
+           INPUT, refused("{f}:3: a return-of-capital of QRX dated 2024-03-01: action 1 is already a "
+                          "return-of-capital of QRX on that day; void it first to record another"))
+import_row("actions: an unknown action", "actions", ACT + "2024-03-01,QRX,buyback,,,1,,,\n", INPUT,
+           refused("{f}:2: column 'action': unknown corporate action 'buyback'; expected one of: "
+                   "split, merger, spinoff, return_of_capital, stock_dividend, delisting"))
+import_row("actions: a percentage over 100", "actions",
+           ACT + "2024-03-01,QRX,spinoff,VLM,1,,150,,\n", INPUT,
+           refused("{f}:2: column 'cost_percent': spinoff: must be at most 100, not 150"))
+row("confirm: a transaction no check flags", ["confirm", "2", "--reason", "fine"], INPUT,
+    "keel: error: transaction 2 is not flagged by any plausibility check")
+row("security change: to a symbol another security has",
+    ["security", "change", "QRX", "--symbol", "VLM", "--date", "2024-03-01"], INPUT,
+    "keel: error: a security with the symbol 'VLM' exists already")
+row("account rename: to the same name", ["account", "rename", T, T, "--date", "2024-03-01"], INPUT,
+    f"keel: error: account '{T}' has that name already")
 
 # --- the ledger file itself ----------------------------------------------------------------
 failures = []
