@@ -10,9 +10,11 @@
 #include "cli/options.h"
 #include "cli/print.h"
 #include "core/error.h"
+#include "core/text.h"
 #include "io/json.h"
 #include "ledger/holdings.h"
 #include "ledger/posting.h"
+#include "ledger/tax.h"
 #include "report/gain_rows.h"
 #include "report/table.h"
 #include "store/ledger_store.h"
@@ -132,48 +134,99 @@ void add_lots(CLI::App& app, Context& ctx) {
   });
 }
 
+Json gain_json(const ledger::GainLine& g) {
+  Json j{{"account", g.account},
+         {"symbol", g.symbol},
+         {"lot", g.part.lot_id},
+         {"sell", g.part.sell_txn_id},
+         {"acquired", g.part.acquired.str()},
+         {"disposed", g.part.disposed.str()},
+         {"quantity", g.part.quantity.str()},
+         {"proceeds", g.part.proceeds.str()},
+         {"cost", g.part.cost.str()},
+         {"gain", g.part.gain().str()},
+         {"term", g.long_term ? "long" : "short"},
+         {"tax_status", to_string(g.tax_status)}};
+  if (g.repurchase)
+    j["repurchase"] = {{"buy", g.repurchase->txn_id},
+                       {"account", g.repurchase->account},
+                       {"date", g.repurchase->day.str()}};
+  return j;
+}
+
+// The table of some gain lines with their totals by term.
+std::string gain_table(const std::vector<ledger::GainLine>& gains, bool colour) {
+  const auto totals = ledger::totals_by_term(gains);
+  Table t(report::gain_columns("term"));
+  for (const auto& g : gains) t.add_row(report::displayed(report::gain_cells(g)));
+  t.add_rule();
+  t.add_row({"short-term", "", "", "", "", "", "", "", money(totals.short_term.gain), ""});
+  t.add_row({"long-term", "", "", "", "", "", "", "", money(totals.long_term.gain), ""});
+  t.add_row({"total", "", "", "", "", "", "", "", money(totals.all().gain), ""});
+  return t.render({colour});
+}
+
+struct GainsOptions : ViewOptions {
+  int repurchase_window = 0;
+};
+
 void add_gains(CLI::App& app, Context& ctx) {
-  auto o = std::make_shared<ViewOptions>();
-  auto* cmd = app.add_subcommand("gains", "Realized gains, one line per closed lot part");
-  add_examples(*cmd, {"keel gains --year 2025", "keel gains --year 2025 --account Taxable --json"});
+  auto o = std::make_shared<GainsOptions>();
+  auto* cmd = app.add_subcommand(
+      "gains",
+      "Realized gains, one line per closed lot part; taxable accounts first, the others apart");
+  add_examples(*cmd, {"keel gains --year 2025 --account Taxable --json",
+                      "keel gains --year 2025 --repurchase-window 30"});
   cmd->add_option("--year", o->year, "Only disposals in this calendar year");
   add_account_option(*cmd, o->account);
+  auto* window =
+      cmd->add_option("--repurchase-window", o->repurchase_window,
+                      "Flag each sale at a loss with a buy of the same security, in any account, "
+                      "this many days before or after it (off unless given)");
   add_json_flag(*cmd, o->json);
-  cmd->callback([&ctx, o] {
+  cmd->callback([&ctx, o, window] {
     if (o->year != 0 && (o->year < 1 || o->year > 9999))
       throw InputError(fmt::format("--year: '{}' is not a calendar year (1 to 9999)", o->year));
+    if (window->count() > 0) ledger::check_repurchase_window(o->repurchase_window);
     auto db = ctx.open_ledger();
-    const auto gains = ledger::realized_gains(
-        db, o->year ? std::optional<int>(o->year) : std::nullopt, text_option(o->account));
-    const auto totals = ledger::totals_by_term(gains);
+    auto gains = ledger::realized_gains(db, o->year ? std::optional<int>(o->year) : std::nullopt,
+                                        text_option(o->account));
+    if (window->count() > 0) ledger::flag_repurchases(db, gains, o->repurchase_window);
+    std::vector<ledger::GainLine> taxable, elsewhere;
+    for (auto& g : gains) (g.taxable() ? taxable : elsewhere).push_back(std::move(g));
+    const auto totals = ledger::totals_by_term(taxable);
     if (o->json) {
       Json j;
       j["gains"] = Json::array();
-      for (const auto& g : gains)
-        j["gains"].push_back({{"account", g.account},
-                              {"symbol", g.symbol},
-                              {"lot", g.part.lot_id},
-                              {"sell", g.part.sell_txn_id},
-                              {"acquired", g.part.acquired.str()},
-                              {"disposed", g.part.disposed.str()},
-                              {"quantity", g.part.quantity.str()},
-                              {"proceeds", g.part.proceeds.str()},
-                              {"cost", g.part.cost.str()},
-                              {"gain", g.part.gain().str()},
-                              {"term", g.long_term ? "long" : "short"}});
+      for (const auto& g : taxable) j["gains"].push_back(gain_json(g));
       j["total_short"] = totals.short_term.gain.str();
       j["total_long"] = totals.long_term.gain.str();
       j["total"] = totals.all().gain.str();
+      j["not_taxable"] = Json::array();
+      for (const auto& g : elsewhere) j["not_taxable"].push_back(gain_json(g));
+      j["not_taxable_total"] = ledger::totals_by_term(elsewhere).all().gain.str();
+      if (window->count() > 0) j["repurchase_window_days"] = o->repurchase_window;
       print_json(j);
       return;
     }
-    Table t(report::gain_columns("term"));
-    for (const auto& g : gains) t.add_row(report::displayed(report::gain_cells(g)));
-    t.add_rule();
-    t.add_row({"short-term", "", "", "", "", "", "", "", money(totals.short_term.gain), ""});
-    t.add_row({"long-term", "", "", "", "", "", "", "", money(totals.long_term.gain), ""});
-    t.add_row({"total", "", "", "", "", "", "", "", money(totals.all().gain), ""});
-    out(t.render({ctx.colour()}));
+    out(gain_table(taxable, ctx.colour()));
+    if (!elsewhere.empty()) {
+      out("\nNot a taxable event here (tax-deferred and tax-exempt accounts):\n");
+      out(gain_table(elsewhere, ctx.colour()));
+    }
+    bool flagged = false;
+    for (const auto* list : {&taxable, &elsewhere})
+      for (const auto& g : *list) {
+        if (!g.repurchase) continue;
+        if (!flagged) out("\n");
+        flagged = true;
+        out(fmt::format(
+            "Repurchase: {} lot {} in {}, sold {} at a loss of {}; bought again on {}\n  in {} "
+            "(buy {}), within {} days: the loss may be disallowed under local rules.\n",
+            printable(g.symbol), g.part.lot_id, printable(g.account), g.part.disposed.str(),
+            money(-g.part.gain()), g.repurchase->day.str(), printable(g.repurchase->account),
+            g.repurchase->txn_id, o->repurchase_window));
+      }
     out("Tax treatment depends on local rules; check with your tax authority or a licensed "
         "professional.\n");
   });
@@ -223,15 +276,35 @@ void add_lists(CLI::App& app, Context& ctx) {
   accounts->callback([&ctx, json_accounts] {
     auto db = ctx.open_ledger();
     Json j = Json::array();
-    Table t({{"id", Align::right}, {"name"}, {"currency"}, {"basis"}, {"negative cash"}});
+    Table t({{"id", Align::right},
+             {"name"},
+             {"currency"},
+             {"basis"},
+             {"negative cash"},
+             {"tax status (from)"}});
+    const auto statuses = ledger::TaxStatuses::load(db);
     for (const auto& a : store::list_accounts(db)) {
+      // Every recorded status, oldest first; "since opening" for the first.
+      Json history = Json::array();
+      std::string shown;
+      for (const auto& c : statuses.changes()) {
+        if (c.account_id != a.id) continue;
+        const std::string from = c.from == ledger::since_opening() ? "" : c.from.str();
+        history.push_back(
+            {{"status", to_string(c.status)}, {"from", from.empty() ? Json() : Json(from)}});
+        shown = from.empty() ? std::string(to_string(c.status))
+                             : fmt::format("{} ({})", to_string(c.status), from);
+      }
+      if (history.empty()) shown = "taxable";
       j.push_back({{"id", a.id},
                    {"name", a.name},
                    {"currency", a.currency},
                    {"basis", to_string(a.basis)},
-                   {"allow_negative_cash", a.allow_negative_cash}});
+                   {"allow_negative_cash", a.allow_negative_cash},
+                   {"tax_status", history.empty() ? Json("taxable") : history.back()["status"]},
+                   {"tax_status_history", history}});
       t.add_row({std::to_string(a.id), a.name, a.currency, std::string(to_string(a.basis)),
-                 a.allow_negative_cash ? "allowed" : "no"});
+                 a.allow_negative_cash ? "allowed" : "no", shown});
     }
     *json_accounts ? print_json(j) : out(t.render({ctx.colour()}));
   });
@@ -243,16 +316,23 @@ void add_lists(CLI::App& app, Context& ctx) {
   securities->callback([&ctx, json_securities] {
     auto db = ctx.open_ledger();
     Json j = Json::array();
-    Table t({{"symbol"}, {"name"}, {"kind"}, {"currency"}, {"lot size", Align::right}, {"sector"}});
+    Table t({{"symbol"},
+             {"name"},
+             {"kind"},
+             {"currency"},
+             {"lot size", Align::right},
+             {"sector"},
+             {"country"}});
     for (const auto& s : store::list_securities(db)) {
       j.push_back({{"symbol", s.symbol},
                    {"name", s.name},
                    {"kind", to_string(s.kind)},
                    {"currency", s.currency},
                    {"lot_size", s.lot_size.str()},
-                   {"sector", s.sector ? Json(*s.sector) : Json()}});
+                   {"sector", s.sector ? Json(*s.sector) : Json()},
+                   {"country", s.country ? Json(*s.country) : Json()}});
       t.add_row({s.symbol, s.name, std::string(to_string(s.kind)), s.currency, s.lot_size.str(),
-                 s.sector.value_or("")});
+                 s.sector.value_or(""), s.country.value_or("")});
     }
     *json_securities ? print_json(j) : out(t.render({ctx.colour()}));
   });

@@ -135,6 +135,28 @@ nlohmann::ordered_json statement_json(const Statement& s) {
                                   {"date", t.day.str()},
                                   {"symbol", t.symbol.empty() ? Json() : Json(t.symbol)},
                                   {"amount", t.amount.str()}});
+  j["not_taxable"] = Json::array();
+  for (const auto& r : s.not_taxable)
+    j["not_taxable"].push_back({{"account", r.account},
+                                {"status", r.status},
+                                {"date", r.day.str()},
+                                {"kind", r.kind},
+                                {"symbol", r.symbol.empty() ? Json() : Json(r.symbol)},
+                                {"amount", r.amount.str()},
+                                {"withheld", r.withheld.str()}});
+  Json by_security = Json::array();
+  for (const auto& w : s.withholding.by_security)
+    by_security.push_back({{"symbol", w.symbol.empty() ? Json() : Json(w.symbol)},
+                           {"country", w.country ? Json(*w.country) : Json()},
+                           {"income", w.income.str()},
+                           {"withheld", w.withheld.str()}});
+  Json by_country = Json::object();
+  for (const auto& [country, amount] : s.withholding.by_country)
+    by_country[country.empty() ? "unknown" : country] = amount.str();
+  j["withholding"] = {{"by_security", by_security},
+                      {"by_country", by_country},
+                      {"total", s.withholding.total.str()},
+                      {"not_taxable", s.withholding.not_taxable.str()}};
   j["cautions"] = s.cautions;
   return j;
 }

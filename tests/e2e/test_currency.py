@@ -15,7 +15,7 @@ sys.path.insert(0, os.path.dirname(__file__))
 from keel_cli import SOURCE, Ledger, check, equal  # noqa: E402
 
 # The newest schema version: one migration file per version.
-SCHEMA = len([f for f in os.listdir(os.path.join(SOURCE, "migrations")) if f.endswith(".sql")])
+SCHEMA = max(int(f[:4]) for f in os.listdir(os.path.join(SOURCE, "migrations")) if f.endswith(".sql"))
 
 
 def digest(path):
