@@ -1,4 +1,5 @@
-// Commands that write the ledger: init, account add, security add, record, void.
+// Commands that write the ledger: init, account add and tax-status, security add, record,
+// void.
 #include <fmt/format.h>
 
 #include <memory>
@@ -14,6 +15,7 @@
 #include "ledger/action_posting.h"
 #include "ledger/plausibility.h"
 #include "ledger/posting.h"
+#include "ledger/tax.h"
 #include "store/ledger_store.h"
 
 namespace keel::cli {
@@ -47,9 +49,17 @@ void add_init(CLI::App& app, Context& ctx) {
 }
 
 struct AccountAddOptions {
-  std::string name, currency, basis = "fifo";
+  std::string name, currency, basis = "fifo", tax_status = "taxable";
   bool allow_negative = false;
 };
+
+TaxStatus tax_status_option(const std::string& text, std::string_view option) {
+  try {
+    return parse_tax_status(text);
+  } catch (const InputError& e) {
+    throw InputError(fmt::format("{}: {}", option, e.what()));
+  }
+}
 
 void add_account_add(CLI::App& group, Context& ctx) {
   auto o = std::make_shared<AccountAddOptions>();
@@ -62,7 +72,11 @@ void add_account_add(CLI::App& group, Context& ctx) {
                   "becomes the ledger's)");
   cmd->add_option("--basis", o->basis, "Cost-basis method: fifo, lifo, hifo, average, specific");
   cmd->add_flag("--allow-negative-cash", o->allow_negative, "Let cash go below zero (margin)");
+  cmd->add_option("--tax-status", o->tax_status,
+                  "taxable, tax-deferred or tax-exempt, from the account's opening (change it "
+                  "later with 'keel account tax-status')");
   cmd->callback([&ctx, o] {
+    const TaxStatus status = tax_status_option(o->tax_status, "--tax-status");
     Account a;
     a.name = o->name;
     if (!o->currency.empty()) a.currency = normalize_currency(o->currency);
@@ -70,16 +84,42 @@ void add_account_add(CLI::App& group, Context& ctx) {
     a.allow_negative_cash = o->allow_negative;
     auto db = ctx.open_ledger(store::Access::write);
     store::WriteTransaction tx(db);
-    const auto id = ledger::add_account(db, a);
+    const auto id = ledger::add_account(db, a, status);
     a = *store::find_account(db, a.name);
     tx.commit();
-    out(fmt::format("account {} '{}' added ({}, {}{})\n", id, printable(a.name), a.currency,
-                    to_string(a.basis), a.allow_negative_cash ? ", negative cash allowed" : ""));
+    out(fmt::format("account {} '{}' added ({}, {}{}{})\n", id, printable(a.name), a.currency,
+                    to_string(a.basis), a.allow_negative_cash ? ", negative cash allowed" : "",
+                    status == TaxStatus::taxable ? "" : fmt::format(", {}", to_string(status))));
+  });
+}
+
+struct TaxStatusOptions {
+  std::string name, status, from;
+};
+
+void add_account_tax_status(CLI::App& group, Context& ctx) {
+  auto o = std::make_shared<TaxStatusOptions>();
+  auto* cmd = group.add_subcommand(
+      "tax-status", "Change an account's tax status from a day on (the history is kept)");
+  add_examples(*cmd, {"keel account tax-status Retirement tax-deferred --from 2026-01-01"});
+  cmd->add_option("NAME", o->name, "Account name")->required();
+  cmd->add_option("STATUS", o->status, "taxable, tax-deferred or tax-exempt")->required();
+  cmd->add_option("--from", o->from, "First day of the new status (YYYY-MM-DD)")->required();
+  cmd->callback([&ctx, o] {
+    const TaxStatus status = tax_status_option(o->status, "STATUS");
+    const auto from = date_option(o->from, "--from");
+    if (!from) throw InputError("--from: give the first day of the new status (YYYY-MM-DD)");
+    auto db = ctx.open_ledger(store::Access::write);
+    store::WriteTransaction tx(db);
+    ledger::set_tax_status(db, o->name, status, *from);
+    tx.commit();
+    out(fmt::format("account '{}' is {} from {}\n", printable(o->name), to_string(status),
+                    from->str()));
   });
 }
 
 struct SecurityAddOptions {
-  std::string symbol, name, kind, currency, lot_size = "1", sector;
+  std::string symbol, name, kind, currency, lot_size = "1", sector, country;
 };
 
 void add_security_add(CLI::App& group, Context& ctx) {
@@ -95,6 +135,8 @@ void add_security_add(CLI::App& group, Context& ctx) {
   cmd->add_option("--currency", o->currency, "Three-letter currency code (default: the ledger's)");
   cmd->add_option("--lot-size", o->lot_size, "Smallest tradable multiple (1 = whole units)");
   cmd->add_option("--sector", o->sector, "Sector label, for rule universes");
+  cmd->add_option("--country", o->country,
+                  "Issuer's country, ISO 3166-1 alpha-2 (such as NL), for withholding by country");
   cmd->callback([&ctx, o] {
     Security s;
     s.symbol = o->symbol;
@@ -107,6 +149,13 @@ void add_security_add(CLI::App& group, Context& ctx) {
       throw InputError(fmt::format("--lot-size: {}", e.what()));
     }
     if (!o->sector.empty()) s.sector = o->sector;
+    if (!o->country.empty()) {
+      try {
+        s.country = normalize_country(o->country);
+      } catch (const InputError& e) {
+        throw InputError(fmt::format("--country: {}", e.what()));
+      }
+    }
     auto db = ctx.open_ledger(store::Access::write);
     store::WriteTransaction tx(db);
     const auto id = ledger::add_security(db, s);
@@ -373,6 +422,7 @@ void register_ledger_commands(CLI::App& app, Context& ctx) {
   auto* accounts = app.add_subcommand("account", "Add, list or rename accounts");
   accounts->require_subcommand(1);
   add_account_add(*accounts, ctx);
+  add_account_tax_status(*accounts, ctx);
   auto* securities = app.add_subcommand("security", "Add, list or change securities");
   securities->require_subcommand(1);
   add_security_add(*securities, ctx);

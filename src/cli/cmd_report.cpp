@@ -14,6 +14,8 @@
 #include "ledger/holdings.h"
 #include "ledger/posting.h"
 #include "report/format.h"
+#include "core/text.h"
+#include "ledger/tax.h"
 #include "report/gain_rows.h"
 #include "report/table.h"
 #include "store/action_store.h"
@@ -177,58 +179,109 @@ void add_lots(CLI::App& app, Context& ctx) {
   });
 }
 
+void gain_json(JsonWriter& j, const ledger::GainLine& g) {
+  j.begin_object().member("account", g.account).member("symbol", g.symbol);
+  j.member("lot", static_cast<long long>(g.part.lot_id));
+  // A disposal is by a sell or by a corporate action (keel action list).
+  if (g.part.action_id != 0)
+    j.member("action", static_cast<long long>(g.part.action_id));
+  else
+    j.member("sell", static_cast<long long>(g.part.sell_txn_id));
+  j.member("acquired", g.part.acquired.str()).member("disposed", g.part.disposed.str());
+  j.member("quantity", g.part.quantity).member("proceeds", g.part.proceeds);
+  j.member("cost", g.part.cost).member("gain", g.part.gain());
+  j.member("term", g.long_term ? "long" : "short");
+  j.member("tax_status", std::string(to_string(g.tax_status)));
+  // A security in another currency: its local figures and the split of the
+  // gain (docs/methods-ledger.md).
+  if (g.part.local_cost) {
+    j.member("local_proceeds", *g.part.local_proceeds).member("local_cost", *g.part.local_cost);
+    j.member("price_part", g.part.price_part());
+    j.member("currency_part", g.part.currency_part());
+  }
+  if (g.repurchase) {
+    j.key("repurchase").begin_object().member("buy", static_cast<long long>(g.repurchase->txn_id));
+    j.member("account", g.repurchase->account).member("date", g.repurchase->day.str());
+    j.end_object();
+  }
+  j.end_object();
+}
+
+// The table of some gain lines with their totals by term.
+std::string gain_table(const std::vector<ledger::GainLine>& gains, bool colour) {
+  const auto totals = ledger::totals_by_term(gains);
+  Table t(report::gain_columns("term"));
+  for (const auto& g : gains) t.add_row(report::displayed(report::gain_cells(g)));
+  t.add_rule();
+  t.add_row({"short-term", "", "", "", "", "", "", "", money(totals.short_term.gain), ""});
+  t.add_row({"long-term", "", "", "", "", "", "", "", money(totals.long_term.gain), ""});
+  t.add_row({"total", "", "", "", "", "", "", "", money(totals.all().gain), ""});
+  return t.render({colour});
+}
+
+struct GainsOptions : ViewOptions {
+  int repurchase_window = 0;
+};
+
 void add_gains(CLI::App& app, Context& ctx) {
-  auto o = std::make_shared<ViewOptions>();
-  auto* cmd = app.add_subcommand("gains", "Realized gains, one line per closed lot part");
-  add_examples(*cmd, {"keel gains --year 2025", "keel gains --year 2025 --account Taxable --json"});
+  auto o = std::make_shared<GainsOptions>();
+  auto* cmd = app.add_subcommand(
+      "gains",
+      "Realized gains, one line per closed lot part; taxable accounts first, the others apart");
+  add_examples(*cmd, {"keel gains --year 2025 --account Taxable --json",
+                      "keel gains --year 2025 --repurchase-window 30"});
   cmd->add_option("--year", o->year, "Only disposals in this calendar year");
   add_account_option(*cmd, o->account);
+  auto* window =
+      cmd->add_option("--repurchase-window", o->repurchase_window,
+                      "Flag each sale at a loss with a buy of the same security, in any account, "
+                      "this many days before or after it (off unless given)");
   add_json_flag(*cmd, o->json);
-  cmd->callback([&ctx, o] {
+  cmd->callback([&ctx, o, window] {
     if (o->year != 0 && (o->year < 1 || o->year > 9999))
       throw InputError(fmt::format("--year: '{}' is not a calendar year (1 to 9999)", o->year));
+    if (window->count() > 0) ledger::check_repurchase_window(o->repurchase_window);
     auto db = ctx.open_ledger();
-    const auto gains = ledger::realized_gains(
-        db, o->year ? std::optional<int>(o->year) : std::nullopt, text_option(o->account));
-    const auto totals = ledger::totals_by_term(gains);
+    auto gains = ledger::realized_gains(db, o->year ? std::optional<int>(o->year) : std::nullopt,
+                                        text_option(o->account));
+    if (window->count() > 0) ledger::flag_repurchases(db, gains, o->repurchase_window);
+    std::vector<ledger::GainLine> taxable, elsewhere;
+    for (auto& g : gains) (g.taxable() ? taxable : elsewhere).push_back(std::move(g));
+    const auto totals = ledger::totals_by_term(taxable);
     if (o->json) {
       print_json([&](JsonWriter& j) {
         j.begin_object().key("gains").begin_array();
-        for (const auto& g : gains) {
-          j.begin_object().member("account", g.account).member("symbol", g.symbol);
-          j.member("lot", static_cast<long long>(g.part.lot_id));
-          // A disposal is by a sell or by a corporate action (keel action list).
-          if (g.part.action_id != 0)
-            j.member("action", static_cast<long long>(g.part.action_id));
-          else
-            j.member("sell", static_cast<long long>(g.part.sell_txn_id));
-          j.member("acquired", g.part.acquired.str()).member("disposed", g.part.disposed.str());
-          j.member("quantity", g.part.quantity).member("proceeds", g.part.proceeds);
-          j.member("cost", g.part.cost).member("gain", g.part.gain());
-          j.member("term", g.long_term ? "long" : "short");
-          // A security in another currency: its local figures and the split
-          // of the gain (docs/methods-ledger.md).
-          if (g.part.local_cost) {
-            j.member("local_proceeds", *g.part.local_proceeds);
-            j.member("local_cost", *g.part.local_cost);
-            j.member("price_part", g.part.price_part());
-            j.member("currency_part", g.part.currency_part());
-          }
-          j.end_object();
-        }
+        for (const auto& g : taxable) gain_json(j, g);
         j.end_array();
         j.member("total_short", totals.short_term.gain).member("total_long", totals.long_term.gain);
-        j.member("total", totals.all().gain).end_object();
+        j.member("total", totals.all().gain);
+        j.key("not_taxable").begin_array();
+        for (const auto& g : elsewhere) gain_json(j, g);
+        j.end_array();
+        j.member("not_taxable_total", ledger::totals_by_term(elsewhere).all().gain);
+        if (window->count() > 0) j.member("repurchase_window_days", o->repurchase_window);
+        j.end_object();
       });
       return;
     }
-    Table t(report::gain_columns("term"));
-    for (const auto& g : gains) t.add_row(report::displayed(report::gain_cells(g)));
-    t.add_rule();
-    t.add_row({"short-term", "", "", "", "", "", "", "", money(totals.short_term.gain), ""});
-    t.add_row({"long-term", "", "", "", "", "", "", "", money(totals.long_term.gain), ""});
-    t.add_row({"total", "", "", "", "", "", "", "", money(totals.all().gain), ""});
-    out(t.render({ctx.colour()}));
+    out(gain_table(taxable, ctx.colour()));
+    if (!elsewhere.empty()) {
+      out("\nNot a taxable event here (tax-deferred and tax-exempt accounts):\n");
+      out(gain_table(elsewhere, ctx.colour()));
+    }
+    bool flagged = false;
+    for (const auto* list : {&taxable, &elsewhere})
+      for (const auto& g : *list) {
+        if (!g.repurchase) continue;
+        if (!flagged) out("\n");
+        flagged = true;
+        out(fmt::format(
+            "Repurchase: {} lot {} in {}, sold {} at a loss of {}; bought again on {}\n  in {} "
+            "(buy {}), within {} days: the loss may be disallowed under local rules.\n",
+            printable(g.symbol), g.part.lot_id, printable(g.account), g.part.disposed.str(),
+            money(-g.part.gain()), g.repurchase->day.str(), printable(g.repurchase->account),
+            g.repurchase->txn_id, o->repurchase_window));
+      }
     out("Tax treatment depends on local rules; check with your tax authority or a licensed "
         "professional.\n");
   });
@@ -292,13 +345,36 @@ void add_lists(CLI::App& app, Context& ctx) {
     std::string json;
     JsonWriter j(json);
     j.begin_array();
-    Table t({{"id", Align::right}, {"name"}, {"currency"}, {"basis"}, {"negative cash"}});
+    Table t({{"id", Align::right},
+             {"name"},
+             {"currency"},
+             {"basis"},
+             {"negative cash"},
+             {"tax status (from)"}});
+    const auto statuses = ledger::TaxStatuses::load(db);
     for (const auto& a : store::list_accounts(db)) {
       j.begin_object().member("id", static_cast<long long>(a.id)).member("name", a.name);
       j.member("currency", a.currency).member("basis", std::string(to_string(a.basis)));
-      j.member("allow_negative_cash", a.allow_negative_cash).end_object();
+      j.member("allow_negative_cash", a.allow_negative_cash);
+      // Every recorded status, oldest first; "since opening" for the first.
+      std::vector<const ledger::TaxStatusChange*> history;
+      for (const auto& c : statuses.changes())
+        if (c.account_id == a.id) history.push_back(&c);
+      std::string shown = "taxable";
+      j.member("tax_status",
+               history.empty() ? "taxable" : std::string(to_string(history.back()->status)));
+      j.key("tax_status_history").begin_array();
+      for (const auto* c : history) {
+        const bool opening = c->from == ledger::since_opening();
+        j.begin_object().member("status", std::string(to_string(c->status)));
+        j.member("from", opening ? std::nullopt : std::optional<std::string>(c->from.str()));
+        j.end_object();
+        shown = opening ? std::string(to_string(c->status))
+                        : fmt::format("{} ({})", to_string(c->status), c->from.str());
+      }
+      j.end_array().end_object();
       t.add_row({std::to_string(a.id), a.name, a.currency, std::string(to_string(a.basis)),
-                 a.allow_negative_cash ? "allowed" : "no"});
+                 a.allow_negative_cash ? "allowed" : "no", shown});
     }
     j.end_array();
     out(*json_accounts ? json + "\n" : t.render({ctx.colour()}));
@@ -313,13 +389,20 @@ void add_lists(CLI::App& app, Context& ctx) {
     std::string json;
     JsonWriter j(json);
     j.begin_array();
-    Table t({{"symbol"}, {"name"}, {"kind"}, {"currency"}, {"lot size", Align::right}, {"sector"}});
+    Table t({{"symbol"},
+             {"name"},
+             {"kind"},
+             {"currency"},
+             {"lot size", Align::right},
+             {"sector"},
+             {"country"}});
     for (const auto& s : store::list_securities(db)) {
       j.begin_object().member("symbol", s.symbol).member("name", s.name);
       j.member("kind", std::string(to_string(s.kind))).member("currency", s.currency);
-      j.member("lot_size", s.lot_size).member("sector", s.sector).end_object();
+      j.member("lot_size", s.lot_size).member("sector", s.sector);
+      j.member("country", s.country).end_object();
       t.add_row({s.symbol, s.name, std::string(to_string(s.kind)), s.currency, s.lot_size.str(),
-                 s.sector.value_or("")});
+                 s.sector.value_or(""), s.country.value_or("")});
     }
     j.end_array();
     out(*json_securities ? json + "\n" : t.render({ctx.colour()}));

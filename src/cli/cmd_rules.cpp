@@ -9,8 +9,10 @@
 #include "cli/options.h"
 #include "core/error.h"
 #include "core/text.h"
+#include "ledger/tax.h"
 #include "report/proposal_forms.h"
 #include "rules/propose.h"
+#include "rules/repurchase.h"
 
 namespace keel::cli {
 namespace {
@@ -19,6 +21,7 @@ struct ProposeOptions {
   std::string rule, as_of;
   bool json = false;
   bool save = false;
+  int repurchase_window = 0;
 };
 
 void add_propose(CLI::App& app, Context& ctx) {
@@ -32,11 +35,18 @@ void add_propose(CLI::App& app, Context& ctx) {
                   "Day to propose for, YYYY-MM-DD (default: the latest day with a close)");
   add_json_flag(*cmd, o->json);
   cmd->add_flag("--save", o->save, "Keep the proposal, to compare with what is traded later");
-  cmd->callback([&ctx, o] {
+  auto* window =
+      cmd->add_option("--repurchase-window", o->repurchase_window,
+                      "Flag each sell at an estimated loss when the security was bought, in any "
+                      "account, this many days before, or is bought by the proposal (off unless "
+                      "given)");
+  cmd->callback([&ctx, o, window] {
     const auto as_of = date_option(o->as_of, "--as-of");
+    if (window->count() > 0) ledger::check_repurchase_window(o->repurchase_window);
     const auto rule = rules::load_rule(o->rule);
     auto db = ctx.open_ledger(o->save ? store::Access::write : store::Access::read);
-    const auto proposal = rules::propose(db, rule, as_of);
+    auto proposal = rules::propose(db, rule, as_of);
+    if (window->count() > 0) rules::flag_repurchases(db, proposal, o->repurchase_window);
     std::optional<std::int64_t> id;
     if (o->save) id = rules::save(db, rule, proposal);
     if (o->json) {

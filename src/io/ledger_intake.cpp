@@ -481,7 +481,11 @@ LedgerImportSummary import_accounts(store::Database& db, const std::filesystem::
   store::WriteTransaction tx(db);
   {
     TableReader t(csv, mapping,
-                  {{"name"}, {"currency"}, {"basis", false}, {"allow_negative_cash", false}},
+                  {{"name"},
+                   {"currency"},
+                   {"basis", false},
+                   {"allow_negative_cash", false},
+                   {"tax_status", false}},
                   errors);
     std::set<std::string> names;
     while (t.next()) {
@@ -498,6 +502,8 @@ LedgerImportSummary import_accounts(store::Database& db, const std::filesystem::
             throw InputError("allow_negative_cash must be yes or no");
           a.allow_negative_cash = flag == "yes" || flag == "true";
         }
+        const TaxStatus status =
+            t.has(4) ? parse_tax_status(ascii_lower(t.raw(4))) : TaxStatus::taxable;
         if (!names.insert(a.name).second) {
           t.error(0, fmt::format("account '{}' appears twice in this file", printable(a.name)));
           continue;
@@ -511,7 +517,7 @@ LedgerImportSummary import_accounts(store::Database& db, const std::filesystem::
             ++sum.already_booked;
           continue;
         }
-        ledger::add_account(db, a);
+        ledger::add_account(db, a, status);
         ++sum.added;
       } catch (const InputError& e) {
         t.error(npos, e.what());

@@ -4,6 +4,7 @@
 
 #include "core/error.h"
 #include "core/text.h"
+#include "ledger/tax.h"
 #include "store/ledger_store.h"
 #include "store/record_change_store.h"
 
@@ -20,9 +21,10 @@ std::string take_ledger_currency(store::Database& db, std::string_view what) {
 
 }  // namespace
 
-std::int64_t add_account(store::Database& db, Account account) {
+std::int64_t add_account(store::Database& db, Account account, TaxStatus status) {
   if (account.currency.empty()) account.currency = take_ledger_currency(db, "account add");
   const auto id = store::insert_account(db, account);
+  store::insert_tax_status(db, {id, since_opening(), status});
   // The first account of a ledger without a currency gives it its own.
   if (!store::ledger_currency(db) && store::list_accounts(db).size() == 1)
     store::set_ledger_currency(db, account.currency);

@@ -4,7 +4,9 @@
 //  - add_account(): an account given no currency (empty) takes the ledger's;
 //    when the ledger has none yet it is refused, saying how to give one. The
 //    first account added to a ledger without a currency makes its own
-//    currency the ledger's. Runs inside the caller's WriteTransaction.
+//    currency the ledger's. Its tax status (taxable unless given) is
+//    recorded as holding since its opening (ledger/tax.h). Runs inside the
+//    caller's WriteTransaction.
 //  - add_security(): a security given no currency takes the ledger's; refused
 //    when the ledger has none.
 //  - one_currency(): the currency every one of `accounts` keeps (unset when
@@ -31,7 +33,8 @@
 
 namespace keel::ledger {
 
-std::int64_t add_account(store::Database& db, Account account);
+std::int64_t add_account(store::Database& db, Account account,
+                         TaxStatus status = TaxStatus::taxable);
 std::int64_t add_security(store::Database& db, Security security);
 struct SecurityChange {
   std::optional<std::string> symbol, name, sector;

@@ -9,6 +9,7 @@
 #include "ledger/accounts.h"
 #include "ledger/posting.h"
 #include "market/day_view.h"
+#include "ledger/tax.h"
 #include "store/ledger_store.h"
 
 namespace keel::ledger {
@@ -122,6 +123,7 @@ std::vector<GainLine> realized_gains(store::Database& db, std::optional<int> yea
   const auto only = account_filter(db, account);
   const auto symbols = symbols_by_id(db);
   const Book book = replay(load_log(db));
+  const auto statuses = TaxStatuses::load(db);
   std::vector<GainLine> out;
   for (const auto& part : book.realized()) {
     if (only && part.account_id != *only) continue;
@@ -130,6 +132,7 @@ std::vector<GainLine> realized_gains(store::Database& db, std::optional<int> yea
     line.days_held = part.disposed - part.acquired;
     line.long_term = long_term_days ? line.days_held > *long_term_days
                                     : held_long_term(part.acquired, part.disposed);
+    line.tax_status = statuses.on(part.account_id, part.disposed);
     out.push_back(std::move(line));
   }
   // The lines are in each account's own currency; their totals may not mix.

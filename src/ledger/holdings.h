@@ -68,16 +68,26 @@ struct LotLine {
 std::vector<LotLine> open_lots(store::Database& db, Date as_of,
                                const std::optional<std::string>& account = std::nullopt);
 
+// A buy of the same security near a sale at a loss (ledger/tax.h).
+struct Repurchase {
+  std::int64_t txn_id = 0;
+  std::string account;
+  Date day;
+};
+
 struct GainLine {
   std::string account;
   std::string symbol;
   RealizedPart part;
   int days_held = 0;  // disposal day minus acquisition day
   bool long_term = false;
+  TaxStatus tax_status = TaxStatus::taxable;  // the account's, on the disposal day
+  std::optional<Repurchase> repurchase{};     // set only by flag_repurchases()
+  bool taxable() const { return tax_status == TaxStatus::taxable; }
 };
 // Realized gains of parts disposed in `year` (every year when unset), in the
-// lot engine's order. A part is long-term when held more than
-// `long_term_days` days, or, when that is unset, when disposed of after the
+// lot engine's order, each with its account's tax status on the disposal day. A part is long-term
+// when held more than `long_term_days` days, or, when that is unset, when disposed of after the
 // first anniversary of its acquisition (held_long_term).
 std::vector<GainLine> realized_gains(store::Database& db, std::optional<int> year,
                                      const std::optional<std::string>& account = std::nullopt,

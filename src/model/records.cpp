@@ -34,6 +34,12 @@ constexpr std::array<std::pair<TxnKind, std::string_view>, 12> kKinds{{
     {TxnKind::void_entry, "void"},
 }};
 
+constexpr std::array<std::pair<TaxStatus, std::string_view>, 3> kStatuses{{
+    {TaxStatus::taxable, "taxable"},
+    {TaxStatus::tax_deferred, "tax-deferred"},
+    {TaxStatus::tax_exempt, "tax-exempt"},
+}};
+
 template <typename Table>
 std::string choices(const Table& table, std::size_t count) {
   std::string out;
@@ -57,6 +63,19 @@ BasisMethod parse_basis_method(std::string_view text) {
     if (name == text) return m;
   throw InputError(fmt::format("unknown cost-basis method '{}'; expected one of: {}",
                                printable(text), choices(kMethods, kMethods.size())));
+}
+
+std::string_view to_string(TaxStatus status) {
+  for (const auto& [s, name] : kStatuses)
+    if (s == status) return name;
+  return "taxable";
+}
+
+TaxStatus parse_tax_status(std::string_view text) {
+  for (const auto& [s, name] : kStatuses)
+    if (name == text) return s;
+  throw InputError(fmt::format("unknown tax status '{}'; expected one of: {}", printable(text),
+                               choices(kStatuses, kStatuses.size())));
 }
 
 std::string_view to_string(TxnKind kind) {

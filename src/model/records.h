@@ -40,6 +40,12 @@ TxnKind parse_txn_kind(std::string_view text);  // throws InputError naming the 
 // Kinds whose only figure is a cash amount.
 bool is_cash_kind(TxnKind kind);
 
+// How an account's gains and income are taxed, as a fact of the account (the
+// rules themselves are local; keel only keeps the status apart).
+enum class TaxStatus { taxable, tax_deferred, tax_exempt };
+std::string_view to_string(TaxStatus status);       // "taxable", "tax-deferred", "tax-exempt"
+TaxStatus parse_tax_status(std::string_view text);  // throws InputError naming the choices
+
 struct Account {
   std::int64_t id = 0;
   std::string name;
@@ -111,6 +117,13 @@ struct CorporateAction {
   std::optional<Decimal> in_lieu;         // price per fractional unit paid in cash
   std::optional<std::int64_t> voids_id;
   std::optional<std::string> note;
+};
+
+// An account's tax status from `from` on, until its next change.
+struct TaxStatusChange {
+  std::int64_t account_id = 0;
+  Date from;
+  TaxStatus status = TaxStatus::taxable;
 };
 
 struct Split {

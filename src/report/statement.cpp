@@ -249,11 +249,20 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   for (const auto& c : closing.cash) cash_total += c.amount;
   s.allocation.push_back({"cash", cash_total, weight_of(cash_total, closing.total_value)});
 
-  // Realized gains: the lot engine's parts disposed in the period.
+  // Realized gains: the lot engine's parts disposed in the period; those of
+  // accounts not taxable that day are listed apart.
+  const auto statuses = ledger::TaxStatuses::load(db);
+  Decimal sheltered_gain;
   for (auto& g :
        ledger::realized_gains(db, request.year, request.account, request.long_term_days)) {
     if (g.part.disposed < s.from || g.part.disposed > s.to) continue;
-    s.gains.push_back(std::move(g));
+    if (g.taxable()) {
+      s.gains.push_back(std::move(g));
+      continue;
+    }
+    sheltered_gain += g.part.gain();
+    s.not_taxable.push_back({g.account, std::string(to_string(g.tax_status)), g.part.disposed,
+                             "sale", g.symbol, g.part.gain(), Decimal()});
   }
   s.realized_totals = ledger::totals_by_term(s.gains);
 
@@ -277,6 +286,8 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   std::vector<const Transaction*> taxes;
   for (const Transaction* t : live) {
     const std::string symbol = t->security_id ? symbols[*t->security_id] : std::string();
+    const TaxStatus status = statuses.on(t->account_id, t->date);
+    const bool taxable = status == TaxStatus::taxable;
     switch (t->kind) {
       case TxnKind::deposit:
         y.deposits += *t->amount;
@@ -287,8 +298,13 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
       case TxnKind::dividend:
       case TxnKind::interest:
         (t->kind == TxnKind::dividend ? y.dividends : y.interest) += *t->amount;
-        s.income.push_back({account_names[t->account_id], t->date, std::string(to_string(t->kind)),
-                            symbol, *t->amount, Decimal()});
+        if (taxable)
+          s.income.push_back({account_names[t->account_id], t->date,
+                              std::string(to_string(t->kind)), symbol, *t->amount, Decimal()});
+        else
+          s.not_taxable.push_back({account_names[t->account_id], std::string(to_string(status)),
+                                   t->date, std::string(to_string(t->kind)), symbol, *t->amount,
+                                   Decimal()});
         break;
       case TxnKind::tax:
         y.withholding += *t->amount;
@@ -317,6 +333,19 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   for (const Transaction* t : taxes) {
     const std::string account = account_names[t->account_id];
     const std::string symbol = t->security_id ? symbols[*t->security_id] : std::string();
+    const TaxStatus status = statuses.on(t->account_id, t->date);
+    if (status != TaxStatus::taxable) {
+      auto it = std::find_if(s.not_taxable.begin(), s.not_taxable.end(), [&](const auto& row) {
+        return (row.kind == "dividend" || row.kind == "interest") && row.account == account &&
+               row.day == t->date && row.symbol == symbol;
+      });
+      if (it != s.not_taxable.end())
+        it->withheld += *t->amount;
+      else
+        s.not_taxable.push_back({account, std::string(to_string(status)), t->date, "tax", symbol,
+                                 *t->amount, Decimal()});
+      continue;
+    }
     auto it = std::find_if(s.income.begin(), s.income.end(), [&](const IncomeRow& row) {
       return row.account == account && row.day == t->date && row.symbol == symbol;
     });
@@ -325,6 +354,9 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
     else
       s.other_tax.push_back({account, t->date, symbol, *t->amount});
   }
+  std::stable_sort(s.not_taxable.begin(), s.not_taxable.end(),
+                   [](const NotTaxableRow& a, const NotTaxableRow& b) { return a.day < b.day; });
+  s.withholding = ledger::withholding(db, request.year, request.account);
 
   // Value pieces: the returns module's values and external flows; the lot
   // engine's realized gains and the cost basis moved by transfers.
@@ -332,7 +364,7 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   y.closing_value = r.closing_value;
   y.transfers_in = r.inflow - y.deposits;
   y.transfers_out = r.outflow - y.withdrawals;
-  y.realized_gain = s.realized_totals.all().gain;
+  y.realized_gain = s.realized_totals.all().gain + sheltered_gain;
   y.unrealized_opening = unrealized_total(opening);
   y.unrealized_closing = unrealized_total(closing);
   Decimal cost_moved;

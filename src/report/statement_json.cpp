@@ -129,6 +129,27 @@ std::string statement_json(const Statement& s) {
     j.member("amount", t.amount).end_object();
   }
   j.end_array();
+  j.key("not_taxable").begin_array();
+  for (const auto& r : s.not_taxable) {
+    j.begin_object().member("account", r.account).member("status", r.status);
+    j.member("date", r.day.str()).member("kind", r.kind);
+    symbol(j, r.symbol);
+    j.member("amount", r.amount).member("withheld", r.withheld).end_object();
+  }
+  j.end_array();
+  j.key("withholding").begin_object().key("by_security").begin_array();
+  for (const auto& w : s.withholding.by_security) {
+    j.begin_object();
+    symbol(j, w.symbol);
+    j.member("country", w.country).member("income", w.income).member("withheld", w.withheld);
+    j.end_object();
+  }
+  j.end_array().key("by_country").begin_object();
+  for (const auto& [country, amount] : s.withholding.by_country)
+    j.member(country.empty() ? "unknown" : country, amount);
+  j.end_object();
+  j.member("total", s.withholding.total).member("not_taxable", s.withholding.not_taxable);
+  j.end_object();
   j.member("cautions", s.cautions);
   j.end_object();
   return text + "\n";

@@ -37,6 +37,7 @@ Security read_security(SQLite::Statement& st) {
   s.currency = st.getColumn(4).getString();
   s.lot_size = Decimal::parse(st.getColumn(5).getString());
   s.sector = opt_text(st.getColumn(6));
+  s.country = opt_text(st.getColumn(7));
   return s;
 }
 
@@ -182,17 +183,47 @@ Account account_named(Database& db, std::string_view name) {
                                              : "; known accounts: " + printable(known)));
 }
 
+void insert_tax_status(Database& db, const TaxStatusChange& c) {
+  SQLite::Statement st(db.sql(),
+                       "INSERT INTO account_tax_status (account_id, from_day, status, recorded_at) "
+                       "VALUES (?, ?, ?, ?)");
+  st.bind(1, c.account_id);
+  st.bind(2, c.from.str());
+  st.bind(3, std::string(to_string(c.status)));
+  st.bind(4, utc_timestamp());
+  try {
+    st.exec();
+  } catch (const SQLite::Exception& e) {
+    if (is_unique_violation(e))
+      throw InputError(fmt::format(
+          "the account already has a tax status from {}; give another --from day", c.from.str()));
+    throw;
+  }
+}
+
+std::vector<TaxStatusChange> list_tax_statuses(Database& db) {
+  SQLite::Statement st(db.sql(),
+                       "SELECT account_id, from_day, status FROM account_tax_status "
+                       "ORDER BY account_id, from_day");
+  std::vector<TaxStatusChange> out;
+  while (st.executeStep())
+    out.push_back({st.getColumn(0).getInt64(), Date::parse(st.getColumn(1).getString()),
+                   parse_tax_status(st.getColumn(2).getString())});
+  return out;
+}
+
 std::int64_t insert_security(Database& db, const Security& s) {
   validate(s);
   SQLite::Statement st(db.sql(),
-                       "INSERT INTO security (symbol, name, kind, currency, lot_size, sector) "
-                       "VALUES (?, ?, ?, ?, ?, ?)");
+                       "INSERT INTO security (symbol, name, kind, currency, lot_size, sector, "
+                       "country) VALUES (?, ?, ?, ?, ?, ?, ?)");
   st.bind(1, s.symbol);
   st.bind(2, s.name);
   st.bind(3, std::string(to_string(s.kind)));
   st.bind(4, s.currency);
   st.bind(5, s.lot_size.str());
   bind_optional(st, 6, s.sector);
+  bind_optional(st, 7, s.country);
   try {
     st.exec();
   } catch (const SQLite::Exception& e) {
@@ -205,9 +236,10 @@ std::int64_t insert_security(Database& db, const Security& s) {
 }
 
 std::optional<Security> find_security(Database& db, std::string_view symbol) {
-  SQLite::Statement st(db.sql(),
-                       "SELECT id, symbol, name, kind, currency, lot_size, sector FROM security "
-                       "WHERE symbol = ?");
+  SQLite::Statement st(
+      db.sql(),
+      "SELECT id, symbol, name, kind, currency, lot_size, sector, country FROM security "
+      "WHERE symbol = ?");
   st.bind(1, std::string(symbol));
   if (!st.executeStep()) return std::nullopt;
   return read_security(st);
@@ -234,9 +266,10 @@ Security security_with_symbol(Database& db, std::string_view symbol) {
 }
 
 std::vector<Security> list_securities(Database& db) {
-  SQLite::Statement st(db.sql(),
-                       "SELECT id, symbol, name, kind, currency, lot_size, sector FROM security "
-                       "ORDER BY symbol");
+  SQLite::Statement st(
+      db.sql(),
+      "SELECT id, symbol, name, kind, currency, lot_size, sector, country FROM security "
+      "ORDER BY symbol");
   std::vector<Security> out;
   while (st.executeStep()) out.push_back(read_security(st));
   return out;

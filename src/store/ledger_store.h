@@ -28,6 +28,11 @@ std::optional<Account> find_account(Database& db, std::string_view name);
 Account account_named(Database& db, std::string_view name);
 std::vector<Account> list_accounts(Database& db);
 
+// A dated tax status; throws InputError when the account already has a
+// status recorded from that very day.
+void insert_tax_status(Database& db, const TaxStatusChange& change);
+std::vector<TaxStatusChange> list_tax_statuses(Database& db);  // by account id, then day
+
 std::int64_t insert_security(Database& db, const Security& security);
 std::optional<Security> find_security(Database& db, std::string_view symbol);
 Security security_with_symbol(Database& db, std::string_view symbol);

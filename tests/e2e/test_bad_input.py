@@ -492,6 +492,31 @@ row("init: --currency other than the ledger's", ["init", "--currency", "EUR"], I
 row("account add: unknown basis", ["account", "add", "Cedar", "--basis", "newest"], INPUT,
     "keel: error: unknown cost-basis method 'newest'; expected one of: fifo, lifo, hifo, average, "
     "specific")
+row("account add: unknown tax status", ["account", "add", "Cedar", "--tax-status", "sheltered"],
+    INPUT, "keel: error: --tax-status: unknown tax status 'sheltered'; expected one of: taxable, "
+    "tax-deferred, tax-exempt")
+row("account tax-status: unknown tax status",
+    ["account", "tax-status", T, "retirement", "--from", "2024-06-01"], INPUT,
+    "keel: error: STATUS: unknown tax status 'retirement'; expected one of: taxable, "
+    "tax-deferred, tax-exempt")
+row("account tax-status: --from not a calendar day",
+    ["account", "tax-status", T, "tax-exempt", "--from", "2024-02-30"], INPUT,
+    "keel: error: --from: '2024-02-30' is not a calendar date")
+row("account tax-status: the status already in force",
+    ["account", "tax-status", T, "taxable", "--from", "2024-06-01"], INPUT,
+    f"keel: error: account '{T}' is already taxable on 2024-06-01; nothing to change")
+row("account tax-status: unknown account",
+    ["account", "tax-status", "Nobody", "tax-exempt", "--from", "2024-06-01"], INPUT,
+    f"keel: error: unknown account 'Nobody'; known accounts: {T}, Birch Pension")
+row("security add: country not two letters",
+    ["security", "add", "ZRN", "--name", "Zornet", "--kind", "stock", "--country", "NLD"], INPUT,
+    "keel: error: --country: country 'NLD' is not a two-letter ISO 3166-1 code such as NL")
+row("propose: --repurchase-window below one day",
+    ["propose", "--rule", "{d}/rule.toml", "--repurchase-window", "0"], INPUT,
+    "keel: error: --repurchase-window: '0' days; give 1 or more (the window is off unless given)",
+    {"rule.toml": b"[scope]\naccounts = [\"Alder Taxable\"]\n\n[select]\nz_max = -0.5\n"})
+row("gains: --repurchase-window below one day", ["gains", "--repurchase-window", "-3"], INPUT,
+    "keel: error: --repurchase-window: '-3' days; give 1 or more (the window is off unless given)")
 row("security add: duplicate symbol",
     ["security", "add", "QRX", "--name", "Again", "--kind", "stock"], INPUT,
     "keel: error: a security with symbol 'QRX' already exists")
@@ -581,7 +606,7 @@ row("command: none given", [], USAGE,
     ["keel: error: no command given",
      "Run 'keel help' for the list of commands, or 'keel demo' to see keel at work."])
 row("command: a group without its command", ["account"], USAGE,
-    ["keel: error: 'keel account' needs one of its commands: add, rename, list",
+    ["keel: error: 'keel account' needs one of its commands: add, tax-status, rename, list",
      "Run 'keel help account' for what each does."])
 row("option: mistyped", ["holdings", "--as-off", "2024-01-31"], USAGE,
     ["keel: error: 'keel holdings' has no option '--as-off'", "Did you mean '--as-of'?",

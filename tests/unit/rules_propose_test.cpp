@@ -9,6 +9,7 @@
 
 #include "ledger_fixture.h"
 #include "rules/propose.h"
+#include "rules/repurchase.h"
 #include "store/market_data.h"
 #include "store/price_write.h"
 
@@ -454,4 +455,31 @@ TEST_CASE("property: no proposal overspends or oversells, and a second one finds
         MESSAGE(o.account << " " << o.symbol << " " << std::string(to_string(o.side)) << " "
                           << o.quantity.str() << ": " << o.reason);
     }
+}
+
+// The repurchase window on proposals (ledger/tax.h has the ledger's side):
+// D is proposed for sale at an estimated loss of 100 on 2024-05-31, and was
+// bought again in another account 21 days before.
+TEST_CASE("propose: a sell at a loss is flagged just inside the repurchase window, not outside") {
+  for (const auto& [window, flagged] : std::vector<std::pair<int, bool>>{{21, true}, {20, false}}) {
+    Month m;
+    m.account("Other");
+    m.cash(TxnKind::deposit, "2024-01-02", "Other", "1000");
+    m.buy("2024-05-10", "Other", "D", "5", "37");
+    auto p = propose(m.db, month_rule());
+    const auto cautions = p.cautions.size();
+    flag_repurchases(m.db, p, window);
+    const auto& d = p.plan.orders[0];
+    REQUIRE(d.symbol == "D");
+    if (flagged) {
+      CHECK(d.reason ==
+            "held; z = 0.63 > exit 0.00: sell all; sold at an estimated loss and bought on "
+            "2024-05-10 in Other, within 21 days: the loss may be disallowed under local rules");
+      REQUIRE(p.cautions.size() == cautions + 1);
+      CHECK(p.cautions.back().find("licensed professional") != std::string::npos);
+    } else {
+      CHECK(d.reason == "held; z = 0.63 > exit 0.00: sell all");
+      CHECK(p.cautions.size() == cautions);
+    }
+  }
 }
