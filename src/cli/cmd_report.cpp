@@ -357,7 +357,7 @@ void add_lists(CLI::App& app, Context& ctx) {
       j.member("currency", a.currency).member("basis", std::string(to_string(a.basis)));
       j.member("allow_negative_cash", a.allow_negative_cash);
       // Every recorded status, oldest first; "since opening" for the first.
-      std::vector<const ledger::TaxStatusChange*> history;
+      std::vector<const TaxStatusChange*> history;
       for (const auto& c : statuses.changes())
         if (c.account_id == a.id) history.push_back(&c);
       std::string shown = "taxable";
