@@ -4,197 +4,356 @@
 
 #include <algorithm>
 #include <limits>
-#include <map>
 #include <set>
-#include <unordered_set>
+#include <stdexcept>
+#include <type_traits>
 
 #include "core/error.h"
 #include "core/text.h"
+#include "rules/inputs.h"
 
 namespace keel::backtest {
 namespace {
 
-// Units are kept to this many places in the frictionless mode: far below any
-// price's cent, so the simulated value is exact to well within 1e-12.
+// Frictionless units checked exactly are kept to this many places: far below
+// any price's cent (see Request::exact_frictionless).
 constexpr int kUnitPlaces = 20;
+
+// A double as a Decimal with 10 places (the simulated values shown).
+Decimal decimal_of(double x) {
+  return Decimal::parse(fmt::format("{:.10f}", x));
+}
 
 struct Owed {
   Date pay;
   Decimal amount;
 };
 
-struct State {
-  Decimal cash;
-  std::map<std::int64_t, Decimal> units;  // only positive quantities
-  std::vector<Owed> owed;
+// How the frictionless pool counts: in binary doubles (the run), or in exact
+// decimals with units to kUnitPlaces (the check that the doubles agree).
+struct Binary {
+  using Num = double;
+  static double price(const market::Series& m, std::size_t row, int col) {
+    return m.value(row, col);
+  }
+  static double from(const Decimal& d) { return d.to_double(); }
+  static double quotient(double a, double b) { return a / b; }
+  static double to_double(double x) { return x; }
+  static Decimal to_decimal(double x) { return decimal_of(x); }
+  static bool positive(double x) { return x > 0; }
+};
+struct Exact {
+  using Num = Decimal;
+  static Decimal price(const market::Series& m, std::size_t row, int col) {
+    return m.exact(row, col);
+  }
+  static Decimal from(const Decimal& d) { return d; }
+  static Decimal quotient(const Decimal& a, const Decimal& b) {
+    return Decimal::divide(a, b, kUnitPlaces);
+  }
+  static double to_double(const Decimal& x) { return x.to_double(); }
+  static Decimal to_decimal(const Decimal& x) { return x; }
+  static bool positive(const Decimal& x) { return x.is_positive(); }
 };
 
-Decimal price_on(const History& h, std::int64_t id, Date day) {
-  const auto p = h.prices.at(id, day);
-  // A held security always has a close on or before any later day: it was
-  // bought at one.
-  if (!p)
-    throw std::logic_error(fmt::format("backtest: no close for security {} on {}", id, day.str()));
-  return *p;
-}
+// Columns held, in the order bought, with a per-column position for lookups
+// by column.
+struct Held {
+  std::vector<int> columns;
+  std::vector<int> slot;  // per column: index into `columns`, or -1
+  explicit Held(int n) : slot(static_cast<std::size_t>(n), -1) {}
+  bool has(int c) const { return slot[static_cast<std::size_t>(c)] >= 0; }
+  void add(int c) {
+    if (has(c)) return;
+    slot[static_cast<std::size_t>(c)] = static_cast<int>(columns.size());
+    columns.push_back(c);
+  }
+  void clear() {
+    for (const int c : columns) slot[static_cast<std::size_t>(c)] = -1;
+    columns.clear();
+  }
+  std::set<std::int64_t> ids(const market::Series& m) const {
+    std::set<std::int64_t> out;
+    for (const int c : columns) out.insert(m.security_id(c));
+    return out;
+  }
+};
 
-Decimal holdings_value(const History& h, const State& s, Date day) {
-  Decimal v;
-  for (const auto& [id, q] : s.units) v += q * price_on(h, id, day);
-  return v;
-}
-
+// Selection on a rebalancing day: the engine's targets, or why there are none.
 struct Selection {
   std::size_t passed = 0, selected = 0;
   std::vector<rules::Target> targets;
   std::optional<std::string> none;  // why nothing is held
 };
 
-Selection select(const History& h, const rules::Rule& rule, Date day, const State& s) {
+Selection select(const History& h, const rules::Inputs& inputs, const rules::Rule& rule, Date day,
+                 const std::set<std::int64_t>& held) {
+  auto chosen = inputs.select(h.market, day, held, rules::Explain::none);
   Selection out;
-  std::unordered_set<std::int64_t> held;
-  for (const auto& [id, q] : s.units) held.insert(id);
-  try {
-    const auto screened = rules::screen(rule, day, h.candidates(rule, day, held));
-    out.passed = screened.passed;
-    out.selected = screened.selected;
-    out.targets = rules::targets(rule, screened, h.sleeve_ids);
-  } catch (const InputError& e) {
-    out.targets.clear();
-    out.selected = 0;
-    out.none = e.what();
-  }
-  if (!out.none)
-    for (std::size_t i = 0; i < h.sleeve_ids.size(); ++i)
-      if (!h.prices.at(h.sleeve_ids[i], day))
-        rule.fail("sleeve.symbol",
-                  fmt::format("sleeve '{}' has no close on or before {}",
-                              printable(rule.weights.sleeves[i].symbol), day.str()));
+  out.passed = chosen.screen.passed;
+  out.selected = chosen.screen.selected;
+  out.targets = std::move(chosen.targets);
+  if (chosen.refusal) out.none = chosen.refusal->text(rule);
   return out;
 }
 
-void rebalance_frictionless(const History& h, const Selection& sel, Date day, State& s,
-                            RebalanceDay& rd) {
-  const Decimal value = s.cash + holdings_value(h, s, day);
-  Decimal weight_sum;
-  for (const auto& t : sel.targets)
-    if (t.weight.is_positive()) weight_sum += t.weight;
-  std::map<std::int64_t, Decimal> next;
-  if (weight_sum.is_positive())
-    for (const auto& t : sel.targets) {
-      if (!t.weight.is_positive()) continue;
-      const Decimal price = price_on(h, t.security_id, day);
-      next[t.security_id] += Decimal::divide(value * t.weight, weight_sum * price, kUnitPlaces);
+// The frictionless pool: fully invested at the targets' weights, units in P.
+template <typename P>
+class FrictionlessPool {
+ public:
+  using Num = typename P::Num;
+  FrictionlessPool(const History& h, const Decimal& start, bool keep_trades)
+      : h_(h),
+        keep_trades_(keep_trades),
+        held_(h.market.columns()),
+        units_(static_cast<std::size_t>(h.market.columns())),
+        cash_(P::from(start)) {}
+
+  void split(int c, const Decimal& ratio) {
+    if (held_.has(c)) unit(c) = unit(c) * P::from(ratio);
+  }
+  // Reinvested in the same security at the day's close.
+  void distribute(int c, const market::Distribution& d, std::size_t row) {
+    if (!held_.has(c)) return;
+    const Num amount = unit(c) * P::from(d.per_share);
+    distributions_ += amount;
+    unit(c) = unit(c) + P::quotient(amount, P::price(h_.market, row, c));
+  }
+  void pay(Date) {}
+  Num holdings(std::size_t row) const {
+    Num v{};
+    for (const int c : held_.columns) v += unit(c) * P::price(h_.market, row, c);
+    return v;
+  }
+  double value(std::size_t row) const { return P::to_double(cash_ + holdings(row)); }
+  Decimal value_decimal(std::size_t row) const { return P::to_decimal(cash_ + holdings(row)); }
+  Decimal cash() const { return P::to_decimal(cash_); }
+  int names() const { return static_cast<int>(held_.columns.size()); }
+  Decimal distributions() const { return P::to_decimal(distributions_); }
+  std::set<std::int64_t> held() const { return held_.ids(h_.market); }
+
+  void rebalance(const Selection& sel, std::size_t row, RebalanceDay& rd) {
+    const Num value = cash_ + holdings(row);
+    rd.value_before = P::to_decimal(value);
+    Decimal weight_sum;
+    for (const auto& t : sel.targets)
+      if (t.weight.is_positive()) weight_sum += t.weight;
+    std::vector<std::pair<int, Num>> next;  // (column, units)
+    if (weight_sum.is_positive()) {
+      const Num scale = P::from(weight_sum);
+      for (const auto& t : sel.targets) {
+        if (!t.weight.is_positive()) continue;
+        const int c = h_.market.column(t.security_id);
+        next.emplace_back(
+            c, P::quotient(value * P::from(t.weight), scale * P::price(h_.market, row, c)));
+      }
     }
-  std::set<std::int64_t> touched;
-  for (const auto& [id, q] : s.units) touched.insert(id);
-  for (const auto& [id, q] : next) touched.insert(id);
-  Decimal invested;
-  for (std::int64_t id : touched) {
-    const Decimal price = price_on(h, id, day);
-    const auto a = s.units.find(id);
-    const auto b = next.find(id);
-    const Decimal before = a == s.units.end() ? Decimal() : a->second;
-    const Decimal after = b == next.end() ? Decimal() : b->second;
-    invested += after * price;
-    const Decimal diff = after - before;
-    if (diff.is_zero()) continue;
-    rd.traded += diff.abs() * price;
-    rd.trades.push_back(Trade{h.security(id).symbol,
-                              diff.is_positive() ? rules::Side::buy : rules::Side::sell, diff.abs(),
-                              price, Decimal()});
+    // Trades by security id (columns ascend by id).
+    std::vector<int> touched = held_.columns;
+    for (const auto& [c, q] : next) touched.push_back(c);
+    std::sort(touched.begin(), touched.end());
+    touched.erase(std::unique(touched.begin(), touched.end()), touched.end());
+    std::vector<Num> after(touched.size());
+    for (const auto& [c, q] : next)
+      after[static_cast<std::size_t>(std::lower_bound(touched.begin(), touched.end(), c) -
+                                     touched.begin())] += q;
+    Num invested{}, traded{};
+    for (std::size_t i = 0; i < touched.size(); ++i) {
+      const int c = touched[i];
+      const Num price = P::price(h_.market, row, c);
+      const Num before = held_.has(c) ? unit(c) : Num{};
+      invested += after[i] * price;
+      const Num diff = after[i] - before;
+      if (diff == Num{}) continue;
+      const Num size = P::positive(diff) ? diff : Num{} - diff;
+      traded += size * price;
+      if (!keep_trades_) continue;
+      const auto side = P::positive(diff) ? rules::Side::buy : rules::Side::sell;
+      if constexpr (std::is_same_v<Num, double>)
+        rd.shifts.push_back(
+            Shift{h_.market.security_id(c), side, size, price, h_.market.price_places(c)});
+      else
+        rd.trades.push_back(Trade{h_.market.security_id(c), side, size, price, Decimal()});
+    }
+    for (const int c : held_.columns) unit(c) = Num{};
+    held_.clear();
+    for (std::size_t i = 0; i < touched.size(); ++i)
+      if (P::positive(after[i])) {
+        held_.add(touched[i]);
+        unit(touched[i]) = after[i];
+      }
+    rd.traded = P::to_decimal(traded);
+    cash_ = value - invested;
   }
-  s.units = std::move(next);
-  s.cash = value - invested;
-}
 
-void rebalance_with_orders(const History& h, const rules::Rule& rule, const Selection& sel,
-                           Date day, State& s, RebalanceDay& rd) {
-  rules::Portfolio p;
-  rules::AccountState acct;
-  acct.id = 1;
-  acct.name = "simulated pool";
-  acct.cash = s.cash;
-  for (const auto& [id, q] : s.units) acct.holdings[id] = rules::HoldingState{q, {}};
-  p.accounts.push_back(std::move(acct));
-  rules::Quotes quotes;
-  auto quote = [&](std::int64_t id) {
-    if (quotes.count(id)) return;
-    const Security& sec = h.security(id);
-    rules::Quote q;
-    q.symbol = sec.symbol;
-    q.lot_size = sec.lot_size;
-    q.price = price_on(h, id, day);
-    quotes.emplace(id, std::move(q));
-  };
-  for (const auto& t : sel.targets) quote(t.security_id);
-  for (const auto& [id, q] : s.units) quote(id);
-  const auto plan = rules::orders(p, sel.targets, quotes, rule.trading, day);
-  const auto after = rules::apply(p, plan.orders);
-  for (const auto& o : plan.orders) {
-    rd.traded += o.value;
-    rd.fees += o.fee;
-    rd.trades.push_back(Trade{o.symbol, o.side, o.quantity, o.price, o.fee});
+ private:
+  Num& unit(int c) { return units_[static_cast<std::size_t>(c)]; }
+  const Num& unit(int c) const { return units_[static_cast<std::size_t>(c)]; }
+  const History& h_;
+  bool keep_trades_;
+  Held held_;
+  std::vector<Num> units_;  // per column; zero when not held
+  Num cash_;
+  Num distributions_{};
+};
+
+// The pool with the rule's orders: fills, fees, cash and units exact; its
+// value each day in doubles.
+class OrderPool {
+ public:
+  OrderPool(const History& h, const rules::Inputs& inputs, const rules::Rule& rule,
+            const Decimal& start, bool keep_trades)
+      : h_(h),
+        inputs_(inputs),
+        rule_(rule),
+        keep_trades_(keep_trades),
+        held_(h.market.columns()),
+        units_(static_cast<std::size_t>(h.market.columns())),
+        approx_(static_cast<std::size_t>(h.market.columns())),
+        cash_(start) {}
+
+  void split(int c, const Decimal& ratio) {
+    if (!held_.has(c)) return;
+    set(c, unit(c) * ratio);
   }
-  s.cash = after.accounts.front().cash;
-  s.units.clear();
-  for (const auto& [id, hs] : after.accounts.front().holdings)
-    if (hs.quantity.is_positive()) s.units[id] = hs.quantity;
-}
+  // Owed from the ex-date, cash on the pay date.
+  void distribute(int c, const market::Distribution& d, std::size_t) {
+    if (!held_.has(c)) return;
+    const Decimal amount = unit(c) * d.per_share;
+    distributions_ += amount;
+    owed_.push_back(Owed{d.pay_date, amount});
+    owed_total_ += amount.to_double();
+  }
+  void pay(Date day) {
+    std::erase_if(owed_, [&](const Owed& o) {
+      if (o.pay > day) return false;
+      cash_ += o.amount;
+      owed_total_ -= o.amount.to_double();
+      return true;
+    });
+    if (owed_.empty()) owed_total_ = 0;  // no drift from the subtractions
+  }
+  // Cash and holdings, without the distributions owed.
+  double invested(std::size_t row) const {
+    double v = cash_.to_double();
+    for (const int c : held_.columns)
+      v += approx_[static_cast<std::size_t>(c)] * h_.market.value(row, c);
+    return v;
+  }
+  double value(std::size_t row) const { return invested(row) + owed_total_; }
+  Decimal value_decimal(std::size_t row) const { return decimal_of(value(row)); }
+  Decimal cash() const { return cash_; }
+  int names() const { return static_cast<int>(held_.columns.size()); }
+  Decimal distributions() const { return distributions_; }
+  std::set<std::int64_t> held() const { return held_.ids(h_.market); }
 
+  void rebalance(const Selection& sel, std::size_t row, Date day, RebalanceDay& rd) {
+    rd.value_before = decimal_of(invested(row));
+    rules::Portfolio p;
+    rules::AccountState acct;
+    acct.id = 1;
+    acct.name = "simulated pool";
+    acct.cash = cash_;
+    for (const int c : held_.columns)
+      acct.holdings[h_.market.security_id(c)] = rules::HoldingState{unit(c), {}};
+    p.accounts.push_back(std::move(acct));
+    // A held security always has a close on or before any later day: it was
+    // bought at one. The simulated pool has no ledger trades.
+    std::vector<std::string> quote_notes;  // stale closes: traded at as they are
+    const rules::Quotes quotes =
+        inputs_.quotes(h_.market, day, sel.targets, held(), {}, quote_notes);
+    const auto plan =
+        rules::orders(p, sel.targets, quotes, rule_.trading, day, rules::Explain::none);
+    const auto after = rules::apply(p, plan.orders);
+    for (const auto& o : plan.orders) {
+      rd.traded += o.value;
+      rd.fees += o.fee;
+      if (!keep_trades_) continue;
+      rd.trades.push_back(Trade{o.security_id, o.side, o.quantity, o.price, o.fee});
+    }
+    cash_ = after.accounts.front().cash;
+    for (const int c : held_.columns) set(c, Decimal());
+    held_.clear();
+    std::vector<int> bought;
+    for (const auto& [id, hs] : after.accounts.front().holdings)
+      if (hs.quantity.is_positive()) {
+        const int c = h_.market.column(id);
+        bought.push_back(c);
+        set(c, hs.quantity);
+      }
+    std::sort(bought.begin(), bought.end());
+    for (const int c : bought) held_.add(c);
+  }
+
+ private:
+  const Decimal& unit(int c) const { return units_[static_cast<std::size_t>(c)]; }
+  void set(int c, const Decimal& q) {
+    units_[static_cast<std::size_t>(c)] = q;
+    approx_[static_cast<std::size_t>(c)] = q.to_double();
+  }
+  const History& h_;
+  const rules::Inputs& inputs_;
+  const rules::Rule& rule_;
+  bool keep_trades_;
+  Held held_;
+  std::vector<Decimal> units_;  // per column, exact
+  std::vector<double> approx_;  // the same in doubles, for the daily value
+  Decimal cash_;
+  std::vector<Owed> owed_;
+  double owed_total_ = 0;
+  Decimal distributions_;
+};
+
+template <typename Pool>
 StrategyRun simulate(const History& h, const rules::Rule& rule, const Request& req,
                      const std::vector<Date>& rebalance, std::string label, bool report_progress,
-                     std::vector<std::string>& notes) {
+                     std::vector<std::string>& notes, Pool& pool, const rules::Inputs& inputs) {
   StrategyRun run;
   run.label = std::move(label);
-  State s;
-  s.cash = req.start_value;
   const Date opening = req.from.plus_days(-1);
   run.curve.push_back(CurvePoint{opening, req.start_value, req.start_value, 0});
+  run.curve.reserve(h.market.trading_days().size() + 1);
   auto next_rebalance = rebalance.begin();
-  Date prev = opening;
   double turnover_sum = 0;
   double names_sum = 0;
   run.names_min = std::numeric_limits<int>::max();
-  const auto first = std::lower_bound(h.days.begin(), h.days.end(), req.from);
-  for (auto it = first; it != h.days.end() && *it <= req.to; ++it) {
+  const auto& m = h.market;
+  const auto& days = m.trading_days();
+  const auto& splits = m.split_events();
+  const auto& distributions = m.distribution_events();
+  std::size_t next_split = 0, next_distribution = 0;
+  while (next_split < splits.size() && splits[next_split].date <= opening) ++next_split;
+  while (next_distribution < distributions.size() &&
+         distributions[next_distribution].ex_date <= opening)
+    ++next_distribution;
+  const auto first = std::lower_bound(days.begin(), days.end(), req.from);
+  for (auto it = first; it != days.end() && *it <= req.to; ++it) {
     const Date day = *it;
-    for (auto e = h.splits.upper_bound(prev); e != h.splits.end() && e->first <= day; ++e)
-      for (const auto& sp : e->second)
-        if (auto u = s.units.find(sp.security_id); u != s.units.end()) u->second *= sp.ratio;
-    for (auto e = h.distributions.upper_bound(prev); e != h.distributions.end() && e->first <= day;
-         ++e)
-      for (const auto& d : e->second) {
-        const auto u = s.units.find(d.security_id);
-        if (u == s.units.end()) continue;
-        const Decimal amount = u->second * d.per_share;
-        run.distributions += amount;
-        if (req.frictionless)
-          u->second += Decimal::divide(amount, price_on(h, d.security_id, day), kUnitPlaces);
-        else
-          s.owed.push_back(Owed{d.pay_date, amount});
-      }
-    std::erase_if(s.owed, [&](const Owed& o) {
-      if (o.pay > day) return false;
-      s.cash += o.amount;
-      return true;
-    });
+    const std::size_t row = m.row(day);
+    for (; next_split < splits.size() && splits[next_split].date <= day; ++next_split)
+      pool.split(m.column(splits[next_split].security_id), splits[next_split].ratio);
+    for (; next_distribution < distributions.size() &&
+           distributions[next_distribution].ex_date <= day;
+         ++next_distribution) {
+      const auto& d = distributions[next_distribution];
+      pool.distribute(m.column(d.security_id), d, row);
+    }
+    pool.pay(day);
     if (next_rebalance != rebalance.end() && *next_rebalance == day) {
       RebalanceDay rd;
       rd.day = day;
-      rd.value_before = s.cash + holdings_value(h, s, day);
-      const Selection sel = select(h, rule, day, s);
+      const Selection sel = select(h, inputs, rule, day, pool.held());
       rd.passed = sel.passed;
       rd.selected = sel.selected;
       rd.no_selection = sel.none;
       if (sel.none)
         notes.push_back(fmt::format("{} ({}): nothing selected, the pool holds cash: {}", day.str(),
                                     run.label, *sel.none));
-      if (req.frictionless)
-        rebalance_frictionless(h, sel, day, s, rd);
+      if constexpr (std::is_same_v<Pool, OrderPool>)
+        pool.rebalance(sel, row, day, rd);
       else
-        rebalance_with_orders(h, rule, sel, day, s, rd);
-      rd.names_after = static_cast<int>(s.units.size());
+        pool.rebalance(sel, row, rd);
+      rd.names_after = pool.names();
       run.fees += rd.fees;
       if (rd.value_before.is_positive())
         turnover_sum += (rd.traded.to_double() / 2) / rd.value_before.to_double();
@@ -206,17 +365,32 @@ StrategyRun simulate(const History& h, const rules::Rule& rule, const Request& r
       if (report_progress && req.progress)
         req.progress(run.rebalances.size(), rebalance.size(), day);
     }
-    Decimal owed;
-    for (const auto& o : s.owed) owed += o.amount;
-    run.curve.push_back(CurvePoint{day, s.cash + owed + holdings_value(h, s, day), s.cash,
-                                   static_cast<int>(s.units.size())});
-    prev = day;
+    run.curve.push_back(CurvePoint{day, pool.value_decimal(row), pool.cash(), pool.names()});
   }
+  run.distributions = pool.distributions();
   if (run.rebalances.empty()) run.names_min = 0;
   run.names_mean = run.rebalances.empty() ? 0 : names_sum / run.rebalances.size();
   const double years = (req.to - req.from + 1) / 365.25;
   run.turnover_per_year = turnover_sum / years;
   return run;
+}
+
+StrategyRun simulate(const History& h, const rules::Rule& rule, const Request& req,
+                     const std::vector<Date>& rebalance, std::string label, bool report_progress,
+                     std::vector<std::string>& notes) {
+  const rules::Inputs inputs(rule, h.market, h.currency);
+  if (!req.frictionless) {
+    OrderPool pool(h, inputs, rule, req.start_value, req.keep_trades);
+    return simulate(h, rule, req, rebalance, std::move(label), report_progress, notes, pool,
+                    inputs);
+  }
+  if (req.exact_frictionless) {
+    FrictionlessPool<Exact> pool(h, req.start_value, req.keep_trades);
+    return simulate(h, rule, req, rebalance, std::move(label), report_progress, notes, pool,
+                    inputs);
+  }
+  FrictionlessPool<Binary> pool(h, req.start_value, req.keep_trades);
+  return simulate(h, rule, req, rebalance, std::move(label), report_progress, notes, pool, inputs);
 }
 
 perf::PerfInput perf_input(const StrategyRun& run, const Request& req,
@@ -296,12 +470,9 @@ rules::Rule baseline_rule(const rules::Rule& rule) {
   return b;
 }
 
-Result run(store::Database& db, const rules::Rule& rule, const Request& request) {
-  const History h = load_history(db, rule);
-  return run(h, rule, request);
-}
+namespace {
 
-Result run(const History& h, const rules::Rule& rule, const Request& req) {
+void check_request(const Request& req) {
   if (req.from > req.to)
     throw InputError(fmt::format("--from: {} is after --to {}", req.from.str(), req.to.str()));
   if (!req.start_value.is_positive())
@@ -309,8 +480,23 @@ Result run(const History& h, const rules::Rule& rule, const Request& req) {
   if (req.rolling_months < 1 || req.rolling_months > 600)
     throw InputError(
         fmt::format("--rolling: {} is not a number of months from 1 to 600", req.rolling_months));
-  const auto first = std::lower_bound(h.days.begin(), h.days.end(), req.from);
-  if (first == h.days.end() || *first > req.to)
+}
+
+}  // namespace
+
+Result run(store::Database& db, const rules::Rule& rule, const Request& request) {
+  check_request(request);
+  std::vector<std::string> extra;
+  if (request.benchmark) extra.push_back(*request.benchmark);
+  const History h = load_history(db, rule, request.from.plus_days(-1), request.to, extra);
+  return run(h, rule, request);
+}
+
+Result run(const History& h, const rules::Rule& rule, const Request& req) {
+  check_request(req);
+  const auto& days = h.market.trading_days();
+  const auto first = std::lower_bound(days.begin(), days.end(), req.from);
+  if (first == days.end() || *first > req.to)
     throw InputError(fmt::format("--from/--to: the ledger holds no close from {} to {}",
                                  req.from.str(), req.to.str()));
 
@@ -320,7 +506,8 @@ Result run(const History& h, const rules::Rule& rule, const Request& req) {
   res.to = req.to;
   res.start_value = req.start_value;
   res.frictionless = req.frictionless;
-  res.rebalance_days = rebalance_days(h.days, req.from, req.to, rule.rebalance_months);
+  res.rebalance_days =
+      rebalance_days(days, h.market.next_trading_day(), req.from, req.to, rule.rebalance_months);
   if (res.rebalance_days.empty())
     throw InputError(fmt::format(
         "--from/--to: no month's last trading day falls between {} and {}; the rule never "
@@ -330,23 +517,26 @@ Result run(const History& h, const rules::Rule& rule, const Request& req) {
   std::optional<std::vector<perf::LevelPoint>> bench;
   if (req.benchmark) {
     std::optional<std::int64_t> id;
-    for (const auto& s : h.securities)
-      if (s.symbol == *req.benchmark) id = s.id;
+    if (const Security* s = h.market.security(*req.benchmark)) id = s->id;
     if (!id)
       throw InputError(
           fmt::format("--benchmark: no security '{}' in the ledger", printable(*req.benchmark)));
     const Date opening = req.from.plus_days(-1);
-    const auto open_level = h.prices.at(*id, opening);
+    const auto open_level = h.close(*id, opening);
     if (!open_level)
       throw InputError(fmt::format("--benchmark: '{}' has no close on or before {}",
                                    printable(*req.benchmark), opening.str()));
     bench.emplace();
     bench->push_back(perf::LevelPoint{opening, *open_level});
-    for (auto it = first; it != h.days.end() && *it <= req.to; ++it)
-      if (auto p = h.prices.at(*id, *it)) bench->push_back(perf::LevelPoint{*it, *p});
+    for (auto it = first; it != days.end() && *it <= req.to; ++it)
+      if (auto p = h.close(*id, *it)) bench->push_back(perf::LevelPoint{*it, *p});
     res.benchmark = *req.benchmark;
   }
 
+  for (int c = 0; c < h.market.columns(); ++c) {
+    const std::int64_t id = h.market.security_id(c);
+    res.symbols.emplace(id, h.security(id).symbol);
+  }
   res.notes = h.notes;
   res.rule = simulate(h, rule, req, res.rebalance_days, "rule", true, res.notes);
   res.baseline =

@@ -18,8 +18,12 @@
 //    is reinvested in the same security at the ex-date's close.
 //  - Frictionless mode: no fees, bands, minimum trade, cash reserve or lot
 //    rounding; the pool is fully invested in the targets' weights (scaled to
-//    sum to one), units to 20 decimal places; all cash while nothing is
-//    selected.
+//    sum to one); all cash while nothing is selected. Its units and values
+//    are binary doubles, which agree with the exact computation (units to 20
+//    places, Request::exact_frictionless) to 1e-12 relative
+//    (docs/methods.md). With the rule's frictions, fills, fees, cash, units
+//    and distributions are exact decimals; the pool's value each day is
+//    summed in doubles.
 //  - The pool is valued at every day with any close in [from, to]; the value
 //    on the day before `from` is the start value. Returns, volatility and
 //    drawdown come from perf::measure on that series (no external flows).
@@ -31,6 +35,7 @@
 
 #include <cstdint>
 #include <functional>
+#include <map>
 #include <optional>
 #include <string>
 #include <vector>
@@ -51,6 +56,10 @@ struct Request {
   Decimal start_value{100000};
   std::optional<std::string> benchmark;  // a security's symbol
   bool frictionless = false;
+  // The frictionless pool in exact decimals (units to 20 places) instead of
+  // doubles: slow; for checking that the doubles agree (backtest_test.cpp).
+  bool exact_frictionless = false;
+  bool keep_trades = true;  // false: no trades or shifts are kept (a report that shows none)
   int rolling_months = 12;
   // Called after each rebalancing day: (done, total, day).
   std::function<void(std::size_t, std::size_t, Date)> progress;
@@ -63,12 +72,25 @@ struct CurvePoint {
   int names = 0;  // securities held
 };
 
+// A fill with the rule's frictions, exactly.
 struct Trade {
-  std::string symbol;
+  std::int64_t security_id = 0;
   rules::Side side = rules::Side::buy;
   Decimal quantity;
   Decimal price;
   Decimal fee;
+};
+
+// A frictionless run's change of a holding, in doubles: `units` bought or
+// sold at the close `price` (the double nearest the stored decimal, which
+// `price_places` digits after the point give back exactly; -1 when they
+// cannot).
+struct Shift {
+  std::int64_t security_id = 0;
+  rules::Side side = rules::Side::buy;
+  double units = 0;
+  double price = 0;
+  int price_places = -1;
 };
 
 struct RebalanceDay {
@@ -79,7 +101,8 @@ struct RebalanceDay {
   Decimal value_before;
   Decimal traded;  // bought + sold, at the fills
   Decimal fees;
-  std::vector<Trade> trades;
+  std::vector<Trade> trades;                // with the rule's frictions
+  std::vector<Shift> shifts;                // frictionless
   std::optional<std::string> no_selection;  // why the pool went to cash
 };
 
@@ -105,6 +128,7 @@ struct RollingRow {
 
 struct Result {
   std::string rule_name;
+  std::map<std::int64_t, std::string> symbols;  // of the securities the run read
   Date from, to;
   Decimal start_value;
   bool frictionless = false;
@@ -122,7 +146,7 @@ struct Result {
 rules::Rule baseline_rule(const rules::Rule& rule);
 
 Result run(store::Database& db, const rules::Rule& rule, const Request& request);
-// The same on preloaded history (for tests and repeated runs).
+// The same on preloaded history spanning [from - 1, to] (for tests and repeated runs).
 Result run(const History& history, const rules::Rule& rule, const Request& request);
 
 std::vector<std::string> backtest_cautions();

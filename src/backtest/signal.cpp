@@ -12,6 +12,7 @@
 #include "backtest/backtest.h"
 #include "core/error.h"
 #include "perf/stats.h"
+#include "rules/inputs.h"
 
 namespace keel::backtest {
 namespace {
@@ -34,7 +35,7 @@ std::vector<double> average_ranks(std::span<const double> x) {
 struct Event {
   Date day;
   bool split;
-  Decimal amount;  // ratio, or cash per unit
+  double amount;  // ratio, or cash per unit
 };
 
 }  // namespace
@@ -56,36 +57,54 @@ std::optional<double> spearman(std::span<const double> x, std::span<const double
   return sxy / std::sqrt(sxx * syy);
 }
 
-SignalResult signal(const History& h, const rules::Rule& rule, const SignalRequest& req) {
+namespace {
+
+void check_request(const SignalRequest& req) {
   if (req.from > req.to)
     throw InputError(fmt::format("--from: {} is after --to {}", req.from.str(), req.to.str()));
   for (int m : req.horizons)
     if (m < 1 || m > 240)
       throw InputError(fmt::format("--horizons: {} is not a number of months from 1 to 240", m));
+}
+
+}  // namespace
+
+SignalResult signal(store::Database& db, const rules::Rule& rule, const SignalRequest& req) {
+  check_request(req);
+  return signal(load_history(db, rule, req.from, req.to), rule, req);
+}
+
+SignalResult signal(const History& h, const rules::Rule& rule, const SignalRequest& req) {
+  check_request(req);
   SignalResult res;
   res.rule_name = rule.name;
   res.from = req.from;
   res.to = req.to;
-  const auto starts = rebalance_days(h.days, req.from, req.to, rule.rebalance_months);
-  const auto month_last = rebalance_days(h.days, req.from, req.to, 1);
+  const auto& days = h.market.trading_days();
+  const auto next = h.market.next_trading_day();
+  const auto starts = rebalance_days(days, next, req.from, req.to, rule.rebalance_months);
+  const auto month_last = rebalance_days(days, next, req.from, req.to, 1);
   std::map<int, Date> by_month;  // year * 12 + month - 1
   for (Date d : month_last) by_month[d.year() * 12 + d.month() - 1] = d;
 
   // Each security's splits and distributions in date order (splits first on a day).
   std::unordered_map<std::int64_t, std::vector<Event>> events;
-  for (const auto& [day, list] : h.splits)
-    for (const auto& s : list) events[s.security_id].push_back(Event{day, true, s.ratio});
-  for (const auto& [day, list] : h.distributions)
-    for (const auto& d : list) events[d.security_id].push_back(Event{day, false, d.per_share});
+  for (const auto& s : h.market.split_events())
+    events[s.security_id].push_back(Event{s.date, true, s.ratio.to_double()});
+  for (const auto& d : h.market.distribution_events())
+    events[d.security_id].push_back(Event{d.ex_date, false, d.per_share.to_double()});
   for (auto& [id, ev] : events)
     std::stable_sort(ev.begin(), ev.end(), [](const Event& a, const Event& b) {
       return a.day != b.day ? a.day < b.day : a.split > b.split;
     });
+  // A statistic, in doubles: the closes as the nearest doubles to the stored
+  // decimals (as scipy reads them).
+  const auto& m = h.market;
   auto forward = [&](std::int64_t id, Date start, Date end) -> std::optional<double> {
-    const auto p0 = h.prices.at(id, start);
-    const auto p1 = h.prices.at(id, end);
-    if (!p0 || !p1 || !p0->is_positive()) return std::nullopt;
-    Decimal units(1), cash;
+    const int c = m.column(id);
+    const double p0 = m.value(m.row(start), c), p1 = m.value(m.row(end), c);
+    if (std::isnan(p0) || std::isnan(p1) || !(p0 > 0)) return std::nullopt;
+    double units = 1, cash = 0;
     if (auto it = events.find(id); it != events.end())
       for (const auto& e : it->second) {
         if (e.day <= start || e.day > end) continue;
@@ -94,7 +113,7 @@ SignalResult signal(const History& h, const rules::Rule& rule, const SignalReque
         else
           cash += units * e.amount;
       }
-    return (units * *p1 + cash).to_double() / p0->to_double() - 1;
+    return (units * p1 + cash) / p0 - 1;
   };
 
   for (int months : req.horizons) {
@@ -102,12 +121,12 @@ SignalResult signal(const History& h, const rules::Rule& rule, const SignalReque
     hr.months = months;
     res.horizons.push_back(std::move(hr));
   }
+  const rules::Inputs inputs(rule, h.market, h.currency);
   for (Date day : starts) {
-    rules::ScreenResult screened;
-    try {
-      screened = rules::screen(rule, day, h.candidates(rule, day, {}));
-    } catch (const InputError& e) {
-      res.notes.push_back(fmt::format("{}: skipped: {}", day.str(), e.what()));
+    const auto screened =
+        rules::screen(rule, day, inputs.candidates(h.market, day, {}), rules::Explain::none);
+    if (screened.refusal) {
+      res.notes.push_back(fmt::format("{}: skipped: {}", day.str(), screened.refusal->text(rule)));
       continue;
     }
     for (auto& hr : res.horizons) {

@@ -32,6 +32,7 @@
 
 #include "backtest/history.h"
 #include "rules/rule.h"
+#include "store/database.h"
 
 namespace keel::backtest {
 
@@ -64,6 +65,8 @@ struct SignalResult {
   std::vector<std::string> cautions;
 };
 
+SignalResult signal(store::Database& db, const rules::Rule& rule, const SignalRequest& request);
+// The same on preloaded history spanning [from, to].
 SignalResult signal(const History& history, const rules::Rule& rule, const SignalRequest& request);
 
 // Spearman's rank correlation (average ranks for ties); nullopt when fewer

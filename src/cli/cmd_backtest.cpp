@@ -6,28 +6,21 @@
 #include <charconv>
 #include <cstdio>
 #include <memory>
-#include <nlohmann/json.hpp>
 #include <optional>
 
 #include "backtest/backtest.h"
 #include "backtest/signal.h"
 #include "cli/context.h"
 #include "cli/options.h"
-#include "cli/print.h"
 #include "core/error.h"
 #include "core/files.h"
 #include "core/text.h"
-#include "io/json.h"
-#include "report/json_schema.h"
+#include "report/backtest_forms.h"
 #include "report/table.h"
 #include "rules/rule.h"
 
 namespace keel::cli {
 namespace {
-
-using Json = nlohmann::ordered_json;
-using report::Align;
-using report::Table;
 
 // A bar per rebalancing day on stderr, only when it is a terminal.
 class Progress {
@@ -54,173 +47,8 @@ struct BacktestOptions {
   int rolling = 12;
 };
 
-Json drawdown_json(const perf::RiskFigures& r) {
-  if (!r.max_drawdown) return Json();
-  const auto& d = *r.max_drawdown;
-  return {{"depth", d.depth},
-          {"peak", d.peak.str()},
-          {"trough", d.trough.str()},
-          {"recovery", d.recovery ? Json(d.recovery->str()) : Json()}};
-}
-
-Json run_json(const backtest::StrategyRun& s) {
-  const auto& p = s.perf;
-  Json j;
-  j["end_value"] = p.closing_value.rounded(10).str();
-  j["twr"] = p.twr.period;
-  j["twr_annualized"] = number(p.twr.annualized);
-  j["volatility_annualized"] = number(p.risk.daily_volatility);
-  j["max_drawdown"] = drawdown_json(p.risk);
-  if (p.benchmark) {
-    j["excess"] = p.benchmark->excess_arithmetic;
-    j["excess_annualized"] = number(p.benchmark->excess_geometric_annualized);
-  }
-  j["turnover_per_year"] = s.turnover_per_year;
-  j["fees"] = s.fees.str();
-  j["distributions"] = s.distributions.rounded(10).str();
-  j["names"] = {{"min", s.names_min}, {"mean", s.names_mean}, {"max", s.names_max}};
-  j["rebalances"] = Json::array();
-  for (const auto& r : s.rebalances) {
-    Json trades = Json::array();
-    for (const auto& t : r.trades)
-      trades.push_back({{"symbol", t.symbol},
-                        {"side", std::string(rules::to_string(t.side))},
-                        {"quantity", t.quantity.str()},
-                        {"price", t.price.str()},
-                        {"fee", t.fee.str()}});
-    j["rebalances"].push_back({{"date", r.day.str()},
-                               {"passed", r.passed},
-                               {"selected", r.selected},
-                               {"names_after", r.names_after},
-                               {"value_before", r.value_before.rounded(10).str()},
-                               {"traded", r.traded.rounded(10).str()},
-                               {"fees", r.fees.str()},
-                               {"no_selection", r.no_selection ? Json(*r.no_selection) : Json()},
-                               {"trades", trades}});
-  }
-  return j;
-}
-
-Json result_json(const backtest::Result& r) {
-  Json j = report::json_document("backtest", 1);
-  j["rule"] = r.rule_name;
-  j["from"] = r.from.str();
-  j["to"] = r.to.str();
-  j["start_value"] = r.start_value.str();
-  j["frictionless"] = r.frictionless;
-  j["benchmark"] = r.benchmark ? Json(*r.benchmark) : Json();
-  if (r.benchmark && r.rule.perf.benchmark) {
-    const auto& b = r.rule.perf.benchmark->benchmark;
-    j["benchmark_twr"] = b.period;
-    j["benchmark_twr_annualized"] = number(b.annualized);
-  }
-  j["rebalance_days"] = Json::array();
-  for (Date d : r.rebalance_days) j["rebalance_days"].push_back(d.str());
-  j["rule_run"] = run_json(r.rule);
-  j["baseline_run"] = run_json(r.baseline);
-  j["rolling"] = Json::array();
-  for (const auto& w : r.rolling)
-    j["rolling"].push_back({{"against", w.against},
-                            {"months", w.months},
-                            {"windows", w.windows},
-                            {"rule_ahead", w.beat},
-                            {"median_excess", number(w.median_excess)},
-                            {"worst_excess", number(w.worst_excess)},
-                            {"best_excess", number(w.best_excess)}});
-  j["curve"] = Json::array();
-  for (std::size_t i = 0; i < r.rule.curve.size(); ++i) {
-    const auto& c = r.rule.curve[i];
-    j["curve"].push_back({{"date", c.day.str()},
-                          {"value", c.value.rounded(10).str()},
-                          {"cash", c.cash.rounded(10).str()},
-                          {"names", c.names},
-                          {"baseline_value", r.baseline.curve[i].value.rounded(10).str()}});
-  }
-  j["notes"] = r.notes;
-  j["cautions"] = r.cautions;
-  return j;
-}
-
-std::string result_text(const backtest::Result& r, const report::Style& style) {
-  std::string s = fmt::format("Back-test of rule '{}' from {} to {} ({})\n", printable(r.rule_name),
-                              r.from.str(), r.to.str(),
-                              r.frictionless ? "frictionless: no fees, fractional units, fully "
-                                               "invested"
-                                             : "the rule's fees, bands and lot sizes");
-  s += fmt::format("Start value {}; {} rebalancing days, {} to {}\n\n", r.start_value.fixed(2),
-                   r.rebalance_days.size(), r.rebalance_days.front().str(),
-                   r.rebalance_days.back().str());
-  std::vector<Table::Column> cols{
-      {"", Align::left, true}, {"rule", Align::right}, {"baseline", Align::right}};
-  const bool bench = r.benchmark && r.rule.perf.benchmark;
-  if (bench) cols.push_back({"benchmark " + *r.benchmark, Align::right});
-  Table t(cols);
-  auto row = [&](std::string label, std::string a, std::string b, std::string c) {
-    std::vector<std::string> cells{std::move(label), std::move(a), std::move(b)};
-    if (bench) cells.push_back(std::move(c));
-    t.add_row(std::move(cells));
-  };
-  const auto& a = r.rule;
-  const auto& b = r.baseline;
-  row("end value", a.perf.closing_value.fixed(2), b.perf.closing_value.fixed(2), "");
-  row("return (time-weighted)", pct(a.perf.twr.period), pct(b.perf.twr.period),
-      bench ? pct(a.perf.benchmark->benchmark.period) : "");
-  row("annualized", pct(a.perf.twr.annualized), pct(b.perf.twr.annualized),
-      bench ? pct(a.perf.benchmark->benchmark.annualized) : "");
-  if (bench)
-    row("excess over benchmark", pct(a.perf.benchmark->excess_arithmetic),
-        pct(b.perf.benchmark->excess_arithmetic), "");
-  row("volatility (annualized, daily)", pct(a.perf.risk.daily_volatility),
-      pct(b.perf.risk.daily_volatility), "");
-  auto dd = [](const perf::RiskFigures& rf, int part) {
-    if (!rf.max_drawdown) return std::string(part == 0 ? "none" : "");
-    const auto& d = *rf.max_drawdown;
-    if (part == 0) return fmt::format("{:.2f}%", d.depth * 100);
-    if (part == 1) return d.peak.str() + ".." + d.trough.str();
-    return d.recovery ? d.recovery->str() : std::string("not yet");
-  };
-  row("max drawdown", dd(a.perf.risk, 0), dd(b.perf.risk, 0), "");
-  row("  from peak to trough", dd(a.perf.risk, 1), dd(b.perf.risk, 1), "");
-  row("  back at the peak", dd(a.perf.risk, 2), dd(b.perf.risk, 2), "");
-  row("turnover per year", fmt::format("{:.1f}%", a.turnover_per_year * 100),
-      fmt::format("{:.1f}%", b.turnover_per_year * 100), "");
-  row("fees paid", a.fees.fixed(2), b.fees.fixed(2), "");
-  row("distributions", a.distributions.fixed(2), b.distributions.fixed(2), "");
-  row("names held (min/mean/max)",
-      fmt::format("{}/{:.1f}/{}", a.names_min, a.names_mean, a.names_max),
-      fmt::format("{}/{:.1f}/{}", b.names_min, b.names_mean, b.names_max), "");
-  s += t.render(style);
-
-  for (const auto& w : r.rolling) {
-    if (&w == &r.rolling.front())
-      s += fmt::format("\nHeld {} months from the start of any complete month:\n", w.months);
-    if (w.windows == 0) {
-      s += fmt::format("  against the {}: no window of {} complete months\n", w.against, w.months);
-      continue;
-    }
-    s += fmt::format(
-        "  against the {}: the rule was ahead in {} of {} windows ({:.0f}%); excess at the "
-        "median {}, worst {}, best {}\n",
-        w.against, w.beat, w.windows, 100.0 * w.beat / w.windows, pct(w.median_excess),
-        pct(w.worst_excess), pct(w.best_excess));
-  }
-  if (!r.notes.empty()) {
-    s += "\nNotes:\n";
-    for (const auto& n : r.notes) s += "  " + printable(n) + "\n";
-  }
-  s += "\nCautions:\n";
-  for (const auto& c : r.cautions) s += "  - " + c + "\n";
-  return s;
-}
-
 void write_curve(OutputFile& file, const backtest::Result& r) {
-  std::string text = "date,value,cash,names,baseline_value\n";
-  for (std::size_t i = 0; i < r.rule.curve.size(); ++i) {
-    const auto& c = r.rule.curve[i];
-    text += fmt::format("{},{},{},{},{}\n", c.day.str(), c.value.fixed(6), c.cash.fixed(6), c.names,
-                        r.baseline.curve[i].value.fixed(6));
-  }
-  file.write(text);
+  file.write(report::backtest_curve_csv(r));
   file.commit();
 }
 
@@ -258,6 +86,7 @@ void add_backtest(CLI::App& app, Context& ctx) {
     req.start_value = *sv;
     if (!o->benchmark.empty()) req.benchmark = o->benchmark;
     req.frictionless = o->frictionless;
+    req.keep_trades = o->json;  // the text report lists no trades
     req.rolling_months = o->rolling;
     const Progress progress;
     req.progress = [&progress](std::size_t done, std::size_t total, Date day) {
@@ -274,10 +103,13 @@ void add_backtest(CLI::App& app, Context& ctx) {
     if (curve) write_curve(*curve, result);
     if (curve && curve->to_stdout()) {
       // The curve has standard output; the report goes to standard error.
-      std::fputs(result_text(result, report::terminal_style(stderr)).c_str(), stderr);
+      std::fputs(report::backtest_text(result, report::terminal_style(stderr)).c_str(), stderr);
       return;
     }
-    out(o->json ? io::dump_json(result_json(result)) + "\n" : result_text(result, ctx.style()));
+    if (o->json)
+      report::backtest_json(result, out);
+    else
+      out(report::backtest_text(result, ctx.style()));
   });
 }
 
@@ -324,61 +156,8 @@ void add_signal(CLI::App& app, Context& ctx) {
     req.horizons = horizons_option(o->horizons);
     const auto rule = rules::load_rule(o->rule);
     auto db = ctx.open_ledger();
-    const auto history = backtest::load_history(db, rule);
-    const auto r = backtest::signal(history, rule, req);
-    if (o->json) {
-      Json j = report::json_document("signal", 1);
-      j["rule"] = r.rule_name;
-      j["from"] = r.from.str();
-      j["to"] = r.to.str();
-      j["sign_convention"] =
-          "IC = Spearman(z, forward return); low z is cheap, so a rule "
-          "whose cheap names do better has a negative IC";
-      j["horizons"] = Json::array();
-      for (const auto& h : r.horizons) {
-        Json days = Json::array();
-        for (const auto& d : h.days)
-          days.push_back({{"date", d.day.str()},
-                          {"end", d.end.str()},
-                          {"names", d.names},
-                          {"ic", number(d.ic)},
-                          {"spread", d.spread}});
-        j["horizons"].push_back({{"months", h.months},
-                                 {"days", h.days.size()},
-                                 {"mean_ic", number(h.mean_ic)},
-                                 {"t_stat", number(h.t_stat)},
-                                 {"share_expected_sign", number(h.share_expected_sign)},
-                                 {"mean_spread", number(h.mean_spread)},
-                                 {"by_day", days}});
-      }
-      j["notes"] = r.notes;
-      j["cautions"] = r.cautions;
-      out(io::dump_json(j) + "\n");
-      return;
-    }
-    std::string s = fmt::format("Signal check of rule '{}' from {} to {}\n", printable(r.rule_name),
-                                r.from.str(), r.to.str());
-    s += "IC = Spearman rank correlation of z with the forward total return. Low z is cheap, "
-         "so a rule whose cheap names do better has a negative IC.\n\n";
-    Table t({{"months", Align::right},
-             {"days", Align::right},
-             {"mean IC", Align::right},
-             {"t", Align::right},
-             {"IC < 0", Align::right},
-             {"cheapest - dearest fifth", Align::right}});
-    for (const auto& h : r.horizons)
-      t.add_row({std::to_string(h.months), std::to_string(h.days.size()),
-                 h.mean_ic ? fmt::format("{:.4f}", *h.mean_ic) : "n/a",
-                 h.t_stat ? fmt::format("{:.2f}", *h.t_stat) : "n/a", pct(h.share_expected_sign),
-                 pct(h.mean_spread)});
-    s += t.render(ctx.style());
-    if (!r.notes.empty()) {
-      s += "\nNotes:\n";
-      for (const auto& n : r.notes) s += "  " + printable(n) + "\n";
-    }
-    s += "\nCautions:\n";
-    for (const auto& c : r.cautions) s += "  - " + c + "\n";
-    out(s);
+    const auto r = backtest::signal(db, rule, req);
+    out(o->json ? report::signal_json(r) : report::signal_text(r, ctx.style()));
   });
 }
 

@@ -5,7 +5,6 @@
 #include <chrono>
 #include <cstdio>
 #include <memory>
-#include <nlohmann/json.hpp>
 
 #include "cli/context.h"
 #include "cli/csv_rows.h"
@@ -14,7 +13,7 @@
 #include "core/files.h"
 #include "core/text.h"
 #include "io/errors.h"
-#include "io/json.h"
+#include "core/json.h"
 #include "io/ledger_intake.h"
 #include "io/market_intake.h"
 #include "ledger/posting.h"
@@ -99,6 +98,7 @@ std::string ledger_summary(const io::LedgerImportSummary& sum, const report::Sty
   }
   if (sum.dry_run) text += " (dry run: nothing was changed)";
   text += "\n";
+  for (const auto& note : sum.notes) text += "note: " + note + "\n";
   if (sum.dry_run && !sum.preview.empty()) text += "\n" + preview_table(sum, style);
   return text;
 }
@@ -106,10 +106,11 @@ std::string ledger_summary(const io::LedgerImportSummary& sum, const report::Sty
 void add_import(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ImportCommandOptions>();
   auto* cmd = app.add_subcommand("import", "Read a CSV file into the ledger, all or nothing");
-  add_examples(*cmd, {"keel import prices closes.csv",
+  add_examples(*cmd, {"keel import fx rates.csv",
                       "keel import transactions broker.csv --map broker.toml --dry-run"});
   cmd->add_option("WHAT", o->what,
-                  "accounts, transactions, securities, prices, metrics, distributions or splits")
+                  "accounts, transactions, actions (corporate actions), securities, prices, "
+                  "metrics, distributions, splits or fx (exchange rates)")
       ->required();
   cmd->add_option("FILE", o->file,
                   "CSV file (keel's layout, or another described by --map); transactions also "
@@ -143,9 +144,10 @@ void add_import(CLI::App& app, Context& ctx) {
     if (o->what != "transactions" && (o->book_corrections || options.account))
       throw InputError(fmt::format("{}: only for importing transactions",
                                    o->book_corrections ? "--book-corrections" : "--account"));
-    if (o->what == "transactions" || o->what == "accounts") {
+    if (o->what == "transactions" || o->what == "accounts" || o->what == "actions") {
       auto db = ctx.open_ledger(store::Access::write);
       const auto sum = printing_refusals([&] {
+        if (o->what == "actions") return io::import_actions(db, o->file, options);
         return o->what == "accounts" ? io::import_accounts(db, o->file, options)
                                      : io::import_transactions(db, o->file, options);
       });
@@ -188,7 +190,8 @@ void add_export(CLI::App& app, Context& ctx) {
   add_examples(*cmd,
                {"keel export transactions --out transactions.csv", "keel export prices --json"});
   cmd->add_option("WHAT", o->what,
-                  "accounts, transactions, securities, prices, metrics, distributions or splits")
+                  "accounts, transactions, securities, prices, metrics, distributions, splits or "
+                  "fx (exchange rates)")
       ->required();
   auto* c = cmd->add_flag("--csv", o->csv, "CSV in keel's import layout (the default)");
   cmd->add_flag("--json", o->json, "A JSON array of objects; numbers as exact strings")
@@ -231,17 +234,18 @@ void add_imports(CLI::App& app, Context& ctx) {
     auto db = ctx.open_ledger();
     const auto runs = store::list_import_runs(db);
     if (o->json) {
-      auto j = report::json_document("imports", 1);
-      j["imports"] = nlohmann::ordered_json::array();
-      for (const auto& r : runs)
-        j["imports"].push_back({{"run", r.id},
-                                {"imported_at", r.imported_at},
-                                {"what", r.what},
-                                {"rows_read", r.rows_read},
-                                {"rows_added", r.rows_added},
-                                {"file_sha256", r.file_sha256},
-                                {"file", r.file_name}});
-      out(io::dump_json(j) + "\n");
+      std::string text;
+      JsonWriter j(text);
+      report::begin_document(j, "imports", 1).key("imports").begin_array();
+      for (const auto& r : runs) {
+        j.begin_object().member("run", static_cast<long long>(r.id));
+        j.member("imported_at", r.imported_at).member("what", r.what);
+        j.member("rows_read", static_cast<long long>(r.rows_read));
+        j.member("rows_added", static_cast<long long>(r.rows_added));
+        j.member("file_sha256", r.file_sha256).member("file", r.file_name).end_object();
+      }
+      j.end_array().end_object();
+      out(text + "\n");
       return;
     }
     if (o->csv) {

@@ -1,15 +1,21 @@
-// Commands that write the ledger: init, account add, security add, record, void.
+// Commands that write the ledger: init, account add and tax-status, security add, record,
+// void.
 #include <fmt/format.h>
 
 #include <memory>
+#include <set>
 
 #include "cli/context.h"
 #include "cli/history_rows.h"
 #include "cli/options.h"
+#include "core/currency.h"
 #include "core/error.h"
 #include "core/text.h"
 #include "ledger/accounts.h"
+#include "ledger/action_posting.h"
+#include "ledger/plausibility.h"
 #include "ledger/posting.h"
+#include "ledger/tax.h"
 #include "store/ledger_store.h"
 
 namespace keel::cli {
@@ -43,9 +49,17 @@ void add_init(CLI::App& app, Context& ctx) {
 }
 
 struct AccountAddOptions {
-  std::string name, currency, basis = "fifo";
+  std::string name, currency, basis = "fifo", tax_status = "taxable";
   bool allow_negative = false;
 };
+
+TaxStatus tax_status_option(const std::string& text, std::string_view option) {
+  try {
+    return parse_tax_status(text);
+  } catch (const InputError& e) {
+    throw InputError(fmt::format("{}: {}", option, e.what()));
+  }
+}
 
 void add_account_add(CLI::App& group, Context& ctx) {
   auto o = std::make_shared<AccountAddOptions>();
@@ -58,7 +72,11 @@ void add_account_add(CLI::App& group, Context& ctx) {
                   "becomes the ledger's)");
   cmd->add_option("--basis", o->basis, "Cost-basis method: fifo, lifo, hifo, average, specific");
   cmd->add_flag("--allow-negative-cash", o->allow_negative, "Let cash go below zero (margin)");
+  cmd->add_option("--tax-status", o->tax_status,
+                  "taxable, tax-deferred or tax-exempt, from the account's opening (change it "
+                  "later with 'keel account tax-status')");
   cmd->callback([&ctx, o] {
+    const TaxStatus status = tax_status_option(o->tax_status, "--tax-status");
     Account a;
     a.name = o->name;
     if (!o->currency.empty()) a.currency = normalize_currency(o->currency);
@@ -66,16 +84,42 @@ void add_account_add(CLI::App& group, Context& ctx) {
     a.allow_negative_cash = o->allow_negative;
     auto db = ctx.open_ledger(store::Access::write);
     store::WriteTransaction tx(db);
-    const auto id = ledger::add_account(db, a);
+    const auto id = ledger::add_account(db, a, status);
     a = *store::find_account(db, a.name);
     tx.commit();
-    out(fmt::format("account {} '{}' added ({}, {}{})\n", id, printable(a.name), a.currency,
-                    to_string(a.basis), a.allow_negative_cash ? ", negative cash allowed" : ""));
+    out(fmt::format("account {} '{}' added ({}, {}{}{})\n", id, printable(a.name), a.currency,
+                    to_string(a.basis), a.allow_negative_cash ? ", negative cash allowed" : "",
+                    status == TaxStatus::taxable ? "" : fmt::format(", {}", to_string(status))));
+  });
+}
+
+struct TaxStatusOptions {
+  std::string name, status, from;
+};
+
+void add_account_tax_status(CLI::App& group, Context& ctx) {
+  auto o = std::make_shared<TaxStatusOptions>();
+  auto* cmd = group.add_subcommand(
+      "tax-status", "Change an account's tax status from a day on (the history is kept)");
+  add_examples(*cmd, {"keel account tax-status Retirement tax-deferred --from 2026-01-01"});
+  cmd->add_option("NAME", o->name, "Account name")->required();
+  cmd->add_option("STATUS", o->status, "taxable, tax-deferred or tax-exempt")->required();
+  cmd->add_option("--from", o->from, "First day of the new status (YYYY-MM-DD)")->required();
+  cmd->callback([&ctx, o] {
+    const TaxStatus status = tax_status_option(o->status, "STATUS");
+    const auto from = date_option(o->from, "--from");
+    if (!from) throw InputError("--from: give the first day of the new status (YYYY-MM-DD)");
+    auto db = ctx.open_ledger(store::Access::write);
+    store::WriteTransaction tx(db);
+    ledger::set_tax_status(db, o->name, status, *from);
+    tx.commit();
+    out(fmt::format("account '{}' is {} from {}\n", printable(o->name), to_string(status),
+                    from->str()));
   });
 }
 
 struct SecurityAddOptions {
-  std::string symbol, name, kind, currency, lot_size = "1", sector;
+  std::string symbol, name, kind, currency, lot_size = "1", sector, country;
 };
 
 void add_security_add(CLI::App& group, Context& ctx) {
@@ -91,6 +135,8 @@ void add_security_add(CLI::App& group, Context& ctx) {
   cmd->add_option("--currency", o->currency, "Three-letter currency code (default: the ledger's)");
   cmd->add_option("--lot-size", o->lot_size, "Smallest tradable multiple (1 = whole units)");
   cmd->add_option("--sector", o->sector, "Sector label, for rule universes");
+  cmd->add_option("--country", o->country,
+                  "Issuer's country, ISO 3166-1 alpha-2 (such as NL), for withholding by country");
   cmd->callback([&ctx, o] {
     Security s;
     s.symbol = o->symbol;
@@ -103,6 +149,13 @@ void add_security_add(CLI::App& group, Context& ctx) {
       throw InputError(fmt::format("--lot-size: {}", e.what()));
     }
     if (!o->sector.empty()) s.sector = o->sector;
+    if (!o->country.empty()) {
+      try {
+        s.country = normalize_country(o->country);
+      } catch (const InputError& e) {
+        throw InputError(fmt::format("--country: {}", e.what()));
+      }
+    }
     auto db = ctx.open_ledger(store::Access::write);
     store::WriteTransaction tx(db);
     const auto id = ledger::add_security(db, s);
@@ -115,7 +168,7 @@ void add_security_add(CLI::App& group, Context& ctx) {
 // error names the flag.
 struct RecordOptions {
   std::string date, account, symbol, quantity, price, fee, amount, ratio, lots, to_account,
-      acquired, ref, note;
+      acquired, ref, note, currency, rate, to_currency;
   bool allow_future = false;
 };
 
@@ -141,6 +194,9 @@ ledger::PostRequest to_request(TxnKind kind, const RecordOptions& o) {
   r.ref = text_option(o.ref);
   r.note = text_option(o.note);
   r.allow_future = o.allow_future;
+  if (!o.currency.empty()) r.currency = parse_currency(o.currency, "--currency");
+  if (!o.to_currency.empty()) r.to_currency = parse_currency(o.to_currency, "--to-currency");
+  r.rate = decimal_option(o.rate, "--rate");
   return r;
 }
 
@@ -190,6 +246,10 @@ constexpr KindSpec kKindSpecs[] = {
      "keel record transfer_out --date 2025-03-02 --account Taxable --amount 8000 --to-account "
      "Retirement",
      true, true, true, false},
+    {TxnKind::exchange, "Cash of one currency exchanged for another inside the account",
+     "keel record exchange --date 2025-01-03 --account Taxable --amount 5000 --to-currency USD "
+     "--rate 1.0412 --fee 2.50",
+     false, false, true, false},
 };
 
 void add_record_kind(CLI::App& group, Context& ctx, const KindSpec& spec) {
@@ -208,7 +268,26 @@ void add_record_kind(CLI::App& group, Context& ctx, const KindSpec& spec) {
         spec.kind == TxnKind::transfer_in ? "Unit cost of units brought in" : "Price per unit");
     cmd->add_option("--fee", o->fee, "Fee or commission (default 0)");
   }
-  if (spec.cash) cmd->add_option("--amount", o->amount, "Cash amount (positive)");
+  if (spec.cash)
+    cmd->add_option("--amount", o->amount,
+                    spec.kind == TxnKind::exchange ? "Amount sold, in --currency (positive)"
+                                                   : "Cash amount (positive)");
+  cmd->add_option("--currency", o->currency,
+                  spec.kind == TxnKind::exchange
+                      ? "Currency sold (default: the account's)"
+                      : "ISO 4217 currency of the figures (default: the security's, else the "
+                        "account's)");
+  if (spec.kind == TxnKind::exchange) {
+    cmd->add_option("--to-currency", o->to_currency, "Currency bought")->required();
+    cmd->add_option("--rate", o->rate, "Units of --to-currency one unit of --currency bought");
+    cmd->add_option("--fee", o->fee, "Fee, in --currency, on top of --amount (default 0)");
+  } else if (spec.kind == TxnKind::buy || spec.kind == TxnKind::sell ||
+             spec.kind == TxnKind::dividend || spec.kind == TxnKind::interest ||
+             spec.kind == TxnKind::tax) {
+    cmd->add_option("--rate", o->rate,
+                    "Settle in the account's currency at this rate: units of --currency one unit "
+                    "of the account's currency bought (the broker's rate)");
+  }
   if (spec.kind == TxnKind::sell || spec.kind == TxnKind::transfer_out)
     cmd->add_option("--lots", o->lots, "Specific lots to take: LOT:QUANTITY[,LOT:QUANTITY...]");
   if (spec.kind == TxnKind::transfer_out)
@@ -227,8 +306,14 @@ void add_record_kind(CLI::App& group, Context& ctx, const KindSpec& spec) {
     const auto ids = ledger::post(db, request);
     std::string id_text = std::to_string(ids.front());
     if (ids.size() > 1) id_text += fmt::format(" and {}", ids.back());
-    out(fmt::format("posted {}: {} on {} in '{}'\n", id_text, to_string(kind), request.date.str(),
-                    printable(request.account)));
+    std::string text = fmt::format("posted {}: {} on {} in '{}'\n", id_text, to_string(kind),
+                                   request.date.str(), printable(request.account));
+    // Posted, but worth a second look: said here and by 'keel verify'.
+    for (const auto& flag : ledger::plausibility_flags(
+             db, ledger::load_log(db), std::set<std::int64_t>(ids.begin(), ids.end())))
+      text += fmt::format("warning: {}; if it is right: keel confirm {} --reason ...\n",
+                          flag.message, flag.txn_id);
+    out(text);
   });
 }
 
@@ -236,18 +321,37 @@ void add_record_split(CLI::App& group, Context& ctx) {
   auto o = std::make_shared<RecordOptions>();
   auto* cmd = group.add_subcommand(
       "split", "A split of a security, applied to every account's lots at the start of its day");
-  add_examples(*cmd, {"keel record split --date 2025-06-02 --symbol KESTR --ratio 2",
-                      "keel record split --date 2025-06-02 --symbol KESTR --ratio 0.1"});
+  add_examples(
+      *cmd, {"keel record split --date 2025-06-02 --symbol KESTR --ratio 2",
+             "keel record split --date 2025-06-02 --symbol KESTR --ratio 0.1 --cash-in-lieu 41.5"});
   cmd->add_option("--date", o->date, "Day the split takes effect, YYYY-MM-DD")->required();
   cmd->add_option("--symbol", o->symbol, "Security symbol")->required();
   cmd->add_option("--ratio", o->ratio, "New units per old unit: 2 = two-for-one, 0.1 = one-for-ten")
       ->required();
+  cmd->add_option("--cash-in-lieu", o->price,
+                  "Pay the fraction of a unit each account is left with in cash, at this price "
+                  "per unit (recorded as a corporate action, see 'keel action list')");
   add_allow_future_flag(*cmd, o->allow_future);
-  cmd->callback([&ctx, o] {
+  cmd->callback([&ctx, o, cmd] {
     const Date date = date_option_or_today(o->date, "--date");
     const auto ratio = decimal_option(o->ratio, "--ratio");
     // CLI11's required() accepts an empty value ('--ratio ""').
     if (!ratio) throw InputError("split: --ratio needs a number, such as 2 for two-for-one");
+    if (cmd->count("--cash-in-lieu") > 0) {
+      ledger::ActionRequest r;
+      r.kind = ActionKind::split;
+      r.date = date;
+      r.symbol = o->symbol;
+      r.ratio = ratio;
+      r.cash_in_lieu = true;
+      r.in_lieu_price = decimal_option(o->price, "--cash-in-lieu");
+      r.allow_future = o->allow_future;
+      auto db = ctx.open_ledger(store::Access::write);
+      const auto posted = ledger::post_action(db, r);
+      out(fmt::format("action {} posted: split of {} x{} on {}, fractions paid at {}\n", posted.id,
+                      printable(o->symbol), ratio->str(), date.str(), r.in_lieu_price->str()));
+      return;
+    }
     auto db = ctx.open_ledger(store::Access::write);
     const auto id = ledger::post_split(db, o->symbol, date, *ratio, o->allow_future);
     out(fmt::format("split {} posted: {} x{} on {}\n", id, printable(o->symbol), ratio->str(),
@@ -296,21 +400,38 @@ void add_void(CLI::App& app, Context& ctx) {
   });
 }
 
+void add_confirm(CLI::App& app, Context& ctx) {
+  auto o = std::make_shared<VoidOptions>();
+  auto* cmd = app.add_subcommand(
+      "confirm",
+      "Mark a transaction a plausibility check flags as right, so it is flagged no more");
+  add_examples(*cmd, {"keel confirm 12 --reason \"bought in the closing auction\""});
+  cmd->add_option("ID", o->id, "Transaction id (see 'keel verify')")->required();
+  cmd->add_option("--reason", o->reason, "Why it is right")->required();
+  cmd->callback([&ctx, o] {
+    auto db = ctx.open_ledger(store::Access::write);
+    ledger::confirm(db, o->id, o->reason);
+    out(fmt::format("transaction {} confirmed; it is flagged no more\n", o->id));
+  });
+}
+
 }  // namespace
 
 void register_ledger_commands(CLI::App& app, Context& ctx) {
   add_init(app, ctx);
-  auto* accounts = app.add_subcommand("account", "Add or list accounts");
+  auto* accounts = app.add_subcommand("account", "Add, list or rename accounts");
   accounts->require_subcommand(1);
   add_account_add(*accounts, ctx);
-  auto* securities = app.add_subcommand("security", "Add or list securities");
+  add_account_tax_status(*accounts, ctx);
+  auto* securities = app.add_subcommand("security", "Add, list or change securities");
   securities->require_subcommand(1);
   add_security_add(*securities, ctx);
-  auto* record = app.add_subcommand("record", "Post a transaction or a split");
+  auto* record = app.add_subcommand("record", "Post a transaction, a split or a corporate action");
   record->require_subcommand(1);
   for (const auto& spec : kKindSpecs) add_record_kind(*record, ctx, spec);
   add_record_split(*record, ctx);
   add_void(app, ctx);
+  add_confirm(app, ctx);
   // After their subcommands, which would inherit these footers.
   add_examples(*accounts, {"keel account add Taxable --currency EUR", "keel account list"});
   add_examples(*securities,

@@ -3,13 +3,12 @@
 
 #include <cstdio>
 #include <memory>
-#include <nlohmann/json.hpp>
 
 #include "cli/context.h"
 #include "cli/options.h"
 #include "core/error.h"
 #include "core/text.h"
-#include "io/json.h"
+#include "core/json.h"
 #include "ledger/restore.h"
 #include "ledger/verify.h"
 #include "report/json_schema.h"
@@ -30,21 +29,23 @@ void add_verify(CLI::App& app, Context& ctx) {
     if (*json) {
       // The document comes out whole either way; problems still end in a
       // LedgerError, so the exit status says the same as the text form.
-      auto j = report::json_document("verify", 1);
-      j["ledger"] = db.path().string();
-      j["ok"] = report.ok();
-      j["accounts"] = report.accounts;
-      j["transactions"] = report.transactions;
-      j["problems"] = report.problems;
-      j["warnings"] = report.warnings;
-      j["reconciled"] = nlohmann::ordered_json::array();
-      for (const auto& r : report.reconciled)
-        j["reconciled"].push_back(
-            {{"account", r.account},
-             {"last", r.last.str()},
-             {"locked_through", r.locked_through ? nlohmann::ordered_json(r.locked_through->str())
-                                                 : nlohmann::ordered_json()}});
-      out(io::dump_json(j) + "\n");
+      std::string text;
+      JsonWriter j(text);
+      report::begin_document(j, "verify", 1).member("ledger", db.path().string());
+      j.member("ok", report.ok());
+      j.member("accounts", static_cast<long long>(report.accounts));
+      j.member("transactions", static_cast<long long>(report.transactions));
+      j.member("problems", report.problems).member("warnings", report.warnings);
+      j.key("reconciled").begin_array();
+      for (const auto& r : report.reconciled) {
+        j.begin_object().member("account", r.account).member("last", r.last.str());
+        j.member("locked_through", r.locked_through ? std::optional<std::string>(
+                                                          r.locked_through->str())
+                                                    : std::nullopt);
+        j.end_object();
+      }
+      j.end_array().end_object();
+      out(text + "\n");
     }
     std::string text;
     for (const auto& p : report.problems) text += "problem: " + p + "\n";

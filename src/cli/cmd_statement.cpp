@@ -16,7 +16,6 @@
 #include "core/error.h"
 #include "core/files.h"
 #include "core/text.h"
-#include "io/json.h"
 #include "report/statement.h"
 #include "report/statement_forms.h"
 
@@ -125,7 +124,7 @@ void add_statement(CLI::App& app, Context& ctx) {
     auto db = ctx.open_ledger();
     const report::Statement s = report::build_statement(db, request);
     if (o->json) {
-      out(io::dump_json(report::statement_json(s)) + "\n");
+      out(report::statement_json(s));
     } else if (o->html.empty() && o->pdf.empty() && o->xlsx.empty() && o->csv.empty()) {
       out(report::statement_text(s, ctx.colour()));
     }

@@ -63,6 +63,8 @@ auto printing_refusals(F&& read) {
 // subcommand's callback runs inside main()'s error handling.
 using Registrar = void (*)(CLI::App& app, Context& context);
 void register_ledger_commands(CLI::App& app, Context& context);
+void register_action_commands(CLI::App& app, Context& context);  // after the ledger's
+void register_change_commands(CLI::App& app, Context& context);  // after the ledger's
 void register_report_commands(CLI::App& app, Context& context);
 void register_intake_commands(CLI::App& app, Context& context);
 void register_returns_commands(CLI::App& app, Context& context);

@@ -45,6 +45,8 @@ int main(int argc, char** argv) {
                "output that is not to a terminal is never paged");
 
   keel::cli::register_ledger_commands(app, context);
+  keel::cli::register_action_commands(app, context);
+  keel::cli::register_change_commands(app, context);
   keel::cli::register_report_commands(app, context);
   keel::cli::register_intake_commands(app, context);
   keel::cli::register_returns_commands(app, context);

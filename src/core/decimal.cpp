@@ -4,6 +4,7 @@
 
 #include <algorithm>
 #include <limits>
+#include <stdexcept>
 
 #include "core/error.h"
 #include "core/text.h"
@@ -105,6 +106,12 @@ Decimal::Decimal(long long whole) : mantissa_(whole), scale_(0) {}
 
 Decimal::Decimal(Int mantissa, int scale) : mantissa_(std::move(mantissa)), scale_(scale) {
   normalize();
+}
+
+Decimal Decimal::scaled(long long mantissa, int scale) {
+  if (scale < 0 || scale > kMaxScale)
+    throw std::invalid_argument(fmt::format("Decimal::scaled: scale {} out of range", scale));
+  return Decimal(Int(mantissa), scale);
 }
 
 void Decimal::normalize() {
@@ -276,13 +283,32 @@ std::string Decimal::fixed(int places) const {
   return out;
 }
 
+namespace {
+
+// q = x / y rounded half-to-even, for y > 0.
+Wide divide_half_even(Wide x, Wide y) {
+  Wide q = x / y;
+  const Wide r = x % y;  // same sign as x
+  const Wide twice = (r < 0 ? -r : r) * 2;
+  if (twice > y || (twice == y && q % 2 != 0)) q += x < 0 ? -1 : 1;
+  return q;
+}
+
+}  // namespace
+
 Decimal Decimal::rounded(int places) const {
   if (scale_ <= places) return *this;
+  long long small = 0;
+  if (places >= 0 && scale_ - places <= 18 && small_value(mantissa_, small))
+    return Decimal(from_int128(divide_half_even(small, kPow10[scale_ - places])), places);
   return Decimal(round_half_even(mantissa_, scale_ - places), places);
 }
 
 Decimal Decimal::truncated(int places) const {
   if (scale_ <= places) return *this;
+  long long small = 0;
+  if (places >= 0 && scale_ - places <= 18 && small_value(mantissa_, small))
+    return Decimal(Int(small / kPow10[scale_ - places]), places);
   return Decimal(mantissa_ / pow10(scale_ - places), places);
 }
 
@@ -293,6 +319,17 @@ Decimal Decimal::floored(int places) const {
 
 Decimal Decimal::divide(const Decimal& numerator, const Decimal& denominator, int places) {
   if (denominator.is_zero()) throw InputError("division by zero");
+  // Machine words when both sides fit: a mantissa below 2^63 times 10^18 at
+  // most stays below 2^123, so twice a remainder fits too. The same quotient
+  // as the general path below.
+  long long a = 0, b = 0;
+  if (places >= 0 && denominator.scale_ + places <= 18 && numerator.scale_ <= 18 &&
+      small_value(numerator.mantissa_, a) && small_value(denominator.mantissa_, b)) {
+    Wide n = static_cast<Wide>(a) * kPow10[denominator.scale_ + places];
+    Wide d = static_cast<Wide>(b) * kPow10[numerator.scale_];
+    if (d < 0) n = -n, d = -d;
+    return Decimal(from_int128(divide_half_even(n, d)), places);
+  }
   // (n / 10^a) / (d / 10^b) at `places` digits = n * 10^(b + places) / (d * 10^a).
   const Int n = numerator.mantissa_ * pow10(denominator.scale_ + places);
   const Int d = denominator.mantissa_ * pow10(numerator.scale_);

@@ -33,6 +33,8 @@ class Decimal {
   Decimal(long long whole);  // NOLINT: implicit from integers is natural for literals.
 
   static Decimal parse(std::string_view text);
+  // mantissa x 10^-scale, exactly; 0 <= scale <= kMaxScale (std::invalid_argument otherwise).
+  static Decimal scaled(long long mantissa, int scale);
   static std::optional<Decimal> try_parse(std::string_view text) noexcept;
 
   // Exact quotient rounded half-to-even to `places` fractional digits.

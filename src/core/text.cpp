@@ -8,6 +8,12 @@
 
 namespace keel {
 
+std::string printable_list(const std::vector<std::string>& items) {
+  std::string out;
+  for (const auto& item : items) out += (out.empty() ? "" : ", ") + printable(item);
+  return out;
+}
+
 bool valid_utf8(std::string_view s) {
   std::size_t i = 0;
   while (i < s.size()) {

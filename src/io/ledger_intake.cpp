@@ -4,27 +4,29 @@
 
 #include <algorithm>
 #include <map>
-#include <nlohmann/json.hpp>
 #include <set>
 #include <unordered_map>
 #include <unordered_set>
 
+#include "core/currency.h"
 #include "core/error.h"
 #include "core/files.h"
+#include "core/json.h"
 #include "core/text.h"
 #include "io/csv.h"
 #include "io/errors.h"
-#include "io/json.h"
 #include "io/ofx.h"
 #include "io/sha256.h"
 #include "io/table.h"
 #include "ledger/accounts.h"
+#include "ledger/action_posting.h"
 #include "ledger/period.h"
 #include "ledger/posting.h"
 #include "model/security.h"
 #include "store/ledger_store.h"
 #include "store/market_data.h"
 #include "store/period_store.h"
+#include "store/record_change_store.h"
 
 namespace keel::io {
 namespace {
@@ -47,10 +49,13 @@ enum TxnColumn : std::size_t {
   kAcquired,
   kCurrency,
   kRate,
+  kToCurrency,
 };
 
-// Columns an export writes; an import also reads currency and rate.
+// Columns an export writes for a ledger all in its accounts' own
+// currencies; one with a row in another currency also gets the last three.
 constexpr std::size_t kExportedColumns = kAcquired + 1;
+constexpr std::size_t kExportedCurrencyColumns = kToCurrency + 1;
 
 const std::vector<ColumnSpec>& transaction_columns() {
   static const std::vector<ColumnSpec> columns = {{"date"},
@@ -67,7 +72,8 @@ const std::vector<ColumnSpec>& transaction_columns() {
                                                   {"lots", false},
                                                   {"acquired", false},
                                                   {"currency", false},
-                                                  {"rate", false}};
+                                                  {"rate", false},
+                                                  {"to_currency", false}};
   return columns;
 }
 
@@ -76,6 +82,7 @@ constexpr std::pair<const char*, TxnColumn> kFieldColumns[] = {
     {"symbol", kSymbol},        {"quantity", kQuantity}, {"price", kPrice},
     {"amount", kAmount},        {"fee", kFee},           {"ref", kRef},
     {"to-account", kToAccount}, {"lots", kLots},         {"acquired", kAcquired},
+    {"currency", kCurrency},    {"rate", kRate},         {"to-currency", kToCurrency},
 };
 
 Mapping checked_mapping(const ImportOptions& options, std::string_view what) {
@@ -89,9 +96,14 @@ Mapping checked_mapping(const ImportOptions& options, std::string_view what) {
 // What makes two rows of one account "the same line" when they carry no ref.
 std::string content_key(const Transaction& t, const std::string& symbol) {
   auto opt = [](const std::optional<Decimal>& d) { return d ? d->str() : std::string(); };
-  return sha256_hex(fmt::format("{}\x1f{}\x1f{}\x1f{}\x1f{}\x1f{}\x1f{}", t.date.str(),
-                                to_string(t.kind), symbol, opt(t.quantity), opt(t.price),
-                                opt(t.amount), t.fee.str()));
+  std::string text =
+      fmt::format("{}\x1f{}\x1f{}\x1f{}\x1f{}\x1f{}\x1f{}", t.date.str(), to_string(t.kind), symbol,
+                  opt(t.quantity), opt(t.price), opt(t.amount), t.fee.str());
+  // Only rows in another currency carry these, so older keys stay as they were.
+  if (t.currency || t.rate || t.to_currency)
+    text += fmt::format("\x1f{}\x1f{}\x1f{}", t.currency.value_or(""), opt(t.rate),
+                        t.to_currency.value_or(""));
+  return sha256_hex(text);
 }
 
 std::string content_key(const ledger::PostRequest& r) {
@@ -102,6 +114,9 @@ std::string content_key(const ledger::PostRequest& r) {
   t.price = r.price;
   t.amount = r.amount;
   t.fee = r.fee.value_or(Decimal());
+  t.currency = r.currency;
+  t.rate = r.rate;
+  t.to_currency = r.to_currency;
   return content_key(t, r.symbol.value_or(""));
 }
 
@@ -121,7 +136,9 @@ Fields fields_of(const ledger::PostRequest& r) {
           {"fee", r.fee && !r.fee->is_zero() ? r.fee->str() : ""},
           {"to_account", r.to_account.value_or("")},
           {"lots", r.lots.empty() ? "" : format_lot_picks(r.lots)},
-          {"acquired", r.acquired ? r.acquired->str() : ""}};
+          {"acquired", r.acquired ? r.acquired->str() : ""},
+          {"rate", opt(r.rate)},
+          {"to_currency", r.to_currency.value_or("")}};
 }
 
 struct BookedRow {
@@ -164,6 +181,8 @@ struct BookedKeys {
             r.to_account = accounts[it->second];
           r.lots = t.lots;
           r.acquired = t.acquired;
+          r.rate = t.rate;
+          r.to_currency = t.to_currency;
           keys.live[{t.account_id, *t.ref}] = BookedRow{t.id, fields_of(r)};
         }
       }
@@ -232,43 +251,27 @@ bool read_request(TableReader& t, IntakeRow& row) {
     else
       ok = false;
   }
+  auto currency = [&](std::size_t col, std::optional<std::string>& out) {
+    if (!t.has(col)) return;
+    try {
+      out = parse_currency(t.raw(col), "");
+    } catch (const InputError& e) {
+      t.error_with_value(col, e.what());
+      ok = false;
+    }
+  };
+  currency(kCurrency, r.currency);
+  currency(kToCurrency, r.to_currency);
+  decimal(kRate, r.rate);
+  if (r.rate && !r.rate->is_positive()) {
+    t.error_with_value(kRate, "a rate must be greater than zero");
+    ok = false;
+  }
   for (const auto& [field, col] : kFieldColumns)
     if (t.has(col)) row.sources[field] = {t.shown(col), t.cell(col)};
   row.sources["ref"] = {t.shown(kRef), t.cell(kRef)};
   row.sources["account"] = {t.shown(kAccount), t.cell(kAccount)};
   return ok;
-}
-
-// The currency and rate columns: kept for when keel converts; for now a row
-// must be in its account's currency.
-bool check_currency(TableReader& t, const Account& account) {
-  std::optional<std::string> currency;
-  if (t.has(kCurrency)) {
-    try {
-      currency = normalize_currency(t.raw(kCurrency));
-    } catch (const InputError& e) {
-      t.error_with_value(kCurrency, e.what());
-      return false;
-    }
-    if (*currency != account.currency) {
-      t.error_with_value(kCurrency,
-                         fmt::format("account '{}' keeps {}; keel does not convert currencies "
-                                     "yet, so book this row in an account that keeps {}",
-                                     printable(account.name), account.currency, *currency));
-      return false;
-    }
-  }
-  if (t.has(kRate)) {
-    std::string buf;
-    if (!t.decimal(kRate, buf)) return false;
-    if (Decimal::parse(buf) != Decimal(1)) {
-      t.error_with_value(kRate, fmt::format("the row is in the account's currency {}, so its "
-                                            "rate must be 1",
-                                            account.currency));
-      return false;
-    }
-  }
-  return true;
 }
 
 LedgerImportSummary new_summary(const std::filesystem::path& file, const ImportOptions& options) {
@@ -320,6 +323,12 @@ void book_rows(store::Database& db, const std::filesystem::path& file, std::vect
   std::map<std::pair<std::string, std::string>, std::uint64_t> refs_in_file, contents_in_file;
   std::vector<IntakeRow> fresh_rows;
   std::vector<std::int64_t> replaces;  // per fresh row: the booked row it corrects, or 0
+  for (const auto& row : rows)
+    if (row.request.symbol && !store::find_security(db, *row.request.symbol))
+      if (const auto now = store::find_security_by_former_symbol(db, *row.request.symbol))
+        sum.notes.push_back(fmt::format("{}:{}: '{}' is a former symbol of '{}'; booked to it",
+                                        file.string(), row.line, printable(*row.request.symbol),
+                                        printable(now->symbol)));
   for (auto& row : rows) {
     ledger::PostRequest& r = row.request;
     r.allow_future = options.allow_future;
@@ -451,7 +460,6 @@ LedgerImportSummary import_transactions(store::Database& db, const std::filesyst
         t.error(kAccount, fmt::format("unknown account '{}'", printable(row.request.account)));
         continue;
       }
-      if (!check_currency(t, *account)) continue;
       rows.push_back(std::move(row));
     }
     sum.rows = t.rows();
@@ -474,7 +482,11 @@ LedgerImportSummary import_accounts(store::Database& db, const std::filesystem::
   store::WriteTransaction tx(db);
   {
     TableReader t(csv, mapping,
-                  {{"name"}, {"currency"}, {"basis", false}, {"allow_negative_cash", false}},
+                  {{"name"},
+                   {"currency"},
+                   {"basis", false},
+                   {"allow_negative_cash", false},
+                   {"tax_status", false}},
                   errors);
     std::set<std::string> names;
     while (t.next()) {
@@ -491,6 +503,8 @@ LedgerImportSummary import_accounts(store::Database& db, const std::filesystem::
             throw InputError("allow_negative_cash must be yes or no");
           a.allow_negative_cash = flag == "yes" || flag == "true";
         }
+        const TaxStatus status =
+            t.has(4) ? parse_tax_status(ascii_lower(t.raw(4))) : TaxStatus::taxable;
         if (!names.insert(a.name).second) {
           t.error(0, fmt::format("account '{}' appears twice in this file", printable(a.name)));
           continue;
@@ -504,7 +518,7 @@ LedgerImportSummary import_accounts(store::Database& db, const std::filesystem::
             ++sum.already_booked;
           continue;
         }
-        ledger::add_account(db, a);
+        ledger::add_account(db, a, status);
         ++sum.added;
       } catch (const InputError& e) {
         t.error(npos, e.what());
@@ -516,6 +530,82 @@ LedgerImportSummary import_accounts(store::Database& db, const std::filesystem::
   if (!errors.empty()) errors.raise("nothing was changed");
   if (options.dry_run) return sum;
   if (sum.added > 0) record_run(db, "accounts", file, sum);
+  tx.commit();
+  return sum;
+}
+
+LedgerImportSummary import_actions(store::Database& db, const std::filesystem::path& file,
+                                   const ImportOptions& options) {
+  const Mapping mapping = checked_mapping(options, "actions");
+  CsvReader csv = open_import_csv(file, mapping, options);
+  ErrorList errors(file.string());
+  LedgerImportSummary sum = new_summary(file, options);
+  store::WriteTransaction tx(db);
+  {
+    enum { kDate, kSymbol, kAction, kInto, kRatio, kCash, kPercent, kInLieu, kNote };
+    TableReader t(csv, mapping,
+                  {{"date"},
+                   {"symbol"},
+                   {"action"},
+                   {"into", false},
+                   {"ratio", false},
+                   {"cash", false},
+                   {"cost_percent", false},
+                   {"cash_in_lieu", false},
+                   {"note", false}},
+                  errors);
+    const std::map<std::string, std::size_t> column_of{{"into", kInto},
+                                                       {"ratio", kRatio},
+                                                       {"cash", kCash},
+                                                       {"cost-percent", kPercent},
+                                                       {"cash-in-lieu", kInLieu}};
+    while (t.next()) {
+      std::string date, ratio, cash, percent, in_lieu;
+      std::string_view symbol, action;
+      if (!t.date(kDate, date) || !t.text(kSymbol, symbol) || !t.text(kAction, action)) continue;
+      if ((t.has(kRatio) && !t.decimal(kRatio, ratio)) ||
+          (t.has(kCash) && !t.decimal(kCash, cash)) ||
+          (t.has(kPercent) && !t.decimal(kPercent, percent)))
+        continue;
+      ledger::ActionRequest r;
+      try {
+        r.kind = parse_action_kind(ascii_lower(action));
+      } catch (const InputError& e) {
+        t.error(kAction, e.what());
+        continue;
+      }
+      r.date = Date::parse(date);
+      if (!options.allow_future && !t.not_future(kDate, r.date)) continue;
+      r.allow_future = true;  // checked just above, naming the column
+      r.symbol = std::string(symbol);
+      if (t.has(kInto)) r.target = std::string(t.raw(kInto));
+      if (!ratio.empty()) r.ratio = Decimal::parse(ratio);
+      if (!cash.empty()) r.cash = Decimal::parse(cash);
+      if (!percent.empty()) r.cost_percent = Decimal::parse(percent);
+      r.cash_in_lieu = t.has(kInLieu);  // its value is the price per unit
+      if (t.has(kInLieu)) {
+        if (!t.decimal(kInLieu, in_lieu)) continue;
+        r.in_lieu_price = Decimal::parse(in_lieu);
+      }
+      if (t.has(kNote)) r.note = std::string(t.raw(kNote));
+      try {
+        ledger::write_action_unchecked(db, r);
+        ++sum.added;
+      } catch (const ledger::ShapeError& e) {
+        const auto it = column_of.find(e.field());
+        t.error(it == column_of.end() ? npos : it->second,
+                fmt::format("{}: {}", to_string(r.kind), e.reason()));
+      } catch (const InputError& e) {
+        t.error(npos, e.what());
+      }
+    }
+    sum.rows = t.rows();
+  }
+  sum.sha256 = csv.sha256_hex();
+  if (!errors.empty()) errors.raise("nothing was changed");
+  ledger::check_ledger(db);
+  if (options.dry_run) return sum;
+  if (sum.added > 0) record_run(db, "actions", file, sum);
   tx.commit();
   return sum;
 }
@@ -533,14 +623,16 @@ void write_rows(ExportFormat format, const std::vector<std::string>& header,
       append_export_record(text, fields);
     }
   } else {
-    nlohmann::ordered_json array = nlohmann::ordered_json::array();
+    JsonWriter j(text);
+    j.begin_array();
     for (const auto& row : rows) {
-      nlohmann::ordered_json object;
+      j.begin_object();
       for (std::size_t i = 0; i < header.size(); ++i)
-        if (!row[i].empty()) object[header[i]] = row[i];
-      array.push_back(std::move(object));
+        if (!row[i].empty()) j.member(header[i], row[i]);
+      j.end_object();
     }
-    text = dump_json(array) + "\n";
+    j.end_array();
+    text += "\n";
   }
   out.write(text);
 }
@@ -558,6 +650,7 @@ std::uint64_t export_transactions(store::Database& db, ExportFormat format, Outp
     if (t.link_id && !voided.count(t.id)) receiver_of[*t.link_id] = t.account_id;
   auto opt = [](const std::optional<Decimal>& d) { return d ? d->str() : std::string(); };
   std::vector<std::vector<std::string>> rows;
+  bool foreign = false;
   for (const auto& t : txns) {
     if (t.kind == TxnKind::void_entry || voided.count(t.id) || t.link_id) continue;
     const auto receiver = receiver_of.find(t.id);
@@ -566,11 +659,14 @@ std::uint64_t export_transactions(store::Database& db, ExportFormat format, Outp
          t.security_id ? symbols[*t.security_id] : "", opt(t.quantity), opt(t.price), opt(t.amount),
          t.fee.is_zero() ? "" : t.fee.str(), t.ref.value_or(""), t.note.value_or(""),
          receiver != receiver_of.end() ? accounts[receiver->second] : "",
-         t.lots.empty() ? "" : format_lot_picks(t.lots), t.acquired ? t.acquired->str() : ""});
+         t.lots.empty() ? "" : format_lot_picks(t.lots), t.acquired ? t.acquired->str() : "",
+         t.currency.value_or(""), opt(t.rate), t.to_currency.value_or("")});
+    foreign = foreign || t.currency || t.to_currency;
   }
+  const std::size_t columns = foreign ? kExportedCurrencyColumns : kExportedColumns;
+  for (auto& row : rows) row.resize(columns);
   std::vector<std::string> header;
-  for (std::size_t i = 0; i < kExportedColumns; ++i)
-    header.push_back(transaction_columns()[i].name);
+  for (std::size_t i = 0; i < columns; ++i) header.push_back(transaction_columns()[i].name);
   write_rows(format, header, rows, out);
   return rows.size();
 }

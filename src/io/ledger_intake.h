@@ -62,6 +62,8 @@ struct LedgerImportSummary {
   // Rows passed over by the mapping's actions.skip, per action as written.
   std::vector<std::pair<std::string, std::uint64_t>> skipped;
   std::vector<IntakeRow> preview;  // the first rows as they will be booked
+  // "FILE:LINE: ..." for rows worth a word, e.g. a security named by a former symbol.
+  std::vector<std::string> notes;
   bool dry_run = false;
   std::optional<std::int64_t> run_id;
 };
@@ -81,6 +83,11 @@ LedgerImportSummary import_ofx_transactions(store::Database& db, const std::file
                                             const ImportOptions& options);
 LedgerImportSummary import_accounts(store::Database& db, const std::filesystem::path& file,
                                     const ImportOptions& options);
+// Corporate actions in keel's layout (docs/import-formats.md): date, symbol,
+// action, and the figures its kind takes; each row is checked as 'keel record
+// <action>' checks it, then the whole ledger is replayed once. All or nothing.
+LedgerImportSummary import_actions(store::Database& db, const std::filesystem::path& file,
+                                   const ImportOptions& options);
 
 // Write to `out` without committing it; return the number of rows written.
 std::uint64_t export_transactions(store::Database& db, ExportFormat format, OutputFile& out);

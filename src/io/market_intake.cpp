@@ -2,14 +2,18 @@
 
 #include <fmt/format.h>
 
-#include <nlohmann/json.hpp>
+#include <cctype>
+#include <set>
+#include <tuple>
 
+#include "core/currency.h"
 #include "core/error.h"
+#include "core/json.h"
 #include "core/text.h"
 #include "io/csv.h"
 #include "io/errors.h"
-#include "io/json.h"
 #include "io/table.h"
+#include "store/fx_store.h"
 #include "store/ledger_store.h"
 
 namespace keel::io {
@@ -30,6 +34,8 @@ std::vector<ColumnSpec> columns_for(MarketKind what) {
       return {{"ex_date"}, {"pay_date", false}, {"symbol"}, {"per_share"}};
     case MarketKind::splits:
       return {{"date"}, {"symbol"}, {"ratio"}};
+    case MarketKind::fx:
+      return {{"date"}, {"base"}, {"quote"}, {"rate"}};
   }
   return {};
 }
@@ -40,6 +46,7 @@ struct Run {
   ErrorList& errors;
   store::MarketWriter& w;
   ImportSummary& sum;
+  store::Database& db;
   std::string existing;
 
   // Symbol column `col` resolved to a writer handle, or an error.
@@ -214,6 +221,47 @@ void import_rows(MarketKind what, Run& r, const ImportOptions& options, CsvReade
         progress();
       }
       break;
+    case MarketKind::fx: {
+      std::set<std::tuple<std::string, std::string, std::string>> seen;
+      auto code = [&](std::size_t col, std::string& out) {
+        std::string_view raw;
+        if (!t.text(col, raw)) return false;
+        std::string upper(raw);
+        for (char& ch : upper) ch = static_cast<char>(std::toupper(static_cast<unsigned char>(ch)));
+        if (!is_currency(upper)) {
+          t.error(col, fmt::format("'{}' is not an ISO 4217 currency code (such as EUR, USD, JPY)",
+                                   printable(raw)));
+          return false;
+        }
+        out = upper;
+        return true;
+      };
+      while (t.next()) {
+        bool ok = t.date(0, a);
+        ok = code(1, b) && ok;
+        ok = code(2, c) && ok;
+        if (ok && b == c) {
+          t.error(2, fmt::format("the quote currency is the base currency {}; a rate of 1 is "
+                                 "never stored",
+                                 b));
+          ok = false;
+        }
+        ok = t.decimal(3, d) && r.positive(3, d) && ok;
+        if (ok) {
+          if (!seen.insert({b, c, a}).second) {
+            t.error(npos,
+                    fmt::format("{}/{} on {} appears on an earlier line of this file", b, c, a));
+          } else {
+            const store::FxRateRow row{b, c, Date::parse(a), Decimal::parse(d)};
+            r.count(
+                store::upsert_fx_rate(r.db, row, options.replace, r.existing), 3,
+                [&] { return fmt::format("{}/{} on {}", b, c, a); }, "rate");
+          }
+        }
+        progress();
+      }
+      break;
+    }
     case MarketKind::securities:
       while (t.next()) {
         Security s;
@@ -279,17 +327,19 @@ std::string_view to_string(MarketKind kind) {
       return "distributions";
     case MarketKind::splits:
       return "splits";
+    case MarketKind::fx:
+      return "fx";
   }
   return "prices";
 }
 
 MarketKind parse_market_kind(std::string_view text) {
   for (auto k : {MarketKind::securities, MarketKind::prices, MarketKind::metrics,
-                 MarketKind::distributions, MarketKind::splits})
+                 MarketKind::distributions, MarketKind::splits, MarketKind::fx})
     if (to_string(k) == text) return k;
   throw InputError(
       fmt::format("cannot import or export '{}'; expected one of: accounts, transactions, "
-                  "securities, prices, metrics, distributions, splits",
+                  "securities, prices, metrics, distributions, splits, fx",
                   printable(text)));
 }
 
@@ -322,7 +372,7 @@ ImportSummary import_market(store::Database& db, MarketKind what, const std::fil
   {
     store::MarketWriter writer(db, options.replace);
     TableReader table(csv, mapping, columns_for(what), errors);
-    Run run{table, errors, writer, sum, {}};
+    Run run{table, errors, writer, sum, db, {}};
     import_rows(what, run, options, csv);
     sum.rows = table.rows();
   }
@@ -379,15 +429,17 @@ class Writer {
     if (format_ == ExportFormat::csv) {
       append_export_record(sink_.buf(), values);
     } else {
-      nlohmann::ordered_json o;
-      for (std::size_t i = 0; i < names_.size(); ++i) {
-        if (i == nullable && values[i].empty())
-          o[std::string(names_[i])] = nullptr;
-        else
-          o[std::string(names_[i])] = std::string(values[i]);
-      }
       sink_.buf() += rows_ == 1 ? "\n" : ",\n";
-      sink_.buf() += dump_json(o, -1);
+      JsonWriter o(sink_.buf(), -1);
+      o.begin_object();
+      for (std::size_t i = 0; i < names_.size(); ++i) {
+        o.key(names_[i]);
+        if (i == nullable && values[i].empty())
+          o.null();
+        else
+          o.value(values[i]);
+      }
+      o.end_object();
     }
     sink_.maybe_flush();
   }
@@ -451,6 +503,12 @@ std::uint64_t export_market(store::Database& db, MarketKind what, ExportFormat f
       }
       break;
     }
+    case MarketKind::fx:
+      for (const auto& row : store::list_fx_rates(db)) {
+        const std::string d = row.date.str(), r = row.rate.str();
+        w.row({d, row.base, row.quote, r});
+      }
+      break;
   }
   return w.finish();
 }

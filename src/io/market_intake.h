@@ -33,7 +33,9 @@
 
 namespace keel::io {
 
-enum class MarketKind { securities, prices, metrics, distributions, splits };
+// fx: exchange rates, date,base,quote,rate (one `base` unit buys `rate`
+// `quote` units; ISO 4217 codes; the same exactly-once rules as closes).
+enum class MarketKind { securities, prices, metrics, distributions, splits, fx };
 std::string_view to_string(MarketKind kind);
 MarketKind parse_market_kind(std::string_view text);  // throws InputError naming the choices
 

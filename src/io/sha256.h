@@ -1,11 +1,13 @@
-// SHA-256 (FIPS 180-4, section 6.2), incremental: update() any number of
-// times, then hex() once for the lowercase hexadecimal digest.
+// SHA-256 (FIPS 180-4), incremental: update() any number of times, then
+// hex() once for the lowercase hexadecimal digest. The digest is OpenSSL's
+// libcrypto (Debian's libssl-dev), which uses the processor's SHA
+// extensions where it has them. Throws std::runtime_error only if libcrypto
+// fails, which it does not for a digest in memory.
 #pragma once
 
-#include <array>
 #include <cstddef>
-#include <cstdint>
 #include <filesystem>
+#include <memory>
 #include <string>
 #include <string_view>
 
@@ -14,16 +16,16 @@ namespace keel::io {
 class Sha256 {
  public:
   Sha256();
+  ~Sha256();
+  Sha256(const Sha256&) = delete;
+  Sha256& operator=(const Sha256&) = delete;
   void update(const void* data, std::size_t size);
   void update(std::string_view text) { update(text.data(), text.size()); }
   std::string hex();  // finishes the digest; call once
 
  private:
-  void block(const unsigned char* p);
-  std::array<std::uint32_t, 8> h_;
-  std::array<unsigned char, 64> buf_{};
-  std::size_t buffered_ = 0;
-  std::uint64_t total_ = 0;
+  struct Context;
+  std::unique_ptr<Context> ctx_;
 };
 
 std::string sha256_hex(std::string_view text);

@@ -7,6 +7,7 @@
 
 #include "core/error.h"
 #include "core/text.h"
+#include "ledger/actions.h"
 
 namespace keel {
 
@@ -74,9 +75,20 @@ Decimal cost_share(const Decimal& cost, const Decimal& taken, const Decimal& hel
   return allocate(cost, {taken, held - taken}, kCostPlaces).front();
 }
 
+Decimal AccountBook::foreign_balance(const std::string& currency) const {
+  Decimal total;
+  if (const auto it = foreign_cash.find(currency); it != foreign_cash.end())
+    for (const auto& lot : it->second) total += lot.quantity;
+  return total;
+}
+
 Book::Book(const std::vector<Account>& accounts,
-           std::unordered_map<std::int64_t, std::string> pending)
-    : accounts_(accounts), books_(accounts.size()), pending_(std::move(pending)) {
+           std::unordered_map<std::int64_t, std::string> pending,
+           std::shared_ptr<const market::FxRates> rates)
+    : accounts_(accounts),
+      books_(accounts.size()),
+      rates_(std::move(rates)),
+      pending_(std::move(pending)) {
   for (std::size_t i = 0; i < accounts_.size(); ++i) index_[accounts_[i].id] = i;
 }
 
@@ -126,7 +138,9 @@ std::string Book::describe(const Transaction& t) const {
   return fmt::format("transaction {} ({})", t.id, where);
 }
 
-namespace {
+void Book::apply_action(const CorporateAction& action) {
+  ActionEngine(*this).apply(action);
+}
 
 // Order in which lots are taken for a method; `lots` is left untouched.
 std::vector<std::size_t> taking_order(const std::vector<Lot>& lots, BasisMethod method) {
@@ -164,6 +178,10 @@ Lot cut(Lot& lot, const Decimal& quantity) {
     return part;
   }
   part.cost = cost_share(lot.cost, quantity, lot.quantity);
+  if (lot.local_cost) {
+    part.local_cost = cost_share(*lot.local_cost, quantity, lot.quantity);
+    *lot.local_cost -= *part.local_cost;
+  }
   lot.quantity -= quantity;
   lot.cost -= part.cost;
   return part;
@@ -174,8 +192,6 @@ void drop_empty(std::vector<Lot>& lots) {
       std::remove_if(lots.begin(), lots.end(), [](const Lot& l) { return l.quantity.is_zero(); }),
       lots.end());
 }
-
-}  // namespace
 
 std::vector<Lot> Book::take_lots(const Transaction& txn, const Account& account,
                                  Position& position) {
@@ -236,6 +252,18 @@ std::vector<Lot> Book::take_lots(const Transaction& txn, const Account& account,
     for (std::size_t i = 0; i < taken.size(); ++i) taken[i].cost = taken_parts[i];
     const auto open_parts = allocate(cost_before - taken_cost, open_qty, kCostPlaces);
     for (std::size_t i = 0; i < position.lots.size(); ++i) position.lots[i].cost = open_parts[i];
+    // A foreign position pools its cost in the security's currency the same way.
+    if (!taken.empty() && taken.front().local_cost) {
+      Decimal local_before;
+      for (const auto& l : taken) local_before += l.local_cost.value_or(Decimal());
+      for (const auto& l : position.lots) local_before += l.local_cost.value_or(Decimal());
+      const Decimal taken_local = cost_share(local_before, wanted, held);
+      const auto taken_local_parts = allocate(taken_local, taken_qty, kCostPlaces);
+      for (std::size_t i = 0; i < taken.size(); ++i) taken[i].local_cost = taken_local_parts[i];
+      const auto open_local_parts = allocate(local_before - taken_local, open_qty, kCostPlaces);
+      for (std::size_t i = 0; i < position.lots.size(); ++i)
+        position.lots[i].local_cost = open_local_parts[i];
+    }
   }
   return taken;
 }
@@ -312,6 +340,11 @@ void Book::apply_transfer_out(const Transaction& txn, const Account& account, Ac
 void Book::apply(const Transaction& txn) {
   AccountBook& book = book_of(txn.account_id);
   const Account& account = account_info(txn.account_id);
+  if (apply_foreign(txn, account, book)) {
+    touched_today_.insert(txn.account_id);
+    last_txn_today_[txn.account_id] = &txn;
+    return;
+  }
   switch (txn.kind) {
     case TxnKind::deposit:
     case TxnKind::dividend:
@@ -335,6 +368,7 @@ void Book::apply(const Transaction& txn) {
     case TxnKind::transfer_out:
       apply_transfer_out(txn, account, book);
       break;
+    case TxnKind::exchange:  // apply_foreign() books every exchange
     case TxnKind::void_entry:
       break;  // replay() never passes voids here
   }
@@ -394,13 +428,14 @@ std::unordered_set<std::int64_t> voided_ids(const std::vector<Transaction>& tran
   return out;
 }
 
-Replayer::Replayer(const LedgerLog& log) : book_(log.accounts, log.pending) {
+Replayer::Replayer(const LedgerLog& log) : book_(log.accounts, log.pending, log.rates) {
   const auto voided = voided_ids(log.transactions);
   for (const auto& t : log.transactions)
     if (t.kind != TxnKind::void_entry && !voided.count(t.id)) live_.push_back(&t);
   std::sort(live_.begin(), live_.end(), [](const Transaction* a, const Transaction* b) {
     return a->date != b->date ? a->date < b->date : a->id < b->id;
   });
+  actions_ = live_actions(log.actions);
   for (const auto& split : log.splits) splits_.push_back(&split);
   std::sort(splits_.begin(), splits_.end(), [](const Split* a, const Split* b) {
     return a->date != b->date ? a->date < b->date : a->id < b->id;
@@ -416,18 +451,30 @@ void Replayer::close_open_day(const DayObserver& observer) {
 
 const Book& Replayer::advance_to(Date day, const DayObserver& observer) {
   for (;;) {
-    // The next event is the earlier of the next split and the next
-    // transaction; a split goes first on a shared day (start of day).
-    const bool split_next =
-        next_split_ < splits_.size() && splits_[next_split_]->date <= day &&
-        (next_txn_ >= live_.size() || splits_[next_split_]->date <= live_[next_txn_]->date);
-    const bool txn_next = !split_next && next_txn_ < live_.size() && live_[next_txn_]->date <= day;
-    if (!split_next && !txn_next) break;
-    const Date event_day = split_next ? splits_[next_split_]->date : live_[next_txn_]->date;
+    // The next event is the earliest of the next split, corporate action and
+    // transaction; on a shared day splits go first, then actions (start of day).
+    const std::optional<Date> split_day =
+        next_split_ < splits_.size() && splits_[next_split_]->date <= day
+            ? std::optional(splits_[next_split_]->date)
+            : std::nullopt;
+    const std::optional<Date> action_day =
+        next_action_ < actions_.size() && actions_[next_action_]->date <= day
+            ? std::optional(actions_[next_action_]->date)
+            : std::nullopt;
+    const std::optional<Date> txn_day = next_txn_ < live_.size() && live_[next_txn_]->date <= day
+                                            ? std::optional(live_[next_txn_]->date)
+                                            : std::nullopt;
+    const bool split_next = split_day && (!action_day || *split_day <= *action_day) &&
+                            (!txn_day || *split_day <= *txn_day);
+    const bool action_next = !split_next && action_day && (!txn_day || *action_day <= *txn_day);
+    if (!split_next && !action_next && !txn_day) break;
+    const Date event_day = split_next ? *split_day : action_next ? *action_day : *txn_day;
     if (open_day_ && *open_day_ != event_day) close_open_day(observer);
     open_day_ = event_day;
     if (split_next)
       book_.apply_split(*splits_[next_split_++]);
+    else if (action_next)
+      book_.apply_action(*actions_[next_action_++]);
     else
       book_.apply(*live_[next_txn_++]);
   }

@@ -2,8 +2,9 @@
 //
 // The ledger stores only transactions and splits; positions, lots, cash and
 // realized gains are always recomputed from them, so there is nothing cached
-// that could drift. Replay order is (date, id); a split applies at the start
-// of its day, before that day's transactions.
+// that could drift. Replay order is (date, id); splits and then corporate
+// actions (ledger/actions.h) apply at the start of their day, before that
+// day's transactions.
 //
 // Rules enforced while replaying (each violation throws InputError naming the
 // transaction, account, day and figures):
@@ -19,6 +20,15 @@
 // (net of its fee) are shared among the lots it closes the same way. Splits
 // multiply quantities and keep total cost.
 //
+// Foreign currencies (ledger/fx_cash.h says how): an account keeps cash in
+// its own currency (`cash`) and in any others (`foreign_cash`, as lots
+// carried at their cost in the account's currency, taken on the account's
+// lot method). A lot of a security in another currency carries its cost in
+// both currencies, fixed at purchase; a sale's gain in the account's
+// currency splits into a price part and a currency part; spending foreign
+// cash realizes its currency gain (FxRealized). Rates come from the log's
+// FxRates; a missing one throws InputError naming the pair and the day.
+//
 // Transfers of units are recorded as MovedCost entries: the cost basis that
 // left an account (transfer out) or arrived in one (transfer in: the carried
 // lots' cost for the receiving half of an internal pair, quantity x price for
@@ -28,6 +38,7 @@
 #include <cstdint>
 #include <functional>
 #include <map>
+#include <memory>
 #include <optional>
 #include <string>
 #include <unordered_map>
@@ -36,6 +47,7 @@
 
 #include "core/date.h"
 #include "core/decimal.h"
+#include "market/fx_rates.h"
 #include "model/records.h"
 
 namespace keel {
@@ -47,6 +59,9 @@ struct Lot {
   Date acquired;            // start of the holding period
   Decimal quantity;
   Decimal cost;  // total cost basis of this lot, fee included
+  // The cost in the security's currency when that is not the account's
+  // (fixed at purchase, like `cost`); unset: the same as `cost`.
+  std::optional<Decimal> local_cost = std::nullopt;
 };
 
 struct RealizedPart {
@@ -59,6 +74,28 @@ struct RealizedPart {
   Decimal quantity;
   Decimal proceeds;  // net of the sell's fee, allocated by quantity
   Decimal cost;
+  std::int64_t action_id = 0;  // the corporate action that disposed of it (sell_txn_id is 0)
+  Decimal gain() const { return proceeds - cost; }
+  // A security in another currency: proceeds and cost in that currency, and
+  // the part of gain() that the price made (see docs/methods-ledger.md).
+  std::optional<Decimal> local_proceeds = std::nullopt;
+  std::optional<Decimal> local_cost = std::nullopt;
+  std::optional<Decimal> price_gain = std::nullopt;
+  Decimal price_part() const { return price_gain.value_or(gain()); }
+  Decimal currency_part() const { return gain() - price_part(); }
+};
+
+// Foreign cash spent, withdrawn or exchanged: its gain in the account's
+// currency between the day it was acquired and the day it left.
+struct FxRealized {
+  std::int64_t account_id = 0;
+  std::int64_t txn_id = 0;
+  std::string currency;
+  Date acquired;
+  Date disposed;
+  Decimal quantity;  // units of `currency`
+  Decimal proceeds;  // in the account's currency
+  Decimal cost;      // in the account's currency
   Decimal gain() const { return proceeds - cost; }
 };
 
@@ -78,16 +115,22 @@ struct Position {
 };
 
 struct AccountBook {
-  Decimal cash;
+  Decimal cash;                                // in the account's own currency
   std::map<std::int64_t, Position> positions;  // by security id; only open positions
+  // Cash in other currencies, as lots: quantity in that currency, cost in
+  // the account's. Only currencies with a balance are kept.
+  std::map<std::string, std::vector<Lot>> foreign_cash;
+  Decimal foreign_balance(const std::string& currency) const;
 };
 
 class Book {
  public:
   explicit Book(const std::vector<Account>& accounts,
-                std::unordered_map<std::int64_t, std::string> pending = {});
+                std::unordered_map<std::int64_t, std::string> pending = {},
+                std::shared_ptr<const market::FxRates> rates = nullptr);
 
   void apply_split(const Split& split);
+  void apply_action(const CorporateAction& action);  // ledger/actions.h
   void apply(const Transaction& txn);
   // Checks end-of-day rules (cash) for every account touched on `day`.
   void close_day(Date day);
@@ -97,6 +140,7 @@ class Book {
   const std::vector<Account>& accounts() const { return accounts_; }
   const std::vector<RealizedPart>& realized() const { return realized_; }
   const std::vector<MovedCost>& moved() const { return moved_; }  // in replay order
+  const std::vector<FxRealized>& fx_realized() const { return fx_realized_; }
   // The latest unit price the ledger traded `security_id` at, in any account
   // (split-adjusted), and the day of that trade; unset if it never traded.
   struct TradePrice {
@@ -107,6 +151,7 @@ class Book {
   std::optional<Decimal> last_trade_price(std::int64_t security_id) const;
 
  private:
+  friend class ActionEngine;
   AccountBook& book_of(std::int64_t account_id);
   std::vector<Lot> take_lots(const Transaction& txn, const Account& account, Position& position);
   void apply_buy(const Transaction& txn, AccountBook& book);
@@ -119,6 +164,22 @@ class Book {
   std::vector<AccountBook> books_;
   std::vector<RealizedPart> realized_;
   std::vector<MovedCost> moved_;
+  std::vector<FxRealized> fx_realized_;
+  std::shared_ptr<const market::FxRates> rates_;
+
+  // Rows in another currency than the account's, and exchanges
+  // (ledger/fx_cash.cpp). apply_foreign() returns false for a row it leaves
+  // to the account-currency path.
+  bool apply_foreign(const Transaction& txn, const Account& account, AccountBook& book);
+  void apply_exchange(const Transaction& txn, const Account& account, AccountBook& book);
+  void apply_foreign_sell(const Transaction& txn, const Account& account, AccountBook& book,
+                          const std::string& currency);
+  Decimal at_day_rate(const Decimal& amount, const std::string& from, const std::string& to,
+                      const Transaction& txn) const;
+  void add_foreign_cash(AccountBook& book, const std::string& currency, const Decimal& quantity,
+                        const Decimal& cost, const Transaction& txn);
+  void spend_foreign_cash(AccountBook& book, const Account& account, const std::string& currency,
+                          const Decimal& quantity, const Decimal& proceeds, const Transaction& txn);
   std::unordered_map<std::int64_t, TradePrice> last_trade_;
   std::unordered_map<std::int64_t, std::vector<Lot>> in_transit_;  // by transfer_out id
   std::unordered_set<std::int64_t> touched_today_;
@@ -141,18 +202,28 @@ std::vector<Decimal> allocate(const Decimal& total, const std::vector<Decimal>& 
 // allocate(cost, {taken, held - taken}, kCostPlaces), all of it when every unit goes.
 Decimal cost_share(const Decimal& cost, const Decimal& taken, const Decimal& held);
 
+// Lot-taking helpers shared with the action engine: the order in which a
+// method takes lots (`lots` untouched), cutting `quantity` off a lot with its
+// share of cost, and dropping lots left empty.
+std::vector<std::size_t> taking_order(const std::vector<Lot>& lots, BasisMethod method);
+Lot cut(Lot& lot, const Decimal& quantity);
+void drop_empty(std::vector<Lot>& lots);
+
 struct LedgerLog {
   std::vector<Account> accounts;
   std::vector<Transaction> transactions;  // any order; voids included
   std::vector<Split> splits;
+  std::vector<CorporateAction> actions;  // any order; voids included
   // Ids written by the current, uncommitted change, each with where it came
   // from ("broker.csv:12"; empty for a single command). Errors name them so,
   // not by an id that will not exist once the change is rolled back.
   std::unordered_map<std::int64_t, std::string> pending;
+  // Exchange rates for foreign-currency rows; unset: none stored.
+  std::shared_ptr<const market::FxRates> rates;
 };
 
 // Called after the last transaction of each day that has one (and each split
-// day), with the book as it stands at that day's close.
+// or corporate action day), with the book as it stands at that day's close.
 using DayObserver = std::function<void(Date day, const Book& book)>;
 
 // Steps through the log day by day: advance_to(d) applies every split and
@@ -171,13 +242,15 @@ class Replayer {
   void close_open_day(const DayObserver& observer);
   std::vector<const Transaction*> live_;
   std::vector<const Split*> splits_;
+  std::vector<const CorporateAction*> actions_;
   Book book_;
   std::size_t next_txn_ = 0;
   std::size_t next_split_ = 0;
+  std::size_t next_action_ = 0;
   std::optional<Date> open_day_;
 };
 
-// Replays every transaction and split dated on or before `until` (all, when
+// Replays every transaction, split and corporate action dated on or before `until` (all, when
 // unset), skipping voided transactions and the voids themselves.
 Book replay(const LedgerLog& log, std::optional<Date> until = std::nullopt,
             const DayObserver& observer = {});

@@ -1,12 +1,16 @@
 #include "ledger/holdings.h"
 
+#include <fmt/format.h>
+
 #include <algorithm>
 #include <map>
 
+#include "core/error.h"
 #include "ledger/accounts.h"
 #include "ledger/posting.h"
+#include "market/day_view.h"
+#include "ledger/tax.h"
 #include "store/ledger_store.h"
-#include "store/prices.h"
 
 namespace keel::ledger {
 namespace {
@@ -34,8 +38,21 @@ bool held_long_term(Date acquired, Date disposed) {
 Holdings holdings(store::Database& db, Date as_of, const std::optional<std::string>& account) {
   const auto only = account_filter(db, account);
   const auto symbols = symbols_by_id(db);
-  const Book book = replay(load_log(db), as_of);
+  std::map<std::int64_t, std::string> currencies;
+  for (const auto& s : store::list_securities(db)) currencies[s.id] = s.currency;
+  const LedgerLog log = load_log(db);
+  const Book book = replay(log, as_of);
   if (!only) one_currency(book.accounts(), "holdings");
+  const market::DayView view(db);
+  auto convert = [&](const Decimal& amount, const std::string& from, const std::string& to,
+                     const std::string& what) {
+    try {
+      return std::make_pair(log.rates->convert(amount, from, to, as_of),
+                            log.rates->find(to, from, as_of));
+    } catch (const InputError& e) {
+      throw InputError(fmt::format("holdings: {}: {}", what, e.what()));
+    }
+  };
   Holdings out;
   out.as_of = as_of;
   for (const auto& info : book.accounts()) {
@@ -47,19 +64,34 @@ Holdings holdings(store::Database& db, Date as_of, const std::optional<std::stri
       line.symbol = symbols.at(security_id);
       line.quantity = position.quantity();
       line.cost_basis = position.cost();
-      if (auto close = store::latest_close(db, security_id, as_of)) {
-        line.price = *close;
+      if (auto close = view.close(security_id, as_of)) {
+        line.price = close->price;
       } else {
         line.price = book.last_trade_price(security_id).value_or(Decimal());
         line.price_is_close = false;
       }
       line.market_value = line.quantity * line.price;
+      if (const std::string& c = currencies.at(security_id); c != info.currency) {
+        line.currency = c;
+        line.local_value = line.market_value;
+        auto [value, quote] = convert(line.local_value, c, info.currency, line.symbol);
+        line.market_value = value;
+        line.rate = quote;
+      }
       line.unrealized_gain = line.market_value - line.cost_basis;
       out.total_value += line.market_value;
       out.positions.push_back(std::move(line));
     }
     out.cash.push_back(CashLine{info.name, ab.cash});
     out.total_value += ab.cash;
+    for (const auto& [code, lots] : ab.foreign_cash) {
+      CashLine line{info.name, ab.foreign_balance(code), code};
+      auto [value, quote] = convert(line.amount, code, info.currency, "cash in " + code);
+      line.value = value;
+      line.rate = quote;
+      out.total_value += value;
+      out.cash.push_back(std::move(line));
+    }
   }
   std::sort(out.positions.begin(), out.positions.end(), [](const auto& a, const auto& b) {
     return a.account != b.account ? a.account < b.account : a.symbol < b.symbol;
@@ -91,6 +123,7 @@ std::vector<GainLine> realized_gains(store::Database& db, std::optional<int> yea
   const auto only = account_filter(db, account);
   const auto symbols = symbols_by_id(db);
   const Book book = replay(load_log(db));
+  const auto statuses = TaxStatuses::load(db);
   std::vector<GainLine> out;
   for (const auto& part : book.realized()) {
     if (only && part.account_id != *only) continue;
@@ -99,6 +132,7 @@ std::vector<GainLine> realized_gains(store::Database& db, std::optional<int> yea
     line.days_held = part.disposed - part.acquired;
     line.long_term = long_term_days ? line.days_held > *long_term_days
                                     : held_long_term(part.acquired, part.disposed);
+    line.tax_status = statuses.on(part.account_id, part.disposed);
     out.push_back(std::move(line));
   }
   // The lines are in each account's own currency; their totals may not mix.

@@ -2,9 +2,13 @@
 //
 // A position's price is its latest close on or before the day, else its
 // latest trade price; market value is quantity x price, exact. Amounts are
-// in the accounts' own currency (keel does not convert between currencies):
-// holdings of every account, and gains whose sales span several accounts,
-// are refused when those accounts keep different currencies (one_currency,
+// in each account's own currency: a position in another currency and cash
+// in another currency are converted at the latest stored rate on or before
+// the day (market/fx_rates.h; rounded to the account currency's minor
+// units), and the line keeps its local figures and the rate used; a missing
+// rate throws InputError naming the pair and the day. Holdings of every
+// account, and gains whose sales span several accounts, are refused when
+// those accounts keep different currencies (one_currency,
 // ledger/accounts.h). Throws InputError for an unknown account name.
 #pragma once
 
@@ -29,11 +33,21 @@ struct HoldingLine {
   bool price_is_close = true;
   Decimal market_value;
   Decimal unrealized_gain;
+  // A security in another currency than the account's: that currency, the
+  // rate used (account currency -> security currency) and the value in it.
+  std::string currency = {};
+  std::optional<market::FxQuote> rate = std::nullopt;
+  Decimal local_value = {};
 };
 
 struct CashLine {
   std::string account;
-  Decimal amount;
+  Decimal amount;  // in `currency`
+  // Cash in another currency: its code, the rate used and its value in the
+  // account's currency; empty currency: the account's own cash.
+  std::string currency = {};
+  std::optional<market::FxQuote> rate = std::nullopt;
+  Decimal value = {};
 };
 
 struct Holdings {
@@ -54,16 +68,26 @@ struct LotLine {
 std::vector<LotLine> open_lots(store::Database& db, Date as_of,
                                const std::optional<std::string>& account = std::nullopt);
 
+// A buy of the same security near a sale at a loss (ledger/tax.h).
+struct Repurchase {
+  std::int64_t txn_id = 0;
+  std::string account;
+  Date day;
+};
+
 struct GainLine {
   std::string account;
   std::string symbol;
   RealizedPart part;
   int days_held = 0;  // disposal day minus acquisition day
   bool long_term = false;
+  TaxStatus tax_status = TaxStatus::taxable;  // the account's, on the disposal day
+  std::optional<Repurchase> repurchase{};     // set only by flag_repurchases()
+  bool taxable() const { return tax_status == TaxStatus::taxable; }
 };
 // Realized gains of parts disposed in `year` (every year when unset), in the
-// lot engine's order. A part is long-term when held more than
-// `long_term_days` days, or, when that is unset, when disposed of after the
+// lot engine's order, each with its account's tax status on the disposal day. A part is long-term
+// when held more than `long_term_days` days, or, when that is unset, when disposed of after the
 // first anniversary of its acquisition (held_long_term).
 std::vector<GainLine> realized_gains(store::Database& db, std::optional<int> year,
                                      const std::optional<std::string>& account = std::nullopt,

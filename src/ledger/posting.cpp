@@ -6,6 +6,9 @@
 
 #include "core/error.h"
 #include "core/text.h"
+#include "market/fx_rates.h"
+#include "model/security.h"
+#include "store/action_store.h"
 #include "store/ledger_store.h"
 
 namespace keel::ledger {
@@ -38,7 +41,83 @@ void refuse_future(Date date, bool allowed, std::string_view what) {
         fmt::format("{}: --date {}; give {} to post it anyway", what, *why, kAllowFutureFlag));
 }
 
+// Sets the row's currency and rate (see ledger/fx_cash.h) and refuses what
+// cannot be booked: a currency other than the security's for a trade, a
+// rate on a row in the account's own currency, a rate given the wrong way
+// round (checked against the stored rate of the day when there is one).
+void settle_currency(store::Database& db, const PostRequest& r, const Account& account,
+                     const std::optional<Security>& security, Transaction& t) {
+  const std::string kind(to_string(r.kind));
+  std::string currency = r.currency.value_or(security ? security->currency : account.currency);
+  const bool trades_units = security && !is_cash_kind(r.kind);
+  if (trades_units && currency != security->currency)
+    throw ShapeError(
+        fmt::format("{}: --currency {}: {} trades in {}", kind, currency,
+                    printable(security->symbol), security->currency),
+        "currency",
+        fmt::format("{} trades in {}", printable(security->symbol), security->currency));
+  if (r.kind == TxnKind::exchange) {
+    if (*r.to_currency == currency)
+      throw ShapeError(fmt::format("exchange: --to-currency {} is the currency sold", currency),
+                       "to-currency", fmt::format("{} is the currency sold", currency));
+    t.currency = currency == account.currency ? std::nullopt : std::optional(currency);
+    t.to_currency = r.to_currency;
+    t.rate = r.rate;
+    check_direction(db, kind, currency, *r.to_currency, *r.rate, r.date);
+    return;
+  }
+  if (currency == account.currency) {
+    if (r.rate)
+      throw ShapeError(
+          fmt::format("{}: --rate {} does not apply: the row is in {}, the currency of account "
+                      "'{}'",
+                      kind, r.rate->str(), currency, printable(account.name)),
+          "rate",
+          fmt::format("does not apply: the row is in {}, the currency of account '{}'", currency,
+                      printable(account.name)));
+    return;
+  }
+  const bool may_settle = r.kind == TxnKind::buy || r.kind == TxnKind::sell ||
+                          r.kind == TxnKind::dividend || r.kind == TxnKind::interest ||
+                          r.kind == TxnKind::tax;
+  if (r.rate && !may_settle)
+    throw ShapeError(
+        fmt::format(
+            "{}: --rate does not apply (a {} in {} moves cash in {}; use 'exchange' to convert it)",
+            kind, kind, currency, currency),
+        "rate",
+        fmt::format("does not apply (a {} in {} moves cash in {}; use 'exchange' to convert it)",
+                    kind, currency, currency));
+  if (trades_units && (r.kind == TxnKind::transfer_in || r.kind == TxnKind::transfer_out) && r.fee)
+    throw ShapeError(fmt::format("{}: --fee on units of {} in {}: record the fee as its own row",
+                                 kind, printable(security->symbol), currency),
+                     "fee",
+                     fmt::format("on units of {} in {}: record the fee as its own row",
+                                 printable(security->symbol), currency));
+  t.currency = currency;
+  t.rate = r.rate;
+  // The settlement rate is the account's currency in the row's.
+  if (r.rate) check_direction(db, kind, account.currency, currency, *r.rate, r.date);
+}
+
 }  // namespace
+
+void check_direction(store::Database& db, std::string_view what, const std::string& base,
+                     const std::string& quote, const Decimal& rate, Date day) {
+  const auto rates = market::FxRates::load(db);
+  const auto stored = rates.try_find(base, quote, day);
+  const auto reverse = rates.try_find(quote, base, day);
+  if (!stored || !reverse) return;
+  // Each direction as stored where it is, so the message shows the file's figure.
+  const Decimal inverse = reverse->rate;
+  if ((rate - stored->rate).abs() <= (rate - inverse).abs()) return;
+  const std::string reason = fmt::format(
+      "{} reads as 1 {} = {} {}, the wrong way round: on {} 1 {} = {} {} and 1 {} = {} {}; give "
+      "the rate as {} per {}",
+      rate.str(), base, rate.str(), quote, stored->day.str(), base, stored->rate.str(), quote,
+      quote, inverse.str(), base, quote, base);
+  throw ShapeError(fmt::format("{}: --rate {}", what, reason), "rate", reason);
+}
 
 std::optional<std::string> future_date(Date date) {
   const Date today = Date::today();
@@ -64,6 +143,21 @@ void check_shape(const PostRequest& r) {
          "lots");
   forbid(r.to_account && r.kind != TxnKind::transfer_out, kind, "to-account");
   forbid(r.acquired && r.kind != TxnKind::transfer_in, kind, "acquired");
+  forbid(r.to_currency && r.kind != TxnKind::exchange, kind, "to-currency");
+  if (r.rate)
+    require(r.rate->is_positive(), kind, "rate",
+            fmt::format("--rate must be greater than zero, not {}", r.rate->str()));
+  if (r.kind == TxnKind::exchange) {
+    require_positive(r.amount, kind, "amount", " (what the exchange sold)");
+    require(r.to_currency.has_value(), kind, "to-currency",
+            "--to-currency is required (the currency bought)");
+    require(r.rate.has_value(), kind, "rate",
+            "--rate is required (units of --to-currency one unit of --currency bought)");
+    forbid(r.symbol.has_value(), kind, "symbol");
+    forbid(r.quantity.has_value(), kind, "quantity");
+    forbid(r.price.has_value(), kind, "price");
+    return;
+  }
   if (r.note) check_name("note", *r.note, 4000);
   if (r.ref) check_identifier("ref", *r.ref, 200);
 
@@ -124,19 +218,16 @@ std::vector<std::int64_t> write_unchecked(store::Database& db, const PostRequest
   t.ref = r.ref;
   t.row_hash = r.row_hash;
   t.note = r.note;
+  std::optional<Security> security;
   if (r.symbol) {
-    const Security security = store::security_with_symbol(db, *r.symbol);
+    security = store::security_with_symbol(db, *r.symbol);
     const bool trades_units = !is_cash_kind(r.kind);
-    if (trades_units && security.currency != account.currency)
-      throw InputError(fmt::format(
-          "{}: {} is priced in {} but account '{}' keeps {}; keel does not convert currencies",
-          to_string(r.kind), printable(security.symbol), security.currency, printable(account.name),
-          account.currency));
-    if (trades_units && security.kind == SecurityKind::index)
+    if (trades_units && security->kind == SecurityKind::index)
       throw InputError(fmt::format("{}: {} is an index; an index has levels, not units to hold",
-                                   to_string(r.kind), printable(security.symbol)));
-    t.security_id = security.id;
+                                   to_string(r.kind), printable(security->symbol)));
+    t.security_id = security->id;
   }
+  settle_currency(db, r, account, security, t);
   if (r.ref && store::ref_exists(db, account.id, *r.ref))
     throw InputError(fmt::format("reference '{}' is already booked in account '{}'",
                                  printable(*r.ref), printable(account.name)));
@@ -169,6 +260,8 @@ LedgerLog load_log(store::Database& db) {
   log.accounts = store::list_accounts(db);
   log.transactions = store::list_transactions(db);
   log.splits = store::list_splits(db);
+  log.rates = std::make_shared<const market::FxRates>(market::FxRates::load(db));
+  log.actions = store::list_actions(db);
   return log;
 }
 

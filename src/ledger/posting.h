@@ -41,6 +41,12 @@ struct PostRequest {
   std::optional<std::string> note;
   std::optional<std::string> row_hash;  // set by importers for rows without ref
   bool allow_future = false;            // accept a date after today
+  // Foreign currencies (ledger/fx_cash.h): the currency of the figures (an
+  // ISO 4217 code; unset: the security's for a row naming one, else the
+  // account's), the settlement or exchange rate, and an exchange's target.
+  std::optional<std::string> currency;
+  std::optional<Decimal> rate;
+  std::optional<std::string> to_currency;
 };
 
 // Why `date` may not be posted without an explicit override: "2099-12-31 is
@@ -114,6 +120,13 @@ struct VoidResult {
 };
 VoidResult void_transaction(store::Database& db, std::int64_t id, const std::string& reason);
 
+// Loads accounts, transactions, splits and exchange rates.
 LedgerLog load_log(store::Database& db);
+
+// Refuses `rate` for base/quote on `day` when it is nearer the inverse of the
+// stored rate than the rate itself (a rate given the wrong way round); the
+// message shows both directions. Says nothing when no rate is stored.
+void check_direction(store::Database& db, std::string_view what, const std::string& base,
+                     const std::string& quote, const Decimal& rate, Date day);
 
 }  // namespace keel::ledger

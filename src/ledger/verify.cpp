@@ -5,10 +5,15 @@
 #include <algorithm>
 #include <map>
 
+#include "core/currency.h"
 #include "core/error.h"
 #include "core/text.h"
+#include "ledger/fx_cash.h"
+#include "ledger/actions.h"
 #include "ledger/period.h"
+#include "ledger/plausibility.h"
 #include "ledger/posting.h"
+#include "store/fx_store.h"
 #include "store/ledger_store.h"
 #include "store/maintenance.h"
 #include "store/period_store.h"
@@ -17,11 +22,12 @@ namespace keel::ledger {
 namespace {
 
 struct Recount {
-  std::map<std::int64_t, Decimal> cash;                            // by account
-  std::map<std::pair<std::int64_t, std::int64_t>, Decimal> units;  // (account, security)
+  std::map<std::int64_t, Decimal> cash;                             // by account
+  std::map<std::pair<std::int64_t, std::string>, Decimal> foreign;  // (account, currency)
+  std::map<std::pair<std::int64_t, std::int64_t>, Decimal> units;   // (account, security)
 };
 
-// Cash and units from the raw rows, without the lot engine.
+// Cash and units from the raw rows and corporate actions, without the lot engine.
 Recount recount(const LedgerLog& log) {
   const auto voided = voided_ids(log.transactions);
   std::vector<const Transaction*> live;
@@ -33,17 +39,100 @@ Recount recount(const LedgerLog& log) {
   for (const auto& s : log.splits) splits.push_back(&s);
   std::stable_sort(splits.begin(), splits.end(),
                    [](const Split* a, const Split* b) { return a->date < b->date; });
+  const auto actions = live_actions(log.actions);
   Recount r;
-  std::size_t next_split = 0;
-  auto apply_splits_through = [&](Date day) {
-    for (; next_split < splits.size() && splits[next_split]->date <= day; ++next_split)
-      for (auto& [key, units] : r.units)
-        if (key.second == splits[next_split]->security_id) units *= splits[next_split]->ratio;
+  std::size_t next_split = 0, next_action = 0;
+  // Units of one security in every account that has a count of it.
+  auto holdings = [&](std::int64_t security_id) {
+    std::vector<std::pair<std::int64_t, Decimal*>> out;
+    for (auto& [key, units] : r.units)
+      if (key.second == security_id && units.is_positive()) out.emplace_back(key.first, &units);
+    return out;
   };
+  // Whole units kept; the fraction of what was received paid at the in-lieu price.
+  auto in_lieu = [&](const CorporateAction& a, std::int64_t account, Decimal& units,
+                     const Decimal& received) {
+    if (!a.in_lieu) return;
+    const Decimal fraction = received - received.truncated(0);
+    units -= fraction;
+    r.cash[account] += (fraction * *a.in_lieu).rounded(kCostPlaces);
+  };
+  auto apply_action = [&](const CorporateAction& a) {
+    for (auto [account, units] : holdings(a.security_id)) {
+      const Decimal held = *units;
+      const Decimal cash = a.cash ? (held * *a.cash).rounded(kCostPlaces) : Decimal();
+      switch (a.kind) {
+        case ActionKind::split:
+        case ActionKind::stock_dividend:
+          *units = held * (a.kind == ActionKind::split ? *a.ratio : Decimal(1) + *a.ratio);
+          in_lieu(a, account, *units, *units);
+          break;
+        case ActionKind::return_of_capital:
+          r.cash[account] += cash;
+          break;
+        case ActionKind::delisting:
+        case ActionKind::merger:
+        case ActionKind::spinoff: {
+          r.cash[account] += cash;
+          if (a.kind != ActionKind::spinoff) *units = Decimal();
+          if (a.ratio && a.target_id) {
+            Decimal& target = r.units[{account, *a.target_id}];
+            target += held * *a.ratio;
+            in_lieu(a, account, target, held * *a.ratio);
+          }
+          break;
+        }
+        case ActionKind::void_entry:
+          break;
+      }
+    }
+  };
+  auto apply_splits_through = [&](Date day) {
+    for (;;) {
+      const bool split = next_split < splits.size() && splits[next_split]->date <= day;
+      const bool action = next_action < actions.size() && actions[next_action]->date <= day;
+      if (split && (!action || splits[next_split]->date <= actions[next_action]->date)) {
+        for (auto& [key, units] : r.units)
+          if (key.second == splits[next_split]->security_id) units *= splits[next_split]->ratio;
+        ++next_split;
+      } else if (action) {
+        apply_action(*actions[next_action++]);
+      } else {
+        break;
+      }
+    }
+  };
+  std::map<std::int64_t, std::string> own;
+  for (const auto& a : log.accounts) own[a.id] = a.currency;
   for (const Transaction* t : live) {
     apply_splits_through(t->date);
-    Decimal& cash = r.cash[t->account_id];
+    const std::string& account_currency = own[t->account_id];
+    const std::string currency = t->currency.value_or(account_currency);
+    // A row in another currency moves that currency's cash, unless a
+    // settlement rate converts it into the account's.
+    const bool settled = t->rate && t->kind != TxnKind::exchange;
+    Decimal& cash = currency == account_currency || settled ? r.cash[t->account_id]
+                                                            : r.foreign[{t->account_id, currency}];
     const Decimal gross = t->quantity && t->price ? *t->quantity * *t->price : Decimal();
+    if (t->kind == TxnKind::exchange) {
+      cash -= *t->amount + t->fee;
+      const Decimal bought = exchanged(*t->amount, *t->rate, *t->to_currency);
+      (*t->to_currency == account_currency ? r.cash[t->account_id]
+                                           : r.foreign[{t->account_id, *t->to_currency}]) += bought;
+      continue;
+    }
+    if (settled) {
+      const Decimal local = t->kind == TxnKind::buy    ? gross + t->fee
+                            : t->kind == TxnKind::sell ? gross - t->fee
+                                                       : *t->amount;
+      const Decimal moved = settle(local, *t->rate, account_currency);
+      const bool in =
+          t->kind == TxnKind::sell || t->kind == TxnKind::dividend || t->kind == TxnKind::interest;
+      cash += in ? moved : -moved;
+      if (t->kind == TxnKind::buy) r.units[{t->account_id, *t->security_id}] += *t->quantity;
+      if (t->kind == TxnKind::sell) r.units[{t->account_id, *t->security_id}] -= *t->quantity;
+      continue;
+    }
     auto units = [&]() -> Decimal& { return r.units[{t->account_id, *t->security_id}]; };
     switch (t->kind) {
       case TxnKind::deposit:
@@ -80,6 +169,7 @@ Recount recount(const LedgerLog& log) {
           cash -= *t->amount;
         }
         break;
+      case TxnKind::exchange:
       case TxnKind::void_entry:
         break;
     }
@@ -156,6 +246,15 @@ VerifyReport verify(store::Database& db) {
         report.problems.push_back(
             fmt::format("cash of '{}': the rows add up to {}, the lots say {}",
                         printable(account.name), cash.str(), held.cash.str()));
+      std::map<std::string, Decimal> foreign;
+      for (const auto& [key, amount] : counted.foreign)
+        if (key.first == account.id) foreign[key.second] += amount;
+      for (const auto& [code, lots] : held.foreign_cash) foreign.try_emplace(code);
+      for (const auto& [code, amount] : foreign)
+        if (amount != held.foreign_balance(code))
+          report.problems.push_back(
+              fmt::format("cash in {} of '{}': the rows add up to {}, the lots say {}", code,
+                          printable(account.name), amount.str(), held.foreign_balance(code).str()));
       for (const auto& [key, units] : counted.units) {
         if (key.first != account.id) continue;
         const auto pos = held.positions.find(key.second);
@@ -169,6 +268,18 @@ VerifyReport verify(store::Database& db) {
   } catch (const InputError& e) {
     report.problems.push_back(std::string("replay: ") + e.what());
   }
+  // Exchange rates: the table's checks hold the shape; the codes must be ISO 4217.
+  for (const auto& r : store::list_fx_rates(db))
+    for (const auto& code : {r.base, r.quote})
+      if (!is_currency(code))
+        report.problems.push_back(
+            fmt::format("exchange rate {}/{} on {}: {} is not an ISO 4217 "
+                        "currency code",
+                        r.base, r.quote, r.date.str(), code));
+  for (const auto& a : log.accounts)
+    if (!is_currency(a.currency))
+      report.problems.push_back(fmt::format("account '{}' keeps {}, not an ISO 4217 currency code",
+                                            printable(a.name), a.currency));
   report.warnings = store::data_warnings(db);
   // Text that is not UTF-8 or names with invisible characters leave every
   // figure sound: worth a look (reports replace or mark them), not suspect.
@@ -176,6 +287,9 @@ VerifyReport verify(store::Database& db) {
        {store::future_rows(db, Date::today()), store::text_problems(db), store::name_warnings(db)})
     report.warnings.insert(report.warnings.end(), more.begin(), more.end());
   report.warnings.insert(report.warnings.end(), sign_warnings.begin(), sign_warnings.end());
+  for (const auto& flag : plausibility_flags(db, log))
+    report.warnings.push_back(
+        flag.message + fmt::format(" (if it is right: keel confirm {} --reason ...)", flag.txn_id));
   const PeriodLocks locks = PeriodLocks::load(db);
   for (const auto& [account_id, day] : store::last_reconciled_days(db))
     for (const auto& a : log.accounts)

@@ -19,7 +19,7 @@ constexpr std::array<std::pair<BasisMethod, std::string_view>, 5> kMethods{{
     {BasisMethod::specific, "specific"},
 }};
 
-constexpr std::array<std::pair<TxnKind, std::string_view>, 11> kKinds{{
+constexpr std::array<std::pair<TxnKind, std::string_view>, 12> kKinds{{
     {TxnKind::deposit, "deposit"},
     {TxnKind::withdrawal, "withdrawal"},
     {TxnKind::buy, "buy"},
@@ -30,7 +30,14 @@ constexpr std::array<std::pair<TxnKind, std::string_view>, 11> kKinds{{
     {TxnKind::fee, "fee"},
     {TxnKind::transfer_in, "transfer_in"},
     {TxnKind::transfer_out, "transfer_out"},
+    {TxnKind::exchange, "exchange"},
     {TxnKind::void_entry, "void"},
+}};
+
+constexpr std::array<std::pair<TaxStatus, std::string_view>, 3> kStatuses{{
+    {TaxStatus::taxable, "taxable"},
+    {TaxStatus::tax_deferred, "tax-deferred"},
+    {TaxStatus::tax_exempt, "tax-exempt"},
 }};
 
 template <typename Table>
@@ -58,6 +65,19 @@ BasisMethod parse_basis_method(std::string_view text) {
                                printable(text), choices(kMethods, kMethods.size())));
 }
 
+std::string_view to_string(TaxStatus status) {
+  for (const auto& [s, name] : kStatuses)
+    if (s == status) return name;
+  return "taxable";
+}
+
+TaxStatus parse_tax_status(std::string_view text) {
+  for (const auto& [s, name] : kStatuses)
+    if (name == text) return s;
+  throw InputError(fmt::format("unknown tax status '{}'; expected one of: {}", printable(text),
+                               choices(kStatuses, kStatuses.size())));
+}
+
 std::string_view to_string(TxnKind kind) {
   for (const auto& [k, name] : kKinds)
     if (k == kind) return name;
@@ -70,6 +90,31 @@ TxnKind parse_txn_kind(std::string_view text) {
     if (kKinds[i].second == text) return kKinds[i].first;
   throw InputError(fmt::format("unknown transaction kind '{}'; expected one of: {}",
                                printable(text), choices(kKinds, kKinds.size() - 1)));
+}
+
+namespace {
+constexpr std::array<std::pair<ActionKind, std::string_view>, 7> kActionKinds{{
+    {ActionKind::split, "split"},
+    {ActionKind::merger, "merger"},
+    {ActionKind::spinoff, "spinoff"},
+    {ActionKind::return_of_capital, "return_of_capital"},
+    {ActionKind::stock_dividend, "stock_dividend"},
+    {ActionKind::delisting, "delisting"},
+    {ActionKind::void_entry, "void"},
+}};
+}  // namespace
+
+std::string_view to_string(ActionKind kind) {
+  for (const auto& [k, name] : kActionKinds)
+    if (k == kind) return name;
+  return "split";
+}
+
+ActionKind parse_action_kind(std::string_view text) {
+  for (std::size_t i = 0; i + 1 < kActionKinds.size(); ++i)
+    if (kActionKinds[i].second == text) return kActionKinds[i].first;
+  throw InputError(fmt::format("unknown corporate action '{}'; expected one of: {}",
+                               printable(text), choices(kActionKinds, kActionKinds.size() - 1)));
 }
 
 bool is_cash_kind(TxnKind kind) {

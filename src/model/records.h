@@ -1,7 +1,9 @@
-// The ledger's records: accounts, transactions and splits, as plain values.
+// The ledger's records: accounts, transactions, splits and corporate actions,
+// as plain values.
 //
 // All quantities and amounts are positive exact decimals; the kind gives the
-// direction. A Transaction mirrors one row of the append-only txn table.
+// direction. Figures are in the transaction's currency (the account's unless
+// it names another). A Transaction mirrors one row of the append-only txn table.
 #pragma once
 
 #include <cstdint>
@@ -30,12 +32,19 @@ enum class TxnKind {
   fee,
   transfer_in,
   transfer_out,
+  exchange,    // cash of one currency into another inside an account
   void_entry,  // stored as "void"
 };
 std::string_view to_string(TxnKind kind);
 TxnKind parse_txn_kind(std::string_view text);  // throws InputError naming the choices
 // Kinds whose only figure is a cash amount.
 bool is_cash_kind(TxnKind kind);
+
+// How an account's gains and income are taxed, as a fact of the account (the
+// rules themselves are local; keel only keeps the status apart).
+enum class TaxStatus { taxable, tax_deferred, tax_exempt };
+std::string_view to_string(TaxStatus status);       // "taxable", "tax-deferred", "tax-exempt"
+TaxStatus parse_tax_status(std::string_view text);  // throws InputError naming the choices
 
 struct Account {
   std::int64_t id = 0;
@@ -71,6 +80,50 @@ struct Transaction {
   std::optional<std::string> ref;
   std::optional<std::string> row_hash;
   std::optional<std::string> note;
+  // The currency of price, amount and fee; unset: the account's own.
+  std::optional<std::string> currency;
+  // A foreign-currency row settled in the account's own cash: how many
+  // `currency` units one account-currency unit bought. An exchange: how many
+  // `to_currency` units one `currency` unit bought.
+  std::optional<Decimal> rate;
+  std::optional<std::string> to_currency;  // an exchange: the currency bought
+};
+
+// A corporate action: what happens to a security, recorded once and applied
+// to every account's lots at the start of its day (ledger/actions.h says what
+// each kind does to a lot). Figures are positive exact decimals; which ones a
+// kind uses is checked by ledger::check_action_shape.
+enum class ActionKind {
+  split,              // ratio; fractions paid at in_lieu when set
+  merger,             // into target: ratio units and/or cash per unit
+  spinoff,            // ratio units of target; cost_percent of cost goes to them
+  return_of_capital,  // cash per unit lowers each lot's cost
+  stock_dividend,     // ratio new units per unit held, of the same security
+  delisting,          // trading ends: every lot disposed of at cash per unit (may be 0)
+  void_entry,         // stored as "void": cancels the action voids_id names
+};
+std::string_view to_string(ActionKind kind);
+ActionKind parse_action_kind(std::string_view text);  // throws InputError naming the choices
+
+struct CorporateAction {
+  std::int64_t id = 0;
+  std::int64_t security_id = 0;
+  Date date;
+  ActionKind kind = ActionKind::split;
+  std::optional<std::int64_t> target_id;  // merger: the acquirer; spin-off: the new security
+  std::optional<Decimal> ratio;           // units received per unit held
+  std::optional<Decimal> cash;            // cash per unit held
+  std::optional<Decimal> cost_percent;    // share of cost going to the units received, 0-100
+  std::optional<Decimal> in_lieu;         // price per fractional unit paid in cash
+  std::optional<std::int64_t> voids_id;
+  std::optional<std::string> note;
+};
+
+// An account's tax status from `from` on, until its next change.
+struct TaxStatusChange {
+  std::int64_t account_id = 0;
+  Date from;
+  TaxStatus status = TaxStatus::taxable;
 };
 
 struct Split {

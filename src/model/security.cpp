@@ -6,6 +6,7 @@
 #include <array>
 #include <cctype>
 
+#include "core/currency.h"
 #include "core/error.h"
 #include "core/text.h"
 
@@ -35,15 +36,35 @@ SecurityKind parse_security_kind(std::string_view text) {
                   printable(text)));
 }
 
-std::string normalize_currency(std::string_view code) {
+namespace {
+
+// `code` in capitals when it is exactly `letters` letters A-Z; else unset.
+std::optional<std::string> upper_code(std::string_view code, std::size_t letters) {
   std::string out;
   for (char c : code) out.push_back(static_cast<char>(std::toupper(static_cast<unsigned char>(c))));
-  const bool ok = out.size() == 3 &&
+  const bool ok = out.size() == letters &&
                   std::all_of(out.begin(), out.end(), [](char c) { return c >= 'A' && c <= 'Z'; });
-  if (!ok)
+  if (!ok) return std::nullopt;
+  return out;
+}
+
+}  // namespace
+
+std::string normalize_currency(std::string_view code) {
+  const auto out = upper_code(code, 3);
+  if (!out)
     throw InputError(
         fmt::format("currency '{}' is not a three-letter code such as EUR", printable(code)));
-  return out;
+  if (!is_currency(*out))
+    throw InputError(fmt::format("currency '{}' is not an ISO 4217 code (such as EUR, USD, JPY)",
+                                 printable(code)));
+  return *out;
+}
+
+std::string normalize_country(std::string_view code) {
+  if (auto out = upper_code(code, 2)) return *out;
+  throw InputError(
+      fmt::format("country '{}' is not a two-letter ISO 3166-1 code such as NL", printable(code)));
 }
 
 void validate(const Security& s) {
@@ -51,6 +72,9 @@ void validate(const Security& s) {
   normalize_currency(s.currency);  // refuses anything but three letters
   check_identifier("name", s.name, 200);
   if (s.sector) check_identifier("sector", *s.sector, 100);
+  if (s.country && normalize_country(*s.country) != *s.country)
+    throw InputError(
+        fmt::format("country '{}' must be written in capitals", printable(*s.country)));
   if (!s.lot_size.is_positive())
     throw InputError(fmt::format("lot size of {} must be positive", printable(s.symbol)));
 }

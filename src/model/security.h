@@ -24,10 +24,14 @@ struct Security {
   std::string currency;  // ISO 4217 code; empty: the ledger's (ledger::add_security)
   Decimal lot_size{1};   // smallest tradable unit multiple; 1 = whole shares
   std::optional<std::string> sector;
+  std::optional<std::string> country;  // issuer's, ISO 3166-1 alpha-2 ("NL"); descriptive
 };
 
 // Checks symbol, name and currency shape; throws InputError naming the field.
 void validate(const Security& security);
-std::string normalize_currency(std::string_view code);  // "usd" -> "USD"; throws on bad shape
+// "nl" -> "NL"; throws InputError unless two letters A-Z. keel does not
+// keep the list of assigned codes: any two letters are accepted.
+std::string normalize_country(std::string_view code);
+std::string normalize_currency(std::string_view code);  // "usd" -> "USD"; throws unless ISO 4217
 
 }  // namespace keel

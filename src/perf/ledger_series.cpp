@@ -7,21 +7,23 @@
 #include <unordered_set>
 
 #include "core/error.h"
+#include "ledger/actions.h"
 
 namespace keel::perf {
 namespace {
 
-// Days that get an entry: from - 1, and every transaction, split or close day
-// inside [from - 1, to].
+// Days that get an entry: from - 1, and every transaction, split, corporate
+// action or close day inside [from - 1, to].
 std::vector<Date> entry_days(const Replayer& replayer, const LedgerLog& log,
-                             const store::PriceBook& prices, Date first, Date to) {
+                             const market::Series& prices, Date first, Date to) {
   std::vector<Date> days{first};
   auto keep = [&](Date d) {
     if (d > first && d <= to) days.push_back(d);
   };
   for (const Transaction* t : replayer.live()) keep(t->date);
   for (const auto& s : log.splits) keep(s.date);
-  for (const Date d : prices.all_days()) keep(d);
+  for (const auto* a : live_actions(log.actions)) keep(a->date);
+  for (const Date d : prices.trading_days()) keep(d);
   std::sort(days.begin(), days.end());
   days.erase(std::unique(days.begin(), days.end()), days.end());
   return days;
@@ -29,7 +31,7 @@ std::vector<Date> entry_days(const Replayer& replayer, const LedgerLog& log,
 
 }  // namespace
 
-LedgerSeries build_series(const LedgerLog& log, const store::PriceBook& prices,
+LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
                           std::optional<std::int64_t> account_id, Date from, Date to) {
   if (from > to)
     throw InputError(
@@ -60,7 +62,19 @@ LedgerSeries build_series(const LedgerLog& log, const store::PriceBook& prices,
   std::sort(splits.begin(), splits.end(),
             [](const Split* a, const Split* b) { return a->date < b->date; });
   std::size_t split_cursor = 0;
-  store::PriceBook::Cursor closes(prices);  // the days below ascend
+  // The close of a security on or before day d, exactly, or nullopt.
+  auto close_on = [&](std::int64_t security, Date d) -> std::optional<Decimal> {
+    const int c = prices.column(security);
+    if (c < 0) return std::nullopt;
+    const std::size_t r = prices.row(d);
+    if (!prices.has(r, c)) return std::nullopt;
+    return prices.exact(r, c);
+  };
+  // Corporate actions change the units of their security and of the one it
+  // merges or spins into, in every account.
+  const auto actions = live_actions(log.actions);
+  std::size_t action_cursor = 0;
+  while (action_cursor < actions.size() && actions[action_cursor]->date <= first) ++action_cursor;
   // Open quantities in scope, by (account, security).
   std::map<std::pair<std::int64_t, std::int64_t>, Decimal> held;
   auto refresh = [&](const Book& book, std::int64_t account, std::int64_t security) {
@@ -90,11 +104,18 @@ LedgerSeries build_series(const LedgerLog& log, const store::PriceBook& prices,
         for (const auto& info : book.accounts())
           if (!account_id || info.id == *account_id)
             refresh(book, info.id, splits[split_cursor]->security_id);
+      for (; action_cursor < actions.size() && actions[action_cursor]->date <= d; ++action_cursor)
+        for (const auto& info : book.accounts())
+          if (!account_id || info.id == *account_id) {
+            refresh(book, info.id, actions[action_cursor]->security_id);
+            if (actions[action_cursor]->target_id)
+              refresh(book, info.id, *actions[action_cursor]->target_id);
+          }
     }
     for (const auto& info : book.accounts())
       if (!account_id || info.id == *account_id) point.value += book.account(info.id).cash;
     for (const auto& [key, quantity] : held) {
-      if (const Decimal* close = closes.at(key.second, d))
+      if (const auto close = close_on(key.second, d))
         point.value += quantity * *close;
       else if (const auto traded = book.last_trade_price(key.second))
         point.value += quantity * *traded;
@@ -126,7 +147,7 @@ LedgerSeries build_series(const LedgerLog& log, const store::PriceBook& prices,
       auto transfer_value = [&]() -> Decimal {
         if (!t.security_id) return *t.amount;
         std::optional<Decimal> price;
-        if (const Decimal* close = closes.at(*t.security_id, d)) price = *close;
+        if (const auto close = close_on(*t.security_id, d)) price = *close;
         if (!price) price = t.price;
         if (!price) price = book.last_trade_price(*t.security_id);
         if (!price) {

@@ -16,7 +16,9 @@
 //    Dividends, interest, tax and fees stay inside (they move the value).
 //  - Totals over from..to (days inside the period only): income = dividends +
 //    interest; tax; fees = fee transactions + the fee of every transaction.
-//  - One replay of the log, stepping day by day; closes come from PriceBook.
+//  - One replay of the log, stepping day by day; closes come from a
+//    market::Series that spans [from - 1, to] and holds every security the
+//    scope holds in that time.
 //  - Throws InputError when from > to, or as replay does for a broken ledger.
 #pragma once
 
@@ -28,8 +30,8 @@
 #include "core/date.h"
 #include "core/decimal.h"
 #include "ledger/book.h"
+#include "market/series.h"
 #include "perf/performance.h"
-#include "store/prices.h"
 
 namespace keel::perf {
 
@@ -41,7 +43,7 @@ struct LedgerSeries {
   std::set<std::int64_t> unpriced;  // securities held without any price
 };
 
-LedgerSeries build_series(const LedgerLog& log, const store::PriceBook& prices,
+LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
                           std::optional<std::int64_t> account_id, Date from, Date to);
 
 }  // namespace keel::perf

@@ -318,4 +318,20 @@ MwrSolution solve_mwr(std::span<const CashFlow> input, Date start, Date end) {
   return out;
 }
 
+std::string mwr_words(const MwrSolution& m) {
+  switch (m.status) {
+    case MwrStatus::kOk:
+      return "";
+    case MwrStatus::kNoCashFlows:
+      return "no money-weighted return: the period has no value and no flows";
+    case MwrStatus::kNoRoot:
+      return "no money-weighted return: no rate makes the flows and values balance";
+    case MwrStatus::kMultipleRoots:
+      return fmt::format(
+          "no single money-weighted return: {} different rates balance the flows and values",
+          m.roots.size());
+  }
+  return "";
+}
+
 }  // namespace keel::perf

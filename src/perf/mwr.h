@@ -25,6 +25,7 @@
 
 #include <optional>
 #include <span>
+#include <string>
 #include <vector>
 
 #include "core/date.h"
@@ -53,5 +54,7 @@ struct MwrSolution {
 MwrSolution solve_mwr(std::span<const CashFlow> flows, Date start, Date end);
 
 const char* to_string(MwrStatus status);
+// Why there is no money-weighted return, for people; empty for kOk.
+std::string mwr_words(const MwrSolution& m);
 
 }  // namespace keel::perf

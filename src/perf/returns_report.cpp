@@ -7,10 +7,11 @@
 #include "core/error.h"
 #include "core/text.h"
 #include "ledger/accounts.h"
+#include "ledger/fx_cash.h"
 #include "ledger/posting.h"
+#include "market/day_view.h"
+#include "market/series.h"
 #include "store/ledger_store.h"
-#include "store/price_write.h"
-#include "store/prices.h"
 
 namespace keel::perf {
 
@@ -52,11 +53,22 @@ ReturnsReport report_of(store::Database& db, const LedgerData& data, const Scope
   if (!first) throw InputError("the ledger has no transactions yet; there is nothing to measure");
   report.inception = *first;
   report.as_of = *last;
-  const store::PriceBook& prices = data.prices;
-  if (auto day = prices.last_day(); day && *day > report.as_of) report.as_of = *day;
+  if (data.latest_close && *data.latest_close > report.as_of) report.as_of = *data.latest_close;
   if (request.as_of) report.as_of = *request.as_of;
   report.period = resolve_period(request.period, report.as_of, report.inception);
 
+  const Date before = report.period.from.plus_days(-1);
+  std::optional<Security> bench;
+  if (request.benchmark) {
+    bench = store::find_security(db, *request.benchmark);
+    if (!bench)
+      throw InputError(fmt::format("--benchmark: there is no security with symbol '{}'",
+                                   printable(*request.benchmark)));
+  }
+  market::Series::Request span;
+  span.from = before;
+  span.to = report.period.to;
+  const auto prices = market::Series::load(db, span);
   auto series = build_series(log, prices, account_id, report.period.from, report.period.to);
   report.income = series.income;
   report.tax = series.tax;
@@ -72,23 +84,19 @@ ReturnsReport report_of(store::Database& db, const LedgerData& data, const Scope
   input.to = report.period.to;
   input.series = std::move(series.series);
   input.risk_free_annual = request.risk_free_annual;
-  if (request.benchmark) {
-    const auto security = store::find_security(db, *request.benchmark);
-    if (!security)
-      throw InputError(fmt::format("--benchmark: there is no security with symbol '{}'",
-                                   printable(*request.benchmark)));
-    const Date before = report.period.from.plus_days(-1);
+  if (bench) {
     std::vector<LevelPoint> levels;
-    for (auto& [day, close] : store::closes_of(db, security->id))
-      levels.push_back(LevelPoint{day, std::move(close)});
-    if (levels.empty() || levels.front().day > before)
+    for (auto& c : prices.closes(bench->id))
+      levels.push_back(LevelPoint{c.day, std::move(c.price)});
+    if (levels.empty() || levels.front().day > before) {
+      const auto first = market::DayView(db).first_close_after(bench->id, before);
       throw InputError(fmt::format(
           "--benchmark {}: needs a close on or before {}, the day before the period; {}",
-          printable(security->symbol), before.str(),
-          levels.empty() ? std::string("it has no closes")
-                         : "its first close is on " + levels.front().day.str()));
+          printable(bench->symbol), before.str(),
+          first ? "its first close is on " + first->str() : std::string("it has no closes")));
+    }
     input.benchmark = std::move(levels);
-    report.benchmark = security->symbol;
+    report.benchmark = bench->symbol;
   }
   report.result = measure(input);
   return report;
@@ -97,7 +105,8 @@ ReturnsReport report_of(store::Database& db, const LedgerData& data, const Scope
 }  // namespace
 
 LedgerData LedgerData::load(store::Database& db) {
-  LedgerData data{ledger::load_log(db), store::PriceBook::load(db), {}};
+  LedgerData data{ledger::load_log(db), {}, market::DayView(db).latest_close_day()};
+  ledger::refuse_other_currencies(data.log, "returns and statements");
   for (const auto& s : store::list_securities(db)) data.symbols[s.id] = s.symbol;
   return data;
 }

@@ -10,9 +10,9 @@
 //    a ledger without transactions, and whatever resolve_period() and
 //    measure() reject.
 //  - Several reports of one ledger (the statement measures four periods) can
-//    share one LedgerData: the log, the closes and the symbols are then read
-//    once. It is a copy taken by load(); later changes to the ledger are not
-//    in it.
+//    share one LedgerData: the log and the symbols are then read once. It is
+//    a copy taken by load(); later changes to the ledger are not in it. The
+//    closes of each period are read for it (market::Series).
 #pragma once
 
 #include <cstdint>
@@ -49,8 +49,8 @@ struct ReturnsReport {
 
 struct LedgerData {
   LedgerLog log;
-  store::PriceBook prices;
   std::map<std::int64_t, std::string> symbols;  // security id -> symbol
+  std::optional<Date> latest_close;             // the latest day with any close
   static LedgerData load(store::Database& db);
 };
 

@@ -76,6 +76,7 @@ Decimal cash_effect(const Transaction& t) {
       return t.security_id ? -t.fee : *t.amount;
     case TxnKind::transfer_out:
       return t.security_id ? -t.fee : -*t.amount;
+    case TxnKind::exchange:  // cash in two currencies; see the currency lines
     case TxnKind::void_entry:
       break;
   }

@@ -5,21 +5,19 @@
 // to a document's members raises its version here and in that file.
 #pragma once
 
-#include <nlohmann/json.hpp>
 #include <string>
 #include <string_view>
 
+#include "core/json.h"
+
 namespace keel::report {
 
-inline nlohmann::ordered_json schema_tag(std::string_view report, int version) {
-  return {{"name", "keel." + std::string(report)}, {"version", version}};
-}
-
-// A document that starts with its schema tag.
-inline nlohmann::ordered_json json_document(std::string_view report, int version) {
-  nlohmann::ordered_json j;
-  j["schema"] = schema_tag(report, version);
-  return j;
+// Opens the document's object and writes its schema tag as the first member;
+// the caller writes the rest and closes the object.
+inline JsonWriter& begin_document(JsonWriter& j, std::string_view report, int version) {
+  j.begin_object().key("schema").begin_object();
+  j.member("name", "keel." + std::string(report)).member("version", version);
+  return j.end_object();
 }
 
 }  // namespace keel::report

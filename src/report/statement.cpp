@@ -11,6 +11,8 @@
 #include "core/text.h"
 #include "ledger/accounts.h"
 #include "ledger/posting.h"
+#include "market/day_view.h"
+#include "market/series.h"
 #include "store/ledger_store.h"
 #include "store/period_store.h"
 #include "store/price_write.h"
@@ -27,21 +29,6 @@ Decimal weight_of(const Decimal& part, const Decimal& whole) {
   return Decimal::divide(part, whole, kWeightPlaces);
 }
 
-std::string mwr_note(const perf::MwrSolution& m) {
-  switch (m.status) {
-    case perf::MwrStatus::kOk:
-      return "";
-    case perf::MwrStatus::kNoCashFlows:
-      return "no money-weighted return: the period has no value and no flows";
-    case perf::MwrStatus::kNoRoot:
-      return "no money-weighted return: no rate makes the flows and values balance";
-    case perf::MwrStatus::kMultipleRoots:
-      return fmt::format("no single money-weighted return: {} rates balance the flows and values",
-                         m.roots.size());
-  }
-  return "";
-}
-
 PerformanceLine line_from(const std::string& label, const perf::ReturnsReport& rep) {
   const auto& r = rep.result;
   PerformanceLine line;
@@ -56,7 +43,7 @@ PerformanceLine line_from(const std::string& label, const perf::ReturnsReport& r
     line.mwr_period = r.mwr_figure->period;
     line.mwr_annualized = r.mwr_figure->annualized;
   } else {
-    line.mwr_note = mwr_note(r.mwr);
+    line.mwr_note = perf::mwr_words(r.mwr);
   }
   if (r.benchmark) {
     line.benchmark = r.benchmark->benchmark.period;
@@ -100,28 +87,25 @@ std::vector<GrowthPoint> benchmark_growth(store::Database& db, const std::string
                                           Date to) {
   const auto security = store::security_with_symbol(db, symbol);
   const Date before = from.plus_days(-1);
-  std::optional<Decimal> base;
+  market::Series::Request span;
+  span.securities = std::vector<std::int64_t>{security.id};
+  span.from = before;
+  span.to = to;
+  const auto closes = market::Series::load(db, span).closes(security.id);
   std::vector<GrowthPoint> out;
-  for (const auto& [day, close] : store::closes_of(db, security.id)) {
-    if (day <= before) {
-      base = close;
-      continue;
-    }
-    if (day > to || !base) break;
-    if (out.empty()) out.push_back({before, 1.0});
-    out.push_back({day, close.to_double() / base->to_double()});
-  }
-  if (out.empty() && base) out.push_back({before, 1.0});
-  if (!out.empty() && out.back().day < to) out.push_back({to, out.back().level});
+  if (closes.empty() || closes.front().day > before) return out;
+  const double base = closes.front().price.to_double();
+  out.push_back({before, 1.0});
+  for (std::size_t i = 1; i < closes.size(); ++i)
+    out.push_back({closes[i].day, closes[i].price.to_double() / base});
+  if (out.back().day < to) out.push_back({to, out.back().level});
   return out;
 }
 
-std::optional<Date> first_close(store::Database& db, const std::string& symbol) {
-  const auto security = store::find_security(db, symbol);
-  if (!security) return std::nullopt;
-  const auto closes = store::closes_of(db, security->id);
-  if (closes.empty()) return std::nullopt;
-  return closes.front().first;
+// Whether the benchmark has a close on or before `day`.
+bool priced_by(const market::View& view, const std::string& symbol, Date day) {
+  const Security* security = view.security(symbol);
+  return security && view.close(security->id, day).has_value();
 }
 
 Decimal unrealized_total(const ledger::Holdings& h) {
@@ -210,14 +194,15 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   // Performance: this year, since inception, trailing 3 and 5 years where the
   // ledger's history covers them. Each is one call of the returns module.
   s.performance.push_back(line_from("this year", year));
-  const auto bench_first = request.benchmark ? first_close(db, *request.benchmark) : std::nullopt;
+  const market::DayView view(db);
   auto measured = [&](const std::string& label, Date from) {
     perf::ReturnsRequest rq;
     rq.account = request.account;
     rq.period.from = from;
     rq.period.to = s.to;
     rq.as_of = s.to;
-    const bool bench_ok = request.benchmark && bench_first && *bench_first <= from.plus_days(-1);
+    const bool bench_ok =
+        request.benchmark && priced_by(view, *request.benchmark, from.plus_days(-1));
     if (bench_ok) rq.benchmark = request.benchmark;
     auto line = line_from(label, perf::returns_report(db, data, rq));
     if (request.benchmark && !bench_ok)
@@ -264,11 +249,20 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   for (const auto& c : closing.cash) cash_total += c.amount;
   s.allocation.push_back({"cash", cash_total, weight_of(cash_total, closing.total_value)});
 
-  // Realized gains: the lot engine's parts disposed in the period.
+  // Realized gains: the lot engine's parts disposed in the period; those of
+  // accounts not taxable that day are listed apart.
+  const auto statuses = ledger::TaxStatuses::load(db);
+  Decimal sheltered_gain;
   for (auto& g :
        ledger::realized_gains(db, request.year, request.account, request.long_term_days)) {
     if (g.part.disposed < s.from || g.part.disposed > s.to) continue;
-    s.gains.push_back(std::move(g));
+    if (g.taxable()) {
+      s.gains.push_back(std::move(g));
+      continue;
+    }
+    sheltered_gain += g.part.gain();
+    s.not_taxable.push_back({g.account, std::string(to_string(g.tax_status)), g.part.disposed,
+                             "sale", g.symbol, g.part.gain(), Decimal()});
   }
   s.realized_totals = ledger::totals_by_term(s.gains);
 
@@ -292,6 +286,8 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   std::vector<const Transaction*> taxes;
   for (const Transaction* t : live) {
     const std::string symbol = t->security_id ? symbols[*t->security_id] : std::string();
+    const TaxStatus status = statuses.on(t->account_id, t->date);
+    const bool taxable = status == TaxStatus::taxable;
     switch (t->kind) {
       case TxnKind::deposit:
         y.deposits += *t->amount;
@@ -302,8 +298,13 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
       case TxnKind::dividend:
       case TxnKind::interest:
         (t->kind == TxnKind::dividend ? y.dividends : y.interest) += *t->amount;
-        s.income.push_back({account_names[t->account_id], t->date, std::string(to_string(t->kind)),
-                            symbol, *t->amount, Decimal()});
+        if (taxable)
+          s.income.push_back({account_names[t->account_id], t->date,
+                              std::string(to_string(t->kind)), symbol, *t->amount, Decimal()});
+        else
+          s.not_taxable.push_back({account_names[t->account_id], std::string(to_string(status)),
+                                   t->date, std::string(to_string(t->kind)), symbol, *t->amount,
+                                   Decimal()});
         break;
       case TxnKind::tax:
         y.withholding += *t->amount;
@@ -324,6 +325,7 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
         else
           cash_moved += t->kind == TxnKind::transfer_in ? *t->amount : -*t->amount;
         break;
+      case TxnKind::exchange:  // no flow: cash changes currency inside the account
       case TxnKind::void_entry:
         break;
     }
@@ -331,6 +333,19 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   for (const Transaction* t : taxes) {
     const std::string account = account_names[t->account_id];
     const std::string symbol = t->security_id ? symbols[*t->security_id] : std::string();
+    const TaxStatus status = statuses.on(t->account_id, t->date);
+    if (status != TaxStatus::taxable) {
+      auto it = std::find_if(s.not_taxable.begin(), s.not_taxable.end(), [&](const auto& row) {
+        return (row.kind == "dividend" || row.kind == "interest") && row.account == account &&
+               row.day == t->date && row.symbol == symbol;
+      });
+      if (it != s.not_taxable.end())
+        it->withheld += *t->amount;
+      else
+        s.not_taxable.push_back({account, std::string(to_string(status)), t->date, "tax", symbol,
+                                 *t->amount, Decimal()});
+      continue;
+    }
     auto it = std::find_if(s.income.begin(), s.income.end(), [&](const IncomeRow& row) {
       return row.account == account && row.day == t->date && row.symbol == symbol;
     });
@@ -339,6 +354,9 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
     else
       s.other_tax.push_back({account, t->date, symbol, *t->amount});
   }
+  std::stable_sort(s.not_taxable.begin(), s.not_taxable.end(),
+                   [](const NotTaxableRow& a, const NotTaxableRow& b) { return a.day < b.day; });
+  s.withholding = ledger::withholding(db, request.year, request.account);
 
   // Value pieces: the returns module's values and external flows; the lot
   // engine's realized gains and the cost basis moved by transfers.
@@ -346,7 +364,7 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   y.closing_value = r.closing_value;
   y.transfers_in = r.inflow - y.deposits;
   y.transfers_out = r.outflow - y.withdrawals;
-  y.realized_gain = s.realized_totals.all().gain;
+  y.realized_gain = s.realized_totals.all().gain + sheltered_gain;
   y.unrealized_opening = unrealized_total(opening);
   y.unrealized_closing = unrealized_total(closing);
   Decimal cost_moved;

@@ -25,6 +25,11 @@
 //  - Income detail: every dividend and interest payment in the period, each
 //    with the tax rows of the same account, day and security (or no security)
 //    as its withholding; tax rows without such a payment are listed apart.
+//  - Tax status (ledger/tax.h): realized gains, income and tax rows of an
+//    account that is tax-deferred or tax-exempt on their day are not in
+//    `gains`, `income` or `other_tax` but in `not_taxable` ("not a taxable
+//    event here"); the year summary still counts them, as value. Withholding
+//    of taxable accounts is also summed per security and per issuer country.
 //  - Throws InputError (naming the option) for an unknown account or
 //    benchmark, a benchmark without a close before the year, a year outside
 //    kFirstStatementYear to kLastStatementYear or the ledger's history, a long-term threshold below
@@ -39,6 +44,7 @@
 #include "core/date.h"
 #include "core/decimal.h"
 #include "ledger/holdings.h"
+#include "ledger/tax.h"
 #include "perf/returns_report.h"
 #include "store/database.h"
 
@@ -133,6 +139,17 @@ struct TaxRow {
   Decimal amount;
 };
 
+// A gain, a payment or a tax row of an account that was not taxable that day.
+struct NotTaxableRow {
+  std::string account;
+  std::string status;  // "tax-deferred" or "tax-exempt"
+  Date day;
+  std::string kind;    // "sale", "dividend", "interest" or "tax"
+  std::string symbol;  // empty when none
+  Decimal amount;      // the gain of a sale, the gross of a payment, or the tax
+  Decimal withheld;    // tax booked with a payment (as in the income detail)
+};
+
 struct Statement {
   std::string scope;  // account name or "all accounts"
   std::string currency;
@@ -159,7 +176,9 @@ struct Statement {
   std::vector<ledger::GainLine> gains;  // classified by the request's long-term rule
   ledger::GainsByTerm realized_totals;
   std::vector<IncomeRow> income;
-  std::vector<TaxRow> other_tax;  // tax rows not matched to a payment
+  std::vector<TaxRow> other_tax;           // tax rows not matched to a payment
+  std::vector<NotTaxableRow> not_taxable;  // by day; sales first within a day
+  ledger::Withholding withholding;         // taxable accounts, the period's tax rows
   std::vector<std::string> cautions;
 };
 

@@ -25,7 +25,6 @@
 #pragma once
 
 #include <filesystem>
-#include <nlohmann/json.hpp>
 #include <optional>
 #include <string>
 #include <vector>
@@ -79,7 +78,7 @@ std::vector<Section> statement_sections(const Statement& s);
 
 std::string statement_text(const Statement& s, bool colour);
 std::string statement_html(const Statement& s, Paper paper);
-nlohmann::ordered_json statement_json(const Statement& s);
+std::string statement_json(const Statement& s);  // ends with a newline
 
 // One CSV file per section, DIR/<key>.csv; DIR is created if missing (its
 // parent must exist). `option` names the folder in messages ("--csv").

@@ -449,6 +449,9 @@ std::string statement_html(const Statement& s, Paper paper) {
          table_html(find("realized")) + "</section>\n";
   out += "<section>\n<h2>" + esc(find("income").title) + "</h2>\n" + table_html(find("income")) +
          "</section>\n";
+  for (const auto& sec : sections)
+    if (sec.key == "withholding" || sec.key == "not_taxable")
+      out += "<section>\n<h2>" + esc(sec.title) + "</h2>\n" + table_html(sec) + "</section>\n";
   out += "<section class=\"cautions\">\n<h2>" + esc(find("cautions").title) + "</h2>\n<ul>\n";
   for (const auto& c : s.cautions) out += "<li>" + esc(c) + "</li>\n";
   out += "</ul>\n</section>\n";

@@ -1,143 +1,159 @@
 // The statement as JSON for scripts: decimals as exact strings, returns as
 // fractions (numbers), absent figures as null.
+#include "core/json.h"
 #include "report/json_schema.h"
 #include "report/statement_forms.h"
 
 namespace keel::report {
 namespace {
 
-using Json = nlohmann::ordered_json;
+void totals(JsonWriter& j, const char* name, const ledger::GainTotals& t) {
+  j.key(name).begin_object().member("parts", t.parts).member("proceeds", t.proceeds);
+  j.member("cost", t.cost).member("gain", t.gain).end_object();
+}
 
-Json number(const std::optional<double>& x) {
-  return x ? Json(*x) : Json();
+// A symbol, or null for none.
+void symbol(JsonWriter& j, const std::string& s) {
+  j.key("symbol");
+  if (s.empty())
+    j.null();
+  else
+    j.value(s);
 }
 
 }  // namespace
 
-nlohmann::ordered_json statement_json(const Statement& s) {
-  Json j = json_document("statement", 1);
-  j["year"] = s.year;
-  j["scope"] = s.scope;
-  j["currency"] = s.currency;
-  j["from"] = s.from.str();
-  j["to"] = s.to.str();
-  j["as_of"] = s.as_of.str();
-  j["inception"] = s.inception.str();
-  j["partial_year"] = s.partial_year;
-  j["benchmark"] = s.benchmark ? Json(*s.benchmark) : Json();
-  j["long_term_rule"] = s.long_term_rule;
-  j["unpriced"] = s.unpriced;
-  j["reconciled"] = Json::array();
+std::string statement_json(const Statement& s) {
+  std::string text;
+  JsonWriter j(text);
+  begin_document(j, "statement", 1);
+  j.member("year", s.year).member("scope", s.scope).member("currency", s.currency);
+  j.member("from", s.from.str()).member("to", s.to.str()).member("as_of", s.as_of.str());
+  j.member("inception", s.inception.str()).member("partial_year", s.partial_year);
+  j.member("benchmark", s.benchmark).member("long_term_rule", s.long_term_rule);
+  j.member("unpriced", s.unpriced);
+  j.key("reconciled").begin_array();
   for (const auto& [account, day] : s.reconciled)
-    j["reconciled"].push_back({{"account", account}, {"day", day.str()}});
+    j.begin_object().member("account", account).member("day", day.str()).end_object();
+  j.end_array();
 
   const YearSummary& y = s.summary;
-  j["summary"] = {{"opening_value", y.opening_value.str()},
-                  {"deposits", y.deposits.str()},
-                  {"withdrawals", y.withdrawals.str()},
-                  {"transfers_in", y.transfers_in.str()},
-                  {"transfers_out", y.transfers_out.str()},
-                  {"dividends", y.dividends.str()},
-                  {"withholding", y.withholding.str()},
-                  {"interest", y.interest.str()},
-                  {"fees", y.fees.str()},
-                  {"realized_gain", y.realized_gain.str()},
-                  {"unrealized_opening", y.unrealized_opening.str()},
-                  {"unrealized_closing", y.unrealized_closing.str()},
-                  {"unrealized_change", y.unrealized_change().str()},
-                  {"unrealized_moved", y.unrealized_moved.str()},
-                  {"closing_value", y.closing_value.str()},
-                  {"explained_closing", y.explained_closing().str()},
-                  {"difference", y.difference().str()},
-                  {"trade_fees", y.trade_fees.str()}};
+  j.key("summary").begin_object();
+  j.member("opening_value", y.opening_value).member("deposits", y.deposits);
+  j.member("withdrawals", y.withdrawals).member("transfers_in", y.transfers_in);
+  j.member("transfers_out", y.transfers_out).member("dividends", y.dividends);
+  j.member("withholding", y.withholding).member("interest", y.interest);
+  j.member("fees", y.fees).member("realized_gain", y.realized_gain);
+  j.member("unrealized_opening", y.unrealized_opening);
+  j.member("unrealized_closing", y.unrealized_closing);
+  j.member("unrealized_change", y.unrealized_change());
+  j.member("unrealized_moved", y.unrealized_moved).member("closing_value", y.closing_value);
+  j.member("explained_closing", y.explained_closing()).member("difference", y.difference());
+  j.member("trade_fees", y.trade_fees);
+  j.end_object();
 
-  j["performance"] = Json::array();
+  j.key("performance").begin_array();
   for (const auto& p : s.performance) {
-    Json line{{"period", p.label}, {"available", p.available}};
+    j.begin_object().member("period", p.label).member("available", p.available);
     if (!p.available) {
-      line["reason"] = p.unavailable_reason;
+      j.member("reason", p.unavailable_reason);
     } else {
-      line["from"] = p.from.str();
-      line["to"] = p.to.str();
-      line["days"] = p.days;
-      line["twr"] = number(p.twr);
-      line["twr_annualized"] = number(p.twr_annualized);
-      line["mwr"] = number(p.mwr_period);
-      line["mwr_annualized"] = number(p.mwr_annualized);
-      if (!p.mwr_note.empty()) line["mwr_note"] = p.mwr_note;
-      line["benchmark"] = number(p.benchmark);
-      line["benchmark_annualized"] = number(p.benchmark_annualized);
-      line["excess"] = number(p.excess);
-      line["excess_annualized"] = number(p.excess_annualized);
-      if (!p.benchmark_note.empty()) line["benchmark_note"] = p.benchmark_note;
+      j.member("from", p.from.str()).member("to", p.to.str()).member("days", p.days);
+      j.member("twr", p.twr).member("twr_annualized", p.twr_annualized);
+      j.member("mwr", p.mwr_period).member("mwr_annualized", p.mwr_annualized);
+      if (!p.mwr_note.empty()) j.member("mwr_note", p.mwr_note);
+      j.member("benchmark", p.benchmark).member("benchmark_annualized", p.benchmark_annualized);
+      j.member("excess", p.excess).member("excess_annualized", p.excess_annualized);
+      if (!p.benchmark_note.empty()) j.member("benchmark_note", p.benchmark_note);
     }
-    j["performance"].push_back(std::move(line));
+    j.end_object();
   }
-  j["twr_mwr_explanation"] = s.twr_mwr_words.empty() ? Json() : Json(s.twr_mwr_words);
+  j.end_array();
+  j.key("twr_mwr_explanation");
+  if (s.twr_mwr_words.empty())
+    j.null();
+  else
+    j.value(s.twr_mwr_words);
 
-  j["months"] = Json::array();
-  for (const auto& m : s.months)
-    j["months"].push_back({{"month", m.month},
-                           {"complete", m.complete},
-                           {"twr", m.twr},
-                           {"benchmark", number(m.benchmark)}});
+  j.key("months").begin_array();
+  for (const auto& m : s.months) {
+    j.begin_object().member("month", m.month).member("complete", m.complete);
+    j.member("twr", m.twr).member("benchmark", m.benchmark).end_object();
+  }
+  j.end_array();
 
-  j["holdings"] = Json::array();
-  for (const auto& h : s.holdings)
-    j["holdings"].push_back({{"account", h.line.account},
-                             {"symbol", h.line.symbol},
-                             {"quantity", h.line.quantity.str()},
-                             {"cost_basis", h.line.cost_basis.str()},
-                             {"price", h.line.price.str()},
-                             {"price_is_close", h.line.price_is_close},
-                             {"market_value", h.line.market_value.str()},
-                             {"unrealized_gain", h.line.unrealized_gain.str()},
-                             {"weight", h.weight.str()}});
-  j["cash"] = Json::array();
+  j.key("holdings").begin_array();
+  for (const auto& h : s.holdings) {
+    j.begin_object().member("account", h.line.account).member("symbol", h.line.symbol);
+    j.member("quantity", h.line.quantity).member("cost_basis", h.line.cost_basis);
+    j.member("price", h.line.price).member("price_is_close", h.line.price_is_close);
+    j.member("market_value", h.line.market_value);
+    j.member("unrealized_gain", h.line.unrealized_gain).member("weight", h.weight);
+    j.end_object();
+  }
+  j.end_array();
+  j.key("cash").begin_array();
   for (const auto& c : s.cash)
-    j["cash"].push_back({{"account", c.account}, {"amount", c.amount.str()}});
-  j["holdings_total"] = s.holdings_total.str();
+    j.begin_object().member("account", c.account).member("amount", c.amount).end_object();
+  j.end_array();
+  j.member("holdings_total", s.holdings_total);
 
-  j["realized"] = Json::array();
+  j.key("realized").begin_array();
   for (const auto& g : s.gains) {
-    j["realized"].push_back({{"account", g.account},
-                             {"symbol", g.symbol},
-                             {"lot", g.part.lot_id},
-                             {"acquired", g.part.acquired.str()},
-                             {"disposed", g.part.disposed.str()},
-                             {"days_held", g.days_held},
-                             {"quantity", g.part.quantity.str()},
-                             {"proceeds", g.part.proceeds.str()},
-                             {"cost", g.part.cost.str()},
-                             {"gain", g.part.gain().str()},
-                             {"class", g.long_term ? "long" : "short"}});
+    j.begin_object().member("account", g.account).member("symbol", g.symbol);
+    j.member("lot", static_cast<long long>(g.part.lot_id));
+    j.member("acquired", g.part.acquired.str()).member("disposed", g.part.disposed.str());
+    j.member("days_held", g.days_held).member("quantity", g.part.quantity);
+    j.member("proceeds", g.part.proceeds).member("cost", g.part.cost);
+    j.member("gain", g.part.gain()).member("class", g.long_term ? "long" : "short");
+    j.end_object();
   }
-  auto totals = [](const ledger::GainTotals& t) {
-    return Json{{"parts", t.parts},
-                {"proceeds", t.proceeds.str()},
-                {"cost", t.cost.str()},
-                {"gain", t.gain.str()}};
-  };
-  j["realized_totals"] = {{"short", totals(s.realized_totals.short_term)},
-                          {"long", totals(s.realized_totals.long_term)}};
+  j.end_array();
+  j.key("realized_totals").begin_object();
+  totals(j, "short", s.realized_totals.short_term);
+  totals(j, "long", s.realized_totals.long_term);
+  j.end_object();
 
-  j["income"] = Json::array();
-  for (const auto& r : s.income)
-    j["income"].push_back({{"account", r.account},
-                           {"date", r.day.str()},
-                           {"kind", r.kind},
-                           {"symbol", r.symbol.empty() ? Json() : Json(r.symbol)},
-                           {"gross", r.gross.str()},
-                           {"withheld", r.withheld.str()},
-                           {"net", r.net().str()}});
-  j["unmatched_tax"] = Json::array();
-  for (const auto& t : s.other_tax)
-    j["unmatched_tax"].push_back({{"account", t.account},
-                                  {"date", t.day.str()},
-                                  {"symbol", t.symbol.empty() ? Json() : Json(t.symbol)},
-                                  {"amount", t.amount.str()}});
-  j["cautions"] = s.cautions;
-  return j;
+  j.key("income").begin_array();
+  for (const auto& r : s.income) {
+    j.begin_object().member("account", r.account).member("date", r.day.str());
+    j.member("kind", r.kind);
+    symbol(j, r.symbol);
+    j.member("gross", r.gross).member("withheld", r.withheld).member("net", r.net());
+    j.end_object();
+  }
+  j.end_array();
+  j.key("unmatched_tax").begin_array();
+  for (const auto& t : s.other_tax) {
+    j.begin_object().member("account", t.account).member("date", t.day.str());
+    symbol(j, t.symbol);
+    j.member("amount", t.amount).end_object();
+  }
+  j.end_array();
+  j.key("not_taxable").begin_array();
+  for (const auto& r : s.not_taxable) {
+    j.begin_object().member("account", r.account).member("status", r.status);
+    j.member("date", r.day.str()).member("kind", r.kind);
+    symbol(j, r.symbol);
+    j.member("amount", r.amount).member("withheld", r.withheld).end_object();
+  }
+  j.end_array();
+  j.key("withholding").begin_object().key("by_security").begin_array();
+  for (const auto& w : s.withholding.by_security) {
+    j.begin_object();
+    symbol(j, w.symbol);
+    j.member("country", w.country).member("income", w.income).member("withheld", w.withheld);
+    j.end_object();
+  }
+  j.end_array().key("by_country").begin_object();
+  for (const auto& [country, amount] : s.withholding.by_country)
+    j.member(country.empty() ? "unknown" : country, amount);
+  j.end_object();
+  j.member("total", s.withholding.total).member("not_taxable", s.withholding.not_taxable);
+  j.end_object();
+  j.member("cautions", s.cautions);
+  j.end_object();
+  return text + "\n";
 }
 
 }  // namespace keel::report

@@ -1,6 +1,8 @@
 // The statement as tables, one per section: the single source of every form.
 #include <fmt/format.h>
 
+#include <algorithm>
+
 #include "report/gain_rows.h"
 #include "report/statement_forms.h"
 
@@ -210,6 +212,67 @@ Section gains_section(const Statement& s) {
                   "the sell's fee; cost includes the buy's fee.",
                   s.long_term_rule));
   if (s.gains.empty()) sec.notes.push_back("Nothing was sold in the period.");
+  if (std::any_of(s.not_taxable.begin(), s.not_taxable.end(),
+                  [](const NotTaxableRow& r) { return r.kind == "sale"; }))
+    sec.notes.push_back(
+        "Sales in tax-deferred and tax-exempt accounts are listed apart, as not a taxable event "
+        "here.");
+  return sec;
+}
+
+Section not_taxable_section(const Statement& s) {
+  Section sec;
+  sec.key = "not_taxable";
+  sec.title = "Not a taxable event here";
+  sec.columns = {{"account"},
+                 {"status"},
+                 {"date"},
+                 {"kind"},
+                 {"symbol"},
+                 {"gain or gross", Align::right},
+                 {"withheld", Align::right}};
+  for (const auto& r : s.not_taxable)
+    sec.rows.push_back({C::of_text(r.account), C::of_text(r.status), C::of_date(r.day),
+                        C::of_text(r.kind), C::of_text(r.symbol), C::of_money(r.amount),
+                        r.kind == "tax" ? C::none() : C::of_money(r.withheld)});
+  sec.notes.push_back(
+      "Gains, income and tax of accounts that were tax-deferred or tax-exempt on the day. They "
+      "count in the year's value above, not in the taxable lists; how withdrawals from such "
+      "accounts are taxed depends on local rules.");
+  return sec;
+}
+
+Section withholding_section(const Statement& s) {
+  Section sec;
+  sec.key = "withholding";
+  sec.title = "Withholding by security and issuer country";
+  sec.columns = {{"symbol"}, {"country"}, {"income", Align::right}, {"withheld", Align::right}};
+  const auto& w = s.withholding;
+  for (const auto& line : w.by_security)
+    sec.rows.push_back({C::of_text(line.symbol.empty() ? "(no security)" : line.symbol),
+                        C::of_text(line.country.value_or("unknown")), C::of_money(line.income),
+                        C::of_money(line.withheld)});
+  const std::size_t first_total = sec.rows.size();
+  for (const auto& [country, amount] : w.by_country) {
+    const std::string label = country.empty() ? "unknown" : country;
+    if (first_total > 0)
+      sec.formulas.push_back(Formula::sum_if(sec.rows.size(), 3, 0, first_total - 1, 1, label));
+    sec.emphasised.push_back(sec.rows.size());
+    sec.rows.push_back(
+        {C::of_text("country total"), C::of_text(label), C::none(), C::of_money(amount)});
+  }
+  sec.emphasised.push_back(sec.rows.size());
+  sec.rows.push_back({C::of_text("total"), C::none(), C::none(), C::of_money(w.total)});
+  if (first_total > 0)
+    sec.formulas.push_back(Formula::sum(sec.rows.size() - 1, 3, 0, first_total - 1));
+  sec.notes.push_back(
+      "Tax rows of taxable accounts, summed for a foreign tax credit where local rules allow "
+      "one. The country is the issuer's, as given with 'keel security add --country'; "
+      "'unknown' when none was given.");
+  if (!w.not_taxable.is_zero())
+    sec.notes.push_back(fmt::format(
+        "Tax of {} was withheld in tax-deferred and tax-exempt accounts; it is not summed here.",
+        w.not_taxable.fixed(2)));
   return sec;
 }
 
@@ -265,8 +328,15 @@ Section cautions_section(const Statement& s) {
 }  // namespace
 
 std::vector<Section> statement_sections(const Statement& s) {
-  return {summary_section(s), performance_section(s), monthly_section(s), holdings_section(s),
-          gains_section(s),   income_section(s),      cautions_section(s)};
+  std::vector<Section> out{summary_section(s),  performance_section(s), monthly_section(s),
+                           holdings_section(s), gains_section(s),       income_section(s)};
+  // Shown only when the year has them, so a household of taxable accounts
+  // without withholding keeps its short statement.
+  if (!s.withholding.total.is_zero() || !s.withholding.not_taxable.is_zero())
+    out.push_back(withholding_section(s));
+  if (!s.not_taxable.empty()) out.push_back(not_taxable_section(s));
+  out.push_back(cautions_section(s));
+  return out;
 }
 
 }  // namespace keel::report

@@ -10,16 +10,17 @@
 //   values are cheap, so low z is always cheap. Selection then marks names:
 //   z <= z_max, the cheapest `count`, or the cheapest ceil(top_pct % of n);
 //   a held name that passes but is not selected stays while z <= exit_z.
-//   Throws InputError located at the rule key when fewer than min_names pass
-//   or nothing is selected.
+//   Fewer than min_names passing, no spread, or nothing selected is a normal
+//   result: `refusal` names the rule key and says why, and nothing is
+//   selected.
 // targets(): weights (fractions of the invested value) for sleeves and
 //   selected names: equal, or raw exp(-tilt * z) normalized; a cap per name
 //   with the excess shared among the others in proportion. Held names that are
-//   not selected get weight 0 with the reason. Throws InputError when the
-//   weights cannot add up to one.
+//   not selected get weight 0 with the reason. A refused screen, or weights
+//   that cannot add up to one, give no targets and the refusal.
 // orders(): turns targets into orders for a portfolio (cash and holdings per
-//   account) at given prices. Sells come first, then buys that fit each
-//   account's cash above its reserve after estimated fees; quantities are
+//   account) at given prices, in the named steps of rules/order_steps.h. Sells come first, then
+//   buys that fit each account's cash above its reserve after estimated fees; quantities are
 //   rounded down to the security's lot size (or 10^-4 units when fractional).
 //   Never sells more than held nor spends more cash than an account has.
 //   Money is exact (Decimal); doubles appear only in the z statistics.
@@ -37,7 +38,7 @@
 
 namespace keel::rules {
 
-// A figure as known on the as-of day (see store::metric_as_of).
+// A figure as known on the as-of day (see market/view.h).
 struct Figure {
   Decimal value;
   Date period;    // the period the figure is for
@@ -66,16 +67,30 @@ struct ScreenLine {
   std::string note;             // why it is, or is not, selected
 };
 
+// Why a rule holds nothing on a day: the rule key responsible and the reason.
+struct Refusal {
+  std::string key;
+  std::string why;
+  // "FILE:LINE: key 'KEY': WHY", as Rule::fail words it.
+  std::string text(const Rule& rule) const;
+};
+
 struct ScreenResult {
   Date as_of;
-  std::vector<ScreenLine> lines;  // passing names by z (then symbol), then the rest by symbol
+  bool explained = true;           // notes and reasons were written (Explain::all)
+  std::optional<Refusal> refusal;  // set when the screen selects nothing
+  std::vector<ScreenLine> lines;   // passing names by z (then symbol), then the rest by symbol
   std::size_t passed = 0;
   std::size_t selected = 0;
   double mean = 0, sd = 0;  // of the values z is computed from
   std::optional<double> clip_low, clip_high;
 };
 
-ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candidates);
+// Explain::none leaves the notes and reasons of the lines (and the targets'
+// `why`) empty: for runs that only need the selection, many days over.
+enum class Explain { all, none };
+ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candidates,
+                    Explain explain = Explain::all);
 
 struct Target {
   std::int64_t security_id = 0;
@@ -87,9 +102,13 @@ struct Target {
   std::string why;  // "z = -1.32 <= -0.50", "sleeve at 20%", "excluded: ..."
 };
 
-// Sleeves first, then selected names by z, then zero-weight exits.
-std::vector<Target> targets(const Rule& rule, const ScreenResult& screened,
-                            const std::vector<std::int64_t>& sleeve_ids);
+struct Targets {
+  std::vector<Target> list;  // sleeves first, then selected names by z, then zero-weight exits
+  std::optional<Refusal> refusal;  // the screen's, or weights that cannot add up; list is empty
+};
+
+Targets targets(const Rule& rule, const ScreenResult& screened,
+                const std::vector<std::int64_t>& sleeve_ids);
 
 // ---------------------------------------------------------------- orders
 
@@ -182,8 +201,10 @@ struct OrderPlan {
   std::vector<Skipped> skipped;
 };
 
+// Explain::none leaves the orders' reasons and the skips' words empty.
 OrderPlan orders(const Portfolio& portfolio, const std::vector<Target>& targets,
-                 const Quotes& quotes, const TradingRule& trading, Date as_of);
+                 const Quotes& quotes, const TradingRule& trading, Date as_of,
+                 Explain explain = Explain::all);
 
 // Applies orders to a portfolio at their estimated prices and fees (for a
 // back-test, or to check a plan): quantities and cash move; lots are not kept.

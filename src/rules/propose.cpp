@@ -5,57 +5,18 @@
 #include <algorithm>
 #include <map>
 #include <set>
-#include <unordered_map>
-#include <unordered_set>
 
 #include "core/error.h"
 #include "core/text.h"
 #include "io/sha256.h"
 #include "ledger/accounts.h"
+#include "ledger/fx_cash.h"
 #include "ledger/posting.h"
+#include "market/day_view.h"
+#include "rules/inputs.h"
 #include "store/ledger_store.h"
-#include "store/point_in_time.h"
 
 namespace keel::rules {
-namespace {
-
-std::string join(const std::vector<std::string>& items) {
-  std::string out;
-  for (const auto& s : items) out += (out.empty() ? "" : ", ") + printable(s);
-  return out;
-}
-
-// A close this many days older than the as-of day earns a note.
-constexpr int kOldCloseDays = 7;
-
-}  // namespace
-
-std::optional<std::string> keep_currency(const Rule& rule, const std::string& currency,
-                                         const std::vector<const Security*>& sleeves,
-                                         std::vector<const Security*>& universe) {
-  auto refuse = [&](std::string_view key, const Security& s) {
-    rule.fail(key, fmt::format("{} is priced in {} and the rule trades in {}; keel does not "
-                               "convert between currencies yet",
-                               printable(s.symbol), s.currency, currency));
-  };
-  for (const Security* s : sleeves)
-    if (s->currency != currency) refuse("sleeve.symbol", *s);
-  if (rule.universe == Universe::list) {
-    for (const Security* s : universe)
-      if (s->currency != currency) refuse("scope.symbols", *s);
-    return std::nullopt;
-  }
-  const auto kept = std::stable_partition(
-      universe.begin(), universe.end(), [&](const Security* s) { return s->currency == currency; });
-  const auto left_out = static_cast<std::size_t>(universe.end() - kept);
-  universe.erase(kept, universe.end());
-  if (left_out == 0) return std::nullopt;
-  return fmt::format(
-      "{} stock{} priced in other currencies than {} {} left out of the universe "
-      "(keel does not convert between currencies yet)",
-      left_out, left_out == 1 ? "" : "s", currency, left_out == 1 ? "is" : "are");
-}
-
 std::vector<std::string> proposal_cautions(Date as_of) {
   return {
       "This is the output of your own rule applied to your own data; it is not investment "
@@ -74,6 +35,7 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
   Proposal p;
   p.rule_name = rule.name;
   p.rule_sha256 = io::sha256_hex(rule.text);
+  const market::DayView view(db);
   // The rule's accounts.
   std::vector<Account> pool;
   {
@@ -84,7 +46,7 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
       if (!a)
         rule.fail("scope.accounts",
                   fmt::format("no account named '{}' in the ledger{}", printable(name),
-                              known.empty() ? "" : " (accounts: " + join(known) + ")"));
+                              known.empty() ? "" : " (accounts: " + printable_list(known) + ")"));
       pool.push_back(*a);
       p.accounts.push_back(a->name);
     }
@@ -99,6 +61,11 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
   // accounts: trades recorded after the latest close (the fills of the last
   // proposal, say) must count, or their orders would be proposed again.
   const auto log = ledger::load_log(db);
+  {
+    std::vector<std::int64_t> ids;
+    for (const auto& a : pool) ids.push_back(a.id);
+    ledger::refuse_other_currencies(log, "propose", ids);
+  }
   std::optional<Date> last_posting;
   std::size_t later_postings = 0;
   {
@@ -121,7 +88,7 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
           later_postings, later_postings == 1 ? "" : "s", later_postings == 1 ? "is" : "are",
           as_of_opt->str()));
   } else {
-    const auto latest = store::latest_close_day(db);
+    const auto latest = view.latest_close_day();
     if (!latest)
       throw InputError(
           "the ledger holds no closes to value the accounts at; import prices first "
@@ -137,74 +104,16 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
   }
   const Date as_of = p.as_of;
 
-  // Securities: the universe and the sleeves.
-  const auto securities = store::list_securities(db);
-  std::unordered_map<std::string, const Security*> by_symbol;
-  std::unordered_map<std::int64_t, const Security*> by_id;
-  for (const auto& s : securities) {
-    by_symbol[s.symbol] = &s;
-    by_id[s.id] = &s;
-  }
-  std::vector<std::int64_t> sleeve_ids;
-  std::vector<const Security*> sleeves;
-  for (const auto& sl : rule.weights.sleeves) {
-    const auto it = by_symbol.find(sl.symbol);
-    if (it == by_symbol.end())
-      rule.fail("sleeve.symbol",
-                fmt::format("no security '{}' in the ledger", printable(sl.symbol)));
-    sleeve_ids.push_back(it->second->id);
-    sleeves.push_back(it->second);
-  }
-  const std::set<std::int64_t> sleeve_set(sleeve_ids.begin(), sleeve_ids.end());
-  std::vector<const Security*> universe;
-  if (rule.universe == Universe::list) {
-    for (const auto& sym : rule.symbols) {
-      const auto it = by_symbol.find(sym);
-      if (it == by_symbol.end())
-        rule.fail("scope.symbols", fmt::format("no security '{}' in the ledger", printable(sym)));
-      universe.push_back(it->second);
-    }
-  } else {
-    std::set<std::string> sectors;
-    for (const auto& s : securities) {
-      if (s.kind != SecurityKind::stock || sleeve_set.count(s.id)) continue;
-      if (s.sector) sectors.insert(*s.sector);
-      if (rule.universe == Universe::all_stocks || (s.sector && *s.sector == rule.sector))
-        universe.push_back(&s);
-    }
-    if (universe.empty() && rule.universe == Universe::sector)
-      rule.fail(
-          "scope.sector",
-          fmt::format(
-              "no stock in the ledger has sector '{}'{}", printable(rule.sector),
-              sectors.empty() ? "" : " (sectors: " + join({sectors.begin(), sectors.end()}) + ")"));
-    if (universe.empty())
-      throw InputError(fmt::format(
-          "{}: the universe is every stock in the ledger, and the ledger holds none; import "
-          "securities first",
-          printable(rule.source)));
-  }
-  if (auto note = keep_currency(rule, pool.front().currency, sleeves, universe))
-    p.notes.push_back(std::move(*note));
-  if (!store::metric_exists(db, rule.screen.metric)) {
-    const auto names = store::metric_names(db);
-    std::string why =
-        fmt::format("the ledger holds no figures for metric '{}'", printable(rule.screen.metric));
-    if (auto near = nearest(rule.screen.metric, names))
-      why += fmt::format("; did you mean '{}'?", printable(*near));
-    else if (!names.empty())
-      why += fmt::format(" (stored metrics: {})", join(names));
-    else
-      why += "; import metrics first ('keel import metrics FILE')";
-    rule.fail("screen.metric", why);
-  }
+  // The universe and the sleeves, checked before the ledger is replayed.
+  const Inputs inputs(rule, view, pool.front().currency);
+  p.notes.insert(p.notes.end(), inputs.notes().begin(), inputs.notes().end());
 
   // The pool's state on the as-of day.
   Replayer replayer(log);
   const Book& book = replayer.advance_to(as_of);
   p.last_txn_id = store::last_transaction_id(db);
   Portfolio portfolio;
-  std::unordered_set<std::int64_t> held;
+  std::set<std::int64_t> held;
   for (const auto& a : pool) {
     AccountState st;
     st.id = a.id;
@@ -222,72 +131,17 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
     portfolio.accounts.push_back(std::move(st));
   }
 
-  // Point-in-time figures and closes.
-  store::PointInTime pit(db);
-  std::unordered_map<std::int64_t, std::optional<std::pair<Date, Decimal>>> closes;
-  auto close_of = [&](std::int64_t id) -> const std::optional<std::pair<Date, Decimal>>& {
-    auto it = closes.find(id);
-    if (it == closes.end()) it = closes.emplace(id, pit.close(id, as_of)).first;
-    return it->second;
-  };
-  std::vector<Candidate> candidates;
-  candidates.reserve(universe.size());
-  for (const auto* s : universe) {
-    Candidate c;
-    c.security_id = s->id;
-    c.symbol = s->symbol;
-    c.held = held.count(s->id) > 0;
-    if (auto m = pit.metric(s->id, rule.screen.metric, as_of)) {
-      c.figure = Figure{m->value, m->date, m->known_on};
-      c.has_price = close_of(s->id).has_value();
-    }
-    candidates.push_back(std::move(c));
-  }
-  p.screen = screen(rule, as_of, std::move(candidates));
-  p.targets = targets(rule, p.screen, sleeve_ids);
-
-  // Held names outside the universe leave the pool.
-  std::set<std::int64_t> targeted;
-  for (const auto& t : p.targets) targeted.insert(t.security_id);
-  for (std::int64_t id : held)
-    if (!targeted.count(id))
-      p.targets.push_back(Target{id, by_id.at(id)->symbol, Decimal(), false, std::nullopt, true,
-                                 "not in the rule's universe"});
-  for (std::size_t i = 0; i < sleeve_ids.size(); ++i)
-    if (!close_of(sleeve_ids[i]))
-      rule.fail("sleeve.symbol",
-                fmt::format("sleeve '{}' has no close on or before {}",
-                            printable(rule.weights.sleeves[i].symbol), as_of.str()));
-
-  Quotes quotes;
-  for (const auto& t : p.targets) {
-    if (quotes.count(t.security_id)) continue;
-    const Security& s = *by_id.at(t.security_id);
-    Quote q;
-    q.symbol = s.symbol;
-    q.lot_size = s.lot_size;
-    const auto trade = book.last_trade(s.id);
-    if (const auto& c = close_of(s.id); c && trade && trade->day > c->first) {
-      // Traded after its latest close: the trade is the fresher price.
-      q.price = trade->price;
-      p.notes.push_back(
-          fmt::format("{}: valued at its trade price {} of {}, later than its "
-                      "latest close ({})",
-                      printable(s.symbol), trade->price.str(), trade->day.str(), c->first.str()));
-    } else if (c) {
-      q.price = c->second;
-      if (as_of - c->first > kOldCloseDays && (t.weight.is_positive() || held.count(s.id)))
-        p.notes.push_back(fmt::format("{}: the latest close on or before {} is from {}",
-                                      printable(s.symbol), as_of.str(), c->first.str()));
-    } else {
-      q.tradable = false;
-      q.price = trade ? trade->price : Decimal();
-      p.notes.push_back(fmt::format(
-          "{}: no close on or before {}; valued at {}", printable(s.symbol), as_of.str(),
-          trade ? "its last trade price " + trade->price.str() : "zero (it never traded)"));
-    }
-    quotes.emplace(s.id, std::move(q));
-  }
+  auto chosen = inputs.select(view, as_of, held);
+  if (chosen.refusal) rule.fail(chosen.refusal->key, chosen.refusal->why);
+  p.screen = std::move(chosen.screen);
+  p.targets = std::move(chosen.targets);
+  const Quotes quotes = inputs.quotes(
+      view, as_of, p.targets, held,
+      [&](std::int64_t id) -> std::optional<Inputs::Trade> {
+        if (const auto t = book.last_trade(id)) return Inputs::Trade{t->day, t->price};
+        return std::nullopt;
+      },
+      p.notes);
 
   Decimal pool_value;
   for (const auto& a : portfolio.accounts) {
@@ -298,7 +152,7 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
     rule.fail("scope.accounts",
               fmt::format("the accounts {} hold nothing to invest on {} (value {}); deposit "
                           "cash first",
-                          join(p.accounts), as_of.str(), pool_value.str()));
+                          printable_list(p.accounts), as_of.str(), pool_value.str()));
 
   p.plan = orders(portfolio, p.targets, quotes, rule.trading, as_of);
   p.cautions = proposal_cautions(as_of);

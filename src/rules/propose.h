@@ -6,14 +6,18 @@
 //    cash replayed to that day; closes on or before it (else a position's
 //    last trade price, which is never traded on; and the trade price when
 //    the ledger traded it after its latest close, with a note); metric
-//    figures with known_on <= as-of (store::metric_as_of). The default as-of
-//    is the later of the latest day with a close and the latest transaction
-//    in the rule's accounts, so orders already filled are not proposed
-//    again; a given as-of with transactions after it gets a note saying so.
-//    It reads the ledger and writes nothing.
-//  - Problems of the rule meeting this ledger (an account, symbol, sector or
-//    metric it does not hold; too few names; nothing selected; weights that
-//    cannot add up) are InputErrors located at the rule key (Rule::fail).
+//    figures with known_on <= as-of (market/view.h). The default as-of is
+//    the later of the latest day with a close and the latest transaction in
+//    the rule's accounts, so orders already filled are not proposed again; a
+//    given as-of with transactions after it gets a note saying so. It reads
+//    the ledger and writes nothing.
+//  - Problems of the rule meeting this ledger are InputErrors located at the
+//    rule key (Rule::fail): an account it does not hold, accounts keeping
+//    different currencies, and whatever rules::Inputs refuses
+//    (rules/inputs.h), in the words the back-test and the signal check use
+//    too. A day on which the rule selects nothing (too few names, no spread,
+//    nothing selected, weights that cannot add up) is refused with the
+//    engine's reason: a proposal always has targets.
 //  - save() stores a proposal in one write transaction and returns its id.
 //  - review() matches a saved proposal's orders with the live buys and sells
 //    posted after it was saved in the rule's accounts, by account, security
@@ -48,14 +52,6 @@ struct Proposal {
 };
 
 Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_of = std::nullopt);
-
-// A rule trades in one currency (keel does not convert between currencies
-// yet): a sleeve or a listed symbol priced in another than `currency` is
-// refused at its key; stocks of the whole ledger or of a sector priced in
-// another are left out of `universe`, and the note returned says how many.
-std::optional<std::string> keep_currency(const Rule& rule, const std::string& currency,
-                                         const std::vector<const Security*>& sleeves,
-                                         std::vector<const Security*>& universe);
 
 // The cautions every proposal ends with.
 std::vector<std::string> proposal_cautions(Date as_of);

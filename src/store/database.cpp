@@ -249,8 +249,25 @@ void Database::migrate() {
   if (read_only_) return;
   if (path_ != ":memory:") db_->exec("PRAGMA journal_mode = WAL");
   db_->exec("PRAGMA synchronous = NORMAL");
+  // A migration may rebuild a table that others refer to (SQLite's procedure
+  // for the schema changes ALTER TABLE cannot make): foreign keys are off
+  // while it runs and checked in full before it commits. SQLite ignores the
+  // setting inside a transaction, so it changes around each one.
   for (const Migration& m : migrations()) {
     if (m.version <= current) continue;
+    // Declared before the transaction, so it turns checks on again after the
+    // transaction has committed or rolled back.
+    struct ChecksBackOn {
+      SQLite::Database& db;
+      ~ChecksBackOn() {
+        try {
+          db.exec("PRAGMA foreign_keys = ON");
+        } catch (...) {
+          // Never throw from a destructor; every open turns checks on again.
+        }
+      }
+    } back_on{*db_};
+    db_->exec("PRAGMA foreign_keys = OFF");
     WriteTransaction tx(*this);
     try {
       db_->exec(std::string(m.sql));
@@ -259,6 +276,12 @@ void Database::migrate() {
       throw_sqlite_error(db_->getHandle(), e.getErrorCode(),
                          fmt::format("migration {} failed on ledger", m.file_name));
     }
+    SQLite::Statement check(*db_, "PRAGMA foreign_key_check");
+    if (check.executeStep())
+      throw LedgerError(
+          fmt::format("migration {} failed on ledger {}: a row of {} refers to a missing row of {}",
+                      m.file_name, path_.string(), check.getColumn(0).getString(),
+                      check.getColumn(2).getString()));
     tx.commit();
   }
 }

@@ -4,42 +4,19 @@
 #include <fmt/format.h>
 #include <sqlite3.h>
 
+#include <algorithm>
+#include <cctype>
 #include <chrono>
 #include <ctime>
 
 #include "core/error.h"
+#include "core/suggest.h"
 #include "core/text.h"
+#include "store/record_change_store.h"
+#include "store/sql_values.h"
 
 namespace keel::store {
 namespace {
-
-template <typename T>
-void bind_optional(SQLite::Statement& st, int index, const std::optional<T>& value) {
-  if (value)
-    st.bind(index, *value);
-  else
-    st.bind(index);
-}
-
-void bind_decimal(SQLite::Statement& st, int index, const std::optional<Decimal>& value) {
-  if (value)
-    st.bind(index, value->str());
-  else
-    st.bind(index);
-}
-
-std::optional<std::string> opt_text(const SQLite::Column& c) {
-  if (c.isNull()) return std::nullopt;
-  return c.getString();
-}
-std::optional<Decimal> opt_decimal(const SQLite::Column& c) {
-  if (c.isNull()) return std::nullopt;
-  return Decimal::parse(c.getString());
-}
-std::optional<std::int64_t> opt_id(const SQLite::Column& c) {
-  if (c.isNull()) return std::nullopt;
-  return c.getInt64();
-}
 
 Account read_account(SQLite::Statement& st) {
   Account a;
@@ -60,6 +37,7 @@ Security read_security(SQLite::Statement& st) {
   s.currency = st.getColumn(4).getString();
   s.lot_size = Decimal::parse(st.getColumn(5).getString());
   s.sector = opt_text(st.getColumn(6));
+  s.country = opt_text(st.getColumn(7));
   return s;
 }
 
@@ -67,7 +45,8 @@ Security read_security(SQLite::Statement& st) {
 // table (the voided row keeps it in txn, where a ref is unique per account).
 constexpr const char* kTxnColumns =
     "id, account_id, date, kind, security_id, quantity, price, amount, fee, acquired, lots, "
-    "link_id, voids_id, coalesce(txn.ref, correction.ref), row_hash, note";
+    "link_id, voids_id, coalesce(txn.ref, correction.ref), row_hash, note, txn.currency, "
+    "txn.rate, txn.to_currency";
 constexpr const char* kTxnFrom = "txn LEFT JOIN correction ON correction.new_txn_id = txn.id";
 
 Transaction read_txn(SQLite::Statement& st) {
@@ -90,6 +69,9 @@ Transaction read_txn(SQLite::Statement& st) {
   t.ref = opt_text(st.getColumn(13));
   t.row_hash = opt_text(st.getColumn(14));
   t.note = opt_text(st.getColumn(15));
+  t.currency = opt_text(st.getColumn(16));
+  t.rate = opt_decimal(st.getColumn(17));
+  t.to_currency = opt_text(st.getColumn(18));
   return t;
 }
 
@@ -99,6 +81,26 @@ bool is_unique_violation(const SQLite::Exception& e) {
 }
 
 }  // namespace
+
+std::optional<std::string> nearest_names(std::string_view name,
+                                         const std::vector<std::string>& known) {
+  for (const auto& k : known)
+    if (k.size() == name.size() && std::equal(k.begin(), k.end(), name.begin(), [](char a, char b) {
+          return std::tolower(static_cast<unsigned char>(a)) ==
+                 std::tolower(static_cast<unsigned char>(b));
+        }))
+      return fmt::format("did you mean '{}'? (it differs in letter case only)", printable(k));
+  const auto close = closest(name, known);
+  if (close.empty()) return std::nullopt;
+  std::string list;
+  for (std::size_t i = 0; i < close.size(); ++i)
+    list += fmt::format("{}'{}'",
+                        i == 0                  ? ""
+                        : i + 1 == close.size() ? " or "
+                                                : ", ",
+                        printable(close[i]));
+  return fmt::format("did you mean {}?", list);
+}
 
 std::string utc_timestamp() {
   const std::time_t now = std::time(nullptr);
@@ -169,23 +171,59 @@ std::vector<Account> list_accounts(Database& db) {
 Account account_named(Database& db, std::string_view name) {
   if (auto a = find_account(db, name)) return *a;
   std::string known;
-  for (const auto& a : list_accounts(db)) known += (known.empty() ? "" : ", ") + a.name;
+  std::vector<std::string> names;
+  for (const auto& a : list_accounts(db)) {
+    known += (known.empty() ? "" : ", ") + a.name;
+    names.push_back(a.name);
+  }
+  if (const auto hint = nearest_names(name, names))
+    throw InputError(fmt::format("unknown account '{}'; {}", printable(name), *hint));
   throw InputError(fmt::format("unknown account '{}'{}", printable(name),
                                known.empty() ? "; add one with 'keel account add NAME'"
                                              : "; known accounts: " + printable(known)));
 }
 
+void insert_tax_status(Database& db, const TaxStatusChange& c) {
+  SQLite::Statement st(db.sql(),
+                       "INSERT INTO account_tax_status (account_id, from_day, status, recorded_at) "
+                       "VALUES (?, ?, ?, ?)");
+  st.bind(1, c.account_id);
+  st.bind(2, c.from.str());
+  st.bind(3, std::string(to_string(c.status)));
+  st.bind(4, utc_timestamp());
+  try {
+    st.exec();
+  } catch (const SQLite::Exception& e) {
+    if (is_unique_violation(e))
+      throw InputError(fmt::format(
+          "the account already has a tax status from {}; give another --from day", c.from.str()));
+    throw;
+  }
+}
+
+std::vector<TaxStatusChange> list_tax_statuses(Database& db) {
+  SQLite::Statement st(db.sql(),
+                       "SELECT account_id, from_day, status FROM account_tax_status "
+                       "ORDER BY account_id, from_day");
+  std::vector<TaxStatusChange> out;
+  while (st.executeStep())
+    out.push_back({st.getColumn(0).getInt64(), Date::parse(st.getColumn(1).getString()),
+                   parse_tax_status(st.getColumn(2).getString())});
+  return out;
+}
+
 std::int64_t insert_security(Database& db, const Security& s) {
   validate(s);
   SQLite::Statement st(db.sql(),
-                       "INSERT INTO security (symbol, name, kind, currency, lot_size, sector) "
-                       "VALUES (?, ?, ?, ?, ?, ?)");
+                       "INSERT INTO security (symbol, name, kind, currency, lot_size, sector, "
+                       "country) VALUES (?, ?, ?, ?, ?, ?, ?)");
   st.bind(1, s.symbol);
   st.bind(2, s.name);
   st.bind(3, std::string(to_string(s.kind)));
   st.bind(4, s.currency);
   st.bind(5, s.lot_size.str());
   bind_optional(st, 6, s.sector);
+  bind_optional(st, 7, s.country);
   try {
     st.exec();
   } catch (const SQLite::Exception& e) {
@@ -198,9 +236,10 @@ std::int64_t insert_security(Database& db, const Security& s) {
 }
 
 std::optional<Security> find_security(Database& db, std::string_view symbol) {
-  SQLite::Statement st(db.sql(),
-                       "SELECT id, symbol, name, kind, currency, lot_size, sector FROM security "
-                       "WHERE symbol = ?");
+  SQLite::Statement st(
+      db.sql(),
+      "SELECT id, symbol, name, kind, currency, lot_size, sector, country FROM security "
+      "WHERE symbol = ?");
   st.bind(1, std::string(symbol));
   if (!st.executeStep()) return std::nullopt;
   return read_security(st);
@@ -208,14 +247,29 @@ std::optional<Security> find_security(Database& db, std::string_view symbol) {
 
 Security security_with_symbol(Database& db, std::string_view symbol) {
   if (auto s = find_security(db, symbol)) return *s;
+  // A symbol the security had before a change still names it.
+  if (auto s = find_security_by_former_symbol(db, std::string(symbol))) return *s;
+  std::vector<std::string> symbols;
+  for (const auto& s : list_securities(db)) symbols.push_back(s.symbol);
+  const auto hint = nearest_names(symbol, symbols);
+  // A symbol that differs only in letter case is surely the one meant: no
+  // invitation to add a near-duplicate.
+  if (hint && hint->find("letter case") != std::string::npos)
+    throw InputError(fmt::format("unknown security '{}'; {}", printable(symbol), *hint));
+  if (hint)
+    throw InputError(
+        fmt::format("unknown security '{}'; {} To add a new one: 'keel security "
+                    "add {}'",
+                    printable(symbol), *hint, printable(symbol)));
   throw InputError(fmt::format("unknown security '{}'; add it with 'keel security add {}'",
                                printable(symbol), printable(symbol)));
 }
 
 std::vector<Security> list_securities(Database& db) {
-  SQLite::Statement st(db.sql(),
-                       "SELECT id, symbol, name, kind, currency, lot_size, sector FROM security "
-                       "ORDER BY symbol");
+  SQLite::Statement st(
+      db.sql(),
+      "SELECT id, symbol, name, kind, currency, lot_size, sector, country FROM security "
+      "ORDER BY symbol");
   std::vector<Security> out;
   while (st.executeStep()) out.push_back(read_security(st));
   return out;
@@ -225,7 +279,8 @@ std::int64_t insert_transaction(Database& db, const Transaction& t) {
   SQLite::Statement st(db.sql(),
                        "INSERT INTO txn (account_id, date, kind, security_id, quantity, price, "
                        "amount, fee, acquired, lots, link_id, voids_id, ref, row_hash, note, "
-                       "recorded_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)");
+                       "recorded_at, currency, rate, to_currency) VALUES (?, ?, ?, ?, ?, ?, ?, ?, "
+                       "?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)");
   st.bind(1, t.account_id);
   st.bind(2, t.date.str());
   st.bind(3, std::string(to_string(t.kind)));
@@ -248,6 +303,9 @@ std::int64_t insert_transaction(Database& db, const Transaction& t) {
   bind_optional(st, 14, t.row_hash);
   bind_optional(st, 15, t.note);
   st.bind(16, utc_timestamp());
+  bind_optional(st, 17, t.currency);
+  bind_decimal(st, 18, t.rate);
+  bind_optional(st, 19, t.to_currency);
   try {
     st.exec();
   } catch (const SQLite::Exception& e) {
@@ -302,6 +360,12 @@ std::optional<std::int64_t> void_of(Database& db, std::int64_t txn_id) {
   SQLite::Statement st(db.sql(), "SELECT id FROM txn WHERE voids_id = ?");
   st.bind(1, txn_id);
   if (!st.executeStep()) return std::nullopt;
+  return st.getColumn(0).getInt64();
+}
+
+std::int64_t last_transaction_id(Database& db) {
+  SQLite::Statement st(db.sql(), "SELECT coalesce(max(id), 0) FROM txn");
+  st.executeStep();
   return st.getColumn(0).getInt64();
 }
 

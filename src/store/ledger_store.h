@@ -28,6 +28,11 @@ std::optional<Account> find_account(Database& db, std::string_view name);
 Account account_named(Database& db, std::string_view name);
 std::vector<Account> list_accounts(Database& db);
 
+// A dated tax status; throws InputError when the account already has a
+// status recorded from that very day.
+void insert_tax_status(Database& db, const TaxStatusChange& change);
+std::vector<TaxStatusChange> list_tax_statuses(Database& db);  // by account id, then day
+
 std::int64_t insert_security(Database& db, const Security& security);
 std::optional<Security> find_security(Database& db, std::string_view symbol);
 Security security_with_symbol(Database& db, std::string_view symbol);
@@ -41,9 +46,17 @@ std::vector<Transaction> list_transactions(Database& db);
 bool ref_exists(Database& db, std::int64_t account_id, std::string_view ref);
 bool row_hash_exists(Database& db, std::int64_t account_id, std::string_view row_hash);
 std::optional<std::int64_t> void_of(Database& db, std::int64_t txn_id);
+// Highest transaction id, 0 for an empty ledger.
+std::int64_t last_transaction_id(Database& db);
 
 std::int64_t insert_split(Database& db, const Split& split);
 std::vector<Split> list_splits(Database& db);  // by date, then id
+
+// "did you mean 'QRX'?" for a name not among `known`: the one that differs
+// only in ASCII letter case (said so), else the nearest by core/suggest.h;
+// unset when nothing is close.
+std::optional<std::string> nearest_names(std::string_view name,
+                                         const std::vector<std::string>& known);
 
 // The current UTC time as ISO 8601, for recorded_at columns.
 std::string utc_timestamp();

@@ -314,6 +314,9 @@ std::vector<std::string> future_rows(Database& db, Date today) {
       "kind <> 'void' ORDER BY date, id",
       "SELECT 'the split of ' || s.symbol, p.date FROM split p JOIN security s ON s.id = "
       "p.security_id WHERE p.date > ? ORDER BY p.date, s.symbol",
+      "SELECT 'corporate action ' || a.id || ' (' || a.kind || ' of ' || s.symbol || ')', a.date "
+      "FROM corporate_action a JOIN security s ON s.id = a.security_id WHERE a.date > ? AND "
+      "a.kind <> 'void' ORDER BY a.date, a.id",
   };
   for (const char* sql : kPostings) {
     SQLite::Statement st(db.sql(), sql);

@@ -11,74 +11,10 @@
 #include "core/text.h"
 #include "store/ledger_store.h"
 #include "store/sqlite_error.h"
+#include "store/statement.h"
 
 namespace keel::store {
 namespace {
-
-// A prepared statement on the raw handle, reset after each use: the intake
-// hot path binds text without copying it.
-class Stmt {
- public:
-  Stmt(sqlite3* db, const char* sql) : db_(db) {
-    if (const int rc = sqlite3_prepare_v3(db, sql, -1, SQLITE_PREPARE_PERSISTENT, &st_, nullptr);
-        rc != SQLITE_OK)
-      throw_sqlite_error(db, rc);
-  }
-  ~Stmt() { sqlite3_finalize(st_); }
-  Stmt(const Stmt&) = delete;
-  Stmt& operator=(const Stmt&) = delete;
-
-  Stmt& bind(int i, std::int64_t v) {
-    sqlite3_bind_int64(st_, i, v);
-    return *this;
-  }
-  Stmt& bind(int i, std::string_view v) {
-    sqlite3_bind_text(st_, i, v.data(), static_cast<int>(v.size()), SQLITE_STATIC);
-    return *this;
-  }
-  // Text that ends with a NUL: SQLite then uses it in place even where it
-  // needs a terminated string (the GLOB checks), instead of copying it.
-  Stmt& bind_terminated(int i, const char* z) {
-    sqlite3_bind_text(st_, i, z, -1, SQLITE_STATIC);
-    return *this;
-  }
-  // Runs a statement that returns no rows; gives sqlite3_changes().
-  int run() {
-    const int rc = sqlite3_step(st_);
-    sqlite3_reset(st_);
-    if (rc != SQLITE_DONE) fail(rc);
-    return sqlite3_changes(db_);
-  }
-  // Runs a write; false (and nothing changed) on a constraint violation.
-  bool try_run() {
-    const int rc = sqlite3_step(st_);
-    sqlite3_reset(st_);
-    if (rc == SQLITE_DONE) return true;
-    if ((rc & 0xff) == SQLITE_CONSTRAINT) return false;
-    fail(rc);
-  }
-  // Steps once; true with a row (read it, then call reset()).
-  bool row() {
-    const int rc = sqlite3_step(st_);
-    if (rc == SQLITE_ROW) return true;
-    sqlite3_reset(st_);
-    if (rc != SQLITE_DONE) fail(rc);
-    return false;
-  }
-  void reset() { sqlite3_reset(st_); }
-  std::string_view text(int col) {
-    const auto* p = reinterpret_cast<const char*>(sqlite3_column_text(st_, col));
-    return p ? std::string_view(p, static_cast<std::size_t>(sqlite3_column_bytes(st_, col)))
-             : std::string_view{};
-  }
-  std::int64_t integer(int col) { return sqlite3_column_int64(st_, col); }
-  bool null(int col) { return sqlite3_column_type(st_, col) == SQLITE_NULL; }
-
- private:
-  [[noreturn]] void fail(int rc) { throw_sqlite_error(db_, rc); }
-  sqlite3* db_;
-  sqlite3_stmt* st_ = nullptr;
-};
 
 enum Kind { kPrice = 0, kMetric = 1, kDistribution = 2, kSplit = 3, kKinds = 4 };
 
@@ -128,12 +64,12 @@ struct MarketWriter::Impl {
   Counts counts;
   std::string existing;
 
-  Stmt range[kKinds];
-  Stmt seen_insert;
-  Stmt price_insert, price_block, price_get, price_set;
-  Stmt metric_insert, metric_get, metric_set;
-  Stmt dist_insert, dist_get, dist_set;
-  Stmt split_insert, split_get;
+  Statement range[kKinds];
+  Statement seen_insert;
+  Statement price_insert, price_block, price_get, price_set;
+  Statement metric_insert, metric_get, metric_set;
+  Statement dist_insert, dist_get, dist_set;
+  Statement split_insert, split_get;
 
   Impl(Database& d, bool r)
       : db(d),
@@ -207,9 +143,9 @@ struct MarketWriter::Impl {
     Range& r = ranges[sec][kind];
     if (!r.known) {
       r.known = true;
-      Stmt& q = range[kind];
+      Statement& q = range[kind];
       q.bind(1, ids[sec]);
-      if (q.row()) {
+      if (q.next()) {
         r.any = !q.null(0);
         if (r.any) {
           r.min = q.text(0);
@@ -284,7 +220,7 @@ void MarketWriter::price(std::size_t sec, std::string_view date, std::string_vie
                   {}};
   std::copy_n(date.data(), std::min<std::size_t>(date.size(), 10), p.date.begin());
   m.arena.append(close);
-  m.arena.push_back('\0');  // see Stmt::bind_terminated()
+  m.arena.push_back('\0');  // see Statement::bind_terminated()
   m.pending.push_back(p);
   if (m.pending.size() >= Impl::kBatch) m.flush_prices();
 }
@@ -377,7 +313,7 @@ Upsert MarketWriter::Impl::upsert_price(std::size_t sec, std::string_view date,
   if (price_insert.bind(1, id).bind(2, date).bind(3, close).run() == 1) return Upsert::added;
   if (!overlap) return Upsert::duplicate;
   price_get.bind(1, id).bind(2, date);
-  price_get.row();
+  price_get.next();
   existing.assign(price_get.text(0));
   price_get.reset();
   if (existing == close) return Upsert::unchanged;
@@ -403,7 +339,7 @@ Upsert MarketWriter::metric(std::size_t sec, std::string_view name, std::string_
     return Upsert::added;
   if (!overlap) return Upsert::duplicate;
   m.metric_get.bind(1, id).bind(2, name).bind(3, date).bind(4, known_on);
-  m.metric_get.row();
+  m.metric_get.next();
   existing.assign(m.metric_get.text(0));
   m.metric_get.reset();
   if (existing == value) return Upsert::unchanged;
@@ -423,7 +359,7 @@ Upsert MarketWriter::distribution(std::size_t sec, std::string_view ex_date,
     return Upsert::added;
   if (!overlap) return Upsert::duplicate;
   m.dist_get.bind(1, id).bind(2, ex_date);
-  m.dist_get.row();
+  m.dist_get.next();
   const std::string old_pay(m.dist_get.text(0));
   const std::string old_per(m.dist_get.text(1));
   m.dist_get.reset();
@@ -445,7 +381,7 @@ Upsert MarketWriter::split(std::size_t sec, std::string_view date, std::string_v
     return Upsert::added;
   if (!overlap) return Upsert::duplicate;
   m.split_get.bind(1, id).bind(2, date);
-  m.split_get.row();
+  m.split_get.next();
   existing.assign(m.split_get.text(0));
   m.split_get.reset();
   return existing == ratio ? Upsert::unchanged : Upsert::conflict;
@@ -492,22 +428,22 @@ void for_each_price(
     Database& db,
     const std::function<void(const std::string&, std::string_view, std::string_view)>& fn) {
   sqlite3* h = db.sql().getHandle();
-  Stmt q(h, "SELECT date, close FROM price WHERE security_id = ? ORDER BY date");
+  Statement q(h, "SELECT date, close FROM price WHERE security_id = ? ORDER BY date");
   for (const Security& s : list_securities(db)) {
     q.bind(1, s.id);
-    while (q.row()) fn(s.symbol, q.text(0), q.text(1));
+    while (q.next()) fn(s.symbol, q.text(0), q.text(1));
   }
 }
 
 void for_each_metric(Database& db,
                      const std::function<void(const std::string&, const MetricRow&)>& fn) {
   sqlite3* h = db.sql().getHandle();
-  Stmt q(h,
-         "SELECT date, name, value, known_on FROM metric WHERE security_id = ? "
-         "ORDER BY name, date, known_on");
+  Statement q(h,
+              "SELECT date, name, value, known_on FROM metric WHERE security_id = ? "
+              "ORDER BY name, date, known_on");
   for (const Security& s : list_securities(db)) {
     q.bind(1, s.id);
-    while (q.row()) fn(s.symbol, MetricRow{q.text(0), q.text(1), q.text(2), q.text(3)});
+    while (q.next()) fn(s.symbol, MetricRow{q.text(0), q.text(1), q.text(2), q.text(3)});
   }
 }
 
@@ -515,88 +451,13 @@ void for_each_distribution(Database& db,
                            const std::function<void(const std::string&, std::string_view,
                                                     std::string_view, std::string_view)>& fn) {
   sqlite3* h = db.sql().getHandle();
-  Stmt q(h,
-         "SELECT ex_date, pay_date, per_share FROM distribution WHERE security_id = ? "
-         "ORDER BY ex_date");
+  Statement q(h,
+              "SELECT ex_date, pay_date, per_share FROM distribution WHERE security_id = ? "
+              "ORDER BY ex_date");
   for (const Security& s : list_securities(db)) {
     q.bind(1, s.id);
-    while (q.row()) fn(s.symbol, q.text(0), q.text(1), q.text(2));
+    while (q.next()) fn(s.symbol, q.text(0), q.text(1), q.text(2));
   }
-}
-
-// ---------------------------------------------------------- point in time
-
-std::optional<MetricPoint> metric_as_of(Database& db, std::int64_t security_id,
-                                        std::string_view metric, Date day) {
-  // The primary key (security_id, name, date, known_on) serves the order.
-  SQLite::Statement st(db.sql(),
-                       "SELECT date, known_on, value FROM metric WHERE security_id = ? AND "
-                       "name = ? AND known_on <= ? ORDER BY date DESC, known_on DESC LIMIT 1");
-  st.bind(1, security_id);
-  st.bind(2, std::string(metric));
-  st.bind(3, day.str());
-  if (!st.executeStep()) return std::nullopt;
-  return MetricPoint{security_id, Decimal::parse(st.getColumn(2).getString()),
-                     Date::parse(st.getColumn(0).getString()),
-                     Date::parse(st.getColumn(1).getString())};
-}
-
-std::vector<MetricPoint> metrics_as_of(Database& db, std::string_view metric, Date day) {
-  SQLite::Statement st(db.sql(),
-                       "SELECT security_id, date, known_on, value FROM ("
-                       "  SELECT security_id, date, known_on, value, row_number() OVER ("
-                       "    PARTITION BY security_id ORDER BY date DESC, known_on DESC) AS n"
-                       "  FROM metric WHERE name = ? AND known_on <= ?)"
-                       " WHERE n = 1 ORDER BY security_id");
-  st.bind(1, std::string(metric));
-  st.bind(2, day.str());
-  std::vector<MetricPoint> out;
-  while (st.executeStep())
-    out.push_back(MetricPoint{
-        st.getColumn(0).getInt64(), Decimal::parse(st.getColumn(3).getString()),
-        Date::parse(st.getColumn(1).getString()), Date::parse(st.getColumn(2).getString())});
-  return out;
-}
-
-MetricHistory MetricHistory::load(Database& db, std::string_view metric) {
-  MetricHistory h;
-  SQLite::Statement st(db.sql(),
-                       "SELECT security_id, date, known_on, value FROM metric WHERE name = ? "
-                       "ORDER BY security_id, date, known_on");
-  st.bind(1, std::string(metric));
-  while (st.executeStep()) {
-    const std::int64_t id = st.getColumn(0).getInt64();
-    auto& rows = h.rows_[id];
-    if (rows.empty()) h.ids_.push_back(id);
-    rows.push_back(Row{Date::parse(st.getColumn(1).getString()),
-                       Date::parse(st.getColumn(2).getString()),
-                       Decimal::parse(st.getColumn(3).getString())});
-  }
-  std::sort(h.ids_.begin(), h.ids_.end());
-  return h;
-}
-
-std::optional<MetricPoint> MetricHistory::at(std::int64_t security_id, Date day) const {
-  const auto it = rows_.find(security_id);
-  if (it == rows_.end()) return std::nullopt;
-  const auto& rows = it->second;
-  // Rows are ordered by (date, known_on) and known_on >= date, so no row with
-  // date > day can be known on day: walk back from the last date <= day.
-  auto pos = std::upper_bound(rows.begin(), rows.end(), day,
-                              [](Date d, const Row& r) { return d < r.date; });
-  while (pos != rows.begin()) {
-    --pos;
-    if (pos->known_on <= day) return MetricPoint{security_id, pos->value, pos->date, pos->known_on};
-  }
-  return std::nullopt;
-}
-
-std::vector<MetricPoint> MetricHistory::all_at(Date day) const {
-  std::vector<MetricPoint> out;
-  out.reserve(ids_.size());
-  for (std::int64_t id : ids_)
-    if (auto p = at(id, day)) out.push_back(std::move(*p));
-  return out;
 }
 
 // ------------------------------------------------------------ import runs

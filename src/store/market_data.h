@@ -1,17 +1,10 @@
-// Market data in the ledger: writing it in bulk, reading it back, and the
-// point-in-time view of metrics.
+// Market data in the ledger: writing it in bulk and reading it back in
+// keel's canonical order (for export). What was known on a day is
+// src/market/'s question, asked through store/market_rows.h.
 //
-// Point in time
 //  - A metric row is a figure for the period ending `date`, first knowable on
 //    `known_on` (>= date). A restatement is another row with the same date
 //    and a later known_on; both are kept.
-//  - metric_as_of(S, M, D): among rows of metric M for security S with
-//    known_on <= D, the latest date, and for that date the latest known_on
-//    <= D. A row whose known_on is after D is invisible on D.
-//  - metrics_as_of(M, D): the same for every security at once, in one query.
-//  - MetricHistory: one metric preloaded for all securities, for callers that
-//    ask about many days (a monthly back-test); at()/all_at() give exactly
-//    what metric_as_of()/metrics_as_of() give.
 //
 // Writing
 //  - MarketWriter adds rows inside the caller's WriteTransaction. Each call
@@ -38,34 +31,6 @@
 #include "store/database.h"
 
 namespace keel::store {
-
-struct MetricPoint {
-  std::int64_t security_id = 0;
-  Decimal value;
-  Date date;      // period the figure is for
-  Date known_on;  // first day it could be known
-};
-
-std::optional<MetricPoint> metric_as_of(Database& db, std::int64_t security_id,
-                                        std::string_view metric, Date day);
-// Every security with a visible value, ascending by security_id.
-std::vector<MetricPoint> metrics_as_of(Database& db, std::string_view metric, Date day);
-
-class MetricHistory {
- public:
-  static MetricHistory load(Database& db, std::string_view metric);
-  std::optional<MetricPoint> at(std::int64_t security_id, Date day) const;
-  std::vector<MetricPoint> all_at(Date day) const;  // ascending by security_id
-
- private:
-  struct Row {
-    Date date;
-    Date known_on;
-    Decimal value;
-  };
-  std::unordered_map<std::int64_t, std::vector<Row>> rows_;  // by (date, known_on)
-  std::vector<std::int64_t> ids_;                            // ascending
-};
 
 enum class Upsert { added, unchanged, replaced, conflict, duplicate };
 

@@ -20,21 +20,4 @@ void upsert_price(Database& db, std::int64_t security_id, Date day, const Decima
   st.exec();
 }
 
-std::vector<std::pair<Date, Decimal>> closes_of(Database& db, std::int64_t security_id) {
-  SQLite::Statement st(db.sql(),
-                       "SELECT date, close FROM price WHERE security_id = ? ORDER BY date");
-  st.bind(1, security_id);
-  std::vector<std::pair<Date, Decimal>> out;
-  while (st.executeStep())
-    out.emplace_back(Date::parse(st.getColumn(0).getString()),
-                     Decimal::parse(st.getColumn(1).getString()));
-  return out;
-}
-
-std::optional<Date> latest_price_day(Database& db) {
-  SQLite::Statement st(db.sql(), "SELECT max(date) FROM price");
-  if (!st.executeStep() || st.getColumn(0).isNull()) return std::nullopt;
-  return Date::parse(st.getColumn(0).getString());
-}
-
 }  // namespace keel::store

@@ -32,7 +32,7 @@ def canon(d):
     return format(d.normalize(), "f")
 
 
-keel("init")
+keel("init", "--currency", "USD")
 for a in ACCOUNTS:
     keel("account", "add", a)
 symbols = [f"SYN{i:02d}" for i in range(N_SEC)]

@@ -12,7 +12,7 @@ trap 'rm -rf "$work"' EXIT
 db="$work/bench.db"
 k() { "$keel" --db "$db" "$@"; }
 /usr/bin/python3 "$here/gen_propose_market.py" "$work/data"
-k init > /dev/null
+k init --currency USD > /dev/null
 start=$(date +%s%N)
 for kind in securities prices metrics; do k import "$kind" "$work/data/$kind.csv" --quiet > /dev/null; done
 end=$(date +%s%N)

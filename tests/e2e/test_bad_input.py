@@ -35,6 +35,11 @@ led.ok("security", "add", "VLM", "--name", "Valmora Index Fund", "--kind", "fund
 led.ok("record", "deposit", "--date", "2024-01-02", "--account", T, "--amount", "10000")
 led.ok("record", "buy", "--date", "2024-01-03", "--account", T, "--symbol", "QRX", "--quantity", "10",
        "--price", "50", "--ref", "b-1")
+led.ok("security", "add", "ZLF", "--name", "Zelfa Werke", "--kind", "stock", "--currency", "EUR")
+fx_seed = os.path.join(D, "seed-fx.csv")
+with open(fx_seed, "w") as f:
+    f.write("date,base,quote,rate\n2024-01-02,EUR,USD,1.10\n")
+led.ok("import", "fx", fx_seed)
 mk = os.path.join(D, "seed-prices.csv")
 with open(mk, "w") as f:
     f.write("date,symbol,close\n2024-01-03,QRX,50\n2024-02-01,QRX,55\n")
@@ -155,7 +160,7 @@ import_row("transactions: a record over 16 MiB", "transactions",
 import_row("transactions: binary file", "transactions", bytes(range(256)) * 4, INPUT,
            refused("{f}:1: column '\\x00\\x01\\x02\\x03\\x04\\x05\\x06\\x07\\x08\\x09': unknown column; "
                    "expected date, account, kind, symbol, quantity, price, amount, fee, ref, note, "
-                   "to_account, lots, acquired, currency, rate (or list it under 'ignore' in a mapping)",
+                   "to_account, lots, acquired, currency, rate, to_currency (or list it under 'ignore' in a mapping)",
                    "{f}:1: column 'date': missing from the header",
                    "{f}:1: column 'account': missing from the header",
                    "{f}:1: column 'kind': missing from the header"))
@@ -191,10 +196,32 @@ import_row("transactions: a figure of the wrong sign names the file's column", "
            refused("{f}:2: column 'Qty' = -2: a buy row's quantity must be positive here; if the "
                    "file writes it negative, say sign = \"negative\" or \"either\" in the "
                    "mapping's rule on line 6"), mapping=ACT + BUY)
-import_row("transactions: a row in another currency", "transactions",
+import_row("transactions: an unknown currency code", "transactions",
+           "date,account,kind,amount,currency\n" f"2024-03-01,{T},deposit,5,XYZ\n", INPUT,
+           refused("{f}:2: column 'currency' = XYZ: 'XYZ' is not an ISO 4217 currency code (such "
+                   "as EUR, USD, JPY)"))
+import_row("transactions: an unknown currency to exchange into", "transactions",
+           "date,account,kind,amount,rate,to_currency\n" f"2024-03-01,{T},exchange,5,0.9,EURO\n",
+           INPUT,
+           refused("{f}:2: column 'to_currency' = EURO: 'EURO' is not an ISO 4217 currency code "
+                   "(such as EUR, USD, JPY)"))
+import_row("transactions: a rate of zero", "transactions",
+           "date,account,kind,symbol,amount,currency,rate\n"
+           f"2024-03-01,{T},dividend,QRX,5,EUR,0\n", INPUT,
+           refused("{f}:2: column 'rate' = 0: a rate must be greater than zero"))
+import_row("transactions: a negative rate", "transactions",
+           "date,account,kind,symbol,amount,currency,rate\n"
+           f"2024-03-01,{T},dividend,QRX,5,EUR,-1.1\n", INPUT,
+           refused("{f}:2: column 'rate' = -1.1: a rate must be greater than zero"))
+import_row("transactions: a rate on a row in the account's own currency", "transactions",
+           "date,account,kind,symbol,amount,rate\n" f"2024-03-01,{T},dividend,QRX,5,1.1\n", INPUT,
+           refused(f"{{f}}:2: column 'rate' = 1.1: dividend: does not apply: the row is in USD, the "
+                   f"currency of account '{T}'"))
+import_row("transactions: a row in a currency with no rate for its day", "transactions",
            "date,account,kind,amount,currency\n" f"2024-03-01,{T},deposit,5,CHF\n", INPUT,
-           refused(f"{{f}}:2: column 'currency' = CHF: account '{T}' keeps USD; keel does not "
-                   "convert currencies yet, so book this row in an account that keeps CHF"))
+           refused(f"{{f}}:2: deposit on 2024-03-01 in '{T}': no exchange rate for USD/CHF on or "
+                   "before 2024-03-01 (nor for CHF/USD, nor through a third currency); import one "
+                   "with 'keel import fx FILE.csv'"))
 import_row("transactions: a changed line with a booked ref", "transactions",
            TX + f"2024-01-03,{T},buy,QRX,10,51,,,b-1,\n", INPUT,
            refused("{f}:2: column 'ref' = b-1: already booked as transaction 2 with other content: "
@@ -328,7 +355,64 @@ import_row("splits: header only in another layout, bad skip_lines", "splits", "x
            "1000" % len(ROWS), mapping="[file]\nskip_lines = -1\n")
 row("import: unknown kind of data", ["import", "trades", "{d}/seed-prices.csv"], INPUT,
     "keel: error: cannot import or export 'trades'; expected one of: accounts, transactions, "
-    "securities, prices, metrics, distributions, splits")
+    "securities, prices, metrics, distributions, splits, fx")
+
+# --- exchange rates -------------------------------------------------------------------------
+import_row("fx: an unknown currency code", "fx", "date,base,quote,rate\n2024-03-01,EUR,XYZ,1.1\n",
+           INPUT, refused("{f}:2: column 'quote': 'XYZ' is not an ISO 4217 currency code (such as "
+                          "EUR, USD, JPY)"))
+import_row("fx: a rate of zero", "fx", "date,base,quote,rate\n2024-03-01,EUR,USD,0\n", INPUT,
+           refused("{f}:2: column 'rate': must be greater than zero"))
+import_row("fx: a negative rate", "fx", "date,base,quote,rate\n2024-03-01,EUR,USD,-1.1\n", INPUT,
+           refused("{f}:2: column 'rate': -1.1 must not be negative"))
+import_row("fx: a currency against itself", "fx", "date,base,quote,rate\n2024-03-01,EUR,EUR,1\n",
+           INPUT, refused("{f}:2: column 'quote': the quote currency is the base currency EUR; a "
+                          "rate of 1 is never stored"))
+import_row("fx: a rate that differs from the ledger's", "fx",
+           "date,base,quote,rate\n2024-01-02,EUR,USD,1.2\n", INPUT,
+           refused("{f}:2: column 'rate': EUR/USD on 2024-01-02: the ledger already has rate 1.1; "
+                   "use --replace to overwrite it"))
+import_row("fx: the same pair and day twice", "fx",
+           "date,base,quote,rate\n2024-03-01,EUR,USD,1.1\n2024-03-01,EUR,USD,1.1\n", INPUT,
+           refused("{f}:3: EUR/USD on 2024-03-01 appears on an earlier line of this file"))
+import_row("fx: a day that does not exist", "fx", "date,base,quote,rate\n2024-02-30,EUR,USD,1.1\n",
+           INPUT, refused("{f}:2: column 'date': 2024-02-30 is not a day of the calendar"))
+
+# --- foreign currencies in record ----------------------------------------------------------
+row("record: an unknown currency code",
+    ["record", "deposit", "--date", "2024-03-01", "--account", T, "--amount", "5", "--currency",
+     "XYZ"], INPUT,
+    "keel: error: --currency: 'XYZ' is not an ISO 4217 currency code (such as EUR, USD, JPY)")
+row("record: a rate of zero",
+    ["record", "dividend", "--date", "2024-03-01", "--account", T, "--symbol", "ZLF", "--amount",
+     "5", "--rate", "0"], INPUT,
+    "keel: error: dividend: --rate must be greater than zero, not 0")
+row("record: an exchange the wrong way round",
+    ["record", "exchange", "--date", "2024-03-01", "--account", T, "--amount", "100",
+     "--to-currency", "EUR", "--rate", "1.10"], INPUT,
+    "keel: error: exchange: --rate 1.1 reads as 1 USD = 1.1 EUR, the wrong way round: on "
+    "2024-01-02 1 USD = 0.909090909091 EUR and 1 EUR = 1.1 USD; give the rate as EUR per USD")
+row("record: a foreign buy with neither foreign cash nor a settlement rate",
+    ["record", "buy", "--date", "2024-03-01", "--account", T, "--symbol", "ZLF", "--quantity", "10",
+     "--price", "50"], INPUT,
+    f"keel: error: the new buy on 2024-03-01 in '{T}': needs 500 EUR of cash in EUR, but '{T}' "
+    "holds 0 EUR; cash in one currency does not pay for another: exchange it first, or give the "
+    "broker's settlement rate")
+row("record: mixing currencies in one cash balance",
+    ["record", "withdrawal", "--date", "2024-03-01", "--account", T, "--amount", "5", "--currency",
+     "EUR"], INPUT,
+    f"keel: error: the new withdrawal on 2024-03-01 in '{T}': needs 5 EUR of cash in EUR, but '{T}' "
+    "holds 0 EUR; cash in one currency does not pay for another: exchange it first, or give the "
+    "broker's settlement rate")
+row("record: a settlement rate on a row in the account's own currency",
+    ["record", "dividend", "--date", "2024-03-01", "--account", T, "--symbol", "QRX", "--amount",
+     "5", "--rate", "1.1"], INPUT,
+    f"keel: error: dividend: --rate 1.1 does not apply: the row is in USD, the currency of account "
+    f"'{T}'")
+row("record: an exchange into the currency sold",
+    ["record", "exchange", "--date", "2024-03-01", "--account", T, "--amount", "100",
+     "--to-currency", "USD", "--rate", "1"], INPUT,
+    "keel: error: exchange: --to-currency USD is the currency sold")
 
 # --- record, void, account add, security add ----------------------------------------------
 row("record: a day that does not exist",
@@ -408,6 +492,31 @@ row("init: --currency other than the ledger's", ["init", "--currency", "EUR"], I
 row("account add: unknown basis", ["account", "add", "Cedar", "--basis", "newest"], INPUT,
     "keel: error: unknown cost-basis method 'newest'; expected one of: fifo, lifo, hifo, average, "
     "specific")
+row("account add: unknown tax status", ["account", "add", "Cedar", "--tax-status", "sheltered"],
+    INPUT, "keel: error: --tax-status: unknown tax status 'sheltered'; expected one of: taxable, "
+    "tax-deferred, tax-exempt")
+row("account tax-status: unknown tax status",
+    ["account", "tax-status", T, "retirement", "--from", "2024-06-01"], INPUT,
+    "keel: error: STATUS: unknown tax status 'retirement'; expected one of: taxable, "
+    "tax-deferred, tax-exempt")
+row("account tax-status: --from not a calendar day",
+    ["account", "tax-status", T, "tax-exempt", "--from", "2024-02-30"], INPUT,
+    "keel: error: --from: '2024-02-30' is not a calendar date")
+row("account tax-status: the status already in force",
+    ["account", "tax-status", T, "taxable", "--from", "2024-06-01"], INPUT,
+    f"keel: error: account '{T}' is already taxable on 2024-06-01; nothing to change")
+row("account tax-status: unknown account",
+    ["account", "tax-status", "Nobody", "tax-exempt", "--from", "2024-06-01"], INPUT,
+    f"keel: error: unknown account 'Nobody'; known accounts: {T}, Birch Pension")
+row("security add: country not two letters",
+    ["security", "add", "ZRN", "--name", "Zornet", "--kind", "stock", "--country", "NLD"], INPUT,
+    "keel: error: --country: country 'NLD' is not a two-letter ISO 3166-1 code such as NL")
+row("propose: --repurchase-window below one day",
+    ["propose", "--rule", "{d}/rule.toml", "--repurchase-window", "0"], INPUT,
+    "keel: error: --repurchase-window: '0' days; give 1 or more (the window is off unless given)",
+    {"rule.toml": b"[scope]\naccounts = [\"Alder Taxable\"]\n\n[select]\nz_max = -0.5\n"})
+row("gains: --repurchase-window below one day", ["gains", "--repurchase-window", "-3"], INPUT,
+    "keel: error: --repurchase-window: '-3' days; give 1 or more (the window is off unless given)")
 row("security add: duplicate symbol",
     ["security", "add", "QRX", "--name", "Again", "--kind", "stock"], INPUT,
     "keel: error: a security with symbol 'QRX' already exists")
@@ -497,7 +606,7 @@ row("command: none given", [], USAGE,
     ["keel: error: no command given",
      "Run 'keel help' for the list of commands, or 'keel demo' to see keel at work."])
 row("command: a group without its command", ["account"], USAGE,
-    ["keel: error: 'keel account' needs one of its commands: add, list",
+    ["keel: error: 'keel account' needs one of its commands: add, tax-status, rename, list",
      "Run 'keel help account' for what each does."])
 row("option: mistyped", ["holdings", "--as-off", "2024-01-31"], USAGE,
     ["keel: error: 'keel holdings' has no option '--as-off'", "Did you mean '--as-of'?",
@@ -524,6 +633,52 @@ row("reconcile: the statement and its mapping both from standard input",
 row("help: an unknown command", ["help", "record", "buyy"], USAGE,
     ["keel: error: 'buyy' is not a command of 'keel record'", "Did you mean 'buy'?",
      "Run 'keel help record' for its commands."])
+
+# --- corporate actions ----------------------------------------------------------------------
+row("action: a ratio of zero", ["record", "split", "--date", "2024-03-01", "--symbol", "QRX",
+                                "--ratio", "0", "--cash-in-lieu", "5"], INPUT,
+    "keel: error: split: --ratio must be positive, not 0")
+row("action: a negative ratio", ["record", "stock-dividend", "--date", "2024-03-01", "--symbol",
+                                 "QRX", "--ratio", "-0.5"], INPUT,
+    "keel: error: stock-dividend: --ratio must be positive, not -0.5")
+row("action: a percentage over 100", ["record", "spinoff", "--date", "2024-03-01", "--symbol", "QRX",
+                                      "--into", "VLM", "--ratio", "1", "--cost-percent", "101"],
+    INPUT, "keel: error: spinoff: --cost-percent must be at most 100, not 101")
+row("action: a day when no account holds the security",
+    ["record", "return-of-capital", "--date", "2024-03-01", "--symbol", "VLM", "--cash", "1"], INPUT,
+    "keel: error: a return-of-capital of VLM dated 2024-03-01: no account holds VLM when "
+    "2024-03-01 begins")
+row("action: a day before the security was held",
+    ["record", "delisting", "--date", "2024-01-03", "--symbol", "QRX", "--cash", "0"], INPUT,
+    "keel: error: a delisting of QRX dated 2024-01-03: no account holds QRX when 2024-01-03 begins")
+row("action: cash in lieu without a price",
+    ["record", "split", "--date", "2024-03-01", "--symbol", "QRX", "--ratio", "0.3",
+     "--cash-in-lieu", ""], INPUT,
+    "keel: error: split: --cash-in-lieu needs the price per unit at which fractions are paid")
+row("action: a merger into a security that does not exist",
+    ["record", "merger", "--date", "2024-03-01", "--symbol", "QRX", "--into", "QRXX", "--ratio", "1"],
+    INPUT, "keel: error: a merger of QRX dated 2024-03-01: --into 'QRXX' is not a security of this "
+    "ledger; add it first with 'keel security add'")
+row("action: a void of an action that does not exist", ["action", "void", "99", "--reason", "x"],
+    INPUT, "keel: error: there is no corporate action 99")
+ACT = "date,symbol,action,into,ratio,cash,cost_percent,cash_in_lieu,note\n"
+import_row("actions: a second action of the same kind on the same day", "actions",
+           ACT + "2024-03-01,QRX,return_of_capital,,,1,,,\n2024-03-01,QRX,return_of_capital,,,2,,,\n",
+           INPUT, refused("{f}:3: a return-of-capital of QRX dated 2024-03-01: action 1 is already a "
+                          "return-of-capital of QRX on that day; void it first to record another"))
+import_row("actions: an unknown action", "actions", ACT + "2024-03-01,QRX,buyback,,,1,,,\n", INPUT,
+           refused("{f}:2: column 'action': unknown corporate action 'buyback'; expected one of: "
+                   "split, merger, spinoff, return_of_capital, stock_dividend, delisting"))
+import_row("actions: a percentage over 100", "actions",
+           ACT + "2024-03-01,QRX,spinoff,VLM,1,,150,,\n", INPUT,
+           refused("{f}:2: column 'cost_percent': spinoff: must be at most 100, not 150"))
+row("confirm: a transaction no check flags", ["confirm", "2", "--reason", "fine"], INPUT,
+    "keel: error: transaction 2 is not flagged by any plausibility check")
+row("security change: to a symbol another security has",
+    ["security", "change", "QRX", "--symbol", "VLM", "--date", "2024-03-01"], INPUT,
+    "keel: error: a security with the symbol 'VLM' exists already")
+row("account rename: to the same name", ["account", "rename", T, T, "--date", "2024-03-01"], INPUT,
+    f"keel: error: account '{T}' has that name already")
 
 # --- the ledger file itself ----------------------------------------------------------------
 failures = []

@@ -14,7 +14,7 @@ import sys
 sys.path.insert(0, os.path.dirname(__file__))
 from keel_cli import SOURCE, Ledger, check, equal  # noqa: E402
 
-# The newest schema version: the highest migration number (numbers may skip).
+# The newest schema version: the highest migration number.
 SCHEMA = max(int(f[:4]) for f in os.listdir(os.path.join(SOURCE, "migrations")) if f.endswith(".sql"))
 
 

@@ -20,10 +20,11 @@ SCHEMA_DIR = os.path.join(SOURCE, "docs", "schema")
 led = Ledger(currency="EUR")
 work = led.dir.name
 led.ok("account", "add", "Tamsin Brokerage")
-led.ok("account", "add", "Tamsin Pension", "--basis", "hifo")
+led.ok("account", "add", "Tamsin Pension", "--basis", "hifo", "--tax-status", "tax-deferred")
 led.ok("security", "add", "ORLQ", "--name", "Orlique Textiles", "--kind", "stock", "--sector",
        "Consumer")
-led.ok("security", "add", "BRNV", "--name", "Brenvaal Shipping", "--kind", "stock")
+led.ok("security", "add", "BRNV", "--name", "Brenvaal Shipping", "--kind", "stock", "--country",
+       "NL")
 led.ok("record", "deposit", "--date", "2024-01-02", "--account", "Tamsin Brokerage", "--amount",
        "20000")
 led.ok("record", "buy", "--date", "2024-01-03", "--account", "Tamsin Brokerage", "--symbol", "ORLQ",
@@ -38,6 +39,9 @@ led.ok("record", "transfer_out", "--date", "2024-06-03", "--account", "Tamsin Br
 with open(os.path.join(work, "prices.csv"), "w") as f:
     f.write("date,symbol,close\n2024-06-28,ORLQ,44.2\n2024-06-28,BRNV,6.9\n")
 led.ok("import", "prices", os.path.join(work, "prices.csv"), "--quiet")
+# A corporate action and a renamed security, for their lists.
+led.ok("record", "return-of-capital", "--date", "2024-07-01", "--symbol", "ORLQ", "--cash", "0.5")
+led.ok("security", "change", "BRNV", "--name", "Brenvaal Shipping Lines", "--date", "2024-07-02")
 
 # The demo scenario's files (invented) in a ledger of their own, for the reports of a rule.
 demo = Ledger(currency=None)
@@ -66,6 +70,8 @@ REPORTS = {
                  "--benchmark", "ZXTR"],
     "signal": ["signal", "--rule", RULE, "--from", "2024-01-01", "--to", "2025-12-31"],
     "statement": ["statement", "--year", "2025", "--benchmark", "ZXTR"],
+    "actions": ["action", "list"],
+    "changes": ["changes"],
 }
 # More runs of the same reports, each validated too: other options, other members.
 MORE = {
@@ -83,7 +89,8 @@ COMMANDS = {"holdings": "holdings", "lots": "lots", "gains": "gains", "history":
             "accounts": "account list", "securities": "security list", "imports": "imports",
             "verify": "verify", "returns": "returns", "propose": "propose",
             "proposals-list": "proposals list", "proposal": "proposals show",
-            "backtest": "backtest", "signal": "signal", "statement": "statement"}
+            "backtest": "backtest", "signal": "signal", "statement": "statement",
+            "actions": "action list", "changes": "changes"}
 
 runs = 0
 for name, first in REPORTS.items():

@@ -64,7 +64,8 @@ err = b.fails("import", "transactions", bad)
 expected = [f"{bad}:3: column 'date': 2024-06-31 is not a day of the calendar",
             f"{bad}:4: column 'price': 'abc' is not a decimal number: expected digits",
             f"{bad}:5: column 'kind': unknown transaction kind 'swap'; expected one of: deposit, "
-            "withdrawal, buy, sell, dividend, interest, tax, fee, transfer_in, transfer_out",
+            "withdrawal, buy, sell, dividend, interest, tax, fee, transfer_in, transfer_out, "
+            "exchange",
             f"keel: error: {bad}: 3 errors; nothing was changed"]
 equal(err.splitlines(), expected, "error list")
 oversell = os.path.join(d, "oversell.csv")

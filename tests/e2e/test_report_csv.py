@@ -45,11 +45,12 @@ def json_rows(doc, member=None):
 h = rows("holdings", "--as-of", "2024-06-30")
 hj = led.json("holdings", "--as-of", "2024-06-30")
 equal(list(h[0]), ["account", "symbol", "quantity", "cost_basis", "price", "price_is_close",
-                   "market_value", "unrealized_gain"], "holdings CSV headings")
+                   "market_value", "unrealized_gain", "currency"], "holdings CSV headings")
 p = hj["positions"][0]
 equal(h[0], {"account": A, "symbol": "ORLQ", "quantity": p["quantity"],
              "cost_basis": p["cost_basis"], "price": p["price"], "price_is_close": "yes",
-             "market_value": p["market_value"], "unrealized_gain": p["unrealized_gain"]},
+             "market_value": p["market_value"], "unrealized_gain": p["unrealized_gain"],
+             "currency": ""},
       "holdings CSV position row against --json")
 equal((h[1]["account"], h[1]["symbol"], h[1]["market_value"]),
       (A, "", hj["cash"][0]["amount"]), "holdings CSV cash row")
@@ -63,7 +64,10 @@ equal([{k: str(v) for k, v in x.items() if k != "schema"} for x in lj], lots,
 
 gains = rows("gains", "--year", "2024")
 gj = led.json("gains", "--year", "2024")["gains"]
-equal([{k: str(v) for k, v in x.items()} for x in gj], gains, "gains CSV equals --json")
+# The CSV has a column for the corporate action that disposed of a lot; a sale leaves it empty.
+equal([{k: str(v) for k, v in x.items()} for x in gj],
+      [{k: v for k, v in g.items() if (k, v) != ("action", "")} for g in gains],
+      "gains CSV equals --json")
 equal(gains[0]["gain"], "30", "gain 442.05 - 412.05: 10 x 44.3 - 0.95 less 10/30 of "
       "30 x 41.17 + 1.05 (by hand)")
 equal(gains[0]["proceeds"], "442.05", "proceeds 10 x 44.3 - 0.95 (by hand)")

@@ -114,7 +114,7 @@ book_path = os.path.join(out_dir, "statement.xlsx")
 k.ok("statement", "--year", "2025", "--benchmark", "IDXW", "--xlsx", book_path)
 wb = openpyxl.load_workbook(book_path)
 equal(wb.sheetnames, ["summary", "performance", "growth", "monthly", "holdings", "realized", "income",
-                     "cautions"], "sheets")
+                     "withholding", "cautions"], "sheets")
 ws = wb["summary"]
 equal(ws["A3"].value, "item", "summary heading")
 rows = {ws.cell(row=i, column=1).value: ws.cell(row=i, column=2) for i in range(4, ws.max_row + 1)}
@@ -194,6 +194,9 @@ total("income", "total", "E", sum(Decimal(r.get("gross", "0")) for r in statemen
 withheld = sum(Decimal(r["withheld"]) for r in statement_json["income"]) + sum(
     Decimal(r["amount"]) for r in statement_json["unmatched_tax"])
 total("income", "total", "F", withheld)
+# Every account here is taxable: the withholding by security sums every tax row, as a formula.
+equal(Decimal(statement_json["withholding"]["total"]), withheld, "withholding by security")
+check(total("withholding", "total", "D", withheld).startswith("=SUM("), "withholding total")
 
 # Autofilters: over each table's heading and detail rows, the totals left out.
 filters = {name: wb[name].auto_filter.ref for name in wb.sheetnames}

@@ -12,7 +12,6 @@
 #include "backtest/signal.h"
 #include "ledger_fixture.h"
 #include "rules/rule.h"
-#include "store/market_data.h"
 
 namespace {
 
@@ -46,33 +45,27 @@ struct Market {
       f.security(symbols.back());
     }
     // Weekday closes from 2024-01-01 to 2024-04-30, each name on its own path.
+    std::vector<std::tuple<std::string, std::string, std::string>> rows;
     int n = 0;
     for (Date d = day("2024-01-01"); d <= day("2024-04-30"); d = d.plus_days(1)) {
       const int wd = (d.days_since_epoch() + 4) % 7;  // 0 = Sunday
       if (wd == 0 || wd == 6) continue;
       ++n;
       for (int i = 0; i < 8; ++i)
-        prices(symbols[i], d.str(),
-               fmt::format("{}.{:02d}", 20 + i * 3 + (n * (i + 1)) % 7, n % 100));
+        rows.emplace_back(symbols[i], d.str(),
+                          fmt::format("{}.{:02d}", 20 + i * 3 + (n * (i + 1)) % 7, n % 100));
     }
+    f.closes(rows);
     for (int i = 0; i < 8; ++i)
       metric(symbols[i], "2023-12-31", "2024-01-05", fmt::format("{}", 8 + i * 2 + (i % 3)));
   }
   void prices(const std::string& sym, const std::string& date, const std::string& close,
               bool replace = false) {
-    keel::store::WriteTransaction tx(f.db);
-    keel::store::MarketWriter w(f.db, replace);
-    w.price(w.security(sym), date, close, 1);
-    w.finish_prices();
-    tx.commit();
+    f.closes({{sym, date, close}}, replace);
   }
   void metric(const std::string& sym, const std::string& date, const std::string& known,
               const std::string& value) {
-    keel::store::WriteTransaction tx(f.db);
-    keel::store::MarketWriter w(f.db, false);
-    std::string existing;
-    w.metric(w.security(sym), "pe", date, known, value, existing);
-    tx.commit();
+    f.figures("pe", {{sym, date, known, value}});
   }
   bt::Result run(bool frictionless = false) {
     bt::Request req;
@@ -83,11 +76,13 @@ struct Market {
   }
 };
 
-std::string trades_text(const bt::RebalanceDay& r) {
+// The trades of the rule's i-th rebalancing day.
+std::string trades_text(const bt::Result& res, std::size_t i) {
+  const auto& r = res.rule.rebalances.at(i);
   std::string s = r.day.str() + ":";
   for (const auto& t : r.trades)
     s += fmt::format(" {} {} {} @{} fee {};", keel::rules::to_string(t.side), t.quantity.str(),
-                     t.symbol, t.price.str(), t.fee.str());
+                     res.symbols.at(t.security_id), t.price.str(), t.fee.str());
   return s;
 }
 
@@ -95,7 +90,7 @@ std::string trades_text(const bt::RebalanceDay& r) {
 
 TEST_CASE("backtest: a figure known after a rebalancing day does not change its orders") {
   Market m;
-  const std::string before = trades_text(m.run().rule.rebalances.at(0));
+  const std::string before = trades_text(m.run(), 0);
   CHECK(before.find("buy") != std::string::npos);
   // S7 becomes the cheapest name, but only from 2024-02-01; and a restatement
   // of the old figure is known from 2024-02-15.
@@ -103,29 +98,29 @@ TEST_CASE("backtest: a figure known after a rebalancing day does not change its 
   m.metric("S0", "2023-12-31", "2024-02-15", "99");
   const auto after = m.run();
   CHECK(after.rebalance_days.at(0) == day("2024-01-31"));
-  CHECK(trades_text(after.rule.rebalances.at(0)) == before);
+  CHECK(trades_text(after, 0) == before);
   // It does count from the next rebalancing day on.
-  CHECK(trades_text(after.rule.rebalances.at(1)).find("buy") != std::string::npos);
-  CHECK(trades_text(after.rule.rebalances.at(1)).find(" S7 @") != std::string::npos);
+  CHECK(trades_text(after, 1).find("buy") != std::string::npos);
+  CHECK(trades_text(after, 1).find(" S7 @") != std::string::npos);
 }
 
 TEST_CASE("backtest: the same figure known on the rebalancing day does change its orders") {
   Market m;
-  const std::string before = trades_text(m.run().rule.rebalances.at(0));
+  const std::string before = trades_text(m.run(), 0);
   m.metric("S7", "2024-01-31", "2024-01-31", "1");
-  CHECK(trades_text(m.run().rule.rebalances.at(0)) != before);
+  CHECK(trades_text(m.run(), 0) != before);
 }
 
 TEST_CASE("backtest: closes after a rebalancing day do not change its orders") {
   Market m;
   const auto first = m.run();
-  const std::string before = trades_text(first.rule.rebalances.at(0));
+  const std::string before = trades_text(first, 0);
   for (const auto& s : m.symbols) {
     m.prices(s, "2024-02-01", "500", true);
     m.prices(s, "2024-03-15", "1.5", true);
   }
   const auto after = m.run();
-  CHECK(trades_text(after.rule.rebalances.at(0)) == before);
+  CHECK(trades_text(after, 0) == before);
   // The changed close does reach the value of its own day.
   auto value_on = [](const bt::Result& r, Date d) {
     for (const auto& p : r.rule.curve)
@@ -138,18 +133,23 @@ TEST_CASE("backtest: closes after a rebalancing day do not change its orders") {
 
 TEST_CASE("backtest: a close on the rebalancing day does change its orders") {
   Market m;
-  const std::string before = trades_text(m.run().rule.rebalances.at(0));
+  const std::string before = trades_text(m.run(), 0);
   for (const auto& s : m.symbols) m.prices(s, "2024-01-31", "77", true);
-  CHECK(trades_text(m.run().rule.rebalances.at(0)) != before);
+  CHECK(trades_text(m.run(), 0) != before);
 }
 
 TEST_CASE("backtest: rebalancing days are each month's last day with a close") {
   const std::vector<Date> days{day("2024-01-30"), day("2024-01-31"), day("2024-02-28"),
                                day("2024-03-01"), day("2024-03-28"), day("2024-04-02")};
-  CHECK(bt::rebalance_days(days, day("2024-01-01"), day("2024-03-31"), 1) ==
+  CHECK(bt::rebalance_days(days, std::nullopt, day("2024-01-01"), day("2024-03-31"), 1) ==
         std::vector<Date>{day("2024-01-31"), day("2024-02-28"), day("2024-03-28")});
-  CHECK(bt::rebalance_days(days, day("2024-01-01"), day("2024-04-30"), 2) ==
+  CHECK(bt::rebalance_days(days, std::nullopt, day("2024-01-01"), day("2024-04-30"), 2) ==
         std::vector<Date>{day("2024-01-31"), day("2024-03-28")});
+  // The day after the last one given decides whether that one ends its month.
+  CHECK(
+      bt::rebalance_days(days, day("2024-04-03"), day("2024-04-01"), day("2024-04-30"), 1).empty());
+  CHECK(bt::rebalance_days(days, day("2024-05-01"), day("2024-04-01"), day("2024-04-30"), 1) ==
+        std::vector<Date>{day("2024-04-02")});
 }
 
 TEST_CASE("backtest: the frictionless pool is fully invested at equal weight") {
@@ -210,4 +210,54 @@ TEST_CASE("signal: Spearman's rho matches scipy with ties on both sides") {
 TEST_CASE("signal: Spearman's rho is undefined when one side has no spread") {
   const std::vector<double> x{1, 2, 3}, y{4, 4, 4};
   CHECK_FALSE(bt::spearman(x, y).has_value());
+}
+
+// The frictionless pool counts in doubles; the same run in exact decimals
+// (units to 20 places) is the reference. Over a year of monthly rebalancing
+// with a split and reinvested distributions, every value agrees to 1e-12.
+TEST_CASE("backtest: frictionless doubles agree with the exact computation to 1e-12") {
+  keel::testing::LedgerFixture f;
+  std::vector<std::tuple<std::string, std::string, std::string>> closes;
+  std::vector<std::tuple<std::string, std::string, std::string, std::string>> figures;
+  for (int i = 0; i < 12; ++i) f.security(fmt::format("N{:02d}", i));
+  int n = 0;
+  for (Date d = day("2023-01-02"); d <= day("2023-12-29"); d = d.plus_days(1)) {
+    const int wd = (d.days_since_epoch() + 4) % 7;  // 0 = Sunday
+    if (wd == 0 || wd == 6) continue;
+    ++n;
+    for (int i = 0; i < 12; ++i)
+      closes.emplace_back(fmt::format("N{:02d}", i), d.str(),
+                          fmt::format("{}.{:02d}", 15 + i + (n * (i + 3)) % 11, (n * 7 + i) % 100));
+    if (d.day() == 2 || (d.day() == 3 && wd == 1))
+      for (int i = 0; i < 12; ++i)
+        figures.emplace_back(fmt::format("N{:02d}", i), d.str(), d.str(),
+                             fmt::format("{}.{}", 5 + (i * 7 + n) % 13, i));
+  }
+  f.closes(closes);
+  f.figures("pe", figures);
+  f.split_of("N03", "2023-06-10", "3");
+  for (int i = 0; i < 12; i += 2)
+    f.distribution(fmt::format("N{:02d}", i), "2023-05-13", "2023-05-20", "0.37");
+  bt::Request req;
+  req.from = day("2023-01-03");
+  req.to = day("2023-12-29");
+  req.frictionless = true;
+  const auto rule = keel::rules::parse_rule(kRule, "test.toml");
+  const auto binary = bt::run(f.db, rule, req);
+  req.exact_frictionless = true;
+  const auto exact = bt::run(f.db, rule, req);
+  REQUIRE(binary.rule.curve.size() == exact.rule.curve.size());
+  REQUIRE(exact.rule.rebalances.size() >= 11);
+  CHECK(exact.rule.distributions.is_positive());
+  double worst = 0;
+  for (const auto* runs : {&binary.rule, &binary.baseline}) {
+    const auto& other = runs == &binary.rule ? exact.rule : exact.baseline;
+    for (std::size_t i = 0; i < runs->curve.size(); ++i) {
+      const double a = runs->curve[i].value.to_double(), b = other.curve[i].value.to_double();
+      worst = std::max(worst, std::abs(a - b) / b);
+    }
+  }
+  MESSAGE("largest relative difference of a day's value: " << worst);
+  CHECK(worst <= 1e-12);
+  CHECK(binary.rule.perf.twr.period == doctest::Approx(exact.rule.perf.twr.period).epsilon(1e-12));
 }

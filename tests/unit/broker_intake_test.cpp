@@ -96,7 +96,7 @@ TEST_CASE("mapping actions: an action sent to no kind is refused naming the rule
                       "\"purchase\"\n") ==
         "m.toml:5: key 'actions.rule.kind': action 'Buy' goes to no kind: unknown transaction "
         "kind 'purchase'; expected one of: deposit, withdrawal, buy, sell, dividend, interest, "
-        "tax, fee, transfer_in, transfer_out");
+        "tax, fee, transfer_in, transfer_out, exchange");
 }
 
 TEST_CASE("mapping actions: two rules matching the same rows are refused naming the second") {
@@ -173,20 +173,20 @@ TEST_CASE("broker import: a zero amount is refused in the file's words, not an o
                         "gives the direction)");
 }
 
-TEST_CASE("broker import: a row in another currency than its account's is refused") {
+TEST_CASE("broker import: a rate where none applies is refused in the file's words") {
   Broker b;
   const auto lines =
       b.refused("date,account,kind,amount,currency,rate\n2024-01-02,Main,deposit,10,EUR,1.1\n", "");
   REQUIRE(lines.size() == 1);
   CHECK(lines[0] == b.file() +
-                        ":2: column 'currency' = EUR: account 'Main' keeps USD; keel does not "
-                        "convert currencies yet, so book this row in an account that keeps EUR");
+                        ":2: column 'rate' = 1.1: deposit: does not apply (a deposit in EUR moves "
+                        "cash in EUR; use 'exchange' to convert it)");
   const auto rate =
       b.refused("date,account,kind,amount,currency,rate\n2024-01-02,Main,deposit,10,USD,1.1\n", "");
   REQUIRE(rate.size() == 1);
   CHECK(rate[0] == b.file() +
-                       ":2: column 'rate' = 1.1: the row is in the account's currency USD, so its "
-                       "rate must be 1");
+                       ":2: column 'rate' = 1.1: deposit: does not apply: the row is in USD, the "
+                       "currency of account 'Main'");
 }
 
 TEST_CASE("corrections: a booked ref with other content is refused with every difference") {

@@ -52,3 +52,15 @@ TEST_CASE("date: calendar parts") {
   CHECK(d.month() == 7);
   CHECK(d.day() == 9);
 }
+
+TEST_CASE("date: parsed days agree with std::chrono's calendar, leap days and both ends included") {
+  // from_ymd() counts days with std::chrono; parse() with its own arithmetic.
+  for (Date d = Date::from_ymd(1, 1, 1); d <= Date::from_ymd(3, 12, 31); d = d.plus_days(1))
+    REQUIRE(Date::parse(d.str()) == Date::from_ymd(d.year(), d.month(), d.day()));
+  for (Date d = Date::from_ymd(1599, 1, 1); d <= Date::from_ymd(2401, 12, 31); d = d.plus_days(1))
+    REQUIRE(Date::parse(d.str()).days_since_epoch() == d.days_since_epoch());
+  CHECK(Date::parse("9999-12-31") == Date::from_ymd(9999, 12, 31));
+  CHECK(Date::parse("1970-01-01").days_since_epoch() == 0);
+  CHECK_THROWS_AS(Date::parse("1900-02-29"), keel::InputError);
+  CHECK(Date::parse("2000-02-29").month() == 2);
+}

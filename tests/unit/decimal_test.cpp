@@ -149,3 +149,36 @@ TEST_CASE("decimal: twenty digits parse exactly without overflowing the fast pat
   CHECK(Decimal::parse("-9999999999999999999").str() == "-9999999999999999999");
   CHECK(Decimal::parse("999999999999999999.9").str() == "999999999999999999.9");
 }
+
+// The machine-word paths of divide(), rounded() and truncated() against the
+// general (multi-precision) path, taken by the same numbers written with
+// mantissas beyond 64 bits: a quotient of values scaled by 10^30, and a
+// value moved by a whole 10^25 of its own sign (truncation toward zero is
+// unchanged by a whole number of the same sign).
+TEST_CASE("decimal: machine-word division and rounding agree with the general path") {
+  const keel::Decimal big = keel::Decimal::parse("1000000000000000000000000000000");  // 10^30
+  std::uint64_t seed = 88172645463325252ULL;
+  auto next = [&] {
+    seed ^= seed << 13;
+    seed ^= seed >> 7;
+    seed ^= seed << 17;
+    return seed;
+  };
+  for (int i = 0; i < 5000; ++i) {
+    const auto a =
+        keel::Decimal::scaled(static_cast<long long>(next() % 2000000000000ULL) - 1000000000000LL,
+                              static_cast<int>(next() % 9));
+    auto b = keel::Decimal::scaled(static_cast<long long>(next() % 20000000ULL) - 10000000LL,
+                                   static_cast<int>(next() % 9));
+    if (b.is_zero()) b = keel::Decimal(7);
+    const int places = static_cast<int>(next() % 11);
+    CAPTURE(a.str());
+    CAPTURE(b.str());
+    CAPTURE(places);
+    REQUIRE(keel::Decimal::divide(a, b, places) == keel::Decimal::divide(a * big, b * big, places));
+    REQUIRE(a.rounded(places) == keel::Decimal::divide(a * big, big, places));
+    const keel::Decimal shift = keel::Decimal::parse(
+        a.is_negative() ? "-10000000000000000000000000" : "10000000000000000000000000");
+    REQUIRE(a.truncated(places) == (a + shift).truncated(places) - shift);
+  }
+}

@@ -79,7 +79,7 @@ TEST_CASE("guard rail: an unknown account") {
   Funded f;
   auto r = request(TxnKind::deposit);
   r.account = "Mian", r.amount = dec("5");
-  expect_refused(f, r, "unknown account 'Mian'; known accounts: Main");
+  expect_refused(f, r, "unknown account 'Mian'; did you mean 'Main'?");
 }
 
 TEST_CASE("guard rail: an unknown security") {
@@ -87,6 +87,31 @@ TEST_CASE("guard rail: an unknown security") {
   auto r = request(TxnKind::buy);
   r.symbol = "ZETA", r.quantity = dec("1"), r.price = dec("10");
   expect_refused(f, r, "unknown security 'ZETA'; add it with 'keel security add ZETA'");
+}
+
+TEST_CASE("guard rail: a mistyped symbol is answered with the nearest one") {
+  Funded f;
+  auto r = request(TxnKind::buy);
+  r.symbol = "ALFX", r.quantity = dec("1"), r.price = dec("10");
+  expect_refused(f, r,
+                 "unknown security 'ALFX'; did you mean 'ALFA'? To add a new one: 'keel security "
+                 "add ALFX'");
+}
+
+TEST_CASE("guard rail: a symbol differing only in letter case is not offered as a new one") {
+  Funded f;
+  auto r = request(TxnKind::buy);
+  r.symbol = "alfa", r.quantity = dec("1"), r.price = dec("10");
+  expect_refused(f, r,
+                 "unknown security 'alfa'; did you mean 'ALFA'? (it differs in letter case only)");
+}
+
+TEST_CASE("guard rail: an account name differing only in letter case is named") {
+  Funded f;
+  auto r = request(TxnKind::deposit);
+  r.account = "MAIN", r.amount = dec("5");
+  expect_refused(f, r,
+                 "unknown account 'MAIN'; did you mean 'Main'? (it differs in letter case only)");
 }
 
 TEST_CASE("guard rail: cash below zero where the account does not allow it") {

@@ -6,10 +6,10 @@
 #include "io/errors.h"
 #include "io/market_intake.h"
 #include "io/sha256.h"
+#include "market/day_view.h"
 #include "store/fingerprint.h"
 #include "store/ledger_store.h"
 #include "store/market_data.h"
-#include "store/prices.h"
 #include "test_files.h"
 
 using keel::Date;
@@ -72,7 +72,7 @@ TEST_CASE("prices import adds every row and records the run with the file's SHA-
   CHECK(runs[1].file_sha256 == keel::io::sha256_hex(text));
   CHECK(runs[1].rows_added == 2);
   const auto qrx = keel::store::security_with_symbol(l.db, "QRX");
-  CHECK(keel::store::latest_close(l.db, qrx.id, Date::parse("2024-01-05")) ==
+  CHECK(keel::market::DayView(l.db).close(qrx.id, Date::parse("2024-01-05"))->price ==
         Decimal::parse("10.5"));
 }
 
@@ -161,7 +161,7 @@ TEST_CASE("--replace overwrites a conflicting value and counts it") {
   const auto sum = l.import("q.csv", MarketKind::prices, prices_csv("2024-01-02,QRX,1.5\n"), o);
   CHECK(sum.replaced == 1);
   const auto qrx = keel::store::security_with_symbol(l.db, "QRX");
-  CHECK(keel::store::latest_close(l.db, qrx.id, Date::parse("2024-01-02")) ==
+  CHECK(keel::market::DayView(l.db).close(qrx.id, Date::parse("2024-01-02"))->price ==
         Decimal::parse("1.5"));
 }
 
@@ -235,7 +235,7 @@ TEST_CASE("known_on defaults to the period date") {
   Ledger l;
   l.import("m.csv", MarketKind::metrics, "date,symbol,metric,value\n2024-03-31,QRX,ey,0.05\n");
   const auto qrx = keel::store::security_with_symbol(l.db, "QRX");
-  const auto p = keel::store::metric_as_of(l.db, qrx.id, "ey", Date::parse("2024-03-31"));
+  const auto p = keel::market::DayView(l.db).figure(qrx.id, "ey", Date::parse("2024-03-31"));
   REQUIRE(p);
   CHECK(p->known_on == Date::parse("2024-03-31"));
 }
@@ -248,52 +248,17 @@ TEST_CASE("a restatement is kept beside the original and is invisible before its
            "2024-03-31,QRX,bps,4.05,2024-06-10\n"
            "2024-06-30,QRX,bps,4.40,2024-07-28\n");
   const auto id = keel::store::security_with_symbol(l.db, "QRX").id;
-  auto at = [&](const char* day) {
-    return keel::store::metric_as_of(l.db, id, "bps", Date::parse(day));
-  };
+  const keel::market::DayView view(l.db);
+  auto at = [&](const char* day) { return view.figure(id, "bps", Date::parse(day)); };
   CHECK_FALSE(at("2024-04-24"));  // the March figure is not yet published
   REQUIRE(at("2024-04-25"));
   CHECK(at("2024-04-25")->value == Decimal::parse("4.2"));
   CHECK(at("2024-06-09")->value == Decimal::parse("4.2"));  // restatement not yet known
   CHECK(at("2024-06-10")->value == Decimal::parse("4.05"));
   CHECK(at("2024-06-10")->known_on == Date::parse("2024-06-10"));
-  CHECK(at("2024-07-27")->date == Date::parse("2024-03-31"));  // June period not yet known
+  CHECK(at("2024-07-27")->period == Date::parse("2024-03-31"));  // June period not yet known
   CHECK(at("2024-07-28")->value == Decimal::parse("4.4"));
-  CHECK(at("2024-07-28")->date == Date::parse("2024-06-30"));
-}
-
-TEST_CASE("the bulk and preloaded point-in-time forms agree with the single lookup") {
-  Ledger l;
-  l.import("m.csv", MarketKind::metrics,
-           "date,symbol,metric,value,known_on\n"
-           "2024-01-31,QRX,bps,1,2024-02-20\n"
-           "2024-01-31,QRX,bps,1.1,2024-03-20\n"
-           "2024-02-29,QRX,bps,2,2024-04-10\n"
-           "2024-01-31,VLM,bps,7,2024-02-05\n"
-           "2024-02-29,VLM,bps,8,2024-03-05\n"
-           "2024-02-29,VLM,other,9,2024-03-05\n");
-  const auto history = keel::store::MetricHistory::load(l.db, "bps");
-  const std::vector<std::int64_t> ids{keel::store::security_with_symbol(l.db, "QRX").id,
-                                      keel::store::security_with_symbol(l.db, "VLM").id};
-  for (Date d = Date::parse("2024-02-01"); d <= Date::parse("2024-04-15"); d = d.plus_days(1)) {
-    const auto bulk = keel::store::metrics_as_of(l.db, "bps", d);
-    const auto pre = history.all_at(d);
-    REQUIRE(bulk.size() == pre.size());
-    std::size_t n = 0;
-    for (std::int64_t id : ids) {
-      const auto one = keel::store::metric_as_of(l.db, id, "bps", d);
-      CHECK(history.at(id, d).has_value() == one.has_value());
-      if (!one) continue;
-      REQUIRE(n < bulk.size());
-      CHECK(bulk[n].security_id == id);
-      CHECK(bulk[n].value == one->value);
-      CHECK(bulk[n].known_on == one->known_on);
-      CHECK(pre[n].value == one->value);
-      CHECK(pre[n].date == one->date);
-      ++n;
-    }
-    CHECK(n == bulk.size());
-  }
+  CHECK(at("2024-07-28")->period == Date::parse("2024-06-30"));
 }
 
 TEST_CASE("a distribution paid before its ex-date is refused") {

@@ -3,6 +3,8 @@
 #pragma once
 
 #include <string>
+#include <tuple>
+#include <vector>
 
 #include "core/error.h"
 #include "ledger/holdings.h"
@@ -10,6 +12,7 @@
 #include "store/database.h"
 #include "store/fingerprint.h"
 #include "store/ledger_store.h"
+#include "store/market_data.h"
 
 namespace keel::testing {
 
@@ -73,6 +76,43 @@ struct LedgerFixture {
                     std::vector<LotPick> lots = {}) {
     return trade(TxnKind::sell, date, account, symbol, quantity, price, fee, std::move(lots));
   }
+  // Market data through the importers' writer.
+  // Closes: {symbol, date, close}; figures: {symbol, period, known_on, value}.
+  void closes(const std::vector<std::tuple<std::string, std::string, std::string>>& rows,
+              bool replace = false) {
+    store::WriteTransaction tx(db);
+    store::MarketWriter w(db, replace);
+    std::uint64_t line = 0;
+    for (const auto& [sym, date, close] : rows) w.price(w.security(sym), date, close, ++line);
+    w.finish_prices();
+    tx.commit();
+  }
+  void figures(
+      const std::string& metric,
+      const std::vector<std::tuple<std::string, std::string, std::string, std::string>>& rows) {
+    store::WriteTransaction tx(db);
+    store::MarketWriter w(db, false);
+    std::string existing;
+    for (const auto& [sym, period, known, value] : rows)
+      w.metric(w.security(sym), metric, period, known, value, existing);
+    tx.commit();
+  }
+  void split_of(const std::string& symbol, const std::string& date, const std::string& ratio) {
+    store::WriteTransaction tx(db);
+    store::MarketWriter w(db, false);
+    std::string existing;
+    w.split(w.security(symbol), date, ratio, existing);
+    tx.commit();
+  }
+  void distribution(const std::string& symbol, const std::string& ex, const std::string& pay,
+                    const std::string& per_share) {
+    store::WriteTransaction tx(db);
+    store::MarketWriter w(db, false);
+    std::string existing;
+    w.distribution(w.security(symbol), ex, pay, per_share, existing);
+    tx.commit();
+  }
+
   // Account "Main" holding ALFA after a deposit of `cash` on 2024-01-02.
   void main_with_alfa(const char* cash, BasisMethod basis = BasisMethod::fifo) {
     account("Main", basis);

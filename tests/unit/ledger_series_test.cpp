@@ -6,8 +6,8 @@
 #include <doctest/doctest.h>
 
 #include "ledger_fixture.h"
+#include "market/series.h"
 #include "store/price_write.h"
-#include "store/prices.h"
 
 using namespace keel;
 using namespace keel::testing;
@@ -66,7 +66,10 @@ struct SeriesFixture : LedgerFixture {
   }
 
   perf::LedgerSeries series(std::optional<std::string> account, const char* from, const char* to) {
-    const auto prices = store::PriceBook::load(db);
+    market::Series::Request span;
+    span.from = day(from).plus_days(-1);
+    span.to = day(to);
+    const auto prices = market::Series::load(db, span);
     std::optional<std::int64_t> id;
     if (account) id = account_id(*account);
     return perf::build_series(ledger::load_log(db), prices, id, day(from), day(to));

@@ -5,6 +5,7 @@
 
 #include "core/error.h"
 #include "rules/engine.h"
+#include "rules/order_steps.h"
 
 using namespace keel;
 using namespace keel::rules;
@@ -66,7 +67,7 @@ Quotes quotes(std::initializer_list<std::tuple<std::int64_t, const char*, const 
 
 TEST_CASE("targets: equal weights share what the sleeve leaves") {
   const Rule r = rule("[[sleeve]]\nsymbol = \"BOND\"\nweight_pct = 20\n");
-  const auto t = targets(r, screen(r, kAsOf, five()), {99});
+  const auto t = targets(r, screen(r, kAsOf, five()), {99}).list;
   REQUIRE(t.size() == 3);
   CHECK(t[0].symbol == "BOND");
   CHECK(t[0].weight == dec("0.2"));
@@ -78,7 +79,7 @@ TEST_CASE("targets: equal weights share what the sleeve leaves") {
 
 TEST_CASE("targets: a tilt weighs cheaper names more, in proportion to exp(-z)") {
   const Rule r = rule("[select]\nby = \"count\"\ncount = 3\n[weights]\nscheme = \"tilt\"\n");
-  const auto t = targets(r, screen(r, kAsOf, five()), {});
+  const auto t = targets(r, screen(r, kAsOf, five()), {}).list;
   REQUIRE(t.size() == 3);
   // exp(4/sqrt(10)), exp(2/sqrt(10)), 1, normalized (computed with Python's math.exp).
   CHECK(t[0].weight.to_double() == doctest::Approx(0.5514047011699162).epsilon(1e-10));
@@ -89,25 +90,34 @@ TEST_CASE("targets: a tilt weighs cheaper names more, in proportion to exp(-z)")
 TEST_CASE("targets: a capped name's excess goes to the others in proportion") {
   const Rule r = rule(
       "[select]\nby = \"count\"\ncount = 3\n[weights]\nscheme = \"tilt\"\nmax_weight_pct = 50\n");
-  const auto t = targets(r, screen(r, kAsOf, five()), {});
+  const auto t = targets(r, screen(r, kAsOf, five()), {}).list;
   CHECK(t[0].weight == dec("0.5"));
   CHECK(t[0].why == "z = -1.26, rank 1 <= 3 (capped at 50.00%)");
   CHECK(t[1].weight.to_double() == doctest::Approx(0.326523018970384).epsilon(1e-10));
   CHECK(t[2].weight.to_double() == doctest::Approx(0.17347698102961606).epsilon(1e-10));
 }
 
-TEST_CASE("targets: a cap the day's selection cannot fill is refused") {
+TEST_CASE("targets: a cap the day's selection cannot fill holds nothing, and says why") {
   const Rule r = rule("[weights]\nmax_weight_pct = 40\n");
-  CHECK_THROWS_WITH_AS(targets(r, screen(r, kAsOf, five()), {}),
-                       "r.toml:4: key 'weights.max_weight_pct': weights cannot sum to one on "
-                       "2024-05-31: 2 selected names x 40.00% = 80.00% is less than the 100.00% "
-                       "they must fill",
-                       InputError);
+  const auto t = targets(r, screen(r, kAsOf, five()), {});
+  CHECK(t.list.empty());
+  REQUIRE(t.refusal);
+  CHECK(t.refusal->text(r) ==
+        "r.toml:4: key 'weights.max_weight_pct': weights cannot sum to one on 2024-05-31: 2 "
+        "selected names x 40.00% = 80.00% is less than the 100.00% they must fill");
+}
+
+TEST_CASE("targets: a refused screen gives no targets and its refusal") {
+  const Rule r = rule("[select]\nz_max = -2\n[[sleeve]]\nsymbol = \"BOND\"\nweight_pct = 20\n");
+  const auto t = targets(r, screen(r, kAsOf, five()), {99});
+  CHECK(t.list.empty());
+  REQUIRE(t.refusal);
+  CHECK(t.refusal->key == "select.z_max");
 }
 
 TEST_CASE("targets: a held name that is not selected gets zero with the reason") {
   const Rule r = rule();
-  const auto t = targets(r, screen(r, kAsOf, five(true)), {});
+  const auto t = targets(r, screen(r, kAsOf, five(true)), {}).list;
   REQUIRE(t.size() == 3);
   CHECK(t[2].symbol == "C");
   CHECK(t[2].weight.is_zero());
@@ -356,4 +366,89 @@ TEST_CASE("orders: a position without a close is valued but not traded") {
   CHECK(plan.skipped[0].symbol == "Q");
   CHECK(plan.skipped[0].why ==
         "no close on or before 2024-05-31; valued at the last trade price, not traded");
+}
+
+// ------------------------------------------------------ the steps of orders()
+
+TEST_CASE("order steps: each account's reserve is set on its value after the fee guess") {
+  AccountState a = account(1, "Main", "1000");
+  a.holdings[10] = HoldingState{Decimal(10), {}};  // 10 x 50 = 500
+  Portfolio p{{a, account(2, "Spare", "200")}};
+  TradingRule g;
+  g.cash_reserve_pct = Decimal(2);
+  const auto pool = steps::value_pool(p, quotes({{10, "X", "50"}}), g, {Decimal(10), Decimal()});
+  CHECK(pool.value == Decimal(1700));
+  // 2% of 1490 = 29.80 and of 200 = 4.00; invested 1690 - 33.80.
+  CHECK(pool.reserve == std::vector<Decimal>{dec("29.8"), Decimal(4)});
+  CHECK(pool.cash == std::vector<Decimal>{Decimal(1000), Decimal(200)});
+  CHECK(pool.invested_target == dec("1656.2"));
+}
+
+TEST_CASE("order steps: the work list holds the targets, then other holdings by symbol") {
+  AccountState a = account(1, "Main", "500");
+  a.holdings[10] = HoldingState{Decimal(10), {}};
+  a.holdings[12] = HoldingState{Decimal(5), {}};
+  a.holdings[13] = HoldingState{Decimal(2), {}};
+  const Portfolio p{{a}};
+  const auto q = quotes({{10, "X", "50"}, {11, "Y", "20"}, {12, "Z", "10"}, {13, "W", "25"}});
+  const std::vector<Target> t{target(10, "X", "0.5"), target(11, "Y", "0.5")};
+  const auto pool = steps::value_pool(p, q, {}, {Decimal()});
+  const auto work = steps::work_list(p, t, q, pool);
+  REQUIRE(work.size() == 4);
+  CHECK(work[0].quote->symbol == "X");
+  CHECK(work[1].quote->symbol == "Y");
+  CHECK(work[2].quote->symbol == "W");
+  CHECK(work[3].quote->symbol == "Z");
+  CHECK(work[3].why == "not among the rule's targets");
+  // Pool 500 + 500 + 50 + 50 = 1100; X: 500 now (0.454545), target 550 (0.5).
+  CHECK(work[0].now_value == Decimal(500));
+  CHECK(work[0].target_value == Decimal(550));
+  CHECK(work[0].w_now == dec("0.454545"));
+  CHECK(work[0].w_target == dec("0.5"));
+  CHECK(work[3].target_value.is_zero());
+}
+
+TEST_CASE("order steps: decide trims in whole lots, skips a small trim, never a small exit") {
+  steps::Work x;
+  const Quote q{"X", Decimal(30), true, Decimal(1)};
+  x.quote = &q;
+  x.why = "z = -1.00 <= -0.50";
+  x.held = Decimal(10);
+  x.now_value = Decimal(300);
+  x.target_value = Decimal(205);  // 95 above target: 3 units at 30
+  x.w_now = dec("0.3");
+  x.w_target = dec("0.205");
+  TradingRule g;
+  auto d = steps::decide(x, g, kAsOf);
+  CHECK(d.kind == steps::Decision::Kind::sell);
+  CHECK(d.sell_units == Decimal(3));
+  CHECK(d.reason == "z = -1.00 <= -0.50: trim to target");
+  g.min_trade = Decimal(100);
+  d = steps::decide(x, g, kAsOf);
+  CHECK(d.kind == steps::Decision::Kind::skip);
+  CHECK(d.why == "a sell of 90.00 is below the minimum trade (100)");
+  x.target_value = Decimal();  // an exit sells everything, however small
+  d = steps::decide(x, g, kAsOf);
+  CHECK(d.kind == steps::Decision::Kind::sell);
+  CHECK(d.sell_units == Decimal(10));
+  CHECK(d.reason == "z = -1.00 <= -0.50: sell all");
+}
+
+TEST_CASE("order steps: buys short of cash share it in proportion to their needs") {
+  const Portfolio p{{account(1, "Main", "1000")}};
+  const Quote qx{"X", Decimal(10), true, Decimal(1)}, qy{"Y", Decimal(10), true, Decimal(1)};
+  steps::Work x, y;
+  x.quote = &qx;
+  x.security_id = 10;
+  y.quote = &qy;
+  y.security_id = 11;
+  // X wants 1500 and Y 500: the 1000 of cash goes 750 and 250.
+  const std::vector<steps::BuyWish> wishes{{&x, Decimal(1500), "x"}, {&y, Decimal(500), "y"}};
+  std::vector<Decimal> cash{Decimal(1000)};
+  const auto buys = steps::buy_orders(wishes, p, cash, {Decimal()}, {});
+  REQUIRE(buys.orders.size() == 2);
+  CHECK(buys.orders[0].quantity == Decimal(75));
+  CHECK(buys.orders[1].quantity == Decimal(25));
+  CHECK(buys.skipped.empty());
+  CHECK(cash[0].is_zero());
 }

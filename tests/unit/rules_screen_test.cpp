@@ -104,21 +104,31 @@ TEST_CASE("screen: non-positive values pass when the rule keeps them") {
   CHECK(line(r, "NEG").passed);
 }
 
-TEST_CASE("screen: fewer names than the minimum is refused") {
-  std::vector<Candidate> c{name("A", "6"), name("B", "8"), name("C", "10")};
-  CHECK_THROWS_WITH_AS(screen(rule(), kAsOf, c),
-                       "r.toml: key 'screen.min_names' (default 5): only 3 names pass the screen "
-                       "on 2024-05-31; the rule needs at least 5",
-                       InputError);
+TEST_CASE("screen: fewer names than the minimum select nothing, with the reason") {
+  const Rule r = rule();
+  std::vector<Candidate> c{name("C", "10"), name("A", "6"), name("B", "8")};
+  const auto s = screen(r, kAsOf, c);
+  REQUIRE(s.refusal);
+  CHECK(s.refusal->text(r) ==
+        "r.toml: key 'screen.min_names' (default 5): only 3 names pass the screen on "
+        "2024-05-31; the rule needs at least 5");
+  CHECK(s.passed == 3);
+  CHECK(s.selected == 0);
+  // The lines are still there to be shown, by symbol.
+  REQUIRE(s.lines.size() == 3);
+  CHECK(s.lines[0].symbol == "A");
+  CHECK(s.lines[2].symbol == "C");
 }
 
 TEST_CASE("screen: identical values leave nothing to score") {
+  const Rule r = rule();
   std::vector<Candidate> c{name("A", "7"), name("B", "7"), name("C", "7"), name("D", "7"),
                            name("E", "7")};
-  CHECK_THROWS_WITH_AS(screen(rule(), kAsOf, c),
-                       "r.toml: key 'screen.metric' (default \"pe\"): all 5 names passing the "
-                       "screen on 2024-05-31 have the same value; z-scores need some spread",
-                       InputError);
+  const auto s = screen(r, kAsOf, c);
+  REQUIRE(s.refusal);
+  CHECK(s.refusal->text(r) ==
+        "r.toml: key 'screen.metric' (default \"pe\"): all 5 names passing the screen on "
+        "2024-05-31 have the same value; z-scores need some spread");
 }
 
 TEST_CASE("screen: winsorizing clips at linearly interpolated percentiles") {
@@ -182,9 +192,14 @@ TEST_CASE("selection: without a band a held name is judged like any other") {
   CHECK_FALSE(line(r, "C").selected);
 }
 
-TEST_CASE("selection: a threshold that selects nothing is refused") {
-  CHECK_THROWS_WITH_AS(screen(rule("[select]\nz_max = -2\n"), kAsOf, five()),
-                       "r.toml:4: key 'select.z_max': selects no name on 2024-05-31: the lowest z "
-                       "among the 5 names passing the screen is -1.26",
-                       InputError);
+TEST_CASE("selection: a threshold that selects nothing is a result with the reason") {
+  const Rule r = rule("[select]\nz_max = -2\n");
+  const auto s = screen(r, kAsOf, five());
+  REQUIRE(s.refusal);
+  CHECK(s.refusal->text(r) ==
+        "r.toml:4: key 'select.z_max': selects no name on 2024-05-31: the lowest z among the 5 "
+        "names passing the screen is -1.26");
+  CHECK(s.selected == 0);
+  CHECK(s.lines.front().symbol == "A");  // still in z order
+  CHECK(*s.lines.front().z < *s.lines.back().z);
 }

@@ -25,7 +25,7 @@ RealizedPart part(std::int64_t sell, std::int64_t lot, const char* proceeds, con
 
 TEST_CASE("verify: an open lot or a realized part whose cost is below zero is a problem") {
   const std::vector<ledger::LotLine> open = {
-      {"Main", "ALFA", Lot{4, day("2024-01-03"), dec("0.001"), dec("-0.0049")}}};
+      {"Main", "ALFA", Lot{4, day("2024-01-03"), dec("0.001"), dec("-0.0049"), std::nullopt}}};
   const auto found = ledger::check_signs({part(9, 4, "1", "-0.01")}, open);
   CHECK(found.problems ==
         std::vector<std::string>{"open lot 4 of ALFA in 'Main' has a cost of -0.0049",

@@ -1,0 +1,255 @@
+#include "core/json.h"
+
+#include <charconv>
+#include <cmath>
+#include <cstring>
+#include <stdexcept>
+#include <utility>
+
+#include "core/text.h"
+
+namespace keel {
+namespace {
+
+// The UTF-8 sequence at the start of `s`: whether it is well formed and how
+// many bytes it takes. An ill-formed one takes its maximal subpart, at least
+// one byte: what one U+FFFD stands for (Unicode Standard, chapter 3, "U+FFFD
+// Substitution of Maximal Subparts").
+std::pair<bool, std::size_t> next_sequence(std::string_view s) {
+  const auto c = static_cast<unsigned char>(s[0]);
+  std::size_t need = 0;
+  unsigned char lo = 0x80, hi = 0xBF;  // the range of the second byte
+  if (c < 0x80) return {true, 1};
+  if (c >= 0xC2 && c <= 0xDF) {
+    need = 1;
+  } else if (c >= 0xE0 && c <= 0xEF) {
+    need = 2;
+    if (c == 0xE0) lo = 0xA0;
+    if (c == 0xED) hi = 0x9F;
+  } else if (c >= 0xF0 && c <= 0xF4) {
+    need = 3;
+    if (c == 0xF0) lo = 0x90;
+    if (c == 0xF4) hi = 0x8F;
+  } else {
+    return {false, 1};
+  }
+  for (std::size_t n = 1; n <= need; ++n) {
+    if (n >= s.size()) return {false, n};
+    const auto x = static_cast<unsigned char>(s[n]);
+    if (n == 1 ? (x < lo || x > hi) : (x < 0x80 || x > 0xBF)) return {false, n};
+  }
+  return {true, need + 1};
+}
+
+}  // namespace
+
+void append_json_string(std::string& out, std::string_view text) {
+  out += '"';
+  const bool valid = valid_utf8(text);
+  for (std::size_t i = 0; i < text.size();) {
+    const auto c = static_cast<unsigned char>(text[i]);
+    if (c >= 0x80 && !valid) {
+      const auto [ok, n] = next_sequence(text.substr(i));
+      if (ok)
+        out.append(text.substr(i, n));
+      else
+        out += "\xEF\xBF\xBD";
+      i += n;
+      continue;
+    }
+    switch (c) {
+      case '"':
+        out += "\\\"";
+        break;
+      case '\\':
+        out += "\\\\";
+        break;
+      case '\b':
+        out += "\\b";
+        break;
+      case '\f':
+        out += "\\f";
+        break;
+      case '\n':
+        out += "\\n";
+        break;
+      case '\r':
+        out += "\\r";
+        break;
+      case '\t':
+        out += "\\t";
+        break;
+      default:
+        if (c < 0x20) {
+          static const char kHex[] = "0123456789abcdef";
+          out += "\\u00";
+          out += kHex[c >> 4];
+          out += kHex[c & 15];
+        } else {
+          out += static_cast<char>(c);
+        }
+    }
+    ++i;
+  }
+  out += '"';
+}
+
+void append_json_number(std::string& out, double x) {
+  if (!std::isfinite(x)) {
+    out += "null";
+    return;
+  }
+  if (x == 0) {
+    out += std::signbit(x) ? "-0.0" : "0.0";
+    return;
+  }
+  // The shortest digits that read back as x, laid out as nlohmann::json
+  // lays them out: fixed from 1e-4 to below 1e15, else d.ddde+XX.
+  char buf[64];
+  const auto res =
+      std::to_chars(buf, buf + sizeof buf, std::fabs(x), std::chars_format::scientific);
+  const std::string_view sci(buf, static_cast<std::size_t>(res.ptr - buf));
+  const std::size_t e_at = sci.find('e');
+  std::string digits;
+  for (const char c : sci.substr(0, e_at))
+    if (c != '.') digits += c;
+  int exp10 = 0;
+  std::from_chars(sci.data() + e_at + 1 + (sci[e_at + 1] == '+'), sci.data() + sci.size(), exp10);
+  const int k = static_cast<int>(digits.size());
+  const int n = exp10 + 1;  // x = 0.digits x 10^n
+  if (x < 0) out += '-';
+  if (k <= n && n <= 15) {
+    out += digits;
+    out.append(static_cast<std::size_t>(n - k), '0');
+    out += ".0";
+  } else if (0 < n && n <= 15) {
+    out.append(digits, 0, static_cast<std::size_t>(n));
+    out += '.';
+    out.append(digits, static_cast<std::size_t>(n));
+  } else if (-4 < n && n <= 0) {
+    out += "0.";
+    out.append(static_cast<std::size_t>(-n), '0');
+    out += digits;
+  } else {
+    out += digits[0];
+    if (k > 1) {
+      out += '.';
+      out.append(digits, 1);
+    }
+    const int e = n - 1;
+    out += e < 0 ? "e-" : "e+";
+    const int a = std::abs(e);
+    if (a < 10) out += '0';
+    out += std::to_string(a);
+  }
+}
+
+void JsonWriter::newline(std::size_t depth) {
+  if (indent_ < 0) return;
+  out_ += '\n';
+  out_.append(depth * static_cast<std::size_t>(indent_), ' ');
+}
+
+void JsonWriter::before_value() {
+  if (stack_.empty()) return;
+  Level& level = stack_.back();
+  if (level.object) {
+    if (!after_key_) throw std::logic_error("JsonWriter: a value where a key is due");
+    after_key_ = false;
+    return;
+  }
+  if (!level.empty) out_ += ',';
+  level.empty = false;
+  newline(stack_.size());
+}
+
+JsonWriter& JsonWriter::key(std::string_view name) {
+  if (stack_.empty() || !stack_.back().object || after_key_)
+    throw std::logic_error("JsonWriter: a key outside an object");
+  Level& level = stack_.back();
+  if (!level.empty) out_ += ',';
+  level.empty = false;
+  newline(stack_.size());
+  append_json_string(out_, name);
+  out_ += indent_ < 0 ? ":" : ": ";
+  after_key_ = true;
+  return *this;
+}
+
+JsonWriter& JsonWriter::begin_object() {
+  before_value();
+  out_ += '{';
+  stack_.push_back({true});
+  return *this;
+}
+
+JsonWriter& JsonWriter::begin_array() {
+  before_value();
+  out_ += '[';
+  stack_.push_back({false});
+  return *this;
+}
+
+JsonWriter& JsonWriter::end_object() {
+  if (stack_.empty() || !stack_.back().object || after_key_)
+    throw std::logic_error("JsonWriter: no object to close");
+  const bool empty = stack_.back().empty;
+  stack_.pop_back();
+  if (!empty) newline(stack_.size());
+  out_ += '}';
+  return *this;
+}
+
+JsonWriter& JsonWriter::end_array() {
+  if (stack_.empty() || stack_.back().object)
+    throw std::logic_error("JsonWriter: no array to close");
+  const bool empty = stack_.back().empty;
+  stack_.pop_back();
+  if (!empty) newline(stack_.size());
+  out_ += ']';
+  return *this;
+}
+
+JsonWriter& JsonWriter::value(std::string_view text) {
+  before_value();
+  append_json_string(out_, text);
+  return *this;
+}
+
+JsonWriter& JsonWriter::value(bool b) {
+  before_value();
+  out_ += b ? "true" : "false";
+  return *this;
+}
+
+JsonWriter& JsonWriter::value(long long v) {
+  before_value();
+  out_ += std::to_string(v);
+  return *this;
+}
+
+JsonWriter& JsonWriter::value(unsigned long long v) {
+  before_value();
+  out_ += std::to_string(v);
+  return *this;
+}
+
+JsonWriter& JsonWriter::value(double v) {
+  before_value();
+  append_json_number(out_, v);
+  return *this;
+}
+
+JsonWriter& JsonWriter::null() {
+  before_value();
+  out_ += "null";
+  return *this;
+}
+
+JsonWriter& JsonWriter::value(const std::vector<std::string>& items) {
+  begin_array();
+  for (const auto& s : items) value(s);
+  return end_array();
+}
+
+}  // namespace keel

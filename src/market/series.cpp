@@ -1,0 +1,436 @@
+#include "market/series.h"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <array>
+#include <cmath>
+#include <cstring>
+#include <limits>
+#include <set>
+#include <stdexcept>
+
+#include "store/ledger_store.h"
+#include "store/market_rows.h"
+
+namespace keel::market {
+namespace {
+
+constexpr double kNone = std::numeric_limits<double>::quiet_NaN();
+// Stored integers below 2^50 come back exactly from value x 10^scale
+// (the double product errs by far less than a half).
+constexpr double kExactLimit = 1125899906842624.0;  // 2^50
+constexpr int kMaxScale = 15;
+constexpr double kPow10[] = {1e0, 1e1, 1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
+                             1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15};
+
+// Canonical decimal text without sign or exponent ("123.45"), as the ledger
+// stores closes: the integer of its digits and the count after the point.
+// False for anything else (then Decimal::parse decides).
+bool plain_decimal(std::string_view s, long long& mantissa, int& scale) {
+  if (s.empty() || s.size() > 18) return false;
+  long long m = 0;
+  int sc = -1;
+  for (const char c : s) {
+    if (c == '.') {
+      if (sc >= 0) return false;
+      sc = 0;
+      continue;
+    }
+    if (c < '0' || c > '9') return false;
+    m = m * 10 + (c - '0');
+    if (sc >= 0) ++sc;
+  }
+  if (sc == 0 || s.front() == '.') return false;
+  mantissa = m;
+  scale = sc < 0 ? 0 : sc;
+  return true;
+}
+
+// The ISO text of every day of the span, to find a row's day by comparing
+// text instead of parsing it: rows of a security come by date, so the next
+// one is a few days after the last (else Date::parse decides).
+class SpanDays {
+ public:
+  SpanDays(Date from, std::size_t n) : from_(from), text_(n) {
+    for (std::size_t r = 0; r < n; ++r) {
+      const std::string t = from.plus_days(static_cast<int>(r)).str();
+      std::copy_n(t.data(), 10, text_[r].data());
+    }
+  }
+  // The row of `day`, which must be on or after row `hint` (rows come by
+  // date; std::logic_error otherwise); size() for a day after the span.
+  std::size_t row(std::string_view day, std::size_t hint) const {
+    if (day.size() == 10)
+      for (std::size_t r = hint; r < text_.size() && r < hint + 8; ++r)
+        if (std::memcmp(day.data(), text_[r].data(), 10) == 0) return r;
+    const int at = Date::parse(day) - from_;
+    if (at < static_cast<int>(hint))
+      throw std::logic_error("market::Series: rows out of date order");
+    return std::min(static_cast<std::size_t>(at), text_.size());
+  }
+  std::size_t size() const { return text_.size(); }
+
+ private:
+  Date from_;
+  std::vector<std::array<char, 10>> text_;
+};
+
+// Reads the closes of one security into `column` (one value per row of the
+// span, forward-filled) and says how its doubles map back to decimals.
+struct ColumnReader {
+  store::MarketRows& rows;
+  const SpanDays& days;
+  std::string before_text, from_text;
+
+  struct Result {
+    std::optional<Date> seed_day;
+    int scale = 0;
+    bool fits = true;  // every close fits the scale rule
+  };
+
+  template <typename Fresh>
+  Result read(std::int64_t id, double* column, std::size_t n_rows, Fresh&& fresh) {
+    Result out;
+    double max_value = 0;
+    double last = kNone;
+    auto take = [&](std::string_view text) {
+      long long m = 0;
+      int scale = 0;
+      if (plain_decimal(text, m, scale) && scale <= kMaxScale &&
+          static_cast<double>(m) < kExactLimit) {
+        out.scale = std::max(out.scale, scale);
+        // Both operands exact: the quotient is the double nearest the decimal.
+        last = static_cast<double>(m) / kPow10[scale];
+      } else {
+        out.fits = false;
+        last = Decimal::parse(text).to_double();
+      }
+      max_value = std::max(max_value, last);
+    };
+    auto& seed = rows.closes_until(id, before_text);
+    if (seed.next()) {
+      out.seed_day = Date::parse(seed.text(0));
+      take(seed.text(1));
+      seed.reset();
+    }
+    std::size_t r = 0;
+    auto row = [&](const store::MarketRows::Row& x) {
+      const std::size_t at = days.row(x[0], r);
+      if (at >= n_rows) return false;  // past the span: the rest are later still
+      for (; r < at; ++r) column[r] = last;
+      take(x[1]);
+      column[r] = last;
+      fresh(r);
+      ++r;
+      return true;
+    };
+    rows.scan_closes(id, from_text, row);
+    for (; r < n_rows; ++r) column[r] = last;
+    if (max_value * kPow10[out.scale] >= kExactLimit) out.fits = false;
+    return out;
+  }
+};
+
+}  // namespace
+
+Series Series::load(store::Database& db, const Request& req) {
+  if (req.from > req.to)
+    throw std::invalid_argument(
+        fmt::format("Series::load: {} is after {}", req.from.str(), req.to.str()));
+  Series s;
+  s.from_ = req.from;
+  s.to_ = req.to;
+  s.rows_ = static_cast<std::size_t>(req.to - req.from) + 1;
+  s.securities_ = store::list_securities(db);
+  s.metric_names_ = store::metric_names(db);
+
+  std::set<std::int64_t> known;
+  for (const auto& sec : s.securities_) known.insert(sec.id);
+  if (req.securities) {
+    for (const std::int64_t id : *req.securities)
+      if (!known.count(id))
+        throw std::invalid_argument(fmt::format("Series::load: no security {}", id));
+    s.ids_.assign(req.securities->begin(), req.securities->end());
+    std::sort(s.ids_.begin(), s.ids_.end());
+    s.ids_.erase(std::unique(s.ids_.begin(), s.ids_.end()), s.ids_.end());
+  } else {
+    s.ids_.assign(known.begin(), known.end());
+  }
+  const std::size_t n_cols = s.ids_.size();
+  for (std::size_t c = 0; c < n_cols; ++c) s.column_of_.emplace(s.ids_[c], static_cast<int>(c));
+
+  const std::size_t n_rows = s.rows_;
+  s.cells_.assign(n_rows * n_cols, kNone);
+  s.fresh_.assign((n_rows * n_cols + 63) / 64, 0);
+  s.seed_day_.resize(n_cols);
+  s.exact_.resize(n_cols);
+  std::vector<char> any_close(n_rows, 0);
+
+  store::MarketRows rows(db);
+  const SpanDays span(req.from, n_rows);
+  const std::string to_text = req.to.str();
+  ColumnReader reader{rows, span, req.from.plus_days(-1).str(), req.from.str()};
+  // A block of columns is read column by column, then written into the
+  // row-major grid row by row: both sides stay sequential in memory.
+  constexpr std::size_t kBlock = 64;
+  std::vector<double> block(kBlock * n_rows);
+  for (std::size_t c0 = 0; c0 < n_cols; c0 += kBlock) {
+    const std::size_t width = std::min(kBlock, n_cols - c0);
+    for (std::size_t k = 0; k < width; ++k) {
+      const std::size_t c = c0 + k;
+      auto fresh = [&](std::size_t r) {
+        const std::size_t bit = c * n_rows + r;
+        s.fresh_[bit / 64] |= std::uint64_t{1} << (bit % 64);
+        any_close[r] = 1;
+      };
+      const auto got = reader.read(s.ids_[c], &block[k * n_rows], n_rows, fresh);
+      s.seed_day_[c] = got.seed_day;
+      Exact& ex = s.exact_[c];
+      ex.scale = got.scale;
+      if (!got.fits) {
+        // Closes too long for the scale rule are kept as decimals (rare).
+        ex.listed = true;
+        if (got.seed_day) {
+          auto& seed = rows.closes_until(s.ids_[c], reader.before_text);
+          if (seed.next()) ex.seed = Decimal::parse(seed.text(1));
+          seed.reset();
+        }
+        std::size_t r = 0;
+        auto keep = [&](const store::MarketRows::Row& x) {
+          r = span.row(x[0], r);
+          if (r >= n_rows) return false;
+          ex.list.emplace_back(static_cast<std::uint32_t>(r), Decimal::parse(x[1]));
+          return true;
+        };
+        rows.scan_closes(s.ids_[c], reader.from_text, keep);
+      }
+    }
+    for (std::size_t r = 0; r < n_rows; ++r) {
+      double* out = &s.cells_[r * n_cols + c0];
+      for (std::size_t k = 0; k < width; ++k) out[k] = block[k * n_rows + r];
+    }
+  }
+
+  // The trading calendar: days with a close of any security of the ledger.
+  for (const auto& sec : s.securities_) {
+    if (!s.column_of_.count(sec.id)) {
+      std::size_t r = 0;
+      auto day = [&](const store::MarketRows::Row& x) {
+        r = span.row(x[0], r);
+        if (r >= n_rows) return false;
+        any_close[r] = 1;
+        return true;
+      };
+      rows.scan_close_days(sec.id, reader.from_text, day);
+    }
+    auto& next = rows.first_close_after(sec.id, to_text);
+    if (next.next()) {
+      const Date d = Date::parse(next.text(0));
+      if (!s.next_trading_day_ || d < *s.next_trading_day_) s.next_trading_day_ = d;
+      next.reset();
+    }
+  }
+  for (std::size_t r = 0; r < n_rows; ++r)
+    if (any_close[r]) s.trading_days_.push_back(req.from.plus_days(static_cast<int>(r)));
+
+  for (const auto& metric : req.metrics) {
+    if (std::find(s.metrics_.begin(), s.metrics_.end(), metric) != s.metrics_.end()) continue;
+    s.metrics_.push_back(metric);
+    // Each security's rows in key order, then all of them by known_on: a
+    // stable counting sort on the day, which keeps (security, period) order
+    // within a day.
+    std::vector<FigureRow> rows_read;
+    for (std::size_t c = 0; c < n_cols; ++c) {
+      auto take = [&](const store::MarketRows::Row& x) {
+        if (x[1] > std::string_view(to_text)) return true;  // unknown within the span
+        rows_read.push_back(FigureRow{static_cast<int>(c), Date::parse(x[0]), Date::parse(x[1]),
+                                      Decimal::parse(x[2])});
+        return true;
+      };
+      rows.scan_figures(s.ids_[c], metric, take);
+    }
+    auto& list = s.figure_rows_.emplace_back();
+    if (!rows_read.empty()) {
+      auto [lo, hi] = std::minmax_element(
+          rows_read.begin(), rows_read.end(),
+          [](const FigureRow& a, const FigureRow& b) { return a.known_on < b.known_on; });
+      const Date first = lo->known_on;
+      std::vector<std::size_t> start(static_cast<std::size_t>(hi->known_on - first) + 2, 0);
+      for (const auto& f : rows_read) ++start[static_cast<std::size_t>(f.known_on - first) + 1];
+      for (std::size_t i = 1; i < start.size(); ++i) start[i] += start[i - 1];
+      std::vector<std::size_t> order(rows_read.size());
+      for (std::size_t i = 0; i < rows_read.size(); ++i)
+        order[start[static_cast<std::size_t>(rows_read[i].known_on - first)]++] = i;
+      list.reserve(rows_read.size());
+      for (const std::size_t i : order) list.push_back(std::move(rows_read[i]));
+    }
+  }
+  s.cursors_.resize(s.metrics_.size());
+  for (std::size_t i = 0; i < s.metrics_.size(); ++i) s.cursors_[i] = s.figures(s.metrics_[i]);
+
+  {
+    auto& st = rows.distributions_between(std::nullopt, reader.from_text, to_text);
+    while (st.next())
+      if (s.column_of_.count(st.integer(0)))
+        s.distributions_.push_back(Distribution{st.integer(0), Date::parse(st.text(1)),
+                                                Date::parse(st.text(2)),
+                                                Decimal::parse(st.text(3))});
+  }
+  {
+    auto& st = rows.splits_between(std::nullopt, reader.from_text, to_text);
+    while (st.next())
+      if (s.column_of_.count(st.integer(0)))
+        s.splits_.push_back(
+            SplitEvent{st.integer(0), Date::parse(st.text(1)), Decimal::parse(st.text(2))});
+  }
+  return s;
+}
+
+int Series::column(std::int64_t security_id) const {
+  const auto it = column_of_.find(security_id);
+  return it == column_of_.end() ? -1 : it->second;
+}
+
+std::size_t Series::row(Date day) const {
+  if (day < from_ || day > to_)
+    throw std::out_of_range(
+        fmt::format("market::Series: {} is outside {}..{}", day.str(), from_.str(), to_.str()));
+  return static_cast<std::size_t>(day - from_);
+}
+
+bool Series::fresh(std::size_t row, int column) const {
+  const std::size_t bit = static_cast<std::size_t>(column) * rows_ + row;
+  return (fresh_[bit / 64] >> (bit % 64)) & 1;
+}
+
+Date Series::close_day(std::size_t row, int column) const {
+  for (std::size_t r = row + 1; r-- > 0;)
+    if (fresh(r, column)) return from_.plus_days(static_cast<int>(r));
+  const auto& seed = seed_day_[static_cast<std::size_t>(column)];
+  if (!seed) throw std::logic_error("market::Series::close_day: no close on or before the day");
+  return *seed;
+}
+
+int Series::price_places(int column) const {
+  const Exact& ex = exact_[static_cast<std::size_t>(column)];
+  return ex.listed ? -1 : ex.scale;
+}
+
+Decimal Series::exact(std::size_t row, int column) const {
+  const Exact& ex = exact_[static_cast<std::size_t>(column)];
+  if (!ex.listed) {
+    const double v = value(row, column) * kPow10[ex.scale];
+    return Decimal::scaled(std::llround(v), ex.scale);
+  }
+  const auto it = std::upper_bound(ex.list.begin(), ex.list.end(), row,
+                                   [](std::size_t r, const auto& e) { return r < e.first; });
+  if (it != ex.list.begin()) return std::prev(it)->second;
+  if (!ex.seed) throw std::logic_error("market::Series::exact: no close on or before the day");
+  return *ex.seed;
+}
+
+std::vector<Close> Series::closes(std::int64_t security_id) const {
+  const int c = loaded(security_id);
+  std::vector<Close> out;
+  for (std::size_t r = 0; r < rows_; ++r)
+    if (has(r, c) && (r == 0 || fresh(r, c))) out.push_back(Close{close_day(r, c), exact(r, c)});
+  return out;
+}
+
+int Series::loaded(std::int64_t security_id) const {
+  const int c = column(security_id);
+  if (c < 0)
+    throw std::out_of_range(fmt::format("market::Series: security {} is not loaded", security_id));
+  return c;
+}
+
+bool Series::has_close(std::int64_t security_id, Date day) const {
+  return has(row(day), loaded(security_id));
+}
+
+std::optional<Close> Series::close(std::int64_t security_id, Date day) const {
+  const int c = loaded(security_id);
+  const std::size_t r = row(day);
+  if (!has(r, c)) return std::nullopt;
+  return Close{close_day(r, c), exact(r, c)};
+}
+
+Series::FigureCursor Series::figures(std::string_view metric) const {
+  const auto it = std::find(metrics_.begin(), metrics_.end(), metric);
+  if (it == metrics_.end())
+    throw std::out_of_range(fmt::format("market::Series: metric '{}' is not loaded", metric));
+  FigureCursor cursor;
+  cursor.rows_ = &figure_rows_[static_cast<std::size_t>(it - metrics_.begin())];
+  cursor.best_.assign(ids_.size(), -1);
+  return cursor;
+}
+
+void Series::FigureCursor::advance_to(Date day) {
+  if (day_ && day < *day_) {
+    std::fill(best_.begin(), best_.end(), -1);
+    next_ = 0;
+  }
+  day_ = day;
+  const auto& rows = *rows_;
+  // Rows come by known_on: each one known by now replaces the figure held
+  // for its security when its period is at least as late.
+  for (; next_ < rows.size() && rows[next_].known_on <= day; ++next_) {
+    auto& best = best_[static_cast<std::size_t>(rows[next_].column)];
+    if (best < 0 || rows[static_cast<std::size_t>(best)].period <= rows[next_].period)
+      best = static_cast<std::int32_t>(next_);
+  }
+}
+
+Series::FigureCursor& Series::cursor(std::string_view metric) const {
+  const auto it = std::find(metrics_.begin(), metrics_.end(), metric);
+  if (it == metrics_.end())
+    throw std::out_of_range(fmt::format("market::Series: metric '{}' is not loaded", metric));
+  return cursors_[static_cast<std::size_t>(it - metrics_.begin())];
+}
+
+std::optional<Figure> Series::figure(std::int64_t security_id, std::string_view metric,
+                                     Date day) const {
+  const int c = loaded(security_id);
+  row(day);  // inside the span
+  auto& cursor = this->cursor(metric);
+  cursor.advance_to(day);
+  const FigureRow* f = cursor.at(c);
+  if (!f) return std::nullopt;
+  return Figure{f->value, f->period, f->known_on};
+}
+
+namespace {
+
+// The events of `all` dated in [from, to], of one security or of all.
+template <typename Event, typename DateOf>
+std::vector<Event> events_between(const std::vector<Event>& all, std::optional<std::int64_t> id,
+                                  Date from, Date to, DateOf date_of) {
+  std::vector<Event> out;
+  for (const auto& e : all)
+    if (date_of(e) >= from && date_of(e) <= to && (!id || e.security_id == *id)) out.push_back(e);
+  return out;
+}
+
+}  // namespace
+
+void Series::check_span(std::optional<std::int64_t> security_id, Date from, Date to) const {
+  row(from);
+  row(to);
+  if (security_id) loaded(*security_id);
+}
+
+std::vector<Distribution> Series::distributions(std::optional<std::int64_t> security_id, Date from,
+                                                Date to) const {
+  check_span(security_id, from, to);
+  return events_between(distributions_, security_id, from, to,
+                        [](const Distribution& d) { return d.ex_date; });
+}
+
+std::vector<SplitEvent> Series::splits(std::optional<std::int64_t> security_id, Date from,
+                                       Date to) const {
+  check_span(security_id, from, to);
+  return events_between(splits_, security_id, from, to, [](const SplitEvent& e) { return e.date; });
+}
+
+}  // namespace keel::market

@@ -1,0 +1,35 @@
+#include "market/view.h"
+
+#include <set>
+
+namespace keel::market {
+
+std::vector<std::string> View::sectors() const {
+  std::set<std::string> out;
+  for (const auto& s : securities())
+    if (s.kind == SecurityKind::stock && s.sector) out.insert(*s.sector);
+  return {out.begin(), out.end()};
+}
+
+void View::index() const {
+  if (!by_id_.empty() || securities().empty()) return;
+  const auto& all = securities();
+  for (std::size_t i = 0; i < all.size(); ++i) {
+    by_id_.emplace(all[i].id, i);
+    by_symbol_.emplace(all[i].symbol, i);
+  }
+}
+
+const Security* View::security(std::int64_t id) const {
+  index();
+  const auto it = by_id_.find(id);
+  return it == by_id_.end() ? nullptr : &securities()[it->second];
+}
+
+const Security* View::security(std::string_view symbol) const {
+  index();
+  const auto it = by_symbol_.find(symbol);
+  return it == by_symbol_.end() ? nullptr : &securities()[it->second];
+}
+
+}  // namespace keel::market

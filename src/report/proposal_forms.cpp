@@ -1,0 +1,258 @@
+#include "report/proposal_forms.h"
+
+#include <fmt/format.h>
+
+#include "core/json.h"
+#include "core/text.h"
+#include "report/format.h"
+#include "report/json_schema.h"
+#include "report/table.h"
+
+namespace keel::report {
+
+std::string proposal_json(const rules::Proposal& p, std::optional<std::int64_t> saved_id) {
+  std::string s;
+  JsonWriter j(s);
+  begin_document(j, "propose", 1);
+  j.member("as_of", p.as_of.str());
+  j.member("rule", p.rule_name);
+  j.member("rule_sha256", p.rule_sha256);
+  j.member("accounts", p.accounts);
+  j.member("pool_value", p.plan.pool_value);
+  j.key("screen").begin_array();
+  for (const auto& l : p.screen.lines) {
+    j.begin_object().member("symbol", l.symbol);
+    if (l.figure) {
+      j.member("value", l.figure->value);
+      j.member("period", l.figure->period.str());
+      j.member("known_on", l.figure->known_on.str());
+      j.member("age_days", l.age_days);
+    } else {
+      j.key("value").null().key("period").null().key("known_on").null().key("age_days").null();
+    }
+    j.member("z", l.z);
+    j.member("held", l.held).member("selected", l.selected);
+    if (l.passed)
+      j.key("excluded_reason").null();
+    else
+      j.member("excluded_reason", l.excluded_reason);
+    j.member("note", l.note);
+    j.end_object();
+  }
+  j.end_array();
+  j.key("orders").begin_array();
+  for (const auto& o : p.plan.orders) {
+    j.begin_object();
+    j.member("account", o.account).member("symbol", o.symbol);
+    j.member("side", std::string(rules::to_string(o.side)));
+    j.member("quantity", o.quantity).member("price", o.price).member("value", o.value);
+    j.member("fee", o.fee).member("weight_now", o.weight_now);
+    j.member("weight_target", o.weight_target).member("reason", o.reason);
+    j.key("lots").begin_array();
+    for (const auto& l : o.lots) {
+      j.begin_object();
+      j.member("lot", static_cast<long long>(l.lot_id)).member("acquired", l.acquired.str());
+      j.member("quantity", l.quantity).member("cost", l.cost).member("est_gain", l.est_gain);
+      j.member("term", l.long_term ? "long" : "short");
+      j.end_object();
+    }
+    j.end_array();
+    j.end_object();
+  }
+  j.end_array();
+  j.key("weights_after").begin_array();
+  for (const auto& w : p.plan.weights_after) {
+    j.begin_object();
+    j.member("symbol", w.symbol).member("value", w.value).member("weight", w.weight);
+    j.member("target", w.target);
+    j.end_object();
+  }
+  j.end_array();
+  j.member("cash_after", p.plan.cash_after_total);
+  j.key("cash_after_by_account").begin_array();
+  for (const auto& c : p.plan.cash_after) {
+    j.begin_object();
+    j.member("account", c.account).member("cash", c.cash).member("reserve", c.reserve);
+    j.end_object();
+  }
+  j.end_array();
+  j.member("turnover", p.plan.turnover);
+  j.member("estimated_fees", p.plan.estimated_fees);
+  j.key("skipped").begin_array();
+  for (const auto& k : p.plan.skipped)
+    j.begin_object().member("symbol", k.symbol).member("why", k.why).end_object();
+  j.end_array();
+  j.member("notes", p.notes);
+  j.member("cautions", p.cautions);
+  if (saved_id) j.member("proposal_id", static_cast<long long>(*saved_id));
+  j.end_object();
+  return s + "\n";
+}
+
+std::string proposal_text(const rules::Proposal& p, const Style& style) {
+  std::string s =
+      fmt::format("Proposal of rule '{}' as of {}\n", printable(p.rule_name), p.as_of.str());
+  s += fmt::format("Accounts: {}; pool value {}\n\n", printable_list(p.accounts),
+                   money(p.plan.pool_value));
+
+  const auto& sc = p.screen;
+  s += fmt::format("1. Screen: {} of {} names pass; mean {:.6g}, sd {:.6g}", sc.passed,
+                   sc.lines.size(), sc.mean, sc.sd);
+  if (sc.clip_low)
+    s += fmt::format("; values clipped to [{:.6g}, {:.6g}]", *sc.clip_low, *sc.clip_high);
+  s += fmt::format("; {} selected\n", sc.selected);
+  // A narrow terminal shortens the why, then loses the period, the day the
+  // figure was known and its age; the figure, z and the verdict stay.
+  Table screen({{"symbol"},
+                {"value", Align::right},
+                {"period", Align::left, false, 3},
+                {"age", Align::right, false, 1},
+                {"known on", Align::left, false, 2},
+                {"z", Align::right},
+                {"held"},
+                {"in/out"},
+                {"why", Align::left, true}});
+  for (const auto& l : sc.lines)
+    screen.add_row(
+        {l.symbol, l.figure ? l.figure->value.str() : "", l.figure ? l.figure->period.str() : "",
+         l.figure ? std::to_string(l.age_days) : "", l.figure ? l.figure->known_on.str() : "",
+         z_text(l.z), l.held ? "yes" : "", l.selected ? "in" : "out", l.note});
+  s += screen.render(style) + "\n";
+
+  s += "2. Orders (estimates at the closes used)\n";
+  if (p.plan.orders.empty()) {
+    s += "No orders.\n\n";
+  } else {
+    // The reason (and the account) shorten first; then the weights now and
+    // the fee make way, never the order itself.
+    Table t({{"account", Align::left, true},
+             {"symbol"},
+             {"side"},
+             {"quantity", Align::right},
+             {"est. price", Align::right},
+             {"est. value", Align::right},
+             {"est. fee", Align::right, false, 1},
+             {"now", Align::right, false, 2},
+             {"target", Align::right},
+             {"reason", Align::left, true}});
+    for (const auto& o : p.plan.orders) {
+      t.add_row({o.account, o.symbol, std::string(rules::to_string(o.side)), o.quantity.str(),
+                 o.price.str(), money(o.value), money(o.fee), pct(o.weight_now),
+                 pct(o.weight_target), o.reason});
+      for (const auto& l : o.lots)
+        t.add_row({"", "", "", l.quantity.str(), "", "", "", "", "",
+                   fmt::format("  lot {} acquired {}: cost {}, est. gain {} ({}-term)", l.lot_id,
+                               l.acquired.str(), money(l.cost), money(l.est_gain),
+                               l.long_term ? "long" : "short")});
+    }
+    s += t.render(style) + "\n";
+  }
+
+  s += "3. Result\n";
+  Table w({{"symbol"},
+           {"value after", Align::right},
+           {"weight", Align::right},
+           {"target", Align::right}});
+  for (const auto& x : p.plan.weights_after)
+    w.add_row({x.symbol, money(x.value), pct(x.weight), pct(x.target)});
+  for (const auto& c : p.plan.cash_after)
+    w.add_row({"(cash) " + c.account, money(c.cash), "",
+               c.reserve.is_zero() ? "" : "reserve " + money(c.reserve)});
+  s += w.render(style);
+  s += fmt::format("Cash after: {}; turnover {}; estimated fees {}\n",
+                   money(p.plan.cash_after_total), pct(p.plan.turnover),
+                   money(p.plan.estimated_fees));
+  if (!p.plan.skipped.empty()) {
+    s += "Not traded:\n";
+    for (const auto& k : p.plan.skipped)
+      s += fmt::format("  {}: {}\n", printable(k.symbol), printable(k.why));
+  }
+  for (const auto& n : p.notes) s += fmt::format("Note: {}\n", printable(n));
+  s += "\nCautions:\n";
+  for (const auto& c : p.cautions) s += "  - " + c + "\n";
+  return s;
+}
+
+std::string proposals_list_json(const std::vector<store::ProposalRow>& all) {
+  std::string s;
+  JsonWriter j(s);
+  begin_document(j, "proposals-list", 1).key("proposals").begin_array();
+  for (const auto& p : all) {
+    j.begin_object();
+    j.member("id", static_cast<long long>(p.id)).member("as_of", p.as_of.str());
+    j.member("rule", p.rule_name).member("rule_file", p.rule_file);
+    j.member("rule_sha256", p.rule_sha256).member("pool_value", p.pool_value);
+    j.member("orders", static_cast<unsigned long long>(p.order_count));
+    j.member("saved_at", p.saved_at);
+    j.end_object();
+  }
+  j.end_array().end_object();
+  return s + "\n";
+}
+
+std::string proposals_list_text(const std::vector<store::ProposalRow>& all, const Style& style) {
+  Table t({{"id", Align::right},
+           {"as of"},
+           {"rule", Align::left, true},
+           {"orders", Align::right},
+           {"pool value", Align::right},
+           {"rule sha256", Align::left, false, 2},
+           {"saved at", Align::left, false, 1}});
+  for (const auto& p : all)
+    t.add_row({std::to_string(p.id), p.as_of.str(), p.rule_name, std::to_string(p.order_count),
+               money(p.pool_value), p.rule_sha256.substr(0, 12), p.saved_at});
+  return t.render(style);
+}
+
+std::string review_json(const rules::Review& r) {
+  const auto& p = r.proposal;
+  std::string s;
+  JsonWriter j(s);
+  begin_document(j, "proposal", 1);
+  j.member("id", static_cast<long long>(p.id)).member("as_of", p.as_of.str());
+  j.member("rule", p.rule_name).member("rule_file", p.rule_file);
+  j.member("rule_sha256", p.rule_sha256).member("pool_value", p.pool_value);
+  j.member("saved_at", p.saved_at);
+  j.key("lines").begin_array();
+  for (const auto& l : r.lines) {
+    j.begin_object();
+    j.member("account", l.account).member("symbol", l.symbol).member("side", l.side);
+    j.member("proposed", l.proposed).member("est_price", l.est_price);
+    j.member("traded", l.traded).member("avg_price", l.avg_price);
+    j.member("status", l.status);
+    j.end_object();
+  }
+  j.end_array();
+  j.member("cautions", rules::proposal_cautions(p.as_of));
+  j.end_object();
+  return s + "\n";
+}
+
+std::string review_text(const rules::Review& r, const Style& style) {
+  const auto& p = r.proposal;
+  std::string s = fmt::format("Proposal {} of rule '{}' as of {}, saved {}\n", p.id,
+                              printable(p.rule_name), p.as_of.str(), p.saved_at);
+  s += fmt::format("Rule file {} (sha256 {}); pool value {}\n\n", printable(p.rule_file),
+                   p.rule_sha256, money(p.pool_value));
+  Table t({{"account", Align::left, true},
+           {"symbol"},
+           {"side"},
+           {"proposed", Align::right},
+           {"est. price", Align::right},
+           {"traded since", Align::right},
+           {"avg. price", Align::right},
+           {"status"}});
+  for (const auto& l : r.lines)
+    t.add_row({l.account, l.symbol, l.side, l.proposed.is_zero() ? "" : l.proposed.str(),
+               l.est_price.is_zero() ? "" : l.est_price.str(), l.traded.str(),
+               l.avg_price ? l.avg_price->str() : "", l.status});
+  if (r.lines.empty())
+    s += "The proposal had no orders and nothing was traded since.\n";
+  else
+    s += t.render(style);
+  s += "\nThe proposal was the output of your own rule, not advice; past results do not predict "
+       "future ones.\n";
+  return s;
+}
+
+}  // namespace keel::report

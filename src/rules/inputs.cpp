@@ -1,0 +1,218 @@
+#include "rules/inputs.h"
+
+#include <fmt/format.h>
+#include <fmt/ranges.h>
+
+#include <algorithm>
+#include <map>
+#include <stdexcept>
+
+#include "core/error.h"
+#include "core/text.h"
+#include "market/series.h"
+
+namespace keel::rules {
+
+std::optional<std::string> keep_currency(const Rule& rule, const std::string& currency,
+                                         const std::vector<const Security*>& sleeves,
+                                         std::vector<const Security*>& universe) {
+  auto refuse = [&](std::string_view key, const Security& s) {
+    rule.fail(key, fmt::format("{} is priced in {} and the rule trades in {}; keel does not "
+                               "convert between currencies yet",
+                               printable(s.symbol), s.currency, currency));
+  };
+  for (const Security* s : sleeves)
+    if (s->currency != currency) refuse("sleeve.symbol", *s);
+  if (rule.universe == Universe::list) {
+    for (const Security* s : universe)
+      if (s->currency != currency) refuse("scope.symbols", *s);
+    return std::nullopt;
+  }
+  const auto kept = std::stable_partition(
+      universe.begin(), universe.end(), [&](const Security* s) { return s->currency == currency; });
+  const auto left_out = static_cast<std::size_t>(universe.end() - kept);
+  universe.erase(kept, universe.end());
+  if (left_out == 0) return std::nullopt;
+  return fmt::format(
+      "{} stock{} priced in other currencies than {} {} left out of the universe "
+      "(keel does not convert between currencies yet)",
+      left_out, left_out == 1 ? "" : "s", currency, left_out == 1 ? "is" : "are");
+}
+
+Inputs::Inputs(const Rule& rule, const market::View& view, std::optional<std::string> currency)
+    : rule_(rule), currency_(std::move(currency)) {
+  auto find = [&](const std::string& symbol, std::string_view key) {
+    const Security* s = view.security(symbol);
+    if (!s) rule.fail(key, fmt::format("no security '{}' in the ledger", printable(symbol)));
+    return s->id;
+  };
+  for (const auto& sl : rule.weights.sleeves) sleeves_.push_back(find(sl.symbol, "sleeve.symbol"));
+  std::map<std::string, std::int64_t> chosen;  // by symbol
+  if (rule.universe == Universe::list) {
+    for (const auto& sym : rule.symbols) chosen[sym] = find(sym, "scope.symbols");
+  } else {
+    for (const auto& s : view.securities()) {
+      if (s.kind != SecurityKind::stock) continue;
+      if (std::find(sleeves_.begin(), sleeves_.end(), s.id) != sleeves_.end()) continue;
+      if (rule.universe == Universe::all_stocks || (s.sector && *s.sector == rule.sector))
+        chosen[s.symbol] = s.id;
+    }
+    if (chosen.empty() && rule.universe == Universe::sector) {
+      const auto sectors = view.sectors();
+      rule.fail("scope.sector",
+                fmt::format("no stock in the ledger has sector '{}'{}", printable(rule.sector),
+                            sectors.empty() ? "" : " (sectors: " + printable_list(sectors) + ")"));
+    }
+    if (chosen.empty())
+      throw InputError(fmt::format(
+          "{}: the universe is every stock in the ledger, and the ledger holds none; import "
+          "securities first",
+          printable(rule.source)));
+  }
+  std::vector<const Security*> universe, sleeves;
+  for (const auto& [symbol, id] : chosen) universe.push_back(view.security(id));
+  for (const std::int64_t id : sleeves_) sleeves.push_back(view.security(id));
+  if (!currency_ && !sleeves.empty()) currency_ = sleeves.front()->currency;
+  if (!currency_) {
+    std::set<std::string> seen;
+    for (const Security* s : universe) seen.insert(s->currency);
+    if (seen.size() > 1)
+      rule.fail("scope", fmt::format("the universe holds stocks priced in {}; keel does not "
+                                     "convert between currencies yet: narrow it to one with "
+                                     "scope.sector or scope.symbols",
+                                     fmt::join(seen, ", ")));
+    if (!seen.empty()) currency_ = *seen.begin();
+  }
+  if (currency_)
+    if (auto note = keep_currency(rule, *currency_, sleeves, universe))
+      notes_.push_back(std::move(*note));
+  for (const Security* s : universe) {
+    universe_.push_back(s->id);
+    symbols_.push_back(s->symbol);
+  }
+
+  const auto names = view.metric_names();
+  if (std::find(names.begin(), names.end(), rule.screen.metric) == names.end()) {
+    std::string why =
+        fmt::format("the ledger holds no figures for metric '{}'", printable(rule.screen.metric));
+    if (auto near = nearest(rule.screen.metric, names))
+      why += fmt::format("; did you mean '{}'?", printable(*near));
+    else if (!names.empty())
+      why += fmt::format(" (stored metrics: {})", printable_list(names));
+    else
+      why += "; import metrics first ('keel import metrics FILE')";
+    rule.fail("screen.metric", why);
+  }
+}
+
+std::vector<std::int64_t> Inputs::securities() const {
+  std::vector<std::int64_t> out = universe_;
+  out.insert(out.end(), sleeves_.begin(), sleeves_.end());
+  return out;
+}
+
+std::vector<Candidate> Inputs::candidates(const market::View& view, Date day,
+                                          const std::set<std::int64_t>& held) const {
+  std::vector<Candidate> out;
+  out.reserve(universe_.size());
+  if (const auto* series = dynamic_cast<const market::Series*>(&view)) {
+    // Preloaded: the figures by the series' cursor, closes from the grid.
+    auto& figures = series->cursor(rule_.screen.metric);
+    figures.advance_to(day);
+    const std::size_t row = series->row(day);
+    for (std::size_t i = 0; i < universe_.size(); ++i) {
+      const std::int64_t id = universe_[i];
+      const int col = series->column(id);
+      if (col < 0)
+        throw std::out_of_range(fmt::format("rules::Inputs: security {} is not loaded", id));
+      Candidate c;
+      c.security_id = id;
+      c.symbol = symbols_[i];
+      c.held = held.count(id) > 0;
+      if (const auto* f = figures.at(col)) {
+        c.figure = Figure{f->value, f->period, f->known_on};
+        c.has_price = series->has(row, col);
+      }
+      out.push_back(std::move(c));
+    }
+    return out;
+  }
+  for (std::size_t i = 0; i < universe_.size(); ++i) {
+    const std::int64_t id = universe_[i];
+    Candidate c;
+    c.security_id = id;
+    c.symbol = symbols_[i];
+    c.held = held.count(id) > 0;
+    if (auto f = view.figure(id, rule_.screen.metric, day)) {
+      c.figure = Figure{std::move(f->value), f->period, f->known_on};
+      c.has_price = view.has_close(id, day);
+    }
+    out.push_back(std::move(c));
+  }
+  return out;
+}
+
+Selection Inputs::select(const market::View& view, Date day, const std::set<std::int64_t>& held,
+                         Explain explain) const {
+  Selection out;
+  out.screen = screen(rule_, day, candidates(view, day, held), explain);
+  auto chosen = targets(rule_, out.screen, sleeves_);
+  out.refusal = std::move(chosen.refusal);
+  out.targets = std::move(chosen.list);
+  if (out.refusal) return out;
+  // Held names outside the universe leave the pool.
+  std::set<std::int64_t> targeted;
+  for (const auto& t : out.targets) targeted.insert(t.security_id);
+  for (const std::int64_t id : held)
+    if (!targeted.count(id))
+      out.targets.push_back(Target{id, view.security(id)->symbol, Decimal(), false, std::nullopt,
+                                   true, "not in the rule's universe"});
+  for (std::size_t i = 0; i < sleeves_.size(); ++i)
+    if (!view.has_close(sleeves_[i], day))
+      rule_.fail("sleeve.symbol",
+                 fmt::format("sleeve '{}' has no close on or before {}",
+                             printable(rule_.weights.sleeves[i].symbol), day.str()));
+  return out;
+}
+
+Quotes Inputs::quotes(const market::View& view, Date day, const std::vector<Target>& targets,
+                      const std::set<std::int64_t>& held, const LastTrade& last_trade,
+                      std::vector<std::string>& notes) const {
+  Quotes quotes;
+  auto add = [&](std::int64_t id, bool wanted) {
+    if (quotes.count(id)) return;
+    const Security& s = *view.security(id);
+    Quote q;
+    q.symbol = s.symbol;
+    q.lot_size = s.lot_size;
+    const auto trade = last_trade ? last_trade(id) : std::nullopt;
+    if (const auto c = view.close(id, day); c && trade && trade->day > c->day) {
+      // Traded after its latest close: the trade is the fresher price.
+      q.price = trade->price;
+      notes.push_back(
+          fmt::format("{}: valued at its trade price {} of {}, later than its "
+                      "latest close ({})",
+                      printable(s.symbol), trade->price.str(), trade->day.str(), c->day.str()));
+    } else if (c) {
+      q.price = c->price;
+      if (day - c->day > kOldCloseDays && (wanted || held.count(id)))
+        notes.push_back(fmt::format("{}: the latest close on or before {} is from {}",
+                                    printable(s.symbol), day.str(), c->day.str()));
+    } else {
+      if (!last_trade)
+        throw std::logic_error(
+            fmt::format("rules::Inputs: no close for security {} on {}", id, day.str()));
+      q.tradable = false;
+      q.price = trade ? trade->price : Decimal();
+      notes.push_back(fmt::format(
+          "{}: no close on or before {}; valued at {}", printable(s.symbol), day.str(),
+          trade ? "its last trade price " + trade->price.str() : "zero (it never traded)"));
+    }
+    quotes.emplace(id, std::move(q));
+  };
+  for (const auto& t : targets) add(t.security_id, t.weight.is_positive());
+  for (const std::int64_t id : held) add(id, false);
+  return quotes;
+}
+
+}  // namespace keel::rules

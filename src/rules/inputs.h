@@ -1,0 +1,106 @@
+// Inputs: a rule meeting the market data, built one way for `keel propose`,
+// `keel backtest` and `keel signal` (every step and message lives here once).
+//
+// Contract
+//  - Inputs(rule, view) resolves the universe (the rule's symbols; else every
+//    stock of the ledger that is not a sleeve, or of the rule's sector; by
+//    symbol) and the sleeves (in the rule's order) against view.securities(),
+//    and checks that the rule's metric has stored figures. Problems are
+//    InputErrors located at the rule key (Rule::fail):
+//      scope.symbols, sleeve.symbol: no security 'X' in the ledger
+//      scope.sector: no stock in the ledger has sector 'X' (sectors: A, B)
+//      screen.metric: the ledger holds no figures for metric 'X'; then
+//        "did you mean 'Y'?", or the stored metrics, or how to import some
+//    and a universe of every stock in a ledger without any is refused too.
+//  - The rule trades in one currency (keel does not convert between
+//    currencies yet): `currency` when given (the accounts' or the ledger's),
+//    else the first sleeve's, else the one its universe shares; a universe in
+//    several currencies with none of these is refused at scope. Then
+//    keep_currency() applies; its note is in notes(). Checked after the
+//    universe and before the metric.
+//  - select(view, day, held): the engine's screen and targets on what the
+//    view knew on `day` (rules/engine.h); held names outside the targets are
+//    added as exits ("not in the rule's universe"). A day on which the rule
+//    holds nothing is a normal result with its refusal. When the rule holds
+//    something, every sleeve must have a close on or before the day
+//    (InputError at sleeve.symbol otherwise).
+//  - quotes(view, day, targets, held, last_trade, notes): a quote for every
+//    target and held name at its close on or before `day`; when the ledger
+//    traded it after that close, at the trade's price (fresher), with a note;
+//    without a close, at last_trade(id)'s price (never traded) and a note
+//    says so. An empty last_trade means no name can lack a close (a
+//    simulated pool buys only at closes): std::logic_error if one does. A close older
+//    than kOldCloseDays gets a note when the name is bought or held.
+//  - Views are asked in the order of the days given; a market::Series needs
+//    them not to go back in time between calls.
+#pragma once
+
+#include <cstdint>
+#include <functional>
+#include <optional>
+#include <set>
+#include <string>
+#include <vector>
+
+#include "core/date.h"
+#include "market/view.h"
+#include "rules/engine.h"
+#include "rules/rule.h"
+
+namespace keel::rules {
+
+struct Selection {
+  ScreenResult screen;
+  std::vector<Target> targets;     // empty when refused
+  std::optional<Refusal> refusal;  // why the rule holds nothing on the day
+};
+
+class Inputs {
+ public:
+  static constexpr int kOldCloseDays = 7;
+
+  Inputs(const Rule& rule, const market::View& view,
+         std::optional<std::string> currency = std::nullopt);
+
+  const std::vector<std::int64_t>& universe() const { return universe_; }
+  const std::vector<std::int64_t>& sleeves() const { return sleeves_; }
+  // The currency the rule trades in; unset only when nothing has one.
+  const std::optional<std::string>& currency() const { return currency_; }
+  // Notes about the universe (stocks left out for their currency).
+  const std::vector<std::string>& notes() const { return notes_; }
+  // The universe and the sleeves: what a preloaded view must hold.
+  std::vector<std::int64_t> securities() const;
+
+  // What the engine may know on `day`: one candidate per universe name.
+  std::vector<Candidate> candidates(const market::View& view, Date day,
+                                    const std::set<std::int64_t>& held) const;
+  Selection select(const market::View& view, Date day, const std::set<std::int64_t>& held,
+                   Explain explain = Explain::all) const;
+
+  struct Trade {
+    Date day;
+    Decimal price;
+  };
+  using LastTrade = std::function<std::optional<Trade>(std::int64_t security_id)>;
+  Quotes quotes(const market::View& view, Date day, const std::vector<Target>& targets,
+                const std::set<std::int64_t>& held, const LastTrade& last_trade,
+                std::vector<std::string>& notes) const;
+
+ private:
+  const Rule& rule_;
+  std::vector<std::int64_t> universe_;
+  std::vector<std::string> symbols_;  // of the universe
+  std::vector<std::int64_t> sleeves_;
+  std::optional<std::string> currency_;
+  std::vector<std::string> notes_;
+};
+
+// A rule trades in one currency (keel does not convert between currencies
+// yet): a sleeve or a listed symbol priced in another than `currency` is
+// refused at its key; stocks of the whole ledger or of a sector priced in
+// another are left out of `universe`, and the note returned says how many.
+std::optional<std::string> keep_currency(const Rule& rule, const std::string& currency,
+                                         const std::vector<const Security*>& sleeves,
+                                         std::vector<const Security*>& universe);
+
+}  // namespace keel::rules

@@ -1,0 +1,96 @@
+// The steps of rules::orders() (rules/engine.h), each with its own contract
+// and tests (tests/unit/rules_order_steps_test.cpp). orders() runs them in
+// this order for each guess of the plan's own fees:
+//
+//  1. value_pool(): each account's value at the quotes; its cash reserve is
+//     reserve_pct of its value less the fee guess, to the cent; the invested
+//     target is the pool's value less the fee guesses and the reserves.
+//  2. work_list(): every security the plan touches (the targets in their
+//     order, then other positive holdings by symbol) with its value now, its
+//     target value (to the cent) and both as weights of the pool (6 places).
+//  3. decide(): for one name, nothing (at target), a skip with its reason
+//     (no close; inside the drift band; a sell of less than one lot or below
+//     the minimum trade), a buy of a value, or a sell of units (all of them
+//     for an exit, else the whole steps that bring it down to target).
+//  4. sell_orders(): a sell's units taken from the pool's lots in the rule's
+//     order (highest cost, longest held, or losses first, then long-term
+//     before short-term gains), one order per account, with the lots taken
+//     and their cost to the cent.
+//  5. buy_orders(): the cash above the reserves shared among the buys in
+//     proportion to what each needs (fees included), then what rounding left
+//     filled largest gap first, never past a target; accounts holding the
+//     name first, then by cash to spend.
+//  6. summarize(): fees, turnover, cash after and weights after the orders.
+// Money is exact (Decimal) throughout; nothing is rounded but where a trade
+// or a reserve must be.
+#pragma once
+
+#include <cstdint>
+#include <map>
+#include <string>
+#include <vector>
+
+#include "rules/engine.h"
+
+namespace keel::rules::steps {
+
+struct PoolValue {
+  Decimal value;                 // cash and holdings at the quotes
+  Decimal invested_target;       // value less the fee guesses and the reserves
+  std::vector<Decimal> cash;     // per account
+  std::vector<Decimal> reserve;  // per account, to the cent
+};
+PoolValue value_pool(const Portfolio& portfolio, const Quotes& quotes, const TradingRule& trading,
+                     const std::vector<Decimal>& fee_guess);
+
+struct Work {
+  std::int64_t security_id = 0;
+  const Quote* quote = nullptr;
+  const Target* target = nullptr;  // null: held, not among the targets
+  Decimal held;                    // units across the pool's accounts
+  Decimal now_value;
+  Decimal target_value;
+  Decimal w_now, w_target;
+  std::string why;
+};
+std::vector<Work> work_list(const Portfolio& portfolio, const std::vector<Target>& targets,
+                            const Quotes& quotes, const PoolValue& pool);
+
+struct Decision {
+  enum class Kind { none, skip, buy, sell };
+  Kind kind = Kind::none;
+  std::string why;     // skip: the reason
+  Decimal buy_value;   // buy: the value wanted
+  Decimal sell_units;  // sell: the units
+  std::string reason;  // buy and sell: the order's reason
+};
+// Explain::none leaves the reasons empty (for runs that do not show them).
+Decision decide(const Work& work, const TradingRule& trading, Date as_of,
+                Explain explain = Explain::all);
+
+// Quantities are in whole steps of this size: the lot size, or 10^-4 units
+// when the rule trades fractions.
+Decimal step_of(const Quote& quote, const TradingRule& trading);
+
+std::vector<Order> sell_orders(const Work& work, const Decimal& units, const std::string& reason,
+                               const Portfolio& portfolio, const TradingRule& trading, Date as_of);
+
+struct BuyWish {
+  const Work* work = nullptr;
+  Decimal want;  // value
+  std::string reason;
+};
+// Orders for the buys and the skips of buys that got nothing; `cash` (per
+// account) is spent as the orders are made.
+struct Buys {
+  std::vector<Order> orders;  // by buy, then account
+  std::vector<Skipped> skipped;
+};
+Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
+                std::vector<Decimal>& cash, const std::vector<Decimal>& reserve,
+                const TradingRule& trading, Explain explain = Explain::all);
+
+void summarize(OrderPlan& plan, const Portfolio& portfolio, const std::vector<Work>& work,
+               const PoolValue& pool);
+
+}  // namespace keel::rules::steps

@@ -1,0 +1,514 @@
+// rules::orders() and rules::apply(), in the named steps of
+// rules/order_steps.h.
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <map>
+#include <optional>
+#include <stdexcept>
+
+#include "ledger/holdings.h"
+#include "rules/engine.h"
+#include "rules/order_steps.h"
+
+namespace keel::rules {
+
+std::string_view to_string(Side side) {
+  return side == Side::buy ? "buy" : "sell";
+}
+
+namespace steps {
+namespace {
+
+// Constants parsed once: 1 basis point and 1 percent as fractions.
+const Decimal& basis_point() {
+  static const Decimal bp = Decimal::parse("0.0001");
+  return bp;
+}
+const Decimal& one_percent() {
+  static const Decimal pc = Decimal::parse("0.01");
+  return pc;
+}
+
+std::string pct(const Decimal& fraction) {
+  return (fraction * Decimal(100)).fixed(2) + "%";
+}
+
+const Quote& quote_of(const Quotes& quotes, std::int64_t id) {
+  const auto it = quotes.find(id);
+  if (it == quotes.end())
+    throw std::invalid_argument(fmt::format("rules::orders: no quote for security {}", id));
+  return it->second;
+}
+
+Decimal held_in(const Portfolio& portfolio, std::size_t a, std::int64_t id) {
+  const auto& holdings = portfolio.accounts[a].holdings;
+  const auto it = holdings.find(id);
+  return it == holdings.end() ? Decimal() : it->second.quantity;
+}
+
+Decimal floor_to(const Decimal& x, const Decimal& step) {
+  if (!x.is_positive()) return Decimal();
+  return Decimal::divide(x, step, 10).floored(0) * step;
+}
+
+// The most units, in whole steps, whose value at `price` is at most `value`.
+Decimal units_within(const Decimal& value, const Decimal& price, const Decimal& step) {
+  if (!price.is_positive()) return Decimal();
+  Decimal q = floor_to(Decimal::divide(value, price, 10), step);
+  while (q.is_positive() && q * price > value) q -= step;
+  return q;
+}
+
+// Compares unit costs c1/q1 > c2/q2 exactly.
+bool dearer(const LotState& a, const LotState& b) {
+  return a.cost * b.quantity > b.cost * a.quantity;
+}
+
+Order make_order(const Work& x, const Portfolio& portfolio, std::size_t account, Side side,
+                 const Decimal& qty, std::string reason, const TradingRule& trading) {
+  Order o;
+  o.account_id = portfolio.accounts[account].id;
+  o.account = portfolio.accounts[account].name;
+  o.security_id = x.security_id;
+  o.symbol = x.quote->symbol;
+  o.side = side;
+  o.quantity = qty;
+  o.price = x.quote->price;
+  o.value = qty * x.quote->price;
+  o.fee = trading.fee(o.value);
+  o.weight_now = x.w_now;
+  o.weight_target = x.w_target;
+  o.reason = std::move(reason);
+  return o;
+}
+
+}  // namespace
+
+Decimal step_of(const Quote& quote, const TradingRule& trading) {
+  static const Decimal fraction_step = Decimal::parse("0.0001");  // 10^-kFractionPlaces
+  return trading.fractional ? fraction_step : quote.lot_size;
+}
+
+PoolValue value_pool(const Portfolio& portfolio, const Quotes& quotes, const TradingRule& trading,
+                     const std::vector<Decimal>& fee_guess) {
+  PoolValue pool;
+  Decimal after_fees, reserves;
+  for (std::size_t a = 0; a < portfolio.accounts.size(); ++a) {
+    const auto& acct = portfolio.accounts[a];
+    Decimal value = acct.cash;
+    for (const auto& [id, h] : acct.holdings) value += h.quantity * quote_of(quotes, id).price;
+    pool.value += value;
+    const Decimal net = value - fee_guess[a];
+    after_fees += net;
+    pool.cash.push_back(acct.cash);
+    // Money: the reserve is set to the cent, half-to-even.
+    pool.reserve.push_back(net.is_positive()
+                               ? (net * trading.cash_reserve_pct * one_percent()).rounded(2)
+                               : Decimal());
+    reserves += pool.reserve.back();
+  }
+  pool.invested_target = after_fees - reserves;
+  return pool;
+}
+
+std::vector<Work> work_list(const Portfolio& portfolio, const std::vector<Target>& targets,
+                            const Quotes& quotes, const PoolValue& pool) {
+  std::vector<Work> work;
+  std::map<std::int64_t, std::size_t> index;
+  for (const auto& t : targets) {
+    if (index.count(t.security_id)) continue;
+    index[t.security_id] = work.size();
+    Work w;
+    w.security_id = t.security_id;
+    w.quote = &quote_of(quotes, t.security_id);
+    w.target = &t;
+    w.why = t.why;
+    work.push_back(std::move(w));
+  }
+  std::map<std::string, std::int64_t> others;  // by symbol
+  for (const auto& acct : portfolio.accounts)
+    for (const auto& [id, h] : acct.holdings)
+      if (!index.count(id) && h.quantity.is_positive()) others[quote_of(quotes, id).symbol] = id;
+  for (const auto& [symbol, id] : others) {
+    index[id] = work.size();
+    Work w;
+    w.security_id = id;
+    w.quote = &quote_of(quotes, id);
+    w.why = "not among the rule's targets";
+    work.push_back(std::move(w));
+  }
+  for (auto& x : work) {
+    for (std::size_t a = 0; a < portfolio.accounts.size(); ++a)
+      x.held += held_in(portfolio, a, x.security_id);
+    x.now_value = x.held * x.quote->price;
+    const Decimal weight = x.target ? x.target->weight : Decimal();
+    // Money: a target value is set to the cent.
+    x.target_value = (weight * pool.invested_target).rounded(2);
+    x.w_now = Decimal::divide(x.now_value, pool.value, 6);
+    x.w_target = Decimal::divide(x.target_value, pool.value, 6);
+  }
+  return work;
+}
+
+Decision decide(const Work& x, const TradingRule& trading, Date as_of, Explain explain) {
+  Decision d;
+  const Decimal diff = x.target_value - x.now_value;
+  if (diff.is_zero()) return d;
+  const bool words = explain == Explain::all;
+  // Reasons are formatted only when they are shown.
+  auto skip = [&](auto why) {
+    d.kind = Decision::Kind::skip;
+    if (words) d.why = why();
+    return d;
+  };
+  if (!x.quote->tradable)
+    return skip([&] {
+      return fmt::format("no close on or before {}; valued at the last trade price, not traded",
+                         as_of.str());
+    });
+  if (x.now_value.is_positive() && x.target_value.is_positive()) {
+    // The drift band applies to names that stay; entries and exits always trade.
+    const Decimal gap = (x.w_now - x.w_target).abs();
+    const bool pp_on = trading.drift_pct_points.is_positive();
+    const bool rel_on = trading.drift_rel_pct.is_positive();
+    const bool outside = (!pp_on && !rel_on) ||
+                         (pp_on && gap * Decimal(100) > trading.drift_pct_points) ||
+                         (rel_on && gap * Decimal(100) > trading.drift_rel_pct * x.w_target);
+    if (!outside)
+      return skip([&] {
+        return fmt::format("within the drift band: {} now, target {}", pct(x.w_now),
+                           pct(x.w_target));
+      });
+  }
+  if (diff.is_positive()) {
+    d.kind = Decision::Kind::buy;
+    d.buy_value = diff;
+    if (words)
+      d.reason = fmt::format("{}: {}", x.why,
+                             x.now_value.is_positive() ? "add to target" : "new position");
+    return d;
+  }
+  const Decimal step = step_of(*x.quote, trading);
+  const bool exit = !x.target_value.is_positive();
+  const Decimal qty = exit ? x.held : std::min(x.held, units_within(-diff, x.quote->price, step));
+  if (!qty.is_positive())
+    return skip([&] {
+      return fmt::format("{} above target is less than one lot ({})", (-diff).fixed(2), step.str());
+    });
+  if (!exit && qty * x.quote->price < trading.min_trade)
+    return skip([&] {
+      return fmt::format("a sell of {} is below the minimum trade ({})",
+                         (qty * x.quote->price).fixed(2), trading.min_trade.str());
+    });
+  d.kind = Decision::Kind::sell;
+  d.sell_units = qty;
+  if (words) d.reason = fmt::format("{}: {}", x.why, exit ? "sell all" : "trim to target");
+  return d;
+}
+
+std::vector<Order> sell_orders(const Work& x, const Decimal& units, const std::string& reason,
+                               const Portfolio& portfolio, const TradingRule& trading, Date as_of) {
+  // Lots across the pool's accounts, in the rule's order of preference.
+  struct Pick {
+    std::size_t account;
+    LotState lot;
+    bool real;
+  };
+  std::vector<Pick> picks;
+  for (std::size_t a = 0; a < portfolio.accounts.size(); ++a) {
+    const auto it = portfolio.accounts[a].holdings.find(x.security_id);
+    if (it == portfolio.accounts[a].holdings.end()) continue;
+    if (it->second.lots.empty())
+      picks.push_back({a, LotState{0, as_of, it->second.quantity, Decimal()}, false});
+    for (const auto& lot : it->second.lots) picks.push_back({a, lot, true});
+  }
+  const Decimal price = x.quote->price;
+  auto rank = [&](const Pick& p) {
+    if (trading.lot_order != LotOrder::losses_first) return 0;
+    if (p.lot.cost > p.lot.quantity * price) return 0;  // at a loss
+    return ledger::held_long_term(p.lot.acquired, as_of) ? 1 : 2;
+  };
+  std::stable_sort(picks.begin(), picks.end(), [&](const Pick& a, const Pick& b) {
+    if (a.real != b.real) return a.real;  // lots without detail go last
+    if (!a.real) return false;
+    if (trading.lot_order == LotOrder::long_held) {
+      if (a.lot.acquired != b.lot.acquired) return a.lot.acquired < b.lot.acquired;
+      return dearer(a.lot, b.lot);
+    }
+    if (rank(a) != rank(b)) return rank(a) < rank(b);
+    if (dearer(a.lot, b.lot) != dearer(b.lot, a.lot)) return dearer(a.lot, b.lot);
+    return a.lot.acquired < b.lot.acquired;
+  });
+  std::map<std::size_t, Order> by_account;
+  Decimal remaining = units;
+  for (const auto& p : picks) {
+    if (!remaining.is_positive()) break;
+    const Decimal take = std::min(remaining, p.lot.quantity);
+    remaining -= take;
+    auto [it, fresh] = by_account.try_emplace(p.account);
+    if (fresh)
+      it->second = make_order(x, portfolio, p.account, Side::sell, Decimal(), reason, trading);
+    it->second.quantity += take;
+    if (p.real) {
+      // Basis of the part taken, exactly as the ledger will cut the lot.
+      const Decimal cost = cost_share(p.lot.cost, take, p.lot.quantity);
+      it->second.lots.push_back(LotTake{p.lot.lot_id, p.lot.acquired, take, cost,
+                                        take * price - cost,
+                                        ledger::held_long_term(p.lot.acquired, as_of)});
+    }
+  }
+  std::vector<Order> out;
+  for (auto& [a, o] : by_account) {
+    o.value = o.quantity * o.price;
+    o.fee = trading.fee(o.value);
+    out.push_back(std::move(o));
+  }
+  return out;
+}
+
+Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
+                std::vector<Decimal>& cash, const std::vector<Decimal>& reserve,
+                const TradingRule& trading, Explain explain) {
+  const bool words = explain == Explain::all;
+  struct Buy {
+    const BuyWish* wish = nullptr;
+    std::string why_none = "no cash left above the reserve";
+    std::map<std::size_t, Order> by_account;
+    Decimal bought() const {
+      Decimal v;
+      for (const auto& [a, o] : by_account) v += o.value;
+      return v;
+    }
+  };
+  std::vector<Buy> buys;
+  for (const auto& w : wishes) {
+    buys.emplace_back();
+    buys.back().wish = &w;
+  }
+  const std::size_t n_accounts = portfolio.accounts.size();
+
+  // First the cash above the reserves is shared in proportion to what each
+  // buy needs; then what rounding left is filled greedily, largest gap
+  // first, never past a target. After that no buy can take another lot.
+  std::vector<Decimal> spendable;
+  Decimal total_spendable;
+  for (std::size_t a = 0; a < n_accounts; ++a) {
+    spendable.push_back(std::max(Decimal(), cash[a] - reserve[a]));
+    total_spendable += spendable.back();
+  }
+  Decimal need;
+  for (const auto& w : wishes) need += w.want + trading.fee(w.want);
+  const Decimal factor =
+      need > total_spendable ? Decimal::divide(total_spendable, need, 12) : Decimal(1);
+
+  // Accounts for a buy: those holding the name (largest holding first), then
+  // the others by cash to spend.
+  auto account_order = [&](std::int64_t id) {
+    std::vector<std::size_t> order;
+    for (std::size_t a = 0; a < n_accounts; ++a) order.push_back(a);
+    std::stable_sort(order.begin(), order.end(), [&](std::size_t a, std::size_t c) {
+      const Decimal ha = held_in(portfolio, a, id), hc = held_in(portfolio, c, id);
+      if (ha != hc) return ha > hc;
+      return spendable[a] > spendable[c];
+    });
+    return order;
+  };
+  // Adds to `b` in account `a` at most `max_q` units costing at most `budget`
+  // (fees included); returns the amount spent. An order's value stays at or
+  // above the minimum trade.
+  auto add = [&](Buy& b, std::size_t a, const Decimal& budget,
+                 const std::optional<Decimal>& max_q) -> Decimal {
+    const Work& x = *b.wish->work;
+    const Decimal step = step_of(*x.quote, trading);
+    const Decimal price = x.quote->price;
+    auto it = b.by_account.find(a);
+    const Decimal have_q = it == b.by_account.end() ? Decimal() : it->second.quantity;
+    const Decimal have_cost =
+        it == b.by_account.end() ? Decimal() : it->second.value + it->second.fee;
+    const Decimal limit = std::min(budget, spendable[a]);
+    // Largest added quantity whose order (value + fee) grows by at most `limit`.
+    const Decimal unit = price * (Decimal(1) + trading.fee_bps * basis_point());
+    Decimal q =
+        floor_to(Decimal::divide(limit + have_cost - trading.fee_fixed, unit, 10), step) - have_q;
+    auto grown = [&](const Decimal& add_q) {
+      const Decimal v = (have_q + add_q) * price;
+      return v + trading.fee(v) - have_cost;
+    };
+    if (max_q && q > *max_q) q = *max_q;
+    while (q.is_positive() && grown(q) > limit) q -= step;
+    if (!q.is_positive()) {
+      if (words)
+        b.why_none = fmt::format("less than one lot ({} at {}) fits the cash to spend", step.str(),
+                                 price.str());
+      return Decimal();
+    }
+    if ((have_q + q) * price < trading.min_trade) {
+      if (words)
+        b.why_none = fmt::format("a buy of {} is below the minimum trade ({})",
+                                 ((have_q + q) * price).fixed(2), trading.min_trade.str());
+      return Decimal();
+    }
+    const Decimal spent = grown(q);
+    if (it == b.by_account.end())
+      it = b.by_account
+               .emplace(a,
+                        make_order(x, portfolio, a, Side::buy, Decimal(), b.wish->reason, trading))
+               .first;
+    it->second.quantity = have_q + q;
+    it->second.value = it->second.quantity * price;
+    it->second.fee = trading.fee(it->second.value);
+    spendable[a] -= spent;
+    cash[a] -= spent;
+    return spent;
+  };
+  for (auto& b : buys) {
+    Decimal budget = b.wish->want * factor;
+    for (std::size_t a : account_order(b.wish->work->security_id)) {
+      if (!budget.is_positive()) break;
+      if (spendable[a].is_positive()) budget -= add(b, a, budget, std::nullopt);
+    }
+  }
+  // The fill: the gap to target in value, largest first.
+  std::vector<std::pair<Decimal, Buy*>> by_gap;
+  for (auto& b : buys) by_gap.emplace_back(b.wish->want - b.bought(), &b);
+  std::stable_sort(by_gap.begin(), by_gap.end(),
+                   [](const auto& a, const auto& b) { return a.first > b.first; });
+  for (auto& [gap0, b] : by_gap) {
+    const Work& x = *b->wish->work;
+    const Decimal step = step_of(*x.quote, trading);
+    for (std::size_t a : account_order(x.security_id)) {
+      // Value left to target; fees come out of the cash, not the target.
+      const Decimal gap = b->wish->want - b->bought();
+      if (gap < x.quote->price * step) break;
+      if (!spendable[a].is_positive()) continue;
+      add(*b, a, spendable[a], units_within(gap, x.quote->price, step));
+    }
+  }
+
+  Buys out;
+  for (auto& b : buys) {
+    if (b.by_account.empty()) out.skipped.push_back({b.wish->work->quote->symbol, b.why_none});
+    for (auto& [a, o] : b.by_account) out.orders.push_back(std::move(o));
+  }
+  return out;
+}
+
+void summarize(OrderPlan& plan, const Portfolio& portfolio, const std::vector<Work>& work,
+               const PoolValue& pool) {
+  Decimal traded;
+  for (const auto& o : plan.orders) {
+    plan.estimated_fees += o.fee;
+    traded += o.value;
+  }
+  plan.turnover = Decimal::divide(traded, plan.pool_value * Decimal(2), 6);
+  const Portfolio after = rules::apply(portfolio, plan.orders);
+  const Decimal pool_after = plan.pool_value - plan.estimated_fees;
+  for (std::size_t a = 0; a < after.accounts.size(); ++a) {
+    plan.cash_after.push_back({after.accounts[a].name, after.accounts[a].cash, pool.reserve[a]});
+    plan.cash_after_total += after.accounts[a].cash;
+  }
+  for (const auto& x : work) {
+    Decimal value;
+    for (const auto& acct : after.accounts)
+      if (auto it = acct.holdings.find(x.security_id); it != acct.holdings.end())
+        value += it->second.quantity * x.quote->price;
+    if (value.is_zero() && x.target_value.is_zero()) continue;
+    plan.weights_after.push_back(
+        {x.security_id, x.quote->symbol, value,
+         pool_after.is_positive() ? Decimal::divide(value, pool_after, 6) : Decimal(), x.w_target});
+  }
+}
+
+}  // namespace steps
+
+namespace {
+
+// One plan with the pool's targets set on its value less `fee_guess[a]` for
+// each account a (the fees the plan itself is expected to cost).
+OrderPlan plan_once(const Portfolio& portfolio, const std::vector<Target>& targets,
+                    const Quotes& quotes, const TradingRule& trading, Date as_of,
+                    const std::vector<Decimal>& fee_guess, Explain explain) {
+  OrderPlan plan;
+  steps::PoolValue pool = steps::value_pool(portfolio, quotes, trading, fee_guess);
+  plan.pool_value = pool.value;
+  plan.invested_target = pool.invested_target;
+  if (!plan.pool_value.is_positive()) return plan;
+
+  const auto work = steps::work_list(portfolio, targets, quotes, pool);
+  std::vector<steps::BuyWish> wishes;
+  for (const auto& x : work) {
+    auto d = steps::decide(x, trading, as_of, explain);
+    switch (d.kind) {
+      case steps::Decision::Kind::none:
+        break;
+      case steps::Decision::Kind::skip:
+        plan.skipped.push_back({x.quote->symbol, std::move(d.why)});
+        break;
+      case steps::Decision::Kind::buy:
+        wishes.push_back({&x, d.buy_value, std::move(d.reason)});
+        break;
+      case steps::Decision::Kind::sell:
+        for (auto& o : steps::sell_orders(x, d.sell_units, d.reason, portfolio, trading, as_of)) {
+          for (std::size_t a = 0; a < portfolio.accounts.size(); ++a)
+            if (portfolio.accounts[a].id == o.account_id) pool.cash[a] += o.value - o.fee;
+          plan.orders.push_back(std::move(o));
+        }
+        break;
+    }
+  }
+  auto buys = steps::buy_orders(wishes, portfolio, pool.cash, pool.reserve, trading, explain);
+  for (auto& o : buys.orders) plan.orders.push_back(std::move(o));
+  for (auto& s : buys.skipped) plan.skipped.push_back(std::move(s));
+  steps::summarize(plan, portfolio, work, pool);
+  return plan;
+}
+
+}  // namespace
+
+OrderPlan orders(const Portfolio& portfolio, const std::vector<Target>& targets,
+                 const Quotes& quotes, const TradingRule& trading, Date as_of, Explain explain) {
+  // Targets are set on the pool as it will stand after this plan's own fees,
+  // so that posting the orders and proposing again finds nothing to do. The
+  // fees depend on the orders, so iterate to a fixed point (a few rounds;
+  // the last plan is used if it has not settled).
+  std::vector<Decimal> guess(portfolio.accounts.size());
+  OrderPlan plan = plan_once(portfolio, targets, quotes, trading, as_of, guess, explain);
+  for (int round = 0; round < 8; ++round) {
+    std::vector<Decimal> fees(portfolio.accounts.size());
+    for (const auto& o : plan.orders)
+      for (std::size_t a = 0; a < portfolio.accounts.size(); ++a)
+        if (portfolio.accounts[a].id == o.account_id) fees[a] += o.fee;
+    if (fees == guess) break;
+    guess = std::move(fees);
+    plan = plan_once(portfolio, targets, quotes, trading, as_of, guess, explain);
+  }
+  return plan;
+}
+
+Portfolio apply(const Portfolio& portfolio, const std::vector<Order>& orders) {
+  Portfolio out = portfolio;
+  for (auto& a : out.accounts)
+    for (auto& [id, h] : a.holdings) h.lots.clear();
+  for (const auto& o : orders) {
+    auto it = std::find_if(out.accounts.begin(), out.accounts.end(),
+                           [&](const AccountState& a) { return a.id == o.account_id; });
+    if (it == out.accounts.end())
+      throw std::invalid_argument(fmt::format("rules::apply: no account {}", o.account_id));
+    auto& h = it->holdings[o.security_id];
+    if (o.side == Side::buy) {
+      h.quantity += o.quantity;
+      it->cash -= o.value + o.fee;
+    } else {
+      if (o.quantity > h.quantity)
+        throw std::invalid_argument(fmt::format("rules::apply: selling {} of {}, holding {}",
+                                                o.quantity.str(), o.symbol, h.quantity.str()));
+      h.quantity -= o.quantity;
+      it->cash += o.value - o.fee;
+      if (h.quantity.is_zero()) it->holdings.erase(o.security_id);
+    }
+  }
+  return out;
+}
+
+}  // namespace keel::rules

@@ -1,0 +1,31 @@
+// Exchange rates in the ledger (table fx_rate, migration 0005).
+//
+// Contract
+//  - upsert_fx_rate(): adds one row inside the caller's WriteTransaction.
+//    The same row again is `unchanged`; a different rate for the same
+//    (base, quote, date) is a `conflict` (`existing` gets the stored rate)
+//    unless `replace`, then `replaced`. Codes and the rate are checked by the
+//    caller (io/fx_intake); the table's CHECKs stand behind it.
+//  - list_fx_rates(): every row, ordered by base, quote, date.
+#pragma once
+
+#include <string>
+#include <vector>
+
+#include "core/date.h"
+#include "core/decimal.h"
+#include "store/database.h"
+#include "store/market_data.h"
+
+namespace keel::store {
+
+struct FxRateRow {
+  std::string base, quote;
+  Date date;
+  Decimal rate;
+};
+
+Upsert upsert_fx_rate(Database& db, const FxRateRow& row, bool replace, std::string& existing);
+std::vector<FxRateRow> list_fx_rates(Database& db);
+
+}  // namespace keel::store

@@ -1,0 +1,307 @@
+// The market::View contract (market/view.h), run on the same cases against
+// both implementations: DayView, which reads the ledger for each question,
+// and Series, preloaded in columns. Dates and figures are invented; each
+// expectation is worked out by hand from the rows written below.
+#include <doctest/doctest.h>
+
+#include <memory>
+#include <string>
+#include <tuple>
+#include <vector>
+
+#include "ledger_fixture.h"
+#include "market/day_view.h"
+#include "market/series.h"
+
+using namespace keel;
+using namespace keel::testing;
+using market::Close;
+using market::Figure;
+
+namespace {
+
+// March 2024: Friday the 1st, weekends on 2/3, 9/10, 16/17, 23/24, 30/31;
+// no close at all on Friday the 29th (a holiday).
+struct MarketLedger : LedgerFixture {
+  MarketLedger() {
+    stock("AVEL", "Tools");
+    stock("BRISK", "Power");   // listed late: first close on 2024-03-05
+    stock("CALDO", "Tools");   // stale: no close after 2024-01-10
+    stock("DUNMORE", "Care");  // splits and distributions
+    Security fund;
+    fund.symbol = "EVENFUND";
+    fund.name = "Evenfund (invented)";
+    fund.kind = SecurityKind::fund;
+    fund.sector = "Funds";
+    fund.currency = "USD";
+    store::insert_security(db, fund);
+    closes({{"AVEL", "2023-12-29", "9.5"},
+            {"AVEL", "2024-03-01", "10.25"},
+            {"AVEL", "2024-03-04", "10.5"},
+            {"AVEL", "2024-03-28", "11"},
+            {"AVEL", "2024-04-01", "11.125"},
+            {"BRISK", "2024-03-05", "40"},
+            {"BRISK", "2024-03-28", "41.5"},
+            {"CALDO", "2024-01-10", "3.3"},
+            {"DUNMORE", "2024-03-01", "80"},
+            {"DUNMORE", "2024-03-08", "82"},
+            {"DUNMORE", "2024-03-11", "41.2"},
+            {"DUNMORE", "2024-03-28", "42"},
+            {"EVENFUND", "2024-04-02", "100"}});
+    figures("pe", {{"AVEL", "2023-12-31", "2024-02-01", "10"},
+                   {"AVEL", "2023-12-31", "2024-03-01", "11"},    // restated
+                   {"AVEL", "2024-01-31", "2024-03-15", "12"},    // a newer period, later
+                   {"AVEL", "2023-09-30", "2024-03-20", "7"},     // an older period, later
+                   {"BRISK", "2023-12-31", "2024-01-20", "20"},   // before its first close
+                   {"CALDO", "2023-06-30", "2023-07-31", "5"}});  // stale
+    figures("ey", {{"AVEL", "2023-12-31", "2024-02-01", "0.1"}});
+    split_of("DUNMORE", "2024-03-09", "2");                      // a Saturday
+    distribution("DUNMORE", "2024-03-16", "2024-03-25", "0.5");  // a Saturday
+    distribution("AVEL", "2024-03-16", "2024-03-20", "0.1");
+    distribution("DUNMORE", "2024-04-06", "2024-04-10", "0.5");
+  }
+
+  void stock(const std::string& symbol, const std::string& sector) {
+    Security s;
+    s.symbol = symbol;
+    s.name = symbol + " (invented)";
+    s.sector = sector;
+    s.currency = "USD";
+    store::insert_security(db, s);
+  }
+  std::int64_t id(const std::string& symbol) { return store::security_with_symbol(db, symbol).id; }
+};
+
+// The two implementations, made the way their callers make them.
+struct OneDay {
+  static std::unique_ptr<market::View> make(store::Database& db) {
+    return std::make_unique<market::DayView>(db);
+  }
+};
+struct Preloaded {
+  static std::unique_ptr<market::View> make(store::Database& db) {
+    market::Series::Request r;
+    r.from = day("2024-01-01");
+    r.to = day("2024-06-30");
+    r.metrics = {"pe", "ey"};
+    return std::make_unique<market::Series>(market::Series::load(db, r));
+  }
+};
+
+std::optional<Close> close_at(const char* d, const char* price) {
+  return Close{day(d), dec(price)};
+}
+std::optional<Figure> figure_of(const char* value, const char* period, const char* known) {
+  return Figure{dec(value), day(period), day(known)};
+}
+
+}  // namespace
+
+TYPE_TO_STRING(OneDay);
+TYPE_TO_STRING(Preloaded);
+
+TEST_CASE_TEMPLATE("market view: a close on the day, else the latest before it", V, OneDay,
+                   Preloaded) {
+  MarketLedger m;
+  const auto view = V::make(m.db);
+  const auto avel = m.id("AVEL");
+  CHECK(view->close(avel, day("2024-03-01")) == close_at("2024-03-01", "10.25"));
+  CHECK(view->close(avel, day("2024-03-02")) == close_at("2024-03-01", "10.25"));  // Saturday
+  CHECK(view->close(avel, day("2024-03-04")) == close_at("2024-03-04", "10.5"));
+  // The close before the span's first day still counts.
+  CHECK(view->close(avel, day("2024-01-01")) == close_at("2023-12-29", "9.5"));
+}
+
+TEST_CASE_TEMPLATE("market view: a weekday with no close at all gives the day before's", V, OneDay,
+                   Preloaded) {
+  MarketLedger m;
+  const auto view = V::make(m.db);
+  CHECK(view->close(m.id("AVEL"), day("2024-03-29")) == close_at("2024-03-28", "11"));
+  CHECK(view->close(m.id("BRISK"), day("2024-03-29")) == close_at("2024-03-28", "41.5"));
+}
+
+TEST_CASE_TEMPLATE("market view: a late listing has no close before its first", V, OneDay,
+                   Preloaded) {
+  MarketLedger m;
+  const auto view = V::make(m.db);
+  const auto brisk = m.id("BRISK");
+  CHECK_FALSE(view->close(brisk, day("2024-03-04")).has_value());
+  CHECK(view->close(brisk, day("2024-03-05")) == close_at("2024-03-05", "40"));
+  // Its figure was known before it listed, and is visible then.
+  CHECK(view->figure(brisk, "pe", day("2024-03-04")) ==
+        figure_of("20", "2023-12-31", "2024-01-20"));
+}
+
+TEST_CASE_TEMPLATE("market view: a stale close and a stale figure are given with their days", V,
+                   OneDay, Preloaded) {
+  MarketLedger m;
+  const auto view = V::make(m.db);
+  const auto caldo = m.id("CALDO");
+  CHECK(view->close(caldo, day("2024-06-28")) == close_at("2024-01-10", "3.3"));
+  CHECK(view->figure(caldo, "pe", day("2024-06-28")) == figure_of("5", "2023-06-30", "2023-07-31"));
+}
+
+TEST_CASE_TEMPLATE("market view: a restatement replaces the figure from its known_on on", V, OneDay,
+                   Preloaded) {
+  MarketLedger m;
+  const auto view = V::make(m.db);
+  const auto avel = m.id("AVEL");
+  CHECK_FALSE(view->figure(avel, "pe", day("2024-01-31")).has_value());
+  CHECK(view->figure(avel, "pe", day("2024-02-29")) == figure_of("10", "2023-12-31", "2024-02-01"));
+  CHECK(view->figure(avel, "pe", day("2024-03-01")) == figure_of("11", "2023-12-31", "2024-03-01"));
+}
+
+TEST_CASE_TEMPLATE("market view: a figure known after the day is invisible on it", V, OneDay,
+                   Preloaded) {
+  MarketLedger m;
+  const auto view = V::make(m.db);
+  const auto avel = m.id("AVEL");
+  CHECK(view->figure(avel, "pe", day("2024-03-14")) == figure_of("11", "2023-12-31", "2024-03-01"));
+  CHECK(view->figure(avel, "pe", day("2024-03-15")) == figure_of("12", "2024-01-31", "2024-03-15"));
+  // An older period that becomes known later does not push back a newer one.
+  CHECK(view->figure(avel, "pe", day("2024-03-20")) == figure_of("12", "2024-01-31", "2024-03-15"));
+  // Asking an earlier day again gives the earlier answer.
+  CHECK(view->figure(avel, "pe", day("2024-02-15")) == figure_of("10", "2023-12-31", "2024-02-01"));
+  CHECK(view->figure(avel, "ey", day("2024-02-15")) ==
+        figure_of("0.1", "2023-12-31", "2024-02-01"));
+}
+
+TEST_CASE_TEMPLATE("market view: splits in a span, a Saturday's included", V, OneDay, Preloaded) {
+  MarketLedger m;
+  const auto view = V::make(m.db);
+  const auto dunmore = m.id("DUNMORE");
+  const std::vector<market::SplitEvent> split{{dunmore, day("2024-03-09"), dec("2")}};
+  CHECK(view->splits(dunmore, day("2024-03-01"), day("2024-03-31")) == split);
+  CHECK(view->splits(std::nullopt, day("2024-03-09"), day("2024-03-09")) == split);
+  CHECK(view->splits(std::nullopt, day("2024-03-10"), day("2024-06-30")).empty());
+  // Closes are as traded: the split shows in the price, not in the view.
+  CHECK(view->close(dunmore, day("2024-03-10")) == close_at("2024-03-08", "82"));
+}
+
+TEST_CASE_TEMPLATE("market view: distributions on weekends, by date and then security", V, OneDay,
+                   Preloaded) {
+  MarketLedger m;
+  const auto view = V::make(m.db);
+  const auto avel = m.id("AVEL"), dunmore = m.id("DUNMORE");
+  const auto march = view->distributions(std::nullopt, day("2024-03-16"), day("2024-03-31"));
+  REQUIRE(march.size() == 2);
+  CHECK(march[0] == market::Distribution{avel, day("2024-03-16"), day("2024-03-20"), dec("0.1")});
+  CHECK(march[1] ==
+        market::Distribution{dunmore, day("2024-03-16"), day("2024-03-25"), dec("0.5")});
+  CHECK(view->distributions(dunmore, day("2024-03-17"), day("2024-04-05")).empty());
+  CHECK(view->distributions(dunmore, day("2024-03-01"), day("2024-06-30")).size() == 2);
+}
+
+TEST_CASE_TEMPLATE("market view: the securities, their stocks' sectors and the metric names", V,
+                   OneDay, Preloaded) {
+  MarketLedger m;
+  const auto view = V::make(m.db);
+  CHECK(view->securities().size() == 5);
+  CHECK(view->securities().front().symbol == "AVEL");
+  CHECK(view->sectors() == std::vector<std::string>{"Care", "Power", "Tools"});
+  CHECK(view->metric_names() == std::vector<std::string>{"ey", "pe"});
+  REQUIRE(view->security("BRISK"));
+  CHECK(view->security(view->security("BRISK")->id)->symbol == "BRISK");
+  CHECK(view->security("NOPE") == nullptr);
+}
+
+// What a view says about every security on every day up to `last`.
+std::string answers_until(const market::View& view, Date first, Date last) {
+  std::string out;
+  for (Date d = first; d <= last; d = d.plus_days(1))
+    for (const auto& s : view.securities()) {
+      const auto c = view.close(s.id, d);
+      const auto f = view.figure(s.id, "pe", d);
+      out += d.str() + " " + s.symbol + " " + (c ? c->day.str() + "@" + c->price.str() : "-") +
+             " " + (f ? f->value.str() + "/" + f->period.str() + "/" + f->known_on.str() : "-") +
+             "\n";
+    }
+  for (const auto& e : view.distributions(std::nullopt, first, last))
+    out += "dist " + e.ex_date.str() + " " + std::to_string(e.security_id) + "\n";
+  for (const auto& e : view.splits(std::nullopt, first, last))
+    out += "split " + e.date.str() + " " + std::to_string(e.security_id) + "\n";
+  return out;
+}
+
+TEST_CASE_TEMPLATE("look-ahead: changing the future leaves every answer about the past as it was",
+                   V, OneDay, Preloaded) {
+  MarketLedger m;
+  const Date first = day("2024-01-01"), last = day("2024-03-15");
+  const std::string before = answers_until(*V::make(m.db), first, last);
+  // The future changes: later closes (new and replaced), a restatement and a
+  // new period known after the last day, later splits and distributions.
+  m.closes({{"AVEL", "2024-03-18", "99"}, {"CALDO", "2024-03-18", "1"}});
+  m.closes({{"AVEL", "2024-03-28", "12"}, {"BRISK", "2024-03-28", "1"}}, true);
+  m.figures("pe", {{"AVEL", "2023-12-31", "2024-03-16", "98"},
+                   {"AVEL", "2024-01-31", "2024-03-16", "99"},
+                   {"CALDO", "2024-02-29", "2024-04-01", "1"},
+                   {"DUNMORE", "2024-03-15", "2024-03-16", "4"}});
+  m.split_of("AVEL", "2024-03-16", "10");
+  m.distribution("BRISK", "2024-03-18", "2024-03-19", "3");
+  const std::string after = answers_until(*V::make(m.db), first, last);
+  CHECK(after == before);
+  // The change is there, one day later.
+  CHECK(V::make(m.db)->figure(m.id("AVEL"), "pe", day("2024-03-16"))->value == dec("99"));
+}
+
+TEST_CASE("series: the grid's doubles give back the stored decimals exactly") {
+  MarketLedger m;
+  m.closes({{"AVEL", "2024-05-02", "123456789.123456"}, {"AVEL", "2024-05-03", "0.000001"}});
+  market::Series::Request r;
+  r.from = day("2024-05-01");
+  r.to = day("2024-05-06");
+  const auto s = market::Series::load(m.db, r);
+  const int c = s.column(m.id("AVEL"));
+  CHECK(s.exact(s.row(day("2024-05-01")), c) == dec("11.125"));
+  CHECK(s.exact(s.row(day("2024-05-02")), c) == dec("123456789.123456"));
+  CHECK(s.value(s.row(day("2024-05-02")), c) == 123456789.123456);
+  CHECK(s.exact(s.row(day("2024-05-06")), c) == dec("0.000001"));
+  CHECK(s.close_day(s.row(day("2024-05-06")), c) == day("2024-05-03"));
+}
+
+TEST_CASE("series: closes too long for a double are kept as decimals") {
+  MarketLedger m;
+  m.closes({{"AVEL", "2024-05-02", "12345678901.0000000001"}});
+  market::Series::Request r;
+  r.from = day("2024-05-01");
+  r.to = day("2024-05-03");
+  const auto s = market::Series::load(m.db, r);
+  const int c = s.column(m.id("AVEL"));
+  CHECK(s.exact(s.row(day("2024-05-01")), c) == dec("11.125"));
+  CHECK(s.exact(s.row(day("2024-05-03")), c) == dec("12345678901.0000000001"));
+}
+
+TEST_CASE("series: trading days are the days with any close in the ledger, loaded or not") {
+  MarketLedger m;
+  market::Series::Request r;
+  r.securities = std::vector<std::int64_t>{m.id("AVEL")};
+  r.from = day("2024-03-25");
+  r.to = day("2024-04-01");
+  const auto s = market::Series::load(m.db, r);
+  // 03-28 from AVEL and BRISK; 04-01 from AVEL; 04-02 from the fund, unloaded.
+  CHECK(s.trading_days() == std::vector<Date>{day("2024-03-28"), day("2024-04-01")});
+  CHECK(s.next_trading_day() == day("2024-04-02"));
+  CHECK(s.column(m.id("BRISK")) == -1);
+  CHECK_THROWS_AS(s.close(m.id("BRISK"), day("2024-03-28")), std::out_of_range);
+  CHECK_THROWS_AS(s.close(m.id("AVEL"), day("2024-04-02")), std::out_of_range);
+}
+
+TEST_CASE("day view: the latest day with a close, of any security") {
+  MarketLedger m;
+  market::DayView view(m.db);
+  CHECK(view.latest_close_day() == day("2024-04-02"));
+  m.closes({{"CALDO", "2024-06-07", "3"}});
+  CHECK(view.latest_close_day() == day("2024-06-07"));
+  LedgerFixture empty;
+  CHECK_FALSE(market::DayView(empty.db).latest_close_day().has_value());
+}
+
+TEST_CASE("series: a malformed date stored by other means stops the load, naming it") {
+  MarketLedger m;
+  m.db.sql().exec("INSERT INTO price (security_id, date, close) VALUES (1, '2024-02-30', '5')");
+  market::Series::Request r;
+  r.from = day("2024-01-01");
+  r.to = day("2024-03-31");
+  CHECK_THROWS_WITH_AS(market::Series::load(m.db, r), "'2024-02-30' is not a calendar date",
+                       InputError);
+}

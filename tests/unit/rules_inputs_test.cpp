@@ -1,0 +1,203 @@
+// The rule input builder (rules/inputs.h): universe and sleeves resolved once,
+// candidates and quotes from a market view, and the messages every command
+// shares. Invented securities; expectations worked out by hand.
+#include <doctest/doctest.h>
+
+#include "ledger_fixture.h"
+#include "market/day_view.h"
+#include "rules/inputs.h"
+
+using namespace keel;
+using namespace keel::testing;
+using namespace keel::rules;
+
+namespace {
+
+struct Small : LedgerFixture {
+  Small() {
+    add("ALDER", SecurityKind::stock, "Tools");
+    add("BIRCH", SecurityKind::stock, "Power");
+    add("CEDAR", SecurityKind::stock, "Tools");
+    add("DUNE", SecurityKind::fund, "Funds");
+    closes({{"ALDER", "2024-05-31", "10"},
+            {"BIRCH", "2024-05-10", "20"},  // three weeks old on 2024-05-31
+            {"DUNE", "2024-05-31", "50"}});
+    figures("pe", {{"ALDER", "2024-03-31", "2024-04-30", "8"},
+                   {"BIRCH", "2024-03-31", "2024-04-30", "12"},
+                   {"CEDAR", "2024-03-31", "2024-04-30", "9"}});
+  }
+  void add(const std::string& symbol, SecurityKind kind, const std::string& sector,
+           const char* currency = "USD") {
+    Security s;
+    s.symbol = symbol;
+    s.name = symbol + " (invented)";
+    s.kind = kind;
+    s.sector = sector;
+    s.currency = currency;
+    store::insert_security(db, s);
+  }
+  std::int64_t id(const char* symbol) { return store::security_with_symbol(db, symbol).id; }
+};
+
+Rule rule(const std::string& extra) {
+  return parse_rule("[scope]\naccounts = [\"Main\"]\n" + extra, "r.toml");
+}
+
+}  // namespace
+
+TEST_CASE("inputs: the universe is every stock that is not a sleeve, by symbol") {
+  Small m;
+  const market::DayView view(m.db);
+  const Rule r = rule("[[sleeve]]\nsymbol = \"CEDAR\"\nweight_pct = 10\n");
+  const Inputs in(r, view);
+  CHECK(in.universe() == std::vector<std::int64_t>{m.id("ALDER"), m.id("BIRCH")});
+  CHECK(in.sleeves() == std::vector<std::int64_t>{m.id("CEDAR")});
+  CHECK(in.securities().size() == 3);
+}
+
+TEST_CASE("inputs: a sector's stocks, and an unknown sector named with the known ones") {
+  Small m;
+  const market::DayView view(m.db);
+  const Rule tools = rule("sector = \"Tools\"\n");
+  CHECK(Inputs(tools, view).universe() == std::vector<std::int64_t>{m.id("ALDER"), m.id("CEDAR")});
+  // Funds is a fund's sector, not a stock's: it is not offered.
+  CHECK_THROWS_WITH_AS(Inputs(rule("sector = \"Funds\"\n"), view),
+                       "r.toml:3: key 'scope.sector': no stock in the ledger has sector 'Funds' "
+                       "(sectors: Power, Tools)",
+                       InputError);
+}
+
+TEST_CASE("inputs: a metric without figures names the stored metrics or the nearest") {
+  Small m;
+  const market::DayView view(m.db);
+  CHECK_THROWS_WITH_AS(Inputs(rule("[screen]\nmetric = \"book_value\"\n"), view),
+                       "r.toml:4: key 'screen.metric': the ledger holds no figures for metric "
+                       "'book_value' (stored metrics: pe)",
+                       InputError);
+  CHECK_THROWS_WITH_AS(Inputs(rule("[screen]\nmetric = \"ep\"\n"), view),
+                       "r.toml:4: key 'screen.metric': the ledger holds no figures for metric "
+                       "'ep'; did you mean 'pe'?",
+                       InputError);
+  LedgerFixture empty;
+  empty.security("ALDER");
+  CHECK_THROWS_WITH_AS(Inputs(rule(""), market::DayView(empty.db)),
+                       "r.toml: key 'screen.metric' (default \"pe\"): the ledger holds no "
+                       "figures for metric 'pe'; import metrics first ('keel import metrics FILE')",
+                       InputError);
+}
+
+TEST_CASE("inputs: candidates carry the figure known on the day and whether a close exists") {
+  Small m;
+  const market::DayView view(m.db);
+  const Rule r = rule("");
+  const auto c = Inputs(r, view).candidates(view, day("2024-05-31"), {m.id("BIRCH")});
+  REQUIRE(c.size() == 3);
+  CHECK(c[0].symbol == "ALDER");
+  CHECK(c[0].has_price);
+  CHECK_FALSE(c[0].held);
+  CHECK(c[1].held);
+  CHECK(c[2].symbol == "CEDAR");
+  CHECK(c[2].figure->value == Decimal(9));
+  CHECK_FALSE(c[2].has_price);  // a figure, but never a close
+  CHECK_FALSE(Inputs(r, view).candidates(view, day("2024-04-29"), {})[0].figure.has_value());
+}
+
+TEST_CASE("inputs: a held name outside the universe becomes an exit") {
+  Small m;
+  const market::DayView view(m.db);
+  const Rule r = rule(
+      "symbols = [\"ALDER\", \"BIRCH\", \"CEDAR\"]\n[screen]\nmin_names = 2\n"
+      "[select]\nby = \"count\"\ncount = 1\n");
+  const auto s = Inputs(r, view).select(view, day("2024-05-31"), {m.id("DUNE")});
+  REQUIRE_FALSE(s.refusal);
+  REQUIRE(s.targets.size() == 2);
+  CHECK(s.targets[0].symbol == "ALDER");
+  CHECK(s.targets[1].symbol == "DUNE");
+  CHECK(s.targets[1].weight.is_zero());
+  CHECK(s.targets[1].why == "not in the rule's universe");
+}
+
+TEST_CASE("inputs: a day that selects nothing is a result, not an error") {
+  Small m;
+  const market::DayView view(m.db);
+  const Rule r = rule("");
+  const auto s = Inputs(r, view).select(view, day("2024-05-31"), {});
+  REQUIRE(s.refusal);
+  CHECK(s.targets.empty());
+  CHECK(s.refusal->text(r) ==
+        "r.toml: key 'screen.min_names' (default 5): only 2 names pass the screen on "
+        "2024-05-31; the rule needs at least 5");
+}
+
+TEST_CASE("inputs: quotes at the latest close, with notes for old and missing ones") {
+  Small m;
+  const market::DayView view(m.db);
+  const Rule r = rule("");
+  const Inputs in(r, view);
+  const std::vector<Target> t{{m.id("ALDER"), "ALDER", dec("0.5"), false, std::nullopt, false, ""},
+                              {m.id("BIRCH"), "BIRCH", dec("0.5"), false, std::nullopt, false, ""}};
+  std::vector<std::string> notes;
+  const auto q = in.quotes(
+      view, day("2024-05-31"), t, {m.id("CEDAR")},
+      [](std::int64_t) {
+        return std::optional<Inputs::Trade>({day("2024-01-02"), dec("7.5")});
+      },
+      notes);
+  CHECK(q.at(m.id("ALDER")).price == Decimal(10));
+  CHECK(q.at(m.id("BIRCH")).price == Decimal(20));
+  CHECK(q.at(m.id("CEDAR")).price == dec("7.5"));
+  CHECK_FALSE(q.at(m.id("CEDAR")).tradable);
+  CHECK(notes ==
+        std::vector<std::string>{
+            "BIRCH: the latest close on or before 2024-05-31 is from 2024-05-10",
+            "CEDAR: no close on or before 2024-05-31; valued at its last trade price 7.5"});
+}
+
+TEST_CASE("inputs: a universe in two currencies is refused while nothing sets the rule's") {
+  Small m;
+  m.add("ELM", SecurityKind::stock, "Tools", "EUR");
+  const market::DayView view(m.db);
+  const Rule r = rule("");
+  std::string message;
+  try {
+    const Inputs in(r, view);
+  } catch (const InputError& e) {
+    message = e.what();
+  }
+  CHECK(message.find("the universe holds stocks priced in EUR, USD; keel does not convert "
+                     "between currencies yet: narrow it to one with scope.sector or "
+                     "scope.symbols") != std::string::npos);
+}
+
+TEST_CASE("inputs: stocks priced in another than the rule's currency leave the universe, noted") {
+  Small m;
+  m.add("ELM", SecurityKind::stock, "Tools", "EUR");
+  const market::DayView view(m.db);
+  const Rule r = rule("");
+  const Inputs in(r, view, "USD");
+  CHECK(in.universe() == std::vector<std::int64_t>{m.id("ALDER"), m.id("BIRCH"), m.id("CEDAR")});
+  REQUIRE(in.currency());
+  CHECK(*in.currency() == "USD");
+  CHECK(in.notes() ==
+        std::vector<std::string>{"1 stock priced in other currencies than USD is left out of the "
+                                 "universe (keel does not convert between currencies yet)"});
+}
+
+TEST_CASE("inputs: a name traded after its latest close is quoted at the trade's price") {
+  Small m;
+  const market::DayView view(m.db);
+  const Rule r = rule("");
+  const Inputs in(r, view);
+  const std::vector<Target> t{{m.id("BIRCH"), "BIRCH", dec("1"), false, std::nullopt, false, ""}};
+  std::vector<std::string> notes;
+  const auto q = in.quotes(
+      view, day("2024-05-31"), t, {},
+      [](std::int64_t) {
+        return std::optional<Inputs::Trade>({day("2024-05-20"), dec("21.5")});
+      },
+      notes);
+  CHECK(q.at(m.id("BIRCH")).price == dec("21.5"));
+  CHECK(q.at(m.id("BIRCH")).tradable);
+  CHECK(notes == std::vector<std::string>{"BIRCH: valued at its trade price 21.5 of 2024-05-20, "
+                                          "later than its latest close (2024-05-10)"});
+}
