@@ -1,4 +1,4 @@
--- keel schema, version 9: read-only views for analysts (docs/schema.md).
+-- keel schema, version 8: read-only views for analysts (docs/schema.md).
 --
 -- Views hold no data and accept no writes (SQLite refuses INSERT, UPDATE and
 -- DELETE on a view without INSTEAD OF triggers, and keel defines none).
@@ -35,6 +35,8 @@ SELECT
   -- Cash into (+) or out of (-) the account, as the lot engine books it:
   -- a buy costs quantity x price + fee, a sell brings quantity x price - fee,
   -- a transfer of shares costs its fee, a cash transfer moves its amount.
+  -- It is in the row's currency (column currency, else the account's); an
+  -- exchange moves cash between two currencies and has none (NULL).
   CASE t.kind
     WHEN 'deposit'      THEN CAST(t.amount AS REAL)
     WHEN 'dividend'     THEN CAST(t.amount AS REAL)
@@ -53,7 +55,10 @@ SELECT
   END                     AS cash_effect,
   t.ref                   AS ref,
   t.note                  AS note,
-  t.link_id               AS link_id
+  t.link_id               AS link_id,
+  t.currency              AS currency,
+  t.rate                  AS rate,
+  t.to_currency           AS to_currency
 FROM txn AS t
 JOIN in_force ON in_force.txn_id = t.id
 JOIN account AS a ON a.id = t.account_id

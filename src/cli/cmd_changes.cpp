@@ -8,10 +8,10 @@
 #include "cli/history_rows.h"
 #include "cli/options.h"
 #include "core/error.h"
-#include "core/text.h"
 #include "core/json.h"
-#include "report/json_schema.h"
+#include "core/text.h"
 #include "ledger/accounts.h"
+#include "report/json_schema.h"
 #include "report/table.h"
 #include "store/record_change_store.h"
 

@@ -7,8 +7,8 @@
 #include "cli/context.h"
 #include "cli/options.h"
 #include "core/error.h"
-#include "core/text.h"
 #include "core/json.h"
+#include "core/text.h"
 #include "ledger/restore.h"
 #include "ledger/verify.h"
 #include "report/json_schema.h"
@@ -39,9 +39,9 @@ void add_verify(CLI::App& app, Context& ctx) {
       j.key("reconciled").begin_array();
       for (const auto& r : report.reconciled) {
         j.begin_object().member("account", r.account).member("last", r.last.str());
-        j.member("locked_through", r.locked_through ? std::optional<std::string>(
-                                                          r.locked_through->str())
-                                                    : std::nullopt);
+        j.member("locked_through", r.locked_through
+                                       ? std::optional<std::string>(r.locked_through->str())
+                                       : std::nullopt);
         j.end_object();
       }
       j.end_array().end_object();

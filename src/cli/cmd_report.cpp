@@ -293,8 +293,8 @@ void add_gains(CLI::App& app, Context& ctx) {
     }
     if (o->csv) {
       // Every line, taxable or not, with the account's tax status on its day.
-      CsvRows csv({"account", "symbol", "lot", "sell", "action", "acquired", "disposed",
-                   "quantity", "proceeds", "cost", "gain", "term", "tax_status"});
+      CsvRows csv({"account", "symbol", "lot", "sell", "action", "acquired", "disposed", "quantity",
+                   "proceeds", "cost", "gain", "term", "tax_status"});
       for (const auto* list : {&taxable, &elsewhere})
         for (const auto& g : *list)
           csv.add({g.account, g.symbol, std::to_string(g.part.lot_id),

@@ -109,7 +109,8 @@ inline void history_json(JsonWriter& j, const Transaction& x, const LedgerNames&
                          const std::unordered_set<std::int64_t>& voided) {
   j.begin_object().member("id", static_cast<long long>(x.id)).member("date", x.date.str());
   j.member("account", names.account_on(x.account_id, x.date));
-  j.member("kind", std::string(to_string(x.kind))).member("symbol", names.symbol_on(x.security_id, x.date));
+  j.member("kind", std::string(to_string(x.kind)))
+      .member("symbol", names.symbol_on(x.security_id, x.date));
   j.member("quantity", history_opt(x.quantity)).member("price", history_opt(x.price));
   j.member("amount", history_opt(x.amount)).member("fee", x.fee);
   j.member("ref", x.ref.value_or("")).member("note", x.note.value_or(""));

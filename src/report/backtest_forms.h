@@ -16,7 +16,6 @@
 
 #include "backtest/backtest.h"
 #include "backtest/signal.h"
-
 #include "report/table.h"
 
 namespace keel::report {

@@ -15,10 +15,9 @@
 #include <string>
 #include <vector>
 
+#include "report/table.h"
 #include "rules/propose.h"
 #include "store/proposals.h"
-
-#include "report/table.h"
 
 namespace keel::report {
 

@@ -36,7 +36,8 @@ Figures figures(const perf::PerfResult& r, bool dietz) {
   return f;
 }
 
-std::string summary_table(const perf::ReturnsReport& rep, const std::string& method, const Style& style) {
+std::string summary_table(const perf::ReturnsReport& rep, const std::string& method,
+                          const Style& style) {
   const auto& r = rep.result;
   const Figures f = figures(r, method == "dietz");
   const std::string twr_name = method == "dietz" ? "time-weighted (Modified Dietz, monthly linked)"

@@ -12,7 +12,6 @@
 #include <string>
 
 #include "perf/returns_report.h"
-
 #include "report/table.h"
 
 namespace keel::report {

@@ -115,7 +115,8 @@ con = sqlite3.connect(f"file:{led.path}?mode=ro", uri=True)
 frame = pandas.read_sql("SELECT * FROM posted_transactions ORDER BY id", con)
 equal(list(frame.columns), ["id", "date", "account", "account_currency", "kind", "symbol",
                             "security_name", "quantity", "price", "amount", "fee", "cash_effect",
-                            "ref", "note", "link_id"], "posted_transactions columns in pandas")
+                            "ref", "note", "link_id", "currency", "rate", "to_currency"],
+      "posted_transactions columns in pandas")
 equal(list(frame["id"]), [1, 2, 3, 4, 5, 8, 11, 12], "posted_transactions rows in pandas")
 sums = frame.groupby("account")["cash_effect"].sum().round(6)
 equal({k: Decimal(repr(v)) for k, v in sums.items()}, by_keel, "pandas sums against keel's cash")
