@@ -10,10 +10,11 @@
 #include "cli/history_rows.h"
 #include "cli/options.h"
 #include "core/error.h"
-#include "core/text.h"
 #include "core/json.h"
+#include "core/text.h"
 #include "ledger/action_posting.h"
 #include "ledger/actions.h"
+#include "report/json_schema.h"
 #include "report/table.h"
 #include "store/action_store.h"
 #include "store/ledger_store.h"
@@ -132,17 +133,17 @@ void add_action_group(CLI::App& app, Context& ctx) {
     const ActionRows rows(LedgerNames::load(db).symbols, all);
     std::string text;
     JsonWriter j(text);
-    j.begin_array();
+    report::begin_document(j, "actions", 1).key("actions").begin_array();
     Table t = ActionRows::table();
     for (const auto& a : all) {
       rows.json(j, a);
       t.add_row(rows.cells(a));
     }
-    j.end_array();
+    j.end_array().end_object();
     if (*json)
       out(text + "\n");
     else
-      out(all.empty() ? std::string("no corporate actions recorded\n") : t.render({ctx.colour()}));
+      out(all.empty() ? std::string("no corporate actions recorded\n") : t.render(ctx.style()));
   });
 
   struct VoidOptions {

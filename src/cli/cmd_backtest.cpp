@@ -62,7 +62,8 @@ void add_backtest(CLI::App& app, Context& ctx) {
                {"keel backtest --rule rule.toml --from 2019-01-01 --to 2025-12-31 --benchmark ZXTR",
                 "keel backtest --rule rule.toml --from 2019-01-01 --to 2025-12-31 --frictionless "
                 "--curve curve.csv"});
-  cmd->add_option("--rule", o->rule, "Rule file (TOML; see docs/rules.md)")->required();
+  cmd->add_option("--rule", o->rule, "Rule file (TOML; see docs/rules.md; '-': standard input)")
+      ->required();
   cmd->add_option("--from", o->from, "First day, YYYY-MM-DD")->required();
   cmd->add_option("--to", o->to, "Last day, YYYY-MM-DD")->required();
   cmd->add_option("--start-value", o->start_value, "Cash the simulated pool starts with");
@@ -102,13 +103,13 @@ void add_backtest(CLI::App& app, Context& ctx) {
     if (curve) write_curve(*curve, result);
     if (curve && curve->to_stdout()) {
       // The curve has standard output; the report goes to standard error.
-      std::fputs(report::backtest_text(result, report::use_colour(stderr)).c_str(), stderr);
+      std::fputs(report::backtest_text(result, report::terminal_style(stderr)).c_str(), stderr);
       return;
     }
     if (o->json)
       report::backtest_json(result, out);
     else
-      out(report::backtest_text(result, ctx.colour()));
+      out(report::backtest_text(result, ctx.style()));
   });
 }
 
@@ -142,7 +143,8 @@ void add_signal(CLI::App& app, Context& ctx) {
       "the cheapest-less-dearest spread");
   add_examples(
       *cmd, {"keel signal --rule rule.toml --from 2017-01-01 --to 2025-12-31 --horizons 1,3,12"});
-  cmd->add_option("--rule", o->rule, "Rule file (TOML; see docs/rules.md)")->required();
+  cmd->add_option("--rule", o->rule, "Rule file (TOML; see docs/rules.md; '-': standard input)")
+      ->required();
   cmd->add_option("--from", o->from, "First day, YYYY-MM-DD")->required();
   cmd->add_option("--to", o->to, "Last day, YYYY-MM-DD")->required();
   cmd->add_option("--horizons", o->horizons, "Forward windows in months, comma-separated");
@@ -155,7 +157,7 @@ void add_signal(CLI::App& app, Context& ctx) {
     const auto rule = rules::load_rule(o->rule);
     auto db = ctx.open_ledger();
     const auto r = backtest::signal(db, rule, req);
-    out(o->json ? report::signal_json(r) : report::signal_text(r, ctx.colour()));
+    out(o->json ? report::signal_json(r) : report::signal_text(r, ctx.style()));
   });
 }
 

@@ -8,9 +8,10 @@
 #include "cli/history_rows.h"
 #include "cli/options.h"
 #include "core/error.h"
-#include "core/text.h"
 #include "core/json.h"
+#include "core/text.h"
 #include "ledger/accounts.h"
+#include "report/json_schema.h"
 #include "report/table.h"
 #include "store/record_change_store.h"
 
@@ -86,7 +87,7 @@ void add_changes(CLI::App& app, Context& ctx) {
     const auto names = LedgerNames::load(db);
     std::string text;
     JsonWriter j(text);
-    j.begin_array();
+    report::begin_document(j, "changes", 1).key("changes").begin_array();
     Table t({{"from"}, {"record"}, {"now"}, {"field"}, {"old value"}, {"new value"}});
     for (const auto& c : names.changes) {
       const std::string now =
@@ -97,11 +98,11 @@ void add_changes(CLI::App& app, Context& ctx) {
       t.add_row({c.effective.str(), c.record, now, c.field, c.old_value.value_or(""),
                  c.new_value.value_or("")});
     }
-    j.end_array();
+    j.end_array().end_object();
     if (*json)
       out(text + "\n");
     else
-      out(names.changes.empty() ? std::string("no changes recorded\n") : t.render({ctx.colour()}));
+      out(names.changes.empty() ? std::string("no changes recorded\n") : t.render(ctx.style()));
   });
 }
 

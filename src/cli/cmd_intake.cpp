@@ -7,14 +7,17 @@
 #include <memory>
 
 #include "cli/context.h"
+#include "cli/csv_rows.h"
 #include "cli/options.h"
 #include "core/error.h"
 #include "core/files.h"
+#include "core/json.h"
 #include "core/text.h"
 #include "io/errors.h"
 #include "io/ledger_intake.h"
 #include "io/market_intake.h"
 #include "ledger/posting.h"
+#include "report/json_schema.h"
 #include "report/table.h"
 #include "store/market_data.h"
 
@@ -53,17 +56,17 @@ struct ImportCommandOptions {
 };
 
 // The first rows of a dry run, as keel would book them.
-std::string preview_table(const io::LedgerImportSummary& sum) {
+std::string preview_table(const io::LedgerImportSummary& sum, const report::Style& style) {
   report::Table table({{"line", report::Align::right},
                        {"date"},
-                       {"account"},
+                       {"account", report::Align::left, true},
                        {"kind"},
                        {"symbol"},
                        {"quantity", report::Align::right},
                        {"price", report::Align::right},
                        {"amount", report::Align::right},
-                       {"fee", report::Align::right},
-                       {"ref"}});
+                       {"fee", report::Align::right, false, 1},
+                       {"ref", report::Align::left, false, 2}});
   auto opt = [](const std::optional<Decimal>& d) { return d ? d->str() : std::string(); };
   for (const auto& row : sum.preview) {
     const auto& r = row.request;
@@ -72,13 +75,13 @@ std::string preview_table(const io::LedgerImportSummary& sum) {
                    opt(r.price), opt(r.amount), r.fee && !r.fee->is_zero() ? r.fee->str() : "",
                    r.ref.value_or("")});
   }
-  std::string text = table.render();
+  std::string text = table.render(style);
   if (sum.added + sum.corrected > sum.preview.size())
     text += fmt::format("... and {} more\n", sum.added + sum.corrected - sum.preview.size());
   return text;
 }
 
-std::string ledger_summary(const io::LedgerImportSummary& sum) {
+std::string ledger_summary(const io::LedgerImportSummary& sum, const report::Style& style) {
   std::string text =
       fmt::format("{}: {} rows read; {} {}, {} already booked", printable(sum.file), sum.rows,
                   sum.dry_run ? "would add" : "added", sum.added, sum.already_booked);
@@ -96,7 +99,7 @@ std::string ledger_summary(const io::LedgerImportSummary& sum) {
   if (sum.dry_run) text += " (dry run: nothing was changed)";
   text += "\n";
   for (const auto& note : sum.notes) text += "note: " + note + "\n";
-  if (sum.dry_run && !sum.preview.empty()) text += "\n" + preview_table(sum);
+  if (sum.dry_run && !sum.preview.empty()) text += "\n" + preview_table(sum, style);
   return text;
 }
 
@@ -111,9 +114,10 @@ void add_import(CLI::App& app, Context& ctx) {
       ->required();
   cmd->add_option("FILE", o->file,
                   "CSV file (keel's layout, or another described by --map); transactions also "
-                  "from an OFX investment statement")
+                  "from an OFX investment statement ('-': standard input)")
       ->required();
-  cmd->add_option("--map", o->mapping, "TOML file describing the file's layout");
+  cmd->add_option("--map", o->mapping,
+                  "TOML file describing the file's layout ('-': standard input)");
   cmd->add_flag("--dry-run", o->dry_run, "Check everything and report, but change nothing");
   cmd->add_flag("--replace", o->replace, "Overwrite stored values that differ from the file");
   cmd->add_flag("--quiet", o->quiet, "No progress display");
@@ -126,6 +130,10 @@ void add_import(CLI::App& app, Context& ctx) {
   cmd->add_option("--account", o->account,
                   "Transactions from an OFX statement: the keel account it belongs to");
   cmd->callback([&ctx, o] {
+    if (is_standard_input(o->file) && is_standard_input(o->mapping))
+      throw InputError(
+          "--map -: the file is read from standard input already; give the mapping "
+          "as a file");
     io::ImportOptions options;
     if (!o->mapping.empty()) options.mapping = io::Mapping::load(o->mapping);
     options.dry_run = o->dry_run;
@@ -143,7 +151,7 @@ void add_import(CLI::App& app, Context& ctx) {
         return o->what == "accounts" ? io::import_accounts(db, o->file, options)
                                      : io::import_transactions(db, o->file, options);
       });
-      out(ledger_summary(sum));
+      out(ledger_summary(sum, ctx.style()));
       return;
     }
     const io::MarketKind kind = io::parse_market_kind(o->what);
@@ -215,23 +223,56 @@ void add_export(CLI::App& app, Context& ctx) {
 }
 
 void add_imports(CLI::App& app, Context& ctx) {
+  struct Forms {
+    bool json = false, csv = false;
+  };
+  auto o = std::make_shared<Forms>();
   auto* cmd = app.add_subcommand("imports", "List the imports that changed the ledger");
-  add_examples(*cmd, {"keel imports"});
-  cmd->callback([&ctx] {
+  add_examples(*cmd, {"keel imports", "keel imports --csv"});
+  add_json_and_csv_flags(*cmd, o->json, o->csv);
+  cmd->callback([&ctx, o] {
     auto db = ctx.open_ledger();
     const auto runs = store::list_import_runs(db);
+    if (o->json) {
+      std::string text;
+      JsonWriter j(text);
+      report::begin_document(j, "imports", 1).key("imports").begin_array();
+      for (const auto& r : runs) {
+        j.begin_object().member("run", static_cast<long long>(r.id));
+        j.member("imported_at", r.imported_at).member("what", r.what);
+        j.member("rows_read", static_cast<long long>(r.rows_read));
+        j.member("rows_added", static_cast<long long>(r.rows_added));
+        j.member("file_sha256", r.file_sha256).member("file", r.file_name).end_object();
+      }
+      j.end_array().end_object();
+      out(text + "\n");
+      return;
+    }
+    if (o->csv) {
+      CsvRows csv({"run", "imported_at", "what", "rows_read", "rows_added", "file_sha256", "file"});
+      for (const auto& r : runs)
+        csv.add({std::to_string(r.id), r.imported_at, r.what, std::to_string(r.rows_read),
+                 std::to_string(r.rows_added), r.file_sha256, r.file_name});
+      out(csv.text());
+      return;
+    }
     if (runs.empty()) {
       out("no imports yet\n");
       return;
     }
-    std::string text =
-        fmt::format("{:>4}  {:<20}  {:<13}  {:>10}  {:>10}  {:<16}  {}\n", "run", "imported at",
-                    "what", "rows read", "rows added", "sha256", "file");
+    // The file name shortens to fit a terminal; the digest (its first 16
+    // digits) makes way before it.
+    report::Table t({{"run", report::Align::right},
+                     {"imported at"},
+                     {"what"},
+                     {"rows read", report::Align::right},
+                     {"rows added", report::Align::right},
+                     {"sha256", report::Align::left, false, 1},
+                     {"file", report::Align::left, true}});
     for (const auto& r : runs)
-      text += fmt::format("{:>4}  {:<20}  {:<13}  {:>10}  {:>10}  {:<16}  {}\n", r.id,
-                          r.imported_at, r.what, r.rows_read, r.rows_added,
-                          r.file_sha256.substr(0, 16), printable(r.file_name));
-    out(text);
+      t.add_row({std::to_string(r.id), r.imported_at, r.what, std::to_string(r.rows_read),
+                 std::to_string(r.rows_added), r.file_sha256.substr(0, 16), r.file_name});
+    out(t.render(ctx.style()));
   });
 }
 

@@ -391,7 +391,7 @@ void add_void(CLI::App& app, Context& ctx) {
     const auto voided = voided_ids(store::list_transactions(db));
     auto table = history_table();
     for (const auto& t : shown) table.add_row(history_cells(t, names, voided));
-    text += table.render({ctx.colour()});
+    text += table.render(ctx.style());
     const char* it = one ? "it" : "them";
     text += reinstating
                 ? fmt::format("To take {} out again, void {}.\n", it, result.void_ids.front())

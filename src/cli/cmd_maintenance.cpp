@@ -7,9 +7,11 @@
 #include "cli/context.h"
 #include "cli/options.h"
 #include "core/error.h"
+#include "core/json.h"
 #include "core/text.h"
 #include "ledger/restore.h"
 #include "ledger/verify.h"
+#include "report/json_schema.h"
 #include "store/maintenance.h"
 
 namespace keel::cli {
@@ -18,10 +20,33 @@ namespace {
 void add_verify(CLI::App& app, Context& ctx) {
   auto* cmd = app.add_subcommand(
       "verify", "Check the ledger file and recount every balance from the raw transactions");
-  add_examples(*cmd, {"keel verify"});
-  cmd->callback([&ctx] {
+  add_examples(*cmd, {"keel verify", "keel verify --json"});
+  auto json = std::make_shared<bool>(false);
+  add_json_flag(*cmd, *json);
+  cmd->callback([&ctx, json] {
     auto db = ctx.open_ledger();
     const auto report = ledger::verify(db);
+    if (*json) {
+      // The document comes out whole either way; problems still end in a
+      // LedgerError, so the exit status says the same as the text form.
+      std::string text;
+      JsonWriter j(text);
+      report::begin_document(j, "verify", 1).member("ledger", db.path().string());
+      j.member("ok", report.ok());
+      j.member("accounts", static_cast<long long>(report.accounts));
+      j.member("transactions", static_cast<long long>(report.transactions));
+      j.member("problems", report.problems).member("warnings", report.warnings);
+      j.key("reconciled").begin_array();
+      for (const auto& r : report.reconciled) {
+        j.begin_object().member("account", r.account).member("last", r.last.str());
+        j.member("locked_through", r.locked_through
+                                       ? std::optional<std::string>(r.locked_through->str())
+                                       : std::nullopt);
+        j.end_object();
+      }
+      j.end_array().end_object();
+      out(text + "\n");
+    }
     std::string text;
     for (const auto& p : report.problems) text += "problem: " + p + "\n";
     for (const auto& w : report.warnings) text += "warning: " + w + "\n";
@@ -33,11 +58,12 @@ void add_verify(CLI::App& app, Context& ctx) {
                     : std::string(" (reopened: not locked)");
       text += "\n";
     }
-    out(text);
+    if (!*json) out(text);
     if (!report.ok())
       throw LedgerError(fmt::format("{}: {} problem{} found", db.path().string(),
                                     report.problems.size(),
                                     report.problems.size() == 1 ? "" : "s"));
+    if (*json) return;
     out(fmt::format("ledger {} verified: {} accounts, {} transactions, {} warning{}\n",
                     db.path().string(), report.accounts, report.transactions,
                     report.warnings.size(), report.warnings.size() == 1 ? "" : "s"));

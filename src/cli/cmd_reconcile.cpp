@@ -7,6 +7,7 @@
 #include "cli/context.h"
 #include "cli/options.h"
 #include "core/error.h"
+#include "core/files.h"
 #include "core/text.h"
 #include "io/ofx.h"
 #include "ledger/period.h"
@@ -47,12 +48,18 @@ void add_reconcile(CLI::App& app, Context& ctx) {
   add_examples(*cmd, {"keel reconcile positions.csv --date 2026-10-31 --map broker.toml",
                       "keel reconcile statement.ofx --account Taxable"});
   cmd->add_option("FILE", o->file,
-                  "The statement: CSV (keel's layout, or another described by --map) or OFX")
+                  "The statement: CSV (keel's layout, or another described by --map) or OFX "
+                  "('-': standard input)")
       ->required();
   cmd->add_option("--date", o->date, "Day of a CSV statement, YYYY-MM-DD (an OFX file says it)");
-  cmd->add_option("--map", o->mapping, "TOML file describing a CSV statement's layout");
+  cmd->add_option("--map", o->mapping,
+                  "TOML file describing a CSV statement's layout ('-': standard input)");
   cmd->add_option("--account", o->account, "OFX: the keel account the statement is for");
   cmd->callback([&ctx, o] {
+    if (is_standard_input(o->file) && is_standard_input(o->mapping))
+      throw InputError(
+          "--map -: the statement is read from standard input already; give the "
+          "mapping as a file");
     auto db = ctx.open_ledger(store::Access::write);
     reconcile::BrokerStatement st;
     if (io::is_ofx_file(o->file)) {

@@ -115,6 +115,9 @@ std::string manpage(const CLI::App& app) {
                    "When XDG_DATA_HOME is unset too, the ledger is "
                    "~/.local/share/keel/keel.db.");
   out += roff_item("NO_COLOR", "When set, no colour, even on a terminal.");
+  out += roff_item("PAGER",
+                   "The program that shows output longer than the terminal (default less -FRX); "
+                   "empty or cat: none. Only at a terminal, and not with --no-pager.");
   out += roff_item("PATH",
                    "Searched for chromium (or chromium-browser), which prints the statement as "
                    "PDF.");

@@ -7,16 +7,18 @@
 
 #include "cli/action_rows.h"
 #include "cli/context.h"
+#include "cli/csv_rows.h"
 #include "cli/history_rows.h"
 #include "cli/options.h"
 #include "core/error.h"
 #include "core/json.h"
+#include "core/text.h"
 #include "ledger/holdings.h"
 #include "ledger/posting.h"
-#include "report/format.h"
-#include "core/text.h"
 #include "ledger/tax.h"
+#include "report/format.h"
 #include "report/gain_rows.h"
+#include "report/json_schema.h"
 #include "report/table.h"
 #include "store/action_store.h"
 #include "store/ledger_store.h"
@@ -44,7 +46,7 @@ std::string percent(const Decimal& part, const Decimal& whole) {
 struct ViewOptions {
   std::string as_of, account, from, to;
   int year = 0;
-  bool json = false;
+  bool json = false, csv = false;
 };
 
 void add_holdings(CLI::App& app, Context& ctx) {
@@ -54,7 +56,7 @@ void add_holdings(CLI::App& app, Context& ctx) {
                {"keel holdings --as-of 2025-12-31", "keel holdings --account Taxable --json"});
   cmd->add_option("--as-of", o->as_of, "Day to value at, YYYY-MM-DD (default: today)");
   add_account_option(*cmd, o->account);
-  add_json_flag(*cmd, o->json);
+  add_json_and_csv_flags(*cmd, o->json, o->csv);
   cmd->callback([&ctx, o] {
     auto db = ctx.open_ledger();
     const auto h =
@@ -67,7 +69,7 @@ void add_holdings(CLI::App& app, Context& ctx) {
           j.member("rate", q.rate).member("day", q.day.str());
           j.member("derived", q.how == market::FxHow::direct ? "" : q.describe()).end_object();
         };
-        j.begin_object().member("as_of", h.as_of.str());
+        report::begin_document(j, "holdings", 1).member("as_of", h.as_of.str());
         j.key("positions").begin_array();
         for (const auto& p : h.positions) {
           j.begin_object().member("account", p.account).member("symbol", p.symbol);
@@ -93,14 +95,31 @@ void add_holdings(CLI::App& app, Context& ctx) {
       });
       return;
     }
-    Table t({{"account"},
+    if (o->csv) {
+      // A line in another currency: its price in that currency, its market
+      // value converted; cash in another currency: the amount held in it.
+      CsvRows csv({"account", "symbol", "quantity", "cost_basis", "price", "price_is_close",
+                   "market_value", "unrealized_gain", "currency"});
+      for (const auto& p : h.positions)
+        csv.add({p.account, p.symbol, p.quantity.str(), p.cost_basis.str(), p.price.str(),
+                 p.price_is_close ? "yes" : "no", p.market_value.str(), p.unrealized_gain.str(),
+                 p.rate ? p.currency : ""});
+      for (const auto& c : h.cash)
+        csv.add({c.account, "", c.rate ? c.amount.str() : "", "", "", "",
+                 (c.rate ? c.value : c.amount).str(), "", c.rate ? c.currency : ""});
+      out(csv.text());
+      return;
+    }
+    // Too narrow a terminal loses the price first, then the weight, then
+    // the cost basis; names shorten before any of them.
+    Table t({{"account", Align::left, true},
              {"symbol"},
              {"quantity", Align::right},
-             {"cost basis", Align::right},
-             {"price", Align::right},
+             {"cost basis", Align::right, false, 1},
+             {"price", Align::right, false, 3},
              {"market value", Align::right},
              {"unrealized", Align::right},
-             {"weight", Align::right}});
+             {"weight", Align::right, false, 2}});
     // A line in another currency shows its local price and amount; the
     // rates used are listed under the table.
     std::vector<std::string> rates_used;
@@ -132,7 +151,7 @@ void add_holdings(CLI::App& app, Context& ctx) {
     t.add_rule();
     t.add_row({"total", "", "", "", "", money(h.total_value), "", ""});
     out(fmt::format("Holdings as of {}\n\n", h.as_of.str()));
-    out(t.render({ctx.colour()}));
+    out(t.render(ctx.style()));
     bool any_trade_price = false;
     for (const auto& p : h.positions) any_trade_price |= !p.price_is_close;
     if (any_trade_price) out("* no close on or before the day; valued at the last trade price\n");
@@ -146,36 +165,44 @@ void add_lots(CLI::App& app, Context& ctx) {
   add_examples(*cmd, {"keel lots --as-of 2025-12-31 --account Taxable"});
   cmd->add_option("--as-of", o->as_of, "Day, YYYY-MM-DD (default: today)");
   add_account_option(*cmd, o->account);
-  add_json_flag(*cmd, o->json);
+  add_json_and_csv_flags(*cmd, o->json, o->csv);
   cmd->callback([&ctx, o] {
     auto db = ctx.open_ledger();
     const auto lots =
         ledger::open_lots(db, date_option_or_today(o->as_of, "--as-of"), text_option(o->account));
     if (o->json) {
       print_json([&](JsonWriter& j) {
-        j.begin_array();
+        report::begin_document(j, "lots", 1).key("lots").begin_array();
         for (const auto& l : lots) {
           j.begin_object().member("account", l.account).member("symbol", l.symbol);
           j.member("lot", static_cast<long long>(l.lot.lot_id));
           j.member("acquired", l.lot.acquired.str()).member("quantity", l.lot.quantity);
           j.member("cost", l.lot.cost).end_object();
         }
-        j.end_array();
+        j.end_array().end_object();
       });
       return;
     }
-    Table t({{"account"},
+    if (o->csv) {
+      CsvRows csv({"account", "symbol", "lot", "acquired", "quantity", "cost"});
+      for (const auto& l : lots)
+        csv.add({l.account, l.symbol, std::to_string(l.lot.lot_id), l.lot.acquired.str(),
+                 l.lot.quantity.str(), l.lot.cost.str()});
+      out(csv.text());
+      return;
+    }
+    Table t({{"account", Align::left, true},
              {"symbol"},
              {"lot", Align::right},
              {"acquired"},
              {"quantity", Align::right},
              {"cost", Align::right},
-             {"unit cost", Align::right}});
+             {"unit cost", Align::right, false, 1}});
     for (const auto& l : lots)
       t.add_row({l.account, l.symbol, std::to_string(l.lot.lot_id), l.lot.acquired.str(),
                  l.lot.quantity.str(), money(l.lot.cost),
                  Decimal::divide(l.lot.cost, l.lot.quantity, 4).str()});
-    out(t.render({ctx.colour()}));
+    out(t.render(ctx.style()));
   });
 }
 
@@ -208,7 +235,7 @@ void gain_json(JsonWriter& j, const ledger::GainLine& g) {
 }
 
 // The table of some gain lines with their totals by term.
-std::string gain_table(const std::vector<ledger::GainLine>& gains, bool colour) {
+std::string gain_table(const std::vector<ledger::GainLine>& gains, const report::Style& style) {
   const auto totals = ledger::totals_by_term(gains);
   Table t(report::gain_columns("term"));
   for (const auto& g : gains) t.add_row(report::displayed(report::gain_cells(g)));
@@ -216,7 +243,7 @@ std::string gain_table(const std::vector<ledger::GainLine>& gains, bool colour) 
   t.add_row({"short-term", "", "", "", "", "", "", "", money(totals.short_term.gain), ""});
   t.add_row({"long-term", "", "", "", "", "", "", "", money(totals.long_term.gain), ""});
   t.add_row({"total", "", "", "", "", "", "", "", money(totals.all().gain), ""});
-  return t.render({colour});
+  return t.render(style);
 }
 
 struct GainsOptions : ViewOptions {
@@ -236,7 +263,7 @@ void add_gains(CLI::App& app, Context& ctx) {
       cmd->add_option("--repurchase-window", o->repurchase_window,
                       "Flag each sale at a loss with a buy of the same security, in any account, "
                       "this many days before or after it (off unless given)");
-  add_json_flag(*cmd, o->json);
+  add_json_and_csv_flags(*cmd, o->json, o->csv);
   cmd->callback([&ctx, o, window] {
     if (o->year != 0 && (o->year < 1 || o->year > 9999))
       throw InputError(fmt::format("--year: '{}' is not a calendar year (1 to 9999)", o->year));
@@ -250,7 +277,7 @@ void add_gains(CLI::App& app, Context& ctx) {
     const auto totals = ledger::totals_by_term(taxable);
     if (o->json) {
       print_json([&](JsonWriter& j) {
-        j.begin_object().key("gains").begin_array();
+        report::begin_document(j, "gains", 1).key("gains").begin_array();
         for (const auto& g : taxable) gain_json(j, g);
         j.end_array();
         j.member("total_short", totals.short_term.gain).member("total_long", totals.long_term.gain);
@@ -264,10 +291,25 @@ void add_gains(CLI::App& app, Context& ctx) {
       });
       return;
     }
-    out(gain_table(taxable, ctx.colour()));
+    if (o->csv) {
+      // Every line, taxable or not, with the account's tax status on its day.
+      CsvRows csv({"account", "symbol", "lot", "sell", "action", "acquired", "disposed", "quantity",
+                   "proceeds", "cost", "gain", "term", "tax_status"});
+      for (const auto* list : {&taxable, &elsewhere})
+        for (const auto& g : *list)
+          csv.add({g.account, g.symbol, std::to_string(g.part.lot_id),
+                   g.part.action_id != 0 ? "" : std::to_string(g.part.sell_txn_id),
+                   g.part.action_id != 0 ? std::to_string(g.part.action_id) : "",
+                   g.part.acquired.str(), g.part.disposed.str(), g.part.quantity.str(),
+                   g.part.proceeds.str(), g.part.cost.str(), g.part.gain().str(),
+                   g.long_term ? "long" : "short", std::string(to_string(g.tax_status))});
+      out(csv.text());
+      return;
+    }
+    out(gain_table(taxable, ctx.style()));
     if (!elsewhere.empty()) {
       out("\nNot a taxable event here (tax-deferred and tax-exempt accounts):\n");
-      out(gain_table(elsewhere, ctx.colour()));
+      out(gain_table(elsewhere, ctx.style()));
     }
     bool flagged = false;
     for (const auto* list : {&taxable, &elsewhere})
@@ -295,7 +337,7 @@ void add_history(CLI::App& app, Context& ctx) {
   add_account_option(*cmd, o->account);
   cmd->add_option("--from", o->from, "First day, YYYY-MM-DD");
   cmd->add_option("--to", o->to, "Last day, YYYY-MM-DD");
-  add_json_flag(*cmd, o->json);
+  add_json_and_csv_flags(*cmd, o->json, o->csv);
   cmd->callback([&ctx, o] {
     // Inclusive bounds; an absent one is the first or last day a Date can hold.
     const Date from = date_option(o->from, "--from").value_or(Date::from_ymd(1, 1, 1));
@@ -308,17 +350,20 @@ void add_history(CLI::App& app, Context& ctx) {
     const auto voided = voided_ids(txns);
     std::string json;
     JsonWriter j(json);
-    j.begin_array();
+    report::begin_document(j, "history", 1).key("transactions").begin_array();
     Table t = history_table();
+    CsvRows csv = history_csv();
     for (const auto& x : txns) {
       if (only && x.account_id != *only) continue;
       if (x.date < from || x.date > to) continue;
       if (o->json)
         history_json(j, x, names, voided);
+      else if (o->csv)
+        csv.add(history_csv_cells(x, names, voided));
       else
         t.add_row(history_cells(x, names, voided));
     }
-    j.end_array();
+    j.end_array().end_object();
     // Corporate actions concern every account that holds the security: they
     // are listed under the transactions, in the text form only.
     const auto actions = store::list_actions(db);
@@ -328,10 +373,12 @@ void add_history(CLI::App& app, Context& ctx) {
       if (a.date >= from && a.date <= to) at.add_row(rows.cells(a));
     if (o->json)
       out(json + "\n");
+    else if (o->csv)
+      out(csv.text());
     else if (at.empty())
-      out(t.render({ctx.colour()}));
+      out(t.render(ctx.style()));
     else
-      out(t.render({ctx.colour()}) + "\nCorporate actions:\n" + at.render({ctx.colour()}));
+      out(t.render(ctx.style()) + "\nCorporate actions:\n" + at.render(ctx.style()));
   });
 }
 
@@ -344,9 +391,9 @@ void add_lists(CLI::App& app, Context& ctx) {
     auto db = ctx.open_ledger();
     std::string json;
     JsonWriter j(json);
-    j.begin_array();
+    report::begin_document(j, "accounts", 1).key("accounts").begin_array();
     Table t({{"id", Align::right},
-             {"name"},
+             {"name", Align::left, true},
              {"currency"},
              {"basis"},
              {"negative cash"},
@@ -376,8 +423,8 @@ void add_lists(CLI::App& app, Context& ctx) {
       t.add_row({std::to_string(a.id), a.name, a.currency, std::string(to_string(a.basis)),
                  a.allow_negative_cash ? "allowed" : "no", shown});
     }
-    j.end_array();
-    out(*json_accounts ? json + "\n" : t.render({ctx.colour()}));
+    j.end_array().end_object();
+    out(*json_accounts ? json + "\n" : t.render(ctx.style()));
   });
 
   auto json_securities = std::make_shared<bool>(false);
@@ -388,13 +435,13 @@ void add_lists(CLI::App& app, Context& ctx) {
     auto db = ctx.open_ledger();
     std::string json;
     JsonWriter j(json);
-    j.begin_array();
+    report::begin_document(j, "securities", 1).key("securities").begin_array();
     Table t({{"symbol"},
-             {"name"},
+             {"name", Align::left, true},
              {"kind"},
              {"currency"},
-             {"lot size", Align::right},
-             {"sector"},
+             {"lot size", Align::right, false, 1},
+             {"sector", Align::left, true},
              {"country"}});
     for (const auto& s : store::list_securities(db)) {
       j.begin_object().member("symbol", s.symbol).member("name", s.name);
@@ -404,8 +451,8 @@ void add_lists(CLI::App& app, Context& ctx) {
       t.add_row({s.symbol, s.name, std::string(to_string(s.kind)), s.currency, s.lot_size.str(),
                  s.sector.value_or(""), s.country.value_or("")});
     }
-    j.end_array();
-    out(*json_securities ? json + "\n" : t.render({ctx.colour()}));
+    j.end_array().end_object();
+    out(*json_securities ? json + "\n" : t.render(ctx.style()));
   });
 }
 

@@ -65,7 +65,7 @@ void add_returns(CLI::App& app, Context& ctx) {
     auto db = ctx.open_ledger();
     const auto rep = perf::returns_report(db, request);
     out(o->json ? report::returns_json(rep, o->method, o->monthly)
-                : report::returns_text(rep, o->method, o->monthly, ctx.colour()));
+                : report::returns_text(rep, o->method, o->monthly, ctx.style()));
   });
 }
 

@@ -30,7 +30,8 @@ void add_propose(CLI::App& app, Context& ctx) {
       "propose", "A rule's orders for a day: the screen, the orders and the result");
   add_examples(*cmd, {"keel propose --rule rule.toml --as-of 2025-12-31",
                       "keel propose --rule rule.toml --save"});
-  cmd->add_option("--rule", o->rule, "Rule file (TOML; see docs/rules.md)")->required();
+  cmd->add_option("--rule", o->rule, "Rule file (TOML; see docs/rules.md; '-': standard input)")
+      ->required();
   cmd->add_option("--as-of", o->as_of,
                   "Day to propose for, YYYY-MM-DD (default: the latest day with a close)");
   add_json_flag(*cmd, o->json);
@@ -53,7 +54,7 @@ void add_propose(CLI::App& app, Context& ctx) {
       out(report::proposal_json(proposal, id));
       return;
     }
-    out(report::proposal_text(proposal, ctx.colour()));
+    out(report::proposal_text(proposal, ctx.style()));
     if (id) out(fmt::format("\nSaved as proposal {}; see 'keel proposals show {}'.\n", *id, *id));
   });
 }
@@ -84,7 +85,7 @@ void add_proposals(CLI::App& app, Context& ctx) {
     auto db = ctx.open_ledger();
     const auto all = store::list_proposals(db);
     out(lo->json ? report::proposals_list_json(all)
-                 : report::proposals_list_text(all, ctx.colour()));
+                 : report::proposals_list_text(all, ctx.style()));
   });
 
   auto so = std::make_shared<ProposalsOptions>();
@@ -97,7 +98,7 @@ void add_proposals(CLI::App& app, Context& ctx) {
     const std::int64_t id = id_option(so->id);
     auto db = ctx.open_ledger();
     const auto r = rules::review(db, id);
-    out(so->json ? report::review_json(r) : report::review_text(r, ctx.colour()));
+    out(so->json ? report::review_json(r) : report::review_text(r, ctx.style()));
   });
 }
 

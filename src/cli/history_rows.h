@@ -10,6 +10,7 @@
 #include <unordered_set>
 #include <vector>
 
+#include "cli/csv_rows.h"
 #include "core/json.h"
 #include "model/records.h"
 #include "report/table.h"
@@ -57,17 +58,19 @@ struct LedgerNames {
 
 inline report::Table history_table() {
   using report::Align;
+  // Names and notes shorten to fit a terminal; then the ref and the fee
+  // make way, never the figures of the trade itself.
   return report::Table({{"id", Align::right},
                         {"date"},
-                        {"account"},
+                        {"account", Align::left, true},
                         {"kind"},
                         {"symbol"},
                         {"quantity", Align::right},
                         {"price", Align::right},
                         {"amount", Align::right},
-                        {"fee", Align::right},
-                        {"ref"},
-                        {"note"}});
+                        {"fee", Align::right, false, 1},
+                        {"ref", Align::left, false, 2},
+                        {"note", Align::left, true}});
 }
 
 inline std::string history_opt(const std::optional<Decimal>& d) {
@@ -106,7 +109,8 @@ inline void history_json(JsonWriter& j, const Transaction& x, const LedgerNames&
                          const std::unordered_set<std::int64_t>& voided) {
   j.begin_object().member("id", static_cast<long long>(x.id)).member("date", x.date.str());
   j.member("account", names.account_on(x.account_id, x.date));
-  j.member("kind", std::string(to_string(x.kind))).member("symbol", names.symbol_on(x.security_id, x.date));
+  j.member("kind", std::string(to_string(x.kind)))
+      .member("symbol", names.symbol_on(x.security_id, x.date));
   j.member("quantity", history_opt(x.quantity)).member("price", history_opt(x.price));
   j.member("amount", history_opt(x.amount)).member("fee", x.fee);
   j.member("ref", x.ref.value_or("")).member("note", x.note.value_or(""));
@@ -116,6 +120,37 @@ inline void history_json(JsonWriter& j, const Transaction& x, const LedgerNames&
   if (x.rate) j.member("rate", *x.rate);
   if (x.to_currency) j.member("to_currency", *x.to_currency);
   j.end_object();
+}
+
+// The same row for --csv, with the JSON member names as headings; figures
+// are as stored, in the row's currency (empty: the account's).
+inline CsvRows history_csv() {
+  return CsvRows({"id", "date", "account", "kind", "symbol", "quantity", "price", "amount", "fee",
+                  "ref", "note", "voided", "voids", "link", "currency", "rate", "to_currency"});
+}
+
+inline std::vector<std::string> history_csv_cells(const Transaction& x, const LedgerNames& names,
+                                                  const std::unordered_set<std::int64_t>& voided) {
+  auto id = [](const std::optional<std::int64_t>& v) {
+    return v ? std::to_string(*v) : std::string();
+  };
+  return {std::to_string(x.id),
+          x.date.str(),
+          names.account_on(x.account_id, x.date),
+          std::string(to_string(x.kind)),
+          names.symbol_on(x.security_id, x.date),
+          history_opt(x.quantity),
+          history_opt(x.price),
+          history_opt(x.amount),
+          x.fee.str(),
+          x.ref.value_or(""),
+          x.note.value_or(""),
+          voided.count(x.id) ? "yes" : "no",
+          id(x.voids_id),
+          id(x.link_id),
+          x.currency.value_or(""),
+          history_opt(x.rate),
+          x.to_currency.value_or("")};
 }
 
 }  // namespace keel::cli

@@ -40,6 +40,9 @@ int main(int argc, char** argv) {
       ->envname("KEEL_DB");
   app.add_flag("--allow-unsafe-permissions", context.allow_unsafe_permissions,
                "Open a ledger file that other users can write to");
+  app.add_flag("--no-pager", context.no_pager,
+               "Print long output directly instead of through $PAGER (default 'less -FRX'); "
+               "output that is not to a terminal is never paged");
 
   keel::cli::register_ledger_commands(app, context);
   keel::cli::register_action_commands(app, context);
@@ -55,14 +58,23 @@ int main(int argc, char** argv) {
   keel::cli::register_reconcile_commands(app, context);
   keel::cli::register_reference_command(app);
   // Before any command runs: no file keel writes may be the ledger.
-  app.parse_complete_callback([&context] { keel::protect_from_output(context.ledger_path()); });
+  app.parse_complete_callback([&context] {
+    keel::protect_from_output(context.ledger_path());
+    if (!context.no_pager) keel::cli::hold_output_for_pager();
+  });
   // A file size limit (ulimit -f) then fails a write with EFBIG, reported like
   // a full disk, instead of killing keel mid-write.
   std::signal(SIGXFSZ, SIG_IGN);
   // Set last: commands added before would inherit it.
   keel::cli::add_examples(app, {"keel demo", "keel help record buy"});
 
+  // Leaving the try block by an exception prints held text as it is, before
+  // the error message.
+  struct ReleaseOnError {
+    ~ReleaseOnError() { keel::cli::release_held_output(); }
+  };
   try {
+    ReleaseOnError release;
     app.parse(argc, argv);
     keel::cli::finish_output();
   } catch (const CLI::ParseError& e) {

@@ -39,6 +39,12 @@ void add_json_flag(CLI::App& cmd, bool& json) {
   cmd.add_flag("--json", json, "Print JSON for scripts");
 }
 
+void add_json_and_csv_flags(CLI::App& cmd, bool& json, bool& csv) {
+  auto* j = cmd.add_flag("--json", json, "Print JSON for scripts");
+  cmd.add_flag("--csv", csv, "Print CSV for spreadsheets (RFC 4180; exact figures, no totals)")
+      ->excludes(j);
+}
+
 void add_account_option(CLI::App& cmd, std::string& account, const std::string& help) {
   cmd.add_option("--account", account, help);
 }

@@ -29,6 +29,8 @@ void add_examples(CLI::App& cmd, std::initializer_list<const char*> lines);
 std::vector<std::string> examples(const CLI::App& cmd);
 
 void add_json_flag(CLI::App& cmd, bool& json);
+// --json and --csv (RFC 4180, see cli/csv_rows.h), one or the other.
+void add_json_and_csv_flags(CLI::App& cmd, bool& json, bool& csv);
 void add_account_option(CLI::App& cmd, std::string& account,
                         const std::string& help = "Only this account");
 

@@ -223,8 +223,43 @@ void OutputFile::fail(int err, std::string_view doing) {
                                kept ? "; the existing file is unchanged" : ""));
 }
 
+namespace {
+void (*before_standard_output)() = nullptr;
+}  // namespace
+
+bool is_standard_input(const fs::path& path) {
+  return path == "-";
+}
+
+const std::string& standard_input_text() {
+  static std::optional<std::string> text;
+  if (text) return *text;
+  std::string all;
+  std::vector<char> buf(1 << 16);
+  for (;;) {
+    const ssize_t got = ::read(STDIN_FILENO, buf.data(), buf.size());
+    if (got == 0) break;
+    if (got < 0) {
+      if (errno == EINTR) continue;
+      throw InputError(fmt::format("cannot read standard input: {}", os_error_text(errno)));
+    }
+    all.append(buf.data(), static_cast<std::size_t>(got));
+  }
+  text = std::move(all);
+  return *text;
+}
+
+std::string input_name(const fs::path& path) {
+  return is_standard_input(path) ? std::string("standard input") : path.string();
+}
+
+void set_before_standard_output(void (*hook)()) {
+  before_standard_output = hook;
+}
+
 void OutputFile::flush_stdio() {
   if (mode_ != Mode::standard_output || flushed_stdout_) return;
+  if (before_standard_output) before_standard_output();
   // Text printed before through stdio goes first.
   if (std::fflush(stdout) != 0) fail(errno);
   flushed_stdout_ = true;

@@ -35,6 +35,22 @@
 
 namespace keel {
 
+// Reading input files: "-" names standard input.
+//  - is_standard_input(path): the path is "-".
+//  - standard_input_text(): all of standard input, read the first time it is
+//    asked for and kept, so that looking at a file's first bytes (is it OFX?)
+//    and then reading it sees the same text. A failed read is an InputError
+//    "cannot read standard input: <reason>".
+//  - input_name(path): how messages name it ("standard input" for "-").
+bool is_standard_input(const std::filesystem::path& path);
+const std::string& standard_input_text();
+std::string input_name(const std::filesystem::path& path);
+
+// A function OutputFile calls once before it first writes to standard
+// output, so that text a caller holds back (the command line's pager) goes
+// out first. Null: none.
+void set_before_standard_output(void (*hook)());
+
 // The reason for a failed system call, in words: "disk full" (ENOSPC),
 // "disk quota exceeded", "permission denied", ... (strerror otherwise).
 std::string os_error_text(int err);

@@ -8,6 +8,7 @@
 #include <utility>
 
 #include "core/error.h"
+#include "core/files.h"
 #include "core/text.h"
 
 namespace keel::io {
@@ -49,6 +50,7 @@ CsvReader::~CsvReader() {
 }
 
 CsvReader CsvReader::open(const std::filesystem::path& path, const CsvOptions& options) {
+  if (is_standard_input(path)) return from_text(standard_input_text(), input_name(path), options);
   CsvReader r(path.string(), options);
   std::error_code ec;
   if (std::filesystem::is_directory(path, ec))

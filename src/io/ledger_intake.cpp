@@ -10,6 +10,7 @@
 
 #include "core/currency.h"
 #include "core/error.h"
+#include "core/files.h"
 #include "core/json.h"
 #include "core/text.h"
 #include "io/csv.h"
@@ -275,7 +276,7 @@ bool read_request(TableReader& t, IntakeRow& row) {
 
 LedgerImportSummary new_summary(const std::filesystem::path& file, const ImportOptions& options) {
   LedgerImportSummary sum;
-  sum.file = file.string();
+  sum.file = input_name(file);
   sum.dry_run = options.dry_run;
   return sum;
 }
@@ -284,7 +285,7 @@ void record_run(store::Database& db, std::string_view what, const std::filesyste
                 LedgerImportSummary& sum) {
   store::ImportRun run;
   run.what = std::string(what);
-  run.file_name = file.filename().string();
+  run.file_name = is_standard_input(file) ? input_name(file) : file.filename().string();
   run.file_sha256 = sum.sha256;
   run.rows_read = static_cast<std::int64_t>(sum.rows);
   run.rows_added = static_cast<std::int64_t>(sum.added);
@@ -393,7 +394,7 @@ void book_rows(store::Database& db, const std::filesystem::path& file, std::vect
   std::unordered_map<std::int64_t, std::string> pending;
   for (std::size_t i = 0; i < fresh_rows.size(); ++i) {
     IntakeRow& row = fresh_rows[i];
-    const std::string origin = fmt::format("{}:{}", printable(file.string()), row.line);
+    const std::string origin = fmt::format("{}:{}", printable(input_name(file)), row.line);
     try {
       if (replaces[i] != 0) {
         const std::string reason =
@@ -428,8 +429,8 @@ void book_rows(store::Database& db, const std::filesystem::path& file, std::vect
   try {
     ledger::check_ledger(db, pending);
   } catch (const InputError& e) {
-    throw ImportRefused(fmt::format("{}: 1 error; nothing was changed", printable(file.string())),
-                        {e.what()});
+    throw ImportRefused(
+        fmt::format("{}: 1 error; nothing was changed", printable(input_name(file))), {e.what()});
   }
 }
 
@@ -442,7 +443,7 @@ LedgerImportSummary import_transactions(store::Database& db, const std::filesyst
         "(or the mapping's defaults do)");
   const Mapping mapping = checked_mapping(options, "transactions");
   CsvReader csv = open_import_csv(file, mapping, options);
-  ErrorList errors(file.string());
+  ErrorList errors(input_name(file));
   LedgerImportSummary sum = new_summary(file, options);
 
   store::WriteTransaction tx(db);
@@ -476,7 +477,7 @@ LedgerImportSummary import_accounts(store::Database& db, const std::filesystem::
                                     const ImportOptions& options) {
   const Mapping mapping = checked_mapping(options, "accounts");
   CsvReader csv = open_import_csv(file, mapping, options);
-  ErrorList errors(file.string());
+  ErrorList errors(input_name(file));
   LedgerImportSummary sum = new_summary(file, options);
   store::WriteTransaction tx(db);
   {

@@ -8,6 +8,7 @@
 #include <sstream>
 
 #include "core/error.h"
+#include "core/files.h"
 #include "core/text.h"
 #include "model/records.h"
 
@@ -202,6 +203,7 @@ ActionRules action_rules(const Ctx& ctx, const toml::node& n) {
 }  // namespace
 
 Mapping Mapping::load(const std::filesystem::path& path) {
+  if (is_standard_input(path)) return parse(standard_input_text(), input_name(path));
   std::ifstream in(path, std::ios::binary);
   if (!in) throw InputError(fmt::format("{}: cannot open mapping file", printable(path.string())));
   std::ostringstream ss;

@@ -361,10 +361,10 @@ ImportSummary import_market(store::Database& db, MarketKind what, const std::fil
                                  printable(mapping.source), printable(mapping.applies_to),
                                  to_string(what)));
   CsvReader csv = open_import_csv(file, mapping, options);
-  ErrorList errors(file.string());
+  ErrorList errors(input_name(file));
   ImportSummary sum;
   sum.what = what;
-  sum.file = file.string();
+  sum.file = input_name(file);
   sum.dry_run = options.dry_run;
 
   store::ForeignKeyPause pause(db);
@@ -383,7 +383,7 @@ ImportSummary import_market(store::Database& db, MarketKind what, const std::fil
   if (sum.added + sum.replaced > 0) {
     store::ImportRun r;
     r.what = std::string(to_string(what));
-    r.file_name = file.filename().string();
+    r.file_name = is_standard_input(file) ? input_name(file) : file.filename().string();
     r.file_sha256 = sum.sha256;
     r.rows_read = static_cast<std::int64_t>(sum.rows);
     r.rows_added = static_cast<std::int64_t>(sum.added);

@@ -11,6 +11,7 @@
 #include <sstream>
 
 #include "core/error.h"
+#include "core/files.h"
 #include "core/text.h"
 
 namespace keel::io {
@@ -388,6 +389,7 @@ bool looks_like_ofx(std::string_view text) {
 }
 
 bool is_ofx_file(const std::filesystem::path& file) {
+  if (is_standard_input(file)) return looks_like_ofx(std::string_view(standard_input_text()));
   std::ifstream in(file, std::ios::binary);
   if (!in) return false;
   std::string head(600, '\0');
@@ -397,12 +399,17 @@ bool is_ofx_file(const std::filesystem::path& file) {
 }
 
 OfxStatement read_ofx(const std::filesystem::path& file) {
-  const std::string name = file.string();
-  std::ifstream in(file, std::ios::binary);
-  if (!in) throw InputError(fmt::format("{}: cannot open", printable(name)));
-  std::ostringstream ss;
-  ss << in.rdbuf();
-  const std::string text = ss.str();
+  const std::string name = input_name(file);
+  std::string text;
+  if (is_standard_input(file)) {
+    text = standard_input_text();
+  } else {
+    std::ifstream in(file, std::ios::binary);
+    if (!in) throw InputError(fmt::format("{}: cannot open", printable(name)));
+    std::ostringstream ss;
+    ss << in.rdbuf();
+    text = ss.str();
+  }
   if (text.size() > kMaxBytes)
     throw InputError(
         fmt::format("{}: larger than 64 MiB; is it an OFX statement?", printable(name)));

@@ -4,6 +4,7 @@
 #include <fmt/format.h>
 
 #include "core/error.h"
+#include "core/files.h"
 #include "core/text.h"
 #include "io/ledger_intake.h"
 #include "io/ofx.h"
@@ -23,7 +24,7 @@ LedgerImportSummary import_ofx_transactions(store::Database& db, const std::file
                     "belongs to",
                     printable(st.account)));
   LedgerImportSummary sum;
-  sum.file = file.string();
+  sum.file = input_name(file);
   sum.dry_run = options.dry_run;
   sum.sha256 = sha256_file_hex(file);
   store::WriteTransaction tx(db);
@@ -33,7 +34,7 @@ LedgerImportSummary import_ofx_transactions(store::Database& db, const std::file
         "{}: the statement is in {} but account '{}' keeps {}; keel does "
         "not convert currencies yet",
         printable(sum.file), printable(st.currency), printable(account.name), account.currency));
-  ErrorList errors(file.string());
+  ErrorList errors(input_name(file));
   std::vector<IntakeRow> rows;
   for (const auto& t : st.transactions) {
     ++sum.rows;

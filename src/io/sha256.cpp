@@ -8,6 +8,7 @@
 #include <stdexcept>
 
 #include "core/error.h"
+#include "core/files.h"
 #include "core/text.h"
 
 namespace keel::io {
@@ -57,6 +58,7 @@ std::string sha256_hex(std::string_view text) {
 }
 
 std::string sha256_file_hex(const std::filesystem::path& file) {
+  if (is_standard_input(file)) return sha256_hex(standard_input_text());
   std::ifstream in(file, std::ios::binary);
   if (!in) throw InputError(fmt::format("{}: cannot open", printable(file.string())));
   Sha256 sha;

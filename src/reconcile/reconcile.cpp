@@ -6,6 +6,7 @@
 #include <set>
 
 #include "core/error.h"
+#include "core/files.h"
 #include "core/text.h"
 #include "io/csv.h"
 #include "io/errors.h"
@@ -231,9 +232,9 @@ BrokerStatement read_statement_csv(store::Database& db, const std::filesystem::p
   options.delimiter = m.delimiter;
   options.hash = true;
   io::CsvReader csv = io::CsvReader::open(file, options);
-  io::ErrorList errors(file.string());
+  io::ErrorList errors(input_name(file));
   BrokerStatement st;
-  st.file = file.string();
+  st.file = input_name(file);
   st.day = day;
   const auto accounts = account_names(db);
   const auto known_symbols = symbols(db);
@@ -309,7 +310,7 @@ BrokerStatement read_statement_ofx(store::Database& db, const std::filesystem::p
                                    const std::string& account) {
   const io::OfxStatement ofx = io::read_ofx(file);
   BrokerStatement st;
-  st.file = file.string();
+  st.file = input_name(file);
   st.sha256 = io::sha256_file_hex(file);
   st.day = ofx.as_of;
   const auto a = store::find_account(db, account);

@@ -7,6 +7,7 @@
 #include "core/json.h"
 #include "core/text.h"
 #include "report/format.h"
+#include "report/json_schema.h"
 #include "report/table.h"
 
 namespace keel::report {
@@ -121,7 +122,7 @@ std::string backtest_json(const backtest::Result& r) {
 void backtest_json(const backtest::Result& r, const Emit& emit) {
   std::string s;
   JsonWriter j(s);
-  j.begin_object();
+  begin_document(j, "backtest", 1);
   j.member("rule", r.rule_name).member("from", r.from.str()).member("to", r.to.str());
   j.member("start_value", r.start_value).member("frictionless", r.frictionless);
   j.member("benchmark", r.benchmark);
@@ -160,7 +161,7 @@ void backtest_json(const backtest::Result& r, const Emit& emit) {
   emit(s + "\n");
 }
 
-std::string backtest_text(const backtest::Result& r, bool colour) {
+std::string backtest_text(const backtest::Result& r, const Style& style) {
   std::string s = fmt::format("Back-test of rule '{}' from {} to {} ({})\n", printable(r.rule_name),
                               r.from.str(), r.to.str(),
                               r.frictionless ? "frictionless: no fees, fractional units, fully "
@@ -169,7 +170,8 @@ std::string backtest_text(const backtest::Result& r, bool colour) {
   s += fmt::format("Start value {}; {} rebalancing days, {} to {}\n\n", r.start_value.fixed(2),
                    r.rebalance_days.size(), r.rebalance_days.front().str(),
                    r.rebalance_days.back().str());
-  std::vector<Table::Column> cols{{""}, {"rule", Align::right}, {"baseline", Align::right}};
+  std::vector<Table::Column> cols{
+      {"", Align::left, true}, {"rule", Align::right}, {"baseline", Align::right}};
   const bool bench = r.benchmark && r.rule.perf.benchmark;
   if (bench) cols.push_back({"benchmark " + *r.benchmark, Align::right});
   Table t(cols);
@@ -207,7 +209,7 @@ std::string backtest_text(const backtest::Result& r, bool colour) {
   row("names held (min/mean/max)",
       fmt::format("{}/{:.1f}/{}", a.names_min, a.names_mean, a.names_max),
       fmt::format("{}/{:.1f}/{}", b.names_min, b.names_mean, b.names_max), "");
-  s += t.render({colour});
+  s += t.render(style);
 
   for (const auto& w : r.rolling) {
     if (&w == &r.rolling.front())
@@ -238,7 +240,7 @@ std::string backtest_curve_csv(const backtest::Result& r) {
 std::string signal_json(const backtest::SignalResult& r) {
   std::string s;
   JsonWriter j(s);
-  j.begin_object();
+  begin_document(j, "signal", 1);
   j.member("rule", r.rule_name).member("from", r.from.str()).member("to", r.to.str());
   j.member("sign_convention",
            "IC = Spearman(z, forward return); low z is cheap, so a rule whose cheap names do "
@@ -265,7 +267,7 @@ std::string signal_json(const backtest::SignalResult& r) {
   return s + "\n";
 }
 
-std::string signal_text(const backtest::SignalResult& r, bool colour) {
+std::string signal_text(const backtest::SignalResult& r, const Style& style) {
   std::string s = fmt::format("Signal check of rule '{}' from {} to {}\n", printable(r.rule_name),
                               r.from.str(), r.to.str());
   s += "IC = Spearman rank correlation of z with the forward total return. Low z is cheap, so a "
@@ -281,7 +283,7 @@ std::string signal_text(const backtest::SignalResult& r, bool colour) {
                h.mean_ic ? fmt::format("{:.4f}", *h.mean_ic) : "n/a",
                h.t_stat ? fmt::format("{:.2f}", *h.t_stat) : "n/a", pct(h.share_expected_sign),
                pct(h.mean_spread)});
-  s += t.render({colour});
+  s += t.render(style);
   return s + notes_and_cautions(r.notes, r.cautions);
 }
 

@@ -16,10 +16,11 @@
 
 #include "backtest/backtest.h"
 #include "backtest/signal.h"
+#include "report/table.h"
 
 namespace keel::report {
 
-std::string backtest_text(const backtest::Result& r, bool colour);
+std::string backtest_text(const backtest::Result& r, const Style& style);
 std::string backtest_json(const backtest::Result& r);
 // The same JSON handed to `emit` in parts as it is written (a run's trades
 // can be tens of MB).
@@ -27,7 +28,7 @@ using Emit = std::function<void(const std::string&)>;
 void backtest_json(const backtest::Result& r, const Emit& emit);
 std::string backtest_curve_csv(const backtest::Result& r);
 
-std::string signal_text(const backtest::SignalResult& r, bool colour);
+std::string signal_text(const backtest::SignalResult& r, const Style& style);
 std::string signal_json(const backtest::SignalResult& r);
 
 }  // namespace keel::report

@@ -3,12 +3,14 @@
 namespace keel::report {
 
 std::vector<Table::Column> gain_columns(const std::string& term_heading) {
-  return {{"account"},
+  // Names shorten to fit a terminal; then the lot number and the quantity
+  // make way, never the dates or the money.
+  return {{"account", Align::left, true},
           {"symbol"},
-          {"lot", Align::right},
+          {"lot", Align::right, false, 2},
           {"acquired"},
           {"disposed"},
-          {"quantity", Align::right},
+          {"quantity", Align::right, false, 1},
           {"proceeds", Align::right},
           {"cost", Align::right},
           {"gain", Align::right},

@@ -5,6 +5,7 @@
 #include "core/json.h"
 #include "core/text.h"
 #include "report/format.h"
+#include "report/json_schema.h"
 #include "report/table.h"
 
 namespace keel::report {
@@ -12,7 +13,7 @@ namespace keel::report {
 std::string proposal_json(const rules::Proposal& p, std::optional<std::int64_t> saved_id) {
   std::string s;
   JsonWriter j(s);
-  j.begin_object();
+  begin_document(j, "propose", 1);
   j.member("as_of", p.as_of.str());
   j.member("rule", p.rule_name);
   j.member("rule_sha256", p.rule_sha256);
@@ -88,7 +89,7 @@ std::string proposal_json(const rules::Proposal& p, std::optional<std::int64_t> 
   return s + "\n";
 }
 
-std::string proposal_text(const rules::Proposal& p, bool colour) {
+std::string proposal_text(const rules::Proposal& p, const Style& style) {
   std::string s =
       fmt::format("Proposal of rule '{}' as of {}\n", printable(p.rule_name), p.as_of.str());
   s += fmt::format("Accounts: {}; pool value {}\n\n", printable_list(p.accounts),
@@ -100,36 +101,40 @@ std::string proposal_text(const rules::Proposal& p, bool colour) {
   if (sc.clip_low)
     s += fmt::format("; values clipped to [{:.6g}, {:.6g}]", *sc.clip_low, *sc.clip_high);
   s += fmt::format("; {} selected\n", sc.selected);
+  // A narrow terminal shortens the why, then loses the period, the day the
+  // figure was known and its age; the figure, z and the verdict stay.
   Table screen({{"symbol"},
                 {"value", Align::right},
-                {"period"},
-                {"age", Align::right},
-                {"known on"},
+                {"period", Align::left, false, 3},
+                {"age", Align::right, false, 1},
+                {"known on", Align::left, false, 2},
                 {"z", Align::right},
                 {"held"},
                 {"in/out"},
-                {"why"}});
+                {"why", Align::left, true}});
   for (const auto& l : sc.lines)
     screen.add_row(
         {l.symbol, l.figure ? l.figure->value.str() : "", l.figure ? l.figure->period.str() : "",
          l.figure ? std::to_string(l.age_days) : "", l.figure ? l.figure->known_on.str() : "",
          z_text(l.z), l.held ? "yes" : "", l.selected ? "in" : "out", l.note});
-  s += screen.render({colour}) + "\n";
+  s += screen.render(style) + "\n";
 
   s += "2. Orders (estimates at the closes used)\n";
   if (p.plan.orders.empty()) {
     s += "No orders.\n\n";
   } else {
-    Table t({{"account"},
+    // The reason (and the account) shorten first; then the weights now and
+    // the fee make way, never the order itself.
+    Table t({{"account", Align::left, true},
              {"symbol"},
              {"side"},
              {"quantity", Align::right},
              {"est. price", Align::right},
              {"est. value", Align::right},
-             {"est. fee", Align::right},
-             {"now", Align::right},
+             {"est. fee", Align::right, false, 1},
+             {"now", Align::right, false, 2},
              {"target", Align::right},
-             {"reason"}});
+             {"reason", Align::left, true}});
     for (const auto& o : p.plan.orders) {
       t.add_row({o.account, o.symbol, std::string(rules::to_string(o.side)), o.quantity.str(),
                  o.price.str(), money(o.value), money(o.fee), pct(o.weight_now),
@@ -140,7 +145,7 @@ std::string proposal_text(const rules::Proposal& p, bool colour) {
                                l.acquired.str(), money(l.cost), money(l.est_gain),
                                l.long_term ? "long" : "short")});
     }
-    s += t.render({colour}) + "\n";
+    s += t.render(style) + "\n";
   }
 
   s += "3. Result\n";
@@ -153,7 +158,7 @@ std::string proposal_text(const rules::Proposal& p, bool colour) {
   for (const auto& c : p.plan.cash_after)
     w.add_row({"(cash) " + c.account, money(c.cash), "",
                c.reserve.is_zero() ? "" : "reserve " + money(c.reserve)});
-  s += w.render({colour});
+  s += w.render(style);
   s += fmt::format("Cash after: {}; turnover {}; estimated fees {}\n",
                    money(p.plan.cash_after_total), pct(p.plan.turnover),
                    money(p.plan.estimated_fees));
@@ -171,7 +176,7 @@ std::string proposal_text(const rules::Proposal& p, bool colour) {
 std::string proposals_list_json(const std::vector<store::ProposalRow>& all) {
   std::string s;
   JsonWriter j(s);
-  j.begin_array();
+  begin_document(j, "proposals-list", 1).key("proposals").begin_array();
   for (const auto& p : all) {
     j.begin_object();
     j.member("id", static_cast<long long>(p.id)).member("as_of", p.as_of.str());
@@ -181,29 +186,29 @@ std::string proposals_list_json(const std::vector<store::ProposalRow>& all) {
     j.member("saved_at", p.saved_at);
     j.end_object();
   }
-  j.end_array();
+  j.end_array().end_object();
   return s + "\n";
 }
 
-std::string proposals_list_text(const std::vector<store::ProposalRow>& all, bool colour) {
+std::string proposals_list_text(const std::vector<store::ProposalRow>& all, const Style& style) {
   Table t({{"id", Align::right},
            {"as of"},
-           {"rule"},
+           {"rule", Align::left, true},
            {"orders", Align::right},
            {"pool value", Align::right},
-           {"rule sha256"},
-           {"saved at"}});
+           {"rule sha256", Align::left, false, 2},
+           {"saved at", Align::left, false, 1}});
   for (const auto& p : all)
     t.add_row({std::to_string(p.id), p.as_of.str(), p.rule_name, std::to_string(p.order_count),
                money(p.pool_value), p.rule_sha256.substr(0, 12), p.saved_at});
-  return t.render({colour});
+  return t.render(style);
 }
 
 std::string review_json(const rules::Review& r) {
   const auto& p = r.proposal;
   std::string s;
   JsonWriter j(s);
-  j.begin_object();
+  begin_document(j, "proposal", 1);
   j.member("id", static_cast<long long>(p.id)).member("as_of", p.as_of.str());
   j.member("rule", p.rule_name).member("rule_file", p.rule_file);
   j.member("rule_sha256", p.rule_sha256).member("pool_value", p.pool_value);
@@ -223,13 +228,13 @@ std::string review_json(const rules::Review& r) {
   return s + "\n";
 }
 
-std::string review_text(const rules::Review& r, bool colour) {
+std::string review_text(const rules::Review& r, const Style& style) {
   const auto& p = r.proposal;
   std::string s = fmt::format("Proposal {} of rule '{}' as of {}, saved {}\n", p.id,
                               printable(p.rule_name), p.as_of.str(), p.saved_at);
   s += fmt::format("Rule file {} (sha256 {}); pool value {}\n\n", printable(p.rule_file),
                    p.rule_sha256, money(p.pool_value));
-  Table t({{"account"},
+  Table t({{"account", Align::left, true},
            {"symbol"},
            {"side"},
            {"proposed", Align::right},
@@ -244,7 +249,7 @@ std::string review_text(const rules::Review& r, bool colour) {
   if (r.lines.empty())
     s += "The proposal had no orders and nothing was traded since.\n";
   else
-    s += t.render({colour});
+    s += t.render(style);
   s += "\nThe proposal was the output of your own rule, not advice; past results do not predict "
        "future ones.\n";
   return s;

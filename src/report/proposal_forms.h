@@ -15,18 +15,19 @@
 #include <string>
 #include <vector>
 
+#include "report/table.h"
 #include "rules/propose.h"
 #include "store/proposals.h"
 
 namespace keel::report {
 
-std::string proposal_text(const rules::Proposal& p, bool colour);
+std::string proposal_text(const rules::Proposal& p, const Style& style);
 std::string proposal_json(const rules::Proposal& p, std::optional<std::int64_t> saved_id);
 
-std::string proposals_list_text(const std::vector<store::ProposalRow>& all, bool colour);
+std::string proposals_list_text(const std::vector<store::ProposalRow>& all, const Style& style);
 std::string proposals_list_json(const std::vector<store::ProposalRow>& all);
 
-std::string review_text(const rules::Review& r, bool colour);
+std::string review_text(const rules::Review& r, const Style& style);
 std::string review_json(const rules::Review& r);
 
 }  // namespace keel::report

@@ -4,6 +4,7 @@
 
 #include "core/json.h"
 #include "report/format.h"
+#include "report/json_schema.h"
 #include "report/table.h"
 
 namespace keel::report {
@@ -35,7 +36,8 @@ Figures figures(const perf::PerfResult& r, bool dietz) {
   return f;
 }
 
-std::string summary_table(const perf::ReturnsReport& rep, const std::string& method, bool colour) {
+std::string summary_table(const perf::ReturnsReport& rep, const std::string& method,
+                          const Style& style) {
   const auto& r = rep.result;
   const Figures f = figures(r, method == "dietz");
   const std::string twr_name = method == "dietz" ? "time-weighted (Modified Dietz, monthly linked)"
@@ -71,7 +73,7 @@ std::string summary_table(const perf::ReturnsReport& rep, const std::string& met
   else
     t.add_row({"max drawdown", r.risk.daily_observations > 0 ? "0.00%" : "n/a", ""});
   t.add_row({"Sharpe ratio", "", r.risk.sharpe ? fmt::format("{:.2f}", *r.risk.sharpe) : "n/a"});
-  std::string text = t.render({colour});
+  std::string text = t.render(style);
   if (r.mwr.status != perf::MwrStatus::kOk) text += perf::mwr_words(r.mwr) + "\n";
   if (!r.twr.annualized) text += "Periods shorter than 365 days are not annualized.\n";
   if (!r.risk.sharpe)
@@ -79,12 +81,12 @@ std::string summary_table(const perf::ReturnsReport& rep, const std::string& met
   return text;
 }
 
-std::string monthly_table(const perf::ReturnsReport& rep, bool colour) {
+std::string monthly_table(const perf::ReturnsReport& rep, const Style& style) {
   const auto& r = rep.result;
   std::vector<Table::Column> cols{{"month"},
                                   {"opening", Align::right},
-                                  {"inflows", Align::right},
-                                  {"outflows", Align::right},
+                                  {"inflows", Align::right, false, 2},
+                                  {"outflows", Align::right, false, 1},
                                   {"closing", Align::right},
                                   {"time-weighted", Align::right},
                                   {"Modified Dietz", Align::right}};
@@ -104,7 +106,7 @@ std::string monthly_table(const perf::ReturnsReport& rep, bool colour) {
     if (rep.benchmark) row.push_back(pct(m.benchmark));
     t.add_row(std::move(row));
   }
-  std::string text = t.render({colour});
+  std::string text = t.render(style);
   if (partial) text += "* part of the month lies outside the period\n";
   return text;
 }
@@ -116,7 +118,7 @@ std::string returns_json(const perf::ReturnsReport& rep, const std::string& meth
   const Figures f = figures(r, method == "dietz");
   std::string s;
   JsonWriter j(s);
-  j.begin_object();
+  begin_document(j, "returns", 1);
   j.member("from", r.from.str()).member("to", r.to.str()).member("scope", rep.scope);
   j.member("method", method);
   j.member("opening_value", r.opening_value).member("closing_value", r.closing_value);
@@ -177,10 +179,10 @@ std::string returns_json(const perf::ReturnsReport& rep, const std::string& meth
 }
 
 std::string returns_text(const perf::ReturnsReport& rep, const std::string& method, bool monthly,
-                         bool colour) {
+                         const Style& style) {
   std::string s = fmt::format("Returns of {} from {} to {} ({} days)\n\n", rep.scope,
                               rep.result.from.str(), rep.result.to.str(), rep.result.days);
-  s += monthly ? monthly_table(rep, colour) : summary_table(rep, method, colour);
+  s += monthly ? monthly_table(rep, style) : summary_table(rep, method, style);
   if (rep.period.clamped)
     s += fmt::format("The ledger starts on {}; the period starts there.\n", rep.inception.str());
   if (!rep.unpriced.empty())

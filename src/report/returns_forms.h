@@ -12,11 +12,12 @@
 #include <string>
 
 #include "perf/returns_report.h"
+#include "report/table.h"
 
 namespace keel::report {
 
 std::string returns_text(const perf::ReturnsReport& rep, const std::string& method, bool monthly,
-                         bool colour);
+                         const Style& style);
 std::string returns_json(const perf::ReturnsReport& rep, const std::string& method, bool monthly);
 
 }  // namespace keel::report

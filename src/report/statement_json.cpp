@@ -1,6 +1,7 @@
 // The statement as JSON for scripts: decimals as exact strings, returns as
 // fractions (numbers), absent figures as null.
 #include "core/json.h"
+#include "report/json_schema.h"
 #include "report/statement_forms.h"
 
 namespace keel::report {
@@ -25,7 +26,7 @@ void symbol(JsonWriter& j, const std::string& s) {
 std::string statement_json(const Statement& s) {
   std::string text;
   JsonWriter j(text);
-  j.begin_object();
+  begin_document(j, "statement", 1);
   j.member("year", s.year).member("scope", s.scope).member("currency", s.currency);
   j.member("from", s.from.str()).member("to", s.to.str()).member("as_of", s.as_of.str());
   j.member("inception", s.inception.str()).member("partial_year", s.partial_year);

@@ -10,6 +10,7 @@
 #include <sstream>
 
 #include "core/error.h"
+#include "core/files.h"
 #include "core/text.h"
 
 namespace keel::rules {
@@ -314,6 +315,7 @@ std::optional<std::string> nearest(std::string_view word, const std::vector<std:
 }
 
 Rule load_rule(const std::filesystem::path& path) {
+  if (is_standard_input(path)) return parse_rule(standard_input_text(), input_name(path));
   std::ifstream in(path, std::ios::binary);
   if (!in) throw InputError(fmt::format("{}: cannot open rule file", printable(path.string())));
   std::ostringstream ss;

@@ -66,6 +66,6 @@ def household():
     rec("dividend", "2025-12-15", "--account", P, "--symbol", "ALDR", "--amount", "10")
     rec("tax", "2025-12-15", "--account", P, "--symbol", "ALDR", "--amount", "1.5")
     rec("deposit", "2025-12-20", "--account", T, "--amount", "999", "--ref", "twice")
-    mistaken = [t["id"] for t in k.json("history") if t.get("ref") == "twice"][0]
+    mistaken = [t["id"] for t in k.json("history")["transactions"] if t.get("ref") == "twice"][0]
     k.ok("void", str(mistaken), "--reason", "entered twice")
     return k

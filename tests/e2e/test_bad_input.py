@@ -620,6 +620,16 @@ row("option: mistyped while a required one is missing", ["record", "deposit", "-
 row("option: a global option mistyped after the command", ["holdings", "--dbb", "x.db"], USAGE,
     ["keel: error: 'keel holdings' has no option '--dbb'", "Did you mean '--db'?",
      "Run 'keel help holdings' for its options."])
+row("report: --csv and --json together", ["holdings", "--csv", "--json"], USAGE,
+    "--json excludes --csv")
+row("import: the file and its mapping both from standard input",
+    ["import", "transactions", "-", "--map", "-"], INPUT,
+    "keel: error: --map -: the file is read from standard input already; give the mapping as a "
+    "file")
+row("reconcile: the statement and its mapping both from standard input",
+    ["reconcile", "-", "--date", "2024-01-31", "--map", "-"], INPUT,
+    "keel: error: --map -: the statement is read from standard input already; give the mapping "
+    "as a file")
 row("help: an unknown command", ["help", "record", "buyy"], USAGE,
     ["keel: error: 'buyy' is not a command of 'keel record'", "Did you mean 'buy'?",
      "Run 'keel help record' for its commands."])
@@ -787,8 +797,8 @@ h.ok("record", "deposit", "--date", "0001-01-01", "--account", odd, "--amount",
      "123456789012345678901234567890", "--note", note)
 h.ok("record", "buy", "--date", "9999-12-31", "--account", odd, "--symbol", "ÅB-1", "--quantity",
      "0.000000000001", "--price", "0.000000000001", "--allow-future-date")
-equal([a["name"] for a in h.json("account", "list")], [odd], "account name stored exactly")
-hist = h.json("history")
+equal([a["name"] for a in h.json("account", "list")["accounts"]], [odd], "account name stored exactly")
+hist = h.json("history")["transactions"]
 equal([(t["date"], t.get("note")) for t in hist], [("0001-01-01", note), ("9999-12-31", "")],
       "dates in year 1 and 9999 and the note stored exactly")
 held = h.json("holdings", "--as-of", "9999-12-31")
@@ -824,6 +834,6 @@ for start in range(0, len(formats), 50):
         equal(line, want, f"U+{cp:04X}")
         checked += 1
 check(checked >= 150, f"only {checked} format characters checked")
-equal(v.json("security", "list"), [], "no symbol with an invisible character was added")
+equal(v.json("security", "list")["securities"], [], "no symbol with an invisible character was added")
 print(f"{checked} invisible characters refused (Unicode {unicodedata.unidata_version} as Python "
       f"knows it), each named as unicodedata names it")

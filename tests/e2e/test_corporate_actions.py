@@ -10,7 +10,7 @@ from keel_cli import Ledger, check, equal, ledger_digest  # noqa: E402
 
 def lots(led, symbol):
     return [(l["account"], l["lot"], l["acquired"], l["quantity"], l["cost"])
-            for l in led.json("lots") if l["symbol"] == symbol]
+            for l in led.json("lots")["lots"] if l["symbol"] == symbol]
 
 
 def gains(led):
@@ -134,7 +134,7 @@ check(("Rowan", "PLOV", 3, 9, "2024-01-03", "2024-10-01", "12", "4.2", "960", "-
 # Sorrel: 50000 - 3000 + 800 - 500 + 300 + 400 = 48000
 equal(cash(led, "Rowan"), "43662.7", "Rowan's cash")
 equal(cash(led, "Sorrel"), "48000", "Sorrel's cash")
-listing = led.json("action", "list")
+listing = led.json("action", "list")["actions"]
 equal([(a["id"], a["action"], a["symbol"], a["voided_by"]) for a in listing],
       [(1, "split", "PLOV", None), (4, "return_of_capital", "WREN", None),
        (3, "spinoff", "GULL", None), (6, "stock_dividend", "RAIL", None),

@@ -50,7 +50,7 @@ equal(led.ok("init"), f"ledger ready at {led.path} (schema version {SCHEMA}, cur
 equal(led.ok("account", "add", "Second"), "account 2 'Second' added (EUR, fifo)\n",
       "an account without --currency takes the ledger's")
 led.ok("security", "add", "ZQA", "--name", "Zeqa Alloys", "--kind", "stock")
-equal([s["currency"] for s in led.json("security", "list")], ["EUR"], "a security takes it too")
+equal([s["currency"] for s in led.json("security", "list")["securities"]], ["EUR"], "a security takes it too")
 refused(led, ["init", "--currency", "USD"],
         "keel: error: --currency: the ledger's currency is EUR; it is set once and never changed "
         "(keel does not convert amounts already booked)")

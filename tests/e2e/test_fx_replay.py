@@ -96,9 +96,7 @@ check("problem" not in verify.lower() or "0 problems" in verify.lower(), verify)
 
 # The independent replay.
 ref_rows = []
-history = led.json("history")
-ids = [t["id"] for t in history["transactions"]] if isinstance(history, dict) else [
-    t["id"] for t in history]
+ids = [t["id"] for t in led.json("history")["transactions"]]
 for i, (d, a, k, s, qn, p, am, fe, c, r, to) in enumerate(ROWS):
     ref_rows.append({"id": ids[i], "date": d, "account": a, "kind": k, "symbol": s or None,
                      "quantity": qn, "price": p, "amount": am, "fee": fe,

@@ -15,7 +15,7 @@ equal(led.ok("account", "add", "Retirement", "--tax-status", "tax-deferred"),
       "account 2 'Retirement' added (USD, fifo, tax-deferred)\n", "tax-deferred")
 led.ok("security", "add", "ORWL", "--name", "Orwell Dredging", "--kind", "stock", "--country", "nl")
 led.ok("security", "add", "KRMB", "--name", "Karamba Foods", "--kind", "stock")
-equal([(s["symbol"], s["country"]) for s in led.json("security", "list")],
+equal([(s["symbol"], s["country"]) for s in led.json("security", "list")["securities"]],
       [("KRMB", None), ("ORWL", "NL")], "the issuer's country, in capitals")
 for account in ("Taxable", "Retirement"):
     led.ok("record", "deposit", "--date", "2025-01-02", "--account", account, "--amount", "10000")
@@ -82,7 +82,7 @@ check("Not a taxable event here" in text and "Withholding by security and issuer
 # A dated change: the taxable account becomes tax-exempt from July; March's sale stays taxable.
 equal(led.ok("account", "tax-status", "Taxable", "tax-exempt", "--from", "2025-07-01"),
       "account 'Taxable' is tax-exempt from 2025-07-01\n", "a dated change")
-equal([(a["name"], a["tax_status"], a["tax_status_history"]) for a in led.json("account", "list")],
+equal([(a["name"], a["tax_status"], a["tax_status_history"]) for a in led.json("account", "list")["accounts"]],
       [("Retirement", "tax-deferred", [{"status": "tax-deferred", "from": None}]),
        ("Taxable", "tax-exempt", [{"status": "taxable", "from": None},
                                   {"status": "tax-exempt", "from": "2025-07-01"}])],
@@ -105,7 +105,7 @@ csv_path = os.path.join(led.dir.name, "accounts.csv")
 with open(csv_path, "w") as f:
     f.write("name,currency,tax_status\nHealth Savings,USD,tax-exempt\nBrokerage,USD,\n")
 led.ok("import", "accounts", csv_path)
-equal({a["name"]: a["tax_status"] for a in led.json("account", "list")}, {"Retirement": "tax-deferred", "Taxable": "tax-exempt", "Health Savings": "tax-exempt",
+equal({a["name"]: a["tax_status"] for a in led.json("account", "list")["accounts"]}, {"Retirement": "tax-deferred", "Taxable": "tax-exempt", "Health Savings": "tax-exempt",
              "Brokerage": "taxable"}, "imported with their tax status")
 with open(csv_path, "w") as f:
     f.write("name,currency,tax_status\nOther,USD,pension\n")

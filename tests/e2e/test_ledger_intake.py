@@ -24,13 +24,13 @@ a.ok("record", "buy", "--date", "2024-02-03", "--account", T, "--symbol", "QRX",
      "--price", "99")
 a.ok("record", "transfer_out", "--date", "2024-03-01", "--account", T, "--to-account", P,
      "--symbol", "QRX", "--quantity", "25")
-lots = a.json("lots", "--account", P)
+lots = a.json("lots", "--account", P)["lots"]
 a.ok("record", "sell", "--date", "2024-04-01", "--account", P, "--symbol", "QRX", "--quantity", "5",
      "--price", "120", "--lots", f"{lots[-1]['lot']}:5")
 a.ok("record", "dividend", "--date", "2024-05-01", "--account", T, "--symbol", "QRX", "--amount", "25",
      "--ref", "div-1")
 a.ok("record", "interest", "--date", "2024-05-02", "--account", T, "--amount", "7")
-wrong = a.json("history")[-1]["id"]
+wrong = a.json("history")["transactions"][-1]["id"]
 a.ok("void", str(wrong), "--reason", "not ours")
 
 d = a.dir.name
@@ -104,7 +104,7 @@ equal(v.ok("void", "2", "--reason", "ours after all"),
 equal(cash(), "40", "cash after putting the deposit back")
 out = v.ok("import", "transactions", one)
 check("added 0, 1 already booked" in out, f"a line put back is booked once: {out}")
-equal([(t["id"], t["kind"], t["voided"], t["voids"]) for t in v.json("history")],
+equal([(t["id"], t["kind"], t["voided"], t["voids"]) for t in v.json("history")["transactions"]],
       [(1, "deposit", False, None), (2, "void", True, 1), (3, "void", False, 2)],
       "history keeps the deposit, its void and the void of the void")
 check("2024-03-01,Main,deposit,,,,40,,,march" in v.ok("export", "transactions"),

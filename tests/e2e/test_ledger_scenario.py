@@ -42,7 +42,7 @@ k.ok("record", "transfer_out", "--date", "2025-10-01", "--account", T, "--to-acc
 k.ok("record", "fee", "--date", "2025-12-01", "--account", T, "--amount", "15")
 # A mistaken interest line, then voided.
 k.ok("record", "interest", "--date", "2025-12-15", "--account", T, "--amount", "999", "--ref", "int-x")
-hist = k.json("history")
+hist = k.json("history")["transactions"]
 mistaken = [t["id"] for t in hist if t["ref"] == "int-x"][0]
 k.ok("void", str(mistaken), "--reason", "posted to the wrong household")
 

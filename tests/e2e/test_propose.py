@@ -148,7 +148,7 @@ def main():
         # Save, trade part of it, review.
         saved = led.json("propose", "--rule", path, "--as-of", "2011-09-30", "--save")
         pid = saved["proposal_id"]
-        listed = led.json("proposals", "list")
+        listed = led.json("proposals", "list")["proposals"]
         equal([p["id"] for p in listed], [pid], "saved proposals")
         equal(listed[0]["orders"], len(saved["orders"]), "orders saved")
         first = saved["orders"][0]

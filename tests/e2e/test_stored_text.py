@@ -42,15 +42,15 @@ def escaped(b):
 
 
 # Every JSON report and export runs, prints valid JSON, and replaces as Python does.
-hist = led.json("history")
+hist = led.json("history")["transactions"]
 equal([t["note"] for t in hist], ["", decoded(NOTE)], "history --json note")
 exported = json.loads(led.ok("export", "transactions", "--json"))
 equal([t.get("note") for t in exported], [None, decoded(NOTE)], "export transactions --json note")
-names = sorted(a["name"] for a in led.json("account", "list"))
+names = sorted(a["name"] for a in led.json("account", "list")["accounts"])
 equal(names, sorted(["Main", decoded(NAME)]), "account list --json names")
 equal(sorted(a["name"] for a in json.loads(led.ok("export", "accounts", "--json"))),
       sorted(["Main", decoded(NAME)]), "export accounts --json names")
-equal([s["name"] for s in led.json("security", "list")], [decoded(SEC)], "security list --json")
+equal([s["name"] for s in led.json("security", "list")["securities"]], [decoded(SEC)], "security list --json")
 equal([s["name"] for s in json.loads(led.ok("export", "securities", "--json"))], [decoded(SEC)],
       "export securities --json")
 held = led.json("holdings", "--as-of", "2024-12-31")
