@@ -45,7 +45,8 @@ struct Household : LedgerFixture {
   }
 };
 
-const ledger::GainLine& only(const std::vector<ledger::GainLine>& gains) {
+// A copy, so that a call on a temporary list leaves nothing dangling.
+ledger::GainLine only(const std::vector<ledger::GainLine>& gains) {
   REQUIRE(gains.size() == 1);
   return gains.front();
 }
