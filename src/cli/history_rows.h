@@ -77,6 +77,17 @@ inline std::string history_opt(const std::optional<Decimal>& d) {
   return d ? d->str() : std::string();
 }
 
+// What every form of a row starts with: id, date, account and symbol as of
+// the row's day, kind and quantity.
+inline std::vector<std::string> history_head(const Transaction& x, const LedgerNames& names) {
+  return {std::to_string(x.id),
+          x.date.str(),
+          names.account_on(x.account_id, x.date),
+          std::string(to_string(x.kind)),
+          names.symbol_on(x.security_id, x.date),
+          history_opt(x.quantity)};
+}
+
 inline std::vector<std::string> history_cells(const Transaction& x, const LedgerNames& names,
                                               const std::unordered_set<std::int64_t>& voided) {
   std::string note = x.note.value_or("");
@@ -92,17 +103,10 @@ inline std::vector<std::string> history_cells(const Transaction& x, const Ledger
                        note);
   else if (x.rate)
     note = fmt::format("settled at {}{}{}", x.rate->str(), note.empty() ? "" : "; ", note);
-  return {std::to_string(x.id),
-          x.date.str(),
-          names.account_on(x.account_id, x.date),
-          std::string(to_string(x.kind)),
-          names.symbol_on(x.security_id, x.date),
-          history_opt(x.quantity),
-          figure(x.price),
-          figure(x.amount),
-          x.fee.is_zero() ? "" : x.fee.str() + in,
-          x.ref.value_or(""),
-          note};
+  auto cells = history_head(x, names);
+  cells.insert(cells.end(), {figure(x.price), figure(x.amount),
+                             x.fee.is_zero() ? "" : x.fee.str() + in, x.ref.value_or(""), note});
+  return cells;
 }
 
 inline void history_json(JsonWriter& j, const Transaction& x, const LedgerNames& names,
@@ -134,23 +138,13 @@ inline std::vector<std::string> history_csv_cells(const Transaction& x, const Le
   auto id = [](const std::optional<std::int64_t>& v) {
     return v ? std::to_string(*v) : std::string();
   };
-  return {std::to_string(x.id),
-          x.date.str(),
-          names.account_on(x.account_id, x.date),
-          std::string(to_string(x.kind)),
-          names.symbol_on(x.security_id, x.date),
-          history_opt(x.quantity),
-          history_opt(x.price),
-          history_opt(x.amount),
-          x.fee.str(),
-          x.ref.value_or(""),
-          x.note.value_or(""),
-          voided.count(x.id) ? "yes" : "no",
-          id(x.voids_id),
-          id(x.link_id),
-          x.currency.value_or(""),
-          history_opt(x.rate),
-          x.to_currency.value_or("")};
+  auto cells = history_head(x, names);
+  cells.insert(
+      cells.end(),
+      {history_opt(x.price), history_opt(x.amount), x.fee.str(), x.ref.value_or(""),
+       x.note.value_or(""), voided.count(x.id) ? "yes" : "no", id(x.voids_id), id(x.link_id),
+       x.currency.value_or(""), history_opt(x.rate), x.to_currency.value_or("")});
+  return cells;
 }
 
 }  // namespace keel::cli
