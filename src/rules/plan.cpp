@@ -194,6 +194,7 @@ Plan parse_plan(std::string_view toml_text, std::string source,
       part.name = part.rule->name;
     }
     if (fixed) {
+      part.fixed_at = place(*fixed);
       const auto* ft = fixed->as_table();
       if (!ft || ft->empty())
         r.fail(*fixed, "part.fixed", "must be a table of symbols and weights in percent");

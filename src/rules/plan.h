@@ -39,6 +39,7 @@ struct PlanPart {
   std::size_t pool = 0;       // index into Plan::pools
   Decimal share{1};           // fraction of the pool's managed value
   PlanPlace at;               // the part's table, for messages about it
+  PlanPlace fixed_at;         // its `fixed` table
 };
 
 struct PlanPool {

@@ -136,10 +136,10 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
         for (const auto& s : part.fixed) {
           const Security* sec = view.security(s.symbol);
           if (!sec)
-            plan.fail(part.at, "part.fixed." + s.symbol,
+            plan.fail(part.fixed_at, "part.fixed." + s.symbol,
                       fmt::format("no security '{}' in the ledger", printable(s.symbol)));
           if (!sec->currency.empty() && sec->currency != currency)
-            plan.fail(part.at, "part.fixed." + s.symbol,
+            plan.fail(part.fixed_at, "part.fixed." + s.symbol,
                       fmt::format("'{}' is priced in {}, the pool's accounts keep {}; keel does "
                                   "not convert between currencies yet",
                                   printable(s.symbol), sec->currency, currency));
@@ -149,7 +149,7 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
       for (const std::int64_t id : ids) {
         const auto [it, fresh] = owner.emplace(id, k);
         if (!fresh && it->second != k)
-          plan.fail(part.at, "part",
+          plan.fail(part.rule ? part.at : part.fixed_at, part.rule ? "part.rule" : "part.fixed",
                     fmt::format("'{}' is managed by both part '{}' and part '{}' in pool '{}'; "
                                 "a security belongs to one part of a pool",
                                 printable(view.security(id)->symbol),
