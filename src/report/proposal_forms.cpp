@@ -271,8 +271,9 @@ std::string plan_proposal_text(const rules::PlanProposal& p, const Style& style)
     s += fmt::format("Planned, not booked: {} {} {} {}\n",
                      c.amount.is_negative() ? "withdraw" : "deposit", money(c.amount.abs()),
                      c.amount.is_negative() ? "from" : "to", printable(c.account));
+  s += "\n";
   for (const auto& part : p.parts) {
-    s += fmt::format("\nPart '{}': {}, {} of pool '{}'\n", printable(part.name),
+    s += fmt::format("Part '{}': {}, {} of pool '{}'\n", printable(part.name),
                      part.rule.empty() ? std::string("fixed sleeve")
                                        : fmt::format("rule '{}'", printable(part.rule)),
                      pct(part.share), printable(part.pool));
@@ -283,7 +284,7 @@ std::string plan_proposal_text(const rules::PlanProposal& p, const Style& style)
     s += "Orders\n" + orders_text(part.orders, style);
   }
   for (const auto& pool : p.pools) {
-    s += fmt::format("\nPool '{}': {}; value {}; trading settings {}\n", printable(pool.name),
+    s += fmt::format("Pool '{}': {}; value {}; trading settings {}\n", printable(pool.name),
                      printable_list(pool.accounts), money(pool.plan.pool_value),
                      pool.trading_from.empty()
                          ? std::string("the defaults")

@@ -156,6 +156,7 @@ Plan parse_plan(std::string_view toml_text, std::string source,
       const auto* acc = pt->get("accounts");
       if (!acc) r.fail(v, key + ".accounts", "required: the accounts the pool's parts share");
       pool.accounts = r.names(*acc, key + ".accounts");
+      pool.accounts_at = place(*acc);
       take_accounts(*acc, key + ".accounts", pool.accounts, "pool '" + name + "'");
       if (const auto* u = pt->get("unmanaged")) {
         const auto s = u->value<std::string>();
@@ -249,6 +250,7 @@ Plan parse_plan(std::string_view toml_text, std::string source,
       own.name = part.name;
       own.own = true;
       own.at = part.at;
+      own.accounts_at = accounts_node ? place(*accounts_node) : part.at;
       if (accounts_node) {
         own.accounts = r.names(*accounts_node, "part.accounts");
         take_accounts(*accounts_node, "part.accounts", own.accounts, "part '" + part.name + "'");
@@ -259,6 +261,7 @@ Plan parse_plan(std::string_view toml_text, std::string source,
         r.fail(item, "part.accounts", "a fixed sleeve needs a pool or accounts of its own");
       }
       part.pool = plan.pools.size();
+      own.from_rule = !accounts_node;
       plan.pools.push_back(std::move(own));
     }
     plan.parts.push_back(std::move(part));

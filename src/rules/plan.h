@@ -48,6 +48,8 @@ struct PlanPool {
   bool sell_unmanaged = false;  // unmanaged = "sell"
   bool own = false;             // made for one part's own accounts
   PlanPlace at;
+  PlanPlace accounts_at;   // where its accounts are given
+  bool from_rule = false;  // its part's rule file's scope.accounts
 };
 
 struct Plan {

@@ -62,8 +62,13 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
   std::vector<Account> all;
   for (const auto& pool : plan.pools) {
     const std::string key = pool.own ? "part.accounts" : "pools." + pool.name + ".accounts";
-    pool_accounts_of.push_back(pool_accounts(
-        db, pool.accounts, [&](const std::string& why) { plan.fail(pool.at, key, why); }));
+    const PlanPart* rule_part = nullptr;
+    for (const auto& part : plan.parts)
+      if (pool.from_rule && &plan.pools[part.pool] == &pool) rule_part = &part;
+    pool_accounts_of.push_back(pool_accounts(db, pool.accounts, [&](const std::string& why) {
+      if (rule_part) rule_part->rule->fail("scope.accounts", why);
+      plan.fail(pool.accounts_at, key, why);
+    }));
     all.insert(all.end(), pool_accounts_of.back().begin(), pool_accounts_of.back().end());
   }
   const auto log = ledger::load_log(db);
@@ -236,7 +241,7 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
       for (const auto& [id, h] : a.holdings) value += h.quantity * quotes.at(id).price;
     }
     if (!value.is_positive())
-      plan.fail(pool.at, pool.own ? "part.accounts" : "pools." + pool.name + ".accounts",
+      plan.fail(pool.accounts_at, pool.own ? "part.accounts" : "pools." + pool.name + ".accounts",
                 fmt::format("the accounts {} hold nothing to invest on {} (value {}); deposit "
                             "cash first",
                             printable_list(result.accounts), as_of.str(), value.str()));
