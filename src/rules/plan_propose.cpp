@@ -71,12 +71,7 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
     }));
     all.insert(all.end(), pool_accounts_of.back().begin(), pool_accounts_of.back().end());
   }
-  const auto log = ledger::load_log(db);
-  {
-    std::vector<std::int64_t> ids;
-    for (const auto& a : all) ids.push_back(a.id);
-    ledger::refuse_other_currencies(log, "propose", ids);
-  }
+  const auto log = pool_log(db, all);
   p.as_of = choose_as_of(view, log, all, as_of_opt, "the plan's accounts", p.notes);
   const Date as_of = p.as_of;
 
@@ -238,7 +233,8 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
     Decimal value;
     for (const auto& a : portfolio.accounts) {
       value += a.cash;
-      for (const auto& [id, h] : a.holdings) value += h.quantity * quotes.at(id).price;
+      for (const auto& [id, h] : a.holdings)
+        if (h.quantity.is_positive()) value += h.quantity * quotes.at(id).price;
     }
     if (!value.is_positive())
       plan.fail(pool.accounts_at, pool.own ? "part.accounts" : "pools." + pool.name + ".accounts",

@@ -51,6 +51,14 @@ std::vector<Account> pool_accounts(store::Database& db, const std::vector<std::s
   return pool;
 }
 
+LedgerLog pool_log(store::Database& db, const std::vector<Account>& pool) {
+  auto log = ledger::load_log(db);
+  std::vector<std::int64_t> ids;
+  for (const auto& a : pool) ids.push_back(a.id);
+  ledger::refuse_other_currencies(log, "propose", ids);
+  return log;
+}
+
 Date choose_as_of(const market::DayView& view, const LedgerLog& log,
                   const std::vector<Account>& pool, std::optional<Date> as_of,
                   std::string_view whose, std::vector<std::string>& notes) {
@@ -123,12 +131,7 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
       db, rule.accounts, [&](const std::string& why) { rule.fail("scope.accounts", why); });
   for (const auto& a : pool) p.accounts.push_back(a.name);
 
-  const auto log = ledger::load_log(db);
-  {
-    std::vector<std::int64_t> ids;
-    for (const auto& a : pool) ids.push_back(a.id);
-    ledger::refuse_other_currencies(log, "propose", ids);
-  }
+  const auto log = pool_log(db, pool);
   p.as_of = choose_as_of(view, log, pool, as_of_opt, "the rule's accounts", p.notes);
   const Date as_of = p.as_of;
 

@@ -65,6 +65,9 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
 // why they cannot share a pool.
 std::vector<Account> pool_accounts(store::Database& db, const std::vector<std::string>& names,
                                    const std::function<void(const std::string&)>& fail);
+// The ledger's log, refused (ledger/fx_cash.h) when the accounts hold rows in
+// another currency.
+LedgerLog pool_log(store::Database& db, const std::vector<Account>& pool);
 // The given day, or by default the later of the latest close and the latest
 // transaction in the accounts; the notes say why, in `whose` words.
 Date choose_as_of(const market::DayView& view, const LedgerLog& log,
