@@ -32,7 +32,6 @@ void add_propose(CLI::App& app, Context& ctx) {
   auto* cmd = app.add_subcommand(
       "propose", "A rule's orders for a day: the screen, the orders and the result");
   add_examples(*cmd, {"keel propose --rule rule.toml --as-of 2025-12-31",
-                      "keel propose --rule rule.toml --save",
                       "keel propose --plan plan.toml --deposit 1500:Savings"});
   auto* rule_opt = cmd->add_option("--rule", o->rule,
                                    "Rule file (TOML; see docs/rules.md; '-': standard input)");
