@@ -11,6 +11,8 @@
 #include "core/text.h"
 #include "ledger/tax.h"
 #include "report/proposal_forms.h"
+#include "rules/plan.h"
+#include "rules/plan_propose.h"
 #include "rules/propose.h"
 #include "rules/repurchase.h"
 
@@ -18,7 +20,8 @@ namespace keel::cli {
 namespace {
 
 struct ProposeOptions {
-  std::string rule, as_of;
+  std::string rule, plan, as_of;
+  std::vector<std::string> deposits, withdrawals;
   bool json = false;
   bool save = false;
   int repurchase_window = 0;
@@ -29,9 +32,19 @@ void add_propose(CLI::App& app, Context& ctx) {
   auto* cmd = app.add_subcommand(
       "propose", "A rule's orders for a day: the screen, the orders and the result");
   add_examples(*cmd, {"keel propose --rule rule.toml --as-of 2025-12-31",
-                      "keel propose --rule rule.toml --save"});
-  cmd->add_option("--rule", o->rule, "Rule file (TOML; see docs/rules.md; '-': standard input)")
-      ->required();
+                      "keel propose --plan plan.toml --deposit 1500:Savings"});
+  auto* rule_opt = cmd->add_option("--rule", o->rule,
+                                   "Rule file (TOML; see docs/rules.md; '-': standard input)");
+  auto* plan_opt = cmd->add_option(
+      "--plan", o->plan,
+      "Plan file: several rules and fixed sleeves proposed together (TOML; see docs/plan.md)");
+  rule_opt->excludes(plan_opt);
+  cmd->add_option("--deposit", o->deposits,
+                  "With --plan: cash to plan with that is not booked yet, AMOUNT[:ACCOUNT] "
+                  "(repeatable)");
+  cmd->add_option("--withdraw", o->withdrawals,
+                  "With --plan: cash to take out that is not booked yet, AMOUNT[:ACCOUNT] "
+                  "(repeatable)");
   cmd->add_option("--as-of", o->as_of,
                   "Day to propose for, YYYY-MM-DD (default: the latest day with a close)");
   add_json_flag(*cmd, o->json);
@@ -43,6 +56,26 @@ void add_propose(CLI::App& app, Context& ctx) {
                       "given)");
   cmd->callback([&ctx, o, window] {
     const auto as_of = date_option(o->as_of, "--as-of");
+    if (o->rule.empty() && o->plan.empty())
+      throw InputError("propose: give a rule (--rule FILE) or a plan (--plan FILE)");
+    if (o->plan.empty() && !(o->deposits.empty() && o->withdrawals.empty()))
+      throw InputError(fmt::format("{}: applies only with --plan",
+                                   o->deposits.empty() ? "--withdraw" : "--deposit"));
+    if (!o->plan.empty()) {
+      if (o->save) throw InputError("--save: applies only with --rule");
+      if (window->count() > 0) throw InputError("--repurchase-window: applies only with --rule");
+      std::vector<rules::PlannedCash> planned;
+      for (const auto& d : o->deposits)
+        planned.push_back(rules::parse_planned_cash("--deposit", d));
+      for (const auto& w : o->withdrawals)
+        planned.push_back(rules::parse_planned_cash("--withdraw", w));
+      const auto plan = rules::load_plan(o->plan);
+      auto db = ctx.open_ledger(store::Access::read);
+      const auto proposal = rules::propose_plan(db, plan, as_of, std::move(planned));
+      out(o->json ? report::plan_proposal_json(proposal)
+                  : report::plan_proposal_text(proposal, ctx.style()));
+      return;
+    }
     if (window->count() > 0) ledger::check_repurchase_window(o->repurchase_window);
     const auto rule = rules::load_rule(o->rule);
     auto db = ctx.open_ledger(o->save ? store::Access::write : store::Access::read);

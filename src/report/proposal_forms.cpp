@@ -10,17 +10,11 @@
 
 namespace keel::report {
 
-std::string proposal_json(const rules::Proposal& p, std::optional<std::int64_t> saved_id) {
-  std::string s;
-  JsonWriter j(s);
-  begin_document(j, "propose", 1);
-  j.member("as_of", p.as_of.str());
-  j.member("rule", p.rule_name);
-  j.member("rule_sha256", p.rule_sha256);
-  j.member("accounts", p.accounts);
-  j.member("pool_value", p.plan.pool_value);
+namespace {
+
+void screen_json(JsonWriter& j, const rules::ScreenResult& screen) {
   j.key("screen").begin_array();
-  for (const auto& l : p.screen.lines) {
+  for (const auto& l : screen.lines) {
     j.begin_object().member("symbol", l.symbol);
     if (l.figure) {
       j.member("value", l.figure->value);
@@ -40,8 +34,11 @@ std::string proposal_json(const rules::Proposal& p, std::optional<std::int64_t> 
     j.end_object();
   }
   j.end_array();
+}
+
+void orders_json(JsonWriter& j, const std::vector<rules::Order>& orders) {
   j.key("orders").begin_array();
-  for (const auto& o : p.plan.orders) {
+  for (const auto& o : orders) {
     j.begin_object();
     j.member("account", o.account).member("symbol", o.symbol);
     j.member("side", std::string(rules::to_string(o.side)));
@@ -60,44 +57,37 @@ std::string proposal_json(const rules::Proposal& p, std::optional<std::int64_t> 
     j.end_object();
   }
   j.end_array();
+}
+
+void result_json(JsonWriter& j, const rules::OrderPlan& plan) {
   j.key("weights_after").begin_array();
-  for (const auto& w : p.plan.weights_after) {
+  for (const auto& w : plan.weights_after) {
     j.begin_object();
     j.member("symbol", w.symbol).member("value", w.value).member("weight", w.weight);
     j.member("target", w.target);
     j.end_object();
   }
   j.end_array();
-  j.member("cash_after", p.plan.cash_after_total);
+  j.member("cash_after", plan.cash_after_total);
   j.key("cash_after_by_account").begin_array();
-  for (const auto& c : p.plan.cash_after) {
+  for (const auto& c : plan.cash_after) {
     j.begin_object();
     j.member("account", c.account).member("cash", c.cash).member("reserve", c.reserve);
     j.end_object();
   }
   j.end_array();
-  j.member("turnover", p.plan.turnover);
-  j.member("estimated_fees", p.plan.estimated_fees);
+  j.member("turnover", plan.turnover);
+  j.member("estimated_fees", plan.estimated_fees);
   j.key("skipped").begin_array();
-  for (const auto& k : p.plan.skipped)
+  for (const auto& k : plan.skipped)
     j.begin_object().member("symbol", k.symbol).member("why", k.why).end_object();
   j.end_array();
-  j.member("notes", p.notes);
-  j.member("cautions", p.cautions);
-  if (saved_id) j.member("proposal_id", static_cast<long long>(*saved_id));
-  j.end_object();
-  return s + "\n";
 }
 
-std::string proposal_text(const rules::Proposal& p, const Style& style) {
-  std::string s =
-      fmt::format("Proposal of rule '{}' as of {}\n", printable(p.rule_name), p.as_of.str());
-  s += fmt::format("Accounts: {}; pool value {}\n\n", printable_list(p.accounts),
-                   money(p.plan.pool_value));
-
-  const auto& sc = p.screen;
-  s += fmt::format("1. Screen: {} of {} names pass; mean {:.6g}, sd {:.6g}", sc.passed,
-                   sc.lines.size(), sc.mean, sc.sd);
+std::string screen_text(const rules::ScreenResult& sc, const Style& style) {
+  std::string s;
+  s += fmt::format("{} of {} names pass; mean {:.6g}, sd {:.6g}", sc.passed, sc.lines.size(),
+                   sc.mean, sc.sd);
   if (sc.clip_low)
     s += fmt::format("; values clipped to [{:.6g}, {:.6g}]", *sc.clip_low, *sc.clip_high);
   s += fmt::format("; {} selected\n", sc.selected);
@@ -119,8 +109,12 @@ std::string proposal_text(const rules::Proposal& p, const Style& style) {
          z_text(l.z), l.held ? "yes" : "", l.selected ? "in" : "out", l.note});
   s += screen.render(style) + "\n";
 
-  s += "2. Orders (estimates at the closes used)\n";
-  if (p.plan.orders.empty()) {
+  return s;
+}
+
+std::string orders_text(const std::vector<rules::Order>& orders, const Style& style) {
+  std::string s;
+  if (orders.empty()) {
     s += "No orders.\n\n";
   } else {
     // The reason (and the account) shorten first; then the weights now and
@@ -135,7 +129,7 @@ std::string proposal_text(const rules::Proposal& p, const Style& style) {
              {"now", Align::right, false, 2},
              {"target", Align::right},
              {"reason", Align::left, true}});
-    for (const auto& o : p.plan.orders) {
+    for (const auto& o : orders) {
       t.add_row({o.account, o.symbol, std::string(rules::to_string(o.side)), o.quantity.str(),
                  o.price.str(), money(o.value), money(o.fee), pct(o.weight_now),
                  pct(o.weight_target), o.reason});
@@ -148,24 +142,170 @@ std::string proposal_text(const rules::Proposal& p, const Style& style) {
     s += t.render(style) + "\n";
   }
 
-  s += "3. Result\n";
+  return s;
+}
+
+std::string result_text(const rules::OrderPlan& plan, const Style& style) {
+  std::string s;
   Table w({{"symbol"},
            {"value after", Align::right},
            {"weight", Align::right},
            {"target", Align::right}});
-  for (const auto& x : p.plan.weights_after)
+  for (const auto& x : plan.weights_after)
     w.add_row({x.symbol, money(x.value), pct(x.weight), pct(x.target)});
-  for (const auto& c : p.plan.cash_after)
+  for (const auto& c : plan.cash_after)
     w.add_row({"(cash) " + c.account, money(c.cash), "",
                c.reserve.is_zero() ? "" : "reserve " + money(c.reserve)});
   s += w.render(style);
-  s += fmt::format("Cash after: {}; turnover {}; estimated fees {}\n",
-                   money(p.plan.cash_after_total), pct(p.plan.turnover),
-                   money(p.plan.estimated_fees));
-  if (!p.plan.skipped.empty()) {
+  s += fmt::format("Cash after: {}; turnover {}; estimated fees {}\n", money(plan.cash_after_total),
+                   pct(plan.turnover), money(plan.estimated_fees));
+  if (!plan.skipped.empty()) {
     s += "Not traded:\n";
-    for (const auto& k : p.plan.skipped)
+    for (const auto& k : plan.skipped)
       s += fmt::format("  {}: {}\n", printable(k.symbol), printable(k.why));
+  }
+  return s;
+}
+
+}  // namespace
+
+std::string proposal_json(const rules::Proposal& p, std::optional<std::int64_t> saved_id) {
+  std::string s;
+  JsonWriter j(s);
+  begin_document(j, "propose", 1);
+  j.member("as_of", p.as_of.str());
+  j.member("rule", p.rule_name);
+  j.member("rule_sha256", p.rule_sha256);
+  j.member("accounts", p.accounts);
+  j.member("pool_value", p.plan.pool_value);
+  screen_json(j, p.screen);
+  orders_json(j, p.plan.orders);
+  result_json(j, p.plan);
+  j.member("notes", p.notes);
+  j.member("cautions", p.cautions);
+  if (saved_id) j.member("proposal_id", static_cast<long long>(*saved_id));
+  j.end_object();
+  return s + "\n";
+}
+
+std::string proposal_text(const rules::Proposal& p, const Style& style) {
+  std::string s =
+      fmt::format("Proposal of rule '{}' as of {}\n", printable(p.rule_name), p.as_of.str());
+  s += fmt::format("Accounts: {}; pool value {}\n\n", printable_list(p.accounts),
+                   money(p.plan.pool_value));
+
+  s += "1. Screen: " + screen_text(p.screen, style);
+  s += "2. Orders (estimates at the closes used)\n" + orders_text(p.plan.orders, style);
+  s += "3. Result\n" + result_text(p.plan, style);
+  for (const auto& n : p.notes) s += fmt::format("Note: {}\n", printable(n));
+  s += "\nCautions:\n";
+  for (const auto& c : p.cautions) s += "  - " + c + "\n";
+  return s;
+}
+
+std::string plan_proposal_json(const rules::PlanProposal& p) {
+  std::string s;
+  JsonWriter j(s);
+  begin_document(j, "plan-proposal", 1);
+  j.member("as_of", p.as_of.str()).member("plan", p.plan_name);
+  j.key("planned_cash").begin_array();
+  for (const auto& c : p.planned)
+    j.begin_object()
+        .member("account", c.account)
+        .member("amount", c.amount)
+        .member("booked", false)
+        .end_object();
+  j.end_array();
+  j.key("parts").begin_array();
+  for (const auto& part : p.parts) {
+    j.begin_object().member("name", part.name);
+    if (part.rule.empty())
+      j.member("kind", "fixed").key("rule").null().key("rule_file").null();
+    else
+      j.member("kind", "rule").member("rule", part.rule).member("rule_file", part.rule_file);
+    j.member("pool", part.pool).member("share", part.share);
+    if (part.screen)
+      screen_json(j, *part.screen);
+    else
+      j.key("screen").null();
+    j.key("targets").begin_array();
+    for (const auto& t : part.targets)
+      j.begin_object()
+          .member("symbol", t.symbol)
+          .member("weight", t.weight)
+          .member("why", t.why)
+          .end_object();
+    j.end_array();
+    orders_json(j, part.orders);
+    j.end_object();
+  }
+  j.end_array();
+  j.key("pools").begin_array();
+  for (const auto& pool : p.pools) {
+    j.begin_object().member("name", pool.name).member("accounts", pool.accounts);
+    if (pool.trading_from.empty())
+      j.key("trading_from").null();
+    else
+      j.member("trading_from", pool.trading_from);
+    j.member("pool_value", pool.plan.pool_value);
+    orders_json(j, pool.plan.orders);
+    result_json(j, pool.plan);
+    j.end_object();
+  }
+  j.end_array();
+  j.key("unmanaged").begin_array();
+  for (const auto& u : p.unmanaged) {
+    j.begin_object().member("pool", u.pool).member("account", u.account).member("symbol", u.symbol);
+    j.member("quantity", u.quantity).member("price", u.price).member("value", u.value);
+    j.member("action", u.sold ? "sell" : "keep").end_object();
+  }
+  j.end_array();
+  j.member("notes", p.notes).member("cautions", p.cautions);
+  j.end_object();
+  return s + "\n";
+}
+
+std::string plan_proposal_text(const rules::PlanProposal& p, const Style& style) {
+  std::string s = fmt::format("Plan '{}' as of {}\n", printable(p.plan_name), p.as_of.str());
+  for (const auto& c : p.planned)
+    s += fmt::format("Planned, not booked: {} {} {} {}\n",
+                     c.amount.is_negative() ? "withdraw" : "deposit", money(c.amount.abs()),
+                     c.amount.is_negative() ? "from" : "to", printable(c.account));
+  s += "\n";
+  for (const auto& part : p.parts) {
+    s += fmt::format("Part '{}': {}, {} of pool '{}'\n", printable(part.name),
+                     part.rule.empty() ? std::string("fixed sleeve")
+                                       : fmt::format("rule '{}'", printable(part.rule)),
+                     pct(part.share), printable(part.pool));
+    if (part.screen) s += "Screen: " + screen_text(*part.screen, style);
+    Table t({{"symbol"}, {"target", Align::right}, {"why", Align::left, true}});
+    for (const auto& x : part.targets) t.add_row({x.symbol, pct(x.weight), x.why});
+    s += "Targets (of the pool's invested value)\n" + t.render(style);
+    s += "Orders\n" + orders_text(part.orders, style);
+  }
+  for (const auto& pool : p.pools) {
+    s += fmt::format("Pool '{}': {}; value {}; trading settings {}\n", printable(pool.name),
+                     printable_list(pool.accounts), money(pool.plan.pool_value),
+                     pool.trading_from.empty()
+                         ? std::string("the defaults")
+                         : fmt::format("of part '{}'", printable(pool.trading_from)));
+    s += "All orders, one per account and security (estimates at the closes used)\n" +
+         orders_text(pool.plan.orders, style);
+    s += "Result\n" + result_text(pool.plan, style);
+  }
+  if (!p.unmanaged.empty()) {
+    s += "\nUnmanaged holdings (outside every part)\n";
+    Table t({{"pool", Align::left, true},
+             {"account", Align::left, true},
+             {"symbol"},
+             {"quantity", Align::right},
+             {"price", Align::right},
+             {"value", Align::right},
+             {"action"}});
+    for (const auto& u : p.unmanaged)
+      t.add_row({u.pool, u.account, u.symbol, u.quantity.str(), u.price.str(), money(u.value),
+                 u.sold ? "sold" : "left alone"});
+    s += t.render(style);
   }
   for (const auto& n : p.notes) s += fmt::format("Note: {}\n", printable(n));
   s += "\nCautions:\n";

@@ -16,6 +16,7 @@
 #include <vector>
 
 #include "report/table.h"
+#include "rules/plan_propose.h"
 #include "rules/propose.h"
 #include "store/proposals.h"
 
@@ -23,6 +24,12 @@ namespace keel::report {
 
 std::string proposal_text(const rules::Proposal& p, const Style& style);
 std::string proposal_json(const rules::Proposal& p, std::optional<std::int64_t> saved_id);
+
+// A plan's proposal (rules/plan_propose.h): each part's screen, targets and
+// orders, then each pool's netted orders and result, the unmanaged holdings,
+// the planned cash (never booked), the notes and the cautions.
+std::string plan_proposal_text(const rules::PlanProposal& p, const Style& style);
+std::string plan_proposal_json(const rules::PlanProposal& p);
 
 std::string proposals_list_text(const std::vector<store::ProposalRow>& all, const Style& style);
 std::string proposals_list_json(const std::vector<store::ProposalRow>& all);

@@ -178,6 +178,12 @@ Selection Inputs::select(const market::View& view, Date day, const std::set<std:
 Quotes Inputs::quotes(const market::View& view, Date day, const std::vector<Target>& targets,
                       const std::set<std::int64_t>& held, const LastTrade& last_trade,
                       std::vector<std::string>& notes) const {
+  return quote_names(view, day, targets, held, last_trade, notes);
+}
+
+Quotes quote_names(const market::View& view, Date day, const std::vector<Target>& targets,
+                   const std::set<std::int64_t>& held, const Inputs::LastTrade& last_trade,
+                   std::vector<std::string>& notes) {
   Quotes quotes;
   auto add = [&](std::int64_t id, bool wanted) {
     if (quotes.count(id)) return;
@@ -195,7 +201,7 @@ Quotes Inputs::quotes(const market::View& view, Date day, const std::vector<Targ
                       printable(s.symbol), trade->price.str(), trade->day.str(), c->day.str()));
     } else if (c) {
       q.price = c->price;
-      if (day - c->day > kOldCloseDays && (wanted || held.count(id)))
+      if (day - c->day > Inputs::kOldCloseDays && (wanted || held.count(id)))
         notes.push_back(fmt::format("{}: the latest close on or before {} is from {}",
                                     printable(s.symbol), day.str(), c->day.str()));
     } else {

@@ -95,6 +95,12 @@ class Inputs {
   std::vector<std::string> notes_;
 };
 
+// Inputs::quotes() without a rule: for names a plan holds outside any rule's
+// universe (a fixed sleeve, unmanaged holdings).
+Quotes quote_names(const market::View& view, Date day, const std::vector<Target>& targets,
+                   const std::set<std::int64_t>& held, const Inputs::LastTrade& last_trade,
+                   std::vector<std::string>& notes);
+
 // A rule trades in one currency (keel does not convert between currencies
 // yet): a sleeve or a listed symbol priced in another than `currency` is
 // refused at its key; stocks of the whole ledger or of a sector priced in

@@ -31,89 +31,78 @@ std::vector<std::string> proposal_cautions(Date as_of) {
   };
 }
 
-Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_of_opt) {
-  Proposal p;
-  p.rule_name = rule.name;
-  p.rule_sha256 = io::sha256_hex(rule.text);
-  const market::DayView view(db);
-  // The rule's accounts.
+std::vector<Account> pool_accounts(store::Database& db, const std::vector<std::string>& names,
+                                   const std::function<void(const std::string&)>& fail) {
   std::vector<Account> pool;
-  {
-    std::vector<std::string> known;
-    for (const auto& a : store::list_accounts(db)) known.push_back(a.name);
-    for (const auto& name : rule.accounts) {
-      auto a = store::find_account(db, name);
-      if (!a)
-        rule.fail("scope.accounts",
-                  fmt::format("no account named '{}' in the ledger{}", printable(name),
-                              known.empty() ? "" : " (accounts: " + printable_list(known) + ")"));
-      pool.push_back(*a);
-      p.accounts.push_back(a->name);
-    }
-    if (const auto mixed = ledger::mixed_currencies(pool))
-      rule.fail("scope.accounts",
-                fmt::format("the accounts keep different currencies ({}) and keel does not convert "
-                            "between them yet; give each currency a rule of its own",
-                            *mixed));
+  std::vector<std::string> known;
+  for (const auto& a : store::list_accounts(db)) known.push_back(a.name);
+  for (const auto& name : names) {
+    auto a = store::find_account(db, name);
+    if (!a)
+      fail(fmt::format("no account named '{}' in the ledger{}", printable(name),
+                       known.empty() ? "" : " (accounts: " + printable_list(known) + ")"));
+    pool.push_back(*a);
   }
+  if (const auto mixed = ledger::mixed_currencies(pool))
+    fail(
+        fmt::format("the accounts keep different currencies ({}) and keel does not convert "
+                    "between them yet; give each currency a rule of its own",
+                    *mixed));
+  return pool;
+}
 
-  // The as-of day. By default it takes in every transaction of the rule's
-  // accounts: trades recorded after the latest close (the fills of the last
-  // proposal, say) must count, or their orders would be proposed again.
-  const auto log = ledger::load_log(db);
-  {
-    std::vector<std::int64_t> ids;
-    for (const auto& a : pool) ids.push_back(a.id);
-    ledger::refuse_other_currencies(log, "propose", ids);
-  }
+LedgerLog pool_log(store::Database& db, const std::vector<Account>& pool) {
+  auto log = ledger::load_log(db);
+  std::vector<std::int64_t> ids;
+  for (const auto& a : pool) ids.push_back(a.id);
+  ledger::refuse_other_currencies(log, "propose", ids);
+  return log;
+}
+
+Date choose_as_of(const market::DayView& view, const LedgerLog& log,
+                  const std::vector<Account>& pool, std::optional<Date> as_of,
+                  std::string_view whose, std::vector<std::string>& notes) {
+  // By default the day takes in every transaction of the accounts: trades
+  // recorded after the latest close (the fills of the last proposal, say)
+  // must count, or their orders would be proposed again.
   std::optional<Date> last_posting;
   std::size_t later_postings = 0;
-  {
-    const auto voided = voided_ids(log.transactions);
-    std::set<std::int64_t> pool_ids;
-    for (const auto& a : pool) pool_ids.insert(a.id);
-    for (const auto& t : log.transactions) {
-      if (t.kind == TxnKind::void_entry || voided.count(t.id) || !pool_ids.count(t.account_id))
-        continue;
-      if (!last_posting || t.date > *last_posting) last_posting = t.date;
-      if (as_of_opt && t.date > *as_of_opt) ++later_postings;
-    }
+  const auto voided = voided_ids(log.transactions);
+  std::set<std::int64_t> pool_ids;
+  for (const auto& a : pool) pool_ids.insert(a.id);
+  for (const auto& t : log.transactions) {
+    if (t.kind == TxnKind::void_entry || voided.count(t.id) || !pool_ids.count(t.account_id))
+      continue;
+    if (!last_posting || t.date > *last_posting) last_posting = t.date;
+    if (as_of && t.date > *as_of) ++later_postings;
   }
-  if (as_of_opt) {
-    p.as_of = *as_of_opt;
+  if (as_of) {
     if (later_postings > 0)
-      p.notes.push_back(fmt::format(
-          "{} transaction{} in the rule's accounts {} dated after {} and not taken into account: "
-          "this proposal may repeat orders already filled",
-          later_postings, later_postings == 1 ? "" : "s", later_postings == 1 ? "is" : "are",
-          as_of_opt->str()));
-  } else {
-    const auto latest = view.latest_close_day();
-    if (!latest)
-      throw InputError(
-          "the ledger holds no closes to value the accounts at; import prices first "
-          "('keel import prices FILE') or give --as-of");
-    p.as_of = *latest;
-    if (last_posting && *last_posting > *latest) {
-      p.as_of = *last_posting;
-      p.notes.push_back(fmt::format(
-          "as of {}, the day of the latest transaction in the rule's accounts, after the latest "
-          "close ({}): what was traded since that close is valued at its trade price",
-          last_posting->str(), latest->str()));
-    }
+      notes.push_back(
+          fmt::format("{} transaction{} in {} {} dated after {} and not taken into account: "
+                      "this proposal may repeat orders already filled",
+                      later_postings, later_postings == 1 ? "" : "s", whose,
+                      later_postings == 1 ? "is" : "are", as_of->str()));
+    return *as_of;
   }
-  const Date as_of = p.as_of;
+  const auto latest = view.latest_close_day();
+  if (!latest)
+    throw InputError(
+        "the ledger holds no closes to value the accounts at; import prices first "
+        "('keel import prices FILE') or give --as-of");
+  if (last_posting && *last_posting > *latest) {
+    notes.push_back(
+        fmt::format("as of {}, the day of the latest transaction in {}, after the latest "
+                    "close ({}): what was traded since that close is valued at its trade price",
+                    last_posting->str(), whose, latest->str()));
+    return *last_posting;
+  }
+  return *latest;
+}
 
-  // The universe and the sleeves, checked before the ledger is replayed.
-  const Inputs inputs(rule, view, pool.front().currency);
-  p.notes.insert(p.notes.end(), inputs.notes().begin(), inputs.notes().end());
-
-  // The pool's state on the as-of day.
-  Replayer replayer(log);
-  const Book& book = replayer.advance_to(as_of);
-  p.last_txn_id = store::last_transaction_id(db);
+Portfolio portfolio_of(const Book& book, const std::vector<Account>& pool,
+                       std::set<std::int64_t>& held) {
   Portfolio portfolio;
-  std::set<std::int64_t> held;
   for (const auto& a : pool) {
     AccountState st;
     st.id = a.id;
@@ -130,6 +119,32 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
     }
     portfolio.accounts.push_back(std::move(st));
   }
+  return portfolio;
+}
+
+Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_of_opt) {
+  Proposal p;
+  p.rule_name = rule.name;
+  p.rule_sha256 = io::sha256_hex(rule.text);
+  const market::DayView view(db);
+  const auto pool = pool_accounts(
+      db, rule.accounts, [&](const std::string& why) { rule.fail("scope.accounts", why); });
+  for (const auto& a : pool) p.accounts.push_back(a.name);
+
+  const auto log = pool_log(db, pool);
+  p.as_of = choose_as_of(view, log, pool, as_of_opt, "the rule's accounts", p.notes);
+  const Date as_of = p.as_of;
+
+  // The universe and the sleeves, checked before the ledger is replayed.
+  const Inputs inputs(rule, view, pool.front().currency);
+  p.notes.insert(p.notes.end(), inputs.notes().begin(), inputs.notes().end());
+
+  // The pool's state on the as-of day.
+  Replayer replayer(log);
+  const Book& book = replayer.advance_to(as_of);
+  p.last_txn_id = store::last_transaction_id(db);
+  std::set<std::int64_t> held;
+  const Portfolio portfolio = portfolio_of(book, pool, held);
 
   auto chosen = inputs.select(view, as_of, held);
   if (chosen.refusal) rule.fail(chosen.refusal->key, chosen.refusal->why);

@@ -515,6 +515,58 @@ row("propose: --repurchase-window below one day",
     ["propose", "--rule", "{d}/rule.toml", "--repurchase-window", "0"], INPUT,
     "keel: error: --repurchase-window: '0' days; give 1 or more (the window is off unless given)",
     {"rule.toml": b"[scope]\naccounts = [\"Alder Taxable\"]\n\n[select]\nz_max = -0.5\n"})
+PLAN_FIXED = (b'[pools.home]\naccounts = ["Alder Taxable", "Birch Pension"]\n'
+              b'[[part]]\nname = "core"\npool = "home"\nshare_pct = 100\n'
+              b'fixed = { QRX = 100 }\n')
+row("propose: neither --rule nor --plan", ["propose"], INPUT,
+    "keel: error: propose: give a rule (--rule FILE) or a plan (--plan FILE)")
+row("propose: --rule and --plan together",
+    ["propose", "--rule", "{d}/rule.toml", "--plan", "{d}/plan.toml"], USAGE,
+    "--rule excludes --plan")
+row("propose: --deposit without --plan",
+    ["propose", "--rule", "{d}/rule.toml", "--deposit", "100"], INPUT,
+    "keel: error: --deposit: applies only with --plan")
+row("propose --plan: --save", ["propose", "--plan", "{d}/plan.toml", "--save"], INPUT,
+    "keel: error: --save: applies only with --rule", {"plan.toml": PLAN_FIXED})
+row("propose --plan: --deposit not an amount",
+    ["propose", "--plan", "{d}/plan.toml", "--deposit", "ten:Alder Taxable"], INPUT,
+    "keel: error: --deposit: 'ten' is not an amount above zero with at most two decimals "
+    "(AMOUNT[:ACCOUNT], e.g. 1500.00:Savings)", {"plan.toml": PLAN_FIXED})
+row("propose --plan: --deposit with sub-cent amount",
+    ["propose", "--plan", "{d}/plan.toml", "--deposit", "10.005:Alder Taxable"], INPUT,
+    "keel: error: --deposit: '10.005' is not an amount above zero with at most two decimals "
+    "(AMOUNT[:ACCOUNT], e.g. 1500.00:Savings)", {"plan.toml": PLAN_FIXED})
+row("propose --plan: --withdraw to an account outside the plan",
+    ["propose", "--plan", "{d}/plan.toml", "--withdraw", "10:Nobody"], INPUT,
+    "keel: error: --withdraw: 'Nobody' is not an account of the plan (accounts: Alder Taxable, "
+    "Birch Pension)", {"plan.toml": PLAN_FIXED})
+row("propose --plan: --deposit without an account in a plan of two",
+    ["propose", "--plan", "{d}/plan.toml", "--deposit", "10"], INPUT,
+    "keel: error: --deposit: the plan has 2 accounts; name the one the cash goes to or comes from "
+    "(AMOUNT:ACCOUNT; accounts: Alder Taxable, Birch Pension)", {"plan.toml": PLAN_FIXED})
+row("propose --plan: --withdraw more than the cash",
+    ["propose", "--plan", "{d}/plan.toml", "--withdraw", "1000000:Alder Taxable"], INPUT,
+    "keel: error: --withdraw: account 'Alder Taxable' holds 9500 in cash on 2024-02-01; it "
+    "cannot give 1000000", {"plan.toml": PLAN_FIXED})
+row("propose --plan: missing plan file", ["propose", "--plan", "{d}/none.toml"], INPUT,
+    "keel: error: {d}/none.toml: cannot open plan file")
+row("propose --plan: shares of a pool not summing to 100",
+    ["propose", "--plan", "{d}/plan.toml"], INPUT,
+    "keel: error: {d}/plan.toml:6:13: key 'part.share_pct': the shares of pool 'home' sum to "
+    "60%, not 100% (core 60%)", {"plan.toml": PLAN_FIXED.replace(b"= 100\n", b"= 60\n", 1)})
+row("propose --plan: unknown key", ["propose", "--plan", "{d}/plan.toml"], INPUT,
+    "keel: error: {d}/plan.toml:1:1: key 'pool': unknown key; did you mean 'pools'?",
+    {"plan.toml": b'[pool.home]\naccounts = ["Alder Taxable"]\n'})
+row("propose --plan: unknown account in a pool", ["propose", "--plan", "{d}/plan.toml"], INPUT,
+    "keel: error: {d}/plan.toml:2:12: key 'pools.home.accounts': no account named 'Nobody' in the "
+    "ledger (accounts: Alder Taxable, Birch Pension)",
+    {"plan.toml": PLAN_FIXED.replace(b'"Birch Pension"', b'"Nobody"')})
+row("propose --plan: unknown symbol in a fixed sleeve", ["propose", "--plan", "{d}/plan.toml"],
+    INPUT, "keel: error: {d}/plan.toml:7:9: key 'part.fixed.ZZZ': no security 'ZZZ' in the "
+    "ledger", {"plan.toml": PLAN_FIXED.replace(b"QRX", b"ZZZ")})
+row("propose --plan: missing rule file", ["propose", "--plan", "{d}/plan.toml"], INPUT,
+    "keel: error: {d}/nothing.toml: cannot open rule file",
+    {"plan.toml": b'[[part]]\nrule = "nothing.toml"\n'})
 row("gains: --repurchase-window below one day", ["gains", "--repurchase-window", "-3"], INPUT,
     "keel: error: --repurchase-window: '-3' days; give 1 or more (the window is off unless given)")
 row("security add: duplicate symbol",

@@ -55,6 +55,10 @@ for what in ["accounts", "securities", "prices", "metrics", "distributions", "sp
     demo.ok("import", what, os.path.join(DATA, f"{what}.csv"), *([] if what in ("accounts", "transactions") else ["--quiet"]))
 RULE = os.path.join(SOURCE, "examples", "demo", "rule.toml")
 demo.ok("propose", "--rule", RULE, "--as-of", "2025-11-28", "--save")
+PLAN = os.path.join(demo.dir.name, "plan.toml")
+with open(PLAN, "w") as f:
+    f.write(f'[pools.both]\naccounts = ["Ardwyn Joint Taxable", "Ardwyn Retirement"]\n'
+            f'[[part]]\nrule = "{RULE}"\npool = "both"\nshare_pct = 100\n')
 
 # Each report, the arguments that make it print JSON, and its schema's name.
 REPORTS = {
@@ -68,6 +72,8 @@ REPORTS = {
     "verify": ["verify"],
     "returns": ["returns", "--year", "2025", "--benchmark", "ZXTR"],
     "propose": ["propose", "--rule", RULE, "--as-of", "2025-12-31"],
+    "plan-proposal": ["propose", "--plan", PLAN, "--as-of", "2025-12-31", "--deposit",
+                      "500:Ardwyn Retirement"],
     "proposals-list": ["proposals", "list"],
     "proposal": ["proposals", "show", "1"],
     "backtest": ["backtest", "--rule", RULE, "--from", "2024-01-01", "--to", "2025-12-31",
@@ -88,11 +94,12 @@ MORE = {
                   "--frictionless"]],
     "statement": [["statement", "--year", "2016"]],
 }
-ON_DEMO = {"returns", "propose", "proposals-list", "proposal", "backtest", "signal", "statement"}
+ON_DEMO = {"returns", "propose", "plan-proposal", "proposals-list", "proposal", "backtest", "signal", "statement"}
 # The commands of the reference each report stands for.
 COMMANDS = {"holdings": "holdings", "lots": "lots", "gains": "gains", "history": "history",
             "accounts": "account list", "securities": "security list", "imports": "imports",
             "verify": "verify", "returns": "returns", "propose": "propose",
+            "plan-proposal": "propose",
             "proposals-list": "proposals list", "proposal": "proposals show",
             "backtest": "backtest", "signal": "signal", "statement": "statement",
             "actions": "action list", "changes": "changes", "reconcile": "reconcile"}

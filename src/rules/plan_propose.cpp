@@ -1,0 +1,263 @@
+#include "rules/plan_propose.h"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <map>
+#include <set>
+
+#include "core/error.h"
+#include "core/text.h"
+#include "ledger/fx_cash.h"
+#include "ledger/posting.h"
+#include "market/day_view.h"
+#include "rules/inputs.h"
+#include "rules/propose.h"
+
+namespace keel::rules {
+namespace {
+
+bool same_trading(const TradingRule& a, const TradingRule& b) {
+  return a.drift_pct_points == b.drift_pct_points && a.drift_rel_pct == b.drift_rel_pct &&
+         a.min_trade == b.min_trade && a.cash_reserve_pct == b.cash_reserve_pct &&
+         a.fractional == b.fractional && a.fee_fixed == b.fee_fixed && a.fee_bps == b.fee_bps &&
+         a.lot_order == b.lot_order;
+}
+
+std::string pct_text(const Decimal& fraction) {
+  return (fraction * Decimal(100)).str() + "%";
+}
+
+}  // namespace
+
+PlannedCash parse_planned_cash(std::string_view option, std::string_view text) {
+  PlannedCash out;
+  out.option = std::string(option);
+  const auto colon = text.find(':');
+  const auto amount = text.substr(0, colon);
+  if (colon != std::string_view::npos) {
+    out.account = std::string(text.substr(colon + 1));
+    if (out.account.empty())
+      throw InputError(fmt::format("{}: '{}' names no account after ':' (AMOUNT[:ACCOUNT])", option,
+                                   printable(text)));
+  }
+  const auto v = Decimal::try_parse(amount);
+  if (!v || !v->is_positive() || v->rounded(2) != *v)
+    throw InputError(
+        fmt::format("{}: '{}' is not an amount above zero with at most two decimals "
+                    "(AMOUNT[:ACCOUNT], e.g. 1500.00:Savings)",
+                    option, printable(amount)));
+  out.amount = option == "--withdraw" ? -*v : *v;
+  return out;
+}
+
+PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<Date> as_of_opt,
+                          std::vector<PlannedCash> planned) {
+  PlanProposal p;
+  p.plan_name = plan.name;
+  const market::DayView view(db);
+
+  // Every pool's accounts, then the one as-of day for all of them.
+  std::vector<std::vector<Account>> pool_accounts_of;
+  std::vector<Account> all;
+  for (const auto& pool : plan.pools) {
+    const std::string key = pool.own ? "part.accounts" : "pools." + pool.name + ".accounts";
+    const PlanPart* rule_part = nullptr;
+    for (const auto& part : plan.parts)
+      if (pool.from_rule && &plan.pools[part.pool] == &pool) rule_part = &part;
+    pool_accounts_of.push_back(pool_accounts(db, pool.accounts, [&](const std::string& why) {
+      if (rule_part) rule_part->rule->fail("scope.accounts", why);
+      plan.fail(pool.accounts_at, key, why);
+    }));
+    all.insert(all.end(), pool_accounts_of.back().begin(), pool_accounts_of.back().end());
+  }
+  const auto log = pool_log(db, all);
+  p.as_of = choose_as_of(view, log, all, as_of_opt, "the plan's accounts", p.notes);
+  const Date as_of = p.as_of;
+
+  // Planned cash goes to an account of the plan.
+  std::vector<std::string> names;
+  for (const auto& a : all) names.push_back(a.name);
+  for (auto& c : planned) {
+    if (c.account.empty()) {
+      if (all.size() != 1)
+        throw InputError(
+            fmt::format("{}: the plan has {} accounts; name the one the cash goes to or comes from "
+                        "(AMOUNT:ACCOUNT; accounts: {})",
+                        c.option, all.size(), printable_list(names)));
+      c.account = all.front().name;
+    } else if (std::find(names.begin(), names.end(), c.account) == names.end()) {
+      throw InputError(fmt::format("{}: '{}' is not an account of the plan (accounts: {})",
+                                   c.option, printable(c.account), printable_list(names)));
+    }
+  }
+  p.planned = planned;
+
+  Replayer replayer(log);
+  const Book& book = replayer.advance_to(as_of);
+  const Inputs::LastTrade last_trade = [&](std::int64_t id) -> std::optional<Inputs::Trade> {
+    if (const auto t = book.last_trade(id)) return Inputs::Trade{t->day, t->price};
+    return std::nullopt;
+  };
+
+  for (std::size_t pi = 0; pi < plan.pools.size(); ++pi) {
+    const PlanPool& pool = plan.pools[pi];
+    const auto& accounts = pool_accounts_of[pi];
+    const std::string& currency = accounts.front().currency;
+    PoolResult result;
+    result.name = pool.name;
+    for (const auto& a : accounts) result.accounts.push_back(a.name);
+
+    // The parts of the pool and the names each manages.
+    std::vector<std::size_t> parts;
+    for (std::size_t i = 0; i < plan.parts.size(); ++i)
+      if (plan.parts[i].pool == pi) parts.push_back(i);
+    std::vector<std::optional<Inputs>> inputs(parts.size());
+    std::map<std::int64_t, std::size_t> owner;  // security -> index into `parts`
+    const TradingRule* trading = nullptr;
+    static const TradingRule defaults;
+    for (std::size_t k = 0; k < parts.size(); ++k) {
+      const PlanPart& part = plan.parts[parts[k]];
+      std::vector<std::int64_t> ids;
+      if (part.rule) {
+        inputs[k].emplace(*part.rule, view, currency);
+        p.notes.insert(p.notes.end(), inputs[k]->notes().begin(), inputs[k]->notes().end());
+        ids = inputs[k]->securities();
+        if (!trading) {
+          trading = &part.rule->trading;
+          result.trading_from = part.name;
+        } else if (!same_trading(*trading, part.rule->trading)) {
+          part.rule->fail("trading",
+                          fmt::format("differs from the [trading] of part '{}', which shares pool "
+                                      "'{}'; the parts of one pool trade by one set of settings",
+                                      printable(result.trading_from), printable(pool.name)));
+        }
+      } else {
+        for (const auto& s : part.fixed) {
+          const Security* sec = view.security(s.symbol);
+          if (!sec)
+            plan.fail(part.fixed_at, "part.fixed." + s.symbol,
+                      fmt::format("no security '{}' in the ledger", printable(s.symbol)));
+          if (!sec->currency.empty() && sec->currency != currency)
+            plan.fail(part.fixed_at, "part.fixed." + s.symbol,
+                      fmt::format("'{}' is priced in {}, the pool's accounts keep {}; keel does "
+                                  "not convert between currencies yet",
+                                  printable(s.symbol), sec->currency, currency));
+          ids.push_back(sec->id);
+        }
+      }
+      for (const std::int64_t id : ids) {
+        const auto [it, fresh] = owner.emplace(id, k);
+        if (!fresh && it->second != k)
+          plan.fail(part.rule ? part.at : part.fixed_at, part.rule ? "part.rule" : "part.fixed",
+                    fmt::format("'{}' is managed by both part '{}' and part '{}' in pool '{}'; "
+                                "a security belongs to one part of a pool",
+                                printable(view.security(id)->symbol),
+                                printable(plan.parts[parts[it->second]].name), printable(part.name),
+                                printable(pool.name)));
+      }
+    }
+    if (!trading) trading = &defaults;
+
+    // The pool on the as-of day, with the planned cash; unmanaged names out.
+    std::set<std::int64_t> held;
+    Portfolio portfolio = portfolio_of(book, accounts, held);
+    for (const auto& c : p.planned)
+      for (auto& a : portfolio.accounts)
+        if (a.name == c.account) {
+          a.cash += c.amount;
+          if (a.cash.is_negative())
+            throw InputError(fmt::format(
+                "{}: account '{}' holds {} in cash on {}; it cannot give {}", c.option,
+                printable(a.name), (a.cash - c.amount).str(), as_of.str(), (-c.amount).str()));
+        }
+    std::set<std::int64_t> unmanaged;
+    for (const std::int64_t id : held)
+      if (!owner.count(id)) unmanaged.insert(id);
+    const Quotes unmanaged_quotes = quote_names(view, as_of, {}, unmanaged, last_trade, p.notes);
+    for (auto& a : portfolio.accounts)
+      for (auto it = a.holdings.begin(); it != a.holdings.end();) {
+        if (!unmanaged.count(it->first) || !it->second.quantity.is_positive()) {
+          ++it;
+          continue;
+        }
+        const Quote& q = unmanaged_quotes.at(it->first);
+        p.unmanaged.push_back(UnmanagedHolding{pool.name, a.name, q.symbol, it->second.quantity,
+                                               q.price, it->second.quantity * q.price,
+                                               pool.sell_unmanaged});
+        it = pool.sell_unmanaged ? std::next(it) : a.holdings.erase(it);
+      }
+
+    // Each part's screen and targets, scaled by its share.
+    std::vector<Target> targets;
+    Quotes quotes = unmanaged_quotes;
+    const std::size_t first_part = p.parts.size();
+    for (std::size_t k = 0; k < parts.size(); ++k) {
+      const PlanPart& part = plan.parts[parts[k]];
+      PartResult r;
+      r.name = part.name;
+      r.pool = pool.name;
+      r.share = part.share;
+      std::set<std::int64_t> own_held;
+      for (const std::int64_t id : held)
+        if (const auto it = owner.find(id); it != owner.end() && it->second == k)
+          own_held.insert(id);
+      if (part.rule) {
+        r.rule = part.rule->name;
+        r.rule_file = part.rule->source;
+        auto chosen = inputs[k]->select(view, as_of, own_held);
+        if (chosen.refusal) part.rule->fail(chosen.refusal->key, chosen.refusal->why);
+        r.screen = std::move(chosen.screen);
+        r.targets = std::move(chosen.targets);
+      } else {
+        for (const auto& s : part.fixed) {
+          const Security* sec = view.security(s.symbol);
+          r.targets.push_back(Target{sec->id, sec->symbol, s.weight, true, std::nullopt,
+                                     own_held.count(sec->id) > 0,
+                                     fmt::format("fixed at {} of the part", pct_text(s.weight))});
+        }
+      }
+      for (auto& t : r.targets) {
+        t.weight = (t.weight * part.share).rounded(12);
+        targets.push_back(t);
+      }
+      const auto part_quotes = quote_names(view, as_of, r.targets, own_held, last_trade, p.notes);
+      quotes.insert(part_quotes.begin(), part_quotes.end());
+      p.parts.push_back(std::move(r));
+    }
+    if (pool.sell_unmanaged)
+      for (const std::int64_t id : unmanaged)
+        targets.push_back(Target{id, quotes.at(id).symbol, Decimal(), false, std::nullopt, true,
+                                 "unmanaged: the pool sells names outside its parts"});
+
+    Decimal value;
+    for (const auto& a : portfolio.accounts) {
+      value += a.cash;
+      for (const auto& [id, h] : a.holdings)
+        if (h.quantity.is_positive()) value += h.quantity * quotes.at(id).price;
+    }
+    if (!value.is_positive())
+      plan.fail(pool.accounts_at, pool.own ? "part.accounts" : "pools." + pool.name + ".accounts",
+                fmt::format("the accounts {} hold nothing to invest on {} (value {}); deposit "
+                            "cash first",
+                            printable_list(result.accounts), as_of.str(), value.str()));
+
+    result.plan = orders(portfolio, targets, quotes, *trading, as_of);
+    // Each order under the part that manages its name.
+    for (auto& o : result.plan.orders) {
+      const auto it = owner.find(o.security_id);
+      if (it == owner.end()) {
+        o.reason = "unmanaged: " + o.reason;
+        continue;
+      }
+      auto& part = p.parts[first_part + it->second];
+      o.reason = part.name + ": " + o.reason;
+      part.orders.push_back(o);
+    }
+    p.pools.push_back(std::move(result));
+  }
+  p.cautions = proposal_cautions(as_of);
+  return p;
+}
+
+}  // namespace keel::rules

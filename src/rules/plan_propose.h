@@ -1,0 +1,85 @@
+// Plan proposals: every part of a plan (rules/plan.h) proposed together on
+// one as-of day, through the same input builder (rules/inputs.h) and order
+// steps (rules/order_steps.h) as a single rule's proposal (rules/propose.h).
+//
+// Contract
+//  - Each pool is worked out once: its parts' targets, each scaled by the
+//    part's share, go to rules::orders() together, so an account and a
+//    security get at most one order (the parts' wishes are netted) and no
+//    part sells what another holds. A rule part's names are its universe and
+//    its sleeves; a fixed part's are its symbols. A name in two parts of one
+//    pool is an InputError naming both parts.
+//  - A held name outside every part of its pool is unmanaged: listed with its
+//    value and left out of the pool (never sold, and not in the value the
+//    shares divide), unless the pool says unmanaged = "sell".
+//  - The pool trades by the [trading] table of its first rule part (defaults
+//    for a pool of fixed parts only); another rule part of the pool with
+//    different trading settings is refused at its `trading` key.
+//  - Planned cash (a deposit > 0, a withdrawal < 0) moves an account's cash
+//    before the orders and is never booked; an account outside the plan, or
+//    a withdrawal larger than the cash, is an InputError naming the option.
+//  - Orders carry the part's name before their reason. The as-of day, notes
+//    and cautions are those of rules::propose(). Reads the ledger; writes
+//    nothing.
+#pragma once
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "core/date.h"
+#include "rules/engine.h"
+#include "rules/plan.h"
+#include "store/database.h"
+
+namespace keel::rules {
+
+struct PlannedCash {
+  std::string option;   // "--deposit" or "--withdraw", for messages
+  std::string account;  // empty: the plan's only account
+  Decimal amount;       // deposits positive, withdrawals negative
+};
+
+struct PartResult {
+  std::string name;
+  std::string rule;  // the rule's name; empty for a fixed sleeve
+  std::string rule_file;
+  std::string pool;
+  Decimal share;                       // fraction of the pool's managed value
+  std::optional<ScreenResult> screen;  // rule parts
+  std::vector<Target> targets;         // weights of the pool's invested value (share applied)
+  std::vector<Order> orders;           // the pool's orders for this part's names
+};
+
+struct UnmanagedHolding {
+  std::string pool, account, symbol;
+  Decimal quantity, price, value;
+  bool sold = false;  // the pool sells unmanaged names
+};
+
+struct PoolResult {
+  std::string name;
+  std::vector<std::string> accounts;
+  std::string trading_from;  // the part whose [trading] the pool uses; empty: defaults
+  OrderPlan plan;
+};
+
+struct PlanProposal {
+  Date as_of;
+  std::string plan_name;
+  std::vector<PoolResult> pools;
+  std::vector<PartResult> parts;  // in the plan's order
+  std::vector<UnmanagedHolding> unmanaged;
+  std::vector<PlannedCash> planned;  // with the account filled in
+  std::vector<std::string> notes;
+  std::vector<std::string> cautions;
+};
+
+PlanProposal propose_plan(store::Database& db, const Plan& plan,
+                          std::optional<Date> as_of = std::nullopt,
+                          std::vector<PlannedCash> planned = {});
+
+// "AMOUNT[:ACCOUNT]" of --deposit or --withdraw; InputError naming `option`.
+PlannedCash parse_planned_cash(std::string_view option, std::string_view text);
+
+}  // namespace keel::rules

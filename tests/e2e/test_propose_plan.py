@@ -1,0 +1,188 @@
+"""End to end: `keel propose --plan` on an invented household, checked by hand.
+
+The household (all names invented) keeps a taxable and a retirement account in one pool:
+70 % under a value rule (the two cheapest of six stocks by P/E, equal weights) and 30 % in a
+fixed bond sleeve (GBND 60 %, HBND 40 % of the sleeve). The retirement account also holds a
+mixed fund that no part manages. Every order below is worked out by hand in the comments
+(whole units, no fees, no reserve: the rule's defaults), not read back from keel.
+"""
+import os
+import sys
+
+sys.path.insert(0, os.path.dirname(__file__))
+from keel_cli import Ledger, check, equal, ledger_digest  # noqa: E402
+
+SECURITIES = """symbol,name,kind,currency,lot_size,sector
+AAVO,Aavo Kitchens,stock,USD,1,Consumer
+BRIQ,Briquette Works,stock,USD,1,Industry
+CELT,Celta Ferries,stock,USD,1,Transport
+DUNE,Dune Glassmakers,stock,USD,1,Industry
+EMBR,Ember Heating,stock,USD,1,Utilities
+FOXL,Foxlight Optics,stock,USD,1,Technology
+GBND,Granite Treasury Bond Fund,bond,USD,1,
+HBND,Heron Municipal Bond Fund,bond,USD,1,
+ZMIX,Zephyr Mixed Fund,fund,USD,1,
+"""
+CLOSES = {"AAVO": 50, "BRIQ": 40, "CELT": 100, "DUNE": 60, "EMBR": 70, "FOXL": 80,
+          "GBND": 100, "HBND": 50, "ZMIX": 44}
+PE = {"AAVO": 8, "BRIQ": 10, "CELT": 15, "DUNE": 20, "EMBR": 25, "FOXL": 30}
+VALUE_RULE = """name = "value"
+[scope]
+accounts = ["Taxable"]
+symbols = ["AAVO", "BRIQ", "CELT", "DUNE", "EMBR", "FOXL"]
+[select]
+by = "count"
+count = 2
+"""
+PLAN = """name = "Household"
+
+[pools.family]
+accounts = ["Taxable", "Retirement"]
+{unmanaged}
+[[part]]
+rule = "rules/value.toml"
+pool = "family"
+share_pct = 70
+
+[[part]]
+name = "bonds"
+pool = "family"
+share_pct = 30
+fixed = {{ GBND = 60, HBND = 40 }}
+"""
+
+
+def write(path, text):
+    os.makedirs(os.path.dirname(path), exist_ok=True)
+    with open(path, "w", encoding="utf-8") as f:
+        f.write(text)
+    return path
+
+
+led = Ledger()
+D = led.dir.name
+led.ok("import", "securities", write(os.path.join(D, "securities.csv"), SECURITIES), "--quiet")
+led.ok("import", "prices", write(os.path.join(D, "prices.csv"), "date,symbol,close\n" + "".join(
+    f"2026-01-30,{s},{c}\n" for s, c in CLOSES.items())), "--quiet")
+led.ok("import", "metrics", write(os.path.join(D, "metrics.csv"),
+                                  "date,symbol,metric,value,known_on\n" + "".join(
+                                      f"2025-12-31,{s},pe,{v},2026-01-15\n"
+                                      for s, v in PE.items())), "--quiet")
+led.ok("account", "add", "Taxable")
+led.ok("account", "add", "Retirement")
+led.ok("record", "deposit", "--date", "2026-01-02", "--account", "Taxable", "--amount", "60000")
+led.ok("record", "buy", "--date", "2026-01-05", "--account", "Taxable", "--symbol", "CELT",
+       "--quantity", "100", "--price", "100")
+led.ok("record", "deposit", "--date", "2026-01-02", "--account", "Retirement", "--amount", "42000")
+led.ok("record", "buy", "--date", "2026-01-05", "--account", "Retirement", "--symbol", "ZMIX",
+       "--quantity", "50", "--price", "40")
+write(os.path.join(D, "rules", "value.toml"), VALUE_RULE)
+plan = write(os.path.join(D, "household.toml"), PLAN.format(unmanaged=""))
+before = ledger_digest(led.path)
+
+doc = led.json("propose", "--plan", plan, "--deposit", "1000:Taxable")
+equal(doc["schema"], {"name": "keel.plan-proposal", "version": 1}, "schema tag")
+equal(doc["as_of"], "2026-01-30", "as of the latest close")
+equal(doc["planned_cash"], [{"account": "Taxable", "amount": "1000", "booked": False}],
+      "the deposit is planned, not booked")
+equal(ledger_digest(led.path), before, "proposing a plan writes nothing (not even the deposit)")
+
+# The pool's managed value:
+#   Taxable cash 60000 - 10000 (CELT) + 1000 planned = 51000
+#   CELT 100 x 100                                    = 10000
+#   Retirement cash 42000 - 2000 (ZMIX)               = 40000
+#   total                                             = 101000 (ZMIX is unmanaged, outside)
+pool = doc["pools"][0]
+equal(pool["name"], "family", "one pool")
+equal(pool["pool_value"], "101000", "managed value of the pool")
+equal(doc["unmanaged"], [{"pool": "family", "account": "Retirement", "symbol": "ZMIX",
+                          "quantity": "50", "price": "44", "value": "2200", "action": "keep"}],
+      "ZMIX: outside every part, 50 x 44 = 2200, left alone")
+
+# The value rule picks the two lowest P/E (AAVO 8, BRIQ 10), each 50 % of its 70 % = 35 %;
+# the sleeve gives GBND 60 % x 30 % = 18 % and HBND 40 % x 30 % = 12 %.
+parts = {p["name"]: p for p in doc["parts"]}
+equal(sorted(parts), ["bonds", "value"], "both parts under their own names")
+equal([(t["symbol"], t["weight"]) for t in parts["value"]["targets"]],
+      [("AAVO", "0.35"), ("BRIQ", "0.35"), ("CELT", "0")], "value targets, share applied")
+equal([(t["symbol"], t["weight"]) for t in parts["bonds"]["targets"]],
+      [("GBND", "0.18"), ("HBND", "0.12")], "sleeve targets, share applied")
+equal([l["symbol"] for l in parts["value"]["screen"] if l["selected"]], ["AAVO", "BRIQ"],
+      "the value part's screen")
+equal(parts["bonds"]["screen"], None, "a fixed sleeve has no screen")
+
+# The orders, by hand (sells first, then buys; cash is per account):
+#   CELT: not selected, held 100 in Taxable -> sell 100 x 100 = 10000; Taxable cash 61000
+#   AAVO: 0.35 x 101000 = 35350 / 50 = 707 -> Taxable 707 x 50 = 35350; Taxable left 25650
+#   BRIQ: 0.35 x 101000 = 35350 / 40 = 883.75 -> 883 (whole units) x 40 = 35320 in Retirement;
+#         Retirement left 40000 - 35320 = 4680
+#   GBND: 0.18 x 101000 = 18180 / 100 = 181.8 -> 181 x 100 = 18100 in Taxable; left 7550
+#   HBND: 0.12 x 101000 = 12120 / 50 = 242.4 -> 242: Taxable's 7550 / 50 = 151 units, and
+#         Retirement's 242 - 151 = 91 units x 50 = 4550; Retirement left 4680 - 4550 = 130
+orders = [(o["account"], o["symbol"], o["side"], o["quantity"], o["value"]) for o in pool["orders"]]
+equal(orders, [("Taxable", "CELT", "sell", "100", "10000"),
+               ("Taxable", "AAVO", "buy", "707", "35350"),
+               ("Retirement", "BRIQ", "buy", "883", "35320"),
+               ("Taxable", "GBND", "buy", "181", "18100"),
+               ("Taxable", "HBND", "buy", "151", "7550"),
+               ("Retirement", "HBND", "buy", "91", "4550")], "the pool's orders, by hand")
+equal(len({(o[0], o[1]) for o in orders}), len(orders), "one order per account and security")
+equal(pool["cash_after_by_account"],
+      [{"account": "Taxable", "cash": "0", "reserve": "0"},
+       {"account": "Retirement", "cash": "130", "reserve": "0"}], "cash after, by hand")
+check(all(o["reason"].startswith("value: ") for o in parts["value"]["orders"]),
+      "value orders name their rule")
+check(all(o["reason"].startswith("bonds: ") for o in parts["bonds"]["orders"]),
+      "sleeve orders name their part")
+equal(sum(len(p["orders"]) for p in doc["parts"]), len(pool["orders"]),
+      "every order belongs to one part")
+check(not any(o["symbol"] == "ZMIX" for o in pool["orders"]), "the unmanaged fund is never sold")
+equal(doc["cautions"][0], "This is the output of your own rule applied to your own data; it is "
+      "not investment advice.", "the proposal's cautions")
+
+# The text says the deposit is planned and lists the unmanaged fund.
+text = led.ok("propose", "--plan", plan, "--deposit", "1000:Taxable")
+check("Planned, not booked: deposit 1000.00 to Taxable" in text, text)
+check("family  Retirement  ZMIX          50     44  2200.00  left alone" in text, text)
+check("Part 'bonds': fixed sleeve, 30.00% of pool 'family'" in text, text)
+check("Cautions:" in text and "not investment advice" in text, "text cautions")
+
+# Without the deposit: 100000 managed; AAVO 35000 / 50 = 700 units in Taxable.
+doc = led.json("propose", "--plan", plan)
+equal(doc["pools"][0]["pool_value"], "100000", "without the planned deposit")
+equal(doc["pools"][0]["orders"][1]["quantity"], "700", "AAVO: 0.35 x 100000 / 50 = 700")
+
+# A withdrawal of 1000 from Retirement: 100000 managed (101000 - 1000 - 1000 + 1000).
+doc = led.json("propose", "--plan", plan, "--deposit", "1000:Taxable", "--withdraw",
+               "2000:Retirement")
+equal(doc["pools"][0]["pool_value"], "99000", "51000 + 10000 + 38000")
+equal([c["amount"] for c in doc["planned_cash"]], ["1000", "-2000"], "planned deposit, withdrawal")
+
+# unmanaged = "sell": ZMIX joins the pool (101000 + 2200 = 103200) and is sold.
+write(plan, PLAN.format(unmanaged='unmanaged = "sell"\n'))
+doc = led.json("propose", "--plan", plan, "--deposit", "1000:Taxable")
+equal(doc["pools"][0]["pool_value"], "103200", "the unmanaged fund counts when it is sold")
+zmix = [o for o in doc["pools"][0]["orders"] if o["symbol"] == "ZMIX"]
+equal([(o["side"], o["quantity"]) for o in zmix], [("sell", "50")], "ZMIX sold whole")
+check(zmix[0]["reason"].startswith("unmanaged: "), zmix[0]["reason"])
+equal(doc["unmanaged"][0]["action"], "sell", "listed as sold")
+
+# A part with accounts of its own: the rule's scope.accounts.
+write(os.path.join(D, "own.toml"), 'name = "Own"\n[[part]]\nrule = "rules/value.toml"\n')
+doc = led.json("propose", "--plan", os.path.join(D, "own.toml"))
+equal([(p["name"], p["accounts"]) for p in doc["pools"]], [("value", ["Taxable"])],
+      "a part of its own keeps the rule's accounts")
+equal(doc["pools"][0]["pool_value"], "60000", "Taxable alone: 50000 cash + CELT 10000")
+
+# Refusals change nothing.
+write(os.path.join(D, "overlap.toml"), PLAN.format(unmanaged="").replace(
+    "GBND = 60", "CELT = 60"))
+err = led.fails("propose", "--plan", os.path.join(D, "overlap.toml"))
+equal(err, f"keel: error: {D}/overlap.toml:15:9: key 'part.fixed': 'CELT' is managed by both part "
+      "'value' and part 'bonds' in pool 'family'; a security belongs to one part of a pool",
+      "a name in two parts of one pool")
+err = led.fails("propose", "--plan", plan, "--withdraw", "50000:Retirement")
+equal(err, "keel: error: --withdraw: account 'Retirement' holds 40000 in cash on 2026-01-30; it "
+      "cannot give 50000", "a withdrawal larger than the cash")
+equal(ledger_digest(led.path), before, "refused plans write nothing")
+print("propose --plan: household checked by hand")
