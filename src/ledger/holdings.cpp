@@ -8,8 +8,8 @@
 #include "core/error.h"
 #include "ledger/accounts.h"
 #include "ledger/posting.h"
-#include "market/day_view.h"
 #include "ledger/tax.h"
+#include "market/day_view.h"
 #include "store/ledger_store.h"
 
 namespace keel::ledger {
