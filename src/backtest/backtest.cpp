@@ -10,6 +10,7 @@
 
 #include "core/error.h"
 #include "core/text.h"
+#include "ledger/actions.h"
 #include "rules/inputs.h"
 
 namespace keel::backtest {
@@ -68,6 +69,13 @@ struct Held {
     slot[static_cast<std::size_t>(c)] = static_cast<int>(columns.size());
     columns.push_back(c);
   }
+  void remove(int c) {
+    if (!has(c)) return;
+    columns.erase(columns.begin() + slot[static_cast<std::size_t>(c)]);
+    slot[static_cast<std::size_t>(c)] = -1;
+    for (std::size_t i = 0; i < columns.size(); ++i)
+      slot[static_cast<std::size_t>(columns[i])] = static_cast<int>(i);
+  }
   void clear() {
     for (const int c : columns) slot[static_cast<std::size_t>(c)] = -1;
     columns.clear();
@@ -78,6 +86,15 @@ struct Held {
     return out;
   }
 };
+
+// The column of what a merger or spin-off hands out (load_history loads it).
+int target_column(const market::Series& m, const CorporateAction& a) {
+  const int t = a.target_id ? m.column(*a.target_id) : -1;
+  if (t < 0)
+    throw std::logic_error(
+        fmt::format("backtest: the target of corporate action {} is not loaded", a.id));
+  return t;
+}
 
 // Selection on a rebalancing day: the engine's targets, or why there are none.
 struct Selection {
@@ -118,6 +135,27 @@ class FrictionlessPool {
     const Num amount = unit(c) * P::from(d.per_share);
     distributions_ += amount;
     unit(c) = unit(c) + P::quotient(amount, P::price(h_.market, row, c));
+  }
+  // A corporate action at the start of its day (ledger/actions.h:
+  // unit_effect); fractions are kept, so no cash in lieu. Its cash waits in
+  // the pool for the next rebalancing day.
+  void act(const CorporateAction& a) {
+    const int c = h_.market.column(a.security_id);
+    if (!held_.has(c)) return;
+    const UnitEffect e = unit_effect(a);
+    const Num held = unit(c);
+    if (!e.target_units.is_zero()) {
+      const int t = target_column(h_.market, a);
+      unit(t) = (held_.has(t) ? unit(t) : Num{}) + held * P::from(e.target_units);
+      held_.add(t);
+    }
+    if (!e.cash.is_zero()) cash_ += held * P::from(e.cash);
+    if (e.keeps.is_zero()) {
+      unit(c) = Num{};
+      held_.remove(c);
+    } else if (e.keeps != Decimal(1)) {
+      unit(c) = held * P::from(e.keeps);
+    }
   }
   void pay(Date) {}
   Num holdings(std::size_t row) const {
@@ -224,6 +262,34 @@ class OrderPool {
     owed_.push_back(Owed{d.pay_date, amount});
     owed_total_ += amount.to_double();
   }
+  // A corporate action at the start of its day, as the ledger applies it to
+  // one account (ledger/actions.h): cash to the cent, and with a price for
+  // them, the fractions of the units handed out paid in cash.
+  void act(const CorporateAction& a) {
+    const int c = h_.market.column(a.security_id);
+    if (!held_.has(c)) return;
+    const UnitEffect e = unit_effect(a);
+    const Decimal held = unit(c);
+    auto whole = [&](Decimal units) {
+      if (!a.in_lieu) return units;
+      const Decimal fraction = fraction_of(units);
+      cash_ += action_cash(fraction, *a.in_lieu);
+      return units - fraction;
+    };
+    if (!e.target_units.is_zero()) {
+      const int t = target_column(h_.market, a);
+      set(t, unit(t) + whole(held * e.target_units));
+      if (unit(t).is_positive()) held_.add(t);
+    }
+    if (!e.cash.is_zero()) cash_ += action_cash(held, e.cash);
+    if (e.keeps.is_zero()) {
+      set(c, Decimal());
+      held_.remove(c);
+    } else if (e.keeps != Decimal(1)) {
+      set(c, whole(held * e.keeps));
+      if (!unit(c).is_positive()) held_.remove(c);
+    }
+  }
   void pay(Date day) {
     std::erase_if(owed_, [&](const Owed& o) {
       if (o.pay > day) return false;
@@ -321,8 +387,10 @@ StrategyRun simulate(const History& h, const rules::Rule& rule, const Request& r
   const auto& days = m.trading_days();
   const auto& splits = m.split_events();
   const auto& distributions = m.distribution_events();
-  std::size_t next_split = 0, next_distribution = 0;
+  const auto& actions = m.action_events();
+  std::size_t next_split = 0, next_distribution = 0, next_action = 0;
   while (next_split < splits.size() && splits[next_split].date <= opening) ++next_split;
+  while (next_action < actions.size() && actions[next_action].date <= opening) ++next_action;
   while (next_distribution < distributions.size() &&
          distributions[next_distribution].ex_date <= opening)
     ++next_distribution;
@@ -332,6 +400,8 @@ StrategyRun simulate(const History& h, const rules::Rule& rule, const Request& r
     const std::size_t row = m.row(day);
     for (; next_split < splits.size() && splits[next_split].date <= day; ++next_split)
       pool.split(m.column(splits[next_split].security_id), splits[next_split].ratio);
+    for (; next_action < actions.size() && actions[next_action].date <= day; ++next_action)
+      pool.act(actions[next_action]);
     for (; next_distribution < distributions.size() &&
            distributions[next_distribution].ex_date <= day;
          ++next_distribution) {

@@ -1,5 +1,7 @@
 #include "backtest/history.h"
 
+#include <set>
+
 #include "market/day_view.h"
 #include "rules/inputs.h"
 #include "store/ledger_store.h"
@@ -21,6 +23,19 @@ History load_history(store::Database& db, const rules::Rule& rule, Date from, Da
   request.securities = inputs.securities();
   for (const auto& symbol : extra)
     if (const Security* s = catalog.security(symbol)) request.securities->push_back(s->id);
+  // What a merger or spin-off of a loaded name hands out must be priced too,
+  // in the universe or not (and so on, for an action of that name).
+  const auto actions = catalog.actions(std::nullopt, from, to);
+  for (bool grew = true; grew;) {
+    grew = false;
+    std::set<std::int64_t> loaded(request.securities->begin(), request.securities->end());
+    for (const auto& a : actions)
+      if (a.target_id && loaded.count(a.security_id) && !loaded.count(*a.target_id)) {
+        request.securities->push_back(*a.target_id);
+        loaded.insert(*a.target_id);
+        grew = true;
+      }
+  }
   request.from = from;
   request.to = to;
   request.metrics = {rule.screen.metric};

@@ -6,8 +6,10 @@
 //    ledger with rules::Inputs, exactly as `keel propose` does (its problems
 //    are InputErrors located at the rule key), and preloads over [from, to]
 //    the closes of the universe, the sleeves and the `extra` symbols that the
-//    ledger holds (a benchmark), the rule's metric, splits and cash
-//    distributions (market/series.h).
+//    ledger holds (a benchmark), the rule's metric, splits, cash
+//    distributions and corporate actions (market/series.h); and the
+//    securities that a merger or spin-off in [from, to] of a loaded name
+//    hands out, so that they can be valued while held.
 //    The rule trades in one currency (rules::Inputs): the ledger's when it
 //    has one, else the first sleeve's, else the one its universe shares; with
 //    none of these, a universe in several currencies is refused. Stocks left

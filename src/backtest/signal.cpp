@@ -11,6 +11,7 @@
 
 #include "backtest/backtest.h"
 #include "core/error.h"
+#include "ledger/actions.h"
 #include "perf/stats.h"
 #include "rules/inputs.h"
 
@@ -32,10 +33,13 @@ std::vector<double> average_ranks(std::span<const double> x) {
   return rank;
 }
 
+// A security's events in one timeline: on a day, splits, then corporate
+// actions, then distributions (the order the back-test applies them).
 struct Event {
   Date day;
-  bool split;
-  double amount;  // ratio, or cash per unit
+  int rank = 0;       // 0 split, 1 corporate action, 2 distribution
+  double amount = 0;  // ratio, or cash per unit
+  const CorporateAction* action = nullptr;
 };
 
 }  // namespace
@@ -87,33 +91,62 @@ SignalResult signal(const History& h, const rules::Rule& rule, const SignalReque
   std::map<int, Date> by_month;  // year * 12 + month - 1
   for (Date d : month_last) by_month[d.year() * 12 + d.month() - 1] = d;
 
-  // Each security's splits and distributions in date order (splits first on a day).
+  // Each security's splits, corporate actions and distributions in order.
   std::unordered_map<std::int64_t, std::vector<Event>> events;
   for (const auto& s : h.market.split_events())
-    events[s.security_id].push_back(Event{s.date, true, s.ratio.to_double()});
+    events[s.security_id].push_back(Event{s.date, 0, s.ratio.to_double(), nullptr});
+  for (const auto& a : h.market.action_events())
+    events[a.security_id].push_back(Event{a.date, 1, 0, &a});
   for (const auto& d : h.market.distribution_events())
-    events[d.security_id].push_back(Event{d.ex_date, false, d.per_share.to_double()});
+    events[d.security_id].push_back(Event{d.ex_date, 2, d.per_share.to_double(), nullptr});
   for (auto& [id, ev] : events)
     std::stable_sort(ev.begin(), ev.end(), [](const Event& a, const Event& b) {
-      return a.day != b.day ? a.day < b.day : a.split > b.split;
+      return a.day != b.day ? a.day < b.day : a.rank < b.rank;
     });
   // A statistic, in doubles: the closes as the nearest doubles to the stored
   // decimals (as scipy reads them).
   const auto& m = h.market;
-  auto forward = [&](std::int64_t id, Date start, Date end) -> std::optional<double> {
+  auto price = [&](std::int64_t id, Date day) {
     const int c = m.column(id);
-    const double p0 = m.value(m.row(start), c), p1 = m.value(m.row(end), c);
-    if (std::isnan(p0) || std::isnan(p1) || !(p0 > 0)) return std::nullopt;
+    return c < 0 ? std::nan("") : m.value(m.row(day), c);
+  };
+  auto forward = [&](std::int64_t id, Date start, Date end) -> std::optional<double> {
+    const double p0 = price(id, start);
+    if (std::isnan(p0) || !(p0 > 0)) return std::nullopt;
+    // Units of the name, cash paid, and what spin-offs handed out (valued at
+    // the end).
     double units = 1, cash = 0;
+    std::vector<std::pair<std::int64_t, double>> other;
+    auto value_of_others = [&](Date day) {
+      double v = 0;
+      for (const auto& [t, u] : other) v += u * price(t, day);
+      return v;
+    };
     if (auto it = events.find(id); it != events.end())
       for (const auto& e : it->second) {
         if (e.day <= start || e.day > end) continue;
-        if (e.split)
+        if (e.rank == 0) {
           units *= e.amount;
-        else
+        } else if (e.rank == 2) {
           cash += units * e.amount;
+        } else {
+          const UnitEffect u = unit_effect(*e.action);
+          if (!u.target_units.is_zero())
+            other.emplace_back(*e.action->target_id, units * u.target_units.to_double());
+          cash += units * u.cash.to_double();
+          units *= u.keeps.to_double();
+          // Off the market: the window ends here, at what the action paid.
+          if (u.keeps.is_zero()) {
+            const double v = cash + value_of_others(e.day);
+            if (std::isnan(v)) return std::nullopt;
+            return v / p0 - 1;
+          }
+        }
       }
-    return (units * p1 + cash) / p0 - 1;
+    const double p1 = price(id, end);
+    const double v = units * p1 + cash + value_of_others(end);
+    if (std::isnan(v)) return std::nullopt;
+    return v / p0 - 1;
   };
 
   for (int months : req.horizons) {

@@ -8,8 +8,14 @@
 //    its close on or before d to its close on or before the last trading day
 //    of the month h months later, which must not be after `to`: splits
 //    multiply the units, cash distributions (ex-date in the window) are added
-//    as cash, not reinvested. A forward return is only ever paired with the
-//    score known at its start.
+//    as cash, not reinvested. Corporate actions in the window act on the one
+//    unit held as on the back-test's pool (ledger/actions.h: unit_effect, no
+//    rounding): a stock dividend adds units, a return of capital adds cash, a
+//    spin-off's units are valued at their close on the window's last day. A
+//    merger or delisting ends the name's window on its day: the final value
+//    is the cash it paid plus the acquirer's units at their close on that
+//    day. A name off the market at the start is not screened at all. A
+//    forward return is only ever paired with the score known at its start.
 //  - Information coefficient (IC) of a day: Spearman's rank correlation of z
 //    with the forward return (average ranks for ties; Pearson's r of the
 //    ranks), as scipy.stats.spearmanr computes it.

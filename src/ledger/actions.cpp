@@ -17,11 +17,6 @@ const Decimal& need(const std::optional<Decimal>& figure, const CorporateAction&
   return *figure;
 }
 
-Decimal cash_of(const Decimal& units, const Decimal& per_unit) {
-  // Cash changes hands in cents: round once per account, half to even.
-  return (units * per_unit).rounded(kCostPlaces);
-}
-
 std::vector<Decimal> quantities(const std::vector<Lot>& lots) {
   std::vector<Decimal> out;
   for (const auto& lot : lots) out.push_back(lot.quantity);
@@ -44,26 +39,53 @@ void keep_oldest_first(std::vector<Lot>& lots) {
 
 }  // namespace
 
-std::vector<const CorporateAction*> live_actions(const std::vector<CorporateAction>& all) {
-  std::unordered_set<std::int64_t> voided;
-  for (const auto& a : all)
-    if (a.kind == ActionKind::void_entry && a.voids_id) voided.insert(*a.voids_id);
-  std::vector<const CorporateAction*> out;
-  for (const auto& a : all)
-    if (a.kind != ActionKind::void_entry && !voided.count(a.id)) out.push_back(&a);
-  std::stable_sort(out.begin(), out.end(), [](const auto* x, const auto* y) {
-    return x->date != y->date ? x->date < y->date : x->id < y->id;
-  });
-  return out;
+Decimal action_cash(const Decimal& units, const Decimal& per_unit) {
+  // Cash changes hands in cents: round once per holder, half to even.
+  return (units * per_unit).rounded(kCostPlaces);
+}
+
+Decimal fraction_of(const Decimal& units) {
+  return units - units.truncated(0);
+}
+
+UnitEffect unit_effect(const CorporateAction& a) {
+  UnitEffect e;
+  switch (a.kind) {
+    case ActionKind::split:
+      e.keeps = need(a.ratio, a, "ratio");
+      break;
+    case ActionKind::stock_dividend:
+      e.keeps = Decimal(1) + need(a.ratio, a, "ratio");
+      break;
+    case ActionKind::return_of_capital:
+      e.keeps = Decimal(1);
+      e.cash = need(a.cash, a, "cash per unit");
+      break;
+    case ActionKind::delisting:
+      e.cash = need(a.cash, a, "cash per unit");
+      break;
+    case ActionKind::merger:
+      // Units of the target, cash, or both; without units an all-cash takeover.
+      if (a.ratio) e.target_units = *a.ratio;
+      if (a.cash) e.cash = *a.cash;
+      if (!a.ratio) need(a.cash, a, "cash per unit");
+      break;
+    case ActionKind::spinoff:
+      e.keeps = Decimal(1);
+      e.target_units = need(a.ratio, a, "ratio");
+      break;
+    case ActionKind::void_entry:
+      e.keeps = Decimal(1);
+      break;
+  }
+  return e;
 }
 
 void ActionEngine::apply(const CorporateAction& a) {
   switch (a.kind) {
     case ActionKind::split:
-      split_units(a, need(a.ratio, a, "ratio"));
-      break;
     case ActionKind::stock_dividend:
-      split_units(a, Decimal(1) + need(a.ratio, a, "ratio"));
+      split_units(a, unit_effect(a).keeps);
       break;
     case ActionKind::return_of_capital:
       return_capital(a);
@@ -111,7 +133,7 @@ void ActionEngine::pay_fraction(const CorporateAction& a, std::size_t index,
   Decimal received;
   for (const auto& lot : lots)
     if (lot_ids.empty() || lot_ids.count(lot.lot_id)) received += lot.quantity;
-  const Decimal fraction = received - received.truncated(0);
+  const Decimal fraction = fraction_of(received);
   if (fraction.is_zero()) return;
   const Account& info = book_.accounts_[index];
   const BasisMethod method = info.basis == BasisMethod::specific ? BasisMethod::fifo : info.basis;
@@ -126,7 +148,7 @@ void ActionEngine::pay_fraction(const CorporateAction& a, std::size_t index,
     remaining -= q;
   }
   drop_empty(lots);
-  const Decimal paid = cash_of(fraction, *a.in_lieu);
+  const Decimal paid = action_cash(fraction, *a.in_lieu);
   const auto parts = allocate(paid, quantities(taken), kCostPlaces);
   for (std::size_t i = 0; i < taken.size(); ++i) realize(a, index, security_id, taken[i], parts[i]);
   book.cash += paid;
@@ -145,7 +167,7 @@ void ActionEngine::return_capital(const CorporateAction& a) {
     const auto pos = book.positions.find(a.security_id);
     if (pos == book.positions.end()) continue;
     auto& lots = pos->second.lots;
-    const Decimal paid = cash_of(pos->second.quantity(), per_unit);
+    const Decimal paid = action_cash(pos->second.quantity(), per_unit);
     const auto parts = allocate(paid, quantities(lots), kCostPlaces);
     for (std::size_t k = 0; k < lots.size(); ++k) {
       if (parts[k] <= lots[k].cost) {
@@ -170,7 +192,7 @@ void ActionEngine::dispose_all(const CorporateAction& a) {
     const auto pos = book.positions.find(a.security_id);
     if (pos == book.positions.end()) continue;
     const auto lots = pos->second.lots;
-    const Decimal paid = cash_of(pos->second.quantity(), per_unit);
+    const Decimal paid = action_cash(pos->second.quantity(), per_unit);
     const auto parts = allocate(paid, quantities(lots), kCostPlaces);
     for (std::size_t k = 0; k < lots.size(); ++k) realize(a, i, a.security_id, lots[k], parts[k]);
     book.positions.erase(pos);
@@ -193,7 +215,7 @@ void ActionEngine::merge(const CorporateAction& a) {
     if (a.cash) {
       Decimal units;
       for (const auto& lot : lots) units += lot.quantity;
-      paid = cash_of(units, *a.cash);
+      paid = action_cash(units, *a.cash);
       cash_parts = allocate(paid, quantities(lots), kCostPlaces);
     }
     auto& into = book.positions[target].lots;

@@ -44,6 +44,22 @@
 
 namespace keel {
 
+// What one unit held at the start of the action's day becomes, for holders
+// of units without lots (the back-test's simulated pool). The ledger's lots
+// follow the same figures (ActionEngine below).
+struct UnitEffect {
+  Decimal keeps;         // units of the security per unit held afterwards; 0: it leaves
+  Decimal target_units;  // units of the target per unit held (merger, spin-off)
+  Decimal cash;          // cash per unit held, before rounding
+};
+// Throws InputError as ActionEngine::apply does for a missing figure.
+UnitEffect unit_effect(const CorporateAction& action);
+// Cash an action pays a holder of `units`: units x per unit, rounded to the
+// cent (kCostPlaces), half to even.
+Decimal action_cash(const Decimal& units, const Decimal& per_unit);
+// The part of `units` below a whole unit (what cash in lieu pays for).
+Decimal fraction_of(const Decimal& units);
+
 class ActionEngine {
  public:
   explicit ActionEngine(Book& book) : book_(book) {}
@@ -65,8 +81,5 @@ class ActionEngine {
                const Lot& lot, const Decimal& proceeds);
   Book& book_;
 };
-
-// The actions in force (not voided, not voids), ordered by date then id.
-std::vector<const CorporateAction*> live_actions(const std::vector<CorporateAction>& all);
 
 }  // namespace keel

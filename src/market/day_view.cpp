@@ -1,5 +1,6 @@
 #include "market/day_view.h"
 
+#include "store/action_store.h"
 #include "store/ledger_store.h"
 
 namespace keel::market {
@@ -50,6 +51,24 @@ std::vector<SplitEvent> DayView::splits(std::optional<std::int64_t> security_id,
     out.push_back(
         SplitEvent{rows.integer(0), Date::parse(rows.text(1)), Decimal::parse(rows.text(2))});
   return out;
+}
+
+const std::vector<CorporateAction>& DayView::live() const {
+  if (!live_) {
+    const auto all = store::list_actions(db_);
+    live_.emplace();
+    for (const auto* a : live_actions(all)) live_->push_back(*a);
+  }
+  return *live_;
+}
+
+std::vector<CorporateAction> DayView::actions(std::optional<std::int64_t> security_id, Date from,
+                                              Date to) const {
+  return actions_between(live(), security_id, from, to);
+}
+
+std::optional<Date> DayView::ended(std::int64_t security_id, Date day) const {
+  return end_of(live(), security_id, day);
 }
 
 std::vector<std::string> DayView::metric_names() const {

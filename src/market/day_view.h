@@ -3,7 +3,8 @@
 // a few names on one day; it answers for any security and any day.
 //
 // Contract: as market/view.h. The view borrows the Database, which must
-// outlive it; the securities are read when it is made, the rest when asked.
+// outlive it; the securities are read when it is made, the corporate actions
+// on first use, the rest when asked.
 #pragma once
 
 #include <optional>
@@ -27,6 +28,9 @@ class DayView final : public View {
                                           Date to) const override;
   std::vector<SplitEvent> splits(std::optional<std::int64_t> security_id, Date from,
                                  Date to) const override;
+  std::vector<CorporateAction> actions(std::optional<std::int64_t> security_id, Date from,
+                                       Date to) const override;
+  std::optional<Date> ended(std::int64_t security_id, Date day) const override;
   const std::vector<Security>& securities() const override { return securities_; }
   std::vector<std::string> metric_names() const override;
 
@@ -41,6 +45,8 @@ class DayView final : public View {
   mutable store::MarketRows rows_;
   std::vector<Security> securities_;
   mutable std::optional<std::vector<std::string>> metric_names_;
+  const std::vector<CorporateAction>& live() const;  // read on first use
+  mutable std::optional<std::vector<CorporateAction>> live_;
   mutable std::optional<Date> day_;
   mutable std::string day_text_;
 };

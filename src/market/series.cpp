@@ -10,6 +10,7 @@
 #include <set>
 #include <stdexcept>
 
+#include "store/action_store.h"
 #include "store/ledger_store.h"
 #include "store/market_rows.h"
 
@@ -284,6 +285,11 @@ Series Series::load(store::Database& db, const Request& req) {
         s.splits_.push_back(
             SplitEvent{st.integer(0), Date::parse(st.text(1)), Decimal::parse(st.text(2))});
   }
+  {
+    const auto all = store::list_actions(db);
+    for (const auto* a : live_actions(all))
+      if (a->date <= req.to && s.column_of_.count(a->security_id)) s.actions_.push_back(*a);
+  }
   return s;
 }
 
@@ -431,6 +437,18 @@ std::vector<SplitEvent> Series::splits(std::optional<std::int64_t> security_id, 
                                        Date to) const {
   check_span(security_id, from, to);
   return events_between(splits_, security_id, from, to, [](const SplitEvent& e) { return e.date; });
+}
+
+std::vector<CorporateAction> Series::actions(std::optional<std::int64_t> security_id, Date from,
+                                             Date to) const {
+  check_span(security_id, from, to);
+  return actions_between(actions_, security_id, from, to);
+}
+
+std::optional<Date> Series::ended(std::int64_t security_id, Date day) const {
+  row(day);
+  loaded(security_id);
+  return end_of(actions_, security_id, day);
 }
 
 }  // namespace keel::market

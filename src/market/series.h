@@ -7,8 +7,9 @@
 //    ledger when unset): their closes dated in [from, to] and the latest
 //    close before `from`, with one ordered range read per security; the
 //    figures of the metrics asked for that are known on or before `to`; the
-//    distributions and splits dated in [from, to]. Of the other securities it
-//    reads only which days have a close.
+//    distributions and splits dated in [from, to]; their live corporate
+//    actions dated on or before `to`. Of the other securities it reads only
+//    which days have a close.
 //  - As a View (market/view.h) it answers for the loaded securities and days
 //    in [from, to]; anything else throws std::out_of_range. A metric not
 //    loaded throws std::out_of_range too.
@@ -60,6 +61,9 @@ class Series final : public View {
                                           Date to) const override;
   std::vector<SplitEvent> splits(std::optional<std::int64_t> security_id, Date from,
                                  Date to) const override;
+  std::vector<CorporateAction> actions(std::optional<std::int64_t> security_id, Date from,
+                                       Date to) const override;
+  std::optional<Date> ended(std::int64_t security_id, Date day) const override;
   const std::vector<Security>& securities() const override { return securities_; }
   std::vector<std::string> metric_names() const override { return metric_names_; }
 
@@ -116,6 +120,9 @@ class Series final : public View {
   // Every loaded event, by date and then security id.
   const std::vector<Distribution>& distribution_events() const { return distributions_; }
   const std::vector<SplitEvent>& split_events() const { return splits_; }
+  // The live corporate actions of the loaded securities dated on or before
+  // `to` (earlier ones too, for ended()), by date and then id.
+  const std::vector<CorporateAction>& action_events() const { return actions_; }
 
  private:
   Series() = default;
@@ -149,6 +156,7 @@ class Series final : public View {
   mutable std::vector<FigureCursor> cursors_;        // per metric, for figure()
   std::vector<Distribution> distributions_;
   std::vector<SplitEvent> splits_;
+  std::vector<CorporateAction> actions_;
 };
 
 }  // namespace keel::market

@@ -32,4 +32,25 @@ const Security* View::security(std::string_view symbol) const {
   return it == by_symbol_.end() ? nullptr : &securities()[it->second];
 }
 
+std::vector<CorporateAction> actions_between(const std::vector<CorporateAction>& live,
+                                             std::optional<std::int64_t> security_id, Date from,
+                                             Date to) {
+  std::vector<CorporateAction> out;
+  for (const auto& a : live)
+    if (a.date >= from && a.date <= to && (!security_id || a.security_id == *security_id))
+      out.push_back(a);
+  return out;
+}
+
+std::optional<Date> end_of(const std::vector<CorporateAction>& live, std::int64_t security_id,
+                           Date day) {
+  for (const auto& a : live) {
+    if (a.date > day) break;
+    if (a.security_id == security_id &&
+        (a.kind == ActionKind::merger || a.kind == ActionKind::delisting))
+      return a.date;
+  }
+  return std::nullopt;
+}
+
 }  // namespace keel::market

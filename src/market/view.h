@@ -24,8 +24,7 @@
 //  - Calls are const but may fill caches: a view is not shared between
 //    threads.
 //
-// Exchange rates and corporate actions beyond splits (mergers, spin-offs,
-// delistings) are point-in-time market data too; they belong behind this
+// Exchange rates are point-in-time market data too; they belong behind this
 // contract when keel learns them.
 #pragma once
 
@@ -38,6 +37,7 @@
 
 #include "core/date.h"
 #include "core/decimal.h"
+#include "model/records.h"
 #include "model/security.h"
 
 namespace keel::market {
@@ -86,6 +86,17 @@ class View {
   virtual std::vector<SplitEvent> splits(std::optional<std::int64_t> security_id, Date from,
                                          Date to) const = 0;
 
+  // Corporate actions (ledger/actions.h says what each kind does).
+  //  - actions(S, from, to): the live actions of S (of every security when S
+  //    is unset; voided actions and the voids themselves left out) dated in
+  //    [from, to], by date and then id. An action takes effect at the start
+  //    of its day, after that day's splits.
+  //  - ended(S, D): the day of a live merger or delisting of S dated on or
+  //    before D (S is off the market from that day on); unset when none.
+  virtual std::vector<CorporateAction> actions(std::optional<std::int64_t> security_id, Date from,
+                                               Date to) const = 0;
+  virtual std::optional<Date> ended(std::int64_t security_id, Date day) const = 0;
+
   virtual const std::vector<Security>& securities() const = 0;
   virtual std::vector<std::string> sectors() const;
   virtual std::vector<std::string> metric_names() const = 0;
@@ -100,5 +111,13 @@ class View {
   mutable std::map<std::int64_t, std::size_t> by_id_;
   mutable std::map<std::string, std::size_t, std::less<>> by_symbol_;
 };
+
+// Shared by the implementations: the actions of `live` (in force, by date
+// and id) for actions() and ended().
+std::vector<CorporateAction> actions_between(const std::vector<CorporateAction>& live,
+                                             std::optional<std::int64_t> security_id, Date from,
+                                             Date to);
+std::optional<Date> end_of(const std::vector<CorporateAction>& live, std::int64_t security_id,
+                           Date day);
 
 }  // namespace keel::market

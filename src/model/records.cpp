@@ -2,8 +2,10 @@
 
 #include <fmt/format.h>
 
+#include <algorithm>
 #include <array>
 #include <charconv>
+#include <unordered_set>
 
 #include "core/error.h"
 #include "core/text.h"
@@ -164,6 +166,19 @@ std::string format_lot_picks(const std::vector<LotPick>& picks) {
     if (!out.empty()) out += ',';
     out += fmt::format("{}:{}", p.lot_id, p.quantity.str());
   }
+  return out;
+}
+
+std::vector<const CorporateAction*> live_actions(const std::vector<CorporateAction>& all) {
+  std::unordered_set<std::int64_t> voided;
+  for (const auto& a : all)
+    if (a.kind == ActionKind::void_entry && a.voids_id) voided.insert(*a.voids_id);
+  std::vector<const CorporateAction*> out;
+  for (const auto& a : all)
+    if (a.kind != ActionKind::void_entry && !voided.count(a.id)) out.push_back(&a);
+  std::stable_sort(out.begin(), out.end(), [](const auto* x, const auto* y) {
+    return x->date != y->date ? x->date < y->date : x->id < y->id;
+  });
   return out;
 }
 

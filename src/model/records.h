@@ -119,6 +119,9 @@ struct CorporateAction {
   std::optional<std::string> note;
 };
 
+// The actions in force (not voided, not voids), ordered by date then id.
+std::vector<const CorporateAction*> live_actions(const std::vector<CorporateAction>& all);
+
 // An account's tax status from `from` on, until its next change.
 struct TaxStatusChange {
   std::int64_t account_id = 0;

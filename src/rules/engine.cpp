@@ -76,7 +76,11 @@ ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candida
     line.held = c.held;
     const auto& f = line.figure;
     bool out_of_screen = true;
-    if (!f) {
+    if (c.ended) {
+      if (words)
+        line.excluded_reason =
+            fmt::format("off the market since {} (merger or delisting)", c.ended->str());
+    } else if (!f) {
       if (words)
         line.excluded_reason = fmt::format("no '{}' figure known on {}", s.metric, as_of.str());
     } else {

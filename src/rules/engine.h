@@ -51,6 +51,8 @@ struct Candidate {
   std::optional<Figure> figure;
   bool has_price = false;  // a close on or before the as-of day
   bool held = false;       // some account of the pool holds it
+  // Off the market (a merger or delisting) since this day.
+  std::optional<Date> ended;
 };
 
 struct ScreenLine {

@@ -129,6 +129,7 @@ std::vector<Candidate> Inputs::candidates(const market::View& view, Date day,
       c.security_id = id;
       c.symbol = symbols_[i];
       c.held = held.count(id) > 0;
+      c.ended = series->ended(id, day);
       if (const auto* f = figures.at(col)) {
         c.figure = Figure{f->value, f->period, f->known_on};
         c.has_price = series->has(row, col);
@@ -143,6 +144,7 @@ std::vector<Candidate> Inputs::candidates(const market::View& view, Date day,
     c.security_id = id;
     c.symbol = symbols_[i];
     c.held = held.count(id) > 0;
+    c.ended = view.ended(id, day);
     if (auto f = view.figure(id, rule_.screen.metric, day)) {
       c.figure = Figure{std::move(f->value), f->period, f->known_on};
       c.has_price = view.has_close(id, day);

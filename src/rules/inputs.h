@@ -18,6 +18,9 @@
 //    several currencies with none of these is refused at scope. Then
 //    keep_currency() applies; its note is in notes(). Checked after the
 //    universe and before the metric.
+//  - candidates(view, day, held): a universe name that a merger or delisting
+//    took off the market on or before `day` (View::ended) is marked so, and
+//    the screen leaves it out from that day.
 //  - select(view, day, held): the engine's screen and targets on what the
 //    view knew on `day` (rules/engine.h); held names outside the targets are
 //    added as exits ("not in the rule's universe"). A day on which the rule

@@ -12,9 +12,12 @@
 #include "ledger_fixture.h"
 #include "market/day_view.h"
 #include "market/series.h"
+#include "store/action_store.h"
 
 using namespace keel;
 using namespace keel::testing;
+using keel::ActionKind;
+using keel::CorporateAction;
 using market::Close;
 using market::Figure;
 
@@ -59,6 +62,34 @@ struct MarketLedger : LedgerFixture {
     distribution("DUNMORE", "2024-03-16", "2024-03-25", "0.5");  // a Saturday
     distribution("AVEL", "2024-03-16", "2024-03-20", "0.1");
     distribution("DUNMORE", "2024-04-06", "2024-04-10", "0.5");
+    act(ActionKind::spinoff, "AVEL", "2024-03-09", "BRISK", "0.5");  // a Saturday
+    act(ActionKind::delisting, "CALDO", "2024-03-15", std::nullopt, std::nullopt, "0");
+    const auto voided = act(ActionKind::merger, "DUNMORE", "2024-05-06", "AVEL", "0.5");
+    CorporateAction v;
+    v.security_id = id("DUNMORE");
+    v.date = day("2024-05-06");
+    v.kind = ActionKind::void_entry;
+    v.voids_id = voided;
+    write(v);
+  }
+
+  std::int64_t act(ActionKind kind, const std::string& symbol, const char* date,
+                   std::optional<std::string> target, std::optional<const char*> ratio,
+                   std::optional<const char*> cash = std::nullopt) {
+    CorporateAction a;
+    a.security_id = id(symbol);
+    a.date = day(date);
+    a.kind = kind;
+    if (target) a.target_id = id(*target);
+    if (ratio) a.ratio = dec(*ratio);
+    if (cash) a.cash = dec(*cash);
+    return write(a);
+  }
+  std::int64_t write(const CorporateAction& a) {
+    store::WriteTransaction tx(db);
+    const auto action_id = store::insert_action(db, a);
+    tx.commit();
+    return action_id;
   }
 
   void stock(const std::string& symbol, const std::string& sector) {
@@ -192,6 +223,36 @@ TEST_CASE_TEMPLATE("market view: distributions on weekends, by date and then sec
   CHECK(view->distributions(dunmore, day("2024-03-01"), day("2024-06-30")).size() == 2);
 }
 
+TEST_CASE_TEMPLATE("market view: corporate actions in a span, a Saturday's included", V, OneDay,
+                   Preloaded) {
+  MarketLedger m;
+  const auto view = V::make(m.db);
+  const auto all = view->actions(std::nullopt, day("2024-01-01"), day("2024-06-30"));
+  REQUIRE(all.size() == 2);  // the voided merger and its void are left out
+  CHECK(all[0].kind == ActionKind::spinoff);
+  CHECK(all[0].security_id == m.id("AVEL"));
+  CHECK(all[0].date == day("2024-03-09"));
+  CHECK(all[0].target_id == m.id("BRISK"));
+  CHECK(all[0].ratio == dec("0.5"));
+  CHECK(all[1].kind == ActionKind::delisting);
+  CHECK(all[1].cash == dec("0"));
+  CHECK(view->actions(m.id("AVEL"), day("2024-03-09"), day("2024-03-09")).size() == 1);
+  CHECK(view->actions(m.id("AVEL"), day("2024-03-10"), day("2024-06-30")).empty());
+  CHECK(view->actions(m.id("DUNMORE"), day("2024-01-01"), day("2024-06-30")).empty());
+}
+
+TEST_CASE_TEMPLATE("market view: a delisting ends a name from its day on, a spin-off does not", V,
+                   OneDay, Preloaded) {
+  MarketLedger m;
+  const auto view = V::make(m.db);
+  CHECK_FALSE(view->ended(m.id("CALDO"), day("2024-03-14")).has_value());
+  CHECK(view->ended(m.id("CALDO"), day("2024-03-15")) == day("2024-03-15"));
+  CHECK(view->ended(m.id("CALDO"), day("2024-06-30")) == day("2024-03-15"));
+  CHECK_FALSE(view->ended(m.id("AVEL"), day("2024-06-30")).has_value());
+  // A voided merger ends nothing.
+  CHECK_FALSE(view->ended(m.id("DUNMORE"), day("2024-06-30")).has_value());
+}
+
 TEST_CASE_TEMPLATE("market view: the securities, their stocks' sectors and the metric names", V,
                    OneDay, Preloaded) {
   MarketLedger m;
@@ -220,6 +281,11 @@ std::string answers_until(const market::View& view, Date first, Date last) {
     out += "dist " + e.ex_date.str() + " " + std::to_string(e.security_id) + "\n";
   for (const auto& e : view.splits(std::nullopt, first, last))
     out += "split " + e.date.str() + " " + std::to_string(e.security_id) + "\n";
+  for (const auto& e : view.actions(std::nullopt, first, last))
+    out += "action " + e.date.str() + " " + std::to_string(e.security_id) + "\n";
+  for (const auto& s : view.securities())
+    if (const auto end = view.ended(s.id, last))
+      out += "ended " + s.symbol + " " + end->str() + "\n";
   return out;
 }
 
@@ -238,6 +304,8 @@ TEST_CASE_TEMPLATE("look-ahead: changing the future leaves every answer about th
                    {"DUNMORE", "2024-03-15", "2024-03-16", "4"}});
   m.split_of("AVEL", "2024-03-16", "10");
   m.distribution("BRISK", "2024-03-18", "2024-03-19", "3");
+  m.act(ActionKind::merger, "AVEL", "2024-03-16", "BRISK", "2", "1");
+  m.act(ActionKind::delisting, "BRISK", "2024-04-01", std::nullopt, std::nullopt, "3");
   const std::string after = answers_until(*V::make(m.db), first, last);
   CHECK(after == before);
   // The change is there, one day later.
