@@ -121,6 +121,9 @@ CompareResult compare(const History& h, const std::vector<rules::Rule>& rules,
     out.down_markets = down_markets(runs, first.benchmark_curve, *out.benchmark, out.hold_months);
   }
   out.cautions = backtest_cautions();
+  out.cautions.insert(out.cautions.begin(),
+                      "Comparing rules is itself a search: the more rules are tried on the same "
+                      "past, the likelier the best of them looks good by luck alone.");
   return out;
 }
 

@@ -13,6 +13,7 @@
 //    perf::compare_returns() of those returns.
 //  - With a benchmark: the figures by the state of the market for every rule
 //    and the baseline (backtest.h: down_markets), over H-month windows.
+//  - The cautions are the back-test's, after one about trying many rules.
 //  - Throws InputError naming RULES for fewer than two rules or for rules in
 //    different currencies, and naming --hold-months for H outside 1..600 or
 //    longer than the complete months of the period; else as backtest::run.
