@@ -521,9 +521,10 @@ DownMarkets down_markets(const std::vector<std::pair<std::string, const Strategy
   out.falls = perf::drawdown_episodes(index, kFalls);
   const auto bench_months = benchmark_monthly_returns(*runs.front().second);
   const auto bench_windows = perf::window_returns(bench_months, window_months);
-  for (const auto& [label, run] : runs) {
+  for (const auto& entry : runs) {
+    const StrategyRun* run = entry.second;  // named: a lambda below captures it
     RunInMarkets r;
-    r.label = label;
+    r.label = entry.first;
     const auto months = monthly_returns(*run);
     r.months = perf::split_by_state(months, bench_months);
     r.windows = perf::split_by_state(perf::window_returns(months, window_months), bench_windows);
