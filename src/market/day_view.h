@@ -3,7 +3,8 @@
 // a few names on one day; it answers for any security and any day.
 //
 // Contract: as market/view.h. The view borrows the Database, which must
-// outlive it; the securities are read when it is made, the rest when asked.
+// outlive it; the securities are read when it is made, the exchange rates at
+// the first question about one, the rest when asked.
 #pragma once
 
 #include <optional>
@@ -35,12 +36,17 @@ class DayView final : public View {
   // The first day after `day` with a close of the security; unset when none.
   std::optional<Date> first_close_after(std::int64_t security_id, Date day) const;
 
+ protected:
+  const FxRates& rates_for(const std::string& base, const std::string& quote,
+                           Date day) const override;
+
  private:
   const std::string& text(Date day) const;  // the last day's ISO text, kept
   store::Database& db_;
   mutable store::MarketRows rows_;
   std::vector<Security> securities_;
   mutable std::optional<std::vector<std::string>> metric_names_;
+  mutable std::optional<FxRates> rates_;
   mutable std::optional<Date> day_;
   mutable std::string day_text_;
 };

@@ -10,6 +10,7 @@
 #include <set>
 #include <stdexcept>
 
+#include "store/fx_store.h"
 #include "store/ledger_store.h"
 #include "store/market_rows.h"
 
@@ -284,7 +285,23 @@ Series Series::load(store::Database& db, const Request& req) {
         s.splits_.push_back(
             SplitEvent{st.integer(0), Date::parse(st.text(1)), Decimal::parse(st.text(2))});
   }
+  s.currencies_ = req.currencies;
+  std::sort(s.currencies_.begin(), s.currencies_.end());
+  s.currencies_.erase(std::unique(s.currencies_.begin(), s.currencies_.end()), s.currencies_.end());
+  for (const auto& c : s.currencies_)
+    for (const auto& r : store::list_fx_rates(db, c, req.to))
+      s.rates_.add(r.base, r.quote, r.date, r.rate);
   return s;
+}
+
+const FxRates& Series::rates_for(const std::string& base, const std::string& quote,
+                                 Date day) const {
+  row(day);  // inside the span
+  for (const auto* c : {&base, &quote})
+    if (!std::binary_search(currencies_.begin(), currencies_.end(), *c))
+      throw std::out_of_range(
+          fmt::format("market::Series: exchange rates of {} are not loaded", *c));
+  return rates_;
 }
 
 int Series::column(std::int64_t security_id) const {

@@ -7,11 +7,14 @@
 //    ledger when unset): their closes dated in [from, to] and the latest
 //    close before `from`, with one ordered range read per security; the
 //    figures of the metrics asked for that are known on or before `to`; the
-//    distributions and splits dated in [from, to]. Of the other securities it
-//    reads only which days have a close.
+//    distributions and splits dated in [from, to]; the exchange rates dated on
+//    or before `to` of every pair with a currency asked for on either side
+//    (enough for direct, inverted and crossed rates between them). Of the
+//    other securities it reads only which days have a close.
 //  - As a View (market/view.h) it answers for the loaded securities and days
 //    in [from, to]; anything else throws std::out_of_range. A metric not
-//    loaded throws std::out_of_range too.
+//    loaded, or a rate of a currency not asked for, throws std::out_of_range
+//    too.
 //  - Closes sit in a day x security grid, one row per calendar day of the
 //    span, forward-filled: "the close on or before a day" is one array read.
 //    value() is the nearest double to the stored decimal (NaN when there is
@@ -44,6 +47,7 @@ class Series final : public View {
     std::optional<std::vector<std::int64_t>> securities;  // unset: every security
     Date from, to;                                        // the days answered, from <= to
     std::vector<std::string> metrics;                     // figures to load
+    std::vector<std::string> currencies;                  // exchange rates to load
   };
   // Throws std::invalid_argument for from > to or an id the ledger does not hold.
   static Series load(store::Database& db, const Request& request);
@@ -117,6 +121,10 @@ class Series final : public View {
   const std::vector<Distribution>& distribution_events() const { return distributions_; }
   const std::vector<SplitEvent>& split_events() const { return splits_; }
 
+ protected:
+  const FxRates& rates_for(const std::string& base, const std::string& quote,
+                           Date day) const override;
+
  private:
   Series() = default;
   // How a column's doubles give back the stored decimals: by scale (each
@@ -149,6 +157,8 @@ class Series final : public View {
   mutable std::vector<FigureCursor> cursors_;        // per metric, for figure()
   std::vector<Distribution> distributions_;
   std::vector<SplitEvent> splits_;
+  std::vector<std::string> currencies_;  // sorted
+  FxRates rates_;
 };
 
 }  // namespace keel::market
