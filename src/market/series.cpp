@@ -289,8 +289,12 @@ Series Series::load(store::Database& db, const Request& req) {
   std::sort(s.currencies_.begin(), s.currencies_.end());
   s.currencies_.erase(std::unique(s.currencies_.begin(), s.currencies_.end()), s.currencies_.end());
   for (const auto& c : s.currencies_)
-    for (const auto& r : store::list_fx_rates(db, c, req.to))
+    for (const auto& r : store::list_fx_rates(db, c, req.to)) {
       s.rates_.add(r.base, r.quote, r.date, r.rate);
+      if (r.date >= req.from) s.rate_days_.push_back(r.date);
+    }
+  std::sort(s.rate_days_.begin(), s.rate_days_.end());
+  s.rate_days_.erase(std::unique(s.rate_days_.begin(), s.rate_days_.end()), s.rate_days_.end());
   return s;
 }
 

@@ -22,7 +22,8 @@
 //    exactly.
 //  - trading_days(): every day in [from, to] on which any security of the
 //    ledger (loaded or not) has a close, ascending; next_trading_day(): the
-//    first such day after `to`, if any.
+//    first such day after `to`, if any. rate_days(): every day in [from, to]
+//    with a loaded exchange rate, ascending.
 //  - FigureCursor: the figures of one loaded metric as known on a day (the
 //    rule of market/view.h), advanced by a pointer over the rows in known_on
 //    order; a day earlier than the last one asked starts it over.
@@ -71,6 +72,7 @@ class Series final : public View {
   Date to() const { return to_; }
   const std::vector<Date>& trading_days() const { return trading_days_; }
   std::optional<Date> next_trading_day() const { return next_trading_day_; }
+  const std::vector<Date>& rate_days() const { return rate_days_; }
 
   // Columns: one per loaded security, ascending by id.
   int columns() const { return static_cast<int>(ids_.size()); }
@@ -159,6 +161,7 @@ class Series final : public View {
   std::vector<SplitEvent> splits_;
   std::vector<std::string> currencies_;  // sorted
   FxRates rates_;
+  std::vector<Date> rate_days_;
 };
 
 }  // namespace keel::market
