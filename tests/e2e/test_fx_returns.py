@@ -146,3 +146,19 @@ equal(months[-1]["closing_value"], rep["closing_value"], "the last month closes 
 print(f"fx returns: {checked} daily values in EUR match pandas to the cent; TWR "
       f"{float(rep['twr']):.12f}, pandas {twr:.12f} (|difference| {abs(float(rep['twr']) - twr):.1e});"
       f" closing value {closing} EUR")
+
+# A dollar stock settled in euros at the broker's rate, with no stored rate: returns cannot
+# value it in euros and say which rate is missing, never assuming 1.
+bare = Ledger(currency="EUR")
+bare.ok("account", "add", "Depot")
+bare.ok("security", "add", "QNT", "--name", "Quintara Optics", "--kind", "stock", "--currency", "USD")
+bare.ok("record", "deposit", "--date", "2025-03-03", "--account", "Depot", "--amount", "1000")
+bare.ok("record", "buy", "--date", "2025-03-04", "--account", "Depot", "--symbol", "QNT",
+        "--quantity", "2", "--price", "100", "--rate", "1.05")
+before = open(bare.path, "rb").read()
+equal(bare.fails("returns", "--from", "2025-03-03", "--to", "2025-03-31"),
+      "keel: error: no exchange rate for EUR/USD on or before 2025-03-04 (nor for USD/EUR, nor "
+      "through a third currency); import one with 'keel import fx FILE.csv'",
+      "returns without a rate for a dollar stock")
+equal(open(bare.path, "rb").read(), before, "the refused report changed the ledger")
+print("fx returns: a missing rate stops returns, naming the pair and the day")
