@@ -76,8 +76,8 @@ struct ActionRows {
     j.member("into", a.target_id ? std::optional<std::string>(symbol(*a.target_id)) : std::nullopt);
     j.member("ratio", a.ratio).member("cash", a.cash).member("cost_percent", a.cost_percent);
     j.member("in_lieu", a.in_lieu).member("voids", a.voids_id);
-    j.member("voided_by", by != voided_by.end() ? std::optional<long long>(by->second)
-                                                : std::nullopt);
+    j.member("voided_by",
+             by != voided_by.end() ? std::optional<long long>(by->second) : std::nullopt);
     j.member("note", a.note).end_object();
   }
 

@@ -160,8 +160,7 @@ void add_demo(CLI::App& app, Context& ctx) {
       for (const auto& d : io::import_scenario(db, scenario))
         out(fmt::format("imported {:<13} {:>7} rows from {}\n", d.what, d.rows,
                         printable(fs::path(d.file).filename().string())));
-      if (scenario.built_in())
-      {
+      if (scenario.built_in()) {
         OutputFile rule(scenario.rule_file(dir), {"--dir"});
         rule.write(io::built_in_rule());
         rule.commit();

@@ -8,10 +8,12 @@
 #include "cli/options.h"
 #include "core/error.h"
 #include "core/files.h"
+#include "core/json.h"
 #include "core/text.h"
 #include "io/ofx.h"
 #include "ledger/period.h"
 #include "reconcile/reconcile.h"
+#include "report/json_schema.h"
 #include "report/table.h"
 
 namespace keel::cli {
@@ -19,7 +21,29 @@ namespace {
 
 struct ReconcileOptions {
   std::string file, date, mapping, account;
+  bool json = false;
 };
+
+// The comparison as JSON (docs/schema/reconcile.json); the exit status is the
+// same as the text form's: non-zero when anything differs.
+std::string render_json(const reconcile::Result& r, const std::string& file) {
+  std::string text;
+  JsonWriter j(text);
+  report::begin_document(j, "reconcile", 1).member("file", input_name(file));
+  j.member("day", r.day.str()).member("accounts", r.accounts);
+  j.member("items", static_cast<unsigned long long>(r.items));
+  j.member("matched", !r.accounts.empty() && r.differences.empty());
+  j.member("recorded", r.recorded ? std::optional<long long>(*r.recorded) : std::nullopt);
+  j.key("differences").begin_array();
+  for (const auto& d : r.differences) {
+    j.begin_object().member("account", d.account).member("item", d.item);
+    j.member("ledger", d.ledger).member("statement", d.statement);
+    j.member("difference", d.statement - d.ledger).member("explanations", d.explanations);
+    j.end_object();
+  }
+  j.end_array().end_object();
+  return text + "\n";
+}
 
 std::string render(const reconcile::Result& r, const std::string& file) {
   std::string names;
@@ -55,6 +79,7 @@ void add_reconcile(CLI::App& app, Context& ctx) {
   cmd->add_option("--map", o->mapping,
                   "TOML file describing a CSV statement's layout ('-': standard input)");
   cmd->add_option("--account", o->account, "OFX: the keel account the statement is for");
+  add_json_flag(*cmd, o->json);
   cmd->callback([&ctx, o] {
     if (is_standard_input(o->file) && is_standard_input(o->mapping))
       throw InputError(
@@ -81,7 +106,7 @@ void add_reconcile(CLI::App& app, Context& ctx) {
           [&] { return reconcile::read_statement_csv(db, o->file, day, mapping); });
     }
     const auto r = reconcile::reconcile(db, st);
-    out(render(r, o->file));
+    out(o->json ? render_json(r, o->file) : render(r, o->file));
     std::fflush(stdout);  // the report before the error line, on a terminal and in a pipe
     if (r.accounts.empty())
       throw InputError(fmt::format("{}: names no account", printable(o->file)));
@@ -89,6 +114,7 @@ void add_reconcile(CLI::App& app, Context& ctx) {
       throw InputError(fmt::format(
           "{} difference{} between the ledger and {}; nothing was recorded", r.differences.size(),
           r.differences.size() == 1 ? "" : "s", printable(o->file)));
+    if (o->json) return;
     out(
         fmt::format("matches: recorded as reconciliation {}; postings and voids dated on or "
                     "before {} are now refused in these accounts\n",

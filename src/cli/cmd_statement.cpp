@@ -126,7 +126,7 @@ void add_statement(CLI::App& app, Context& ctx) {
     if (o->json) {
       out(report::statement_json(s));
     } else if (o->html.empty() && o->pdf.empty() && o->xlsx.empty() && o->csv.empty()) {
-      out(report::statement_text(s, ctx.colour()));
+      out(report::statement_text(s, ctx.style()));
     }
     // With a file on standard output, these notes go to standard error.
     auto wrote = [&](const char* what, const std::string& path) {

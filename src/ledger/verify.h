@@ -23,9 +23,9 @@
 #include <string>
 #include <vector>
 
+#include "core/date.h"
 #include "ledger/book.h"
 #include "ledger/holdings.h"
-#include "core/date.h"
 #include "store/database.h"
 
 namespace keel::ledger {

@@ -76,7 +76,7 @@ struct Section {
 
 std::vector<Section> statement_sections(const Statement& s);
 
-std::string statement_text(const Statement& s, bool colour);
+std::string statement_text(const Statement& s, const Style& style);
 std::string statement_html(const Statement& s, Paper paper);
 std::string statement_json(const Statement& s);  // ends with a newline
 

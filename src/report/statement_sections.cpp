@@ -137,14 +137,12 @@ Section holdings_section(const Statement& s) {
   Section sec;
   sec.key = "holdings";
   sec.title = fmt::format("Holdings at the close of {}", s.to.str());
-  sec.columns = {{"account"},
-                 {"symbol"},
-                 {"quantity", Align::right},
-                 {"cost basis", Align::right},
-                 {"price", Align::right},
-                 {"value", Align::right},
-                 {"unrealized", Align::right},
-                 {"weight", Align::right}};
+  // At a narrow terminal the price makes way first, then the weight, then
+  // the cost basis; the account name shortens before any of them.
+  sec.columns = {{"account", Align::left, true},    {"symbol"},
+                 {"quantity", Align::right},        {"cost basis", Align::right, false, 1},
+                 {"price", Align::right, false, 3}, {"value", Align::right},
+                 {"unrealized", Align::right},      {"weight", Align::right, false, 2}};
   bool trade_price = false;
   Decimal cost, value, unrealized;
   for (const auto& h : s.holdings) {
@@ -224,7 +222,7 @@ Section not_taxable_section(const Statement& s) {
   Section sec;
   sec.key = "not_taxable";
   sec.title = "Not a taxable event here";
-  sec.columns = {{"account"},
+  sec.columns = {{"account", Align::left, true},
                  {"status"},
                  {"date"},
                  {"kind"},
@@ -280,9 +278,9 @@ Section income_section(const Statement& s) {
   Section sec;
   sec.key = "income";
   sec.title = "Income and withholding";
-  sec.columns = {{"account"},
+  sec.columns = {{"account", Align::left, true},
                  {"date"},
-                 {"kind"},
+                 {"kind", Align::left, false, 1},
                  {"symbol"},
                  {"gross", Align::right},
                  {"withheld", Align::right},

@@ -6,29 +6,22 @@
 
 #include "core/text.h"
 #include "report/statement_forms.h"
+#include "report/wrap.h"
 
 namespace keel::report {
 namespace {
 
+// Prose is wrapped to 100 columns, or to the terminal when it is narrower.
 constexpr std::size_t kWidth = 100;
 
-std::string wrap(const std::string& text, std::size_t width, const std::string& indent = "") {
-  std::string out, line;
-  std::size_t start = 0;
-  while (start < text.size()) {
-    std::size_t end = text.find(' ', start);
-    if (end == std::string::npos) end = text.size();
-    const std::string word = text.substr(start, end - start);
-    if (!line.empty() && line != indent && display_width(line) + 1 + display_width(word) > width) {
-      out += line + "\n";
-      line = indent;
-    }
-    if (!line.empty() && line != indent) line += ' ';
-    line += word;
-    start = end + 1;
-  }
-  if (!line.empty()) out += line + "\n";
-  return out;
+// A paragraph: its lines fit `width`, and it ends its last line.
+std::string paragraph(const std::string& text, std::size_t width) {
+  return wrap_to_width(text, width) + "\n";
+}
+
+// A bullet ("- text") whose continuation lines are indented under its text.
+std::string bullet(const std::string& text, std::size_t width) {
+  return paragraph("  " + text, width).replace(0, 2, "- ");
 }
 
 std::string heading(const std::string& title, bool colour) {
@@ -39,21 +32,23 @@ std::string heading(const std::string& title, bool colour) {
 
 }  // namespace
 
-std::string statement_text(const Statement& s, bool colour) {
+std::string statement_text(const Statement& s, const Style& style) {
+  const bool colour = style.colour;
+  const std::size_t width = style.width == 0 ? kWidth : std::min(kWidth, style.width);
   std::string out = heading(fmt::format("keel statement {}: {}", s.year, s.scope), colour);
-  out += wrap(
+  out += paragraph(
       fmt::format("Period {} to {} ({}), amounts in {}.{}{}", s.from.str(), s.to.str(),
                   s.partial_year ? "the year so far" : "the whole year",
                   s.currency.empty() ? "the ledger's currency" : s.currency,
                   s.started_in_year ? fmt::format(" The ledger starts on {}.", s.inception.str())
                                     : std::string(),
                   s.benchmark ? fmt::format(" Benchmark: {}.", *s.benchmark) : std::string()),
-      kWidth);
+      width);
   for (const auto& sec : statement_sections(s)) {
     out += '\n';
     out += heading(sec.title, colour);
     if (sec.key == "cautions") {
-      for (const auto& row : sec.rows) out += wrap("- " + display(row.front()), kWidth, "  ");
+      for (const auto& row : sec.rows) out += bullet(display(row.front()), width);
       continue;
     }
     Table table(sec.columns);
@@ -62,8 +57,8 @@ std::string statement_text(const Statement& s, bool colour) {
         table.add_rule();
       table.add_row(displayed(sec.rows[i]));
     }
-    out += table.render({colour});
-    for (const auto& note : sec.notes) out += wrap(printable(note), kWidth);
+    out += table.render(style);
+    for (const auto& note : sec.notes) out += paragraph(printable(note), width);
   }
   return out;
 }

@@ -6,8 +6,8 @@
 #include <xlsxwriter.h>
 
 #include <algorithm>
-#include <cstdio>
 #include <cerrno>
+#include <cstdio>
 #include <cstdlib>
 
 #include "core/error.h"

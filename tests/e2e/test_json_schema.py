@@ -39,6 +39,10 @@ led.ok("record", "transfer_out", "--date", "2024-06-03", "--account", "Tamsin Br
 with open(os.path.join(work, "prices.csv"), "w") as f:
     f.write("date,symbol,close\n2024-06-28,ORLQ,44.2\n2024-06-28,BRNV,6.9\n")
 led.ok("import", "prices", os.path.join(work, "prices.csv"), "--quiet")
+# A broker's statement that differs from the ledger by one unit: reconcile prints its JSON and
+# exits non-zero, as its text form does.
+with open(os.path.join(work, "statement.csv"), "w") as f:
+    f.write("account,symbol,quantity,cost_basis,currency,cash\nTamsin Brokerage,ORLQ,59,,,\n")
 # A corporate action and a renamed security, for their lists.
 led.ok("record", "return-of-capital", "--date", "2024-07-01", "--symbol", "ORLQ", "--cash", "0.5")
 led.ok("security", "change", "BRNV", "--name", "Brenvaal Shipping Lines", "--date", "2024-07-02")
@@ -71,6 +75,7 @@ REPORTS = {
     "signal": ["signal", "--rule", RULE, "--from", "2024-01-01", "--to", "2025-12-31"],
     "statement": ["statement", "--year", "2025", "--benchmark", "ZXTR"],
     "actions": ["action", "list"],
+    "reconcile": ["reconcile", os.path.join(work, "statement.csv"), "--date", "2024-06-30"],
     "changes": ["changes"],
 }
 # More runs of the same reports, each validated too: other options, other members.
@@ -90,7 +95,7 @@ COMMANDS = {"holdings": "holdings", "lots": "lots", "gains": "gains", "history":
             "verify": "verify", "returns": "returns", "propose": "propose",
             "proposals-list": "proposals list", "proposal": "proposals show",
             "backtest": "backtest", "signal": "signal", "statement": "statement",
-            "actions": "action list", "changes": "changes"}
+            "actions": "action list", "changes": "changes", "reconcile": "reconcile"}
 
 runs = 0
 for name, first in REPORTS.items():
@@ -98,7 +103,13 @@ for name, first in REPORTS.items():
         schema = json.load(f)
     jsonschema.Draft202012Validator.check_schema(schema)
     for args in [first, *MORE.get(name, [])]:
-        document = (demo if name in ON_DEMO else led).json(*args)
+        if name == "reconcile":
+            code, out, err = led.run(*args, "--json")
+            equal((code, err.splitlines()[-1:]), (1, ["keel: error: 1 difference between the "
+                  f"ledger and {args[1]}; nothing was recorded"]), "reconcile --json exit")
+            document = json.loads(out)
+        else:
+            document = (demo if name in ON_DEMO else led).json(*args)
         equal(document.get("schema"), {"name": f"keel.{name}", "version": 1},
               f"keel {' '.join(args)} --json: its schema tag")
         errors = sorted(jsonschema.Draft202012Validator(schema).iter_errors(document),

@@ -219,6 +219,7 @@ REPORTS = [
     ["backtest", "--rule", rule, "--from", "2024-01-01", "--to", "2025-12-31", "--benchmark",
      "ZXTR"],
     ["signal", "--rule", rule, "--from", "2024-01-01", "--to", "2025-12-31"],
+    ["statement", "--year", "2025", "--benchmark", "ZXTR"],
 ]
 NUMBER = re.compile(r"-?[0-9][0-9.,%]*[0-9%]")
 for args in REPORTS:

@@ -396,7 +396,7 @@ TEST_CASE("statement forms: the summary table shows the check and every piece") 
 
 TEST_CASE("statement forms: terminal text stays within 100 columns") {
   StatementLedger k;
-  std::istringstream text(report::statement_text(k.statement(), false));
+  std::istringstream text(report::statement_text(k.statement(), {}));
   std::string line;
   std::size_t widest = 0;
   while (std::getline(text, line)) widest = std::max(widest, report::display_width(line));
