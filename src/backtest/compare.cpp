@@ -19,8 +19,20 @@ int complete_months(Date from, Date to) {
   return n;
 }
 
-void check_rules(const std::vector<rules::Rule>& rules, const Request& req) {
-  if (rules.size() < 2)
+std::vector<std::string> labels_of(const std::vector<rules::Rule>& rules) {
+  std::vector<std::string> out;
+  for (const auto& r : rules) {
+    const bool repeated = std::count_if(rules.begin(), rules.end(),
+                                        [&](const rules::Rule& o) { return o.name == r.name; }) > 1;
+    out.push_back(repeated ? fmt::format("{} ({})", r.name, r.source) : r.name);
+  }
+  return out;
+}
+
+}  // namespace
+
+void check_compare_request(std::size_t count, const Request& req) {
+  if (count < 2)
     throw InputError(
         "RULES: a comparison needs two rule files or more (one rule alone: keel backtest)");
   if (req.rolling_months < 1 || req.rolling_months > 600)
@@ -35,21 +47,9 @@ void check_rules(const std::vector<rules::Rule>& rules, const Request& req) {
   }
 }
 
-std::vector<std::string> labels_of(const std::vector<rules::Rule>& rules) {
-  std::vector<std::string> out;
-  for (const auto& r : rules) {
-    const bool repeated = std::count_if(rules.begin(), rules.end(),
-                                        [&](const rules::Rule& o) { return o.name == r.name; }) > 1;
-    out.push_back(repeated ? fmt::format("{} ({})", r.name, r.source) : r.name);
-  }
-  return out;
-}
-
-}  // namespace
-
 CompareResult compare(store::Database& db, const std::vector<rules::Rule>& rules,
                       const Request& request) {
-  check_rules(rules, request);
+  check_compare_request(rules.size(), request);
   std::vector<std::string> extra;
   if (request.benchmark) extra.push_back(*request.benchmark);
   const History h = load_history(db, rules, request.from.plus_days(-1), request.to, extra);
@@ -58,7 +58,7 @@ CompareResult compare(store::Database& db, const std::vector<rules::Rule>& rules
 
 CompareResult compare(const History& h, const std::vector<rules::Rule>& rules,
                       const Request& request) {
-  check_rules(rules, request);
+  check_compare_request(rules.size(), request);
   CompareResult out;
   out.from = request.from;
   out.to = request.to;

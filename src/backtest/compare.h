@@ -56,6 +56,10 @@ struct CompareResult {
   std::vector<std::string> cautions;
 };
 
+// The refusals that need no data: fewer than two rules, a holding period
+// outside 1..600 or longer than the period's complete months.
+void check_compare_request(std::size_t rules, const Request& request);
+
 CompareResult compare(store::Database& db, const std::vector<rules::Rule>& rules,
                       const Request& request);
 CompareResult compare(const History& history, const std::vector<rules::Rule>& rules,

@@ -132,9 +132,6 @@ struct CompareOptions : RunOptions {
 
 // Two rule files or more, none given twice (the same file under two names too).
 std::vector<rules::Rule> compare_rules(const std::vector<std::string>& files) {
-  if (files.size() < 2)
-    throw InputError(
-        "RULES: a comparison needs two rule files or more (one rule alone: keel backtest)");
   std::vector<std::filesystem::path> seen;
   for (const auto& f : files) {
     std::error_code ec;
@@ -186,6 +183,7 @@ void add_compare(CLI::App& app, Context& ctx) {
     auto req = run_request(*o, progress);
     req.keep_trades = false;  // a comparison lists no trades
     req.rolling_months = o->hold_months;
+    backtest::check_compare_request(o->rules.size(), req);
     const auto rules = compare_rules(o->rules);
     std::optional<OutputFile> curve;
     if (!o->curve.empty()) curve.emplace(o->curve, OutputOptions{"--curve"});

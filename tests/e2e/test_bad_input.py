@@ -523,10 +523,10 @@ row("compare: one rule file",
     "backtest)", COMPARE_RULES)
 row("compare: the same rule file twice",
     ["compare", "{d}/a.toml", "{d}/b.toml", "{d}/a.toml", "--from", "2024-01-01", "--to",
-     "2024-12-31"], INPUT, "keel: error: RULES: '{d}/a.toml' is given twice", COMPARE_RULES)
+     "2024-12-31", "--hold-months", "12"], INPUT, "keel: error: RULES: '{d}/a.toml' is given twice", COMPARE_RULES)
 row("compare: the same rule file under another name",
-    ["compare", "{d}/a.toml", "{d}/./a.toml", "--from", "2024-01-01", "--to", "2024-12-31"],
-    INPUT, "keel: error: RULES: '{d}/./a.toml' is the same file as '{d}/a.toml'", COMPARE_RULES)
+    ["compare", "{d}/a.toml", "{d}/./a.toml", "--from", "2024-01-01", "--to", "2024-12-31",
+     "--hold-months", "12"], INPUT, "keel: error: RULES: '{d}/./a.toml' is the same file as '{d}/a.toml'", COMPARE_RULES)
 row("compare: a holding period longer than the data",
     ["compare", "{d}/a.toml", "{d}/b.toml", "--from", "2024-01-01", "--to", "2024-12-31",
      "--hold-months", "24"], INPUT,

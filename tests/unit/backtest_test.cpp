@@ -353,3 +353,14 @@ TEST_CASE("compare: the cautions warn about trying many rules, then those of a b
   CHECK(c.cautions[0].rfind("Comparing rules is itself a search", 0) == 0);
   CHECK(std::equal(c.cautions.begin() + 1, c.cautions.end(), bt::backtest_cautions().begin()));
 }
+
+TEST_CASE("compare: rules of the same name are told apart by their files") {
+  Market m;
+  auto rules = two_rules();
+  rules[1].name = rules[0].name;
+  auto req = Market::request();
+  req.rolling_months = 1;
+  const auto c = bt::compare(m.f.db, rules, req);
+  CHECK(c.labels ==
+        std::vector<std::string>{"Low P/E test (test.toml)", "Low P/E test (three.toml)"});
+}
