@@ -1,9 +1,10 @@
 #include "backtest/history.h"
 
-#include <set>
+#include <algorithm>
 
 #include "market/day_view.h"
 #include "rules/inputs.h"
+#include "rules/track_record.h"
 #include "store/ledger_store.h"
 
 namespace keel::backtest {
@@ -19,40 +20,21 @@ History load_history(store::Database& db, const rules::Rule& rule, Date from, Da
                      const std::vector<std::string>& extra) {
   const market::DayView catalog(db);
   const rules::Inputs inputs(rule, catalog, store::ledger_currency(db));
-  market::Series::Request request;
-  request.securities = inputs.securities();
+  std::vector<std::int64_t> extra_ids;
   for (const auto& symbol : extra)
-    if (const Security* s = catalog.security(symbol)) request.securities->push_back(s->id);
-  // What a merger or spin-off of a loaded name hands out must be priced too,
-  // in the universe or not (and so on, for an action of that name).
-  const auto actions = catalog.actions(std::nullopt, from, to);
-  for (bool grew = true; grew;) {
-    grew = false;
-    std::set<std::int64_t> loaded(request.securities->begin(), request.securities->end());
-    for (const auto& a : actions)
-      if (a.target_id && loaded.count(a.security_id) && !loaded.count(*a.target_id)) {
-        request.securities->push_back(*a.target_id);
-        loaded.insert(*a.target_id);
-        grew = true;
-      }
-  }
-  request.from = from;
-  request.to = to;
-  request.metrics = {rule.screen.metric};
+    if (const Security* s = catalog.security(symbol)) extra_ids.push_back(s->id);
+  // A track record looks back from the first decision day.
+  const Date first = rule.track_record
+                         ? std::min(from, rules::TrackRecord::first_day(*rule.track_record, from))
+                         : from;
+  const auto request = inputs.series_request(catalog, first, to, extra_ids);
   History h{market::Series::load(db, request), inputs.currency(), inputs.notes()};
   return h;
 }
 
 std::vector<Date> rebalance_days(const std::vector<Date>& trading_days, std::optional<Date> next,
                                  Date from, Date to, int every_months) {
-  std::vector<Date> month_last;
-  for (std::size_t i = 0; i < trading_days.size(); ++i) {
-    const Date d = trading_days[i];
-    const std::optional<Date> after =
-        i + 1 < trading_days.size() ? std::optional<Date>(trading_days[i + 1]) : next;
-    const bool last = !after || after->month() != d.month() || after->year() != d.year();
-    if (last && d >= from && d <= to) month_last.push_back(d);
-  }
+  const auto month_last = rules::month_ends(trading_days, next, from, to);
   std::vector<Date> out;
   for (std::size_t i = 0; i < month_last.size(); i += static_cast<std::size_t>(every_months))
     out.push_back(month_last[i]);

@@ -25,8 +25,11 @@
 //    names, at least one) minus that of the dearest fifth.
 //  - Per horizon: mean IC, its t-statistic mean / (sd / sqrt(days)) with the
 //    sample sd (nullopt for fewer than two days or no spread), the share of
-//    days with the expected sign, and the mean spread. Days whose screen
-//    refuses (too few names) are skipped with a note.
+//    days with the expected sign, and the mean spread. A day on which the
+//    rule selects nothing still counts (the coefficient does not depend on
+//    the threshold); days without z's (too few names, no spread) are skipped
+//    with a note. With a [track_record], only names it lets through are
+//    paired (rules/track_record.h, point in time).
 //  - Throws InputError naming the option for from > to, or a horizon outside
 //    1..240 months.
 #pragma once
@@ -38,6 +41,7 @@
 
 #include "backtest/history.h"
 #include "rules/rule.h"
+#include "rules/track_record.h"
 #include "store/database.h"
 
 namespace keel::backtest {
@@ -75,9 +79,7 @@ SignalResult signal(store::Database& db, const rules::Rule& rule, const SignalRe
 // The same on preloaded history spanning [from, to].
 SignalResult signal(const History& history, const rules::Rule& rule, const SignalRequest& request);
 
-// Spearman's rank correlation (average ranks for ties); nullopt when fewer
-// than two pairs or either side has no spread. Throws std::invalid_argument
-// for unequal lengths.
-std::optional<double> spearman(std::span<const double> x, std::span<const double> y);
+// Spearman's rank correlation (rules/track_record.h).
+using rules::spearman;
 
 }  // namespace keel::backtest

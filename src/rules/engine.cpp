@@ -74,6 +74,7 @@ ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candida
     line.symbol = std::move(c.symbol);
     line.figure = std::move(c.figure);
     line.held = c.held;
+    line.track = c.track;
     const auto& f = line.figure;
     bool out_of_screen = true;
     if (c.ended) {
@@ -166,17 +167,41 @@ ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candida
     if (Decimal(static_cast<long long>(keep)) * Decimal(100) < want) ++keep;
     keep = std::max<std::size_t>(keep, 1);
   }
+  const auto& tr = rule.track_record;
+  std::size_t rank = 0;       // among the names the track record lets through
+  std::size_t held_back = 0;  // names that would enter but for their track record
   for (std::size_t i = 0; i < pass.size(); ++i) {
     auto& l = pass[i];
     const double z = *l.z;
-    const bool entered = sel.by == SelectBy::z ? z <= sel.z_max : i < keep;
+    std::string track_why;
+    if (tr) {
+      const auto& t = l.track;
+      l.track_ok = t && t->observations >= tr->min_observations && t->correlation &&
+                   *t->correlation <= tr->max_correlation;
+      if (words && !l.track_ok)
+        track_why =
+            !t ? "no track record"
+            : t->observations < tr->min_observations
+                ? fmt::format("track record of {} observation{}, fewer than {}", t->observations,
+                              t->observations == 1 ? "" : "s", tr->min_observations)
+            : !t->correlation
+                ? fmt::format("track record of {} observations has no spread", t->observations)
+                : fmt::format("track record {} > {} over {} observations", z_text(*t->correlation),
+                              z_text(tr->max_correlation), t->observations);
+    }
+    const bool would = sel.by == SelectBy::z ? z <= sel.z_max : rank < keep;
+    const bool entered = would && l.track_ok;
+    if (l.track_ok) ++rank;
+    if (would && !l.track_ok) ++held_back;
     auto test = [&] {
       return sel.by == SelectBy::z
-                 ? fmt::format("z = {} {} {}", z_text(z), entered ? "<=" : ">", z_text(sel.z_max))
-                 : fmt::format("z = {}, rank {} {} {}", z_text(z), i + 1, entered ? "<=" : ">",
-                               keep);
+                 ? fmt::format("z = {} {} {}", z_text(z), would ? "<=" : ">", z_text(sel.z_max))
+                 : fmt::format("z = {}, rank {} {} {}", z_text(z), l.track_ok ? rank : rank + 1,
+                               would ? "<=" : ">", keep);
     };
-    if (entered) {
+    if (!l.track_ok) {
+      if (words) l.note = test() + ", but its " + track_why;
+    } else if (entered) {
       l.selected = true;
       if (words) l.note = test();
     } else if (l.held && sel.exit_z && z <= *sel.exit_z) {
@@ -189,6 +214,11 @@ ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candida
     }
     if (l.selected) ++out.selected;
   }
+  if (out.selected == 0 && held_back > 0)
+    return refuse("track_record.max_correlation",
+                  fmt::format("selects no name on {}: the track record keeps out all {} name{} "
+                              "the screen would select",
+                              as_of.str(), held_back, held_back == 1 ? "" : "s"));
   if (out.selected == 0)
     return refuse("select.z_max",
                   fmt::format("selects no name on {}: the lowest z among the {} names passing "

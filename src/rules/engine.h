@@ -10,6 +10,10 @@
 //   values are cheap, so low z is always cheap. Selection then marks names:
 //   z <= z_max, the cheapest `count`, or the cheapest ceil(top_pct % of n);
 //   a held name that passes but is not selected stays while z <= exit_z.
+//   With a [track_record], a passing name is selectable only when its track
+//   record has at least min_observations pairs and a correlation at most
+//   max_correlation (its z is computed across every passing name all the
+//   same, so a name's past z's do not depend on its past track records).
 //   Fewer than min_names passing, no spread, or nothing selected is a normal
 //   result: `refusal` names the rule key and says why, and nothing is
 //   selected.
@@ -45,6 +49,13 @@ struct Figure {
   Date known_on;  // the first day it could be known
 };
 
+// A name's track record on a day (rules/track_record.h): the correlation of
+// its past scores with its later returns, and how many pairs it rests on.
+struct TrackStat {
+  std::optional<double> correlation;  // unset when either side had no spread
+  int observations = 0;
+};
+
 struct Candidate {
   std::int64_t security_id = 0;
   std::string symbol;
@@ -53,6 +64,7 @@ struct Candidate {
   bool held = false;       // some account of the pool holds it
   // Off the market (a merger or delisting) since this day.
   std::optional<Date> ended;
+  std::optional<TrackStat> track;  // set when the rule has a [track_record]
 };
 
 struct ScreenLine {
@@ -64,6 +76,8 @@ struct ScreenLine {
   std::optional<double> z;      // oriented: low = cheap
   bool held = false;
   bool passed = false;
+  std::optional<TrackStat> track;
+  bool track_ok = true;  // false: the track record keeps it from being selected
   bool selected = false;
   std::string excluded_reason;  // why it did not pass; empty when it passed
   std::string note;             // why it is, or is not, selected

@@ -10,6 +10,7 @@
 #include "core/error.h"
 #include "core/text.h"
 #include "market/series.h"
+#include "rules/track_record.h"
 
 namespace keel::rules {
 
@@ -111,8 +112,45 @@ std::vector<std::int64_t> Inputs::securities() const {
   return out;
 }
 
+market::Series::Request Inputs::series_request(const market::View& catalog, Date from, Date to,
+                                               std::vector<std::int64_t> extra) const {
+  market::Series::Request request;
+  request.securities = securities();
+  request.securities->insert(request.securities->end(), extra.begin(), extra.end());
+  // What a merger or spin-off of a loaded name hands out must be priced too,
+  // in the universe or not (and so on, for an action of that name).
+  const auto actions = catalog.actions(std::nullopt, from, to);
+  for (bool grew = true; grew;) {
+    grew = false;
+    std::set<std::int64_t> loaded(request.securities->begin(), request.securities->end());
+    for (const auto& a : actions)
+      if (a.target_id && loaded.count(a.security_id) && !loaded.count(*a.target_id)) {
+        request.securities->push_back(*a.target_id);
+        loaded.insert(*a.target_id);
+        grew = true;
+      }
+  }
+  request.from = from;
+  request.to = to;
+  request.metrics = {rule_.screen.metric};
+  return request;
+}
+
 std::vector<Candidate> Inputs::candidates(const market::View& view, Date day,
                                           const std::set<std::int64_t>& held) const {
+  auto out = candidates_without_track(view, day, held);
+  if (track_) {
+    const auto stats = track_->at(day);
+    for (auto& c : out) {
+      const auto it = stats.find(c.security_id);
+      c.track = it == stats.end() ? TrackStat{} : it->second;
+    }
+  }
+  return out;
+}
+
+std::vector<Candidate> Inputs::candidates_without_track(const market::View& view, Date day,
+                                                        const std::set<std::int64_t>& held) const {
   std::vector<Candidate> out;
   out.reserve(universe_.size());
   if (const auto* series = dynamic_cast<const market::Series*>(&view)) {

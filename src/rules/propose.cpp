@@ -14,6 +14,7 @@
 #include "ledger/posting.h"
 #include "market/day_view.h"
 #include "rules/inputs.h"
+#include "rules/track_record.h"
 #include "store/ledger_store.h"
 
 namespace keel::rules {
@@ -136,8 +137,10 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
   const Date as_of = p.as_of;
 
   // The universe and the sleeves, checked before the ledger is replayed.
-  const Inputs inputs(rule, view, pool.front().currency);
+  Inputs inputs(rule, view, pool.front().currency);
   p.notes.insert(p.notes.end(), inputs.notes().begin(), inputs.notes().end());
+  std::optional<LedgerTrackRecord> track;
+  if (rule.track_record) track.emplace(db, rule, inputs, view, as_of);
 
   // The pool's state on the as-of day.
   Replayer replayer(log);

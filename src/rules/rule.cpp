@@ -64,6 +64,13 @@ constexpr KeyInfo kKeys[] = {
     {"trading.fee_fixed", "0"},
     {"trading.fee_bps", "0"},
     {"trading.lot_order", "\"highest-cost\""},
+    {"track_record", ""},
+    {"track_record.window_months", "36"},
+    {"track_record.horizon_months", "12"},
+    {"track_record.max_correlation", "0"},
+    {"track_record.min_observations", "24"},
+    {"track_record.method", "\"pearson\""},
+    {"track_record.returns", "\"relative\""},
 };
 
 std::vector<std::string> keys_under(std::string_view table) {
@@ -513,6 +520,41 @@ Rule parse_rule(std::string_view toml_text, std::string source) {
                                      {"long-held", LotOrder::long_held},
                                      {"losses-first", LotOrder::losses_first}}))
       g.lot_order = *o;
+  }
+
+  // track record
+  if (const auto* t = r.table(root, "track_record")) {
+    TrackRecordRule tr;
+    if (auto v = r.integer(*t, "track_record", "window_months", 2, 600))
+      tr.window_months = static_cast<int>(*v);
+    if (auto v = r.integer(*t, "track_record", "horizon_months", 1, 240))
+      tr.horizon_months = static_cast<int>(*v);
+    if (auto v =
+            r.number(*t, "track_record", "max_correlation", Decimal(-1), false, Decimal(1), false))
+      tr.max_correlation = v->to_double();
+    if (auto v = r.integer(*t, "track_record", "min_observations", 3, 600))
+      tr.min_observations = static_cast<int>(*v);
+    if (auto m = r.choice<Correlation>(
+            *t, "track_record", "method",
+            {{"pearson", Correlation::pearson}, {"spearman", Correlation::spearman}}))
+      tr.method = *m;
+    if (auto m = r.choice<TrackReturns>(*t, "track_record", "returns",
+                                        {{"relative", TrackReturns::relative},
+                                         {"absolute", TrackReturns::absolute},
+                                         {"zscore", TrackReturns::zscore}}))
+      tr.returns = *m;
+    rule.track_record = tr;
+    if (tr.window_months < tr.horizon_months)
+      rule.fail("track_record.window_months",
+                fmt::format("{} months is shorter than track_record.horizon_months ({}); each "
+                            "observation's return must end inside the window",
+                            tr.window_months, tr.horizon_months));
+    if (tr.min_observations > tr.max_observations())
+      rule.fail("track_record.min_observations",
+                fmt::format("{} is more than the window allows: {} months less a horizon of {} "
+                            "leave at most {} monthly observations",
+                            tr.min_observations, tr.window_months, tr.horizon_months,
+                            std::max(0, tr.max_observations())));
   }
   return rule;
 }

@@ -33,6 +33,8 @@ enum class Cheap { low, high };
 enum class SelectBy { z, count, top_pct };
 enum class Scheme { equal, tilt };
 enum class LotOrder { highest_cost, long_held, losses_first };
+enum class Correlation { pearson, spearman };
+enum class TrackReturns { relative, absolute, zscore };
 
 std::string_view to_string(SelectBy by);
 std::string_view to_string(LotOrder order);
@@ -69,6 +71,20 @@ struct WeightRule {
   Decimal sleeve_total() const;
 };
 
+// A name's track record: over its own past, does its score rank its later
+// returns? (rules/track_record.h computes it.)
+struct TrackRecordRule {
+  int window_months = 36;      // observations and their horizons fit in this many months
+  int horizon_months = 12;     // each observation's return runs this many months
+  double max_correlation = 0;  // kept while its correlation is at most this
+  int min_observations = 24;
+  Correlation method = Correlation::pearson;
+  TrackReturns returns = TrackReturns::relative;
+  // The most observations the window allows: one per month whose horizon
+  // ends inside it.
+  int max_observations() const { return window_months - horizon_months; }
+};
+
 struct TradingRule {
   Decimal drift_pct_points;  // 0 = off
   Decimal drift_rel_pct;     // 0 = off
@@ -95,6 +111,7 @@ struct Rule {
   SelectionRule selection;
   WeightRule weights;
   TradingRule trading;
+  std::optional<TrackRecordRule> track_record;
   int rebalance_months = 1;
 
   // Line of each key given in the file ("select.z_max" -> 14).

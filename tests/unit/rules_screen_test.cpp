@@ -203,3 +203,71 @@ TEST_CASE("selection: a threshold that selects nothing is a result with the reas
   CHECK(s.lines.front().symbol == "A");  // still in z order
   CHECK(*s.lines.front().z < *s.lines.back().z);
 }
+
+namespace {
+
+const char* kTrack = "[track_record]\nmin_observations = 20\nmax_correlation = -0.1\n";
+
+Candidate with_track(Candidate c, std::optional<double> correlation, int observations) {
+  c.track = TrackStat{correlation, observations};
+  return c;
+}
+
+}  // namespace
+
+TEST_CASE("track record: a name whose correlation is above the maximum is not selected") {
+  auto c = five();
+  for (auto& x : c) x = with_track(x, -0.5, 24);
+  c[0] = with_track(c[0], 0.2, 24);  // A, the cheapest
+  const auto r = screen(rule(kTrack), kAsOf, c);
+  CHECK_FALSE(line(r, "A").selected);
+  CHECK_FALSE(line(r, "A").track_ok);
+  CHECK(line(r, "A").note ==
+        "z = -1.26 <= -0.50, but its track record 0.20 > -0.10 over 24 "
+        "observations");
+  CHECK(line(r, "B").selected);
+}
+
+TEST_CASE("track record: a name with too few observations is not selected") {
+  auto c = five();
+  for (auto& x : c) x = with_track(x, -0.5, 24);
+  c[0] = with_track(c[0], -0.9, 19);
+  const auto r = screen(rule(kTrack), kAsOf, c);
+  CHECK_FALSE(line(r, "A").selected);
+  CHECK(line(r, "A").note ==
+        "z = -1.26 <= -0.50, but its track record of 19 observations, fewer than 20");
+}
+
+TEST_CASE("track record: z-scores still run across every passing name") {
+  auto c = five();
+  for (auto& x : c) x = with_track(x, 0.9, 24);
+  const auto r = screen(rule(kTrack), kAsOf, c);
+  CHECK(*line(r, "A").z == doctest::Approx(-4.0 / std::sqrt(10.0)).epsilon(1e-15));
+  CHECK(r.passed == 5);
+}
+
+TEST_CASE("track record: nothing selected for it names the track-record key") {
+  auto c = five();
+  for (auto& x : c) x = with_track(x, std::nullopt, 24);
+  const auto r = screen(rule(kTrack), kAsOf, c);
+  REQUIRE(r.refusal);
+  CHECK(r.refusal->key == "track_record.max_correlation");
+  CHECK(r.refusal->why ==
+        "selects no name on 2024-05-31: the track record keeps out all 2 names the screen "
+        "would select");
+  CHECK(line(r, "A").note ==
+        "z = -1.26 <= -0.50, but its track record of 24 observations has "
+        "no spread");
+}
+
+TEST_CASE("track record: by count the next name with a good record takes the place") {
+  auto c = five();
+  for (auto& x : c) x = with_track(x, -0.5, 24);
+  c[1] = with_track(c[1], 0.5, 24);  // B, second cheapest
+  const auto r =
+      screen(rule(std::string(kTrack) + "[select]\nby = \"count\"\ncount = 2\n"), kAsOf, c);
+  CHECK(line(r, "A").selected);
+  CHECK_FALSE(line(r, "B").selected);
+  CHECK(line(r, "C").selected);
+  CHECK(line(r, "C").note == "z = 0.00, rank 2 <= 2");
+}
