@@ -28,6 +28,32 @@ void check_request(const SignalRequest& req) {
       throw InputError(fmt::format("--horizons: {} is not a number of months from 1 to 240", m));
 }
 
+void by_name(const History& h, const rules::Rule& rule, const SignalRequest& req,
+             const rules::Inputs& inputs, std::optional<rules::TrackRecord>& track,
+             SignalResult& res) {
+  if (!track) track.emplace(rule, inputs, h.market);
+  rules::TrackRecordRule settings = rule.track_record.value_or(rules::TrackRecordRule{});
+  // The whole check is the window: every month from `from`'s to `to`'s.
+  settings.window_months =
+      (req.to.year() - req.from.year()) * 12 + req.to.month() - req.from.month() + 1;
+  res.by_name_horizons = req.horizons;
+  if (rule.track_record && std::find(req.horizons.begin(), req.horizons.end(),
+                                     rule.track_record->horizon_months) == req.horizons.end())
+    res.by_name_horizons.push_back(rule.track_record->horizon_months);
+  std::map<std::string, NameRecord> names;
+  for (const std::int64_t id : inputs.universe())
+    names[h.security(id).symbol] = NameRecord{id, h.security(id).symbol, {}};
+  for (const int months : res.by_name_horizons) {
+    settings.horizon_months = months;
+    const auto stats = track->at(req.to, settings);
+    for (auto& [symbol, n] : names) {
+      const auto it = stats.find(n.security_id);
+      n.records.push_back(it == stats.end() ? rules::TrackStat{} : it->second);
+    }
+  }
+  for (auto& [symbol, n] : names) res.by_name.push_back(std::move(n));
+}
+
 }  // namespace
 
 SignalResult signal(store::Database& db, const rules::Rule& rule, const SignalRequest& req) {
@@ -98,6 +124,7 @@ SignalResult signal(const History& h, const rules::Rule& rule, const SignalReque
       hr.days.push_back(sd);
     }
   }
+  if (req.by_name) by_name(h, rule, req, inputs, track, res);
   for (auto& hr : res.horizons) {
     std::vector<double> ics;
     double spread = 0;

@@ -30,6 +30,11 @@
 //    the threshold); days without z's (too few names, no spread) are skipped
 //    with a note. With a [track_record], only names it lets through are
 //    paired (rules/track_record.h, point in time).
+//  - by_name: each universe name's track record (rules/track_record.h) on
+//    `to`, per horizon (the request's, and the rule's [track_record] horizon
+//    when it has one): the pairs of every month-end in [from, to] whose
+//    horizon ends by `to`, with the rule's method and returns (else Pearson's
+//    r of relative returns).
 //  - Throws InputError naming the option for from > to, or a horizon outside
 //    1..240 months.
 #pragma once
@@ -50,6 +55,15 @@ struct SignalRequest {
   Date from;
   Date to;
   std::vector<int> horizons{1, 3, 6, 12, 24};
+  bool by_name = false;  // also each name's track record per horizon
+};
+
+// A name's track record over the whole check, per horizon (in the order of
+// SignalResult::by_name_horizons).
+struct NameRecord {
+  std::int64_t security_id = 0;
+  std::string symbol;
+  std::vector<rules::TrackStat> records;
 };
 
 struct SignalDay {
@@ -71,6 +85,8 @@ struct SignalResult {
   std::string rule_name;
   Date from, to;
   std::vector<HorizonResult> horizons;
+  std::vector<int> by_name_horizons;
+  std::vector<NameRecord> by_name;  // by symbol; empty unless asked
   std::vector<std::string> notes;
   std::vector<std::string> cautions;
 };
