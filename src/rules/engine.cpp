@@ -214,11 +214,20 @@ ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candida
     }
     if (l.selected) ++out.selected;
   }
-  if (out.selected == 0 && held_back > 0)
+  if (out.selected == 0 && held_back > 0) {
+    const auto failed = static_cast<std::size_t>(
+        std::count_if(pass.begin(), pass.end(), [](const ScreenLine& l) { return !l.track_ok; }));
     return refuse("track_record.max_correlation",
-                  fmt::format("selects no name on {}: the track record keeps out all {} name{} "
-                              "the screen would select",
-                              as_of.str(), held_back, held_back == 1 ? "" : "s"));
+                  failed == pass.size()
+                      ? fmt::format("selects no name on {}: all {} names passing the screen fail "
+                                    "the track record (fewer than {} observations, or a "
+                                    "correlation above {})",
+                                    as_of.str(), pass.size(), tr->min_observations,
+                                    z_text(tr->max_correlation))
+                      : fmt::format("selects no name on {}: the track record keeps out all {} "
+                                    "name{} the screen would select",
+                                    as_of.str(), held_back, held_back == 1 ? "" : "s"));
+  }
   if (out.selected == 0)
     return refuse("select.z_max",
                   fmt::format("selects no name on {}: the lowest z among the {} names passing "

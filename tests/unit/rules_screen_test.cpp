@@ -253,11 +253,23 @@ TEST_CASE("track record: nothing selected for it names the track-record key") {
   REQUIRE(r.refusal);
   CHECK(r.refusal->key == "track_record.max_correlation");
   CHECK(r.refusal->why ==
-        "selects no name on 2024-05-31: the track record keeps out all 2 names the screen "
-        "would select");
+        "selects no name on 2024-05-31: all 5 names passing the screen fail the track record "
+        "(fewer than 20 observations, or a correlation above -0.10)");
   CHECK(line(r, "A").note ==
         "z = -1.26 <= -0.50, but its track record of 24 observations has "
         "no spread");
+}
+
+TEST_CASE("track record: names kept out that the threshold would select are counted") {
+  auto c = five();
+  for (auto& x : c) x = with_track(x, -0.5, 24);
+  c[0] = with_track(c[0], 0.5, 24);
+  c[1] = with_track(c[1], 0.5, 24);
+  const auto r = screen(rule(kTrack), kAsOf, c);
+  REQUIRE(r.refusal);
+  CHECK(r.refusal->why ==
+        "selects no name on 2024-05-31: the track record keeps out all 2 names the screen "
+        "would select");
 }
 
 TEST_CASE("track record: by count the next name with a good record takes the place") {
