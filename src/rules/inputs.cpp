@@ -42,6 +42,7 @@ std::optional<std::string> keep_currency(const Rule& rule, const std::string& cu
 
 Inputs::Inputs(const Rule& rule, const market::View& view, std::optional<std::string> currency)
     : rule_(rule), currency_(std::move(currency)) {
+  for (const auto& m : rule.screen.metrics()) metrics_.push_back(m.name);
   auto find = [&](const std::string& symbol, std::string_view key) {
     const Security* s = view.security(symbol);
     if (!s) rule.fail(key, fmt::format("no security '{}' in the ledger", printable(symbol)));
@@ -93,17 +94,31 @@ Inputs::Inputs(const Rule& rule, const market::View& view, std::optional<std::st
   }
 
   const auto names = view.metric_names();
-  if (std::find(names.begin(), names.end(), rule.screen.metric) == names.end()) {
+  for (const auto& metric : rule.screen.metrics()) {
+    if (std::find(names.begin(), names.end(), metric.name) != names.end()) continue;
     std::string why =
-        fmt::format("the ledger holds no figures for metric '{}'", printable(rule.screen.metric));
-    if (auto near = nearest(rule.screen.metric, names))
+        fmt::format("the ledger holds no figures for metric '{}'", printable(metric.name));
+    if (auto near = nearest(metric.name, names))
       why += fmt::format("; did you mean '{}'?", printable(*near));
     else if (!names.empty())
       why += fmt::format(" (stored metrics: {})", printable_list(names));
     else
       why += "; import metrics first ('keel import metrics FILE')";
-    rule.fail("screen.metric", why);
+    rule.fail(rule.screen.metric_list.empty() ? "screen.metric" : "screen.metrics", why);
   }
+}
+
+std::optional<std::string> Inputs::group_of(const market::View& view, std::int64_t id) const {
+  const Security* s = view.security(id);
+  switch (rule_.screen.within) {
+    case Within::sector:
+      return s->sector;
+    case Within::country:
+      return s->country;
+    case Within::universe:
+      break;
+  }
+  return std::nullopt;
 }
 
 std::vector<std::int64_t> Inputs::securities() const {
@@ -132,7 +147,7 @@ market::Series::Request Inputs::series_request(const market::View& catalog, Date
   }
   request.from = from;
   request.to = to;
-  request.metrics = {rule_.screen.metric};
+  for (const auto& m : rule_.screen.metrics()) request.metrics.push_back(m.name);
   return request;
 }
 
@@ -154,9 +169,14 @@ std::vector<Candidate> Inputs::candidates_without_track(const market::View& view
   std::vector<Candidate> out;
   out.reserve(universe_.size());
   if (const auto* series = dynamic_cast<const market::Series*>(&view)) {
-    // Preloaded: the figures by the series' cursor, closes from the grid.
+    // Preloaded: the figures by the series' cursors, closes from the grid.
     auto& figures = series->cursor(rule_.screen.metric);
     figures.advance_to(day);
+    std::vector<market::Series::FigureCursor*> more;
+    for (std::size_t m = 1; m < metrics_.size(); ++m) {
+      more.push_back(&series->cursor(metrics_[m]));
+      more.back()->advance_to(day);
+    }
     const std::size_t row = series->row(day);
     for (std::size_t i = 0; i < universe_.size(); ++i) {
       const std::int64_t id = universe_[i];
@@ -168,10 +188,16 @@ std::vector<Candidate> Inputs::candidates_without_track(const market::View& view
       c.symbol = symbols_[i];
       c.held = held.count(id) > 0;
       c.ended = series->ended(id, day);
-      if (const auto* f = figures.at(col)) {
-        c.figure = Figure{f->value, f->period, f->known_on};
-        c.has_price = series->has(row, col);
+      if (const auto* f = figures.at(col)) c.figure = Figure{f->value, f->period, f->known_on};
+      bool any = c.figure.has_value();
+      for (auto* cursor : more) {
+        const auto* f = cursor->at(col);
+        c.more.push_back(f ? std::optional<Figure>(Figure{f->value, f->period, f->known_on})
+                           : std::nullopt);
+        any = any || f;
       }
+      if (any) c.has_price = series->has(row, col);
+      c.group = group_of(view, id);
       out.push_back(std::move(c));
     }
     return out;
@@ -183,10 +209,18 @@ std::vector<Candidate> Inputs::candidates_without_track(const market::View& view
     c.symbol = symbols_[i];
     c.held = held.count(id) > 0;
     c.ended = view.ended(id, day);
-    if (auto f = view.figure(id, rule_.screen.metric, day)) {
+    if (auto f = view.figure(id, rule_.screen.metric, day))
       c.figure = Figure{std::move(f->value), f->period, f->known_on};
-      c.has_price = view.has_close(id, day);
+    bool any = c.figure.has_value();
+    for (std::size_t m = 1; m < metrics_.size(); ++m) {
+      auto f = view.figure(id, metrics_[m], day);
+      c.more.push_back(
+          f ? std::optional<Figure>(Figure{std::move(f->value), f->period, f->known_on})
+            : std::nullopt);
+      any = any || f;
     }
+    if (any) c.has_price = view.has_close(id, day);
+    c.group = group_of(view, id);
     out.push_back(std::move(c));
   }
   return out;

@@ -105,6 +105,9 @@ class Inputs {
   std::vector<Candidate> candidates_without_track(const market::View& view, Date day,
                                                   const std::set<std::int64_t>& held) const;
 
+  std::optional<std::string> group_of(const market::View& view, std::int64_t id) const;
+
+  std::vector<std::string> metrics_;  // the screen's, in order
   std::vector<std::int64_t> universe_;
   std::vector<std::string> symbols_;  // of the universe
   std::vector<std::int64_t> sleeves_;

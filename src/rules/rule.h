@@ -44,9 +44,32 @@ struct Sleeve {
   Decimal weight;  // fraction of the pool's invested value, 0 < weight < 1
 };
 
-struct ScreenRule {
-  std::string metric = "pe";
+// One metric of a screen scoring several: its z-score counts with `weight`
+// in the name's score.
+struct MetricSpec {
+  std::string name;
   Cheap cheap = Cheap::low;
+  double weight = 1;  // above zero
+};
+enum class IfMissing { fail, score_available };
+enum class Within { universe, sector, country };
+enum class SmallGroups { fail, whole_universe };
+std::string_view to_string(Within within);
+
+struct ScreenRule {
+  std::string metric = "pe";  // the first of metrics()
+  Cheap cheap = Cheap::low;   // of the first metric
+  // screen.metrics when given; empty: the one `metric` above.
+  std::vector<MetricSpec> metric_list;
+  IfMissing if_missing = IfMissing::fail;  // a name lacking some metric's figure
+  Within within = Within::universe;        // z-scores within groups of this field
+  int min_group_size = 5;
+  SmallGroups small_groups = SmallGroups::fail;
+  // Every metric the screen scores, the single `metric` as a list of one.
+  std::vector<MetricSpec> metrics() const {
+    return metric_list.empty() ? std::vector<MetricSpec>{{metric, cheap, 1}} : metric_list;
+  }
+  bool several() const { return metric_list.size() > 1; }
   int max_age_days = 180;  // between a figure's period date and the as-of day
   bool exclude_non_positive = true;
   int min_names = 5;  // fewer names passing the screen is an error

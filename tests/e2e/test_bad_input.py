@@ -537,6 +537,26 @@ row("rule: a track-record method keel does not know",
     "keel: error: {d}/track-4.toml:4: key 'track_record.returns': 'excess' is not one of "
     "\"relative\", \"absolute\", \"zscore\"",
     {"track-4.toml": RULE_HEAD + b"[track_record]\nreturns = \"excess\"\n"})
+row("rule: a metric listed twice",
+    ["propose", "--rule", "{d}/metrics-1.toml"], INPUT,
+    "keel: error: {d}/metrics-1.toml:4: key 'screen.metrics': metric 'pe' is listed twice",
+    {"metrics-1.toml": RULE_HEAD + b'[screen]\nmetrics = [{ name = "pe" }, { name = "pe" }]\n'})
+row("rule: a metric weight at or below zero",
+    ["backtest", "--rule", "{d}/metrics-2.toml", "--from", "2024-01-01", "--to", "2024-12-31"],
+    INPUT,
+    "keel: error: {d}/metrics-2.toml:4: key 'screen.metrics.weight': -1 is out of range; must be "
+    "above 0 and at most 1000",
+    {"metrics-2.toml": RULE_HEAD + b'[screen]\nmetrics = [{ name = "pe", weight = -1 }]\n'})
+row("rule: scores within a field securities do not have",
+    ["signal", "--rule", "{d}/within-1.toml", "--from", "2024-01-01", "--to", "2024-12-31"], INPUT,
+    "keel: error: {d}/within-1.toml:4: key 'screen.within': securities have no field 'industry'; "
+    "z-scores can run within \"sector\" or \"country\"",
+    {"within-1.toml": RULE_HEAD + b'[screen]\nwithin = "industry"\n'})
+row("rule: a misspelt grouping field",
+    ["propose", "--rule", "{d}/within-2.toml"], INPUT,
+    "keel: error: {d}/within-2.toml:4: key 'screen.within': securities have no field 'sectors'; "
+    "did you mean 'sector'?",
+    {"within-2.toml": RULE_HEAD + b'[screen]\nwithin = "sectors"\n'})
 PLAN_FIXED = (b'[pools.home]\naccounts = ["Alder Taxable", "Birch Pension"]\n'
               b'[[part]]\nname = "core"\npool = "home"\nshare_pct = 100\n'
               b'fixed = { QRX = 100 }\n')

@@ -1,4 +1,5 @@
-"""A rule's [track_record] against an independent computation with pandas and
+"""A rule's [track_record], and scores of several metrics within sectors,
+against an independent computation with pandas and
 scipy (Debian's python3-pandas and python3-scipy) on invented data that the
 test writes: each name's z on every month-end (sample sd, pandas' std with
 ddof=1), its total return over the horizon with cash distributions added
@@ -7,6 +8,8 @@ names scored that day, then per name scipy.stats.pearsonr or
 scipy.stats.spearmanr of the pairs whose horizon ends by the decision day.
 `keel propose --json` must show the same correlation and count beside each
 name's z, and select exactly the names with z <= z_max whose record passes.
+Composite scores: each metric's z across the universe or within each
+sector, their weighted mean standardised again, and the names selected.
 The look-ahead check changes returns that end after a decision day and
 expects that day's records unchanged.
 """
@@ -27,6 +30,19 @@ TOL = 1e-9
 NAMES = [f"W{i:02d}" for i in range(14)]
 PAYERS = NAMES[::3]  # these pay a quarterly cash distribution
 DAYS = ["2022-06-30", "2022-09-30", "2022-12-30"]
+SECTORS = {s: ("Quarry" if i < 8 else "Orchard") for i, s in enumerate(NAMES)}
+COMPOSITE = """
+name = "P/E and yield"
+[scope]
+accounts = ["Simulated"]
+[screen]
+metrics = [{ name = "pe", weight = 2 }, { name = "fy", cheap = "high" }]
+max_age_days = 40
+min_names = 5
+%s
+[select]
+z_max = 0
+"""
 
 
 def rule_text(method, returns, window=36, horizon=12, min_obs=24):
@@ -72,6 +88,9 @@ def generate(folder, seed):
             pe = np.round(rng.uniform(5, 40, n), 2)
             metrics += [(d.isoformat(), s, "pe", "%.2f" % v, d.isoformat())
                         for s, v in zip(NAMES, pe)]
+            fy = np.round(rng.uniform(0.01, 0.12, n), 4)
+            metrics += [(d.isoformat(), s, "fy", "%.4f" % v, d.isoformat())
+                        for s, v in zip(NAMES, fy)]
             drift = 0.03 * sign * (pe - pe.mean()) / pe.std(ddof=1)
             if d.month % 3 == 0:
                 ex = d + timedelta(days=15)
@@ -79,7 +98,7 @@ def generate(folder, seed):
                     ex += timedelta(days=1)
                 dists += [(ex.isoformat(), (ex + timedelta(days=10)).isoformat(), s,
                            "%.4f" % rng.uniform(0.2, 0.9)) for s in PAYERS]
-    write_market(folder, NAMES, prices, metrics)
+    write_market(folder, NAMES, prices, metrics, SECTORS)
     pd.DataFrame(dists, columns=["ex_date", "pay_date", "symbol", "per_share"]).to_csv(
         os.path.join(folder, "distributions.csv"), index=False)
 
@@ -95,13 +114,28 @@ class Reference:
         self.ends = list(s.groupby([s.dt.year, s.dt.month]).max().sort_values())
         self.z = {t: self.z_on(t) for t in self.ends}
 
+    def figures(self, d, metric):
+        m = self.m[(self.m["metric"] == metric) & (self.m["known_on"] <= d)]
+        f = m.sort_values(["symbol", "date", "known_on"]).groupby("symbol").tail(1)
+        f = f.set_index("symbol")
+        return f[((d - f["date"]).dt.days <= 40) & (f["value"] > 0)]["value"]
+
     def z_on(self, d):
-        f = self.m[self.m["known_on"] <= d].sort_values(["symbol", "date", "known_on"])
-        f = f.groupby("symbol").tail(1).set_index("symbol")
-        f = f[((d - f["date"]).dt.days <= 40) & (f["value"] > 0)]["value"]
+        f = self.figures(d, "pe")
         if len(f) < 5:
             return pd.Series(dtype=float)
         return (f - f.mean()) / f.std(ddof=1)
+
+    def composite(self, day, within):
+        """Each metric's z (within each sector when asked; fy is cheap when
+        high), the weighted mean 2:1, standardised again across the names."""
+        d = pd.Timestamp(day)
+        x = pd.DataFrame({"pe": self.figures(d, "pe"), "fy": self.figures(d, "fy")}).dropna()
+        x["group"] = [SECTORS[s] if within else "all" for s in x.index]
+        z = x.groupby("group")[["pe", "fy"]].transform(lambda v: (v - v.mean()) / v.std(ddof=1))
+        z["fy"] = -z["fy"]
+        score = (2 * z["pe"] + z["fy"]) / 3
+        return z, (score - score.mean()) / score.std(ddof=1)
 
     def forward(self, start, end, names):
         paid = self.dist[(self.dist["ex_date"] > start) & (self.dist["ex_date"] <= end)]
@@ -192,6 +226,28 @@ class TrackRecordReference(unittest.TestCase):
 
     def test_pearson_of_absolute_returns(self):
         self.check("pearson", "absolute")
+
+    def check_composite(self, within):
+        for day in DAYS:
+            got = self.propose(COMPOSITE % ('within = "sector"' if within else ""), day)
+            z_metric, z = self.ref.composite(day, within)
+            self.assertEqual(sorted(x["symbol"] for x in got["screen"] if x["z"] is not None),
+                             sorted(z.index), day)
+            for line in got["screen"]:
+                s = line["symbol"]
+                self.assertAlmostEqual(line["z"], z[s], delta=TOL, msg=f"{day} {s}")
+                self.assertAlmostEqual(line["metric_z"]["pe"], z_metric.loc[s, "pe"], delta=TOL)
+                self.assertAlmostEqual(line["metric_z"]["fy"], z_metric.loc[s, "fy"], delta=TOL)
+                if within:
+                    self.assertEqual(line["group"], SECTORS[s])
+            self.assertEqual({x["symbol"] for x in got["screen"] if x["selected"]},
+                             set(z[z <= 0].index), day)
+
+    def test_composite_of_two_metrics_across_the_universe(self):
+        self.check_composite(within=False)
+
+    def test_composite_of_two_metrics_within_each_sector(self):
+        self.check_composite(within=True)
 
     def test_changing_a_return_that_ends_after_the_day_leaves_its_record_unchanged(self):
         text = rule_text("pearson", "absolute")

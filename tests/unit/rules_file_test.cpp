@@ -228,3 +228,46 @@ TEST_CASE("rule file: a misspelt track-record key suggests the nearest") {
           "r.toml:4: key 'track_record.method': 'kendall' is not one of \"pearson\", "
           "\"spearman\"");
 }
+
+TEST_CASE("rule file: the single metric is a list of one") {
+  const Rule r = parse(std::string(kMinimal) + "[screen]\nmetric = \"ey\"\ncheap = \"high\"\n");
+  REQUIRE(r.screen.metrics().size() == 1);
+  CHECK(r.screen.metrics()[0].name == "ey");
+  CHECK(r.screen.metrics()[0].cheap == Cheap::high);
+  CHECK(r.screen.metrics()[0].weight == 1);
+}
+
+TEST_CASE("rule file: several metrics are read in order with their weights") {
+  const Rule r = parse(std::string(kMinimal) +
+                       "[screen]\nmetrics = [{ name = \"pe\" }, { name = \"ey\", cheap = "
+                       "\"high\", weight = 0.5 }]\n");
+  REQUIRE(r.screen.metrics().size() == 2);
+  CHECK(r.screen.metric == "pe");
+  CHECK(r.screen.metrics()[1].name == "ey");
+  CHECK(r.screen.metrics()[1].cheap == Cheap::high);
+  CHECK(r.screen.metrics()[1].weight == 0.5);
+}
+
+TEST_CASE("rule file: a metric listed twice is refused") {
+  refused(std::string(kMinimal) + "[screen]\nmetrics = [{ name = \"pe\" }, { name = \"pe\" }]\n",
+          "r.toml:4: key 'screen.metrics': metric 'pe' is listed twice");
+}
+
+TEST_CASE("rule file: a metric weight of zero is refused") {
+  refused(std::string(kMinimal) + "[screen]\nmetrics = [{ name = \"pe\", weight = 0 }]\n",
+          "r.toml:4: key 'screen.metrics.weight': 0 is out of range; must be above 0 and at "
+          "most 1000");
+}
+
+TEST_CASE("rule file: a misspelt key of a metric suggests the nearest") {
+  refused(std::string(kMinimal) + "[screen]\nmetrics = [{ name = \"pe\", wieght = 2 }]\n",
+          "r.toml:4: key 'screen.metrics.wieght': unknown key; did you mean 'weight'?");
+}
+
+TEST_CASE("rule file: within a field securities do not have is refused") {
+  refused(std::string(kMinimal) + "[screen]\nwithin = \"sectr\"\n",
+          "r.toml:4: key 'screen.within': securities have no field 'sectr'; did you mean "
+          "'sector'?");
+  refused(std::string(kMinimal) + "[screen]\nmin_group_size = 3\n",
+          "r.toml:4: key 'screen.min_group_size': applies only with screen.within");
+}
