@@ -218,6 +218,32 @@ class TrackRecordReference(unittest.TestCase):
             held_back = {s for s in z.index if z[s] <= 0} - expected_in
             self.assertTrue(held_back, f"{day}: the filter should keep some name out")
 
+    def expected_selection(self, day, method, returns):
+        ref = self.ref.records(day, method, returns)
+        z = self.ref.z[max(t for t in self.ref.ends if t <= pd.Timestamp(day))]
+        return {s for s in z.index if z[s] <= 0 and ref[s][0] >= 24 and ref[s][1] <= 0}
+
+    def test_backtest_and_signal_apply_the_same_filter(self):
+        path = os.path.join(self.tmp.name, "rule.toml")
+        with open(path, "w") as f:
+            f.write(rule_text("pearson", "relative"))
+        bt = self.ledger.json("backtest", "--rule", path, "--from", "2022-06-01", "--to",
+                              "2022-12-31", "--frictionless")
+        days = {r["date"]: r for r in bt["rule_run"]["rebalances"]}
+        self.assertEqual(len(days), 7)
+        for day, r in days.items():
+            self.assertEqual(r["selected"], len(self.expected_selection(day, "pearson", "relative")),
+                             day)
+        # The signal check pairs only the names the record lets through.
+        sig = self.ledger.json("signal", "--rule", path, "--from", "2022-06-01", "--to",
+                               "2022-12-31", "--horizons", "1")
+        self.assertEqual(len(sig["horizons"][0]["by_day"]), 6)
+        for d in sig["horizons"][0]["by_day"]:
+            ref = self.ref.records(d["date"], "pearson", "relative")
+            z = self.ref.z[pd.Timestamp(d["date"])]
+            self.assertEqual(d["names"], sum(1 for s in z.index if ref[s][0] >= 24 and
+                                            ref[s][1] <= 0), d["date"])
+
     def test_pearson_of_relative_returns(self):
         self.check("pearson", "relative")
 
