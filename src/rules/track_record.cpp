@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <numeric>
+#include <set>
 #include <stdexcept>
 #include <tuple>
 
@@ -129,7 +130,7 @@ std::optional<double> ForwardReturns::operator()(std::int64_t id, Date start, Da
 // ---------------------------------------------------------------- track record
 
 TrackRecord::TrackRecord(const Rule& rule, const Inputs& inputs, const market::Series& series)
-    : rule_(rule), series_(series), forward_(series) {
+    : rule_(rule), forward_(series) {
   ends_ = month_ends(series.trading_days(), series.next_trading_day(), series.from(), series.to());
   z_.resize(ends_.size());
   for (std::size_t k = 0; k < ends_.size(); ++k) {
@@ -140,6 +141,10 @@ TrackRecord::TrackRecord(const Rule& rule, const Inputs& inputs, const market::S
     for (const auto& l : screened.lines)
       if (l.z) z_[k].emplace(l.security_id, *l.z);
   }
+  std::set<std::int64_t> scored;
+  for (const auto& zs : z_)
+    for (const auto& [id, z] : zs) scored.insert(id);
+  scored_.assign(scored.begin(), scored.end());
 }
 
 Date TrackRecord::first_day(const TrackRecordRule& settings, Date from) {
@@ -177,8 +182,8 @@ const std::unordered_map<std::int64_t, double>& TrackRecord::returns(std::size_t
 std::unordered_map<std::int64_t, TrackStat> TrackRecord::at(Date day,
                                                             const TrackRecordRule& settings) const {
   std::unordered_map<std::int64_t, TrackStat> out;
-  for (const auto& zs : z_)
-    for (const auto& [id, z] : zs) out.emplace(id, TrackStat{});
+  out.reserve(scored_.size());
+  for (const std::int64_t id : scored_) out.emplace(id, TrackStat{});
   // The anchor: the latest month-end on or before the day.
   const auto after = std::upper_bound(ends_.begin(), ends_.end(), day);
   if (after == ends_.begin()) return out;

@@ -100,11 +100,11 @@ class TrackRecord {
                                                           TrackReturns mode) const;
 
   const Rule& rule_;
-  const market::Series& series_;
   ForwardReturns forward_;
   std::vector<Date> ends_;                                   // month-ends, ascending
   std::map<int, std::size_t> by_month_;                      // month index -> position in ends_
   std::vector<std::unordered_map<std::int64_t, double>> z_;  // per month-end
+  std::vector<std::int64_t> scored_;  // every name with a z on some month-end
   mutable std::map<std::tuple<std::size_t, int, int>, std::unordered_map<std::int64_t, double>>
       cache_;
 };
