@@ -4,6 +4,7 @@
 
 #include <algorithm>
 #include <limits>
+#include <memory>
 #include <set>
 #include <stdexcept>
 #include <type_traits>
@@ -450,8 +451,11 @@ StrategyRun simulate(const History& h, const rules::Rule& rule, const Request& r
                      const std::vector<Date>& rebalance, std::string label, bool report_progress,
                      std::vector<std::string>& notes) {
   rules::Inputs inputs(rule, h.market, h.currency);
-  std::optional<rules::TrackRecord> track;
-  if (rule.track_record) inputs.use(&track.emplace(rule, inputs, h.market));
+  std::unique_ptr<rules::TrackRecord> track;
+  if (rule.track_record) {
+    track = std::make_unique<rules::TrackRecord>(rule, inputs, h.market);
+    inputs.use(track.get());
+  }
   if (!req.frictionless) {
     OrderPool pool(h, inputs, rule, req.start_value, req.keep_trades);
     return simulate(h, rule, req, rebalance, std::move(label), report_progress, notes, pool,

@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <cmath>
 #include <map>
+#include <memory>
 #include <numeric>
 #include <stdexcept>
 #include <unordered_set>
@@ -29,9 +30,9 @@ void check_request(const SignalRequest& req) {
 }
 
 void by_name(const History& h, const rules::Rule& rule, const SignalRequest& req,
-             const rules::Inputs& inputs, std::optional<rules::TrackRecord>& track,
+             const rules::Inputs& inputs, std::unique_ptr<rules::TrackRecord>& track,
              SignalResult& res) {
-  if (!track) track.emplace(rule, inputs, h.market);
+  if (!track) track = std::make_unique<rules::TrackRecord>(rule, inputs, h.market);
   rules::TrackRecordRule settings = rule.track_record.value_or(rules::TrackRecordRule{});
   // The whole check is the window: every month from `from`'s to `to`'s.
   settings.window_months =
@@ -82,8 +83,11 @@ SignalResult signal(const History& h, const rules::Rule& rule, const SignalReque
     res.horizons.push_back(std::move(hr));
   }
   rules::Inputs inputs(rule, h.market, h.currency);
-  std::optional<rules::TrackRecord> track;
-  if (rule.track_record) inputs.use(&track.emplace(rule, inputs, h.market));
+  std::unique_ptr<rules::TrackRecord> track;
+  if (rule.track_record) {
+    track = std::make_unique<rules::TrackRecord>(rule, inputs, h.market);
+    inputs.use(track.get());
+  }
   for (Date day : starts) {
     const auto screened =
         rules::screen(rule, day, inputs.candidates(h.market, day, {}), rules::Explain::none);

@@ -4,6 +4,7 @@
 
 #include <algorithm>
 #include <map>
+#include <memory>
 #include <set>
 
 #include "core/error.h"
@@ -139,8 +140,8 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
   // The universe and the sleeves, checked before the ledger is replayed.
   Inputs inputs(rule, view, pool.front().currency);
   p.notes.insert(p.notes.end(), inputs.notes().begin(), inputs.notes().end());
-  std::optional<LedgerTrackRecord> track;
-  if (rule.track_record) track.emplace(db, rule, inputs, view, as_of);
+  std::unique_ptr<LedgerTrackRecord> track;
+  if (rule.track_record) track = std::make_unique<LedgerTrackRecord>(db, rule, inputs, view, as_of);
 
   // The pool's state on the as-of day.
   Replayer replayer(log);
