@@ -4,6 +4,7 @@
 
 #include <algorithm>
 #include <limits>
+#include <memory>
 #include <set>
 #include <stdexcept>
 #include <type_traits>
@@ -12,6 +13,7 @@
 #include "core/text.h"
 #include "ledger/actions.h"
 #include "rules/inputs.h"
+#include "rules/track_record.h"
 
 namespace keel::backtest {
 namespace {
@@ -448,7 +450,12 @@ StrategyRun simulate(const History& h, const rules::Rule& rule, const Request& r
 StrategyRun simulate(const History& h, const rules::Rule& rule, const Request& req,
                      const std::vector<Date>& rebalance, std::string label, bool report_progress,
                      std::vector<std::string>& notes) {
-  const rules::Inputs inputs(rule, h.market, h.currency);
+  rules::Inputs inputs(rule, h.market, h.currency);
+  std::unique_ptr<rules::TrackRecord> track;
+  if (rule.track_record) {
+    track = std::make_unique<rules::TrackRecord>(rule, inputs, h.market);
+    inputs.use(track.get());
+  }
   if (!req.frictionless) {
     OrderPool pool(h, inputs, rule, req.start_value, req.keep_trades);
     return simulate(h, rule, req, rebalance, std::move(label), report_progress, notes, pool,
@@ -562,6 +569,7 @@ rules::Rule baseline_rule(const rules::Rule& rule) {
   b.selection.by = rules::SelectBy::top_pct;
   b.selection.top_pct = Decimal(100);
   b.selection.exit_z.reset();
+  b.track_record.reset();
   b.weights.scheme = rules::Scheme::equal;
   b.weights.max_weight = Decimal(1);
   return b;

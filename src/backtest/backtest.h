@@ -178,8 +178,8 @@ struct Result {
   std::vector<std::string> cautions;
 };
 
-// The rule for the baseline: every name passing the screen, equal weights,
-// the same sleeves and trading settings.
+// The rule for the baseline: every name passing the screen (whatever its
+// track record), equal weights, the same sleeves and trading settings.
 rules::Rule baseline_rule(const rules::Rule& rule);
 
 Result run(store::Database& db, const rules::Rule& rule, const Request& request);

@@ -3,12 +3,12 @@
 #include <fmt/format.h>
 
 #include <algorithm>
-#include <set>
 
 #include "core/error.h"
 #include "core/text.h"
 #include "market/day_view.h"
 #include "rules/inputs.h"
+#include "rules/track_record.h"
 #include "store/ledger_store.h"
 
 namespace keel::backtest {
@@ -29,6 +29,14 @@ History load_history(store::Database& db, const std::vector<rules::Rule>& rules,
                      const std::vector<std::string>& extra) {
   const market::DayView catalog(db);
   const auto ledger_currency = store::ledger_currency(db);
+  // A track record looks back from the first decision day.
+  Date first = from;
+  for (const auto& rule : rules)
+    if (rule.track_record)
+      first = std::min(first, rules::TrackRecord::first_day(*rule.track_record, from));
+  std::vector<std::int64_t> extra_ids;
+  for (const auto& symbol : extra)
+    if (const Security* s = catalog.security(symbol)) extra_ids.push_back(s->id);
   market::Series::Request request;
   request.securities.emplace();
   std::optional<std::string> currency;
@@ -41,46 +49,29 @@ History load_history(store::Database& db, const std::vector<rules::Rule>& rules,
                       printable(rules.front().source), currency.value_or("no currency"),
                       printable(rules[i].source), inputs.currency().value_or("no currency")));
     currency = inputs.currency();
-    for (const auto id : inputs.securities()) request.securities->push_back(id);
     for (const auto& n : inputs.notes())
       if (std::find(notes.begin(), notes.end(), n) == notes.end()) notes.push_back(n);
-    const auto& metric = rules[i].screen.metric;
-    if (std::find(request.metrics.begin(), request.metrics.end(), metric) == request.metrics.end())
-      request.metrics.push_back(metric);
+    // The rule's universe, sleeves, extras and what their actions hand out,
+    // and its metrics.
+    const auto one = inputs.series_request(catalog, first, to, extra_ids);
+    request.securities->insert(request.securities->end(), one.securities->begin(),
+                               one.securities->end());
+    for (const auto& metric : one.metrics)
+      if (std::find(request.metrics.begin(), request.metrics.end(), metric) ==
+          request.metrics.end())
+        request.metrics.push_back(metric);
   }
-  for (const auto& symbol : extra)
-    if (const Security* s = catalog.security(symbol)) request.securities->push_back(s->id);
-  // What a merger or spin-off of a loaded name hands out must be priced too,
-  // in the universe or not (and so on, for an action of that name).
-  const auto actions = catalog.actions(std::nullopt, from, to);
   std::sort(request.securities->begin(), request.securities->end());
   request.securities->erase(std::unique(request.securities->begin(), request.securities->end()),
                             request.securities->end());
-  for (bool grew = true; grew;) {
-    grew = false;
-    std::set<std::int64_t> loaded(request.securities->begin(), request.securities->end());
-    for (const auto& a : actions)
-      if (a.target_id && loaded.count(a.security_id) && !loaded.count(*a.target_id)) {
-        request.securities->push_back(*a.target_id);
-        loaded.insert(*a.target_id);
-        grew = true;
-      }
-  }
-  request.from = from;
+  request.from = first;
   request.to = to;
   return History{market::Series::load(db, request), currency, std::move(notes)};
 }
 
 std::vector<Date> rebalance_days(const std::vector<Date>& trading_days, std::optional<Date> next,
                                  Date from, Date to, int every_months) {
-  std::vector<Date> month_last;
-  for (std::size_t i = 0; i < trading_days.size(); ++i) {
-    const Date d = trading_days[i];
-    const std::optional<Date> after =
-        i + 1 < trading_days.size() ? std::optional<Date>(trading_days[i + 1]) : next;
-    const bool last = !after || after->month() != d.month() || after->year() != d.year();
-    if (last && d >= from && d <= to) month_last.push_back(d);
-  }
+  const auto month_last = rules::month_ends(trading_days, next, from, to);
   std::vector<Date> out;
   for (std::size_t i = 0; i < month_last.size(); i += static_cast<std::size_t>(every_months))
     out.push_back(month_last[i]);

@@ -10,6 +10,8 @@
 //    distributions and corporate actions (market/series.h); and the
 //    securities that a merger or spin-off in [from, to] of a loaded name
 //    hands out, so that they can be valued while held.
+//    A rule with a [track_record] has the span start earlier, at
+//    rules::TrackRecord::first_day(), for the track record's look back.
 //    The rule trades in one currency (rules::Inputs): the ledger's when it
 //    has one, else the first sleeve's, else the one its universe shares; with
 //    none of these, a universe in several currencies is refused. Stocks left

@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <cmath>
 #include <map>
+#include <memory>
 #include <numeric>
 #include <stdexcept>
 #include <unordered_set>
@@ -14,52 +15,9 @@
 #include "ledger/actions.h"
 #include "perf/stats.h"
 #include "rules/inputs.h"
+#include "rules/track_record.h"
 
 namespace keel::backtest {
-namespace {
-
-std::vector<double> average_ranks(std::span<const double> x) {
-  std::vector<std::size_t> order(x.size());
-  std::iota(order.begin(), order.end(), 0);
-  std::sort(order.begin(), order.end(), [&](std::size_t a, std::size_t b) { return x[a] < x[b]; });
-  std::vector<double> rank(x.size());
-  for (std::size_t i = 0; i < order.size();) {
-    std::size_t j = i;
-    while (j + 1 < order.size() && x[order[j + 1]] == x[order[i]]) ++j;
-    const double r = (static_cast<double>(i) + static_cast<double>(j)) / 2 + 1;
-    for (std::size_t k = i; k <= j; ++k) rank[order[k]] = r;
-    i = j + 1;
-  }
-  return rank;
-}
-
-// A security's events in one timeline: on a day, splits, then corporate
-// actions, then distributions (the order the back-test applies them).
-struct Event {
-  Date day;
-  int rank = 0;       // 0 split, 1 corporate action, 2 distribution
-  double amount = 0;  // ratio, or cash per unit
-  const CorporateAction* action = nullptr;
-};
-
-}  // namespace
-
-std::optional<double> spearman(std::span<const double> x, std::span<const double> y) {
-  if (x.size() != y.size()) throw std::invalid_argument("spearman: unequal lengths");
-  if (x.size() < 2) return std::nullopt;
-  const auto rx = average_ranks(x), ry = average_ranks(y);
-  const double n = static_cast<double>(x.size());
-  const double mx = std::accumulate(rx.begin(), rx.end(), 0.0) / n;
-  const double my = std::accumulate(ry.begin(), ry.end(), 0.0) / n;
-  double sxy = 0, sxx = 0, syy = 0;
-  for (std::size_t i = 0; i < rx.size(); ++i) {
-    sxy += (rx[i] - mx) * (ry[i] - my);
-    sxx += (rx[i] - mx) * (rx[i] - mx);
-    syy += (ry[i] - my) * (ry[i] - my);
-  }
-  if (!(sxx > 0) || !(syy > 0)) return std::nullopt;
-  return sxy / std::sqrt(sxx * syy);
-}
 
 namespace {
 
@@ -69,6 +27,32 @@ void check_request(const SignalRequest& req) {
   for (int m : req.horizons)
     if (m < 1 || m > 240)
       throw InputError(fmt::format("--horizons: {} is not a number of months from 1 to 240", m));
+}
+
+void by_name(const History& h, const rules::Rule& rule, const SignalRequest& req,
+             const rules::Inputs& inputs, std::unique_ptr<rules::TrackRecord>& track,
+             SignalResult& res) {
+  if (!track) track = std::make_unique<rules::TrackRecord>(rule, inputs, h.market);
+  rules::TrackRecordRule settings = rule.track_record.value_or(rules::TrackRecordRule{});
+  // The whole check is the window: every month from `from`'s to `to`'s.
+  settings.window_months =
+      (req.to.year() - req.from.year()) * 12 + req.to.month() - req.from.month() + 1;
+  res.by_name_horizons = req.horizons;
+  if (rule.track_record && std::find(req.horizons.begin(), req.horizons.end(),
+                                     rule.track_record->horizon_months) == req.horizons.end())
+    res.by_name_horizons.push_back(rule.track_record->horizon_months);
+  std::map<std::string, NameRecord> names;
+  for (const std::int64_t id : inputs.universe())
+    names[h.security(id).symbol] = NameRecord{id, h.security(id).symbol, {}};
+  for (const int months : res.by_name_horizons) {
+    settings.horizon_months = months;
+    const auto stats = track->at(req.to, settings);
+    for (auto& [symbol, n] : names) {
+      const auto it = stats.find(n.security_id);
+      n.records.push_back(it == stats.end() ? rules::TrackStat{} : it->second);
+    }
+  }
+  for (auto& [symbol, n] : names) res.by_name.push_back(std::move(n));
 }
 
 }  // namespace
@@ -91,74 +75,28 @@ SignalResult signal(const History& h, const rules::Rule& rule, const SignalReque
   std::map<int, Date> by_month;  // year * 12 + month - 1
   for (Date d : month_last) by_month[d.year() * 12 + d.month() - 1] = d;
 
-  // Each security's splits, corporate actions and distributions in order.
-  std::unordered_map<std::int64_t, std::vector<Event>> events;
-  for (const auto& s : h.market.split_events())
-    events[s.security_id].push_back(Event{s.date, 0, s.ratio.to_double(), nullptr});
-  for (const auto& a : h.market.action_events())
-    events[a.security_id].push_back(Event{a.date, 1, 0, &a});
-  for (const auto& d : h.market.distribution_events())
-    events[d.security_id].push_back(Event{d.ex_date, 2, d.per_share.to_double(), nullptr});
-  for (auto& [id, ev] : events)
-    std::stable_sort(ev.begin(), ev.end(), [](const Event& a, const Event& b) {
-      return a.day != b.day ? a.day < b.day : a.rank < b.rank;
-    });
-  // A statistic, in doubles: the closes as the nearest doubles to the stored
-  // decimals (as scipy reads them).
-  const auto& m = h.market;
-  auto price = [&](std::int64_t id, Date day) {
-    const int c = m.column(id);
-    return c < 0 ? std::nan("") : m.value(m.row(day), c);
-  };
-  auto forward = [&](std::int64_t id, Date start, Date end) -> std::optional<double> {
-    const double p0 = price(id, start);
-    if (std::isnan(p0) || !(p0 > 0)) return std::nullopt;
-    // Units of the name, cash paid, and what spin-offs handed out (valued at
-    // the end).
-    double units = 1, cash = 0;
-    std::vector<std::pair<std::int64_t, double>> other;
-    auto value_of_others = [&](Date day) {
-      double v = 0;
-      for (const auto& [t, u] : other) v += u * price(t, day);
-      return v;
-    };
-    if (auto it = events.find(id); it != events.end())
-      for (const auto& e : it->second) {
-        if (e.day <= start || e.day > end) continue;
-        if (e.rank == 0) {
-          units *= e.amount;
-        } else if (e.rank == 2) {
-          cash += units * e.amount;
-        } else {
-          const UnitEffect u = unit_effect(*e.action);
-          if (!u.target_units.is_zero())
-            other.emplace_back(*e.action->target_id, units * u.target_units.to_double());
-          cash += units * u.cash.to_double();
-          units *= u.keeps.to_double();
-          // Off the market: the window ends here, at what the action paid.
-          if (u.keeps.is_zero()) {
-            const double v = cash + value_of_others(e.day);
-            if (std::isnan(v)) return std::nullopt;
-            return v / p0 - 1;
-          }
-        }
-      }
-    const double p1 = price(id, end);
-    const double v = units * p1 + cash + value_of_others(end);
-    if (std::isnan(v)) return std::nullopt;
-    return v / p0 - 1;
-  };
+  const rules::ForwardReturns forward(h.market);
 
   for (int months : req.horizons) {
     HorizonResult hr;
     hr.months = months;
     res.horizons.push_back(std::move(hr));
   }
-  const rules::Inputs inputs(rule, h.market, h.currency);
+  rules::Inputs inputs(rule, h.market, h.currency);
+  std::unique_ptr<rules::TrackRecord> track;
+  if (rule.track_record) {
+    track = std::make_unique<rules::TrackRecord>(rule, inputs, h.market);
+    inputs.use(track.get());
+  }
   for (Date day : starts) {
     const auto screened =
         rules::screen(rule, day, inputs.candidates(h.market, day, {}), rules::Explain::none);
-    if (screened.refusal) {
+    // A day on which the rule selects nothing still ranks its names: the
+    // coefficient does not depend on the threshold. Without z's there is
+    // nothing to rank.
+    const bool scored = std::any_of(screened.lines.begin(), screened.lines.end(),
+                                    [](const rules::ScreenLine& l) { return l.z.has_value(); });
+    if (!scored) {
       res.notes.push_back(fmt::format("{}: skipped: {}", day.str(), screened.refusal->text(rule)));
       continue;
     }
@@ -167,7 +105,7 @@ SignalResult signal(const History& h, const rules::Rule& rule, const SignalReque
       if (end_it == by_month.end()) continue;
       std::vector<double> z, fwd;
       for (const auto& l : screened.lines) {
-        if (!l.passed) continue;
+        if (!l.z || !l.track_ok) continue;
         const auto r = forward(l.security_id, day, end_it->second);
         if (!r) continue;
         z.push_back(*l.z);
@@ -190,6 +128,7 @@ SignalResult signal(const History& h, const rules::Rule& rule, const SignalReque
       hr.days.push_back(sd);
     }
   }
+  if (req.by_name) by_name(h, rule, req, inputs, track, res);
   for (auto& hr : res.horizons) {
     std::vector<double> ics;
     double spread = 0;

@@ -25,8 +25,16 @@
 //    names, at least one) minus that of the dearest fifth.
 //  - Per horizon: mean IC, its t-statistic mean / (sd / sqrt(days)) with the
 //    sample sd (nullopt for fewer than two days or no spread), the share of
-//    days with the expected sign, and the mean spread. Days whose screen
-//    refuses (too few names) are skipped with a note.
+//    days with the expected sign, and the mean spread. A day on which the
+//    rule selects nothing still counts (the coefficient does not depend on
+//    the threshold); days without z's (too few names, no spread) are skipped
+//    with a note. With a [track_record], only names it lets through are
+//    paired (rules/track_record.h, point in time).
+//  - by_name: each universe name's track record (rules/track_record.h) on
+//    `to`, per horizon (the request's, and the rule's [track_record] horizon
+//    when it has one): the pairs of every month-end in [from, to] whose
+//    horizon ends by `to`, with the rule's method and returns (else Pearson's
+//    r of relative returns).
 //  - Throws InputError naming the option for from > to, or a horizon outside
 //    1..240 months.
 #pragma once
@@ -38,6 +46,7 @@
 
 #include "backtest/history.h"
 #include "rules/rule.h"
+#include "rules/track_record.h"
 #include "store/database.h"
 
 namespace keel::backtest {
@@ -46,6 +55,15 @@ struct SignalRequest {
   Date from;
   Date to;
   std::vector<int> horizons{1, 3, 6, 12, 24};
+  bool by_name = false;  // also each name's track record per horizon
+};
+
+// A name's track record over the whole check, per horizon (in the order of
+// SignalResult::by_name_horizons).
+struct NameRecord {
+  std::int64_t security_id = 0;
+  std::string symbol;
+  std::vector<rules::TrackStat> records;
 };
 
 struct SignalDay {
@@ -67,6 +85,8 @@ struct SignalResult {
   std::string rule_name;
   Date from, to;
   std::vector<HorizonResult> horizons;
+  std::vector<int> by_name_horizons;
+  std::vector<NameRecord> by_name;  // by symbol; empty unless asked
   std::vector<std::string> notes;
   std::vector<std::string> cautions;
 };
@@ -75,9 +95,7 @@ SignalResult signal(store::Database& db, const rules::Rule& rule, const SignalRe
 // The same on preloaded history spanning [from, to].
 SignalResult signal(const History& history, const rules::Rule& rule, const SignalRequest& request);
 
-// Spearman's rank correlation (average ranks for ties); nullopt when fewer
-// than two pairs or either side has no spread. Throws std::invalid_argument
-// for unequal lengths.
-std::optional<double> spearman(std::span<const double> x, std::span<const double> y);
+// Spearman's rank correlation (rules/track_record.h).
+using rules::spearman;
 
 }  // namespace keel::backtest

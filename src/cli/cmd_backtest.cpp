@@ -203,7 +203,7 @@ void add_compare(CLI::App& app, Context& ctx) {
 
 struct SignalOptions {
   std::string rule, from, to, horizons = "1,3,6,12,24";
-  bool json = false;
+  bool json = false, by_name = false;
 };
 
 std::vector<int> horizons_option(const std::string& text) {
@@ -236,12 +236,16 @@ void add_signal(CLI::App& app, Context& ctx) {
   cmd->add_option("--from", o->from, "First day, YYYY-MM-DD")->required();
   cmd->add_option("--to", o->to, "Last day, YYYY-MM-DD")->required();
   cmd->add_option("--horizons", o->horizons, "Forward windows in months, comma-separated");
+  cmd->add_flag("--by-name", o->by_name,
+                "Also each name's track record per horizon: the correlation of its z with its "
+                "later returns over the period, and how many months it rests on");
   add_json_flag(*cmd, o->json);
   cmd->callback([&ctx, o] {
     backtest::SignalRequest req;
     req.from = date_value(o->from, "--from");
     req.to = date_value(o->to, "--to");
     req.horizons = horizons_option(o->horizons);
+    req.by_name = o->by_name;
     const auto rule = rules::load_rule(o->rule);
     auto db = ctx.open_ledger();
     const auto r = backtest::signal(db, rule, req);

@@ -398,7 +398,7 @@ std::string benchmark_cell(const std::vector<std::optional<Decimal>>& curve, std
 std::string signal_json(const backtest::SignalResult& r) {
   std::string s;
   JsonWriter j(s);
-  begin_document(j, "signal", 1);
+  begin_document(j, "signal", 2);
   j.member("rule", r.rule_name).member("from", r.from.str()).member("to", r.to.str());
   j.member("sign_convention",
            "IC = Spearman(z, forward return); low z is cheap, so a rule whose cheap names do "
@@ -420,6 +420,19 @@ std::string signal_json(const backtest::SignalResult& r) {
     j.end_object();
   }
   j.end_array();
+  if (!r.by_name.empty()) {
+    j.key("by_name").begin_array();
+    for (const auto& n : r.by_name) {
+      j.begin_object().member("symbol", n.symbol).key("records").begin_array();
+      for (std::size_t i = 0; i < n.records.size(); ++i) {
+        j.begin_object().member("months", r.by_name_horizons[i]);
+        j.member("correlation", n.records[i].correlation);
+        j.member("observations", n.records[i].observations).end_object();
+      }
+      j.end_array().end_object();
+    }
+    j.end_array();
+  }
   j.member("notes", r.notes).member("cautions", r.cautions);
   j.end_object();
   return s + "\n";
@@ -442,6 +455,27 @@ std::string signal_text(const backtest::SignalResult& r, const Style& style) {
                h.t_stat ? fmt::format("{:.2f}", *h.t_stat) : "n/a", pct(h.share_expected_sign),
                pct(h.mean_spread)});
   s += t.render(style);
+  if (!r.by_name.empty()) {
+    s += fmt::format(
+        "\nTrack record by name on {}: correlation of z with the later return (r) over the "
+        "months it rests on (n), per horizon in months.\n",
+        r.to.str());
+    std::vector<Table::Column> columns{{"symbol"}};
+    for (const int months : r.by_name_horizons) {
+      columns.push_back({fmt::format("r {}", months), Align::right});
+      columns.push_back({fmt::format("n {}", months), Align::right});
+    }
+    Table names(std::move(columns));
+    for (const auto& n : r.by_name) {
+      std::vector<std::string> row{n.symbol};
+      for (const auto& rec : n.records) {
+        row.push_back(rec.correlation ? z_text(rec.correlation) : "n/a");
+        row.push_back(std::to_string(rec.observations));
+      }
+      names.add_row(std::move(row));
+    }
+    s += names.render(style);
+  }
   return s + notes_and_cautions(r.notes, r.cautions);
 }
 

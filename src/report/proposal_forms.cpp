@@ -2,6 +2,9 @@
 
 #include <fmt/format.h>
 
+#include <algorithm>
+#include <cmath>
+
 #include "core/json.h"
 #include "core/text.h"
 #include "report/format.h"
@@ -25,6 +28,17 @@ void screen_json(JsonWriter& j, const rules::ScreenResult& screen) {
       j.key("value").null().key("period").null().key("known_on").null().key("age_days").null();
     }
     j.member("z", l.z);
+    if (!screen.scored_metrics.empty()) {  // several metrics, or within groups
+      j.key("metric_z").begin_object();
+      for (std::size_t m = 0; m < screen.scored_metrics.size(); ++m)
+        j.member(screen.scored_metrics[m],
+                 m < l.metric_z.size() ? l.metric_z[m] : std::optional<double>());
+      j.end_object();
+    }
+    if (!screen.within.empty()) j.member("group", l.group);
+    if (l.track)  // only a rule with a [track_record] has these
+      j.member("track_correlation", l.track->correlation)
+          .member("track_observations", l.track->observations);
     j.member("held", l.held).member("selected", l.selected);
     if (l.passed)
       j.key("excluded_reason").null();
@@ -86,27 +100,68 @@ void result_json(JsonWriter& j, const rules::OrderPlan& plan) {
 
 std::string screen_text(const rules::ScreenResult& sc, const Style& style) {
   std::string s;
-  s += fmt::format("{} of {} names pass; mean {:.6g}, sd {:.6g}", sc.passed, sc.lines.size(),
-                   sc.mean, sc.sd);
+  if (sc.scored_metrics.empty()) {
+    s += fmt::format("{} of {} names pass; mean {:.6g}, sd {:.6g}", sc.passed, sc.lines.size(),
+                     sc.mean, sc.sd);
+  } else {
+    s += fmt::format("{} of {} names pass", sc.passed, sc.lines.size());
+    if (!sc.within.empty()) s += fmt::format("; each metric scored within its {}", sc.within);
+    for (const auto& m : sc.metrics) {
+      s += fmt::format("; {}: mean {:.6g}, sd {:.6g}", m.name, m.mean, m.sd);
+      if (m.clip_low) s += fmt::format(", clipped to [{:.6g}, {:.6g}]", *m.clip_low, *m.clip_high);
+    }
+    // The score's mean is zero but for rounding; "1.9e-17" reads as a bug.
+    s += fmt::format("; score: mean {:.6g}, sd {:.6g}", std::fabs(sc.mean) < 1e-9 ? 0.0 : sc.mean,
+                     sc.sd);
+  }
   if (sc.clip_low)
     s += fmt::format("; values clipped to [{:.6g}, {:.6g}]", *sc.clip_low, *sc.clip_high);
   s += fmt::format("; {} selected\n", sc.selected);
   // A narrow terminal shortens the why, then loses the period, the day the
   // figure was known and its age; the figure, z and the verdict stay.
-  Table screen({{"symbol"},
-                {"value", Align::right},
-                {"period", Align::left, false, 3},
-                {"age", Align::right, false, 1},
-                {"known on", Align::left, false, 2},
-                {"z", Align::right},
-                {"held"},
-                {"in/out"},
-                {"why", Align::left, true}});
-  for (const auto& l : sc.lines)
-    screen.add_row(
-        {l.symbol, l.figure ? l.figure->value.str() : "", l.figure ? l.figure->period.str() : "",
-         l.figure ? std::to_string(l.age_days) : "", l.figure ? l.figure->known_on.str() : "",
-         z_text(l.z), l.held ? "yes" : "", l.selected ? "in" : "out", l.note});
+  const bool track = std::any_of(sc.lines.begin(), sc.lines.end(),
+                                 [](const rules::ScreenLine& l) { return l.track.has_value(); });
+  std::vector<Table::Column> columns{{"symbol"},
+                                     {"value", Align::right},
+                                     {"period", Align::left, false, 3},
+                                     {"age", Align::right, false, 1},
+                                     {"known on", Align::left, false, 2},
+                                     {"z", Align::right}};
+  // Several metrics, or within groups: the group and each metric's z before
+  // the score's.
+  if (!sc.within.empty())
+    columns.insert(columns.begin() + 1, Table::Column{sc.within, Align::left, true, 4});
+  for (const auto& m : sc.scored_metrics)
+    columns.insert(columns.end() - 1, Table::Column{"z " + m, Align::right});
+  if (track) {
+    // The track record: correlation of past z's with later returns, and
+    // how many months it rests on.
+    columns.push_back({"record", Align::right});
+    columns.push_back({"months", Align::right});
+  }
+  for (std::string_view c : {"held", "in/out"}) columns.push_back({std::string(c)});
+  columns.push_back({"why", Align::left, true});
+  Table screen(std::move(columns));
+  for (const auto& l : sc.lines) {
+    std::vector<std::string> row{l.symbol,
+                                 l.figure ? l.figure->value.str() : "",
+                                 l.figure ? l.figure->period.str() : "",
+                                 l.figure ? std::to_string(l.age_days) : "",
+                                 l.figure ? l.figure->known_on.str() : "",
+                                 z_text(l.z)};
+    if (!sc.within.empty()) row.insert(row.begin() + 1, l.group ? *l.group : "");
+    for (std::size_t m = 0; m < sc.scored_metrics.size(); ++m)
+      row.insert(row.end() - 1,
+                 z_text(m < l.metric_z.size() ? l.metric_z[m] : std::optional<double>()));
+    if (track) {
+      row.push_back(l.track && l.passed ? z_text(l.track->correlation) : "");
+      row.push_back(l.track && l.passed ? std::to_string(l.track->observations) : "");
+    }
+    row.push_back(l.held ? "yes" : "");
+    row.push_back(l.selected ? "in" : "out");
+    row.push_back(l.note);
+    screen.add_row(std::move(row));
+  }
   s += screen.render(style) + "\n";
 
   return s;
@@ -172,7 +227,7 @@ std::string result_text(const rules::OrderPlan& plan, const Style& style) {
 std::string proposal_json(const rules::Proposal& p, std::optional<std::int64_t> saved_id) {
   std::string s;
   JsonWriter j(s);
-  begin_document(j, "propose", 1);
+  begin_document(j, "propose", 2);
   j.member("as_of", p.as_of.str());
   j.member("rule", p.rule_name);
   j.member("rule_sha256", p.rule_sha256);
@@ -206,7 +261,7 @@ std::string proposal_text(const rules::Proposal& p, const Style& style) {
 std::string plan_proposal_json(const rules::PlanProposal& p) {
   std::string s;
   JsonWriter j(s);
-  begin_document(j, "plan-proposal", 1);
+  begin_document(j, "plan-proposal", 2);
   j.member("as_of", p.as_of.str()).member("plan", p.plan_name);
   j.key("planned_cash").begin_array();
   for (const auto& c : p.planned)

@@ -51,6 +51,162 @@ bool by_symbol(const ScreenLine& a, const ScreenLine& b) {
   return a.symbol < b.symbol;
 }
 
+struct Stat {
+  double mean = 0, sd = 0;
+  std::optional<double> clip_low, clip_high;
+};
+
+// z-scores from the values of the lines `from` (winsorized first when asked,
+// then (x - mean) / sd with the sample sd), written to the lines `to`, whose
+// values are clipped to the same bounds. Unset when fewer than two values or
+// no spread.
+template <typename Value, typename Write>
+std::optional<Stat> standardise(std::vector<ScreenLine>& lines,
+                                const std::vector<std::size_t>& from,
+                                const std::vector<std::size_t>& to, Value value, Write write,
+                                std::optional<std::pair<double, double>> winsorize_pct) {
+  if (from.size() < 2) return std::nullopt;
+  Stat st;
+  std::vector<double> v;
+  for (const std::size_t i : from) v.push_back(value(lines[i]));
+  if (winsorize_pct) {
+    std::vector<double> sorted = v;
+    std::sort(sorted.begin(), sorted.end());
+    st.clip_low = percentile(sorted, winsorize_pct->first);
+    st.clip_high = percentile(sorted, winsorize_pct->second);
+    for (auto& x : v) x = std::clamp(x, *st.clip_low, *st.clip_high);
+  }
+  double sum = 0;
+  for (const double x : v) sum += x;
+  const double n = static_cast<double>(v.size());
+  st.mean = sum / n;
+  double ss = 0;
+  for (const double x : v) ss += (x - st.mean) * (x - st.mean);
+  st.sd = std::sqrt(ss / (n - 1));
+  if (!(st.sd > 0)) return std::nullopt;
+  for (const std::size_t i : to) {
+    double& x = value(lines[i]);
+    if (st.clip_low) x = std::clamp(x, *st.clip_low, *st.clip_high);
+    write(lines[i], (x - st.mean) / st.sd);
+  }
+  return st;
+}
+
+// Scores a screen of several metrics, or within groups: each line's
+// metric_z and its composite `value`. Lines that cannot be scored move to
+// `rest` with the reason. A metric without spread across the universe
+// refuses the screen.
+std::optional<Refusal> score_several(const Rule& rule, Date as_of, bool words,
+                                     std::vector<ScreenLine>& pass, std::vector<ScreenLine>& rest,
+                                     ScreenResult& out) {
+  const auto& s = rule.screen;
+  const auto metrics = s.metrics();
+  const std::string field(to_string(s.within));
+  std::vector<std::string> dropped(pass.size());  // the reason, when a line cannot be scored
+  std::vector<bool> drop(pass.size(), false);
+  // Who is scored against whom: (the lines the statistics come from, the
+  // lines given their z's).
+  std::vector<std::pair<std::vector<std::size_t>, std::vector<std::size_t>>> sets;
+  std::vector<std::size_t> all(pass.size());
+  for (std::size_t i = 0; i < all.size(); ++i) all[i] = i;
+  if (s.within == Within::universe) {
+    sets.emplace_back(all, all);
+  } else {
+    std::map<std::optional<std::string>, std::vector<std::size_t>> groups;
+    for (std::size_t i = 0; i < pass.size(); ++i) groups[pass[i].group].push_back(i);
+    std::vector<std::size_t> fallback;
+    for (const auto& [g, members] : groups) {
+      if (g && members.size() >= static_cast<std::size_t>(s.min_group_size)) {
+        sets.emplace_back(members, members);
+        continue;
+      }
+      if (s.small_groups == SmallGroups::whole_universe) {
+        fallback.insert(fallback.end(), members.begin(), members.end());
+        continue;
+      }
+      for (const std::size_t i : members) {
+        drop[i] = true;
+        if (words)
+          dropped[i] =
+              g ? fmt::format(
+                      "{} '{}' has {} name{} passing the screen, fewer than "
+                      "screen.min_group_size ({})",
+                      field, *g, members.size(), members.size() == 1 ? "" : "s", s.min_group_size)
+                : fmt::format("no {} to score it within", field);
+      }
+    }
+    if (!fallback.empty()) {
+      std::vector<std::size_t> every;
+      for (const std::size_t i : all)
+        if (!drop[i]) every.push_back(i);
+      sets.emplace_back(every, fallback);
+    }
+  }
+  for (auto& l : pass) l.metric_z.assign(metrics.size(), std::nullopt);
+  for (std::size_t m = 0; m < metrics.size(); ++m) {
+    const double sign = metrics[m].cheap == Cheap::low ? 1.0 : -1.0;
+    for (const auto& [from, to] : sets) {
+      auto has = [&](const std::vector<std::size_t>& idx) {
+        std::vector<std::size_t> kept;
+        for (const std::size_t i : idx)
+          if (pass[i].metric_values[m]) kept.push_back(i);
+        return kept;
+      };
+      const auto st = standardise(
+          pass, has(from), has(to), [m](ScreenLine& l) -> double& { return *l.metric_values[m]; },
+          [m, sign](ScreenLine& l, double z) { l.metric_z[m] = sign * z; }, s.winsorize_pct);
+      if (!st && s.within == Within::universe)
+        return Refusal{s.metric_list.empty() ? "screen.metric" : "screen.metrics",
+                       fmt::format("all {} names passing the screen on {} have the same '{}'; "
+                                   "z-scores need some spread",
+                                   from.size(), as_of.str(), metrics[m].name)};
+      if (st && s.within == Within::universe)
+        out.metrics.push_back(ScreenResult::MetricStat{metrics[m].name, st->mean, st->sd,
+                                                       st->clip_low, st->clip_high});
+    }
+  }
+  // The composite: the weighted mean of the metric z's a line has.
+  for (std::size_t i = 0; i < pass.size(); ++i) {
+    if (drop[i]) continue;
+    auto& l = pass[i];
+    double sum = 0, weights = 0;
+    std::string missing;
+    for (std::size_t m = 0; m < metrics.size(); ++m) {
+      if (l.metric_z[m]) {
+        sum += metrics[m].weight * *l.metric_z[m];
+        weights += metrics[m].weight;
+      } else if (l.metric_values[m] && missing.empty()) {
+        missing = metrics[m].name;  // a value, but no spread to score it against
+      }
+    }
+    if (weights > 0 && (s.if_missing == IfMissing::score_available || missing.empty())) {
+      l.value = sum / weights;
+      continue;
+    }
+    drop[i] = true;
+    if (words)
+      dropped[i] = fmt::format("no spread of '{}' among the names of its {} to score it against",
+                               missing.empty() ? metrics.front().name : missing, field);
+  }
+  std::vector<ScreenLine> kept;
+  for (std::size_t i = 0; i < pass.size(); ++i) {
+    if (!drop[i]) {
+      kept.push_back(std::move(pass[i]));
+      continue;
+    }
+    auto& l = pass[i];
+    l.passed = false;
+    l.metric_z.clear();
+    if (words) {
+      l.excluded_reason = std::move(dropped[i]);
+      l.note = "out: " + l.excluded_reason;
+    }
+    rest.push_back(std::move(l));
+  }
+  pass = std::move(kept);
+  return std::nullopt;
+}
+
 }  // namespace
 
 // ----------------------------------------------------------------- screen
@@ -68,29 +224,62 @@ ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candida
   const auto& s = rule.screen;
   std::vector<ScreenLine> pass, rest;
   pass.reserve(candidates.size());
+  const auto metrics = s.metrics();
+  const bool simple = metrics.size() == 1 && s.within == Within::universe;
+  // Whether a figure can be scored; `why` says why not.
+  auto usable = [&](const std::optional<Figure>& f, const std::string& metric, int& age,
+                    std::string& why) {
+    const std::string which = metrics.size() > 1 ? fmt::format("'{}' ", metric) : "";
+    if (!f) {
+      if (words) why = fmt::format("no '{}' figure known on {}", metric, as_of.str());
+      return false;
+    }
+    age = as_of - f->period;
+    if (age > s.max_age_days) {
+      if (words)
+        why = fmt::format("stale: the {}figure for {} is {} days old (max {})", which,
+                          f->period.str(), age, s.max_age_days);
+      return false;
+    }
+    if (s.exclude_non_positive && !f->value.is_positive()) {
+      if (words) why = fmt::format("{}not positive ({})", which, f->value.str());
+      return false;
+    }
+    return true;
+  };
   for (auto& c : candidates) {
     ScreenLine line;
     line.security_id = c.security_id;
     line.symbol = std::move(c.symbol);
     line.figure = std::move(c.figure);
     line.held = c.held;
-    const auto& f = line.figure;
+    line.track = c.track;
+    line.group = std::move(c.group);
     bool out_of_screen = true;
     if (c.ended) {
       if (words)
         line.excluded_reason =
             fmt::format("off the market since {} (merger or delisting)", c.ended->str());
-    } else if (!f) {
-      if (words)
-        line.excluded_reason = fmt::format("no '{}' figure known on {}", s.metric, as_of.str());
     } else {
-      line.age_days = as_of - f->period;
-      if (line.age_days > s.max_age_days) {
-        if (words)
-          line.excluded_reason = fmt::format("stale: the figure for {} is {} days old (max {})",
-                                             f->period.str(), line.age_days, s.max_age_days);
-      } else if (s.exclude_non_positive && !f->value.is_positive()) {
-        if (words) line.excluded_reason = fmt::format("not positive ({})", f->value.str());
+      std::size_t ok = 0;
+      std::string first_why, whys;
+      if (!simple) line.metric_values.resize(metrics.size());
+      for (std::size_t m = 0; m < metrics.size(); ++m) {
+        const auto& f = m == 0 ? line.figure : c.more.at(m - 1);
+        int age = 0;
+        std::string why;
+        if (usable(f, metrics[m].name, age, why)) {
+          ++ok;
+          if (!simple) line.metric_values[m] = f->value.to_double();
+        } else if (words) {
+          if (first_why.empty()) first_why = why;
+          whys += (whys.empty() ? "" : "; ") + why;
+        }
+        if (m == 0 && f) line.age_days = age;
+      }
+      const bool enough = s.if_missing == IfMissing::fail ? ok == metrics.size() : ok > 0;
+      if (!enough) {
+        if (words) line.excluded_reason = s.if_missing == IfMissing::fail ? first_why : whys;
       } else if (!c.has_price) {
         if (words) line.excluded_reason = fmt::format("no close on or before {}", as_of.str());
       } else {
@@ -99,7 +288,7 @@ ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candida
     }
     if (!out_of_screen) {
       line.passed = true;
-      line.value = f->value.to_double();
+      if (simple) line.value = line.figure->value.to_double();
       pass.push_back(std::move(line));
     } else {
       if (words) line.note = "out: " + line.excluded_reason;
@@ -126,7 +315,21 @@ ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candida
                               pass.size(), pass.size() == 1 ? "" : "s",
                               pass.size() == 1 ? "es" : "", as_of.str(), s.min_names));
 
-  if (s.winsorize_pct) {
+  if (!simple) {
+    for (const auto& m : metrics) out.scored_metrics.push_back(m.name);
+    if (s.within != Within::universe) out.within = std::string(to_string(s.within));
+    if (auto refusal = score_several(rule, as_of, words, pass, rest, out)) {
+      out.passed = pass.size();
+      return refuse(refusal->key, refusal->why);
+    }
+    out.passed = pass.size();
+    if (pass.size() < static_cast<std::size_t>(s.min_names))
+      return refuse(
+          "screen.min_names",
+          fmt::format("only {} name{} pass{} the screen on {}; the rule needs at least {}",
+                      pass.size(), pass.size() == 1 ? "" : "s", pass.size() == 1 ? "es" : "",
+                      as_of.str(), s.min_names));
+  } else if (s.winsorize_pct) {
     std::vector<double> sorted;
     for (const auto& l : pass) sorted.push_back(*l.value);
     std::sort(sorted.begin(), sorted.end());
@@ -135,21 +338,37 @@ ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candida
     for (auto& l : pass) l.value = std::clamp(*l.value, *out.clip_low, *out.clip_high);
   }
 
-  // Two passes (mean, then squared deviations): the textbook sample variance.
-  double sum = 0;
-  for (const auto& l : pass) sum += *l.value;
-  const double n = static_cast<double>(pass.size());
-  out.mean = sum / n;
-  double ss = 0;
-  for (const auto& l : pass) ss += (*l.value - out.mean) * (*l.value - out.mean);
-  out.sd = std::sqrt(ss / (n - 1));
-  if (!(out.sd > 0))
-    return refuse("screen.metric",
-                  fmt::format("all {} names passing the screen on {} have the same value; "
-                              "z-scores need some spread",
-                              pass.size(), as_of.str()));
-  const double sign = s.cheap == Cheap::low ? 1.0 : -1.0;
-  for (auto& l : pass) l.z = sign * (*l.value - out.mean) / out.sd;
+  if (!simple) {
+    // The composite: standardised again across the passing names.
+    std::vector<std::size_t> all(pass.size());
+    for (std::size_t i = 0; i < all.size(); ++i) all[i] = i;
+    const auto st = standardise(
+        pass, all, all, [](ScreenLine& l) -> double& { return *l.value; },
+        [](ScreenLine& l, double z) { l.z = z; }, std::nullopt);
+    if (!st)
+      return refuse(s.metric_list.empty() ? "screen.metric" : "screen.metrics",
+                    fmt::format("all {} names passing the screen on {} have the same score; "
+                                "z-scores need some spread",
+                                pass.size(), as_of.str()));
+    out.mean = st->mean;
+    out.sd = st->sd;
+  } else {
+    // Two passes (mean, then squared deviations): the textbook sample variance.
+    double sum = 0;
+    for (const auto& l : pass) sum += *l.value;
+    const double n = static_cast<double>(pass.size());
+    out.mean = sum / n;
+    double ss = 0;
+    for (const auto& l : pass) ss += (*l.value - out.mean) * (*l.value - out.mean);
+    out.sd = std::sqrt(ss / (n - 1));
+    if (!(out.sd > 0))
+      return refuse("screen.metric",
+                    fmt::format("all {} names passing the screen on {} have the same value; "
+                                "z-scores need some spread",
+                                pass.size(), as_of.str()));
+    const double sign = s.cheap == Cheap::low ? 1.0 : -1.0;
+    for (auto& l : pass) l.z = sign * (*l.value - out.mean) / out.sd;
+  }
   sort_lines(pass, [](const ScreenLine& a, const ScreenLine& b) {
     return *a.z != *b.z ? *a.z < *b.z : a.symbol < b.symbol;
   });
@@ -166,17 +385,41 @@ ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candida
     if (Decimal(static_cast<long long>(keep)) * Decimal(100) < want) ++keep;
     keep = std::max<std::size_t>(keep, 1);
   }
+  const auto& tr = rule.track_record;
+  std::size_t rank = 0;       // among the names the track record lets through
+  std::size_t held_back = 0;  // names that would enter but for their track record
   for (std::size_t i = 0; i < pass.size(); ++i) {
     auto& l = pass[i];
     const double z = *l.z;
-    const bool entered = sel.by == SelectBy::z ? z <= sel.z_max : i < keep;
+    std::string track_why;
+    if (tr) {
+      const auto& t = l.track;
+      l.track_ok = t && t->observations >= tr->min_observations && t->correlation &&
+                   *t->correlation <= tr->max_correlation;
+      if (words && !l.track_ok)
+        track_why =
+            !t ? "no track record"
+            : t->observations < tr->min_observations
+                ? fmt::format("track record of {} observation{}, fewer than {}", t->observations,
+                              t->observations == 1 ? "" : "s", tr->min_observations)
+            : !t->correlation
+                ? fmt::format("track record of {} observations has no spread", t->observations)
+                : fmt::format("track record {} > {} over {} observations", z_text(*t->correlation),
+                              z_text(tr->max_correlation), t->observations);
+    }
+    const bool would = sel.by == SelectBy::z ? z <= sel.z_max : rank < keep;
+    const bool entered = would && l.track_ok;
+    if (l.track_ok) ++rank;
+    if (would && !l.track_ok) ++held_back;
     auto test = [&] {
       return sel.by == SelectBy::z
-                 ? fmt::format("z = {} {} {}", z_text(z), entered ? "<=" : ">", z_text(sel.z_max))
-                 : fmt::format("z = {}, rank {} {} {}", z_text(z), i + 1, entered ? "<=" : ">",
-                               keep);
+                 ? fmt::format("z = {} {} {}", z_text(z), would ? "<=" : ">", z_text(sel.z_max))
+                 : fmt::format("z = {}, rank {} {} {}", z_text(z), l.track_ok ? rank : rank + 1,
+                               would ? "<=" : ">", keep);
     };
-    if (entered) {
+    if (!l.track_ok) {
+      if (words) l.note = test() + ", but its " + track_why;
+    } else if (entered) {
       l.selected = true;
       if (words) l.note = test();
     } else if (l.held && sel.exit_z && z <= *sel.exit_z) {
@@ -188,6 +431,20 @@ ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candida
       l.note = test();
     }
     if (l.selected) ++out.selected;
+  }
+  if (out.selected == 0 && held_back > 0) {
+    const auto failed = static_cast<std::size_t>(
+        std::count_if(pass.begin(), pass.end(), [](const ScreenLine& l) { return !l.track_ok; }));
+    return refuse("track_record.max_correlation",
+                  failed == pass.size()
+                      ? fmt::format("selects no name on {}: all {} names passing the screen fail "
+                                    "the track record (fewer than {} observations, or a "
+                                    "correlation above {})",
+                                    as_of.str(), pass.size(), tr->min_observations,
+                                    z_text(tr->max_correlation))
+                      : fmt::format("selects no name on {}: the track record keeps out all {} "
+                                    "name{} the screen would select",
+                                    as_of.str(), held_back, held_back == 1 ? "" : "s"));
   }
   if (out.selected == 0)
     return refuse("select.z_max",

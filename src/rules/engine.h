@@ -10,6 +10,19 @@
 //   values are cheap, so low z is always cheap. Selection then marks names:
 //   z <= z_max, the cheapest `count`, or the cheapest ceil(top_pct % of n);
 //   a held name that passes but is not selected stays while z <= exit_z.
+//   Several metrics (screen.metrics): each is checked (known, not stale,
+//   positive) and scored as above on its own; a name lacking one fails, or
+//   (if_missing = "score_available") is scored on the metrics it has. With
+//   screen.within the z of each metric runs within each group (sector or
+//   country) of at least min_group_size passing names; smaller groups fail,
+//   or (small_groups = "whole_universe") take z's from every passing name.
+//   The score is then the weighted mean of the metric z's, standardised
+//   again across the passing names; one metric without groups is the plain
+//   z above.
+//   With a [track_record], a passing name is selectable only when its track
+//   record has at least min_observations pairs and a correlation at most
+//   max_correlation (its z is computed across every passing name all the
+//   same, so a name's past z's do not depend on its past track records).
 //   Fewer than min_names passing, no spread, or nothing selected is a normal
 //   result: `refusal` names the rule key and says why, and nothing is
 //   selected.
@@ -45,6 +58,13 @@ struct Figure {
   Date known_on;  // the first day it could be known
 };
 
+// A name's track record on a day (rules/track_record.h): the correlation of
+// its past scores with its later returns, and how many pairs it rests on.
+struct TrackStat {
+  std::optional<double> correlation;  // unset when either side had no spread
+  int observations = 0;
+};
+
 struct Candidate {
   std::int64_t security_id = 0;
   std::string symbol;
@@ -53,6 +73,12 @@ struct Candidate {
   bool held = false;       // some account of the pool holds it
   // Off the market (a merger or delisting) since this day.
   std::optional<Date> ended;
+  std::optional<TrackStat> track;  // set when the rule has a [track_record]
+  // The figures of the screen's further metrics (ScreenRule::metrics() after
+  // the first), in order; empty for a screen of one metric.
+  std::vector<std::optional<Figure>> more;
+  // The name's value of the field the screen groups by (screen.within).
+  std::optional<std::string> group;
 };
 
 struct ScreenLine {
@@ -64,6 +90,13 @@ struct ScreenLine {
   std::optional<double> z;      // oriented: low = cheap
   bool held = false;
   bool passed = false;
+  std::optional<TrackStat> track;
+  bool track_ok = true;  // false: the track record keeps it from being selected
+  // A screen of several metrics, or within groups: each metric's value (after
+  // winsorizing) and oriented z, in ScreenRule::metrics() order; `value` is
+  // then the weighted mean of these z's.
+  std::vector<std::optional<double>> metric_values, metric_z;
+  std::optional<std::string> group;  // the name's sector or country (screen.within)
   bool selected = false;
   std::string excluded_reason;  // why it did not pass; empty when it passed
   std::string note;             // why it is, or is not, selected
@@ -86,6 +119,17 @@ struct ScreenResult {
   std::size_t selected = 0;
   double mean = 0, sd = 0;  // of the values z is computed from
   std::optional<double> clip_low, clip_high;
+  // A screen of several metrics across the universe: each metric's figures.
+  struct MetricStat {
+    std::string name;
+    double mean = 0, sd = 0;
+    std::optional<double> clip_low, clip_high;
+  };
+  std::vector<MetricStat> metrics;
+  // A screen of several metrics, or within groups: the metrics' names (the
+  // order of ScreenLine::metric_z) and the field grouped by ("" for none).
+  std::vector<std::string> scored_metrics;
+  std::string within;
 };
 
 // Explain::none leaves the notes and reasons of the lines (and the targets'

@@ -10,6 +10,7 @@
 #include "core/error.h"
 #include "core/text.h"
 #include "market/series.h"
+#include "rules/track_record.h"
 
 namespace keel::rules {
 
@@ -41,6 +42,7 @@ std::optional<std::string> keep_currency(const Rule& rule, const std::string& cu
 
 Inputs::Inputs(const Rule& rule, const market::View& view, std::optional<std::string> currency)
     : rule_(rule), currency_(std::move(currency)) {
+  for (const auto& m : rule.screen.metrics()) metrics_.push_back(m.name);
   auto find = [&](const std::string& symbol, std::string_view key) {
     const Security* s = view.security(symbol);
     if (!s) rule.fail(key, fmt::format("no security '{}' in the ledger", printable(symbol)));
@@ -92,17 +94,31 @@ Inputs::Inputs(const Rule& rule, const market::View& view, std::optional<std::st
   }
 
   const auto names = view.metric_names();
-  if (std::find(names.begin(), names.end(), rule.screen.metric) == names.end()) {
+  for (const auto& metric : rule.screen.metrics()) {
+    if (std::find(names.begin(), names.end(), metric.name) != names.end()) continue;
     std::string why =
-        fmt::format("the ledger holds no figures for metric '{}'", printable(rule.screen.metric));
-    if (auto near = nearest(rule.screen.metric, names))
+        fmt::format("the ledger holds no figures for metric '{}'", printable(metric.name));
+    if (auto near = nearest(metric.name, names))
       why += fmt::format("; did you mean '{}'?", printable(*near));
     else if (!names.empty())
       why += fmt::format(" (stored metrics: {})", printable_list(names));
     else
       why += "; import metrics first ('keel import metrics FILE')";
-    rule.fail("screen.metric", why);
+    rule.fail(rule.screen.metric_list.empty() ? "screen.metric" : "screen.metrics", why);
   }
+}
+
+std::optional<std::string> Inputs::group_of(const market::View& view, std::int64_t id) const {
+  const Security* s = view.security(id);
+  switch (rule_.screen.within) {
+    case Within::sector:
+      return s->sector;
+    case Within::country:
+      return s->country;
+    case Within::universe:
+      break;
+  }
+  return std::nullopt;
 }
 
 std::vector<std::int64_t> Inputs::securities() const {
@@ -111,14 +127,56 @@ std::vector<std::int64_t> Inputs::securities() const {
   return out;
 }
 
+market::Series::Request Inputs::series_request(const market::View& catalog, Date from, Date to,
+                                               std::vector<std::int64_t> extra) const {
+  market::Series::Request request;
+  request.securities = securities();
+  request.securities->insert(request.securities->end(), extra.begin(), extra.end());
+  // What a merger or spin-off of a loaded name hands out must be priced too,
+  // in the universe or not (and so on, for an action of that name).
+  const auto actions = catalog.actions(std::nullopt, from, to);
+  for (bool grew = true; grew;) {
+    grew = false;
+    std::set<std::int64_t> loaded(request.securities->begin(), request.securities->end());
+    for (const auto& a : actions)
+      if (a.target_id && loaded.count(a.security_id) && !loaded.count(*a.target_id)) {
+        request.securities->push_back(*a.target_id);
+        loaded.insert(*a.target_id);
+        grew = true;
+      }
+  }
+  request.from = from;
+  request.to = to;
+  for (const auto& m : rule_.screen.metrics()) request.metrics.push_back(m.name);
+  return request;
+}
+
 std::vector<Candidate> Inputs::candidates(const market::View& view, Date day,
                                           const std::set<std::int64_t>& held) const {
+  auto out = candidates_without_track(view, day, held);
+  if (track_) {
+    const auto stats = track_->at(day);
+    for (auto& c : out) {
+      const auto it = stats.find(c.security_id);
+      c.track = it == stats.end() ? TrackStat{} : it->second;
+    }
+  }
+  return out;
+}
+
+std::vector<Candidate> Inputs::candidates_without_track(const market::View& view, Date day,
+                                                        const std::set<std::int64_t>& held) const {
   std::vector<Candidate> out;
   out.reserve(universe_.size());
   if (const auto* series = dynamic_cast<const market::Series*>(&view)) {
-    // Preloaded: the figures by the series' cursor, closes from the grid.
+    // Preloaded: the figures by the series' cursors, closes from the grid.
     auto& figures = series->cursor(rule_.screen.metric);
     figures.advance_to(day);
+    std::vector<market::Series::FigureCursor*> more;
+    for (std::size_t m = 1; m < metrics_.size(); ++m) {
+      more.push_back(&series->cursor(metrics_[m]));
+      more.back()->advance_to(day);
+    }
     const std::size_t row = series->row(day);
     for (std::size_t i = 0; i < universe_.size(); ++i) {
       const std::int64_t id = universe_[i];
@@ -130,10 +188,16 @@ std::vector<Candidate> Inputs::candidates(const market::View& view, Date day,
       c.symbol = symbols_[i];
       c.held = held.count(id) > 0;
       c.ended = series->ended(id, day);
-      if (const auto* f = figures.at(col)) {
-        c.figure = Figure{f->value, f->period, f->known_on};
-        c.has_price = series->has(row, col);
+      if (const auto* f = figures.at(col)) c.figure = Figure{f->value, f->period, f->known_on};
+      bool any = c.figure.has_value();
+      for (auto* cursor : more) {
+        const auto* f = cursor->at(col);
+        c.more.push_back(f ? std::optional<Figure>(Figure{f->value, f->period, f->known_on})
+                           : std::nullopt);
+        any = any || f;
       }
+      if (any) c.has_price = series->has(row, col);
+      c.group = group_of(view, id);
       out.push_back(std::move(c));
     }
     return out;
@@ -145,10 +209,18 @@ std::vector<Candidate> Inputs::candidates(const market::View& view, Date day,
     c.symbol = symbols_[i];
     c.held = held.count(id) > 0;
     c.ended = view.ended(id, day);
-    if (auto f = view.figure(id, rule_.screen.metric, day)) {
+    if (auto f = view.figure(id, rule_.screen.metric, day))
       c.figure = Figure{std::move(f->value), f->period, f->known_on};
-      c.has_price = view.has_close(id, day);
+    bool any = c.figure.has_value();
+    for (std::size_t m = 1; m < metrics_.size(); ++m) {
+      auto f = view.figure(id, metrics_[m], day);
+      c.more.push_back(
+          f ? std::optional<Figure>(Figure{std::move(f->value), f->period, f->known_on})
+            : std::nullopt);
+      any = any || f;
     }
+    if (any) c.has_price = view.has_close(id, day);
+    c.group = group_of(view, id);
     out.push_back(std::move(c));
   }
   return out;

@@ -46,11 +46,14 @@
 #include <vector>
 
 #include "core/date.h"
+#include "market/series.h"
 #include "market/view.h"
 #include "rules/engine.h"
 #include "rules/rule.h"
 
 namespace keel::rules {
+
+class TrackRecord;
 
 struct Selection {
   ScreenResult screen;
@@ -73,6 +76,14 @@ class Inputs {
   const std::vector<std::string>& notes() const { return notes_; }
   // The universe and the sleeves: what a preloaded view must hold.
   std::vector<std::int64_t> securities() const;
+  // What a market::Series over [from, to] must load for the rule: the
+  // universe, the sleeves and `extra`, what a merger or spin-off in the span
+  // hands out (and so on), and the rule's metric.
+  market::Series::Request series_request(const market::View& catalog, Date from, Date to,
+                                         std::vector<std::int64_t> extra = {}) const;
+  // With a track record attached (rules/track_record.h), candidates() carry
+  // each name's track record for the day. The record must outlive the use.
+  void use(const TrackRecord* track) { track_ = track; }
 
   // What the engine may know on `day`: one candidate per universe name.
   std::vector<Candidate> candidates(const market::View& view, Date day,
@@ -91,11 +102,18 @@ class Inputs {
 
  private:
   const Rule& rule_;
+  std::vector<Candidate> candidates_without_track(const market::View& view, Date day,
+                                                  const std::set<std::int64_t>& held) const;
+
+  std::optional<std::string> group_of(const market::View& view, std::int64_t id) const;
+
+  std::vector<std::string> metrics_;  // the screen's, in order
   std::vector<std::int64_t> universe_;
   std::vector<std::string> symbols_;  // of the universe
   std::vector<std::int64_t> sleeves_;
   std::optional<std::string> currency_;
   std::vector<std::string> notes_;
+  const TrackRecord* track_ = nullptr;
 };
 
 // Inputs::quotes() without a rule: for names a plan holds outside any rule's

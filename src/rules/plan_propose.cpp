@@ -4,6 +4,7 @@
 
 #include <algorithm>
 #include <map>
+#include <memory>
 #include <set>
 
 #include "core/error.h"
@@ -13,6 +14,7 @@
 #include "market/day_view.h"
 #include "rules/inputs.h"
 #include "rules/propose.h"
+#include "rules/track_record.h"
 
 namespace keel::rules {
 namespace {
@@ -113,6 +115,7 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
     for (std::size_t i = 0; i < plan.parts.size(); ++i)
       if (plan.parts[i].pool == pi) parts.push_back(i);
     std::vector<std::optional<Inputs>> inputs(parts.size());
+    std::vector<std::unique_ptr<LedgerTrackRecord>> tracks(parts.size());
     std::map<std::int64_t, std::size_t> owner;  // security -> index into `parts`
     const TradingRule* trading = nullptr;
     static const TradingRule defaults;
@@ -121,6 +124,8 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
       std::vector<std::int64_t> ids;
       if (part.rule) {
         inputs[k].emplace(*part.rule, view, currency);
+        if (part.rule->track_record)
+          tracks[k] = std::make_unique<LedgerTrackRecord>(db, *part.rule, *inputs[k], view, as_of);
         p.notes.insert(p.notes.end(), inputs[k]->notes().begin(), inputs[k]->notes().end());
         ids = inputs[k]->securities();
         if (!trading) {

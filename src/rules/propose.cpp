@@ -4,6 +4,7 @@
 
 #include <algorithm>
 #include <map>
+#include <memory>
 #include <set>
 
 #include "core/error.h"
@@ -14,6 +15,7 @@
 #include "ledger/posting.h"
 #include "market/day_view.h"
 #include "rules/inputs.h"
+#include "rules/track_record.h"
 #include "store/ledger_store.h"
 
 namespace keel::rules {
@@ -136,8 +138,10 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
   const Date as_of = p.as_of;
 
   // The universe and the sleeves, checked before the ledger is replayed.
-  const Inputs inputs(rule, view, pool.front().currency);
+  Inputs inputs(rule, view, pool.front().currency);
   p.notes.insert(p.notes.end(), inputs.notes().begin(), inputs.notes().end());
+  std::unique_ptr<LedgerTrackRecord> track;
+  if (rule.track_record) track = std::make_unique<LedgerTrackRecord>(db, rule, inputs, view, as_of);
 
   // The pool's state on the as-of day.
   Replayer replayer(log);

@@ -42,6 +42,11 @@ constexpr KeyInfo kKeys[] = {
     {"screen.exclude_non_positive", "true"},
     {"screen.min_names", "5"},
     {"screen.winsorize_pct", "unset"},
+    {"screen.metrics", "unset"},
+    {"screen.if_missing", "\"fail\""},
+    {"screen.within", "unset"},
+    {"screen.min_group_size", "5"},
+    {"screen.small_groups", "\"fail\""},
     {"select", ""},
     {"select.by", "\"z\""},
     {"select.z_max", "-0.5"},
@@ -64,6 +69,13 @@ constexpr KeyInfo kKeys[] = {
     {"trading.fee_fixed", "0"},
     {"trading.fee_bps", "0"},
     {"trading.lot_order", "\"highest-cost\""},
+    {"track_record", ""},
+    {"track_record.window_months", "36"},
+    {"track_record.horizon_months", "12"},
+    {"track_record.max_correlation", "0"},
+    {"track_record.min_observations", "24"},
+    {"track_record.method", "\"pearson\""},
+    {"track_record.returns", "\"relative\""},
 };
 
 std::vector<std::string> keys_under(std::string_view table) {
@@ -95,7 +107,10 @@ class Reader {
 
   // Refuses keys not in the documented set, suggesting the nearest one.
   void only_known(const toml::table& t, std::string_view table) const {
-    const auto allowed = keys_under(table);
+    only_known(t, table, keys_under(table));
+  }
+  void only_known(const toml::table& t, std::string_view table,
+                  const std::vector<std::string>& allowed) const {
     for (const auto& [k, v] : t) {
       const std::string name(k.str());
       if (std::find(allowed.begin(), allowed.end(), name) != allowed.end()) continue;
@@ -231,6 +246,44 @@ class Reader {
   const toml::node* last_ = nullptr;
 };
 
+// screen.metrics: an array of inline tables { name, cheap, weight }.
+void read_metrics(Reader& r, Rule& rule, const toml::table& screen) {
+  const auto* n = screen.get("metrics");
+  if (!n) return;
+  r.seen("screen.metrics", *n);
+  const auto* a = n->as_array();
+  if (!a || a->empty() || !a->is_array_of_tables())
+    r.fail(*n, "screen.metrics",
+           "must be a list of metrics, e.g. [{ name = \"pe\", cheap = \"low\", weight = 1 }]");
+  for (const char* key : {"metric", "cheap"})
+    if (const auto* k = screen.get(key))
+      r.fail(*k, fmt::format("screen.{}", key),
+             "set the metric in screen.metrics when it is given, not here");
+  for (const auto& item : *a) {
+    const auto& t = *item.as_table();
+    r.only_known(t, "screen.metrics", {"name", "cheap", "weight"});
+    MetricSpec m;
+    const auto name = r.text(t, "screen.metrics", "name");
+    if (!name || name->empty() || name->size() > 60)
+      r.fail(item, "screen.metrics.name", "required: the metric's name, 1 to 60 characters");
+    m.name = *name;
+    for (const auto& other : rule.screen.metric_list)
+      if (other.name == m.name)
+        r.fail(item, "screen.metrics",
+               fmt::format("metric '{}' is listed twice", printable(m.name)));
+    if (auto c = r.choice<Cheap>(t, "screen.metrics", "cheap",
+                                 {{"low", Cheap::low}, {"high", Cheap::high}}))
+      m.cheap = *c;
+    if (auto w = r.number(t, "screen.metrics", "weight", Decimal(0), true, Decimal(1000), false))
+      m.weight = w->to_double();
+    rule.screen.metric_list.push_back(std::move(m));
+  }
+  // The rest of keel names the first metric (messages, what a series loads).
+  rule.lines["screen.metric"] = rule.lines["screen.metrics"];
+  rule.screen.metric = rule.screen.metric_list.front().name;
+  rule.screen.cheap = rule.screen.metric_list.front().cheap;
+}
+
 }  // namespace
 
 std::string_view to_string(SelectBy by) {
@@ -241,6 +294,18 @@ std::string_view to_string(SelectBy by) {
       return "count";
     case SelectBy::top_pct:
       return "top_pct";
+  }
+  return "";
+}
+
+std::string_view to_string(Within within) {
+  switch (within) {
+    case Within::universe:
+      return "universe";
+    case Within::sector:
+      return "sector";
+    case Within::country:
+      return "country";
   }
   return "";
 }
@@ -400,6 +465,36 @@ Rule parse_rule(std::string_view toml_text, std::string source) {
       rule.lines["screen.winsorize_pct"] = w->source().begin.line;
       rule.screen.winsorize_pct = std::pair{lo->to_double(), hi->to_double()};
     }
+    read_metrics(r, rule, *t);
+    if (auto m = r.choice<IfMissing>(
+            *t, "screen", "if_missing",
+            {{"fail", IfMissing::fail}, {"score_available", IfMissing::score_available}}))
+      rule.screen.if_missing = *m;
+    if (auto w = r.text(*t, "screen", "within")) {
+      const std::vector<std::string> fields{"sector", "country"};
+      if (*w == "sector")
+        rule.screen.within = Within::sector;
+      else if (*w == "country")
+        rule.screen.within = Within::country;
+      else if (auto near = nearest(*w, fields))
+        r.fail(
+            *t->get("within"), "screen.within",
+            fmt::format("securities have no field '{}'; did you mean '{}'?", printable(*w), *near));
+      else
+        r.fail(*t->get("within"), "screen.within",
+               fmt::format("securities have no field '{}'; z-scores can run within \"sector\" "
+                           "or \"country\"",
+                           printable(*w)));
+    }
+    if (auto v = r.integer(*t, "screen", "min_group_size", 2, 1000000))
+      rule.screen.min_group_size = static_cast<int>(*v);
+    if (auto g = r.choice<SmallGroups>(
+            *t, "screen", "small_groups",
+            {{"fail", SmallGroups::fail}, {"whole_universe", SmallGroups::whole_universe}}))
+      rule.screen.small_groups = *g;
+    for (std::string_view key : {"min_group_size", "small_groups"})
+      if (const auto* n = t->get(key); n && rule.screen.within == Within::universe)
+        r.fail(*n, fmt::format("screen.{}", key), "applies only with screen.within");
   }
 
   // select
@@ -513,6 +608,41 @@ Rule parse_rule(std::string_view toml_text, std::string source) {
                                      {"long-held", LotOrder::long_held},
                                      {"losses-first", LotOrder::losses_first}}))
       g.lot_order = *o;
+  }
+
+  // track record
+  if (const auto* t = r.table(root, "track_record")) {
+    TrackRecordRule tr;
+    if (auto v = r.integer(*t, "track_record", "window_months", 2, 600))
+      tr.window_months = static_cast<int>(*v);
+    if (auto v = r.integer(*t, "track_record", "horizon_months", 1, 240))
+      tr.horizon_months = static_cast<int>(*v);
+    if (auto v =
+            r.number(*t, "track_record", "max_correlation", Decimal(-1), false, Decimal(1), false))
+      tr.max_correlation = v->to_double();
+    if (auto v = r.integer(*t, "track_record", "min_observations", 3, 600))
+      tr.min_observations = static_cast<int>(*v);
+    if (auto m = r.choice<Correlation>(
+            *t, "track_record", "method",
+            {{"pearson", Correlation::pearson}, {"spearman", Correlation::spearman}}))
+      tr.method = *m;
+    if (auto m = r.choice<TrackReturns>(*t, "track_record", "returns",
+                                        {{"relative", TrackReturns::relative},
+                                         {"absolute", TrackReturns::absolute},
+                                         {"zscore", TrackReturns::zscore}}))
+      tr.returns = *m;
+    rule.track_record = tr;
+    if (tr.window_months < tr.horizon_months)
+      rule.fail("track_record.window_months",
+                fmt::format("{} months is shorter than track_record.horizon_months ({}); each "
+                            "observation's return must end inside the window",
+                            tr.window_months, tr.horizon_months));
+    if (tr.min_observations > tr.max_observations())
+      rule.fail("track_record.min_observations",
+                fmt::format("{} is more than the window allows: {} months less a horizon of {} "
+                            "leave at most {} monthly observations",
+                            tr.min_observations, tr.window_months, tr.horizon_months,
+                            std::max(0, tr.max_observations())));
   }
   return rule;
 }

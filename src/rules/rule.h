@@ -33,6 +33,8 @@ enum class Cheap { low, high };
 enum class SelectBy { z, count, top_pct };
 enum class Scheme { equal, tilt };
 enum class LotOrder { highest_cost, long_held, losses_first };
+enum class Correlation { pearson, spearman };
+enum class TrackReturns { relative, absolute, zscore };
 
 std::string_view to_string(SelectBy by);
 std::string_view to_string(LotOrder order);
@@ -42,9 +44,32 @@ struct Sleeve {
   Decimal weight;  // fraction of the pool's invested value, 0 < weight < 1
 };
 
-struct ScreenRule {
-  std::string metric = "pe";
+// One metric of a screen scoring several: its z-score counts with `weight`
+// in the name's score.
+struct MetricSpec {
+  std::string name;
   Cheap cheap = Cheap::low;
+  double weight = 1;  // above zero
+};
+enum class IfMissing { fail, score_available };
+enum class Within { universe, sector, country };
+enum class SmallGroups { fail, whole_universe };
+std::string_view to_string(Within within);
+
+struct ScreenRule {
+  std::string metric = "pe";  // the first of metrics()
+  Cheap cheap = Cheap::low;   // of the first metric
+  // screen.metrics when given; empty: the one `metric` above.
+  std::vector<MetricSpec> metric_list;
+  IfMissing if_missing = IfMissing::fail;  // a name lacking some metric's figure
+  Within within = Within::universe;        // z-scores within groups of this field
+  int min_group_size = 5;
+  SmallGroups small_groups = SmallGroups::fail;
+  // Every metric the screen scores, the single `metric` as a list of one.
+  std::vector<MetricSpec> metrics() const {
+    return metric_list.empty() ? std::vector<MetricSpec>{{metric, cheap, 1}} : metric_list;
+  }
+  bool several() const { return metric_list.size() > 1; }
   int max_age_days = 180;  // between a figure's period date and the as-of day
   bool exclude_non_positive = true;
   int min_names = 5;  // fewer names passing the screen is an error
@@ -67,6 +92,20 @@ struct WeightRule {
   Decimal max_weight{1};  // fraction of the pool's invested value per screened name
   std::vector<Sleeve> sleeves;
   Decimal sleeve_total() const;
+};
+
+// A name's track record: over its own past, does its score rank its later
+// returns? (rules/track_record.h computes it.)
+struct TrackRecordRule {
+  int window_months = 36;      // observations and their horizons fit in this many months
+  int horizon_months = 12;     // each observation's return runs this many months
+  double max_correlation = 0;  // kept while its correlation is at most this
+  int min_observations = 24;
+  Correlation method = Correlation::pearson;
+  TrackReturns returns = TrackReturns::relative;
+  // The most observations the window allows: one per month whose horizon
+  // ends inside it.
+  int max_observations() const { return window_months - horizon_months; }
 };
 
 struct TradingRule {
@@ -95,6 +134,7 @@ struct Rule {
   SelectionRule selection;
   WeightRule weights;
   TradingRule trading;
+  std::optional<TrackRecordRule> track_record;
   int rebalance_months = 1;
 
   // Line of each key given in the file ("select.z_max" -> 14).

@@ -94,3 +94,20 @@ def sound(path, keel_args=()):
                        env=dict(os.environ, NO_COLOR="1"), timeout=300)
     equal(p.returncode, 0, f"keel verify of {path}: {p.stderr}")
     return ledger_digest(path)[0]
+
+
+def write_market(folder, names, prices, metrics, sectors=None):
+    """securities.csv (invented stocks in USD), prices.csv (date, symbol,
+    close) and metrics.csv (date, symbol, metric, value, known_on) in
+    `folder`, for `keel import`; each name's sector from `sectors` (else
+    Tools)."""
+    with open(os.path.join(folder, "securities.csv"), "w") as f:
+        f.write("symbol,name,kind,currency,lot_size,sector\n")
+        f.writelines(f"{s},Invented {s},stock,USD,1,{(sectors or {}).get(s, 'Tools')}\n"
+                     for s in names)
+    with open(os.path.join(folder, "prices.csv"), "w") as f:
+        f.write("date,symbol,close\n")
+        f.writelines(",".join(row) + "\n" for row in prices)
+    with open(os.path.join(folder, "metrics.csv"), "w") as f:
+        f.write("date,symbol,metric,value,known_on\n")
+        f.writelines(",".join(row) + "\n" for row in metrics)

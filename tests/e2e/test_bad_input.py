@@ -515,6 +515,48 @@ row("propose: --repurchase-window below one day",
     ["propose", "--rule", "{d}/rule.toml", "--repurchase-window", "0"], INPUT,
     "keel: error: --repurchase-window: '0' days; give 1 or more (the window is off unless given)",
     {"rule.toml": b"[scope]\naccounts = [\"Alder Taxable\"]\n\n[select]\nz_max = -0.5\n"})
+RULE_HEAD = b"[scope]\naccounts = [\"Alder Taxable\"]\n"
+row("rule: a track-record window shorter than its horizon",
+    ["propose", "--rule", "{d}/track-1.toml"], INPUT,
+    "keel: error: {d}/track-1.toml:4: key 'track_record.window_months': 6 months is shorter than "
+    "track_record.horizon_months (12); each observation's return must end inside the window",
+    {"track-1.toml": RULE_HEAD + b"[track_record]\nwindow_months = 6\n"})
+row("rule: more track-record observations than the window allows",
+    ["backtest", "--rule", "{d}/track-2.toml", "--from", "2024-01-01", "--to", "2024-12-31"],
+    INPUT,
+    "keel: error: {d}/track-2.toml:5: key 'track_record.min_observations': 30 is more than the "
+    "window allows: 36 months less a horizon of 12 leave at most 24 monthly observations",
+    {"track-2.toml": RULE_HEAD + b"[track_record]\nhorizon_months = 12\nmin_observations = 30\n"})
+row("rule: a misspelt track-record key",
+    ["signal", "--rule", "{d}/track-3.toml", "--from", "2024-01-01", "--to", "2024-12-31"], INPUT,
+    "keel: error: {d}/track-3.toml:4: key 'track_record.max_corelation': unknown key; did you "
+    "mean 'max_correlation'?",
+    {"track-3.toml": RULE_HEAD + b"[track_record]\nmax_corelation = 0\n"})
+row("rule: a track-record method keel does not know",
+    ["propose", "--rule", "{d}/track-4.toml"], INPUT,
+    "keel: error: {d}/track-4.toml:4: key 'track_record.returns': 'excess' is not one of "
+    "\"relative\", \"absolute\", \"zscore\"",
+    {"track-4.toml": RULE_HEAD + b"[track_record]\nreturns = \"excess\"\n"})
+row("rule: a metric listed twice",
+    ["propose", "--rule", "{d}/metrics-1.toml"], INPUT,
+    "keel: error: {d}/metrics-1.toml:4: key 'screen.metrics': metric 'pe' is listed twice",
+    {"metrics-1.toml": RULE_HEAD + b'[screen]\nmetrics = [{ name = "pe" }, { name = "pe" }]\n'})
+row("rule: a metric weight at or below zero",
+    ["backtest", "--rule", "{d}/metrics-2.toml", "--from", "2024-01-01", "--to", "2024-12-31"],
+    INPUT,
+    "keel: error: {d}/metrics-2.toml:4: key 'screen.metrics.weight': -1 is out of range; must be "
+    "above 0 and at most 1000",
+    {"metrics-2.toml": RULE_HEAD + b'[screen]\nmetrics = [{ name = "pe", weight = -1 }]\n'})
+row("rule: scores within a field securities do not have",
+    ["signal", "--rule", "{d}/within-1.toml", "--from", "2024-01-01", "--to", "2024-12-31"], INPUT,
+    "keel: error: {d}/within-1.toml:4: key 'screen.within': securities have no field 'industry'; "
+    "z-scores can run within \"sector\" or \"country\"",
+    {"within-1.toml": RULE_HEAD + b'[screen]\nwithin = "industry"\n'})
+row("rule: a misspelt grouping field",
+    ["propose", "--rule", "{d}/within-2.toml"], INPUT,
+    "keel: error: {d}/within-2.toml:4: key 'screen.within': securities have no field 'sectors'; "
+    "did you mean 'sector'?",
+    {"within-2.toml": RULE_HEAD + b'[screen]\nwithin = "sectors"\n'})
 COMPARE_RULES = {"a.toml": b"[scope]\naccounts = [\"Alder Taxable\"]\n\n[select]\nz_max = -0.5\n",
                  "b.toml": b"[scope]\naccounts = [\"Alder Taxable\"]\n\n[select]\nz_max = -1\n"}
 row("compare: one rule file",

@@ -54,6 +54,7 @@ for what in ["accounts", "securities", "prices", "metrics", "distributions", "sp
              "transactions"]:
     demo.ok("import", what, os.path.join(DATA, f"{what}.csv"), *([] if what in ("accounts", "transactions") else ["--quiet"]))
 RULE = os.path.join(SOURCE, "examples", "demo", "rule.toml")
+TRACK_RULE = os.path.join(SOURCE, "examples", "demo", "rule-track-record.toml")
 demo.ok("propose", "--rule", RULE, "--as-of", "2025-11-28", "--save")
 PLAN = os.path.join(demo.dir.name, "plan.toml")
 with open(PLAN, "w") as f:
@@ -92,15 +93,18 @@ MORE = {
     "returns": [["returns", "--year", "2025", "--monthly"],
                 ["returns", "--from", "2025-12-01", "--to", "2025-12-31", "--account",
                  "Ardwyn Retirement", "--method", "dietz"]],
-    "propose": [["propose", "--rule", RULE, "--as-of", "2025-12-31", "--save"]],
+    "propose": [["propose", "--rule", RULE, "--as-of", "2025-12-31", "--save"],
+                ["propose", "--rule", TRACK_RULE, "--as-of", "2025-12-31"]],
     "backtest": [["backtest", "--rule", RULE, "--from", "2024-01-01", "--to", "2025-12-31",
                   "--frictionless"]],
     "statement": [["statement", "--year", "2016"]],
+    "signal": [["signal", "--rule", RULE, "--from", "2022-01-01", "--to", "2025-12-31",
+                "--by-name", "--horizons", "1,12"]],
     "compare": [["compare", RULE, os.path.join(SOURCE, "examples", "compare", "quarterly.toml"),
                  "--from", "2024-01-01", "--to", "2025-12-31", "--frictionless"]],
 }
 # Documents whose members changed since their first version.
-VERSIONS = {"backtest": 2}
+VERSIONS = {"backtest": 2, "propose": 2, "plan-proposal": 2, "signal": 2}
 ON_DEMO = {"returns", "propose", "plan-proposal", "proposals-list", "proposal", "backtest", "compare", "signal", "statement"}
 # The commands of the reference each report stands for.
 COMMANDS = {"holdings": "holdings", "lots": "lots", "gains": "gains", "history": "history",

@@ -81,7 +81,7 @@ plan = write(os.path.join(D, "household.toml"), PLAN.format(unmanaged=""))
 before = ledger_digest(led.path)
 
 doc = led.json("propose", "--plan", plan, "--deposit", "1000:Taxable")
-equal(doc["schema"], {"name": "keel.plan-proposal", "version": 1}, "schema tag")
+equal(doc["schema"], {"name": "keel.plan-proposal", "version": 2}, "schema tag")
 equal(doc["as_of"], "2026-01-30", "as of the latest close")
 equal(doc["planned_cash"], [{"account": "Taxable", "amount": "1000", "booked": False}],
       "the deposit is planned, not booked")

@@ -16,7 +16,7 @@ import pandas as pd
 from scipy import stats
 
 sys.path.insert(0, os.path.dirname(__file__))
-from keel_cli import Ledger  # noqa: E402
+from keel_cli import Ledger, write_market  # noqa: E402
 
 TOL = 1e-9
 NAMES = [f"Q{i:03d}" for i in range(25)]
@@ -50,13 +50,7 @@ def generate(folder, seed, strength):
             pe = np.round(rng.uniform(5, 40, len(NAMES)), 2)
             metrics += [(d.isoformat(), s, "pe", "%.2f" % v, d.isoformat()) for s, v in zip(NAMES, pe)]
             drift = -strength * (pe - pe.mean()) / pe.std(ddof=1)
-    with open(os.path.join(folder, "securities.csv"), "w") as f:
-        f.write("symbol,name,kind,currency,lot_size,sector\n")
-        f.writelines(f"{s},Invented {s},stock,USD,1,Tools\n" for s in NAMES)
-    pd.DataFrame(prices, columns=["date", "symbol", "close"]).to_csv(
-        os.path.join(folder, "prices.csv"), index=False)
-    pd.DataFrame(metrics, columns=["date", "symbol", "metric", "value", "known_on"]).to_csv(
-        os.path.join(folder, "metrics.csv"), index=False)
+    write_market(folder, NAMES, prices, metrics)
 
 
 def reference(folder, start, end, horizons):

@@ -278,6 +278,43 @@ TEST_CASE("backtest: frictionless doubles agree with the exact computation to 1e
   CHECK(binary.rule.perf.twr.period == doctest::Approx(exact.rule.perf.twr.period).epsilon(1e-12));
 }
 
+TEST_CASE("signal: a day on which the rule selects nothing still counts") {
+  Market m;
+  std::string text = kRule;
+  text.replace(text.find("z_max = -0.3"), 12, "z_max = -9.0");
+  bt::SignalRequest req;
+  req.from = day("2024-01-01");
+  req.to = day("2024-04-30");
+  req.horizons = {1};
+  const auto r = bt::signal(m.f.db, keel::rules::parse_rule(text, "test.toml"), req);
+  // Month-ends of January to March have a month-end a month later.
+  CHECK(r.horizons.at(0).days.size() == 3);
+  CHECK(r.notes.empty());
+}
+
+TEST_CASE("signal: by name gives each name's track record per horizon and the rule's") {
+  Market m;
+  const std::string text = std::string(kRule) +
+                           "[track_record]\nwindow_months = 6\nhorizon_months = 2\n"
+                           "min_observations = 3\n";
+  bt::SignalRequest req;
+  req.from = day("2024-01-01");
+  req.to = day("2024-04-30");
+  req.horizons = {1};
+  req.by_name = true;
+  const auto r = bt::signal(m.f.db, keel::rules::parse_rule(text, "test.toml"), req);
+  CHECK(r.by_name_horizons == std::vector<int>{1, 2});
+  REQUIRE(r.by_name.size() == 8);
+  CHECK(r.by_name.front().symbol == "S0");
+  CHECK(r.by_name.back().symbol == "S7");
+  // The check's four months: January to March end a month later inside
+  // them, January and February two months later.
+  for (const auto& n : r.by_name) {
+    CHECK(n.records.at(0).observations == 3);
+    CHECK(n.records.at(1).observations == 2);
+  }
+}
+
 TEST_CASE("compare: each rule's figures are those of its own back-test") {
   Market m;
   const auto rules = two_rules();

@@ -179,3 +179,95 @@ TEST_CASE("fee estimate: fixed plus basis points, to the cent") {
   CHECK(t.fee(Decimal::parse("1234.5")) == Decimal::parse("1.62"));  // 1 + 0.61725
   CHECK(t.fee(Decimal()) == Decimal());
 }
+
+TEST_CASE("rule file: a track record takes its documented defaults") {
+  const Rule r = parse(std::string(kMinimal) + "[track_record]\n");
+  REQUIRE(r.track_record);
+  CHECK(r.track_record->window_months == 36);
+  CHECK(r.track_record->horizon_months == 12);
+  CHECK(r.track_record->max_correlation == 0);
+  CHECK(r.track_record->min_observations == 24);
+  CHECK(r.track_record->method == Correlation::pearson);
+  CHECK(r.track_record->returns == TrackReturns::relative);
+  CHECK_FALSE(parse(kMinimal).track_record);
+}
+
+TEST_CASE("rule file: a track record reads every key") {
+  const Rule r = parse(std::string(kMinimal) +
+                       "[track_record]\nwindow_months = 24\nhorizon_months = 3\n"
+                       "max_correlation = -0.1\nmin_observations = 12\nmethod = \"spearman\"\n"
+                       "returns = \"zscore\"\n");
+  CHECK(r.track_record->window_months == 24);
+  CHECK(r.track_record->horizon_months == 3);
+  CHECK(r.track_record->max_correlation == -0.1);
+  CHECK(r.track_record->min_observations == 12);
+  CHECK(r.track_record->method == Correlation::spearman);
+  CHECK(r.track_record->returns == TrackReturns::zscore);
+}
+
+TEST_CASE("rule file: a track-record window shorter than its horizon is refused") {
+  refused(std::string(kMinimal) + "[track_record]\nwindow_months = 6\nhorizon_months = 12\n",
+          "r.toml:4: key 'track_record.window_months': 6 months is shorter than "
+          "track_record.horizon_months (12); each observation's return must end inside the "
+          "window");
+}
+
+TEST_CASE("rule file: more track-record observations than the window allows are refused") {
+  refused(std::string(kMinimal) + "[track_record]\nwindow_months = 30\n",
+          "r.toml: key 'track_record.min_observations' (default 24): 24 is more than the window "
+          "allows: 30 months less a horizon of 12 leave at most 18 monthly observations");
+  refused(std::string(kMinimal) + "[track_record]\nmin_observations = 30\n",
+          "r.toml:4: key 'track_record.min_observations': 30 is more than the window allows: 36 "
+          "months less a horizon of 12 leave at most 24 monthly observations");
+}
+
+TEST_CASE("rule file: a misspelt track-record key suggests the nearest") {
+  refused(std::string(kMinimal) + "[track_record]\nwindow_month = 36\n",
+          "r.toml:4: key 'track_record.window_month': unknown key; did you mean 'window_months'?");
+  refused(std::string(kMinimal) + "[track_record]\nmethod = \"kendall\"\n",
+          "r.toml:4: key 'track_record.method': 'kendall' is not one of \"pearson\", "
+          "\"spearman\"");
+}
+
+TEST_CASE("rule file: the single metric is a list of one") {
+  const Rule r = parse(std::string(kMinimal) + "[screen]\nmetric = \"ey\"\ncheap = \"high\"\n");
+  REQUIRE(r.screen.metrics().size() == 1);
+  CHECK(r.screen.metrics()[0].name == "ey");
+  CHECK(r.screen.metrics()[0].cheap == Cheap::high);
+  CHECK(r.screen.metrics()[0].weight == 1);
+}
+
+TEST_CASE("rule file: several metrics are read in order with their weights") {
+  const Rule r = parse(std::string(kMinimal) +
+                       "[screen]\nmetrics = [{ name = \"pe\" }, { name = \"ey\", cheap = "
+                       "\"high\", weight = 0.5 }]\n");
+  REQUIRE(r.screen.metrics().size() == 2);
+  CHECK(r.screen.metric == "pe");
+  CHECK(r.screen.metrics()[1].name == "ey");
+  CHECK(r.screen.metrics()[1].cheap == Cheap::high);
+  CHECK(r.screen.metrics()[1].weight == 0.5);
+}
+
+TEST_CASE("rule file: a metric listed twice is refused") {
+  refused(std::string(kMinimal) + "[screen]\nmetrics = [{ name = \"pe\" }, { name = \"pe\" }]\n",
+          "r.toml:4: key 'screen.metrics': metric 'pe' is listed twice");
+}
+
+TEST_CASE("rule file: a metric weight of zero is refused") {
+  refused(std::string(kMinimal) + "[screen]\nmetrics = [{ name = \"pe\", weight = 0 }]\n",
+          "r.toml:4: key 'screen.metrics.weight': 0 is out of range; must be above 0 and at "
+          "most 1000");
+}
+
+TEST_CASE("rule file: a misspelt key of a metric suggests the nearest") {
+  refused(std::string(kMinimal) + "[screen]\nmetrics = [{ name = \"pe\", wieght = 2 }]\n",
+          "r.toml:4: key 'screen.metrics.wieght': unknown key; did you mean 'weight'?");
+}
+
+TEST_CASE("rule file: within a field securities do not have is refused") {
+  refused(std::string(kMinimal) + "[screen]\nwithin = \"sectr\"\n",
+          "r.toml:4: key 'screen.within': securities have no field 'sectr'; did you mean "
+          "'sector'?");
+  refused(std::string(kMinimal) + "[screen]\nmin_group_size = 3\n",
+          "r.toml:4: key 'screen.min_group_size': applies only with screen.within");
+}

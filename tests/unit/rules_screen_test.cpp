@@ -203,3 +203,188 @@ TEST_CASE("selection: a threshold that selects nothing is a result with the reas
   CHECK(s.lines.front().symbol == "A");  // still in z order
   CHECK(*s.lines.front().z < *s.lines.back().z);
 }
+
+namespace {
+
+const char* kTrack = "[track_record]\nmin_observations = 20\nmax_correlation = -0.1\n";
+
+Candidate with_track(Candidate c, std::optional<double> correlation, int observations) {
+  c.track = TrackStat{correlation, observations};
+  return c;
+}
+
+}  // namespace
+
+TEST_CASE("track record: a name whose correlation is above the maximum is not selected") {
+  auto c = five();
+  for (auto& x : c) x = with_track(x, -0.5, 24);
+  c[0] = with_track(c[0], 0.2, 24);  // A, the cheapest
+  const auto r = screen(rule(kTrack), kAsOf, c);
+  CHECK_FALSE(line(r, "A").selected);
+  CHECK_FALSE(line(r, "A").track_ok);
+  CHECK(line(r, "A").note ==
+        "z = -1.26 <= -0.50, but its track record 0.20 > -0.10 over 24 "
+        "observations");
+  CHECK(line(r, "B").selected);
+}
+
+TEST_CASE("track record: a name with too few observations is not selected") {
+  auto c = five();
+  for (auto& x : c) x = with_track(x, -0.5, 24);
+  c[0] = with_track(c[0], -0.9, 19);
+  const auto r = screen(rule(kTrack), kAsOf, c);
+  CHECK_FALSE(line(r, "A").selected);
+  CHECK(line(r, "A").note ==
+        "z = -1.26 <= -0.50, but its track record of 19 observations, fewer than 20");
+}
+
+TEST_CASE("track record: z-scores still run across every passing name") {
+  auto c = five();
+  for (auto& x : c) x = with_track(x, 0.9, 24);
+  const auto r = screen(rule(kTrack), kAsOf, c);
+  CHECK(*line(r, "A").z == doctest::Approx(-4.0 / std::sqrt(10.0)).epsilon(1e-15));
+  CHECK(r.passed == 5);
+}
+
+TEST_CASE("track record: nothing selected for it names the track-record key") {
+  auto c = five();
+  for (auto& x : c) x = with_track(x, std::nullopt, 24);
+  const auto r = screen(rule(kTrack), kAsOf, c);
+  REQUIRE(r.refusal);
+  CHECK(r.refusal->key == "track_record.max_correlation");
+  CHECK(r.refusal->why ==
+        "selects no name on 2024-05-31: all 5 names passing the screen fail the track record "
+        "(fewer than 20 observations, or a correlation above -0.10)");
+  CHECK(line(r, "A").note ==
+        "z = -1.26 <= -0.50, but its track record of 24 observations has "
+        "no spread");
+}
+
+TEST_CASE("track record: names kept out that the threshold would select are counted") {
+  auto c = five();
+  for (auto& x : c) x = with_track(x, -0.5, 24);
+  c[0] = with_track(c[0], 0.5, 24);
+  c[1] = with_track(c[1], 0.5, 24);
+  const auto r = screen(rule(kTrack), kAsOf, c);
+  REQUIRE(r.refusal);
+  CHECK(r.refusal->why ==
+        "selects no name on 2024-05-31: the track record keeps out all 2 names the screen "
+        "would select");
+}
+
+TEST_CASE("track record: by count the next name with a good record takes the place") {
+  auto c = five();
+  for (auto& x : c) x = with_track(x, -0.5, 24);
+  c[1] = with_track(c[1], 0.5, 24);  // B, second cheapest
+  const auto r =
+      screen(rule(std::string(kTrack) + "[select]\nby = \"count\"\ncount = 2\n"), kAsOf, c);
+  CHECK(line(r, "A").selected);
+  CHECK_FALSE(line(r, "B").selected);
+  CHECK(line(r, "C").selected);
+  CHECK(line(r, "C").note == "z = 0.00, rank 2 <= 2");
+}
+
+// Several metrics and groups. Expected values: pandas 1.5.3 (Debian 12
+// python3-pandas), z = (x - mean) / std(ddof=1) per metric, the weighted mean
+// of the metric z's, then standardised again the same way.
+namespace {
+
+Candidate with_more(Candidate c, std::optional<const char*> second, const char* group = nullptr) {
+  c.more.push_back(
+      second ? std::optional<Figure>(Figure{Decimal::parse(*second), Date::parse("2024-03-31"),
+                                            Date::parse("2024-04-30")})
+             : std::nullopt);
+  if (group) c.group = group;
+  return c;
+}
+
+const char* kTwo =
+    "[screen]\nmetrics = [{ name = \"pe\", weight = 2 }, { name = \"ey\", cheap = \"high\" }]\n";
+
+std::vector<Candidate> five_two() {
+  auto c = five();
+  const char* ey[] = {"0.10", "0.05", "0.20", "0.08", "0.07"};
+  for (std::size_t i = 0; i < c.size(); ++i) c[i] = with_more(c[i], ey[i]);
+  return c;
+}
+
+}  // namespace
+
+TEST_CASE("several metrics: the score is the weighted mean of their z's, standardised again") {
+  const auto r = screen(rule(kTwo), kAsOf, five_two());
+  const double expected[] = {-1.0965048705814815, -0.179290949140928, -0.7379229722996258,
+                             0.695837029750666, 1.3178817622713694};
+  for (int i = 0; i < 5; ++i)
+    CHECK(*line(r, std::string(1, static_cast<char>('A' + i))).z ==
+          doctest::Approx(expected[i]).epsilon(1e-12));
+  CHECK(*line(r, "A").metric_z.at(0) == doctest::Approx(-4.0 / std::sqrt(10.0)).epsilon(1e-15));
+  CHECK(r.scored_metrics == std::vector<std::string>{"pe", "ey"});
+}
+
+TEST_CASE("several metrics: a name missing one fails by default") {
+  auto c = five_two();
+  c.push_back(with_more(name("F", "9"), std::nullopt));
+  const auto r = screen(rule(kTwo), kAsOf, c);
+  CHECK_FALSE(line(r, "F").passed);
+  CHECK(line(r, "F").excluded_reason == "no 'ey' figure known on 2024-05-31");
+}
+
+TEST_CASE("several metrics: a name missing one is scored on what it has when the rule says so") {
+  auto c = five_two();
+  c.push_back(with_more(name("F", "9"), std::nullopt));
+  const auto r = screen(rule(std::string(kTwo) + "if_missing = \"score_available\"\n"), kAsOf, c);
+  CHECK(line(r, "F").passed);
+  CHECK(line(r, "F").z);
+  CHECK_FALSE(line(r, "F").metric_z.at(1));
+}
+
+TEST_CASE("several metrics: a stale second figure names its metric") {
+  auto c = five_two();
+  auto f = name("F", "9");
+  f.more.push_back(
+      Figure{Decimal::parse("0.1"), Date::parse("2023-01-31"), Date::parse("2023-02-28")});
+  c.push_back(f);
+  const auto r = screen(rule(kTwo), kAsOf, c);
+  CHECK(line(r, "F").excluded_reason ==
+        "stale: the 'ey' figure for 2023-01-31 is 486 days old (max 180)");
+}
+
+TEST_CASE("within sector: z-scores run within each sector, then across every name") {
+  std::vector<Candidate> c;
+  const char* values[] = {"6", "8", "10", "12", "14", "16"};
+  for (int i = 0; i < 6; ++i) {
+    auto n = name(std::string(1, static_cast<char>('A' + i)), values[i]);
+    n.group = i < 3 ? "Tools" : "Water";
+    c.push_back(n);
+  }
+  const auto r = screen(rule("[screen]\nwithin = \"sector\"\nmin_group_size = 3\n"), kAsOf, c);
+  // Within each sector -1, 0, 1; across the six sd = sqrt(4 / 5).
+  CHECK(*line(r, "A").metric_z.at(0) == doctest::Approx(-1.0).epsilon(1e-15));
+  CHECK(*line(r, "D").metric_z.at(0) == doctest::Approx(-1.0).epsilon(1e-15));
+  CHECK(*line(r, "D").z == doctest::Approx(-1.0 / std::sqrt(0.8)).epsilon(1e-15));
+  CHECK(r.within == "sector");
+}
+
+TEST_CASE("within sector: a sector smaller than min_group_size fails with the reason") {
+  auto c = five();
+  for (int i = 0; i < 5; ++i) c[static_cast<std::size_t>(i)].group = i < 3 ? "Tools" : "Water";
+  const auto r =
+      screen(rule("[screen]\nwithin = \"sector\"\nmin_group_size = 3\nmin_names = 2\n"), kAsOf, c);
+  CHECK_FALSE(line(r, "D").passed);
+  CHECK(line(r, "D").excluded_reason ==
+        "sector 'Water' has 2 names passing the screen, fewer than screen.min_group_size (3)");
+  CHECK(r.passed == 3);
+}
+
+TEST_CASE("within sector: a small sector can be scored against the whole universe") {
+  auto c = five();
+  for (int i = 0; i < 5; ++i) c[static_cast<std::size_t>(i)].group = i < 3 ? "Tools" : "Water";
+  const auto r = screen(rule("[screen]\nwithin = \"sector\"\nmin_group_size = 3\n"
+                             "small_groups = \"whole_universe\"\n"),
+                        kAsOf, c);
+  const double expected[] = {-1.5233734382102122, -0.41905817746174684, 0.6852570832867184,
+                             0.2793721183078313, 0.9778024140774094};
+  for (int i = 0; i < 5; ++i)
+    CHECK(*line(r, std::string(1, static_cast<char>('A' + i))).z ==
+          doctest::Approx(expected[i]).epsilon(1e-12));
+}
