@@ -98,7 +98,8 @@ void run_json(JsonWriter& j, std::string& text, const Emit& emit, const backtest
   j.end_object();
 }
 
-// The closing notes (when there are any) and cautions of a back-test or a signal check.
+}  // namespace
+
 std::string notes_and_cautions(const std::vector<std::string>& notes,
                                const std::vector<std::string>& cautions) {
   std::string s;
@@ -110,8 +111,6 @@ std::string notes_and_cautions(const std::vector<std::string>& notes,
   for (const auto& c : cautions) s += "  - " + c + "\n";
   return s;
 }
-
-}  // namespace
 
 std::string backtest_json(const backtest::Result& r) {
   std::string all;

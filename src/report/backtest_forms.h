@@ -13,6 +13,7 @@
 
 #include <functional>
 #include <string>
+#include <vector>
 
 #include "backtest/backtest.h"
 #include "backtest/signal.h"
@@ -27,6 +28,11 @@ std::string backtest_json(const backtest::Result& r);
 using Emit = std::function<void(const std::string&)>;
 void backtest_json(const backtest::Result& r, const Emit& emit);
 std::string backtest_curve_csv(const backtest::Result& r);
+
+// The closing notes (when there are any) and cautions of a back-test, a
+// signal check or a sweep.
+std::string notes_and_cautions(const std::vector<std::string>& notes,
+                               const std::vector<std::string>& cautions);
 
 std::string signal_text(const backtest::SignalResult& r, const Style& style);
 std::string signal_json(const backtest::SignalResult& r);

@@ -79,6 +79,8 @@ REPORTS = {
     "backtest": ["backtest", "--rule", RULE, "--from", "2024-01-01", "--to", "2025-12-31",
                  "--benchmark", "ZXTR"],
     "signal": ["signal", "--rule", RULE, "--from", "2024-01-01", "--to", "2025-12-31"],
+    "sweep": ["sweep", "--rule", RULE, "--from", "2024-01-01", "--to", "2025-12-31", "--vary",
+              "select.count=10,12", "--walk-forward", "12:6"],
     "statement": ["statement", "--year", "2025", "--benchmark", "ZXTR"],
     "actions": ["action", "list"],
     "reconcile": ["reconcile", os.path.join(work, "statement.csv"), "--date", "2024-06-30"],
@@ -93,15 +95,18 @@ MORE = {
     "backtest": [["backtest", "--rule", RULE, "--from", "2024-01-01", "--to", "2025-12-31",
                   "--frictionless"]],
     "statement": [["statement", "--year", "2016"]],
+    "sweep": [["sweep", "--rule", RULE, "--from", "2025-11-01", "--to", "2025-12-31", "--vary",
+               "select.count=10", "--frictionless"]],
 }
-ON_DEMO = {"returns", "propose", "plan-proposal", "proposals-list", "proposal", "backtest", "signal", "statement"}
+ON_DEMO = {"returns", "propose", "plan-proposal", "proposals-list", "proposal", "backtest", "signal", "sweep", "statement"}
 # The commands of the reference each report stands for.
 COMMANDS = {"holdings": "holdings", "lots": "lots", "gains": "gains", "history": "history",
             "accounts": "account list", "securities": "security list", "imports": "imports",
             "verify": "verify", "returns": "returns", "propose": "propose",
             "plan-proposal": "propose",
             "proposals-list": "proposals list", "proposal": "proposals show",
-            "backtest": "backtest", "signal": "signal", "statement": "statement",
+            "backtest": "backtest", "signal": "signal", "sweep": "sweep",
+            "statement": "statement",
             "actions": "action list", "changes": "changes", "reconcile": "reconcile"}
 
 runs = 0
