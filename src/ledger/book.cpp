@@ -84,7 +84,7 @@ Decimal AccountBook::foreign_balance(const std::string& currency) const {
 
 Book::Book(const std::vector<Account>& accounts,
            std::unordered_map<std::int64_t, std::string> pending,
-           std::shared_ptr<const market::FxRates> rates)
+           std::shared_ptr<const market::View> rates)
     : accounts_(accounts),
       books_(accounts.size()),
       rates_(std::move(rates)),

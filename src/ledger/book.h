@@ -26,8 +26,9 @@
 // lot method). A lot of a security in another currency carries its cost in
 // both currencies, fixed at purchase; a sale's gain in the account's
 // currency splits into a price part and a currency part; spending foreign
-// cash realizes its currency gain (FxRealized). Rates come from the log's
-// FxRates; a missing one throws InputError naming the pair and the day.
+// cash realizes its currency gain (FxRealized). Rates are the day's, asked of
+// the log's market::View; a missing one throws InputError naming the pair
+// and the day.
 //
 // Transfers of units are recorded as MovedCost entries: the cost basis that
 // left an account (transfer out) or arrived in one (transfer in: the carried
@@ -47,7 +48,7 @@
 
 #include "core/date.h"
 #include "core/decimal.h"
-#include "market/fx_rates.h"
+#include "market/view.h"
 #include "model/records.h"
 
 namespace keel {
@@ -127,7 +128,7 @@ class Book {
  public:
   explicit Book(const std::vector<Account>& accounts,
                 std::unordered_map<std::int64_t, std::string> pending = {},
-                std::shared_ptr<const market::FxRates> rates = nullptr);
+                std::shared_ptr<const market::View> rates = nullptr);
 
   void apply_split(const Split& split);
   void apply_action(const CorporateAction& action);  // ledger/actions.h
@@ -165,7 +166,7 @@ class Book {
   std::vector<RealizedPart> realized_;
   std::vector<MovedCost> moved_;
   std::vector<FxRealized> fx_realized_;
-  std::shared_ptr<const market::FxRates> rates_;
+  std::shared_ptr<const market::View> rates_;
 
   // Rows in another currency than the account's, and exchanges
   // (ledger/fx_cash.cpp). apply_foreign() returns false for a row it leaves
@@ -218,8 +219,9 @@ struct LedgerLog {
   // from ("broker.csv:12"; empty for a single command). Errors name them so,
   // not by an id that will not exist once the change is rolled back.
   std::unordered_map<std::int64_t, std::string> pending;
-  // Exchange rates for foreign-currency rows; unset: none stored.
-  std::shared_ptr<const market::FxRates> rates;
+  // The market view that answers exchange rates for foreign-currency rows
+  // (it borrows the ledger's Database); unset: none can be asked.
+  std::shared_ptr<const market::View> rates;
 };
 
 // Called after the last transaction of each day that has one (and each split

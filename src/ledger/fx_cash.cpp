@@ -35,7 +35,8 @@ void refuse_other_currencies(const LedgerLog& log, std::string_view what,
       if (a.id == t.account_id) name = a.name;
     throw InputError(fmt::format(
         "{}: account '{}' has rows in another currency (transaction {}, {} in {}); these "
-        "figures do not convert currencies yet ('keel holdings' and 'keel gains' do)",
+        "figures do not convert currencies yet ('keel holdings', 'keel gains' and 'keel returns' "
+        "do)",
         what, printable(name), t.id, to_string(t.kind), t.currency.value_or(*t.to_currency)));
   }
 }

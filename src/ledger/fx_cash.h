@@ -48,7 +48,7 @@ Decimal settle(const Decimal& amount, const Decimal& rate, const std::string& ac
 Decimal exchanged(const Decimal& amount, const Decimal& rate, const std::string& to_currency);
 
 // For the reports that value a whole ledger over time and do not convert
-// yet (returns, the statement, proposals): throws InputError naming `what`,
+// yet (the statement, proposals): throws InputError naming `what`,
 // the first live row in another currency than its account's (or an
 // exchange) and its account, so no figure adds two currencies. `accounts`
 // limits the rows looked at (all when empty).

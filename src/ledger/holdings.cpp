@@ -47,8 +47,7 @@ Holdings holdings(store::Database& db, Date as_of, const std::optional<std::stri
   auto convert = [&](const Decimal& amount, const std::string& from, const std::string& to,
                      const std::string& what) {
     try {
-      return std::make_pair(log.rates->convert(amount, from, to, as_of),
-                            log.rates->find(to, from, as_of));
+      return std::make_pair(view.convert(amount, from, to, as_of), view.rate(to, from, as_of));
     } catch (const InputError& e) {
       throw InputError(fmt::format("holdings: {}: {}", what, e.what()));
     }

@@ -6,7 +6,7 @@
 
 #include "core/error.h"
 #include "core/text.h"
-#include "market/fx_rates.h"
+#include "market/day_view.h"
 #include "model/security.h"
 #include "store/action_store.h"
 #include "store/ledger_store.h"
@@ -104,10 +104,14 @@ void settle_currency(store::Database& db, const PostRequest& r, const Account& a
 
 void check_direction(store::Database& db, std::string_view what, const std::string& base,
                      const std::string& quote, const Decimal& rate, Date day) {
-  const auto rates = market::FxRates::load(db);
-  const auto stored = rates.try_find(base, quote, day);
-  const auto reverse = rates.try_find(quote, base, day);
-  if (!stored || !reverse) return;
+  const market::DayView view(db);
+  std::optional<market::FxQuote> stored, reverse;
+  try {
+    stored = view.rate(base, quote, day);
+    reverse = view.rate(quote, base, day);
+  } catch (const InputError&) {
+    return;  // no stored rate to compare with
+  }
   // Each direction as stored where it is, so the message shows the file's figure.
   const Decimal inverse = reverse->rate;
   if ((rate - stored->rate).abs() <= (rate - inverse).abs()) return;
@@ -260,7 +264,7 @@ LedgerLog load_log(store::Database& db) {
   log.accounts = store::list_accounts(db);
   log.transactions = store::list_transactions(db);
   log.splits = store::list_splits(db);
-  log.rates = std::make_shared<const market::FxRates>(market::FxRates::load(db));
+  log.rates = std::make_shared<const market::DayView>(db);
   log.actions = store::list_actions(db);
   return log;
 }

@@ -1,6 +1,7 @@
 #include "market/day_view.h"
 
 #include "store/action_store.h"
+#include "store/fx_store.h"
 #include "store/ledger_store.h"
 
 namespace keel::market {
@@ -74,6 +75,15 @@ std::optional<Date> DayView::ended(std::int64_t security_id, Date day) const {
 std::vector<std::string> DayView::metric_names() const {
   if (!metric_names_) metric_names_ = store::metric_names(db_);
   return *metric_names_;
+}
+
+const FxRates& DayView::rates_for(const std::string&, const std::string&, Date) const {
+  if (!rates_) {
+    rates_.emplace();
+    for (const auto& row : store::list_fx_rates(db_))
+      rates_->add(row.base, row.quote, row.date, row.rate);
+  }
+  return *rates_;
 }
 
 std::optional<Date> DayView::latest_close_day() const {

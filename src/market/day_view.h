@@ -4,7 +4,8 @@
 //
 // Contract: as market/view.h. The view borrows the Database, which must
 // outlive it; the securities are read when it is made, the corporate actions
-// on first use, the rest when asked.
+// on first use, the exchange rates at the first question about one, the rest
+// when asked.
 #pragma once
 
 #include <optional>
@@ -39,6 +40,10 @@ class DayView final : public View {
   // The first day after `day` with a close of the security; unset when none.
   std::optional<Date> first_close_after(std::int64_t security_id, Date day) const;
 
+ protected:
+  const FxRates& rates_for(const std::string& base, const std::string& quote,
+                           Date day) const override;
+
  private:
   const std::string& text(Date day) const;  // the last day's ISO text, kept
   store::Database& db_;
@@ -47,6 +52,7 @@ class DayView final : public View {
   mutable std::optional<std::vector<std::string>> metric_names_;
   const std::vector<CorporateAction>& live() const;  // read on first use
   mutable std::optional<std::vector<CorporateAction>> live_;
+  mutable std::optional<FxRates> rates_;
   mutable std::optional<Date> day_;
   mutable std::string day_text_;
 };

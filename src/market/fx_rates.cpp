@@ -7,7 +7,6 @@
 
 #include "core/currency.h"
 #include "core/error.h"
-#include "store/fx_store.h"
 
 namespace keel::market {
 
@@ -15,13 +14,8 @@ std::string FxQuote::describe() const {
   std::string how_text;
   if (how == FxHow::inverted) how_text = fmt::format(", inverted from {}/{}", quote, base);
   if (how == FxHow::crossed) how_text = fmt::format(", crossed through {}", pivot);
+  if (how == FxHow::same) how_text = ", the same currency";
   return fmt::format("{}/{} {} ({}{})", base, quote, rate.str(), day.str(), how_text);
-}
-
-FxRates FxRates::load(store::Database& db) {
-  FxRates out;
-  for (const auto& row : store::list_fx_rates(db)) out.add(row.base, row.quote, row.date, row.rate);
-  return out;
 }
 
 void FxRates::add(const std::string& base, const std::string& quote, Date day,

@@ -1,4 +1,6 @@
-// Exchange rates as known on a day, preloaded from the ledger.
+// The rules of exchange rates as known on a day, over the rows a
+// market::View (market/view.h) has read; readers ask the view, which is the
+// one place that answers "the rate on day D".
 //
 // Contract
 //  - A stored row (base, quote, date, rate) says one `base` unit bought
@@ -8,8 +10,8 @@
 //    of the reverse pair (inverted: 1 / rate) or, failing both, through one
 //    pivot currency that has a rate with each side (crossed; the pivots are
 //    tried in alphabetical order). A derived answer says how it was derived
-//    and is dated by its older leg. A rate of 1 is never assumed, not even
-//    for a currency against itself (callers do not ask).
+//    and is dated by its older leg. A rate of 1 is never assumed here, not
+//    even for a currency against itself (View::rate answers that itself).
 //  - convert(amount, from, to, day) multiplies by the direct legs and
 //    divides by the inverted ones exactly, then rounds once, half-to-even, to
 //    the minor units of `to` (ISO 4217, core/currency.h).
@@ -25,11 +27,10 @@
 
 #include "core/date.h"
 #include "core/decimal.h"
-#include "store/database.h"
 
 namespace keel::market {
 
-enum class FxHow { direct, inverted, crossed };
+enum class FxHow { direct, inverted, crossed, same };
 
 struct FxQuote {
   std::string base, quote;
@@ -43,7 +44,6 @@ struct FxQuote {
 class FxRates {
  public:
   static constexpr int kDerivedPlaces = 12;
-  static FxRates load(store::Database& db);
   void add(const std::string& base, const std::string& quote, Date day, const Decimal& rate);
 
   std::optional<FxQuote> try_find(const std::string& base, const std::string& quote,

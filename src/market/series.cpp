@@ -11,6 +11,7 @@
 #include <stdexcept>
 
 #include "store/action_store.h"
+#include "store/fx_store.h"
 #include "store/ledger_store.h"
 #include "store/market_rows.h"
 
@@ -290,7 +291,27 @@ Series Series::load(store::Database& db, const Request& req) {
     for (const auto* a : live_actions(all))
       if (a->date <= req.to && s.column_of_.count(a->security_id)) s.actions_.push_back(*a);
   }
+  s.currencies_ = req.currencies;
+  std::sort(s.currencies_.begin(), s.currencies_.end());
+  s.currencies_.erase(std::unique(s.currencies_.begin(), s.currencies_.end()), s.currencies_.end());
+  for (const auto& c : s.currencies_)
+    for (const auto& r : store::list_fx_rates(db, c, req.to)) {
+      s.rates_.add(r.base, r.quote, r.date, r.rate);
+      if (r.date >= req.from) s.rate_days_.push_back(r.date);
+    }
+  std::sort(s.rate_days_.begin(), s.rate_days_.end());
+  s.rate_days_.erase(std::unique(s.rate_days_.begin(), s.rate_days_.end()), s.rate_days_.end());
   return s;
+}
+
+const FxRates& Series::rates_for(const std::string& base, const std::string& quote,
+                                 Date day) const {
+  row(day);  // inside the span
+  for (const auto* c : {&base, &quote})
+    if (!std::binary_search(currencies_.begin(), currencies_.end(), *c))
+      throw std::out_of_range(
+          fmt::format("market::Series: exchange rates of {} are not loaded", *c));
+  return rates_;
 }
 
 int Series::column(std::int64_t security_id) const {

@@ -8,11 +8,14 @@
 //    close before `from`, with one ordered range read per security; the
 //    figures of the metrics asked for that are known on or before `to`; the
 //    distributions and splits dated in [from, to]; their live corporate
-//    actions dated on or before `to`. Of the other securities it reads only
-//    which days have a close.
+//    actions dated on or before `to`; the exchange rates dated on or before
+//    `to` of every pair with a currency asked for on either side (enough for
+//    direct, inverted and crossed rates between them). Of the other
+//    securities it reads only which days have a close.
 //  - As a View (market/view.h) it answers for the loaded securities and days
 //    in [from, to]; anything else throws std::out_of_range. A metric not
-//    loaded throws std::out_of_range too.
+//    loaded, or a rate of a currency not asked for, throws std::out_of_range
+//    too.
 //  - Closes sit in a day x security grid, one row per calendar day of the
 //    span, forward-filled: "the close on or before a day" is one array read.
 //    value() is the nearest double to the stored decimal (NaN when there is
@@ -20,7 +23,8 @@
 //    exactly.
 //  - trading_days(): every day in [from, to] on which any security of the
 //    ledger (loaded or not) has a close, ascending; next_trading_day(): the
-//    first such day after `to`, if any.
+//    first such day after `to`, if any. rate_days(): every day in [from, to]
+//    with a loaded exchange rate, ascending.
 //  - FigureCursor: the figures of one loaded metric as known on a day (the
 //    rule of market/view.h), advanced by a pointer over the rows in known_on
 //    order; a day earlier than the last one asked starts it over.
@@ -45,6 +49,7 @@ class Series final : public View {
     std::optional<std::vector<std::int64_t>> securities;  // unset: every security
     Date from, to;                                        // the days answered, from <= to
     std::vector<std::string> metrics;                     // figures to load
+    std::vector<std::string> currencies;                  // exchange rates to load
   };
   // Throws std::invalid_argument for from > to or an id the ledger does not hold.
   static Series load(store::Database& db, const Request& request);
@@ -71,6 +76,7 @@ class Series final : public View {
   Date to() const { return to_; }
   const std::vector<Date>& trading_days() const { return trading_days_; }
   std::optional<Date> next_trading_day() const { return next_trading_day_; }
+  const std::vector<Date>& rate_days() const { return rate_days_; }
 
   // Columns: one per loaded security, ascending by id.
   int columns() const { return static_cast<int>(ids_.size()); }
@@ -124,6 +130,10 @@ class Series final : public View {
   // `to` (earlier ones too, for ended()), by date and then id.
   const std::vector<CorporateAction>& action_events() const { return actions_; }
 
+ protected:
+  const FxRates& rates_for(const std::string& base, const std::string& quote,
+                           Date day) const override;
+
  private:
   Series() = default;
   // How a column's doubles give back the stored decimals: by scale (each
@@ -157,6 +167,9 @@ class Series final : public View {
   std::vector<Distribution> distributions_;
   std::vector<SplitEvent> splits_;
   std::vector<CorporateAction> actions_;
+  std::vector<std::string> currencies_;  // sorted
+  FxRates rates_;
+  std::vector<Date> rate_days_;
 };
 
 }  // namespace keel::market

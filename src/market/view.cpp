@@ -20,6 +20,17 @@ void View::index() const {
   }
 }
 
+FxQuote View::rate(const std::string& base, const std::string& quote, Date day) const {
+  if (base == quote) return FxQuote{base, quote, Decimal::parse("1"), day, FxHow::same, {}};
+  return rates_for(base, quote, day).find(base, quote, day);
+}
+
+Decimal View::convert(const Decimal& amount, const std::string& from, const std::string& to,
+                      Date day) const {
+  if (from == to) return amount;
+  return rates_for(from, to, day).convert(amount, from, to, day);
+}
+
 const Security* View::security(std::int64_t id) const {
   index();
   const auto it = by_id_.find(id);

@@ -17,6 +17,14 @@
 //  - securities(): every security of the ledger, by symbol; sectors(): the
 //    distinct sectors of its stocks, ascending; metric_names(): the metrics
 //    with any stored figure, ascending.
+//  - rate(B, Q, D): how many Q one B bought as known on D, the latest stored
+//    rate on or before D (market/fx_rates.h): from a row of B/Q (direct), of
+//    Q/B (inverted) or through one pivot currency (crossed); a derived rate
+//    says so. B to itself is 1 (FxHow::same); no other rate is ever assumed.
+//    convert(A, from, to, D): A in `from` as `to` at that rate, rounded once,
+//    half-to-even, to the minor units of `to` (unchanged when from == to).
+//    Both throw InputError "no exchange rate for EUR/USD on or before
+//    2024-03-01 ..." when no rate can be found.
 //  - Implementations: market::DayView (market/day_view.h) reads the ledger
 //    for each question, for a few names on one day; market::Series
 //    (market/series.h) is preloaded for a set of securities and a span of
@@ -24,8 +32,6 @@
 //  - Calls are const but may fill caches: a view is not shared between
 //    threads.
 //
-// Exchange rates are point-in-time market data too; they belong behind this
-// contract when keel learns them.
 #pragma once
 
 #include <cstdint>
@@ -38,6 +44,7 @@
 #include "core/date.h"
 #include "core/decimal.h"
 #include "model/records.h"
+#include "market/fx_rates.h"
 #include "model/security.h"
 
 namespace keel::market {
@@ -101,9 +108,19 @@ class View {
   virtual std::vector<std::string> sectors() const;
   virtual std::vector<std::string> metric_names() const = 0;
 
+  FxQuote rate(const std::string& base, const std::string& quote, Date day) const;
+  Decimal convert(const Decimal& amount, const std::string& from, const std::string& to,
+                  Date day) const;
+
   // The security with this id or symbol; nullptr when the ledger has none.
   const Security* security(std::int64_t id) const;
   const Security* security(std::string_view symbol) const;
+
+ protected:
+  // The stored rates that answer rate(B, Q, D); an implementation may throw
+  // std::out_of_range for what it has not loaded.
+  virtual const FxRates& rates_for(const std::string& base, const std::string& quote,
+                                   Date day) const = 0;
 
  private:
   void index() const;

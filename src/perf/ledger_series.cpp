@@ -4,6 +4,8 @@
 
 #include <algorithm>
 #include <map>
+#include <set>
+#include <stdexcept>
 #include <unordered_set>
 
 #include "core/error.h"
@@ -12,10 +14,15 @@
 namespace keel::perf {
 namespace {
 
-// Days that get an entry: from - 1, and every transaction, split, corporate
-// action or close day inside [from - 1, to].
-std::vector<Date> entry_days(const Replayer& replayer, const LedgerLog& log,
-                             const market::Series& prices, Date first, Date to) {
+// Days that may get an entry: from - 1, and every transaction, split,
+// corporate action, close or exchange-rate day inside [from - 1, to]; those
+// with nothing but a rate are marked.
+struct EntryDay {
+  Date day;
+  bool rate_only = false;
+};
+std::vector<EntryDay> entry_days(const Replayer& replayer, const LedgerLog& log,
+                                 const market::Series& prices, Date first, Date to) {
   std::vector<Date> days{first};
   auto keep = [&](Date d) {
     if (d > first && d <= to) days.push_back(d);
@@ -26,13 +33,34 @@ std::vector<Date> entry_days(const Replayer& replayer, const LedgerLog& log,
   for (const Date d : prices.trading_days()) keep(d);
   std::sort(days.begin(), days.end());
   days.erase(std::unique(days.begin(), days.end()), days.end());
-  return days;
+  std::vector<EntryDay> out;
+  for (const Date d : days) out.push_back({d, false});
+  for (const Date d : prices.rate_days())
+    if (d > first && d <= to && !std::binary_search(days.begin(), days.end(), d))
+      out.push_back({d, true});
+  std::sort(out.begin(), out.end(),
+            [](const EntryDay& a, const EntryDay& b) { return a.day < b.day; });
+  return out;
 }
 
 }  // namespace
 
+std::vector<std::string> currencies_of(const LedgerLog& log,
+                                       const std::vector<Security>& securities) {
+  std::set<std::string> out;
+  for (const auto& a : log.accounts) out.insert(a.currency);
+  for (const auto& t : log.transactions) {
+    if (t.currency) out.insert(*t.currency);
+    if (t.to_currency) out.insert(*t.to_currency);
+  }
+  for (const auto& s : securities) out.insert(s.currency);
+  out.erase(std::string());
+  return {out.begin(), out.end()};
+}
+
 LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
-                          std::optional<std::int64_t> account_id, Date from, Date to) {
+                          std::optional<std::int64_t> account_id, Date from, Date to,
+                          const std::string& currency) {
   if (from > to)
     throw InputError(
         fmt::format("the period starts on {}, after its end {}", from.str(), to.str()));
@@ -51,6 +79,19 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
     return false;
   };
   auto in_scope = [&](const Transaction& t) { return !account_id || t.account_id == *account_id; };
+  std::map<std::int64_t, std::string> account_currency;
+  for (const auto& a : log.accounts) account_currency[a.id] = a.currency;
+  auto row_currency = [&](const Transaction& t) {
+    return t.currency.value_or(account_currency.at(t.account_id));
+  };
+  auto security_currency = [&](std::int64_t security) -> const std::string& {
+    const Security* s = prices.security(security);
+    if (!s) throw std::logic_error("build_series: a security the ledger does not hold");
+    return s->currency;
+  };
+  auto reported = [&](const Decimal& amount, const std::string& from_currency, Date d) {
+    return prices.convert(amount, from_currency, currency, d);
+  };
 
   LedgerSeries out;
   const auto days = entry_days(replayer, log, prices, first, to);
@@ -85,7 +126,7 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
     else
       held[{account, security}] = it->second.quantity();
   };
-  for (const Date d : days) {
+  for (const auto& [d, rate_only] : days) {
     const Book& book = replayer.advance_to(d);
     DayPoint point;
     point.day = d;
@@ -112,32 +153,46 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
               refresh(book, info.id, *actions[action_cursor]->target_id);
           }
     }
+    // What is held, by currency, converted once per currency.
+    std::map<std::string, Decimal> local;
     for (const auto& info : book.accounts())
-      if (!account_id || info.id == *account_id) point.value += book.account(info.id).cash;
+      if (!account_id || info.id == *account_id) {
+        const AccountBook& ab = book.account(info.id);
+        local[info.currency] += ab.cash;
+        for (const auto& [c, lots] : ab.foreign_cash) local[c] += ab.foreign_balance(c);
+      }
     for (const auto& [key, quantity] : held) {
       if (const auto close = close_on(key.second, d))
-        point.value += quantity * *close;
+        local[security_currency(key.second)] += quantity * *close;
       else if (const auto traded = book.last_trade_price(key.second))
-        point.value += quantity * *traded;
+        local[security_currency(key.second)] += quantity * *traded;
       else
         out.unpriced.insert(key.second);
     }
+    bool foreign = false;
+    for (const auto& [c, amount] : local) {
+      point.value += reported(amount, c, d);
+      foreign = foreign || (c != currency && !amount.is_zero());
+    }
+    // A day with only a new rate changes nothing when nothing foreign is held.
+    if (rate_only && !foreign) continue;
     for (; cursor < live.size() && live[cursor]->date <= d; ++cursor) {
       const Transaction& t = *live[cursor];
       if (t.date != d || !in_scope(t)) continue;
       const bool in_period = d >= from;
+      const std::string& in = row_currency(t);
       if (in_period) {
-        out.fees += t.fee;
+        out.fees += reported(t.fee, in, d);
         switch (t.kind) {
           case TxnKind::dividend:
           case TxnKind::interest:
-            out.income += *t.amount;
+            out.income += reported(*t.amount, in, d);
             break;
           case TxnKind::tax:
-            out.tax += *t.amount;
+            out.tax += reported(*t.amount, in, d);
             break;
           case TxnKind::fee:
-            out.fees += *t.amount;
+            out.fees += reported(*t.amount, in, d);
             break;
           default:
             break;
@@ -145,23 +200,25 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
       }
       if (internal_pair(t)) continue;
       auto transfer_value = [&]() -> Decimal {
-        if (!t.security_id) return *t.amount;
+        if (!t.security_id) return reported(*t.amount, in, d);
+        // The transfer's own price is in its row's currency; the others in the security's.
         std::optional<Decimal> price;
+        std::string priced_in = security_currency(*t.security_id);
         if (const auto close = close_on(*t.security_id, d)) price = *close;
-        if (!price) price = t.price;
+        if (!price && t.price) price = t.price, priced_in = in;
         if (!price) price = book.last_trade_price(*t.security_id);
         if (!price) {
           out.unpriced.insert(*t.security_id);
           return Decimal();
         }
-        return *t.quantity * *price;
+        return reported(*t.quantity * *price, priced_in, d);
       };
       switch (t.kind) {
         case TxnKind::deposit:
-          point.inflow += *t.amount;
+          point.inflow += reported(*t.amount, in, d);
           break;
         case TxnKind::withdrawal:
-          point.outflow += *t.amount;
+          point.outflow += reported(*t.amount, in, d);
           break;
         case TxnKind::transfer_in:
           point.inflow += transfer_value();

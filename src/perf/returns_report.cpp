@@ -7,7 +7,6 @@
 #include "core/error.h"
 #include "core/text.h"
 #include "ledger/accounts.h"
-#include "ledger/fx_cash.h"
 #include "ledger/posting.h"
 #include "market/day_view.h"
 #include "market/series.h"
@@ -20,6 +19,7 @@ namespace {
 struct Scope {
   std::string name = "all accounts";
   std::optional<std::int64_t> account_id;  // nullopt: the whole ledger
+  std::string currency;                    // the reporting currency
 };
 
 Scope scope_of(store::Database& db, const std::optional<std::string>& account_name) {
@@ -31,8 +31,10 @@ Scope scope_of(store::Database& db, const std::optional<std::string>& account_na
           fmt::format("--account: there is no account named '{}'", printable(*account_name)));
     scope.account_id = account->id;
     scope.name = account->name;
+    scope.currency = account->currency;
   } else {
-    ledger::one_currency(store::list_accounts(db), "returns");
+    const auto shared = ledger::one_currency(store::list_accounts(db), "returns");
+    scope.currency = shared ? *shared : store::ledger_currency(db).value_or(std::string());
   }
   return scope;
 }
@@ -68,8 +70,10 @@ ReturnsReport report_of(store::Database& db, const LedgerData& data, const Scope
   market::Series::Request span;
   span.from = before;
   span.to = report.period.to;
+  span.currencies = data.currencies;
   const auto prices = market::Series::load(db, span);
-  auto series = build_series(log, prices, account_id, report.period.from, report.period.to);
+  auto series =
+      build_series(log, prices, account_id, report.period.from, report.period.to, scope.currency);
   report.income = series.income;
   report.tax = series.tax;
   report.fees = series.fees;
@@ -105,9 +109,10 @@ ReturnsReport report_of(store::Database& db, const LedgerData& data, const Scope
 }  // namespace
 
 LedgerData LedgerData::load(store::Database& db) {
-  LedgerData data{ledger::load_log(db), {}, market::DayView(db).latest_close_day()};
-  ledger::refuse_other_currencies(data.log, "returns and statements");
-  for (const auto& s : store::list_securities(db)) data.symbols[s.id] = s.symbol;
+  LedgerData data{ledger::load_log(db), {}, market::DayView(db).latest_close_day(), {}};
+  const auto securities = store::list_securities(db);
+  for (const auto& s : securities) data.symbols[s.id] = s.symbol;
+  data.currencies = currencies_of(data.log, securities);
   return data;
 }
 

@@ -6,6 +6,9 @@
 //    live transaction day. Inception: the first live transaction day.
 //  - Benchmark: the closes of the named security, which must have a close on
 //    or before the day before the period (InputError naming --benchmark).
+//  - Figures are in the reporting currency: the account's with --account,
+//    else the one every account keeps (the ledger's). What is held or moved
+//    in another currency converts at the rate of its day (ledger_series.h).
 //  - Throws InputError for an unknown account (naming --account) or security,
 //    a ledger without transactions, and whatever resolve_period() and
 //    measure() reject.
@@ -51,6 +54,7 @@ struct LedgerData {
   LedgerLog log;
   std::map<std::int64_t, std::string> symbols;  // security id -> symbol
   std::optional<Date> latest_close;             // the latest day with any close
+  std::vector<std::string> currencies;          // every currency in use (currencies_of)
   static LedgerData load(store::Database& db);
 };
 

@@ -10,6 +10,7 @@
 #include "core/error.h"
 #include "core/text.h"
 #include "ledger/accounts.h"
+#include "ledger/fx_cash.h"
 #include "ledger/posting.h"
 #include "market/day_view.h"
 #include "market/series.h"
@@ -169,6 +170,7 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
 
   // The ledger is read once; every period below is measured from this copy.
   const perf::LedgerData data = perf::LedgerData::load(db);
+  ledger::refuse_other_currencies(data.log, "statement");
 
   // The year itself: the returns module resolves the period and measures it.
   perf::ReturnsRequest year_request;

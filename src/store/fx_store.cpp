@@ -34,15 +34,31 @@ Upsert upsert_fx_rate(Database& db, const FxRateRow& row, bool replace, std::str
   return Upsert::added;
 }
 
-std::vector<FxRateRow> list_fx_rates(Database& db) {
-  SQLite::Statement st(db.sql(),
-                       "SELECT base, quote, date, rate FROM fx_rate ORDER BY base, quote, date");
+namespace {
+std::vector<FxRateRow> rate_rows(SQLite::Statement& st) {
   std::vector<FxRateRow> out;
   while (st.executeStep())
     out.push_back(FxRateRow{st.getColumn(0).getString(), st.getColumn(1).getString(),
                             Date::parse(st.getColumn(2).getString()),
                             Decimal::parse(st.getColumn(3).getString())});
   return out;
+}
+}  // namespace
+
+std::vector<FxRateRow> list_fx_rates(Database& db) {
+  SQLite::Statement st(db.sql(),
+                       "SELECT base, quote, date, rate FROM fx_rate ORDER BY base, quote, date");
+  return rate_rows(st);
+}
+
+std::vector<FxRateRow> list_fx_rates(Database& db, const std::string& currency, Date until) {
+  SQLite::Statement st(
+      db.sql(),
+      "SELECT base, quote, date, rate FROM fx_rate WHERE (base = ?1 OR quote = ?1) "
+      "AND date <= ?2 ORDER BY base, quote, date");
+  st.bind(1, currency);
+  st.bind(2, until.str());
+  return rate_rows(st);
 }
 
 }  // namespace keel::store

@@ -6,7 +6,9 @@
 //    (base, quote, date) is a `conflict` (`existing` gets the stored rate)
 //    unless `replace`, then `replaced`. Codes and the rate are checked by the
 //    caller (io/fx_intake); the table's CHECKs stand behind it.
-//  - list_fx_rates(): every row, ordered by base, quote, date.
+//  - list_fx_rates(): every row, ordered by base, quote, date; with a
+//    currency and a day: the rows with that currency on either side dated on
+//    or before the day, in the same order.
 #pragma once
 
 #include <string>
@@ -27,5 +29,6 @@ struct FxRateRow {
 
 Upsert upsert_fx_rate(Database& db, const FxRateRow& row, bool replace, std::string& existing);
 std::vector<FxRateRow> list_fx_rates(Database& db);
+std::vector<FxRateRow> list_fx_rates(Database& db, const std::string& currency, Date until);
 
 }  // namespace keel::store

@@ -1,5 +1,7 @@
 """Helpers for end-to-end tests: run the built keel binary on a scratch ledger."""
+import csv
 import hashlib
+import io
 import json
 import os
 import sqlite3
@@ -8,6 +10,15 @@ import tempfile
 
 KEEL = os.environ.get("KEEL_BIN", "keel")
 SOURCE = os.environ.get("KEEL_SOURCE_DIR", os.path.dirname(os.path.dirname(os.path.dirname(__file__))))
+
+
+def csv_text(header, rows):
+    """RFC 4180 text of a header and rows, for files a test feeds to keel."""
+    buf = io.StringIO()
+    w = csv.writer(buf, lineterminator="\n")
+    w.writerow(header)
+    w.writerows(rows)
+    return buf.getvalue()
 
 
 class Ledger:

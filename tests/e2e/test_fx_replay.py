@@ -6,15 +6,13 @@ unless --replace), the trades imported from a CSV with currency and rate columns
 recorded by hand. Its holdings and realized gains (each with its price and currency part) must
 match tests/reference/fx_reference.py (Python's decimal and pandas) to the cent, exactly.
 """
-import csv
-import io
 import os
 import sys
 from decimal import Decimal
 
 sys.path.insert(0, os.path.dirname(__file__))
 sys.path.insert(0, os.path.join(os.path.dirname(__file__), "..", "reference"))
-from keel_cli import Ledger, check, equal  # noqa: E402
+from keel_cli import Ledger, check, csv_text, equal  # noqa: E402
 import fx_reference  # noqa: E402
 
 RATES = [  # EUR/USD, invented
@@ -44,14 +42,6 @@ ROWS = [  # (date, account, kind, symbol, quantity, price, amount, fee, currency
     ("2024-10-15", "Second", "buy", "MRL", "50", "23.10", "", "", "", "", ""),
     ("2024-11-20", "Main", "withdrawal", "", "", "", "500", "", "USD", "", ""),
 ]
-
-
-def csv_text(header, rows):
-    buf = io.StringIO()
-    w = csv.writer(buf, lineterminator="\n")
-    w.writerow(header)
-    w.writerows(rows)
-    return buf.getvalue()
 
 
 led = Ledger(currency="EUR")
@@ -128,12 +118,12 @@ equal([(x["symbol"], x["lot"], x["sell"]) + tuple(Decimal(x[k]) for k in fields)
 print("fx replay: holdings and gains match the decimal/pandas replay;",
       f"{len(gains)} gain parts, total {total} EUR")
 
-# Reports that do not convert yet refuse, naming the row, and change nothing.
+# The statement does not convert yet: it refuses, naming the row, and changes nothing.
 before = open(led.path, "rb").read()
-equal(led.fails("returns"),
-      "keel: error: returns and statements: account 'Main' has rows in another currency "
+equal(led.fails("statement", "--year", "2024"),
+      "keel: error: statement: account 'Main' has rows in another currency "
       "(transaction 3, exchange in USD); these figures do not convert currencies yet ('keel "
-      "holdings' and 'keel gains' do)", "returns refuse two currencies")
+      "holdings', 'keel gains' and 'keel returns' do)", "the statement refuses two currencies")
 equal(open(led.path, "rb").read(), before, "the refusal changed the ledger")
 
 # Export and import again into an empty ledger: the same holdings and gains.
@@ -144,4 +134,4 @@ for what in ("accounts", "securities", "fx", "transactions", "prices"):
     copy.ok("import", what, f, *(["--quiet"] if what not in ("accounts", "transactions") else []))
 equal(copy.json("holdings", "--as-of", "2024-12-31"), h, "holdings after export and import")
 equal(copy.json("gains")["gains"], g, "gains after export and import")
-print("fx replay: returns refuse two currencies; export and import keep holdings and gains")
+print("fx replay: the statement refuses two currencies; export and import keep holdings and gains")

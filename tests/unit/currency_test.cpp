@@ -23,15 +23,6 @@ Account account(const std::string& name, const std::string& currency = "") {
   return a;
 }
 
-std::string error_of(const std::function<void()>& f) {
-  try {
-    f();
-  } catch (const InputError& e) {
-    return e.what();
-  }
-  return "(no error)";
-}
-
 }  // namespace
 
 TEST_CASE("regression: an account added without a currency silently became USD") {

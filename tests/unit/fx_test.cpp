@@ -57,15 +57,6 @@ struct EuroFixture : LedgerFixture {
   }
 };
 
-std::string error_of(const std::function<void()>& f) {
-  try {
-    f();
-  } catch (const InputError& e) {
-    return e.what();
-  }
-  return "(no error)";
-}
-
 // The worked example, by hand (rates are USD per EUR):
 //   buy  100 HLX at 50.00 USD when 1 EUR = 1.10 USD
 //     cost in USD  = 100 x 50.00          = 5000.00 USD
@@ -221,28 +212,6 @@ TEST_CASE("guard rail: a rate on a row in the account's own currency") {
   CHECK(error_of([&] { f.post(r); }) ==
         "dividend: --rate 1.1 does not apply: the row is in EUR, the currency of account 'Euro'");
   CHECK(f.dump() == before);
-}
-
-TEST_CASE("fx rates: the latest on or before the day, direct, inverted or crossed") {
-  market::FxRates rates;
-  rates.add("EUR", "USD", day("2024-01-02"), dec("1.10"));
-  rates.add("EUR", "USD", day("2024-01-05"), dec("1.12"));
-  rates.add("USD", "JPY", day("2024-01-03"), dec("150"));
-  CHECK_FALSE(rates.try_find("EUR", "USD", day("2024-01-01")));
-  CHECK(rates.find("EUR", "USD", day("2024-01-04")).rate == dec("1.10"));
-  CHECK(rates.find("EUR", "USD", day("2024-01-05")).rate == dec("1.12"));
-  const auto inverted = rates.find("USD", "EUR", day("2024-01-04"));
-  CHECK(inverted.how == market::FxHow::inverted);
-  CHECK(inverted.rate == dec("0.909090909091"));  // 1 / 1.10 to 12 places
-  CHECK(inverted.describe() == "USD/EUR 0.909090909091 (2024-01-02, inverted from EUR/USD)");
-  const auto crossed = rates.find("EUR", "JPY", day("2024-01-04"));
-  CHECK(crossed.how == market::FxHow::crossed);
-  CHECK(crossed.pivot == "USD");
-  CHECK(crossed.rate == dec("165"));        // 1.10 x 150
-  CHECK(crossed.day == day("2024-01-02"));  // the older leg
-  // Converting rounds once, to the target's minor units: JPY has none.
-  CHECK(rates.convert(dec("10.01"), "EUR", "JPY", day("2024-01-04")) == dec("1652"));
-  CHECK(rates.convert(dec("1652"), "JPY", "EUR", day("2024-01-04")) == dec("10.01"));
 }
 
 TEST_CASE("currency: ISO 4217 codes and their minor units") {

@@ -2,6 +2,7 @@
 // posting helpers, so each test reads as the story it checks.
 #pragma once
 
+#include <functional>
 #include <string>
 #include <tuple>
 #include <vector>
@@ -11,6 +12,7 @@
 #include "ledger/posting.h"
 #include "store/database.h"
 #include "store/fingerprint.h"
+#include "store/fx_store.h"
 #include "store/ledger_store.h"
 #include "store/market_data.h"
 
@@ -21,6 +23,15 @@ inline Decimal dec(const char* text) {
 }
 inline Date day(const char* text) {
   return Date::parse(text);
+}
+// The message of the InputError `f` throws; "(no error)" when it throws none.
+inline std::string error_of(const std::function<void()>& f) {
+  try {
+    f();
+  } catch (const InputError& e) {
+    return e.what();
+  }
+  return "(no error)";
 }
 
 struct LedgerFixture {
@@ -102,6 +113,15 @@ struct LedgerFixture {
     store::MarketWriter w(db, false);
     std::string existing;
     w.split(w.security(symbol), date, ratio, existing);
+    tx.commit();
+  }
+  // Exchange rates: {base, quote, date, rate}.
+  void fx(const std::vector<std::tuple<std::string, std::string, std::string, std::string>>& rows) {
+    store::WriteTransaction tx(db);
+    std::string existing;
+    for (const auto& [base, quote, date, rate] : rows)
+      store::upsert_fx_rate(db, {base, quote, Date::parse(date), Decimal::parse(rate)}, false,
+                            existing);
     tx.commit();
   }
   void distribution(const std::string& symbol, const std::string& ex, const std::string& pay,

@@ -69,10 +69,12 @@ struct SeriesFixture : LedgerFixture {
     market::Series::Request span;
     span.from = day(from).plus_days(-1);
     span.to = day(to);
+    const auto log = ledger::load_log(db);
+    span.currencies = perf::currencies_of(log, store::list_securities(db));
     const auto prices = market::Series::load(db, span);
     std::optional<std::int64_t> id;
     if (account) id = account_id(*account);
-    return perf::build_series(ledger::load_log(db), prices, id, day(from), day(to));
+    return perf::build_series(log, prices, id, day(from), day(to), "USD");
   }
 };
 

@@ -4,7 +4,9 @@
 // expectation is worked out by hand from the rows written below.
 #include <doctest/doctest.h>
 
+#include <functional>
 #include <memory>
+#include <stdexcept>
 #include <string>
 #include <tuple>
 #include <vector>
@@ -62,6 +64,11 @@ struct MarketLedger : LedgerFixture {
     distribution("DUNMORE", "2024-03-16", "2024-03-25", "0.5");  // a Saturday
     distribution("AVEL", "2024-03-16", "2024-03-20", "0.1");
     distribution("DUNMORE", "2024-04-06", "2024-04-10", "0.5");
+    fx({{"EUR", "USD", "2024-01-02", "1.10"},
+        {"EUR", "USD", "2024-03-05", "1.12"},
+        {"USD", "JPY", "2024-01-03", "150"},
+        {"GBP", "CHF", "2024-01-03", "1.09"},
+        {"EUR", "USD", "2024-05-02", "1.07"}});  // after the questions asked below
     act(ActionKind::spinoff, "AVEL", "2024-03-09", "BRISK", "0.5");  // a Saturday
     act(ActionKind::delisting, "CALDO", "2024-03-15", std::nullopt, std::nullopt, "0");
     const auto voided = act(ActionKind::merger, "DUNMORE", "2024-05-06", "AVEL", "0.5");
@@ -115,6 +122,7 @@ struct Preloaded {
     r.from = day("2024-01-01");
     r.to = day("2024-06-30");
     r.metrics = {"pe", "ey"};
+    r.currencies = {"EUR", "USD", "JPY", "GBP"};
     return std::make_unique<market::Series>(market::Series::load(db, r));
   }
 };
@@ -310,6 +318,80 @@ TEST_CASE_TEMPLATE("look-ahead: changing the future leaves every answer about th
   CHECK(after == before);
   // The change is there, one day later.
   CHECK(V::make(m.db)->figure(m.id("AVEL"), "pe", day("2024-03-16"))->value == dec("99"));
+}
+
+TEST_CASE_TEMPLATE("market view: a stored rate on or before the day, and none before the first", V,
+                   OneDay, Preloaded) {
+  MarketLedger m;
+  const auto view = V::make(m.db);
+  const auto q = view->rate("EUR", "USD", day("2024-03-04"));
+  CHECK(q.rate == dec("1.10"));
+  CHECK(q.day == day("2024-01-02"));
+  CHECK(q.how == market::FxHow::direct);
+  CHECK(view->rate("EUR", "USD", day("2024-03-05")).rate == dec("1.12"));
+  CHECK(view->rate("EUR", "USD", day("2024-04-30")).describe() == "EUR/USD 1.12 (2024-03-05)");
+  CHECK(error_of([&] { view->rate("EUR", "USD", day("2024-01-01")); }) ==
+        "no exchange rate for EUR/USD on or before 2024-01-01 (nor for USD/EUR, nor through a "
+        "third currency); import one with 'keel import fx FILE.csv'");
+}
+
+TEST_CASE_TEMPLATE("market view: the inverse of a stored pair is derived and says so", V, OneDay,
+                   Preloaded) {
+  MarketLedger m;
+  const auto view = V::make(m.db);
+  const auto q = view->rate("USD", "EUR", day("2024-03-04"));
+  CHECK(q.how == market::FxHow::inverted);
+  CHECK(q.rate == dec("0.909090909091"));  // 1 / 1.10 to 12 places
+  CHECK(q.describe() == "USD/EUR 0.909090909091 (2024-01-02, inverted from EUR/USD)");
+}
+
+TEST_CASE_TEMPLATE("market view: a cross through one pivot currency, dated by its older leg", V,
+                   OneDay, Preloaded) {
+  MarketLedger m;
+  const auto view = V::make(m.db);
+  const auto q = view->rate("EUR", "JPY", day("2024-03-04"));
+  CHECK(q.how == market::FxHow::crossed);
+  CHECK(q.pivot == "USD");
+  CHECK(q.rate == dec("165"));  // 1.10 x 150
+  CHECK(q.day == day("2024-01-02"));
+  CHECK(q.describe() == "EUR/JPY 165 (2024-01-02, crossed through USD)");
+  // Converting rounds once, to the target's minor units: JPY has none.
+  CHECK(view->convert(dec("10.01"), "EUR", "JPY", day("2024-03-04")) == dec("1652"));
+  CHECK(view->convert(dec("1652"), "JPY", "EUR", day("2024-03-04")) == dec("10.01"));
+}
+
+TEST_CASE_TEMPLATE("market view: no rate is assumed between currencies without a path", V, OneDay,
+                   Preloaded) {
+  MarketLedger m;
+  const auto view = V::make(m.db);
+  // GBP/CHF is stored, but nothing links either to the euro.
+  CHECK(error_of([&] { view->rate("EUR", "GBP", day("2024-03-04")); }) ==
+        "no exchange rate for EUR/GBP on or before 2024-03-04 (nor for GBP/EUR, nor through a "
+        "third currency); import one with 'keel import fx FILE.csv'");
+  CHECK(error_of([&] { view->convert(dec("5"), "GBP", "EUR", day("2024-03-04")); }) ==
+        "no exchange rate for EUR/GBP on or before 2024-03-04 (nor for GBP/EUR, nor through a "
+        "third currency); import one with 'keel import fx FILE.csv'");
+}
+
+TEST_CASE_TEMPLATE("market view: a currency to itself is 1, and only that", V, OneDay, Preloaded) {
+  MarketLedger m;
+  const auto view = V::make(m.db);
+  const auto q = view->rate("EUR", "EUR", day("2024-01-01"));  // before any stored rate
+  CHECK(q.rate == dec("1"));
+  CHECK(q.how == market::FxHow::same);
+  CHECK(view->convert(dec("12.345"), "EUR", "EUR", day("2024-01-01")) == dec("12.345"));
+}
+
+TEST_CASE("series: a rate of a currency not loaded, or outside the span, is not answered") {
+  MarketLedger m;
+  market::Series::Request r;
+  r.from = day("2024-03-01");
+  r.to = day("2024-03-31");
+  r.currencies = {"EUR", "USD"};
+  const auto s = market::Series::load(m.db, r);
+  CHECK(s.rate("EUR", "USD", day("2024-03-04")).rate == dec("1.10"));
+  CHECK_THROWS_AS(s.rate("EUR", "JPY", day("2024-03-04")), std::out_of_range);
+  CHECK_THROWS_AS(s.rate("EUR", "USD", day("2024-04-01")), std::out_of_range);
 }
 
 TEST_CASE("series: the grid's doubles give back the stored decimals exactly") {
