@@ -610,11 +610,11 @@ Result run(const History& h, const rules::Rule& rule, const Request& req) {
   res.notes = h.notes;
   res.rule = simulate(h, rule, req, res.rebalance_days, "rule", true, res.notes);
   res.rule.perf = perf::measure(perf_input(res.rule, req, bench));
-  res.cautions = backtest_cautions();
-  if (!req.baseline) return res;
-  res.baseline =
-      simulate(h, baseline_rule(rule), req, res.rebalance_days, "baseline", false, res.notes);
-  res.baseline.perf = perf::measure(perf_input(res.baseline, req, bench));
+  if (req.baseline) {
+    res.baseline =
+        simulate(h, baseline_rule(rule), req, res.rebalance_days, "baseline", false, res.notes);
+    res.baseline.perf = perf::measure(perf_input(res.baseline, req, bench));
+  }
 
   const auto& months = res.rule.perf.months;
   if (bench) {
@@ -623,7 +623,7 @@ Result run(const History& h, const rules::Rule& rule, const Request& req) {
     res.rolling.push_back(
         rolling(months, other, req.rolling_months, "benchmark " + *req.benchmark));
   }
-  {
+  if (req.baseline) {
     std::vector<std::optional<double>> other;
     const auto& bm = res.baseline.perf.months;
     for (std::size_t i = 0; i < months.size(); ++i)
@@ -631,6 +631,7 @@ Result run(const History& h, const rules::Rule& rule, const Request& req) {
                                                       : std::nullopt);
     res.rolling.push_back(rolling(months, other, req.rolling_months, "baseline"));
   }
+  res.cautions = backtest_cautions();
   return res;
 }
 

@@ -60,8 +60,8 @@ struct Request {
   // doubles: slow; for checking that the doubles agree (backtest_test.cpp).
   bool exact_frictionless = false;
   bool keep_trades = true;  // false: no trades or shifts are kept (a report that shows none)
-  bool baseline = true;     // false: the rule alone (Result::baseline and its rolling row empty)
   int rolling_months = 12;
+  bool baseline = true;  // false: no baseline run (Result::baseline and its rolling row empty)
   // Called after each rebalancing day: (done, total, day).
   std::function<void(std::size_t, std::size_t, Date)> progress;
 };

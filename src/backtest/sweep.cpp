@@ -240,6 +240,8 @@ SweepResult sweep(store::Database& db, const rules::Rule& rule, const SweepReque
   if (request.from > request.to)
     throw InputError(
         fmt::format("--from: {} is after --to {}", request.from.str(), request.to.str()));
+  if (!request.start_value.is_positive())
+    throw InputError(fmt::format("--start-value: {} is not above zero", request.start_value.str()));
   check_walk_forward(request);
   sweep_variants(rule, request);  // refuses a bad grid before any data is read
   const History h = load_history(db, rule, request.from.plus_days(-1), request.to);

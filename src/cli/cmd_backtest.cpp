@@ -10,14 +10,12 @@
 
 #include "backtest/backtest.h"
 #include "backtest/signal.h"
-#include "backtest/sweep.h"
 #include "cli/context.h"
 #include "cli/options.h"
 #include "core/error.h"
 #include "core/files.h"
 #include "core/text.h"
 #include "report/backtest_forms.h"
-#include "report/sweep_forms.h"
 #include "report/table.h"
 #include "rules/rule.h"
 
@@ -29,32 +27,18 @@ class Progress {
  public:
   Progress() : on_(isatty(fileno(stderr)) != 0) {}
   void operator()(std::size_t done, std::size_t total, Date day) const {
-    show(done, total, day.str());
-  }
-  void operator()(std::size_t done, std::size_t total) const { show(done, total, "variants"); }
-
- private:
-  void show(std::size_t done, std::size_t total, const std::string& what) const {
     if (!on_ || total == 0) return;
     constexpr std::size_t kWidth = 30;
     const std::size_t filled = done * kWidth / total;
     std::fprintf(stderr, "\r[%s%s] %zu/%zu %s", std::string(filled, '#').c_str(),
-                 std::string(kWidth - filled, ' ').c_str(), done, total, what.c_str());
+                 std::string(kWidth - filled, ' ').c_str(), done, total, day.str().c_str());
     if (done == total) std::fputs("\r\033[K", stderr);
     std::fflush(stderr);
   }
 
+ private:
   bool on_;
 };
-
-// The cash a simulated pool starts with: a number above zero.
-Decimal start_value_option(const std::string& text) {
-  const auto v = Decimal::try_parse(text);
-  if (!v) throw InputError(fmt::format("--start-value: '{}' is not a number", printable(text)));
-  if (!v->is_positive())
-    throw InputError(fmt::format("--start-value: {} is not above zero", v->str()));
-  return *v;
-}
 
 struct BacktestOptions {
   std::string rule, from, to, start_value = "100000", benchmark, curve;
@@ -95,7 +79,11 @@ void add_backtest(CLI::App& app, Context& ctx) {
     backtest::Request req;
     req.from = date_value(o->from, "--from");
     req.to = date_value(o->to, "--to");
-    req.start_value = start_value_option(o->start_value);
+    const auto sv = Decimal::try_parse(o->start_value);
+    if (!sv)
+      throw InputError(
+          fmt::format("--start-value: '{}' is not a number", printable(o->start_value)));
+    req.start_value = *sv;
     if (!o->benchmark.empty()) req.benchmark = o->benchmark;
     req.frictionless = o->frictionless;
     req.keep_trades = o->json;  // the text report lists no trades
@@ -173,79 +161,11 @@ void add_signal(CLI::App& app, Context& ctx) {
   });
 }
 
-struct SweepOptions {
-  std::string rule, from, to, start_value = "100000", walk_forward;
-  std::vector<std::string> vary;
-  std::size_t max_variants = 200;
-  bool json = false;
-  bool frictionless = false;
-};
-
-// "IN:OUT" in months.
-backtest::SweepRequest::WalkForward walk_forward_option(const std::string& text) {
-  const auto colon = text.find(':');
-  int in = 0, out = 0;
-  const auto whole = [](std::string_view part, int& v) {
-    const auto [end, ec] = std::from_chars(part.data(), part.data() + part.size(), v);
-    return !part.empty() && ec == std::errc() && end == part.data() + part.size();
-  };
-  if (colon == std::string::npos || !whole(std::string_view(text).substr(0, colon), in) ||
-      !whole(std::string_view(text).substr(colon + 1), out))
-    throw InputError(fmt::format("--walk-forward: '{}' is not IN_MONTHS:OUT_MONTHS (e.g. 24:6)",
-                                 printable(text)));
-  return {in, out};
-}
-
-void add_sweep(CLI::App& app, Context& ctx) {
-  auto o = std::make_shared<SweepOptions>();
-  auto* cmd = app.add_subcommand(
-      "sweep",
-      "A rule back-tested over a grid of its settings on one load of the history, with the "
-      "odds that the best is luck");
-  add_examples(*cmd, {"keel sweep --rule rule.toml --from 2019-01-01 --to 2025-12-31 --vary "
-                      "select.count=5,10,20 --vary screen.max_age_days=90,180",
-                      "keel sweep --rule rule.toml --from 2017-01-01 --to 2025-12-31 --vary "
-                      "select.z_max=-1,-0.5,0 --walk-forward 36:12"});
-  cmd->add_option("--rule", o->rule, "Rule file (TOML; see docs/rules.md; '-': standard input)")
-      ->required();
-  cmd->add_option("--from", o->from, "First day, YYYY-MM-DD")->required();
-  cmd->add_option("--to", o->to, "Last day, YYYY-MM-DD")->required();
-  cmd->add_option("--vary", o->vary,
-                  "A rule key and the values to try, KEY=V1,V2,... (repeat for a grid)")
-      ->required();
-  cmd->add_option("--max-variants", o->max_variants,
-                  "Run up to this many variants (default 200; more is refused)");
-  cmd->add_option("--walk-forward", o->walk_forward,
-                  "IN:OUT months: choose the best variant on each IN months, run it on the next "
-                  "OUT");
-  cmd->add_option("--start-value", o->start_value, "Cash each simulated pool starts with");
-  cmd->add_flag("--frictionless", o->frictionless,
-                "No fees, bands, minimum trade or reserve; fractional units, fully invested");
-  add_json_flag(*cmd, o->json);
-  cmd->callback([&ctx, o] {
-    backtest::SweepRequest req;
-    req.from = date_value(o->from, "--from");
-    req.to = date_value(o->to, "--to");
-    req.start_value = start_value_option(o->start_value);
-    req.frictionless = o->frictionless;
-    req.max_variants = o->max_variants;
-    for (const auto& v : o->vary) req.axes.push_back(backtest::parse_axis(v));
-    if (!o->walk_forward.empty()) req.walk_forward = walk_forward_option(o->walk_forward);
-    const Progress progress;
-    req.progress = [&progress](std::size_t done, std::size_t total) { progress(done, total); };
-    const auto rule = rules::load_rule(o->rule);
-    auto db = ctx.open_ledger();
-    const auto result = backtest::sweep(db, rule, req);
-    out(o->json ? report::sweep_json(result) : report::sweep_text(result, ctx.style()));
-  });
-}
-
 }  // namespace
 
 void register_backtest_commands(CLI::App& app, Context& ctx) {
   add_backtest(app, ctx);
   add_signal(app, ctx);
-  add_sweep(app, ctx);
 }
 
 }  // namespace keel::cli

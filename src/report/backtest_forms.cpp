@@ -98,8 +98,7 @@ void run_json(JsonWriter& j, std::string& text, const Emit& emit, const backtest
   j.end_object();
 }
 
-}  // namespace
-
+// The closing notes (when there are any) and cautions of a back-test or a signal check.
 std::string notes_and_cautions(const std::vector<std::string>& notes,
                                const std::vector<std::string>& cautions) {
   std::string s;
@@ -111,6 +110,8 @@ std::string notes_and_cautions(const std::vector<std::string>& notes,
   for (const auto& c : cautions) s += "  - " + c + "\n";
   return s;
 }
+
+}  // namespace
 
 std::string backtest_json(const backtest::Result& r) {
   std::string all;
@@ -284,6 +285,11 @@ std::string signal_text(const backtest::SignalResult& r, const Style& style) {
                pct(h.mean_spread)});
   s += t.render(style);
   return s + notes_and_cautions(r.notes, r.cautions);
+}
+
+std::string closing_notes(const std::vector<std::string>& notes,
+                          const std::vector<std::string>& cautions) {
+  return notes_and_cautions(notes, cautions);
 }
 
 }  // namespace keel::report

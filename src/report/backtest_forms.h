@@ -13,7 +13,6 @@
 
 #include <functional>
 #include <string>
-#include <vector>
 
 #include "backtest/backtest.h"
 #include "backtest/signal.h"
@@ -29,12 +28,12 @@ using Emit = std::function<void(const std::string&)>;
 void backtest_json(const backtest::Result& r, const Emit& emit);
 std::string backtest_curve_csv(const backtest::Result& r);
 
-// The closing notes (when there are any) and cautions of a back-test, a
-// signal check or a sweep.
-std::string notes_and_cautions(const std::vector<std::string>& notes,
-                               const std::vector<std::string>& cautions);
-
 std::string signal_text(const backtest::SignalResult& r, const Style& style);
 std::string signal_json(const backtest::SignalResult& r);
+
+// The notes (when there are any) and cautions that end a back-test's, a
+// signal check's or a sweep's text.
+std::string closing_notes(const std::vector<std::string>& notes,
+                          const std::vector<std::string>& cautions);
 
 }  // namespace keel::report

@@ -134,7 +134,7 @@ std::string sweep_text(const backtest::SweepResult& r, const Style& style) {
         p.combinations, p.rows_used, p.blocks);
   }
   if (r.walk_forward) s += walk_forward_text(r, style);
-  return s + notes_and_cautions(r.notes, r.cautions);
+  return s + closing_notes(r.notes, r.cautions);
 }
 
 std::string sweep_json(const backtest::SweepResult& r) {
