@@ -126,7 +126,11 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
     else
       held[{account, security}] = it->second.quantity();
   };
-  for (const auto& [d, rate_only] : days) {
+  // Not a structured binding: clang before 16 cannot capture one in the
+  // lambdas below.
+  for (const EntryDay& entry : days) {
+    const Date d = entry.day;
+    const bool rate_only = entry.rate_only;
     const Book& book = replayer.advance_to(d);
     DayPoint point;
     point.day = d;
