@@ -473,49 +473,76 @@ perf::PerfInput perf_input(const StrategyRun& run, const Request& req,
   return in;
 }
 
-std::optional<double> quantile_sorted(const std::vector<double>& xs, double q) {
-  if (xs.empty()) return std::nullopt;
-  // Linear interpolation between order statistics (numpy/pandas default).
-  const double hpos = (static_cast<double>(xs.size()) - 1) * q;
-  const auto lo = static_cast<std::size_t>(hpos);
-  if (lo + 1 >= xs.size()) return xs.back();
-  return xs[lo] + (hpos - static_cast<double>(lo)) * (xs[lo + 1] - xs[lo]);
-}
-
-// Windows of n consecutive complete months, compounding perf::measure's
-// monthly returns of the rule and of the other series.
-RollingRow rolling(const std::vector<perf::MonthRow>& rule_months,
+// Windows of n consecutive complete months from the start of any month,
+// compounding perf::measure's monthly returns of the rule and of the other series.
+RollingRow rolling(const std::vector<std::optional<double>>& rule_months,
                    const std::vector<std::optional<double>>& other, int n, std::string against) {
+  const auto s =
+      perf::compare_returns(perf::window_returns(rule_months, n), perf::window_returns(other, n));
   RollingRow row;
   row.against = std::move(against);
   row.months = n;
-  std::vector<double> excess;
-  for (std::size_t start = 0; start + static_cast<std::size_t>(n) <= rule_months.size(); ++start) {
-    double r = 1, b = 1;
-    bool ok = true;
-    for (std::size_t i = start; i < start + static_cast<std::size_t>(n); ++i) {
-      if (!rule_months[i].complete || !other[i]) {
-        ok = false;
-        break;
-      }
-      r *= 1 + rule_months[i].twr;
-      b *= 1 + *other[i];
-    }
-    if (!ok) continue;
-    ++row.windows;
-    if (r > b) ++row.beat;
-    excess.push_back(r - b);
-  }
-  std::sort(excess.begin(), excess.end());
-  row.median_excess = quantile_sorted(excess, 0.5);
-  if (!excess.empty()) {
-    row.worst_excess = excess.front();
-    row.best_excess = excess.back();
-  }
+  row.windows = s.periods;
+  row.beat = s.ahead;
+  row.median_excess = s.median;
+  row.worst_excess = s.worst;
+  row.best_excess = s.best;
   return row;
 }
 
 }  // namespace
+
+std::vector<std::optional<double>> monthly_returns(const StrategyRun& run) {
+  std::vector<std::optional<double>> out;
+  for (const auto& m : run.perf.months)
+    out.push_back(m.complete ? std::optional<double>(m.twr) : std::nullopt);
+  return out;
+}
+
+std::vector<std::optional<double>> benchmark_monthly_returns(const StrategyRun& run) {
+  std::vector<std::optional<double>> out;
+  for (const auto& m : run.perf.months) out.push_back(m.complete ? m.benchmark : std::nullopt);
+  return out;
+}
+
+DownMarkets down_markets(const std::vector<std::pair<std::string, const StrategyRun*>>& runs,
+                         const std::vector<std::optional<Decimal>>& benchmark_curve,
+                         const std::string& benchmark, int window_months) {
+  constexpr std::size_t kFalls = 3;
+  DownMarkets out;
+  out.benchmark = benchmark;
+  out.window_months = window_months;
+  if (runs.empty()) return out;
+  const auto& days = runs.front().second->curve;
+  std::vector<perf::IndexPoint> index;
+  for (std::size_t i = 0; i < benchmark_curve.size() && i < days.size(); ++i)
+    if (benchmark_curve[i])
+      index.push_back(perf::IndexPoint{days[i].day, benchmark_curve[i]->to_double()});
+  out.falls = perf::drawdown_episodes(index, kFalls);
+  const auto bench_months = benchmark_monthly_returns(*runs.front().second);
+  const auto bench_windows = perf::window_returns(bench_months, window_months);
+  for (const auto& entry : runs) {
+    const StrategyRun* run = entry.second;  // named: a lambda below captures it
+    RunInMarkets r;
+    r.label = entry.first;
+    const auto months = monthly_returns(*run);
+    r.months = perf::split_by_state(months, bench_months);
+    r.windows = perf::split_by_state(perf::window_returns(months, window_months), bench_windows);
+    r.capture = perf::capture(months, bench_months);
+    auto value_on = [&](Date day) {
+      const auto it = std::lower_bound(run->curve.begin(), run->curve.end(), day,
+                                       [](const CurvePoint& c, Date d) { return c.day < d; });
+      return it->value.to_double();  // the falls' days are days of the curve
+    };
+    for (const auto& f : out.falls) {
+      const double start = value_on(f.peak);
+      r.in_falls.push_back(start > 0 ? std::optional<double>(value_on(f.trough) / start - 1)
+                                     : std::nullopt);
+    }
+    out.runs.push_back(std::move(r));
+  }
+  return out;
+}
 
 std::vector<std::string> backtest_cautions() {
   return {
@@ -616,20 +643,19 @@ Result run(const History& h, const rules::Rule& rule, const Request& req) {
     res.baseline.perf = perf::measure(perf_input(res.baseline, req, bench));
   }
 
-  const auto& months = res.rule.perf.months;
+  const auto months = monthly_returns(res.rule);
   if (bench) {
-    std::vector<std::optional<double>> other;
-    for (const auto& m : months) other.push_back(m.benchmark);
-    res.rolling.push_back(
-        rolling(months, other, req.rolling_months, "benchmark " + *req.benchmark));
+    const std::int64_t id = h.market.security(*req.benchmark)->id;
+    for (const auto& c : res.rule.curve) res.benchmark_curve.push_back(h.close(id, c.day));
+    res.rolling.push_back(rolling(months, benchmark_monthly_returns(res.rule), req.rolling_months,
+                                  "benchmark " + *req.benchmark));
   }
   if (req.baseline) {
-    std::vector<std::optional<double>> other;
-    const auto& bm = res.baseline.perf.months;
-    for (std::size_t i = 0; i < months.size(); ++i)
-      other.push_back(i < bm.size() && bm[i].complete ? std::optional<double>(bm[i].twr)
-                                                      : std::nullopt);
-    res.rolling.push_back(rolling(months, other, req.rolling_months, "baseline"));
+    res.rolling.push_back(
+        rolling(months, monthly_returns(res.baseline), req.rolling_months, "baseline"));
+    if (bench)
+      res.down_markets = down_markets({{"rule", &res.rule}, {"baseline", &res.baseline}},
+                                      res.benchmark_curve, *req.benchmark, req.rolling_months);
   }
   res.cautions = backtest_cautions();
   return res;

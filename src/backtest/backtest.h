@@ -27,6 +27,12 @@
 //  - The pool is valued at every day with any close in [from, to]; the value
 //    on the day before `from` is the start value. Returns, volatility and
 //    drawdown come from perf::measure on that series (no external flows).
+//  - With a benchmark: its close on or before each day of the curve
+//    (benchmark_curve), and the figures split by the state of the market
+//    (down_markets): complete months and rolling windows in which the
+//    benchmark fell or rose, up- and down-capture, and the rule's and the
+//    baseline's return over the benchmark's three worst falls
+//    (perf/relative.h).
 //  - Throws InputError naming the option for from > to, a start value that
 //    is not positive, no close in the period, an unknown or unpriced
 //    benchmark, and a rolling window outside 1..600 months; rule problems are
@@ -44,6 +50,7 @@
 #include "core/date.h"
 #include "core/decimal.h"
 #include "perf/performance.h"
+#include "perf/relative.h"
 #include "rules/engine.h"
 #include "rules/rule.h"
 #include "store/database.h"
@@ -61,7 +68,7 @@ struct Request {
   bool exact_frictionless = false;
   bool keep_trades = true;  // false: no trades or shifts are kept (a report that shows none)
   int rolling_months = 12;
-  bool baseline = true;  // false: no baseline run (Result::baseline and its rolling row empty)
+  bool baseline = true;  // false: no baseline run (a comparison runs one for all its rules; a sweep none)
   // Called after each rebalancing day: (done, total, day).
   std::function<void(std::size_t, std::size_t, Date)> progress;
 };
@@ -127,6 +134,33 @@ struct RollingRow {
   std::optional<double> median_excess, worst_excess, best_excess;  // rule - other
 };
 
+// A run's figures by the state of the market (the benchmark's).
+struct RunInMarkets {
+  std::string label;
+  perf::MarketStates months;   // complete months
+  perf::MarketStates windows;  // windows of DownMarkets::window_months from any complete month
+  perf::Capture capture;       // over complete months
+  std::vector<std::optional<double>> in_falls;  // the run's return over each of `falls`
+};
+
+struct DownMarkets {
+  std::string benchmark;
+  int window_months = 0;
+  std::vector<perf::Drawdown> falls;  // the benchmark's worst, deepest first (at most 3)
+  std::vector<RunInMarkets> runs;
+};
+
+// Monthly returns of a run's complete months (perf::measure's), nullopt for
+// the others; and those of its benchmark.
+std::vector<std::optional<double>> monthly_returns(const StrategyRun& run);
+std::vector<std::optional<double>> benchmark_monthly_returns(const StrategyRun& run);
+
+// `runs` share their days; `benchmark_curve` is the benchmark's level on
+// each of those days.
+DownMarkets down_markets(const std::vector<std::pair<std::string, const StrategyRun*>>& runs,
+                         const std::vector<std::optional<Decimal>>& benchmark_curve,
+                         const std::string& benchmark, int window_months);
+
 struct Result {
   std::string rule_name;
   std::map<std::int64_t, std::string> symbols;  // of the securities the run read
@@ -135,9 +169,11 @@ struct Result {
   bool frictionless = false;
   std::vector<Date> rebalance_days;
   StrategyRun rule;
-  StrategyRun baseline;
+  StrategyRun baseline;  // empty when Request::baseline is false
   std::optional<std::string> benchmark;
+  std::vector<std::optional<Decimal>> benchmark_curve;  // per day of rule.curve; empty without
   std::vector<RollingRow> rolling;
+  std::optional<DownMarkets> down_markets;  // with a benchmark
   std::vector<std::string> notes;
   std::vector<std::string> cautions;
 };

@@ -14,6 +14,9 @@
 //    has one, else the first sleeve's, else the one its universe shares; with
 //    none of these, a universe in several currencies is refused. Stocks left
 //    out for their currency are told in `notes`.
+//  - The overload for several rules loads the union of what each needs, once;
+//    they must trade in one currency (InputError naming RULES otherwise), and
+//    their notes are kept once each.
 //  - rebalance_days(): the last day with any close of each calendar month
 //    (over every close in the ledger: `next` is the first close day after
 //    the days given), kept when inside [from, to], then every k-th of them
@@ -45,6 +48,8 @@ struct History {
 };
 
 History load_history(store::Database& db, const rules::Rule& rule, Date from, Date to,
+                     const std::vector<std::string>& extra = {});
+History load_history(store::Database& db, const std::vector<rules::Rule>& rules, Date from, Date to,
                      const std::vector<std::string>& extra = {});
 
 std::vector<Date> rebalance_days(const std::vector<Date>& trading_days, std::optional<Date> next,

@@ -5,10 +5,12 @@
 
 #include <charconv>
 #include <cstdio>
+#include <filesystem>
 #include <memory>
 #include <optional>
 
 #include "backtest/backtest.h"
+#include "backtest/compare.h"
 #include "backtest/signal.h"
 #include "cli/context.h"
 #include "cli/options.h"
@@ -16,6 +18,7 @@
 #include "core/files.h"
 #include "core/text.h"
 #include "report/backtest_forms.h"
+#include "report/compare_forms.h"
 #include "report/table.h"
 #include "rules/rule.h"
 
@@ -40,12 +43,35 @@ class Progress {
   bool on_;
 };
 
-struct BacktestOptions {
-  std::string rule, from, to, start_value = "100000", benchmark, curve;
+// What a back-test and a comparison share.
+struct RunOptions {
+  std::string from, to, start_value = "100000", benchmark, curve;
   bool json = false;
   bool frictionless = false;
+};
+
+struct BacktestOptions : RunOptions {
+  std::string rule;
   int rolling = 12;
 };
+
+backtest::Request run_request(const RunOptions& o, const Progress& progress) {
+  backtest::Request req;
+  req.from = date_value(o.from, "--from");
+  req.to = date_value(o.to, "--to");
+  const auto sv = Decimal::try_parse(o.start_value);
+  if (!sv)
+    throw InputError(fmt::format("--start-value: '{}' is not a number", printable(o.start_value)));
+  req.start_value = *sv;
+  if (!o.benchmark.empty()) req.benchmark = o.benchmark;
+  req.frictionless = o.frictionless;
+  req.progress = [&progress](std::size_t done, std::size_t total, Date day) {
+    progress(done, total, day);
+  };
+  if (o.curve == "-" && o.json)
+    throw InputError("--curve -: standard output already carries the JSON");
+  return req;
+}
 
 void write_curve(OutputFile& file, const backtest::Result& r) {
   file.write(report::backtest_curve_csv(r));
@@ -76,24 +102,10 @@ void add_backtest(CLI::App& app, Context& ctx) {
                 "No fees, bands, minimum trade or reserve; fractional units, fully invested");
   cmd->add_option("--rolling", o->rolling, "Months held in the rolling-window table");
   cmd->callback([&ctx, o] {
-    backtest::Request req;
-    req.from = date_value(o->from, "--from");
-    req.to = date_value(o->to, "--to");
-    const auto sv = Decimal::try_parse(o->start_value);
-    if (!sv)
-      throw InputError(
-          fmt::format("--start-value: '{}' is not a number", printable(o->start_value)));
-    req.start_value = *sv;
-    if (!o->benchmark.empty()) req.benchmark = o->benchmark;
-    req.frictionless = o->frictionless;
+    const Progress progress;
+    auto req = run_request(*o, progress);
     req.keep_trades = o->json;  // the text report lists no trades
     req.rolling_months = o->rolling;
-    const Progress progress;
-    req.progress = [&progress](std::size_t done, std::size_t total, Date day) {
-      progress(done, total, day);
-    };
-    if (o->curve == "-" && o->json)
-      throw InputError("--curve -: standard output already carries the JSON");
     const auto rule = rules::load_rule(o->rule);
     // Opened (and so checked) before the run; written after it.
     std::optional<OutputFile> curve;
@@ -110,6 +122,82 @@ void add_backtest(CLI::App& app, Context& ctx) {
       report::backtest_json(result, out);
     else
       out(report::backtest_text(result, ctx.style()));
+  });
+}
+
+struct CompareOptions : RunOptions {
+  std::vector<std::string> rules;
+  int hold_months = 24;
+};
+
+// Two rule files or more, none given twice (the same file under two names too).
+std::vector<rules::Rule> compare_rules(const std::vector<std::string>& files) {
+  std::vector<std::filesystem::path> seen;
+  for (const auto& f : files) {
+    std::error_code ec;
+    auto canonical =
+        f == "-" ? std::filesystem::path("-") : std::filesystem::weakly_canonical(f, ec);
+    if (ec) canonical = f;
+    for (std::size_t i = 0; i < seen.size(); ++i) {
+      if (seen[i] != canonical) continue;
+      if (files[i] == f) throw InputError(fmt::format("RULES: '{}' is given twice", printable(f)));
+      throw InputError(
+          fmt::format("RULES: '{}' is the same file as '{}'", printable(f), printable(files[i])));
+    }
+    seen.push_back(canonical);
+  }
+  std::vector<rules::Rule> out;
+  for (const auto& f : files) out.push_back(rules::load_rule(f));
+  return out;
+}
+
+void add_compare(CLI::App& app, Context& ctx) {
+  auto o = std::make_shared<CompareOptions>();
+  auto* cmd = app.add_subcommand(
+      "compare",
+      "Several rules back-tested over the same period, data and start value, side by side, "
+      "held from the start of any month, and in down markets");
+  add_examples(*cmd, {"keel compare low_pe.toml high_yield.toml --from 2019-01-01 --to 2025-12-31 "
+                      "--benchmark ZXTR",
+                      "keel compare a.toml b.toml c.toml --from 2019-01-01 --to 2025-12-31 "
+                      "--hold-months 36 --curve curves.csv"});
+  cmd->add_option("RULES", o->rules,
+                  "Rule files (TOML; see docs/rules.md), two or more; one may be '-' (standard "
+                  "input)")
+      ->required();
+  cmd->add_option("--from", o->from, "First day, YYYY-MM-DD")->required();
+  cmd->add_option("--to", o->to, "Last day, YYYY-MM-DD")->required();
+  cmd->add_option("--start-value", o->start_value, "Cash each simulated pool starts with");
+  cmd->add_option("--benchmark", o->benchmark,
+                  "A security whose closes to compare with (and to tell down markets by)");
+  cmd->add_option("--hold-months", o->hold_months,
+                  "Months held from the start of any complete month (default 24)");
+  add_json_flag(*cmd, o->json);
+  cmd->add_option("--curve", o->curve,
+                  "Write every run's daily values to this CSV file ('-': standard output, with "
+                  "the report on standard error)");
+  cmd->add_flag("--frictionless", o->frictionless,
+                "No fees, bands, minimum trade or reserve; fractional units, fully invested");
+  cmd->callback([&ctx, o] {
+    const Progress progress;
+    auto req = run_request(*o, progress);
+    req.keep_trades = false;  // a comparison lists no trades
+    req.rolling_months = o->hold_months;
+    backtest::check_compare_request(o->rules.size(), req);
+    const auto rules = compare_rules(o->rules);
+    std::optional<OutputFile> curve;
+    if (!o->curve.empty()) curve.emplace(o->curve, OutputOptions{"--curve"});
+    auto db = ctx.open_ledger();
+    const auto result = backtest::compare(db, rules, req);
+    if (curve) {
+      curve->write(report::compare_curve_csv(result));
+      curve->commit();
+    }
+    if (curve && curve->to_stdout()) {
+      std::fputs(report::compare_text(result, report::terminal_style(stderr)).c_str(), stderr);
+      return;
+    }
+    out(o->json ? report::compare_json(result) : report::compare_text(result, ctx.style()));
   });
 }
 
@@ -165,6 +253,7 @@ void add_signal(CLI::App& app, Context& ctx) {
 
 void register_backtest_commands(CLI::App& app, Context& ctx) {
   add_backtest(app, ctx);
+  add_compare(app, ctx);
   add_signal(app, ctx);
 }
 

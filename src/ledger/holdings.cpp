@@ -4,6 +4,7 @@
 
 #include <algorithm>
 #include <map>
+#include <stdexcept>
 
 #include "core/error.h"
 #include "ledger/accounts.h"
@@ -14,6 +15,12 @@
 
 namespace keel::ledger {
 namespace {
+
+// A security the book holds or held is in the ledger, so in the view.
+const Security& known(const market::View& view, std::int64_t security_id) {
+  if (const Security* s = view.security(security_id)) return *s;
+  throw std::logic_error(fmt::format("ledger: security {} is not in the market view", security_id));
+}
 
 std::map<std::int64_t, std::string> symbols_by_id(store::Database& db) {
   std::map<std::int64_t, std::string> out;
@@ -37,13 +44,13 @@ bool held_long_term(Date acquired, Date disposed) {
 
 Holdings holdings(store::Database& db, Date as_of, const std::optional<std::string>& account) {
   const auto only = account_filter(db, account);
-  const auto symbols = symbols_by_id(db);
-  std::map<std::int64_t, std::string> currencies;
-  for (const auto& s : store::list_securities(db)) currencies[s.id] = s.currency;
-  const LedgerLog log = load_log(db);
-  const Book book = replay(log, as_of);
+  const Book book = replay(load_log(db), as_of);
+  return holdings_of(book, market::DayView(db), as_of, only);
+}
+
+Holdings holdings_of(const Book& book, const market::View& view, Date as_of,
+                     std::optional<std::int64_t> only) {
   if (!only) one_currency(book.accounts(), "holdings");
-  const market::DayView view(db);
   auto convert = [&](const Decimal& amount, const std::string& from, const std::string& to,
                      const std::string& what) {
     try {
@@ -60,7 +67,8 @@ Holdings holdings(store::Database& db, Date as_of, const std::optional<std::stri
     for (const auto& [security_id, position] : ab.positions) {
       HoldingLine line;
       line.account = info.name;
-      line.symbol = symbols.at(security_id);
+      const Security& security = known(view, security_id);
+      line.symbol = security.symbol;
       line.quantity = position.quantity();
       line.cost_basis = position.cost();
       if (auto close = view.close(security_id, as_of)) {
@@ -70,7 +78,7 @@ Holdings holdings(store::Database& db, Date as_of, const std::optional<std::stri
         line.price_is_close = false;
       }
       line.market_value = line.quantity * line.price;
-      if (const std::string& c = currencies.at(security_id); c != info.currency) {
+      if (const std::string& c = security.currency; c != info.currency) {
         line.currency = c;
         line.local_value = line.market_value;
         auto [value, quote] = convert(line.local_value, c, info.currency, line.symbol);
@@ -120,14 +128,21 @@ std::vector<GainLine> realized_gains(store::Database& db, std::optional<int> yea
                                      const std::optional<std::string>& account,
                                      std::optional<int> long_term_days) {
   const auto only = account_filter(db, account);
-  const auto symbols = symbols_by_id(db);
   const Book book = replay(load_log(db));
-  const auto statuses = TaxStatuses::load(db);
+  return realized_gains_of(book, market::DayView(db), TaxStatuses::load(db), year, only,
+                           long_term_days);
+}
+
+std::vector<GainLine> realized_gains_of(const Book& book, const market::View& view,
+                                        const TaxStatuses& statuses, std::optional<int> year,
+                                        std::optional<std::int64_t> only,
+                                        std::optional<int> long_term_days) {
   std::vector<GainLine> out;
   for (const auto& part : book.realized()) {
     if (only && part.account_id != *only) continue;
     if (year && part.disposed.year() != *year) continue;
-    GainLine line{book.account_info(part.account_id).name, symbols.at(part.security_id), part};
+    GainLine line{book.account_info(part.account_id).name, known(view, part.security_id).symbol,
+                  part};
     line.days_held = part.disposed - part.acquired;
     line.long_term = long_term_days ? line.days_held > *long_term_days
                                     : held_long_term(part.acquired, part.disposed);

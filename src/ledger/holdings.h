@@ -19,9 +19,12 @@
 #include "core/date.h"
 #include "core/decimal.h"
 #include "ledger/book.h"
+#include "market/view.h"
 #include "store/database.h"
 
 namespace keel::ledger {
+
+class TaxStatuses;  // ledger/tax.h
 
 struct HoldingLine {
   std::string account;
@@ -59,6 +62,11 @@ struct Holdings {
 
 Holdings holdings(store::Database& db, Date as_of,
                   const std::optional<std::string>& account = std::nullopt);
+// The same from a book already replayed to `as_of` and a view of the ledger's
+// market data: a report that needs several days replays the log once
+// (Replayer) and asks at each. `only`: one account by id.
+Holdings holdings_of(const Book& book, const market::View& view, Date as_of,
+                     std::optional<std::int64_t> only = std::nullopt);
 
 struct LotLine {
   std::string account;
@@ -92,6 +100,11 @@ struct GainLine {
 std::vector<GainLine> realized_gains(store::Database& db, std::optional<int> year,
                                      const std::optional<std::string>& account = std::nullopt,
                                      std::optional<int> long_term_days = std::nullopt);
+// The same from a replayed book: the parts it has realized so far.
+std::vector<GainLine> realized_gains_of(const Book& book, const market::View& view,
+                                        const TaxStatuses& statuses, std::optional<int> year,
+                                        std::optional<std::int64_t> only = std::nullopt,
+                                        std::optional<int> long_term_days = std::nullopt);
 bool held_long_term(Date acquired, Date disposed);
 
 struct GainTotals {

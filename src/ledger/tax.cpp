@@ -4,11 +4,13 @@
 
 #include <algorithm>
 #include <set>
+#include <stdexcept>
 
 #include "core/error.h"
 #include "core/text.h"
 #include "ledger/accounts.h"
 #include "ledger/posting.h"
+#include "market/day_view.h"
 #include "store/ledger_store.h"
 
 namespace keel::ledger {
@@ -88,13 +90,15 @@ void flag_repurchases(store::Database& db, std::vector<GainLine>& gains, int win
 }
 
 Withholding withholding(store::Database& db, int year, const std::optional<std::string>& account) {
-  const LedgerLog log = load_log(db);
-  const auto voided = voided_ids(log.transactions);
-  const auto statuses = TaxStatuses::load(db);
   std::optional<std::int64_t> only;
   if (account) only = store::account_named(db, *account).id;
-  std::map<std::int64_t, Security> securities;
-  for (auto& s : store::list_securities(db)) securities[s.id] = s;
+  return withholding_of(load_log(db), market::DayView(db), TaxStatuses::load(db), year, only);
+}
+
+Withholding withholding_of(const LedgerLog& log, const market::View& view,
+                           const TaxStatuses& statuses, int year,
+                           std::optional<std::int64_t> only) {
+  const auto voided = voided_ids(log.transactions);
   std::map<std::int64_t, WithholdingBySecurity> by_id;
   std::vector<Account> involved;
   Withholding out;
@@ -113,8 +117,11 @@ Withholding withholding(store::Database& db, int year, const std::optional<std::
     const std::int64_t key = t.security_id.value_or(0);
     auto& line = by_id[key];
     if (t.security_id) {
-      line.symbol = securities[key].symbol;
-      line.country = securities[key].country;
+      const Security* security = view.security(key);
+      if (!security)
+        throw std::logic_error(fmt::format("withholding: security {} is not in the view", key));
+      line.symbol = security->symbol;
+      line.country = security->country;
     }
     (income ? line.income : line.withheld) += *t.amount;
   }

@@ -73,5 +73,10 @@ struct Withholding {
 };
 Withholding withholding(store::Database& db, int year,
                         const std::optional<std::string>& account = std::nullopt);
+// The same from a log already read; `only`: one account by id. The view
+// gives each security's symbol and country.
+Withholding withholding_of(const LedgerLog& log, const market::View& view,
+                           const TaxStatuses& statuses, int year,
+                           std::optional<std::int64_t> only = std::nullopt);
 
 }  // namespace keel::ledger

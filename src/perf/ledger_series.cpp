@@ -45,6 +45,21 @@ std::vector<EntryDay> entry_days(const Replayer& replayer, const LedgerLog& log,
 
 }  // namespace
 
+std::vector<std::int64_t> securities_held(const LedgerLog& log,
+                                          std::optional<std::int64_t> account_id) {
+  std::set<std::int64_t> out;
+  for (const auto& t : log.transactions)
+    if (t.security_id && (!account_id || t.account_id == *account_id)) out.insert(*t.security_id);
+  // A spin-off or merger brings units of its target into every account that
+  // holds its security; a chain of them is followed to its end.
+  for (bool grew = true; grew;) {
+    grew = false;
+    for (const auto& a : log.actions)
+      if (a.target_id && out.count(a.security_id) && out.insert(*a.target_id).second) grew = true;
+  }
+  return {out.begin(), out.end()};
+}
+
 std::vector<std::string> currencies_of(const LedgerLog& log,
                                        const std::vector<Security>& securities) {
   std::set<std::string> out;
@@ -106,7 +121,7 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
   // The close of a security on or before day d, exactly, or nullopt.
   auto close_on = [&](std::int64_t security, Date d) -> std::optional<Decimal> {
     const int c = prices.column(security);
-    if (c < 0) return std::nullopt;
+    if (c < 0) throw std::logic_error("build_series: the price series lacks a held security");
     const std::size_t r = prices.row(d);
     if (!prices.has(r, c)) return std::nullopt;
     return prices.exact(r, c);
@@ -171,7 +186,7 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
       else if (const auto traded = book.last_trade_price(key.second))
         local[security_currency(key.second)] += quantity * *traded;
       else
-        out.unpriced.insert(key.second);
+        out.unpriced_on.emplace_back(d, key.second);
     }
     bool foreign = false;
     for (const auto& [c, amount] : local) {
@@ -186,17 +201,19 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
       const bool in_period = d >= from;
       const std::string& in = row_currency(t);
       if (in_period) {
-        out.fees += reported(t.fee, in, d);
+        if (out.totals.empty() || out.totals.back().day != d) out.totals.push_back({d, {}, {}, {}});
+        DayTotals& today = out.totals.back();
+        today.fees += reported(t.fee, in, d);
         switch (t.kind) {
           case TxnKind::dividend:
           case TxnKind::interest:
-            out.income += reported(*t.amount, in, d);
+            today.income += reported(*t.amount, in, d);
             break;
           case TxnKind::tax:
-            out.tax += reported(*t.amount, in, d);
+            today.tax += reported(*t.amount, in, d);
             break;
           case TxnKind::fee:
-            out.fees += reported(*t.amount, in, d);
+            today.fees += reported(*t.amount, in, d);
             break;
           default:
             break;
@@ -212,7 +229,7 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
         if (!price && t.price) price = t.price, priced_in = in;
         if (!price) price = book.last_trade_price(*t.security_id);
         if (!price) {
-          out.unpriced.insert(*t.security_id);
+          out.unpriced_on.emplace_back(d, *t.security_id);
           return Decimal();
         }
         return reported(*t.quantity * *price, priced_in, d);
@@ -236,6 +253,40 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
     }
     out.series.push_back(std::move(point));
   }
+  for (const auto& t : out.totals) {
+    out.income += t.income;
+    out.tax += t.tax;
+    out.fees += t.fees;
+  }
+  for (const auto& [d, security] : out.unpriced_on) out.unpriced.insert(security);
+  return out;
+}
+
+LedgerSeries slice(const LedgerSeries& built, Date from, Date to) {
+  if (built.series.empty() || from.plus_days(-1) < built.series.front().day ||
+      to < from.plus_days(-1))
+    throw std::invalid_argument("slice: the period is not inside the series built");
+  const Date first = from.plus_days(-1);
+  // The opening value is the latest entry on or before first.
+  auto opening = std::upper_bound(built.series.begin(), built.series.end(), first,
+                                  [](Date d, const DayPoint& p) { return d < p.day; });
+  --opening;
+  const Date opened = opening->day;
+  LedgerSeries out;
+  for (auto it = opening; it != built.series.end() && it->day <= to; ++it)
+    out.series.push_back(*it);
+  for (const auto& t : built.totals)
+    if (t.day >= from && t.day <= to) {
+      out.totals.push_back(t);
+      out.income += t.income;
+      out.tax += t.tax;
+      out.fees += t.fees;
+    }
+  for (const auto& [d, security] : built.unpriced_on)
+    if (d >= opened && d <= to) {
+      out.unpriced_on.emplace_back(d, security);
+      out.unpriced.insert(security);
+    }
   return out;
 }
 

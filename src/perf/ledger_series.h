@@ -27,8 +27,13 @@
 //    each converted at the rate of its day.
 //  - One replay of the log, stepping day by day; closes come from a
 //    market::Series that spans [from - 1, to], holds every security the
-//    scope holds in that time and the rates of every currency involved.
+//    scope holds in that time (securities_held() is enough) and the rates of
+//    every currency involved; a held security missing from it is a
+//    std::logic_error, never a silent fall back to a trade price.
 //  - Throws InputError when from > to, or as replay does for a broken ledger.
+//  - Several periods of one scope (the statement's year, since inception and
+//    trailing years) share one build over their union and slice() it: one
+//    replay and one load of the closes.
 #pragma once
 
 #include <cstdint>
@@ -45,17 +50,43 @@
 
 namespace keel::perf {
 
+// The income, tax and fees of one day of the period (in `currency`).
+struct DayTotals {
+  Date day;
+  Decimal income, tax, fees;
+};
+
 struct LedgerSeries {
   std::vector<DayPoint> series;
   Decimal income;  // dividends + interest, in the period
   Decimal tax;
   Decimal fees;                     // fee transactions + transaction fees
   std::set<std::int64_t> unpriced;  // securities held without any price
+  // The same day by day, so that a shorter period inside [from, to] can be
+  // measured on this series (slice()): the totals of each day that has any,
+  // and each day on which a security was held without a price.
+  std::vector<DayTotals> totals;
+  std::vector<std::pair<Date, std::int64_t>> unpriced_on;
 };
+
+// The series of a shorter period [from, to] inside the one built: the same
+// entries (perf::measure() ignores those outside the period), the totals of
+// its days and the securities without a price on its days or on the latest
+// entry on or before from - 1 (its opening value). Equal to building the
+// series for [from, to] directly. Throws std::invalid_argument when [from,
+// to] is not inside the span built.
+LedgerSeries slice(const LedgerSeries& built, Date from, Date to);
 
 LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
                           std::optional<std::int64_t> account_id, Date from, Date to,
                           const std::string& currency);
+
+// Every security the scope (one account by id, or the whole ledger) may hold
+// at some time: those its transactions name and, through corporate actions,
+// those they turn into; ascending. A Series of these, with
+// Request::securities, is all build_series() reads closes of.
+std::vector<std::int64_t> securities_held(const LedgerLog& log,
+                                          std::optional<std::int64_t> account_id);
 
 // Every currency the log's accounts, rows and the given securities use:
 // what a Series needs to load for build_series().

@@ -2,7 +2,11 @@
 
 #include <fmt/format.h>
 
+#include <algorithm>
+#include <iterator>
 #include <map>
+#include <stdexcept>
+#include <tuple>
 
 #include "core/error.h"
 #include "core/text.h"
@@ -39,12 +43,8 @@ Scope scope_of(store::Database& db, const std::optional<std::string>& account_na
   return scope;
 }
 
-ReturnsReport report_of(store::Database& db, const LedgerData& data, const Scope& scope,
-                        const ReturnsRequest& request) {
-  ReturnsReport report;
-  report.scope = scope.name;
-  const std::optional<std::int64_t> account_id = scope.account_id;
-  const LedgerLog& log = data.log;
+// The ledger's first and last live transaction days.
+std::pair<Date, Date> live_span(const LedgerLog& log) {
   const auto voided = voided_ids(log.transactions);
   std::optional<Date> first, last;
   for (const auto& t : log.transactions) {
@@ -53,60 +53,103 @@ ReturnsReport report_of(store::Database& db, const LedgerData& data, const Scope
     if (!last || t.date > *last) last = t.date;
   }
   if (!first) throw InputError("the ledger has no transactions yet; there is nothing to measure");
-  report.inception = *first;
-  report.as_of = *last;
-  if (data.latest_close && *data.latest_close > report.as_of) report.as_of = *data.latest_close;
-  if (request.as_of) report.as_of = *request.as_of;
-  report.period = resolve_period(request.period, report.as_of, report.inception);
+  return {*first, *last};
+}
 
-  const Date before = report.period.from.plus_days(-1);
-  std::optional<Security> bench;
-  if (request.benchmark) {
-    bench = store::find_security(db, *request.benchmark);
-    if (!bench)
-      throw InputError(fmt::format("--benchmark: there is no security with symbol '{}'",
-                                   printable(*request.benchmark)));
+std::optional<Security> benchmark_of(store::Database& db, const ReturnsRequest& request) {
+  if (!request.benchmark) return std::nullopt;
+  auto bench = store::find_security(db, *request.benchmark);
+  if (!bench)
+    throw InputError(fmt::format("--benchmark: there is no security with symbol '{}'",
+                                 printable(*request.benchmark)));
+  return bench;
+}
+
+// Every request resolved first, then one series over the union of their
+// periods, sliced for each (ledger_series.h).
+std::vector<ReturnsReport> reports_of(store::Database& db, const LedgerData& data,
+                                      const Scope& scope,
+                                      const std::vector<ReturnsRequest>& requests) {
+  std::vector<ReturnsReport> reports(requests.size());
+  std::vector<std::optional<Security>> benches;
+  std::optional<Date> from, to;
+  for (std::size_t i = 0; i < requests.size(); ++i) {
+    ReturnsReport& report = reports[i];
+    const ResolvedPeriod resolved = resolve(data, requests[i]);
+    report.scope = scope.name;
+    report.inception = resolved.inception;
+    report.as_of = resolved.as_of;
+    report.period = resolved.period;
+    benches.push_back(benchmark_of(db, requests[i]));
+    if (!from || report.period.from < *from) from = report.period.from;
+    if (!to || report.period.to > *to) to = report.period.to;
   }
+  if (requests.empty()) return reports;
+
   market::Series::Request span;
-  span.from = before;
-  span.to = report.period.to;
+  span.from = from->plus_days(-1);
+  span.to = *to;
   span.currencies = data.currencies;
+  // Only the closes of what the scope holds, and of the benchmarks, are read.
+  span.securities = securities_held(data.log, scope.account_id);
+  for (const auto& bench : benches)
+    if (bench) span.securities->push_back(bench->id);
   const auto prices = market::Series::load(db, span);
-  auto series =
-      build_series(log, prices, account_id, report.period.from, report.period.to, scope.currency);
-  report.income = series.income;
-  report.tax = series.tax;
-  report.fees = series.fees;
+  const auto built = build_series(data.log, prices, scope.account_id, *from, *to, scope.currency);
 
-  for (const auto id : series.unpriced) {
-    const auto it = data.symbols.find(id);
-    report.unpriced.push_back(it == data.symbols.end() ? std::string() : it->second);
-  }
-
-  PerfInput input;
-  input.from = report.period.from;
-  input.to = report.period.to;
-  input.series = std::move(series.series);
-  input.risk_free_annual = request.risk_free_annual;
-  if (bench) {
-    std::vector<LevelPoint> levels;
-    for (auto& c : prices.closes(bench->id))
-      levels.push_back(LevelPoint{c.day, std::move(c.price)});
-    if (levels.empty() || levels.front().day > before) {
-      const auto first = market::DayView(db).first_close_after(bench->id, before);
-      throw InputError(fmt::format(
-          "--benchmark {}: needs a close on or before {}, the day before the period; {}",
-          printable(bench->symbol), before.str(),
-          first ? "its first close is on " + first->str() : std::string("it has no closes")));
+  for (std::size_t i = 0; i < requests.size(); ++i) {
+    ReturnsReport& report = reports[i];
+    const Date before = report.period.from.plus_days(-1);
+    auto series = slice(built, report.period.from, report.period.to);
+    report.income = series.income;
+    report.tax = series.tax;
+    report.fees = series.fees;
+    for (const auto id : series.unpriced) {
+      const auto it = data.symbols.find(id);
+      report.unpriced.push_back(it == data.symbols.end() ? std::string() : it->second);
     }
-    input.benchmark = std::move(levels);
-    report.benchmark = bench->symbol;
+
+    PerfInput input;
+    input.from = report.period.from;
+    input.to = report.period.to;
+    input.series = std::move(series.series);
+    input.risk_free_annual = requests[i].risk_free_annual;
+    if (const auto& bench = benches[i]) {
+      std::vector<LevelPoint> levels;
+      for (auto& c : prices.closes(bench->id))
+        if (c.day <= report.period.to) levels.push_back(LevelPoint{c.day, std::move(c.price)});
+      // measure() reads the latest level on or before `before`; earlier ones
+      // (of a longer period in the same load) are left out.
+      auto opening = std::upper_bound(levels.begin(), levels.end(), before,
+                                      [](Date d, const LevelPoint& p) { return d < p.day; });
+      if (opening == levels.begin()) {
+        const auto first = market::DayView(db).first_close_after(bench->id, before);
+        throw InputError(fmt::format(
+            "--benchmark {}: needs a close on or before {}, the day before the period; {}",
+            printable(bench->symbol), before.str(),
+            first ? "its first close is on " + first->str() : std::string("it has no closes")));
+      }
+      levels.erase(levels.begin(), std::prev(opening));
+      input.benchmark = std::move(levels);
+      report.benchmark = bench->symbol;
+    }
+    report.result = measure(input);
   }
-  report.result = measure(input);
-  return report;
+  return reports;
 }
 
 }  // namespace
+
+ResolvedPeriod resolve(const LedgerData& data, const ReturnsRequest& request) {
+  ResolvedPeriod out;
+  Date last;
+  std::tie(out.inception, last) = live_span(data.log);
+  out.as_of = last;
+  if (data.latest_close && *data.latest_close > out.as_of) out.as_of = *data.latest_close;
+  if (request.as_of) out.as_of = *request.as_of;
+  out.period = resolve_period(request.period, out.as_of, out.inception);
+  return out;
+}
 
 LedgerData LedgerData::load(store::Database& db) {
   LedgerData data{ledger::load_log(db), {}, market::DayView(db).latest_close_day(), {}};
@@ -120,12 +163,21 @@ LedgerData LedgerData::load(store::Database& db) {
 // reported as such whatever the rest of the ledger holds.
 ReturnsReport returns_report(store::Database& db, const ReturnsRequest& request) {
   const Scope scope = scope_of(db, request.account);
-  return report_of(db, LedgerData::load(db), scope, request);
+  return reports_of(db, LedgerData::load(db), scope, {request}).front();
 }
 
 ReturnsReport returns_report(store::Database& db, const LedgerData& data,
                              const ReturnsRequest& request) {
-  return report_of(db, data, scope_of(db, request.account), request);
+  return reports_of(db, data, scope_of(db, request.account), {request}).front();
+}
+
+std::vector<ReturnsReport> returns_reports(store::Database& db, const LedgerData& data,
+                                           const std::optional<std::string>& account,
+                                           const std::vector<ReturnsRequest>& requests) {
+  for (const auto& r : requests)
+    if (r.account != account)
+      throw std::invalid_argument("returns_reports: every request must be of the one scope");
+  return reports_of(db, data, scope_of(db, account), requests);
 }
 
 }  // namespace keel::perf

@@ -15,7 +15,8 @@
 //  - Several reports of one ledger (the statement measures four periods) can
 //    share one LedgerData: the log and the symbols are then read once. It is
 //    a copy taken by load(); later changes to the ledger are not in it. The
-//    closes of each period are read for it (market::Series).
+//    closes of each call are read for it (market::Series); returns_reports()
+//    measures several periods with one read and one replay.
 #pragma once
 
 #include <cstdint>
@@ -58,8 +59,25 @@ struct LedgerData {
   static LedgerData load(store::Database& db);
 };
 
+// What a request resolves to before anything is measured (no closes read):
+// the ledger's inception and as-of (see above) and the period. Throws as
+// resolve_period() does, and InputError for a ledger without transactions.
+struct ResolvedPeriod {
+  Date inception;
+  Date as_of;
+  Period period;
+};
+ResolvedPeriod resolve(const LedgerData& data, const ReturnsRequest& request);
+
 ReturnsReport returns_report(store::Database& db, const ReturnsRequest& request);
 ReturnsReport returns_report(store::Database& db, const LedgerData& data,
                              const ReturnsRequest& request);
+// Several periods of one scope (every request's account is `account`, else
+// std::invalid_argument), measured on one series built over their union and
+// sliced (perf::slice): one replay and one load of the closes. Each report
+// equals returns_report() of its request.
+std::vector<ReturnsReport> returns_reports(store::Database& db, const LedgerData& data,
+                                           const std::optional<std::string>& account,
+                                           const std::vector<ReturnsRequest>& requests);
 
 }  // namespace keel::perf

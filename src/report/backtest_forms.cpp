@@ -45,10 +45,10 @@ void drawdown_json(JsonWriter& j, const perf::RiskFigures& r) {
   j.end_object();
 }
 
-void run_json(JsonWriter& j, std::string& text, const Emit& emit, const backtest::Result& result,
-              const backtest::StrategyRun& s) {
+}  // namespace
+
+void run_figures_json(JsonWriter& j, const backtest::StrategyRun& s) {
   const auto& p = s.perf;
-  j.begin_object();
   j.member("end_value", p.closing_value.rounded(10));
   j.member("twr", p.twr.period).member("twr_annualized", p.twr.annualized);
   j.member("volatility_annualized", p.risk.daily_volatility);
@@ -63,6 +63,14 @@ void run_json(JsonWriter& j, std::string& text, const Emit& emit, const backtest
   j.key("names").begin_object();
   j.member("min", s.names_min).member("mean", s.names_mean).member("max", s.names_max);
   j.end_object();
+}
+
+namespace {
+
+void run_json(JsonWriter& j, std::string& text, const Emit& emit, const backtest::Result& result,
+              const backtest::StrategyRun& s) {
+  j.begin_object();
+  run_figures_json(j, s);
   j.key("rebalances").begin_array();
   for (const auto& r : s.rebalances) {
     j.begin_object();
@@ -98,7 +106,8 @@ void run_json(JsonWriter& j, std::string& text, const Emit& emit, const backtest
   j.end_object();
 }
 
-// The closing notes (when there are any) and cautions of a back-test or a signal check.
+}  // namespace
+
 std::string notes_and_cautions(const std::vector<std::string>& notes,
                                const std::vector<std::string>& cautions) {
   std::string s;
@@ -111,7 +120,183 @@ std::string notes_and_cautions(const std::vector<std::string>& notes,
   return s;
 }
 
+namespace {
+
+std::string state_ahead(const perf::StateFigures& f) {
+  if (f.periods == 0) return "";
+  return fmt::format("{} ({:.0f}%)", f.ahead, 100.0 * f.ahead / f.periods);
+}
+
+void state_json(JsonWriter& j, const perf::StateFigures& f) {
+  j.begin_object();
+  j.member("periods", f.periods).member("ahead", f.ahead).member("mean", f.mean);
+  j.member("benchmark_mean", f.benchmark_mean).member("mean_excess", f.mean_excess);
+  j.end_object();
+}
+
+void states_json(JsonWriter& j, const perf::MarketStates& m) {
+  j.begin_object();
+  j.key("fell");
+  state_json(j, m.fell);
+  j.key("rose");
+  state_json(j, m.rose);
+  j.end_object();
+}
+
 }  // namespace
+
+std::string figures_table(
+    const std::vector<std::pair<std::string, const backtest::StrategyRun*>>& runs,
+    const std::optional<std::string>& benchmark, const Style& style) {
+  std::vector<Table::Column> cols{{"", Align::left, true}};
+  for (const auto& [label, run] : runs) cols.push_back({label, Align::right});
+  const auto& first = *runs.front().second;
+  const bool bench = benchmark && first.perf.benchmark;
+  if (bench) cols.push_back({"benchmark " + *benchmark, Align::right});
+  Table t(cols);
+  // A row of one figure per run, and the benchmark's when given.
+  auto row = [&](std::string label,
+                 const std::function<std::string(const backtest::StrategyRun&)>& f,
+                 std::string bench_cell = "") {
+    std::vector<std::string> cells{std::move(label)};
+    for (const auto& [l, run] : runs) cells.push_back(f(*run));
+    if (bench) cells.push_back(std::move(bench_cell));
+    t.add_row(std::move(cells));
+  };
+  using Run = backtest::StrategyRun;
+  row("end value", [](const Run& a) { return a.perf.closing_value.fixed(2); });
+  row(
+      "return (time-weighted)", [](const Run& a) { return pct(a.perf.twr.period); },
+      bench ? pct(first.perf.benchmark->benchmark.period) : "");
+  row(
+      "annualized", [](const Run& a) { return pct(a.perf.twr.annualized); },
+      bench ? pct(first.perf.benchmark->benchmark.annualized) : "");
+  if (bench)
+    row("excess over benchmark",
+        [](const Run& a) { return pct(a.perf.benchmark->excess_arithmetic); });
+  row("volatility (annualized, daily)",
+      [](const Run& a) { return pct(a.perf.risk.daily_volatility); });
+  auto dd = [](int part) {
+    return [part](const Run& a) {
+      const auto& rf = a.perf.risk;
+      if (!rf.max_drawdown) return std::string(part == 0 ? "none" : "");
+      const auto& d = *rf.max_drawdown;
+      if (part == 0) return fmt::format("{:.2f}%", d.depth * 100);
+      if (part == 1) return d.peak.str() + ".." + d.trough.str();
+      return d.recovery ? d.recovery->str() : std::string("not yet");
+    };
+  };
+  row("max drawdown", dd(0));
+  row("  from peak to trough", dd(1));
+  row("  back at the peak", dd(2));
+  row("turnover per year",
+      [](const Run& a) { return fmt::format("{:.1f}%", a.turnover_per_year * 100); });
+  row("fees paid", [](const Run& a) { return a.fees.fixed(2); });
+  row("distributions", [](const Run& a) { return a.distributions.fixed(2); });
+  row("names held (min/mean/max)", [](const Run& a) {
+    return fmt::format("{}/{:.1f}/{}", a.names_min, a.names_mean, a.names_max);
+  });
+  return t.render(style);
+}
+
+std::string down_markets_text(const backtest::DownMarkets& d, const Style& style) {
+  std::string s = fmt::format(
+      "\nDown markets: complete months and {}-month windows in which the benchmark {} fell "
+      "(returned less than zero) or rose\n",
+      d.window_months, printable(d.benchmark));
+  std::vector<Table::Column> cols{{"", Align::left, true}};
+  for (const auto& r : d.runs) cols.push_back({r.label, Align::right});
+  cols.push_back({"benchmark " + d.benchmark, Align::right});
+  Table t(cols);
+  auto row = [&](std::string label,
+                 const std::function<std::string(const backtest::RunInMarkets&)>& f,
+                 std::string bench_cell = "") {
+    std::vector<std::string> cells{std::move(label)};
+    for (const auto& r : d.runs) cells.push_back(f(r));
+    cells.push_back(std::move(bench_cell));
+    t.add_row(std::move(cells));
+  };
+  using R = backtest::RunInMarkets;
+  auto state = [&](const std::string& what, auto pick) {
+    const perf::StateFigures& b = pick(d.runs.front());
+    row(fmt::format("{}: {}", what, b.periods), [](const R&) { return std::string(); });
+    row(
+        "  mean return", [&](const R& r) { return pct(pick(r).mean); }, pct(b.benchmark_mean));
+    row("  mean excess over the benchmark", [&](const R& r) { return pct(pick(r).mean_excess); });
+    row("  ahead of the benchmark", [&](const R& r) { return state_ahead(pick(r)); });
+  };
+  state("months the benchmark fell",
+        [](const R& r) -> const perf::StateFigures& { return r.months.fell; });
+  state("months the benchmark rose",
+        [](const R& r) -> const perf::StateFigures& { return r.months.rose; });
+  const std::string w = fmt::format("{}-month windows the benchmark", d.window_months);
+  state(w + " fell", [](const R& r) -> const perf::StateFigures& { return r.windows.fell; });
+  state(w + " rose", [](const R& r) -> const perf::StateFigures& { return r.windows.rose; });
+  row("up-capture (months the benchmark rose)", [](const R& r) { return pct(r.capture.up); });
+  row("down-capture (months the benchmark fell)", [](const R& r) { return pct(r.capture.down); });
+  s += t.render(style);
+  if (d.falls.empty())
+    return s + fmt::format("The benchmark {} never fell.\n", printable(d.benchmark));
+  s += fmt::format("\nThe benchmark's {} worst falls, and each run's return over the same days:\n",
+                   d.falls.size());
+  std::vector<Table::Column> fcols{{"from peak", Align::left},
+                                   {"to trough", Align::left},
+                                   {"back at the peak", Align::left},
+                                   {"benchmark " + d.benchmark, Align::right}};
+  for (const auto& r : d.runs) fcols.push_back({r.label, Align::right});
+  Table f(fcols);
+  for (std::size_t i = 0; i < d.falls.size(); ++i) {
+    const auto& fall = d.falls[i];
+    std::vector<std::string> cells{fall.peak.str(), fall.trough.str(),
+                                   fall.recovery ? fall.recovery->str() : "not yet",
+                                   fmt::format("{:.2f}%", fall.depth * 100)};
+    for (const auto& r : d.runs) cells.push_back(pct(r.in_falls[i]));
+    f.add_row(std::move(cells));
+  }
+  return s + f.render(style);
+}
+
+void down_markets_json(JsonWriter& j, const std::optional<backtest::DownMarkets>& dm) {
+  if (!dm) {
+    j.null();
+    return;
+  }
+  j.begin_object();
+  j.member("benchmark", dm->benchmark).member("window_months", dm->window_months);
+  j.member("state_rule", "fell: the benchmark's return below zero; rose: zero or above");
+  j.member("capture_definition",
+           "geometric mean monthly return of the run over the months in a state, divided by "
+           "the benchmark's over the same months (common practice, from memory)");
+  j.key("falls").begin_array();
+  for (const auto& f : dm->falls) {
+    j.begin_object();
+    j.member("depth", f.depth).member("peak", f.peak.str()).member("trough", f.trough.str());
+    j.key("recovery");
+    if (f.recovery)
+      j.value(f.recovery->str());
+    else
+      j.null();
+    j.end_object();
+  }
+  j.end_array();
+  j.key("runs").begin_array();
+  for (const auto& r : dm->runs) {
+    j.begin_object();
+    j.member("label", r.label);
+    j.key("months");
+    states_json(j, r.months);
+    j.key("windows");
+    states_json(j, r.windows);
+    j.member("up_capture", r.capture.up).member("up_months", r.capture.up_months);
+    j.member("down_capture", r.capture.down).member("down_months", r.capture.down_months);
+    j.key("in_falls").begin_array();
+    for (const auto& x : r.in_falls) j.value(x);
+    j.end_array();
+    j.end_object();
+  }
+  j.end_array();
+  j.end_object();
+}
 
 std::string backtest_json(const backtest::Result& r) {
   std::string all;
@@ -122,7 +307,7 @@ std::string backtest_json(const backtest::Result& r) {
 void backtest_json(const backtest::Result& r, const Emit& emit) {
   std::string s;
   JsonWriter j(s);
-  begin_document(j, "backtest", 1);
+  begin_document(j, "backtest", 2);
   j.member("rule", r.rule_name).member("from", r.from.str()).member("to", r.to.str());
   j.member("start_value", r.start_value).member("frictionless", r.frictionless);
   j.member("benchmark", r.benchmark);
@@ -153,9 +338,16 @@ void backtest_json(const backtest::Result& r, const Emit& emit) {
     j.member("date", c.day.str()).member("value", c.value.rounded(10));
     j.member("cash", c.cash.rounded(10)).member("names", c.names);
     j.member("baseline_value", r.baseline.curve[i].value.rounded(10));
+    j.key("benchmark");
+    if (i < r.benchmark_curve.size() && r.benchmark_curve[i])
+      j.value(*r.benchmark_curve[i]);
+    else
+      j.null();
     j.end_object();
   }
   j.end_array();
+  j.key("down_markets");
+  down_markets_json(j, r.down_markets);
   j.member("notes", r.notes).member("cautions", r.cautions);
   j.end_object();
   emit(s + "\n");
@@ -170,46 +362,7 @@ std::string backtest_text(const backtest::Result& r, const Style& style) {
   s += fmt::format("Start value {}; {} rebalancing days, {} to {}\n\n", r.start_value.fixed(2),
                    r.rebalance_days.size(), r.rebalance_days.front().str(),
                    r.rebalance_days.back().str());
-  std::vector<Table::Column> cols{
-      {"", Align::left, true}, {"rule", Align::right}, {"baseline", Align::right}};
-  const bool bench = r.benchmark && r.rule.perf.benchmark;
-  if (bench) cols.push_back({"benchmark " + *r.benchmark, Align::right});
-  Table t(cols);
-  auto row = [&](std::string label, std::string a, std::string b, std::string c) {
-    std::vector<std::string> cells{std::move(label), std::move(a), std::move(b)};
-    if (bench) cells.push_back(std::move(c));
-    t.add_row(std::move(cells));
-  };
-  const auto& a = r.rule;
-  const auto& b = r.baseline;
-  row("end value", a.perf.closing_value.fixed(2), b.perf.closing_value.fixed(2), "");
-  row("return (time-weighted)", pct(a.perf.twr.period), pct(b.perf.twr.period),
-      bench ? pct(a.perf.benchmark->benchmark.period) : "");
-  row("annualized", pct(a.perf.twr.annualized), pct(b.perf.twr.annualized),
-      bench ? pct(a.perf.benchmark->benchmark.annualized) : "");
-  if (bench)
-    row("excess over benchmark", pct(a.perf.benchmark->excess_arithmetic),
-        pct(b.perf.benchmark->excess_arithmetic), "");
-  row("volatility (annualized, daily)", pct(a.perf.risk.daily_volatility),
-      pct(b.perf.risk.daily_volatility), "");
-  auto dd = [](const perf::RiskFigures& rf, int part) {
-    if (!rf.max_drawdown) return std::string(part == 0 ? "none" : "");
-    const auto& d = *rf.max_drawdown;
-    if (part == 0) return fmt::format("{:.2f}%", d.depth * 100);
-    if (part == 1) return d.peak.str() + ".." + d.trough.str();
-    return d.recovery ? d.recovery->str() : std::string("not yet");
-  };
-  row("max drawdown", dd(a.perf.risk, 0), dd(b.perf.risk, 0), "");
-  row("  from peak to trough", dd(a.perf.risk, 1), dd(b.perf.risk, 1), "");
-  row("  back at the peak", dd(a.perf.risk, 2), dd(b.perf.risk, 2), "");
-  row("turnover per year", fmt::format("{:.1f}%", a.turnover_per_year * 100),
-      fmt::format("{:.1f}%", b.turnover_per_year * 100), "");
-  row("fees paid", a.fees.fixed(2), b.fees.fixed(2), "");
-  row("distributions", a.distributions.fixed(2), b.distributions.fixed(2), "");
-  row("names held (min/mean/max)",
-      fmt::format("{}/{:.1f}/{}", a.names_min, a.names_mean, a.names_max),
-      fmt::format("{}/{:.1f}/{}", b.names_min, b.names_mean, b.names_max), "");
-  s += t.render(style);
+  s += figures_table({{"rule", &r.rule}, {"baseline", &r.baseline}}, r.benchmark, style);
 
   for (const auto& w : r.rolling) {
     if (&w == &r.rolling.front())
@@ -224,17 +377,22 @@ std::string backtest_text(const backtest::Result& r, const Style& style) {
         w.against, w.beat, w.windows, 100.0 * w.beat / w.windows, pct(w.median_excess),
         pct(w.worst_excess), pct(w.best_excess));
   }
+  if (r.down_markets) s += down_markets_text(*r.down_markets, style);
   return s + notes_and_cautions(r.notes, r.cautions);
 }
 
 std::string backtest_curve_csv(const backtest::Result& r) {
-  std::string s = "date,value,cash,names,baseline_value\n";
+  std::string s = "date,value,cash,names,baseline_value,benchmark\n";
   for (std::size_t i = 0; i < r.rule.curve.size(); ++i) {
     const auto& c = r.rule.curve[i];
-    s += fmt::format("{},{},{},{},{}\n", c.day.str(), c.value.fixed(6), c.cash.fixed(6), c.names,
-                     r.baseline.curve[i].value.fixed(6));
+    s += fmt::format("{},{},{},{},{},{}\n", c.day.str(), c.value.fixed(6), c.cash.fixed(6), c.names,
+                     r.baseline.curve[i].value.fixed(6), benchmark_cell(r.benchmark_curve, i));
   }
   return s;
+}
+
+std::string benchmark_cell(const std::vector<std::optional<Decimal>>& curve, std::size_t i) {
+  return i < curve.size() && curve[i] ? curve[i]->str() : std::string();
 }
 
 std::string signal_json(const backtest::SignalResult& r) {

@@ -7,15 +7,23 @@
 //  - JSON (core/json.h): money as exact decimal strings (simulated values
 //    rounded to 10 places), returns and statistics as numbers, absent figures
 //    as null; the curve holds every day of the run.
-//  - backtest_curve_csv(): date,value,cash,names,baseline_value, one row for
-//    the day before the start and each day with a close, values to 6 places.
+//  - backtest_curve_csv(): date,value,cash,names,baseline_value,benchmark, one
+//    row for the day before the start and each day with a close, values to 6
+//    places; the benchmark's close on or before the day exactly as stored
+//    (empty without a benchmark).
+//  - figures_table(), down_markets_text(), down_markets_json(): the parts a
+//    back-test and a comparison of rules share.
 #pragma once
 
 #include <functional>
+#include <optional>
 #include <string>
+#include <utility>
+#include <vector>
 
 #include "backtest/backtest.h"
 #include "backtest/signal.h"
+#include "core/json.h"
 #include "report/table.h"
 
 namespace keel::report {
@@ -27,6 +35,22 @@ std::string backtest_json(const backtest::Result& r);
 using Emit = std::function<void(const std::string&)>;
 void backtest_json(const backtest::Result& r, const Emit& emit);
 std::string backtest_curve_csv(const backtest::Result& r);
+// A curve file's benchmark cell for day i: the close exactly, or empty.
+std::string benchmark_cell(const std::vector<std::optional<Decimal>>& curve, std::size_t i);
+
+// The figures of each run side by side, with the benchmark's returns (of the
+// first run's perf) when there is one.
+std::string figures_table(
+    const std::vector<std::pair<std::string, const backtest::StrategyRun*>>& runs,
+    const std::optional<std::string>& benchmark, const Style& style);
+// A run's figures as members of an open JSON object (end value, returns,
+// risk, excess with a benchmark, turnover, fees, distributions, names).
+void run_figures_json(JsonWriter& j, const backtest::StrategyRun& s);
+std::string down_markets_text(const backtest::DownMarkets& d, const Style& style);
+void down_markets_json(JsonWriter& j, const std::optional<backtest::DownMarkets>& d);
+// The closing notes (when there are any) and cautions of a report.
+std::string notes_and_cautions(const std::vector<std::string>& notes,
+                               const std::vector<std::string>& cautions);
 
 std::string signal_text(const backtest::SignalResult& r, const Style& style);
 std::string signal_json(const backtest::SignalResult& r);

@@ -172,12 +172,64 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   const perf::LedgerData data = perf::LedgerData::load(db);
   ledger::refuse_other_currencies(data.log, "statement");
 
-  // The year itself: the returns module resolves the period and measures it.
+  // Performance: this year, since inception, trailing 3 and 5 years where the
+  // ledger's history covers them; the returns module measures them together,
+  // on one series of the ledger.
   perf::ReturnsRequest year_request;
   year_request.account = request.account;
   year_request.period.year = request.year;
   year_request.benchmark = request.benchmark;
-  const perf::ReturnsReport year = perf::returns_report(db, data, year_request);
+  const perf::ResolvedPeriod resolved = perf::resolve(data, year_request);
+  const Date to = resolved.period.to;
+  const market::DayView view(db);
+  std::vector<perf::ReturnsRequest> requests{year_request};
+  // Each line of the table: a label and the request measuring it, or a line
+  // that cannot be measured.
+  std::vector<std::pair<std::string, std::optional<std::size_t>>> lines{{"this year", 0}};
+  std::vector<PerformanceLine> unavailable;
+  auto measure = [&](const std::string& label, Date from) {
+    perf::ReturnsRequest rq;
+    rq.account = request.account;
+    rq.period.from = from;
+    rq.period.to = to;
+    rq.as_of = to;
+    if (request.benchmark && priced_by(view, *request.benchmark, from.plus_days(-1)))
+      rq.benchmark = request.benchmark;
+    lines.emplace_back(label, requests.size());
+    requests.push_back(rq);
+  };
+  measure("since inception", resolved.inception);
+  for (const int n : kTrailingYears) {
+    const Date from = to.plus_years(-n).plus_days(1);
+    if (from < resolved.inception) {
+      PerformanceLine line;
+      line.label = fmt::format("{} years", n);
+      line.from = from;
+      line.to = to;
+      line.unavailable_reason = fmt::format("the ledger starts on {}, less than {} years before {}",
+                                            resolved.inception.str(), n, to.str());
+      lines.emplace_back(line.label, std::nullopt);
+      unavailable.push_back(std::move(line));
+    } else {
+      measure(fmt::format("{} years", n), from);
+    }
+  }
+  const auto reports = perf::returns_reports(db, data, request.account, requests);
+  std::size_t next_unavailable = 0;
+  for (const auto& [label, index] : lines) {
+    if (!index) {
+      s.performance.push_back(std::move(unavailable[next_unavailable++]));
+      continue;
+    }
+    auto line = line_from(label, reports[*index]);
+    const auto& asked = requests[*index];
+    if (request.benchmark && !asked.benchmark)
+      line.benchmark_note = fmt::format("{} has no close before {}", printable(*request.benchmark),
+                                        asked.period.from->str());
+    s.performance.push_back(std::move(line));
+  }
+
+  const perf::ReturnsReport& year = reports.front();
   const perf::PerfResult& r = year.result;
   s.scope = year.scope;
   s.from = r.from;
@@ -192,50 +244,20 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
       request.long_term_days
           ? fmt::format("long-term: held more than {} days", *request.long_term_days)
           : std::string("long-term: disposed of after the first anniversary of acquisition");
-
-  // Performance: this year, since inception, trailing 3 and 5 years where the
-  // ledger's history covers them. Each is one call of the returns module.
-  s.performance.push_back(line_from("this year", year));
-  const market::DayView view(db);
-  auto measured = [&](const std::string& label, Date from) {
-    perf::ReturnsRequest rq;
-    rq.account = request.account;
-    rq.period.from = from;
-    rq.period.to = s.to;
-    rq.as_of = s.to;
-    const bool bench_ok =
-        request.benchmark && priced_by(view, *request.benchmark, from.plus_days(-1));
-    if (bench_ok) rq.benchmark = request.benchmark;
-    auto line = line_from(label, perf::returns_report(db, data, rq));
-    if (request.benchmark && !bench_ok)
-      line.benchmark_note =
-          fmt::format("{} has no close before {}", printable(*request.benchmark), from.str());
-    return line;
-  };
-  s.performance.push_back(measured("since inception", s.inception));
-  for (const int n : kTrailingYears) {
-    const Date from = s.to.plus_years(-n).plus_days(1);
-    if (from < s.inception) {
-      PerformanceLine line;
-      line.label = fmt::format("{} years", n);
-      line.from = from;
-      line.to = s.to;
-      line.unavailable_reason = fmt::format("the ledger starts on {}, less than {} years before {}",
-                                            s.inception.str(), n, s.to.str());
-      s.performance.push_back(std::move(line));
-    } else {
-      s.performance.push_back(measured(fmt::format("{} years", n), from));
-    }
-  }
   s.twr_mwr_words = twr_mwr_words(s.performance.front());
 
   for (const auto& m : r.months) s.months.push_back({m.month, m.complete, m.twr, m.benchmark});
   s.growth = portfolio_growth(r);
   if (s.benchmark) s.benchmark_growth = benchmark_growth(db, *s.benchmark, s.from, s.to);
 
-  // Holdings at the close of the period and of the day before it.
-  const auto opening = ledger::holdings(db, s.from.plus_days(-1), request.account);
-  const auto closing = ledger::holdings(db, s.to, request.account);
+  // One replay of the log read above: holdings at the close of the day
+  // before the period and of its last day; the parts realized and the cost
+  // basis moved by then.
+  Replayer replayer(data.log);
+  const Date before = s.from.plus_days(-1);
+  const auto opening = ledger::holdings_of(replayer.advance_to(before), view, before, account_id);
+  const Book& book = replayer.advance_to(s.to);
+  const auto closing = ledger::holdings_of(book, view, s.to, account_id);
   s.holdings_total = closing.total_value;
   s.cash = closing.cash;
   std::map<std::string, Decimal> by_symbol;
@@ -255,8 +277,8 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   // accounts not taxable that day are listed apart.
   const auto statuses = ledger::TaxStatuses::load(db);
   Decimal sheltered_gain;
-  for (auto& g :
-       ledger::realized_gains(db, request.year, request.account, request.long_term_days)) {
+  for (auto& g : ledger::realized_gains_of(book, view, statuses, request.year, account_id,
+                                           request.long_term_days)) {
     if (g.part.disposed < s.from || g.part.disposed > s.to) continue;
     if (g.taxable()) {
       s.gains.push_back(std::move(g));
@@ -358,7 +380,7 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   }
   std::stable_sort(s.not_taxable.begin(), s.not_taxable.end(),
                    [](const NotTaxableRow& a, const NotTaxableRow& b) { return a.day < b.day; });
-  s.withholding = ledger::withholding(db, request.year, request.account);
+  s.withholding = ledger::withholding_of(log, view, statuses, request.year, account_id);
 
   // Value pieces: the returns module's values and external flows; the lot
   // engine's realized gains and the cost basis moved by transfers.
@@ -370,7 +392,6 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   y.unrealized_opening = unrealized_total(opening);
   y.unrealized_closing = unrealized_total(closing);
   Decimal cost_moved;
-  const Book book = replay(log, s.to);
   for (const auto& m : book.moved()) {
     if (m.date < s.from || (account_id && m.account_id != *account_id)) continue;
     cost_moved += m.incoming ? m.cost : -m.cost;

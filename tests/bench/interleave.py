@@ -6,12 +6,15 @@ Usage:
 
 Each round runs the reference and every other command once, in an order that
 alternates between rounds (so neither side always runs on a warmer or colder
-machine), each under GNU time for its wall time and peak resident memory.
+machine), each under GNU time for its wall time, its processor time (user + system)
+and its peak resident memory.
 The machine may be shared and noisy: what counts is the ratio of each
 command to the reference within the same round. Prints every round's times,
 then per command the ratio's minimum and median over the rounds, and its
-peak memory. Output of the commands goes to /dev/null; a command that fails
-stops the run.
+peak memory. The same ratios of processor time follow: on a machine that
+other work keeps busy, wall time also counts the time a command waited for a
+core, and processor time does not. Output of the commands goes to
+/dev/null; a command that fails stops the run.
 """
 import argparse
 import statistics
@@ -21,14 +24,14 @@ import tempfile
 
 
 def timed(command):
-    """(wall seconds, peak RSS in MiB) of one run of a shell command."""
+    """(wall seconds, processor seconds, peak RSS in MiB) of one run of a shell command."""
     with tempfile.NamedTemporaryFile("r", suffix=".time") as t:
-        p = subprocess.run(["/usr/bin/time", "-f", "%e %M", "-o", t.name, "sh", "-c", command],
+        p = subprocess.run(["/usr/bin/time", "-f", "%e %U %S %M", "-o", t.name, "sh", "-c", command],
                            stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True)
         if p.returncode != 0:
             sys.exit(f"failed ({p.returncode}): {command}\n{p.stderr}")
-        wall, kib = t.read().split()[-2:]
-        return float(wall), int(kib) / 1024
+        wall, user, system, kib = t.read().split()[-4:]
+        return float(wall), float(user) + float(system), int(kib) / 1024
 
 
 def main():
@@ -41,22 +44,26 @@ def main():
         sys.exit("--pairs: at least 3 rounds are needed for a median worth the name")
     commands = [tuple(a.ref)] + [tuple(c) for c in a.cmd]
     times = {name: [] for name, _ in commands}
+    cpu = {name: [] for name, _ in commands}
     peak = {name: 0.0 for name, _ in commands}
     for r in range(a.pairs):
         order = commands if r % 2 == 0 else commands[::-1]
         for name, command in order:
-            wall, mib = timed(command)
+            wall, processor, mib = timed(command)
             times[name].append(wall)
+            cpu[name].append(processor)
             peak[name] = max(peak[name], mib)
         print(f"round {r + 1}: " + ", ".join(f"{n} {times[n][-1]:.2f} s" for n, _ in commands),
               flush=True)
     ref = commands[0][0]
-    print(f"\n{'command':<28} {'min s':>8} {'median s':>9} {'ratio min':>10} "
-          f"{'ratio median':>13} {'peak MiB':>9}")
-    for name, _ in commands:
-        ratios = [t / r for t, r in zip(times[name], times[ref])]
-        print(f"{name:<28} {min(times[name]):8.2f} {statistics.median(times[name]):9.2f} "
-              f"{min(ratios):10.3f} {statistics.median(ratios):13.3f} {peak[name]:9.1f}")
+    for title, series in (("wall time", times), ("processor time", cpu)):
+        print(f"\n{title}\n{'command':<28} {'min s':>8} {'median s':>9} {'ratio min':>10} "
+              f"{'ratio median':>13} {'peak MiB':>9}")
+        for name, _ in commands:
+            # A reference too quick to register (0.00 s) counts as 0.01 s.
+            ratios = [t / max(r, 0.01) for t, r in zip(series[name], series[ref])]
+            print(f"{name:<28} {min(series[name]):8.2f} {statistics.median(series[name]):9.2f} "
+                  f"{min(ratios):10.3f} {statistics.median(ratios):13.3f} {peak[name]:9.1f}")
 
 
 if __name__ == "__main__":

@@ -7,6 +7,7 @@ Data: 30 invented names x 3 years from tests/bench/gen_market.py (with
 restated figures, cash distributions and a split), imported with keel import.
 """
 import csv
+import decimal
 import json
 import os
 import subprocess
@@ -88,8 +89,27 @@ class BacktestReference(unittest.TestCase):
         k = self.keel("--curve", path)
         with open(path, newline="") as f:
             rows = list(csv.reader(f))
-        self.assertEqual(rows[0], ["date", "value", "cash", "names", "baseline_value"])
+        self.assertEqual(rows[0], ["date", "value", "cash", "names", "baseline_value",
+                                   "benchmark"])
         self.assertEqual([r[0] for r in rows[1:]], [p["date"] for p in k["curve"]])
+        self.assertEqual({r[5] for r in rows[1:]}, {""})  # no --benchmark: an empty column
+
+    def test_curve_file_holds_the_benchmark_close_as_stored(self):
+        path = os.path.join(self.tmp.name, "curve-bench.csv")
+        self.keel("--curve", path, "--benchmark", "K0009")
+        closes = {}
+        with open(os.path.join(self.data, "prices.csv"), newline="") as f:
+            for r in csv.DictReader(f):
+                if r["symbol"] == "K0009":
+                    closes[r["date"]] = r["close"]
+        with open(path, newline="") as f:
+            rows = list(csv.reader(f))[1:]
+        last = None
+        for r in rows:  # the close on or before each day, as the prices file has it
+            last = closes.get(r[0], last)
+            if last is not None:
+                self.assertEqual(decimal.Decimal(r[5]), decimal.Decimal(last), r[0])
+        self.assertTrue(all(r[5] for r in rows[1:]))
 
     def test_text_report_shows_the_cautions(self):
         out = self.ledger.ok("backtest", "--rule", self.rule, "--from", "2020-03-02", "--to",

@@ -569,6 +569,27 @@ row("sweep: --start-value of zero",
 row("sweep: --from after --to", ["sweep", "--rule", "{d}/rule.toml", "--from", "2024-12-31",
     "--to", "2024-01-01", "--vary", "select.count=5"], INPUT,
     "keel: error: --from: 2024-12-31 is after --to 2024-01-01", SWEEP_RULE)
+COMPARE_RULES = {"a.toml": b"[scope]\naccounts = [\"Alder Taxable\"]\n\n[select]\nz_max = -0.5\n",
+                 "b.toml": b"[scope]\naccounts = [\"Alder Taxable\"]\n\n[select]\nz_max = -1\n"}
+row("compare: one rule file",
+    ["compare", "{d}/a.toml", "--from", "2024-01-01", "--to", "2024-12-31"], INPUT,
+    "keel: error: RULES: a comparison needs two rule files or more (one rule alone: keel "
+    "backtest)", COMPARE_RULES)
+row("compare: the same rule file twice",
+    ["compare", "{d}/a.toml", "{d}/b.toml", "{d}/a.toml", "--from", "2024-01-01", "--to",
+     "2024-12-31", "--hold-months", "12"], INPUT, "keel: error: RULES: '{d}/a.toml' is given twice", COMPARE_RULES)
+row("compare: the same rule file under another name",
+    ["compare", "{d}/a.toml", "{d}/./a.toml", "--from", "2024-01-01", "--to", "2024-12-31",
+     "--hold-months", "12"], INPUT, "keel: error: RULES: '{d}/./a.toml' is the same file as '{d}/a.toml'", COMPARE_RULES)
+row("compare: a holding period longer than the data",
+    ["compare", "{d}/a.toml", "{d}/b.toml", "--from", "2024-01-01", "--to", "2024-12-31",
+     "--hold-months", "24"], INPUT,
+    "keel: error: --hold-months: 24 months is longer than the 12 complete months from "
+    "2024-01-01 to 2024-12-31", COMPARE_RULES)
+row("compare: a holding period of no months",
+    ["compare", "{d}/a.toml", "{d}/b.toml", "--from", "2024-01-01", "--to", "2024-12-31",
+     "--hold-months", "0"], INPUT,
+    "keel: error: --hold-months: 0 is not a number of months from 1 to 600", COMPARE_RULES)
 PLAN_FIXED = (b'[pools.home]\naccounts = ["Alder Taxable", "Birch Pension"]\n'
               b'[[part]]\nname = "core"\npool = "home"\nshare_pct = 100\n'
               b'fixed = { QRX = 100 }\n')

@@ -78,6 +78,9 @@ REPORTS = {
     "proposal": ["proposals", "show", "1"],
     "backtest": ["backtest", "--rule", RULE, "--from", "2024-01-01", "--to", "2025-12-31",
                  "--benchmark", "ZXTR"],
+    "compare": ["compare", RULE, os.path.join(SOURCE, "examples", "compare", "five.toml"),
+                "--from", "2024-01-01", "--to", "2025-12-31", "--benchmark", "ZXTR",
+                "--hold-months", "6"],
     "signal": ["signal", "--rule", RULE, "--from", "2024-01-01", "--to", "2025-12-31"],
     "sweep": ["sweep", "--rule", RULE, "--from", "2024-01-01", "--to", "2025-12-31", "--vary",
               "select.count=10,12", "--walk-forward", "12:6"],
@@ -97,15 +100,19 @@ MORE = {
     "statement": [["statement", "--year", "2016"]],
     "sweep": [["sweep", "--rule", RULE, "--from", "2025-11-01", "--to", "2025-12-31", "--vary",
                "select.count=10", "--frictionless"]],
+    "compare": [["compare", RULE, os.path.join(SOURCE, "examples", "compare", "quarterly.toml"),
+                 "--from", "2024-01-01", "--to", "2025-12-31", "--frictionless"]],
 }
-ON_DEMO = {"returns", "propose", "plan-proposal", "proposals-list", "proposal", "backtest", "signal", "sweep", "statement"}
+# Documents whose members changed since their first version.
+VERSIONS = {"backtest": 2}
+ON_DEMO = {"returns", "propose", "plan-proposal", "proposals-list", "proposal", "backtest", "compare", "signal", "sweep", "statement"}
 # The commands of the reference each report stands for.
 COMMANDS = {"holdings": "holdings", "lots": "lots", "gains": "gains", "history": "history",
             "accounts": "account list", "securities": "security list", "imports": "imports",
             "verify": "verify", "returns": "returns", "propose": "propose",
             "plan-proposal": "propose",
             "proposals-list": "proposals list", "proposal": "proposals show",
-            "backtest": "backtest", "signal": "signal", "sweep": "sweep",
+            "backtest": "backtest", "compare": "compare", "signal": "signal", "sweep": "sweep",
             "statement": "statement",
             "actions": "action list", "changes": "changes", "reconcile": "reconcile"}
 
@@ -122,7 +129,7 @@ for name, first in REPORTS.items():
             document = json.loads(out)
         else:
             document = (demo if name in ON_DEMO else led).json(*args)
-        equal(document.get("schema"), {"name": f"keel.{name}", "version": 1},
+        equal(document.get("schema"), {"name": f"keel.{name}", "version": VERSIONS.get(name, 1)},
               f"keel {' '.join(args)} --json: its schema tag")
         errors = sorted(jsonschema.Draft202012Validator(schema).iter_errors(document),
                         key=lambda e: list(e.path))

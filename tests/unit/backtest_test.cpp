@@ -9,6 +9,7 @@
 #include <tuple>
 #include <vector>
 
+#include "backtest/compare.h"
 #include "backtest/signal.h"
 #include "ledger_fixture.h"
 #include "rules/rule.h"
@@ -67,14 +68,29 @@ struct Market {
               const std::string& value) {
     f.figures("pe", {{sym, date, known, value}});
   }
-  bt::Result run(bool frictionless = false) {
+  static bt::Request request(bool frictionless = false) {
     bt::Request req;
     req.from = day("2024-01-01");
     req.to = day("2024-03-31");
     req.frictionless = frictionless;
-    return bt::run(f.db, keel::rules::parse_rule(kRule, "test.toml"), req);
+    return req;
+  }
+  bt::Result run(bool frictionless = false) {
+    return bt::run(f.db, keel::rules::parse_rule(kRule, "test.toml"), request(frictionless));
   }
 };
+
+// The test rule, and the same screen holding the three cheapest names.
+std::vector<keel::rules::Rule> two_rules() {
+  std::string three = kRule;
+  auto swap = [&three](const std::string& from, const std::string& to) {
+    three.replace(three.find(from), from.size(), to);
+  };
+  swap("by = \"z\"\nz_max = -0.3", "by = \"count\"\ncount = 3");
+  swap("Low P/E test", "Three cheapest");
+  return {keel::rules::parse_rule(kRule, "test.toml"),
+          keel::rules::parse_rule(three, "three.toml")};
+}
 
 // The trades of the rule's i-th rebalancing day.
 std::string trades_text(const bt::Result& res, std::size_t i) {
@@ -260,4 +276,91 @@ TEST_CASE("backtest: frictionless doubles agree with the exact computation to 1e
   MESSAGE("largest relative difference of a day's value: " << worst);
   CHECK(worst <= 1e-12);
   CHECK(binary.rule.perf.twr.period == doctest::Approx(exact.rule.perf.twr.period).epsilon(1e-12));
+}
+
+TEST_CASE("compare: each rule's figures are those of its own back-test") {
+  Market m;
+  const auto rules = two_rules();
+  auto req = Market::request();
+  req.rolling_months = 2;
+  const auto c = bt::compare(m.f.db, rules, req);
+  REQUIRE(c.runs.size() == 2);
+  for (std::size_t i = 0; i < 2; ++i) {
+    const auto alone = bt::run(m.f.db, rules[i], req);
+    CHECK(c.runs[i].rule.perf.closing_value == alone.rule.perf.closing_value);
+    CHECK(c.runs[i].rule.perf.twr.period == alone.rule.perf.twr.period);
+    CHECK(c.runs[i].rule.fees == alone.rule.fees);
+  }
+  CHECK(c.labels == std::vector<std::string>{"Low P/E test", "Three cheapest"});
+  CHECK(c.runs[0].rule.rebalances.size() == 3);
+  CHECK(c.runs[1].rule.rebalances.front().names_after == 3);
+}
+
+TEST_CASE("compare: the baseline is the first rule's and runs once") {
+  Market m;
+  const auto rules = two_rules();
+  auto req = Market::request();
+  req.rolling_months = 2;
+  const auto c = bt::compare(m.f.db, rules, req);
+  const auto alone = bt::run(m.f.db, rules[0], req);
+  CHECK(c.runs[0].baseline.perf.closing_value == alone.baseline.perf.closing_value);
+  CHECK(c.runs[1].baseline.curve.empty());
+}
+
+TEST_CASE("compare: start months hold every series' return over the holding period") {
+  Market m;
+  auto req = Market::request();
+  req.rolling_months = 2;
+  const auto c = bt::compare(m.f.db, two_rules(), req);
+  // January to March are complete: starts in January and February.
+  CHECK(c.starts == std::vector<Date>{day("2024-01-01"), day("2024-02-01")});
+  REQUIRE(c.series == std::vector<std::string>{"Low P/E test", "Three cheapest", "baseline"});
+  const auto& months = c.runs[1].rule.perf.months;
+  CHECK(c.returns[1][1] ==
+        doctest::Approx((1 + months[1].twr) * (1 + months[2].twr) - 1).epsilon(1e-12));
+  // Each rule against the baseline and the other rule.
+  REQUIRE(c.pairings.size() == 4);
+  CHECK(c.pairings[0].series == 0);
+  CHECK(c.pairings[0].against == 2);
+  CHECK(c.pairings[1].against == 1);
+  CHECK(c.pairings[1].excess.periods == 2);
+}
+
+TEST_CASE("compare: fewer than two rules are refused naming RULES") {
+  Market m;
+  CHECK_THROWS_WITH_AS(bt::compare(m.f.db, {two_rules().front()}, Market::request()),
+                       "RULES: a comparison needs two rule files or more (one rule alone: keel "
+                       "backtest)",
+                       keel::InputError);
+}
+
+TEST_CASE("compare: a holding period longer than the complete months is refused") {
+  Market m;
+  auto req = Market::request();
+  req.rolling_months = 4;
+  CHECK_THROWS_WITH_AS(bt::compare(m.f.db, two_rules(), req),
+                       "--hold-months: 4 months is longer than the 3 complete months from "
+                       "2024-01-01 to 2024-03-31",
+                       keel::InputError);
+}
+
+TEST_CASE("compare: the cautions warn about trying many rules, then those of a back-test") {
+  Market m;
+  auto req = Market::request();
+  req.rolling_months = 1;
+  const auto c = bt::compare(m.f.db, two_rules(), req);
+  REQUIRE(c.cautions.size() == 4);
+  CHECK(c.cautions[0].rfind("Comparing rules is itself a search", 0) == 0);
+  CHECK(std::equal(c.cautions.begin() + 1, c.cautions.end(), bt::backtest_cautions().begin()));
+}
+
+TEST_CASE("compare: rules of the same name are told apart by their files") {
+  Market m;
+  auto rules = two_rules();
+  rules[1].name = rules[0].name;
+  auto req = Market::request();
+  req.rolling_months = 1;
+  const auto c = bt::compare(m.f.db, rules, req);
+  CHECK(c.labels ==
+        std::vector<std::string>{"Low P/E test (test.toml)", "Low P/E test (three.toml)"});
 }

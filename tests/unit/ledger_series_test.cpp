@@ -5,8 +5,10 @@
 
 #include <doctest/doctest.h>
 
+#include "ledger/action_posting.h"
 #include "ledger_fixture.h"
 #include "market/series.h"
+#include "perf/returns_report.h"
 #include "store/price_write.h"
 
 using namespace keel;
@@ -175,4 +177,69 @@ TEST_CASE("a security transfer without any close is valued at the last trade pri
 TEST_CASE("a period that ends before it starts is refused") {
   SeriesFixture f;
   CHECK_THROWS_AS(f.series(std::nullopt, "2024-01-05", "2024-01-04"), InputError);
+}
+
+TEST_CASE("a slice of a longer series measures like the series built for its period") {
+  SeriesFixture f;
+  // 01-07 is a Sunday with no entry: the slice opens on 01-06's, whose value
+  // is the one the direct build gives 01-07.
+  const auto whole = f.series(std::nullopt, "2024-01-02", "2024-01-09");
+  const auto part = perf::slice(whole, day("2024-01-08"), day("2024-01-09"));
+  check_series(part, {{"2024-01-06", "1549", "0", "0"},
+                      {"2024-01-08", "1506", "0", "50"},
+                      {"2024-01-09", "1526", "20", "0"}});
+  const auto direct = f.series(std::nullopt, "2024-01-08", "2024-01-09");
+  CHECK(direct.series.front().value == part.series.front().value);
+  CHECK(part.income == direct.income);
+  CHECK(part.tax == direct.tax);
+  CHECK(part.fees == direct.fees);
+  CHECK(part.fees == dec("2"));  // the buy's fee of 01-03 lies before the slice
+}
+
+TEST_CASE("a slice lists a security without a price only on its own days") {
+  SeriesFixture f;
+  f.security("FERN");
+  // QUILL spins off FERN on 01-10, one for one; FERN has no price until its
+  // first close on 01-12.
+  ledger::ActionRequest spin;
+  spin.kind = ActionKind::spinoff;
+  spin.date = day("2024-01-10");
+  spin.symbol = "QUILL";
+  spin.target = "FERN";
+  spin.ratio = dec("1");
+  spin.cost_percent = dec("10");
+  ledger::post_action(f.db, spin);
+  f.close("FERN", "2024-01-12", "3");
+  const auto whole = f.series(std::nullopt, "2024-01-02", "2024-01-15");
+  CHECK(whole.unpriced.size() == 1);
+  CHECK(perf::slice(whole, day("2024-01-02"), day("2024-01-09")).unpriced.empty());
+  CHECK(perf::slice(whole, day("2024-01-11"), day("2024-01-11")).unpriced.size() == 1);
+  CHECK(perf::slice(whole, day("2024-01-13"), day("2024-01-15")).unpriced.empty());
+}
+
+TEST_CASE("a slice outside the series built is refused") {
+  SeriesFixture f;
+  const auto whole = f.series(std::nullopt, "2024-01-04", "2024-01-09");
+  CHECK_THROWS_AS(perf::slice(whole, day("2024-01-03"), day("2024-01-09")), std::invalid_argument);
+}
+
+TEST_CASE("returns of several periods measured together equal each measured alone") {
+  SeriesFixture f;
+  const auto data = perf::LedgerData::load(f.db);
+  std::vector<perf::ReturnsRequest> requests(3);
+  requests[0].period.from = day("2024-01-02");
+  requests[1].period.from = day("2024-01-06");
+  requests[1].period.to = day("2024-01-08");
+  requests[2].period.from = day("2024-01-08");
+  const auto together = perf::returns_reports(f.db, data, std::nullopt, requests);
+  REQUIRE(together.size() == 3);
+  for (std::size_t i = 0; i < requests.size(); ++i) {
+    INFO("request " << i);
+    const auto alone = perf::returns_report(f.db, data, requests[i]);
+    CHECK(together[i].period.from == alone.period.from);
+    CHECK(together[i].result.twr.period == alone.result.twr.period);
+    CHECK(together[i].result.closing_value == alone.result.closing_value);
+    CHECK(together[i].income == alone.income);
+    CHECK(together[i].fees == alone.fees);
+  }
 }
