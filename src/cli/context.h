@@ -72,6 +72,7 @@ void register_maintenance_commands(CLI::App& app, Context& context);
 void register_demo_commands(CLI::App& app, Context& context);
 void register_rules_commands(CLI::App& app, Context& context);
 void register_backtest_commands(CLI::App& app, Context& context);
+void register_sweep_command(CLI::App& app, Context& context);
 void register_statement_commands(CLI::App& app, Context& context);
 void register_reconcile_commands(CLI::App& app, Context& context);
 void register_reference_command(CLI::App& app);  // register last: it reads the others

@@ -54,6 +54,7 @@ int main(int argc, char** argv) {
   keel::cli::register_demo_commands(app, context);
   keel::cli::register_rules_commands(app, context);
   keel::cli::register_backtest_commands(app, context);
+  keel::cli::register_sweep_command(app, context);
   keel::cli::register_statement_commands(app, context);
   keel::cli::register_reconcile_commands(app, context);
   keel::cli::register_reference_command(app);

@@ -479,4 +479,9 @@ std::string signal_text(const backtest::SignalResult& r, const Style& style) {
   return s + notes_and_cautions(r.notes, r.cautions);
 }
 
+std::string closing_notes(const std::vector<std::string>& notes,
+                          const std::vector<std::string>& cautions) {
+  return notes_and_cautions(notes, cautions);
+}
+
 }  // namespace keel::report

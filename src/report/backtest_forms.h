@@ -55,4 +55,9 @@ std::string notes_and_cautions(const std::vector<std::string>& notes,
 std::string signal_text(const backtest::SignalResult& r, const Style& style);
 std::string signal_json(const backtest::SignalResult& r);
 
+// The notes (when there are any) and cautions that end a back-test's, a
+// signal check's or a sweep's text.
+std::string closing_notes(const std::vector<std::string>& notes,
+                          const std::vector<std::string>& cautions);
+
 }  // namespace keel::report

@@ -96,11 +96,19 @@ std::string join(const std::vector<std::string>& items) {
   return out;
 }
 
+const Rule::Setting* setting_of(const Rule& rule, std::string_view key) {
+  for (const auto& s : rule.settings)
+    if (s.key == key) return &s;
+  return nullptr;
+}
+
 class Reader {
  public:
   explicit Reader(Rule& rule) : rule_(rule) {}
 
   [[noreturn]] void fail(const toml::node& node, std::string_view key, std::string_view why) const {
+    if (const auto* s = setting_of(rule_, key))
+      throw InputError(fmt::format("{}: key '{}': {}", printable(s->origin), printable(key), why));
     throw InputError(fmt::format("{}:{}: key '{}': {}", printable(rule_.source),
                                  node.source().begin.line, printable(key), why));
   }
@@ -122,7 +130,7 @@ class Reader {
   }
 
   void seen(std::string_view key, const toml::node& node) {
-    rule_.lines[std::string(key)] = node.source().begin.line;
+    if (!setting_of(rule_, key)) rule_.lines[std::string(key)] = node.source().begin.line;
   }
 
   const toml::table* table(const toml::table& root, std::string_view key) {
@@ -335,6 +343,8 @@ Decimal TradingRule::fee(const Decimal& value) const {
 }
 
 std::string Rule::where(std::string_view key) const {
+  if (const auto* s = setting_of(*this, key))
+    return fmt::format("{}: key '{}'", printable(s->origin), key);
   const auto it = lines.find(std::string(key));
   if (it != lines.end()) return fmt::format("{}:{}: key '{}'", printable(source), it->second, key);
   std::string_view def = "unset";
@@ -379,6 +389,10 @@ std::optional<std::string> nearest(std::string_view word, const std::vector<std:
   return std::nullopt;
 }
 
+namespace {
+Rule read_rule(const toml::table& root, Rule rule);
+}  // namespace
+
 Rule load_rule(const std::filesystem::path& path) {
   if (is_standard_input(path)) return parse_rule(standard_input_text(), input_name(path));
   std::ifstream in(path, std::ios::binary);
@@ -400,6 +414,56 @@ Rule parse_rule(std::string_view toml_text, std::string source) {
                                  e.source().begin.line, e.source().begin.column,
                                  printable(e.description())));
   }
+  return read_rule(root, std::move(rule));
+}
+
+Rule with_setting(const Rule& rule, std::string_view key, std::string_view value,
+                  std::string_view option) {
+  std::vector<std::string> known;
+  for (const auto& k : kKeys)
+    if (!k.default_text.empty() && !k.key.starts_with("sleeve.")) known.emplace_back(k.key);
+  if (std::find(known.begin(), known.end(), key) == known.end()) {
+    if (key.starts_with("sleeve."))
+      throw InputError(fmt::format("{}: '{}' cannot be set here: a rule may have several sleeves",
+                                   option, printable(key)));
+    const auto near = nearest(key, known);
+    throw InputError(fmt::format(
+        "{}: '{}' is not a rule key{}", option, printable(key),
+        near ? fmt::format("; did you mean '{}'?", *near) : "; see docs/rules.md for every key"));
+  }
+  Rule out;
+  out.source = rule.source;
+  out.text = rule.text;
+  out.settings = rule.settings;
+  std::erase_if(out.settings, [&](const Rule::Setting& s) { return s.key == key; });
+  out.settings.push_back(Rule::Setting{std::string(key), std::string(value),
+                                       fmt::format("{} {}={}", option, key, value)});
+  toml::table root = toml::parse(out.text, out.source);
+  for (const auto& s : out.settings) {
+    toml::table* table = &root;
+    std::string_view leaf = s.key;
+    if (const auto dot = leaf.find('.'); dot != std::string_view::npos) {
+      const std::string name(leaf.substr(0, dot));
+      leaf = leaf.substr(dot + 1);
+      if (!root.contains(name)) root.insert(name, toml::table{});
+      table = root.get(name)->as_table();
+      if (!table) continue;  // reading the file refuses the key that is not a table
+    }
+    toml::table value_doc;
+    try {
+      value_doc = toml::parse("v = " + s.value, s.origin);
+    } catch (const toml::parse_error&) {
+      table->insert_or_assign(leaf, s.value);
+      continue;
+    }
+    value_doc.get("v")->visit([&](const auto& v) { table->insert_or_assign(leaf, v); });
+  }
+  return read_rule(root, std::move(out));
+}
+
+namespace {
+
+Rule read_rule(const toml::table& root, Rule rule) {
   Reader r(rule);
   r.only_known(root, "");
 
@@ -646,5 +710,7 @@ Rule parse_rule(std::string_view toml_text, std::string source) {
   }
   return rule;
 }
+
+}  // namespace
 
 }  // namespace keel::rules

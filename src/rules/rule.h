@@ -139,6 +139,11 @@ struct Rule {
 
   // Line of each key given in the file ("select.z_max" -> 14).
   std::map<std::string, std::int64_t> lines;
+  // Keys set outside the file (with_setting), in the order given.
+  struct Setting {
+    std::string key, value, origin;  // origin: "OPTION KEY=VALUE", for messages
+  };
+  std::vector<Setting> settings;
   // InputError "FILE:LINE: key 'KEY': WHY", or "FILE: key 'KEY' (default D): WHY"
   // when the file left the key out.
   [[noreturn]] void fail(std::string_view key, std::string_view why) const;
@@ -148,6 +153,14 @@ struct Rule {
 
 Rule load_rule(const std::filesystem::path& path);
 Rule parse_rule(std::string_view toml_text, std::string source);
+// The rule with `key` set to `value` (TOML: `10`, `-0.3`, `[5, 95]`, `"count"`;
+// text that is not a TOML value is taken as a string), read again from its
+// file with every earlier setting, through the same checks as the file. An
+// unknown key, or a [[sleeve]] key (a rule may have several), is an
+// InputError "OPTION: ..." with the nearest known key; a refused value reads
+// "OPTION KEY=VALUE: key 'KEY': why", as the file's would.
+Rule with_setting(const Rule& rule, std::string_view key, std::string_view value,
+                  std::string_view option);
 
 // Levenshtein distance between ASCII strings (insert, delete, substitute).
 std::size_t edit_distance(std::string_view a, std::string_view b);

@@ -557,6 +557,60 @@ row("rule: a misspelt grouping field",
     "keel: error: {d}/within-2.toml:4: key 'screen.within': securities have no field 'sectors'; "
     "did you mean 'sector'?",
     {"within-2.toml": RULE_HEAD + b'[screen]\nwithin = "sectors"\n'})
+SWEEP_RULE = {"rule.toml": b'[scope]\naccounts = ["Alder Taxable"]\n[select]\nby = "count"\n'
+                           b'count = 10\n'}
+SWEEP = ["sweep", "--rule", "{d}/rule.toml", "--from", "2024-01-01", "--to", "2024-12-31"]
+row("sweep: --vary key misspelt", SWEEP + ["--vary", "select.cout=5,10"], INPUT,
+    "keel: error: --vary: 'select.cout' is not a rule key; did you mean 'select.count'?",
+    SWEEP_RULE)
+row("sweep: --vary value out of the key's range", SWEEP + ["--vary", "select.count=0,5"], INPUT,
+    "keel: error: --vary select.count=0: key 'select.count': 0 is out of range; must be from 1 "
+    "to 1000000", SWEEP_RULE)
+row("sweep: --vary value of the wrong type", SWEEP + ["--vary", "screen.max_age_days=90,soon"],
+    INPUT, "keel: error: --vary screen.max_age_days=soon: key 'screen.max_age_days': must be a "
+    "whole number from 1 to 3660", SWEEP_RULE)
+row("sweep: --vary without values", SWEEP + ["--vary", "select.count"], INPUT,
+    "keel: error: --vary: 'select.count' is not KEY=VALUE,VALUE,... (e.g. select.count=5,10,20)",
+    SWEEP_RULE)
+row("sweep: --vary with an empty value", SWEEP + ["--vary", "select.count=5,,10"], INPUT,
+    "keel: error: --vary: 'select.count=5,,10' has an empty value", SWEEP_RULE)
+row("sweep: --vary of a key that changes the data read", SWEEP + ["--vary", "scope.sector=A,B"],
+    INPUT, "keel: error: --vary scope.sector: a sweep reads the market data once, for the rule's "
+    "own universe and metric; sweep each scope in a run of its own", SWEEP_RULE)
+row("sweep: --vary of a sleeve key", SWEEP + ["--vary", "sleeve.weight_pct=5,10"], INPUT,
+    "keel: error: --vary: 'sleeve.weight_pct' cannot be set here: a rule may have several sleeves",
+    SWEEP_RULE)
+row("sweep: --vary key given twice",
+    SWEEP + ["--vary", "select.count=5,10", "--vary", "select.count=20"], INPUT,
+    "keel: error: --vary: 'select.count' is given twice; list all its values once", SWEEP_RULE)
+row("sweep: --vary value listed twice", SWEEP + ["--vary", "select.count=5,10,5"], INPUT,
+    "keel: error: --vary select.count: '5' is listed twice", SWEEP_RULE)
+row("sweep: more variants than the maximum",
+    SWEEP + ["--vary", "select.count=" + ",".join(str(i) for i in range(1, 16)),
+             "--vary", "screen.max_age_days=" + ",".join(str(i) for i in range(1, 15))], INPUT,
+    "keel: error: --vary: 210 variants is more than 200; the more variants are tried, the more "
+    "the best one owes to luck. Give --max-variants 210 to run them all", SWEEP_RULE)
+row("sweep: --walk-forward not IN:OUT",
+    SWEEP + ["--vary", "select.count=5,10", "--walk-forward", "12"], INPUT,
+    "keel: error: --walk-forward: '12' is not IN_MONTHS:OUT_MONTHS (e.g. 24:6)", SWEEP_RULE)
+row("sweep: --walk-forward window too short to score",
+    SWEEP + ["--vary", "select.count=5,10", "--walk-forward", "1:3"], INPUT,
+    "keel: error: --walk-forward: an in-sample window of 1 month cannot be scored; the Sharpe "
+    "ratio of monthly returns needs at least 2 months", SWEEP_RULE)
+row("sweep: --walk-forward with no months out of sample",
+    SWEEP + ["--vary", "select.count=5,10", "--walk-forward", "12:3"], INPUT,
+    "keel: error: --walk-forward: the period 2024-01-01 to 2024-12-31 has 12 months; an "
+    "in-sample window of 12 months leaves none out of sample", SWEEP_RULE)
+row("sweep: --walk-forward out-of-sample window of zero",
+    SWEEP + ["--vary", "select.count=5,10", "--walk-forward", "6:0"], INPUT,
+    "keel: error: --walk-forward: the out-of-sample window must be at least 1 month, not 0",
+    SWEEP_RULE)
+row("sweep: --start-value of zero",
+    SWEEP + ["--vary", "select.count=5", "--start-value", "0"], INPUT,
+    "keel: error: --start-value: 0 is not above zero", SWEEP_RULE)
+row("sweep: --from after --to", ["sweep", "--rule", "{d}/rule.toml", "--from", "2024-12-31",
+    "--to", "2024-01-01", "--vary", "select.count=5"], INPUT,
+    "keel: error: --from: 2024-12-31 is after --to 2024-01-01", SWEEP_RULE)
 COMPARE_RULES = {"a.toml": b"[scope]\naccounts = [\"Alder Taxable\"]\n\n[select]\nz_max = -0.5\n",
                  "b.toml": b"[scope]\naccounts = [\"Alder Taxable\"]\n\n[select]\nz_max = -1\n"}
 row("compare: one rule file",

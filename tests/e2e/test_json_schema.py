@@ -83,6 +83,8 @@ REPORTS = {
                 "--from", "2024-01-01", "--to", "2025-12-31", "--benchmark", "ZXTR",
                 "--hold-months", "6"],
     "signal": ["signal", "--rule", RULE, "--from", "2024-01-01", "--to", "2025-12-31"],
+    "sweep": ["sweep", "--rule", RULE, "--from", "2024-01-01", "--to", "2025-12-31", "--vary",
+              "select.count=10,12", "--walk-forward", "12:6"],
     "statement": ["statement", "--year", "2025", "--benchmark", "ZXTR"],
     "actions": ["action", "list"],
     "reconcile": ["reconcile", os.path.join(work, "statement.csv"), "--date", "2024-06-30"],
@@ -100,19 +102,22 @@ MORE = {
     "statement": [["statement", "--year", "2016"]],
     "signal": [["signal", "--rule", RULE, "--from", "2022-01-01", "--to", "2025-12-31",
                 "--by-name", "--horizons", "1,12"]],
+    "sweep": [["sweep", "--rule", RULE, "--from", "2025-11-01", "--to", "2025-12-31", "--vary",
+               "select.count=10", "--frictionless"]],
     "compare": [["compare", RULE, os.path.join(SOURCE, "examples", "compare", "quarterly.toml"),
                  "--from", "2024-01-01", "--to", "2025-12-31", "--frictionless"]],
 }
 # Documents whose members changed since their first version.
 VERSIONS = {"backtest": 2, "propose": 2, "plan-proposal": 2, "signal": 2}
-ON_DEMO = {"returns", "propose", "plan-proposal", "proposals-list", "proposal", "backtest", "compare", "signal", "statement"}
+ON_DEMO = {"returns", "propose", "plan-proposal", "proposals-list", "proposal", "backtest", "compare", "signal", "sweep", "statement"}
 # The commands of the reference each report stands for.
 COMMANDS = {"holdings": "holdings", "lots": "lots", "gains": "gains", "history": "history",
             "accounts": "account list", "securities": "security list", "imports": "imports",
             "verify": "verify", "returns": "returns", "propose": "propose",
             "plan-proposal": "propose",
             "proposals-list": "proposals list", "proposal": "proposals show",
-            "backtest": "backtest", "compare": "compare", "signal": "signal", "statement": "statement",
+            "backtest": "backtest", "compare": "compare", "signal": "signal", "sweep": "sweep",
+            "statement": "statement",
             "actions": "action list", "changes": "changes", "reconcile": "reconcile"}
 
 runs = 0
