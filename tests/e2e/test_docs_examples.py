@@ -88,8 +88,11 @@ class Session:
         self.scratch = tempfile.TemporaryDirectory(prefix="keel-docs-")
         self.home = os.path.join(self.scratch.name, "keel")
         os.makedirs(self.home)
-        self.env = dict(os.environ, NO_COLOR="1", COLUMNS="100")
-        self.env.pop("KEEL_DB", None)
+        # HOME is the scratch folder too: a session that names no ledger must
+        # not reach the default one of the person running the tests.
+        self.env = dict(os.environ, NO_COLOR="1", COLUMNS="100", HOME=self.scratch.name)
+        for name in ("KEEL_DB", "XDG_DATA_HOME", "XDG_CONFIG_HOME"):
+            self.env.pop(name, None)
 
     def expand(self, word):
         return word.replace("~/keel", self.home)
@@ -175,8 +178,21 @@ check(not matches(["a", "...", "d"], ["a", "b"]), "a missing last line is a diff
 check(matches(["run at …Z ok"], ["run at 2026-01-02T03:04:05Z ok"]), "'…' spans text")
 check(not matches(["run at …Z ok"], ["run at 2026 ok"]), "text around '…' must match")
 
+def source_files():
+    """The files a session run from the source folder could leave there by a relative path."""
+    found = {name for name in os.listdir(SOURCE) if os.path.isfile(os.path.join(SOURCE, name))}
+    for top in ("docs", "examples"):
+        for folder, _, names in os.walk(os.path.join(SOURCE, top)):
+            found |= {os.path.relpath(os.path.join(folder, n), SOURCE) for n in names}
+    return found
+
+
 update = os.environ.get("KEEL_DOCS_UPDATE") == "1"
+before = source_files()
 counts = {doc: run_document(doc, update) for doc in documents()}
+# A session writes its files under ~/keel: nothing new may appear in the source tree.
+left = sorted(source_files() - before)
+check(not left, f"sessions left files in the source tree: {left}")
 shown = {doc: n for doc, n in counts.items() if n}
 check(sum(shown.values()) >= 60, f"only {sum(shown.values())} commands found in the docs")
 for doc in ("README.md", "docs/guide.md"):
