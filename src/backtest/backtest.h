@@ -68,7 +68,8 @@ struct Request {
   bool exact_frictionless = false;
   bool keep_trades = true;  // false: no trades or shifts are kept (a report that shows none)
   int rolling_months = 12;
-  bool baseline = true;  // false: no baseline run (a comparison runs one for all its rules; a sweep none)
+  bool baseline =
+      true;  // false: no baseline run (a comparison runs one for all its rules; a sweep none)
   // Called after each rebalancing day: (done, total, day).
   std::function<void(std::size_t, std::size_t, Date)> progress;
 };

@@ -43,8 +43,8 @@
 
 #include "core/date.h"
 #include "core/decimal.h"
-#include "model/records.h"
 #include "market/fx_rates.h"
+#include "model/records.h"
 #include "model/security.h"
 
 namespace keel::market {
