@@ -27,18 +27,8 @@ to=$((2000 + years - 1))-12-31
 for tool in /usr/bin/python3 /usr/bin/time; do
   [ -x "$tool" ] || { echo "missing $tool" >&2; exit 1; }
 done
-mkdir -p "$work"
-if [ ! -f "$work/keel.db" ] || [ "$(cat "$work/shape" 2>/dev/null)" != "$securities x $years" ]; then
-  rm -f "$work"/keel.db* "$work/shape"
-  echo "generating $securities securities x $years years..."
-  /usr/bin/python3 "$here/gen_market.py" "$work" --securities "$securities" --years "$years" \
-    --start "$start"
-  "$keel" --db "$work/keel.db" init > /dev/null
-  for what in securities prices metrics distributions splits; do
-    "$keel" --db "$work/keel.db" import "$what" "$work/$what.csv" --quiet
-  done
-  echo "$securities x $years" > "$work/shape"
-fi
+. "$here/market_ledger.sh"
+market_ledger "$keel" "$work" "$securities" "$years" "$start"
 cat > "$work/plain.toml" <<'RULE'
 name = "Bench: high earnings yield"
 [scope]
