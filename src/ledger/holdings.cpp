@@ -16,12 +16,6 @@
 namespace keel::ledger {
 namespace {
 
-// A security the book holds or held is in the ledger, so in the view.
-const Security& known(const market::View& view, std::int64_t security_id) {
-  if (const Security* s = view.security(security_id)) return *s;
-  throw std::logic_error(fmt::format("ledger: security {} is not in the market view", security_id));
-}
-
 std::map<std::int64_t, std::string> symbols_by_id(store::Database& db) {
   std::map<std::int64_t, std::string> out;
   for (const auto& s : store::list_securities(db)) out[s.id] = s.symbol;
@@ -35,6 +29,11 @@ std::optional<std::int64_t> account_filter(store::Database& db,
 }
 
 }  // namespace
+
+const Security& known_security(const market::View& view, std::int64_t security_id) {
+  if (const Security* s = view.security(security_id)) return *s;
+  throw std::logic_error(fmt::format("ledger: security {} is not in the market view", security_id));
+}
 
 bool held_long_term(Date acquired, Date disposed) {
   // A lot acquired in year 9999 cannot be held a year within the calendar.
@@ -67,7 +66,7 @@ Holdings holdings_of(const Book& book, const market::View& view, Date as_of,
     for (const auto& [security_id, position] : ab.positions) {
       HoldingLine line;
       line.account = info.name;
-      const Security& security = known(view, security_id);
+      const Security& security = known_security(view, security_id);
       line.symbol = security.symbol;
       line.quantity = position.quantity();
       line.cost_basis = position.cost();
@@ -141,8 +140,8 @@ std::vector<GainLine> realized_gains_of(const Book& book, const market::View& vi
   for (const auto& part : book.realized()) {
     if (only && part.account_id != *only) continue;
     if (year && part.disposed.year() != *year) continue;
-    GainLine line{book.account_info(part.account_id).name, known(view, part.security_id).symbol,
-                  part};
+    GainLine line{book.account_info(part.account_id).name,
+                  known_security(view, part.security_id).symbol, part};
     line.days_held = part.disposed - part.acquired;
     line.long_term = long_term_days ? line.days_held > *long_term_days
                                     : held_long_term(part.acquired, part.disposed);

@@ -26,6 +26,10 @@ namespace keel::ledger {
 
 class TaxStatuses;  // ledger/tax.h
 
+// The security of an id taken from the ledger's own rows, which the view of
+// that ledger always holds; std::logic_error otherwise (a broken invariant).
+const Security& known_security(const market::View& view, std::int64_t security_id);
+
 struct HoldingLine {
   std::string account;
   std::string symbol;

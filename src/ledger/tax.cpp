@@ -4,7 +4,6 @@
 
 #include <algorithm>
 #include <set>
-#include <stdexcept>
 
 #include "core/error.h"
 #include "core/text.h"
@@ -117,11 +116,9 @@ Withholding withholding_of(const LedgerLog& log, const market::View& view,
     const std::int64_t key = t.security_id.value_or(0);
     auto& line = by_id[key];
     if (t.security_id) {
-      const Security* security = view.security(key);
-      if (!security)
-        throw std::logic_error(fmt::format("withholding: security {} is not in the view", key));
-      line.symbol = security->symbol;
-      line.country = security->country;
+      const Security& security = known_security(view, key);
+      line.symbol = security.symbol;
+      line.country = security.country;
     }
     (income ? line.income : line.withheld) += *t.amount;
   }
