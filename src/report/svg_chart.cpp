@@ -138,7 +138,7 @@ std::vector<double> linear_ticks(double lo, double hi) {
 }
 
 // Ticks of a log scale over 10^lo..10^hi: 1, 2 and 5 x 10^k, thinned to
-// powers of ten when there are many, and 1..9 x 10^k when there are few.
+// powers of ten when there are many, and 1..9 x 10^k when there are fewer than three.
 std::vector<double> log_ticks(double lo, double hi) {
   auto pick = [&](std::initializer_list<double> ms) {
     std::vector<double> out;
@@ -152,7 +152,7 @@ std::vector<double> log_ticks(double lo, double hi) {
   };
   auto out = pick({1, 2, 5});
   if (out.size() > 8) out = pick({1});
-  if (out.size() < 2) out = pick({1, 2, 3, 4, 5, 6, 7, 8, 9});
+  if (out.size() < 3) out = pick({1, 2, 3, 4, 5, 6, 7, 8, 9});
   return out;
 }
 

@@ -2,7 +2,10 @@
 #include "report/svg_chart.h"
 
 #include <doctest/doctest.h>
+#include <fmt/format.h>
 
+#include <fstream>
+#include <iterator>
 #include <set>
 #include <string>
 
@@ -53,6 +56,14 @@ LineChart two_points() {
   c.format = Format::money;
   c.lines.push_back({"rule", Ink::rule, 0, {{d("2025-01-01"), 100}, {d("2025-03-01"), 150}}});
   return c;
+}
+
+TEST_CASE("svg chart: the palette table of docs/research-reports.md lists every colour") {
+  std::ifstream f(KEEL_SOURCE_DIR "/docs/research-reports.md");
+  const std::string doc((std::istreambuf_iterator<char>(f)), std::istreambuf_iterator<char>());
+  REQUIRE(!doc.empty());
+  for (const auto& e : palette())
+    CHECK(count(doc, fmt::format("| {} | `{}` | {} |", e.name, e.hex, e.means)) == 1);
 }
 
 TEST_CASE("svg chart: a line chart of two points, exactly") {
