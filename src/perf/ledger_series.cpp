@@ -75,12 +75,15 @@ std::vector<std::string> currencies_of(const LedgerLog& log,
 
 LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
                           std::optional<std::int64_t> account_id, Date from, Date to,
-                          const std::string& currency) {
+                          const std::string& currency, const std::vector<Date>& book_days) {
   if (from > to)
     throw InputError(
         fmt::format("the period starts on {}, after its end {}", from.str(), to.str()));
   Replayer replayer(log);
   const Date first = from.plus_days(-1);
+  if (!std::is_sorted(book_days.begin(), book_days.end()) ||
+      (!book_days.empty() && book_days.front() < first))
+    throw std::invalid_argument("build_series: book days must ascend from the day before `from`");
   const auto& live = replayer.live();
 
   // Transfer-out rows whose receiving half is live: an internal pair.
@@ -109,6 +112,13 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
   };
 
   LedgerSeries out;
+  // The replay below passes every day once; the books asked for are copied
+  // on the way, so a caller needs no replay of its own.
+  std::size_t next_book = 0;
+  auto take_books = [&](Date through) {
+    for (; next_book < book_days.size() && book_days[next_book] <= through; ++next_book)
+      out.books.push_back(replayer.advance_to(book_days[next_book]));
+  };
   const auto days = entry_days(replayer, log, prices, first, to);
   out.series.reserve(days.size());
   std::size_t cursor = 0;  // next live transaction not yet looked at for flows
@@ -131,21 +141,47 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
   const auto actions = live_actions(log.actions);
   std::size_t action_cursor = 0;
   while (action_cursor < actions.size() && actions[action_cursor]->date <= first) ++action_cursor;
-  // Open quantities in scope, by (account, security).
-  std::map<std::pair<std::int64_t, std::int64_t>, Decimal> held;
+  // Open quantities in scope, by (account, security), with the security's
+  // price column and currency looked up once, not on every day.
+  struct Held {
+    Decimal quantity;
+    int column = -1;
+    const std::string* currency = nullptr;
+  };
+  std::map<std::pair<std::int64_t, std::int64_t>, Held> held;
+  auto hold = [&](std::int64_t account, std::int64_t security, Decimal quantity) {
+    Held& h = held[{account, security}];
+    h.quantity = std::move(quantity);
+    if (h.currency) return;
+    h.column = prices.column(security);
+    if (h.column < 0)
+      throw std::logic_error("build_series: the price series lacks a held security");
+    h.currency = &security_currency(security);
+  };
   auto refresh = [&](const Book& book, std::int64_t account, std::int64_t security) {
     const auto& positions = book.account(account).positions;
     const auto it = positions.find(security);
     if (it == positions.end())
       held.erase({account, security});
     else
-      held[{account, security}] = it->second.quantity();
+      hold(account, security, it->second.quantity());
+  };
+  // What is held on a day, by currency (a handful: a linear search is enough).
+  std::vector<std::pair<const std::string*, Decimal>> local;
+  auto add_local = [&](const std::string& c, const Decimal& amount) {
+    for (auto& [name, sum] : local)
+      if (*name == c) {
+        sum += amount;
+        return;
+      }
+    local.emplace_back(&c, amount);
   };
   // Not a structured binding: clang before 16 cannot capture one in the
   // lambdas below.
   for (const EntryDay& entry : days) {
     const Date d = entry.day;
     const bool rate_only = entry.rate_only;
+    take_books(d.plus_days(-1));
     const Book& book = replayer.advance_to(d);
     DayPoint point;
     point.day = d;
@@ -155,7 +191,7 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
       for (const auto& info : book.accounts())
         if (!account_id || info.id == *account_id)
           for (const auto& [security_id, position] : book.account(info.id).positions)
-            held[{info.id, security_id}] = position.quantity();
+            hold(info.id, security_id, position.quantity());
     } else {
       for (std::size_t i = cursor; i < live.size() && live[i]->date == d; ++i)
         if (live[i]->security_id && in_scope(*live[i]))
@@ -173,25 +209,26 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
           }
     }
     // What is held, by currency, converted once per currency.
-    std::map<std::string, Decimal> local;
+    local.clear();
     for (const auto& info : book.accounts())
       if (!account_id || info.id == *account_id) {
         const AccountBook& ab = book.account(info.id);
-        local[info.currency] += ab.cash;
-        for (const auto& [c, lots] : ab.foreign_cash) local[c] += ab.foreign_balance(c);
+        add_local(info.currency, ab.cash);
+        for (const auto& [c, lots] : ab.foreign_cash) add_local(c, ab.foreign_balance(c));
       }
-    for (const auto& [key, quantity] : held) {
-      if (const auto close = close_on(key.second, d))
-        local[security_currency(key.second)] += quantity * *close;
+    const std::size_t row = prices.row(d);
+    for (const auto& [key, h] : held) {
+      if (prices.has(row, h.column))
+        add_local(*h.currency, h.quantity * prices.exact(row, h.column));
       else if (const auto traded = book.last_trade_price(key.second))
-        local[security_currency(key.second)] += quantity * *traded;
+        add_local(*h.currency, h.quantity * *traded);
       else
         out.unpriced_on.emplace_back(d, key.second);
     }
     bool foreign = false;
     for (const auto& [c, amount] : local) {
-      point.value += reported(amount, c, d);
-      foreign = foreign || (c != currency && !amount.is_zero());
+      point.value += reported(amount, *c, d);
+      foreign = foreign || (*c != currency && !amount.is_zero());
     }
     // A day with only a new rate changes nothing when nothing foreign is held.
     if (rate_only && !foreign) continue;
@@ -253,6 +290,7 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
     }
     out.series.push_back(std::move(point));
   }
+  take_books(Date::from_ymd(9999, 12, 31));
   for (const auto& t : out.totals) {
     out.income += t.income;
     out.tax += t.tax;
