@@ -360,6 +360,12 @@ double Decimal::to_double() const {
   return std::stod(str());
 }
 
+bool Decimal::small(long long& mantissa, int& scale) const {
+  if (!small_value(mantissa_, mantissa)) return false;
+  scale = scale_;
+  return true;
+}
+
 Decimal Decimal::operator-() const {
   return Decimal(-mantissa_, scale_);
 }

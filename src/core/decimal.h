@@ -52,6 +52,9 @@ class Decimal {
   bool is_negative() const { return sign() < 0; }
   bool is_positive() const { return sign() > 0; }
   int scale() const { return scale_; }
+  // The value as mantissa x 10^-scale when the mantissa fits a long long
+  // (true), for callers that add up many terms in machine integers.
+  bool small(long long& mantissa, int& scale) const;
   double to_double() const;
 
   Decimal operator-() const;

@@ -43,6 +43,62 @@ std::vector<EntryDay> entry_days(const Replayer& replayer, const LedgerLog& log,
   return out;
 }
 
+__extension__ typedef __int128 Wide;  // GCC and Clang; -Wpedantic wants the marker
+
+// An exact sum of decimals kept as one 128-bit integer at one scale while it
+// fits, the rest in a Decimal. Valuing every holding on every day through
+// Decimal's arbitrary-precision integers cost as much as reading the closes;
+// the products of a quantity and a close almost always fit a machine word.
+class ExactSum {
+ public:
+  void clear() {
+    sum_ = 0;
+    scale_ = 0;
+    rest_ = Decimal();
+  }
+  void add(const Decimal& d) {
+    long long m = 0;
+    int scale = 0;
+    if (d.small(m, scale))
+      add(m, scale);
+    else
+      rest_ += d;
+  }
+  // Adds mantissa x 10^-scale.
+  void add(Wide mantissa, int scale) {
+    Wide sum = sum_;
+    if (scale > scale_ && !shifted(sum, scale - scale_)) return spill(mantissa, scale);
+    if (scale < scale_ && !shifted(mantissa, scale_ - scale)) return spill(mantissa, scale);
+    if (__builtin_add_overflow(sum, mantissa, &sum)) return spill(mantissa, scale);
+    sum_ = sum;
+    scale_ = std::max(scale, scale_);
+  }
+  Decimal total() const { return rest_ + decimal(sum_, scale_); }
+
+ private:
+  static bool shifted(Wide& v, int digits) {
+    for (; digits > 0; --digits)
+      if (__builtin_mul_overflow(v, Wide(10), &v)) return false;
+    return true;
+  }
+  void spill(Wide mantissa, int scale) { rest_ += decimal(mantissa, scale); }
+  // mantissa x 10^-scale in Decimal, through parts that each fit a long long.
+  static Decimal decimal(Wide mantissa, int scale) {
+    constexpr long long kE18 = 1000000000000000000LL;
+    const Decimal e18(kE18);
+    const auto high = static_cast<long long>(mantissa / kE18 / kE18);
+    const auto middle = static_cast<long long>(mantissa / kE18 % kE18);
+    const auto low = static_cast<long long>(mantissa % kE18);
+    Decimal out = (Decimal(high) * e18 + Decimal(middle)) * e18 + Decimal(low);
+    for (; scale > 0; scale -= std::min(scale, Decimal::kMaxScale))
+      out *= Decimal::scaled(1, std::min(scale, Decimal::kMaxScale));
+    return out;
+  }
+  Wide sum_ = 0;
+  int scale_ = 0;
+  Decimal rest_;
+};
+
 }  // namespace
 
 std::vector<std::int64_t> securities_held(const LedgerLog& log,
@@ -141,22 +197,48 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
   const auto actions = live_actions(log.actions);
   std::size_t action_cursor = 0;
   while (action_cursor < actions.size() && actions[action_cursor]->date <= first) ++action_cursor;
+  // What is held on a day, by currency: one sum per currency met so far.
+  struct Local {
+    std::string currency;
+    ExactSum sum;
+    bool used = false;  // today
+  };
+  std::vector<Local> local;
+  auto slot_of = [&](const std::string& c) {
+    for (std::size_t i = 0; i < local.size(); ++i)
+      if (local[i].currency == c) return i;
+    local.push_back({c, {}, false});
+    return local.size() - 1;
+  };
+  auto add_local = [&](std::size_t slot) -> ExactSum& {
+    local[slot].used = true;
+    return local[slot].sum;
+  };
   // Open quantities in scope, by (account, security), with the security's
-  // price column and currency looked up once, not on every day.
+  // price column and currency looked up once, not on every day; the
+  // quantity's mantissa when it fits a machine word.
   struct Held {
     Decimal quantity;
+    bool small = false;
+    long long mantissa = 0;
+    int scale = 0;
     int column = -1;
-    const std::string* currency = nullptr;
+    int places = -1;  // of the column's closes; -1: kept as decimals
+    std::size_t slot = 0;
+    bool placed = false;
   };
   std::map<std::pair<std::int64_t, std::int64_t>, Held> held;
   auto hold = [&](std::int64_t account, std::int64_t security, Decimal quantity) {
     Held& h = held[{account, security}];
     h.quantity = std::move(quantity);
-    if (h.currency) return;
+    h.small = h.quantity.small(h.mantissa, h.scale);
+    if (h.placed) return;
     h.column = prices.column(security);
     if (h.column < 0)
       throw std::logic_error("build_series: the price series lacks a held security");
-    h.currency = &security_currency(security);
+    h.places = prices.price_places(h.column);
+    h.slot = slot_of(security_currency(security));
+    h.placed = true;
   };
   auto refresh = [&](const Book& book, std::int64_t account, std::int64_t security) {
     const auto& positions = book.account(account).positions;
@@ -166,16 +248,7 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
     else
       hold(account, security, it->second.quantity());
   };
-  // What is held on a day, by currency (a handful: a linear search is enough).
-  std::vector<std::pair<const std::string*, Decimal>> local;
-  auto add_local = [&](const std::string& c, const Decimal& amount) {
-    for (auto& [name, sum] : local)
-      if (*name == c) {
-        sum += amount;
-        return;
-      }
-    local.emplace_back(&c, amount);
-  };
+
   // Not a structured binding: clang before 16 cannot capture one in the
   // lambdas below.
   for (const EntryDay& entry : days) {
@@ -209,26 +282,37 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
           }
     }
     // What is held, by currency, converted once per currency.
-    local.clear();
+    for (auto& l : local) {
+      l.sum.clear();
+      l.used = false;
+    }
     for (const auto& info : book.accounts())
       if (!account_id || info.id == *account_id) {
         const AccountBook& ab = book.account(info.id);
-        add_local(info.currency, ab.cash);
-        for (const auto& [c, lots] : ab.foreign_cash) add_local(c, ab.foreign_balance(c));
+        add_local(slot_of(info.currency)).add(ab.cash);
+        for (const auto& [c, lots] : ab.foreign_cash)
+          add_local(slot_of(c)).add(ab.foreign_balance(c));
       }
     const std::size_t row = prices.row(d);
     for (const auto& [key, h] : held) {
-      if (prices.has(row, h.column))
-        add_local(*h.currency, h.quantity * prices.exact(row, h.column));
-      else if (const auto traded = book.last_trade_price(key.second))
-        add_local(*h.currency, h.quantity * *traded);
-      else
+      if (prices.has(row, h.column)) {
+        if (h.small && h.places >= 0)
+          add_local(h.slot).add(Wide(h.mantissa) * prices.scaled_close(row, h.column),
+                                h.scale + h.places);
+        else
+          add_local(h.slot).add(h.quantity * prices.exact(row, h.column));
+      } else if (const auto traded = book.last_trade_price(key.second)) {
+        add_local(h.slot).add(h.quantity * *traded);
+      } else {
         out.unpriced_on.emplace_back(d, key.second);
+      }
     }
     bool foreign = false;
-    for (const auto& [c, amount] : local) {
-      point.value += reported(amount, *c, d);
-      foreign = foreign || (*c != currency && !amount.is_zero());
+    for (const auto& l : local) {
+      if (!l.used) continue;
+      const Decimal amount = l.sum.total();
+      point.value += reported(amount, l.currency, d);
+      foreign = foreign || (l.currency != currency && !amount.is_zero());
     }
     // A day with only a new rate changes nothing when nothing foreign is held.
     if (rate_only && !foreign) continue;

@@ -286,3 +286,36 @@ TEST_CASE("book days before the day before the period are refused") {
                          {day("2024-01-06"), day("2024-01-05")}),
       std::invalid_argument);
 }
+
+TEST_CASE("a day's value stays exact when its holdings' products overflow machine integers") {
+  LedgerFixture f;
+  f.account("Alder");
+  f.security("VAST");
+  f.security("MITE");
+  auto bring = [&](const char* symbol, const char* quantity) {
+    ledger::PostRequest in;
+    in.kind = TxnKind::transfer_in;
+    in.date = day("2024-01-02");
+    in.account = "Alder";
+    in.symbol = symbol;
+    in.quantity = dec(quantity);
+    in.price = dec("1");
+    ledger::post(f.db, in);
+  };
+  bring("VAST", "1000000000000000000");
+  bring("MITE", "0.0000000001");
+  const auto id = [&](const char* s) { return store::find_security(f.db, s)->id; };
+  store::upsert_price(f.db, id("VAST"), day("2024-01-03"), dec("999999999999999"));
+  store::upsert_price(f.db, id("MITE"), day("2024-01-03"), dec("3.5"));
+  const auto log = ledger::load_log(f.db);
+  market::Series::Request span;
+  span.from = day("2024-01-02");
+  span.to = day("2024-01-03");
+  const auto prices = market::Series::load(f.db, span);
+  const auto s =
+      perf::build_series(log, prices, std::nullopt, day("2024-01-03"), day("2024-01-03"), "USD");
+  // 10^18 x 999999999999999 + 10^-10 x 3.5: 33 digits before the point and 11
+  // after do not fit one 128-bit integer.
+  REQUIRE(s.series.size() == 2);
+  CHECK(s.series.back().value == dec("999999999999999000000000000000000.00000000035"));
+}
