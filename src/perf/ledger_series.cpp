@@ -45,6 +45,22 @@ std::vector<EntryDay> entry_days(const Replayer& replayer, const LedgerLog& log,
 
 __extension__ typedef __int128 Wide;  // GCC and Clang; -Wpedantic wants the marker
 
+// `d` as mantissa x 10^-scale when the mantissa has at most 18 digits. Read
+// from its canonical text: asked only when a holding's quantity changes.
+bool small_mantissa(const Decimal& d, long long& mantissa, int& scale) {
+  const std::string text = d.str();
+  long long m = 0;
+  int digits = 0;
+  for (const char c : text) {
+    if (c < '0' || c > '9') continue;  // the sign and the point
+    if (++digits > 18) return false;
+    m = m * 10 + (c - '0');
+  }
+  mantissa = d.is_negative() ? -m : m;
+  scale = d.scale();
+  return true;
+}
+
 // An exact sum of decimals kept as one 128-bit integer at one scale while it
 // fits, the rest in a Decimal. Valuing every holding on every day through
 // Decimal's arbitrary-precision integers cost as much as reading the closes;
@@ -56,14 +72,7 @@ class ExactSum {
     scale_ = 0;
     rest_ = Decimal();
   }
-  void add(const Decimal& d) {
-    long long m = 0;
-    int scale = 0;
-    if (d.small(m, scale))
-      add(m, scale);
-    else
-      rest_ += d;
-  }
+  void add(const Decimal& d) { rest_ += d; }
   // Adds mantissa x 10^-scale.
   void add(Wide mantissa, int scale) {
     Wide sum = sum_;
@@ -231,7 +240,7 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
   auto hold = [&](std::int64_t account, std::int64_t security, Decimal quantity) {
     Held& h = held[{account, security}];
     h.quantity = std::move(quantity);
-    h.small = h.quantity.small(h.mantissa, h.scale);
+    h.small = small_mantissa(h.quantity, h.mantissa, h.scale);
     if (h.placed) return;
     h.column = prices.column(security);
     if (h.column < 0)
