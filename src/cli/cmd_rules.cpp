@@ -32,7 +32,7 @@ void add_propose(CLI::App& app, Context& ctx) {
   auto* cmd = app.add_subcommand(
       "propose", "A rule's orders for a day: the screen, the orders and the result");
   add_examples(*cmd, {"keel propose --rule rule.toml --as-of 2025-12-31",
-                      "keel propose --plan plan.toml --deposit 1500:Savings"});
+                      "keel propose --plan plan.toml --deposit Savings=1500"});
   auto* rule_opt = cmd->add_option("--rule", o->rule,
                                    "Rule file (TOML; see docs/rules.md; '-': standard input)");
   auto* plan_opt = cmd->add_option(
@@ -40,10 +40,10 @@ void add_propose(CLI::App& app, Context& ctx) {
       "Plan file: several rules and fixed sleeves proposed together (TOML; see docs/plan.md)");
   rule_opt->excludes(plan_opt);
   cmd->add_option("--deposit", o->deposits,
-                  "With --plan: cash to plan with that is not booked yet, AMOUNT[:ACCOUNT] "
+                  "With --plan: cash to plan with that is not booked yet, ACCOUNT=AMOUNT "
                   "(repeatable)");
   cmd->add_option("--withdraw", o->withdrawals,
-                  "With --plan: cash to take out that is not booked yet, AMOUNT[:ACCOUNT] "
+                  "With --plan: cash to take out that is not booked yet, ACCOUNT=AMOUNT "
                   "(repeatable)");
   cmd->add_option("--as-of", o->as_of,
                   "Day to propose for, YYYY-MM-DD (default: the latest day with a close)");

@@ -33,22 +33,30 @@ std::string pct_text(const Decimal& fraction) {
 }  // namespace
 
 PlannedCash parse_planned_cash(std::string_view option, std::string_view text) {
+  static constexpr std::string_view form = "ACCOUNT=AMOUNT, e.g. Savings=1500.00";
   PlannedCash out;
   out.option = std::string(option);
-  const auto colon = text.find(':');
-  const auto amount = text.substr(0, colon);
-  if (colon != std::string_view::npos) {
-    out.account = std::string(text.substr(colon + 1));
+  // Split at the last '=': an amount never holds one, an account name may.
+  const auto eq = text.rfind('=');
+  std::string_view amount = text;
+  if (eq != std::string_view::npos) {
+    out.account = std::string(text.substr(0, eq));
+    amount = text.substr(eq + 1);
     if (out.account.empty())
-      throw InputError(fmt::format("{}: '{}' names no account after ':' (AMOUNT[:ACCOUNT])", option,
-                                   printable(text)));
+      throw InputError(
+          fmt::format("{}: '{}' names no account before '=' ({})", option, printable(text), form));
+  } else if (const auto colon = text.find(':');
+             colon != std::string_view::npos && Decimal::try_parse(text.substr(0, colon))) {
+    // The spelling AMOUNT:ACCOUNT is refused with the one to use instead.
+    throw InputError(fmt::format("{}: '{}' is not ACCOUNT=AMOUNT; write '{}={}'", option,
+                                 printable(text), printable(text.substr(colon + 1)),
+                                 printable(text.substr(0, colon))));
   }
   const auto v = Decimal::try_parse(amount);
   if (!v || !v->is_positive() || v->rounded(2) != *v)
     throw InputError(
-        fmt::format("{}: '{}' is not an amount above zero with at most two decimals "
-                    "(AMOUNT[:ACCOUNT], e.g. 1500.00:Savings)",
-                    option, printable(amount)));
+        fmt::format("{}: '{}' is not an amount above zero with at most two decimals ({})", option,
+                    printable(amount), form));
   out.amount = option == "--withdraw" ? -*v : *v;
   return out;
 }
@@ -85,12 +93,15 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
       if (all.size() != 1)
         throw InputError(
             fmt::format("{}: the plan has {} accounts; name the one the cash goes to or comes from "
-                        "(AMOUNT:ACCOUNT; accounts: {})",
+                        "(ACCOUNT=AMOUNT; accounts: {})",
                         c.option, all.size(), printable_list(names)));
       c.account = all.front().name;
     } else if (std::find(names.begin(), names.end(), c.account) == names.end()) {
-      throw InputError(fmt::format("{}: '{}' is not an account of the plan (accounts: {})",
-                                   c.option, printable(c.account), printable_list(names)));
+      const auto near = nearest(c.account, names);
+      throw InputError(fmt::format("{}: '{}' is not an account of the plan ({})", c.option,
+                                   printable(c.account),
+                                   near ? fmt::format("did you mean '{}'?", printable(*near))
+                                        : "accounts: " + printable_list(names)));
     }
   }
   p.planned = planned;

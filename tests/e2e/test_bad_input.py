@@ -646,25 +646,33 @@ row("propose: --deposit without --plan",
 row("propose --plan: --save", ["propose", "--plan", "{d}/plan.toml", "--save"], INPUT,
     "keel: error: --save: applies only with --rule", {"plan.toml": PLAN_FIXED})
 row("propose --plan: --deposit not an amount",
-    ["propose", "--plan", "{d}/plan.toml", "--deposit", "ten:Alder Taxable"], INPUT,
+    ["propose", "--plan", "{d}/plan.toml", "--deposit", "Alder Taxable=ten"], INPUT,
     "keel: error: --deposit: 'ten' is not an amount above zero with at most two decimals "
-    "(AMOUNT[:ACCOUNT], e.g. 1500.00:Savings)", {"plan.toml": PLAN_FIXED})
+    "(ACCOUNT=AMOUNT, e.g. Savings=1500.00)", {"plan.toml": PLAN_FIXED})
 row("propose --plan: --deposit with sub-cent amount",
-    ["propose", "--plan", "{d}/plan.toml", "--deposit", "10.005:Alder Taxable"], INPUT,
+    ["propose", "--plan", "{d}/plan.toml", "--deposit", "Alder Taxable=10.005"], INPUT,
     "keel: error: --deposit: '10.005' is not an amount above zero with at most two decimals "
-    "(AMOUNT[:ACCOUNT], e.g. 1500.00:Savings)", {"plan.toml": PLAN_FIXED})
+    "(ACCOUNT=AMOUNT, e.g. Savings=1500.00)", {"plan.toml": PLAN_FIXED})
 row("propose --plan: --withdraw to an account outside the plan",
-    ["propose", "--plan", "{d}/plan.toml", "--withdraw", "10:Nobody"], INPUT,
+    ["propose", "--plan", "{d}/plan.toml", "--withdraw", "Nobody=10"], INPUT,
     "keel: error: --withdraw: 'Nobody' is not an account of the plan (accounts: Alder Taxable, "
     "Birch Pension)", {"plan.toml": PLAN_FIXED})
 row("propose --plan: --deposit without an account in a plan of two",
     ["propose", "--plan", "{d}/plan.toml", "--deposit", "10"], INPUT,
     "keel: error: --deposit: the plan has 2 accounts; name the one the cash goes to or comes from "
-    "(AMOUNT:ACCOUNT; accounts: Alder Taxable, Birch Pension)", {"plan.toml": PLAN_FIXED})
+    "(ACCOUNT=AMOUNT; accounts: Alder Taxable, Birch Pension)", {"plan.toml": PLAN_FIXED})
 row("propose --plan: --withdraw more than the cash",
-    ["propose", "--plan", "{d}/plan.toml", "--withdraw", "1000000:Alder Taxable"], INPUT,
+    ["propose", "--plan", "{d}/plan.toml", "--withdraw", "Alder Taxable=1000000"], INPUT,
     "keel: error: --withdraw: account 'Alder Taxable' holds 9500 in cash on 2024-02-01; it "
     "cannot give 1000000", {"plan.toml": PLAN_FIXED})
+row("propose --plan: --deposit in the spelling AMOUNT:ACCOUNT",
+    ["propose", "--plan", "{d}/plan.toml", "--deposit", "10:Alder Taxable"], INPUT,
+    "keel: error: --deposit: '10:Alder Taxable' is not ACCOUNT=AMOUNT; write 'Alder Taxable=10'",
+    {"plan.toml": PLAN_FIXED})
+row("propose --plan: --deposit into an account outside the plan, a near miss",
+    ["propose", "--plan", "{d}/plan.toml", "--deposit", "Alder Taxabel=10"], INPUT,
+    "keel: error: --deposit: 'Alder Taxabel' is not an account of the plan (did you mean "
+    "'Alder Taxable'?)", {"plan.toml": PLAN_FIXED})
 row("propose --plan: missing plan file", ["propose", "--plan", "{d}/none.toml"], INPUT,
     "keel: error: {d}/none.toml: cannot open plan file")
 row("propose --plan: shares of a pool not summing to 100",

@@ -80,7 +80,7 @@ write(os.path.join(D, "rules", "value.toml"), VALUE_RULE)
 plan = write(os.path.join(D, "household.toml"), PLAN.format(unmanaged=""))
 before = ledger_digest(led.path)
 
-doc = led.json("propose", "--plan", plan, "--deposit", "1000:Taxable")
+doc = led.json("propose", "--plan", plan, "--deposit", "Taxable=1000")
 equal(doc["schema"], {"name": "keel.plan-proposal", "version": 2}, "schema tag")
 equal(doc["as_of"], "2026-01-30", "as of the latest close")
 equal(doc["planned_cash"], [{"account": "Taxable", "amount": "1000", "booked": False}],
@@ -141,7 +141,7 @@ equal(doc["cautions"][0], "This is the output of your own rule applied to your o
       "not investment advice.", "the proposal's cautions")
 
 # The text says the deposit is planned and lists the unmanaged fund.
-text = led.ok("propose", "--plan", plan, "--deposit", "1000:Taxable")
+text = led.ok("propose", "--plan", plan, "--deposit", "Taxable=1000")
 check("Planned, not booked: deposit 1000.00 to Taxable" in text, text)
 check("family  Retirement  ZMIX          50     44  2200.00  left alone" in text, text)
 check("Part 'bonds': fixed sleeve, 30.00% of pool 'family'" in text, text)
@@ -153,14 +153,14 @@ equal(doc["pools"][0]["pool_value"], "100000", "without the planned deposit")
 equal(doc["pools"][0]["orders"][1]["quantity"], "700", "AAVO: 0.35 x 100000 / 50 = 700")
 
 # A withdrawal of 1000 from Retirement: 100000 managed (101000 - 1000 - 1000 + 1000).
-doc = led.json("propose", "--plan", plan, "--deposit", "1000:Taxable", "--withdraw",
-               "2000:Retirement")
+doc = led.json("propose", "--plan", plan, "--deposit", "Taxable=1000", "--withdraw",
+               "Retirement=2000")
 equal(doc["pools"][0]["pool_value"], "99000", "51000 + 10000 + 38000")
 equal([c["amount"] for c in doc["planned_cash"]], ["1000", "-2000"], "planned deposit, withdrawal")
 
 # unmanaged = "sell": ZMIX joins the pool (101000 + 2200 = 103200) and is sold.
 write(plan, PLAN.format(unmanaged='unmanaged = "sell"\n'))
-doc = led.json("propose", "--plan", plan, "--deposit", "1000:Taxable")
+doc = led.json("propose", "--plan", plan, "--deposit", "Taxable=1000")
 equal(doc["pools"][0]["pool_value"], "103200", "the unmanaged fund counts when it is sold")
 zmix = [o for o in doc["pools"][0]["orders"] if o["symbol"] == "ZMIX"]
 equal([(o["side"], o["quantity"]) for o in zmix], [("sell", "50")], "ZMIX sold whole")
@@ -181,7 +181,7 @@ err = led.fails("propose", "--plan", os.path.join(D, "overlap.toml"))
 equal(err, f"keel: error: {D}/overlap.toml:15:9: key 'part.fixed': 'CELT' is managed by both part "
       "'value' and part 'bonds' in pool 'family'; a security belongs to one part of a pool",
       "a name in two parts of one pool")
-err = led.fails("propose", "--plan", plan, "--withdraw", "50000:Retirement")
+err = led.fails("propose", "--plan", plan, "--withdraw", "Retirement=50000")
 equal(err, "keel: error: --withdraw: account 'Retirement' holds 40000 in cash on 2026-01-30; it "
       "cannot give 50000", "a withdrawal larger than the cash")
 equal(ledger_digest(led.path), before, "refused plans write nothing")
