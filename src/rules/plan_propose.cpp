@@ -11,6 +11,7 @@
 #include "core/text.h"
 #include "ledger/fx_cash.h"
 #include "ledger/posting.h"
+#include "ledger/tax.h"
 #include "market/day_view.h"
 #include "rules/inputs.h"
 #include "rules/propose.h"
@@ -108,6 +109,11 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
 
   Replayer replayer(log);
   const Book& book = replayer.advance_to(as_of);
+  const auto statuses = ledger::TaxStatuses::load(db);
+  const bool tax_keys = plan.tax.sell_deferred_first || plan.tax.gain_cap ||
+                        std::any_of(plan.parts.begin(), plan.parts.end(),
+                                    [](const PlanPart& part) { return part.place_deferred; });
+  Decimal gain_used;  // net estimated gain of the sells in taxable accounts, across pools
   const Inputs::LastTrade last_trade = [&](std::int64_t id) -> std::optional<Inputs::Trade> {
     if (const auto t = book.last_trade(id)) return Inputs::Trade{t->day, t->price};
     return std::nullopt;
@@ -178,15 +184,18 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
     // The pool on the as-of day, with the planned cash; unmanaged names out.
     std::set<std::int64_t> held;
     Portfolio portfolio = portfolio_of(book, accounts, held);
+    HouseholdPrefs prefs;
+    prefs.sell_deferred_first = plan.tax.sell_deferred_first;
+    if (plan.tax.gain_cap) prefs.gain_cap = std::max(Decimal(), *plan.tax.gain_cap - gain_used);
+    for (auto& a : portfolio.accounts) a.tax = statuses.on(a.id, as_of);
     for (const auto& c : p.planned)
       for (auto& a : portfolio.accounts)
         if (a.name == c.account) {
           a.cash += c.amount;
-          if (a.cash.is_negative())
-            throw InputError(fmt::format(
-                "{}: account '{}' holds {} in cash on {}; it cannot give {}", c.option,
-                printable(a.name), (a.cash - c.amount).str(), as_of.str(), (-c.amount).str()));
+          if (c.amount.is_negative()) prefs.must_give[a.id] -= c.amount;
         }
+    for (const auto& [id, k] : owner)
+      if (plan.parts[parts[k]].place_deferred) prefs.place_deferred.insert(id);
     std::set<std::int64_t> unmanaged;
     for (const std::int64_t id : held)
       if (!owner.count(id)) unmanaged.insert(id);
@@ -246,6 +255,22 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
         targets.push_back(Target{id, quotes.at(id).symbol, Decimal(), false, std::nullopt, true,
                                  "unmanaged: the pool sells names outside its parts"});
 
+    // A withdrawal beyond the cash is raised by selling in the account; more
+    // than the account holds (managed, at a close) cannot be.
+    for (const auto& a : portfolio.accounts) {
+      if (!a.cash.is_negative() || !prefs.must_give.count(a.id)) continue;
+      Decimal holdings;
+      for (const auto& [id, h] : a.holdings)
+        if (quotes.at(id).tradable) holdings += h.quantity * quotes.at(id).price;
+      if ((a.cash + holdings).is_negative()) {
+        const Decimal gives = prefs.must_give.at(a.id);
+        throw InputError(fmt::format(
+            "--withdraw: account '{}' holds {} in cash{} on {}; it cannot give {}",
+            printable(a.name), (a.cash + gives).str(),
+            holdings.is_zero() ? "" : fmt::format(" and {} in holdings to sell", holdings.str()),
+            as_of.str(), gives.str()));
+      }
+    }
     Decimal value;
     for (const auto& a : portfolio.accounts) {
       value += a.cash;
@@ -258,7 +283,24 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
                             "cash first",
                             printable_list(result.accounts), as_of.str(), value.str()));
 
-    result.plan = orders(portfolio, targets, quotes, *trading, as_of);
+    result.plan = orders(portfolio, targets, quotes, *trading, as_of, Explain::all, prefs);
+    for (const auto& c : result.plan.cash_after) {
+      const auto& a = *std::find_if(portfolio.accounts.begin(), portfolio.accounts.end(),
+                                    [&](const AccountState& s) { return s.name == c.account; });
+      if (!c.cash.is_negative() || !prefs.must_give.count(a.id)) continue;
+      throw InputError(fmt::format(
+          "--withdraw: account '{}' cannot give {} on {}: {} (its cash after the orders would be "
+          "{})",
+          printable(a.name), prefs.must_give.at(a.id).str(), as_of.str(),
+          prefs.gain_cap && a.tax == TaxStatus::taxable
+              ? fmt::format("its sells stop at the gain cap of {}", plan.tax.gain_cap->fixed(2))
+              : std::string("nothing more in it can be sold"),
+          c.cash.str()));
+    }
+    for (const auto& o : result.plan.orders)
+      for (const auto& a : portfolio.accounts)
+        if (a.id == o.account_id && a.tax == TaxStatus::taxable)
+          for (const auto& l : o.lots) gain_used += l.est_gain;
     // Each order under the part that manages its name.
     for (auto& o : result.plan.orders) {
       const auto it = owner.find(o.security_id);
@@ -273,6 +315,10 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
     p.pools.push_back(std::move(result));
   }
   p.cautions = proposal_cautions(as_of);
+  if (tax_keys)
+    p.cautions.push_back(
+        "This plan places and sells by each account's recorded tax status: tax treatment depends "
+        "on local rules; check it with your tax authority or a licensed professional.");
   return p;
 }
 

@@ -663,8 +663,28 @@ row("propose --plan: --deposit without an account in a plan of two",
     "(ACCOUNT=AMOUNT; accounts: Alder Taxable, Birch Pension)", {"plan.toml": PLAN_FIXED})
 row("propose --plan: --withdraw more than the cash",
     ["propose", "--plan", "{d}/plan.toml", "--withdraw", "Alder Taxable=1000000"], INPUT,
-    "keel: error: --withdraw: account 'Alder Taxable' holds 9500 in cash on 2024-02-01; it "
-    "cannot give 1000000", {"plan.toml": PLAN_FIXED})
+    "keel: error: --withdraw: account 'Alder Taxable' holds 9500 in cash and 550 in holdings to "
+    "sell on 2024-02-01; it cannot give 1000000", {"plan.toml": PLAN_FIXED})
+row("propose --plan: one account claimed by a pool and a part",
+    ["propose", "--plan", "{d}/plan.toml"], INPUT,
+    "keel: error: {d}/plan.toml:10:12: key 'part.accounts': account 'Alder Taxable' is already "
+    "managed by pool 'home'; an account belongs to one pool or part only",
+    {"plan.toml": PLAN_FIXED + b'[[part]]\nname = "more"\naccounts = ["Alder Taxable"]\n'
+     b'fixed = { QRX = 100 }\n'})
+row("propose --plan: a gain cap below zero", ["propose", "--plan", "{d}/plan.toml"], INPUT,
+    "keel: error: {d}/plan.toml:2:12: key 'tax.gain_cap': -500 is below zero; a cap of 0 allows "
+    "no net gain at all", {"plan.toml": b"[tax]\ngain_cap = -500\n" + PLAN_FIXED})
+row("propose --plan: a gain cap with fractions of a cent",
+    ["propose", "--plan", "{d}/plan.toml"], INPUT,
+    "keel: error: {d}/plan.toml:2:12: key 'tax.gain_cap': 10.125 has more than two decimals",
+    {"plan.toml": b"[tax]\ngain_cap = 10.125\n" + PLAN_FIXED})
+row("propose --plan: an unknown selling order", ["propose", "--plan", "{d}/plan.toml"], INPUT,
+    "keel: error: {d}/plan.toml:2:13: key 'tax.sell_from': must be \"any\" or "
+    "\"tax-deferred-first\"", {"plan.toml": b'[tax]\nsell_from = "deferred"\n' + PLAN_FIXED})
+row("propose --plan: an unknown tax key", ["propose", "--plan", "{d}/plan.toml"], INPUT,
+    "keel: error: {d}/plan.toml:2:14: key 'tax.gain_limit': unknown key; expected one of: "
+    "sell_from, gain_cap",
+    {"plan.toml": b"[tax]\ngain_limit = 5\n" + PLAN_FIXED})
 row("propose --plan: --deposit in the spelling AMOUNT:ACCOUNT",
     ["propose", "--plan", "{d}/plan.toml", "--deposit", "10:Alder Taxable"], INPUT,
     "keel: error: --deposit: '10:Alder Taxable' is not ACCOUNT=AMOUNT; write 'Alder Taxable=10'",

@@ -74,7 +74,7 @@ REPORTS = {
     "returns": ["returns", "--year", "2025", "--benchmark", "ZXTR"],
     "propose": ["propose", "--rule", RULE, "--as-of", "2025-12-31"],
     "plan-proposal": ["propose", "--plan", PLAN, "--as-of", "2025-12-31", "--deposit",
-                      "500:Ardwyn Retirement"],
+                      "Ardwyn Retirement=500"],
     "proposals-list": ["proposals", "list"],
     "proposal": ["proposals", "show", "1"],
     "backtest": ["backtest", "--rule", RULE, "--from", "2024-01-01", "--to", "2025-12-31",
