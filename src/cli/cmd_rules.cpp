@@ -62,7 +62,6 @@ void add_propose(CLI::App& app, Context& ctx) {
       throw InputError(fmt::format("{}: applies only with --plan",
                                    o->deposits.empty() ? "--withdraw" : "--deposit"));
     if (!o->plan.empty()) {
-      if (o->save) throw InputError("--save: applies only with --rule");
       if (window->count() > 0) throw InputError("--repurchase-window: applies only with --rule");
       std::vector<rules::PlannedCash> planned;
       for (const auto& d : o->deposits)
@@ -70,10 +69,14 @@ void add_propose(CLI::App& app, Context& ctx) {
       for (const auto& w : o->withdrawals)
         planned.push_back(rules::parse_planned_cash("--withdraw", w));
       const auto plan = rules::load_plan(o->plan);
-      auto db = ctx.open_ledger(store::Access::read);
+      auto db = ctx.open_ledger(o->save ? store::Access::write : store::Access::read);
       const auto proposal = rules::propose_plan(db, plan, as_of, std::move(planned));
-      out(o->json ? report::plan_proposal_json(proposal)
+      std::optional<std::int64_t> id;
+      if (o->save) id = rules::save_plan(db, plan, proposal);
+      out(o->json ? report::plan_proposal_json(proposal, id)
                   : report::plan_proposal_text(proposal, ctx.style()));
+      if (id && !o->json)
+        out(fmt::format("\nSaved as proposal {}; see 'keel proposals show {}'.\n", *id, *id));
       return;
     }
     if (window->count() > 0) ledger::check_repurchase_window(o->repurchase_window);

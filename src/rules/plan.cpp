@@ -136,6 +136,7 @@ Plan parse_plan(std::string_view toml_text, std::string source,
                 const std::filesystem::path& folder) {
   Plan plan;
   plan.source = std::move(source);
+  plan.text = std::string(toml_text);
   toml::table root;
   try {
     root = toml::parse(toml_text, plan.source);

@@ -63,6 +63,7 @@ struct PlanTax {
 
 struct Plan {
   std::string source;  // file name, for messages
+  std::string text;    // the file exactly as read
   std::string name;
   PlanTax tax;
   std::vector<PlanPool> pools;

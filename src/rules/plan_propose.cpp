@@ -9,6 +9,7 @@
 
 #include "core/error.h"
 #include "core/text.h"
+#include "io/sha256.h"
 #include "ledger/fx_cash.h"
 #include "ledger/posting.h"
 #include "ledger/tax.h"
@@ -16,6 +17,8 @@
 #include "rules/inputs.h"
 #include "rules/propose.h"
 #include "rules/track_record.h"
+#include "store/ledger_store.h"
+#include "store/proposals.h"
 
 namespace keel::rules {
 namespace {
@@ -109,6 +112,7 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
 
   Replayer replayer(log);
   const Book& book = replayer.advance_to(as_of);
+  p.last_txn_id = store::last_transaction_id(db);
   const auto statuses = ledger::TaxStatuses::load(db);
   const bool tax_keys = plan.tax.sell_deferred_first || plan.tax.gain_cap ||
                         std::any_of(plan.parts.begin(), plan.parts.end(),
@@ -320,6 +324,37 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
         "This plan places and sells by each account's recorded tax status: tax treatment depends "
         "on local rules; check it with your tax authority or a licensed professional.");
   return p;
+}
+
+std::int64_t save_plan(store::Database& db, const Plan& plan, const PlanProposal& p) {
+  store::ProposalRow row;
+  row.kind = "plan";
+  row.as_of = p.as_of;
+  row.rule_name = plan.name;
+  row.rule_file = plan.source;
+  row.rule_text = plan.text;
+  row.rule_sha256 = io::sha256_hex(plan.text);
+  row.last_txn_id = p.last_txn_id;
+  for (const auto& pool : p.pools) {
+    row.pool_value += pool.plan.pool_value;
+    for (const auto& name : pool.accounts)
+      row.account_ids.push_back(store::find_account(db, name)->id);
+  }
+  // Each order under the part that manages its name (the reason begins with it).
+  std::map<std::pair<std::int64_t, std::int64_t>, std::string> part_of;  // account, security
+  for (const auto& part : p.parts)
+    for (const auto& o : part.orders) part_of[{o.account_id, o.security_id}] = part.name;
+  for (const auto& pool : p.pools)
+    for (const auto& o : pool.plan.orders) {
+      auto r = proposal_order_row(o);
+      const auto it = part_of.find({o.account_id, o.security_id});
+      r.part = it == part_of.end() ? "unmanaged" : it->second;
+      row.orders.push_back(std::move(r));
+    }
+  store::WriteTransaction tx(db);
+  const std::int64_t id = store::save_proposal(db, row);
+  tx.commit();
+  return id;
 }
 
 }  // namespace keel::rules

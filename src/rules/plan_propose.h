@@ -67,6 +67,7 @@ struct PoolResult {
 
 struct PlanProposal {
   Date as_of;
+  std::int64_t last_txn_id = 0;  // the ledger's highest transaction id when proposed
   std::string plan_name;
   std::vector<PoolResult> pools;
   std::vector<PartResult> parts;  // in the plan's order
@@ -79,6 +80,11 @@ struct PlanProposal {
 PlanProposal propose_plan(store::Database& db, const Plan& plan,
                           std::optional<Date> as_of = std::nullopt,
                           std::vector<PlannedCash> planned = {});
+
+// Stores a plan's proposal (the plan's text, its accounts, each order under
+// its part) in one write transaction and returns its id; review() in
+// rules/propose.h sets it against what was traded since.
+std::int64_t save_plan(store::Database& db, const Plan& plan, const PlanProposal& proposal);
 
 // "ACCOUNT=AMOUNT" (or a bare AMOUNT for a plan of one account) of --deposit
 // or --withdraw; InputError naming `option` and showing the form. The amount

@@ -643,8 +643,6 @@ row("propose: --rule and --plan together",
 row("propose: --deposit without --plan",
     ["propose", "--rule", "{d}/rule.toml", "--deposit", "100"], INPUT,
     "keel: error: --deposit: applies only with --plan")
-row("propose --plan: --save", ["propose", "--plan", "{d}/plan.toml", "--save"], INPUT,
-    "keel: error: --save: applies only with --rule", {"plan.toml": PLAN_FIXED})
 row("propose --plan: --deposit not an amount",
     ["propose", "--plan", "{d}/plan.toml", "--deposit", "Alder Taxable=ten"], INPUT,
     "keel: error: --deposit: 'ten' is not an amount above zero with at most two decimals "

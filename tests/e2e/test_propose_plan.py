@@ -81,7 +81,7 @@ plan = write(os.path.join(D, "household.toml"), PLAN.format(unmanaged=""))
 before = ledger_digest(led.path)
 
 doc = led.json("propose", "--plan", plan, "--deposit", "Taxable=1000")
-equal(doc["schema"], {"name": "keel.plan-proposal", "version": 2}, "schema tag")
+equal(doc["schema"], {"name": "keel.plan-proposal", "version": 3}, "schema tag")
 equal(doc["as_of"], "2026-01-30", "as of the latest close")
 equal(doc["planned_cash"], [{"account": "Taxable", "amount": "1000", "booked": False}],
       "the deposit is planned, not booked")
@@ -279,3 +279,34 @@ equal(sum(int(l["est_gain"].split(".")[0]) for l in lots), 2000, "estimated gain
 
 equal(ledger_digest(tax.path), before, "tax-aware proposals write nothing")
 print("propose --plan: tax-aware household checked by hand")
+
+# ---------------------------------------------------------------- saved, filled, at rest
+# The plan without the cap is saved; its orders are booked as filled three days later at the
+# estimated prices, with the lots it named; proposing again proposes nothing new.
+write(tax_plan, TAX_PLAN.format(cap=""))
+first = tax.json("propose", "--plan", tax_plan, "--save")
+equal(first["proposal_id"], 1, "saved as proposal 1")
+for o in first["pools"][0]["orders"]:
+    lots = ",".join(f"{l['lot']}:{l['quantity']}" for l in o["lots"])
+    tax.ok("record", o["side"], "--date", "2026-07-03", "--account", o["account"], "--symbol",
+           o["symbol"], "--quantity", o["quantity"], "--price", o["price"],
+           *(["--lots", lots] if lots else []))
+again = tax.json("propose", "--plan", tax_plan)
+equal(again["as_of"], "2026-07-03", "the default day takes in the fills")
+equal(again["pools"][0]["orders"], [], "nothing proposed again once the orders are filled")
+shown = tax.json("proposals", "show", "1")
+equal(shown["kind"], "plan", "a plan's saved proposal")
+equal([(l["part"], l["account"], l["symbol"], l["side"], l["status"]) for l in shown["lines"]], [
+    ("stocks", "Brokerage", "ACRN", "sell", "done"),
+    ("stocks", "Retirement", "ACRN", "sell", "done"),
+    ("stocks", "Brokerage", "BOLT", "buy", "done"),
+    ("bonds", "Brokerage", "GBND", "buy", "done"),
+    ("bonds", "Retirement", "GBND", "buy", "done"),
+], "each saved order under its part, done")
+text = tax.ok("proposals", "show", "1")
+check(text.startswith("Proposal 1 of plan 'Tax household' as of 2026-06-30, saved "), text)
+check("\nPart 'stocks'\n" in text and "\nPart 'bonds'\n" in text, text)
+listed = tax.json("proposals", "list")["proposals"]
+equal([(p["id"], p["kind"], p["rule"], p["orders"]) for p in listed],
+      [(1, "plan", "Tax household", 5)], "the list names the plan")
+print("propose --plan --save: filled orders leave the plan at rest")
