@@ -175,6 +175,7 @@ void add_import(CLI::App& app, Context& ctx) {
       text += fmt::format("note: the same file was imported as {} on {} (run {})\n",
                           printable(sum.same_file_before->file_name),
                           sum.same_file_before->imported_at, sum.same_file_before->id);
+    for (const auto& note : sum.notes) text += "note: " + note + "\n";
     out(text);
   });
 }
@@ -190,7 +191,8 @@ void add_export(CLI::App& app, Context& ctx) {
   add_examples(*cmd,
                {"keel export transactions --out transactions.csv", "keel export prices --json"});
   cmd->add_option("WHAT", o->what,
-                  "accounts, transactions, securities, prices, metrics, distributions, splits or "
+                  "accounts, transactions, actions (corporate actions), securities, prices, "
+                  "metrics, distributions, splits or "
                   "fx (exchange rates)")
       ->required();
   auto* c = cmd->add_flag("--csv", o->csv, "CSV in keel's import layout (the default)");
@@ -201,7 +203,7 @@ void add_export(CLI::App& app, Context& ctx) {
   cmd->callback([&ctx, o] {
     const std::string& what = o->what;
     const std::string& file = o->file;
-    const bool ledger_data = what == "transactions" || what == "accounts";
+    const bool ledger_data = what == "transactions" || what == "accounts" || what == "actions";
     const std::string kind_name =
         ledger_data ? what : std::string(to_string(io::parse_market_kind(what)));
     auto db = ctx.open_ledger();
@@ -212,6 +214,8 @@ void add_export(CLI::App& app, Context& ctx) {
       rows = io::export_transactions(db, format, f);
     else if (what == "accounts")
       rows = io::export_accounts(db, format, f);
+    else if (what == "actions")
+      rows = io::export_actions(db, format, f);
     else
       rows = io::export_market(db, io::parse_market_kind(what), format, f);
     f.commit();

@@ -24,6 +24,7 @@
 #include <optional>
 #include <string>
 #include <string_view>
+#include <vector>
 
 #include "core/files.h"
 #include "io/csv.h"
@@ -72,6 +73,7 @@ struct ImportSummary {
   bool dry_run = false;
   std::optional<std::int64_t> run_id;                // set when recorded
   std::optional<store::ImportRun> same_file_before;  // an earlier run of identical bytes
+  std::vector<std::string> notes;  // "FILE:LINE: ...", e.g. a row naming a former symbol
 };
 
 ImportSummary import_market(store::Database& db, MarketKind what, const std::filesystem::path& file,

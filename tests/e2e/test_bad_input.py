@@ -355,7 +355,7 @@ import_row("splits: header only in another layout, bad skip_lines", "splits", "x
            "1000" % len(ROWS), mapping="[file]\nskip_lines = -1\n")
 row("import: unknown kind of data", ["import", "trades", "{d}/seed-prices.csv"], INPUT,
     "keel: error: cannot import or export 'trades'; expected one of: accounts, transactions, "
-    "securities, prices, metrics, distributions, splits, fx")
+    "actions, securities, prices, metrics, distributions, splits, fx")
 
 # --- exchange rates -------------------------------------------------------------------------
 import_row("fx: an unknown currency code", "fx", "date,base,quote,rate\n2024-03-01,EUR,XYZ,1.1\n",
