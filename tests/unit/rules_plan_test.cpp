@@ -11,6 +11,7 @@
 #include "ledger_fixture.h"
 #include "rules/plan.h"
 #include "rules/plan_propose.h"
+#include "rules/propose.h"
 
 using namespace keel;
 using namespace keel::testing;
@@ -298,4 +299,30 @@ TEST_CASE("plan: a deposit into a near miss of a plan account suggests it") {
                        "--deposit: 'Retirment' is not an account of the plan (did you mean "
                        "'Retirement'?)",
                        InputError);
+}
+
+TEST_CASE("saved plan: each order keeps its part and the review covers the plan's accounts") {
+  Household h;
+  const Plan plan = parse_plan(kTwoParts, "plan.toml", h.f.path);
+  const auto p = propose_plan(h.db, plan);
+  const std::int64_t id = save_plan(h.db, plan, p);
+  const auto r = review(h.db, id);
+  CHECK(r.proposal.kind == "plan");
+  CHECK(r.proposal.rule_name == "Household");
+  CHECK(r.proposal.rule_text == kTwoParts);
+  CHECK(r.proposal.account_ids.size() == 2);
+  std::size_t orders = 0;
+  for (const auto& pool : p.pools) orders += pool.plan.orders.size();
+  REQUIRE(r.lines.size() == orders);
+  for (std::size_t i = 0; i < r.lines.size(); ++i) {
+    const auto& o = p.pools[0].plan.orders[i];
+    CHECK(r.lines[i].part == o.reason.substr(0, o.reason.find(':')));
+    CHECK(r.lines[i].status == "not traded");
+  }
+  // A trade in the retirement account after saving is listed as not proposed.
+  h.buy("2026-02-02", "Retirement", "E", "1", "10");
+  const auto later = review(h.db, id);
+  CHECK(later.lines.back().symbol == "E");
+  CHECK(later.lines.back().status == "not proposed");
+  CHECK(later.lines.back().part.empty());
 }
