@@ -16,6 +16,7 @@
 #include "io/errors.h"
 #include "io/ledger_intake.h"
 #include "io/market_intake.h"
+#include "ledger/action_posting.h"
 #include "ledger/posting.h"
 #include "report/json_schema.h"
 #include "report/table.h"
@@ -52,7 +53,7 @@ class Progress {
 struct ImportCommandOptions {
   std::string what, file, mapping, account;
   bool dry_run = false, replace = false, quiet = false, allow_future = false,
-       book_corrections = false;
+       book_corrections = false, market_only = false;
 };
 
 // The first rows of a dry run, as keel would book them.
@@ -129,6 +130,9 @@ void add_import(CLI::App& app, Context& ctx) {
                 "plus the new row (refused otherwise)");
   cmd->add_option("--account", o->account,
                   "Transactions from an OFX statement: the keel account it belongs to");
+  cmd->add_flag(ledger::kMarketOnlyFlag, o->market_only,
+                "Actions: no account holds the securities; record the actions as market data "
+                "for back-tests and signal checks");
   cmd->callback([&ctx, o] {
     if (is_standard_input(o->file) && is_standard_input(o->mapping))
       throw InputError(
@@ -141,6 +145,9 @@ void add_import(CLI::App& app, Context& ctx) {
     options.allow_future = o->allow_future;
     options.book_corrections = o->book_corrections;
     if (!o->account.empty()) options.account = o->account;
+    options.market_only = o->market_only;
+    if (o->what != "actions" && o->market_only)
+      throw InputError(fmt::format("{}: only for importing actions", ledger::kMarketOnlyFlag));
     if (o->what != "transactions" && (o->book_corrections || options.account))
       throw InputError(fmt::format("{}: only for importing transactions",
                                    o->book_corrections ? "--book-corrections" : "--account"));

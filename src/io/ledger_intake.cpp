@@ -589,6 +589,7 @@ LedgerImportSummary import_actions(store::Database& db, const std::filesystem::p
         r.in_lieu_price = Decimal::parse(in_lieu);
       }
       if (t.has(kNote)) r.note = std::string(t.raw(kNote));
+      r.market_only = options.market_only;
       try {
         ledger::write_action_unchecked(db, r);
         ++sum.added;

@@ -50,6 +50,8 @@ struct ImportOptions {
   bool book_corrections = false;
   // Transactions from an OFX statement: the keel account it is for.
   std::optional<std::string> account;
+  // Corporate actions: no account holds the securities (ActionRequest::market_only).
+  bool market_only = false;
   // Called every so many rows with (rows so far, bytes read, file size).
   std::function<void(std::uint64_t, std::uint64_t, std::uint64_t)> progress;
   // When set, the import reads these bytes and the file only names them (in
