@@ -89,9 +89,11 @@ class PlanReader {
   // A number exactly as written (TOML integer or float); `what` names the kind.
   Decimal number(const toml::node& n, std::string_view full, std::string_view what) const {
     if (n.is_integer()) return Decimal(*n.value<std::int64_t>());
-    if (n.is_floating_point() && std::isfinite(*n.value<double>()))
-      return Decimal::parse(
-          fmt::format("{}", *n.value<double>()));  // shortest text that reads back
+    if (n.is_floating_point() && std::isfinite(*n.value<double>())) {
+      const auto text = fmt::format("{}", *n.value<double>());  // shortest text that reads back
+      if (const auto v = Decimal::try_parse(text)) return *v;
+      fail(n, full, fmt::format("{} is out of range for an exact decimal", text));
+    }
     fail(n, full, fmt::format("must be {}", what));
   }
 

@@ -1,12 +1,12 @@
 // Fuzz target: TOML plan files (rules/plan.h).
 //
 // Invariants: parse_plan() either gives a plan or throws InputError whose
-// message names the plan file, or the rule file a part names (a missing or
-// malformed rule file is reported by the rule reader); nothing else escapes.
+// message starts with the plan file's name, or with the path of the rule file
+// a part names (a missing or malformed rule file is reported by the rule
+// reader); nothing else escapes.
 // A plan it gives keeps its promises: unique part names, every account in
 // one pool only, each shared pool's shares adding up to one, every part in a
 // pool that exists, and a gain cap of zero or more in whole cents.
-#include <unistd.h>
 
 #include <cstddef>
 #include <cstdint>
@@ -21,17 +21,21 @@
 
 namespace {
 
-// A folder holding the one rule file the seed plans name (value.toml).
+// A folder holding the one rule file the seed plans name (value.toml). One
+// fixed name, so runs (libFuzzer ends without running destructors) leave at
+// most this one small folder behind; every run writes the same file.
+struct RuleFolder {
+  std::filesystem::path path = std::filesystem::temp_directory_path() / "keel-fuzz-plan";
+  RuleFolder() {
+    std::filesystem::create_directories(path);
+    std::ofstream(path / "value.toml") << "name = \"value\"\n[scope]\naccounts = [\"Taxable\"]\n"
+                                          "[select]\nby = \"count\"\ncount = 2\n";
+  }
+};
+
 const std::filesystem::path& folder() {
-  static const std::filesystem::path dir = [] {
-    auto d = std::filesystem::temp_directory_path() /
-             ("keel-fuzz-plan-" + std::to_string(static_cast<long>(getpid())));
-    std::filesystem::create_directories(d);
-    std::ofstream(d / "value.toml") << "name = \"value\"\n[scope]\naccounts = [\"Taxable\"]\n"
-                                       "[select]\nby = \"count\"\ncount = 2\n";
-    return d;
-  }();
-  return dir;
+  static const RuleFolder dir;
+  return dir.path;
 }
 
 }  // namespace
@@ -67,9 +71,10 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
       KEEL_FUZZ_CHECK(plan.tax.gain_cap->rounded(2) == *plan.tax.gain_cap);
     }
   } catch (const keel::InputError& e) {
+    // The plan file's name, or the rule file's path: in the folder, or absolute.
     const std::string what = e.what();
-    KEEL_FUZZ_CHECK(what.rfind("fuzz-plan.toml", 0) == 0 ||
-                    what.find(".toml") != std::string::npos);
+    KEEL_FUZZ_CHECK(what.rfind("fuzz-plan.toml", 0) == 0 || what.rfind(dir.string(), 0) == 0 ||
+                    what.rfind('/', 0) == 0);
   }
   return 0;
 }

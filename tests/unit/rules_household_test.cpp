@@ -267,3 +267,13 @@ TEST_CASE("plan file: an unknown place is refused naming the choices") {
                        "plan.toml:5:9: key 'part.place': must be \"any\" or \"tax-deferred-first\"",
                        InputError);
 }
+
+TEST_CASE("plan file: a gain cap too large for an exact decimal is refused at its key") {
+  // Found by the plan fuzzer: the number's own error escaped without the file and line.
+  CHECK_THROWS_WITH_AS(parse_plan("[tax]\ngain_cap = 2.5e101\n[[part]]\nname = \"b\"\n"
+                                  "accounts = [\"A\"]\nfixed = { X = 100 }\n",
+                                  "plan.toml", "."),
+                       "plan.toml:2:12: key 'tax.gain_cap': 2.5e+101 is out of range for an exact "
+                       "decimal",
+                       InputError);
+}
