@@ -32,7 +32,7 @@ void add_propose(CLI::App& app, Context& ctx) {
   auto* cmd = app.add_subcommand(
       "propose", "A rule's orders for a day: the screen, the orders and the result");
   add_examples(*cmd, {"keel propose --rule rule.toml --as-of 2025-12-31",
-                      "keel propose --plan plan.toml --deposit 1500:Savings"});
+                      "keel propose --plan plan.toml --deposit Savings=1500"});
   auto* rule_opt = cmd->add_option("--rule", o->rule,
                                    "Rule file (TOML; see docs/rules.md; '-': standard input)");
   auto* plan_opt = cmd->add_option(
@@ -40,10 +40,10 @@ void add_propose(CLI::App& app, Context& ctx) {
       "Plan file: several rules and fixed sleeves proposed together (TOML; see docs/plan.md)");
   rule_opt->excludes(plan_opt);
   cmd->add_option("--deposit", o->deposits,
-                  "With --plan: cash to plan with that is not booked yet, AMOUNT[:ACCOUNT] "
+                  "With --plan: cash to plan with that is not booked yet, ACCOUNT=AMOUNT "
                   "(repeatable)");
   cmd->add_option("--withdraw", o->withdrawals,
-                  "With --plan: cash to take out that is not booked yet, AMOUNT[:ACCOUNT] "
+                  "With --plan: cash to take out that is not booked yet, ACCOUNT=AMOUNT "
                   "(repeatable)");
   cmd->add_option("--as-of", o->as_of,
                   "Day to propose for, YYYY-MM-DD (default: the latest day with a close)");
@@ -62,7 +62,6 @@ void add_propose(CLI::App& app, Context& ctx) {
       throw InputError(fmt::format("{}: applies only with --plan",
                                    o->deposits.empty() ? "--withdraw" : "--deposit"));
     if (!o->plan.empty()) {
-      if (o->save) throw InputError("--save: applies only with --rule");
       if (window->count() > 0) throw InputError("--repurchase-window: applies only with --rule");
       std::vector<rules::PlannedCash> planned;
       for (const auto& d : o->deposits)
@@ -70,10 +69,14 @@ void add_propose(CLI::App& app, Context& ctx) {
       for (const auto& w : o->withdrawals)
         planned.push_back(rules::parse_planned_cash("--withdraw", w));
       const auto plan = rules::load_plan(o->plan);
-      auto db = ctx.open_ledger(store::Access::read);
+      auto db = ctx.open_ledger(o->save ? store::Access::write : store::Access::read);
       const auto proposal = rules::propose_plan(db, plan, as_of, std::move(planned));
-      out(o->json ? report::plan_proposal_json(proposal)
+      std::optional<std::int64_t> id;
+      if (o->save) id = rules::save_plan(db, plan, proposal);
+      out(o->json ? report::plan_proposal_json(proposal, id)
                   : report::plan_proposal_text(proposal, ctx.style()));
+      if (id && !o->json)
+        out(fmt::format("\nSaved as proposal {}; see 'keel proposals show {}'.\n", *id, *id));
       return;
     }
     if (window->count() > 0) ledger::check_repurchase_window(o->repurchase_window);

@@ -258,10 +258,10 @@ std::string proposal_text(const rules::Proposal& p, const Style& style) {
   return s;
 }
 
-std::string plan_proposal_json(const rules::PlanProposal& p) {
+std::string plan_proposal_json(const rules::PlanProposal& p, std::optional<std::int64_t> saved_id) {
   std::string s;
   JsonWriter j(s);
-  begin_document(j, "plan-proposal", 2);
+  begin_document(j, "plan-proposal", 3);
   j.member("as_of", p.as_of.str()).member("plan", p.plan_name);
   j.key("planned_cash").begin_array();
   for (const auto& c : p.planned)
@@ -316,6 +316,7 @@ std::string plan_proposal_json(const rules::PlanProposal& p) {
   }
   j.end_array();
   j.member("notes", p.notes).member("cautions", p.cautions);
+  if (saved_id) j.member("proposal_id", static_cast<long long>(*saved_id));
   j.end_object();
   return s + "\n";
 }
@@ -371,10 +372,11 @@ std::string plan_proposal_text(const rules::PlanProposal& p, const Style& style)
 std::string proposals_list_json(const std::vector<store::ProposalRow>& all) {
   std::string s;
   JsonWriter j(s);
-  begin_document(j, "proposals-list", 1).key("proposals").begin_array();
+  begin_document(j, "proposals-list", 2).key("proposals").begin_array();
   for (const auto& p : all) {
     j.begin_object();
-    j.member("id", static_cast<long long>(p.id)).member("as_of", p.as_of.str());
+    j.member("id", static_cast<long long>(p.id)).member("kind", p.kind);
+    j.member("as_of", p.as_of.str());
     j.member("rule", p.rule_name).member("rule_file", p.rule_file);
     j.member("rule_sha256", p.rule_sha256).member("pool_value", p.pool_value);
     j.member("orders", static_cast<unsigned long long>(p.order_count));
@@ -394,8 +396,10 @@ std::string proposals_list_text(const std::vector<store::ProposalRow>& all, cons
            {"rule sha256", Align::left, false, 2},
            {"saved at", Align::left, false, 1}});
   for (const auto& p : all)
-    t.add_row({std::to_string(p.id), p.as_of.str(), p.rule_name, std::to_string(p.order_count),
-               money(p.pool_value), p.rule_sha256.substr(0, 12), p.saved_at});
+    t.add_row({std::to_string(p.id), p.as_of.str(),
+               p.kind == "plan" ? "plan " + p.rule_name : p.rule_name,
+               std::to_string(p.order_count), money(p.pool_value), p.rule_sha256.substr(0, 12),
+               p.saved_at});
   return t.render(style);
 }
 
@@ -403,14 +407,19 @@ std::string review_json(const rules::Review& r) {
   const auto& p = r.proposal;
   std::string s;
   JsonWriter j(s);
-  begin_document(j, "proposal", 1);
-  j.member("id", static_cast<long long>(p.id)).member("as_of", p.as_of.str());
+  begin_document(j, "proposal", 2);
+  j.member("id", static_cast<long long>(p.id)).member("kind", p.kind);
+  j.member("as_of", p.as_of.str());
   j.member("rule", p.rule_name).member("rule_file", p.rule_file);
   j.member("rule_sha256", p.rule_sha256).member("pool_value", p.pool_value);
   j.member("saved_at", p.saved_at);
   j.key("lines").begin_array();
   for (const auto& l : r.lines) {
     j.begin_object();
+    if (l.part.empty())
+      j.key("part").null();
+    else
+      j.member("part", l.part);
     j.member("account", l.account).member("symbol", l.symbol).member("side", l.side);
     j.member("proposed", l.proposed).member("est_price", l.est_price);
     j.member("traded", l.traded).member("avg_price", l.avg_price);
@@ -425,28 +434,54 @@ std::string review_json(const rules::Review& r) {
 
 std::string review_text(const rules::Review& r, const Style& style) {
   const auto& p = r.proposal;
-  std::string s = fmt::format("Proposal {} of rule '{}' as of {}, saved {}\n", p.id,
-                              printable(p.rule_name), p.as_of.str(), p.saved_at);
-  s += fmt::format("Rule file {} (sha256 {}); pool value {}\n\n", printable(p.rule_file),
-                   p.rule_sha256, money(p.pool_value));
-  Table t({{"account", Align::left, true},
-           {"symbol"},
-           {"side"},
-           {"proposed", Align::right},
-           {"est. price", Align::right},
-           {"traded since", Align::right},
-           {"avg. price", Align::right},
-           {"status"}});
-  for (const auto& l : r.lines)
-    t.add_row({l.account, l.symbol, l.side, l.proposed.is_zero() ? "" : l.proposed.str(),
-               l.est_price.is_zero() ? "" : l.est_price.str(), l.traded.str(),
-               l.avg_price ? l.avg_price->str() : "", l.status});
-  if (r.lines.empty())
-    s += "The proposal had no orders and nothing was traded since.\n";
-  else
-    s += t.render(style);
-  s += "\nThe proposal was the output of your own rule, not advice; past results do not predict "
-       "future ones.\n";
+  const bool plan = p.kind == "plan";
+  std::string s =
+      fmt::format("Proposal {} of {} '{}' as of {}, saved {}\n", p.id, plan ? "plan" : "rule",
+                  printable(p.rule_name), p.as_of.str(), p.saved_at);
+  s += fmt::format("{} file {} (sha256 {}); {} value {}\n", plan ? "Plan" : "Rule",
+                   printable(p.rule_file), p.rule_sha256, plan ? "managed" : "pool",
+                   money(p.pool_value));
+  auto table = [&](const std::vector<const rules::ReviewLine*>& lines) {
+    Table t({{"account", Align::left, true},
+             {"symbol"},
+             {"side"},
+             {"proposed", Align::right},
+             {"est. price", Align::right},
+             {"traded since", Align::right},
+             {"avg. price", Align::right},
+             {"status"}});
+    for (const auto* l : lines)
+      t.add_row({l->account, l->symbol, l->side, l->proposed.is_zero() ? "" : l->proposed.str(),
+                 l->est_price.is_zero() ? "" : l->est_price.str(), l->traded.str(),
+                 l->avg_price ? l->avg_price->str() : "", l->status});
+    return t.render(style);
+  };
+  if (r.lines.empty()) {
+    s += "\nThe proposal had no orders and nothing was traded since.\n";
+  } else if (!plan) {
+    std::vector<const rules::ReviewLine*> all;
+    for (const auto& l : r.lines) all.push_back(&l);
+    s += "\n" + table(all);
+  } else {
+    // Each part's orders under its name, in the order the parts first appear;
+    // trades that were not proposed last.
+    std::vector<std::string> parts;
+    for (const auto& l : r.lines)
+      if (std::find(parts.begin(), parts.end(), l.part) == parts.end()) parts.push_back(l.part);
+    std::stable_partition(parts.begin(), parts.end(), [](const auto& n) { return !n.empty(); });
+    for (const auto& part : parts) {
+      std::vector<const rules::ReviewLine*> lines;
+      for (const auto& l : r.lines)
+        if (l.part == part) lines.push_back(&l);
+      s +=
+          part.empty() ? "\nTraded, not proposed\n" : fmt::format("\nPart '{}'\n", printable(part));
+      s += table(lines);
+    }
+  }
+  s += fmt::format(
+      "\nThe proposal was the output of your own {}, not advice; past results do not predict "
+      "future ones.\n",
+      plan ? "plan" : "rule");
   return s;
 }
 

@@ -29,7 +29,9 @@ std::string proposal_json(const rules::Proposal& p, std::optional<std::int64_t> 
 // orders, then each pool's netted orders and result, the unmanaged holdings,
 // the planned cash (never booked), the notes and the cautions.
 std::string plan_proposal_text(const rules::PlanProposal& p, const Style& style);
-std::string plan_proposal_json(const rules::PlanProposal& p);
+// `saved_id`: the proposal's number when --save kept it.
+std::string plan_proposal_json(const rules::PlanProposal& p,
+                               std::optional<std::int64_t> saved_id = std::nullopt);
 
 std::string proposals_list_text(const std::vector<store::ProposalRow>& all, const Style& style);
 std::string proposals_list_json(const std::vector<store::ProposalRow>& all);

@@ -36,17 +36,23 @@
 //   buys that fit each account's cash above its reserve after estimated fees; quantities are
 //   rounded down to the security's lot size (or 10^-4 units when fractional).
 //   Never sells more than held nor spends more cash than an account has.
+//   A plan's preferences (HouseholdPrefs, see rules/order_steps.h) may steer
+//   which account buys and sells, cap the estimated realized gain in taxable
+//   accounts, and raise the cash an account must give by selling in it.
 //   Money is exact (Decimal); doubles appear only in the z statistics.
 #pragma once
 
 #include <cstdint>
+#include <map>
 #include <optional>
+#include <set>
 #include <string>
 #include <unordered_map>
 #include <vector>
 
 #include "core/date.h"
 #include "core/decimal.h"
+#include "model/records.h"
 #include "rules/rule.h"
 
 namespace keel::rules {
@@ -173,6 +179,7 @@ struct HoldingState {
 struct AccountState {
   std::int64_t id = 0;
   std::string name;
+  TaxStatus tax = TaxStatus::taxable;  // on the as-of day
   Decimal cash;
   std::unordered_map<std::int64_t, HoldingState> holdings;  // by security id
 };
@@ -247,10 +254,26 @@ struct OrderPlan {
   std::vector<Skipped> skipped;
 };
 
+// What a household plan adds to the orders (plan keys, docs/plan.md). The
+// defaults change nothing.
+struct HouseholdPrefs {
+  // Securities whose buys go to tax-deferred accounts first (part.place).
+  std::set<std::int64_t> place_deferred;
+  // Sells taken from accounts that are not taxable before taxable ones (tax.sell_from).
+  bool sell_deferred_first = false;
+  // The most net estimated gain (before fees) the sells may realize in
+  // taxable accounts; losses taken first make room (tax.gain_cap).
+  std::optional<Decimal> gain_cap;
+  // Cash an account must give (a planned withdrawal): when its cash is
+  // below zero, sells in it raise the shortfall, in the order the keys prefer.
+  std::map<std::int64_t, Decimal> must_give;  // account id -> amount
+  bool tax_keys() const { return !place_deferred.empty() || sell_deferred_first || gain_cap; }
+};
+
 // Explain::none leaves the orders' reasons and the skips' words empty.
 OrderPlan orders(const Portfolio& portfolio, const std::vector<Target>& targets,
                  const Quotes& quotes, const TradingRule& trading, Date as_of,
-                 Explain explain = Explain::all);
+                 Explain explain = Explain::all, const HouseholdPrefs& prefs = {});
 
 // Applies orders to a portfolio at their estimated prices and fees (for a
 // back-test, or to check a plan): quantities and cash move; lots are not kept.

@@ -20,6 +20,14 @@
 //     proportion to what each needs (fees included), then what rounding left
 //     filled largest gap first, never past a target; accounts holding the
 //     name first, then by cash to spend.
+//     With HouseholdPrefs: accounts that are not taxable first
+//     (sell_deferred_first), and in taxable accounts no more net estimated
+//     gain than the cap leaves (the units it keeps are listed as kept).
+//  4b. raise_cash(): an account that must give more cash than it holds after
+//     the sells sells more of its own lots: losses first, then long-term,
+//     then short-term gains, the most overweight name first, within the cap.
+//  5. buy_orders(): (as below) names placed in tax-deferred accounts are
+//     bought first, there first.
 //  6. summarize(): fees, turnover, cash after and weights after the orders.
 // Money is exact (Decimal) throughout; nothing is rounded but where a trade
 // or a reserve must be.
@@ -72,8 +80,24 @@ Decision decide(const Work& work, const TradingRule& trading, Date as_of,
 // when the rule trades fractions.
 Decimal step_of(const Quote& quote, const TradingRule& trading);
 
+// The tax side of one plan's sells: the preferences, the net estimated gain
+// realized in taxable accounts so far, and what the gain cap kept.
+struct SellTax {
+  const HouseholdPrefs* prefs = nullptr;
+  Decimal gain_used;
+  std::vector<Skipped> kept;
+};
+
 std::vector<Order> sell_orders(const Work& work, const Decimal& units, const std::string& reason,
-                               const Portfolio& portfolio, const TradingRule& trading, Date as_of);
+                               const Portfolio& portfolio, const TradingRule& trading, Date as_of,
+                               SellTax* tax = nullptr);
+
+// Sells in account `a` (adding to `orders`, one order per account and
+// security) until its cash `cash[a]` is at least zero, or nothing more can
+// be sold; returns whether it got there.
+bool raise_cash(std::size_t a, const std::vector<Work>& work, const Portfolio& portfolio,
+                const TradingRule& trading, Date as_of, std::vector<Order>& orders,
+                std::vector<Decimal>& cash, SellTax& tax, Explain explain);
 
 struct BuyWish {
   const Work* work = nullptr;
@@ -88,7 +112,8 @@ struct Buys {
 };
 Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
                 std::vector<Decimal>& cash, const std::vector<Decimal>& reserve,
-                const TradingRule& trading, Explain explain = Explain::all);
+                const TradingRule& trading, Explain explain = Explain::all,
+                const HouseholdPrefs& prefs = {});
 
 void summarize(OrderPlan& plan, const Portfolio& portfolio, const std::vector<Work>& work,
                const PoolValue& pool);

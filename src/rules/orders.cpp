@@ -83,6 +83,32 @@ Order make_order(const Work& x, const Portfolio& portfolio, std::size_t account,
   return o;
 }
 
+bool taxable(const AccountState& a) {
+  return a.tax == TaxStatus::taxable;
+}
+
+// The units of a lot, in whole steps and at most `units`, whose estimated
+// gain at `price` keeps the net gain within `room`.
+Decimal within_gain(const LotState& lot, const Decimal& units, const Decimal& price,
+                    const Decimal& step, const Decimal& room) {
+  auto gain = [&](const Decimal& q) { return q * price - cost_share(lot.cost, q, lot.quantity); };
+  if (gain(units) <= room) return units;
+  if (!room.is_positive()) return Decimal();
+  // The lot gains per unit (about price - unit cost): start near the answer, step down.
+  const Decimal per_unit = price - Decimal::divide(lot.cost, lot.quantity, 10);
+  Decimal q = std::min(units, floor_to(Decimal::divide(room, per_unit, 10), step));
+  while (q.is_positive() && gain(q) > room) q -= step;
+  return q;
+}
+
+std::string tax_words(const AccountState& a) {
+  return fmt::format("sold in {}: no tax event", a.name);
+}
+
+std::string cap_words(const AccountState& a, const Decimal& cap) {
+  return fmt::format("kept in {}: the gain cap of {} is reached", a.name, cap.fixed(2));
+}
+
 }  // namespace
 
 Decimal step_of(const Quote& quote, const TradingRule& trading) {
@@ -208,7 +234,9 @@ Decision decide(const Work& x, const TradingRule& trading, Date as_of, Explain e
 }
 
 std::vector<Order> sell_orders(const Work& x, const Decimal& units, const std::string& reason,
-                               const Portfolio& portfolio, const TradingRule& trading, Date as_of) {
+                               const Portfolio& portfolio, const TradingRule& trading, Date as_of,
+                               SellTax* tax) {
+  const HouseholdPrefs* prefs = tax ? tax->prefs : nullptr;
   // Lots across the pool's accounts, in the rule's order of preference.
   struct Pick {
     std::size_t account;
@@ -229,7 +257,15 @@ std::vector<Order> sell_orders(const Work& x, const Decimal& units, const std::s
     if (p.lot.cost > p.lot.quantity * price) return 0;  // at a loss
     return ledger::held_long_term(p.lot.acquired, as_of) ? 1 : 2;
   };
+  // Accounts that must give cash they lack sell first, then (with the key)
+  // accounts that are not taxable.
+  auto account_rank = [&](const Pick& p) {
+    const auto& acct = portfolio.accounts[p.account];
+    if (prefs && acct.cash.is_negative() && prefs->must_give.count(acct.id)) return 0;
+    return prefs && prefs->sell_deferred_first && taxable(acct) ? 2 : 1;
+  };
   std::stable_sort(picks.begin(), picks.end(), [&](const Pick& a, const Pick& b) {
+    if (account_rank(a) != account_rank(b)) return account_rank(a) < account_rank(b);
     if (a.real != b.real) return a.real;  // lots without detail go last
     if (!a.real) return false;
     if (trading.lot_order == LotOrder::long_held) {
@@ -240,11 +276,21 @@ std::vector<Order> sell_orders(const Work& x, const Decimal& units, const std::s
     if (dearer(a.lot, b.lot) != dearer(b.lot, a.lot)) return dearer(a.lot, b.lot);
     return a.lot.acquired < b.lot.acquired;
   });
+  const Decimal step = step_of(*x.quote, trading);
   std::map<std::size_t, Order> by_account;
+  std::map<std::size_t, Decimal> kept;  // units the gain cap kept, by account
   Decimal remaining = units;
   for (const auto& p : picks) {
     if (!remaining.is_positive()) break;
-    const Decimal take = std::min(remaining, p.lot.quantity);
+    Decimal take = std::min(remaining, p.lot.quantity);
+    const bool capped =
+        prefs && prefs->gain_cap && p.real && taxable(portfolio.accounts[p.account]);
+    if (capped) {
+      const Decimal fits = within_gain(p.lot, take, price, step, *prefs->gain_cap - tax->gain_used);
+      if (fits < take) kept[p.account] += take - fits;
+      take = fits;
+      if (!take.is_positive()) continue;
+    }
     remaining -= take;
     auto [it, fresh] = by_account.try_emplace(p.account);
     if (fresh)
@@ -256,21 +302,129 @@ std::vector<Order> sell_orders(const Work& x, const Decimal& units, const std::s
       it->second.lots.push_back(LotTake{p.lot.lot_id, p.lot.acquired, take, cost,
                                         take * price - cost,
                                         ledger::held_long_term(p.lot.acquired, as_of)});
+      if (tax && taxable(portfolio.accounts[p.account])) tax->gain_used += take * price - cost;
     }
   }
   std::vector<Order> out;
   for (auto& [a, o] : by_account) {
     o.value = o.quantity * o.price;
     o.fee = trading.fee(o.value);
+    const auto& acct = portfolio.accounts[a];
+    if (prefs && prefs->tax_keys() && !reason.empty()) {
+      if (!taxable(acct))
+        o.reason += "; " + tax_words(acct);
+      else if (const auto k = kept.find(a); k != kept.end())
+        o.reason += fmt::format("; {} {}", k->second.str(), cap_words(acct, *prefs->gain_cap));
+    }
     out.push_back(std::move(o));
   }
+  if (tax && !reason.empty())
+    for (const auto& [a, q] : kept)
+      if (!by_account.count(a))
+        tax->kept.push_back(
+            {x.quote->symbol, fmt::format("{} units {}", q.str(),
+                                          cap_words(portfolio.accounts[a], *prefs->gain_cap))});
   return out;
+}
+
+bool raise_cash(std::size_t a, const std::vector<Work>& work, const Portfolio& portfolio,
+                const TradingRule& trading, Date as_of, std::vector<Order>& orders,
+                std::vector<Decimal>& cash, SellTax& tax, Explain explain) {
+  const auto& acct = portfolio.accounts[a];
+  const HouseholdPrefs* prefs = tax.prefs;
+  // Lots of the account not already sold, with the overweight of their name.
+  struct Pick {
+    const Work* work;
+    LotState lot;
+    Decimal overweight;
+  };
+  std::vector<Pick> picks;
+  for (const auto& x : work) {
+    const auto it = acct.holdings.find(x.security_id);
+    if (it == acct.holdings.end() || !x.quote->tradable) continue;
+    std::map<std::int64_t, Decimal> sold;
+    for (const auto& o : orders)
+      if (o.account_id == acct.id && o.security_id == x.security_id)
+        for (const auto& l : o.lots) sold[l.lot_id] += l.quantity;
+    for (auto lot : it->second.lots) {
+      const Decimal left = lot.quantity - sold[lot.lot_id];
+      if (!left.is_positive()) continue;
+      lot.cost = lot.cost - cost_share(lot.cost, sold[lot.lot_id], lot.quantity);
+      lot.quantity = left;
+      picks.push_back({&x, lot, x.w_now - x.w_target});
+    }
+  }
+  auto rank = [&](const Pick& p) {
+    if (p.lot.cost > p.lot.quantity * p.work->quote->price) return 0;  // at a loss
+    return ledger::held_long_term(p.lot.acquired, as_of) ? 1 : 2;
+  };
+  std::stable_sort(picks.begin(), picks.end(), [&](const Pick& l, const Pick& r) {
+    if (rank(l) != rank(r)) return rank(l) < rank(r);
+    if (l.overweight != r.overweight) return l.overweight > r.overweight;
+    return l.lot.acquired < r.lot.acquired;
+  });
+  const bool words = explain == Explain::all;
+  const Decimal short_by = -cash[a];
+  for (const auto& p : picks) {
+    if (!cash[a].is_negative()) break;
+    const Work& x = *p.work;
+    const Decimal price = x.quote->price;
+    const Decimal step = step_of(*x.quote, trading);
+    auto it = std::find_if(orders.begin(), orders.end(), [&](const Order& o) {
+      return o.account_id == acct.id && o.security_id == x.security_id && o.side == Side::sell;
+    });
+    const Decimal have = it == orders.end() ? Decimal() : it->quantity;
+    auto net = [&](const Decimal& q) {  // cash the order brings, after its fee
+      const Decimal v = (have + q) * price;
+      return v - trading.fee(v);
+    };
+    const Decimal before = have.is_positive() ? net(Decimal()) : Decimal();
+    // The fewest whole steps that cover the shortfall, at most the lot.
+    Decimal q =
+        std::min(p.lot.quantity, floor_to(Decimal::divide(-cash[a], price, 10), step) + step);
+    while (q > step && net(q - step) - before >= -cash[a]) q -= step;
+    while (q + step <= p.lot.quantity && net(q) - before < -cash[a]) q += step;
+    const bool capped = prefs->gain_cap && taxable(acct);
+    if (capped) {
+      const Decimal fits = within_gain(p.lot, q, price, step, *prefs->gain_cap - tax.gain_used);
+      if (fits < q && words)
+        tax.kept.push_back({x.quote->symbol, fmt::format("{} units {}", (q - fits).str(),
+                                                         cap_words(acct, *prefs->gain_cap))});
+      q = fits;
+    }
+    if (!q.is_positive() || net(q) - before <= Decimal()) continue;
+    if (it == orders.end()) {
+      std::string reason;
+      if (words) {
+        reason = fmt::format("{}: sold to raise the cash {} must give ({} short)", x.why, acct.name,
+                             short_by.fixed(2));
+        if (prefs->tax_keys() && !taxable(acct)) reason += "; " + tax_words(acct);
+      }
+      orders.push_back(make_order(x, portfolio, a, Side::sell, Decimal(), reason, trading));
+      it = std::prev(orders.end());
+    } else if (words) {
+      it->reason += fmt::format("; {} more to raise the cash {} must give", q.str(), acct.name);
+    }
+    const Decimal cost = cost_share(p.lot.cost, q, p.lot.quantity);
+    it->lots.push_back(LotTake{p.lot.lot_id, p.lot.acquired, q, cost, q * price - cost,
+                               ledger::held_long_term(p.lot.acquired, as_of)});
+    if (taxable(acct)) tax.gain_used += q * price - cost;
+    cash[a] += net(q) - before;
+    it->quantity = have + q;
+    it->value = it->quantity * price;
+    it->fee = trading.fee(it->value);
+  }
+  return !cash[a].is_negative();
 }
 
 Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
                 std::vector<Decimal>& cash, const std::vector<Decimal>& reserve,
-                const TradingRule& trading, Explain explain) {
+                const TradingRule& trading, Explain explain, const HouseholdPrefs& prefs) {
   const bool words = explain == Explain::all;
+  auto placed = [&](std::int64_t id) { return prefs.place_deferred.count(id) > 0; };
+  auto deferred = [&](std::size_t a) {
+    return portfolio.accounts[a].tax == TaxStatus::tax_deferred;
+  };
   struct Buy {
     const BuyWish* wish = nullptr;
     std::string why_none = "no cash left above the reserve";
@@ -307,7 +461,9 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
   auto account_order = [&](std::int64_t id) {
     std::vector<std::size_t> order;
     for (std::size_t a = 0; a < n_accounts; ++a) order.push_back(a);
+    const bool place = placed(id);
     std::stable_sort(order.begin(), order.end(), [&](std::size_t a, std::size_t c) {
+      if (place && deferred(a) != deferred(c)) return deferred(a);
       const Decimal ha = held_in(portfolio, a, id), hc = held_in(portfolio, c, id);
       if (ha != hc) return ha > hc;
       return spendable[a] > spendable[c];
@@ -362,7 +518,13 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
     cash[a] -= spent;
     return spent;
   };
-  for (auto& b : buys) {
+  // Names placed in tax-deferred accounts buy first, so the cash there is theirs.
+  std::vector<Buy*> turn;
+  for (auto& b : buys) turn.push_back(&b);
+  std::stable_partition(turn.begin(), turn.end(),
+                        [&](const Buy* b) { return placed(b->wish->work->security_id); });
+  for (Buy* bp : turn) {
+    Buy& b = *bp;
     Decimal budget = b.wish->want * factor;
     for (std::size_t a : account_order(b.wish->work->security_id)) {
       if (!budget.is_positive()) break;
@@ -372,8 +534,12 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
   // The fill: the gap to target in value, largest first.
   std::vector<std::pair<Decimal, Buy*>> by_gap;
   for (auto& b : buys) by_gap.emplace_back(b.wish->want - b.bought(), &b);
-  std::stable_sort(by_gap.begin(), by_gap.end(),
-                   [](const auto& a, const auto& b) { return a.first > b.first; });
+  std::stable_sort(by_gap.begin(), by_gap.end(), [&](const auto& a, const auto& b) {
+    const bool pa = placed(a.second->wish->work->security_id);
+    const bool pb = placed(b.second->wish->work->security_id);
+    if (pa != pb) return pa;
+    return a.first > b.first;
+  });
   for (auto& [gap0, b] : by_gap) {
     const Work& x = *b->wish->work;
     const Decimal step = step_of(*x.quote, trading);
@@ -389,7 +555,13 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
   Buys out;
   for (auto& b : buys) {
     if (b.by_account.empty()) out.skipped.push_back({b.wish->work->quote->symbol, b.why_none});
-    for (auto& [a, o] : b.by_account) out.orders.push_back(std::move(o));
+    for (auto& [a, o] : b.by_account) {
+      if (words && placed(o.security_id))
+        o.reason += deferred(a)
+                        ? fmt::format("; placed in {}: tax-deferred first", o.account)
+                        : fmt::format("; placed in {}: no tax-deferred cash left", o.account);
+      out.orders.push_back(std::move(o));
+    }
   }
   return out;
 }
@@ -437,7 +609,8 @@ struct Draft {
 // each account a (the fees the plan itself is expected to cost).
 Draft plan_once(const Portfolio& portfolio, const std::vector<Target>& targets,
                 const Quotes& quotes, const TradingRule& trading, Date as_of,
-                const std::vector<Decimal>& fee_guess, Explain explain) {
+                const std::vector<Decimal>& fee_guess, Explain explain,
+                const HouseholdPrefs& prefs) {
   Draft draft;
   OrderPlan& plan = draft.plan;
   steps::PoolValue& pool = draft.pool;
@@ -449,6 +622,7 @@ Draft plan_once(const Portfolio& portfolio, const std::vector<Target>& targets,
   draft.work = steps::work_list(portfolio, targets, quotes, pool);
   const auto& work = draft.work;
   std::vector<steps::BuyWish> wishes;
+  steps::SellTax tax{&prefs, Decimal(), {}};
   for (const auto& x : work) {
     auto d = steps::decide(x, trading, as_of, explain);
     switch (d.kind) {
@@ -461,7 +635,8 @@ Draft plan_once(const Portfolio& portfolio, const std::vector<Target>& targets,
         wishes.push_back({&x, d.buy_value, std::move(d.reason)});
         break;
       case steps::Decision::Kind::sell:
-        for (auto& o : steps::sell_orders(x, d.sell_units, d.reason, portfolio, trading, as_of)) {
+        for (auto& o :
+             steps::sell_orders(x, d.sell_units, d.reason, portfolio, trading, as_of, &tax)) {
           for (std::size_t a = 0; a < portfolio.accounts.size(); ++a)
             if (portfolio.accounts[a].id == o.account_id) pool.cash[a] += o.value - o.fee;
           plan.orders.push_back(std::move(o));
@@ -469,7 +644,12 @@ Draft plan_once(const Portfolio& portfolio, const std::vector<Target>& targets,
         break;
     }
   }
-  auto buys = steps::buy_orders(wishes, portfolio, pool.cash, pool.reserve, trading, explain);
+  for (std::size_t a = 0; a < portfolio.accounts.size(); ++a)
+    if (pool.cash[a].is_negative() && prefs.must_give.count(portfolio.accounts[a].id))
+      steps::raise_cash(a, work, portfolio, trading, as_of, plan.orders, pool.cash, tax, explain);
+  for (auto& k : tax.kept) plan.skipped.push_back(std::move(k));
+  auto buys =
+      steps::buy_orders(wishes, portfolio, pool.cash, pool.reserve, trading, explain, prefs);
   for (auto& o : buys.orders) plan.orders.push_back(std::move(o));
   for (auto& s : buys.skipped) plan.skipped.push_back(std::move(s));
   draft.summarize = true;
@@ -479,13 +659,14 @@ Draft plan_once(const Portfolio& portfolio, const std::vector<Target>& targets,
 }  // namespace
 
 OrderPlan orders(const Portfolio& portfolio, const std::vector<Target>& targets,
-                 const Quotes& quotes, const TradingRule& trading, Date as_of, Explain explain) {
+                 const Quotes& quotes, const TradingRule& trading, Date as_of, Explain explain,
+                 const HouseholdPrefs& prefs) {
   // Targets are set on the pool as it will stand after this plan's own fees,
   // so that posting the orders and proposing again finds nothing to do. The
   // fees depend on the orders, so iterate to a fixed point (a few rounds;
   // the last plan is used if it has not settled).
   std::vector<Decimal> guess(portfolio.accounts.size());
-  Draft draft = plan_once(portfolio, targets, quotes, trading, as_of, guess, explain);
+  Draft draft = plan_once(portfolio, targets, quotes, trading, as_of, guess, explain, prefs);
   for (int round = 0; round < 8; ++round) {
     std::vector<Decimal> fees(portfolio.accounts.size());
     for (const auto& o : draft.plan.orders)
@@ -493,7 +674,7 @@ OrderPlan orders(const Portfolio& portfolio, const std::vector<Target>& targets,
         if (portfolio.accounts[a].id == o.account_id) fees[a] += o.fee;
     if (fees == guess) break;
     guess = std::move(fees);
-    draft = plan_once(portfolio, targets, quotes, trading, as_of, guess, explain);
+    draft = plan_once(portfolio, targets, quotes, trading, as_of, guess, explain, prefs);
   }
   if (draft.summarize) steps::summarize(draft.plan, portfolio, draft.work, draft.pool);
   return std::move(draft.plan);

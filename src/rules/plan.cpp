@@ -1,6 +1,7 @@
 #include "rules/plan.h"
 
 #include <fmt/format.h>
+#include <fmt/ranges.h>
 #include <toml++/toml.h>
 
 #include <algorithm>
@@ -75,16 +76,39 @@ class PlanReader {
     return out;
   }
 
+  // One of `choices`, as a string.
+  std::string choice(const toml::node& n, std::string_view full,
+                     const std::vector<std::string>& choices) const {
+    const auto s = n.value<std::string>();
+    if (!s || n.type() != toml::node_type::string ||
+        std::find(choices.begin(), choices.end(), *s) == choices.end())
+      fail(n, full, fmt::format("must be \"{}\"", fmt::join(choices, "\" or \"")));
+    return *s;
+  }
+
+  // A number exactly as written (TOML integer or float); `what` names the kind.
+  Decimal number(const toml::node& n, std::string_view full, std::string_view what) const {
+    if (n.is_integer()) return Decimal(*n.value<std::int64_t>());
+    if (n.is_floating_point() && std::isfinite(*n.value<double>())) {
+      const auto text = fmt::format("{}", *n.value<double>());  // shortest text that reads back
+      if (const auto v = Decimal::try_parse(text)) return *v;
+      fail(n, full, fmt::format("{} is out of range for an exact decimal", text));
+    }
+    fail(n, full, fmt::format("must be {}", what));
+  }
+
+  // An amount of money: zero or more, at most two decimals.
+  Decimal money(const toml::node& n, std::string_view full) const {
+    const Decimal v = number(n, full, "an amount (a number)");
+    if (v.is_negative())
+      fail(n, full, fmt::format("{} is below zero; a cap of 0 allows no net gain at all", v.str()));
+    if (v.rounded(2) != v) fail(n, full, fmt::format("{} has more than two decimals", v.str()));
+    return v;
+  }
+
   // A percentage above 0 and at most 100, exactly as written.
   Decimal percent(const toml::node& n, std::string_view full) const {
-    Decimal v;
-    if (n.is_integer()) {
-      v = Decimal(*n.value<std::int64_t>());
-    } else if (n.is_floating_point() && std::isfinite(*n.value<double>())) {
-      v = Decimal::parse(fmt::format("{}", *n.value<double>()));  // shortest text that reads back
-    } else {
-      fail(n, full, "must be a number (percent)");
-    }
+    const Decimal v = number(n, full, "a number (percent)");
     if (!v.is_positive() || v > Decimal(100))
       fail(n, full, fmt::format("{} is out of range; must be above 0 and at most 100", v.str()));
     return v;
@@ -114,6 +138,7 @@ Plan parse_plan(std::string_view toml_text, std::string source,
                 const std::filesystem::path& folder) {
   Plan plan;
   plan.source = std::move(source);
+  plan.text = std::string(toml_text);
   toml::table root;
   try {
     root = toml::parse(toml_text, plan.source);
@@ -123,9 +148,19 @@ Plan parse_plan(std::string_view toml_text, std::string source,
                                  printable(e.description())));
   }
   const PlanReader r(plan);
-  r.only(root, "", {"name", "pools", "part"});
+  r.only(root, "", {"name", "tax", "pools", "part"});
   plan.name = std::filesystem::path(plan.source).stem().string();
   if (auto s = r.text(root, "name", "name")) plan.name = *s;
+
+  if (const auto* n = root.get("tax")) {
+    const auto* t = n->as_table();
+    if (!t) r.fail(*n, "tax", "must be a table ([tax])");
+    r.only(*t, "tax", {"sell_from", "gain_cap"});
+    if (const auto* v = t->get("sell_from"))
+      plan.tax.sell_deferred_first =
+          r.choice(*v, "tax.sell_from", {"any", "tax-deferred-first"}) == "tax-deferred-first";
+    if (const auto* v = t->get("gain_cap")) plan.tax.gain_cap = r.money(*v, "tax.gain_cap");
+  }
 
   std::map<std::string, std::size_t> pool_index;
   std::map<std::string, std::string> account_pool;  // account -> pool or part that holds it
@@ -180,7 +215,7 @@ Plan parse_plan(std::string_view toml_text, std::string source,
   std::map<std::size_t, const toml::node*> last_share;
   for (const auto& item : *arr) {
     const auto& t = *item.as_table();
-    r.only(t, "part", {"name", "rule", "fixed", "pool", "share_pct", "accounts"});
+    r.only(t, "part", {"name", "rule", "fixed", "pool", "share_pct", "accounts", "place"});
     PlanPart part;
     part.at = place(item);
     const auto rule_path = r.text(t, "rule", "part.rule");
@@ -209,6 +244,9 @@ Plan parse_plan(std::string_view toml_text, std::string source,
       if (total != Decimal(100))
         r.fail(*fixed, "part.fixed", fmt::format("the weights sum to {}%, not 100%", total.str()));
     }
+    if (const auto* v = t.get("place"))
+      part.place_deferred =
+          r.choice(*v, "part.place", {"any", "tax-deferred-first"}) == "tax-deferred-first";
     if (auto s = r.text(t, "name", "part.name"))
       part.name = *s;
     else if (!rule_path)

@@ -14,6 +14,9 @@
 //  - The shares of one pool sum to exactly 100 %; an account belongs to one
 //    pool only; part and pool names are unique.
 //  - Shares and weights are kept as fractions of one (70 % -> 0.7).
+//  - The tax keys ([tax] sell_from and gain_cap, part.place) default to
+//    changing nothing; a gain cap below zero or with more than two decimals
+//    is refused.
 #pragma once
 
 #include <cstdint>
@@ -34,12 +37,13 @@ struct PlanPlace {
 
 struct PlanPart {
   std::string name;
-  std::optional<Rule> rule;   // a rule file's part
-  std::vector<Sleeve> fixed;  // a fixed part: weights are fractions of the part
-  std::size_t pool = 0;       // index into Plan::pools
-  Decimal share{1};           // fraction of the pool's managed value
-  PlanPlace at;               // the part's table, for messages about it
-  PlanPlace fixed_at;         // its `fixed` table
+  std::optional<Rule> rule;     // a rule file's part
+  std::vector<Sleeve> fixed;    // a fixed part: weights are fractions of the part
+  std::size_t pool = 0;         // index into Plan::pools
+  Decimal share{1};             // fraction of the pool's managed value
+  bool place_deferred = false;  // place = "tax-deferred-first"
+  PlanPlace at;                 // the part's table, for messages about it
+  PlanPlace fixed_at;           // its `fixed` table
 };
 
 struct PlanPool {
@@ -52,9 +56,16 @@ struct PlanPool {
   bool from_rule = false;  // its part's rule file's scope.accounts
 };
 
+struct PlanTax {
+  bool sell_deferred_first = false;  // sell_from = "tax-deferred-first"
+  std::optional<Decimal> gain_cap;   // in the accounts' currency
+};
+
 struct Plan {
   std::string source;  // file name, for messages
+  std::string text;    // the file exactly as read
   std::string name;
+  PlanTax tax;
   std::vector<PlanPool> pools;
   std::vector<PlanPart> parts;
   // InputError "FILE:LINE:COLUMN: key 'KEY': WHY".

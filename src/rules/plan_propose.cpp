@@ -9,12 +9,16 @@
 
 #include "core/error.h"
 #include "core/text.h"
+#include "io/sha256.h"
 #include "ledger/fx_cash.h"
 #include "ledger/posting.h"
+#include "ledger/tax.h"
 #include "market/day_view.h"
 #include "rules/inputs.h"
 #include "rules/propose.h"
 #include "rules/track_record.h"
+#include "store/ledger_store.h"
+#include "store/proposals.h"
 
 namespace keel::rules {
 namespace {
@@ -33,22 +37,30 @@ std::string pct_text(const Decimal& fraction) {
 }  // namespace
 
 PlannedCash parse_planned_cash(std::string_view option, std::string_view text) {
+  static constexpr std::string_view form = "ACCOUNT=AMOUNT, e.g. Savings=1500.00";
   PlannedCash out;
   out.option = std::string(option);
-  const auto colon = text.find(':');
-  const auto amount = text.substr(0, colon);
-  if (colon != std::string_view::npos) {
-    out.account = std::string(text.substr(colon + 1));
+  // Split at the last '=': an amount never holds one, an account name may.
+  const auto eq = text.rfind('=');
+  std::string_view amount = text;
+  if (eq != std::string_view::npos) {
+    out.account = std::string(text.substr(0, eq));
+    amount = text.substr(eq + 1);
     if (out.account.empty())
-      throw InputError(fmt::format("{}: '{}' names no account after ':' (AMOUNT[:ACCOUNT])", option,
-                                   printable(text)));
+      throw InputError(
+          fmt::format("{}: '{}' names no account before '=' ({})", option, printable(text), form));
+  } else if (const auto colon = text.find(':');
+             colon != std::string_view::npos && Decimal::try_parse(text.substr(0, colon))) {
+    // The spelling AMOUNT:ACCOUNT is refused with the one to use instead.
+    throw InputError(fmt::format("{}: '{}' is not ACCOUNT=AMOUNT; write '{}={}'", option,
+                                 printable(text), printable(text.substr(colon + 1)),
+                                 printable(text.substr(0, colon))));
   }
   const auto v = Decimal::try_parse(amount);
   if (!v || !v->is_positive() || v->rounded(2) != *v)
     throw InputError(
-        fmt::format("{}: '{}' is not an amount above zero with at most two decimals "
-                    "(AMOUNT[:ACCOUNT], e.g. 1500.00:Savings)",
-                    option, printable(amount)));
+        fmt::format("{}: '{}' is not an amount above zero with at most two decimals ({})", option,
+                    printable(amount), form));
   out.amount = option == "--withdraw" ? -*v : *v;
   return out;
 }
@@ -85,18 +97,27 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
       if (all.size() != 1)
         throw InputError(
             fmt::format("{}: the plan has {} accounts; name the one the cash goes to or comes from "
-                        "(AMOUNT:ACCOUNT; accounts: {})",
+                        "(ACCOUNT=AMOUNT; accounts: {})",
                         c.option, all.size(), printable_list(names)));
       c.account = all.front().name;
     } else if (std::find(names.begin(), names.end(), c.account) == names.end()) {
-      throw InputError(fmt::format("{}: '{}' is not an account of the plan (accounts: {})",
-                                   c.option, printable(c.account), printable_list(names)));
+      const auto near = nearest(c.account, names);
+      throw InputError(fmt::format("{}: '{}' is not an account of the plan ({})", c.option,
+                                   printable(c.account),
+                                   near ? fmt::format("did you mean '{}'?", printable(*near))
+                                        : "accounts: " + printable_list(names)));
     }
   }
   p.planned = planned;
 
   Replayer replayer(log);
   const Book& book = replayer.advance_to(as_of);
+  p.last_txn_id = store::last_transaction_id(db);
+  const auto statuses = ledger::TaxStatuses::load(db);
+  const bool tax_keys = plan.tax.sell_deferred_first || plan.tax.gain_cap ||
+                        std::any_of(plan.parts.begin(), plan.parts.end(),
+                                    [](const PlanPart& part) { return part.place_deferred; });
+  Decimal gain_used;  // net estimated gain of the sells in taxable accounts, across pools
   const Inputs::LastTrade last_trade = [&](std::int64_t id) -> std::optional<Inputs::Trade> {
     if (const auto t = book.last_trade(id)) return Inputs::Trade{t->day, t->price};
     return std::nullopt;
@@ -167,15 +188,18 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
     // The pool on the as-of day, with the planned cash; unmanaged names out.
     std::set<std::int64_t> held;
     Portfolio portfolio = portfolio_of(book, accounts, held);
+    HouseholdPrefs prefs;
+    prefs.sell_deferred_first = plan.tax.sell_deferred_first;
+    if (plan.tax.gain_cap) prefs.gain_cap = std::max(Decimal(), *plan.tax.gain_cap - gain_used);
+    for (auto& a : portfolio.accounts) a.tax = statuses.on(a.id, as_of);
     for (const auto& c : p.planned)
       for (auto& a : portfolio.accounts)
         if (a.name == c.account) {
           a.cash += c.amount;
-          if (a.cash.is_negative())
-            throw InputError(fmt::format(
-                "{}: account '{}' holds {} in cash on {}; it cannot give {}", c.option,
-                printable(a.name), (a.cash - c.amount).str(), as_of.str(), (-c.amount).str()));
+          if (c.amount.is_negative()) prefs.must_give[a.id] -= c.amount;
         }
+    for (const auto& [id, k] : owner)
+      if (plan.parts[parts[k]].place_deferred) prefs.place_deferred.insert(id);
     std::set<std::int64_t> unmanaged;
     for (const std::int64_t id : held)
       if (!owner.count(id)) unmanaged.insert(id);
@@ -235,6 +259,22 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
         targets.push_back(Target{id, quotes.at(id).symbol, Decimal(), false, std::nullopt, true,
                                  "unmanaged: the pool sells names outside its parts"});
 
+    // A withdrawal beyond the cash is raised by selling in the account; more
+    // than the account holds (managed, at a close) cannot be.
+    for (const auto& a : portfolio.accounts) {
+      if (!a.cash.is_negative() || !prefs.must_give.count(a.id)) continue;
+      Decimal holdings;
+      for (const auto& [id, h] : a.holdings)
+        if (quotes.at(id).tradable) holdings += h.quantity * quotes.at(id).price;
+      if ((a.cash + holdings).is_negative()) {
+        const Decimal gives = prefs.must_give.at(a.id);
+        throw InputError(fmt::format(
+            "--withdraw: account '{}' holds {} in cash{} on {}; it cannot give {}",
+            printable(a.name), (a.cash + gives).str(),
+            holdings.is_zero() ? "" : fmt::format(" and {} in holdings to sell", holdings.str()),
+            as_of.str(), gives.str()));
+      }
+    }
     Decimal value;
     for (const auto& a : portfolio.accounts) {
       value += a.cash;
@@ -247,7 +287,24 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
                             "cash first",
                             printable_list(result.accounts), as_of.str(), value.str()));
 
-    result.plan = orders(portfolio, targets, quotes, *trading, as_of);
+    result.plan = orders(portfolio, targets, quotes, *trading, as_of, Explain::all, prefs);
+    for (const auto& c : result.plan.cash_after) {
+      const auto& a = *std::find_if(portfolio.accounts.begin(), portfolio.accounts.end(),
+                                    [&](const AccountState& s) { return s.name == c.account; });
+      if (!c.cash.is_negative() || !prefs.must_give.count(a.id)) continue;
+      throw InputError(fmt::format(
+          "--withdraw: account '{}' cannot give {} on {}: {} (its cash after the orders would be "
+          "{})",
+          printable(a.name), prefs.must_give.at(a.id).str(), as_of.str(),
+          prefs.gain_cap && a.tax == TaxStatus::taxable
+              ? fmt::format("its sells stop at the gain cap of {}", plan.tax.gain_cap->fixed(2))
+              : std::string("nothing more in it can be sold"),
+          c.cash.str()));
+    }
+    for (const auto& o : result.plan.orders)
+      for (const auto& a : portfolio.accounts)
+        if (a.id == o.account_id && a.tax == TaxStatus::taxable)
+          for (const auto& l : o.lots) gain_used += l.est_gain;
     // Each order under the part that manages its name.
     for (auto& o : result.plan.orders) {
       const auto it = owner.find(o.security_id);
@@ -262,7 +319,42 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
     p.pools.push_back(std::move(result));
   }
   p.cautions = proposal_cautions(as_of);
+  if (tax_keys)
+    p.cautions.push_back(
+        "This plan places and sells by each account's recorded tax status: tax treatment depends "
+        "on local rules; check it with your tax authority or a licensed professional.");
   return p;
+}
+
+std::int64_t save_plan(store::Database& db, const Plan& plan, const PlanProposal& p) {
+  store::ProposalRow row;
+  row.kind = "plan";
+  row.as_of = p.as_of;
+  row.rule_name = plan.name;
+  row.rule_file = plan.source;
+  row.rule_text = plan.text;
+  row.rule_sha256 = io::sha256_hex(plan.text);
+  row.last_txn_id = p.last_txn_id;
+  for (const auto& pool : p.pools) {
+    row.pool_value += pool.plan.pool_value;
+    for (const auto& name : pool.accounts)
+      row.account_ids.push_back(store::find_account(db, name)->id);
+  }
+  // Each order under the part that manages its name (the reason begins with it).
+  std::map<std::pair<std::int64_t, std::int64_t>, std::string> part_of;  // account, security
+  for (const auto& part : p.parts)
+    for (const auto& o : part.orders) part_of[{o.account_id, o.security_id}] = part.name;
+  for (const auto& pool : p.pools)
+    for (const auto& o : pool.plan.orders) {
+      auto r = proposal_order_row(o);
+      const auto it = part_of.find({o.account_id, o.security_id});
+      r.part = it == part_of.end() ? "unmanaged" : it->second;
+      row.orders.push_back(std::move(r));
+    }
+  store::WriteTransaction tx(db);
+  const std::int64_t id = store::save_proposal(db, row);
+  tx.commit();
+  return id;
 }
 
 }  // namespace keel::rules

@@ -17,7 +17,8 @@
 //    different trading settings is refused at its `trading` key.
 //  - Planned cash (a deposit > 0, a withdrawal < 0) moves an account's cash
 //    before the orders and is never booked; an account outside the plan, or
-//    a withdrawal larger than the cash, is an InputError naming the option.
+//    a withdrawal larger than the cash, is an InputError naming the option
+//    (and the plan's nearest account for a near miss).
 //  - Orders carry the part's name before their reason. The as-of day, notes
 //    and cautions are those of rules::propose(). Reads the ledger; writes
 //    nothing.
@@ -66,6 +67,7 @@ struct PoolResult {
 
 struct PlanProposal {
   Date as_of;
+  std::int64_t last_txn_id = 0;  // the ledger's highest transaction id when proposed
   std::string plan_name;
   std::vector<PoolResult> pools;
   std::vector<PartResult> parts;  // in the plan's order
@@ -79,7 +81,14 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan,
                           std::optional<Date> as_of = std::nullopt,
                           std::vector<PlannedCash> planned = {});
 
-// "AMOUNT[:ACCOUNT]" of --deposit or --withdraw; InputError naming `option`.
+// Stores a plan's proposal (the plan's text, its accounts, each order under
+// its part) in one write transaction and returns its id; review() in
+// rules/propose.h sets it against what was traded since.
+std::int64_t save_plan(store::Database& db, const Plan& plan, const PlanProposal& proposal);
+
+// "ACCOUNT=AMOUNT" (or a bare AMOUNT for a plan of one account) of --deposit
+// or --withdraw; InputError naming `option` and showing the form. The amount
+// is above zero with at most two decimals.
 PlannedCash parse_planned_cash(std::string_view option, std::string_view text);
 
 }  // namespace keel::rules

@@ -178,6 +178,22 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
   return p;
 }
 
+store::ProposalOrderRow proposal_order_row(const Order& o) {
+  store::ProposalOrderRow r;
+  r.account_id = o.account_id;
+  r.security_id = o.security_id;
+  r.side = std::string(to_string(o.side));
+  r.quantity = o.quantity;
+  r.price = o.price;
+  r.value = o.value;
+  r.fee = o.fee;
+  r.weight_now = o.weight_now;
+  r.weight_target = o.weight_target;
+  r.reason = o.reason;
+  for (const auto& l : o.lots) r.lots.push_back(LotPick{l.lot_id, l.quantity});
+  return r;
+}
+
 std::int64_t save(store::Database& db, const Rule& rule, const Proposal& p) {
   store::ProposalRow row;
   row.as_of = p.as_of;
@@ -187,21 +203,7 @@ std::int64_t save(store::Database& db, const Rule& rule, const Proposal& p) {
   row.rule_sha256 = p.rule_sha256;
   row.pool_value = p.plan.pool_value;
   row.last_txn_id = p.last_txn_id;
-  for (const auto& o : p.plan.orders) {
-    store::ProposalOrderRow r;
-    r.account_id = o.account_id;
-    r.security_id = o.security_id;
-    r.side = std::string(to_string(o.side));
-    r.quantity = o.quantity;
-    r.price = o.price;
-    r.value = o.value;
-    r.fee = o.fee;
-    r.weight_now = o.weight_now;
-    r.weight_target = o.weight_target;
-    r.reason = o.reason;
-    for (const auto& l : o.lots) r.lots.push_back(LotPick{l.lot_id, l.quantity});
-    row.orders.push_back(std::move(r));
-  }
+  for (const auto& o : p.plan.orders) row.orders.push_back(proposal_order_row(o));
   store::WriteTransaction tx(db);
   const std::int64_t id = store::save_proposal(db, row);
   tx.commit();
@@ -215,15 +217,17 @@ Review review(store::Database& db, std::int64_t proposal_id) {
   Review out;
   out.proposal = std::move(*found);
   const auto& p = out.proposal;
-  const Rule rule = parse_rule(p.rule_text, p.rule_file);
 
   std::map<std::int64_t, std::string> accounts, symbols;
   for (const auto& a : store::list_accounts(db)) accounts[a.id] = a.name;
   for (const auto& s : store::list_securities(db)) symbols[s.id] = s.symbol;
-  std::set<std::int64_t> pool;
-  for (const auto& [id, name] : accounts)
-    if (std::find(rule.accounts.begin(), rule.accounts.end(), name) != rule.accounts.end())
-      pool.insert(id);
+  std::set<std::int64_t> pool(p.account_ids.begin(), p.account_ids.end());
+  if (p.kind != "plan") {
+    const Rule rule = parse_rule(p.rule_text, p.rule_file);
+    for (const auto& [id, name] : accounts)
+      if (std::find(rule.accounts.begin(), rule.accounts.end(), name) != rule.accounts.end())
+        pool.insert(id);
+  }
 
   struct Traded {
     Decimal quantity, value;
@@ -243,7 +247,7 @@ Review review(store::Database& db, std::int64_t proposal_id) {
     it->second.value += *t.quantity * *t.price;
   }
   for (const auto& o : p.orders) {
-    ReviewLine line{o.account, o.symbol, o.side, o.quantity, o.price, {}, std::nullopt, ""};
+    ReviewLine line{o.part, o.account, o.symbol, o.side, o.quantity, o.price, {}, std::nullopt, ""};
     const Key k{o.account_id, o.security_id, o.side};
     if (auto it = traded.find(k); it != traded.end()) {
       line.traded = it->second.quantity;
@@ -259,7 +263,7 @@ Review review(store::Database& db, std::int64_t proposal_id) {
   for (const auto& k : seen_order) {
     const auto it = traded.find(k);
     if (it == traded.end()) continue;
-    out.lines.push_back(ReviewLine{accounts[std::get<0>(k)], symbols[std::get<1>(k)],
+    out.lines.push_back(ReviewLine{"", accounts[std::get<0>(k)], symbols[std::get<1>(k)],
                                    std::get<2>(k), Decimal(), Decimal(), it->second.quantity,
                                    Decimal::divide(it->second.value, it->second.quantity, 4),
                                    "not proposed"});

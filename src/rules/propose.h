@@ -20,8 +20,8 @@
 //    engine's reason: a proposal always has targets.
 //  - save() stores a proposal in one write transaction and returns its id.
 //  - review() matches a saved proposal's orders with the live buys and sells
-//    posted after it was saved in the rule's accounts, by account, security
-//    and side; trades that were not proposed are listed too.
+//    posted after it was saved in the rule's (or the plan's) accounts, by
+//    account, security and side; trades that were not proposed are listed too.
 #pragma once
 
 #include <cstdint>
@@ -82,8 +82,11 @@ Portfolio portfolio_of(const Book& book, const std::vector<Account>& pool,
 std::vector<std::string> proposal_cautions(Date as_of);
 
 std::int64_t save(store::Database& db, const Rule& rule, const Proposal& proposal);
+// An order as a saved proposal keeps it.
+store::ProposalOrderRow proposal_order_row(const Order& order);
 
 struct ReviewLine {
+  std::string part;  // a plan's part ("" for a rule's proposal and for trades not proposed)
   std::string account;
   std::string symbol;
   std::string side;

@@ -8,9 +8,10 @@
 namespace keel::store {
 
 std::int64_t save_proposal(Database& db, const ProposalRow& p) {
-  SQLite::Statement st(db.sql(),
-                       "INSERT INTO proposal (as_of, rule_name, rule_file, rule_text, rule_sha256, "
-                       "pool_value, last_txn_id, saved_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?)");
+  SQLite::Statement st(
+      db.sql(),
+      "INSERT INTO proposal (as_of, rule_name, rule_file, rule_text, rule_sha256, "
+      "pool_value, last_txn_id, saved_at, kind) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)");
   st.bind(1, p.as_of.str());
   st.bind(2, p.rule_name);
   st.bind(3, printable(p.rule_file));  // a path may hold any bytes; keep UTF-8 text
@@ -19,12 +20,21 @@ std::int64_t save_proposal(Database& db, const ProposalRow& p) {
   st.bind(6, p.pool_value.str());
   st.bind(7, p.last_txn_id);
   st.bind(8, utc_timestamp());
+  st.bind(9, p.kind);
   st.exec();
   const std::int64_t id = db.sql().getLastInsertRowid();
+  SQLite::Statement acc(db.sql(),
+                        "INSERT INTO proposal_account (proposal_id, account_id) VALUES (?, ?)");
+  for (const std::int64_t a : p.account_ids) {
+    acc.reset();
+    acc.bind(1, id);
+    acc.bind(2, a);
+    acc.exec();
+  }
   SQLite::Statement ins(db.sql(),
                         "INSERT INTO proposal_order (proposal_id, seq, account_id, security_id, "
                         "side, quantity, price, value, fee, weight_now, weight_target, reason, "
-                        "lots) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)");
+                        "lots, part) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)");
   int seq = 0;
   for (const auto& o : p.orders) {
     ins.reset();
@@ -44,6 +54,10 @@ std::int64_t save_proposal(Database& db, const ProposalRow& p) {
       ins.bind(13);
     else
       ins.bind(13, format_lot_picks(o.lots));
+    if (o.part.empty())
+      ins.bind(14);
+    else
+      ins.bind(14, o.part);
     ins.exec();
   }
   return id;
@@ -52,7 +66,9 @@ std::int64_t save_proposal(Database& db, const ProposalRow& p) {
 namespace {
 constexpr const char* kColumns =
     "p.id, p.as_of, p.rule_name, p.rule_file, p.rule_text, p.rule_sha256, p.pool_value, "
-    "p.last_txn_id, p.saved_at, (SELECT count(*) FROM proposal_order o WHERE o.proposal_id = p.id)";
+    "p.last_txn_id, p.saved_at, (SELECT count(*) FROM proposal_order o WHERE o.proposal_id = "
+    "p.id), "
+    "p.kind";
 
 ProposalRow read_row(SQLite::Statement& st) {
   ProposalRow p;
@@ -66,6 +82,7 @@ ProposalRow read_row(SQLite::Statement& st) {
   p.last_txn_id = st.getColumn(7).getInt64();
   p.saved_at = st.getColumn(8).getString();
   p.order_count = static_cast<std::size_t>(st.getColumn(9).getInt64());
+  p.kind = st.getColumn(10).getString();
   return p;
 }
 }  // namespace
@@ -78,7 +95,8 @@ std::optional<ProposalRow> find_proposal(Database& db, std::int64_t id) {
   ProposalRow p = read_row(st);
   SQLite::Statement o(db.sql(),
                       "SELECT o.account_id, a.name, o.security_id, s.symbol, o.side, o.quantity, "
-                      "o.price, o.value, o.fee, o.weight_now, o.weight_target, o.reason, o.lots "
+                      "o.price, o.value, o.fee, o.weight_now, o.weight_target, o.reason, o.lots, "
+                      "o.part "
                       "FROM proposal_order o JOIN account a ON a.id = o.account_id "
                       "JOIN security s ON s.id = o.security_id WHERE o.proposal_id = ? "
                       "ORDER BY o.seq");
@@ -98,8 +116,14 @@ std::optional<ProposalRow> find_proposal(Database& db, std::int64_t id) {
     r.weight_target = Decimal::parse(o.getColumn(10).getString());
     r.reason = o.getColumn(11).getString();
     if (!o.getColumn(12).isNull()) r.lots = parse_lot_picks(o.getColumn(12).getString());
+    if (!o.getColumn(13).isNull()) r.part = o.getColumn(13).getString();
     p.orders.push_back(std::move(r));
   }
+  SQLite::Statement acc(
+      db.sql(),
+      "SELECT account_id FROM proposal_account WHERE proposal_id = ? ORDER BY account_id");
+  acc.bind(1, id);
+  while (acc.executeStep()) p.account_ids.push_back(acc.getColumn(0).getInt64());
   return p;
 }
 

@@ -1,5 +1,5 @@
-// Saved proposals: a rule's orders as proposed on a day, kept so they can be
-// set against what was traded afterwards.
+// Saved proposals: a rule's or a plan's orders as proposed on a day, kept so
+// they can be set against what was traded afterwards.
 //
 // Contract
 //  - save_proposal() writes the proposal and its orders inside the caller's
@@ -7,6 +7,8 @@
 //  - find_proposal() returns the proposal with its orders in proposed order,
 //    or unset; list_proposals() gives every proposal without orders, oldest
 //    first. Decimals are stored as canonical text.
+//  - A plan's proposal (kind "plan") keeps the plan's text in the rule_*
+//    fields, the accounts it covered, and each order's part.
 #pragma once
 
 #include <cstdint>
@@ -30,10 +32,12 @@ struct ProposalOrderRow {
   Decimal quantity, price, value, fee, weight_now, weight_target;
   std::string reason;
   std::vector<LotPick> lots;
+  std::string part;  // a plan's part; empty for a rule's proposal
 };
 
 struct ProposalRow {
   std::int64_t id = 0;
+  std::string kind = "rule";  // "rule" or "plan"
   Date as_of;
   std::string rule_name;
   std::string rule_file;
@@ -43,6 +47,7 @@ struct ProposalRow {
   std::int64_t last_txn_id = 0;
   std::string saved_at;
   std::size_t order_count = 0;
+  std::vector<std::int64_t> account_ids;  // a plan's accounts, by id; empty for a rule
   std::vector<ProposalOrderRow> orders;
 };
 

@@ -671,28 +671,54 @@ row("propose: --rule and --plan together",
 row("propose: --deposit without --plan",
     ["propose", "--rule", "{d}/rule.toml", "--deposit", "100"], INPUT,
     "keel: error: --deposit: applies only with --plan")
-row("propose --plan: --save", ["propose", "--plan", "{d}/plan.toml", "--save"], INPUT,
-    "keel: error: --save: applies only with --rule", {"plan.toml": PLAN_FIXED})
 row("propose --plan: --deposit not an amount",
-    ["propose", "--plan", "{d}/plan.toml", "--deposit", "ten:Alder Taxable"], INPUT,
+    ["propose", "--plan", "{d}/plan.toml", "--deposit", "Alder Taxable=ten"], INPUT,
     "keel: error: --deposit: 'ten' is not an amount above zero with at most two decimals "
-    "(AMOUNT[:ACCOUNT], e.g. 1500.00:Savings)", {"plan.toml": PLAN_FIXED})
+    "(ACCOUNT=AMOUNT, e.g. Savings=1500.00)", {"plan.toml": PLAN_FIXED})
 row("propose --plan: --deposit with sub-cent amount",
-    ["propose", "--plan", "{d}/plan.toml", "--deposit", "10.005:Alder Taxable"], INPUT,
+    ["propose", "--plan", "{d}/plan.toml", "--deposit", "Alder Taxable=10.005"], INPUT,
     "keel: error: --deposit: '10.005' is not an amount above zero with at most two decimals "
-    "(AMOUNT[:ACCOUNT], e.g. 1500.00:Savings)", {"plan.toml": PLAN_FIXED})
+    "(ACCOUNT=AMOUNT, e.g. Savings=1500.00)", {"plan.toml": PLAN_FIXED})
 row("propose --plan: --withdraw to an account outside the plan",
-    ["propose", "--plan", "{d}/plan.toml", "--withdraw", "10:Nobody"], INPUT,
+    ["propose", "--plan", "{d}/plan.toml", "--withdraw", "Nobody=10"], INPUT,
     "keel: error: --withdraw: 'Nobody' is not an account of the plan (accounts: Alder Taxable, "
     "Birch Pension)", {"plan.toml": PLAN_FIXED})
 row("propose --plan: --deposit without an account in a plan of two",
     ["propose", "--plan", "{d}/plan.toml", "--deposit", "10"], INPUT,
     "keel: error: --deposit: the plan has 2 accounts; name the one the cash goes to or comes from "
-    "(AMOUNT:ACCOUNT; accounts: Alder Taxable, Birch Pension)", {"plan.toml": PLAN_FIXED})
+    "(ACCOUNT=AMOUNT; accounts: Alder Taxable, Birch Pension)", {"plan.toml": PLAN_FIXED})
 row("propose --plan: --withdraw more than the cash",
-    ["propose", "--plan", "{d}/plan.toml", "--withdraw", "1000000:Alder Taxable"], INPUT,
-    "keel: error: --withdraw: account 'Alder Taxable' holds 9500 in cash on 2024-02-01; it "
-    "cannot give 1000000", {"plan.toml": PLAN_FIXED})
+    ["propose", "--plan", "{d}/plan.toml", "--withdraw", "Alder Taxable=1000000"], INPUT,
+    "keel: error: --withdraw: account 'Alder Taxable' holds 9500 in cash and 550 in holdings to "
+    "sell on 2024-02-01; it cannot give 1000000", {"plan.toml": PLAN_FIXED})
+row("propose --plan: one account claimed by a pool and a part",
+    ["propose", "--plan", "{d}/plan.toml"], INPUT,
+    "keel: error: {d}/plan.toml:10:12: key 'part.accounts': account 'Alder Taxable' is already "
+    "managed by pool 'home'; an account belongs to one pool or part only",
+    {"plan.toml": PLAN_FIXED + b'[[part]]\nname = "more"\naccounts = ["Alder Taxable"]\n'
+     b'fixed = { QRX = 100 }\n'})
+row("propose --plan: a gain cap below zero", ["propose", "--plan", "{d}/plan.toml"], INPUT,
+    "keel: error: {d}/plan.toml:2:12: key 'tax.gain_cap': -500 is below zero; a cap of 0 allows "
+    "no net gain at all", {"plan.toml": b"[tax]\ngain_cap = -500\n" + PLAN_FIXED})
+row("propose --plan: a gain cap with fractions of a cent",
+    ["propose", "--plan", "{d}/plan.toml"], INPUT,
+    "keel: error: {d}/plan.toml:2:12: key 'tax.gain_cap': 10.125 has more than two decimals",
+    {"plan.toml": b"[tax]\ngain_cap = 10.125\n" + PLAN_FIXED})
+row("propose --plan: an unknown selling order", ["propose", "--plan", "{d}/plan.toml"], INPUT,
+    "keel: error: {d}/plan.toml:2:13: key 'tax.sell_from': must be \"any\" or "
+    "\"tax-deferred-first\"", {"plan.toml": b'[tax]\nsell_from = "deferred"\n' + PLAN_FIXED})
+row("propose --plan: an unknown tax key", ["propose", "--plan", "{d}/plan.toml"], INPUT,
+    "keel: error: {d}/plan.toml:2:14: key 'tax.gain_limit': unknown key; expected one of: "
+    "sell_from, gain_cap",
+    {"plan.toml": b"[tax]\ngain_limit = 5\n" + PLAN_FIXED})
+row("propose --plan: --deposit in the spelling AMOUNT:ACCOUNT",
+    ["propose", "--plan", "{d}/plan.toml", "--deposit", "10:Alder Taxable"], INPUT,
+    "keel: error: --deposit: '10:Alder Taxable' is not ACCOUNT=AMOUNT; write 'Alder Taxable=10'",
+    {"plan.toml": PLAN_FIXED})
+row("propose --plan: --deposit into an account outside the plan, a near miss",
+    ["propose", "--plan", "{d}/plan.toml", "--deposit", "Alder Taxabel=10"], INPUT,
+    "keel: error: --deposit: 'Alder Taxabel' is not an account of the plan (did you mean "
+    "'Alder Taxable'?)", {"plan.toml": PLAN_FIXED})
 row("propose --plan: missing plan file", ["propose", "--plan", "{d}/none.toml"], INPUT,
     "keel: error: {d}/none.toml: cannot open plan file")
 row("propose --plan: shares of a pool not summing to 100",

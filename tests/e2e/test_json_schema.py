@@ -74,7 +74,7 @@ REPORTS = {
     "returns": ["returns", "--year", "2025", "--benchmark", "ZXTR"],
     "propose": ["propose", "--rule", RULE, "--as-of", "2025-12-31"],
     "plan-proposal": ["propose", "--plan", PLAN, "--as-of", "2025-12-31", "--deposit",
-                      "500:Ardwyn Retirement"],
+                      "Ardwyn Retirement=500"],
     "proposals-list": ["proposals", "list"],
     "proposal": ["proposals", "show", "1"],
     "backtest": ["backtest", "--rule", RULE, "--from", "2024-01-01", "--to", "2025-12-31",
@@ -108,7 +108,8 @@ MORE = {
                  "--from", "2024-01-01", "--to", "2025-12-31", "--frictionless"]],
 }
 # Documents whose members changed since their first version.
-VERSIONS = {"backtest": 2, "propose": 2, "plan-proposal": 2, "signal": 3}
+VERSIONS = {"backtest": 2, "propose": 2, "plan-proposal": 3, "proposal": 2, "proposals-list": 2,
+            "signal": 3}
 ON_DEMO = {"returns", "propose", "plan-proposal", "proposals-list", "proposal", "backtest", "compare", "signal", "sweep", "statement"}
 # The commands of the reference each report stands for.
 COMMANDS = {"holdings": "holdings", "lots": "lots", "gains": "gains", "history": "history",

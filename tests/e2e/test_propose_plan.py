@@ -80,8 +80,8 @@ write(os.path.join(D, "rules", "value.toml"), VALUE_RULE)
 plan = write(os.path.join(D, "household.toml"), PLAN.format(unmanaged=""))
 before = ledger_digest(led.path)
 
-doc = led.json("propose", "--plan", plan, "--deposit", "1000:Taxable")
-equal(doc["schema"], {"name": "keel.plan-proposal", "version": 2}, "schema tag")
+doc = led.json("propose", "--plan", plan, "--deposit", "Taxable=1000")
+equal(doc["schema"], {"name": "keel.plan-proposal", "version": 3}, "schema tag")
 equal(doc["as_of"], "2026-01-30", "as of the latest close")
 equal(doc["planned_cash"], [{"account": "Taxable", "amount": "1000", "booked": False}],
       "the deposit is planned, not booked")
@@ -141,7 +141,7 @@ equal(doc["cautions"][0], "This is the output of your own rule applied to your o
       "not investment advice.", "the proposal's cautions")
 
 # The text says the deposit is planned and lists the unmanaged fund.
-text = led.ok("propose", "--plan", plan, "--deposit", "1000:Taxable")
+text = led.ok("propose", "--plan", plan, "--deposit", "Taxable=1000")
 check("Planned, not booked: deposit 1000.00 to Taxable" in text, text)
 check("family  Retirement  ZMIX          50     44  2200.00  left alone" in text, text)
 check("Part 'bonds': fixed sleeve, 30.00% of pool 'family'" in text, text)
@@ -153,14 +153,14 @@ equal(doc["pools"][0]["pool_value"], "100000", "without the planned deposit")
 equal(doc["pools"][0]["orders"][1]["quantity"], "700", "AAVO: 0.35 x 100000 / 50 = 700")
 
 # A withdrawal of 1000 from Retirement: 100000 managed (101000 - 1000 - 1000 + 1000).
-doc = led.json("propose", "--plan", plan, "--deposit", "1000:Taxable", "--withdraw",
-               "2000:Retirement")
+doc = led.json("propose", "--plan", plan, "--deposit", "Taxable=1000", "--withdraw",
+               "Retirement=2000")
 equal(doc["pools"][0]["pool_value"], "99000", "51000 + 10000 + 38000")
 equal([c["amount"] for c in doc["planned_cash"]], ["1000", "-2000"], "planned deposit, withdrawal")
 
 # unmanaged = "sell": ZMIX joins the pool (101000 + 2200 = 103200) and is sold.
 write(plan, PLAN.format(unmanaged='unmanaged = "sell"\n'))
-doc = led.json("propose", "--plan", plan, "--deposit", "1000:Taxable")
+doc = led.json("propose", "--plan", plan, "--deposit", "Taxable=1000")
 equal(doc["pools"][0]["pool_value"], "103200", "the unmanaged fund counts when it is sold")
 zmix = [o for o in doc["pools"][0]["orders"] if o["symbol"] == "ZMIX"]
 equal([(o["side"], o["quantity"]) for o in zmix], [("sell", "50")], "ZMIX sold whole")
@@ -181,8 +181,132 @@ err = led.fails("propose", "--plan", os.path.join(D, "overlap.toml"))
 equal(err, f"keel: error: {D}/overlap.toml:15:9: key 'part.fixed': 'CELT' is managed by both part "
       "'value' and part 'bonds' in pool 'family'; a security belongs to one part of a pool",
       "a name in two parts of one pool")
-err = led.fails("propose", "--plan", plan, "--withdraw", "50000:Retirement")
-equal(err, "keel: error: --withdraw: account 'Retirement' holds 40000 in cash on 2026-01-30; it "
-      "cannot give 50000", "a withdrawal larger than the cash")
+err = led.fails("propose", "--plan", plan, "--withdraw", "Retirement=50000")
+equal(err, "keel: error: --withdraw: account 'Retirement' holds 40000 in cash and 2200 in holdings "
+      "to sell on 2026-01-30; it cannot give 50000", "a withdrawal larger than cash and holdings")
 equal(ledger_digest(led.path), before, "refused plans write nothing")
 print("propose --plan: household checked by hand")
+
+# ---------------------------------------------------------------- tax keys
+# A second invented household: Brokerage (taxable) and Retirement (tax-deferred), on 2026-06-30.
+#   Brokerage: cash 10000; ACRN lot 1: 100 bought 2024-01-10 at 40 (long-term, gain 60 a unit),
+#              ACRN lot 2: 50 bought 2026-03-02 at 120 (short-term, loss 20 a unit).
+#   Retirement: cash 6000; ACRN 50 bought 2024-01-10 at 80.
+# Closes: ACRN 100, BOLT 50, GBND 100. Pool 10000 + 6000 + 200 x 100 = 36000.
+# Plan: stocks 50 % (ACRN 20 %, BOLT 80 % of the part), bonds 50 % (GBND), bonds placed in
+# tax-deferred accounts first; sells from tax-deferred accounts first.
+# Targets: ACRN 10 % = 3600, BOLT 40 % = 14400, GBND 50 % = 18000 (no fees, no reserve).
+tax = Ledger()
+T = tax.dir.name
+tax.ok("import", "securities", write(os.path.join(T, "securities.csv"),
+       "symbol,name,kind,currency,lot_size,sector\nACRN,Acorn Rail,stock,USD,1,\n"
+       "BOLT,Boltwood Tools,stock,USD,1,\nGBND,Granite Treasury Bond Fund,bond,USD,1,\n"),
+       "--quiet")
+tax.ok("import", "prices", write(os.path.join(T, "prices.csv"), "date,symbol,close\n"
+       "2026-06-30,ACRN,100\n2026-06-30,BOLT,50\n2026-06-30,GBND,100\n"), "--quiet")
+tax.ok("account", "add", "Brokerage")
+tax.ok("account", "add", "Retirement", "--tax-status", "tax-deferred")
+for account, amount in (("Brokerage", "20000"), ("Retirement", "10000")):
+    tax.ok("record", "deposit", "--date", "2024-01-02", "--account", account, "--amount", amount)
+for date, account, qty, price in (("2024-01-10", "Brokerage", "100", "40"),
+                                  ("2026-03-02", "Brokerage", "50", "120"),
+                                  ("2024-01-10", "Retirement", "50", "80")):
+    tax.ok("record", "buy", "--date", date, "--account", account, "--symbol", "ACRN",
+           "--quantity", qty, "--price", price)
+TAX_PLAN = """name = "Tax household"
+[tax]
+sell_from = "tax-deferred-first"
+{cap}
+[pools.home]
+accounts = ["Brokerage", "Retirement"]
+
+[[part]]
+name = "stocks"
+pool = "home"
+share_pct = 50
+fixed = {{ ACRN = 20, BOLT = 80 }}
+
+[[part]]
+name = "bonds"
+pool = "home"
+share_pct = 50
+fixed = {{ GBND = 100 }}
+place = "tax-deferred-first"
+"""
+tax_plan = write(os.path.join(T, "tax.toml"), TAX_PLAN.format(cap=""))
+before = ledger_digest(tax.path)
+
+
+def orders_of(doc):
+    return [(o["account"], o["symbol"], o["side"], o["quantity"], o["reason"])
+            for o in doc["pools"][0]["orders"]]
+
+
+# ACRN: 20000 now, 3600 target: sell 164. Retirement's 50 first (no tax event), then 114 in
+# Brokerage (highest cost first: lot 2's 50, then 64 of lot 1). Cash: Retirement 6000 + 5000 =
+# 11000, Brokerage 10000 + 11400 = 21400, together 32400 = 14400 + 18000: every buy fits.
+# GBND buys first, Retirement first: 11000 / 100 = 110 there, the other 7000 (70) in Brokerage;
+# BOLT then takes Brokerage's 14400 (288).
+doc = tax.json("propose", "--plan", tax_plan)
+F20, F80, F100 = ("stocks: fixed at 20% of the part", "stocks: fixed at 80% of the part",
+                  "bonds: fixed at 100% of the part")
+equal(orders_of(doc), [  # sells first; each name's orders in the pool's account order
+    ("Brokerage", "ACRN", "sell", "114", F20 + ": trim to target"),
+    ("Retirement", "ACRN", "sell", "50", F20 + ": trim to target; sold in Retirement: no tax event"),
+    ("Brokerage", "BOLT", "buy", "288", F80 + ": new position"),
+    ("Brokerage", "GBND", "buy", "70",
+     F100 + ": new position; placed in Brokerage: no tax-deferred cash left"),
+    ("Retirement", "GBND", "buy", "110",
+     F100 + ": new position; placed in Retirement: tax-deferred first"),
+], "tax keys: placement and selling order")
+TAX_CAUTION = ("This plan places and sells by each account's recorded tax status: tax treatment "
+               "depends on local rules; check it with your tax authority or a licensed "
+               "professional.")
+check(TAX_CAUTION in doc["cautions"], "the tax caution in JSON")
+check(TAX_CAUTION in tax.ok("propose", "--plan", tax_plan), "the tax caution in text")
+
+# A gain cap of 2000: lot 2's loss (50 x -20 = -1000) leaves room for 3000 of gain, 50 units of
+# lot 1 at 60 a unit; the other 14 are kept.
+write(tax_plan, TAX_PLAN.format(cap="gain_cap = 2000"))
+doc = tax.json("propose", "--plan", tax_plan)
+equal(orders_of(doc)[:2], [
+    ("Brokerage", "ACRN", "sell", "100",
+     F20 + ": trim to target; 14 kept in Brokerage: the gain cap of 2000.00 is reached"),
+    ("Retirement", "ACRN", "sell", "50", F20 + ": trim to target; sold in Retirement: no tax event"),
+], "tax keys: the gain cap cuts the Brokerage sell")
+lots = doc["pools"][0]["orders"][0]["lots"]
+equal(sum(int(l["est_gain"].split(".")[0]) for l in lots), 2000, "estimated gain at the cap")
+
+equal(ledger_digest(tax.path), before, "tax-aware proposals write nothing")
+print("propose --plan: tax-aware household checked by hand")
+
+# ---------------------------------------------------------------- saved, filled, at rest
+# The plan without the cap is saved; its orders are booked as filled three days later at the
+# estimated prices, with the lots it named; proposing again proposes nothing new.
+write(tax_plan, TAX_PLAN.format(cap=""))
+first = tax.json("propose", "--plan", tax_plan, "--save")
+equal(first["proposal_id"], 1, "saved as proposal 1")
+for o in first["pools"][0]["orders"]:
+    lots = ",".join(f"{l['lot']}:{l['quantity']}" for l in o["lots"])
+    tax.ok("record", o["side"], "--date", "2026-07-03", "--account", o["account"], "--symbol",
+           o["symbol"], "--quantity", o["quantity"], "--price", o["price"],
+           *(["--lots", lots] if lots else []))
+again = tax.json("propose", "--plan", tax_plan)
+equal(again["as_of"], "2026-07-03", "the default day takes in the fills")
+equal(again["pools"][0]["orders"], [], "nothing proposed again once the orders are filled")
+shown = tax.json("proposals", "show", "1")
+equal(shown["kind"], "plan", "a plan's saved proposal")
+equal([(l["part"], l["account"], l["symbol"], l["side"], l["status"]) for l in shown["lines"]], [
+    ("stocks", "Brokerage", "ACRN", "sell", "done"),
+    ("stocks", "Retirement", "ACRN", "sell", "done"),
+    ("stocks", "Brokerage", "BOLT", "buy", "done"),
+    ("bonds", "Brokerage", "GBND", "buy", "done"),
+    ("bonds", "Retirement", "GBND", "buy", "done"),
+], "each saved order under its part, done")
+text = tax.ok("proposals", "show", "1")
+check(text.startswith("Proposal 1 of plan 'Tax household' as of 2026-06-30, saved "), text)
+check("\nPart 'stocks'\n" in text and "\nPart 'bonds'\n" in text, text)
+listed = tax.json("proposals", "list")["proposals"]
+equal([(p["id"], p["kind"], p["rule"], p["orders"]) for p in listed],
+      [(1, "plan", "Tax household", 5)], "the list names the plan")
+print("propose --plan --save: filled orders leave the plan at rest")

@@ -21,7 +21,7 @@ case $seconds in '' | *[!0-9]*)
   ;;
 esac
 root=$(cd "$(dirname "$0")/../.." && pwd)
-targets="csv decimal date mapping rule ofx"
+targets="csv decimal date mapping rule plan ofx"
 
 if [ $# -ge 2 ]; then
   build=$(cd "$2" 2>/dev/null && pwd) || {

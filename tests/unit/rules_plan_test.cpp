@@ -11,6 +11,7 @@
 #include "ledger_fixture.h"
 #include "rules/plan.h"
 #include "rules/plan_propose.h"
+#include "rules/propose.h"
 
 using namespace keel;
 using namespace keel::testing;
@@ -250,7 +251,7 @@ TEST_CASE("plan: a security in two parts of one pool is refused naming both") {
 
 TEST_CASE("plan: planned cash moves the account's cash and is only stated") {
   Household h;
-  const auto p = h.run(kTwoParts, {parse_planned_cash("--deposit", "500:Retirement")});
+  const auto p = h.run(kTwoParts, {parse_planned_cash("--deposit", "Retirement=500")});
   CHECK(p.pools[0].plan.pool_value == dec("10000"));  // 9500 + 500
   REQUIRE(p.planned.size() == 1);
   CHECK(p.planned[0].account == "Retirement");
@@ -261,14 +262,67 @@ TEST_CASE("plan: planned cash without an account is refused when the plan has se
   Household h;
   CHECK_THROWS_WITH_AS(h.run(kTwoParts, {parse_planned_cash("--deposit", "500")}),
                        "--deposit: the plan has 2 accounts; name the one the cash goes to or "
-                       "comes from (AMOUNT:ACCOUNT; accounts: Taxable, Retirement)",
+                       "comes from (ACCOUNT=AMOUNT; accounts: Taxable, Retirement)",
                        InputError);
 }
 
 TEST_CASE("planned cash: an amount that is not above zero with cents is refused") {
-  CHECK_THROWS_WITH_AS(parse_planned_cash("--withdraw", "-5:Taxable"),
+  CHECK_THROWS_WITH_AS(parse_planned_cash("--withdraw", "Taxable=-5"),
                        "--withdraw: '-5' is not an amount above zero with at most two decimals "
-                       "(AMOUNT[:ACCOUNT], e.g. 1500.00:Savings)",
+                       "(ACCOUNT=AMOUNT, e.g. Savings=1500.00)",
                        InputError);
-  CHECK(parse_planned_cash("--withdraw", "12.5:Taxable").amount == dec("-12.5"));
+  CHECK(parse_planned_cash("--withdraw", "Taxable=12.5").amount == dec("-12.5"));
+}
+
+TEST_CASE("planned cash: ACCOUNT=AMOUNT splits at the last '='") {
+  const auto c = parse_planned_cash("--deposit", "A=B=250.00");
+  CHECK(c.account == "A=B");
+  CHECK(c.amount == dec("250"));
+}
+
+TEST_CASE("planned cash: the spelling AMOUNT:ACCOUNT is refused showing the form to use") {
+  CHECK_THROWS_WITH_AS(parse_planned_cash("--deposit", "1500:Savings"),
+                       "--deposit: '1500:Savings' is not ACCOUNT=AMOUNT; write 'Savings=1500'",
+                       InputError);
+}
+
+TEST_CASE("planned cash: no account before '=' is refused") {
+  CHECK_THROWS_WITH_AS(parse_planned_cash("--deposit", "=100"),
+                       "--deposit: '=100' names no account before '=' (ACCOUNT=AMOUNT, e.g. "
+                       "Savings=1500.00)",
+                       InputError);
+}
+
+TEST_CASE("plan: a deposit into a near miss of a plan account suggests it") {
+  Household h;
+  CHECK_THROWS_WITH_AS(h.run(kTwoParts, {parse_planned_cash("--deposit", "Retirment=100")}),
+                       "--deposit: 'Retirment' is not an account of the plan (did you mean "
+                       "'Retirement'?)",
+                       InputError);
+}
+
+TEST_CASE("saved plan: each order keeps its part and the review covers the plan's accounts") {
+  Household h;
+  const Plan plan = parse_plan(kTwoParts, "plan.toml", h.f.path);
+  const auto p = propose_plan(h.db, plan);
+  const std::int64_t id = save_plan(h.db, plan, p);
+  const auto r = review(h.db, id);
+  CHECK(r.proposal.kind == "plan");
+  CHECK(r.proposal.rule_name == "Household");
+  CHECK(r.proposal.rule_text == kTwoParts);
+  CHECK(r.proposal.account_ids.size() == 2);
+  std::size_t orders = 0;
+  for (const auto& pool : p.pools) orders += pool.plan.orders.size();
+  REQUIRE(r.lines.size() == orders);
+  for (std::size_t i = 0; i < r.lines.size(); ++i) {
+    const auto& o = p.pools[0].plan.orders[i];
+    CHECK(r.lines[i].part == o.reason.substr(0, o.reason.find(':')));
+    CHECK(r.lines[i].status == "not traded");
+  }
+  // A trade in the retirement account after saving is listed as not proposed.
+  h.buy("2026-02-02", "Retirement", "E", "1", "10");
+  const auto later = review(h.db, id);
+  CHECK(later.lines.back().symbol == "E");
+  CHECK(later.lines.back().status == "not proposed");
+  CHECK(later.lines.back().part.empty());
 }
