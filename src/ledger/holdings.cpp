@@ -95,6 +95,7 @@ Holdings holdings_of(const Book& book, const market::View& view, Date as_of,
       auto [value, quote] = convert(line.amount, code, info.currency, "cash in " + code);
       line.value = value;
       line.rate = quote;
+      for (const auto& lot : lots) line.cost += lot.cost;
       out.total_value += value;
       out.cash.push_back(std::move(line));
     }

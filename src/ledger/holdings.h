@@ -55,6 +55,9 @@ struct CashLine {
   std::string currency = {};
   std::optional<market::FxQuote> rate = std::nullopt;
   Decimal value = {};
+  Decimal cost = {};  // cash in another currency: its lots' cost in the account's currency
+  Decimal currency_gain() const { return value - cost; }               // unrealized, of such cash
+  Decimal worth() const { return currency.empty() ? amount : value; }  // in the account's
 };
 
 struct Holdings {
