@@ -190,8 +190,11 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
     }
     bool foreign = false;
     for (const auto& [c, amount] : local) {
+      // Nothing held in a currency needs no rate (an account in another
+      // currency before its first deposit).
+      if (amount.is_zero()) continue;
       point.value += reported(amount, c, d);
-      foreign = foreign || (c != currency && !amount.is_zero());
+      foreign = foreign || c != currency;
     }
     // A day with only a new rate changes nothing when nothing foreign is held.
     if (rate_only && !foreign) continue;
