@@ -27,7 +27,7 @@ using report::Table;
 
 struct ActionOptions {
   std::string date, symbol, into, ratio, cash, cost_percent, in_lieu, note;
-  bool allow_future = false;
+  bool allow_future = false, market_only = false;
 };
 
 struct ActionSpec {
@@ -92,6 +92,9 @@ void add_record_action(CLI::App& group, Context& ctx, const ActionSpec& spec) {
         "unit");
   cmd->add_option("--note", o->note, "Free text");
   cmd->add_flag(ledger::kAllowFutureFlag, o->allow_future, "Accept a --date after today");
+  cmd->add_flag(ledger::kMarketOnlyFlag, o->market_only,
+                "No account holds the security: record the action as market data for "
+                "back-tests and signal checks");
   const ActionKind kind = spec.kind;
   cmd->callback([&ctx, o, kind, lieu] {
     ledger::ActionRequest r;
@@ -106,6 +109,7 @@ void add_record_action(CLI::App& group, Context& ctx, const ActionSpec& spec) {
     r.in_lieu_price = decimal_option(o->in_lieu, "--cash-in-lieu");
     r.note = text_option(o->note);
     r.allow_future = o->allow_future;
+    r.market_only = o->market_only;
     auto db = ctx.open_ledger(store::Access::write);
     const auto posted = ledger::post_action(db, r);
     std::string text = fmt::format("action {} posted: {} of {} on {}\n", posted.id,

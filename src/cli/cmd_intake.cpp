@@ -16,6 +16,7 @@
 #include "io/errors.h"
 #include "io/ledger_intake.h"
 #include "io/market_intake.h"
+#include "ledger/action_posting.h"
 #include "ledger/posting.h"
 #include "report/json_schema.h"
 #include "report/table.h"
@@ -52,7 +53,7 @@ class Progress {
 struct ImportCommandOptions {
   std::string what, file, mapping, account;
   bool dry_run = false, replace = false, quiet = false, allow_future = false,
-       book_corrections = false;
+       book_corrections = false, market_only = false;
 };
 
 // The first rows of a dry run, as keel would book them.
@@ -129,6 +130,9 @@ void add_import(CLI::App& app, Context& ctx) {
                 "plus the new row (refused otherwise)");
   cmd->add_option("--account", o->account,
                   "Transactions from an OFX statement: the keel account it belongs to");
+  cmd->add_flag(ledger::kMarketOnlyFlag, o->market_only,
+                "Actions: no account holds the securities; record the actions as market data "
+                "for back-tests and signal checks");
   cmd->callback([&ctx, o] {
     if (is_standard_input(o->file) && is_standard_input(o->mapping))
       throw InputError(
@@ -141,6 +145,9 @@ void add_import(CLI::App& app, Context& ctx) {
     options.allow_future = o->allow_future;
     options.book_corrections = o->book_corrections;
     if (!o->account.empty()) options.account = o->account;
+    options.market_only = o->market_only;
+    if (o->what != "actions" && o->market_only)
+      throw InputError(fmt::format("{}: only for importing actions", ledger::kMarketOnlyFlag));
     if (o->what != "transactions" && (o->book_corrections || options.account))
       throw InputError(fmt::format("{}: only for importing transactions",
                                    o->book_corrections ? "--book-corrections" : "--account"));
@@ -175,6 +182,7 @@ void add_import(CLI::App& app, Context& ctx) {
       text += fmt::format("note: the same file was imported as {} on {} (run {})\n",
                           printable(sum.same_file_before->file_name),
                           sum.same_file_before->imported_at, sum.same_file_before->id);
+    for (const auto& note : sum.notes) text += "note: " + note + "\n";
     out(text);
   });
 }
@@ -190,7 +198,8 @@ void add_export(CLI::App& app, Context& ctx) {
   add_examples(*cmd,
                {"keel export transactions --out transactions.csv", "keel export prices --json"});
   cmd->add_option("WHAT", o->what,
-                  "accounts, transactions, securities, prices, metrics, distributions, splits or "
+                  "accounts, transactions, actions (corporate actions), securities, prices, "
+                  "metrics, distributions, splits or "
                   "fx (exchange rates)")
       ->required();
   auto* c = cmd->add_flag("--csv", o->csv, "CSV in keel's import layout (the default)");
@@ -201,7 +210,7 @@ void add_export(CLI::App& app, Context& ctx) {
   cmd->callback([&ctx, o] {
     const std::string& what = o->what;
     const std::string& file = o->file;
-    const bool ledger_data = what == "transactions" || what == "accounts";
+    const bool ledger_data = what == "transactions" || what == "accounts" || what == "actions";
     const std::string kind_name =
         ledger_data ? what : std::string(to_string(io::parse_market_kind(what)));
     auto db = ctx.open_ledger();
@@ -212,6 +221,8 @@ void add_export(CLI::App& app, Context& ctx) {
       rows = io::export_transactions(db, format, f);
     else if (what == "accounts")
       rows = io::export_accounts(db, format, f);
+    else if (what == "actions")
+      rows = io::export_actions(db, format, f);
     else
       rows = io::export_market(db, io::parse_market_kind(what), format, f);
     f.commit();

@@ -3,8 +3,11 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <boost/multiprecision/cpp_int.hpp>
 #include <limits>
+#include <new>
 #include <stdexcept>
+#include <utility>
 
 #include "core/error.h"
 #include "core/text.h"
@@ -102,47 +105,100 @@ Int from_int128(Wide v) {
 
 }  // namespace
 
-Decimal::Decimal(long long whole) : mantissa_(whole), scale_(0) {}
+static_assert(sizeof(Int) == 32 && alignof(Int) <= 16,
+              "Decimal::kMantissaBytes and its alignment must fit cpp_int");
 
-Decimal::Decimal(Int mantissa, int scale) : mantissa_(std::move(mantissa)), scale_(scale) {
-  normalize();
+auto& Decimal::mantissa() {
+  return *std::launder(reinterpret_cast<Int*>(storage_));
+}
+
+const auto& Decimal::mantissa() const {
+  return *std::launder(reinterpret_cast<const Int*>(storage_));
+}
+
+Decimal::Decimal() {
+  new (storage_) Int();
+}
+
+Decimal::Decimal(long long whole) {
+  new (storage_) Int(whole);
+}
+
+Decimal::Decimal(const Decimal& other) : scale_(other.scale_) {
+  new (storage_) Int(other.mantissa());
+}
+
+Decimal::Decimal(Decimal&& other) noexcept : scale_(other.scale_) {
+  new (storage_) Int(std::move(other.mantissa()));
+}
+
+Decimal& Decimal::operator=(const Decimal& other) {
+  mantissa() = other.mantissa();
+  scale_ = other.scale_;
+  return *this;
+}
+
+Decimal& Decimal::operator=(Decimal&& other) noexcept {
+  mantissa() = std::move(other.mantissa());
+  scale_ = other.scale_;
+  return *this;
+}
+
+Decimal::~Decimal() {
+  mantissa().~Int();
+}
+
+Decimal Decimal::from_mantissa(auto&& value, int scale) {
+  Decimal out;
+  out.mantissa() = std::forward<decltype(value)>(value);
+  out.scale_ = scale;
+  out.normalize();
+  return out;
+}
+
+int Decimal::sign() const {
+  return mantissa().sign();
+}
+
+bool Decimal::is_zero() const {
+  return mantissa().is_zero();
 }
 
 Decimal Decimal::scaled(long long mantissa, int scale) {
   if (scale < 0 || scale > kMaxScale)
     throw std::invalid_argument(fmt::format("Decimal::scaled: scale {} out of range", scale));
-  return Decimal(Int(mantissa), scale);
+  return from_mantissa(Int(mantissa), scale);
 }
 
 void Decimal::normalize() {
-  if (mantissa_.is_zero()) {
+  if (mantissa().is_zero()) {
     scale_ = 0;
     return;
   }
   long long small = 0;
-  if (scale_ > 0 && small_value(mantissa_, small)) {
+  if (scale_ > 0 && small_value(mantissa(), small)) {
     int scale = scale_;
     while (scale > 0 && small % 10 == 0) {
       small /= 10;
       --scale;
     }
     if (scale != scale_) {
-      mantissa_ = small;
+      mantissa() = small;
       scale_ = scale;
     }
     return;
   }
   while (scale_ > 0) {
     Int quotient, remainder;
-    boost::multiprecision::divide_qr(mantissa_, Int(10), quotient, remainder);
+    boost::multiprecision::divide_qr(mantissa(), Int(10), quotient, remainder);
     if (!remainder.is_zero()) break;
-    mantissa_ = std::move(quotient);
+    mantissa() = std::move(quotient);
     --scale_;
   }
 }
 
-Decimal::Int Decimal::scaled_to(int scale) const {
-  return scale == scale_ ? mantissa_ : mantissa_ * pow10(scale - scale_);
+auto Decimal::scaled_to(int scale) const {
+  return scale == scale_ ? mantissa() : Int(mantissa() * pow10(scale - scale_));
 }
 
 Decimal Decimal::parse(std::string_view text) {
@@ -183,7 +239,7 @@ std::optional<Decimal> Decimal::parse_text(std::string_view text, std::string& w
       }
     }
     if (i == text.size() && digits > 0 && digits <= 18)
-      return Decimal(Int(text[0] == '-' ? -value : value), std::max(scale, 0));
+      return from_mantissa(Int(text[0] == '-' ? -value : value), std::max(scale, 0));
   }
   auto fail = [&](std::string_view reason) {
     // printable(): the text may hold any byte, NUL included, and what() is a C string.
@@ -251,14 +307,14 @@ std::optional<Decimal> Decimal::parse_text(std::string_view text, std::string& w
     mantissa = Int(digits);
     if (negative) mantissa = -mantissa;
   }
-  return Decimal(std::move(mantissa), static_cast<int>(effective_scale));
+  return from_mantissa(std::move(mantissa), static_cast<int>(effective_scale));
 }
 
 std::string Decimal::str() const {
   long long small = 0;
-  std::string digits = small_value(mantissa_, small)
+  std::string digits = small_value(mantissa(), small)
                            ? std::to_string(small < 0 ? -small : small)
-                           : Int(boost::multiprecision::abs(mantissa_)).str();
+                           : Int(boost::multiprecision::abs(mantissa())).str();
   std::string out;
   if (is_negative()) out.push_back('-');
   if (scale_ == 0) return out + digits;
@@ -299,22 +355,22 @@ Wide divide_half_even(Wide x, Wide y) {
 Decimal Decimal::rounded(int places) const {
   if (scale_ <= places) return *this;
   long long small = 0;
-  if (places >= 0 && scale_ - places <= 18 && small_value(mantissa_, small))
-    return Decimal(from_int128(divide_half_even(small, kPow10[scale_ - places])), places);
-  return Decimal(round_half_even(mantissa_, scale_ - places), places);
+  if (places >= 0 && scale_ - places <= 18 && small_value(mantissa(), small))
+    return from_mantissa(from_int128(divide_half_even(small, kPow10[scale_ - places])), places);
+  return from_mantissa(round_half_even(mantissa(), scale_ - places), places);
 }
 
 Decimal Decimal::truncated(int places) const {
   if (scale_ <= places) return *this;
   long long small = 0;
-  if (places >= 0 && scale_ - places <= 18 && small_value(mantissa_, small))
-    return Decimal(Int(small / kPow10[scale_ - places]), places);
-  return Decimal(mantissa_ / pow10(scale_ - places), places);
+  if (places >= 0 && scale_ - places <= 18 && small_value(mantissa(), small))
+    return from_mantissa(Int(small / kPow10[scale_ - places]), places);
+  return from_mantissa(Int(mantissa() / pow10(scale_ - places)), places);
 }
 
 Decimal Decimal::floored(int places) const {
   const Decimal t = truncated(places);
-  return (is_negative() && t != *this) ? t - Decimal(Int(1), places) : t;
+  return (is_negative() && t != *this) ? t - from_mantissa(Int(1), places) : t;
 }
 
 Decimal Decimal::divide(const Decimal& numerator, const Decimal& denominator, int places) {
@@ -324,15 +380,15 @@ Decimal Decimal::divide(const Decimal& numerator, const Decimal& denominator, in
   // as the general path below.
   long long a = 0, b = 0;
   if (places >= 0 && denominator.scale_ + places <= 18 && numerator.scale_ <= 18 &&
-      small_value(numerator.mantissa_, a) && small_value(denominator.mantissa_, b)) {
+      small_value(numerator.mantissa(), a) && small_value(denominator.mantissa(), b)) {
     Wide n = static_cast<Wide>(a) * kPow10[denominator.scale_ + places];
     Wide d = static_cast<Wide>(b) * kPow10[numerator.scale_];
     if (d < 0) n = -n, d = -d;
-    return Decimal(from_int128(divide_half_even(n, d)), places);
+    return from_mantissa(from_int128(divide_half_even(n, d)), places);
   }
   // (n / 10^a) / (d / 10^b) at `places` digits = n * 10^(b + places) / (d * 10^a).
-  const Int n = numerator.mantissa_ * pow10(denominator.scale_ + places);
-  const Int d = denominator.mantissa_ * pow10(numerator.scale_);
+  const Int n = numerator.mantissa() * pow10(denominator.scale_ + places);
+  const Int d = denominator.mantissa() * pow10(numerator.scale_);
   Int quotient, remainder;
   boost::multiprecision::divide_qr(n, d, quotient, remainder);
   if (!remainder.is_zero()) {
@@ -341,7 +397,7 @@ Decimal Decimal::divide(const Decimal& numerator, const Decimal& denominator, in
     const int direction = n.sign() * d.sign();
     if (twice > magnitude || (twice == magnitude && (quotient % 2) != 0)) quotient += direction;
   }
-  return Decimal(std::move(quotient), places);
+  return from_mantissa(std::move(quotient), places);
 }
 
 double Decimal::to_double() const {
@@ -350,7 +406,7 @@ double Decimal::to_double() const {
   // route (Clinger 1990, "How to Read Floating Point Numbers Accurately").
   long long small = 0;
   constexpr long long kExact = 1LL << 53;
-  if (scale_ <= 22 && small_value(mantissa_, small) && small < kExact && small > -kExact) {
+  if (scale_ <= 22 && small_value(mantissa(), small) && small < kExact && small > -kExact) {
     static constexpr double kTens[] = {1e0,  1e1,  1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
                                        1e8,  1e9,  1e10, 1e11, 1e12, 1e13, 1e14, 1e15,
                                        1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22};
@@ -361,40 +417,40 @@ double Decimal::to_double() const {
 }
 
 Decimal Decimal::operator-() const {
-  return Decimal(-mantissa_, scale_);
+  return from_mantissa(Int(-mantissa()), scale_);
 }
 
 Decimal operator+(const Decimal& a, const Decimal& b) {
   const int scale = std::max(a.scale_, b.scale_);
   Wide x = 0, y = 0;
-  if (small_aligned(a.mantissa_, a.scale_, b.mantissa_, b.scale_, x, y))
-    return Decimal(from_int128(x + y), scale);
-  return Decimal(a.scaled_to(scale) + b.scaled_to(scale), scale);
+  if (small_aligned(a.mantissa(), a.scale_, b.mantissa(), b.scale_, x, y))
+    return Decimal::from_mantissa(from_int128(x + y), scale);
+  return Decimal::from_mantissa(Int(a.scaled_to(scale) + b.scaled_to(scale)), scale);
 }
 
 Decimal operator-(const Decimal& a, const Decimal& b) {
   const int scale = std::max(a.scale_, b.scale_);
   Wide x = 0, y = 0;
-  if (small_aligned(a.mantissa_, a.scale_, b.mantissa_, b.scale_, x, y))
-    return Decimal(from_int128(x - y), scale);
-  return Decimal(a.scaled_to(scale) - b.scaled_to(scale), scale);
+  if (small_aligned(a.mantissa(), a.scale_, b.mantissa(), b.scale_, x, y))
+    return Decimal::from_mantissa(from_int128(x - y), scale);
+  return Decimal::from_mantissa(Int(a.scaled_to(scale) - b.scaled_to(scale)), scale);
 }
 
 Decimal operator*(const Decimal& a, const Decimal& b) {
   long long x = 0, y = 0;
-  if (small_value(a.mantissa_, x) && small_value(b.mantissa_, y))
-    return Decimal(from_int128(static_cast<Wide>(x) * y), a.scale_ + b.scale_);
-  return Decimal(a.mantissa_ * b.mantissa_, a.scale_ + b.scale_);
+  if (small_value(a.mantissa(), x) && small_value(b.mantissa(), y))
+    return Decimal::from_mantissa(from_int128(static_cast<Wide>(x) * y), a.scale_ + b.scale_);
+  return Decimal::from_mantissa(Int(a.mantissa() * b.mantissa()), a.scale_ + b.scale_);
 }
 
 bool operator==(const Decimal& a, const Decimal& b) {
   // Normalized values compare equal only when both parts match.
-  return a.scale_ == b.scale_ && a.mantissa_ == b.mantissa_;
+  return a.scale_ == b.scale_ && a.mantissa() == b.mantissa();
 }
 
 std::strong_ordering operator<=>(const Decimal& a, const Decimal& b) {
   Wide sx = 0, sy = 0;
-  if (small_aligned(a.mantissa_, a.scale_, b.mantissa_, b.scale_, sx, sy)) return sx <=> sy;
+  if (small_aligned(a.mantissa(), a.scale_, b.mantissa(), b.scale_, sx, sy)) return sx <=> sy;
   const int scale = std::max(a.scale_, b.scale_);
   const auto x = a.scaled_to(scale);
   const auto y = b.scaled_to(scale);

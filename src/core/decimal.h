@@ -13,10 +13,12 @@
 //    kMaxScale.
 //  - to_double() exists only for statistics; never feed its result back into a
 //    ledger amount.
+//  - Only decimal.cpp sees the mantissa's type: Boost.Multiprecision is the
+//    costliest header of the build, and every file of keel includes this one.
 #pragma once
 
-#include <boost/multiprecision/cpp_int.hpp>
 #include <compare>
+#include <cstddef>
 #include <cstdint>
 #include <optional>
 #include <string>
@@ -29,8 +31,13 @@ class Decimal {
   static constexpr int kMaxDigits = 60;
   static constexpr int kMaxScale = 30;
 
-  Decimal() = default;
+  Decimal();
   Decimal(long long whole);  // NOLINT: implicit from integers is natural for literals.
+  Decimal(const Decimal& other);
+  Decimal(Decimal&& other) noexcept;
+  Decimal& operator=(const Decimal& other);
+  Decimal& operator=(Decimal&& other) noexcept;
+  ~Decimal();
 
   static Decimal parse(std::string_view text);
   // mantissa x 10^-scale, exactly; 0 <= scale <= kMaxScale (std::invalid_argument otherwise).
@@ -47,8 +54,8 @@ class Decimal {
   Decimal truncated(int places) const;  // toward zero ("whole shares" style flooring of |x|)
   Decimal floored(int places) const;    // toward minus infinity
 
-  int sign() const { return mantissa_.sign(); }
-  bool is_zero() const { return mantissa_.is_zero(); }
+  int sign() const;
+  bool is_zero() const;
   bool is_negative() const { return sign() < 0; }
   bool is_positive() const { return sign() > 0; }
   int scale() const { return scale_; }
@@ -67,14 +74,18 @@ class Decimal {
   friend std::strong_ordering operator<=>(const Decimal& a, const Decimal& b);
 
  private:
-  using Int = boost::multiprecision::cpp_int;
-  Decimal(Int mantissa, int scale);
+  // The mantissa, a cpp_int, lives in raw storage; decimal.cpp defines these
+  // (deduced types, used only there) and checks the size and alignment.
+  static constexpr std::size_t kMantissaBytes = 32;
+  auto& mantissa();
+  const auto& mantissa() const;
+  static Decimal from_mantissa(auto&& value, int scale);  // normalized
   // Parses without throwing; on failure, `why` says what is wrong.
   static std::optional<Decimal> parse_text(std::string_view text, std::string& why);
   void normalize();
-  Int scaled_to(int scale) const;  // mantissa expressed at a larger scale
+  auto scaled_to(int scale) const;  // mantissa expressed at a larger scale
 
-  Int mantissa_ = 0;
+  alignas(16) unsigned char storage_[kMantissaBytes];
   int scale_ = 0;
 };
 

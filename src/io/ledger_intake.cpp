@@ -23,6 +23,7 @@
 #include "ledger/period.h"
 #include "ledger/posting.h"
 #include "model/security.h"
+#include "store/action_store.h"
 #include "store/ledger_store.h"
 #include "store/market_data.h"
 #include "store/period_store.h"
@@ -588,6 +589,7 @@ LedgerImportSummary import_actions(store::Database& db, const std::filesystem::p
         r.in_lieu_price = Decimal::parse(in_lieu);
       }
       if (t.has(kNote)) r.note = std::string(t.raw(kNote));
+      r.market_only = options.market_only;
       try {
         ledger::write_action_unchecked(db, r);
         ++sum.added;
@@ -677,6 +679,23 @@ std::uint64_t export_accounts(store::Database& db, ExportFormat format, OutputFi
     rows.push_back({a.name, a.currency, std::string(to_string(a.basis)),
                     a.allow_negative_cash ? "yes" : "no"});
   write_rows(format, {"name", "currency", "basis", "allow_negative_cash"}, rows, out);
+  return rows.size();
+}
+
+std::uint64_t export_actions(store::Database& db, ExportFormat format, OutputFile& out) {
+  std::unordered_map<std::int64_t, std::string> symbols;
+  for (const auto& s : store::list_securities(db)) symbols[s.id] = s.symbol;
+  const auto all = store::list_actions(db);
+  auto opt = [](const std::optional<Decimal>& d) { return d ? d->str() : std::string(); };
+  std::vector<std::vector<std::string>> rows;
+  for (const CorporateAction* a : live_actions(all))
+    rows.push_back({a->date.str(), symbols[a->security_id], std::string(to_string(a->kind)),
+                    a->target_id ? symbols[*a->target_id] : "", opt(a->ratio), opt(a->cash),
+                    opt(a->cost_percent), opt(a->in_lieu), a->note.value_or("")});
+  write_rows(
+      format,
+      {"date", "symbol", "action", "into", "ratio", "cash", "cost_percent", "cash_in_lieu", "note"},
+      rows, out);
   return rows.size();
 }
 

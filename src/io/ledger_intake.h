@@ -92,5 +92,9 @@ LedgerImportSummary import_actions(store::Database& db, const std::filesystem::p
 // Write to `out` without committing it; return the number of rows written.
 std::uint64_t export_transactions(store::Database& db, ExportFormat format, OutputFile& out);
 std::uint64_t export_accounts(store::Database& db, ExportFormat format, OutputFile& out);
+// The corporate actions in force (voided ones and voids left out), by date, in
+// the layout `import actions` reads; securities by their current symbol, and a
+// merger's cost share as recorded (stated or derived on its day).
+std::uint64_t export_actions(store::Database& db, ExportFormat format, OutputFile& out);
 
 }  // namespace keel::io

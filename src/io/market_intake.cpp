@@ -5,6 +5,7 @@
 #include <cctype>
 #include <set>
 #include <tuple>
+#include <unordered_map>
 
 #include "core/currency.h"
 #include "core/error.h"
@@ -15,6 +16,7 @@
 #include "io/table.h"
 #include "store/fx_store.h"
 #include "store/ledger_store.h"
+#include "store/record_change_store.h"
 
 namespace keel::io {
 namespace {
@@ -49,13 +51,33 @@ struct Run {
   store::Database& db;
   std::string existing;
 
-  // Symbol column `col` resolved to a writer handle, or an error.
+  // Former symbols seen in this file, with the handle of the security they
+  // name now (kUnknown: no security had that symbol either).
+  std::unordered_map<std::string, std::size_t> former;
+
+  // Symbol column `col` resolved to a writer handle, or an error. A symbol a
+  // security had before a change still names it, with one note per symbol.
   std::size_t security(std::size_t col) {
     std::string_view sym;
     if (!t.text(col, sym)) return store::MarketWriter::kUnknown;
-    const std::size_t h = w.security(sym);
+    std::size_t h = w.security(sym);
+    if (h == store::MarketWriter::kUnknown) h = former_security(sym);
     if (h == store::MarketWriter::kUnknown)
       t.error(col, fmt::format("unknown security '{}'; import or add it first", sym));
+    return h;
+  }
+
+  std::size_t former_security(std::string_view sym) {
+    const std::string key(sym);
+    if (const auto it = former.find(key); it != former.end()) return it->second;
+    std::size_t h = store::MarketWriter::kUnknown;
+    if (const auto now = store::find_security_by_former_symbol(db, key)) {
+      h = w.security(now->symbol);
+      sum.notes.push_back(fmt::format("{}:{}: '{}' is a former symbol of '{}'; booked to it",
+                                      errors.file(), t.line(), printable(sym),
+                                      printable(now->symbol)));
+    }
+    former.emplace(key, h);
     return h;
   }
 
@@ -339,7 +361,7 @@ MarketKind parse_market_kind(std::string_view text) {
     if (to_string(k) == text) return k;
   throw InputError(
       fmt::format("cannot import or export '{}'; expected one of: accounts, transactions, "
-                  "securities, prices, metrics, distributions, splits, fx",
+                  "actions, securities, prices, metrics, distributions, splits, fx",
                   printable(text)));
 }
 
@@ -372,7 +394,7 @@ ImportSummary import_market(store::Database& db, MarketKind what, const std::fil
   {
     store::MarketWriter writer(db, options.replace);
     TableReader table(csv, mapping, columns_for(what), errors);
-    Run run{table, errors, writer, sum, db, {}};
+    Run run{table, errors, writer, sum, db, {}, {}};
     import_rows(what, run, options, csv);
     sum.rows = table.rows();
   }

@@ -24,6 +24,7 @@
 #include <optional>
 #include <string>
 #include <string_view>
+#include <vector>
 
 #include "core/files.h"
 #include "io/csv.h"
@@ -49,6 +50,8 @@ struct ImportOptions {
   bool book_corrections = false;
   // Transactions from an OFX statement: the keel account it is for.
   std::optional<std::string> account;
+  // Corporate actions: no account holds the securities (ActionRequest::market_only).
+  bool market_only = false;
   // Called every so many rows with (rows so far, bytes read, file size).
   std::function<void(std::uint64_t, std::uint64_t, std::uint64_t)> progress;
   // When set, the import reads these bytes and the file only names them (in
@@ -72,6 +75,7 @@ struct ImportSummary {
   bool dry_run = false;
   std::optional<std::int64_t> run_id;                // set when recorded
   std::optional<store::ImportRun> same_file_before;  // an earlier run of identical bytes
+  std::vector<std::string> notes;  // "FILE:LINE: ...", e.g. a row naming a former symbol
 };
 
 ImportSummary import_market(store::Database& db, MarketKind what, const std::filesystem::path& file,

@@ -194,9 +194,16 @@ PostedAction write_action_unchecked(store::Database& db, const ActionRequest& r)
         throw InputError(fmt::format("{}: a split of {} on that day is already recorded", what,
                                      printable(r.symbol)));
   const auto holders = holders_at_start(log, security.id, r.date);
-  if (holders.empty())
-    throw InputError(fmt::format("{}: no account holds {} when {} begins", what,
-                                 printable(r.symbol), r.date.str()));
+  if (holders.empty() && !r.market_only)
+    throw InputError(
+        fmt::format("{}: no account holds {} when {} begins (give {} to record it "
+                    "as market data for back-tests and signal checks)",
+                    what, printable(r.symbol), r.date.str(), kMarketOnlyFlag));
+  if (!holders.empty() && r.market_only)
+    throw InputError(
+        fmt::format("{}: {}, but {} is held when {} begins, and the action changes "
+                    "those lots; leave the option out",
+                    what, kMarketOnlyFlag, printable(r.symbol), r.date.str()));
   refuse_locked(db, log, holders, r.date, what);
   posted.id = store::insert_action(db, a);
   return posted;

@@ -20,6 +20,9 @@
 
 namespace keel::ledger {
 
+// The option that records an action no account holds (ActionRequest::market_only).
+inline constexpr const char* kMarketOnlyFlag = "--market-only";
+
 struct ActionRequest {
   ActionKind kind = ActionKind::split;
   Date date;
@@ -32,6 +35,11 @@ struct ActionRequest {
   std::optional<Decimal> in_lieu_price;  // ... at this price per unit (required then)
   std::optional<std::string> note;
   bool allow_future = false;
+  // Market data only: no account holds the security on the day, and none
+  // need to (a name of a back-test's universe). Without it, an action nobody
+  // holds is refused as a likely slip of symbol or date; with it, an action
+  // some account holds is refused, since it would change that account's lots.
+  bool market_only = false;
 };
 
 // Throws ShapeError naming the first figure missing, extra or out of range:

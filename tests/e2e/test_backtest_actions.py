@@ -145,21 +145,18 @@ class BacktestThroughActions(unittest.TestCase):
         cls.ledger = Ledger()
         for what in ("securities", "prices", "metrics"):
             cls.ledger.ok("import", what, os.path.join(folder, f"{what}.csv"), "--quiet")
-        # An account holds the names, so the actions can be recorded.
+        # No account holds the names: the actions are market data for the back-test.
         cls.ledger.ok("account", "add", "Keeper")
-        cls.ledger.ok("record", "deposit", "--date", "2023-12-01", "--account", "Keeper",
-                      "--amount", "5000")
-        for s in ("BRAMBLE", "CLOVER", "DAHLIA", "ELDER"):
-            cls.ledger.ok("record", "buy", "--date", "2023-12-04", "--account", "Keeper",
-                          "--symbol", s, "--quantity", "10", "--price", "10")
         cls.ledger.ok("record", "merger", "--date", "2024-02-20", "--symbol", "BRAMBLE",
-                      "--into", "ASTER", "--ratio", "0.6", "--cash", "2.5")
+                      "--into", "ASTER", "--ratio", "0.6", "--cash", "2.5", "--market-only")
         cls.ledger.ok("record", "spinoff", "--date", "2024-03-11", "--symbol", "CLOVER",
-                      "--into", "FERN", "--ratio", "0.25", "--cost-percent", "15")
+                      "--into", "FERN", "--ratio", "0.25", "--cost-percent", "15", "--market-only")
         cls.ledger.ok("record", "delisting", "--date", "2024-04-15", "--symbol", "DAHLIA",
-                      "--cash", "7.25")
-        cls.ledger.ok("record", "return-of-capital", "--date", "2024-05-06", "--symbol", "ELDER",
-                      "--cash", "0.8")
+                      "--cash", "7.25", "--market-only")
+        actions = os.path.join(folder, "actions.csv")
+        with open(actions, "w") as f:
+            f.write("date,symbol,action,cash\n2024-05-06,ELDER,return_of_capital,0.8\n")
+        cls.ledger.ok("import", "actions", actions, "--market-only")
         cls.rule = os.path.join(folder, "rule.toml")
         with open(cls.rule, "w") as f:
             f.write(RULE)

@@ -355,7 +355,7 @@ import_row("splits: header only in another layout, bad skip_lines", "splits", "x
            "1000" % len(ROWS), mapping="[file]\nskip_lines = -1\n")
 row("import: unknown kind of data", ["import", "trades", "{d}/seed-prices.csv"], INPUT,
     "keel: error: cannot import or export 'trades'; expected one of: accounts, transactions, "
-    "securities, prices, metrics, distributions, splits, fx")
+    "actions, securities, prices, metrics, distributions, splits, fx")
 
 # --- exchange rates -------------------------------------------------------------------------
 import_row("fx: an unknown currency code", "fx", "date,base,quote,rate\n2024-03-01,EUR,XYZ,1.1\n",
@@ -826,10 +826,20 @@ row("action: a percentage over 100", ["record", "spinoff", "--date", "2024-03-01
 row("action: a day when no account holds the security",
     ["record", "return-of-capital", "--date", "2024-03-01", "--symbol", "VLM", "--cash", "1"], INPUT,
     "keel: error: a return-of-capital of VLM dated 2024-03-01: no account holds VLM when "
-    "2024-03-01 begins")
+    "2024-03-01 begins (give --market-only to record it as market data for back-tests and signal "
+    "checks)")
 row("action: a day before the security was held",
     ["record", "delisting", "--date", "2024-01-03", "--symbol", "QRX", "--cash", "0"], INPUT,
-    "keel: error: a delisting of QRX dated 2024-01-03: no account holds QRX when 2024-01-03 begins")
+    "keel: error: a delisting of QRX dated 2024-01-03: no account holds QRX when 2024-01-03 begins "
+    "(give --market-only to record it as market data for back-tests and signal checks)")
+row("action: --market-only for a security an account holds",
+    ["record", "delisting", "--date", "2024-03-01", "--symbol", "QRX", "--cash", "0",
+     "--market-only"], INPUT,
+    "keel: error: a delisting of QRX dated 2024-03-01: --market-only, but QRX is held when "
+    "2024-03-01 begins, and the action changes those lots; leave the option out")
+row("import: --market-only outside actions", ["import", "prices", "{d}/seed-prices.csv",
+                                              "--market-only"], INPUT,
+    "keel: error: --market-only: only for importing actions")
 row("action: cash in lieu without a price",
     ["record", "split", "--date", "2024-03-01", "--symbol", "QRX", "--ratio", "0.3",
      "--cash-in-lieu", ""], INPUT,

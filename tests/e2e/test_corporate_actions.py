@@ -155,6 +155,41 @@ equal(lots(led, "RLFY"), [("Rowan", 7, "2024-02-05", "90", "818.18")], "sold fro
 check(" RAIL " in led.ok("history", "--from", "2024-06-03", "--to", "2024-06-03"),
       "history shows the symbol of the day")
 verified(led)
+# ...and in market imports: closes and distributions under the old symbol are the security's,
+# with one note per symbol however many rows use it.
+closes = os.path.join(led.dir.name, "closes.csv")
+with open(closes, "w") as f:
+    f.write("date,symbol,close\n2024-07-01,RAIL,12.5\n2024-07-02,RAIL,12.75\n")
+out = led.ok("import", "prices", closes)
+equal(out.splitlines()[1:],
+      [f"note: {closes}:2: 'RAIL' is a former symbol of 'RLFY'; booked to it"],
+      "the market import's note, once")
+check(f"2024-07-02,RLFY,12.75" in led.ok("export", "prices"), "the close is RLFY's")
+payouts = os.path.join(led.dir.name, "payouts.csv")
+with open(payouts, "w") as f:
+    f.write("ex_date,symbol,per_share\n2024-07-03,RAIL,0.1\n")
+out = led.ok("import", "distributions", payouts)
+check(f"'RAIL' is a former symbol of 'RLFY'" in out, out)
+check("2024-07-03,2024-07-03,RLFY,0.1" in led.ok("export", "distributions"),
+      "the distribution is RLFY's")
+
+# --- the actions in force export in the layout `import actions` reads ---------------------------
+# (the voided delisting and its void are left out; RAIL is exported under its new symbol; the
+# merger's cost share is the one derived on its day)
+equal(led.ok("export", "actions"),
+      "date,symbol,action,into,ratio,cash,cost_percent,cash_in_lieu,note\n"
+      "2024-03-01,PLOV,split,,0.1,,,85,\n"
+      "2024-03-04,WREN,return_of_capital,,,3,,,first\n"
+      "2024-04-01,GULL,spinoff,KITE,0.25,,20,12,\n"
+      "2024-05-01,RLFY,stock_dividend,,0.1,,,,\n"
+      "2024-06-03,WREN,return_of_capital,,,4,,,second\n"
+      "2024-07-01,TERN,merger,SKUA,0.5,4,71.428571,,\n"
+      "2024-10-01,PLOV,delisting,,,0.35,,,\n", "keel export actions")
+exported = led.json("export", "actions")
+equal([(a["date"], a["symbol"], a["action"]) for a in exported][-2:],
+      [("2024-07-01", "TERN", "merger"), ("2024-10-01", "PLOV", "delisting")],
+      "the JSON form, same rows")
+equal(exported[-2].get("cost_percent"), "71.428571", "JSON: the merger's cost share")
 
 # The year-end statement's pieces (realized gains from the actions, the change in unrealized
 # gain, the cash they paid) add up to its closing value: the value series counts the units each

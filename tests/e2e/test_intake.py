@@ -82,7 +82,7 @@ def main():
             "date,symbol,close\n2024-01-02,QRX,1234.5\n2024-01-03,QRX,1240\n"
             "2024-01-02,VLM,98.1\n2024-01-03,VLM,98.25\n")
         p = keel(c, "import", "nonsense", sec, ok=False)
-        assert p.returncode == 1 and "expected one of: accounts, transactions, securities" in p.stderr
+        assert p.returncode == 1 and "expected one of: accounts, transactions, actions, securities" in p.stderr
     print("intake e2e: ok")
 
 

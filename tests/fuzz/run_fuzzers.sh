@@ -12,7 +12,7 @@
 #
 # The seed corpus in tests/fuzz/corpus/<target>/ is only read; inputs the
 # fuzzer finds go to BUILD/corpus/<target>/, crashing inputs to
-# BUILD/artifacts/<target>/.
+# BUILD/artifacts/<target>/. KEEL_FUZZ_JOBS (default 2) targets run at once.
 set -eu
 seconds=${1:-60}
 case $seconds in '' | *[!0-9]*)
@@ -43,24 +43,53 @@ set --
 for t in $targets; do set -- "$@" "fuzz_$t"; done
 cmake --build "$build" -j2 --target "$@"
 
-failed=0
-printf '%-10s %14s %10s %8s\n' target executions execs/s crashes
-for t in $targets; do
+# Each target runs in its own process; JOBS of them at once (default 2, the
+# cores of a small machine), so the whole run takes about
+# SECONDS * targets / JOBS. Results are printed in the order of $targets.
+jobs=${KEEL_FUZZ_JOBS:-2}
+case $jobs in '' | *[!0-9]* | 0)
+  echo "run_fuzzers.sh: KEEL_FUZZ_JOBS must be a whole number above 0, got '$jobs'" >&2
+  exit 2
+  ;;
+esac
+
+# Runs one target and writes "executions rate status" to BUILD/fuzz_T.result.
+run_target() {
+  t=$1
   corpus=$build/corpus/$t
   artifacts=$build/artifacts/$t
   mkdir -p "$corpus" "$artifacts"
   log=$build/fuzz_$t.log
   # Count only crashes of this run, not artifacts left by earlier ones.
-  marker=$artifacts/.run-start
-  touch "$marker"
+  touch "$artifacts/.run-start"
   status=0
   "$build/tests/fuzz/fuzz_$t" -max_total_time="$seconds" -print_final_stats=1 \
     -artifact_prefix="$artifacts/" "$corpus" "$root/tests/fuzz/corpus/$t" >"$log" 2>&1 ||
     status=$?
+  echo "$status" >"$build/fuzz_$t.status"
+}
+
+running=0
+for t in $targets; do
+  run_target "$t" &
+  running=$((running + 1))
+  if [ "$running" -ge "$jobs" ]; then
+    wait
+    running=0
+  fi
+done
+wait
+
+failed=0
+printf '%-10s %14s %10s %8s\n' target executions execs/s crashes
+for t in $targets; do
+  artifacts=$build/artifacts/$t
+  log=$build/fuzz_$t.log
+  status=$(cat "$build/fuzz_$t.status" 2>/dev/null || echo 1)
   execs=$(sed -n 's/^stat::number_of_executed_units: *//p' "$log" | tail -n 1)
   rate=$(sed -n 's/^stat::average_exec_per_sec: *//p' "$log" | tail -n 1)
-  crashes=$(find "$artifacts" -type f -newer "$marker" \( -name 'crash-*' -o -name 'leak-*' \
-    -o -name 'oom-*' -o -name 'timeout-*' \) | wc -l)
+  crashes=$(find "$artifacts" -type f -newer "$artifacts/.run-start" \( -name 'crash-*' \
+    -o -name 'leak-*' -o -name 'oom-*' -o -name 'timeout-*' \) | wc -l)
   if [ "$status" -ne 0 ] && [ "$crashes" -eq 0 ]; then crashes=1; fi
   printf '%-10s %14s %10s %8s\n' "$t" "${execs:-?}" "${rate:-?}" "$crashes"
   if [ "$crashes" -ne 0 ]; then

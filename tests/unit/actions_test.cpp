@@ -356,6 +356,34 @@ TEST_CASE("actions: a sale after the action sells the carried lots with their da
   CHECK(gains[0].long_term);
 }
 
+TEST_CASE("actions: market-only records an action no account holds and moves no lots") {
+  LedgerFixture f;
+  f.main_with_alfa("5000");
+  f.security("IDLE");
+  auto r = request(ActionKind::delisting, "2024-04-01", "IDLE", {.cash = "0"});
+  r.market_only = true;
+  const Book before = f.book();
+  CHECK(ledger::post_action(f.db, r).id == 1);
+  CHECK(f.book().account(1).cash == before.account(1).cash);
+  CHECK(f.gains().empty());
+  verify_clean(f);
+}
+
+TEST_CASE("bad input: market-only is refused for a security an account holds") {
+  LedgerFixture f;
+  f.main_with_alfa("5000");
+  f.buy("2024-01-03", "Main", "ALFA", "100", "10");
+  auto r = request(ActionKind::delisting, "2024-04-01", "ALFA", {.cash = "0"});
+  r.market_only = true;
+  const auto before = f.dump();
+  CHECK_THROWS_WITH_AS(ledger::post_action(f.db, r),
+                       "a delisting of ALFA dated 2024-04-01: --market-only, but ALFA is held "
+                       "when 2024-04-01 begins, and the action changes those lots; leave the "
+                       "option out",
+                       InputError);
+  CHECK(f.dump() == before);
+}
+
 TEST_CASE("bad input: corporate actions refused leave the ledger as it was") {
   LedgerFixture f;
   f.main_with_alfa("5000");
@@ -380,7 +408,8 @@ TEST_CASE("bad input: corporate actions refused leave the ledger as it was") {
           "spinoff: --cost-percent must be positive, not 0");
   refused(ActionKind::return_of_capital, "2024-04-01", "IDLE", {.cash = "1"},
           "a return-of-capital of IDLE dated 2024-04-01: no account holds IDLE when 2024-04-01 "
-          "begins");
+          "begins (give --market-only to record it as market data for back-tests and signal "
+          "checks)");
   refused(ActionKind::return_of_capital, "2024-03-01", "ALFA", {.cash = "2"},
           "a return-of-capital of ALFA dated 2024-03-01: action 1 is already a "
           "return-of-capital of ALFA on that day; void it first to record another");

@@ -262,3 +262,24 @@ TEST_CASE("signal: a merged name's forward return ends at its cash and the acqui
   // 1 + 0.4 x 20 = 9 against 10.
   CHECK(january_spread(m) == doctest::Approx(9.0 / 10 - 1).epsilon(1e-15));
 }
+
+TEST_CASE("signal: a spin-off's new units count in the parent's forward return") {
+  FlatMarket m;
+  m.act(ActionKind::spinoff, "OAKEN", "0.5", std::nullopt);
+  // One ALDER (10) keeps its close and gains 0.5 OAKEN at 5: 12.5 against 10.
+  CHECK(january_spread(m) == doctest::Approx(12.5 / 10 - 1).epsilon(1e-15));
+}
+
+TEST_CASE("signal: a return of capital counts as cash in the forward return") {
+  FlatMarket m;
+  m.act(ActionKind::return_of_capital, std::nullopt, std::nullopt, "1.5");
+  // The close stays at 10 and 1.50 was paid: 11.5 against 10.
+  CHECK(january_spread(m) == doctest::Approx(11.5 / 10 - 1).epsilon(1e-15));
+}
+
+TEST_CASE("signal: a stock dividend's new units count in the forward return") {
+  FlatMarket m;
+  m.act(ActionKind::stock_dividend, std::nullopt, "0.1", std::nullopt);
+  // 1.1 units at 10 against one at 10.
+  CHECK(january_spread(m) == doctest::Approx(11.0 / 10 - 1).epsilon(1e-15));
+}

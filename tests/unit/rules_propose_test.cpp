@@ -10,6 +10,7 @@
 #include "ledger_fixture.h"
 #include "rules/propose.h"
 #include "rules/repurchase.h"
+#include "store/action_store.h"
 #include "store/market_data.h"
 #include "store/price_write.h"
 
@@ -153,6 +154,48 @@ TEST_CASE("propose: figures known after the as-of day are not used") {
     if (l.symbol == "A") CHECK(l.figure->value == Decimal(30));
     if (l.symbol == "B") CHECK(l.figure->value == Decimal(40));
   }
+}
+
+namespace {
+
+// A delisting of `symbol` on 2024-05-15 paying `cash` a unit, as `keel record delisting` stores it.
+void delist(Month& m, const std::string& symbol, const char* cash) {
+  CorporateAction a;
+  a.security_id = store::security_with_symbol(m.db, symbol).id;
+  a.date = day("2024-05-15");
+  a.kind = ActionKind::delisting;
+  a.cash = dec(cash);
+  store::WriteTransaction tx(m.db);
+  store::insert_action(m.db, a);
+  tx.commit();
+}
+
+// The month's rule, content with the four names left.
+Rule four_names_rule() {
+  return month_rule(std::string(kMonthRule) + "\n[screen]\nmin_names = 4\n");
+}
+
+}  // namespace
+
+TEST_CASE("propose: a name delisted before the as-of day is screened out and never bought") {
+  Month m;
+  delist(m, "A", "0");  // the cheapest name, bought in the month worked out above
+  const auto p = propose(m.db, four_names_rule());
+  const auto line = std::find_if(p.screen.lines.begin(), p.screen.lines.end(),
+                                 [](const ScreenLine& l) { return l.symbol == "A"; });
+  REQUIRE(line != p.screen.lines.end());
+  CHECK(line->excluded_reason == "off the market since 2024-05-15 (merger or delisting)");
+  CHECK(p.screen.passed == 4);
+  for (const auto& o : p.plan.orders) CHECK(o.symbol != "A");
+}
+
+TEST_CASE("propose: a held name delisted before the as-of day is neither held nor sold") {
+  Month m;
+  delist(m, "D", "41");  // the held name the month above sells: paid 50 x 41 = 2050 instead
+  const auto p = propose(m.db, four_names_rule());
+  // Pool: cash 6000 + 2050 + C 100 x 22 = 10250.
+  CHECK(p.plan.pool_value == Decimal(10250));
+  for (const auto& o : p.plan.orders) CHECK(o.symbol != "D");
 }
 
 TEST_CASE("propose: posting the orders and proposing again finds nothing to do") {
