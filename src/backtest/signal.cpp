@@ -19,6 +19,21 @@
 
 namespace keel::backtest {
 
+std::array<std::optional<double>, 5> quintile_means(std::span<const double> returns) {
+  std::array<double, 5> sum{};
+  std::array<int, 5> count{};
+  const std::size_t n = returns.size();
+  for (std::size_t i = 0; i < n; ++i) {
+    const std::size_t q = 5 * i / n;
+    sum[q] += returns[i];
+    ++count[q];
+  }
+  std::array<std::optional<double>, 5> out;
+  for (std::size_t q = 0; q < 5; ++q)
+    if (count[q]) out[q] = sum[q] / count[q];
+  return out;
+}
+
 namespace {
 
 void check_request(const SignalRequest& req) {
@@ -125,6 +140,7 @@ SignalResult signal(const History& h, const rules::Rule& rule, const SignalReque
         dear += fwd[fwd.size() - 1 - i];
       }
       sd.spread = (cheap - dear) / static_cast<double>(fifth);
+      sd.quintiles = quintile_means(fwd);
       hr.days.push_back(sd);
     }
   }
@@ -141,12 +157,24 @@ SignalResult signal(const History& h, const rules::Rule& rule, const SignalReque
     }
     hr.ic_days = static_cast<int>(ics.size());
     if (!hr.days.empty()) hr.mean_spread = spread / static_cast<double>(hr.days.size());
+    for (std::size_t q = 0; q < 5; ++q) {
+      double sum = 0;
+      int n = 0;
+      for (const auto& d : hr.days)
+        if (d.quintiles[q]) {
+          sum += *d.quintiles[q];
+          ++n;
+        }
+      if (n) hr.quintile_means[q] = sum / n;
+    }
     if (ics.empty()) continue;
     const double n = static_cast<double>(ics.size());
     hr.mean_ic = std::accumulate(ics.begin(), ics.end(), 0.0) / n;
     hr.share_expected_sign = negative / n;
-    if (const auto sd = perf::sample_sd(ics); sd && *sd > 0)
-      hr.t_stat = *hr.mean_ic / (*sd / std::sqrt(n));
+    if (const auto sd = perf::sample_sd(ics); sd && *sd > 0) {
+      hr.ic_standard_error = *sd / std::sqrt(n);
+      hr.t_stat = *hr.mean_ic / *hr.ic_standard_error;
+    }
   }
   res.cautions = backtest_cautions();
   res.cautions.insert(res.cautions.begin(),

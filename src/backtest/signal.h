@@ -23,9 +23,13 @@
 //    a NEGATIVE IC; share_expected_sign counts the days with IC < 0.
 //  - Spread of a day: mean forward return of the cheapest fifth by z (floor(n/5)
 //    names, at least one) minus that of the dearest fifth.
-//  - Per horizon: mean IC, its t-statistic mean / (sd / sqrt(days)) with the
-//    sample sd (nullopt for fewer than two days or no spread), the share of
-//    days with the expected sign, and the mean spread. A day on which the
+//  - Quintiles of a day: the names in z order (cheapest first), name i of n
+//    in quintile floor(5 i / n); each quintile's mean forward return (unset
+//    for an empty one, as with fewer than five names).
+//  - Per horizon: mean IC, its standard error sd / sqrt(days) and
+//    t-statistic mean / standard error with the sample sd (nullopt for fewer
+//    than two days or no spread), the share of days with the expected sign,
+//    the mean spread, and each quintile's mean over the days it is set. A day on which the
 //    rule selects nothing still counts (the coefficient does not depend on
 //    the threshold); days without z's (too few names, no spread) are skipped
 //    with a note. With a [track_record], only names it lets through are
@@ -39,6 +43,7 @@
 //    1..240 months.
 #pragma once
 
+#include <array>
 #include <optional>
 #include <span>
 #include <string>
@@ -72,13 +77,15 @@ struct SignalDay {
   int names = 0;
   std::optional<double> ic;  // nullopt when the ranks have no spread
   double spread = 0;
+  std::array<std::optional<double>, 5> quintiles;  // cheapest first
 };
 
 struct HorizonResult {
   int months = 0;
   std::vector<SignalDay> days;
   int ic_days = 0;
-  std::optional<double> mean_ic, t_stat, share_expected_sign, mean_spread;
+  std::optional<double> mean_ic, ic_standard_error, t_stat, share_expected_sign, mean_spread;
+  std::array<std::optional<double>, 5> quintile_means;  // cheapest first
 };
 
 struct SignalResult {
@@ -94,6 +101,10 @@ struct SignalResult {
 SignalResult signal(store::Database& db, const rules::Rule& rule, const SignalRequest& request);
 // The same on preloaded history spanning [from, to].
 SignalResult signal(const History& history, const rules::Rule& rule, const SignalRequest& request);
+
+// Each quintile's mean of `returns`, given in z order (cheapest first):
+// element i of n in quintile floor(5 i / n); unset for an empty quintile.
+std::array<std::optional<double>, 5> quintile_means(std::span<const double> returns);
 
 // Spearman's rank correlation (rules/track_record.h).
 using rules::spearman;

@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <cmath>
 #include <set>
+#include <span>
 
 #include "backtest/backtest.h"
 #include "core/error.h"
@@ -184,6 +185,16 @@ Axis parse_axis(std::string_view text) {
   }
   finish();
   return axis;
+}
+
+std::vector<HalfSharpes> half_sharpes(const SweepResult& r) {
+  std::vector<HalfSharpes> out;
+  for (const auto& v : r.variants) {
+    const std::span<const double> all(v.monthly);
+    const std::size_t half = all.size() / 2;
+    out.push_back({perf::sharpe_ratio(all.first(half)), perf::sharpe_ratio(all.subspan(half))});
+  }
+  return out;
 }
 
 std::vector<std::string> sweep_cautions() {

@@ -129,4 +129,13 @@ SweepResult sweep(const History& history, const rules::Rule& rule, const SweepRe
 
 std::vector<std::string> sweep_cautions();
 
+// In sample against out of sample without choosing anything: each variant's
+// Sharpe ratio (perf::sharpe_ratio, per month) over the first half of the
+// months (the first floor(T / 2)) and over the rest, in variant order; unset
+// where it is undefined.
+struct HalfSharpes {
+  std::optional<double> first, second;
+};
+std::vector<HalfSharpes> half_sharpes(const SweepResult& r);
+
 }  // namespace keel::backtest

@@ -6,6 +6,7 @@
 #include <charconv>
 #include <cstdio>
 #include <filesystem>
+#include <functional>
 #include <memory>
 #include <optional>
 
@@ -19,6 +20,7 @@
 #include "core/text.h"
 #include "report/backtest_forms.h"
 #include "report/compare_forms.h"
+#include "report/research_html.h"
 #include "report/table.h"
 #include "rules/rule.h"
 
@@ -45,7 +47,7 @@ class Progress {
 
 // What a back-test and a comparison share.
 struct RunOptions {
-  std::string from, to, start_value = "100000", benchmark, curve;
+  std::string from, to, start_value = "100000", benchmark, curve, html;
   bool json = false;
   bool frictionless = false;
 };
@@ -59,23 +61,62 @@ backtest::Request run_request(const RunOptions& o, const Progress& progress) {
   backtest::Request req;
   req.from = date_value(o.from, "--from");
   req.to = date_value(o.to, "--to");
-  const auto sv = Decimal::try_parse(o.start_value);
-  if (!sv)
-    throw InputError(fmt::format("--start-value: '{}' is not a number", printable(o.start_value)));
-  req.start_value = *sv;
+  req.start_value = decimal_value(o.start_value, "--start-value");
   if (!o.benchmark.empty()) req.benchmark = o.benchmark;
   req.frictionless = o.frictionless;
   req.progress = [&progress](std::size_t done, std::size_t total, Date day) {
     progress(done, total, day);
   };
-  if (o.curve == "-" && o.json)
-    throw InputError("--curve -: standard output already carries the JSON");
+  one_on_standard_output({{"--curve", &o.curve}, {"--html", &o.html}}, o.json);
   return req;
 }
 
-void write_curve(OutputFile& file, const backtest::Result& r) {
-  file.write(report::backtest_curve_csv(r));
-  file.commit();
+// A command's files, opened (and so checked) before the run and written after it.
+struct Outputs {
+  std::optional<OutputFile> curve, html;
+  // A file on standard output: the report goes to standard error.
+  bool report_to_stderr() const {
+    return (curve && curve->to_stdout()) || (html && html->to_stdout());
+  }
+};
+
+void open_file(std::optional<OutputFile>& file, const std::string& path, const char* option) {
+  if (!path.empty()) file.emplace(path, OutputOptions{option});
+}
+
+// The --curve and --html files of a run.
+void open_files(Outputs& files, const RunOptions& o) {
+  open_file(files.curve, o.curve, "--curve");
+  open_file(files.html, o.html, "--html");
+}
+
+void write_file(std::optional<OutputFile>& file, const std::function<std::string()>& content) {
+  if (!file) return;
+  file->write(content());
+  file->commit();
+}
+
+// The report (text or JSON), then a line naming the page written.
+void show(const Outputs& files, bool json,
+          const std::function<std::string(const report::Style&)>& text,
+          const std::function<void()>& json_out) {
+  std::string line;
+  if (files.html && !files.html->to_stdout() && !json)
+    line = fmt::format("wrote HTML page {}\n", printable(files.html->target().string()));
+  if (files.report_to_stderr()) {
+    std::fputs((text(report::terminal_style(stderr)) + line).c_str(), stderr);
+    return;
+  }
+  if (json)
+    json_out();
+  else
+    out(text(report::terminal_style(stdout)) + line);
+}
+
+void add_html_option(CLI::App& cmd, std::string& html) {
+  cmd.add_option("--html", html,
+                 "Also write the report with its charts as one self-contained HTML page ('-': "
+                 "standard output, with the report on standard error)");
 }
 
 void add_backtest(CLI::App& app, Context& ctx) {
@@ -98,6 +139,7 @@ void add_backtest(CLI::App& app, Context& ctx) {
   cmd->add_option("--curve", o->curve,
                   "Write the daily values to this CSV file ('-': standard output, with the report "
                   "on standard error)");
+  add_html_option(*cmd, o->html);
   cmd->add_flag("--frictionless", o->frictionless,
                 "No fees, bands, minimum trade or reserve; fractional units, fully invested");
   cmd->add_option("--rolling", o->rolling, "Months held in the rolling-window table");
@@ -107,21 +149,16 @@ void add_backtest(CLI::App& app, Context& ctx) {
     req.keep_trades = o->json;  // the text report lists no trades
     req.rolling_months = o->rolling;
     const auto rule = rules::load_rule(o->rule);
-    // Opened (and so checked) before the run; written after it.
-    std::optional<OutputFile> curve;
-    if (!o->curve.empty()) curve.emplace(o->curve, OutputOptions{"--curve"});
+    Outputs files;
+    open_files(files, *o);
     auto db = ctx.open_ledger();
     const auto result = backtest::run(db, rule, req);
-    if (curve) write_curve(*curve, result);
-    if (curve && curve->to_stdout()) {
-      // The curve has standard output; the report goes to standard error.
-      std::fputs(report::backtest_text(result, report::terminal_style(stderr)).c_str(), stderr);
-      return;
-    }
-    if (o->json)
-      report::backtest_json(result, out);
-    else
-      out(report::backtest_text(result, ctx.style()));
+    write_file(files.curve, [&] { return report::backtest_curve_csv(result); });
+    write_file(files.html, [&] { return report::backtest_html(result); });
+    show(
+        files, o->json,
+        [&](const report::Style& style) { return report::backtest_text(result, style); },
+        [&] { report::backtest_json(result, out); });
   });
 }
 
@@ -176,6 +213,7 @@ void add_compare(CLI::App& app, Context& ctx) {
   cmd->add_option("--curve", o->curve,
                   "Write every run's daily values to this CSV file ('-': standard output, with "
                   "the report on standard error)");
+  add_html_option(*cmd, o->html);
   cmd->add_flag("--frictionless", o->frictionless,
                 "No fees, bands, minimum trade or reserve; fractional units, fully invested");
   cmd->callback([&ctx, o] {
@@ -185,24 +223,21 @@ void add_compare(CLI::App& app, Context& ctx) {
     req.rolling_months = o->hold_months;
     backtest::check_compare_request(o->rules.size(), req);
     const auto rules = compare_rules(o->rules);
-    std::optional<OutputFile> curve;
-    if (!o->curve.empty()) curve.emplace(o->curve, OutputOptions{"--curve"});
+    Outputs files;
+    open_files(files, *o);
     auto db = ctx.open_ledger();
     const auto result = backtest::compare(db, rules, req);
-    if (curve) {
-      curve->write(report::compare_curve_csv(result));
-      curve->commit();
-    }
-    if (curve && curve->to_stdout()) {
-      std::fputs(report::compare_text(result, report::terminal_style(stderr)).c_str(), stderr);
-      return;
-    }
-    out(o->json ? report::compare_json(result) : report::compare_text(result, ctx.style()));
+    write_file(files.curve, [&] { return report::compare_curve_csv(result); });
+    write_file(files.html, [&] { return report::compare_html(result); });
+    show(
+        files, o->json,
+        [&](const report::Style& style) { return report::compare_text(result, style); },
+        [&] { out(report::compare_json(result)); });
   });
 }
 
 struct SignalOptions {
-  std::string rule, from, to, horizons = "1,3,6,12,24";
+  std::string rule, from, to, horizons = "1,3,6,12,24", html;
   bool json = false, by_name = false;
 };
 
@@ -239,17 +274,24 @@ void add_signal(CLI::App& app, Context& ctx) {
   cmd->add_flag("--by-name", o->by_name,
                 "Also each name's track record per horizon: the correlation of its z with its "
                 "later returns over the period, and how many months it rests on");
+  add_html_option(*cmd, o->html);
   add_json_flag(*cmd, o->json);
   cmd->callback([&ctx, o] {
+    one_on_standard_output({{"--html", &o->html}}, o->json);
     backtest::SignalRequest req;
     req.from = date_value(o->from, "--from");
     req.to = date_value(o->to, "--to");
     req.horizons = horizons_option(o->horizons);
     req.by_name = o->by_name;
     const auto rule = rules::load_rule(o->rule);
+    Outputs files;
+    open_file(files.html, o->html, "--html");
     auto db = ctx.open_ledger();
     const auto r = backtest::signal(db, rule, req);
-    out(o->json ? report::signal_json(r) : report::signal_text(r, ctx.style()));
+    write_file(files.html, [&] { return report::signal_html(r); });
+    show(
+        files, o->json, [&](const report::Style& style) { return report::signal_text(r, style); },
+        [&] { out(report::signal_json(r)); });
   });
 }
 

@@ -5,12 +5,15 @@
 
 #include <cstdio>
 #include <memory>
+#include <optional>
 
 #include "backtest/sweep.h"
 #include "cli/context.h"
 #include "cli/options.h"
 #include "core/error.h"
+#include "core/files.h"
 #include "core/text.h"
+#include "report/research_html.h"
 #include "report/sweep_forms.h"
 #include "rules/rule.h"
 
@@ -18,7 +21,7 @@ namespace keel::cli {
 namespace {
 
 struct SweepOptions {
-  std::string rule, from, to, start_value = "100000", walk_forward;
+  std::string rule, from, to, start_value = "100000", walk_forward, html;
   std::vector<std::string> vary;
   std::size_t max_variants = 200;
   bool json = false;
@@ -71,21 +74,40 @@ void register_sweep_command(CLI::App& app, Context& ctx) {
   cmd->add_option("--start-value", o->start_value, "Cash each simulated pool starts with");
   cmd->add_flag("--frictionless", o->frictionless,
                 "No fees, bands, minimum trade or reserve; fractional units, fully invested");
+  cmd->add_option("--html", o->html,
+                  "Also write the report with its charts as one self-contained HTML page ('-': "
+                  "standard output, with the report on standard error)");
   add_json_flag(*cmd, o->json);
   cmd->callback([&ctx, o] {
+    one_on_standard_output({{"--html", &o->html}}, o->json);
     backtest::SweepRequest req;
     req.from = date_value(o->from, "--from");
     req.to = date_value(o->to, "--to");
-    req.start_value = *decimal_option(o->start_value, "--start-value");
+    req.start_value = decimal_value(o->start_value, "--start-value");
     req.frictionless = o->frictionless;
     req.max_variants = o->max_variants;
     for (const auto& v : o->vary) req.axes.push_back(backtest::parse_axis(v));
     if (!o->walk_forward.empty()) req.walk_forward = walk_forward_option(o->walk_forward);
     req.progress = show_progress;
     const auto rule = rules::load_rule(o->rule);
+    std::optional<OutputFile> html;
+    if (!o->html.empty()) html.emplace(o->html, OutputOptions{"--html"});
     auto db = ctx.open_ledger();
     const auto result = backtest::sweep(db, rule, req);
-    out(o->json ? report::sweep_json(result) : report::sweep_text(result, ctx.style()));
+    if (html) {
+      html->write(report::sweep_html(result));
+      html->commit();
+      if (html->to_stdout()) {
+        std::fputs(report::sweep_text(result, report::terminal_style(stderr)).c_str(), stderr);
+        return;
+      }
+    }
+    if (o->json) {
+      out(report::sweep_json(result));
+      return;
+    }
+    out(report::sweep_text(result, ctx.style()));
+    if (html) out(fmt::format("wrote HTML page {}\n", printable(o->html)));
   });
 }
 

@@ -88,12 +88,27 @@ Date date_option_or_today(const std::string& text, std::string_view option) {
   return date_option(text, option).value_or(Date::today());
 }
 
-std::optional<Decimal> decimal_option(const std::string& text, std::string_view option) {
-  if (text.empty()) return std::nullopt;
+Decimal decimal_value(const std::string& text, std::string_view option) {
   try {
     return Decimal::parse(text);
   } catch (const InputError& e) {
     throw InputError(fmt::format("{}: {}", option, e.what()));
+  }
+}
+
+std::optional<Decimal> decimal_option(const std::string& text, std::string_view option) {
+  if (text.empty()) return std::nullopt;
+  return decimal_value(text, option);
+}
+
+void one_on_standard_output(
+    const std::vector<std::pair<std::string_view, const std::string*>>& files, bool json) {
+  std::string taken = json ? "the JSON" : "";
+  for (const auto& file : files) {
+    if (*file.second != "-") continue;
+    if (!taken.empty())
+      throw InputError(fmt::format("{} -: standard output already carries {}", file.first, taken));
+    taken = fmt::format("{} -", file.first);
   }
 }
 

@@ -58,7 +58,13 @@ std::optional<std::string> text_option(const std::string& text);
 Date date_value(const std::string& text, std::string_view option);  // empty text is refused
 std::optional<Date> date_option(const std::string& text, std::string_view option);
 Date date_option_or_today(const std::string& text, std::string_view option);
+Decimal decimal_value(const std::string& text, std::string_view option);  // empty text is refused
 std::optional<Decimal> decimal_option(const std::string& text, std::string_view option);
+// Files a command may write, each (option, path); standard output carries
+// one thing: the JSON (when `json`), or one file given as "-". Throws
+// InputError "<option> -: standard output already carries <the other>".
+void one_on_standard_output(
+    const std::vector<std::pair<std::string_view, const std::string*>>& files, bool json);
 // A whole number in [lo, hi]; `what` names it in the error ("a calendar year
 // (1 to 9999)"). Empty text is refused like any other.
 int whole_number(const std::string& text, std::string_view option, int lo, int hi,

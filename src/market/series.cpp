@@ -23,8 +23,7 @@ constexpr double kNone = std::numeric_limits<double>::quiet_NaN();
 // (the double product errs by far less than a half).
 constexpr double kExactLimit = 1125899906842624.0;  // 2^50
 constexpr int kMaxScale = 15;
-constexpr double kPow10[] = {1e0, 1e1, 1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
-                             1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15};
+constexpr const double* kPow10 = Series::kScales;
 
 // Canonical decimal text without sign or exponent ("123.45"), as the ledger
 // stores closes: the integer of its digits and the count after the point.
@@ -346,10 +345,7 @@ int Series::price_places(int column) const {
 
 Decimal Series::exact(std::size_t row, int column) const {
   const Exact& ex = exact_[static_cast<std::size_t>(column)];
-  if (!ex.listed) {
-    const double v = value(row, column) * kPow10[ex.scale];
-    return Decimal::scaled(std::llround(v), ex.scale);
-  }
+  if (!ex.listed) return Decimal::scaled(scaled_close(row, column), ex.scale);
   const auto it = std::upper_bound(ex.list.begin(), ex.list.end(), row,
                                    [](std::size_t r, const auto& e) { return r < e.first; });
   if (it != ex.list.begin()) return std::prev(it)->second;

@@ -78,6 +78,10 @@ class Series final : public View {
   std::optional<Date> next_trading_day() const { return next_trading_day_; }
   const std::vector<Date>& rate_days() const { return rate_days_; }
 
+  // 10^scale for the scales a column keeps (at most 15, see exact()).
+  static constexpr double kScales[] = {1e0, 1e1, 1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
+                                       1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15};
+
   // Columns: one per loaded security, ascending by id.
   int columns() const { return static_cast<int>(ids_.size()); }
   int column(std::int64_t security_id) const;  // -1 when not loaded
@@ -97,6 +101,12 @@ class Series final : public View {
   // decimals (exact() rounds value x 10^places); -1 for a column kept as a
   // list of decimals.
   int price_places(int column) const;
+  // The close x 10^price_places(column), exactly: the stored decimal's
+  // mantissa at that scale. Requires has(row, column) and places >= 0.
+  long long scaled_close(std::size_t row, int column) const {
+    return std::llround(value(row, column) *
+                        kScales[exact_[static_cast<std::size_t>(column)].scale]);
+  }
 
   struct FigureRow {
     int column = 0;

@@ -43,6 +43,71 @@ std::vector<EntryDay> entry_days(const Replayer& replayer, const LedgerLog& log,
   return out;
 }
 
+__extension__ typedef __int128 Wide;  // GCC and Clang; -Wpedantic wants the marker
+
+// `d` as mantissa x 10^-scale when the mantissa has at most 18 digits. Read
+// from its canonical text: asked only when a holding's quantity changes.
+bool small_mantissa(const Decimal& d, long long& mantissa, int& scale) {
+  const std::string text = d.str();
+  long long m = 0;
+  int digits = 0;
+  for (const char c : text) {
+    if (c < '0' || c > '9') continue;  // the sign and the point
+    if (++digits > 18) return false;
+    m = m * 10 + (c - '0');
+  }
+  mantissa = d.is_negative() ? -m : m;
+  scale = d.scale();
+  return true;
+}
+
+// An exact sum of decimals kept as one 128-bit integer at one scale while it
+// fits, the rest in a Decimal. Valuing every holding on every day through
+// Decimal's arbitrary-precision integers cost as much as reading the closes;
+// the products of a quantity and a close almost always fit a machine word.
+class ExactSum {
+ public:
+  void clear() {
+    sum_ = 0;
+    scale_ = 0;
+    rest_ = Decimal();
+  }
+  void add(const Decimal& d) { rest_ += d; }
+  // Adds mantissa x 10^-scale.
+  void add(Wide mantissa, int scale) {
+    Wide sum = sum_;
+    if (scale > scale_ && !shifted(sum, scale - scale_)) return spill(mantissa, scale);
+    if (scale < scale_ && !shifted(mantissa, scale_ - scale)) return spill(mantissa, scale);
+    if (__builtin_add_overflow(sum, mantissa, &sum)) return spill(mantissa, scale);
+    sum_ = sum;
+    scale_ = std::max(scale, scale_);
+  }
+  Decimal total() const { return rest_ + decimal(sum_, scale_); }
+
+ private:
+  static bool shifted(Wide& v, int digits) {
+    for (; digits > 0; --digits)
+      if (__builtin_mul_overflow(v, Wide(10), &v)) return false;
+    return true;
+  }
+  void spill(Wide mantissa, int scale) { rest_ += decimal(mantissa, scale); }
+  // mantissa x 10^-scale in Decimal, through parts that each fit a long long.
+  static Decimal decimal(Wide mantissa, int scale) {
+    constexpr long long kE18 = 1000000000000000000LL;
+    const Decimal e18(kE18);
+    const auto high = static_cast<long long>(mantissa / kE18 / kE18);
+    const auto middle = static_cast<long long>(mantissa / kE18 % kE18);
+    const auto low = static_cast<long long>(mantissa % kE18);
+    Decimal out = (Decimal(high) * e18 + Decimal(middle)) * e18 + Decimal(low);
+    for (; scale > 0; scale -= std::min(scale, Decimal::kMaxScale))
+      out *= Decimal::scaled(1, std::min(scale, Decimal::kMaxScale));
+    return out;
+  }
+  Wide sum_ = 0;
+  int scale_ = 0;
+  Decimal rest_;
+};
+
 }  // namespace
 
 std::vector<std::int64_t> securities_held(const LedgerLog& log,
@@ -75,12 +140,15 @@ std::vector<std::string> currencies_of(const LedgerLog& log,
 
 LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
                           std::optional<std::int64_t> account_id, Date from, Date to,
-                          const std::string& currency) {
+                          const std::string& currency, const std::vector<Date>& book_days) {
   if (from > to)
     throw InputError(
         fmt::format("the period starts on {}, after its end {}", from.str(), to.str()));
   Replayer replayer(log);
   const Date first = from.plus_days(-1);
+  if (!std::is_sorted(book_days.begin(), book_days.end()) ||
+      (!book_days.empty() && book_days.front() < first))
+    throw std::invalid_argument("build_series: book days must ascend from the day before `from`");
   const auto& live = replayer.live();
 
   // Transfer-out rows whose receiving half is live: an internal pair.
@@ -109,6 +177,13 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
   };
 
   LedgerSeries out;
+  // The replay below passes every day once; the books asked for are copied
+  // on the way, so a caller needs no replay of its own.
+  std::size_t next_book = 0;
+  auto take_books = [&](Date through) {
+    for (; next_book < book_days.size() && book_days[next_book] <= through; ++next_book)
+      out.books.push_back(replayer.advance_to(book_days[next_book]));
+  };
   const auto days = entry_days(replayer, log, prices, first, to);
   out.series.reserve(days.size());
   std::size_t cursor = 0;  // next live transaction not yet looked at for flows
@@ -131,21 +206,64 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
   const auto actions = live_actions(log.actions);
   std::size_t action_cursor = 0;
   while (action_cursor < actions.size() && actions[action_cursor]->date <= first) ++action_cursor;
-  // Open quantities in scope, by (account, security).
-  std::map<std::pair<std::int64_t, std::int64_t>, Decimal> held;
+  // What is held on a day, by currency: one sum per currency met so far.
+  struct Local {
+    std::string currency;
+    ExactSum sum;
+    bool used = false;  // today
+  };
+  std::vector<Local> local;
+  auto slot_of = [&](const std::string& c) {
+    for (std::size_t i = 0; i < local.size(); ++i)
+      if (local[i].currency == c) return i;
+    local.push_back({c, {}, false});
+    return local.size() - 1;
+  };
+  auto add_local = [&](std::size_t slot) -> ExactSum& {
+    local[slot].used = true;
+    return local[slot].sum;
+  };
+  // Open quantities in scope, by (account, security), with the security's
+  // price column and currency looked up once, not on every day; the
+  // quantity's mantissa when it fits a machine word.
+  struct Held {
+    Decimal quantity;
+    bool small = false;
+    long long mantissa = 0;
+    int scale = 0;
+    int column = -1;
+    int places = -1;  // of the column's closes; -1: kept as decimals
+    std::size_t slot = 0;
+    bool placed = false;
+  };
+  std::map<std::pair<std::int64_t, std::int64_t>, Held> held;
+  auto hold = [&](std::int64_t account, std::int64_t security, Decimal quantity) {
+    Held& h = held[{account, security}];
+    h.quantity = std::move(quantity);
+    h.small = small_mantissa(h.quantity, h.mantissa, h.scale);
+    if (h.placed) return;
+    h.column = prices.column(security);
+    if (h.column < 0)
+      throw std::logic_error("build_series: the price series lacks a held security");
+    h.places = prices.price_places(h.column);
+    h.slot = slot_of(security_currency(security));
+    h.placed = true;
+  };
   auto refresh = [&](const Book& book, std::int64_t account, std::int64_t security) {
     const auto& positions = book.account(account).positions;
     const auto it = positions.find(security);
     if (it == positions.end())
       held.erase({account, security});
     else
-      held[{account, security}] = it->second.quantity();
+      hold(account, security, it->second.quantity());
   };
+
   // Not a structured binding: clang before 16 cannot capture one in the
   // lambdas below.
   for (const EntryDay& entry : days) {
     const Date d = entry.day;
     const bool rate_only = entry.rate_only;
+    take_books(d.plus_days(-1));
     const Book& book = replayer.advance_to(d);
     DayPoint point;
     point.day = d;
@@ -155,7 +273,7 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
       for (const auto& info : book.accounts())
         if (!account_id || info.id == *account_id)
           for (const auto& [security_id, position] : book.account(info.id).positions)
-            held[{info.id, security_id}] = position.quantity();
+            hold(info.id, security_id, position.quantity());
     } else {
       for (std::size_t i = cursor; i < live.size() && live[i]->date == d; ++i)
         if (live[i]->security_id && in_scope(*live[i]))
@@ -173,28 +291,40 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
           }
     }
     // What is held, by currency, converted once per currency.
-    std::map<std::string, Decimal> local;
+    for (auto& l : local) {
+      l.sum.clear();
+      l.used = false;
+    }
     for (const auto& info : book.accounts())
       if (!account_id || info.id == *account_id) {
         const AccountBook& ab = book.account(info.id);
-        local[info.currency] += ab.cash;
-        for (const auto& [c, lots] : ab.foreign_cash) local[c] += ab.foreign_balance(c);
+        add_local(slot_of(info.currency)).add(ab.cash);
+        for (const auto& [c, lots] : ab.foreign_cash)
+          add_local(slot_of(c)).add(ab.foreign_balance(c));
       }
-    for (const auto& [key, quantity] : held) {
-      if (const auto close = close_on(key.second, d))
-        local[security_currency(key.second)] += quantity * *close;
-      else if (const auto traded = book.last_trade_price(key.second))
-        local[security_currency(key.second)] += quantity * *traded;
-      else
+    const std::size_t row = prices.row(d);
+    for (const auto& [key, h] : held) {
+      if (prices.has(row, h.column)) {
+        if (h.small && h.places >= 0)
+          add_local(h.slot).add(Wide(h.mantissa) * prices.scaled_close(row, h.column),
+                                h.scale + h.places);
+        else
+          add_local(h.slot).add(h.quantity * prices.exact(row, h.column));
+      } else if (const auto traded = book.last_trade_price(key.second)) {
+        add_local(h.slot).add(h.quantity * *traded);
+      } else {
         out.unpriced_on.emplace_back(d, key.second);
+      }
     }
     bool foreign = false;
-    for (const auto& [c, amount] : local) {
+    for (const auto& l : local) {
+      if (!l.used) continue;
+      const Decimal amount = l.sum.total();
       // Nothing held in a currency needs no rate (an account in another
       // currency before its first deposit).
       if (amount.is_zero()) continue;
-      point.value += reported(amount, c, d);
-      foreign = foreign || c != currency;
+      point.value += reported(amount, l.currency, d);
+      foreign = foreign || l.currency != currency;
     }
     // A day with only a new rate changes nothing when nothing foreign is held.
     if (rate_only && !foreign) continue;
@@ -256,6 +386,7 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
     }
     out.series.push_back(std::move(point));
   }
+  take_books(Date::from_ymd(9999, 12, 31));
   for (const auto& t : out.totals) {
     out.income += t.income;
     out.tax += t.tax;

@@ -68,6 +68,9 @@ struct LedgerSeries {
   // and each day on which a security was held without a price.
   std::vector<DayTotals> totals;
   std::vector<std::pair<Date, std::int64_t>> unpriced_on;
+  // The whole ledger's book at the close of each of the book days asked for
+  // (every account, whatever the scope), in their order.
+  std::vector<Book> books;
 };
 
 // The series of a shorter period [from, to] inside the one built: the same
@@ -78,9 +81,12 @@ struct LedgerSeries {
 // to] is not inside the span built.
 LedgerSeries slice(const LedgerSeries& built, Date from, Date to);
 
+// `book_days` (ascending, none before from - 1, else std::invalid_argument):
+// days whose closing book is copied into `books` on the way, so that a caller
+// needing holdings or gains on them does not replay the log again.
 LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
                           std::optional<std::int64_t> account_id, Date from, Date to,
-                          const std::string& currency);
+                          const std::string& currency, const std::vector<Date>& book_days = {});
 
 // Every security the scope (one account by id, or the whole ledger) may hold
 // at some time: those its transactions name and, through corporate actions,

@@ -66,10 +66,12 @@ std::optional<Security> benchmark_of(store::Database& db, const ReturnsRequest& 
 
 // Every request resolved first, then one series over the union of their
 // periods, sliced for each (ledger_series.h).
-std::vector<ReturnsReport> reports_of(store::Database& db, const LedgerData& data,
-                                      const Scope& scope,
-                                      const std::vector<ReturnsRequest>& requests) {
-  std::vector<ReturnsReport> reports(requests.size());
+PeriodReports reports_of(store::Database& db, const LedgerData& data, const Scope& scope,
+                         const std::vector<ReturnsRequest>& requests,
+                         const std::vector<Date>& book_days = {}) {
+  PeriodReports out;
+  std::vector<ReturnsReport>& reports = out.reports;
+  reports.resize(requests.size());
   std::vector<std::optional<Security>> benches;
   std::optional<Date> from, to;
   for (std::size_t i = 0; i < requests.size(); ++i) {
@@ -84,7 +86,7 @@ std::vector<ReturnsReport> reports_of(store::Database& db, const LedgerData& dat
     if (!from || report.period.from < *from) from = report.period.from;
     if (!to || report.period.to > *to) to = report.period.to;
   }
-  if (requests.empty()) return reports;
+  if (requests.empty()) return out;
 
   market::Series::Request span;
   span.from = from->plus_days(-1);
@@ -96,7 +98,9 @@ std::vector<ReturnsReport> reports_of(store::Database& db, const LedgerData& dat
   for (const auto& bench : benches)
     if (bench) span.securities->push_back(bench->id);
   const auto prices = market::Series::load(db, span);
-  const auto built = build_series(data.log, prices, scope.account_id, *from, *to, scope.currency);
+  auto built =
+      build_series(data.log, prices, scope.account_id, *from, *to, scope.currency, book_days);
+  out.books = std::move(built.books);
 
   for (std::size_t i = 0; i < requests.size(); ++i) {
     ReturnsReport& report = reports[i];
@@ -150,7 +154,7 @@ std::vector<ReturnsReport> reports_of(store::Database& db, const LedgerData& dat
     }
     report.result = measure(input);
   }
-  return reports;
+  return out;
 }
 
 }  // namespace
@@ -178,23 +182,25 @@ LedgerData LedgerData::load(store::Database& db) {
 // reported as such whatever the rest of the ledger holds.
 ReturnsReport returns_report(store::Database& db, const ReturnsRequest& request) {
   const Scope scope = scope_of(db, request.account, request.currency);
-  return reports_of(db, LedgerData::load(db), scope, {request}).front();
+  return reports_of(db, LedgerData::load(db), scope, {request}).reports.front();
 }
 
 ReturnsReport returns_report(store::Database& db, const LedgerData& data,
                              const ReturnsRequest& request) {
-  return reports_of(db, data, scope_of(db, request.account, request.currency), {request}).front();
+  return reports_of(db, data, scope_of(db, request.account, request.currency), {request})
+      .reports.front();
 }
 
-std::vector<ReturnsReport> returns_reports(store::Database& db, const LedgerData& data,
-                                           const std::optional<std::string>& account,
-                                           const std::vector<ReturnsRequest>& requests) {
+PeriodReports returns_reports(store::Database& db, const LedgerData& data,
+                              const std::optional<std::string>& account,
+                              const std::vector<ReturnsRequest>& requests,
+                              const std::vector<Date>& book_days) {
   for (const auto& r : requests)
     if (r.account != account || r.currency != requests.front().currency)
       throw std::invalid_argument("returns_reports: every request must be of the one scope");
   return reports_of(
       db, data, scope_of(db, account, requests.empty() ? std::nullopt : requests.front().currency),
-      requests);
+      requests, book_days);
 }
 
 }  // namespace keel::perf

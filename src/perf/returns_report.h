@@ -82,11 +82,18 @@ ReturnsReport returns_report(store::Database& db, const ReturnsRequest& request)
 ReturnsReport returns_report(store::Database& db, const LedgerData& data,
                              const ReturnsRequest& request);
 // Several periods of one scope (every request's account is `account` and
-// every request's currency the first's, else std::invalid_argument), measured on one series built
-// over their union and sliced (perf::slice): one replay and one load of the closes. Each report
-// equals returns_report() of its request.
-std::vector<ReturnsReport> returns_reports(store::Database& db, const LedgerData& data,
-                                           const std::optional<std::string>& account,
-                                           const std::vector<ReturnsRequest>& requests);
+// every request's currency the first's, else std::invalid_argument), measured on one series built over their union and
+// sliced (perf::slice): one replay and one load of the closes. Each report
+// equals returns_report() of its request. That replay also copies the whole
+// ledger's book at the close of each of `book_days` (ascending, none before
+// the earliest period's day before; see build_series()).
+struct PeriodReports {
+  std::vector<ReturnsReport> reports;  // one per request, in their order
+  std::vector<Book> books;             // one per book day, in their order
+};
+PeriodReports returns_reports(store::Database& db, const LedgerData& data,
+                              const std::optional<std::string>& account,
+                              const std::vector<ReturnsRequest>& requests,
+                              const std::vector<Date>& book_days = {});
 
 }  // namespace keel::perf

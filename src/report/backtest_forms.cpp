@@ -353,17 +353,8 @@ void backtest_json(const backtest::Result& r, const Emit& emit) {
   emit(s + "\n");
 }
 
-std::string backtest_text(const backtest::Result& r, const Style& style) {
-  std::string s = fmt::format("Back-test of rule '{}' from {} to {} ({})\n", printable(r.rule_name),
-                              r.from.str(), r.to.str(),
-                              r.frictionless ? "frictionless: no fees, fractional units, fully "
-                                               "invested"
-                                             : "the rule's fees, bands and lot sizes");
-  s += fmt::format("Start value {}; {} rebalancing days, {} to {}\n\n", r.start_value.fixed(2),
-                   r.rebalance_days.size(), r.rebalance_days.front().str(),
-                   r.rebalance_days.back().str());
-  s += figures_table({{"rule", &r.rule}, {"baseline", &r.baseline}}, r.benchmark, style);
-
+std::string rolling_text(const backtest::Result& r) {
+  std::string s;
   for (const auto& w : r.rolling) {
     if (&w == &r.rolling.front())
       s += fmt::format("\nHeld {} months from the start of any complete month:\n", w.months);
@@ -377,6 +368,21 @@ std::string backtest_text(const backtest::Result& r, const Style& style) {
         w.against, w.beat, w.windows, 100.0 * w.beat / w.windows, pct(w.median_excess),
         pct(w.worst_excess), pct(w.best_excess));
   }
+  return s;
+}
+
+std::string backtest_text(const backtest::Result& r, const Style& style) {
+  std::string s = fmt::format("Back-test of rule '{}' from {} to {} ({})\n", printable(r.rule_name),
+                              r.from.str(), r.to.str(),
+                              r.frictionless ? "frictionless: no fees, fractional units, fully "
+                                               "invested"
+                                             : "the rule's fees, bands and lot sizes");
+  s += fmt::format("Start value {}; {} rebalancing days, {} to {}\n\n", r.start_value.fixed(2),
+                   r.rebalance_days.size(), r.rebalance_days.front().str(),
+                   r.rebalance_days.back().str());
+  s += figures_table({{"rule", &r.rule}, {"baseline", &r.baseline}}, r.benchmark, style);
+
+  s += rolling_text(r);
   if (r.down_markets) s += down_markets_text(*r.down_markets, style);
   return s + notes_and_cautions(r.notes, r.cautions);
 }
@@ -395,10 +401,21 @@ std::string benchmark_cell(const std::vector<std::optional<Decimal>>& curve, std
   return i < curve.size() && curve[i] ? curve[i]->str() : std::string();
 }
 
+namespace {
+
+void quintiles_json(JsonWriter& j, std::string_view name,
+                    const std::array<std::optional<double>, 5>& q) {
+  j.key(name).begin_array();
+  for (const auto& x : q) j.value(x);
+  j.end_array();
+}
+
+}  // namespace
+
 std::string signal_json(const backtest::SignalResult& r) {
   std::string s;
   JsonWriter j(s);
-  begin_document(j, "signal", 2);
+  begin_document(j, "signal", 3);
   j.member("rule", r.rule_name).member("from", r.from.str()).member("to", r.to.str());
   j.member("sign_convention",
            "IC = Spearman(z, forward return); low z is cheap, so a rule whose cheap names do "
@@ -407,13 +424,16 @@ std::string signal_json(const backtest::SignalResult& r) {
   for (const auto& h : r.horizons) {
     j.begin_object();
     j.member("months", h.months).member("days", static_cast<unsigned long long>(h.days.size()));
-    j.member("mean_ic", h.mean_ic).member("t_stat", h.t_stat);
+    j.member("mean_ic", h.mean_ic).member("ic_standard_error", h.ic_standard_error);
+    j.member("t_stat", h.t_stat);
     j.member("share_expected_sign", h.share_expected_sign).member("mean_spread", h.mean_spread);
+    quintiles_json(j, "quintile_means", h.quintile_means);
     j.key("by_day").begin_array();
     for (const auto& d : h.days) {
       j.begin_object();
       j.member("date", d.day.str()).member("end", d.end.str()).member("names", d.names);
       j.member("ic", d.ic).member("spread", d.spread);
+      quintiles_json(j, "quintiles", d.quintiles);
       j.end_object();
     }
     j.end_array();
@@ -438,7 +458,7 @@ std::string signal_json(const backtest::SignalResult& r) {
   return s + "\n";
 }
 
-std::string signal_text(const backtest::SignalResult& r, const Style& style) {
+std::string signal_figures_text(const backtest::SignalResult& r, const Style& style) {
   std::string s = fmt::format("Signal check of rule '{}' from {} to {}\n", printable(r.rule_name),
                               r.from.str(), r.to.str());
   s += "IC = Spearman rank correlation of z with the forward total return. Low z is cheap, so a "
@@ -476,7 +496,11 @@ std::string signal_text(const backtest::SignalResult& r, const Style& style) {
     }
     s += names.render(style);
   }
-  return s + notes_and_cautions(r.notes, r.cautions);
+  return s;
+}
+
+std::string signal_text(const backtest::SignalResult& r, const Style& style) {
+  return signal_figures_text(r, style) + notes_and_cautions(r.notes, r.cautions);
 }
 
 std::string closing_notes(const std::vector<std::string>& notes,

@@ -30,6 +30,9 @@ namespace keel::report {
 
 std::string backtest_text(const backtest::Result& r, const Style& style);
 std::string backtest_json(const backtest::Result& r);
+// The text report's lines on the rolling windows ("Held N months from the
+// start of any complete month: ..."), empty without windows.
+std::string rolling_text(const backtest::Result& r);
 // The same JSON handed to `emit` in parts as it is written (a run's trades
 // can be tens of MB).
 using Emit = std::function<void(const std::string&)>;
@@ -53,6 +56,8 @@ std::string notes_and_cautions(const std::vector<std::string>& notes,
                                const std::vector<std::string>& cautions);
 
 std::string signal_text(const backtest::SignalResult& r, const Style& style);
+// The same without its closing notes and cautions.
+std::string signal_figures_text(const backtest::SignalResult& r, const Style& style);
 std::string signal_json(const backtest::SignalResult& r);
 
 // The notes (when there are any) and cautions that end a back-test's, a

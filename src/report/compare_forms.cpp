@@ -2,9 +2,13 @@
 
 #include <fmt/format.h>
 
+#include <initializer_list>
+#include <optional>
+
 #include "core/json.h"
 #include "core/text.h"
 #include "io/csv.h"
+#include "perf/relative.h"
 #include "report/backtest_forms.h"
 #include "report/format.h"
 #include "report/json_schema.h"
@@ -35,6 +39,70 @@ void run_json(JsonWriter& j, const std::string& label, std::string_view kind,
 }
 
 }  // namespace
+
+std::string starts_table(const backtest::CompareResult& r, const Style& style, bool every_start) {
+  // The first and last few start months; a summary of every one below them.
+  constexpr std::size_t kEnds = 3;
+  std::vector<Table::Column> cols{{"start", Align::left}};
+  for (const auto& name : r.series) cols.push_back({name, Align::right});
+  Table t(cols);
+  const std::size_t n = r.starts.size();
+  const bool shortened = !every_start && n > 2 * kEnds + 2;
+  auto add = [&](std::size_t k) {
+    std::vector<std::string> cells{month_text(r.starts[k])};
+    for (const auto& series : r.returns) cells.push_back(pct(series[k]));
+    t.add_row(std::move(cells));
+  };
+  for (std::size_t k = 0; k < n; ++k) {
+    if (shortened && k == kEnds) {
+      t.add_row(std::vector<std::string>(cols.size(), "..."));
+      k = n - kEnds;
+    }
+    add(k);
+  }
+  t.add_rule();
+  // Each series' own figures: its excess over a return of zero.
+  std::vector<perf::ExcessSummary> sums;
+  for (const auto& series : r.returns) {
+    const std::vector<std::optional<double>> xs(series.begin(), series.end());
+    const std::vector<std::optional<double>> zero(xs.size(), 0.0);
+    sums.push_back(perf::compare_returns(xs, zero));
+  }
+  for (const auto& [label, pick] :
+       std::initializer_list<std::pair<const char*, std::optional<double> perf::ExcessSummary::*>>{
+           {"worst", &perf::ExcessSummary::worst},
+           {"median", &perf::ExcessSummary::median},
+           {"best", &perf::ExcessSummary::best}}) {
+    std::vector<std::string> cells{label};
+    for (const auto& sum : sums) cells.push_back(pct(sum.*pick));
+    t.add_row(std::move(cells));
+  }
+  std::string s = t.render(style);
+  if (shortened)
+    s += fmt::format(
+        "{} of {} start months are left out above; --json and the --html page list every one.\n",
+        n - 2 * kEnds, n);
+  return s;
+}
+
+std::string pairings_text(const backtest::CompareResult& r, const Style& style) {
+  std::string s = fmt::format(
+      "\nEach rule against the others, held {} months (excess: the rule's return "
+      "less the other's):\n",
+      r.hold_months);
+  Table p({{"rule", Align::left, true},
+           {"against", Align::left, true},
+           {"rule ahead", Align::right},
+           {"mean excess", Align::right},
+           {"median", Align::right},
+           {"worst", Align::right},
+           {"best", Align::right}});
+  for (const auto& pr : r.pairings)
+    p.add_row({r.series[pr.series], r.series[pr.against], ahead_text(pr.excess),
+               pct(pr.excess.mean), pct(pr.excess.median), pct(pr.excess.worst),
+               pct(pr.excess.best)});
+  return s + p.render(style);
+}
 
 std::string compare_text(const backtest::CompareResult& r, const Style& style) {
   std::string s = fmt::format(
@@ -67,32 +135,8 @@ std::string compare_text(const backtest::CompareResult& r, const Style& style) {
   } else {
     s += fmt::format(": {} starts, {} to {}\n", r.starts.size(), month_text(r.starts.front()),
                      month_text(r.starts.back()));
-    std::vector<Table::Column> cols{{"start", Align::left}};
-    for (const auto& name : r.series) cols.push_back({name, Align::right});
-    Table t(cols);
-    for (std::size_t k = 0; k < r.starts.size(); ++k) {
-      std::vector<std::string> cells{month_text(r.starts[k])};
-      for (const auto& series : r.returns) cells.push_back(pct(series[k]));
-      t.add_row(std::move(cells));
-    }
-    s += t.render(style);
-
-    s += fmt::format(
-        "\nEach rule against the others, held {} months (excess: the rule's return "
-        "less the other's):\n",
-        r.hold_months);
-    Table p({{"rule", Align::left, true},
-             {"against", Align::left, true},
-             {"rule ahead", Align::right},
-             {"mean excess", Align::right},
-             {"median", Align::right},
-             {"worst", Align::right},
-             {"best", Align::right}});
-    for (const auto& pr : r.pairings)
-      p.add_row({r.series[pr.series], r.series[pr.against], ahead_text(pr.excess),
-                 pct(pr.excess.mean), pct(pr.excess.median), pct(pr.excess.worst),
-                 pct(pr.excess.best)});
-    s += p.render(style);
+    s += starts_table(r, style, false);
+    s += pairings_text(r, style);
   }
   if (r.down_markets)
     s += down_markets_text(*r.down_markets, style);

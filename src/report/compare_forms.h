@@ -3,8 +3,9 @@
 //
 // Contract
 //  - Text: the back-test figures of every rule, the baseline and the
-//    benchmark side by side; the start-any-month table (one row per start
-//    month, each series' compounded return over the holding period); each
+//    benchmark side by side; the start-any-month table (each series'
+//    compounded return over the holding period from the first and last
+//    three start months, and its worst, median and best over all); each
 //    rule against the benchmark, the baseline and the other rules; the down
 //    markets (with a benchmark); notes and cautions.
 //  - JSON (core/json.h, schema keel.compare): figures as numbers, money as
@@ -24,6 +25,13 @@
 namespace keel::report {
 
 std::string compare_text(const backtest::CompareResult& r, const Style& style);
+// The start-any-month table as the text shows it: the first and last three
+// start months (all of them when there are at most eight), then each
+// series' worst, median and best; and a line counting those left out.
+// With `every_start`, every start month.
+std::string starts_table(const backtest::CompareResult& r, const Style& style, bool every_start);
+// Each rule against the benchmark, the baseline and the other rules.
+std::string pairings_text(const backtest::CompareResult& r, const Style& style);
 std::string compare_json(const backtest::CompareResult& r);
 std::string compare_curve_csv(const backtest::CompareResult& r);
 

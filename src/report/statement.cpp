@@ -230,7 +230,11 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
       measure(fmt::format("{} years", n), from);
     }
   }
-  const auto reports = perf::returns_reports(db, data, request.account, requests);
+  // The replay that builds the series also keeps the books the holdings and
+  // gains below need: at the close of the day before the year and of its end.
+  const Date before = resolved.period.from.plus_days(-1);
+  auto measured = perf::returns_reports(db, data, request.account, requests, {before, to});
+  const auto& reports = measured.reports;
   std::size_t next_unavailable = 0;
   for (const auto& [label, index] : lines) {
     if (!index) {
@@ -266,13 +270,10 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   s.growth = portfolio_growth(r);
   if (s.benchmark) s.benchmark_growth = benchmark_growth(db, *s.benchmark, s.from, s.to);
 
-  // One replay of the log read above: holdings at the close of the day
-  // before the period and of its last day; the parts realized and the cost
-  // basis moved by then.
-  Replayer replayer(data.log);
-  const Date before = s.from.plus_days(-1);
-  const auto opening = ledger::holdings_of(replayer.advance_to(before), view, before, account_id);
-  const Book& book = replayer.advance_to(s.to);
+  // Holdings at the close of the day before the period and of its last day;
+  // the parts realized and the cost basis moved by then.
+  const auto opening = ledger::holdings_of(measured.books[0], view, before, account_id);
+  const Book& book = measured.books[1];
   const auto closing = ledger::holdings_of(book, view, s.to, account_id);
   s.holdings_total = closing.total_value;
   s.cash = closing.cash;

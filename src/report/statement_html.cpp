@@ -11,6 +11,7 @@
 #include <functional>
 
 #include "core/text.h"
+#include "report/html.h"
 #include "report/statement_forms.h"
 
 namespace keel::report {
@@ -29,34 +30,7 @@ constexpr const char* kPaper = "#fbf8f2";
 constexpr const char* kAllocation = kSlate;
 
 std::string esc(const std::string& raw) {
-  const std::string text = valid_utf8(raw) ? raw : printable(raw);
-  std::string out;
-  out.reserve(text.size());
-  for (const char c : text) {
-    switch (c) {
-      case '&':
-        out += "&amp;";
-        break;
-      case '<':
-        out += "&lt;";
-        break;
-      case '>':
-        out += "&gt;";
-        break;
-      case '"':
-        out += "&quot;";
-        break;
-      case '\'':
-        out += "&#39;";
-        break;
-      default:
-        if (static_cast<unsigned char>(c) < 0x20 && c != '\n' && c != '\t')
-          out += "&#xFFFD;";  // control characters have no place in a page
-        else
-          out += c;
-    }
-  }
-  return out;
+  return html_escape(raw);
 }
 
 // 1234567.5 -> "1,234,567.50"
@@ -129,16 +103,6 @@ std::string f1(double x) {
 
 const char* const kMonths[] = {"Jan", "Feb", "Mar", "Apr", "May", "Jun",
                                "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"};
-
-// Rounded tick step covering `span` in about `target` steps: 1, 2 or 5 x 10^k.
-double nice_step(double span, int target) {
-  if (!(span > 0)) return 1;
-  const double raw = span / target;
-  const double p = std::pow(10.0, std::floor(std::log10(raw)));
-  for (const double m : {1.0, 2.0, 5.0, 10.0})
-    if (raw <= m * p) return m * p;
-  return 10 * p;
-}
 
 struct Frame {
   double width = 680, height = 262, left = 52, right = 14, top = 28, bottom = 34;

@@ -76,6 +76,10 @@ std::string walk_forward_text(const backtest::SweepResult& r, const Style& style
 }  // namespace
 
 std::string sweep_text(const backtest::SweepResult& r, const Style& style) {
+  return sweep_figures_text(r, style) + closing_notes(r.notes, r.cautions);
+}
+
+std::string sweep_figures_text(const backtest::SweepResult& r, const Style& style) {
   std::string s =
       fmt::format("Sweep of rule '{}' from {} to {} ({}), start value {}\n", printable(r.rule_name),
                   r.from.str(), r.to.str(),
@@ -134,7 +138,7 @@ std::string sweep_text(const backtest::SweepResult& r, const Style& style) {
         p.combinations, p.rows_used, p.blocks);
   }
   if (r.walk_forward) s += walk_forward_text(r, style);
-  return s + closing_notes(r.notes, r.cautions);
+  return s;
 }
 
 std::string sweep_json(const backtest::SweepResult& r) {

@@ -20,6 +20,8 @@
 namespace keel::report {
 
 std::string sweep_text(const backtest::SweepResult& r, const Style& style);
+// The same without its closing notes and cautions.
+std::string sweep_figures_text(const backtest::SweepResult& r, const Style& style);
 std::string sweep_json(const backtest::SweepResult& r);
 
 }  // namespace keel::report

@@ -424,18 +424,30 @@ void summarize(OrderPlan& plan, const Portfolio& portfolio, const std::vector<Wo
 
 namespace {
 
+// A plan before its summary (steps::summarize), with what the summary needs:
+// only the last of the rounds below is summarized.
+struct Draft {
+  OrderPlan plan;
+  std::vector<steps::Work> work;
+  steps::PoolValue pool;
+  bool summarize = false;  // false: an empty pool, nothing to summarize
+};
+
 // One plan with the pool's targets set on its value less `fee_guess[a]` for
 // each account a (the fees the plan itself is expected to cost).
-OrderPlan plan_once(const Portfolio& portfolio, const std::vector<Target>& targets,
-                    const Quotes& quotes, const TradingRule& trading, Date as_of,
-                    const std::vector<Decimal>& fee_guess, Explain explain) {
-  OrderPlan plan;
-  steps::PoolValue pool = steps::value_pool(portfolio, quotes, trading, fee_guess);
+Draft plan_once(const Portfolio& portfolio, const std::vector<Target>& targets,
+                const Quotes& quotes, const TradingRule& trading, Date as_of,
+                const std::vector<Decimal>& fee_guess, Explain explain) {
+  Draft draft;
+  OrderPlan& plan = draft.plan;
+  steps::PoolValue& pool = draft.pool;
+  pool = steps::value_pool(portfolio, quotes, trading, fee_guess);
   plan.pool_value = pool.value;
   plan.invested_target = pool.invested_target;
-  if (!plan.pool_value.is_positive()) return plan;
+  if (!plan.pool_value.is_positive()) return draft;
 
-  const auto work = steps::work_list(portfolio, targets, quotes, pool);
+  draft.work = steps::work_list(portfolio, targets, quotes, pool);
+  const auto& work = draft.work;
   std::vector<steps::BuyWish> wishes;
   for (const auto& x : work) {
     auto d = steps::decide(x, trading, as_of, explain);
@@ -460,8 +472,8 @@ OrderPlan plan_once(const Portfolio& portfolio, const std::vector<Target>& targe
   auto buys = steps::buy_orders(wishes, portfolio, pool.cash, pool.reserve, trading, explain);
   for (auto& o : buys.orders) plan.orders.push_back(std::move(o));
   for (auto& s : buys.skipped) plan.skipped.push_back(std::move(s));
-  steps::summarize(plan, portfolio, work, pool);
-  return plan;
+  draft.summarize = true;
+  return draft;
 }
 
 }  // namespace
@@ -473,17 +485,18 @@ OrderPlan orders(const Portfolio& portfolio, const std::vector<Target>& targets,
   // fees depend on the orders, so iterate to a fixed point (a few rounds;
   // the last plan is used if it has not settled).
   std::vector<Decimal> guess(portfolio.accounts.size());
-  OrderPlan plan = plan_once(portfolio, targets, quotes, trading, as_of, guess, explain);
+  Draft draft = plan_once(portfolio, targets, quotes, trading, as_of, guess, explain);
   for (int round = 0; round < 8; ++round) {
     std::vector<Decimal> fees(portfolio.accounts.size());
-    for (const auto& o : plan.orders)
+    for (const auto& o : draft.plan.orders)
       for (std::size_t a = 0; a < portfolio.accounts.size(); ++a)
         if (portfolio.accounts[a].id == o.account_id) fees[a] += o.fee;
     if (fees == guess) break;
     guess = std::move(fees);
-    plan = plan_once(portfolio, targets, quotes, trading, as_of, guess, explain);
+    draft = plan_once(portfolio, targets, quotes, trading, as_of, guess, explain);
   }
-  return plan;
+  if (draft.summarize) steps::summarize(draft.plan, portfolio, draft.work, draft.pool);
+  return std::move(draft.plan);
 }
 
 Portfolio apply(const Portfolio& portfolio, const std::vector<Order>& orders) {

@@ -14,6 +14,7 @@
 #include "core/text.h"
 #include "store/record_change_store.h"
 #include "store/sql_values.h"
+#include "store/statement.h"
 
 namespace keel::store {
 namespace {
@@ -49,29 +50,42 @@ constexpr const char* kTxnColumns =
     "txn.rate, txn.to_currency";
 constexpr const char* kTxnFrom = "txn LEFT JOIN correction ON correction.new_txn_id = txn.id";
 
-Transaction read_txn(SQLite::Statement& st) {
+// Read through the raw statement: the ledger's every row passes here on
+// each report, and views of the row's text spare a copy of each column.
+Transaction read_txn(const Statement& st) {
+  auto text = [&](int c) -> std::optional<std::string> {
+    if (st.null(c)) return std::nullopt;
+    return std::string(st.text(c));
+  };
+  auto decimal = [&](int c) -> std::optional<Decimal> {
+    if (st.null(c)) return std::nullopt;
+    return Decimal::parse(st.text(c));
+  };
+  auto id = [&](int c) -> std::optional<std::int64_t> {
+    if (st.null(c)) return std::nullopt;
+    return st.integer(c);
+  };
   Transaction t;
-  t.id = st.getColumn(0).getInt64();
-  t.account_id = st.getColumn(1).getInt64();
-  t.date = Date::parse(st.getColumn(2).getString());
-  const std::string kind = st.getColumn(3).getString();
+  t.id = st.integer(0);
+  t.account_id = st.integer(1);
+  t.date = Date::parse(st.text(2));
+  const std::string_view kind = st.text(3);
   t.kind = kind == "void" ? TxnKind::void_entry : parse_txn_kind(kind);
-  t.security_id = opt_id(st.getColumn(4));
-  t.quantity = opt_decimal(st.getColumn(5));
-  t.price = opt_decimal(st.getColumn(6));
-  t.amount = opt_decimal(st.getColumn(7));
-  t.fee = Decimal::parse(st.getColumn(8).getString());
-  if (auto acquired = opt_text(st.getColumn(9))) t.acquired = Date::parse(*acquired);
-  if (auto lots = opt_text(st.getColumn(10)); lots && !lots->empty())
-    t.lots = parse_lot_picks(*lots);
-  t.link_id = opt_id(st.getColumn(11));
-  t.voids_id = opt_id(st.getColumn(12));
-  t.ref = opt_text(st.getColumn(13));
-  t.row_hash = opt_text(st.getColumn(14));
-  t.note = opt_text(st.getColumn(15));
-  t.currency = opt_text(st.getColumn(16));
-  t.rate = opt_decimal(st.getColumn(17));
-  t.to_currency = opt_text(st.getColumn(18));
+  t.security_id = id(4);
+  t.quantity = decimal(5);
+  t.price = decimal(6);
+  t.amount = decimal(7);
+  t.fee = Decimal::parse(st.text(8));
+  if (!st.null(9)) t.acquired = Date::parse(st.text(9));
+  if (!st.null(10) && !st.text(10).empty()) t.lots = parse_lot_picks(st.text(10));
+  t.link_id = id(11);
+  t.voids_id = id(12);
+  t.ref = text(13);
+  t.row_hash = text(14);
+  t.note = text(15);
+  t.currency = text(16);
+  t.rate = decimal(17);
+  t.to_currency = text(18);
   return t;
 }
 
@@ -322,18 +336,25 @@ std::int64_t insert_transaction(Database& db, const Transaction& t) {
 }
 
 std::optional<Transaction> find_transaction(Database& db, std::int64_t id) {
-  SQLite::Statement st(db.sql(),
-                       fmt::format("SELECT {} FROM {} WHERE id = ?", kTxnColumns, kTxnFrom));
+  Statement st(db.sql().getHandle(),
+               fmt::format("SELECT {} FROM {} WHERE id = ?", kTxnColumns, kTxnFrom).c_str());
   st.bind(1, id);
-  if (!st.executeStep()) return std::nullopt;
-  return read_txn(st);
+  if (!st.next()) return std::nullopt;
+  auto t = read_txn(st);
+  st.reset();
+  return t;
 }
 
 std::vector<Transaction> list_transactions(Database& db) {
-  SQLite::Statement st(db.sql(),
-                       fmt::format("SELECT {} FROM {} ORDER BY date, id", kTxnColumns, kTxnFrom));
   std::vector<Transaction> out;
-  while (st.executeStep()) out.push_back(read_txn(st));
+  // Reserved up front: a Transaction is large, and growing the vector by
+  // doubling would move every row read so far, again and again.
+  Statement count(db.sql().getHandle(), "SELECT count(*) FROM txn");
+  if (count.next()) out.reserve(static_cast<std::size_t>(count.integer(0)));
+  count.reset();
+  Statement st(db.sql().getHandle(),
+               fmt::format("SELECT {} FROM {} ORDER BY date, id", kTxnColumns, kTxnFrom).c_str());
+  while (st.next()) out.push_back(read_txn(st));
   return out;
 }
 

@@ -611,6 +611,29 @@ row("sweep: --start-value of zero",
 row("sweep: --from after --to", ["sweep", "--rule", "{d}/rule.toml", "--from", "2024-12-31",
     "--to", "2024-01-01", "--vary", "select.count=5"], INPUT,
     "keel: error: --from: 2024-12-31 is after --to 2024-01-01", SWEEP_RULE)
+row("sweep: an empty --start-value (it was read from an unset value and crashed)",
+    SWEEP + ["--vary", "select.count=5", "--start-value", ""], INPUT,
+    "keel: error: --start-value: '' is not a decimal number: expected digits", SWEEP_RULE)
+row("sweep: --html in a folder that does not exist",
+    SWEEP + ["--vary", "select.count=5", "--html", "{d}/missing/sweep.html"], INPUT,
+    "keel: error: --html {d}/missing/sweep.html: the folder '{d}/missing' does not exist",
+    SWEEP_RULE)
+BACKTEST = ["backtest", "--rule", "{d}/rule.toml", "--from", "2024-01-01", "--to", "2024-12-31"]
+row("backtest: --start-value that is not a number", BACKTEST + ["--start-value", "lots"], INPUT,
+    "keel: error: --start-value: 'lots' is not a decimal number: expected digits", SWEEP_RULE)
+row("backtest: --html in a folder that does not exist",
+    BACKTEST + ["--html", "{d}/missing/backtest.html"], INPUT,
+    "keel: error: --html {d}/missing/backtest.html: the folder '{d}/missing' does not exist",
+    SWEEP_RULE)
+row("backtest: --html - with --json", BACKTEST + ["--html", "-", "--json"], INPUT,
+    "keel: error: --html -: standard output already carries the JSON", SWEEP_RULE)
+row("backtest: --curve - and --html -", BACKTEST + ["--curve", "-", "--html", "-"], INPUT,
+    "keel: error: --html -: standard output already carries --curve -", SWEEP_RULE)
+row("signal: --html in a folder that does not exist",
+    ["signal", "--rule", "{d}/rule.toml", "--from", "2024-01-01", "--to", "2024-12-31", "--html",
+     "{d}/missing/signal.html"], INPUT,
+    "keel: error: --html {d}/missing/signal.html: the folder '{d}/missing' does not exist",
+    SWEEP_RULE)
 COMPARE_RULES = {"a.toml": b"[scope]\naccounts = [\"Alder Taxable\"]\n\n[select]\nz_max = -0.5\n",
                  "b.toml": b"[scope]\naccounts = [\"Alder Taxable\"]\n\n[select]\nz_max = -1\n"}
 row("compare: one rule file",
@@ -628,6 +651,11 @@ row("compare: a holding period longer than the data",
      "--hold-months", "24"], INPUT,
     "keel: error: --hold-months: 24 months is longer than the 12 complete months from "
     "2024-01-01 to 2024-12-31", COMPARE_RULES)
+row("compare: --html in a folder that does not exist",
+    ["compare", "{d}/a.toml", "{d}/b.toml", "--from", "2024-01-01", "--to", "2024-12-31",
+     "--hold-months", "12", "--html", "{d}/missing/compare.html"], INPUT,
+    "keel: error: --html {d}/missing/compare.html: the folder '{d}/missing' does not exist",
+    COMPARE_RULES)
 row("compare: a holding period of no months",
     ["compare", "{d}/a.toml", "{d}/b.toml", "--from", "2024-01-01", "--to", "2024-12-31",
      "--hold-months", "0"], INPUT,

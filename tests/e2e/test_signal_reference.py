@@ -1,5 +1,6 @@
-"""keel signal agrees with scipy.stats.spearmanr and scipy.stats.ttest_1samp
-(Debian's python3-scipy) on two invented universes: one whose figures are
+"""keel signal agrees with scipy.stats.spearmanr, scipy.stats.ttest_1samp and
+scipy.stats.sem (Debian's python3-scipy), and its score quintiles with a pandas
+groupby (python3-pandas), on two invented universes: one whose figures are
 built to predict the next month's returns (cheap names drift up), and one
 where they are noise. Sign convention: low z is cheap, so a working signal
 has a negative IC.
@@ -55,8 +56,10 @@ def generate(folder, seed, strength):
 
 def reference(folder, start, end, horizons):
     """Per horizon: the IC of each day (scipy.stats.spearmanr), its mean, the
-    one-sample t statistic (scipy.stats.ttest_1samp), the share below zero and
-    the mean cheapest-less-dearest-fifth spread."""
+    one-sample t statistic (scipy.stats.ttest_1samp), its standard error
+    (scipy.stats.sem), the share below zero, the mean cheapest-less-dearest-fifth
+    spread, and each score quintile's mean forward return (name i of n by z in
+    quintile floor(5 i / n), pandas groupby) by day and over the days."""
     px = pd.read_csv(os.path.join(folder, "prices.csv"), parse_dates=["date"])
     close = px.pivot(index="date", columns="symbol", values="close").sort_index()
     m = pd.read_csv(os.path.join(folder, "metrics.csv"), parse_dates=["date", "known_on"])
@@ -65,7 +68,7 @@ def reference(folder, start, end, horizons):
     last = list(last[(last >= start) & (last <= end)])
     out = {}
     for h in horizons:
-        ics, spreads = [], []
+        ics, spreads, quintiles = [], [], []
         for i, d in enumerate(last):
             if i + h >= len(last):
                 break
@@ -78,10 +81,15 @@ def reference(folder, start, end, horizons):
             order = f.assign(sym=f.index).sort_values(["value", "sym"]).index
             k = max(1, len(order) // 5)
             spreads.append(fwd[order[:k]].mean() - fwd[order[-k:]].mean())
+            ranked = pd.Series(fwd[order].to_numpy())
+            group = np.floor(5 * np.arange(len(ranked)) / len(ranked)).astype(int)
+            quintiles.append(ranked.groupby(group).mean().reindex(range(5)))
         ics = np.array(ics)
         out[h] = {"days": len(ics), "ics": ics, "mean_ic": ics.mean(),
                   "t_stat": stats.ttest_1samp(ics, 0).statistic,
-                  "share": float((ics < 0).mean()), "spread": float(np.mean(spreads))}
+                  "share": float((ics < 0).mean()), "spread": float(np.mean(spreads)),
+                  "sem": stats.sem(ics), "quintiles": quintiles,
+                  "quintile_means": pd.concat(quintiles, axis=1).mean(axis=1)}
     return out
 
 
@@ -101,8 +109,13 @@ class SignalReference(unittest.TestCase):
             for hk in k["horizons"]:
                 ref = r[hk["months"]]
                 self.assertEqual(hk["days"], ref["days"])
-                for day, ic in zip(hk["by_day"], ref["ics"]):
+                for day, ic, q in zip(hk["by_day"], ref["ics"], ref["quintiles"]):
                     self.assertAlmostEqual(day["ic"], ic, delta=TOL, msg=day["date"])
+                    for got, want in zip(day["quintiles"], q):
+                        self.assertAlmostEqual(got, want, delta=TOL, msg=day["date"])
+                self.assertAlmostEqual(hk["ic_standard_error"], ref["sem"], delta=TOL)
+                for got, want in zip(hk["quintile_means"], ref["quintile_means"]):
+                    self.assertAlmostEqual(got, want, delta=TOL)
                 self.assertAlmostEqual(hk["mean_ic"], ref["mean_ic"], delta=TOL)
                 self.assertAlmostEqual(hk["t_stat"], ref["t_stat"], delta=1e-7)
                 self.assertAlmostEqual(hk["share_expected_sign"], ref["share"], delta=TOL)
@@ -115,6 +128,9 @@ class SignalReference(unittest.TestCase):
         self.assertLess(h[1]["t_stat"], -5)
         self.assertGreater(h[1]["share_expected_sign"], 0.8)
         self.assertGreater(h[1]["mean_spread"], 0)
+        # Cheap names did better: the quintiles' returns fall from the cheapest to the dearest.
+        q = h[1]["quintile_means"]
+        self.assertGreater(q[0], q[4])
 
     def test_a_noise_figure_has_an_ic_near_zero(self):
         h = self.check_universe(seed=6, strength=0.0)

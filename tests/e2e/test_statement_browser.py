@@ -14,13 +14,13 @@ import re
 import shutil
 import subprocess
 import sys
-import tempfile
 
 sys.path.insert(0, os.path.dirname(__file__))
+import browser  # noqa: E402
 from keel_cli import KEEL, Ledger, check, equal  # noqa: E402
 from statement_household import household  # noqa: E402
 
-chromium = shutil.which("chromium") or shutil.which("chromium-browser")
+chromium = browser.find_chromium()
 if not chromium:
     print("SKIP: no chromium on PATH; install it with: apt-get install chromium")
     sys.exit(77)
@@ -50,14 +50,7 @@ pages = subprocess.run(["pdfinfo", pdf], capture_output=True, text=True, check=T
 check("Pages:" in pages, pages)
 
 png = os.path.join(work, "statement.png")
-profile = tempfile.mkdtemp(prefix="keel-shot-")
-try:
-    subprocess.run([chromium, "--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking",
-                    "--disable-component-update", "--disable-sync", "--no-first-run", "--hide-scrollbars",
-                    f"--user-data-dir={profile}", f"--screenshot={png}", "--window-size=900,3400",
-                    "file://" + html], capture_output=True, timeout=180, check=True)
-finally:
-    shutil.rmtree(profile, ignore_errors=True)
+browser.render(chromium, html, png)
 with open(png, "rb") as f:
     equal(f.read(8), b"\x89PNG\r\n\x1a\n", "a PNG screenshot")
 

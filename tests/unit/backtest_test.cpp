@@ -228,6 +228,27 @@ TEST_CASE("signal: Spearman's rho is undefined when one side has no spread") {
   CHECK_FALSE(bt::spearman(x, y).has_value());
 }
 
+TEST_CASE("signal: seven names fall into quintiles of 2, 1, 2, 1 and 1 by z order") {
+  // floor(5 i / 7) for i = 0..6: 0 0 1 2 2 3 4 (hand computation).
+  const std::vector<double> r{0.10, 0.20, 0.30, 0.40, 0.60, 0.70, 0.80};
+  const auto q = bt::quintile_means(r);
+  CHECK(*q[0] == doctest::Approx(0.15).epsilon(1e-15));
+  CHECK(*q[1] == doctest::Approx(0.30).epsilon(1e-15));
+  CHECK(*q[2] == doctest::Approx(0.50).epsilon(1e-15));
+  CHECK(*q[3] == doctest::Approx(0.70).epsilon(1e-15));
+  CHECK(*q[4] == doctest::Approx(0.80).epsilon(1e-15));
+}
+
+TEST_CASE("signal: fewer than five names leave quintiles empty") {
+  const std::vector<double> r{0.10, 0.20};
+  const auto q = bt::quintile_means(r);
+  CHECK(*q[0] == doctest::Approx(0.10).epsilon(1e-15));
+  CHECK_FALSE(q[1].has_value());
+  CHECK(*q[2] == doctest::Approx(0.20).epsilon(1e-15));
+  CHECK_FALSE(q[3].has_value());
+  CHECK_FALSE(q[4].has_value());
+}
+
 // The frictionless pool counts in doubles; the same run in exact decimals
 // (units to 20 places) is the reference. Over a year of monthly rebalancing
 // with a split and reinvested distributions, every value agrees to 1e-12.

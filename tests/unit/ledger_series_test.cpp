@@ -67,13 +67,18 @@ struct SeriesFixture : LedgerFixture {
     ledger::post(db, in);
   }
 
-  perf::LedgerSeries series(std::optional<std::string> account, const char* from, const char* to) {
+  // The closes and rates of every security and currency over [from, to].
+  market::Series prices(const LedgerLog& log, const char* from, const char* to) {
     market::Series::Request span;
-    span.from = day(from).plus_days(-1);
+    span.from = day(from);
     span.to = day(to);
-    const auto log = ledger::load_log(db);
     span.currencies = perf::currencies_of(log, store::list_securities(db));
-    const auto prices = market::Series::load(db, span);
+    return market::Series::load(db, span);
+  }
+
+  perf::LedgerSeries series(std::optional<std::string> account, const char* from, const char* to) {
+    const auto log = ledger::load_log(db);
+    const auto prices = this->prices(log, day(from).plus_days(-1).str().c_str(), to);
     std::optional<std::int64_t> id;
     if (account) id = account_id(*account);
     return perf::build_series(log, prices, id, day(from), day(to), "USD");
@@ -231,7 +236,7 @@ TEST_CASE("returns of several periods measured together equal each measured alon
   requests[1].period.from = day("2024-01-06");
   requests[1].period.to = day("2024-01-08");
   requests[2].period.from = day("2024-01-08");
-  const auto together = perf::returns_reports(f.db, data, std::nullopt, requests);
+  const auto together = perf::returns_reports(f.db, data, std::nullopt, requests).reports;
   REQUIRE(together.size() == 3);
   for (std::size_t i = 0; i < requests.size(); ++i) {
     INFO("request " << i);
@@ -242,4 +247,75 @@ TEST_CASE("returns of several periods measured together equal each measured alon
     CHECK(together[i].income == alone.income);
     CHECK(together[i].fees == alone.fees);
   }
+}
+
+TEST_CASE("the books kept on the way equal a replay to each day, whatever the scope") {
+  SeriesFixture f;
+  const auto log = ledger::load_log(f.db);
+  const auto prices = f.prices(log, "2024-01-02", "2024-01-10");
+  // 01-07 has no entry of its own (a Sunday without closes); 01-12 lies past the span.
+  const std::vector<Date> days{day("2024-01-02"), day("2024-01-04"), day("2024-01-07"),
+                               day("2024-01-12")};
+  const auto built = perf::build_series(log, prices, f.account_id("Birch"), day("2024-01-03"),
+                                        day("2024-01-10"), "USD", days);
+  REQUIRE(built.books.size() == days.size());
+  for (std::size_t i = 0; i < days.size(); ++i) {
+    INFO("day " << days[i].str());
+    const Book alone = replay(log, days[i]);
+    for (const auto& a : alone.accounts()) {
+      CHECK(built.books[i].account(a.id).cash == alone.account(a.id).cash);
+      CHECK(built.books[i].account(a.id).positions.size() == alone.account(a.id).positions.size());
+    }
+    CHECK(built.books[i].moved().size() == alone.moved().size());
+  }
+  // Alder bought 10 QUILL on 01-03 and sent 5 away on 01-05.
+  const auto alder = f.account_id("Alder");
+  CHECK(built.books[1].account(alder).positions.at(f.id_of("QUILL")).quantity() == dec("10"));
+  CHECK(built.books[2].account(alder).positions.at(f.id_of("QUILL")).quantity() == dec("5"));
+}
+
+TEST_CASE("book days before the day before the period are refused") {
+  SeriesFixture f;
+  const auto log = ledger::load_log(f.db);
+  const auto prices = f.prices(log, "2024-01-03", "2024-01-10");
+  CHECK_THROWS_AS(perf::build_series(log, prices, std::nullopt, day("2024-01-04"),
+                                     day("2024-01-10"), "USD", {day("2024-01-02")}),
+                  std::invalid_argument);
+  CHECK_THROWS_AS(
+      perf::build_series(log, prices, std::nullopt, day("2024-01-04"), day("2024-01-10"), "USD",
+                         {day("2024-01-06"), day("2024-01-05")}),
+      std::invalid_argument);
+}
+
+TEST_CASE("a day's value stays exact when its holdings' products overflow machine integers") {
+  LedgerFixture f;
+  f.account("Alder");
+  f.security("VAST");
+  f.security("MITE");
+  auto bring = [&](const char* symbol, const char* quantity) {
+    ledger::PostRequest in;
+    in.kind = TxnKind::transfer_in;
+    in.date = day("2024-01-02");
+    in.account = "Alder";
+    in.symbol = symbol;
+    in.quantity = dec(quantity);
+    in.price = dec("1");
+    ledger::post(f.db, in);
+  };
+  bring("VAST", "100000000000000000");
+  bring("MITE", "0.0000000001");
+  const auto id = [&](const char* s) { return store::find_security(f.db, s)->id; };
+  store::upsert_price(f.db, id("VAST"), day("2024-01-03"), dec("999999999999999"));
+  store::upsert_price(f.db, id("MITE"), day("2024-01-03"), dec("3.5"));
+  const auto log = ledger::load_log(f.db);
+  market::Series::Request span;
+  span.from = day("2024-01-02");
+  span.to = day("2024-01-03");
+  const auto prices = market::Series::load(f.db, span);
+  const auto s =
+      perf::build_series(log, prices, std::nullopt, day("2024-01-03"), day("2024-01-03"), "USD");
+  // 10^17 x 999999999999999 + 10^-10 x 3.5: 32 digits before the point and 11
+  // after do not fit one 128-bit integer.
+  REQUIRE(s.series.size() == 2);
+  CHECK(s.series.back().value == dec("99999999999999900000000000000000.00000000035"));
 }

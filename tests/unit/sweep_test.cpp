@@ -3,6 +3,8 @@
 
 #include <doctest/doctest.h>
 
+#include <cmath>
+
 #include "core/error.h"
 #include "rules/rule.h"
 
@@ -67,4 +69,21 @@ TEST_CASE("sweep: a key that changes the data loaded is refused") {
                        "--vary screen.metric: a sweep reads the market data once, for the rule's "
                        "own universe and metric; sweep each metric in a run of its own",
                        InputError);
+}
+
+TEST_CASE("sweep: each variant's Sharpe ratio in the first half of the months and the rest") {
+  SweepResult r;
+  VariantRun a;
+  // First half 0.01, 0.03: mean 0.02, sample sd 0.0141421356...; second 0.02, 0.02, 0.05:
+  // mean 0.03, sample sd 0.0173205080... (hand computation).
+  a.monthly = {0.01, 0.03, 0.02, 0.02, 0.05};
+  VariantRun flat;
+  flat.monthly = {0.01, 0.01, 0.02, 0.03};
+  r.variants = {a, flat};
+  const auto h = half_sharpes(r);
+  REQUIRE(h.size() == 2);
+  CHECK(*h[0].first == doctest::Approx(0.02 / std::sqrt(0.0002)).epsilon(1e-12));
+  CHECK(*h[0].second == doctest::Approx(0.03 / std::sqrt(0.0003)).epsilon(1e-12));
+  CHECK_FALSE(h[1].first.has_value());  // no spread: undefined
+  CHECK(*h[1].second == doctest::Approx(0.025 / std::sqrt(0.00005)).epsilon(1e-12));
 }
