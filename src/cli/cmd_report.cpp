@@ -44,7 +44,7 @@ std::string percent(const Decimal& part, const Decimal& whole) {
 }
 
 struct ViewOptions {
-  std::string as_of, account, from, to;
+  std::string as_of, account, from, to, currency;
   int year = 0;
   bool json = false, csv = false;
 };
@@ -56,11 +56,16 @@ void add_holdings(CLI::App& app, Context& ctx) {
                {"keel holdings --as-of 2025-12-31", "keel holdings --account Taxable --json"});
   cmd->add_option("--as-of", o->as_of, "Day to value at, YYYY-MM-DD (default: today)");
   add_account_option(*cmd, o->account);
+  add_currency_option(*cmd, o->currency);
   add_json_and_csv_flags(*cmd, o->json, o->csv);
   cmd->callback([&ctx, o] {
+    const auto asked = currency_option(o->currency);
+    const Date as_of = date_option_or_today(o->as_of, "--as-of");
     auto db = ctx.open_ledger();
-    const auto h =
-        ledger::holdings(db, date_option_or_today(o->as_of, "--as-of"), text_option(o->account));
+    const auto account = text_option(o->account);
+    const auto h = with_currency_option(asked, [&] {
+      return ledger::holdings(db, as_of, account, ledger::reporting_currency(db, asked, account));
+    });
     if (o->json) {
       print_json([&](JsonWriter& j) {
         // A position or cash in another currency: its own figures and the rate used.
@@ -124,6 +129,7 @@ void add_holdings(CLI::App& app, Context& ctx) {
     // rates used are listed under the table.
     std::vector<std::string> rates_used;
     auto note_rate = [&](const market::FxQuote& q) {
+      if (q.how == market::FxHow::same) return;  // cash in the reporting currency itself
       const std::string text = q.describe();
       if (std::find(rates_used.begin(), rates_used.end(), text) == rates_used.end())
         rates_used.push_back(text);
@@ -150,7 +156,7 @@ void add_holdings(CLI::App& app, Context& ctx) {
     }
     t.add_rule();
     t.add_row({"total", "", "", "", "", money(h.total_value), "", ""});
-    out(fmt::format("Holdings as of {}\n\n", h.as_of.str()));
+    out(fmt::format("Holdings as of {}{}\n\n", h.as_of.str(), asked ? " in " + *asked : ""));
     out(t.render(ctx.style()));
     bool any_trade_price = false;
     for (const auto& p : h.positions) any_trade_price |= !p.price_is_close;
@@ -165,11 +171,14 @@ void add_lots(CLI::App& app, Context& ctx) {
   add_examples(*cmd, {"keel lots --as-of 2025-12-31 --account Taxable"});
   cmd->add_option("--as-of", o->as_of, "Day, YYYY-MM-DD (default: today)");
   add_account_option(*cmd, o->account);
+  add_currency_option(*cmd, o->currency);
   add_json_and_csv_flags(*cmd, o->json, o->csv);
   cmd->callback([&ctx, o] {
+    const auto asked = currency_option(o->currency);
+    const Date as_of = date_option_or_today(o->as_of, "--as-of");
     auto db = ctx.open_ledger();
-    const auto lots =
-        ledger::open_lots(db, date_option_or_today(o->as_of, "--as-of"), text_option(o->account));
+    const auto lots = with_currency_option(
+        asked, [&] { return ledger::open_lots(db, as_of, text_option(o->account), asked); });
     if (o->json) {
       print_json([&](JsonWriter& j) {
         report::begin_document(j, "lots", 1).key("lots").begin_array();
@@ -263,14 +272,20 @@ void add_gains(CLI::App& app, Context& ctx) {
       cmd->add_option("--repurchase-window", o->repurchase_window,
                       "Flag each sale at a loss with a buy of the same security, in any account, "
                       "this many days before or after it (off unless given)");
+  add_currency_option(*cmd, o->currency);
   add_json_and_csv_flags(*cmd, o->json, o->csv);
   cmd->callback([&ctx, o, window] {
     if (o->year != 0 && (o->year < 1 || o->year > 9999))
       throw InputError(fmt::format("--year: '{}' is not a calendar year (1 to 9999)", o->year));
     if (window->count() > 0) ledger::check_repurchase_window(o->repurchase_window);
+    const auto asked = currency_option(o->currency);
     auto db = ctx.open_ledger();
-    auto gains = ledger::realized_gains(db, o->year ? std::optional<int>(o->year) : std::nullopt,
-                                        text_option(o->account));
+    const auto account = text_option(o->account);
+    auto gains = with_currency_option(asked, [&] {
+      return ledger::realized_gains(db, o->year ? std::optional<int>(o->year) : std::nullopt,
+                                    account, std::nullopt,
+                                    ledger::reporting_currency(db, asked, account));
+    });
     if (window->count() > 0) ledger::flag_repurchases(db, gains, o->repurchase_window);
     std::vector<ledger::GainLine> taxable, elsewhere;
     for (auto& g : gains) (g.taxable() ? taxable : elsewhere).push_back(std::move(g));

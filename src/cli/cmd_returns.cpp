@@ -14,7 +14,8 @@ namespace keel::cli {
 namespace {
 
 struct ReturnsOptions {
-  std::string account, from, to, year, period, as_of, benchmark, method = "daily", risk_free;
+  std::string account, from, to, year, period, as_of, benchmark, method = "daily", risk_free,
+                                                                 currency;
   bool monthly = false;
   bool json = false;
 };
@@ -40,6 +41,7 @@ void add_returns(CLI::App& app, Context& ctx) {
   cmd->add_option("--risk-free", o->risk_free,
                   "Annual risk-free rate as a fraction (0.02 = 2 %), for the Sharpe ratio");
   cmd->add_flag("--monthly", o->monthly, "Show the month-by-month table");
+  add_currency_option(*cmd, o->currency);
   add_json_flag(*cmd, o->json);
   cmd->callback([&ctx, o] {
     if (o->method != "daily" && o->method != "dietz")
@@ -54,6 +56,7 @@ void add_returns(CLI::App& app, Context& ctx) {
     request.period.period = text_option(o->period);
     request.as_of = date_option(o->as_of, "--as-of");
     request.benchmark = text_option(o->benchmark);
+    request.currency = currency_option(o->currency);
     if (!o->risk_free.empty()) {
       const auto rate = Decimal::try_parse(o->risk_free);
       if (!rate || *rate <= Decimal(-1))
@@ -63,7 +66,8 @@ void add_returns(CLI::App& app, Context& ctx) {
       request.risk_free_annual = *rate;
     }
     auto db = ctx.open_ledger();
-    const auto rep = perf::returns_report(db, request);
+    const auto rep =
+        with_currency_option(request.currency, [&] { return perf::returns_report(db, request); });
     out(o->json ? report::returns_json(rep, o->method, o->monthly)
                 : report::returns_text(rep, o->method, o->monthly, ctx.style()));
   });

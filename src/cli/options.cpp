@@ -4,6 +4,7 @@
 
 #include <charconv>
 
+#include "core/currency.h"
 #include "core/error.h"
 #include "core/text.h"
 
@@ -47,6 +48,22 @@ void add_json_and_csv_flags(CLI::App& cmd, bool& json, bool& csv) {
 
 void add_account_option(CLI::App& cmd, std::string& account, const std::string& help) {
   cmd.add_option("--account", account, help);
+}
+
+void add_currency_option(CLI::App& cmd, std::string& currency) {
+  cmd.add_option("--currency", currency,
+                 "Report in this currency, a three-letter code (default: the account's; for the "
+                 "whole ledger the one its accounts keep, else the ledger's own)");
+}
+
+std::optional<std::string> currency_option(const std::string& text) {
+  if (text.empty()) return std::nullopt;
+  return parse_currency(text, "--currency");
+}
+
+bool names_missing_rate(const InputError& e) {
+  // The one wording of a missing rate (market/fx_rates.h).
+  return std::string_view(e.what()).find("no exchange rate for ") != std::string_view::npos;
 }
 
 std::optional<std::string> text_option(const std::string& text) {

@@ -9,6 +9,8 @@
 //    "--as-of: '2025-02-30' is not a calendar date".
 #pragma once
 
+#include <fmt/format.h>
+
 #include <CLI/CLI.hpp>
 #include <initializer_list>
 #include <optional>
@@ -18,6 +20,7 @@
 
 #include "core/date.h"
 #include "core/decimal.h"
+#include "core/error.h"
 
 namespace keel::cli {
 
@@ -33,6 +36,23 @@ void add_json_flag(CLI::App& cmd, bool& json);
 void add_json_and_csv_flags(CLI::App& cmd, bool& json, bool& csv);
 void add_account_option(CLI::App& cmd, std::string& account,
                         const std::string& help = "Only this account");
+// --currency C of the reports: every figure in C. currency_option() reads it
+// (unset when not given; InputError naming --currency for a code that is not
+// ISO 4217).
+void add_currency_option(CLI::App& cmd, std::string& currency);
+bool names_missing_rate(const InputError& e);
+std::optional<std::string> currency_option(const std::string& text);
+// Runs a report; with --currency, a missing exchange rate names the option
+// too ("--currency JPY: ... no exchange rate for JPY/USD on or before ...").
+template <typename F>
+auto with_currency_option(const std::optional<std::string>& asked, F report) {
+  try {
+    return report();
+  } catch (const InputError& e) {
+    if (!asked || !names_missing_rate(e)) throw;
+    throw InputError(fmt::format("--currency {}: {}", *asked, e.what()));
+  }
+}
 
 std::optional<std::string> text_option(const std::string& text);
 Date date_value(const std::string& text, std::string_view option);  // empty text is refused

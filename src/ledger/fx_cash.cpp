@@ -21,6 +21,15 @@ Decimal exchanged(const Decimal& amount, const Decimal& rate, const std::string&
   return round_money(amount * rate, to_currency);
 }
 
+BookedAmount booked_amount(const Decimal& amount, const std::string& currency,
+                           const std::optional<Decimal>& rate, const std::string& account_currency,
+                           Date day, const market::View& view) {
+  if (currency == account_currency) return {amount, std::nullopt, std::nullopt};
+  if (rate) return {settle(amount, *rate, account_currency), rate, std::nullopt};
+  return {view.convert(amount, currency, account_currency, day), std::nullopt,
+          view.rate(account_currency, currency, day)};
+}
+
 void refuse_other_currencies(const LedgerLog& log, std::string_view what,
                              const std::vector<std::int64_t>& accounts) {
   const auto voided = voided_ids(log.transactions);

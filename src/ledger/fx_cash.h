@@ -31,12 +31,14 @@
 #pragma once
 
 #include <cstdint>
+#include <optional>
 #include <string>
 #include <string_view>
 #include <vector>
 
 #include "core/decimal.h"
 #include "ledger/book.h"
+#include "market/view.h"
 #include "model/records.h"
 
 namespace keel::ledger {
@@ -46,6 +48,22 @@ namespace keel::ledger {
 Decimal settle(const Decimal& amount, const Decimal& rate, const std::string& account_currency);
 // What an exchange of `amount` at `rate` yields in `to_currency`.
 Decimal exchanged(const Decimal& amount, const Decimal& rate, const std::string& to_currency);
+
+// An amount of a row in `currency` as the lot engine books it in the
+// account's currency: at the row's settlement `rate` when it has one (settle),
+// else at the day's stored rate (market::View::convert), which is then given
+// in `day_rate` (account currency -> row currency). Unchanged when the row is
+// in the account's currency. A missing rate throws InputError naming the pair
+// and the day.
+struct BookedAmount {
+  Decimal amount;                           // in the account's currency
+  std::optional<Decimal> row_rate;          // the row's settlement rate, when used
+  std::optional<market::FxQuote> day_rate;  // the stored rate, when used
+  bool converted() const { return row_rate || day_rate; }
+};
+BookedAmount booked_amount(const Decimal& amount, const std::string& currency,
+                           const std::optional<Decimal>& rate, const std::string& account_currency,
+                           Date day, const market::View& view);
 
 // For the reports that value a whole ledger over time and do not convert
 // yet (the statement, proposals): throws InputError naming `what`,

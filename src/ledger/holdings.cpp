@@ -28,7 +28,65 @@ std::optional<std::int64_t> account_filter(store::Database& db,
   return store::account_named(db, *account).id;
 }
 
+// What a lot of `security` (in an account keeping `own`) cost in `currency`:
+// its local cost when the security trades in it, else its cost converted at
+// the rate of its acquisition day.
+Decimal cost_in(const Lot& lot, const std::string& own, const Security& security,
+                const std::string& currency, const market::View& view, const std::string& what) {
+  if (currency == own) return lot.cost;
+  if (currency == security.currency && lot.local_cost) return *lot.local_cost;
+  try {
+    return view.convert(lot.cost, own, currency, lot.acquired);
+  } catch (const InputError& e) {
+    throw InputError(fmt::format("{}: the cost of lot {} of {}, acquired {}: {}", what, lot.lot_id,
+                                 security.symbol, lot.acquired.str(), e.what()));
+  }
+}
+
+// A realized part of `security` (sold in an account keeping `own`) in
+// `currency`: proceeds at the rate of the disposal day (the local proceeds
+// when the security trades in it), cost as cost_in(), and the price part the
+// local gain at the disposal day's rate.
+void part_in(RealizedPart& part, const std::string& own, const Security& security,
+             const std::string& currency, const market::View& view) {
+  if (currency == own) return;
+  const bool local = part.local_cost.has_value();
+  const std::string& from = local ? security.currency : own;
+  const Decimal local_proceeds = local ? *part.local_proceeds : part.proceeds;
+  const Decimal local_cost = local ? *part.local_cost : part.cost;
+  const Lot lot{part.lot_id, part.acquired, part.quantity, part.cost, part.local_cost};
+  part.cost = cost_in(lot, own, security, currency, view, "gains");
+  if (from == currency) {
+    part.proceeds = local_proceeds;
+    part.price_gain = local_proceeds - local_cost;
+  } else {
+    try {
+      part.proceeds = view.convert(part.proceeds, own, currency, part.disposed);
+      part.price_gain = view.convert(local_proceeds - local_cost, from, currency, part.disposed);
+    } catch (const InputError& e) {
+      throw InputError(fmt::format("gains: the sale of lot {} of {} on {}: {}", part.lot_id,
+                                   security.symbol, part.disposed.str(), e.what()));
+    }
+  }
+  // The local figures stay in the security's currency; a part in the
+  // account's currency gets them so that its price part can be read.
+  if (!local) {
+    part.local_proceeds = local_proceeds;
+    part.local_cost = local_cost;
+  }
+}
+
 }  // namespace
+
+std::string reporting_currency(store::Database& db, const std::optional<std::string>& asked,
+                               const std::optional<std::string>& account) {
+  if (asked) return *asked;
+  if (account) return store::account_named(db, *account).currency;
+  const auto accounts = store::list_accounts(db);
+  if (!mixed_currencies(accounts) && !accounts.empty()) return accounts.front().currency;
+  return store::ledger_currency(db).value_or(accounts.empty() ? std::string()
+                                                              : accounts.front().currency);
+}
 
 const Security& known_security(const market::View& view, std::int64_t security_id) {
   if (const Security* s = view.security(security_id)) return *s;
@@ -41,15 +99,16 @@ bool held_long_term(Date acquired, Date disposed) {
   return disposed > acquired.plus_years(1);
 }
 
-Holdings holdings(store::Database& db, Date as_of, const std::optional<std::string>& account) {
+Holdings holdings(store::Database& db, Date as_of, const std::optional<std::string>& account,
+                  const std::optional<std::string>& currency) {
   const auto only = account_filter(db, account);
   const Book book = replay(load_log(db), as_of);
-  return holdings_of(book, market::DayView(db), as_of, only);
+  return holdings_of(book, market::DayView(db), as_of, only, currency);
 }
 
 Holdings holdings_of(const Book& book, const market::View& view, Date as_of,
-                     std::optional<std::int64_t> only) {
-  if (!only) one_currency(book.accounts(), "holdings");
+                     std::optional<std::int64_t> only, const std::optional<std::string>& currency) {
+  if (!only && !currency) one_currency(book.accounts(), "holdings");
   auto convert = [&](const Decimal& amount, const std::string& from, const std::string& to,
                      const std::string& what) {
     try {
@@ -63,6 +122,7 @@ Holdings holdings_of(const Book& book, const market::View& view, Date as_of,
   for (const auto& info : book.accounts()) {
     if (only && info.id != *only) continue;
     const AccountBook& ab = book.account(info.id);
+    const std::string& reporting = currency ? *currency : info.currency;
     for (const auto& [security_id, position] : ab.positions) {
       HoldingLine line;
       line.account = info.name;
@@ -70,6 +130,11 @@ Holdings holdings_of(const Book& book, const market::View& view, Date as_of,
       line.symbol = security.symbol;
       line.quantity = position.quantity();
       line.cost_basis = position.cost();
+      if (reporting != info.currency) {
+        line.cost_basis = Decimal();
+        for (const auto& lot : position.lots)
+          line.cost_basis += cost_in(lot, info.currency, security, reporting, view, "holdings");
+      }
       if (auto close = view.close(security_id, as_of)) {
         line.price = close->price;
       } else {
@@ -77,10 +142,10 @@ Holdings holdings_of(const Book& book, const market::View& view, Date as_of,
         line.price_is_close = false;
       }
       line.market_value = line.quantity * line.price;
-      if (const std::string& c = security.currency; c != info.currency) {
+      if (const std::string& c = security.currency; c != reporting) {
         line.currency = c;
         line.local_value = line.market_value;
-        auto [value, quote] = convert(line.local_value, c, info.currency, line.symbol);
+        auto [value, quote] = convert(line.local_value, c, reporting, line.symbol);
         line.market_value = value;
         line.rate = quote;
       }
@@ -88,13 +153,24 @@ Holdings holdings_of(const Book& book, const market::View& view, Date as_of,
       out.total_value += line.market_value;
       out.positions.push_back(std::move(line));
     }
-    out.cash.push_back(CashLine{info.name, ab.cash});
-    out.total_value += ab.cash;
-    for (const auto& [code, lots] : ab.foreign_cash) {
-      CashLine line{info.name, ab.foreign_balance(code), code};
-      auto [value, quote] = convert(line.amount, code, info.currency, "cash in " + code);
+    if (reporting == info.currency) {
+      out.cash.push_back(CashLine{info.name, ab.cash});
+      out.total_value += ab.cash;
+    } else {
+      CashLine line{info.name, ab.cash, info.currency};
+      auto [value, quote] =
+          convert(line.amount, info.currency, reporting, "cash in " + info.currency);
       line.value = value;
       line.rate = quote;
+      out.total_value += value;
+      out.cash.push_back(std::move(line));
+    }
+    for (const auto& [code, lots] : ab.foreign_cash) {
+      CashLine line{info.name, ab.foreign_balance(code), code};
+      auto [value, quote] = convert(line.amount, code, reporting, "cash in " + code);
+      line.value = value;
+      line.rate = quote;
+      for (const auto& lot : lots) line.cost += lot.cost;
       out.total_value += value;
       out.cash.push_back(std::move(line));
     }
@@ -106,16 +182,22 @@ Holdings holdings_of(const Book& book, const market::View& view, Date as_of,
 }
 
 std::vector<LotLine> open_lots(store::Database& db, Date as_of,
-                               const std::optional<std::string>& account) {
+                               const std::optional<std::string>& account,
+                               const std::optional<std::string>& currency) {
   const auto only = account_filter(db, account);
   const auto symbols = symbols_by_id(db);
   const Book book = replay(load_log(db), as_of);
+  const market::DayView view(db);
   std::vector<LotLine> out;
   for (const auto& info : book.accounts()) {
     if (only && info.id != *only) continue;
     for (const auto& [security_id, position] : book.account(info.id).positions)
-      for (const auto& lot : position.lots)
+      for (const auto& lot : position.lots) {
         out.push_back(LotLine{info.name, symbols.at(security_id), lot});
+        if (currency && *currency != info.currency)
+          out.back().lot.cost = cost_in(lot, info.currency, known_security(view, security_id),
+                                        *currency, view, "lots");
+      }
   }
   std::stable_sort(out.begin(), out.end(), [](const auto& a, const auto& b) {
     return a.account != b.account ? a.account < b.account : a.symbol < b.symbol;
@@ -125,17 +207,19 @@ std::vector<LotLine> open_lots(store::Database& db, Date as_of,
 
 std::vector<GainLine> realized_gains(store::Database& db, std::optional<int> year,
                                      const std::optional<std::string>& account,
-                                     std::optional<int> long_term_days) {
+                                     std::optional<int> long_term_days,
+                                     const std::optional<std::string>& currency) {
   const auto only = account_filter(db, account);
   const Book book = replay(load_log(db));
   return realized_gains_of(book, market::DayView(db), TaxStatuses::load(db), year, only,
-                           long_term_days);
+                           long_term_days, currency);
 }
 
 std::vector<GainLine> realized_gains_of(const Book& book, const market::View& view,
                                         const TaxStatuses& statuses, std::optional<int> year,
                                         std::optional<std::int64_t> only,
-                                        std::optional<int> long_term_days) {
+                                        std::optional<int> long_term_days,
+                                        const std::optional<std::string>& currency) {
   std::vector<GainLine> out;
   for (const auto& part : book.realized()) {
     if (only && part.account_id != *only) continue;
@@ -146,8 +230,12 @@ std::vector<GainLine> realized_gains_of(const Book& book, const market::View& vi
     line.long_term = long_term_days ? line.days_held > *long_term_days
                                     : held_long_term(part.acquired, part.disposed);
     line.tax_status = statuses.on(part.account_id, part.disposed);
+    if (currency)
+      part_in(line.part, book.account_info(part.account_id).currency,
+              known_security(view, part.security_id), *currency, view);
     out.push_back(std::move(line));
   }
+  if (currency) return out;
   // The lines are in each account's own currency; their totals may not mix.
   std::vector<Account> selling;
   for (const auto& info : book.accounts())

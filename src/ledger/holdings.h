@@ -9,7 +9,19 @@
 // rate throws InputError naming the pair and the day. Holdings of every
 // account, and gains whose sales span several accounts, are refused when
 // those accounts keep different currencies (one_currency,
-// ledger/accounts.h). Throws InputError for an unknown account name.
+// ledger/accounts.h) unless a reporting currency is given.
+//
+// Reporting currency (--currency R): every account's figures are then in R.
+// Values convert at the rate of the day asked (a security's local value and
+// foreign cash straight from their own currency; an account's own cash from
+// its currency); a lot's cost is what it cost in R: its cost in the
+// security's currency when that is R, else its cost in the account's currency
+// converted at the rate of its acquisition day; a realized part's proceeds
+// likewise at the rate of its disposal day (the local proceeds when the
+// security trades in R), and its price part is the local gain at that rate.
+// A foreign cash line's `cost` stays in the account's currency. A missing
+// rate throws InputError naming the pair, the day and what needed it.
+// Throws InputError for an unknown account name.
 #pragma once
 
 #include <optional>
@@ -55,6 +67,9 @@ struct CashLine {
   std::string currency = {};
   std::optional<market::FxQuote> rate = std::nullopt;
   Decimal value = {};
+  Decimal cost = {};  // cash in another currency: its lots' cost in the account's currency
+  Decimal currency_gain() const { return value - cost; }               // unrealized, of such cash
+  Decimal worth() const { return currency.empty() ? amount : value; }  // in the account's
 };
 
 struct Holdings {
@@ -64,21 +79,33 @@ struct Holdings {
   Decimal total_value;
 };
 
+// The currency a report is in: `asked` (an ISO 4217 code) when given; else
+// the account's when `account` names one; else the one every account keeps,
+// or, when they keep several, the ledger's own. Throws InputError for an
+// unknown account.
+std::string reporting_currency(store::Database& db, const std::optional<std::string>& asked,
+                               const std::optional<std::string>& account);
+
 Holdings holdings(store::Database& db, Date as_of,
-                  const std::optional<std::string>& account = std::nullopt);
+                  const std::optional<std::string>& account = std::nullopt,
+                  const std::optional<std::string>& currency = std::nullopt);
 // The same from a book already replayed to `as_of` and a view of the ledger's
 // market data: a report that needs several days replays the log once
-// (Replayer) and asks at each. `only`: one account by id.
+// (Replayer) and asks at each. `only`: one account by id. `currency`: the
+// reporting currency (unset: each account's own).
 Holdings holdings_of(const Book& book, const market::View& view, Date as_of,
-                     std::optional<std::int64_t> only = std::nullopt);
+                     std::optional<std::int64_t> only = std::nullopt,
+                     const std::optional<std::string>& currency = std::nullopt);
 
 struct LotLine {
   std::string account;
   std::string symbol;
   Lot lot;
 };
+// `currency`: each lot's cost in that currency (see above), else the account's.
 std::vector<LotLine> open_lots(store::Database& db, Date as_of,
-                               const std::optional<std::string>& account = std::nullopt);
+                               const std::optional<std::string>& account = std::nullopt,
+                               const std::optional<std::string>& currency = std::nullopt);
 
 // A buy of the same security near a sale at a loss (ledger/tax.h).
 struct Repurchase {
@@ -103,12 +130,15 @@ struct GainLine {
 // first anniversary of its acquisition (held_long_term).
 std::vector<GainLine> realized_gains(store::Database& db, std::optional<int> year,
                                      const std::optional<std::string>& account = std::nullopt,
-                                     std::optional<int> long_term_days = std::nullopt);
+                                     std::optional<int> long_term_days = std::nullopt,
+                                     const std::optional<std::string>& currency = std::nullopt);
 // The same from a replayed book: the parts it has realized so far.
+// `currency`: every part in that currency (see above), else its account's.
 std::vector<GainLine> realized_gains_of(const Book& book, const market::View& view,
                                         const TaxStatuses& statuses, std::optional<int> year,
                                         std::optional<std::int64_t> only = std::nullopt,
-                                        std::optional<int> long_term_days = std::nullopt);
+                                        std::optional<int> long_term_days = std::nullopt,
+                                        const std::optional<std::string>& currency = std::nullopt);
 bool held_long_term(Date acquired, Date disposed);
 
 struct GainTotals {

@@ -4,10 +4,12 @@
 
 #include <algorithm>
 #include <set>
+#include <stdexcept>
 
 #include "core/error.h"
 #include "core/text.h"
 #include "ledger/accounts.h"
+#include "ledger/fx_cash.h"
 #include "ledger/posting.h"
 #include "market/day_view.h"
 #include "store/ledger_store.h"
@@ -101,6 +103,11 @@ Withholding withholding_of(const LedgerLog& log, const market::View& view,
   std::map<std::int64_t, WithholdingBySecurity> by_id;
   std::vector<Account> involved;
   Withholding out;
+  auto currency_of = [&](std::int64_t account_id) -> const std::string& {
+    for (const auto& a : log.accounts)
+      if (a.id == account_id) return a.currency;
+    throw std::logic_error("withholding: a row of an account the log does not hold");
+  };
   for (const auto& t : log.transactions) {
     if (voided.count(t.id) || t.date.year() != year || (only && t.account_id != *only)) continue;
     const bool income = t.kind == TxnKind::dividend || t.kind == TxnKind::interest;
@@ -109,8 +116,12 @@ Withholding withholding_of(const LedgerLog& log, const market::View& view,
       if (a.id == t.account_id && std::none_of(involved.begin(), involved.end(),
                                                [&](const Account& x) { return x.id == a.id; }))
         involved.push_back(a);
+    // In the account's currency, as the lot engine booked the row.
+    const std::string& own = currency_of(t.account_id);
+    const Decimal amount =
+        booked_amount(*t.amount, t.currency.value_or(own), t.rate, own, t.date, view).amount;
     if (statuses.on(t.account_id, t.date) != TaxStatus::taxable) {
-      if (t.kind == TxnKind::tax) out.not_taxable += *t.amount;
+      if (t.kind == TxnKind::tax) out.not_taxable += amount;
       continue;
     }
     const std::int64_t key = t.security_id.value_or(0);
@@ -120,7 +131,7 @@ Withholding withholding_of(const LedgerLog& log, const market::View& view,
       line.symbol = security.symbol;
       line.country = security.country;
     }
-    (income ? line.income : line.withheld) += *t.amount;
+    (income ? line.income : line.withheld) += amount;
   }
   one_currency(involved, "withholding");
   for (auto& [id, line] : by_id) {

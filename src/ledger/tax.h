@@ -19,7 +19,9 @@
 //  - withholding(): the tax rows of a calendar year in taxable accounts,
 //    summed per security (with its country) and per country; tax rows of
 //    other accounts are summed apart. Amounts are exact, in the ledger's
-//    currency (refused, as for gains, when accounts keep several).
+//    currency (refused, as for gains, when accounts keep several); a row in
+//    another currency counts as the lot engine booked it (booked_amount,
+//    ledger/fx_cash.h: the row's settlement rate, else the day's rate).
 #pragma once
 
 #include <cstdint>

@@ -320,8 +320,11 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
     for (const auto& l : local) {
       if (!l.used) continue;
       const Decimal amount = l.sum.total();
+      // Nothing held in a currency needs no rate (an account in another
+      // currency before its first deposit).
+      if (amount.is_zero()) continue;
       point.value += reported(amount, l.currency, d);
-      foreign = foreign || (l.currency != currency && !amount.is_zero());
+      foreign = foreign || l.currency != currency;
     }
     // A day with only a new rate changes nothing when nothing foreign is held.
     if (rate_only && !foreign) continue;

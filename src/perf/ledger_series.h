@@ -14,7 +14,8 @@
 //    in `unpriced`. What is held in another currency (positions in it at
 //    their local prices, and its cash) is added up in that currency and
 //    converted at the rate of day t (market::View::convert: rounded once to
-//    the minor units of `currency`); a missing rate throws InputError.
+//    the minor units of `currency`; a currency of which nothing is held needs
+//    no rate); a missing rate throws InputError.
 //  - External flows (positive amounts): deposits in, withdrawals out; cash
 //    transfers at their amount; security transfers at quantity x (close on or
 //    before the day, else the transfer's price, else the last trade price);

@@ -11,6 +11,7 @@
 #include "core/error.h"
 #include "core/text.h"
 #include "ledger/accounts.h"
+#include "ledger/holdings.h"
 #include "ledger/posting.h"
 #include "market/day_view.h"
 #include "market/series.h"
@@ -26,7 +27,8 @@ struct Scope {
   std::string currency;                    // the reporting currency
 };
 
-Scope scope_of(store::Database& db, const std::optional<std::string>& account_name) {
+Scope scope_of(store::Database& db, const std::optional<std::string>& account_name,
+               const std::optional<std::string>& currency) {
   Scope scope;
   if (account_name) {
     const auto account = store::find_account(db, *account_name);
@@ -35,11 +37,8 @@ Scope scope_of(store::Database& db, const std::optional<std::string>& account_na
           fmt::format("--account: there is no account named '{}'", printable(*account_name)));
     scope.account_id = account->id;
     scope.name = account->name;
-    scope.currency = account->currency;
-  } else {
-    const auto shared = ledger::one_currency(store::list_accounts(db), "returns");
-    scope.currency = shared ? *shared : store::ledger_currency(db).value_or(std::string());
   }
+  scope.currency = ledger::reporting_currency(db, currency, account_name);
   return scope;
 }
 
@@ -79,6 +78,7 @@ PeriodReports reports_of(store::Database& db, const LedgerData& data, const Scop
     ReturnsReport& report = reports[i];
     const ResolvedPeriod resolved = resolve(data, requests[i]);
     report.scope = scope.name;
+    report.currency = scope.currency;
     report.inception = resolved.inception;
     report.as_of = resolved.as_of;
     report.period = resolved.period;
@@ -92,6 +92,7 @@ PeriodReports reports_of(store::Database& db, const LedgerData& data, const Scop
   span.from = from->plus_days(-1);
   span.to = *to;
   span.currencies = data.currencies;
+  span.currencies.push_back(scope.currency);
   // Only the closes of what the scope holds, and of the benchmarks, are read.
   span.securities = securities_held(data.log, scope.account_id);
   for (const auto& bench : benches)
@@ -120,8 +121,22 @@ PeriodReports reports_of(store::Database& db, const LedgerData& data, const Scop
     input.risk_free_annual = requests[i].risk_free_annual;
     if (const auto& bench = benches[i]) {
       std::vector<LevelPoint> levels;
-      for (auto& c : prices.closes(bench->id))
-        if (c.day <= report.period.to) levels.push_back(LevelPoint{c.day, std::move(c.price)});
+      // Unhedged: each close in the reporting currency at its day's rate.
+      const bool convert = bench->currency != scope.currency;
+      for (auto& c : prices.closes(bench->id)) {
+        if (c.day > report.period.to) continue;
+        if (convert) {
+          try {
+            c.price *= prices.rate(bench->currency, scope.currency, c.day).rate;
+          } catch (const InputError& e) {
+            throw InputError(fmt::format("--benchmark {}: its close of {} in {}: {}",
+                                         printable(bench->symbol), c.day.str(), scope.currency,
+                                         e.what()));
+          }
+        }
+        levels.push_back(LevelPoint{c.day, std::move(c.price)});
+      }
+      if (convert) report.benchmark_converted_from = bench->currency;
       // measure() reads the latest level on or before `before`; earlier ones
       // (of a longer period in the same load) are left out.
       auto opening = std::upper_bound(levels.begin(), levels.end(), before,
@@ -166,13 +181,14 @@ LedgerData LedgerData::load(store::Database& db) {
 // The scope is checked before anything is loaded, so an unknown account is
 // reported as such whatever the rest of the ledger holds.
 ReturnsReport returns_report(store::Database& db, const ReturnsRequest& request) {
-  const Scope scope = scope_of(db, request.account);
+  const Scope scope = scope_of(db, request.account, request.currency);
   return reports_of(db, LedgerData::load(db), scope, {request}).reports.front();
 }
 
 ReturnsReport returns_report(store::Database& db, const LedgerData& data,
                              const ReturnsRequest& request) {
-  return reports_of(db, data, scope_of(db, request.account), {request}).reports.front();
+  return reports_of(db, data, scope_of(db, request.account, request.currency), {request})
+      .reports.front();
 }
 
 PeriodReports returns_reports(store::Database& db, const LedgerData& data,
@@ -180,9 +196,11 @@ PeriodReports returns_reports(store::Database& db, const LedgerData& data,
                               const std::vector<ReturnsRequest>& requests,
                               const std::vector<Date>& book_days) {
   for (const auto& r : requests)
-    if (r.account != account)
+    if (r.account != account || r.currency != requests.front().currency)
       throw std::invalid_argument("returns_reports: every request must be of the one scope");
-  return reports_of(db, data, scope_of(db, account), requests, book_days);
+  return reports_of(
+      db, data, scope_of(db, account, requests.empty() ? std::nullopt : requests.front().currency),
+      requests, book_days);
 }
 
 }  // namespace keel::perf

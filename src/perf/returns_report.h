@@ -6,9 +6,15 @@
 //    live transaction day. Inception: the first live transaction day.
 //  - Benchmark: the closes of the named security, which must have a close on
 //    or before the day before the period (InputError naming --benchmark).
-//  - Figures are in the reporting currency: the account's with --account,
-//    else the one every account keeps (the ledger's). What is held or moved
-//    in another currency converts at the rate of its day (ledger_series.h).
+//  - Figures are in the reporting currency: the request's `currency`
+//    (--currency) when given, else the account's with --account, else the
+//    one every account keeps, or the ledger's own when they keep several
+//    (ledger::reporting_currency). What is held or moved in another currency
+//    converts at the rate of its day (ledger_series.h).
+//  - A benchmark in another currency is converted unhedged: each close
+//    times the rate of its day (benchmark currency -> reporting currency,
+//    exact), so its return includes the currency's move;
+//    `benchmark_converted_from` then names its currency.
 //  - Throws InputError for an unknown account (naming --account) or security,
 //    a ledger without transactions, and whatever resolve_period() and
 //    measure() reject.
@@ -38,16 +44,19 @@ struct ReturnsRequest {
   std::optional<Date> as_of;
   std::optional<std::string> benchmark;  // security symbol
   std::optional<Decimal> risk_free_annual;
+  std::optional<std::string> currency;  // reporting currency (ISO 4217), else the default
 };
 
 struct ReturnsReport {
-  std::string scope;  // account name, or "all accounts"
+  std::string scope;     // account name, or "all accounts"
+  std::string currency;  // the reporting currency
   Date as_of;
   Date inception;
   Period period;
   Decimal income, tax, fees;
   std::vector<std::string> unpriced;  // symbols held without any price
   std::optional<std::string> benchmark;
+  std::optional<std::string> benchmark_converted_from;  // its currency, when not `currency`
   PerfResult result;
 };
 
@@ -72,8 +81,8 @@ ResolvedPeriod resolve(const LedgerData& data, const ReturnsRequest& request);
 ReturnsReport returns_report(store::Database& db, const ReturnsRequest& request);
 ReturnsReport returns_report(store::Database& db, const LedgerData& data,
                              const ReturnsRequest& request);
-// Several periods of one scope (every request's account is `account`, else
-// std::invalid_argument), measured on one series built over their union and
+// Several periods of one scope (every request's account is `account` and
+// every request's currency the first's, else std::invalid_argument), measured on one series built over their union and
 // sliced (perf::slice): one replay and one load of the closes. Each report
 // equals returns_report() of its request. That replay also copies the whole
 // ledger's book at the close of each of `book_days` (ascending, none before

@@ -118,8 +118,9 @@ std::string returns_json(const perf::ReturnsReport& rep, const std::string& meth
   const Figures f = figures(r, method == "dietz");
   std::string s;
   JsonWriter j(s);
-  begin_document(j, "returns", 1);
+  begin_document(j, "returns", 2);
   j.member("from", r.from.str()).member("to", r.to.str()).member("scope", rep.scope);
+  j.member("currency", rep.currency);
   j.member("method", method);
   j.member("opening_value", r.opening_value).member("closing_value", r.closing_value);
   j.member("inflows", r.inflow).member("outflows", r.outflow);
@@ -131,6 +132,7 @@ std::string returns_json(const perf::ReturnsReport& rep, const std::string& meth
   if (r.benchmark && rep.benchmark) {
     j.key("benchmark").begin_object();
     j.member("symbol", *rep.benchmark).member("return", r.benchmark->benchmark.period);
+    j.member("converted_from", rep.benchmark_converted_from);
     j.member("return_annualized", r.benchmark->benchmark.annualized);
     j.end_object();
     j.member("excess_arithmetic", r.benchmark->excess_arithmetic);
@@ -180,11 +182,17 @@ std::string returns_json(const perf::ReturnsReport& rep, const std::string& meth
 
 std::string returns_text(const perf::ReturnsReport& rep, const std::string& method, bool monthly,
                          const Style& style) {
-  std::string s = fmt::format("Returns of {} from {} to {} ({} days)\n\n", rep.scope,
-                              rep.result.from.str(), rep.result.to.str(), rep.result.days);
+  std::string s =
+      fmt::format("Returns of {} in {} from {} to {} ({} days)\n\n", rep.scope, rep.currency,
+                  rep.result.from.str(), rep.result.to.str(), rep.result.days);
   s += monthly ? monthly_table(rep, style) : summary_table(rep, method, style);
   if (rep.period.clamped)
     s += fmt::format("The ledger starts on {}; the period starts there.\n", rep.inception.str());
+  if (rep.benchmark && rep.benchmark_converted_from)
+    s += fmt::format(
+        "The benchmark {} trades in {}: its closes are converted into {} at each day's rate, "
+        "unhedged, so its return includes the currency's move.\n",
+        *rep.benchmark, *rep.benchmark_converted_from, rep.currency);
   if (!rep.unpriced.empty())
     s += fmt::format("Held without any close or trade price, valued at zero: {}\n",
                      fmt::join(rep.unpriced, ", "));

@@ -115,11 +115,19 @@ Decimal unrealized_total(const ledger::Holdings& h) {
   return total;
 }
 
+Decimal fx_cash_unrealized(const ledger::Holdings& h) {
+  Decimal total;
+  for (const auto& c : h.cash)
+    if (!c.currency.empty()) total += c.currency_gain();
+  return total;
+}
+
 }  // namespace
 
 Decimal YearSummary::explained_closing() const {
   return opening_value + deposits - withdrawals + transfers_in - transfers_out + dividends -
-         withholding + interest - fees + realized_gain + unrealized_change() - unrealized_moved;
+         withholding + interest - fees + realized_gain + unrealized_change() - unrealized_moved +
+         fx_cash_realized + fx_cash_unrealized_change();
 }
 
 std::vector<std::string> statement_cautions() {
@@ -132,6 +140,15 @@ std::vector<std::string> statement_cautions() {
       "credited, how fees are treated). Check with your local tax authority or a licensed "
       "professional.",
   };
+}
+
+std::string RateUsed::source() const {
+  if (row_rate) return "the row's rate";
+  std::string how;
+  if (day->how == market::FxHow::inverted)
+    how = fmt::format(", inverted from {}/{}", day->quote, day->base);
+  if (day->how == market::FxHow::crossed) how = fmt::format(", crossed through {}", day->pivot);
+  return fmt::format("stored, {}{}", day->day.str(), how);
 }
 
 std::string statement_years() {
@@ -170,7 +187,6 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
 
   // The ledger is read once; every period below is measured from this copy.
   const perf::LedgerData data = perf::LedgerData::load(db);
-  ledger::refuse_other_currencies(data.log, "statement");
 
   // Performance: this year, since inception, trailing 3 and 5 years where the
   // ledger's history covers them; the returns module measures them together,
@@ -271,7 +287,7 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   std::sort(s.allocation.begin(), s.allocation.end(),
             [](const auto& a, const auto& b) { return a.value > b.value; });
   Decimal cash_total;
-  for (const auto& c : closing.cash) cash_total += c.amount;
+  for (const auto& c : closing.cash) cash_total += c.worth();
   s.allocation.push_back({"cash", cash_total, weight_of(cash_total, closing.total_value)});
 
   // Realized gains: the lot engine's parts disposed in the period; those of
@@ -306,8 +322,32 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   std::sort(live.begin(), live.end(), [](const Transaction* a, const Transaction* b) {
     return a->date != b->date ? a->date < b->date : a->id < b->id;
   });
+  std::map<std::int64_t, std::string> account_currency;
+  for (const auto& a : accounts) account_currency[a.id] = a.currency;
+  // A row's amount as the lot engine booked it in its account's currency.
+  auto booked = [&](const Transaction& t, const Decimal& amount) {
+    const std::string& own = account_currency.at(t.account_id);
+    try {
+      return ledger::booked_amount(amount, t.currency.value_or(own), t.rate, own, t.date, view);
+    } catch (const InputError& e) {
+      throw InputError(fmt::format("statement: transaction {} ({} on {}): {}", t.id,
+                                   to_string(t.kind), t.date.str(), e.what()));
+    }
+  };
+  auto rate_used = [&](const Transaction& t, const ledger::BookedAmount& b) {
+    std::optional<RateUsed> out;
+    if (b.converted()) out = RateUsed{*t.currency, *t.amount, b.row_rate, b.day_rate};
+    return out;
+  };
   YearSummary& y = s.summary;
   Decimal cash_moved;  // cash transfers in minus out, internal pairs included
+  // Deposits and withdrawals as the returns count them (at the day's rate),
+  // so that what is left of their flows is the transfers.
+  Decimal deposits_at_day_rate, withdrawals_at_day_rate;
+  auto at_day_rate = [&](const Transaction& t) {
+    const std::string& own = account_currency.at(t.account_id);
+    return view.convert(*t.amount, t.currency.value_or(own), own, t.date);
+  };
   std::vector<const Transaction*> taxes;
   for (const Transaction* t : live) {
     const std::string symbol = t->security_id ? symbols[*t->security_id] : std::string();
@@ -315,40 +355,45 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
     const bool taxable = status == TaxStatus::taxable;
     switch (t->kind) {
       case TxnKind::deposit:
-        y.deposits += *t->amount;
+        y.deposits += booked(*t, *t->amount).amount;
+        deposits_at_day_rate += at_day_rate(*t);
         break;
       case TxnKind::withdrawal:
-        y.withdrawals += *t->amount;
+        y.withdrawals += booked(*t, *t->amount).amount;
+        withdrawals_at_day_rate += at_day_rate(*t);
         break;
       case TxnKind::dividend:
-      case TxnKind::interest:
-        (t->kind == TxnKind::dividend ? y.dividends : y.interest) += *t->amount;
+      case TxnKind::interest: {
+        const auto gross = booked(*t, *t->amount);
+        (t->kind == TxnKind::dividend ? y.dividends : y.interest) += gross.amount;
         if (taxable)
           s.income.push_back({account_names[t->account_id], t->date,
-                              std::string(to_string(t->kind)), symbol, *t->amount, Decimal()});
+                              std::string(to_string(t->kind)), symbol, gross.amount, Decimal(),
+                              rate_used(*t, gross)});
         else
           s.not_taxable.push_back({account_names[t->account_id], std::string(to_string(status)),
-                                   t->date, std::string(to_string(t->kind)), symbol, *t->amount,
+                                   t->date, std::string(to_string(t->kind)), symbol, gross.amount,
                                    Decimal()});
         break;
+      }
       case TxnKind::tax:
-        y.withholding += *t->amount;
+        y.withholding += booked(*t, *t->amount).amount;
         taxes.push_back(t);
         break;
       case TxnKind::fee:
-        y.fees += *t->amount;
+        y.fees += booked(*t, *t->amount).amount;
         break;
       case TxnKind::buy:
       case TxnKind::sell:
-        y.trade_fees += t->fee;
+        y.trade_fees += booked(*t, t->fee).amount;
         break;
       case TxnKind::transfer_in:
       case TxnKind::transfer_out:
         // The lot engine charges a transfer's fee to cash only when units move.
         if (t->security_id)
-          y.fees += t->fee;
+          y.fees += booked(*t, t->fee).amount;
         else
-          cash_moved += t->kind == TxnKind::transfer_in ? *t->amount : -*t->amount;
+          cash_moved += t->kind == TxnKind::transfer_in ? at_day_rate(*t) : -at_day_rate(*t);
         break;
       case TxnKind::exchange:  // no flow: cash changes currency inside the account
       case TxnKind::void_entry:
@@ -356,6 +401,7 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
     }
   }
   for (const Transaction* t : taxes) {
+    const Decimal amount = booked(*t, *t->amount).amount;
     const std::string account = account_names[t->account_id];
     const std::string symbol = t->security_id ? symbols[*t->security_id] : std::string();
     const TaxStatus status = statuses.on(t->account_id, t->date);
@@ -365,30 +411,33 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
                row.day == t->date && row.symbol == symbol;
       });
       if (it != s.not_taxable.end())
-        it->withheld += *t->amount;
+        it->withheld += amount;
       else
-        s.not_taxable.push_back({account, std::string(to_string(status)), t->date, "tax", symbol,
-                                 *t->amount, Decimal()});
+        s.not_taxable.push_back(
+            {account, std::string(to_string(status)), t->date, "tax", symbol, amount, Decimal()});
       continue;
     }
     auto it = std::find_if(s.income.begin(), s.income.end(), [&](const IncomeRow& row) {
       return row.account == account && row.day == t->date && row.symbol == symbol;
     });
     if (it != s.income.end())
-      it->withheld += *t->amount;
+      it->withheld += amount;
     else
-      s.other_tax.push_back({account, t->date, symbol, *t->amount});
+      s.other_tax.push_back({account, t->date, symbol, amount});
   }
   std::stable_sort(s.not_taxable.begin(), s.not_taxable.end(),
                    [](const NotTaxableRow& a, const NotTaxableRow& b) { return a.day < b.day; });
   s.withholding = ledger::withholding_of(log, view, statuses, request.year, account_id);
 
-  // Value pieces: the returns module's values and external flows; the lot
-  // engine's realized gains and the cost basis moved by transfers.
-  y.opening_value = r.opening_value;
-  y.closing_value = r.closing_value;
-  y.transfers_in = r.inflow - y.deposits;
-  y.transfers_out = r.outflow - y.withdrawals;
+  // Value pieces: the holdings' values (each position and each cash
+  // currency converted on its own, as the unrealized gains are, so that a
+  // cent of rounding cannot come between them), the returns module's
+  // external flows, the lot engine's realized gains and the cost basis moved
+  // by transfers.
+  y.opening_value = opening.total_value;
+  y.closing_value = closing.total_value;
+  y.transfers_in = r.inflow - deposits_at_day_rate;
+  y.transfers_out = r.outflow - withdrawals_at_day_rate;
   y.realized_gain = s.realized_totals.all().gain + sheltered_gain;
   y.unrealized_opening = unrealized_total(opening);
   y.unrealized_closing = unrealized_total(closing);
@@ -400,6 +449,27 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   // What transfers added at market value, less the cash and cost basis they
   // brought, is unrealized gain that arrived with the units (not earned here).
   y.unrealized_moved = (y.transfers_in - y.transfers_out) - cash_moved - cost_moved;
+
+  // Foreign cash: the currency gain its spending realized in the period, and
+  // what it is worth over its cost at each end.
+  for (const auto& g : book.fx_realized()) {
+    if (g.disposed < s.from || g.disposed > s.to || (account_id && g.account_id != *account_id))
+      continue;
+    y.fx_cash_realized += g.gain();
+    s.fx_cash_gains.push_back({account_names[g.account_id], g});
+  }
+  y.fx_cash_unrealized_opening = fx_cash_unrealized(opening);
+  y.fx_cash_unrealized_closing = fx_cash_unrealized(closing);
+  s.foreign =
+      !s.fx_cash_gains.empty() ||
+      std::any_of(s.holdings.begin(), s.holdings.end(),
+                  [](const HoldingRow& h) { return h.line.rate.has_value(); }) ||
+      std::any_of(s.cash.begin(), s.cash.end(),
+                  [](const ledger::CashLine& c) { return !c.currency.empty(); }) ||
+      std::any_of(s.gains.begin(), s.gains.end(),
+                  [](const ledger::GainLine& g) { return g.part.local_cost.has_value(); }) ||
+      std::any_of(s.income.begin(), s.income.end(),
+                  [](const IncomeRow& i) { return i.converted.has_value(); });
 
   s.cautions = statement_cautions();
   return s;

@@ -7,13 +7,16 @@
 //    the latest close and the latest transaction) when the year is still
 //    running, and started at the first transaction day when the ledger began
 //    during the year (see perf/period.h).
-//  - Money is exact Decimal in the ledger's currency, never rounded here;
+//  - Money is exact Decimal in the reporting currency (the account's with an
+//    account, else the one every account keeps), never rounded here;
 //    returns are fractions (0.05 = 5 %), taken from perf::returns_report()
 //    and never recomputed.
 //  - The year summary adds up exactly (docs/statement.md states the identity):
 //      closing = opening + deposits - withdrawals + transfers in - transfers out
 //                + dividends - withholding + interest - fees + realized gain
 //                + change in unrealized gain - unrealized gain moved by transfers
+//                + currency gain realized on foreign cash
+//                + change in unrealized currency gain on foreign cash
 //    `difference()` is the closing value minus the right-hand side; it is
 //    zero when the ledger is consistent and is shown, not hidden, otherwise.
 //    Trade fees sit inside cost basis and realized gain and are given as a
@@ -25,6 +28,15 @@
 //  - Income detail: every dividend and interest payment in the period, each
 //    with the tax rows of the same account, day and security (or no security)
 //    as its withholding; tax rows without such a payment are listed apart.
+//  - Foreign currencies (ledger/fx_cash.h, docs/methods-ledger.md): every
+//    row in another currency counts as the lot engine booked it (the row's
+//    settlement rate, else the stored rate of its day; income says which).
+//    Positions and foreign cash are valued at the stored rate of the last day
+//    (market::View::rate: direct, inverted or crossed, and said so); a
+//    realized gain keeps its price part and currency part; foreign cash is
+//    carried at cost, so its currency gain (realized when spent, unrealized
+//    while held) is a line of its own, apart from price gains. A missing rate
+//    throws InputError naming the pair and the day.
 //  - Tax status (ledger/tax.h): realized gains, income and tax rows of an
 //    account that is tax-deferred or tax-exempt on their day are not in
 //    `gains`, `income` or `other_tax` but in `not_taxable` ("not a taxable
@@ -80,8 +92,15 @@ struct YearSummary {
   Decimal unrealized_moved;  // unrealized gain that arrived (+) or left (-) with transferred units
   Decimal closing_value;
   Decimal trade_fees;  // memo: buy and sell fees, already inside cost basis and realized gain
+  // Cash in other currencies, carried at cost: the currency gain realized by
+  // spending it in the period, and its value less cost at each end.
+  Decimal fx_cash_realized;
+  Decimal fx_cash_unrealized_opening, fx_cash_unrealized_closing;
 
   Decimal unrealized_change() const { return unrealized_closing - unrealized_opening; }
+  Decimal fx_cash_unrealized_change() const {
+    return fx_cash_unrealized_closing - fx_cash_unrealized_opening;
+  }
   Decimal explained_closing() const;  // the right-hand side of the identity
   Decimal difference() const { return closing_value - explained_closing(); }
 };
@@ -123,13 +142,30 @@ struct AllocationSlice {
   Decimal weight;  // fraction of the closing value
 };
 
+// How an amount in another currency was brought into the reporting one.
+struct RateUsed {
+  std::string currency;                // the row's
+  Decimal local;                       // the amount in it
+  std::optional<Decimal> row_rate;     // the row's settlement rate (row currency per unit)
+  std::optional<market::FxQuote> day;  // else the stored rate of the row's day
+  Decimal rate() const { return row_rate ? *row_rate : day->rate; }
+  std::string source() const;  // "the row's rate" or "stored, 2025-06-13" (+ how derived)
+};
+
 struct IncomeRow {
   std::string account;
   Date day;
   std::string kind;    // "dividend" or "interest"
   std::string symbol;  // empty when none
   Decimal gross, withheld;
+  std::optional<RateUsed> converted = std::nullopt;  // a payment in another currency
   Decimal net() const { return gross - withheld; }
+};
+
+// Foreign cash spent in the period: its currency gain (Book::fx_realized).
+struct FxCashGainRow {
+  std::string account;
+  FxRealized part;
 };
 
 struct TaxRow {
@@ -176,9 +212,11 @@ struct Statement {
   std::vector<ledger::GainLine> gains;  // classified by the request's long-term rule
   ledger::GainsByTerm realized_totals;
   std::vector<IncomeRow> income;
-  std::vector<TaxRow> other_tax;           // tax rows not matched to a payment
-  std::vector<NotTaxableRow> not_taxable;  // by day; sales first within a day
-  ledger::Withholding withholding;         // taxable accounts, the period's tax rows
+  std::vector<TaxRow> other_tax;             // tax rows not matched to a payment
+  std::vector<NotTaxableRow> not_taxable;    // by day; sales first within a day
+  ledger::Withholding withholding;           // taxable accounts, the period's tax rows
+  std::vector<FxCashGainRow> fx_cash_gains;  // by day, as the lot engine realized them
+  bool foreign = false;                      // some figure was converted from another currency
   std::vector<std::string> cautions;
 };
 

@@ -413,8 +413,10 @@ std::string statement_html(const Statement& s, Paper paper) {
          table_html(find("realized")) + "</section>\n";
   out += "<section>\n<h2>" + esc(find("income").title) + "</h2>\n" + table_html(find("income")) +
          "</section>\n";
+  // The sections a statement shows only when it has their rows.
   for (const auto& sec : sections)
-    if (sec.key == "withholding" || sec.key == "not_taxable")
+    if (sec.key == "realized_currency" || sec.key == "income_converted" ||
+        sec.key == "currency_gains" || sec.key == "withholding" || sec.key == "not_taxable")
       out += "<section>\n<h2>" + esc(sec.title) + "</h2>\n" + table_html(sec) + "</section>\n";
   out += "<section class=\"cautions\">\n<h2>" + esc(find("cautions").title) + "</h2>\n<ul>\n";
   for (const auto& c : s.cautions) out += "<li>" + esc(c) + "</li>\n";

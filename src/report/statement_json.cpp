@@ -21,12 +21,33 @@ void symbol(JsonWriter& j, const std::string& s) {
     j.value(s);
 }
 
+// A stored rate as used (as keel holdings writes it), or null.
+void quote(JsonWriter& j, const char* name, const std::optional<market::FxQuote>& q) {
+  j.key(name);
+  if (!q) {
+    j.null();
+    return;
+  }
+  j.begin_object().member("pair", q->base + "/" + q->quote);
+  j.member("rate", q->rate).member("day", q->day.str());
+  j.member("derived", q->how == market::FxHow::direct ? "" : q->describe()).end_object();
+}
+
+// A currency code, or null for the reporting currency itself.
+void currency(JsonWriter& j, const std::string& code) {
+  j.key("currency");
+  if (code.empty())
+    j.null();
+  else
+    j.value(code);
+}
+
 }  // namespace
 
 std::string statement_json(const Statement& s) {
   std::string text;
   JsonWriter j(text);
-  begin_document(j, "statement", 1);
+  begin_document(j, "statement", 2);
   j.member("year", s.year).member("scope", s.scope).member("currency", s.currency);
   j.member("from", s.from.str()).member("to", s.to.str()).member("as_of", s.as_of.str());
   j.member("inception", s.inception.str()).member("partial_year", s.partial_year);
@@ -50,6 +71,10 @@ std::string statement_json(const Statement& s) {
   j.member("unrealized_moved", y.unrealized_moved).member("closing_value", y.closing_value);
   j.member("explained_closing", y.explained_closing()).member("difference", y.difference());
   j.member("trade_fees", y.trade_fees);
+  j.member("fx_cash_realized", y.fx_cash_realized);
+  j.member("fx_cash_unrealized_opening", y.fx_cash_unrealized_opening);
+  j.member("fx_cash_unrealized_closing", y.fx_cash_unrealized_closing);
+  j.member("fx_cash_unrealized_change", y.fx_cash_unrealized_change());
   j.end_object();
 
   j.key("performance").begin_array();
@@ -89,12 +114,29 @@ std::string statement_json(const Statement& s) {
     j.member("price", h.line.price).member("price_is_close", h.line.price_is_close);
     j.member("market_value", h.line.market_value);
     j.member("unrealized_gain", h.line.unrealized_gain).member("weight", h.weight);
+    currency(j, h.line.currency);
+    quote(j, "rate", h.line.rate);
+    j.key("local_value");
+    if (h.line.rate)
+      j.value(h.line.local_value);
+    else
+      j.null();
     j.end_object();
   }
   j.end_array();
   j.key("cash").begin_array();
-  for (const auto& c : s.cash)
-    j.begin_object().member("account", c.account).member("amount", c.amount).end_object();
+  for (const auto& c : s.cash) {
+    j.begin_object().member("account", c.account).member("amount", c.amount);
+    currency(j, c.currency);
+    quote(j, "rate", c.rate);
+    j.member("value", c.worth());
+    j.key("cost");
+    if (c.currency.empty())
+      j.null();
+    else
+      j.value(c.cost);
+    j.end_object();
+  }
   j.end_array();
   j.member("holdings_total", s.holdings_total);
 
@@ -106,6 +148,8 @@ std::string statement_json(const Statement& s) {
     j.member("days_held", g.days_held).member("quantity", g.part.quantity);
     j.member("proceeds", g.part.proceeds).member("cost", g.part.cost);
     j.member("gain", g.part.gain()).member("class", g.long_term ? "long" : "short");
+    j.member("local_proceeds", g.part.local_proceeds).member("local_cost", g.part.local_cost);
+    j.member("price_part", g.part.price_part()).member("currency_part", g.part.currency_part());
     j.end_object();
   }
   j.end_array();
@@ -120,6 +164,16 @@ std::string statement_json(const Statement& s) {
     j.member("kind", r.kind);
     symbol(j, r.symbol);
     j.member("gross", r.gross).member("withheld", r.withheld).member("net", r.net());
+    j.key("converted");
+    if (!r.converted) {
+      j.null();
+    } else {
+      const RateUsed& u = *r.converted;
+      j.begin_object().member("currency", u.currency).member("local_gross", u.local);
+      j.member("rate", u.rate()).member("source", u.row_rate ? "row" : "stored");
+      quote(j, "stored_rate", u.day);
+      j.end_object();
+    }
     j.end_object();
   }
   j.end_array();
@@ -151,6 +205,14 @@ std::string statement_json(const Statement& s) {
   j.end_object();
   j.member("total", s.withholding.total).member("not_taxable", s.withholding.not_taxable);
   j.end_object();
+  j.key("fx_cash_gains").begin_array();
+  for (const auto& g : s.fx_cash_gains) {
+    j.begin_object().member("account", g.account).member("currency", g.part.currency);
+    j.member("acquired", g.part.acquired.str()).member("disposed", g.part.disposed.str());
+    j.member("amount", g.part.quantity).member("proceeds", g.part.proceeds);
+    j.member("cost", g.part.cost).member("gain", g.part.gain()).end_object();
+  }
+  j.end_array();
   j.member("cautions", s.cautions);
   j.end_object();
   return text + "\n";

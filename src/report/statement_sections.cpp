@@ -33,6 +33,10 @@ Section summary_section(const Statement& s) {
   row("realized gain", y.realized_gain);
   row("change in unrealized gain", y.unrealized_change());
   row("unrealized gain moved in by transfers", -y.unrealized_moved);
+  if (s.foreign) {
+    row("currency gain on foreign cash, realized", y.fx_cash_realized);
+    row("change in unrealized currency gain on foreign cash", y.fx_cash_unrealized_change());
+  }
   const std::size_t explained = sec.rows.size();
   sec.emphasised.push_back(explained);
   row("opening value plus the pieces", y.explained_closing());
@@ -52,6 +56,12 @@ Section summary_section(const Statement& s) {
       y.trade_fees.fixed(2)));
   sec.notes.push_back(fmt::format("Unrealized gain: {} at the start, {} at the end.",
                                   y.unrealized_opening.fixed(2), y.unrealized_closing.fixed(2)));
+  if (s.foreign)
+    sec.notes.push_back(fmt::format(
+        "Every figure is in {}. Foreign cash is carried at its cost in {}; its currency gain is "
+        "shown apart from price gains ({} at the start, {} at the end, unrealized).",
+        s.currency, s.currency, y.fx_cash_unrealized_opening.fixed(2),
+        y.fx_cash_unrealized_closing.fixed(2)));
   return sec;
 }
 
@@ -143,32 +153,63 @@ Section holdings_section(const Statement& s) {
                  {"quantity", Align::right},        {"cost basis", Align::right, false, 1},
                  {"price", Align::right, false, 3}, {"value", Align::right},
                  {"unrealized", Align::right},      {"weight", Align::right, false, 2}};
+  // With other currencies, the price is local: its currency and the rate
+  // used stand beside it (and the value is converted).
+  const std::size_t extra = s.foreign ? 2 : 0;
+  if (s.foreign)
+    sec.columns.insert(sec.columns.begin() + 5,
+                       {{"currency", Align::left, false, 4}, {"rate", Align::right, false, 5}});
+  std::vector<std::string> rates;
+  auto with_rate = [&](std::vector<Cell> cells, const std::string& currency,
+                       const std::optional<market::FxQuote>& rate) {
+    if (!s.foreign) return cells;
+    cells.insert(cells.begin() + 5, {C::of_text(currency.empty() ? s.currency : currency),
+                                     rate ? C::of_quantity(rate->rate) : C::none()});
+    if (rate && std::find(rates.begin(), rates.end(), rate->describe()) == rates.end())
+      rates.push_back(rate->describe());
+    return cells;
+  };
   bool trade_price = false;
   Decimal cost, value, unrealized;
   for (const auto& h : s.holdings) {
     const auto& p = h.line;
     trade_price |= !p.price_is_close;
-    sec.rows.push_back({C::of_text(p.account), C::of_text(p.symbol + (p.price_is_close ? "" : "*")),
-                        C::of_quantity(p.quantity), C::of_money(p.cost_basis),
-                        C::of_quantity(p.price), C::of_money(p.market_value),
-                        C::of_money(p.unrealized_gain), C::of_percent(h.weight)});
+    sec.rows.push_back(with_rate(
+        {C::of_text(p.account), C::of_text(p.symbol + (p.price_is_close ? "" : "*")),
+         C::of_quantity(p.quantity), C::of_money(p.cost_basis), C::of_quantity(p.price),
+         C::of_money(p.market_value), C::of_money(p.unrealized_gain), C::of_percent(h.weight)},
+        p.currency, p.rate));
     cost += p.cost_basis;
     value += p.market_value;
     unrealized += p.unrealized_gain;
   }
   for (const auto& c : s.cash) {
     const Decimal w =
-        s.holdings_total.is_zero() ? Decimal() : Decimal::divide(c.amount, s.holdings_total, 6);
-    sec.rows.push_back({C::of_text(c.account), C::of_text("cash"), C::none(), C::none(), C::none(),
-                        C::of_money(c.amount), C::none(), C::of_percent(w)});
+        s.holdings_total.is_zero() ? Decimal() : Decimal::divide(c.worth(), s.holdings_total, 6);
+    sec.rows.push_back(
+        with_rate({C::of_text(c.account), C::of_text("cash"),
+                   c.currency.empty() ? C::none() : C::of_quantity(c.amount), C::none(), C::none(),
+                   C::of_money(c.worth()), C::none(), C::of_percent(w)},
+                  c.currency, c.rate));
   }
   const std::size_t total_row = sec.rows.size();
   sec.emphasised.push_back(total_row);
-  sec.rows.push_back({C::of_text("total"), C::none(), C::none(), C::of_money(cost), C::none(),
-                      C::of_money(s.holdings_total), C::of_money(unrealized), C::none()});
+  sec.rows.push_back(
+      with_rate({C::of_text("total"), C::none(), C::none(), C::of_money(cost), C::none(),
+                 C::of_money(s.holdings_total), C::of_money(unrealized), C::none()},
+                s.currency, std::nullopt));
+  if (s.foreign) sec.rows.back()[5] = C::none();
   if (total_row > 0)
-    for (const std::size_t column : {3, 5, 6})
+    for (const std::size_t column : {std::size_t{3}, 5 + extra, 6 + extra})
       sec.formulas.push_back(Formula::sum(total_row, column, 0, total_row - 1));
+  if (s.foreign) {
+    sec.notes.push_back(fmt::format(
+        "Prices are in each security's currency; values are in {} at the rate beside them "
+        "(units of that currency per {}), the latest stored on or before {}. Cash in another "
+        "currency shows its amount under quantity.",
+        s.currency, s.currency, s.to.str()));
+    for (const auto& r : rates) sec.notes.push_back("Converted at " + r + ".");
+  }
   if (trade_price)
     sec.notes.push_back(
         "* no close on or before the day; valued at the ledger's last trade price.");
@@ -314,6 +355,119 @@ Section income_section(const Statement& s) {
   return sec;
 }
 
+// Sales of securities in another currency: the local figures and the gain's
+// price part and currency part (docs/methods-ledger.md).
+Section gains_parts_section(const Statement& s) {
+  Section sec;
+  sec.key = "realized_currency";
+  sec.title = "Realized gains in other currencies: price part and currency part";
+  sec.columns = {{"account", Align::left, true},
+                 {"symbol"},
+                 {"lot", Align::right, false, 1},
+                 {"disposed"},
+                 {"proceeds, local", Align::right},
+                 {"cost, local", Align::right},
+                 {"gain", Align::right},
+                 {"price part", Align::right},
+                 {"currency part", Align::right}};
+  for (const auto& g : s.gains) {
+    if (!g.part.local_cost) continue;
+    sec.rows.push_back({C::of_text(g.account), C::of_text(g.symbol), C::of_integer(g.part.lot_id),
+                        C::of_date(g.part.disposed), C::of_quantity(*g.part.local_proceeds),
+                        C::of_quantity(*g.part.local_cost), C::of_money(g.part.gain()),
+                        C::of_money(g.part.price_part()), C::of_money(g.part.currency_part())});
+  }
+  const std::size_t total_row = sec.rows.size();
+  Decimal gain, price;
+  for (const auto& g : s.gains)
+    if (g.part.local_cost) gain += g.part.gain(), price += g.part.price_part();
+  sec.emphasised.push_back(total_row);
+  sec.rows.push_back({C::of_text("total"), C::none(), C::none(), C::none(), C::none(), C::none(),
+                      C::of_money(gain), C::of_money(price), C::of_money(gain - price)});
+  for (const std::size_t column : {6, 7, 8})
+    sec.formulas.push_back(Formula::sum(total_row, column, 0, total_row - 1));
+  sec.notes.push_back(fmt::format(
+      "Local figures are in the security's currency. The gain is in {}, as in the table above: "
+      "its price part is the local gain at the sale's rate, its currency part the rest, what "
+      "the move of the rate did to the cost.",
+      s.currency));
+  return sec;
+}
+
+// Payments in another currency: the amount in it and how it was converted.
+Section income_conversion_section(const Statement& s) {
+  Section sec;
+  sec.key = "income_converted";
+  sec.title = fmt::format("Income in other currencies, converted into {}", s.currency);
+  sec.columns = {{"account", Align::left, true},
+                 {"date"},
+                 {"symbol"},
+                 {"currency"},
+                 {"gross, local", Align::right},
+                 {"rate", Align::right},
+                 {"rate from", Align::left, false, 1},
+                 {"gross", Align::right}};
+  for (const auto& r : s.income) {
+    if (!r.converted) continue;
+    const RateUsed& u = *r.converted;
+    sec.rows.push_back({C::of_text(r.account), C::of_date(r.day), C::of_text(r.symbol),
+                        C::of_text(u.currency), C::of_quantity(u.local), C::of_quantity(u.rate()),
+                        C::of_text(u.source()), C::of_money(r.gross)});
+  }
+  sec.notes.push_back(fmt::format(
+      "The rate is units of the payment's currency per {}: the rate given on the row when it "
+      "has one (the payment settled in {}), else the latest stored rate on or before its day. "
+      "Withholding is converted the same way, row by row.",
+      s.currency, s.currency));
+  return sec;
+}
+
+// Foreign cash: the currency gain realized when it was spent, and what it is
+// worth over its cost while held.
+Section fx_cash_section(const Statement& s) {
+  Section sec;
+  sec.key = "currency_gains";
+  sec.title = "Currency gains on foreign cash";
+  sec.columns = {{"account", Align::left, true},
+                 {"currency"},
+                 {"state"},
+                 {"acquired"},
+                 {"day"},
+                 {"amount", Align::right},
+                 {"worth", Align::right},
+                 {"cost", Align::right},
+                 {"gain", Align::right}};
+  for (const auto& g : s.fx_cash_gains)
+    sec.rows.push_back({C::of_text(g.account), C::of_text(g.part.currency), C::of_text("spent"),
+                        C::of_date(g.part.acquired), C::of_date(g.part.disposed),
+                        C::of_quantity(g.part.quantity), C::of_money(g.part.proceeds),
+                        C::of_money(g.part.cost), C::of_money(g.part.gain())});
+  for (const auto& c : s.cash) {
+    if (c.currency.empty()) continue;
+    sec.rows.push_back({C::of_text(c.account), C::of_text(c.currency), C::of_text("held"),
+                        C::none(), C::of_date(s.to), C::of_quantity(c.amount), C::of_money(c.value),
+                        C::of_money(c.cost), C::of_money(c.currency_gain())});
+  }
+  const std::size_t detail = sec.rows.size();
+  const YearSummary& y = s.summary;
+  sec.emphasised.push_back(detail);
+  sec.rows.push_back({C::of_text("realized"), C::none(), C::of_text("spent"), C::none(), C::none(),
+                      C::none(), C::none(), C::none(), C::of_money(y.fx_cash_realized)});
+  sec.rows.push_back({C::of_text("unrealized"), C::none(), C::of_text("held"), C::none(), C::none(),
+                      C::none(), C::none(), C::none(), C::of_money(y.fx_cash_unrealized_closing)});
+  if (detail > 0) {
+    sec.formulas.push_back(Formula::sum_if(detail, 8, 0, detail - 1, 2, "spent"));
+    sec.formulas.push_back(Formula::sum_if(detail + 1, 8, 0, detail - 1, 2, "held"));
+  }
+  sec.notes.push_back(fmt::format(
+      "Cash in another currency is carried at what it cost in {}. Spending it (a buy, a fee, a "
+      "tax, a withdrawal, an exchange) realizes the difference between its worth that day and "
+      "its cost; cash still held is worth its amount at the rate of {}. These are gains of the "
+      "currency, not of any security.",
+      s.currency, s.to.str()));
+  return sec;
+}
+
 Section cautions_section(const Statement& s) {
   Section sec;
   sec.key = "cautions";
@@ -326,13 +480,24 @@ Section cautions_section(const Statement& s) {
 }  // namespace
 
 std::vector<Section> statement_sections(const Statement& s) {
-  std::vector<Section> out{summary_section(s),  performance_section(s), monthly_section(s),
-                           holdings_section(s), gains_section(s),       income_section(s)};
+  std::vector<Section> out{summary_section(s), performance_section(s), monthly_section(s),
+                           holdings_section(s), gains_section(s)};
+  if (std::any_of(s.gains.begin(), s.gains.end(),
+                  [](const ledger::GainLine& g) { return g.part.local_cost.has_value(); }))
+    out.push_back(gains_parts_section(s));
+  out.push_back(income_section(s));
   // Shown only when the year has them, so a household of taxable accounts
   // without withholding keeps its short statement.
   if (!s.withholding.total.is_zero() || !s.withholding.not_taxable.is_zero())
     out.push_back(withholding_section(s));
   if (!s.not_taxable.empty()) out.push_back(not_taxable_section(s));
+  if (std::any_of(s.income.begin(), s.income.end(),
+                  [](const IncomeRow& r) { return r.converted.has_value(); }))
+    out.push_back(income_conversion_section(s));
+  if (!s.fx_cash_gains.empty() ||
+      std::any_of(s.cash.begin(), s.cash.end(),
+                  [](const ledger::CashLine& c) { return !c.currency.empty(); }))
+    out.push_back(fx_cash_section(s));
   out.push_back(cautions_section(s));
   return out;
 }

@@ -21,6 +21,16 @@ def csv_text(header, rows):
     return buf.getvalue()
 
 
+def write_csv_files(folder, tables):
+    """Writes each (name, header, rows) of `tables` as folder/name; returns name -> path."""
+    paths = {}
+    for name, header, rows in tables:
+        paths[name] = os.path.join(folder, name)
+        with open(paths[name], "w") as out:
+            out.write(csv_text(header, rows))
+    return paths
+
+
 class Ledger:
     """A fresh ledger in a temporary folder; run() returns (code, stdout, stderr).
 

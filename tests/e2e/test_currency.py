@@ -1,9 +1,11 @@
 """The ledger's own currency, and reports that never add amounts of two currencies.
 
-keel does not convert between currencies yet. So: no account or security silently becomes
-USD; the ledger's currency is the one given to `keel init --currency`, else the first
-account's; accounts and securities added without --currency take it; and a report adding up
-accounts that keep different currencies is refused, naming each, until --account narrows it.
+No account or security silently becomes USD; the ledger's currency is the one given to `keel
+init --currency`, else the first account's; accounts and securities added without --currency
+take it. Holdings and returns of accounts that keep different currencies are in the ledger's own
+currency (or --currency), converted at stored rates: without a rate they stop, naming the pair
+and the day. The statement of such a ledger is refused, naming each account, until --account
+narrows it.
 Refusals change nothing (SHA-256 of every table's rows before and after).
 """
 import hashlib
@@ -55,17 +57,30 @@ refused(led, ["init", "--currency", "USD"],
         "keel: error: --currency: the ledger's currency is EUR; it is set once and never changed "
         "(keel does not convert amounts already booked)")
 
-# Accounts in two currencies: every report that adds them up refuses, naming each account.
+# Accounts in two currencies: the household's holdings and returns are in euros, the ledger's
+# own currency, and need a rate; the statement refuses, naming each account.
 led.ok("account", "add", "Dollar", "--currency", "USD")
 led.ok("record", "deposit", "--date", "2024-01-02", "--account", "Main", "--amount", "100")
 led.ok("record", "deposit", "--date", "2024-01-02", "--account", "Dollar", "--amount", "100")
+NO_RATE = ("no exchange rate for EUR/USD on or before 2024-12-31 (nor for USD/EUR, nor through a "
+           "third currency); import one with 'keel import fx FILE.csv'")
+refused(led, ["holdings", "--as-of", "2024-12-31"], f"keel: error: holdings: cash in USD: {NO_RATE}")
+refused(led, ["returns", "--from", "2024-01-02", "--to", "2024-12-31"],
+        f"keel: error: {NO_RATE.replace('2024-12-31', '2024-01-02')}")
 MIXED = ("the accounts keep different currencies (Dollar: USD; Main: EUR; Second: EUR) and keel "
          "does not convert between them yet; give --account for one account")
-for args, what in ((["holdings", "--as-of", "2024-12-31"], "holdings"),
-                   (["returns", "--from", "2024-01-02", "--to", "2024-12-31"], "returns"),
-                   (["statement", "--year", "2024"], "statement")):
-    refused(led, args, f"keel: error: {what}: {MIXED}")
+refused(led, ["statement", "--year", "2024"], f"keel: error: statement: {MIXED}")
 equal(led.json("holdings", "--as-of", "2024-12-31", "--account", "Dollar")["total_value"], "100",
       "one account at a time")
-print("currency: no silent USD; the first account's currency is the ledger's; three reports "
-      "refuse two currencies")
+rates = os.path.join(led.dir.name, "rates.csv")
+with open(rates, "w") as f:
+    f.write("date,base,quote,rate\n2024-01-02,EUR,USD,1.25\n")
+led.ok("import", "fx", rates, "--quiet")
+# 100 EUR + 100 USD / 1.25 = 180 EUR (by hand); in dollars 125 + 100 = 225 USD.
+equal(led.json("holdings", "--as-of", "2024-12-31")["total_value"], "180", "the household in EUR")
+equal(led.json("holdings", "--as-of", "2024-12-31", "--currency", "USD")["total_value"], "225",
+      "the household in USD")
+equal(led.json("returns", "--from", "2024-01-02", "--to", "2024-12-31")["closing_value"], "180",
+      "the household's returns in EUR")
+print("currency: no silent USD; the first account's currency is the ledger's; a household in two "
+      "currencies reports in the ledger's, converted")

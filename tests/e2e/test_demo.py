@@ -100,7 +100,7 @@ printed_total = re.search(r"^total\s+(\S+)\s*$", sections["Holdings on the last 
 check(printed_total, "the holdings table ends with a total")
 returns = sections["The year's returns against the benchmark"]
 check(re.search(r"^\s*benchmark ZXTR\s+-?\d+\.\d\d%", returns, re.M), "returns name the benchmark")
-check("Returns of all accounts from 2025-01-01 to 2025-12-31" in returns, "returns cover 2025")
+check("Returns of all accounts in USD from 2025-01-01 to 2025-12-31" in returns, "returns cover 2025")
 for caution in ("it gives no investment advice", "do not predict future returns",
                 "overfit", "licensed professional", "Everything above is invented"):
     check(caution in out, f"the demo cautions: {caution}")

@@ -16,7 +16,7 @@ from decimal import Decimal
 import pandas as pd
 
 sys.path.insert(0, os.path.dirname(__file__))
-from keel_cli import Ledger, check, csv_text, equal  # noqa: E402
+from keel_cli import Ledger, check, equal, write_csv_files  # noqa: E402
 
 FROM, TO = "2025-03-03", "2025-04-30"
 
@@ -49,15 +49,11 @@ led = Ledger(currency="EUR")
 led.ok("account", "add", "Depot")
 led.ok("security", "add", "QNT", "--name", "Quintara Optics", "--kind", "stock",
        "--currency", "USD")
-files = {}
-for name, header, rows in (
+files = write_csv_files(led.dir.name, (
         ("rates.csv", ["date", "base", "quote", "rate"], [(d, "EUR", "USD", r) for d, r in RATE_ROWS]),
         ("closes.csv", ["date", "symbol", "close"], [(d, "QNT", c) for d, c in CLOSE_ROWS]),
         ("trades.csv", COLUMNS, [(d, "Depot", k, s, q, p, a, f, "", c, r, to)
-                                 for d, k, s, q, p, a, f, c, r, to in TXNS])):
-    files[name] = os.path.join(led.dir.name, name)
-    with open(files[name], "w") as out:
-        out.write(csv_text(header, rows))
+                                 for d, k, s, q, p, a, f, c, r, to in TXNS])))
 led.ok("import", "fx", files["rates.csv"], "--quiet")
 led.ok("import", "prices", files["closes.csv"], "--quiet")
 led.ok("import", "transactions", files["trades.csv"])

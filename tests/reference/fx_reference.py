@@ -8,7 +8,9 @@ sale's proceeds shared among lots uses the largest-remainder rule of docs/method
 ("Splitting an amount to the cent").
 
 Input: a list of transaction dicts (the same rows the test imports) and the EUR/USD rates.
-Output: holdings on a day and the realized gains, each part with its price and currency part.
+Output: holdings on a day and the realized gains, each part with its price and currency part;
+on request, the currency gains that spending dollar cash realized (its worth in euros that day,
+shared among the dollar lots taken by quantity, less their cost).
 """
 
 from decimal import ROUND_DOWN, ROUND_HALF_EVEN, Decimal, localcontext
@@ -94,10 +96,11 @@ def take(lots, qty):
     return out
 
 
-def replay(rows, rate_rows, currencies):
+def replay(rows, rate_rows, currencies, fx_gains=None):
     """rows: dicts with id, date, account, kind, symbol, quantity, price, amount, fee,
     currency, rate, to_currency (strings or None). currencies: symbol -> currency.
-    Every account keeps EUR; foreign cash is USD only."""
+    Every account keeps EUR; foreign cash is USD only. fx_gains: a list to which each dollar
+    lot spent is appended (account, acquired, disposed, amount, proceeds, cost, gain)."""
     rates = Rates(rate_rows)
     D = lambda v: Decimal(v) if v not in (None, "") else None  # noqa: E731
     books = {}
@@ -105,6 +108,14 @@ def replay(rows, rate_rows, currencies):
 
     def book(a):
         return books.setdefault(a, {"cash": Decimal(0), "usd": [], "pos": {}})
+
+    def spend(b, qty, worth, r):
+        parts = take(b["usd"], qty)
+        for p, pr in zip(parts, allocate(worth, [p["qty"] for p in parts])):
+            if fx_gains is not None:
+                fx_gains.append({"account": r["account"], "acquired": p["day"],
+                                 "disposed": r["date"], "amount": p["qty"], "proceeds": pr,
+                                 "cost": p["cost"], "gain": pr - p["cost"]})
 
     for r in rows:
         b = book(r["account"])
@@ -122,7 +133,7 @@ def replay(rows, rate_rows, currencies):
                 b["cash"] -= sold + fee
                 b["usd"].append({"id": r["id"], "day": day, "qty": bought, "cost": sold + fee})
             else:
-                take(b["usd"], sold + fee)
+                spend(b, sold + fee, bought, r)
                 b["cash"] += bought
             continue
         if cur == "EUR":
@@ -146,14 +157,14 @@ def replay(rows, rate_rows, currencies):
             if rate:
                 b["cash"] -= to_eur(amount)
             else:
-                take(b["usd"], amount)
+                spend(b, amount, to_eur(amount), r)
         elif kind == "buy":
             local = qty * price + fee
             cost = to_eur(local)
             if rate:
                 b["cash"] -= cost
             else:
-                take(b["usd"], local)
+                spend(b, local, cost, r)
             b["pos"].setdefault(sym, []).append(
                 {"id": r["id"], "day": day, "qty": qty, "cost": cost, "local": local})
         elif kind == "sell":
@@ -199,6 +210,7 @@ def holdings(books, rates, closes, currencies, day):
         usd = sum((l["qty"] for l in b["usd"]), Decimal(0))
         if b["usd"]:
             value = rates.to_eur(usd, day)
-            cash.append({"account": account, "amount": usd, "currency": "USD", "value": value})
+            cash.append({"account": account, "amount": usd, "currency": "USD", "value": value,
+                         "cost": sum(l["cost"] for l in b["usd"])})
             total += value
     return positions, cash, total

@@ -107,8 +107,16 @@ TEST_CASE("regression: holdings and returns added cash of USD and EUR accounts w
   const std::string mixed =
       ": the accounts keep different currencies (Euro: EUR; Main: USD) and keel does not convert "
       "between them yet; give --account for one account";
+  // Without a reporting currency the household's holdings are refused; with
+  // one, the other account's cash needs a rate, which this ledger lacks.
   CHECK(error_of([&] { ledger::holdings(f.db, day("2024-12-31")); }) == "holdings" + mixed);
-  CHECK(error_of([&] { perf::returns_report(f.db, perf::ReturnsRequest{}); }) == "returns" + mixed);
+  CHECK(error_of([&] {
+          ledger::holdings(f.db, day("2024-12-31"), std::nullopt, std::string("EUR"));
+        }).find("holdings: cash in USD: no exchange rate for EUR/USD on or before 2024-12-31") ==
+        0);
+  CHECK(error_of([&] {
+          perf::returns_report(f.db, perf::ReturnsRequest{});
+        }).find("no exchange rate for ") == 0);
   CHECK(ledger::holdings(f.db, day("2024-12-31"), std::string("Euro")).total_value == dec("100"));
 }
 

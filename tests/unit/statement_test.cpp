@@ -135,6 +135,36 @@ struct StatementLedger : LedgerFixture {
   }
 };
 
+// Checks that each formula of every section gives its total exactly from the
+// section's cells; returns how many there were.
+std::size_t check_formulas(const report::Statement& statement) {
+  std::size_t checked = 0;
+  for (const auto& sec : report::statement_sections(statement)) {
+    for (const auto& f : sec.formulas) {
+      Decimal value;
+      if (f.kind == report::Formula::Kind::difference) {
+        value = sec.rows[f.first][f.column].number - sec.rows[f.last][f.column].number;
+      } else {
+        for (std::size_t r = f.first; r <= f.last; ++r)
+          if (f.kind == report::Formula::Kind::sum || sec.rows[r][f.if_column].text == f.if_text)
+            value += sec.rows[r][f.column].number;
+      }
+      CHECK_MESSAGE(value == sec.rows[f.row][f.column].number, sec.key, " row ", f.row);
+      ++checked;
+    }
+  }
+  return checked;
+}
+
+// The widest line of the statement's terminal text, in columns.
+std::size_t widest_line(const report::Statement& statement) {
+  std::istringstream text(report::statement_text(statement, {}));
+  std::string line;
+  std::size_t widest = 0;
+  while (std::getline(text, line)) widest = std::max(widest, report::display_width(line));
+  return widest;
+}
+
 std::string error_of(StatementLedger& k, report::StatementRequest r) {
   try {
     report::build_statement(k.db, r);
@@ -396,11 +426,7 @@ TEST_CASE("statement forms: the summary table shows the check and every piece") 
 
 TEST_CASE("statement forms: terminal text stays within 100 columns") {
   StatementLedger k;
-  std::istringstream text(report::statement_text(k.statement(), {}));
-  std::string line;
-  std::size_t widest = 0;
-  while (std::getline(text, line)) widest = std::max(widest, report::display_width(line));
-  CHECK(widest <= 100);
+  CHECK(widest_line(k.statement()) <= 100);
 }
 
 TEST_CASE("statement forms: HTML escapes user text and refers to nothing outside") {
@@ -439,21 +465,7 @@ TEST_CASE("statement forms: CSV writes one file per section and refuses a missin
 
 TEST_CASE("statement forms: every formula gives its total exactly from the section's cells") {
   StatementLedger k;
-  std::size_t checked = 0;
-  for (const auto& sec : report::statement_sections(k.statement())) {
-    for (const auto& f : sec.formulas) {
-      Decimal value;
-      if (f.kind == report::Formula::Kind::difference) {
-        value = sec.rows[f.first][f.column].number - sec.rows[f.last][f.column].number;
-      } else {
-        for (std::size_t r = f.first; r <= f.last; ++r)
-          if (f.kind == report::Formula::Kind::sum || sec.rows[r][f.if_column].text == f.if_text)
-            value += sec.rows[r][f.column].number;
-      }
-      CHECK_MESSAGE(value == sec.rows[f.row][f.column].number, sec.key, " row ", f.row);
-      ++checked;
-    }
-  }
+  const std::size_t checked = check_formulas(k.statement());
   // summary 2, holdings 3, realized 9, income 3, withholding 2 (one country and the total)
   CHECK(checked == 19);
 }
@@ -528,4 +540,166 @@ TEST_CASE("statement paper: the locale's size picks letter only for 279 x 216 mm
   CHECK(report::paper_of_size(297, 210) == report::Paper::a4);
   CHECK(report::paper_of_size(356, 216) == report::Paper::a4);  // legal: A4, the default
   CHECK(report::paper_of_size(0, 0) == report::Paper::a4);
+}
+
+namespace {
+
+// A euro account holding a dollar stock (invented), statement year 2025.
+// Rates are USD per EUR. By hand, EUR cash and USD cash lots after each row:
+//   01-02 deposit 10000 EUR                                   EUR 10000
+//   01-03 exchange 4000 EUR into USD at 1.25                  EUR 6000; USD 5000 (cost 4000)
+//   01-06 buy 40 HLX at 100 USD from dollar cash, day 1.25    lot cost 3200 EUR (4000 USD);
+//         the 4000 USD spent cost 3200: currency gain 0       USD 1000 (cost 800)
+//   06-16 dividend 60 USD kept, day rate 1.20: 50.00 EUR      USD +60 (cost 50)
+//   06-16 tax 9 USD on it, day rate 1.20: 7.50 EUR; the 9 USD
+//         taken from the oldest lot cost 7.20: gain 0.30      USD 991 (cost 792.80), 60 (50)
+//   07-01 dividend 24 USD settled at the row's 1.28: 18.75    EUR 6018.75
+//   09-01 sell 10 HLX at 120 USD, day rate 1.20: proceeds 1000.00 EUR, cost 800 (1000 USD):
+//         gain 200; price part (1200 - 1000) / 1.20 = 166.67, currency part 33.33
+//                                                             USD +1200 (cost 1000)
+//   close 12-31: HLX 110 USD, rate 1.10. 30 HLX = 3300 USD = 3000.00 EUR (cost 2400:
+//         unrealized 600); USD cash 2251 = 2046.36 EUR (cost 1842.80: 203.56 unrealized)
+//   closing value 6018.75 + 3000 + 2046.36 = 11065.11
+//   = 10000 + dividends 68.75 - tax 7.50 + realized 200 + unrealized 600
+//     + currency gain realized 0.30 + unrealized on cash 203.56
+struct EuroStatement : LedgerFixture {
+  EuroStatement() {
+    account("Depot", BasisMethod::fifo, false, "EUR");
+    security("HLX");  // trades in USD
+    for (const auto& [d, r] : std::vector<std::pair<const char*, const char*>>{
+             {"2025-01-02", "1.25"}, {"2025-06-02", "1.20"}, {"2025-12-31", "1.10"}}) {
+      store::WriteTransaction tx(db);
+      std::string existing;
+      store::upsert_fx_rate(db, {"EUR", "USD", day(d), dec(r)}, false, existing);
+      tx.commit();
+    }
+    cash(TxnKind::deposit, "2025-01-02", "Depot", "10000");
+    ledger::PostRequest x;
+    x.kind = TxnKind::exchange;
+    x.date = day("2025-01-03");
+    x.account = "Depot";
+    x.amount = dec("4000");
+    x.currency = "EUR";
+    x.to_currency = "USD";
+    x.rate = dec("1.25");
+    ledger::post(db, x);
+    buy("2025-01-06", "Depot", "HLX", "40", "100");
+    cash(TxnKind::dividend, "2025-06-16", "Depot", "60", "HLX");
+    cash(TxnKind::tax, "2025-06-16", "Depot", "9", "HLX");
+    ledger::PostRequest settled;
+    settled.kind = TxnKind::dividend;
+    settled.date = day("2025-07-01");
+    settled.account = "Depot";
+    settled.symbol = "HLX";
+    settled.amount = dec("24");
+    settled.rate = dec("1.28");
+    ledger::post(db, settled);
+    sell("2025-09-01", "Depot", "HLX", "10", "120");
+    closes({{"HLX", "2025-12-31", "110"}});
+  }
+  report::Statement statement() {
+    report::StatementRequest r;
+    r.year = 2025;
+    return report::build_statement(db, r);
+  }
+};
+
+}  // namespace
+
+TEST_CASE("statement in two currencies: the euro year adds up to the euro closing value exactly") {
+  EuroStatement k;
+  const auto s = k.statement();
+  const auto& y = s.summary;
+  CHECK(s.currency == "EUR");
+  CHECK(s.foreign);
+  CHECK(y.deposits == dec("10000"));
+  CHECK(y.dividends == dec("68.75"));
+  CHECK(y.withholding == dec("7.50"));
+  CHECK(y.realized_gain == dec("200.00"));
+  CHECK(y.unrealized_closing == dec("600.00"));
+  CHECK(y.fx_cash_realized == dec("0.30"));
+  CHECK(y.fx_cash_unrealized_closing == dec("203.56"));
+  CHECK(y.closing_value == dec("11065.11"));
+  CHECK(s.holdings_total == y.closing_value);
+  CHECK(y.difference() == dec("0"));
+}
+
+TEST_CASE("statement in two currencies: a position shows its local price, the rate and euros") {
+  EuroStatement k;
+  const auto s = k.statement();
+  REQUIRE(s.holdings.size() == 1);
+  const auto& p = s.holdings.front().line;
+  CHECK(p.price == dec("110"));
+  CHECK(p.currency == "USD");
+  CHECK(p.local_value == dec("3300"));
+  REQUIRE(p.rate);
+  CHECK(p.rate->describe() == "EUR/USD 1.1 (2025-12-31)");
+  CHECK(p.market_value == dec("3000.00"));
+  REQUIRE(s.cash.size() == 2);
+  CHECK(s.cash[1].currency == "USD");
+  CHECK(s.cash[1].amount == dec("2251"));
+  CHECK(s.cash[1].cost == dec("1842.80"));
+  CHECK(s.cash[1].value == dec("2046.36"));
+}
+
+TEST_CASE("statement in two currencies: a sale's gain splits into its price and currency parts") {
+  EuroStatement k;
+  const auto s = k.statement();
+  REQUIRE(s.gains.size() == 1);
+  CHECK(s.gains.front().part.gain() == dec("200.00"));
+  CHECK(s.gains.front().part.price_part() == dec("166.67"));
+  CHECK(s.gains.front().part.currency_part() == dec("33.33"));
+}
+
+TEST_CASE("statement in two currencies: income converts at the row's rate, else the day's") {
+  EuroStatement k;
+  const auto s = k.statement();
+  REQUIRE(s.income.size() == 2);
+  const auto& kept = s.income[0];
+  CHECK(kept.gross == dec("50.00"));
+  CHECK(kept.withheld == dec("7.50"));
+  REQUIRE(kept.converted);
+  CHECK(kept.converted->local == dec("60"));
+  CHECK(kept.converted->rate() == dec("1.20"));
+  CHECK(kept.converted->source() == "stored, 2025-06-02");
+  const auto& settled = s.income[1];
+  CHECK(settled.gross == dec("18.75"));
+  REQUIRE(settled.converted);
+  CHECK(settled.converted->rate() == dec("1.28"));
+  CHECK(settled.converted->source() == "the row's rate");
+  CHECK(s.withholding.total == dec("7.50"));
+}
+
+TEST_CASE("statement in two currencies: spending dollar cash shows its gain apart from prices") {
+  EuroStatement k;
+  const auto s = k.statement();
+  // The buy spent 4000 USD at no gain; the tax 9 USD, worth 7.50, cost 7.20.
+  REQUIRE(s.fx_cash_gains.size() == 2);
+  CHECK(s.fx_cash_gains[0].part.gain() == dec("0"));
+  CHECK(s.fx_cash_gains[1].part.quantity == dec("9"));
+  CHECK(s.fx_cash_gains[1].part.proceeds == dec("7.50"));
+  CHECK(s.fx_cash_gains[1].part.cost == dec("7.20"));
+  const auto sections = report::statement_sections(s);
+  const auto& summary = sections.front();
+  CHECK(std::any_of(summary.rows.begin(), summary.rows.end(), [](const auto& row) {
+    return row[0].text == "currency gain on foreign cash, realized" && row[1].number == dec("0.30");
+  }));
+}
+
+TEST_CASE("statement forms in two currencies: every formula gives its total exactly") {
+  EuroStatement k;
+  const auto statement = k.statement();
+  const std::size_t checked = check_formulas(statement);
+  std::set<std::string> keys;
+  for (const auto& sec : report::statement_sections(statement)) keys.insert(sec.key);
+  for (const char* key : {"realized_currency", "income_converted", "currency_gains"})
+    CHECK_MESSAGE(keys.count(key) == 1, key);
+  // summary 2, holdings 3, realized 9, realized_currency 3, income 3, currency_gains 2,
+  // withholding 2
+  CHECK(checked == 24);
+}
+
+TEST_CASE("statement forms in two currencies: terminal text stays within 100 columns") {
+  EuroStatement k;
+  CHECK(widest_line(k.statement()) <= 100);
 }
