@@ -109,7 +109,7 @@ MORE = {
 }
 # Documents whose members changed since their first version.
 VERSIONS = {"backtest": 2, "propose": 2, "plan-proposal": 3, "proposal": 2, "proposals-list": 2,
-            "returns": 2, "signal": 3, "statement": 2}
+            "returns": 2, "signal": 3, "statement": 3}
 ON_DEMO = {"returns", "propose", "plan-proposal", "proposals-list", "proposal", "backtest", "compare", "signal", "sweep", "statement"}
 # The commands of the reference each report stands for.
 COMMANDS = {"holdings": "holdings", "lots": "lots", "gains": "gains", "history": "history",
