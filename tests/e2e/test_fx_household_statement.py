@@ -199,6 +199,17 @@ equal(sorted([(h["account"], h["symbol"], Decimal(h["cost_basis"]), Decimal(h["m
                                          for c in s["cash"]]),
       sorted(closing_lines), "each holding and each account's cash in pounds (cash has no cost)")
 
+# Lots, holdings and gains name the currency they report in; the household's lots in pounds
+# carry the same costs as the statement's holdings.
+lots = led.json("lots", "--as-of", CLOSING, "--currency", "GBP")
+equal((lots["currency"],
+       sorted((x["account"], x["symbol"], Decimal(x["cost"])) for x in lots["lots"])),
+      ("GBP", sorted((a, sym, cost) for a, sym, cost, _ in closing_lines if sym != "cash")),
+      "lots in pounds")
+equal([led.json(*args)["currency"] for args in (("lots",), ("holdings",), ("gains",),
+                                                ("gains", "--account", "Dollar"))],
+      ["EUR", "EUR", "EUR", "USD"], "the ledger's own currency for the household, else the account's")
+
 # The default for the household is the ledger's own currency; one account's is its own.
 eur = led.json("statement", "--year", "2024")
 equal((eur["currency"], eur["summary"]["translated"], eur["summary"]["difference"]),
