@@ -380,6 +380,16 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
     const std::string& own = account_currency.at(t.account_id);
     return view.convert(*t.amount, t.currency.value_or(own), s.currency, t.date);
   };
+  // Foreign cash moved by transfers: its lots' cost, by transaction; and the
+  // transfers out whose receiving half is live (an internal pair for the
+  // whole ledger, as the returns count them).
+  std::map<std::int64_t, Decimal> fx_cash_cost;
+  for (const auto& m : book.fx_cash_moved()) fx_cash_cost[m.txn_id] = m.cost;
+  std::set<std::int64_t> paired_out;
+  for (const auto& t : log.transactions)
+    if (t.kind == TxnKind::transfer_in && t.link_id && !voided.count(t.id))
+      paired_out.insert(*t.link_id);
+  Decimal revalued_in, revalued_out;  // worth less cost of foreign cash transferred
   std::vector<const Transaction*> taxes;
   for (const Transaction* t : live) {
     const std::string symbol = t->security_id ? symbols[*t->security_id] : std::string();
@@ -420,13 +430,28 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
         y.trade_fees += booked(*t, t->fee).amount;
         break;
       case TxnKind::transfer_in:
-      case TxnKind::transfer_out:
+      case TxnKind::transfer_out: {
         // The lot engine charges a transfer's fee to cash only when units move.
-        if (t->security_id)
+        if (t->security_id) {
           y.fees += booked(*t, t->fee).amount;
-        else
-          cash_moved += t->kind == TxnKind::transfer_in ? at_day_rate(*t) : -at_day_rate(*t);
+          break;
+        }
+        const bool in = t->kind == TxnKind::transfer_in;
+        Decimal moved = at_day_rate(*t);
+        // Foreign cash moves with its lots at their cost, so a mere transfer
+        // shows no currency gain; where the returns count it as a flow (at
+        // its worth that day), the transfer line takes the cost instead.
+        if (const auto it = fx_cash_cost.find(t->id); it != fx_cash_cost.end()) {
+          const Decimal cost =
+              view.convert(it->second, account_currency.at(t->account_id), s.currency, t->date);
+          const bool flow = account_id || !(in ? t->link_id && paired_out.count(*t->link_id)
+                                               : paired_out.count(t->id));
+          if (flow) (in ? revalued_in : revalued_out) += moved - cost;
+          moved = cost;
+        }
+        cash_moved += in ? moved : -moved;
         break;
+      }
       case TxnKind::exchange:  // no flow: cash changes currency inside the account
       case TxnKind::void_entry:
         break;
@@ -469,8 +494,8 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   // by transfers.
   y.opening_value = opening.total_value;
   y.closing_value = closing.total_value;
-  y.transfers_in = r.inflow - deposits_at_day_rate;
-  y.transfers_out = r.outflow - withdrawals_at_day_rate;
+  y.transfers_in = r.inflow - deposits_at_day_rate - revalued_in;
+  y.transfers_out = r.outflow - withdrawals_at_day_rate - revalued_out;
   y.realized_gain = s.realized_totals.all().gain + sheltered_gain;
   y.unrealized_opening = unrealized_total(opening);
   y.unrealized_closing = unrealized_total(closing);

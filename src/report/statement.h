@@ -38,8 +38,10 @@
 //    (market::View::rate: direct, inverted or crossed, and said so); a
 //    realized gain keeps its price part and currency part; foreign cash is
 //    carried at cost, so its currency gain (realized when spent, unrealized
-//    while held) is a line of its own, apart from price gains. A missing rate
-//    throws InputError naming the pair and the day.
+//    while held) is a line of its own, apart from price gains; a transfer of
+//    foreign cash counts at its lots' cost, not its worth that day, so it
+//    realizes no currency gain. A missing rate throws InputError naming the
+//    pair and the day.
 //  - Translation (docs/methods-ledger.md): when an account in scope keeps
 //    another currency than the reporting one, its rows are booked in its own
 //    currency (as above) and each is converted at the stored rate of its

@@ -208,7 +208,8 @@ equal((lots["currency"],
       "lots in pounds")
 equal([led.json(*args)["currency"] for args in (("lots",), ("holdings",), ("gains",),
                                                 ("gains", "--account", "Dollar"))],
-      ["EUR", "EUR", "EUR", "USD"], "the ledger's own currency for the household, else the account's")
+      ["EUR", "EUR", "EUR", "USD"],
+      "the ledger's own currency for the household, else the account's")
 
 # The default for the household is the ledger's own currency; one account's is its own.
 eur = led.json("statement", "--year", "2024")
