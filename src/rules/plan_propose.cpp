@@ -16,6 +16,7 @@
 #include "market/day_view.h"
 #include "rules/inputs.h"
 #include "rules/propose.h"
+#include "rules/tax_keys.h"
 #include "rules/track_record.h"
 #include "store/ledger_store.h"
 #include "store/proposals.h"
@@ -114,9 +115,17 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
   const Book& book = replayer.advance_to(as_of);
   p.last_txn_id = store::last_transaction_id(db);
   const auto statuses = ledger::TaxStatuses::load(db);
-  const bool tax_keys = plan.tax.sell_deferred_first || plan.tax.gain_cap ||
-                        std::any_of(plan.parts.begin(), plan.parts.end(),
-                                    [](const PlanPart& part) { return part.place_deferred; });
+  const bool tax_keys =
+      plan.tax.any() || std::any_of(plan.parts.begin(), plan.parts.end(), [](const PlanPart& part) {
+        return part.place_deferred || (part.rule && part.rule->tax_keys());
+      });
+  // A rule part's [tax] is the plan's to give: one set of tax keys per proposal.
+  for (const auto& part : plan.parts)
+    if (part.rule && part.rule->tax.any())
+      p.notes.push_back(fmt::format(
+          "part '{}': the [tax] table of rule file {} is not used in a plan; the plan's [tax] "
+          "applies",
+          printable(part.name), printable(part.rule->source)));
   Decimal gain_used;  // net estimated gain of the sells in taxable accounts, across pools
   const Inputs::LastTrade last_trade = [&](std::int64_t id) -> std::optional<Inputs::Trade> {
     if (const auto t = book.last_trade(id)) return Inputs::Trade{t->day, t->price};
@@ -188,9 +197,17 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
     // The pool on the as-of day, with the planned cash; unmanaged names out.
     std::set<std::int64_t> held;
     Portfolio portfolio = portfolio_of(book, accounts, held);
-    HouseholdPrefs prefs;
-    prefs.sell_deferred_first = plan.tax.sell_deferred_first;
-    if (plan.tax.gain_cap) prefs.gain_cap = std::max(Decimal(), *plan.tax.gain_cap - gain_used);
+    // Placed names: a part's (part.place) and a rule part's sleeves' (sleeve.place).
+    std::set<std::int64_t> placed;
+    for (const auto& [id, k] : owner) {
+      const PlanPart& part = plan.parts[parts[k]];
+      if (part.place_deferred) placed.insert(id);
+      if (part.rule)
+        for (const auto& s : part.rule->weights.sleeves)
+          if (s.place_deferred && view.security(s.symbol) && view.security(s.symbol)->id == id)
+            placed.insert(id);
+    }
+    HouseholdPrefs prefs = household_prefs(plan.tax, std::move(placed), gain_used);
     for (auto& a : portfolio.accounts) a.tax = statuses.on(a.id, as_of);
     for (const auto& c : p.planned)
       for (auto& a : portfolio.accounts)
@@ -198,8 +215,6 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
           a.cash += c.amount;
           if (c.amount.is_negative()) prefs.must_give[a.id] -= c.amount;
         }
-    for (const auto& [id, k] : owner)
-      if (plan.parts[parts[k]].place_deferred) prefs.place_deferred.insert(id);
     std::set<std::int64_t> unmanaged;
     for (const std::int64_t id : held)
       if (!owner.count(id)) unmanaged.insert(id);
@@ -319,10 +334,7 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
     p.pools.push_back(std::move(result));
   }
   p.cautions = proposal_cautions(as_of);
-  if (tax_keys)
-    p.cautions.push_back(
-        "This plan places and sells by each account's recorded tax status: tax treatment depends "
-        "on local rules; check it with your tax authority or a licensed professional.");
+  if (tax_keys) p.cautions.push_back(tax_caution("plan"));
   return p;
 }
 

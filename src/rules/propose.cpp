@@ -13,8 +13,10 @@
 #include "ledger/accounts.h"
 #include "ledger/fx_cash.h"
 #include "ledger/posting.h"
+#include "ledger/tax.h"
 #include "market/day_view.h"
 #include "rules/inputs.h"
+#include "rules/tax_keys.h"
 #include "rules/track_record.h"
 #include "store/ledger_store.h"
 
@@ -148,7 +150,9 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
   const Book& book = replayer.advance_to(as_of);
   p.last_txn_id = store::last_transaction_id(db);
   std::set<std::int64_t> held;
-  const Portfolio portfolio = portfolio_of(book, pool, held);
+  Portfolio portfolio = portfolio_of(book, pool, held);
+  const auto statuses = ledger::TaxStatuses::load(db);
+  for (auto& a : portfolio.accounts) a.tax = statuses.on(a.id, as_of);
 
   auto chosen = inputs.select(view, as_of, held);
   if (chosen.refusal) rule.fail(chosen.refusal->key, chosen.refusal->why);
@@ -173,8 +177,15 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
                           "cash first",
                           printable_list(p.accounts), as_of.str(), pool_value.str()));
 
-  p.plan = orders(portfolio, p.targets, quotes, rule.trading, as_of);
+  // The tax keys steer the same order steps as a plan's (rules/tax_keys.h).
+  std::set<std::int64_t> placed;
+  for (const auto& t : p.targets)
+    for (const auto& s : rule.weights.sleeves)
+      if (t.sleeve && s.place_deferred && s.symbol == t.symbol) placed.insert(t.security_id);
+  const HouseholdPrefs prefs = household_prefs(rule.tax, std::move(placed), Decimal());
+  p.plan = orders(portfolio, p.targets, quotes, rule.trading, as_of, Explain::all, prefs);
   p.cautions = proposal_cautions(as_of);
+  if (rule.tax_keys()) p.cautions.push_back(tax_caution("rule"));
   return p;
 }
 

@@ -711,6 +711,23 @@ row("propose --plan: an unknown tax key", ["propose", "--plan", "{d}/plan.toml"]
     "keel: error: {d}/plan.toml:2:14: key 'tax.gain_limit': unknown key; expected one of: "
     "sell_from, gain_cap",
     {"plan.toml": b"[tax]\ngain_limit = 5\n" + PLAN_FIXED})
+TAX_RULE = b'[scope]\naccounts = ["Alder Taxable", "Birch Pension"]\n'
+row("propose --rule: a gain cap below zero", ["propose", "--rule", "{d}/rule.toml"], INPUT,
+    "keel: error: {d}/rule.toml:4: key 'tax.gain_cap': -500 is below zero; a cap of 0 allows "
+    "no net gain at all", {"rule.toml": TAX_RULE + b"[tax]\ngain_cap = -500\n"})
+row("propose --rule: a gain cap with fractions of a cent", ["propose", "--rule", "{d}/rule.toml"],
+    INPUT, "keel: error: {d}/rule.toml:4: key 'tax.gain_cap': 10.125 has more than two decimals",
+    {"rule.toml": TAX_RULE + b"[tax]\ngain_cap = 10.125\n"})
+row("propose --rule: an unknown selling order", ["propose", "--rule", "{d}/rule.toml"], INPUT,
+    "keel: error: {d}/rule.toml:4: key 'tax.sell_from': must be \"any\" or "
+    "\"tax-deferred-first\"", {"rule.toml": TAX_RULE + b'[tax]\nsell_from = "deferred"\n'})
+row("propose --rule: an unknown tax key", ["propose", "--rule", "{d}/rule.toml"], INPUT,
+    "keel: error: {d}/rule.toml:4: key 'tax.gain_limit': unknown key; expected one of: "
+    "sell_from, gain_cap", {"rule.toml": TAX_RULE + b"[tax]\ngain_limit = 5\n"})
+row("propose --rule: an unknown placement of a sleeve", ["propose", "--rule", "{d}/rule.toml"],
+    INPUT, "keel: error: {d}/rule.toml:6: key 'sleeve.place': must be \"any\" or "
+    "\"tax-deferred-first\"",
+    {"rule.toml": TAX_RULE + b'[[sleeve]]\nsymbol = "QRX"\nweight_pct = 10\nplace = "first"\n'})
 row("propose --plan: --deposit in the spelling AMOUNT:ACCOUNT",
     ["propose", "--plan", "{d}/plan.toml", "--deposit", "10:Alder Taxable"], INPUT,
     "keel: error: --deposit: '10:Alder Taxable' is not ACCOUNT=AMOUNT; write 'Alder Taxable=10'",

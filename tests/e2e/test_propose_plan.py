@@ -280,6 +280,56 @@ equal(sum(int(l["est_gain"].split(".")[0]) for l in lots), 2000, "estimated gain
 equal(ledger_digest(tax.path), before, "tax-aware proposals write nothing")
 print("propose --plan: tax-aware household checked by hand")
 
+# ---------------------------------------------------------------- tax keys in one rule file
+# The same household under one rule over both accounts: GBND a 50 % sleeve placed in
+# tax-deferred accounts first; the screen picks the cheaper of ACRN (P/E 20) and BOLT (P/E 10).
+# [tax] as the plan's, with a gain cap of 2000. Targets: GBND 18000, BOLT 18000, ACRN 0 (exit).
+# ACRN sells all 200: Retirement's 50 first (no tax event); in Brokerage lot 2 (50 at a loss of
+# 1000) leaves room for 3000 of gain, 50 units of lot 1 at 60 a unit; its other 50 are kept.
+# Cash to spend: Retirement 6000 + 5000 = 11000, Brokerage 10000 + 10000 = 20000; 31000 of the
+# 36000 wanted, each buy gets 31/36 of its 18000 = 15500 first. GBND (placed) buys first:
+# Retirement's 11000 (110), then 4500 in Brokerage (45); BOLT takes Brokerage's 15500 (310).
+tax.ok("import", "metrics", write(os.path.join(T, "metrics.csv"),
+       "date,symbol,metric,value,known_on\n2026-03-31,ACRN,pe,20,2026-05-15\n"
+       "2026-03-31,BOLT,pe,10,2026-05-15\n"), "--quiet")
+tax_rule = write(os.path.join(T, "tilted.toml"), """name = "tilted"
+[scope]
+accounts = ["Brokerage", "Retirement"]
+symbols = ["ACRN", "BOLT"]
+[screen]
+min_names = 2
+[select]
+by = "count"
+count = 1
+[[sleeve]]
+symbol = "GBND"
+weight_pct = 50
+place = "tax-deferred-first"
+[tax]
+sell_from = "tax-deferred-first"
+gain_cap = 2000
+""")
+before = ledger_digest(tax.path)
+doc = tax.json("propose", "--rule", tax_rule)
+OUT, IN, SLEEVE = "z = 0.71, rank 2 > 1", "z = -0.71, rank 1 <= 1", "sleeve at 50.00%"
+equal([(o["account"], o["symbol"], o["side"], o["quantity"], o["reason"]) for o in doc["orders"]], [
+    ("Brokerage", "ACRN", "sell", "100",
+     OUT + ": sell all; 50 kept in Brokerage: the gain cap of 2000.00 is reached"),
+    ("Retirement", "ACRN", "sell", "50", OUT + ": sell all; sold in Retirement: no tax event"),
+    ("Brokerage", "GBND", "buy", "45",
+     SLEEVE + ": new position; placed in Brokerage: no tax-deferred cash left"),
+    ("Retirement", "GBND", "buy", "110",
+     SLEEVE + ": new position; placed in Retirement: tax-deferred first"),
+    ("Brokerage", "BOLT", "buy", "310", IN + ": new position"),
+], "one rule file: placement, selling order and gain cap as in a plan")
+equal([(l["lot"], l["quantity"], l["est_gain"]) for l in doc["orders"][0]["lots"]],
+      [(4, "50", "-1000"), (3, "50", "3000")], "the lots within the gain cap")
+RULE_CAUTION = TAX_CAUTION.replace("This plan", "This rule")
+check(RULE_CAUTION in doc["cautions"], "the rule's tax caution in JSON")
+check(RULE_CAUTION in tax.ok("propose", "--rule", tax_rule), "the rule's tax caution in text")
+equal(ledger_digest(tax.path), before, "a rule's tax-aware proposal writes nothing")
+print("propose --rule: tax keys in one rule file checked by hand")
+
 # ---------------------------------------------------------------- saved, filled, at rest
 # The plan without the cap is saved; its orders are booked as filled three days later at the
 # estimated prices, with the lots it named; proposing again proposes nothing new.

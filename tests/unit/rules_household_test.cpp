@@ -7,6 +7,7 @@
 #include "core/error.h"
 #include "rules/engine.h"
 #include "rules/plan.h"
+#include "rules/rule.h"
 
 using namespace keel;
 using namespace keel::rules;
@@ -276,4 +277,43 @@ TEST_CASE("plan file: a gain cap too large for an exact decimal is refused at it
                        "plan.toml:2:12: key 'tax.gain_cap': 2.5e+101 is out of range for an exact "
                        "decimal",
                        InputError);
+}
+
+TEST_CASE("rule file: the tax keys are read with their defaults") {
+  const auto plain = parse_rule("[scope]\naccounts = [\"A\"]\n", "rule.toml");
+  CHECK_FALSE(plain.tax.any());
+  CHECK_FALSE(plain.tax_keys());
+  const auto taxed = parse_rule(
+      "[scope]\naccounts = [\"A\", \"B\"]\n[tax]\nsell_from = \"tax-deferred-first\"\n"
+      "gain_cap = 2000.5\n[[sleeve]]\nsymbol = \"BND\"\nweight_pct = 40\n"
+      "place = \"tax-deferred-first\"\n",
+      "rule.toml");
+  CHECK(taxed.tax.sell_deferred_first);
+  CHECK(*taxed.tax.gain_cap == dec("2000.5"));
+  CHECK(taxed.weights.sleeves[0].place_deferred);
+  CHECK(taxed.tax_keys());
+}
+
+TEST_CASE("rule file: a sleeve's unknown place is refused in the plan's words") {
+  CHECK_THROWS_WITH_AS(parse_rule("[scope]\naccounts = [\"A\"]\n[[sleeve]]\nsymbol = \"BND\"\n"
+                                  "weight_pct = 40\nplace = \"deferred\"\n",
+                                  "rule.toml"),
+                       "rule.toml:6: key 'sleeve.place': must be \"any\" or \"tax-deferred-first\"",
+                       InputError);
+}
+
+TEST_CASE("rule file: a gain cap below zero or with three decimals is refused at its line") {
+  CHECK_THROWS_WITH_AS(parse_rule("[scope]\naccounts = [\"A\"]\n[tax]\ngain_cap = -1\n", "r.toml"),
+                       "r.toml:4: key 'tax.gain_cap': -1 is below zero; a cap of 0 allows no net "
+                       "gain at all",
+                       InputError);
+  CHECK_THROWS_WITH_AS(
+      parse_rule("[scope]\naccounts = [\"A\"]\n[tax]\ngain_cap = 10.125\n", "r.toml"),
+      "r.toml:4: key 'tax.gain_cap': 10.125 has more than two decimals", InputError);
+}
+
+TEST_CASE("rule file: an unknown tax key is refused with the nearest one") {
+  CHECK_THROWS_WITH_AS(
+      parse_rule("[scope]\naccounts = [\"A\"]\n[tax]\nsell_form = \"any\"\n", "r.toml"),
+      "r.toml:4: key 'tax.sell_form': unknown key; did you mean 'sell_from'?", InputError);
 }
