@@ -292,7 +292,9 @@ print("propose --plan: tax-aware household checked by hand")
 tax.ok("import", "metrics", write(os.path.join(T, "metrics.csv"),
        "date,symbol,metric,value,known_on\n2026-03-31,ACRN,pe,20,2026-05-15\n"
        "2026-03-31,BOLT,pe,10,2026-05-15\n"), "--quiet")
-tax_rule = write(os.path.join(T, "tilted.toml"), """name = "tilted"
+# A rule over both accounts of a household, screening ACRN and BOLT, keeping the `count`
+# cheapest; `rest` adds tables.
+TWO_NAMES = """name = "{name}"
 [scope]
 accounts = ["Brokerage", "Retirement"]
 symbols = ["ACRN", "BOLT"]
@@ -300,15 +302,16 @@ symbols = ["ACRN", "BOLT"]
 min_names = 2
 [select]
 by = "count"
-count = 1
-[[sleeve]]
+count = {count}
+{rest}"""
+tax_rule = write(os.path.join(T, "tilted.toml"), TWO_NAMES.format(name="tilted", count=1, rest="""[[sleeve]]
 symbol = "GBND"
 weight_pct = 50
 place = "tax-deferred-first"
 [tax]
 sell_from = "tax-deferred-first"
 gain_cap = 2000
-""")
+"""))
 before = ledger_digest(tax.path)
 doc = tax.json("propose", "--rule", tax_rule)
 OUT, IN, SLEEVE = "z = 0.71, rank 2 > 1", "z = -0.71, rank 1 <= 1", "sleeve at 50.00%"
@@ -360,3 +363,46 @@ listed = tax.json("proposals", "list")["proposals"]
 equal([(p["id"], p["kind"], p["rule"], p["orders"]) for p in listed],
       [(1, "plan", "Tax household", 5)], "the list names the plan")
 print("propose --plan --save: filled orders leave the plan at rest")
+
+# ---------------------------------------------------------------- a withdrawal, netted
+# A third invented household on 2026-06-30: Brokerage (taxable) cash 1000; Retirement
+# (tax-deferred) cash 0, ACRN 20 bought at 40 (a gain) and BOLT 5 bought at 120 (a loss).
+# Closes ACRN 100, BOLT 100. One rule over both accounts holds both names at 50 %, with a
+# drift band of 20 points. Withdrawing 500 from Retirement: pool 1000 - 500 + 2000 + 500 =
+# 3000, targets 1500 each. ACRN (66.67 %) is inside the band, BOLT (16.67 %) wants 1000.
+# Retirement must raise 500: it sells 5 ACRN, the 500 above target (not its BOLT at a loss,
+# which the pool buys); Brokerage's 1000 buys 10 BOLT. No name is both sold and bought.
+net = Ledger()
+N = net.dir.name
+net.ok("import", "securities", write(os.path.join(N, "securities.csv"),
+       "symbol,name,kind,currency,lot_size,sector\nACRN,Acorn Rail,stock,USD,1,\n"
+       "BOLT,Boltwood Tools,stock,USD,1,\n"), "--quiet")
+net.ok("import", "prices", write(os.path.join(N, "prices.csv"), "date,symbol,close\n"
+       "2026-06-30,ACRN,100\n2026-06-30,BOLT,100\n"), "--quiet")
+net.ok("import", "metrics", write(os.path.join(N, "metrics.csv"),
+       "date,symbol,metric,value,known_on\n2026-03-31,ACRN,pe,20,2026-05-15\n"
+       "2026-03-31,BOLT,pe,10,2026-05-15\n"), "--quiet")
+net.ok("account", "add", "Brokerage")
+net.ok("account", "add", "Retirement", "--tax-status", "tax-deferred")
+net.ok("record", "deposit", "--date", "2024-01-02", "--account", "Brokerage", "--amount", "1000")
+net.ok("record", "deposit", "--date", "2024-01-02", "--account", "Retirement", "--amount", "1400")
+net.ok("record", "buy", "--date", "2024-01-10", "--account", "Retirement", "--symbol", "ACRN",
+       "--quantity", "20", "--price", "40")
+net.ok("record", "buy", "--date", "2026-03-02", "--account", "Retirement", "--symbol", "BOLT",
+       "--quantity", "5", "--price", "120")
+write(os.path.join(N, "rules", "both.toml"),
+      TWO_NAMES.format(name="both", count=2, rest="[trading]\ndrift_pct_points = 20\n"))
+net_plan = write(os.path.join(N, "net.toml"),
+                 'name = "Netted"\n[[part]]\nrule = "rules/both.toml"\n')
+doc = net.json("propose", "--plan", net_plan, "--withdraw", "Retirement=500")
+equal([(o["account"], o["symbol"], o["side"], o["quantity"], o["reason"])
+       for o in doc["pools"][0]["orders"]], [
+    ("Retirement", "ACRN", "sell", "5",
+     "both: z = 0.71, rank 2 <= 2: sold to raise the cash Retirement must give (500.00 short)"),
+    ("Brokerage", "BOLT", "buy", "10", "both: z = -0.71, rank 1 <= 2: add to target"),
+], "a withdrawal's sale is netted with the rebalance")
+sides = {}
+for o in doc["pools"][0]["orders"]:
+    sides.setdefault(o["symbol"], set()).add(o["side"])
+check(all(len(s) == 1 for s in sides.values()), f"no name both sold and bought: {sides}")
+print("propose --plan --withdraw: the withdrawal's sale does the rebalance's work")

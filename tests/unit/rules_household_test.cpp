@@ -208,11 +208,14 @@ TEST_CASE("withdrawal: an account that must give cash sells its overweight name 
   CHECK(plan.cash_after[1].cash == Decimal());
 }
 
-TEST_CASE("withdrawal: cash an account must give is raised by selling in it, losses first") {
+TEST_CASE(
+    "withdrawal: an account holding only names under target sells them; they are bought "
+    "again elsewhere, saying why") {
   // Pool 2000 + 1000 - 500 = 2500; targets 1250 each. STK (Brokerage only) is
   // 750 over: 7 sold there. Retirement, 500 short, holds only BND (under
-  // target): 5 of its lot at a loss are sold to raise the 500. BND's buy of
-  // 250 then gets 2 units from Brokerage's 700.
+  // target): 5 of its lot at a loss are sold to raise the 500. BND then
+  // stands at 500 of its 1250: the buy of 750 gets 7 units from Brokerage's
+  // 700, and its reason says it buys what Retirement had to sell.
   Portfolio p{{account(1, "Brokerage", TaxStatus::taxable, "0"),
                account(2, "Retirement", TaxStatus::tax_deferred, "-500")}};
   hold(p.accounts[0], 1, 1, "2024-01-10", "20", "800");
@@ -233,7 +236,42 @@ TEST_CASE("withdrawal: cash an account must give is raised by selling in it, los
   CHECK(raised.reason == "fixed: sold to raise the cash Retirement must give (500.00 short)");
   CHECK(plan.orders[2].side == Side::buy);
   CHECK(plan.orders[2].account == "Brokerage");
-  CHECK(plan.orders[2].quantity == dec("2"));
+  CHECK(plan.orders[2].quantity == dec("7"));
+  CHECK(plan.orders[2].reason ==
+        "fixed: add to target; also what Retirement sells to raise the cash it must give: it "
+        "holds nothing else above target");
+  CHECK(plan.cash_after[1].cash == Decimal());
+}
+
+TEST_CASE("withdrawal: the raise sells what stands above target, not a name the proposal buys") {
+  // Regression: the raise took lots at a loss first, whatever the name, so
+  // Retirement sold BND (under target, at a loss) while Brokerage bought BND.
+  // Pool 1000 - 500 + 2000 + 500 = 3000; targets 1500 each. STK is 500 over
+  // but inside the 20-point drift band (66.67% against 50%), so the rebalance
+  // does not sell it; BND wants 1000. Retirement, 500 short, sells 5 STK (the
+  // 500 above target); Brokerage's 1000 buys 10 BND. No name both ways.
+  Portfolio p{{account(1, "Brokerage", TaxStatus::taxable, "1000"),
+               account(2, "Retirement", TaxStatus::tax_deferred, "-500")}};
+  hold(p.accounts[1], 1, 1, "2024-01-10", "20", "800");
+  hold(p.accounts[1], 2, 2, "2026-03-02", "5", "600");
+  HouseholdPrefs prefs;
+  prefs.must_give[2] = dec("500");
+  TradingRule trading;
+  trading.drift_pct_points = dec("20");
+  const auto plan = orders(p, {target(1, "STK", "0.5"), target(2, "BND", "0.5")}, two_quotes(),
+                           trading, kAsOf, Explain::all, prefs);
+  REQUIRE(plan.orders.size() == 2);
+  CHECK(plan.orders[0].account == "Retirement");
+  CHECK(plan.orders[0].symbol == "STK");
+  CHECK(plan.orders[0].side == Side::sell);
+  CHECK(plan.orders[0].quantity == dec("5"));
+  CHECK(plan.orders[0].reason ==
+        "fixed: sold to raise the cash Retirement must give (500.00 short)");
+  CHECK(plan.orders[1].account == "Brokerage");
+  CHECK(plan.orders[1].symbol == "BND");
+  CHECK(plan.orders[1].side == Side::buy);
+  CHECK(plan.orders[1].quantity == dec("10"));
+  CHECK(plan.orders[1].reason == "fixed: add to target");
   CHECK(plan.cash_after[1].cash == Decimal());
 }
 
