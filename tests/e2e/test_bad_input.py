@@ -668,9 +668,19 @@ row("propose: neither --rule nor --plan", ["propose"], INPUT,
 row("propose: --rule and --plan together",
     ["propose", "--rule", "{d}/rule.toml", "--plan", "{d}/plan.toml"], USAGE,
     "--rule excludes --plan")
-row("propose: --deposit without --plan",
+RULE_TWO = {"rule.toml": b'[scope]\naccounts = ["Alder Taxable", "Birch Pension"]\n'}
+row("propose --rule: --deposit without an account in a rule of two",
     ["propose", "--rule", "{d}/rule.toml", "--deposit", "100"], INPUT,
-    "keel: error: --deposit: applies only with --plan")
+    "keel: error: --deposit: the rule has 2 accounts; name the one the cash goes to or comes from "
+    "(ACCOUNT=AMOUNT; accounts: Alder Taxable, Birch Pension)", RULE_TWO)
+row("propose --rule: --withdraw from an account outside the rule",
+    ["propose", "--rule", "{d}/rule.toml", "--withdraw", "Nobody=10"], INPUT,
+    "keel: error: --withdraw: 'Nobody' is not an account of the rule (accounts: Alder Taxable, "
+    "Birch Pension)", RULE_TWO)
+row("propose --rule: --withdraw with sub-cent amount",
+    ["propose", "--rule", "{d}/rule.toml", "--withdraw", "Alder Taxable=0.001"], INPUT,
+    "keel: error: --withdraw: '0.001' is not an amount above zero with at most two decimals "
+    "(ACCOUNT=AMOUNT, e.g. Savings=1500.00)", RULE_TWO)
 row("propose --plan: --deposit not an amount",
     ["propose", "--plan", "{d}/plan.toml", "--deposit", "Alder Taxable=ten"], INPUT,
     "keel: error: --deposit: 'ten' is not an amount above zero with at most two decimals "

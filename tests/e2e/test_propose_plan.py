@@ -334,11 +334,22 @@ equal(ledger_digest(tax.path), before, "a rule's tax-aware proposal writes nothi
 print("propose --rule: tax keys in one rule file checked by hand")
 
 # ---------------------------------------------------------------- saved, filled, at rest
-# The plan without the cap is saved; its orders are booked as filled three days later at the
-# estimated prices, with the lots it named; proposing again proposes nothing new.
+# The plan without the cap is saved with a planned deposit and withdrawal; the cash and the
+# orders are booked three days later (the orders as filled at the estimated prices, with the
+# lots it named); proposing again proposes nothing new.
 write(tax_plan, TAX_PLAN.format(cap=""))
-first = tax.json("propose", "--plan", tax_plan, "--save")
+first = tax.json("propose", "--plan", tax_plan, "--save", "--deposit", "Brokerage=1000",
+                 "--withdraw", "Retirement=500")
 equal(first["proposal_id"], 1, "saved as proposal 1")
+shown = tax.json("proposals", "show", "1")
+equal(shown["schema"], {"name": "keel.proposal", "version": 3}, "the saved proposal's schema")
+equal(shown["planned_cash"], [
+    {"account": "Brokerage", "planned": "1000", "booked_since": "0", "status": "not booked"},
+    {"account": "Retirement", "planned": "-500", "booked_since": "0", "status": "not booked"},
+], "the saved proposal keeps its planned cash")
+tax.ok("record", "deposit", "--date", "2026-07-03", "--account", "Brokerage", "--amount", "1000")
+tax.ok("record", "withdrawal", "--date", "2026-07-03", "--account", "Retirement", "--amount",
+       "500")
 for o in first["pools"][0]["orders"]:
     lots = ",".join(f"{l['lot']}:{l['quantity']}" for l in o["lots"])
     tax.ok("record", o["side"], "--date", "2026-07-03", "--account", o["account"], "--symbol",
@@ -356,8 +367,12 @@ equal([(l["part"], l["account"], l["symbol"], l["side"], l["status"]) for l in s
     ("bonds", "Brokerage", "GBND", "buy", "done"),
     ("bonds", "Retirement", "GBND", "buy", "done"),
 ], "each saved order under its part, done")
+equal([(c["account"], c["status"]) for c in shown["planned_cash"]],
+      [("Brokerage", "booked"), ("Retirement", "booked")], "the planned cash, booked since")
 text = tax.ok("proposals", "show", "1")
 check(text.startswith("Proposal 1 of plan 'Tax household' as of 2026-06-30, saved "), text)
+check("\nPlanned cash, not booked when proposed\n" in text and
+      "Retirement  withdraw   500.00        500.00  booked\n" in text, text)
 check("\nPart 'stocks'\n" in text and "\nPart 'bonds'\n" in text, text)
 listed = tax.json("proposals", "list")["proposals"]
 equal([(p["id"], p["kind"], p["rule"], p["orders"]) for p in listed],
@@ -406,3 +421,33 @@ for o in doc["pools"][0]["orders"]:
     sides.setdefault(o["symbol"], set()).add(o["side"])
 check(all(len(s) == 1 for s in sides.values()), f"no name both sold and bought: {sides}")
 print("propose --plan --withdraw: the withdrawal's sale does the rebalance's work")
+
+# The same rule proposed alone plans with the same withdrawal and nets it the same way; saved,
+# its cash and orders booked as filled, it is at rest and its planned cash shows as booked.
+both = os.path.join(N, "rules", "both.toml")
+first = net.json("propose", "--rule", both, "--withdraw", "Retirement=500", "--save")
+equal(first["schema"], {"name": "keel.propose", "version": 3}, "the rule proposal's schema")
+equal(first["planned_cash"], [{"account": "Retirement", "amount": "-500", "booked": False}],
+      "a rule's planned withdrawal, not booked")
+equal([(o["account"], o["symbol"], o["side"], o["quantity"]) for o in first["orders"]],
+      [("Retirement", "ACRN", "sell", "5"), ("Brokerage", "BOLT", "buy", "10")],
+      "a rule's withdrawal netted as the plan's")
+text = net.ok("propose", "--rule", both, "--withdraw", "Retirement=500")
+check("\nPlanned, not booked: withdraw 500.00 from Retirement\n" in text, text)
+for o in first["orders"]:
+    lots = ",".join(f"{l['lot']}:{l['quantity']}" for l in o["lots"])
+    net.ok("record", o["side"], "--date", "2026-07-01", "--account", o["account"], "--symbol",
+           o["symbol"], "--quantity", o["quantity"], "--price", o["price"],
+           *(["--lots", lots] if lots else []))
+net.ok("record", "withdrawal", "--date", "2026-07-01", "--account", "Retirement", "--amount", "500")
+again = net.json("propose", "--rule", both)
+equal(again["orders"], [], "nothing proposed again once the cash and the orders are booked")
+shown = net.json("proposals", "show", str(first["proposal_id"]))
+equal(shown["planned_cash"], [{"account": "Retirement", "planned": "-500",
+                               "booked_since": "-500", "status": "booked"}],
+      "the rule's planned withdrawal, booked since")
+equal({l["status"] for l in shown["lines"]}, {"done"}, "every saved order done")
+err = net.fails("propose", "--rule", both, "--deposit", "Retirment=10")
+equal(err, "keel: error: --deposit: 'Retirment' is not an account of the rule (did you mean "
+      "'Retirement'?)", "a rule's planned cash to an account outside it")
+print("propose --rule --withdraw --save: planned cash kept, booked, at rest")

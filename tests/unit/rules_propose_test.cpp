@@ -1,6 +1,7 @@
 // Proposals from a ledger: one month worked out by hand, point-in-time use of
 // figures, errors of a rule meeting the ledger, saving and review, and the
 // property that posting a proposal's orders leaves nothing more to propose.
+#include <SQLiteCpp/Exception.h>
 #include <doctest/doctest.h>
 #include <fmt/format.h>
 
@@ -339,6 +340,49 @@ TEST_CASE("propose: reading and saving leave the rest of the ledger as it was") 
   CHECK(row->rule_sha256.size() == 64);
   CHECK(row->orders.size() == 5);
   CHECK(row->orders[0].lots.size() == 1);
+}
+
+TEST_CASE("propose: planned cash moves the rule's cash for the orders and is never booked") {
+  Month m;
+  const std::string before = m.dump();
+  const auto plain = propose(m.db, month_rule());
+  const auto p =
+      propose(m.db, month_rule(), std::nullopt, {parse_planned_cash("--deposit", "1000")});
+  CHECK(m.dump() == before);
+  REQUIRE(p.planned.size() == 1);
+  CHECK(p.planned[0].account == "Main");  // a bare amount goes to the rule's one account
+  CHECK(p.plan.pool_value == plain.plan.pool_value + dec("1000"));
+}
+
+TEST_CASE("review: planned cash is kept and set against the deposits booked since") {
+  Month m;
+  const Rule r = month_rule();
+  const auto p = propose(m.db, r, std::nullopt, {parse_planned_cash("--deposit", "Main=1000")});
+  const auto id = save(m.db, r, p);
+  const auto row = store::find_proposal(m.db, id);
+  REQUIRE(row->cash.size() == 1);
+  CHECK(row->cash[0].account == "Main");
+  CHECK(row->cash[0].amount == dec("1000"));
+  auto rv = review(m.db, id);
+  REQUIRE(rv.cash.size() == 1);
+  CHECK(rv.cash[0].status == "not booked");
+  m.cash(TxnKind::deposit, "2024-06-03", "Main", "400");
+  m.cash(TxnKind::withdrawal, "2024-06-03", "Main", "50");  // the other way: not counted
+  rv = review(m.db, id);
+  CHECK(rv.cash[0].booked == dec("400"));
+  CHECK(rv.cash[0].status == "partly");
+  m.cash(TxnKind::deposit, "2024-06-04", "Main", "600");
+  CHECK(review(m.db, id).cash[0].status == "booked");
+}
+
+TEST_CASE("saved proposal: planned cash cannot be changed or deleted") {
+  Month m;
+  const Rule r = month_rule();
+  const auto id =
+      save(m.db, r, propose(m.db, r, std::nullopt, {parse_planned_cash("--withdraw", "Main=100")}));
+  CHECK(store::find_proposal(m.db, id)->cash[0].amount == dec("-100"));
+  CHECK_THROWS_AS(m.db.sql().exec("UPDATE proposal_cash SET amount = '-1'"), SQLite::Exception);
+  CHECK_THROWS_AS(m.db.sql().exec("DELETE FROM proposal_cash"), SQLite::Exception);
 }
 
 TEST_CASE("review: proposed orders against the trades posted since") {
