@@ -330,6 +330,18 @@ equal([(l["lot"], l["quantity"], l["est_gain"]) for l in doc["orders"][0]["lots"
 RULE_CAUTION = TAX_CAUTION.replace("This plan", "This rule")
 check(RULE_CAUTION in doc["cautions"], "the rule's tax caution in JSON")
 check(RULE_CAUTION in tax.ok("propose", "--rule", tax_rule), "the rule's tax caution in text")
+# In a plan the plan's [tax] applies: the rule file's is not used, and a note says so; the
+# sleeve's place is used, so the plan's proposal has the tax caution.
+in_plan = write(os.path.join(T, "tilted-plan.toml"), 'name = "Tilted plan"\n[[part]]\n'
+                'rule = "tilted.toml"\n')
+doc = tax.json("propose", "--plan", in_plan)
+check(f"part 'tilted': the [tax] table of rule file {T}/tilted.toml is not used in a plan; the "
+      "plan's [tax] applies" in doc["notes"], doc["notes"])
+check(TAX_CAUTION in doc["cautions"], "a placed sleeve in a plan's rule part: the tax caution")
+equal([(o["account"], o["symbol"], o["side"], o["quantity"]) for o in doc["pools"][0]["orders"]
+       if o["symbol"] == "ACRN"], [("Brokerage", "ACRN", "sell", "150"),
+                                   ("Retirement", "ACRN", "sell", "50")],
+      "without the plan's [tax], no gain cap: all of ACRN is sold")
 equal(ledger_digest(tax.path), before, "a rule's tax-aware proposal writes nothing")
 print("propose --rule: tax keys in one rule file checked by hand")
 
