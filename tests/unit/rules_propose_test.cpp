@@ -7,6 +7,7 @@
 
 #include <algorithm>
 #include <map>
+#include <set>
 
 #include "ledger_fixture.h"
 #include "rules/propose.h"
@@ -569,4 +570,47 @@ TEST_CASE("propose: a sell at a loss is flagged just inside the repurchase windo
       CHECK(p.cautions.size() == cautions);
     }
   }
+}
+
+TEST_CASE(
+    "property: a withdrawal is raised, no name is both sold and bought without the reason, "
+    "and booking it all leaves nothing to propose") {
+  int raised = 0;
+  for (std::uint64_t seed = 1; seed <= 8; ++seed)
+    for (const char* text : kVariants) {
+      CAPTURE(seed);
+      CAPTURE(text);
+      Generated g(seed);
+      const Rule r = parse_rule(text, "p.toml");
+      // Retirement (account 2) gives its cash and 300 more, raised by selling in it.
+      const Decimal gives = g.book().account(2).cash + dec("300");
+      Proposal p;
+      try {
+        p = propose(g.db, r, std::nullopt,
+                    {parse_planned_cash("--withdraw", "Retirement=" + gives.fixed(2))});
+      } catch (const InputError& e) {
+        MESSAGE(e.what());  // too little held in Retirement to raise it
+        continue;
+      }
+      ++raised;
+      for (const auto& c : p.plan.cash_after) CHECK_FALSE(c.cash.is_negative());
+      std::map<std::int64_t, std::set<Side>> sides;
+      for (const auto& o : p.plan.orders) sides[o.security_id].insert(o.side);
+      for (const auto& o : p.plan.orders)
+        if (sides[o.security_id].size() == 2 && o.side == Side::buy)
+          CHECK(o.reason.find("sells to raise the cash it must give") != std::string::npos);
+      g.post_orders(p);  // the sells first: the ledger checks each posting's cash
+      ledger::PostRequest w;
+      w.kind = TxnKind::withdrawal;
+      w.date = p.as_of;
+      w.account = "Retirement";
+      w.amount = gives;
+      ledger::post(g.db, w);
+      const auto again = propose(g.db, r);
+      CHECK(again.plan.orders.empty());
+      for (const auto& o : again.plan.orders)
+        MESSAGE(o.account << " " << o.symbol << " " << std::string(to_string(o.side)) << " "
+                          << o.quantity.str() << ": " << o.reason);
+    }
+  CHECK(raised > 8);
 }
