@@ -63,9 +63,9 @@ void add_holdings(CLI::App& app, Context& ctx) {
     const Date as_of = date_option_or_today(o->as_of, "--as-of");
     auto db = ctx.open_ledger();
     const auto account = text_option(o->account);
-    const auto h = with_currency_option(asked, [&] {
-      return ledger::holdings(db, as_of, account, ledger::reporting_currency(db, asked, account));
-    });
+    const std::string currency = ledger::reporting_currency(db, asked, account);
+    const auto h =
+        with_currency_option(asked, [&] { return ledger::holdings(db, as_of, account, currency); });
     if (o->json) {
       print_json([&](JsonWriter& j) {
         // A position or cash in another currency: its own figures and the rate used.
@@ -74,7 +74,8 @@ void add_holdings(CLI::App& app, Context& ctx) {
           j.member("rate", q.rate).member("day", q.day.str());
           j.member("derived", q.how == market::FxHow::direct ? "" : q.describe()).end_object();
         };
-        report::begin_document(j, "holdings", 1).member("as_of", h.as_of.str());
+        report::begin_document(j, "holdings", 2).member("as_of", h.as_of.str());
+        j.member("currency", currency);
         j.key("positions").begin_array();
         for (const auto& p : h.positions) {
           j.begin_object().member("account", p.account).member("symbol", p.symbol);
@@ -177,11 +178,14 @@ void add_lots(CLI::App& app, Context& ctx) {
     const auto asked = currency_option(o->currency);
     const Date as_of = date_option_or_today(o->as_of, "--as-of");
     auto db = ctx.open_ledger();
+    const auto account = text_option(o->account);
+    const std::string currency = ledger::reporting_currency(db, asked, account);
     const auto lots = with_currency_option(
-        asked, [&] { return ledger::open_lots(db, as_of, text_option(o->account), asked); });
+        asked, [&] { return ledger::open_lots(db, as_of, account, currency); });
     if (o->json) {
       print_json([&](JsonWriter& j) {
-        report::begin_document(j, "lots", 1).key("lots").begin_array();
+        report::begin_document(j, "lots", 2).member("currency", currency);
+        j.key("lots").begin_array();
         for (const auto& l : lots) {
           j.begin_object().member("account", l.account).member("symbol", l.symbol);
           j.member("lot", static_cast<long long>(l.lot.lot_id));
@@ -281,10 +285,10 @@ void add_gains(CLI::App& app, Context& ctx) {
     const auto asked = currency_option(o->currency);
     auto db = ctx.open_ledger();
     const auto account = text_option(o->account);
+    const std::string currency = ledger::reporting_currency(db, asked, account);
     auto gains = with_currency_option(asked, [&] {
       return ledger::realized_gains(db, o->year ? std::optional<int>(o->year) : std::nullopt,
-                                    account, std::nullopt,
-                                    ledger::reporting_currency(db, asked, account));
+                                    account, std::nullopt, currency);
     });
     if (window->count() > 0) ledger::flag_repurchases(db, gains, o->repurchase_window);
     std::vector<ledger::GainLine> taxable, elsewhere;
@@ -292,7 +296,8 @@ void add_gains(CLI::App& app, Context& ctx) {
     const auto totals = ledger::totals_by_term(taxable);
     if (o->json) {
       print_json([&](JsonWriter& j) {
-        report::begin_document(j, "gains", 1).key("gains").begin_array();
+        report::begin_document(j, "gains", 2).member("currency", currency);
+        j.key("gains").begin_array();
         for (const auto& g : taxable) gain_json(j, g);
         j.end_array();
         j.member("total_short", totals.short_term.gain).member("total_long", totals.long_term.gain);

@@ -25,7 +25,7 @@ namespace {
 namespace fs = std::filesystem;
 
 struct StatementOptions {
-  std::string year, account, benchmark, long_term_days, html, pdf, xlsx, csv, paper;
+  std::string year, account, benchmark, long_term_days, html, pdf, xlsx, csv, paper, currency;
   bool json = false;
 };
 
@@ -82,6 +82,7 @@ void add_statement(CLI::App& app, Context& ctx) {
   cmd->add_option("--paper", o->paper,
                   "Paper of the HTML, PDF and XLSX: a4 or letter (default: the locale's paper "
                   "size, else a4)");
+  add_currency_option(*cmd, o->currency);
   add_json_flag(*cmd, o->json);
   cmd->callback([&ctx, o] {
     report::StatementRequest request;
@@ -90,6 +91,7 @@ void add_statement(CLI::App& app, Context& ctx) {
                      fmt::format("a year a statement covers ({})", report::statement_years()));
     request.account = text_option(o->account);
     request.benchmark = text_option(o->benchmark);
+    request.currency = currency_option(o->currency);
     if (!o->long_term_days.empty())
       request.long_term_days = whole_number(o->long_term_days, "--long-term-days", 1, 100000,
                                             "a number of days (1 or more)");
@@ -122,7 +124,8 @@ void add_statement(CLI::App& app, Context& ctx) {
     open_output(xlsx_file, o->xlsx, "--xlsx", true);
 
     auto db = ctx.open_ledger();
-    const report::Statement s = report::build_statement(db, request);
+    const report::Statement s = with_currency_option(
+        request.currency, [&] { return report::build_statement(db, request); });
     if (o->json) {
       out(report::statement_json(s));
     } else if (o->html.empty() && o->pdf.empty() && o->xlsx.empty() && o->csv.empty()) {

@@ -142,6 +142,9 @@ class Book {
   const std::vector<RealizedPart>& realized() const { return realized_; }
   const std::vector<MovedCost>& moved() const { return moved_; }  // in replay order
   const std::vector<FxRealized>& fx_realized() const { return fx_realized_; }
+  // Foreign cash moved by a transfer (security_id 0): the cost of its lots in
+  // the account's currency, as they left or arrived; in replay order.
+  const std::vector<MovedCost>& fx_cash_moved() const { return fx_cash_moved_; }
   // The latest unit price the ledger traded `security_id` at, in any account
   // (split-adjusted), and the day of that trade; unset if it never traded.
   struct TradePrice {
@@ -165,6 +168,7 @@ class Book {
   std::vector<AccountBook> books_;
   std::vector<RealizedPart> realized_;
   std::vector<MovedCost> moved_;
+  std::vector<MovedCost> fx_cash_moved_;
   std::vector<FxRealized> fx_realized_;
   std::shared_ptr<const market::View> rates_;
 

@@ -221,6 +221,9 @@ bool Book::apply_foreign(const Transaction& txn, const Account& account, Account
         take.quantity = *txn.amount;
         take.lots.clear();
         in_transit_[txn.id] = take_lots(take, method, pool);
+        Decimal cost;
+        for (const auto& lot : in_transit_[txn.id]) cost += lot.cost;
+        fx_cash_moved_.push_back(MovedCost{txn.id, txn.account_id, 0, txn.date, false, cost});
         if (pool.lots.empty())
           book.foreign_cash.erase(c);
         else
@@ -244,10 +247,17 @@ bool Book::apply_foreign(const Transaction& txn, const Account& account, Account
           throw InputError(fmt::format("transaction {}: its transfer out {} was not found", txn.id,
                                        *txn.link_id));
         // Same account currency on both sides (posting checks): lots keep their cost.
-        for (auto& lot : it->second) book.foreign_cash[c].push_back(std::move(lot));
+        Decimal cost;
+        for (auto& lot : it->second) {
+          cost += lot.cost;
+          book.foreign_cash[c].push_back(std::move(lot));
+        }
         in_transit_.erase(it);
+        fx_cash_moved_.push_back(MovedCost{txn.id, txn.account_id, 0, txn.date, true, cost});
       } else {
-        add_foreign_cash(book, c, *txn.amount, to_own(*txn.amount), txn);
+        const Decimal cost = to_own(*txn.amount);
+        add_foreign_cash(book, c, *txn.amount, cost, txn);
+        fx_cash_moved_.push_back(MovedCost{txn.id, txn.account_id, 0, txn.date, true, cost});
       }
       break;
     case TxnKind::exchange:

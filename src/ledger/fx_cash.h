@@ -26,7 +26,9 @@
 //    C1: C2 receives amount x rate rounded to C2's minor units; C1 gives
 //    amount + fee.
 //  - A transfer of cash in C moves its lots (with their cost when both
-//    accounts keep the same currency; else at the day's stored rate).
+//    accounts keep the same currency; else at the day's stored rate), and
+//    realizes nothing; Book::fx_cash_moved() records the cost that left and
+//    arrived, which the statement counts as the transfer (report/statement.h).
 // Every missing rate throws InputError naming the pair and the day.
 #pragma once
 

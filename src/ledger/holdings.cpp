@@ -156,8 +156,14 @@ Holdings holdings_of(const Book& book, const market::View& view, Date as_of,
     if (reporting == info.currency) {
       out.cash.push_back(CashLine{info.name, ab.cash});
       out.total_value += ab.cash;
+    } else if (ab.cash.is_zero()) {
+      // No cash needs no rate (an account before its first row, or emptied).
+      CashLine line{info.name, ab.cash, info.currency};
+      line.own = true;
+      out.cash.push_back(std::move(line));
     } else {
       CashLine line{info.name, ab.cash, info.currency};
+      line.own = true;
       auto [value, quote] =
           convert(line.amount, info.currency, reporting, "cash in " + info.currency);
       line.value = value;

@@ -19,8 +19,9 @@
 // converted at the rate of its acquisition day; a realized part's proceeds
 // likewise at the rate of its disposal day (the local proceeds when the
 // security trades in R), and its price part is the local gain at that rate.
-// A foreign cash line's `cost` stays in the account's currency. A missing
-// rate throws InputError naming the pair, the day and what needed it.
+// A foreign cash line's `cost` stays in the account's currency. An account's
+// own cash of zero needs no rate (its line then has none). A missing rate
+// throws InputError naming the pair, the day and what needed it.
 // Throws InputError for an unknown account name.
 #pragma once
 
@@ -68,6 +69,9 @@ struct CashLine {
   std::optional<market::FxQuote> rate = std::nullopt;
   Decimal value = {};
   Decimal cost = {};  // cash in another currency: its lots' cost in the account's currency
+  // The account's own cash, shown in another reporting currency: it has no
+  // cost and no currency gain of its own.
+  bool own = false;
   Decimal currency_gain() const { return value - cost; }               // unrealized, of such cash
   Decimal worth() const { return currency.empty() ? amount : value; }  // in the account's
 };

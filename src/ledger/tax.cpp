@@ -97,8 +97,8 @@ Withholding withholding(store::Database& db, int year, const std::optional<std::
 }
 
 Withholding withholding_of(const LedgerLog& log, const market::View& view,
-                           const TaxStatuses& statuses, int year,
-                           std::optional<std::int64_t> only) {
+                           const TaxStatuses& statuses, int year, std::optional<std::int64_t> only,
+                           const std::optional<std::string>& currency) {
   const auto voided = voided_ids(log.transactions);
   std::map<std::int64_t, WithholdingBySecurity> by_id;
   std::vector<Account> involved;
@@ -118,8 +118,9 @@ Withholding withholding_of(const LedgerLog& log, const market::View& view,
         involved.push_back(a);
     // In the account's currency, as the lot engine booked the row.
     const std::string& own = currency_of(t.account_id);
-    const Decimal amount =
+    Decimal amount =
         booked_amount(*t.amount, t.currency.value_or(own), t.rate, own, t.date, view).amount;
+    if (currency && *currency != own) amount = view.convert(amount, own, *currency, t.date);
     if (statuses.on(t.account_id, t.date) != TaxStatus::taxable) {
       if (t.kind == TxnKind::tax) out.not_taxable += amount;
       continue;
@@ -133,7 +134,7 @@ Withholding withholding_of(const LedgerLog& log, const market::View& view,
     }
     (income ? line.income : line.withheld) += amount;
   }
-  one_currency(involved, "withholding");
+  if (!currency) one_currency(involved, "withholding");
   for (auto& [id, line] : by_id) {
     if (line.withheld.is_zero()) continue;
     out.by_country[line.country.value_or("")] += line.withheld;

@@ -76,9 +76,13 @@ struct Withholding {
 Withholding withholding(store::Database& db, int year,
                         const std::optional<std::string>& account = std::nullopt);
 // The same from a log already read; `only`: one account by id. The view
-// gives each security's symbol and country.
+// gives each security's symbol and country. `currency`: every amount, as
+// booked in its account's currency, converted into it at the rate of its
+// row's day (accounts may then keep different currencies); a missing rate
+// throws InputError naming the pair and the day.
 Withholding withholding_of(const LedgerLog& log, const market::View& view,
                            const TaxStatuses& statuses, int year,
-                           std::optional<std::int64_t> only = std::nullopt);
+                           std::optional<std::int64_t> only = std::nullopt,
+                           const std::optional<std::string>& currency = std::nullopt);
 
 }  // namespace keel::ledger

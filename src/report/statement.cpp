@@ -115,10 +115,22 @@ Decimal unrealized_total(const ledger::Holdings& h) {
   return total;
 }
 
+// Foreign cash's cost is kept in its account's currency (`kept`, by account
+// name); in another reporting currency it goes over at the rate of the day
+// valued.
+void cost_in_reporting(ledger::Holdings& h, const std::map<std::string, std::string>& kept,
+                       const std::string& reporting, const market::View& view) {
+  for (auto& c : h.cash)
+    if (!c.currency.empty() && !c.own && kept.at(c.account) != reporting)
+      c.cost = view.convert(c.cost, kept.at(c.account), reporting, h.as_of);
+}
+
+// Foreign cash's value less its cost; an account's own cash has none (its
+// move in another reporting currency is translation).
 Decimal fx_cash_unrealized(const ledger::Holdings& h) {
   Decimal total;
   for (const auto& c : h.cash)
-    if (!c.currency.empty()) total += c.currency_gain();
+    if (!c.currency.empty() && !c.own) total += c.currency_gain();
   return total;
 }
 
@@ -127,7 +139,7 @@ Decimal fx_cash_unrealized(const ledger::Holdings& h) {
 Decimal YearSummary::explained_closing() const {
   return opening_value + deposits - withdrawals + transfers_in - transfers_out + dividends -
          withholding + interest - fees + realized_gain + unrealized_change() - unrealized_moved +
-         fx_cash_realized + fx_cash_unrealized_change();
+         fx_cash_realized + fx_cash_unrealized_change() + translation;
 }
 
 std::vector<std::string> statement_cautions() {
@@ -174,10 +186,17 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
       throw InputError(
           fmt::format("--account: there is no account named '{}'", printable(*request.account)));
     account_id = account->id;
-    s.currency = account->currency;
-  } else if (const auto currency = ledger::one_currency(accounts, "statement")) {
-    s.currency = *currency;
+    s.currency = request.currency.value_or(account->currency);
+  } else {
+    s.currency = ledger::reporting_currency(db, request.currency, std::nullopt);
   }
+  std::map<std::string, std::string> currency_of_account;  // by name
+  for (const auto& a : accounts) {
+    currency_of_account[a.name] = a.currency;
+    if ((!account_id || a.id == *account_id) && a.currency != s.currency) s.translated = true;
+  }
+  const std::optional<std::string> translated_to =
+      s.translated ? std::optional<std::string>(s.currency) : std::nullopt;
   for (const auto& [id, day] : store::last_reconciled_days(db))
     for (const auto& a : accounts)
       if (a.id == id && (!account_id || *account_id == id)) s.reconciled.emplace_back(a.name, day);
@@ -195,6 +214,7 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   year_request.account = request.account;
   year_request.period.year = request.year;
   year_request.benchmark = request.benchmark;
+  year_request.currency = translated_to;
   const perf::ResolvedPeriod resolved = perf::resolve(data, year_request);
   const Date to = resolved.period.to;
   const market::DayView view(db);
@@ -209,6 +229,7 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
     rq.period.from = from;
     rq.period.to = to;
     rq.as_of = to;
+    rq.currency = translated_to;
     if (request.benchmark && priced_by(view, *request.benchmark, from.plus_days(-1)))
       rq.benchmark = request.benchmark;
     lines.emplace_back(label, requests.size());
@@ -272,9 +293,11 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
 
   // Holdings at the close of the day before the period and of its last day;
   // the parts realized and the cost basis moved by then.
-  const auto opening = ledger::holdings_of(measured.books[0], view, before, account_id);
+  auto opening = ledger::holdings_of(measured.books[0], view, before, account_id, translated_to);
   const Book& book = measured.books[1];
-  const auto closing = ledger::holdings_of(book, view, s.to, account_id);
+  auto closing = ledger::holdings_of(book, view, s.to, account_id, translated_to);
+  cost_in_reporting(opening, currency_of_account, s.currency, view);
+  cost_in_reporting(closing, currency_of_account, s.currency, view);
   s.holdings_total = closing.total_value;
   s.cash = closing.cash;
   std::map<std::string, Decimal> by_symbol;
@@ -295,7 +318,7 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   const auto statuses = ledger::TaxStatuses::load(db);
   Decimal sheltered_gain;
   for (auto& g : ledger::realized_gains_of(book, view, statuses, request.year, account_id,
-                                           request.long_term_days)) {
+                                           request.long_term_days, translated_to)) {
     if (g.part.disposed < s.from || g.part.disposed > s.to) continue;
     if (g.taxable()) {
       s.gains.push_back(std::move(g));
@@ -324,20 +347,29 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   });
   std::map<std::int64_t, std::string> account_currency;
   for (const auto& a : accounts) account_currency[a.id] = a.currency;
-  // A row's amount as the lot engine booked it in its account's currency.
+  // A row's amount as the lot engine booked it in its account's currency,
+  // translated into the reporting one at the rate of its day when the account
+  // keeps another; `rate` says how the last step was taken.
+  struct Reported {
+    Decimal amount;
+    std::optional<RateUsed> rate;
+  };
   auto booked = [&](const Transaction& t, const Decimal& amount) {
     const std::string& own = account_currency.at(t.account_id);
     try {
-      return ledger::booked_amount(amount, t.currency.value_or(own), t.rate, own, t.date, view);
+      const auto b =
+          ledger::booked_amount(amount, t.currency.value_or(own), t.rate, own, t.date, view);
+      Reported out{b.amount, std::nullopt};
+      if (b.converted()) out.rate = RateUsed{*t.currency, amount, b.row_rate, b.day_rate};
+      if (own != s.currency) {
+        out.amount = view.convert(b.amount, own, s.currency, t.date);
+        out.rate = RateUsed{own, b.amount, std::nullopt, view.rate(s.currency, own, t.date)};
+      }
+      return out;
     } catch (const InputError& e) {
       throw InputError(fmt::format("statement: transaction {} ({} on {}): {}", t.id,
                                    to_string(t.kind), t.date.str(), e.what()));
     }
-  };
-  auto rate_used = [&](const Transaction& t, const ledger::BookedAmount& b) {
-    std::optional<RateUsed> out;
-    if (b.converted()) out = RateUsed{*t.currency, *t.amount, b.row_rate, b.day_rate};
-    return out;
   };
   YearSummary& y = s.summary;
   Decimal cash_moved;  // cash transfers in minus out, internal pairs included
@@ -346,8 +378,18 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   Decimal deposits_at_day_rate, withdrawals_at_day_rate;
   auto at_day_rate = [&](const Transaction& t) {
     const std::string& own = account_currency.at(t.account_id);
-    return view.convert(*t.amount, t.currency.value_or(own), own, t.date);
+    return view.convert(*t.amount, t.currency.value_or(own), s.currency, t.date);
   };
+  // Foreign cash moved by transfers: its lots' cost, by transaction; and the
+  // transfers out whose receiving half is live (an internal pair for the
+  // whole ledger, as the returns count them).
+  std::map<std::int64_t, Decimal> fx_cash_cost;
+  for (const auto& m : book.fx_cash_moved()) fx_cash_cost[m.txn_id] = m.cost;
+  std::set<std::int64_t> paired_out;
+  for (const auto& t : log.transactions)
+    if (t.kind == TxnKind::transfer_in && t.link_id && !voided.count(t.id))
+      paired_out.insert(*t.link_id);
+  Decimal revalued_in, revalued_out;  // worth less cost of foreign cash transferred
   std::vector<const Transaction*> taxes;
   for (const Transaction* t : live) {
     const std::string symbol = t->security_id ? symbols[*t->security_id] : std::string();
@@ -369,7 +411,7 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
         if (taxable)
           s.income.push_back({account_names[t->account_id], t->date,
                               std::string(to_string(t->kind)), symbol, gross.amount, Decimal(),
-                              rate_used(*t, gross)});
+                              gross.rate});
         else
           s.not_taxable.push_back({account_names[t->account_id], std::string(to_string(status)),
                                    t->date, std::string(to_string(t->kind)), symbol, gross.amount,
@@ -388,13 +430,28 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
         y.trade_fees += booked(*t, t->fee).amount;
         break;
       case TxnKind::transfer_in:
-      case TxnKind::transfer_out:
+      case TxnKind::transfer_out: {
         // The lot engine charges a transfer's fee to cash only when units move.
-        if (t->security_id)
+        if (t->security_id) {
           y.fees += booked(*t, t->fee).amount;
-        else
-          cash_moved += t->kind == TxnKind::transfer_in ? at_day_rate(*t) : -at_day_rate(*t);
+          break;
+        }
+        const bool in = t->kind == TxnKind::transfer_in;
+        Decimal moved = at_day_rate(*t);
+        // Foreign cash moves with its lots at their cost, so a mere transfer
+        // shows no currency gain; where the returns count it as a flow (at
+        // its worth that day), the transfer line takes the cost instead.
+        if (const auto it = fx_cash_cost.find(t->id); it != fx_cash_cost.end()) {
+          const Decimal cost =
+              view.convert(it->second, account_currency.at(t->account_id), s.currency, t->date);
+          const bool flow = account_id || !(in ? t->link_id && paired_out.count(*t->link_id)
+                                               : paired_out.count(t->id));
+          if (flow) (in ? revalued_in : revalued_out) += moved - cost;
+          moved = cost;
+        }
+        cash_moved += in ? moved : -moved;
         break;
+      }
       case TxnKind::exchange:  // no flow: cash changes currency inside the account
       case TxnKind::void_entry:
         break;
@@ -427,7 +484,8 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   }
   std::stable_sort(s.not_taxable.begin(), s.not_taxable.end(),
                    [](const NotTaxableRow& a, const NotTaxableRow& b) { return a.day < b.day; });
-  s.withholding = ledger::withholding_of(log, view, statuses, request.year, account_id);
+  s.withholding =
+      ledger::withholding_of(log, view, statuses, request.year, account_id, translated_to);
 
   // Value pieces: the holdings' values (each position and each cash
   // currency converted on its own, as the unrealized gains are, so that a
@@ -436,15 +494,17 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   // by transfers.
   y.opening_value = opening.total_value;
   y.closing_value = closing.total_value;
-  y.transfers_in = r.inflow - deposits_at_day_rate;
-  y.transfers_out = r.outflow - withdrawals_at_day_rate;
+  y.transfers_in = r.inflow - deposits_at_day_rate - revalued_in;
+  y.transfers_out = r.outflow - withdrawals_at_day_rate - revalued_out;
   y.realized_gain = s.realized_totals.all().gain + sheltered_gain;
   y.unrealized_opening = unrealized_total(opening);
   y.unrealized_closing = unrealized_total(closing);
   Decimal cost_moved;
   for (const auto& m : book.moved()) {
     if (m.date < s.from || (account_id && m.account_id != *account_id)) continue;
-    cost_moved += m.incoming ? m.cost : -m.cost;
+    const std::string& own = account_currency.at(m.account_id);
+    const Decimal cost = view.convert(m.cost, own, s.currency, m.date);
+    cost_moved += m.incoming ? cost : -cost;
   }
   // What transfers added at market value, less the cash and cost basis they
   // brought, is unrealized gain that arrived with the units (not earned here).
@@ -452,16 +512,35 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
 
   // Foreign cash: the currency gain its spending realized in the period, and
   // what it is worth over its cost at each end.
-  for (const auto& g : book.fx_realized()) {
+  for (auto g : book.fx_realized()) {
     if (g.disposed < s.from || g.disposed > s.to || (account_id && g.account_id != *account_id))
       continue;
+    const std::string& own = account_currency.at(g.account_id);
+    g.proceeds = view.convert(g.proceeds, own, s.currency, g.disposed);
+    g.cost = view.convert(g.cost, own, s.currency, g.disposed);
     y.fx_cash_realized += g.gain();
     s.fx_cash_gains.push_back({account_names[g.account_id], g});
   }
   y.fx_cash_unrealized_opening = fx_cash_unrealized(opening);
   y.fx_cash_unrealized_closing = fx_cash_unrealized(closing);
+  // What is left when accounts keep other currencies is translation; each
+  // account's own statement keeps the check.
+  if (s.translated) {
+    Decimal own_checks;
+    for (const auto& a : accounts) {
+      if (account_id && a.id != *account_id) continue;
+      StatementRequest own;
+      own.year = request.year;
+      own.account = a.name;
+      own.long_term_days = request.long_term_days;
+      // A difference of zero, the usual case, needs no rate.
+      const Decimal d = build_statement(db, own).summary.difference();
+      if (!d.is_zero()) own_checks += view.convert(d, a.currency, s.currency, s.to);
+    }
+    y.translation = y.difference() - own_checks;
+  }
   s.foreign =
-      !s.fx_cash_gains.empty() ||
+      s.translated || !s.fx_cash_gains.empty() ||
       std::any_of(s.holdings.begin(), s.holdings.end(),
                   [](const HoldingRow& h) { return h.line.rate.has_value(); }) ||
       std::any_of(s.cash.begin(), s.cash.end(),

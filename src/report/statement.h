@@ -7,8 +7,10 @@
 //    the latest close and the latest transaction) when the year is still
 //    running, and started at the first transaction day when the ledger began
 //    during the year (see perf/period.h).
-//  - Money is exact Decimal in the reporting currency (the account's with an
-//    account, else the one every account keeps), never rounded here;
+//  - Money is exact Decimal in the reporting currency (the request's
+//    `currency`; else the account's with an account, else the one every
+//    account keeps, or the ledger's own when they keep several), never
+//    rounded here;
 //    returns are fractions (0.05 = 5 %), taken from perf::returns_report()
 //    and never recomputed.
 //  - The year summary adds up exactly (docs/statement.md states the identity):
@@ -17,6 +19,7 @@
 //                + change in unrealized gain - unrealized gain moved by transfers
 //                + currency gain realized on foreign cash
 //                + change in unrealized currency gain on foreign cash
+//                + translation
 //    `difference()` is the closing value minus the right-hand side; it is
 //    zero when the ledger is consistent and is shown, not hidden, otherwise.
 //    Trade fees sit inside cost basis and realized gain and are given as a
@@ -35,8 +38,23 @@
 //    (market::View::rate: direct, inverted or crossed, and said so); a
 //    realized gain keeps its price part and currency part; foreign cash is
 //    carried at cost, so its currency gain (realized when spent, unrealized
-//    while held) is a line of its own, apart from price gains. A missing rate
-//    throws InputError naming the pair and the day.
+//    while held) is a line of its own, apart from price gains; a transfer of
+//    foreign cash counts at its lots' cost, not its worth that day, so it
+//    realizes no currency gain. A missing rate throws InputError naming the
+//    pair and the day.
+//  - Translation (docs/methods-ledger.md): when an account in scope keeps
+//    another currency than the reporting one, its rows are booked in its own
+//    currency (as above) and each is converted at the stored rate of its
+//    day; values at the rate of the day valued, a lot's cost at the rate of
+//    its acquisition day (as holdings --currency), foreign cash's cost and
+//    its realized currency gain at the rate of the day valued or spent.
+//    `translation` is what remains: the change in the reporting-currency
+//    worth of what each account keeps in its own currency. `difference()` is
+//    then each account's own check (its statement in its own currency)
+//    converted at the closing rate: zero exactly when every account's own
+//    statement adds up. Transfers between accounts
+//    that keep different currencies move at the day's rate (the lot engine
+//    books them so).
 //  - Tax status (ledger/tax.h): realized gains, income and tax rows of an
 //    account that is tax-deferred or tax-exempt on their day are not in
 //    `gains`, `income` or `other_tax` but in `not_taxable` ("not a taxable
@@ -77,6 +95,7 @@ struct StatementRequest {
   std::optional<std::string> account;    // nullopt: the whole ledger
   std::optional<std::string> benchmark;  // security symbol
   std::optional<int> long_term_days;     // nullopt: more than one calendar year
+  std::optional<std::string> currency;   // ISO 4217; nullopt: the default (see above)
 };
 
 struct YearSummary {
@@ -96,6 +115,9 @@ struct YearSummary {
   // spending it in the period, and its value less cost at each end.
   Decimal fx_cash_realized;
   Decimal fx_cash_unrealized_opening, fx_cash_unrealized_closing;
+  // Accounts kept in another currency than the reporting one: what converting
+  // their values and flows at the rates of different days adds (zero else).
+  Decimal translation;
 
   Decimal unrealized_change() const { return unrealized_closing - unrealized_opening; }
   Decimal fx_cash_unrealized_change() const {
@@ -217,6 +239,7 @@ struct Statement {
   ledger::Withholding withholding;           // taxable accounts, the period's tax rows
   std::vector<FxCashGainRow> fx_cash_gains;  // by day, as the lot engine realized them
   bool foreign = false;                      // some figure was converted from another currency
+  bool translated = false;  // some account in scope keeps another currency than `currency`
   std::vector<std::string> cautions;
 };
 

@@ -47,7 +47,7 @@ void currency(JsonWriter& j, const std::string& code) {
 std::string statement_json(const Statement& s) {
   std::string text;
   JsonWriter j(text);
-  begin_document(j, "statement", 2);
+  begin_document(j, "statement", 3);
   j.member("year", s.year).member("scope", s.scope).member("currency", s.currency);
   j.member("from", s.from.str()).member("to", s.to.str()).member("as_of", s.as_of.str());
   j.member("inception", s.inception.str()).member("partial_year", s.partial_year);
@@ -75,6 +75,7 @@ std::string statement_json(const Statement& s) {
   j.member("fx_cash_unrealized_opening", y.fx_cash_unrealized_opening);
   j.member("fx_cash_unrealized_closing", y.fx_cash_unrealized_closing);
   j.member("fx_cash_unrealized_change", y.fx_cash_unrealized_change());
+  j.member("translation", y.translation).member("translated", s.translated);
   j.end_object();
 
   j.key("performance").begin_array();
@@ -131,7 +132,7 @@ std::string statement_json(const Statement& s) {
     quote(j, "rate", c.rate);
     j.member("value", c.worth());
     j.key("cost");
-    if (c.currency.empty())
+    if (c.currency.empty() || c.own)
       j.null();
     else
       j.value(c.cost);

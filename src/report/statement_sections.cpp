@@ -37,6 +37,8 @@ Section summary_section(const Statement& s) {
     row("currency gain on foreign cash, realized", y.fx_cash_realized);
     row("change in unrealized currency gain on foreign cash", y.fx_cash_unrealized_change());
   }
+  if (s.translated)
+    row(fmt::format("translation into {} (rates moved)", s.currency), y.translation);
   const std::size_t explained = sec.rows.size();
   sec.emphasised.push_back(explained);
   row("opening value plus the pieces", y.explained_closing());
@@ -56,7 +58,16 @@ Section summary_section(const Statement& s) {
       y.trade_fees.fixed(2)));
   sec.notes.push_back(fmt::format("Unrealized gain: {} at the start, {} at the end.",
                                   y.unrealized_opening.fixed(2), y.unrealized_closing.fixed(2)));
-  if (s.foreign)
+  if (s.translated)
+    sec.notes.push_back(fmt::format(
+        "Every figure is in {}, translated from each account's own currency: a row at the rate "
+        "of its day, a value at the rate of the day valued, a lot's cost at the rate of its "
+        "acquisition day. Translation is what is left: the change in the {} worth of what each "
+        "account keeps in its own currency. Foreign cash's currency gain ({} at the start, {} at "
+        "the end, unrealized) is shown apart from price gains.",
+        s.currency, s.currency, y.fx_cash_unrealized_opening.fixed(2),
+        y.fx_cash_unrealized_closing.fixed(2)));
+  else if (s.foreign)
     sec.notes.push_back(fmt::format(
         "Every figure is in {}. Foreign cash is carried at its cost in {}; its currency gain is "
         "shown apart from price gains ({} at the start, {} at the end, unrealized).",
@@ -163,9 +174,11 @@ Section holdings_section(const Statement& s) {
   auto with_rate = [&](std::vector<Cell> cells, const std::string& currency,
                        const std::optional<market::FxQuote>& rate) {
     if (!s.foreign) return cells;
+    // A line in the reporting currency itself needs no rate.
+    const bool same = rate && rate->how == market::FxHow::same;
     cells.insert(cells.begin() + 5, {C::of_text(currency.empty() ? s.currency : currency),
-                                     rate ? C::of_quantity(rate->rate) : C::none()});
-    if (rate && std::find(rates.begin(), rates.end(), rate->describe()) == rates.end())
+                                     rate && !same ? C::of_quantity(rate->rate) : C::none()});
+    if (rate && !same && std::find(rates.begin(), rates.end(), rate->describe()) == rates.end())
       rates.push_back(rate->describe());
     return cells;
   };
@@ -443,7 +456,7 @@ Section fx_cash_section(const Statement& s) {
                         C::of_quantity(g.part.quantity), C::of_money(g.part.proceeds),
                         C::of_money(g.part.cost), C::of_money(g.part.gain())});
   for (const auto& c : s.cash) {
-    if (c.currency.empty()) continue;
+    if (c.currency.empty() || c.own) continue;
     sec.rows.push_back({C::of_text(c.account), C::of_text(c.currency), C::of_text("held"),
                         C::none(), C::of_date(s.to), C::of_quantity(c.amount), C::of_money(c.value),
                         C::of_money(c.cost), C::of_money(c.currency_gain())});
@@ -496,7 +509,7 @@ std::vector<Section> statement_sections(const Statement& s) {
     out.push_back(income_conversion_section(s));
   if (!s.fx_cash_gains.empty() ||
       std::any_of(s.cash.begin(), s.cash.end(),
-                  [](const ledger::CashLine& c) { return !c.currency.empty(); }))
+                  [](const ledger::CashLine& c) { return !c.currency.empty() && !c.own; }))
     out.push_back(fx_cash_section(s));
   out.push_back(cautions_section(s));
   return out;

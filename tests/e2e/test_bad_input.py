@@ -824,8 +824,9 @@ row("returns: ten years back from year 5", ["returns", "--period", "10y", "--as-
     "2024-01-02")
 row("returns: unknown benchmark", ["returns", "--benchmark", "NOPE"], INPUT,
     "keel: error: --benchmark: there is no security with symbol 'NOPE'")
-for command in ("holdings", "lots", "gains", "returns"):
-    row(f"{command}: --currency not a currency code", [command, "--currency", "EURO"], INPUT,
+for command in ("holdings", "lots", "gains", "returns", "statement --year 2024"):
+    row(f"{command}: --currency not a currency code", [*command.split(), "--currency", "EURO"],
+        INPUT,
         "keel: error: --currency: 'EURO' is not an ISO 4217 currency code (such as EUR, USD, JPY)")
 NO_JPY = "(nor for USD/JPY, nor through a third currency); import one with 'keel import fx FILE.csv'"
 row("holdings: --currency without a rate path", ["holdings", "--as-of", "2024-06-30",
@@ -833,6 +834,9 @@ row("holdings: --currency without a rate path", ["holdings", "--as-of", "2024-06
     f"acquired 2024-01-03: no exchange rate for JPY/USD on or before 2024-01-03 {NO_JPY}")
 row("returns: --currency without a rate path", ["returns", "--from", "2024-01-02", "--to",
     "2024-06-30", "--currency", "JPY"], INPUT,
+    f"keel: error: --currency JPY: no exchange rate for JPY/USD on or before 2024-01-02 {NO_JPY}")
+row("statement: --currency without a rate path", ["statement", "--year", "2024", "--currency",
+    "JPY"], INPUT,
     f"keel: error: --currency JPY: no exchange rate for JPY/USD on or before 2024-01-02 {NO_JPY}")
 row("returns: unknown method", ["returns", "--method", "geometric"], INPUT,
     "keel: error: --method: 'geometric' is not a method; choose daily or dietz")

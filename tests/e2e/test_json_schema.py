@@ -109,8 +109,8 @@ MORE = {
                  "--from", "2024-01-01", "--to", "2025-12-31", "--frictionless"]],
 }
 # Documents whose members changed since their first version.
-VERSIONS = {"backtest": 2, "propose": 3, "plan-proposal": 3, "proposal": 3, "proposals-list": 2,
-            "returns": 2, "signal": 3, "statement": 2}
+VERSIONS = {"holdings": 2, "lots": 2, "gains": 2, "backtest": 2, "propose": 3, "plan-proposal": 3,
+            "proposal": 3, "proposals-list": 2, "returns": 2, "signal": 3, "statement": 3}
 ON_DEMO = {"returns", "propose", "plan-proposal", "proposals-list", "proposal", "backtest", "compare", "signal", "sweep", "statement"}
 # The commands of the reference each report stands for.
 COMMANDS = {"holdings": "holdings", "lots": "lots", "gains": "gains", "history": "history",
@@ -151,6 +151,20 @@ with open(os.path.join(SCHEMA_DIR, "holdings.json")) as f:
 broken = dict(holdings, total_value=123.5)
 check(not jsonschema.Draft202012Validator(holdings_schema).is_valid(broken),
       "a decimal written as a JSON number is refused by the schema")
+
+# Holdings, lots and gains name the currency they report in: the ledger's, or --currency.
+for name in ("holdings", "lots", "gains"):
+    equal(led.json(*REPORTS[name])["currency"], "EUR", f"{name}: its reporting currency")
+with open(os.path.join(work, "rates.csv"), "w") as f:
+    f.write("date,base,quote,rate\n2024-01-02,EUR,USD,1.10\n")
+led.ok("import", "fx", os.path.join(work, "rates.csv"), "--quiet")
+for name in ("holdings", "lots", "gains"):
+    equal(led.json(*REPORTS[name], "--currency", "USD")["currency"], "USD",
+          f"{name} --currency USD: its reporting currency")
+without = dict(holdings)
+del without["currency"]
+check(not jsonschema.Draft202012Validator(holdings_schema).is_valid(without),
+      "holdings without its currency is refused by the schema")
 
 # Every --json of the reference has a schema, and every schema file is used.
 with open(os.path.join(SOURCE, "docs", "commands.md")) as f:

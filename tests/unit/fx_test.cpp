@@ -12,6 +12,7 @@
 #include "ledger/fx_cash.h"
 #include "ledger_fixture.h"
 #include "market/fx_rates.h"
+#include "report/statement.h"
 #include "store/fx_store.h"
 #include "store/migrations.h"
 
@@ -137,6 +138,49 @@ TEST_CASE("foreign cash: spending it realizes its currency gain, oldest first un
   CHECK(book.fx_realized()[1].proceeds == dec("90.91"));
   CHECK(book.account(1).foreign_balance("USD") == dec("900"));
   CHECK(book.account(1).foreign_cash.at("USD").front().cost == dec("900.00"));
+}
+
+// Worked example, by hand (rates are USD per EUR): 1000 USD deposited in
+// "Euro" when 1 EUR = 1.25 USD cost 800.00 EUR; on 2024-06-03, when
+// 1 EUR = 1.00 USD, they move to "Second", worth 1000.00 EUR that day.
+//   Euro:   0 + deposits 800.00 - transfers out 800.00 (at cost)      = 0.00
+//   Second: 0 + transfers in 800.00 (at cost) + unrealized currency
+//           gain 200.00 (1000.00 worth - 800.00 cost)                  = 1000.00
+//   all:    0 + deposits 800.00 + unrealized currency gain 200.00      = 1000.00
+// At the day's worth (1000.00) the transfer would make Euro miss its
+// closing value by 200.00 and Second by -200.00.
+TEST_CASE("statement: foreign cash transferred between accounts moves at its cost") {
+  EuroFixture f;
+  f.account("Second", BasisMethod::fifo, false, "EUR");
+  f.rate("2024-01-02", "EUR", "USD", "1.25");
+  f.rate("2024-06-03", "EUR", "USD", "1.00");
+  f.post(f.cash_row(TxnKind::deposit, "2024-01-02", "1000", "USD"));
+  auto move = f.cash_row(TxnKind::transfer_out, "2024-06-03", "1000", "USD");
+  move.to_account = "Second";
+  f.post(move);
+  CHECK(f.book().fx_realized().empty());
+  report::StatementRequest r;
+  r.year = 2024;
+  r.account = "Euro";
+  const auto euro = report::build_statement(f.db, r).summary;
+  CHECK(euro.deposits == dec("800.00"));
+  CHECK(euro.transfers_out == dec("800.00"));
+  CHECK(euro.fx_cash_realized == Decimal());
+  CHECK(euro.closing_value == Decimal());
+  CHECK(euro.difference() == Decimal());
+  r.account = "Second";
+  const auto second = report::build_statement(f.db, r).summary;
+  CHECK(second.transfers_in == dec("800.00"));
+  CHECK(second.fx_cash_unrealized_closing == dec("200.00"));
+  CHECK(second.closing_value == dec("1000.00"));
+  CHECK(second.difference() == Decimal());
+  r.account.reset();
+  const auto all = report::build_statement(f.db, r).summary;
+  CHECK(all.transfers_in == Decimal());
+  CHECK(all.transfers_out == Decimal());
+  CHECK(all.fx_cash_unrealized_closing == dec("200.00"));
+  CHECK(all.closing_value == dec("1000.00"));
+  CHECK(all.difference() == Decimal());
 }
 
 TEST_CASE("exchange: euros into dollars at the broker's rate, the fee in euros") {
