@@ -33,7 +33,8 @@ class Decimal {
   static constexpr int kMaxDigits = 60;
   static constexpr int kMaxScale = 30;
 
-  Decimal() = default;
+  // User-provided, so that `const Decimal zero;` is well-formed for every compiler.
+  Decimal() noexcept {}       // NOLINT(modernize-use-equals-default)
   Decimal(long long whole) {  // NOLINT: implicit from integers is natural for literals.
     if (whole == std::numeric_limits<long long>::min())
       set_lowest();
