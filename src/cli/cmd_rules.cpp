@@ -20,7 +20,7 @@ namespace keel::cli {
 namespace {
 
 struct ProposeOptions {
-  std::string rule, plan, as_of;
+  std::string rule, plan, as_of, currency;
   std::vector<std::string> deposits, withdrawals;
   bool json = false;
   bool save = false;
@@ -47,6 +47,9 @@ void add_propose(CLI::App& app, Context& ctx) {
                   "(repeatable)");
   cmd->add_option("--as-of", o->as_of,
                   "Day to propose for, YYYY-MM-DD (default: the latest day with a close)");
+  cmd->add_option("--currency", o->currency,
+                  "With --rule: value the pool and size the orders in this currency, a "
+                  "three-letter code (default: the first account's)");
   add_json_flag(*cmd, o->json);
   cmd->add_flag("--save", o->save, "Keep the proposal, to compare with what is traded later");
   auto* window =
@@ -61,8 +64,10 @@ void add_propose(CLI::App& app, Context& ctx) {
     if (o->plan.empty() && !(o->deposits.empty() && o->withdrawals.empty()))
       throw InputError(fmt::format("{}: applies only with --plan",
                                    o->deposits.empty() ? "--withdraw" : "--deposit"));
+    const auto currency = currency_option(o->currency);
     if (!o->plan.empty()) {
       if (window->count() > 0) throw InputError("--repurchase-window: applies only with --rule");
+      if (currency) throw InputError("--currency: applies only with --rule");
       std::vector<rules::PlannedCash> planned;
       for (const auto& d : o->deposits)
         planned.push_back(rules::parse_planned_cash("--deposit", d));
@@ -82,7 +87,8 @@ void add_propose(CLI::App& app, Context& ctx) {
     if (window->count() > 0) ledger::check_repurchase_window(o->repurchase_window);
     const auto rule = rules::load_rule(o->rule);
     auto db = ctx.open_ledger(o->save ? store::Access::write : store::Access::read);
-    auto proposal = rules::propose(db, rule, as_of);
+    auto proposal =
+        with_currency_option(currency, [&] { return rules::propose(db, rule, as_of, currency); });
     if (window->count() > 0) rules::flag_repurchases(db, proposal, o->repurchase_window);
     std::optional<std::int64_t> id;
     if (o->save) id = rules::save(db, rule, proposal);

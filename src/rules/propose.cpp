@@ -34,7 +34,8 @@ std::vector<std::string> proposal_cautions(Date as_of) {
 }
 
 std::vector<Account> pool_accounts(store::Database& db, const std::vector<std::string>& names,
-                                   const std::function<void(const std::string&)>& fail) {
+                                   const std::function<void(const std::string&)>& fail,
+                                   MixedCurrencies mixed) {
   std::vector<Account> pool;
   std::vector<std::string> known;
   for (const auto& a : store::list_accounts(db)) known.push_back(a.name);
@@ -45,11 +46,12 @@ std::vector<Account> pool_accounts(store::Database& db, const std::vector<std::s
                        known.empty() ? "" : " (accounts: " + printable_list(known) + ")"));
     pool.push_back(*a);
   }
-  if (const auto mixed = ledger::mixed_currencies(pool))
-    fail(
-        fmt::format("the accounts keep different currencies ({}) and keel does not convert "
-                    "between them yet; give each currency a rule of its own",
-                    *mixed));
+  if (mixed == MixedCurrencies::refuse)
+    if (const auto kept = ledger::mixed_currencies(pool))
+      fail(
+          fmt::format("the accounts keep different currencies ({}) and keel does not convert "
+                      "between them yet; give each currency a rule of its own",
+                      *kept));
   return pool;
 }
 
@@ -124,21 +126,25 @@ Portfolio portfolio_of(const Book& book, const std::vector<Account>& pool,
   return portfolio;
 }
 
-Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_of_opt) {
+Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_of_opt,
+                 std::optional<std::string> currency) {
   Proposal p;
   p.rule_name = rule.name;
   p.rule_sha256 = io::sha256_hex(rule.text);
   const market::DayView view(db);
   const auto pool = pool_accounts(
-      db, rule.accounts, [&](const std::string& why) { rule.fail("scope.accounts", why); });
+      db, rule.accounts, [&](const std::string& why) { rule.fail("scope.accounts", why); },
+      MixedCurrencies::allow);
   for (const auto& a : pool) p.accounts.push_back(a.name);
+  p.currency = currency ? *currency : pool.front().currency;
 
-  const auto log = pool_log(db, pool);
+  const auto log = ledger::load_log(db);
   p.as_of = choose_as_of(view, log, pool, as_of_opt, "the rule's accounts", p.notes);
   const Date as_of = p.as_of;
+  require_rates(pool, p.currency, view, as_of);
 
   // The universe and the sleeves, checked before the ledger is replayed.
-  Inputs inputs(rule, view, pool.front().currency);
+  Inputs inputs(rule, view, p.currency, Convert::yes);
   p.notes.insert(p.notes.end(), inputs.notes().begin(), inputs.notes().end());
   std::unique_ptr<LedgerTrackRecord> track;
   if (rule.track_record) track = std::make_unique<LedgerTrackRecord>(db, rule, inputs, view, as_of);
@@ -148,7 +154,8 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
   const Book& book = replayer.advance_to(as_of);
   p.last_txn_id = store::last_transaction_id(db);
   std::set<std::int64_t> held;
-  const Portfolio portfolio = portfolio_of(book, pool, held);
+  const FxPool fx_state = fx_pool(book, pool, p.currency, view, as_of, held, p.notes);
+  const Portfolio& portfolio = fx_state.portfolio;
 
   auto chosen = inputs.select(view, as_of, held);
   if (chosen.refusal) rule.fail(chosen.refusal->key, chosen.refusal->why);
@@ -174,6 +181,12 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
                           printable_list(p.accounts), as_of.str(), pool_value.str()));
 
   p.plan = orders(portfolio, p.targets, quotes, rule.trading, as_of);
+  p.converted = fx_state.converted || std::any_of(quotes.begin(), quotes.end(), [](const auto& q) {
+                  return q.second.fx.has_value();
+                });
+  if (p.converted)
+    p.conversions =
+        settle(p.plan, fx_state, quotes, p.currency, rule.trading, view, as_of, p.notes);
   p.cautions = proposal_cautions(as_of);
   return p;
 }
@@ -184,7 +197,8 @@ store::ProposalOrderRow proposal_order_row(const Order& o) {
   r.security_id = o.security_id;
   r.side = std::string(to_string(o.side));
   r.quantity = o.quantity;
-  r.price = o.price;
+  // The price a fill will be compared with: the name's own.
+  r.price = o.fx ? o.fx->quote.local_price : o.price;
   r.value = o.value;
   r.fee = o.fee;
   r.weight_now = o.weight_now;
