@@ -40,11 +40,9 @@ void add_propose(CLI::App& app, Context& ctx) {
       "Plan file: several rules and fixed sleeves proposed together (TOML; see docs/plan.md)");
   rule_opt->excludes(plan_opt);
   cmd->add_option("--deposit", o->deposits,
-                  "With --plan: cash to plan with that is not booked yet, ACCOUNT=AMOUNT "
-                  "(repeatable)");
+                  "Cash to plan with that is not booked yet, ACCOUNT=AMOUNT (repeatable)");
   cmd->add_option("--withdraw", o->withdrawals,
-                  "With --plan: cash to take out that is not booked yet, ACCOUNT=AMOUNT "
-                  "(repeatable)");
+                  "Cash to take out that is not booked yet, ACCOUNT=AMOUNT (repeatable)");
   cmd->add_option("--as-of", o->as_of,
                   "Day to propose for, YYYY-MM-DD (default: the latest day with a close)");
   cmd->add_option("--currency", o->currency,
@@ -61,18 +59,14 @@ void add_propose(CLI::App& app, Context& ctx) {
     const auto as_of = date_option(o->as_of, "--as-of");
     if (o->rule.empty() && o->plan.empty())
       throw InputError("propose: give a rule (--rule FILE) or a plan (--plan FILE)");
-    if (o->plan.empty() && !(o->deposits.empty() && o->withdrawals.empty()))
-      throw InputError(fmt::format("{}: applies only with --plan",
-                                   o->deposits.empty() ? "--withdraw" : "--deposit"));
+    std::vector<rules::PlannedCash> planned;
+    for (const auto& d : o->deposits) planned.push_back(rules::parse_planned_cash("--deposit", d));
+    for (const auto& w : o->withdrawals)
+      planned.push_back(rules::parse_planned_cash("--withdraw", w));
     const auto currency = currency_option(o->currency);
     if (!o->plan.empty()) {
       if (window->count() > 0) throw InputError("--repurchase-window: applies only with --rule");
       if (currency) throw InputError("--currency: applies only with --rule");
-      std::vector<rules::PlannedCash> planned;
-      for (const auto& d : o->deposits)
-        planned.push_back(rules::parse_planned_cash("--deposit", d));
-      for (const auto& w : o->withdrawals)
-        planned.push_back(rules::parse_planned_cash("--withdraw", w));
       const auto plan = rules::load_plan(o->plan);
       auto db = ctx.open_ledger(o->save ? store::Access::write : store::Access::read);
       const auto proposal = rules::propose_plan(db, plan, as_of, std::move(planned));
@@ -87,8 +81,8 @@ void add_propose(CLI::App& app, Context& ctx) {
     if (window->count() > 0) ledger::check_repurchase_window(o->repurchase_window);
     const auto rule = rules::load_rule(o->rule);
     auto db = ctx.open_ledger(o->save ? store::Access::write : store::Access::read);
-    auto proposal =
-        with_currency_option(currency, [&] { return rules::propose(db, rule, as_of, currency); });
+    auto proposal = with_currency_option(
+        currency, [&] { return rules::propose(db, rule, as_of, std::move(planned), currency); });
     if (window->count() > 0) rules::flag_repurchases(db, proposal, o->repurchase_window);
     std::optional<std::int64_t> id;
     if (o->save) id = rules::save(db, rule, proposal);

@@ -293,6 +293,27 @@ std::string orders_text(const std::vector<rules::Order>& orders, const Style& st
   return s;
 }
 
+// Planned cash, one line each: never booked by a proposal.
+std::string planned_text(const std::vector<rules::PlannedCash>& planned) {
+  std::string s;
+  for (const auto& c : planned)
+    s += fmt::format("Planned, not booked: {} {} {} {}\n",
+                     c.amount.is_negative() ? "withdraw" : "deposit", money(c.amount.abs()),
+                     c.amount.is_negative() ? "from" : "to", printable(c.account));
+  return s;
+}
+
+void planned_json(JsonWriter& j, const std::vector<rules::PlannedCash>& planned) {
+  j.key("planned_cash").begin_array();
+  for (const auto& c : planned)
+    j.begin_object()
+        .member("account", c.account)
+        .member("amount", c.amount)
+        .member("booked", false)
+        .end_object();
+  j.end_array();
+}
+
 std::string result_text(const rules::OrderPlan& plan, const Style& style) {
   std::string s;
   Table w({{"symbol"},
@@ -320,12 +341,13 @@ std::string result_text(const rules::OrderPlan& plan, const Style& style) {
 std::string proposal_json(const rules::Proposal& p, std::optional<std::int64_t> saved_id) {
   std::string s;
   JsonWriter j(s);
-  begin_document(j, "propose", 3);
+  begin_document(j, "propose", 4);
   j.member("as_of", p.as_of.str());
   j.member("rule", p.rule_name);
   j.member("rule_sha256", p.rule_sha256);
   j.member("accounts", p.accounts);
   j.member("currency", p.currency);
+  planned_json(j, p.planned);
   j.member("pool_value", p.plan.pool_value);
   screen_json(j, p.screen);
   orders_json(j, p.plan.orders, WithFx::yes);
@@ -350,11 +372,12 @@ std::string proposal_text(const rules::Proposal& p, const Style& style) {
   if (p.converted)
     s += fmt::format(
         "Accounts: {}; pool value {} {} (other currencies converted at the latest rates on or "
-        "before {})\n\n",
+        "before {})\n",
         printable_list(p.accounts), money(p.plan.pool_value), p.currency, p.as_of.str());
   else
-    s += fmt::format("Accounts: {}; pool value {}\n\n", printable_list(p.accounts),
+    s += fmt::format("Accounts: {}; pool value {}\n", printable_list(p.accounts),
                      money(p.plan.pool_value));
+  s += planned_text(p.planned) + "\n";
 
   s += "1. Screen: " + screen_text(p.screen, style);
   s += "2. Orders (estimates at the closes used)\n" + orders_text(p.plan.orders, style, p.currency);
@@ -378,14 +401,7 @@ std::string plan_proposal_json(const rules::PlanProposal& p, std::optional<std::
   JsonWriter j(s);
   begin_document(j, "plan-proposal", 3);
   j.member("as_of", p.as_of.str()).member("plan", p.plan_name);
-  j.key("planned_cash").begin_array();
-  for (const auto& c : p.planned)
-    j.begin_object()
-        .member("account", c.account)
-        .member("amount", c.amount)
-        .member("booked", false)
-        .end_object();
-  j.end_array();
+  planned_json(j, p.planned);
   j.key("parts").begin_array();
   for (const auto& part : p.parts) {
     j.begin_object().member("name", part.name);
@@ -438,11 +454,7 @@ std::string plan_proposal_json(const rules::PlanProposal& p, std::optional<std::
 
 std::string plan_proposal_text(const rules::PlanProposal& p, const Style& style) {
   std::string s = fmt::format("Plan '{}' as of {}\n", printable(p.plan_name), p.as_of.str());
-  for (const auto& c : p.planned)
-    s += fmt::format("Planned, not booked: {} {} {} {}\n",
-                     c.amount.is_negative() ? "withdraw" : "deposit", money(c.amount.abs()),
-                     c.amount.is_negative() ? "from" : "to", printable(c.account));
-  s += "\n";
+  s += planned_text(p.planned) + "\n";
   for (const auto& part : p.parts) {
     s += fmt::format("Part '{}': {}, {} of pool '{}'\n", printable(part.name),
                      part.rule.empty() ? std::string("fixed sleeve")
@@ -522,7 +534,7 @@ std::string review_json(const rules::Review& r) {
   const auto& p = r.proposal;
   std::string s;
   JsonWriter j(s);
-  begin_document(j, "proposal", 2);
+  begin_document(j, "proposal", 3);
   j.member("id", static_cast<long long>(p.id)).member("kind", p.kind);
   j.member("as_of", p.as_of.str());
   j.member("rule", p.rule_name).member("rule_file", p.rule_file);
@@ -541,6 +553,15 @@ std::string review_json(const rules::Review& r) {
     j.member("status", l.status);
     j.end_object();
   }
+  j.end_array();
+  j.key("planned_cash").begin_array();
+  for (const auto& c : r.cash)
+    j.begin_object()
+        .member("account", c.account)
+        .member("planned", c.planned)
+        .member("booked_since", c.booked)
+        .member("status", c.status)
+        .end_object();
   j.end_array();
   j.member("cautions", rules::proposal_cautions(p.as_of));
   j.end_object();
@@ -571,6 +592,18 @@ std::string review_text(const rules::Review& r, const Style& style) {
                  l->avg_price ? l->avg_price->str() : "", l->status});
     return t.render(style);
   };
+  if (!r.cash.empty()) {
+    // Planned cash was never booked by the proposal: set against what was since.
+    Table t({{"account", Align::left, true},
+             {"planned", Align::left},
+             {"amount", Align::right},
+             {"booked since", Align::right},
+             {"status"}});
+    for (const auto& c : r.cash)
+      t.add_row({c.account, c.planned.is_negative() ? "withdraw" : "deposit",
+                 money(c.planned.abs()), money(c.booked.abs()), c.status});
+    s += "\nPlanned cash, not booked when proposed\n" + t.render(style);
+  }
   if (r.lines.empty()) {
     s += "\nThe proposal had no orders and nothing was traded since.\n";
   } else if (!plan) {

@@ -24,8 +24,14 @@
 //     (sell_deferred_first), and in taxable accounts no more net estimated
 //     gain than the cap leaves (the units it keeps are listed as kept).
 //  4b. raise_cash(): an account that must give more cash than it holds after
-//     the sells sells more of its own lots: losses first, then long-term,
-//     then short-term gains, the most overweight name first, within the cap.
+//     the sells sells more of its own lots: first what stands above target of
+//     names the proposal does not buy, then (only when that is not enough)
+//     below target, names the proposal does not buy first; each time losses
+//     first, then long-term, then short-term gains, the most overweight name
+//     first, within the cap.
+//  4c. rebuy_after_raise(): the buys then work on the pool the raise leaves:
+//     a name it sold below target is bought up to target elsewhere, and the
+//     buy's reason says why; nothing else is both sold and bought.
 //  5. buy_orders(): (as below) names placed in tax-deferred accounts are
 //     bought first, there first.
 //  6. summarize(): fees, turnover, cash after and weights after the orders.
@@ -35,6 +41,7 @@
 
 #include <cstdint>
 #include <map>
+#include <set>
 #include <string>
 #include <vector>
 
@@ -94,16 +101,25 @@ std::vector<Order> sell_orders(const Work& work, const Decimal& units, const std
 
 // Sells in account `a` (adding to `orders`, one order per account and
 // security) until its cash `cash[a]` is at least zero, or nothing more can
-// be sold; returns whether it got there.
+// be sold; returns whether it got there. `bought`: the names the proposal
+// buys, sold only when nothing else is left.
 bool raise_cash(std::size_t a, const std::vector<Work>& work, const Portfolio& portfolio,
                 const TradingRule& trading, Date as_of, std::vector<Order>& orders,
-                std::vector<Decimal>& cash, SellTax& tax, Explain explain);
+                std::vector<Decimal>& cash, SellTax& tax, Explain explain,
+                const std::set<std::int64_t>& bought);
 
 struct BuyWish {
   const Work* work = nullptr;
   Decimal want;  // value
   std::string reason;
 };
+// After the raises: each name they sold below target gets a buy up to its
+// target (a wish of its own, or its wish raised), with the reason; `before`
+// holds the quantities of `orders` before the raises.
+void rebuy_after_raise(const std::vector<Work>& work, const std::vector<Order>& orders,
+                       const std::vector<Decimal>& before, const TradingRule& trading,
+                       std::vector<BuyWish>& wishes, std::vector<Skipped>& skipped,
+                       Explain explain);
 // Orders for the buys and the skips of buys that got nothing; `cash` (per
 // account) is spent as the orders are made.
 struct Buys {

@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <map>
 #include <optional>
+#include <set>
 #include <stdexcept>
 
 #include "ledger/holdings.h"
@@ -329,13 +330,14 @@ std::vector<Order> sell_orders(const Work& x, const Decimal& units, const std::s
 
 bool raise_cash(std::size_t a, const std::vector<Work>& work, const Portfolio& portfolio,
                 const TradingRule& trading, Date as_of, std::vector<Order>& orders,
-                std::vector<Decimal>& cash, SellTax& tax, Explain explain) {
+                std::vector<Decimal>& cash, SellTax& tax, Explain explain,
+                const std::set<std::int64_t>& bought) {
   const auto& acct = portfolio.accounts[a];
   const HouseholdPrefs* prefs = tax.prefs;
   // Lots of the account not already sold, with the overweight of their name.
   struct Pick {
     const Work* work;
-    LotState lot;
+    LotState lot;  // what is left of it
     Decimal overweight;
   };
   std::vector<Pick> picks;
@@ -358,15 +360,23 @@ bool raise_cash(std::size_t a, const std::vector<Work>& work, const Portfolio& p
     if (p.lot.cost > p.lot.quantity * p.work->quote->price) return 0;  // at a loss
     return ledger::held_long_term(p.lot.acquired, as_of) ? 1 : 2;
   };
-  std::stable_sort(picks.begin(), picks.end(), [&](const Pick& l, const Pick& r) {
+  auto by_tax = [&](const Pick& l, const Pick& r) {
     if (rank(l) != rank(r)) return rank(l) < rank(r);
     if (l.overweight != r.overweight) return l.overweight > r.overweight;
     return l.lot.acquired < r.lot.acquired;
-  });
+  };
+  auto is_bought = [&](const Pick& p) { return bought.count(p.work->security_id) > 0; };
+  // Units of a name the proposal sells so far, in every account.
+  auto sold_units = [&](const Work& x) {
+    Decimal q;
+    for (const auto& o : orders)
+      if (o.security_id == x.security_id && o.side == Side::sell) q += o.quantity;
+    return q;
+  };
   const bool words = explain == Explain::all;
   const Decimal short_by = -cash[a];
-  for (const auto& p : picks) {
-    if (!cash[a].is_negative()) break;
+  // Sells at most `limit` units of the pick's lot, the fewest that cover the shortfall.
+  auto take = [&](Pick& p, const Decimal& limit) {
     const Work& x = *p.work;
     const Decimal price = x.quote->price;
     const Decimal step = step_of(*x.quote, trading);
@@ -384,6 +394,7 @@ bool raise_cash(std::size_t a, const std::vector<Work>& work, const Portfolio& p
         std::min(p.lot.quantity, floor_to(Decimal::divide(-cash[a], price, 10), step) + step);
     while (q > step && net(q - step) - before >= -cash[a]) q -= step;
     while (q + step <= p.lot.quantity && net(q) - before < -cash[a]) q += step;
+    q = std::min(q, limit);
     const bool capped = prefs->gain_cap && taxable(acct);
     if (capped) {
       const Decimal fits = within_gain(p.lot, q, price, step, *prefs->gain_cap - tax.gain_used);
@@ -392,7 +403,7 @@ bool raise_cash(std::size_t a, const std::vector<Work>& work, const Portfolio& p
                                                          cap_words(acct, *prefs->gain_cap))});
       q = fits;
     }
-    if (!q.is_positive() || net(q) - before <= Decimal()) continue;
+    if (!q.is_positive() || net(q) - before <= Decimal()) return;
     if (it == orders.end()) {
       std::string reason;
       if (words) {
@@ -413,6 +424,30 @@ bool raise_cash(std::size_t a, const std::vector<Work>& work, const Portfolio& p
     it->quantity = have + q;
     it->value = it->quantity * price;
     it->fee = trading.fee(it->value);
+    p.lot.cost -= cost;
+    p.lot.quantity -= q;
+  };
+  // First what stands above target, of names the proposal does not buy: the
+  // raise then does the rebalance's work and nothing it sells is bought back.
+  std::stable_sort(picks.begin(), picks.end(), by_tax);
+  for (auto& p : picks) {
+    if (!cash[a].is_negative()) break;
+    if (is_bought(p) || !p.lot.quantity.is_positive()) continue;
+    const Work& x = *p.work;
+    const Decimal above = (x.held - sold_units(x)) * x.quote->price - x.target_value;
+    const Decimal limit =
+        floor_to(Decimal::divide(above, x.quote->price, 10), step_of(*x.quote, trading));
+    if (limit.is_positive()) take(p, limit);
+  }
+  // Then, when nothing above target is left, below target: names the
+  // proposal does not buy first.
+  std::stable_sort(picks.begin(), picks.end(), [&](const Pick& l, const Pick& r) {
+    if (is_bought(l) != is_bought(r)) return is_bought(r);
+    return by_tax(l, r);
+  });
+  for (auto& p : picks) {
+    if (!cash[a].is_negative()) break;
+    if (p.lot.quantity.is_positive()) take(p, p.lot.quantity);
   }
   return !cash[a].is_negative();
 }
@@ -566,6 +601,41 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
   return out;
 }
 
+void rebuy_after_raise(const std::vector<Work>& work, const std::vector<Order>& orders,
+                       const std::vector<Decimal>& before, const TradingRule& trading,
+                       std::vector<BuyWish>& wishes, std::vector<Skipped>& skipped,
+                       Explain explain) {
+  const bool words = explain == Explain::all;
+  for (const auto& x : work) {
+    Decimal sold;
+    const Order* raise = nullptr;  // the first order the raise made or added to
+    for (std::size_t i = 0; i < orders.size(); ++i) {
+      const Order& o = orders[i];
+      if (o.security_id != x.security_id || o.side != Side::sell) continue;
+      sold += o.quantity;
+      if (!raise && (i >= before.size() || o.quantity > before[i])) raise = &o;
+    }
+    if (!raise) continue;
+    const Decimal gap = x.target_value - (x.held - sold) * x.quote->price;
+    if (gap < x.quote->price * step_of(*x.quote, trading)) continue;
+    const std::string why =
+        words ? fmt::format(
+                    "also what {} sells to raise the cash it must give: it holds nothing "
+                    "else above target",
+                    raise->account)
+              : std::string();
+    const auto w =
+        std::find_if(wishes.begin(), wishes.end(), [&](const BuyWish& b) { return b.work == &x; });
+    if (w != wishes.end()) {
+      w->want = gap;
+      if (words) w->reason += "; " + why;
+      continue;
+    }
+    wishes.push_back({&x, gap, words ? fmt::format("{}: bought again, {}", x.why, why) : ""});
+    std::erase_if(skipped, [&](const Skipped& k) { return k.symbol == x.quote->symbol; });
+  }
+}
+
 void summarize(OrderPlan& plan, const Portfolio& portfolio, const std::vector<Work>& work,
                const PoolValue& pool) {
   Decimal traded;
@@ -644,9 +714,15 @@ Draft plan_once(const Portfolio& portfolio, const std::vector<Target>& targets,
         break;
     }
   }
+  std::set<std::int64_t> bought;
+  for (const auto& w : wishes) bought.insert(w.work->security_id);
+  std::vector<Decimal> before_raise;
+  for (const auto& o : plan.orders) before_raise.push_back(o.quantity);
   for (std::size_t a = 0; a < portfolio.accounts.size(); ++a)
     if (pool.cash[a].is_negative() && prefs.must_give.count(portfolio.accounts[a].id))
-      steps::raise_cash(a, work, portfolio, trading, as_of, plan.orders, pool.cash, tax, explain);
+      steps::raise_cash(a, work, portfolio, trading, as_of, plan.orders, pool.cash, tax, explain,
+                        bought);
+  steps::rebuy_after_raise(work, plan.orders, before_raise, trading, wishes, plan.skipped, explain);
   for (auto& k : tax.kept) plan.skipped.push_back(std::move(k));
   auto buys =
       steps::buy_orders(wishes, portfolio, pool.cash, pool.reserve, trading, explain, prefs);

@@ -14,6 +14,7 @@
 #include "core/error.h"
 #include "core/files.h"
 #include "core/text.h"
+#include "rules/tax_keys.h"
 
 namespace keel::rules {
 
@@ -76,16 +77,6 @@ class PlanReader {
     return out;
   }
 
-  // One of `choices`, as a string.
-  std::string choice(const toml::node& n, std::string_view full,
-                     const std::vector<std::string>& choices) const {
-    const auto s = n.value<std::string>();
-    if (!s || n.type() != toml::node_type::string ||
-        std::find(choices.begin(), choices.end(), *s) == choices.end())
-      fail(n, full, fmt::format("must be \"{}\"", fmt::join(choices, "\" or \"")));
-    return *s;
-  }
-
   // A number exactly as written (TOML integer or float); `what` names the kind.
   Decimal number(const toml::node& n, std::string_view full, std::string_view what) const {
     if (n.is_integer()) return Decimal(*n.value<std::int64_t>());
@@ -97,13 +88,11 @@ class PlanReader {
     fail(n, full, fmt::format("must be {}", what));
   }
 
-  // An amount of money: zero or more, at most two decimals.
-  Decimal money(const toml::node& n, std::string_view full) const {
-    const Decimal v = number(n, full, "an amount (a number)");
-    if (v.is_negative())
-      fail(n, full, fmt::format("{} is below zero; a cap of 0 allows no net gain at all", v.str()));
-    if (v.rounded(2) != v) fail(n, full, fmt::format("{} has more than two decimals", v.str()));
-    return v;
+  // A tax key's value, read as a rule file reads it (rules/tax_keys.h).
+  TaxFail tax_fail(std::string_view full) const {
+    return [this, full = std::string(full)](const toml::node& n, std::string_view why) {
+      fail(n, full, why);
+    };
   }
 
   // A percentage above 0 and at most 100, exactly as written.
@@ -157,9 +146,9 @@ Plan parse_plan(std::string_view toml_text, std::string source,
     if (!t) r.fail(*n, "tax", "must be a table ([tax])");
     r.only(*t, "tax", {"sell_from", "gain_cap"});
     if (const auto* v = t->get("sell_from"))
-      plan.tax.sell_deferred_first =
-          r.choice(*v, "tax.sell_from", {"any", "tax-deferred-first"}) == "tax-deferred-first";
-    if (const auto* v = t->get("gain_cap")) plan.tax.gain_cap = r.money(*v, "tax.gain_cap");
+      plan.tax.sell_deferred_first = read_deferred_first(*v, r.tax_fail("tax.sell_from"));
+    if (const auto* v = t->get("gain_cap"))
+      plan.tax.gain_cap = read_gain_cap(*v, r.tax_fail("tax.gain_cap"));
   }
 
   std::map<std::string, std::size_t> pool_index;
@@ -245,8 +234,7 @@ Plan parse_plan(std::string_view toml_text, std::string source,
         r.fail(*fixed, "part.fixed", fmt::format("the weights sum to {}%, not 100%", total.str()));
     }
     if (const auto* v = t.get("place"))
-      part.place_deferred =
-          r.choice(*v, "part.place", {"any", "tax-deferred-first"}) == "tax-deferred-first";
+      part.place_deferred = read_deferred_first(*v, r.tax_fail("part.place"));
     if (auto s = r.text(t, "name", "part.name"))
       part.name = *s;
     else if (!rule_path)

@@ -56,10 +56,7 @@ struct PlanPool {
   bool from_rule = false;  // its part's rule file's scope.accounts
 };
 
-struct PlanTax {
-  bool sell_deferred_first = false;  // sell_from = "tax-deferred-first"
-  std::optional<Decimal> gain_cap;   // in the accounts' currency
-};
+using PlanTax = TaxKeys;
 
 struct Plan {
   std::string source;  // file name, for messages

@@ -16,6 +16,7 @@
 #include "market/day_view.h"
 #include "rules/inputs.h"
 #include "rules/propose.h"
+#include "rules/tax_keys.h"
 #include "rules/track_record.h"
 #include "store/ledger_store.h"
 #include "store/proposals.h"
@@ -35,35 +36,6 @@ std::string pct_text(const Decimal& fraction) {
 }
 
 }  // namespace
-
-PlannedCash parse_planned_cash(std::string_view option, std::string_view text) {
-  static constexpr std::string_view form = "ACCOUNT=AMOUNT, e.g. Savings=1500.00";
-  PlannedCash out;
-  out.option = std::string(option);
-  // Split at the last '=': an amount never holds one, an account name may.
-  const auto eq = text.rfind('=');
-  std::string_view amount = text;
-  if (eq != std::string_view::npos) {
-    out.account = std::string(text.substr(0, eq));
-    amount = text.substr(eq + 1);
-    if (out.account.empty())
-      throw InputError(
-          fmt::format("{}: '{}' names no account before '=' ({})", option, printable(text), form));
-  } else if (const auto colon = text.find(':');
-             colon != std::string_view::npos && Decimal::try_parse(text.substr(0, colon))) {
-    // The spelling AMOUNT:ACCOUNT is refused with the one to use instead.
-    throw InputError(fmt::format("{}: '{}' is not ACCOUNT=AMOUNT; write '{}={}'", option,
-                                 printable(text), printable(text.substr(colon + 1)),
-                                 printable(text.substr(0, colon))));
-  }
-  const auto v = Decimal::try_parse(amount);
-  if (!v || !v->is_positive() || v->rounded(2) != *v)
-    throw InputError(
-        fmt::format("{}: '{}' is not an amount above zero with at most two decimals ({})", option,
-                    printable(amount), form));
-  out.amount = option == "--withdraw" ? -*v : *v;
-  return out;
-}
 
 PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<Date> as_of_opt,
                           std::vector<PlannedCash> planned) {
@@ -90,33 +62,24 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
   const Date as_of = p.as_of;
 
   // Planned cash goes to an account of the plan.
-  std::vector<std::string> names;
-  for (const auto& a : all) names.push_back(a.name);
-  for (auto& c : planned) {
-    if (c.account.empty()) {
-      if (all.size() != 1)
-        throw InputError(
-            fmt::format("{}: the plan has {} accounts; name the one the cash goes to or comes from "
-                        "(ACCOUNT=AMOUNT; accounts: {})",
-                        c.option, all.size(), printable_list(names)));
-      c.account = all.front().name;
-    } else if (std::find(names.begin(), names.end(), c.account) == names.end()) {
-      const auto near = nearest(c.account, names);
-      throw InputError(fmt::format("{}: '{}' is not an account of the plan ({})", c.option,
-                                   printable(c.account),
-                                   near ? fmt::format("did you mean '{}'?", printable(*near))
-                                        : "accounts: " + printable_list(names)));
-    }
-  }
+  resolve_planned(planned, all, "plan");
   p.planned = planned;
 
   Replayer replayer(log);
   const Book& book = replayer.advance_to(as_of);
   p.last_txn_id = store::last_transaction_id(db);
   const auto statuses = ledger::TaxStatuses::load(db);
-  const bool tax_keys = plan.tax.sell_deferred_first || plan.tax.gain_cap ||
-                        std::any_of(plan.parts.begin(), plan.parts.end(),
-                                    [](const PlanPart& part) { return part.place_deferred; });
+  const bool tax_keys =
+      plan.tax.any() || std::any_of(plan.parts.begin(), plan.parts.end(), [](const PlanPart& part) {
+        return part.place_deferred || (part.rule && part.rule->tax_keys());
+      });
+  // A rule part's [tax] is the plan's to give: one set of tax keys per proposal.
+  for (const auto& part : plan.parts)
+    if (part.rule && part.rule->tax.any())
+      p.notes.push_back(fmt::format(
+          "part '{}': the [tax] table of rule file {} is not used in a plan; the plan's [tax] "
+          "applies",
+          printable(part.name), printable(part.rule->source)));
   Decimal gain_used;  // net estimated gain of the sells in taxable accounts, across pools
   const Inputs::LastTrade last_trade = [&](std::int64_t id) -> std::optional<Inputs::Trade> {
     if (const auto t = book.last_trade(id)) return Inputs::Trade{t->day, t->price};
@@ -188,18 +151,19 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
     // The pool on the as-of day, with the planned cash; unmanaged names out.
     std::set<std::int64_t> held;
     Portfolio portfolio = portfolio_of(book, accounts, held);
-    HouseholdPrefs prefs;
-    prefs.sell_deferred_first = plan.tax.sell_deferred_first;
-    if (plan.tax.gain_cap) prefs.gain_cap = std::max(Decimal(), *plan.tax.gain_cap - gain_used);
+    // Placed names: a part's (part.place) and a rule part's sleeves' (sleeve.place).
+    std::set<std::int64_t> placed;
+    for (const auto& [id, k] : owner) {
+      const PlanPart& part = plan.parts[parts[k]];
+      if (part.place_deferred) placed.insert(id);
+      if (part.rule)
+        for (const auto& s : part.rule->weights.sleeves)
+          if (s.place_deferred && view.security(s.symbol) && view.security(s.symbol)->id == id)
+            placed.insert(id);
+    }
+    HouseholdPrefs prefs = household_prefs(plan.tax, std::move(placed), gain_used);
     for (auto& a : portfolio.accounts) a.tax = statuses.on(a.id, as_of);
-    for (const auto& c : p.planned)
-      for (auto& a : portfolio.accounts)
-        if (a.name == c.account) {
-          a.cash += c.amount;
-          if (c.amount.is_negative()) prefs.must_give[a.id] -= c.amount;
-        }
-    for (const auto& [id, k] : owner)
-      if (plan.parts[parts[k]].place_deferred) prefs.place_deferred.insert(id);
+    apply_planned(portfolio, p.planned, prefs);
     std::set<std::int64_t> unmanaged;
     for (const std::int64_t id : held)
       if (!owner.count(id)) unmanaged.insert(id);
@@ -259,22 +223,8 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
         targets.push_back(Target{id, quotes.at(id).symbol, Decimal(), false, std::nullopt, true,
                                  "unmanaged: the pool sells names outside its parts"});
 
-    // A withdrawal beyond the cash is raised by selling in the account; more
-    // than the account holds (managed, at a close) cannot be.
-    for (const auto& a : portfolio.accounts) {
-      if (!a.cash.is_negative() || !prefs.must_give.count(a.id)) continue;
-      Decimal holdings;
-      for (const auto& [id, h] : a.holdings)
-        if (quotes.at(id).tradable) holdings += h.quantity * quotes.at(id).price;
-      if ((a.cash + holdings).is_negative()) {
-        const Decimal gives = prefs.must_give.at(a.id);
-        throw InputError(fmt::format(
-            "--withdraw: account '{}' holds {} in cash{} on {}; it cannot give {}",
-            printable(a.name), (a.cash + gives).str(),
-            holdings.is_zero() ? "" : fmt::format(" and {} in holdings to sell", holdings.str()),
-            as_of.str(), gives.str()));
-      }
-    }
+    // A withdrawal beyond the cash is raised by selling in the account.
+    refuse_unraisable(portfolio, quotes, prefs, as_of);
     Decimal value;
     for (const auto& a : portfolio.accounts) {
       value += a.cash;
@@ -288,19 +238,7 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
                             printable_list(result.accounts), as_of.str(), value.str()));
 
     result.plan = orders(portfolio, targets, quotes, *trading, as_of, Explain::all, prefs);
-    for (const auto& c : result.plan.cash_after) {
-      const auto& a = *std::find_if(portfolio.accounts.begin(), portfolio.accounts.end(),
-                                    [&](const AccountState& s) { return s.name == c.account; });
-      if (!c.cash.is_negative() || !prefs.must_give.count(a.id)) continue;
-      throw InputError(fmt::format(
-          "--withdraw: account '{}' cannot give {} on {}: {} (its cash after the orders would be "
-          "{})",
-          printable(a.name), prefs.must_give.at(a.id).str(), as_of.str(),
-          prefs.gain_cap && a.tax == TaxStatus::taxable
-              ? fmt::format("its sells stop at the gain cap of {}", plan.tax.gain_cap->fixed(2))
-              : std::string("nothing more in it can be sold"),
-          c.cash.str()));
-    }
+    refuse_ungiven(portfolio, result.plan, prefs, plan.tax.gain_cap, as_of);
     for (const auto& o : result.plan.orders)
       for (const auto& a : portfolio.accounts)
         if (a.id == o.account_id && a.tax == TaxStatus::taxable)
@@ -319,10 +257,7 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
     p.pools.push_back(std::move(result));
   }
   p.cautions = proposal_cautions(as_of);
-  if (tax_keys)
-    p.cautions.push_back(
-        "This plan places and sells by each account's recorded tax status: tax treatment depends "
-        "on local rules; check it with your tax authority or a licensed professional.");
+  if (tax_keys) p.cautions.push_back(tax_caution("plan"));
   return p;
 }
 
@@ -351,6 +286,7 @@ std::int64_t save_plan(store::Database& db, const Plan& plan, const PlanProposal
       r.part = it == part_of.end() ? "unmanaged" : it->second;
       row.orders.push_back(std::move(r));
     }
+  row.cash = proposal_cash_rows(db, p.planned);
   store::WriteTransaction tx(db);
   const std::int64_t id = store::save_proposal(db, row);
   tx.commit();

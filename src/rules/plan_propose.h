@@ -31,15 +31,10 @@
 #include "core/date.h"
 #include "rules/engine.h"
 #include "rules/plan.h"
+#include "rules/planned_cash.h"
 #include "store/database.h"
 
 namespace keel::rules {
-
-struct PlannedCash {
-  std::string option;   // "--deposit" or "--withdraw", for messages
-  std::string account;  // empty: the plan's only account
-  Decimal amount;       // deposits positive, withdrawals negative
-};
 
 struct PartResult {
   std::string name;
@@ -85,10 +80,5 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan,
 // its part) in one write transaction and returns its id; review() in
 // rules/propose.h sets it against what was traded since.
 std::int64_t save_plan(store::Database& db, const Plan& plan, const PlanProposal& proposal);
-
-// "ACCOUNT=AMOUNT" (or a bare AMOUNT for a plan of one account) of --deposit
-// or --withdraw; InputError naming `option` and showing the form. The amount
-// is above zero with at most two decimals.
-PlannedCash parse_planned_cash(std::string_view option, std::string_view text);
 
 }  // namespace keel::rules

@@ -13,8 +13,10 @@
 #include "ledger/accounts.h"
 #include "ledger/fx_cash.h"
 #include "ledger/posting.h"
+#include "ledger/tax.h"
 #include "market/day_view.h"
 #include "rules/inputs.h"
+#include "rules/tax_keys.h"
 #include "rules/track_record.h"
 #include "store/ledger_store.h"
 
@@ -127,7 +129,7 @@ Portfolio portfolio_of(const Book& book, const std::vector<Account>& pool,
 }
 
 Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_of_opt,
-                 std::optional<std::string> currency) {
+                 std::vector<PlannedCash> planned, std::optional<std::string> currency) {
   Proposal p;
   p.rule_name = rule.name;
   p.rule_sha256 = io::sha256_hex(rule.text);
@@ -141,6 +143,8 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
   const auto log = ledger::load_log(db);
   p.as_of = choose_as_of(view, log, pool, as_of_opt, "the rule's accounts", p.notes);
   const Date as_of = p.as_of;
+  resolve_planned(planned, pool, "rule");
+  p.planned = std::move(planned);
   require_rates(pool, p.currency, view, as_of);
 
   // The universe and the sleeves, checked before the ledger is replayed.
@@ -154,8 +158,10 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
   const Book& book = replayer.advance_to(as_of);
   p.last_txn_id = store::last_transaction_id(db);
   std::set<std::int64_t> held;
-  const FxPool fx_state = fx_pool(book, pool, p.currency, view, as_of, held, p.notes);
-  const Portfolio& portfolio = fx_state.portfolio;
+  FxPool fx_state = fx_pool(book, pool, p.currency, view, as_of, held, p.notes);
+  Portfolio& portfolio = fx_state.portfolio;
+  const auto statuses = ledger::TaxStatuses::load(db);
+  for (auto& a : portfolio.accounts) a.tax = statuses.on(a.id, as_of);
 
   auto chosen = inputs.select(view, as_of, held);
   if (chosen.refusal) rule.fail(chosen.refusal->key, chosen.refusal->why);
@@ -169,6 +175,21 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
       },
       p.notes);
 
+  // The tax keys steer the same order steps as a plan's (rules/tax_keys.h).
+  std::set<std::int64_t> placed;
+  for (const auto& t : p.targets)
+    for (const auto& s : rule.weights.sleeves)
+      if (t.sleeve && s.place_deferred && s.symbol == t.symbol) placed.insert(t.security_id);
+  HouseholdPrefs prefs = household_prefs(rule.tax, std::move(placed), Decimal());
+  apply_planned(portfolio, p.planned, prefs);
+  // Planned cash is in the account's own currency (as the proposal's when
+  // they differ: see docs/rules.md); the settlement spends it there.
+  for (const auto& c : p.planned)
+    for (std::size_t a = 0; a < portfolio.accounts.size(); ++a)
+      if (portfolio.accounts[a].name == c.account)
+        fx_state.cash[a][fx_state.currency[a]] += c.amount;
+  refuse_unraisable(portfolio, quotes, prefs, as_of);
+
   Decimal pool_value;
   for (const auto& a : portfolio.accounts) {
     pool_value += a.cash;
@@ -180,7 +201,8 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
                           "cash first",
                           printable_list(p.accounts), as_of.str(), pool_value.str()));
 
-  p.plan = orders(portfolio, p.targets, quotes, rule.trading, as_of);
+  p.plan = orders(portfolio, p.targets, quotes, rule.trading, as_of, Explain::all, prefs);
+  refuse_ungiven(portfolio, p.plan, prefs, rule.tax.gain_cap, as_of);
   p.converted = fx_state.converted || std::any_of(quotes.begin(), quotes.end(), [](const auto& q) {
                   return q.second.fx.has_value();
                 });
@@ -188,6 +210,7 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
     p.conversions =
         settle(p.plan, fx_state, quotes, p.currency, rule.trading, view, as_of, p.notes);
   p.cautions = proposal_cautions(as_of);
+  if (rule.tax_keys()) p.cautions.push_back(tax_caution("rule"));
   return p;
 }
 
@@ -208,6 +231,14 @@ store::ProposalOrderRow proposal_order_row(const Order& o) {
   return r;
 }
 
+std::vector<store::ProposalCashRow> proposal_cash_rows(store::Database& db,
+                                                       const std::vector<PlannedCash>& planned) {
+  std::vector<store::ProposalCashRow> out;
+  for (const auto& c : planned)
+    out.push_back({store::find_account(db, c.account)->id, c.account, c.amount});
+  return out;
+}
+
 std::int64_t save(store::Database& db, const Rule& rule, const Proposal& p) {
   store::ProposalRow row;
   row.as_of = p.as_of;
@@ -218,6 +249,7 @@ std::int64_t save(store::Database& db, const Rule& rule, const Proposal& p) {
   row.pool_value = p.plan.pool_value;
   row.last_txn_id = p.last_txn_id;
   for (const auto& o : p.plan.orders) row.orders.push_back(proposal_order_row(o));
+  row.cash = proposal_cash_rows(db, p.planned);
   store::WriteTransaction tx(db);
   const std::int64_t id = store::save_proposal(db, row);
   tx.commit();
@@ -273,6 +305,20 @@ Review review(store::Database& db, std::int64_t proposal_id) {
                   : line.traded < o.quantity  ? "partly"
                                               : "more than proposed";
     out.lines.push_back(std::move(line));
+  }
+  // Planned cash against the deposits and withdrawals booked since, by account.
+  for (const auto& c : p.cash) {
+    const TxnKind kind = c.amount.is_negative() ? TxnKind::withdrawal : TxnKind::deposit;
+    CashLine line{c.account, c.amount, {}, ""};
+    for (const auto& t : txns)
+      if (t.id > p.last_txn_id && !voided.count(t.id) && t.account_id == c.account_id &&
+          t.kind == kind && t.amount)
+        line.booked += c.amount.is_negative() ? -*t.amount : *t.amount;
+    line.status = line.booked.is_zero()                ? "not booked"
+                  : line.booked == c.amount            ? "booked"
+                  : line.booked.abs() < c.amount.abs() ? "partly"
+                                                       : "more than planned";
+    out.cash.push_back(std::move(line));
   }
   for (const auto& k : seen_order) {
     const auto it = traded.find(k);

@@ -27,9 +27,15 @@
 //    nothing selected, weights that cannot add up) is refused with the
 //    engine's reason: a proposal always has targets.
 //  - save() stores a proposal in one write transaction and returns its id.
+//  - propose() plans with `planned` cash (rules/planned_cash.h): moved in
+//    the accounts' cash before the orders, never booked; a withdrawal beyond
+//    the cash is raised by selling in its account, netted with the rebalance.
+//  - save() keeps the planned cash too.
 //  - review() matches a saved proposal's orders with the live buys and sells
 //    posted after it was saved in the rule's (or the plan's) accounts, by
 //    account, security and side; trades that were not proposed are listed too.
+//    Its planned cash is set against the deposits (withdrawals) booked since
+//    in the same account.
 #pragma once
 
 #include <cstdint>
@@ -48,6 +54,7 @@
 #include "model/security.h"
 #include "rules/engine.h"
 #include "rules/fx_orders.h"
+#include "rules/planned_cash.h"
 #include "rules/rule.h"
 #include "store/database.h"
 #include "store/proposals.h"
@@ -65,12 +72,16 @@ struct Proposal {
   ScreenResult screen;
   std::vector<Target> targets;
   OrderPlan plan;
+  std::vector<PlannedCash> planned;   // with the account filled in
   std::vector<std::string> notes;     // about the data used (stale closes, trade prices)
   std::vector<std::string> cautions;  // always shown
   std::int64_t last_txn_id = 0;
 };
 
+// `planned`: cash planned with and never booked (rules/planned_cash.h);
+// `currency`: what the proposal is valued in (default: the first account's).
 Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_of = std::nullopt,
+                 std::vector<PlannedCash> planned = {},
                  std::optional<std::string> currency = std::nullopt);
 
 // The steps propose() shares with plan proposals (rules/plan_propose.h).
@@ -99,6 +110,9 @@ std::vector<std::string> proposal_cautions(Date as_of);
 std::int64_t save(store::Database& db, const Rule& rule, const Proposal& proposal);
 // An order as a saved proposal keeps it.
 store::ProposalOrderRow proposal_order_row(const Order& order);
+// Planned cash as a saved proposal keeps it.
+std::vector<store::ProposalCashRow> proposal_cash_rows(store::Database& db,
+                                                       const std::vector<PlannedCash>& planned);
 
 struct ReviewLine {
   std::string part;  // a plan's part ("" for a rule's proposal and for trades not proposed)
@@ -112,9 +126,19 @@ struct ReviewLine {
   std::string status;  // "done", "partly", "more than proposed", "not traded", "not proposed"
 };
 
+// A saved proposal's planned cash against the deposits (or withdrawals) booked
+// in its account since it was saved.
+struct CashLine {
+  std::string account;
+  Decimal planned;     // deposits above zero, withdrawals below
+  Decimal booked;      // same sign as planned
+  std::string status;  // "booked", "partly", "more than planned", "not booked"
+};
+
 struct Review {
   store::ProposalRow proposal;
   std::vector<ReviewLine> lines;
+  std::vector<CashLine> cash;
 };
 
 Review review(store::Database& db, std::int64_t proposal_id);

@@ -12,6 +12,7 @@
 #include "core/error.h"
 #include "core/files.h"
 #include "core/text.h"
+#include "rules/tax_keys.h"
 
 namespace keel::rules {
 namespace {
@@ -60,6 +61,7 @@ constexpr KeyInfo kKeys[] = {
     {"sleeve", ""},
     {"sleeve.symbol", "none; required"},
     {"sleeve.weight_pct", "none; required"},
+    {"sleeve.place", "\"any\""},
     {"trading", ""},
     {"trading.drift_pct_points", "0"},
     {"trading.drift_rel_pct", "0"},
@@ -76,6 +78,9 @@ constexpr KeyInfo kKeys[] = {
     {"track_record.min_observations", "24"},
     {"track_record.method", "\"pearson\""},
     {"track_record.returns", "\"relative\""},
+    {"tax", ""},
+    {"tax.sell_from", "\"any\""},
+    {"tax.gain_cap", "unset"},
 };
 
 std::vector<std::string> keys_under(std::string_view table) {
@@ -127,6 +132,12 @@ class Reader {
         fail(v, full, fmt::format("unknown key; did you mean '{}'?", *near));
       fail(v, full, fmt::format("unknown key; expected one of: {}", join(allowed)));
     }
+  }
+
+  TaxFail tax_fail(std::string_view full) const {
+    return [this, full = std::string(full)](const toml::node& n, std::string_view why) {
+      fail(n, full, why);
+    };
   }
 
   void seen(std::string_view key, const toml::node& node) {
@@ -328,6 +339,11 @@ std::string_view to_string(LotOrder order) {
       return "losses-first";
   }
   return "";
+}
+
+bool Rule::tax_keys() const {
+  return tax.any() || std::any_of(weights.sleeves.begin(), weights.sleeves.end(),
+                                  [](const Sleeve& s) { return s.place_deferred; });
 }
 
 Decimal WeightRule::sleeve_total() const {
@@ -624,6 +640,11 @@ Rule read_rule(const toml::table& root, Rule rule) {
       const auto w = r.number(t, "sleeve", "weight_pct", Decimal(0), true, Decimal(100), true);
       if (!w) r.fail(item, "sleeve.weight_pct", "required: the sleeve's share of the pool");
       rule.weights.sleeves.push_back(Sleeve{*sym, Decimal::divide(*w, Decimal(100), 12)});
+      if (const auto* p = t.get("place")) {
+        r.seen("sleeve.place", *p);
+        rule.weights.sleeves.back().place_deferred =
+            read_deferred_first(*p, r.tax_fail("sleeve.place"));
+      }
       if (rule.weights.sleeve_total() >= Decimal(1))
         r.fail(*t.get("weight_pct"), "sleeve.weight_pct",
                fmt::format("weights cannot sum to one: the sleeves take {}% of the pool, "
@@ -672,6 +693,18 @@ Rule read_rule(const toml::table& root, Rule rule) {
                                      {"long-held", LotOrder::long_held},
                                      {"losses-first", LotOrder::losses_first}}))
       g.lot_order = *o;
+  }
+
+  // tax keys, read as a plan reads them (rules/tax_keys.h)
+  if (const auto* t = r.table(root, "tax")) {
+    if (const auto* v = t->get("sell_from")) {
+      r.seen("tax.sell_from", *v);
+      rule.tax.sell_deferred_first = read_deferred_first(*v, r.tax_fail("tax.sell_from"));
+    }
+    if (const auto* v = t->get("gain_cap")) {
+      r.seen("tax.gain_cap", *v);
+      rule.tax.gain_cap = read_gain_cap(*v, r.tax_fail("tax.gain_cap"));
+    }
   }
 
   // track record

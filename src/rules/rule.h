@@ -41,7 +41,8 @@ std::string_view to_string(LotOrder order);
 
 struct Sleeve {
   std::string symbol;
-  Decimal weight;  // fraction of the pool's invested value, 0 < weight < 1
+  Decimal weight;               // fraction of the pool's invested value, 0 < weight < 1
+  bool place_deferred = false;  // place = "tax-deferred-first" (rules/tax_keys.h)
 };
 
 // One metric of a screen scoring several: its z-score counts with `weight`
@@ -108,6 +109,13 @@ struct TrackRecordRule {
   int max_observations() const { return window_months - horizon_months; }
 };
 
+// [tax] of a rule or plan file (read by rules/tax_keys.h).
+struct TaxKeys {
+  bool sell_deferred_first = false;  // sell_from = "tax-deferred-first"
+  std::optional<Decimal> gain_cap;   // in the accounts' currency
+  bool any() const { return sell_deferred_first || gain_cap.has_value(); }
+};
+
 struct TradingRule {
   Decimal drift_pct_points;  // 0 = off
   Decimal drift_rel_pct;     // 0 = off
@@ -136,6 +144,9 @@ struct Rule {
   TradingRule trading;
   std::optional<TrackRecordRule> track_record;
   int rebalance_months = 1;
+  TaxKeys tax;  // [tax]: how a proposal sells across accounts of different tax status
+  // Any tax key given ([tax] or a sleeve's place): the proposal then adds its caution.
+  bool tax_keys() const;
 
   // Line of each key given in the file ("select.z_max" -> 14).
   std::map<std::string, std::int64_t> lines;

@@ -31,6 +31,18 @@ std::int64_t save_proposal(Database& db, const ProposalRow& p) {
     acc.bind(2, a);
     acc.exec();
   }
+  SQLite::Statement cash(
+      db.sql(),
+      "INSERT INTO proposal_cash (proposal_id, seq, account_id, amount) VALUES (?, ?, ?, ?)");
+  int cash_seq = 0;
+  for (const auto& c : p.cash) {
+    cash.reset();
+    cash.bind(1, id);
+    cash.bind(2, ++cash_seq);
+    cash.bind(3, c.account_id);
+    cash.bind(4, c.amount.str());
+    cash.exec();
+  }
   SQLite::Statement ins(db.sql(),
                         "INSERT INTO proposal_order (proposal_id, seq, account_id, security_id, "
                         "side, quantity, price, value, fee, weight_now, weight_target, reason, "
@@ -124,6 +136,14 @@ std::optional<ProposalRow> find_proposal(Database& db, std::int64_t id) {
       "SELECT account_id FROM proposal_account WHERE proposal_id = ? ORDER BY account_id");
   acc.bind(1, id);
   while (acc.executeStep()) p.account_ids.push_back(acc.getColumn(0).getInt64());
+  SQLite::Statement cash(db.sql(),
+                         "SELECT c.account_id, a.name, c.amount FROM proposal_cash c "
+                         "JOIN account a ON a.id = c.account_id WHERE c.proposal_id = ? "
+                         "ORDER BY c.seq");
+  cash.bind(1, id);
+  while (cash.executeStep())
+    p.cash.push_back(ProposalCashRow{cash.getColumn(0).getInt64(), cash.getColumn(1).getString(),
+                                     Decimal::parse(cash.getColumn(2).getString())});
   return p;
 }
 

@@ -9,6 +9,8 @@
 //    first. Decimals are stored as canonical text.
 //  - A plan's proposal (kind "plan") keeps the plan's text in the rule_*
 //    fields, the accounts it covered, and each order's part.
+//  - Either kind keeps the cash it planned with (proposal_cash), read back
+//    in the order saved.
 #pragma once
 
 #include <cstdint>
@@ -35,6 +37,13 @@ struct ProposalOrderRow {
   std::string part;  // a plan's part; empty for a rule's proposal
 };
 
+// Cash a proposal planned with, not booked (--deposit, --withdraw).
+struct ProposalCashRow {
+  std::int64_t account_id = 0;
+  std::string account;  // filled on reading
+  Decimal amount;       // deposits above zero, withdrawals below
+};
+
 struct ProposalRow {
   std::int64_t id = 0;
   std::string kind = "rule";  // "rule" or "plan"
@@ -49,6 +58,7 @@ struct ProposalRow {
   std::size_t order_count = 0;
   std::vector<std::int64_t> account_ids;  // a plan's accounts, by id; empty for a rule
   std::vector<ProposalOrderRow> orders;
+  std::vector<ProposalCashRow> cash;  // planned, in the order given
 };
 
 std::int64_t save_proposal(Database& db, const ProposalRow& proposal);

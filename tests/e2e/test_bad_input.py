@@ -681,9 +681,19 @@ row("propose: neither --rule nor --plan", ["propose"], INPUT,
 row("propose: --rule and --plan together",
     ["propose", "--rule", "{d}/rule.toml", "--plan", "{d}/plan.toml"], USAGE,
     "--rule excludes --plan")
-row("propose: --deposit without --plan",
+RULE_TWO = {"rule.toml": b'[scope]\naccounts = ["Alder Taxable", "Birch Pension"]\n'}
+row("propose --rule: --deposit without an account in a rule of two",
     ["propose", "--rule", "{d}/rule.toml", "--deposit", "100"], INPUT,
-    "keel: error: --deposit: applies only with --plan")
+    "keel: error: --deposit: the rule has 2 accounts; name the one the cash goes to or comes from "
+    "(ACCOUNT=AMOUNT; accounts: Alder Taxable, Birch Pension)", RULE_TWO)
+row("propose --rule: --withdraw from an account outside the rule",
+    ["propose", "--rule", "{d}/rule.toml", "--withdraw", "Nobody=10"], INPUT,
+    "keel: error: --withdraw: 'Nobody' is not an account of the rule (accounts: Alder Taxable, "
+    "Birch Pension)", RULE_TWO)
+row("propose --rule: --withdraw with sub-cent amount",
+    ["propose", "--rule", "{d}/rule.toml", "--withdraw", "Alder Taxable=0.001"], INPUT,
+    "keel: error: --withdraw: '0.001' is not an amount above zero with at most two decimals "
+    "(ACCOUNT=AMOUNT, e.g. Savings=1500.00)", RULE_TWO)
 row("propose --plan: --deposit not an amount",
     ["propose", "--plan", "{d}/plan.toml", "--deposit", "Alder Taxable=ten"], INPUT,
     "keel: error: --deposit: 'ten' is not an amount above zero with at most two decimals "
@@ -724,6 +734,23 @@ row("propose --plan: an unknown tax key", ["propose", "--plan", "{d}/plan.toml"]
     "keel: error: {d}/plan.toml:2:14: key 'tax.gain_limit': unknown key; expected one of: "
     "sell_from, gain_cap",
     {"plan.toml": b"[tax]\ngain_limit = 5\n" + PLAN_FIXED})
+TAX_RULE = b'[scope]\naccounts = ["Alder Taxable", "Birch Pension"]\n'
+row("propose --rule: a gain cap below zero", ["propose", "--rule", "{d}/rule.toml"], INPUT,
+    "keel: error: {d}/rule.toml:4: key 'tax.gain_cap': -500 is below zero; a cap of 0 allows "
+    "no net gain at all", {"rule.toml": TAX_RULE + b"[tax]\ngain_cap = -500\n"})
+row("propose --rule: a gain cap with fractions of a cent", ["propose", "--rule", "{d}/rule.toml"],
+    INPUT, "keel: error: {d}/rule.toml:4: key 'tax.gain_cap': 10.125 has more than two decimals",
+    {"rule.toml": TAX_RULE + b"[tax]\ngain_cap = 10.125\n"})
+row("propose --rule: an unknown selling order", ["propose", "--rule", "{d}/rule.toml"], INPUT,
+    "keel: error: {d}/rule.toml:4: key 'tax.sell_from': must be \"any\" or "
+    "\"tax-deferred-first\"", {"rule.toml": TAX_RULE + b'[tax]\nsell_from = "deferred"\n'})
+row("propose --rule: an unknown tax key", ["propose", "--rule", "{d}/rule.toml"], INPUT,
+    "keel: error: {d}/rule.toml:4: key 'tax.gain_limit': unknown key; expected one of: "
+    "sell_from, gain_cap", {"rule.toml": TAX_RULE + b"[tax]\ngain_limit = 5\n"})
+row("propose --rule: an unknown placement of a sleeve", ["propose", "--rule", "{d}/rule.toml"],
+    INPUT, "keel: error: {d}/rule.toml:6: key 'sleeve.place': must be \"any\" or "
+    "\"tax-deferred-first\"",
+    {"rule.toml": TAX_RULE + b'[[sleeve]]\nsymbol = "QRX"\nweight_pct = 10\nplace = "first"\n'})
 row("propose --plan: --deposit in the spelling AMOUNT:ACCOUNT",
     ["propose", "--plan", "{d}/plan.toml", "--deposit", "10:Alder Taxable"], INPUT,
     "keel: error: --deposit: '10:Alder Taxable' is not ACCOUNT=AMOUNT; write 'Alder Taxable=10'",

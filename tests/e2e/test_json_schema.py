@@ -55,7 +55,8 @@ for what in ["accounts", "securities", "prices", "metrics", "distributions", "sp
     demo.ok("import", what, os.path.join(DATA, f"{what}.csv"), *([] if what in ("accounts", "transactions") else ["--quiet"]))
 RULE = os.path.join(SOURCE, "examples", "demo", "rule.toml")
 TRACK_RULE = os.path.join(SOURCE, "examples", "demo", "rule-track-record.toml")
-demo.ok("propose", "--rule", RULE, "--as-of", "2025-11-28", "--save")
+demo.ok("propose", "--rule", RULE, "--as-of", "2025-11-28", "--save", "--deposit",
+        "Ardwyn Retirement=250")
 PLAN = os.path.join(demo.dir.name, "plan.toml")
 with open(PLAN, "w") as f:
     f.write(f'[pools.both]\naccounts = ["Ardwyn Joint Taxable", "Ardwyn Retirement"]\n'
@@ -108,7 +109,7 @@ MORE = {
                  "--from", "2024-01-01", "--to", "2025-12-31", "--frictionless"]],
 }
 # Documents whose members changed since their first version.
-VERSIONS = {"backtest": 2, "propose": 3, "plan-proposal": 3, "proposal": 2, "proposals-list": 2,
+VERSIONS = {"backtest": 2, "propose": 4, "plan-proposal": 3, "proposal": 3, "proposals-list": 2,
             "returns": 2, "signal": 3, "statement": 2}
 ON_DEMO = {"returns", "propose", "plan-proposal", "proposals-list", "proposal", "backtest", "compare", "signal", "sweep", "statement"}
 # The commands of the reference each report stands for.

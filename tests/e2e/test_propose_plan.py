@@ -280,12 +280,88 @@ equal(sum(int(l["est_gain"].split(".")[0]) for l in lots), 2000, "estimated gain
 equal(ledger_digest(tax.path), before, "tax-aware proposals write nothing")
 print("propose --plan: tax-aware household checked by hand")
 
+# ---------------------------------------------------------------- tax keys in one rule file
+# The same household under one rule over both accounts: GBND a 50 % sleeve placed in
+# tax-deferred accounts first; the screen picks the cheaper of ACRN (P/E 20) and BOLT (P/E 10).
+# [tax] as the plan's, with a gain cap of 2000. Targets: GBND 18000, BOLT 18000, ACRN 0 (exit).
+# ACRN sells all 200: Retirement's 50 first (no tax event); in Brokerage lot 2 (50 at a loss of
+# 1000) leaves room for 3000 of gain, 50 units of lot 1 at 60 a unit; its other 50 are kept.
+# Cash to spend: Retirement 6000 + 5000 = 11000, Brokerage 10000 + 10000 = 20000; 31000 of the
+# 36000 wanted, each buy gets 31/36 of its 18000 = 15500 first. GBND (placed) buys first:
+# Retirement's 11000 (110), then 4500 in Brokerage (45); BOLT takes Brokerage's 15500 (310).
+tax.ok("import", "metrics", write(os.path.join(T, "metrics.csv"),
+       "date,symbol,metric,value,known_on\n2026-03-31,ACRN,pe,20,2026-05-15\n"
+       "2026-03-31,BOLT,pe,10,2026-05-15\n"), "--quiet")
+# A rule over both accounts of a household, screening ACRN and BOLT, keeping the `count`
+# cheapest; `rest` adds tables.
+TWO_NAMES = """name = "{name}"
+[scope]
+accounts = ["Brokerage", "Retirement"]
+symbols = ["ACRN", "BOLT"]
+[screen]
+min_names = 2
+[select]
+by = "count"
+count = {count}
+{rest}"""
+tax_rule = write(os.path.join(T, "tilted.toml"), TWO_NAMES.format(name="tilted", count=1, rest="""[[sleeve]]
+symbol = "GBND"
+weight_pct = 50
+place = "tax-deferred-first"
+[tax]
+sell_from = "tax-deferred-first"
+gain_cap = 2000
+"""))
+before = ledger_digest(tax.path)
+doc = tax.json("propose", "--rule", tax_rule)
+OUT, IN, SLEEVE = "z = 0.71, rank 2 > 1", "z = -0.71, rank 1 <= 1", "sleeve at 50.00%"
+equal([(o["account"], o["symbol"], o["side"], o["quantity"], o["reason"]) for o in doc["orders"]], [
+    ("Brokerage", "ACRN", "sell", "100",
+     OUT + ": sell all; 50 kept in Brokerage: the gain cap of 2000.00 is reached"),
+    ("Retirement", "ACRN", "sell", "50", OUT + ": sell all; sold in Retirement: no tax event"),
+    ("Brokerage", "GBND", "buy", "45",
+     SLEEVE + ": new position; placed in Brokerage: no tax-deferred cash left"),
+    ("Retirement", "GBND", "buy", "110",
+     SLEEVE + ": new position; placed in Retirement: tax-deferred first"),
+    ("Brokerage", "BOLT", "buy", "310", IN + ": new position"),
+], "one rule file: placement, selling order and gain cap as in a plan")
+equal([(l["lot"], l["quantity"], l["est_gain"]) for l in doc["orders"][0]["lots"]],
+      [(4, "50", "-1000"), (3, "50", "3000")], "the lots within the gain cap")
+RULE_CAUTION = TAX_CAUTION.replace("This plan", "This rule")
+check(RULE_CAUTION in doc["cautions"], "the rule's tax caution in JSON")
+check(RULE_CAUTION in tax.ok("propose", "--rule", tax_rule), "the rule's tax caution in text")
+# In a plan the plan's [tax] applies: the rule file's is not used, and a note says so; the
+# sleeve's place is used, so the plan's proposal has the tax caution.
+in_plan = write(os.path.join(T, "tilted-plan.toml"), 'name = "Tilted plan"\n[[part]]\n'
+                'rule = "tilted.toml"\n')
+doc = tax.json("propose", "--plan", in_plan)
+check(f"part 'tilted': the [tax] table of rule file {T}/tilted.toml is not used in a plan; the "
+      "plan's [tax] applies" in doc["notes"], doc["notes"])
+check(TAX_CAUTION in doc["cautions"], "a placed sleeve in a plan's rule part: the tax caution")
+equal([(o["account"], o["symbol"], o["side"], o["quantity"]) for o in doc["pools"][0]["orders"]
+       if o["symbol"] == "ACRN"], [("Brokerage", "ACRN", "sell", "150"),
+                                   ("Retirement", "ACRN", "sell", "50")],
+      "without the plan's [tax], no gain cap: all of ACRN is sold")
+equal(ledger_digest(tax.path), before, "a rule's tax-aware proposal writes nothing")
+print("propose --rule: tax keys in one rule file checked by hand")
+
 # ---------------------------------------------------------------- saved, filled, at rest
-# The plan without the cap is saved; its orders are booked as filled three days later at the
-# estimated prices, with the lots it named; proposing again proposes nothing new.
+# The plan without the cap is saved with a planned deposit and withdrawal; the cash and the
+# orders are booked three days later (the orders as filled at the estimated prices, with the
+# lots it named); proposing again proposes nothing new.
 write(tax_plan, TAX_PLAN.format(cap=""))
-first = tax.json("propose", "--plan", tax_plan, "--save")
+first = tax.json("propose", "--plan", tax_plan, "--save", "--deposit", "Brokerage=1000",
+                 "--withdraw", "Retirement=500")
 equal(first["proposal_id"], 1, "saved as proposal 1")
+shown = tax.json("proposals", "show", "1")
+equal(shown["schema"], {"name": "keel.proposal", "version": 3}, "the saved proposal's schema")
+equal(shown["planned_cash"], [
+    {"account": "Brokerage", "planned": "1000", "booked_since": "0", "status": "not booked"},
+    {"account": "Retirement", "planned": "-500", "booked_since": "0", "status": "not booked"},
+], "the saved proposal keeps its planned cash")
+tax.ok("record", "deposit", "--date", "2026-07-03", "--account", "Brokerage", "--amount", "1000")
+tax.ok("record", "withdrawal", "--date", "2026-07-03", "--account", "Retirement", "--amount",
+       "500")
 for o in first["pools"][0]["orders"]:
     lots = ",".join(f"{l['lot']}:{l['quantity']}" for l in o["lots"])
     tax.ok("record", o["side"], "--date", "2026-07-03", "--account", o["account"], "--symbol",
@@ -303,10 +379,87 @@ equal([(l["part"], l["account"], l["symbol"], l["side"], l["status"]) for l in s
     ("bonds", "Brokerage", "GBND", "buy", "done"),
     ("bonds", "Retirement", "GBND", "buy", "done"),
 ], "each saved order under its part, done")
+equal([(c["account"], c["status"]) for c in shown["planned_cash"]],
+      [("Brokerage", "booked"), ("Retirement", "booked")], "the planned cash, booked since")
 text = tax.ok("proposals", "show", "1")
 check(text.startswith("Proposal 1 of plan 'Tax household' as of 2026-06-30, saved "), text)
+check("\nPlanned cash, not booked when proposed\n" in text and
+      "Retirement  withdraw   500.00        500.00  booked\n" in text, text)
 check("\nPart 'stocks'\n" in text and "\nPart 'bonds'\n" in text, text)
 listed = tax.json("proposals", "list")["proposals"]
 equal([(p["id"], p["kind"], p["rule"], p["orders"]) for p in listed],
       [(1, "plan", "Tax household", 5)], "the list names the plan")
 print("propose --plan --save: filled orders leave the plan at rest")
+
+# ---------------------------------------------------------------- a withdrawal, netted
+# A third invented household on 2026-06-30: Brokerage (taxable) cash 1000; Retirement
+# (tax-deferred) cash 0, ACRN 20 bought at 40 (a gain) and BOLT 5 bought at 120 (a loss).
+# Closes ACRN 100, BOLT 100. One rule over both accounts holds both names at 50 %, with a
+# drift band of 20 points. Withdrawing 500 from Retirement: pool 1000 - 500 + 2000 + 500 =
+# 3000, targets 1500 each. ACRN (66.67 %) is inside the band, BOLT (16.67 %) wants 1000.
+# Retirement must raise 500: it sells 5 ACRN, the 500 above target (not its BOLT at a loss,
+# which the pool buys); Brokerage's 1000 buys 10 BOLT. No name is both sold and bought.
+net = Ledger()
+N = net.dir.name
+net.ok("import", "securities", write(os.path.join(N, "securities.csv"),
+       "symbol,name,kind,currency,lot_size,sector\nACRN,Acorn Rail,stock,USD,1,\n"
+       "BOLT,Boltwood Tools,stock,USD,1,\n"), "--quiet")
+net.ok("import", "prices", write(os.path.join(N, "prices.csv"), "date,symbol,close\n"
+       "2026-06-30,ACRN,100\n2026-06-30,BOLT,100\n"), "--quiet")
+net.ok("import", "metrics", write(os.path.join(N, "metrics.csv"),
+       "date,symbol,metric,value,known_on\n2026-03-31,ACRN,pe,20,2026-05-15\n"
+       "2026-03-31,BOLT,pe,10,2026-05-15\n"), "--quiet")
+net.ok("account", "add", "Brokerage")
+net.ok("account", "add", "Retirement", "--tax-status", "tax-deferred")
+net.ok("record", "deposit", "--date", "2024-01-02", "--account", "Brokerage", "--amount", "1000")
+net.ok("record", "deposit", "--date", "2024-01-02", "--account", "Retirement", "--amount", "1400")
+net.ok("record", "buy", "--date", "2024-01-10", "--account", "Retirement", "--symbol", "ACRN",
+       "--quantity", "20", "--price", "40")
+net.ok("record", "buy", "--date", "2026-03-02", "--account", "Retirement", "--symbol", "BOLT",
+       "--quantity", "5", "--price", "120")
+write(os.path.join(N, "rules", "both.toml"),
+      TWO_NAMES.format(name="both", count=2, rest="[trading]\ndrift_pct_points = 20\n"))
+net_plan = write(os.path.join(N, "net.toml"),
+                 'name = "Netted"\n[[part]]\nrule = "rules/both.toml"\n')
+doc = net.json("propose", "--plan", net_plan, "--withdraw", "Retirement=500")
+equal([(o["account"], o["symbol"], o["side"], o["quantity"], o["reason"])
+       for o in doc["pools"][0]["orders"]], [
+    ("Retirement", "ACRN", "sell", "5",
+     "both: z = 0.71, rank 2 <= 2: sold to raise the cash Retirement must give (500.00 short)"),
+    ("Brokerage", "BOLT", "buy", "10", "both: z = -0.71, rank 1 <= 2: add to target"),
+], "a withdrawal's sale is netted with the rebalance")
+sides = {}
+for o in doc["pools"][0]["orders"]:
+    sides.setdefault(o["symbol"], set()).add(o["side"])
+check(all(len(s) == 1 for s in sides.values()), f"no name both sold and bought: {sides}")
+print("propose --plan --withdraw: the withdrawal's sale does the rebalance's work")
+
+# The same rule proposed alone plans with the same withdrawal and nets it the same way; saved,
+# its cash and orders booked as filled, it is at rest and its planned cash shows as booked.
+both = os.path.join(N, "rules", "both.toml")
+first = net.json("propose", "--rule", both, "--withdraw", "Retirement=500", "--save")
+equal(first["schema"], {"name": "keel.propose", "version": 3}, "the rule proposal's schema")
+equal(first["planned_cash"], [{"account": "Retirement", "amount": "-500", "booked": False}],
+      "a rule's planned withdrawal, not booked")
+equal([(o["account"], o["symbol"], o["side"], o["quantity"]) for o in first["orders"]],
+      [("Retirement", "ACRN", "sell", "5"), ("Brokerage", "BOLT", "buy", "10")],
+      "a rule's withdrawal netted as the plan's")
+text = net.ok("propose", "--rule", both, "--withdraw", "Retirement=500")
+check("\nPlanned, not booked: withdraw 500.00 from Retirement\n" in text, text)
+for o in first["orders"]:
+    lots = ",".join(f"{l['lot']}:{l['quantity']}" for l in o["lots"])
+    net.ok("record", o["side"], "--date", "2026-07-01", "--account", o["account"], "--symbol",
+           o["symbol"], "--quantity", o["quantity"], "--price", o["price"],
+           *(["--lots", lots] if lots else []))
+net.ok("record", "withdrawal", "--date", "2026-07-01", "--account", "Retirement", "--amount", "500")
+again = net.json("propose", "--rule", both)
+equal(again["orders"], [], "nothing proposed again once the cash and the orders are booked")
+shown = net.json("proposals", "show", str(first["proposal_id"]))
+equal(shown["planned_cash"], [{"account": "Retirement", "planned": "-500",
+                               "booked_since": "-500", "status": "booked"}],
+      "the rule's planned withdrawal, booked since")
+equal({l["status"] for l in shown["lines"]}, {"done"}, "every saved order done")
+err = net.fails("propose", "--rule", both, "--deposit", "Retirment=10")
+equal(err, "keel: error: --deposit: 'Retirment' is not an account of the rule (did you mean "
+      "'Retirement'?)", "a rule's planned cash to an account outside it")
+print("propose --rule --withdraw --save: planned cash kept, booked, at rest")
