@@ -36,8 +36,8 @@ struct Owed {
 // decimals with units to kUnitPlaces (the check that the doubles agree).
 struct Binary {
   using Num = double;
-  static double price(const market::Series& m, std::size_t row, int col) {
-    return m.value(row, col);
+  static double price(const History& h, std::size_t row, int col) {
+    return h.market.value(row, col) * h.fx(row, col);
   }
   static double from(const Decimal& d) { return d.to_double(); }
   static double quotient(double a, double b) { return a / b; }
@@ -47,8 +47,9 @@ struct Binary {
 };
 struct Exact {
   using Num = Decimal;
-  static Decimal price(const market::Series& m, std::size_t row, int col) {
-    return m.exact(row, col);
+  static Decimal price(const History& h, std::size_t row, int col) {
+    return h.foreign(col) ? h.market.exact(row, col) * h.fx_exact(row, col)
+                          : h.market.exact(row, col);
   }
   static Decimal from(const Decimal& d) { return d; }
   static Decimal quotient(const Decimal& a, const Decimal& b) {
@@ -134,14 +135,15 @@ class FrictionlessPool {
   // Reinvested in the same security at the day's close.
   void distribute(int c, const market::Distribution& d, std::size_t row) {
     if (!held_.has(c)) return;
-    const Num amount = unit(c) * P::from(d.per_share);
+    // In the pool's currency at the day's rate; reinvested at the close.
+    const Num amount = unit(c) * P::from(d.per_share) * P::from(h_.fx_exact(row, c));
     distributions_ += amount;
-    unit(c) = unit(c) + P::quotient(amount, P::price(h_.market, row, c));
+    unit(c) = unit(c) + P::quotient(amount, P::price(h_, row, c));
   }
   // A corporate action at the start of its day (ledger/actions.h:
   // unit_effect); fractions are kept, so no cash in lieu. Its cash waits in
   // the pool for the next rebalancing day.
-  void act(const CorporateAction& a) {
+  void act(const CorporateAction& a, std::size_t row) {
     const int c = h_.market.column(a.security_id);
     if (!held_.has(c)) return;
     const UnitEffect e = unit_effect(a);
@@ -151,7 +153,7 @@ class FrictionlessPool {
       unit(t) = (held_.has(t) ? unit(t) : Num{}) + held * P::from(e.target_units);
       held_.add(t);
     }
-    if (!e.cash.is_zero()) cash_ += held * P::from(e.cash);
+    if (!e.cash.is_zero()) cash_ += held * P::from(e.cash) * P::from(h_.fx_exact(row, c));
     if (e.keeps.is_zero()) {
       unit(c) = Num{};
       held_.remove(c);
@@ -162,7 +164,7 @@ class FrictionlessPool {
   void pay(Date) {}
   Num holdings(std::size_t row) const {
     Num v{};
-    for (const int c : held_.columns) v += unit(c) * P::price(h_.market, row, c);
+    for (const int c : held_.columns) v += unit(c) * P::price(h_, row, c);
     return v;
   }
   double value(std::size_t row) const { return P::to_double(cash_ + holdings(row)); }
@@ -184,8 +186,7 @@ class FrictionlessPool {
       for (const auto& t : sel.targets) {
         if (!t.weight.is_positive()) continue;
         const int c = h_.market.column(t.security_id);
-        next.emplace_back(
-            c, P::quotient(value * P::from(t.weight), scale * P::price(h_.market, row, c)));
+        next.emplace_back(c, P::quotient(value * P::from(t.weight), scale * P::price(h_, row, c)));
       }
     }
     // Trades by security id (columns ascend by id).
@@ -200,7 +201,7 @@ class FrictionlessPool {
     Num invested{}, traded{};
     for (std::size_t i = 0; i < touched.size(); ++i) {
       const int c = touched[i];
-      const Num price = P::price(h_.market, row, c);
+      const Num price = P::price(h_, row, c);
       const Num before = held_.has(c) ? unit(c) : Num{};
       invested += after[i] * price;
       const Num diff = after[i] - before;
@@ -259,7 +260,7 @@ class OrderPool {
   // Owed from the ex-date, cash on the pay date.
   void distribute(int c, const market::Distribution& d, std::size_t) {
     if (!held_.has(c)) return;
-    const Decimal amount = unit(c) * d.per_share;
+    const Decimal amount = in_pool(unit(c) * d.per_share, c, d.ex_date);
     distributions_ += amount;
     owed_.push_back(Owed{d.pay_date, amount});
     owed_total_ += amount.to_double();
@@ -267,7 +268,7 @@ class OrderPool {
   // A corporate action at the start of its day, as the ledger applies it to
   // one account (ledger/actions.h): cash to the cent, and with a price for
   // them, the fractions of the units handed out paid in cash.
-  void act(const CorporateAction& a) {
+  void act(const CorporateAction& a, std::size_t) {
     const int c = h_.market.column(a.security_id);
     if (!held_.has(c)) return;
     const UnitEffect e = unit_effect(a);
@@ -275,7 +276,7 @@ class OrderPool {
     auto whole = [&](Decimal units) {
       if (!a.in_lieu) return units;
       const Decimal fraction = fraction_of(units);
-      cash_ += action_cash(fraction, *a.in_lieu);
+      cash_ += in_pool(action_cash(fraction, *a.in_lieu), c, a.date);
       return units - fraction;
     };
     if (!e.target_units.is_zero()) {
@@ -283,7 +284,7 @@ class OrderPool {
       set(t, unit(t) + whole(held * e.target_units));
       if (unit(t).is_positive()) held_.add(t);
     }
-    if (!e.cash.is_zero()) cash_ += action_cash(held, e.cash);
+    if (!e.cash.is_zero()) cash_ += in_pool(action_cash(held, e.cash), c, a.date);
     if (e.keeps.is_zero()) {
       set(c, Decimal());
       held_.remove(c);
@@ -305,7 +306,7 @@ class OrderPool {
   double invested(std::size_t row) const {
     double v = cash_.to_double();
     for (const int c : held_.columns)
-      v += approx_[static_cast<std::size_t>(c)] * h_.market.value(row, c);
+      v += approx_[static_cast<std::size_t>(c)] * h_.market.value(row, c) * h_.fx(row, c);
     return v;
   }
   double value(std::size_t row) const { return invested(row) + owed_total_; }
@@ -354,6 +355,13 @@ class OrderPool {
   }
 
  private:
+  // Cash of column c's security in the pool's currency, at `day`'s rate,
+  // rounded once to its minor units (market::View::convert).
+  Decimal in_pool(const Decimal& amount, int c, Date day) const {
+    if (!h_.foreign(c)) return amount;
+    return h_.market.convert(amount, h_.security(h_.market.security_id(c)).currency, *h_.currency,
+                             day);
+  }
   const Decimal& unit(int c) const { return units_[static_cast<std::size_t>(c)]; }
   void set(int c, const Decimal& q) {
     units_[static_cast<std::size_t>(c)] = q;
@@ -403,7 +411,7 @@ StrategyRun simulate(const History& h, const rules::Rule& rule, const Request& r
     for (; next_split < splits.size() && splits[next_split].date <= day; ++next_split)
       pool.split(m.column(splits[next_split].security_id), splits[next_split].ratio);
     for (; next_action < actions.size() && actions[next_action].date <= day; ++next_action)
-      pool.act(actions[next_action]);
+      pool.act(actions[next_action], row);
     for (; next_distribution < distributions.size() &&
            distributions[next_distribution].ex_date <= day;
          ++next_distribution) {
@@ -450,7 +458,7 @@ StrategyRun simulate(const History& h, const rules::Rule& rule, const Request& r
 StrategyRun simulate(const History& h, const rules::Rule& rule, const Request& req,
                      const std::vector<Date>& rebalance, std::string label, bool report_progress,
                      std::vector<std::string>& notes) {
-  rules::Inputs inputs(rule, h.market, h.currency);
+  rules::Inputs inputs(rule, h.market, h.currency, h.convert);
   std::unique_ptr<rules::TrackRecord> track;
   if (rule.track_record) {
     track = std::make_unique<rules::TrackRecord>(rule, inputs, h.market);
@@ -593,7 +601,8 @@ Result run(store::Database& db, const rules::Rule& rule, const Request& request)
   check_request(request);
   std::vector<std::string> extra;
   if (request.benchmark) extra.push_back(*request.benchmark);
-  const History h = load_history(db, rule, request.from.plus_days(-1), request.to, extra);
+  const History h =
+      load_history(db, rule, request.from.plus_days(-1), request.to, extra, rules::Convert::yes);
   return run(h, rule, request);
 }
 

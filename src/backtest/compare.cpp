@@ -52,7 +52,8 @@ CompareResult compare(store::Database& db, const std::vector<rules::Rule>& rules
   check_compare_request(rules.size(), request);
   std::vector<std::string> extra;
   if (request.benchmark) extra.push_back(*request.benchmark);
-  const History h = load_history(db, rules, request.from.plus_days(-1), request.to, extra);
+  const History h =
+      load_history(db, rules, request.from.plus_days(-1), request.to, extra, rules::Convert::yes);
   return compare(h, rules, request);
 }
 

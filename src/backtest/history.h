@@ -16,6 +16,13 @@
 //    has one, else the first sleeve's, else the one its universe shares; with
 //    none of these, a universe in several currencies is refused. Stocks left
 //    out for their currency are told in `notes`.
+//    With Convert::yes and a ledger currency, the rule values in that
+//    currency and names priced in others stay in (rules::Inputs,
+//    Convert::yes): the exchange rates of every loaded currency are loaded
+//    too, and fx(row, col) is the rate into `currency` known on each day
+//    (the latest on or before it; market::View::rate), 1 for `currency`
+//    itself and 0 before a first rate (a name is never priced, so never
+//    held, then). A note then names the currencies converted.
 //  - The overload for several rules loads the union of what each needs, once;
 //    they must trade in one currency (InputError naming RULES otherwise), and
 //    their notes are kept once each.
@@ -34,6 +41,7 @@
 
 #include "core/date.h"
 #include "market/series.h"
+#include "rules/inputs.h"
 #include "rules/rule.h"
 #include "store/database.h"
 
@@ -43,16 +51,36 @@ struct History {
   market::Series market;  // the universe, sleeves and extras over the span, with the metric
   std::optional<std::string> currency;  // the rule's (rules::Inputs)
   std::vector<std::string> notes;       // about the universe
+  rules::Convert convert = rules::Convert::no;
+  // Filled by load_rates(), read through fx(): per column an index into the
+  // tables (-1: `currency`), and per other currency its rate on each row.
+  std::vector<int> fx_of_ = {};
+  std::vector<std::vector<Decimal>> fx_rates_ = {};
+  std::vector<std::vector<double>> fx_double_ = {};
 
   const Security& security(std::int64_t id) const { return *market.security(id); }
   // The close on or before `day` (inside the span), exactly; unset when none.
   std::optional<Decimal> close(std::int64_t id, Date day) const;
+  // The rate into `currency` of the column's currency on the row's day.
+  double fx(std::size_t row, int col) const {
+    const int k = fx_of_[static_cast<std::size_t>(col)];
+    return k < 0 ? 1.0 : fx_double_[static_cast<std::size_t>(k)][row];
+  }
+  Decimal fx_exact(std::size_t row, int col) const {
+    const int k = fx_of_[static_cast<std::size_t>(col)];
+    return k < 0 ? Decimal(1) : fx_rates_[static_cast<std::size_t>(k)][row];
+  }
+  bool foreign(int col) const { return fx_of_[static_cast<std::size_t>(col)] >= 0; }
+  // Fills the rates of fx() (load_history does).
+  void load_rates();
 };
 
 History load_history(store::Database& db, const rules::Rule& rule, Date from, Date to,
-                     const std::vector<std::string>& extra = {});
+                     const std::vector<std::string>& extra = {},
+                     rules::Convert convert = rules::Convert::no);
 History load_history(store::Database& db, const std::vector<rules::Rule>& rules, Date from, Date to,
-                     const std::vector<std::string>& extra = {});
+                     const std::vector<std::string>& extra = {},
+                     rules::Convert convert = rules::Convert::no);
 
 std::vector<Date> rebalance_days(const std::vector<Date>& trading_days, std::optional<Date> next,
                                  Date from, Date to, int every_months);

@@ -257,7 +257,8 @@ SweepResult sweep(store::Database& db, const rules::Rule& rule, const SweepReque
   // The grid is checked before any data is read; the one load covers every
   // variant (a longer track record reaches further back).
   const auto variants = sweep_variants(rule, request);
-  const History h = load_history(db, variants, request.from.plus_days(-1), request.to);
+  const History h =
+      load_history(db, variants, request.from.plus_days(-1), request.to, {}, rules::Convert::yes);
   return sweep(h, rule, request);
 }
 

@@ -20,7 +20,7 @@ namespace keel::cli {
 namespace {
 
 struct ProposeOptions {
-  std::string rule, plan, as_of;
+  std::string rule, plan, as_of, currency;
   std::vector<std::string> deposits, withdrawals;
   bool json = false;
   bool save = false;
@@ -45,6 +45,9 @@ void add_propose(CLI::App& app, Context& ctx) {
                   "Cash to take out that is not booked yet, ACCOUNT=AMOUNT (repeatable)");
   cmd->add_option("--as-of", o->as_of,
                   "Day to propose for, YYYY-MM-DD (default: the latest day with a close)");
+  cmd->add_option("--currency", o->currency,
+                  "With --rule: value the pool and size the orders in this currency, a "
+                  "three-letter code (default: the first account's)");
   add_json_flag(*cmd, o->json);
   cmd->add_flag("--save", o->save, "Keep the proposal, to compare with what is traded later");
   auto* window =
@@ -60,8 +63,10 @@ void add_propose(CLI::App& app, Context& ctx) {
     for (const auto& d : o->deposits) planned.push_back(rules::parse_planned_cash("--deposit", d));
     for (const auto& w : o->withdrawals)
       planned.push_back(rules::parse_planned_cash("--withdraw", w));
+    const auto currency = currency_option(o->currency);
     if (!o->plan.empty()) {
       if (window->count() > 0) throw InputError("--repurchase-window: applies only with --rule");
+      if (currency) throw InputError("--currency: applies only with --rule");
       const auto plan = rules::load_plan(o->plan);
       auto db = ctx.open_ledger(o->save ? store::Access::write : store::Access::read);
       const auto proposal = rules::propose_plan(db, plan, as_of, std::move(planned));
@@ -76,7 +81,8 @@ void add_propose(CLI::App& app, Context& ctx) {
     if (window->count() > 0) ledger::check_repurchase_window(o->repurchase_window);
     const auto rule = rules::load_rule(o->rule);
     auto db = ctx.open_ledger(o->save ? store::Access::write : store::Access::read);
-    auto proposal = rules::propose(db, rule, as_of, std::move(planned));
+    auto proposal = with_currency_option(
+        currency, [&] { return rules::propose(db, rule, as_of, std::move(planned), currency); });
     if (window->count() > 0) rules::flag_repurchases(db, proposal, o->repurchase_window);
     std::optional<std::int64_t> id;
     if (o->save) id = rules::save(db, rule, proposal);

@@ -77,20 +77,6 @@ bool small_value(const Int& v, long long& out) {
   return true;
 }
 
-// a * 10^(scale - a_scale) and b * 10^(scale - b_scale) as 128-bit integers,
-// when both mantissas are small and the shifts are at most 18 digits: then
-// each product is below 2^63 * 10^18 < 2^123, and a sum or difference of two
-// fits as well.
-bool small_aligned(const Int& a, int a_scale, const Int& b, int b_scale, Wide& x, Wide& y) {
-  long long sa = 0, sb = 0;
-  if (!small_value(a, sa) || !small_value(b, sb)) return false;
-  const int scale = std::max(a_scale, b_scale);
-  if (scale - a_scale > 18 || scale - b_scale > 18) return false;
-  x = static_cast<Wide>(sa) * kPow10[scale - a_scale];
-  y = static_cast<Wide>(sb) * kPow10[scale - b_scale];
-  return true;
-}
-
 // `v` as an Int: from a long long when it fits, else through two limbs.
 Int from_int128(Wide v) {
   if (v >= std::numeric_limits<long long>::min() && v <= std::numeric_limits<long long>::max())
@@ -102,6 +88,8 @@ Int from_int128(Wide v) {
   out += static_cast<unsigned long long>(m);
   return negative ? Int(-out) : out;
 }
+
+constexpr long long kSmallMax = std::numeric_limits<long long>::max();
 
 }  // namespace
 
@@ -116,75 +104,130 @@ const auto& Decimal::mantissa() const {
   return *std::launder(reinterpret_cast<const Int*>(storage_));
 }
 
-Decimal::Decimal() {
-  new (storage_) Int();
+auto Decimal::as_int() const {
+  return big_ ? mantissa() : Int(small_);
 }
 
-Decimal::Decimal(long long whole) {
-  new (storage_) Int(whole);
+void Decimal::set_lowest() {
+  new (storage_) Int(std::numeric_limits<long long>::min());
+  big_ = true;
 }
 
-Decimal::Decimal(const Decimal& other) : scale_(other.scale_) {
+void Decimal::copy_big(const Decimal& other) {
   new (storage_) Int(other.mantissa());
+  big_ = true;
 }
 
-Decimal::Decimal(Decimal&& other) noexcept : scale_(other.scale_) {
+void Decimal::move_big(Decimal& other) noexcept {
   new (storage_) Int(std::move(other.mantissa()));
+  big_ = true;
+  // The moved-from value becomes a plain zero, so it keeps one representation.
+  other.destroy_big();
+  other.small_ = 0;
+  other.scale_ = 0;
 }
 
-Decimal& Decimal::operator=(const Decimal& other) {
-  mantissa() = other.mantissa();
+Decimal& Decimal::assign_big(const Decimal& other) {
+  if (this == &other) return *this;
+  if (other.big_) {
+    if (big_)
+      mantissa() = other.mantissa();
+    else
+      copy_big(other);
+  } else {
+    destroy_big();
+    small_ = other.small_;
+  }
   scale_ = other.scale_;
   return *this;
 }
 
-Decimal& Decimal::operator=(Decimal&& other) noexcept {
-  mantissa() = std::move(other.mantissa());
-  scale_ = other.scale_;
+Decimal& Decimal::move_assign_big(Decimal& other) noexcept {
+  if (this == &other) return *this;
+  const int scale = other.scale_;  // before `other` becomes a plain zero
+  if (other.big_) {
+    if (big_) {
+      mantissa() = std::move(other.mantissa());
+      other.destroy_big();
+      other.scale_ = 0;
+    } else {
+      move_big(other);
+    }
+  } else {
+    destroy_big();
+    small_ = other.small_;
+  }
+  scale_ = scale;
   return *this;
 }
 
-Decimal::~Decimal() {
+void Decimal::destroy_big() noexcept {
   mantissa().~Int();
+  big_ = false;
+  small_ = 0;
+}
+
+int Decimal::big_sign() const {
+  return mantissa().sign();
+}
+
+void Decimal::set_int(auto&& value) {
+  long long small = 0;
+  if (small_value(value, small)) {
+    if (big_) destroy_big();
+    small_ = small;
+  } else if (big_) {
+    mantissa() = std::forward<decltype(value)>(value);
+  } else {
+    new (storage_) Int(std::forward<decltype(value)>(value));
+    big_ = true;
+  }
 }
 
 Decimal Decimal::from_mantissa(auto&& value, int scale) {
   Decimal out;
-  out.mantissa() = std::forward<decltype(value)>(value);
+  out.set_int(std::forward<decltype(value)>(value));
   out.scale_ = scale;
   out.normalize();
   return out;
 }
 
-int Decimal::sign() const {
-  return mantissa().sign();
+// a and b as 128-bit mantissas at the larger of their scales, when both are
+// small and the shifts are at most 18 digits: then each product is below
+// 2^63 * 10^18 < 2^123, and a sum or difference of two fits as well.
+bool Decimal::small_aligned(const Decimal& a, const Decimal& b, Wide& x, Wide& y) {
+  if (a.big_ || b.big_) return false;
+  const int scale = std::max(a.scale_, b.scale_);
+  if (scale - a.scale_ > 18 || scale - b.scale_ > 18) return false;
+  x = static_cast<Wide>(a.small_) * kPow10[scale - a.scale_];
+  y = static_cast<Wide>(b.small_) * kPow10[scale - b.scale_];
+  return true;
 }
 
-bool Decimal::is_zero() const {
-  return mantissa().is_zero();
+Decimal Decimal::from_wide(Wide value, int scale) {
+  if (value < -kSmallMax || value > kSmallMax) return from_mantissa(from_int128(value), scale);
+  Decimal out;
+  out.small_ = static_cast<long long>(value);
+  out.scale_ = scale;
+  out.normalize();
+  return out;
 }
 
 Decimal Decimal::scaled(long long mantissa, int scale) {
   if (scale < 0 || scale > kMaxScale)
     throw std::invalid_argument(fmt::format("Decimal::scaled: scale {} out of range", scale));
-  return from_mantissa(Int(mantissa), scale);
+  return from_wide(mantissa, scale);
 }
 
 void Decimal::normalize() {
-  if (mantissa().is_zero()) {
-    scale_ = 0;
-    return;
-  }
-  long long small = 0;
-  if (scale_ > 0 && small_value(mantissa(), small)) {
-    int scale = scale_;
-    while (scale > 0 && small % 10 == 0) {
-      small /= 10;
-      --scale;
+  if (!big_) {
+    if (small_ == 0) {
+      scale_ = 0;
+      return;
     }
-    if (scale != scale_) {
-      mantissa() = small;
-      scale_ = scale;
+    while (scale_ > 0 && small_ % 10 == 0) {
+      small_ /= 10;
+      --scale_;
     }
     return;
   }
@@ -195,10 +238,16 @@ void Decimal::normalize() {
     mantissa() = std::move(quotient);
     --scale_;
   }
+  // Fewer digits may now fit a machine word.
+  long long small = 0;
+  if (small_value(mantissa(), small)) {
+    destroy_big();
+    small_ = small;
+  }
 }
 
 auto Decimal::scaled_to(int scale) const {
-  return scale == scale_ ? mantissa() : Int(mantissa() * pow10(scale - scale_));
+  return scale == scale_ ? as_int() : Int(as_int() * pow10(scale - scale_));
 }
 
 Decimal Decimal::parse(std::string_view text) {
@@ -239,7 +288,7 @@ std::optional<Decimal> Decimal::parse_text(std::string_view text, std::string& w
       }
     }
     if (i == text.size() && digits > 0 && digits <= 18)
-      return from_mantissa(Int(text[0] == '-' ? -value : value), std::max(scale, 0));
+      return from_wide(text[0] == '-' ? -value : value, std::max(scale, 0));
   }
   auto fail = [&](std::string_view reason) {
     // printable(): the text may hold any byte, NUL included, and what() is a C string.
@@ -311,10 +360,8 @@ std::optional<Decimal> Decimal::parse_text(std::string_view text, std::string& w
 }
 
 std::string Decimal::str() const {
-  long long small = 0;
-  std::string digits = small_value(mantissa(), small)
-                           ? std::to_string(small < 0 ? -small : small)
-                           : Int(boost::multiprecision::abs(mantissa())).str();
+  std::string digits = !big_ ? std::to_string(small_ < 0 ? -small_ : small_)
+                             : Int(boost::multiprecision::abs(mantissa())).str();
   std::string out;
   if (is_negative()) out.push_back('-');
   if (scale_ == 0) return out + digits;
@@ -328,7 +375,19 @@ std::string Decimal::str() const {
 
 std::string Decimal::fixed(int places) const {
   const Decimal r = rounded(places);
-  std::string digits = Int(boost::multiprecision::abs(r.scaled_to(places))).str();
+  std::string digits;
+  if (!r.big_ && places >= r.scale_ && places - r.scale_ <= 18) {
+    // |mantissa| * 10^(places - scale) < 2^63 * 10^18 fits 128 bits.
+    UWide m = static_cast<UWide>(r.small_ < 0 ? -static_cast<Wide>(r.small_) : r.small_) *
+              static_cast<UWide>(kPow10[places - r.scale_]);
+    do {
+      digits.push_back(static_cast<char>('0' + static_cast<int>(m % 10)));
+      m /= 10;
+    } while (m != 0);
+    std::reverse(digits.begin(), digits.end());
+  } else {
+    digits = Int(boost::multiprecision::abs(r.scaled_to(places))).str();
+  }
   if (places > 0 && static_cast<int>(digits.size()) <= places)
     digits.insert(0, static_cast<std::size_t>(places - static_cast<int>(digits.size()) + 1), '0');
   std::string out = r.is_negative() ? "-" : "";
@@ -354,23 +413,21 @@ Wide divide_half_even(Wide x, Wide y) {
 
 Decimal Decimal::rounded(int places) const {
   if (scale_ <= places) return *this;
-  long long small = 0;
-  if (places >= 0 && scale_ - places <= 18 && small_value(mantissa(), small))
-    return from_mantissa(from_int128(divide_half_even(small, kPow10[scale_ - places])), places);
-  return from_mantissa(round_half_even(mantissa(), scale_ - places), places);
+  if (places >= 0 && scale_ - places <= 18 && !big_)
+    return from_wide(divide_half_even(small_, kPow10[scale_ - places]), places);
+  return from_mantissa(round_half_even(as_int(), scale_ - places), places);
 }
 
 Decimal Decimal::truncated(int places) const {
   if (scale_ <= places) return *this;
-  long long small = 0;
-  if (places >= 0 && scale_ - places <= 18 && small_value(mantissa(), small))
-    return from_mantissa(Int(small / kPow10[scale_ - places]), places);
-  return from_mantissa(Int(mantissa() / pow10(scale_ - places)), places);
+  if (places >= 0 && scale_ - places <= 18 && !big_)
+    return from_wide(small_ / kPow10[scale_ - places], places);
+  return from_mantissa(Int(as_int() / pow10(scale_ - places)), places);
 }
 
 Decimal Decimal::floored(int places) const {
   const Decimal t = truncated(places);
-  return (is_negative() && t != *this) ? t - from_mantissa(Int(1), places) : t;
+  return (is_negative() && t != *this) ? t - from_wide(1, places) : t;
 }
 
 Decimal Decimal::divide(const Decimal& numerator, const Decimal& denominator, int places) {
@@ -378,17 +435,16 @@ Decimal Decimal::divide(const Decimal& numerator, const Decimal& denominator, in
   // Machine words when both sides fit: a mantissa below 2^63 times 10^18 at
   // most stays below 2^123, so twice a remainder fits too. The same quotient
   // as the general path below.
-  long long a = 0, b = 0;
   if (places >= 0 && denominator.scale_ + places <= 18 && numerator.scale_ <= 18 &&
-      small_value(numerator.mantissa(), a) && small_value(denominator.mantissa(), b)) {
-    Wide n = static_cast<Wide>(a) * kPow10[denominator.scale_ + places];
-    Wide d = static_cast<Wide>(b) * kPow10[numerator.scale_];
+      !numerator.big_ && !denominator.big_) {
+    Wide n = static_cast<Wide>(numerator.small_) * kPow10[denominator.scale_ + places];
+    Wide d = static_cast<Wide>(denominator.small_) * kPow10[numerator.scale_];
     if (d < 0) n = -n, d = -d;
-    return from_mantissa(from_int128(divide_half_even(n, d)), places);
+    return from_wide(divide_half_even(n, d), places);
   }
   // (n / 10^a) / (d / 10^b) at `places` digits = n * 10^(b + places) / (d * 10^a).
-  const Int n = numerator.mantissa() * pow10(denominator.scale_ + places);
-  const Int d = denominator.mantissa() * pow10(numerator.scale_);
+  const Int n = numerator.as_int() * pow10(denominator.scale_ + places);
+  const Int d = denominator.as_int() * pow10(numerator.scale_);
   Int quotient, remainder;
   boost::multiprecision::divide_qr(n, d, quotient, remainder);
   if (!remainder.is_zero()) {
@@ -404,9 +460,9 @@ double Decimal::to_double() const {
   // A mantissa below 2^53 and a scale up to 22 are both exact doubles, so one
   // IEEE division rounds the quotient correctly: the same double as the text
   // route (Clinger 1990, "How to Read Floating Point Numbers Accurately").
-  long long small = 0;
   constexpr long long kExact = 1LL << 53;
-  if (scale_ <= 22 && small_value(mantissa(), small) && small < kExact && small > -kExact) {
+  const long long small = small_;
+  if (scale_ <= 22 && !big_ && small < kExact && small > -kExact) {
     static constexpr double kTens[] = {1e0,  1e1,  1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
                                        1e8,  1e9,  1e10, 1e11, 1e12, 1e13, 1e14, 1e15,
                                        1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22};
@@ -417,40 +473,39 @@ double Decimal::to_double() const {
 }
 
 Decimal Decimal::operator-() const {
+  if (!big_) return from_wide(-static_cast<Wide>(small_), scale_);
   return from_mantissa(Int(-mantissa()), scale_);
 }
 
 Decimal operator+(const Decimal& a, const Decimal& b) {
   const int scale = std::max(a.scale_, b.scale_);
   Wide x = 0, y = 0;
-  if (small_aligned(a.mantissa(), a.scale_, b.mantissa(), b.scale_, x, y))
-    return Decimal::from_mantissa(from_int128(x + y), scale);
+  if (Decimal::small_aligned(a, b, x, y)) return Decimal::from_wide(x + y, scale);
   return Decimal::from_mantissa(Int(a.scaled_to(scale) + b.scaled_to(scale)), scale);
 }
 
 Decimal operator-(const Decimal& a, const Decimal& b) {
   const int scale = std::max(a.scale_, b.scale_);
   Wide x = 0, y = 0;
-  if (small_aligned(a.mantissa(), a.scale_, b.mantissa(), b.scale_, x, y))
-    return Decimal::from_mantissa(from_int128(x - y), scale);
+  if (Decimal::small_aligned(a, b, x, y)) return Decimal::from_wide(x - y, scale);
   return Decimal::from_mantissa(Int(a.scaled_to(scale) - b.scaled_to(scale)), scale);
 }
 
 Decimal operator*(const Decimal& a, const Decimal& b) {
-  long long x = 0, y = 0;
-  if (small_value(a.mantissa(), x) && small_value(b.mantissa(), y))
-    return Decimal::from_mantissa(from_int128(static_cast<Wide>(x) * y), a.scale_ + b.scale_);
-  return Decimal::from_mantissa(Int(a.mantissa() * b.mantissa()), a.scale_ + b.scale_);
+  if (!a.big_ && !b.big_)
+    return Decimal::from_wide(static_cast<Wide>(a.small_) * b.small_, a.scale_ + b.scale_);
+  return Decimal::from_mantissa(Int(a.as_int() * b.as_int()), a.scale_ + b.scale_);
 }
 
 bool operator==(const Decimal& a, const Decimal& b) {
   // Normalized values compare equal only when both parts match.
-  return a.scale_ == b.scale_ && a.mantissa() == b.mantissa();
+  if (a.scale_ != b.scale_ || a.big_ != b.big_) return false;
+  return a.big_ ? a.mantissa() == b.mantissa() : a.small_ == b.small_;
 }
 
 std::strong_ordering operator<=>(const Decimal& a, const Decimal& b) {
   Wide sx = 0, sy = 0;
-  if (small_aligned(a.mantissa(), a.scale_, b.mantissa(), b.scale_, sx, sy)) return sx <=> sy;
+  if (Decimal::small_aligned(a, b, sx, sy)) return sx <=> sy;
   const int scale = std::max(a.scale_, b.scale_);
   const auto x = a.scaled_to(scale);
   const auto y = b.scaled_to(scale);

@@ -13,6 +13,7 @@
 //    kMaxScale.
 //  - to_double() exists only for statistics; never feed its result back into a
 //    ledger amount.
+//  - A mantissa that fits a machine word takes no arbitrary-precision work.
 //  - Only decimal.cpp sees the mantissa's type: Boost.Multiprecision is the
 //    costliest header of the build, and every file of keel includes this one.
 #pragma once
@@ -20,6 +21,7 @@
 #include <compare>
 #include <cstddef>
 #include <cstdint>
+#include <limits>
 #include <optional>
 #include <string>
 #include <string_view>
@@ -31,13 +33,41 @@ class Decimal {
   static constexpr int kMaxDigits = 60;
   static constexpr int kMaxScale = 30;
 
-  Decimal();
-  Decimal(long long whole);  // NOLINT: implicit from integers is natural for literals.
-  Decimal(const Decimal& other);
-  Decimal(Decimal&& other) noexcept;
-  Decimal& operator=(const Decimal& other);
-  Decimal& operator=(Decimal&& other) noexcept;
-  ~Decimal();
+  // User-provided, so that `const Decimal zero;` is well-formed for every compiler.
+  Decimal() noexcept {}       // NOLINT(modernize-use-equals-default)
+  Decimal(long long whole) {  // NOLINT: implicit from integers is natural for literals.
+    if (whole == std::numeric_limits<long long>::min())
+      set_lowest();
+    else
+      small_ = whole;
+  }
+  Decimal(const Decimal& other) : scale_(other.scale_) {
+    if (other.big_)
+      copy_big(other);
+    else
+      small_ = other.small_;
+  }
+  Decimal(Decimal&& other) noexcept : scale_(other.scale_) {
+    if (other.big_)
+      move_big(other);
+    else
+      small_ = other.small_;
+  }
+  Decimal& operator=(const Decimal& other) {
+    if (big_ || other.big_) return assign_big(other);
+    small_ = other.small_;
+    scale_ = other.scale_;
+    return *this;
+  }
+  Decimal& operator=(Decimal&& other) noexcept {
+    if (big_ || other.big_) return move_assign_big(other);
+    small_ = other.small_;
+    scale_ = other.scale_;
+    return *this;
+  }
+  ~Decimal() {
+    if (big_) destroy_big();
+  }
 
   static Decimal parse(std::string_view text);
   // mantissa x 10^-scale, exactly; 0 <= scale <= kMaxScale (std::invalid_argument otherwise).
@@ -54,8 +84,8 @@ class Decimal {
   Decimal truncated(int places) const;  // toward zero ("whole shares" style flooring of |x|)
   Decimal floored(int places) const;    // toward minus infinity
 
-  int sign() const;
-  bool is_zero() const;
+  int sign() const { return big_ ? big_sign() : (small_ > 0) - (small_ < 0); }
+  bool is_zero() const { return !big_ && small_ == 0; }
   bool is_negative() const { return sign() < 0; }
   bool is_positive() const { return sign() > 0; }
   int scale() const { return scale_; }
@@ -74,19 +104,39 @@ class Decimal {
   friend std::strong_ordering operator<=>(const Decimal& a, const Decimal& b);
 
  private:
-  // The mantissa, a cpp_int, lives in raw storage; decimal.cpp defines these
-  // (deduced types, used only there) and checks the size and alignment.
+  // A mantissa that fits a machine word (all but the rarest) is kept in
+  // small_; only a larger one makes a cpp_int, in raw storage that
+  // decimal.cpp alone constructs (deduced types, used only there; it checks
+  // the size and alignment). big_ says which: a value is big exactly when
+  // its mantissa lies outside [-(2^63 - 1), 2^63 - 1], so each value has one
+  // representation.
   static constexpr std::size_t kMantissaBytes = 32;
-  auto& mantissa();
-  const auto& mantissa() const;
+  auto& mantissa();                                       // big_ only
+  const auto& mantissa() const;                           // big_ only
+  auto as_int() const;                                    // the mantissa as a cpp_int, either way
   static Decimal from_mantissa(auto&& value, int scale);  // normalized
+  __extension__ typedef __int128 Wide;              // GCC and Clang; -Wpedantic wants the marker
+  static Decimal from_wide(Wide value, int scale);  // normalized
+  static bool small_aligned(const Decimal& a, const Decimal& b, Wide& x, Wide& y);
+  void set_int(auto&& value);                         // any mantissa
+  void set_lowest();                                  // the mantissa -2^63
+  void copy_big(const Decimal& other);                // into a fresh object
+  void move_big(Decimal& other) noexcept;             // into a fresh object
+  Decimal& assign_big(const Decimal& other);          // either side big
+  Decimal& move_assign_big(Decimal& other) noexcept;  // either side big
+  void destroy_big() noexcept;
+  int big_sign() const;
   // Parses without throwing; on failure, `why` says what is wrong.
   static std::optional<Decimal> parse_text(std::string_view text, std::string& why);
   void normalize();
   auto scaled_to(int scale) const;  // mantissa expressed at a larger scale
 
-  alignas(16) unsigned char storage_[kMantissaBytes];
+  union {
+    long long small_ = 0;
+    alignas(16) unsigned char storage_[kMantissaBytes];
+  };
   int scale_ = 0;
+  bool big_ = false;
 };
 
 }  // namespace keel

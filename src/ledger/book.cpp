@@ -33,12 +33,18 @@ std::vector<Decimal> allocate(const Decimal& total, const std::vector<Decimal>& 
   }
   if (weights.empty()) return parts;
   if (!weight_sum.is_positive()) throw std::invalid_argument("allocate: the weights are all zero");
+  // One part takes the whole total: the general steps below give it exactly
+  // that (its quota is the grid part, the rest lies below the grid), only slower.
+  if (weights.size() == 1) {
+    parts.front() = total;
+    return parts;
+  }
 
   // Work on the magnitude; every part takes the sign of the total.
   const Decimal magnitude = total.abs();
   const Decimal on_grid = magnitude.truncated(places);  // whole units of 10^-places
   const Decimal below_grid = magnitude - on_grid;       // less than one unit
-  const Decimal unit = Decimal::parse(fmt::format("1e-{}", places));
+  const Decimal unit = Decimal::scaled(1, places);
   // Quotas on_grid * w / W, floored to the grid; what each quota loses to the
   // floor, times W, ranks the parts for the units left over (exact, no division).
   std::vector<Decimal> remainder(weights.size());

@@ -25,6 +25,12 @@ FxQuote View::rate(const std::string& base, const std::string& quote, Date day) 
   return rates_for(base, quote, day).find(base, quote, day);
 }
 
+std::optional<FxQuote> View::try_rate(const std::string& base, const std::string& quote,
+                                      Date day) const {
+  if (base == quote) return rate(base, quote, day);
+  return rates_for(base, quote, day).try_find(base, quote, day);
+}
+
 Decimal View::convert(const Decimal& amount, const std::string& from, const std::string& to,
                       Date day) const {
   if (from == to) return amount;

@@ -109,6 +109,9 @@ class View {
   virtual std::vector<std::string> metric_names() const = 0;
 
   FxQuote rate(const std::string& base, const std::string& quote, Date day) const;
+  // rate() without the throw: unset when no rate can be found.
+  std::optional<FxQuote> try_rate(const std::string& base, const std::string& quote,
+                                  Date day) const;
   Decimal convert(const Decimal& amount, const std::string& from, const std::string& to,
                   Date day) const;
 

@@ -50,7 +50,33 @@ void screen_json(JsonWriter& j, const rules::ScreenResult& screen) {
   j.end_array();
 }
 
-void orders_json(JsonWriter& j, const std::vector<rules::Order>& orders) {
+// An order's currency side (propose only; a plan's orders have none).
+void order_fx_json(JsonWriter& j, const rules::Order& o) {
+  if (!o.fx) {
+    j.key("fx").null();
+    return;
+  }
+  const auto& fx = *o.fx;
+  j.key("fx").begin_object();
+  j.member("currency", fx.quote.currency).member("local_price", fx.quote.local_price);
+  if (fx.quote.rate_text.empty())
+    j.key("rate").null().key("rate_source").null();
+  else
+    j.member("rate", fx.quote.rate).member("rate_source", fx.quote.rate_text);
+  j.member("rate_derived", fx.quote.derived).member("local_value", fx.local_value);
+  j.member("from_cash", fx.from_cash);
+  if (fx.settles_in.empty())
+    j.key("settles_in").null();
+  else
+    j.member("settles_in", fx.settles_in);
+  j.member("local_settled", fx.local_settled).member("settled", fx.settled);
+  j.end_object();
+}
+
+enum class WithFx { no, yes };
+
+void orders_json(JsonWriter& j, const std::vector<rules::Order>& orders,
+                 WithFx with_fx = WithFx::no) {
   j.key("orders").begin_array();
   for (const auto& o : orders) {
     j.begin_object();
@@ -68,6 +94,7 @@ void orders_json(JsonWriter& j, const std::vector<rules::Order>& orders) {
       j.end_object();
     }
     j.end_array();
+    if (with_fx == WithFx::yes) order_fx_json(j, o);
     j.end_object();
   }
   j.end_array();
@@ -167,10 +194,76 @@ std::string screen_text(const rules::ScreenResult& sc, const Style& style) {
   return s;
 }
 
-std::string orders_text(const std::vector<rules::Order>& orders, const Style& style) {
+// Each order's local price and rate, and how it settles, under it.
+std::string fx_orders_text(const std::vector<rules::Order>& orders, const std::string& currency,
+                           const Style& style) {
+  Table t({{"account", Align::left, true},
+           {"symbol"},
+           {"side"},
+           {"quantity", Align::right},
+           {"local price", Align::right},
+           {"rate", Align::right},
+           {"est. value " + currency, Align::right},
+           {"est. fee", Align::right, false, 1},
+           {"now", Align::right, false, 2},
+           {"target", Align::right},
+           {"reason", Align::left, true}});
+  bool derived = false;
+  for (const auto& o : orders) {
+    std::string local = o.price.str() + " " + currency, rate;
+    if (o.fx) {
+      local = o.fx->quote.local_price.str() + " " + o.fx->quote.currency;
+      if (!o.fx->quote.rate_text.empty())
+        rate = o.fx->quote.rate.str() + (o.fx->quote.derived ? "*" : "");
+      derived = derived || o.fx->quote.derived;
+    }
+    t.add_row({o.account, o.symbol, std::string(rules::to_string(o.side)), o.quantity.str(), local,
+               rate, money(o.value), money(o.fee), pct(o.weight_now), pct(o.weight_target),
+               o.reason});
+    if (o.fx) {
+      const auto& fx = *o.fx;
+      std::string how;
+      if (o.side == rules::Side::sell)
+        how = fmt::format("proceeds {} {} kept in {}", fx.local_value.str(), fx.quote.currency,
+                          fx.quote.currency);
+      else if (fx.settles_in.empty())
+        how = fmt::format("paid from {} cash", fx.quote.currency);
+      else
+        how = fmt::format("{}settles in {}: {} {} for about {} {}",
+                          fx.from_cash.is_zero()
+                              ? ""
+                              : fmt::format("{} {} from {} cash; ", fx.from_cash.str(),
+                                            fx.quote.currency, fx.quote.currency),
+                          fx.settles_in, fx.local_settled.str(), fx.quote.currency,
+                          fx.settled.str(), fx.settles_in);
+      t.add_row({"", "", "", "", "", "", "", "", "", "", "  " + how});
+    }
+    for (const auto& l : o.lots)
+      t.add_row({"", "", "", l.quantity.str(), "", "", "", "", "", "",
+                 fmt::format("  lot {} acquired {}: cost {}, est. gain {} ({}-term)", l.lot_id,
+                             l.acquired.str(), money(l.cost), money(l.est_gain),
+                             l.long_term ? "long" : "short")});
+  }
+  std::string s = t.render(style);
+  // Each rate once, in the order first used.
+  std::vector<std::string> rates;
+  for (const auto& o : orders)
+    if (o.fx && !o.fx->quote.rate_text.empty() &&
+        std::find(rates.begin(), rates.end(), o.fx->quote.rate_text) == rates.end())
+      rates.push_back(o.fx->quote.rate_text);
+  for (const auto& r : rates) s += "rate " + r + "\n";
+  if (derived) s += "* derived from the stored rates, not stored itself\n";
+  return s + "\n";
+}
+
+std::string orders_text(const std::vector<rules::Order>& orders, const Style& style,
+                        const std::string& currency = {}) {
   std::string s;
   if (orders.empty()) {
     s += "No orders.\n\n";
+  } else if (std::any_of(orders.begin(), orders.end(),
+                         [](const rules::Order& o) { return o.fx.has_value(); })) {
+    s += fx_orders_text(orders, currency, style);
   } else {
     // The reason (and the account) shorten first; then the weights now and
     // the fee make way, never the order itself.
@@ -248,15 +341,23 @@ std::string result_text(const rules::OrderPlan& plan, const Style& style) {
 std::string proposal_json(const rules::Proposal& p, std::optional<std::int64_t> saved_id) {
   std::string s;
   JsonWriter j(s);
-  begin_document(j, "propose", 3);
+  begin_document(j, "propose", 4);
   j.member("as_of", p.as_of.str());
   j.member("rule", p.rule_name);
   j.member("rule_sha256", p.rule_sha256);
   j.member("accounts", p.accounts);
+  j.member("currency", p.currency);
   planned_json(j, p.planned);
   j.member("pool_value", p.plan.pool_value);
   screen_json(j, p.screen);
-  orders_json(j, p.plan.orders);
+  orders_json(j, p.plan.orders, WithFx::yes);
+  j.key("conversions").begin_array();
+  for (const auto& c : p.conversions) {
+    j.begin_object().member("account", c.account).member("from", c.from).member("to", c.to);
+    j.member("amount", c.amount).member("about", c.about).member("rate_source", c.rate_text);
+    j.member("fee", c.fee).end_object();
+  }
+  j.end_array();
   result_json(j, p.plan);
   j.member("notes", p.notes);
   j.member("cautions", p.cautions);
@@ -268,12 +369,26 @@ std::string proposal_json(const rules::Proposal& p, std::optional<std::int64_t> 
 std::string proposal_text(const rules::Proposal& p, const Style& style) {
   std::string s =
       fmt::format("Proposal of rule '{}' as of {}\n", printable(p.rule_name), p.as_of.str());
-  s += fmt::format("Accounts: {}; pool value {}\n", printable_list(p.accounts),
-                   money(p.plan.pool_value));
+  if (p.converted)
+    s += fmt::format(
+        "Accounts: {}; pool value {} {} (other currencies converted at the latest rates on or "
+        "before {})\n",
+        printable_list(p.accounts), money(p.plan.pool_value), p.currency, p.as_of.str());
+  else
+    s += fmt::format("Accounts: {}; pool value {}\n", printable_list(p.accounts),
+                     money(p.plan.pool_value));
   s += planned_text(p.planned) + "\n";
 
   s += "1. Screen: " + screen_text(p.screen, style);
-  s += "2. Orders (estimates at the closes used)\n" + orders_text(p.plan.orders, style);
+  s += "2. Orders (estimates at the closes used)\n" + orders_text(p.plan.orders, style, p.currency);
+  if (!p.conversions.empty()) {
+    s += "Currency conversions the orders need (estimates)\n";
+    for (const auto& c : p.conversions)
+      s += fmt::format("  {}: about {} {} into {} {} at {}; est. fee {} {}\n", printable(c.account),
+                       c.about.str(), c.from, c.amount.str(), c.to, c.rate_text, money(c.fee),
+                       p.currency);
+    s += "\n";
+  }
   s += "3. Result\n" + result_text(p.plan, style);
   for (const auto& n : p.notes) s += fmt::format("Note: {}\n", printable(n));
   s += "\nCautions:\n";

@@ -281,7 +281,10 @@ ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candida
       if (!enough) {
         if (words) line.excluded_reason = s.if_missing == IfMissing::fail ? first_why : whys;
       } else if (!c.has_price) {
-        if (words) line.excluded_reason = fmt::format("no close on or before {}", as_of.str());
+        if (words)
+          line.excluded_reason = c.unpriced_why.empty()
+                                     ? fmt::format("no close on or before {}", as_of.str())
+                                     : c.unpriced_why;
       } else {
         out_of_screen = false;
       }

@@ -85,6 +85,9 @@ struct Candidate {
   std::vector<std::optional<Figure>> more;
   // The name's value of the field the screen groups by (screen.within).
   std::optional<std::string> group;
+  // Why it cannot be priced in the rule's currency on the day (no exchange
+  // rate); set only with has_price false, and then the screen's reason.
+  std::string unpriced_why = {};
 };
 
 struct ScreenLine {
@@ -188,11 +191,21 @@ struct Portfolio {
   std::vector<AccountState> accounts;
 };
 
+// A price converted from the security's own currency into the pool's.
+struct QuoteFx {
+  std::string currency;   // the security's
+  Decimal local_price;    // in `currency`
+  Decimal rate;           // pool currency units per `currency` unit
+  bool derived = false;   // inverted or crossed, not a stored row
+  std::string rate_text;  // market::FxQuote::describe()
+};
+
 struct Quote {
   std::string symbol;
   Decimal price;         // close on or before the as-of day, else the last trade price
   bool tradable = true;  // false: no close; valued, never traded
   Decimal lot_size{1};
+  std::optional<QuoteFx> fx = std::nullopt;  // set when `price` is converted
 };
 using Quotes = std::unordered_map<std::int64_t, Quote>;
 
@@ -221,6 +234,17 @@ struct Order {
   Decimal weight_now, weight_target;  // fractions of the pool, 6 places
   std::string reason;
   std::vector<LotTake> lots;  // sells, when lots were given
+  // A security in another currency than the pool's (rules/fx_orders.h).
+  struct Fx {
+    QuoteFx quote;
+    Decimal local_value;  // quantity x local price
+    // Buys: the local units paid from cash in that currency, and the rest,
+    // settled in the account's currency (`settles_in`) for about `settled`.
+    // Sells: the proceeds kept in that currency (`from_cash`).
+    Decimal from_cash, local_settled, settled;
+    std::string settles_in;  // the account's currency; empty when nothing settles
+  };
+  std::optional<Fx> fx = std::nullopt;
 };
 
 struct Skipped {

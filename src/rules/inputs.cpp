@@ -40,8 +40,15 @@ std::optional<std::string> keep_currency(const Rule& rule, const std::string& cu
       left_out, left_out == 1 ? "" : "s", currency, left_out == 1 ? "is" : "are");
 }
 
-Inputs::Inputs(const Rule& rule, const market::View& view, std::optional<std::string> currency)
-    : rule_(rule), currency_(std::move(currency)) {
+std::string no_rate_text(const std::string& from, const std::string& to, Date day) {
+  return fmt::format("no exchange rate for {}/{} on or before {}", from, to, day.str());
+}
+
+Inputs::Inputs(const Rule& rule, const market::View& view, std::optional<std::string> currency,
+               Convert convert)
+    : rule_(rule), currency_(std::move(currency)), convert_(convert) {
+  if (convert_ == Convert::yes && !currency_)
+    throw std::logic_error("rules::Inputs: converting needs a currency");
   for (const auto& m : rule.screen.metrics()) metrics_.push_back(m.name);
   auto find = [&](const std::string& symbol, std::string_view key) {
     const Security* s = view.security(symbol);
@@ -85,12 +92,13 @@ Inputs::Inputs(const Rule& rule, const market::View& view, std::optional<std::st
                                      fmt::join(seen, ", ")));
     if (!seen.empty()) currency_ = *seen.begin();
   }
-  if (currency_)
+  if (currency_ && convert_ == Convert::no)
     if (auto note = keep_currency(rule, *currency_, sleeves, universe))
       notes_.push_back(std::move(*note));
   for (const Security* s : universe) {
     universe_.push_back(s->id);
     symbols_.push_back(s->symbol);
+    currencies_.push_back(s->currency);
   }
 
   const auto names = view.metric_names();
@@ -106,6 +114,13 @@ Inputs::Inputs(const Rule& rule, const market::View& view, std::optional<std::st
       why += "; import metrics first ('keel import metrics FILE')";
     rule.fail(rule.screen.metric_list.empty() ? "screen.metric" : "screen.metrics", why);
   }
+}
+
+std::string Inputs::unpriced(const market::View& view, const std::string& currency,
+                             Date day) const {
+  if (convert_ == Convert::no || currency == *currency_ || view.try_rate(currency, *currency_, day))
+    return {};
+  return no_rate_text(currency, *currency_, day);
 }
 
 std::optional<std::string> Inputs::group_of(const market::View& view, std::int64_t id) const {
@@ -197,6 +212,10 @@ std::vector<Candidate> Inputs::candidates_without_track(const market::View& view
         any = any || f;
       }
       if (any) c.has_price = series->has(row, col);
+      if (c.has_price) {
+        c.unpriced_why = unpriced(view, currencies_[i], day);
+        c.has_price = c.unpriced_why.empty();
+      }
       c.group = group_of(view, id);
       out.push_back(std::move(c));
     }
@@ -220,6 +239,10 @@ std::vector<Candidate> Inputs::candidates_without_track(const market::View& view
       any = any || f;
     }
     if (any) c.has_price = view.has_close(id, day);
+    if (c.has_price) {
+      c.unpriced_why = unpriced(view, currencies_[i], day);
+      c.has_price = c.unpriced_why.empty();
+    }
     c.group = group_of(view, id);
     out.push_back(std::move(c));
   }
@@ -241,23 +264,28 @@ Selection Inputs::select(const market::View& view, Date day, const std::set<std:
     if (!targeted.count(id))
       out.targets.push_back(Target{id, view.security(id)->symbol, Decimal(), false, std::nullopt,
                                    true, "not in the rule's universe"});
-  for (std::size_t i = 0; i < sleeves_.size(); ++i)
+  for (std::size_t i = 0; i < sleeves_.size(); ++i) {
     if (!view.has_close(sleeves_[i], day))
       rule_.fail("sleeve.symbol",
                  fmt::format("sleeve '{}' has no close on or before {}",
                              printable(rule_.weights.sleeves[i].symbol), day.str()));
+    if (const auto why = unpriced(view, view.security(sleeves_[i])->currency, day); !why.empty())
+      rule_.fail("sleeve.symbol",
+                 fmt::format("sleeve '{}': {}", printable(rule_.weights.sleeves[i].symbol), why));
+  }
   return out;
 }
 
 Quotes Inputs::quotes(const market::View& view, Date day, const std::vector<Target>& targets,
                       const std::set<std::int64_t>& held, const LastTrade& last_trade,
                       std::vector<std::string>& notes) const {
-  return quote_names(view, day, targets, held, last_trade, notes);
+  return quote_names(view, day, targets, held, last_trade, notes,
+                     convert_ == Convert::yes ? currency_ : std::nullopt);
 }
 
 Quotes quote_names(const market::View& view, Date day, const std::vector<Target>& targets,
                    const std::set<std::int64_t>& held, const Inputs::LastTrade& last_trade,
-                   std::vector<std::string>& notes) {
+                   std::vector<std::string>& notes, const std::optional<std::string>& into) {
   Quotes quotes;
   auto add = [&](std::int64_t id, bool wanted) {
     if (quotes.count(id)) return;
@@ -287,6 +315,21 @@ Quotes quote_names(const market::View& view, Date day, const std::vector<Target>
       notes.push_back(fmt::format(
           "{}: no close on or before {}; valued at {}", printable(s.symbol), day.str(),
           trade ? "its last trade price " + trade->price.str() : "zero (it never traded)"));
+    }
+    if (into && s.currency != *into) {
+      if (const auto fx = view.try_rate(s.currency, *into, day)) {
+        q.fx = QuoteFx{s.currency, q.price, fx->rate,
+                       fx->how == market::FxHow::inverted || fx->how == market::FxHow::crossed,
+                       fx->describe()};
+        q.price = (q.price * fx->rate).rounded(Inputs::kQuotePlaces);
+      } else {
+        // Never traded: spending or raising cash through a missing rate
+        // would be a guess.
+        q.tradable = false;
+        q.price = Decimal();
+        notes.push_back(fmt::format("{}: {}; valued at zero and not traded", printable(s.symbol),
+                                    no_rate_text(s.currency, *into, day)));
+      }
     }
     quotes.emplace(id, std::move(q));
   };

@@ -12,12 +12,17 @@
 //      screen.metric: the ledger holds no figures for metric 'X'; then
 //        "did you mean 'Y'?", or the stored metrics, or how to import some
 //    and a universe of every stock in a ledger without any is refused too.
-//  - The rule trades in one currency (keel does not convert between
-//    currencies yet): `currency` when given (the accounts' or the ledger's),
-//    else the first sleeve's, else the one its universe shares; a universe in
-//    several currencies with none of these is refused at scope. Then
-//    keep_currency() applies; its note is in notes(). Checked after the
-//    universe and before the metric.
+//  - The rule values in one currency: `currency` when given (the accounts'
+//    or the ledger's), else the first sleeve's, else the one its universe
+//    shares; a universe in several currencies with none of these is refused
+//    at scope. Without conversion (Convert::no) keep_currency() then applies;
+//    its note is in notes(). Checked after the universe and before the metric.
+//  - With Convert::yes (a given currency required) names in other currencies
+//    stay in: a name without an exchange rate into the rule's currency on a
+//    day (View::try_rate) has no price that day, and the screen says which
+//    pair and day; quotes() converts closes and trade prices at the day's
+//    rate (QuoteFx), to kQuotePlaces; a held name without a rate is valued
+//    at zero and never traded, with a note; a sleeve without one is refused.
 //  - candidates(view, day, held): a universe name that a merger or delisting
 //    took off the market on or before `day` (View::ended) is marked so, and
 //    the screen leaves it out from that day.
@@ -61,12 +66,17 @@ struct Selection {
   std::optional<Refusal> refusal;  // why the rule holds nothing on the day
 };
 
+enum class Convert { no, yes };
+
 class Inputs {
  public:
   static constexpr int kOldCloseDays = 7;
+  // A converted price is an estimate; six places keep an order's value
+  // within a cent of the exact product for any quantity below 10^4.
+  static constexpr int kQuotePlaces = 6;
 
   Inputs(const Rule& rule, const market::View& view,
-         std::optional<std::string> currency = std::nullopt);
+         std::optional<std::string> currency = std::nullopt, Convert convert = Convert::no);
 
   const std::vector<std::int64_t>& universe() const { return universe_; }
   const std::vector<std::int64_t>& sleeves() const { return sleeves_; }
@@ -109,18 +119,27 @@ class Inputs {
 
   std::vector<std::string> metrics_;  // the screen's, in order
   std::vector<std::int64_t> universe_;
-  std::vector<std::string> symbols_;  // of the universe
+  std::vector<std::string> symbols_;     // of the universe
+  std::vector<std::string> currencies_;  // of the universe
+  // Why the universe name in `currency` has no price in the rule's on `day`
+  // (empty when it has).
+  std::string unpriced(const market::View& view, const std::string& currency, Date day) const;
   std::vector<std::int64_t> sleeves_;
   std::optional<std::string> currency_;
+  Convert convert_ = Convert::no;
   std::vector<std::string> notes_;
   const TrackRecord* track_ = nullptr;
 };
 
 // Inputs::quotes() without a rule: for names a plan holds outside any rule's
 // universe (a fixed sleeve, unmanaged holdings).
+// With `into`, prices in other currencies are converted (Convert::yes).
 Quotes quote_names(const market::View& view, Date day, const std::vector<Target>& targets,
                    const std::set<std::int64_t>& held, const Inputs::LastTrade& last_trade,
-                   std::vector<std::string>& notes);
+                   std::vector<std::string>& notes,
+                   const std::optional<std::string>& into = std::nullopt);
+// "no exchange rate for USD/EUR on or before 2025-03-03"
+std::string no_rate_text(const std::string& from, const std::string& to, Date day);
 
 // A rule trades in one currency (keel does not convert between currencies
 // yet): a sleeve or a listed symbol priced in another than `currency` is

@@ -496,6 +496,7 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
   auto account_order = [&](std::int64_t id) {
     std::vector<std::size_t> order;
     for (std::size_t a = 0; a < n_accounts; ++a) order.push_back(a);
+    if (n_accounts == 1) return order;
     const bool place = placed(id);
     std::stable_sort(order.begin(), order.end(), [&](std::size_t a, std::size_t c) {
       if (place && deferred(a) != deferred(c)) return deferred(a);
@@ -505,6 +506,8 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
     });
     return order;
   };
+  // A unit's cost with the proportional fee, as a multiple of its price.
+  const Decimal fee_factor = Decimal(1) + trading.fee_bps * basis_point();
   // Adds to `b` in account `a` at most `max_q` units costing at most `budget`
   // (fees included); returns the amount spent. An order's value stays at or
   // above the minimum trade.
@@ -519,7 +522,7 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
         it == b.by_account.end() ? Decimal() : it->second.value + it->second.fee;
     const Decimal limit = std::min(budget, spendable[a]);
     // Largest added quantity whose order (value + fee) grows by at most `limit`.
-    const Decimal unit = price * (Decimal(1) + trading.fee_bps * basis_point());
+    const Decimal unit = price * fee_factor;
     Decimal q =
         floor_to(Decimal::divide(limit + have_cost - trading.fee_fixed, unit, 10), step) - have_q;
     auto grown = [&](const Decimal& add_q) {

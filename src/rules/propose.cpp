@@ -36,7 +36,8 @@ std::vector<std::string> proposal_cautions(Date as_of) {
 }
 
 std::vector<Account> pool_accounts(store::Database& db, const std::vector<std::string>& names,
-                                   const std::function<void(const std::string&)>& fail) {
+                                   const std::function<void(const std::string&)>& fail,
+                                   MixedCurrencies mixed) {
   std::vector<Account> pool;
   std::vector<std::string> known;
   for (const auto& a : store::list_accounts(db)) known.push_back(a.name);
@@ -47,11 +48,12 @@ std::vector<Account> pool_accounts(store::Database& db, const std::vector<std::s
                        known.empty() ? "" : " (accounts: " + printable_list(known) + ")"));
     pool.push_back(*a);
   }
-  if (const auto mixed = ledger::mixed_currencies(pool))
-    fail(
-        fmt::format("the accounts keep different currencies ({}) and keel does not convert "
-                    "between them yet; give each currency a rule of its own",
-                    *mixed));
+  if (mixed == MixedCurrencies::refuse)
+    if (const auto kept = ledger::mixed_currencies(pool))
+      fail(
+          fmt::format("the accounts keep different currencies ({}) and keel does not convert "
+                      "between them yet; give each currency a rule of its own",
+                      *kept));
   return pool;
 }
 
@@ -127,23 +129,26 @@ Portfolio portfolio_of(const Book& book, const std::vector<Account>& pool,
 }
 
 Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_of_opt,
-                 std::vector<PlannedCash> planned) {
+                 std::vector<PlannedCash> planned, std::optional<std::string> currency) {
   Proposal p;
   p.rule_name = rule.name;
   p.rule_sha256 = io::sha256_hex(rule.text);
   const market::DayView view(db);
   const auto pool = pool_accounts(
-      db, rule.accounts, [&](const std::string& why) { rule.fail("scope.accounts", why); });
+      db, rule.accounts, [&](const std::string& why) { rule.fail("scope.accounts", why); },
+      MixedCurrencies::allow);
   for (const auto& a : pool) p.accounts.push_back(a.name);
+  p.currency = currency ? *currency : pool.front().currency;
 
-  const auto log = pool_log(db, pool);
+  const auto log = ledger::load_log(db);
   p.as_of = choose_as_of(view, log, pool, as_of_opt, "the rule's accounts", p.notes);
   const Date as_of = p.as_of;
   resolve_planned(planned, pool, "rule");
   p.planned = std::move(planned);
+  require_rates(pool, p.currency, view, as_of);
 
   // The universe and the sleeves, checked before the ledger is replayed.
-  Inputs inputs(rule, view, pool.front().currency);
+  Inputs inputs(rule, view, p.currency, Convert::yes);
   p.notes.insert(p.notes.end(), inputs.notes().begin(), inputs.notes().end());
   std::unique_ptr<LedgerTrackRecord> track;
   if (rule.track_record) track = std::make_unique<LedgerTrackRecord>(db, rule, inputs, view, as_of);
@@ -153,7 +158,8 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
   const Book& book = replayer.advance_to(as_of);
   p.last_txn_id = store::last_transaction_id(db);
   std::set<std::int64_t> held;
-  Portfolio portfolio = portfolio_of(book, pool, held);
+  FxPool fx_state = fx_pool(book, pool, p.currency, view, as_of, held, p.notes);
+  Portfolio& portfolio = fx_state.portfolio;
   const auto statuses = ledger::TaxStatuses::load(db);
   for (auto& a : portfolio.accounts) a.tax = statuses.on(a.id, as_of);
 
@@ -176,6 +182,12 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
       if (t.sleeve && s.place_deferred && s.symbol == t.symbol) placed.insert(t.security_id);
   HouseholdPrefs prefs = household_prefs(rule.tax, std::move(placed), Decimal());
   apply_planned(portfolio, p.planned, prefs);
+  // Planned cash is in the account's own currency (as the proposal's when
+  // they differ: see docs/rules.md); the settlement spends it there.
+  for (const auto& c : p.planned)
+    for (std::size_t a = 0; a < portfolio.accounts.size(); ++a)
+      if (portfolio.accounts[a].name == c.account)
+        fx_state.cash[a][fx_state.currency[a]] += c.amount;
   refuse_unraisable(portfolio, quotes, prefs, as_of);
 
   Decimal pool_value;
@@ -191,6 +203,12 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
 
   p.plan = orders(portfolio, p.targets, quotes, rule.trading, as_of, Explain::all, prefs);
   refuse_ungiven(portfolio, p.plan, prefs, rule.tax.gain_cap, as_of);
+  p.converted = fx_state.converted || std::any_of(quotes.begin(), quotes.end(), [](const auto& q) {
+                  return q.second.fx.has_value();
+                });
+  if (p.converted)
+    p.conversions =
+        settle(p.plan, fx_state, quotes, p.currency, rule.trading, view, as_of, p.notes);
   p.cautions = proposal_cautions(as_of);
   if (rule.tax_keys()) p.cautions.push_back(tax_caution("rule"));
   return p;
@@ -202,7 +220,8 @@ store::ProposalOrderRow proposal_order_row(const Order& o) {
   r.security_id = o.security_id;
   r.side = std::string(to_string(o.side));
   r.quantity = o.quantity;
-  r.price = o.price;
+  // The price a fill will be compared with: the name's own.
+  r.price = o.fx ? o.fx->quote.local_price : o.price;
   r.value = o.value;
   r.fee = o.fee;
   r.weight_now = o.weight_now;

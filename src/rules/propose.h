@@ -11,9 +11,17 @@
 //    the rule's accounts, so orders already filled are not proposed again; a
 //    given as-of with transactions after it gets a note saying so. It reads
 //    the ledger and writes nothing.
+//  - Across currencies: the pool is valued in `currency` (by default the
+//    first account's): foreign holdings, foreign cash and accounts in other
+//    currencies are converted at the as-of day's rates (rules/fx_orders.h);
+//    names in other currencies are screened and quoted through
+//    rules::Inputs with Convert::yes, so one without a rate on the day is
+//    left out with the pair and the day. Targets and order values are in
+//    `currency`; each order of a foreign name carries its local price, the
+//    rate and how it settles (Order::Fx), and the conversions the orders
+//    need are listed with their estimated fees.
 //  - Problems of the rule meeting this ledger are InputErrors located at the
-//    rule key (Rule::fail): an account it does not hold, accounts keeping
-//    different currencies, and whatever rules::Inputs refuses
+//    rule key (Rule::fail): an account it does not hold, and whatever rules::Inputs refuses
 //    (rules/inputs.h), in the words the back-test and the signal check use
 //    too. A day on which the rule selects nothing (too few names, no spread,
 //    nothing selected, weights that cannot add up) is refused with the
@@ -45,6 +53,7 @@
 #include "model/records.h"
 #include "model/security.h"
 #include "rules/engine.h"
+#include "rules/fx_orders.h"
 #include "rules/planned_cash.h"
 #include "rules/rule.h"
 #include "store/database.h"
@@ -57,6 +66,9 @@ struct Proposal {
   std::string rule_name;
   std::string rule_sha256;
   std::vector<std::string> accounts;
+  std::string currency;    // what the pool, targets and order values are in
+  bool converted = false;  // some amount or price was converted into it
+  std::vector<Conversion> conversions;
   ScreenResult screen;
   std::vector<Target> targets;
   OrderPlan plan;
@@ -66,15 +78,19 @@ struct Proposal {
   std::int64_t last_txn_id = 0;
 };
 
-// `planned`: cash planned with and never booked (rules/planned_cash.h).
+// `planned`: cash planned with and never booked (rules/planned_cash.h);
+// `currency`: what the proposal is valued in (default: the first account's).
 Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_of = std::nullopt,
-                 std::vector<PlannedCash> planned = {});
+                 std::vector<PlannedCash> planned = {},
+                 std::optional<std::string> currency = std::nullopt);
 
 // The steps propose() shares with plan proposals (rules/plan_propose.h).
 // The named accounts; `fail` (which must throw) gets why one is missing or
-// why they cannot share a pool.
+// (unless `mixed` allows it) why they cannot share a pool.
+enum class MixedCurrencies { refuse, allow };
 std::vector<Account> pool_accounts(store::Database& db, const std::vector<std::string>& names,
-                                   const std::function<void(const std::string&)>& fail);
+                                   const std::function<void(const std::string&)>& fail,
+                                   MixedCurrencies mixed = MixedCurrencies::refuse);
 // The ledger's log, refused (ledger/fx_cash.h) when the accounts hold rows in
 // another currency.
 LedgerLog pool_log(store::Database& db, const std::vector<Account>& pool);

@@ -515,6 +515,19 @@ row("propose: --repurchase-window below one day",
     ["propose", "--rule", "{d}/rule.toml", "--repurchase-window", "0"], INPUT,
     "keel: error: --repurchase-window: '0' days; give 1 or more (the window is off unless given)",
     {"rule.toml": b"[scope]\naccounts = [\"Alder Taxable\"]\n\n[select]\nz_max = -0.5\n"})
+row("propose: --currency with no rate path from an account's currency",
+    ["propose", "--rule", "{d}/rule.toml", "--currency", "JPY"], INPUT,
+    "keel: error: --currency JPY: account 'Alder Taxable' keeps USD and the proposal is valued in "
+    "JPY: no exchange rate for USD/JPY on or before 2024-02-01; import one with 'keel import fx "
+    "FILE.csv'",
+    {"rule.toml": b"[scope]\naccounts = [\"Alder Taxable\"]\n\n[select]\nz_max = -0.5\n"})
+row("propose: --currency not an ISO 4217 code",
+    ["propose", "--rule", "{d}/rule.toml", "--currency", "DOLLARS"], INPUT,
+    "keel: error: --currency: 'DOLLARS' is not an ISO 4217 currency code (such as EUR, USD, JPY)",
+    {"rule.toml": b"[scope]\naccounts = [\"Alder Taxable\"]\n\n[select]\nz_max = -0.5\n"})
+row("propose: --currency with --plan",
+    ["propose", "--plan", "{d}/plan.toml", "--currency", "EUR"], INPUT,
+    "keel: error: --currency: applies only with --rule")
 RULE_HEAD = b"[scope]\naccounts = [\"Alder Taxable\"]\n"
 row("rule: a track-record window shorter than its horizon",
     ["propose", "--rule", "{d}/track-1.toml"], INPUT,

@@ -438,7 +438,7 @@ print("propose --plan --withdraw: the withdrawal's sale does the rebalance's wor
 # its cash and orders booked as filled, it is at rest and its planned cash shows as booked.
 both = os.path.join(N, "rules", "both.toml")
 first = net.json("propose", "--rule", both, "--withdraw", "Retirement=500", "--save")
-equal(first["schema"], {"name": "keel.propose", "version": 3}, "the rule proposal's schema")
+equal(first["schema"], {"name": "keel.propose", "version": 4}, "the rule proposal's schema")
 equal(first["planned_cash"], [{"account": "Retirement", "amount": "-500", "booked": False}],
       "a rule's planned withdrawal, not booked")
 equal([(o["account"], o["symbol"], o["side"], o["quantity"]) for o in first["orders"]],

@@ -10,9 +10,17 @@ equal weights, daily portfolio values (splits multiply units at the start of
 their date; distributions are reinvested at the ex-date's close) and the
 time-weighted return (pandas pct_change linked daily).
 
+Across currencies (--currency C --rates FILE): every close of a name priced in
+another currency is multiplied by the rate into C known on the day: the latest
+row on or before it of FILE (date,base,quote,rate), stored as that pair
+(direct) or the reverse one (1 / rate); a name has no price until its first
+rate. Distributions are reinvested at the converted close, so their value is
+converted at the ex-date's rate too.
+
 Usage: backtest_reference.py DATA_DIR --metric M --cheap low|high --z-max Z
        [--exit-z Z] --max-age-days N --min-names N --from D --to D
        [--start-value V] [--rebalance-months K] [--keep-non-positive]
+       [--currency C --rates FILE]
 Prints JSON: rebalance_days, rule {twr, curve}, baseline {twr, curve}.
 """
 import argparse
@@ -64,6 +72,8 @@ def main():
     ap.add_argument("--to", dest="end", required=True)
     ap.add_argument("--start-value", type=float, default=100000.0)
     ap.add_argument("--rebalance-months", type=int, default=1)
+    ap.add_argument("--currency")
+    ap.add_argument("--rates")
     a = ap.parse_args()
     start, end = pd.Timestamp(a.start), pd.Timestamp(a.end)
 
@@ -72,6 +82,19 @@ def main():
     close = prices.pivot(index="date", columns="symbol", values="close").sort_index()
     all_days = close.index
     held_close = close.reindex(columns=universe).ffill()  # close on or before each day
+    if a.currency:
+        rates = pd.read_csv(a.rates, dtype={"base": str, "quote": str, "rate": float},
+                            parse_dates=["date"])
+        currency_of = sec.set_index("symbol")["currency"]
+        for code in sorted(set(currency_of[universe]) - {a.currency}):
+            direct = rates[(rates.base == code) & (rates.quote == a.currency)]
+            inverse = rates[(rates.base == a.currency) & (rates.quote == code)]
+            series = pd.concat([direct.set_index("date")["rate"],
+                                1.0 / inverse.set_index("date")["rate"]]).sort_index()
+            series = series[~series.index.duplicated(keep="first")]
+            on_day = series.reindex(series.index.union(all_days)).ffill().reindex(all_days)
+            names = [s for s in universe if currency_of[s] == code]
+            held_close[names] = held_close[names].mul(on_day, axis=0)
     rebal = rebalance_days(all_days, start, end, a.rebalance_months)
     metric_rows = metrics[(metrics["metric"] == a.metric) & metrics["symbol"].isin(universe)]
     metric_rows = metric_rows.sort_values(["symbol", "date", "known_on"], kind="stable")

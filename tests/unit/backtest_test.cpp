@@ -190,7 +190,9 @@ TEST_CASE("backtest: the report always carries the cautions") {
   CHECK(r.cautions[2].rfind("Past results do not predict", 0) == 0);
 }
 
-TEST_CASE("backtest: a universe in two currencies is refused while the ledger has no currency") {
+TEST_CASE(
+    "backtest: a universe in two currencies is refused while the ledger has no currency, "
+    "and converted once it has one") {
   Market m;
   keel::Security s;
   s.symbol = "EURO";
@@ -203,12 +205,13 @@ TEST_CASE("backtest: a universe in two currencies is refused while the ledger ha
       "does not convert between currencies yet: narrow it to one with "
       "scope.sector or scope.symbols",
       keel::InputError);
-  // With the ledger's currency recorded, the other one's stocks are left out, with a note.
+  // With the ledger's currency recorded, the other one's stocks stay in the
+  // universe, valued in USD at each day's rate (none here: never priced).
   keel::store::set_ledger_currency(m.f.db, "USD");
   const auto r = m.run();
-  CHECK(std::find(r.notes.begin(), r.notes.end(),
-                  "1 stock priced in other currencies than USD is left out of the universe (keel "
-                  "does not convert between currencies yet)") != r.notes.end());
+  CHECK(std::none_of(r.notes.begin(), r.notes.end(),
+                     [](const std::string& n) { return n.find("left out") != std::string::npos; }));
+  CHECK(r.symbols.count(keel::store::security_with_symbol(m.f.db, "EURO").id) == 1);
 }
 
 // Expected values: scipy.stats.spearmanr 1.10.1 (Debian 12 python3-scipy).

@@ -4,6 +4,9 @@
 
 #include <doctest/doctest.h>
 
+#include <limits>
+#include <vector>
+
 #include "core/error.h"
 
 using keel::Decimal;
@@ -181,4 +184,46 @@ TEST_CASE("decimal: machine-word division and rounding agree with the general pa
         a.is_negative() ? "-10000000000000000000000000" : "10000000000000000000000000");
     REQUIRE(a.truncated(places) == (a + shift).truncated(places) - shift);
   }
+}
+
+// A mantissa is kept in a machine word while it fits and in a multi-precision
+// integer past it; each value has one form, so values reached either way are equal.
+TEST_CASE("decimal: a value that leaves the machine word and comes back equals its small form") {
+  const Decimal max64 = d("9223372036854775807");  // 2^63 - 1 (from memory, as above)
+  const Decimal back = (max64 + d("1")) - d("1");
+  CHECK(back == max64);
+  CHECK(back.str() == "9223372036854775807");
+  CHECK((back <=> max64) == std::strong_ordering::equal);
+  // 10^20 x 10^-20 normalizes to 1, a small mantissa again.
+  const Decimal one = d("100000000000000000000") * d("0.00000000000000000001");
+  CHECK(one == Decimal(1));
+  CHECK(one.scale() == 0);
+  CHECK(Decimal::divide(d("18446744073709551614"), d("2"), 0) == max64);
+}
+
+TEST_CASE("decimal: the lowest machine integer is exact in every operation") {
+  const Decimal lowest(std::numeric_limits<long long>::min());
+  CHECK(lowest.str() == "-9223372036854775808");
+  CHECK((-lowest).str() == "9223372036854775808");
+  CHECK((lowest + Decimal(1)).str() == "-9223372036854775807");
+  CHECK((lowest - Decimal(1)).str() == "-9223372036854775809");
+  CHECK(Decimal::scaled(std::numeric_limits<long long>::min(), 3).str() == "-9223372036854775.808");
+  CHECK(lowest == d("-9223372036854775808"));
+}
+
+TEST_CASE("decimal: copies and moves keep values past the machine word") {
+  const Decimal big = d("123456789012345678901234567890.5");
+  Decimal copy = big;
+  CHECK(copy == big);
+  Decimal moved = std::move(copy);
+  CHECK(moved == big);
+  Decimal small = d("2.5");
+  small = big;  // a small value takes a big one
+  CHECK(small == big);
+  small = d("2.5");  // and a big one a small one
+  CHECK(small.str() == "2.5");
+  std::vector<Decimal> many(100, big);
+  many.push_back(d("1"));  // reallocation moves every element
+  CHECK(many.front() == big);
+  CHECK(many.back() == Decimal(1));
 }

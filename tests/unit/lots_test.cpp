@@ -346,6 +346,11 @@ TEST_CASE("allocate: a negative total gives parts of its sign that add up to it"
   CHECK(sum(parts) == dec("-4.99"));
 }
 
+TEST_CASE("allocate: a single part takes the whole total, below the grid too") {
+  CHECK(allocate(dec("-12.34567"), decs({"3"}), 2) == decs({"-12.34567"}));
+  CHECK(allocate(dec("0"), decs({"0.5"}), 2) == decs({"0"}));
+}
+
 TEST_CASE("allocate: ties in the remainders go to the earlier parts") {
   CHECK(allocate(dec("0.02"), decs({"1", "1", "1"}), 2) == decs({"0.01", "0.01", "0"}));
 }

@@ -209,43 +209,153 @@ TEST_CASE("propose: posting the orders and proposing again finds nothing to do")
   CHECK(again.plan.cash_after_total == Decimal(91));
 }
 
-TEST_CASE("propose: stocks priced in another currency are left out of the universe, with a note") {
-  Month m;
-  m.stock("EURO", "1", SecurityKind::stock, "EUR");
-  m.closes({{"EURO", "2024-05-31", "3"}});
-  m.figures("pe", {{"EURO", "2024-03-31", "2024-04-30", "1"}});  // the cheapest of all
+// The month with a euro stock that is the cheapest of all and a rate for it.
+struct EuroMonth : Month {
+  EuroMonth() {
+    stock("EURO", "1", SecurityKind::stock, "EUR");
+    closes({{"EURO", "2024-05-31", "3"}});
+    figures("pe", {{"EURO", "2024-03-31", "2024-04-30", "1"}});
+  }
+};
+
+TEST_CASE(
+    "propose across currencies: a name without a rate on the day is screened out, naming "
+    "the pair and the day") {
+  EuroMonth m;
   const auto p = propose(m.db, month_rule());
-  for (const auto& line : p.screen.lines) CHECK(line.symbol != "EURO");
-  CHECK(std::find(p.notes.begin(), p.notes.end(),
-                  "1 stock priced in other currencies than USD is left out of the universe (keel "
-                  "does not convert between currencies yet)") != p.notes.end());
+  const auto line = std::find_if(p.screen.lines.begin(), p.screen.lines.end(),
+                                 [](const ScreenLine& l) { return l.symbol == "EURO"; });
+  REQUIRE(line != p.screen.lines.end());
+  CHECK_FALSE(line->passed);
+  CHECK(line->excluded_reason == "no exchange rate for EUR/USD on or before 2024-05-31");
+  for (const auto& o : p.plan.orders) CHECK(o.symbol != "EURO");
+  CHECK(p.conversions.empty());
 }
 
-TEST_CASE("propose: a listed symbol or a sleeve in another currency is refused at its key") {
+TEST_CASE(
+    "propose across currencies: a name in another currency is bought at the day's rate, "
+    "settled in the account's currency") {
+  EuroMonth m;
+  m.fx({{"EUR", "USD", "2024-05-31", "1.1"}, {"EUR", "USD", "2024-06-03", "9"}});
+  const auto p = propose(m.db, month_rule());
+  CHECK(p.currency == "USD");
+  CHECK(p.converted);
+  const auto o = std::find_if(p.plan.orders.begin(), p.plan.orders.end(),
+                              [](const Order& x) { return x.symbol == "EURO"; });
+  REQUIRE(o != p.plan.orders.end());
+  // 3 EUR at 1.1 USD per EUR (the rate of 2024-05-31, not the later one).
+  CHECK(o->price == dec("3.3"));
+  CHECK(o->value == o->quantity * dec("3.3"));
+  REQUIRE(o->fx);
+  CHECK(o->fx->quote.currency == "EUR");
+  CHECK(o->fx->quote.local_price == Decimal(3));
+  CHECK(o->fx->quote.rate == dec("1.1"));
+  CHECK_FALSE(o->fx->quote.derived);
+  CHECK(o->fx->quote.rate_text == "EUR/USD 1.1 (2024-05-31)");
+  // No euro cash: all of it settles in dollars.
+  CHECK(o->fx->from_cash.is_zero());
+  CHECK(o->fx->local_settled == o->quantity * Decimal(3));
+  CHECK(o->fx->settles_in == "USD");
+  CHECK(o->fx->settled == o->value);
+  REQUIRE(p.conversions.size() == 1);
+  const auto& c = p.conversions[0];
+  CHECK((c.account == "Main" && c.from == "USD" && c.to == "EUR"));
+  CHECK(c.amount == o->fx->local_settled);
+  CHECK(c.about == o->value);
+  // The rule's fee model is 0 + 0 bps: no fee.
+  CHECK(c.fee.is_zero());
+  for (const auto& x : p.plan.orders)
+    if (x.symbol != "EURO") CHECK_FALSE(x.fx);
+}
+
+TEST_CASE(
+    "propose across currencies: cash in the name's currency pays first, and counts in "
+    "the pool at the day's rate") {
+  EuroMonth m;
+  m.fx({{"EUR", "USD", "2024-01-02", "1.25"}});
+  ledger::PostRequest r;
+  r.kind = TxnKind::deposit;
+  r.date = day("2024-01-02");
+  r.account = "Main";
+  r.amount = dec("100");
+  r.currency = "EUR";
+  ledger::post(m.db, r);
+  const auto p = propose(m.db, month_rule());
+  // The month's 10100 and 100 EUR at 1.25.
+  CHECK(p.plan.pool_value == Decimal(10225));
+  const auto o = std::find_if(p.plan.orders.begin(), p.plan.orders.end(),
+                              [](const Order& x) { return x.symbol == "EURO"; });
+  REQUIRE(o != p.plan.orders.end());
+  REQUIRE(o->fx);
+  CHECK(o->fx->from_cash == Decimal(100));
+  CHECK(o->fx->local_settled == o->fx->local_value - Decimal(100));
+  REQUIRE(p.conversions.size() == 1);
+  CHECK(p.conversions[0].amount == o->fx->local_settled);
+}
+
+TEST_CASE(
+    "propose across currencies: cash without a rate on the day is left out and never "
+    "spent") {
   Month m;
-  m.stock("EURO", "1", SecurityKind::stock, "EUR");
-  CHECK_THROWS_WITH_AS(
-      propose(m.db, month_rule("[scope]\naccounts = [\"Main\"]\nsymbols = [\"A\", \"EURO\"]\n")),
-      "month.toml:3: key 'scope.symbols': EURO is priced in EUR and the rule trades in USD; keel "
-      "does not convert between currencies yet",
-      InputError);
+  // Pounds bought at the broker's rate; the ledger has no rate for them.
+  ledger::PostRequest r;
+  r.kind = TxnKind::exchange;
+  r.date = day("2024-01-04");
+  r.account = "Main";
+  r.amount = dec("100");
+  r.to_currency = "GBP";
+  r.rate = dec("0.8");
+  ledger::post(m.db, r);
+  const auto p = propose(m.db, month_rule());
+  CHECK(std::find(p.notes.begin(), p.notes.end(),
+                  "80 GBP of cash in 'Main' is left out and not spent: no exchange rate for "
+                  "GBP/USD on or before 2024-05-31") != p.notes.end());
+  // The month's 10100 less the 100 USD exchanged.
+  CHECK(p.plan.pool_value == Decimal(10000));
+  CHECK(p.conversions.empty());
+}
+
+TEST_CASE("propose across currencies: a sleeve without a rate on the day is refused at its key") {
+  Month m;
+  m.stock("EURO", "1", SecurityKind::fund, "EUR");
+  m.closes({{"EURO", "2024-05-31", "3"}});
   CHECK_THROWS_WITH_AS(
       propose(m.db, month_rule("[scope]\naccounts = [\"Main\"]\n[[sleeve]]\nsymbol = \"EURO\"\n"
                                "weight_pct = 10\n")),
-      "month.toml:4: key 'sleeve.symbol': EURO is priced in EUR and the rule trades in USD; keel "
-      "does not convert between currencies yet",
+      "month.toml:4: key 'sleeve.symbol': sleeve 'EURO': no exchange rate for EUR/USD on or "
+      "before 2024-05-31",
       InputError);
 }
 
-TEST_CASE("propose: a pool of accounts in two currencies is refused at scope.accounts") {
+TEST_CASE(
+    "propose across currencies: accounts in two currencies are valued in the first "
+    "account's, or in the one asked") {
   Month m;
   m.account("Euro", BasisMethod::fifo, false, "EUR");
-  CHECK_THROWS_WITH_AS(
-      propose(m.db, month_rule("[scope]\naccounts = [\"Main\", \"Euro\"]\n")),
-      "month.toml:2: key 'scope.accounts': the accounts keep different currencies (Main: USD; "
-      "Euro: EUR) and keel does not convert between them yet; give each currency a rule of its "
-      "own",
-      InputError);
+  m.cash(TxnKind::deposit, "2024-01-02", "Euro", "800");
+  const auto rule = month_rule("[scope]\naccounts = [\"Main\", \"Euro\"]\n");
+  CHECK_THROWS_WITH_AS(propose(m.db, rule),
+                       "account 'Euro' keeps EUR and the proposal is valued in USD: no exchange "
+                       "rate for EUR/USD on or before 2024-05-31; import one with 'keel import fx "
+                       "FILE.csv'",
+                       InputError);
+  m.fx({{"EUR", "USD", "2024-05-31", "1.25"}});
+  // 10100 USD and 800 EUR at 1.25.
+  CHECK(propose(m.db, rule).plan.pool_value == Decimal(11100));
+  const auto in_euros = propose(m.db, rule, std::nullopt, {}, "EUR");
+  CHECK(in_euros.currency == "EUR");
+  // 10100 USD at 0.8 and 800 EUR.
+  CHECK(in_euros.plan.pool_value == Decimal(8880));
+}
+
+TEST_CASE("propose across currencies: a saved order keeps the name's own price") {
+  EuroMonth m;
+  m.fx({{"EUR", "USD", "2024-05-31", "1.1"}});
+  const auto p = propose(m.db, month_rule());
+  const auto o = std::find_if(p.plan.orders.begin(), p.plan.orders.end(),
+                              [](const Order& x) { return x.symbol == "EURO"; });
+  REQUIRE(o != p.plan.orders.end());
+  CHECK(proposal_order_row(*o).price == Decimal(3));
 }
 
 TEST_CASE("regression: fills recorded after the latest close were proposed again") {

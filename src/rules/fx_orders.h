@@ -1,0 +1,72 @@
+// A pool across currencies for `keel propose`: what it holds valued in one
+// currency (the pool's), and how its orders settle.
+//
+// Contract
+//  - fx_pool(): each account's state as the engine takes it (rules/engine.h),
+//    with every amount in `currency` at the rates known on `day`
+//    (market::View::convert, rounded to the cent of `currency`): the
+//    account's own cash, its cash in other currencies, and its lots' cost
+//    (for the estimated gains). Cash in a currency without a rate into
+//    `currency` on `day` is left out, with a note naming the pair and the
+//    day, and is never spent. An account whose own currency has no rate into
+//    `currency` throws InputError naming the pair and the day.
+//    `cash` keeps what each account may spend, by currency, in its units.
+//  - settle(): each order of a name in another currency than the pool's or
+//    the account's gets its Order::Fx: the local price and value and the
+//    rate used. In posting order (sells first): a sale's proceeds are kept
+//    in the name's currency; a buy is paid from cash in the name's currency
+//    first, and the rest settles in the account's currency at about the
+//    day's rate. Estimated fees (in the pool's currency) are paid from the
+//    account's own cash. An account whose own cash would end below zero is
+//    covered from its other cash (currencies in alphabetical order). Every
+//    amount settled or covered is a Conversion (one per account and pair)
+//    with its fee from the rule's fee model on its value in the pool's
+//    currency; the fees are added to the plan's estimated fees and taken
+//    from the accounts' cash after. An account still short after that gets a
+//    note. Nothing here is booked: these are estimates.
+#pragma once
+
+#include <map>
+#include <set>
+#include <string>
+#include <vector>
+
+#include "core/date.h"
+#include "core/decimal.h"
+#include "ledger/book.h"
+#include "market/view.h"
+#include "model/records.h"
+#include "rules/engine.h"
+
+namespace keel::rules {
+
+struct FxPool {
+  Portfolio portfolio;                               // amounts in the pool's currency
+  std::vector<std::string> currency;                 // each account's own
+  std::vector<std::map<std::string, Decimal>> cash;  // spendable, by currency, in its units
+  bool converted = false;                            // some amount was converted
+};
+
+// Throws fx_pool()'s InputError for an account whose currency has no rate
+// into `currency` on `day` (before anything is replayed).
+void require_rates(const std::vector<Account>& pool, const std::string& currency,
+                   const market::View& view, Date day);
+
+FxPool fx_pool(const Book& book, const std::vector<Account>& pool, const std::string& currency,
+               const market::View& view, Date day, std::set<std::int64_t>& held,
+               std::vector<std::string>& notes);
+
+struct Conversion {
+  std::string account;
+  std::string from, to;
+  Decimal amount;         // in `to`: what the orders need
+  Decimal about;          // in `from`, at the day's rate, to its minor units
+  std::string rate_text;  // the rate used (market::FxQuote::describe())
+  Decimal fee;            // estimate, in the pool's currency
+};
+
+std::vector<Conversion> settle(OrderPlan& plan, const FxPool& pool, const Quotes& quotes,
+                               const std::string& currency, const TradingRule& trading,
+                               const market::View& view, Date day, std::vector<std::string>& notes);
+
+}  // namespace keel::rules
