@@ -17,6 +17,7 @@ struct ReturnsOptions {
   std::string account, from, to, year, period, as_of, benchmark, method = "daily", risk_free,
                                                                  currency;
   bool monthly = false;
+  bool local = false;
   bool json = false;
 };
 
@@ -24,8 +25,8 @@ void add_returns(CLI::App& app, Context& ctx) {
   auto o = std::make_shared<ReturnsOptions>();
   auto* cmd = app.add_subcommand(
       "returns", "Time- and money-weighted returns, risk and a monthly table over a period");
-  add_examples(*cmd,
-               {"keel returns --year 2025 --benchmark ZXTR", "keel returns --period 3y --monthly"});
+  add_examples(*cmd, {"keel returns --year 2025 --benchmark ZXTR --local",
+                      "keel returns --period 3y --monthly"});
   add_account_option(*cmd, o->account, "Only this account (default: the whole ledger)");
   cmd->add_option("--from", o->from, "First day of the period, YYYY-MM-DD");
   cmd->add_option("--to", o->to, "Last day of the period, YYYY-MM-DD");
@@ -42,12 +43,19 @@ void add_returns(CLI::App& app, Context& ctx) {
                   "Annual risk-free rate as a fraction (0.02 = 2 %), for the Sharpe ratio");
   cmd->add_flag("--monthly", o->monthly, "Show the month-by-month table");
   add_currency_option(*cmd, o->currency);
+  cmd->add_flag("--local", o->local,
+                "Also each account's time- and money-weighted returns in its own currency");
   add_json_flag(*cmd, o->json);
   cmd->callback([&ctx, o] {
     if (o->method != "daily" && o->method != "dietz")
       throw InputError(
           fmt::format("--method: '{}' is not a method; choose daily or dietz", o->method));
+    if (o->local && o->monthly)
+      throw InputError(
+          "--local: gives each account's returns over the whole period, not month by month; "
+          "leave out --monthly");
     perf::ReturnsRequest request;
+    request.local = o->local;
     request.account = text_option(o->account);
     request.period.from = date_option(o->from, "--from");
     request.period.to = date_option(o->to, "--to");

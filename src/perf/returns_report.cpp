@@ -157,6 +157,31 @@ PeriodReports reports_of(store::Database& db, const LedgerData& data, const Scop
   return out;
 }
 
+// Each account of the scope measured again with its own currency as the
+// reporting currency (the same code as the report itself); the benchmark is
+// left out, since it is compared in the reporting currency only.
+void add_local(store::Database& db, const LedgerData& data, const ReturnsRequest& request,
+               ReturnsReport& report) {
+  if (!request.local) return;
+  std::vector<Account> accounts;
+  if (request.account) {
+    accounts.push_back(*store::find_account(db, *request.account));
+  } else {
+    accounts = store::list_accounts(db);
+  }
+  for (const auto& account : accounts) {
+    ReturnsRequest one = request;
+    one.account = account.name;
+    one.currency = std::nullopt;  // the account's own
+    one.benchmark = std::nullopt;
+    one.local = false;
+    const Scope scope = scope_of(db, one.account, one.currency);
+    auto measured = reports_of(db, data, scope, {one}).reports.front();
+    report.local.push_back(
+        LocalReturns{account.name, measured.currency, std::move(measured.result)});
+  }
+}
+
 }  // namespace
 
 ResolvedPeriod resolve(const LedgerData& data, const ReturnsRequest& request) {
@@ -182,13 +207,19 @@ LedgerData LedgerData::load(store::Database& db) {
 // reported as such whatever the rest of the ledger holds.
 ReturnsReport returns_report(store::Database& db, const ReturnsRequest& request) {
   const Scope scope = scope_of(db, request.account, request.currency);
-  return reports_of(db, LedgerData::load(db), scope, {request}).reports.front();
+  const LedgerData data = LedgerData::load(db);
+  ReturnsReport report = reports_of(db, data, scope, {request}).reports.front();
+  add_local(db, data, request, report);
+  return report;
 }
 
 ReturnsReport returns_report(store::Database& db, const LedgerData& data,
                              const ReturnsRequest& request) {
-  return reports_of(db, data, scope_of(db, request.account, request.currency), {request})
-      .reports.front();
+  ReturnsReport report =
+      reports_of(db, data, scope_of(db, request.account, request.currency), {request})
+          .reports.front();
+  add_local(db, data, request, report);
+  return report;
 }
 
 PeriodReports returns_reports(store::Database& db, const LedgerData& data,

@@ -15,6 +15,11 @@
 //    times the rate of its day (benchmark currency -> reporting currency,
 //    exact), so its return includes the currency's move;
 //    `benchmark_converted_from` then names its currency.
+//  - `local` (--local) adds each account's returns in its own currency: the
+//    one account's with `account`, else one per account, by name. Each is
+//    returns_report() of the same period with that account and its own
+//    currency as the reporting currency, without the benchmark, so the two
+//    sets of figures share one implementation.
 //  - Throws InputError for an unknown account (naming --account) or security,
 //    a ledger without transactions, and whatever resolve_period() and
 //    measure() reject.
@@ -45,6 +50,14 @@ struct ReturnsRequest {
   std::optional<std::string> benchmark;  // security symbol
   std::optional<Decimal> risk_free_annual;
   std::optional<std::string> currency;  // reporting currency (ISO 4217), else the default
+  bool local = false;                   // also each account's returns in its own currency
+};
+
+// One account's figures in its own currency (ReturnsRequest::local).
+struct LocalReturns {
+  std::string account;
+  std::string currency;  // the account's own
+  PerfResult result;
 };
 
 struct ReturnsReport {
@@ -58,6 +71,7 @@ struct ReturnsReport {
   std::optional<std::string> benchmark;
   std::optional<std::string> benchmark_converted_from;  // its currency, when not `currency`
   PerfResult result;
+  std::vector<LocalReturns> local;  // filled only when the request asks for it
 };
 
 struct LedgerData {
@@ -82,8 +96,8 @@ ReturnsReport returns_report(store::Database& db, const ReturnsRequest& request)
 ReturnsReport returns_report(store::Database& db, const LedgerData& data,
                              const ReturnsRequest& request);
 // Several periods of one scope (every request's account is `account` and
-// every request's currency the first's, else std::invalid_argument), measured on one series built over their union and
-// sliced (perf::slice): one replay and one load of the closes. Each report
+// every request's currency the first's, else std::invalid_argument), measured on one series built
+// over their union and sliced (perf::slice): one replay and one load of the closes. Each report
 // equals returns_report() of its request. That replay also copies the whole
 // ledger's book at the close of each of `book_days` (ascending, none before
 // the earliest period's day before; see build_series()).

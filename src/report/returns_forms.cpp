@@ -111,6 +111,27 @@ std::string monthly_table(const perf::ReturnsReport& rep, const Style& style) {
   return text;
 }
 
+// Each account's figures in its own currency (--local), by the same method.
+std::string local_table(const perf::ReturnsReport& rep, const std::string& method,
+                        const Style& style) {
+  Table t({{"account", Align::left, true},
+           {"currency"},
+           {"opening value", Align::right, false, 2},
+           {"closing value", Align::right, false, 1},
+           {"time-weighted", Align::right},
+           {"a year", Align::right},
+           {"money-weighted", Align::right},
+           {"a year", Align::right}});
+  for (const auto& l : rep.local) {
+    const Figures f = figures(l.result, method == "dietz");
+    t.add_row({l.account, l.currency, money(l.result.opening_value), money(l.result.closing_value),
+               pct(f.twr), pct(f.twr_annualized),
+               l.result.mwr.status == perf::MwrStatus::kOk ? pct(f.mwr_period) : "n/a",
+               pct(f.mwr_annualized)});
+  }
+  return "\nIn each account's own currency:\n" + t.render(style);
+}
+
 }  // namespace
 
 std::string returns_json(const perf::ReturnsReport& rep, const std::string& method, bool monthly) {
@@ -118,7 +139,7 @@ std::string returns_json(const perf::ReturnsReport& rep, const std::string& meth
   const Figures f = figures(r, method == "dietz");
   std::string s;
   JsonWriter j(s);
-  begin_document(j, "returns", 2);
+  begin_document(j, "returns", 3);
   j.member("from", r.from.str()).member("to", r.to.str()).member("scope", rep.scope);
   j.member("currency", rep.currency);
   j.member("method", method);
@@ -161,6 +182,23 @@ std::string returns_json(const perf::ReturnsReport& rep, const std::string& meth
   else
     j.null();
   j.member("sharpe", r.risk.sharpe);
+  if (!rep.local.empty()) {
+    j.key("local").begin_array();
+    for (const auto& l : rep.local) {
+      const Figures lf = figures(l.result, method == "dietz");
+      j.begin_object();
+      j.member("account", l.account).member("currency", l.currency);
+      j.member("opening_value", l.result.opening_value);
+      j.member("closing_value", l.result.closing_value);
+      j.member("inflows", l.result.inflow).member("outflows", l.result.outflow);
+      j.member("twr", lf.twr).member("twr_annualized", lf.twr_annualized);
+      j.member("mwr_annualized", lf.mwr_annualized).member("mwr_period", lf.mwr_period);
+      if (l.result.mwr.status != perf::MwrStatus::kOk)
+        j.member("mwr_status", std::string(perf::to_string(l.result.mwr.status)));
+      j.end_object();
+    }
+    j.end_array();
+  }
   if (monthly) {
     j.key("months").begin_array();
     for (const auto& m : r.months) {
@@ -186,6 +224,7 @@ std::string returns_text(const perf::ReturnsReport& rep, const std::string& meth
       fmt::format("Returns of {} in {} from {} to {} ({} days)\n\n", rep.scope, rep.currency,
                   rep.result.from.str(), rep.result.to.str(), rep.result.days);
   s += monthly ? monthly_table(rep, style) : summary_table(rep, method, style);
+  if (!rep.local.empty()) s += local_table(rep, method, style);
   if (rep.period.clamped)
     s += fmt::format("The ledger starts on {}; the period starts there.\n", rep.inception.str());
   if (rep.benchmark && rep.benchmark_converted_from)

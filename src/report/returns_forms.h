@@ -7,6 +7,9 @@
 //  - Text ends with the caution that past results do not predict future
 //    returns; JSON gives money as exact decimal strings, returns as numbers,
 //    absent figures as null, and the months only when asked.
+//  - The report's `local` figures (--local), when present, follow the
+//    summary as a table of each account's returns in its own currency, and
+//    are the JSON's `local` array (absent without them).
 #pragma once
 
 #include <string>

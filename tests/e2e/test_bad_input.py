@@ -851,6 +851,9 @@ row("returns: --currency without a rate path", ["returns", "--from", "2024-01-02
 row("statement: --currency without a rate path", ["statement", "--year", "2024", "--currency",
     "JPY"], INPUT,
     f"keel: error: --currency JPY: no exchange rate for JPY/USD on or before 2024-01-02 {NO_JPY}")
+row("returns: --local with --monthly", ["returns", "--year", "2024", "--local", "--monthly"], INPUT,
+    "keel: error: --local: gives each account's returns over the whole period, not month by "
+    "month; leave out --monthly")
 row("returns: unknown method", ["returns", "--method", "geometric"], INPUT,
     "keel: error: --method: 'geometric' is not a method; choose daily or dietz")
 row("returns: risk-free rate not a number", ["returns", "--risk-free", "2%"], INPUT,

@@ -95,7 +95,8 @@ REPORTS = {
 MORE = {
     "returns": [["returns", "--year", "2025", "--monthly"],
                 ["returns", "--from", "2025-12-01", "--to", "2025-12-31", "--account",
-                 "Ardwyn Retirement", "--method", "dietz"]],
+                 "Ardwyn Retirement", "--method", "dietz"],
+                ["returns", "--year", "2025", "--local", "--benchmark", "ZXTR"]],
     "propose": [["propose", "--rule", RULE, "--as-of", "2025-12-31", "--save"],
                 ["propose", "--rule", TRACK_RULE, "--as-of", "2025-12-31"]],
     "backtest": [["backtest", "--rule", RULE, "--from", "2024-01-01", "--to", "2025-12-31",
@@ -110,7 +111,7 @@ MORE = {
 }
 # Documents whose members changed since their first version.
 VERSIONS = {"holdings": 2, "lots": 2, "gains": 2, "backtest": 2, "propose": 4, "plan-proposal": 3,
-            "proposal": 3, "proposals-list": 2, "returns": 2, "signal": 3, "statement": 3}
+            "proposal": 3, "proposals-list": 2, "returns": 3, "signal": 3, "statement": 3}
 ON_DEMO = {"returns", "propose", "plan-proposal", "proposals-list", "proposal", "backtest", "compare", "signal", "sweep", "statement"}
 # The commands of the reference each report stands for.
 COMMANDS = {"holdings": "holdings", "lots": "lots", "gains": "gains", "history": "history",

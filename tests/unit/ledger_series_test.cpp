@@ -249,6 +249,45 @@ TEST_CASE("returns of several periods measured together equal each measured alon
   }
 }
 
+TEST_CASE("local returns: one per account, each that account's own report") {
+  SeriesFixture f;
+  perf::ReturnsRequest request;
+  request.period.from = day("2024-01-02");
+  request.local = true;
+  const auto household = perf::returns_report(f.db, request);
+  REQUIRE(household.local.size() == 2);
+  for (const auto& local : household.local) {
+    INFO(local.account);
+    perf::ReturnsRequest own;
+    own.period.from = day("2024-01-02");
+    own.account = local.account;
+    const auto alone = perf::returns_report(f.db, own);
+    CHECK(local.currency == alone.currency);
+    CHECK(local.result.opening_value == alone.result.opening_value);
+    CHECK(local.result.closing_value == alone.result.closing_value);
+    CHECK(local.result.inflow == alone.result.inflow);
+    CHECK(local.result.twr.period == alone.result.twr.period);
+    CHECK(alone.local.empty());
+  }
+  CHECK(household.local[0].account == "Alder");
+  CHECK(household.local[1].account == "Birch");
+  // Alder's transfers to Birch (5 QUILL at 55, and 100) are flows of Alder alone.
+  CHECK(household.local[0].result.outflow == dec("375"));
+  CHECK(household.result.outflow == dec("50"));
+}
+
+TEST_CASE("local returns: one account gives only its own row") {
+  SeriesFixture f;
+  perf::ReturnsRequest request;
+  request.period.from = day("2024-01-02");
+  request.account = "Birch";
+  request.local = true;
+  const auto report = perf::returns_report(f.db, request);
+  REQUIRE(report.local.size() == 1);
+  CHECK(report.local[0].account == "Birch");
+  CHECK(report.local[0].result.closing_value == report.result.closing_value);
+}
+
 TEST_CASE("the books kept on the way equal a replay to each day, whatever the scope") {
   SeriesFixture f;
   const auto log = ledger::load_log(f.db);
