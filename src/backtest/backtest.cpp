@@ -629,6 +629,7 @@ Result run(const History& h, const rules::Rule& rule, const Request& req) {
         req.from.str(), req.to.str()));
 
   std::optional<std::vector<perf::LevelPoint>> bench;
+  std::optional<std::string> bench_note;
   if (req.benchmark) {
     std::optional<std::int64_t> id;
     if (const Security* s = h.market.security(*req.benchmark)) id = s->id;
@@ -636,15 +637,25 @@ Result run(const History& h, const rules::Rule& rule, const Request& req) {
       throw InputError(
           fmt::format("--benchmark: no security '{}' in the ledger", printable(*req.benchmark)));
     const Date opening = req.from.plus_days(-1);
-    const auto open_level = h.close(*id, opening);
-    if (!open_level)
+    if (!h.close(*id, opening))
       throw InputError(fmt::format("--benchmark: '{}' has no close on or before {}",
                                    printable(*req.benchmark), opening.str()));
+    const std::string& own = h.security(*id).currency;
+    const bool converted = h.currency && !own.empty() && own != *h.currency;
+    const auto open_level = h.value_close(*id, opening);
+    if (!open_level)
+      throw InputError(fmt::format("--benchmark: no exchange rate for {}/{} on or before {}", own,
+                                   *h.currency, opening.str()));
     bench.emplace();
     bench->push_back(perf::LevelPoint{opening, *open_level});
     for (auto it = first; it != days.end() && *it <= req.to; ++it)
-      if (auto p = h.close(*id, *it)) bench->push_back(perf::LevelPoint{*it, *p});
+      if (auto p = h.value_close(*id, *it)) bench->push_back(perf::LevelPoint{*it, *p});
     res.benchmark = *req.benchmark;
+    if (converted)
+      bench_note = fmt::format(
+          "benchmark {} is priced in {}: its closes are converted into {} at each day's rate, "
+          "unhedged",
+          printable(*req.benchmark), own, *h.currency);
   }
 
   for (int c = 0; c < h.market.columns(); ++c) {
@@ -652,6 +663,7 @@ Result run(const History& h, const rules::Rule& rule, const Request& req) {
     res.symbols.emplace(id, h.security(id).symbol);
   }
   res.notes = h.notes;
+  if (bench_note) res.notes.push_back(*bench_note);
   res.rule = simulate(h, rule, req, res.rebalance_days, "rule", true, res.notes);
   res.rule.perf = perf::measure(perf_input(res.rule, req, bench));
   if (req.baseline) {
@@ -663,7 +675,7 @@ Result run(const History& h, const rules::Rule& rule, const Request& req) {
   const auto months = monthly_returns(res.rule);
   if (bench) {
     const std::int64_t id = h.market.security(*req.benchmark)->id;
-    for (const auto& c : res.rule.curve) res.benchmark_curve.push_back(h.close(id, c.day));
+    for (const auto& c : res.rule.curve) res.benchmark_curve.push_back(h.value_close(id, c.day));
     res.rolling.push_back(rolling(months, benchmark_monthly_returns(res.rule), req.rolling_months,
                                   "benchmark " + *req.benchmark));
   }

@@ -22,6 +22,16 @@ std::optional<Decimal> History::close(std::int64_t id, Date day) const {
   return market.exact(r, c);
 }
 
+std::optional<Decimal> History::value_close(std::int64_t id, Date day) const {
+  const int c = market.column(id);
+  const std::size_t r = market.row(day);
+  if (c < 0 || !market.has(r, c)) return std::nullopt;
+  if (!foreign(c)) return market.exact(r, c);
+  const Decimal rate = fx_exact(r, c);
+  if (rate.is_zero()) return std::nullopt;  // no rate known yet on that day
+  return market.exact(r, c) * rate;
+}
+
 void History::load_rates() {
   fx_of_.assign(static_cast<std::size_t>(market.columns()), -1);
   fx_rates_.clear();

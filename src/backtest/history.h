@@ -22,7 +22,8 @@
 //    too, and fx(row, col) is the rate into `currency` known on each day
 //    (the latest on or before it; market::View::rate), 1 for `currency`
 //    itself and 0 before a first rate (a name is never priced, so never
-//    held, then). A note then names the currencies converted.
+//    held, then). A note then names the currencies converted. A benchmark
+//    among the extras is converted the same way (value_close), unhedged.
 //  - The overload for several rules loads the union of what each needs, once;
 //    they must trade in one currency (InputError naming RULES otherwise), and
 //    their notes are kept once each.
@@ -61,6 +62,9 @@ struct History {
   const Security& security(std::int64_t id) const { return *market.security(id); }
   // The close on or before `day` (inside the span), exactly; unset when none.
   std::optional<Decimal> close(std::int64_t id, Date day) const;
+  // The same close in `currency`: times that day's rate for a name priced in
+  // another currency (exact); unset when there is no close, or no rate yet.
+  std::optional<Decimal> value_close(std::int64_t id, Date day) const;
   // The rate into `currency` of the column's currency on the row's day.
   double fx(std::size_t row, int col) const {
     const int k = fx_of_[static_cast<std::size_t>(col)];

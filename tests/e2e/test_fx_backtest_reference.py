@@ -114,6 +114,36 @@ class FxBacktestReference(unittest.TestCase):
         self.assertEqual({currency[s] for s in bought}, {"USD", "EUR", "GBP"})
         self.assertGreater(float(k["rule_run"]["fees"]), -1)
 
+    def test_a_benchmark_in_another_currency_is_converted_unhedged(self):
+        # Reference: an unhedged benchmark's level in the ledger's currency is its close times
+        # the rate known that day (the definition of a point-in-time conversion, common
+        # practice, stated in docs/backtest.md), computed here with pandas' asof.
+        import pandas as pd
+        with open(os.path.join(self.data, "securities.csv"), newline="") as f:
+            euro = [r["symbol"] for r in csv.DictReader(f) if r["currency"] == "EUR"]
+        with open(os.path.join(self.data, "splits.csv"), newline="") as f:
+            split = {r["symbol"] for r in csv.DictReader(f)}
+        symbol = next(s for s in euro if s not in split)
+        k = self.ledger.json("backtest", "--rule", self.rule, *SPAN, "--frictionless",
+                             "--start-value", "250000", "--benchmark", symbol)
+        prices = pd.read_csv(os.path.join(self.data, "prices.csv"), parse_dates=["date"])
+        closes = prices[prices.symbol == symbol].set_index("date")["close"].sort_index()
+        rates = pd.read_csv(self.rates, parse_dates=["date"])
+        eur = rates[rates.base == "EUR"].set_index("date")["rate"].sort_index()
+
+        def level(day):
+            day = pd.Timestamp(day)
+            return closes.asof(day) * eur.asof(day)
+
+        expected = level(k["curve"][-1]["date"]) / level("2020-03-01") - 1
+        run = k["rule_run"]
+        self.assertAlmostEqual(run["twr"] - run["excess"], expected, delta=TOL)
+        local = closes.asof(pd.Timestamp(k["curve"][-1]["date"])) / closes.asof(
+            pd.Timestamp("2020-03-01")) - 1
+        self.assertGreater(abs(expected - local), 1e-4)  # the conversion matters here
+        self.assertIn(f"benchmark {symbol} is priced in EUR: its closes are converted into USD at "
+                      "each day's rate, unhedged", k["notes"])
+
 
 if __name__ == "__main__":
     unittest.main()
