@@ -144,6 +144,13 @@ class FxBacktestReference(unittest.TestCase):
         self.assertIn(f"benchmark {symbol} is priced in EUR: its closes are converted into USD at "
                       "each day's rate, unhedged", k["notes"])
 
+    def test_a_benchmark_without_a_rate_at_the_start_is_refused_naming_the_pair(self):
+        with open(os.path.join(self.data, "securities.csv"), newline="") as f:
+            pound = next(r["symbol"] for r in csv.DictReader(f) if r["currency"] == "GBP")
+        err = self.ledger.fails("backtest", "--rule", self.rule, *SPAN, "--benchmark", pound)
+        self.assertEqual(err, "keel: error: --benchmark: no exchange rate for GBP/USD on or "
+                              "before 2020-03-01")
+
 
 if __name__ == "__main__":
     unittest.main()
