@@ -140,6 +140,19 @@ TEST_CASE("lots: partial closes never lose or make a cent") {
   CHECK(cost == dec("100.009"));
 }
 
+TEST_CASE("ledger rows: a back-dated row is listed in posting order, by day and then by id") {
+  LedgerFixture f;
+  f.account("Main");
+  f.security("ALFA");
+  const auto late = f.cash(TxnKind::deposit, "2024-03-01", "Main", "100");
+  const auto early = f.cash(TxnKind::deposit, "2024-01-01", "Main", "200");
+  const auto same_day = f.cash(TxnKind::deposit, "2024-03-01", "Main", "300");
+  const auto buy = f.buy("2024-02-01", "Main", "ALFA", "1", "50");
+  std::vector<std::int64_t> ids;
+  for (const auto& t : store::list_transactions(f.db)) ids.push_back(t.id);
+  CHECK(ids == std::vector<std::int64_t>{early, buy, late, same_day});
+}
+
 TEST_CASE("splits: a two-for-one split doubles units and keeps total cost") {
   LedgerFixture f;
   three_lots(f, BasisMethod::fifo);
