@@ -6,6 +6,7 @@
 #include <doctest/doctest.h>
 
 #include <string>
+#include <tuple>
 #include <vector>
 
 #include "ledger_fixture.h"
@@ -152,6 +153,27 @@ TEST_CASE("close packs: a replaced close drops the pack, and the next load has t
   m.closes({{"ARBOR", "2024-03-04", "10.75"}}, true);
   CHECK_FALSE(packed(m.db, m.id("ARBOR")));
   CHECK(load(m.db).close(m.id("ARBOR"), day("2024-03-05"))->price == dec("10.75"));
+}
+
+TEST_CASE("close packs: a bulk import of later closes drops the pack, and triggers work after it") {
+  Closes m;
+  load(m.db);
+  // Enough rows after the stored ones for the importer's multi-row insert,
+  // which runs with triggers off and drops the packs itself.
+  std::vector<std::tuple<std::string, std::string, std::string>> rows;
+  for (int i = 0; i < 600; ++i)
+    rows.emplace_back("CORVEN", day("2024-04-01").plus_days(i).str(), std::to_string(4 + i % 7));
+  m.closes(rows);
+  CHECK_FALSE(packed(m.db, m.id("CORVEN")));
+  CHECK(packed(m.db, m.id("ARBOR")));
+  market::Series::Request r;
+  r.from = day("2024-03-01");
+  r.to = day("2025-12-31");
+  // The last row: 2025-11-21, close 4 + 599 mod 7.
+  CHECK(market::Series::load(m.db, r).close(m.id("CORVEN"), day("2025-11-22"))->price == dec("8"));
+  REQUIRE(packed(m.db, m.id("CORVEN")));
+  m.db.sql().exec("UPDATE price SET close = '5' WHERE security_id = 3 AND date = '2024-04-01'");
+  CHECK_FALSE(packed(m.db, m.id("CORVEN")));
 }
 
 TEST_CASE("close packs: closes changed or deleted by other means drop the pack too") {
