@@ -91,12 +91,12 @@ bool unpack_closes(std::string_view packed, std::vector<PackedClose>& out) {
   for (std::uint64_t i = 0; i < n; ++i) {
     std::uint64_t d = 0, v = 0;
     if (!get(p, end, d) || !get(p, end, v)) return false;
+    if (i > 0 && (d == 0 || d > static_cast<std::uint64_t>(kDayLimit)))
+      return false;  // before any arithmetic on it
     day = i == 0 ? unzigzag(d) : day + static_cast<std::int64_t>(d);
     m += unzigzag(v >> 4);
     const int scale = static_cast<int>(v & 15);
-    if ((i > 0 && d == 0) || day < -kDayLimit || day > kDayLimit || m < 0 ||
-        m >= kPackMantissaLimit)
-      return false;
+    if (day < -kDayLimit || day > kDayLimit || m < 0 || m >= kPackMantissaLimit) return false;
     out.push_back(PackedClose{Date::from_days(static_cast<int>(day)), m, scale});
   }
   return p == end;

@@ -97,6 +97,12 @@ TEST_CASE("close packs: damaged bytes are refused, not read") {
   CHECK_FALSE(market::unpack_closes(good + '\x01', back));                    // bytes after it
   CHECK_FALSE(market::unpack_closes('\x02' + good.substr(1), back));          // another version
   CHECK_FALSE(market::unpack_closes(market::kUnpackable, back));
+  // Two closes, the second 2^62 days after the first: refused before any arithmetic.
+  std::string far{'\x01', '\x02', '\x00', '\x00'};
+  far.append(8, '\x80');
+  far += "\x40";
+  far.push_back('\x00');
+  CHECK_FALSE(market::unpack_closes(far, back));
 }
 
 TEST_CASE("close packs: only canonical decimals within the exact limits are packed") {
