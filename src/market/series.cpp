@@ -10,6 +10,7 @@
 #include <set>
 #include <stdexcept>
 
+#include "market/close_pack.h"
 #include "store/action_store.h"
 #include "store/fx_store.h"
 #include "store/ledger_store.h"
@@ -22,31 +23,9 @@ constexpr double kNone = std::numeric_limits<double>::quiet_NaN();
 // Stored integers below 2^50 come back exactly from value x 10^scale
 // (the double product errs by far less than a half).
 constexpr double kExactLimit = 1125899906842624.0;  // 2^50
-constexpr int kMaxScale = 15;
 constexpr const double* kPow10 = Series::kScales;
-
-// Canonical decimal text without sign or exponent ("123.45"), as the ledger
-// stores closes: the integer of its digits and the count after the point.
-// False for anything else (then Decimal::parse decides).
-bool plain_decimal(std::string_view s, long long& mantissa, int& scale) {
-  if (s.empty() || s.size() > 18) return false;
-  long long m = 0;
-  int sc = -1;
-  for (const char c : s) {
-    if (c == '.') {
-      if (sc >= 0) return false;
-      sc = 0;
-      continue;
-    }
-    if (c < '0' || c > '9') return false;
-    m = m * 10 + (c - '0');
-    if (sc >= 0) ++sc;
-  }
-  if (sc == 0 || s.front() == '.') return false;
-  mantissa = m;
-  scale = sc < 0 ? 0 : sc;
-  return true;
-}
+static_assert(kPackMaxScale + 1 == std::size(Series::kScales));
+static_assert(kExactLimit == static_cast<double>(kPackMantissaLimit));
 
 // The ISO text of every day of the span, to find a row's day by comparing
 // text instead of parsing it: rows of a security come by date, so the next
@@ -78,11 +57,13 @@ class SpanDays {
 };
 
 // Reads the closes of one security into `column` (one value per row of the
-// span, forward-filled) and says how its doubles map back to decimals.
+// span, forward-filled) and says how its doubles map back to decimals: from
+// the price rows, or from the security's close pack (market/close_pack.h).
 struct ColumnReader {
   store::MarketRows& rows;
   const SpanDays& days;
   std::string before_text, from_text;
+  Date from;
 
   struct Result {
     std::optional<Date> seed_day;
@@ -90,48 +71,101 @@ struct ColumnReader {
     bool fits = true;  // every close fits the scale rule
   };
 
-  template <typename Fresh>
-  Result read(std::int64_t id, double* column, std::size_t n_rows, Fresh&& fresh) {
+  // Fills in the values taken, in date order; both sources end here.
+  struct Fill {
     Result out;
     double max_value = 0;
     double last = kNone;
-    auto take = [&](std::string_view text) {
-      long long m = 0;
-      int scale = 0;
-      if (plain_decimal(text, m, scale) && scale <= kMaxScale &&
-          static_cast<double>(m) < kExactLimit) {
-        out.scale = std::max(out.scale, scale);
-        // Both operands exact: the quotient is the double nearest the decimal.
-        last = static_cast<double>(m) / kPow10[scale];
-      } else {
-        out.fits = false;
-        last = Decimal::parse(text).to_double();
-      }
+    void plain(std::int64_t m, int scale) {
+      out.scale = std::max(out.scale, scale);
+      // Both operands exact: the quotient is the double nearest the decimal.
+      last = static_cast<double>(m) / kPow10[scale];
       max_value = std::max(max_value, last);
-    };
+    }
+    void text(std::string_view t) {
+      std::int64_t m = 0;
+      int scale = 0;
+      if (plain_close(t, m, scale)) return plain(m, scale);
+      out.fits = false;
+      last = Decimal::parse(t).to_double();
+      max_value = std::max(max_value, last);
+    }
+    Result done() {
+      if (max_value * kPow10[out.scale] >= kExactLimit) out.fits = false;
+      return out;
+    }
+  };
+
+  template <typename Fresh>
+  Result read(std::int64_t id, double* column, std::size_t n_rows, Fresh&& fresh) {
+    Fill f;
     auto& seed = rows.closes_until(id, before_text);
     if (seed.next()) {
-      out.seed_day = Date::parse(seed.text(0));
-      take(seed.text(1));
+      f.out.seed_day = Date::parse(seed.text(0));
+      f.text(seed.text(1));
       seed.reset();
     }
     std::size_t r = 0;
     auto row = [&](const store::MarketRows::Row& x) {
       const std::size_t at = days.row(x[0], r);
       if (at >= n_rows) return false;  // past the span: the rest are later still
-      for (; r < at; ++r) column[r] = last;
-      take(x[1]);
-      column[r] = last;
+      for (; r < at; ++r) column[r] = f.last;
+      f.text(x[1]);
+      column[r] = f.last;
       fresh(r);
       ++r;
       return true;
     };
     rows.scan_closes(id, from_text, row);
-    for (; r < n_rows; ++r) column[r] = last;
-    if (max_value * kPow10[out.scale] >= kExactLimit) out.fits = false;
-    return out;
+    for (; r < n_rows; ++r) column[r] = f.last;
+    return f.done();
+  }
+
+  // The same from every close of the security, ascending by day.
+  template <typename Fresh>
+  Result read(const std::vector<PackedClose>& closes, double* column, std::size_t n_rows,
+              Fresh&& fresh) {
+    Fill f;
+    const auto first = std::lower_bound(closes.begin(), closes.end(), from,
+                                        [](const PackedClose& c, Date d) { return c.day < d; });
+    if (first != closes.begin()) {
+      const PackedClose& seed = *std::prev(first);
+      f.out.seed_day = seed.day;
+      f.plain(seed.mantissa, seed.scale);
+    }
+    std::size_t r = 0;
+    for (auto it = first; it != closes.end(); ++it) {
+      const auto at = static_cast<std::size_t>(it->day - from);
+      if (at >= n_rows) break;
+      for (; r < at; ++r) column[r] = f.last;
+      f.plain(it->mantissa, it->scale);
+      column[r] = f.last;
+      fresh(r);
+      ++r;
+    }
+    for (; r < n_rows; ++r) column[r] = f.last;
+    return f.done();
   }
 };
+
+// Every close of a security from its rows, for a pack; false when one is
+// outside what a pack keeps.
+bool read_all_closes(store::MarketRows& rows, std::int64_t id, std::vector<PackedClose>& out) {
+  out.clear();
+  bool packable = true;
+  auto take = [&](const store::MarketRows::Row& x) {
+    PackedClose c;
+    if (!plain_close(x[1], c.mantissa, c.scale)) {
+      packable = false;
+      return false;
+    }
+    c.day = Date::parse(x[0]);
+    out.push_back(c);
+    return true;
+  };
+  rows.scan_closes(id, "", take);
+  return packable;
+}
 
 }  // namespace
 
@@ -171,7 +205,45 @@ Series Series::load(store::Database& db, const Request& req) {
   store::MarketRows rows(db);
   const SpanDays span(req.from, n_rows);
   const std::string to_text = req.to.str();
-  ColumnReader reader{rows, span, req.from.plus_days(-1).str(), req.from.str()};
+  ColumnReader reader{rows, span, req.from.plus_days(-1).str(), req.from.str(), req.from};
+  // A security's closes come from its pack when the ledger keeps one; else
+  // from its rows, and then, where the ledger can be written, they are read
+  // whole and packed for the next load (kept at the end, see below).
+  const bool keep = store::can_keep_close_packs(db);
+  const std::int64_t version = keep ? store::change_count(db) : 0;
+  std::vector<std::pair<std::int64_t, std::string>> packs;
+  std::vector<PackedClose> closes;
+  // The whole closes of a security, from its pack or (where packs can be
+  // kept) its rows; nullptr when they are to be read from the rows by span.
+  auto whole = [&](std::int64_t id) -> const std::vector<PackedClose>* {
+    if (const auto packed = rows.close_pack(id)) {
+      if (*packed == kUnpackable) return nullptr;
+      if (unpack_closes(*packed, closes)) return &closes;
+    }
+    if (!keep) return nullptr;
+    if (!read_all_closes(rows, id, closes)) {
+      packs.emplace_back(id, kUnpackable);
+      return nullptr;
+    }
+    // A security without closes costs one empty range read: no pack.
+    if (!closes.empty()) packs.emplace_back(id, pack_closes(closes));
+    return &closes;
+  };
+  // The first close after the span, from a security's whole closes.
+  std::vector<char> next_known(n_cols, 0);
+  auto note_next = [&](const std::vector<PackedClose>& all) {
+    const auto it = std::upper_bound(all.begin(), all.end(), req.to,
+                                     [](Date d, const PackedClose& c) { return d < c.day; });
+    if (it != all.end() && (!s.next_trading_day_ || it->day < *s.next_trading_day_))
+      s.next_trading_day_ = it->day;
+  };
+  auto read_column = [&](std::size_t c, double* column, auto& fresh) {
+    const auto* all = whole(s.ids_[c]);
+    if (!all) return reader.read(s.ids_[c], column, n_rows, fresh);
+    note_next(*all);
+    next_known[c] = 1;
+    return reader.read(*all, column, n_rows, fresh);
+  };
   // A block of columns is read column by column, then written into the
   // row-major grid row by row: both sides stay sequential in memory.
   constexpr std::size_t kBlock = 64;
@@ -185,7 +257,7 @@ Series Series::load(store::Database& db, const Request& req) {
         s.fresh_[bit / 64] |= std::uint64_t{1} << (bit % 64);
         any_close[r] = 1;
       };
-      const auto got = reader.read(s.ids_[c], &block[k * n_rows], n_rows, fresh);
+      const auto got = read_column(c, &block[k * n_rows], fresh);
       s.seed_day_[c] = got.seed_day;
       Exact& ex = s.exact_[c];
       ex.scale = got.scale;
@@ -215,7 +287,17 @@ Series Series::load(store::Database& db, const Request& req) {
 
   // The trading calendar: days with a close of any security of the ledger.
   for (const auto& sec : s.securities_) {
-    if (!s.column_of_.count(sec.id)) {
+    const int c = s.column(sec.id);
+    if (c >= 0 && next_known[static_cast<std::size_t>(c)]) continue;
+    if (c < 0) {
+      if (const auto* all = whole(sec.id)) {
+        const auto first = std::lower_bound(all->begin(), all->end(), req.from,
+                                            [](const PackedClose& x, Date d) { return x.day < d; });
+        for (auto it = first; it != all->end() && it->day <= req.to; ++it)
+          any_close[static_cast<std::size_t>(it->day - req.from)] = 1;
+        note_next(*all);
+        continue;
+      }
       std::size_t r = 0;
       auto day = [&](const store::MarketRows::Row& x) {
         r = span.row(x[0], r);
@@ -232,6 +314,8 @@ Series Series::load(store::Database& db, const Request& req) {
       next.reset();
     }
   }
+  store::keep_close_packs(db, packs, version);
+  packs = {};
   for (std::size_t r = 0; r < n_rows; ++r)
     if (any_close[r]) s.trading_days_.push_back(req.from.plus_days(static_cast<int>(r)));
 

@@ -5,6 +5,8 @@
 #include <exception>
 #include <utility>
 
+#include "core/error.h"
+
 namespace keel::store {
 namespace {
 
@@ -106,12 +108,14 @@ struct MarketRows::Impl {
                   "AND date >= ? AND date <= ? ORDER BY date"),
         splits_all(h,
                    "SELECT security_id, date, ratio FROM split WHERE date >= ? AND date <= ? "
-                   "ORDER BY date, security_id") {}
+                   "ORDER BY date, security_id"),
+        close_pack(h, "SELECT packed FROM close_pack WHERE security_id = ?") {}
 
   Statement scan_closes, scan_close_days, scan_figures;
   Statement closes_until, first_close_after;
   Statement figures_until;
   Statement distributions_of, distributions_all, splits_of, splits_all;
+  Statement close_pack;
   // Bound text must outlive the statement's run: kept here.
   std::string a, b, c;
 };
@@ -161,6 +165,14 @@ void MarketRows::scan_figures(std::int64_t security_id, std::string_view metric,
   m.scan.run(restart(m.scan_figures, security_id, m.a, metric), take, context);
 }
 
+std::optional<std::string_view> MarketRows::close_pack(std::int64_t security_id) {
+  auto& st = impl_->close_pack;
+  st.reset();
+  st.bind(1, security_id);
+  if (!st.next()) return std::nullopt;
+  return st.blob(0);  // valid until the next call resets the statement
+}
+
 Statement& MarketRows::first_close_after(std::int64_t security_id, std::string_view day) {
   return restart(impl_->first_close_after, security_id, impl_->a, day);
 }
@@ -194,6 +206,39 @@ Statement& MarketRows::splits_between(std::optional<std::int64_t> security_id,
                                       std::string_view from, std::string_view to) {
   auto& m = *impl_;
   return span_of(m.splits_of, m.splits_all, security_id, m.a, from, m.b, to);
+}
+
+bool can_keep_close_packs(Database& db) {
+  sqlite3* h = db.sql().getHandle();
+  return !db.read_only() && sqlite3_db_readonly(h, "main") == 0 && sqlite3_get_autocommit(h) != 0;
+}
+
+std::int64_t change_count(Database& db) {
+  Statement st(db.sql().getHandle(), "PRAGMA data_version");
+  const std::int64_t v = st.next() ? st.integer(0) : 0;
+  st.reset();
+  return v;
+}
+
+bool keep_close_packs(Database& db, const std::vector<std::pair<std::int64_t, std::string>>& packs,
+                      std::int64_t since) {
+  if (packs.empty() || !can_keep_close_packs(db)) return false;
+  try {
+    WriteTransaction tx(db);
+    // Another connection's commit since the closes were read may have
+    // changed them: those packs could be stale, so keep none.
+    if (change_count(db) != since) return false;
+    Statement put(db.sql().getHandle(),
+                  "INSERT OR REPLACE INTO close_pack (security_id, packed) VALUES (?, ?)");
+    for (const auto& [id, packed] : packs) {
+      put.bind(1, id).bind_blob(2, packed).run();
+    }
+    tx.commit();
+    return true;
+  } catch (const LedgerError&) {
+    // Busy, disk full, a read-only folder: the command goes on without packs.
+    return false;
+  }
 }
 
 std::optional<std::string> latest_close_day(Database& db) {

@@ -19,6 +19,7 @@
 #include <optional>
 #include <string>
 #include <string_view>
+#include <utility>
 #include <vector>
 
 #include "store/database.h"
@@ -62,6 +63,10 @@ class MarketRows {
     scan_figures(security_id, metric, &call<F>, &f);
   }
 
+  // The closes of one security packed (market/close_pack.h), when the ledger
+  // keeps a pack of them; the view stays valid until the next call.
+  std::optional<std::string_view> close_pack(std::int64_t security_id);
+
   // (date) of one security's first close after `day`: at most one row.
   Statement& first_close_after(std::int64_t security_id, std::string_view day);
 
@@ -87,6 +92,19 @@ class MarketRows {
   struct Impl;
   std::unique_ptr<Impl> impl_;
 };
+
+// Close packs are derived data: a pack is deleted with any change to its
+// security's closes (triggers, migration 0011), so the closes are always the
+// record. change_count() is SQLite's data_version: it moves when another
+// connection commits. keep_close_packs() writes packs in one write transaction
+// only if nothing else has been committed since `since` (they were read from
+// what is still stored), the ledger can be written and no transaction is open;
+// otherwise, and when the ledger is busy or the write fails, it keeps nothing
+// and says false: packs only save time.
+bool can_keep_close_packs(Database& db);
+std::int64_t change_count(Database& db);
+bool keep_close_packs(Database& db, const std::vector<std::pair<std::int64_t, std::string>>& packs,
+                      std::int64_t since);
 
 // The latest day with any close, found through the (security_id, date) key
 // one security at a time; unset when the ledger has no closes.

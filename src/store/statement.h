@@ -39,6 +39,11 @@ class Statement {
     sqlite3_bind_text(st_, i, v.data(), static_cast<int>(v.size()), SQLITE_STATIC);
     return *this;
   }
+  // Bytes bound as a BLOB, without a copy (as text is).
+  Statement& bind_blob(int i, std::string_view v) {
+    sqlite3_bind_blob(st_, i, v.data(), static_cast<int>(v.size()), SQLITE_STATIC);
+    return *this;
+  }
   // Text that ends with a NUL: SQLite then uses it in place even where it
   // needs a terminated string (the GLOB checks), instead of copying it.
   Statement& bind_terminated(int i, const char* z) {
@@ -73,6 +78,11 @@ class Statement {
 
   std::string_view text(int col) const {
     const auto* p = reinterpret_cast<const char*>(sqlite3_column_text(st_, col));
+    return p ? std::string_view(p, static_cast<std::size_t>(sqlite3_column_bytes(st_, col)))
+             : std::string_view{};
+  }
+  std::string_view blob(int col) const {
+    const auto* p = static_cast<const char*>(sqlite3_column_blob(st_, col));
     return p ? std::string_view(p, static_cast<std::size_t>(sqlite3_column_bytes(st_, col)))
              : std::string_view{};
   }

@@ -5,7 +5,8 @@
 #   market_ledger KEEL WORK SECURITIES YEARS START
 #
 # leaves WORK/keel.db and WORK/shape ("SECURITIES x YEARS"); a ledger of
-# another shape in WORK is made again.
+# another shape in WORK is made again. bench_rule FILE writes the benchmarks'
+# rule: hold the names whose earnings yield is high against the universe.
 market_ledger() {
   ml_keel=$1 ml_work=$2 ml_securities=$3 ml_years=$4 ml_start=$5
   mkdir -p "$ml_work"
@@ -22,4 +23,21 @@ market_ledger() {
     "$ml_keel" --db "$ml_work/keel.db" import "$ml_what" "$ml_work/$ml_what.csv" --quiet
   done
   echo "$ml_securities x $ml_years" > "$ml_work/shape"
+}
+
+bench_rule() {
+  cat > "$1" <<'RULE'
+name = "Bench: high earnings yield"
+[scope]
+accounts = ["Simulated"]
+[screen]
+metric = "earnings_yield"
+cheap = "high"
+max_age_days = 120
+min_names = 5
+[select]
+by = "z"
+z_max = -0.5
+exit_z = 0.0
+RULE
 }

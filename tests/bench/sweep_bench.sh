@@ -30,23 +30,8 @@ for tool in /usr/bin/python3 /usr/bin/time; do
 done
 . "$here/market_ledger.sh"
 market_ledger "$keel" "$work" "$securities" "$years" "$start"
-cat > "$work/rule.toml" <<'RULE'
-name = "Bench: high earnings yield"
-[scope]
-accounts = ["Simulated"]
-[screen]
-metric = "earnings_yield"
-cheap = "high"
-max_age_days = 120
-min_names = 5
-[select]
-by = "z"
-z_max = -0.5
-exit_z = 0.0
-[trading]
-fee_fixed = 1
-fee_bps = 5
-RULE
+bench_rule "$work/rule.toml"
+printf '[trading]\nfee_fixed = 1\nfee_bps = 5\n' >> "$work/rule.toml"
 
 db="$work/keel.db"
 period="--from $from --to $to"

@@ -88,7 +88,8 @@ def equal(actual, expected, what):
 
 
 def ledger_digest(path):
-    """SHA-256 over the schema version, every table's definition and all its rows, ordered."""
+    """SHA-256 over the schema version, every table's definition and all its rows, ordered.
+    close_pack holds only closes packed again (derived, rebuilt at will): its rows are left out."""
     con = sqlite3.connect(f"file:{path}?mode=ro", uri=True)
     try:
         h = hashlib.sha256()
@@ -97,6 +98,8 @@ def ledger_digest(path):
                              "ORDER BY name").fetchall()
         for name, sql in tables:
             h.update(repr((name, sql)).encode())
+            if name == "close_pack":
+                continue
             cols = [r[1] for r in con.execute(f'PRAGMA table_info("{name}")')]
             order = ", ".join(f'"{c}"' for c in cols)
             for row in con.execute(f'SELECT * FROM "{name}" ORDER BY {order}'):

@@ -391,13 +391,27 @@ if as_user and not shutil.which("setpriv"):
 else:
     ro_ledger = os.path.join(ro_base, "ro", "ledger.db")
     subprocess.run(as_user + ["mkdir", os.path.join(ro_base, "ro")], check=True)
+    ro_prices = os.path.join(ro_base, "prices.csv")
+    with open(ro_prices, "w") as f:
+        f.write("date,symbol,close\n2024-01-02,MOSL,40\n2024-01-03,MOSL,40.5\n2024-06-28,MOSL,42\n")
+    os.chmod(ro_prices, 0o644)
     for args in (["init", "--currency", "EUR"], ["account", "add", "Juniper Taxable"],
                  ["record", "deposit", "--date", "2024-01-02", "--account", "Juniper Taxable",
-                  "--amount", "10"]):
+                  "--amount", "100"],
+                 ["security", "add", "MOSL", "--name", "Mossline Textiles", "--kind", "stock",
+                  "--currency", "EUR"],
+                 ["import", "prices", ro_prices, "--quiet"],
+                 ["record", "buy", "--date", "2024-01-03", "--account", "Juniper Taxable",
+                  "--symbol", "MOSL", "--quantity", "2", "--price", "40.5"]):
         code, _, err = run_as(*args)
         equal(code, 0, f"{args}: {err}")
     writable = {a: run_as(*a)[1] for a in (("holdings", "--as-of", "2024-06-30"), ("history",),
-                                           ("export", "transactions"), ("verify",))}
+                                           ("export", "transactions"), ("verify",),
+                                           ("returns", "--from", "2024-01-02", "--to",
+                                            "2024-06-30"))}
+    # returns kept its closes packed where it could write; without the packs,
+    # the read-only run below reads the rows and must not try to keep them.
+    subprocess.run(as_user + ["sqlite3", ro_ledger, "DELETE FROM close_pack"], check=True)
 
     def digest_of_copy():
         # Even a read-only SQLite connection leaves a -wal and -shm behind,

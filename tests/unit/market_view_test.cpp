@@ -127,6 +127,15 @@ struct Preloaded {
   }
 };
 
+// Series again, from the close packs the first load kept (market/close_pack.h).
+struct Repacked {
+  static std::unique_ptr<market::View> make(store::Database& db) {
+    Preloaded::make(db);
+    REQUIRE(db.sql().execAndGet("SELECT count(*) FROM close_pack").getInt() > 0);
+    return Preloaded::make(db);
+  }
+};
+
 std::optional<Close> close_at(const char* d, const char* price) {
   return Close{day(d), dec(price)};
 }
@@ -138,9 +147,10 @@ std::optional<Figure> figure_of(const char* value, const char* period, const cha
 
 TYPE_TO_STRING(OneDay);
 TYPE_TO_STRING(Preloaded);
+TYPE_TO_STRING(Repacked);
 
 TEST_CASE_TEMPLATE("market view: a close on the day, else the latest before it", V, OneDay,
-                   Preloaded) {
+                   Preloaded, Repacked) {
   MarketLedger m;
   const auto view = V::make(m.db);
   const auto avel = m.id("AVEL");
@@ -152,7 +162,7 @@ TEST_CASE_TEMPLATE("market view: a close on the day, else the latest before it",
 }
 
 TEST_CASE_TEMPLATE("market view: a weekday with no close at all gives the day before's", V, OneDay,
-                   Preloaded) {
+                   Preloaded, Repacked) {
   MarketLedger m;
   const auto view = V::make(m.db);
   CHECK(view->close(m.id("AVEL"), day("2024-03-29")) == close_at("2024-03-28", "11"));
@@ -160,7 +170,7 @@ TEST_CASE_TEMPLATE("market view: a weekday with no close at all gives the day be
 }
 
 TEST_CASE_TEMPLATE("market view: a late listing has no close before its first", V, OneDay,
-                   Preloaded) {
+                   Preloaded, Repacked) {
   MarketLedger m;
   const auto view = V::make(m.db);
   const auto brisk = m.id("BRISK");
@@ -172,7 +182,7 @@ TEST_CASE_TEMPLATE("market view: a late listing has no close before its first", 
 }
 
 TEST_CASE_TEMPLATE("market view: a stale close and a stale figure are given with their days", V,
-                   OneDay, Preloaded) {
+                   OneDay, Preloaded, Repacked) {
   MarketLedger m;
   const auto view = V::make(m.db);
   const auto caldo = m.id("CALDO");
@@ -181,7 +191,7 @@ TEST_CASE_TEMPLATE("market view: a stale close and a stale figure are given with
 }
 
 TEST_CASE_TEMPLATE("market view: a restatement replaces the figure from its known_on on", V, OneDay,
-                   Preloaded) {
+                   Preloaded, Repacked) {
   MarketLedger m;
   const auto view = V::make(m.db);
   const auto avel = m.id("AVEL");
@@ -191,7 +201,7 @@ TEST_CASE_TEMPLATE("market view: a restatement replaces the figure from its know
 }
 
 TEST_CASE_TEMPLATE("market view: a figure known after the day is invisible on it", V, OneDay,
-                   Preloaded) {
+                   Preloaded, Repacked) {
   MarketLedger m;
   const auto view = V::make(m.db);
   const auto avel = m.id("AVEL");
@@ -205,7 +215,8 @@ TEST_CASE_TEMPLATE("market view: a figure known after the day is invisible on it
         figure_of("0.1", "2023-12-31", "2024-02-01"));
 }
 
-TEST_CASE_TEMPLATE("market view: splits in a span, a Saturday's included", V, OneDay, Preloaded) {
+TEST_CASE_TEMPLATE("market view: splits in a span, a Saturday's included", V, OneDay, Preloaded,
+                   Repacked) {
   MarketLedger m;
   const auto view = V::make(m.db);
   const auto dunmore = m.id("DUNMORE");
@@ -218,7 +229,7 @@ TEST_CASE_TEMPLATE("market view: splits in a span, a Saturday's included", V, On
 }
 
 TEST_CASE_TEMPLATE("market view: distributions on weekends, by date and then security", V, OneDay,
-                   Preloaded) {
+                   Preloaded, Repacked) {
   MarketLedger m;
   const auto view = V::make(m.db);
   const auto avel = m.id("AVEL"), dunmore = m.id("DUNMORE");
@@ -232,7 +243,7 @@ TEST_CASE_TEMPLATE("market view: distributions on weekends, by date and then sec
 }
 
 TEST_CASE_TEMPLATE("market view: corporate actions in a span, a Saturday's included", V, OneDay,
-                   Preloaded) {
+                   Preloaded, Repacked) {
   MarketLedger m;
   const auto view = V::make(m.db);
   const auto all = view->actions(std::nullopt, day("2024-01-01"), day("2024-06-30"));
@@ -250,7 +261,7 @@ TEST_CASE_TEMPLATE("market view: corporate actions in a span, a Saturday's inclu
 }
 
 TEST_CASE_TEMPLATE("market view: a delisting ends a name from its day on, a spin-off does not", V,
-                   OneDay, Preloaded) {
+                   OneDay, Preloaded, Repacked) {
   MarketLedger m;
   const auto view = V::make(m.db);
   CHECK_FALSE(view->ended(m.id("CALDO"), day("2024-03-14")).has_value());
@@ -262,7 +273,7 @@ TEST_CASE_TEMPLATE("market view: a delisting ends a name from its day on, a spin
 }
 
 TEST_CASE_TEMPLATE("market view: the securities, their stocks' sectors and the metric names", V,
-                   OneDay, Preloaded) {
+                   OneDay, Preloaded, Repacked) {
   MarketLedger m;
   const auto view = V::make(m.db);
   CHECK(view->securities().size() == 5);
@@ -298,7 +309,7 @@ std::string answers_until(const market::View& view, Date first, Date last) {
 }
 
 TEST_CASE_TEMPLATE("look-ahead: changing the future leaves every answer about the past as it was",
-                   V, OneDay, Preloaded) {
+                   V, OneDay, Preloaded, Repacked) {
   MarketLedger m;
   const Date first = day("2024-01-01"), last = day("2024-03-15");
   const std::string before = answers_until(*V::make(m.db), first, last);
@@ -321,7 +332,7 @@ TEST_CASE_TEMPLATE("look-ahead: changing the future leaves every answer about th
 }
 
 TEST_CASE_TEMPLATE("market view: a stored rate on or before the day, and none before the first", V,
-                   OneDay, Preloaded) {
+                   OneDay, Preloaded, Repacked) {
   MarketLedger m;
   const auto view = V::make(m.db);
   const auto q = view->rate("EUR", "USD", day("2024-03-04"));
@@ -336,7 +347,7 @@ TEST_CASE_TEMPLATE("market view: a stored rate on or before the day, and none be
 }
 
 TEST_CASE_TEMPLATE("market view: the inverse of a stored pair is derived and says so", V, OneDay,
-                   Preloaded) {
+                   Preloaded, Repacked) {
   MarketLedger m;
   const auto view = V::make(m.db);
   const auto q = view->rate("USD", "EUR", day("2024-03-04"));
@@ -346,7 +357,7 @@ TEST_CASE_TEMPLATE("market view: the inverse of a stored pair is derived and say
 }
 
 TEST_CASE_TEMPLATE("market view: a cross through one pivot currency, dated by its older leg", V,
-                   OneDay, Preloaded) {
+                   OneDay, Preloaded, Repacked) {
   MarketLedger m;
   const auto view = V::make(m.db);
   const auto q = view->rate("EUR", "JPY", day("2024-03-04"));
@@ -361,7 +372,7 @@ TEST_CASE_TEMPLATE("market view: a cross through one pivot currency, dated by it
 }
 
 TEST_CASE_TEMPLATE("market view: no rate is assumed between currencies without a path", V, OneDay,
-                   Preloaded) {
+                   Preloaded, Repacked) {
   MarketLedger m;
   const auto view = V::make(m.db);
   // GBP/CHF is stored, but nothing links either to the euro.
@@ -373,7 +384,8 @@ TEST_CASE_TEMPLATE("market view: no rate is assumed between currencies without a
         "third currency); import one with 'keel import fx FILE.csv'");
 }
 
-TEST_CASE_TEMPLATE("market view: a currency to itself is 1, and only that", V, OneDay, Preloaded) {
+TEST_CASE_TEMPLATE("market view: a currency to itself is 1, and only that", V, OneDay, Preloaded,
+                   Repacked) {
   MarketLedger m;
   const auto view = V::make(m.db);
   const auto q = view->rate("EUR", "EUR", day("2024-01-01"));  // before any stored rate
