@@ -66,6 +66,25 @@ FxPool fx_pool(const Book& book, const std::vector<Account>& pool, const std::st
   return out;
 }
 
+void plan_cash(FxPool& pool, std::vector<PlannedCash>& planned, HouseholdPrefs& prefs,
+               const std::string& currency, const market::View& view, Date day) {
+  for (auto& c : planned)
+    for (std::size_t a = 0; a < pool.portfolio.accounts.size(); ++a) {
+      auto& st = pool.portfolio.accounts[a];
+      if (st.name != c.account) continue;
+      const std::string& own = pool.currency[a];
+      c.currency = own;
+      const Decimal in_pool = view.convert(c.amount, own, currency, day);
+      if (own != currency) {
+        c.converted = in_pool;
+        c.into = currency;
+      }
+      pool.cash[a][own] += c.amount;
+      st.cash += in_pool;
+      if (in_pool.is_negative()) prefs.must_give[st.id] -= in_pool;
+    }
+}
+
 std::vector<Conversion> settle(OrderPlan& plan, const FxPool& pool, const Quotes& quotes,
                                const std::string& currency, const TradingRule& trading,
                                const market::View& view, Date day,

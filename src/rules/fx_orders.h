@@ -11,6 +11,12 @@
 //    day, and is never spent. An account whose own currency has no rate into
 //    `currency` throws InputError naming the pair and the day.
 //    `cash` keeps what each account may spend, by currency, in its units.
+//  - plan_cash(): planned cash (rules/planned_cash.h) is in its account's
+//    own currency: it moves that cash in `cash`, and the account's cash in
+//    the portfolio (and what a withdrawal must give) by the amount converted
+//    into the pool's currency at the day's rate, which it records in
+//    PlannedCash::converted when the currencies differ. Planned cash for an
+//    account outside the pool is left alone.
 //  - settle(): each order of a name in another currency than the pool's or
 //    the account's gets its Order::Fx: the local price and value and the
 //    rate used. In posting order (sells first): a sale's proceeds are kept
@@ -37,6 +43,7 @@
 #include "market/view.h"
 #include "model/records.h"
 #include "rules/engine.h"
+#include "rules/planned_cash.h"
 
 namespace keel::rules {
 
@@ -55,6 +62,9 @@ void require_rates(const std::vector<Account>& pool, const std::string& currency
 FxPool fx_pool(const Book& book, const std::vector<Account>& pool, const std::string& currency,
                const market::View& view, Date day, std::set<std::int64_t>& held,
                std::vector<std::string>& notes);
+
+void plan_cash(FxPool& pool, std::vector<PlannedCash>& planned, HouseholdPrefs& prefs,
+               const std::string& currency, const market::View& view, Date day);
 
 struct Conversion {
   std::string account;

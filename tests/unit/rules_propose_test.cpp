@@ -218,6 +218,15 @@ struct EuroMonth : Month {
   }
 };
 
+// The month with a euro account of 800 EUR beside the dollar one, under one rule.
+struct TwoCurrencies : Month {
+  TwoCurrencies() {
+    account("Euro", BasisMethod::fifo, false, "EUR");
+    cash(TxnKind::deposit, "2024-01-02", "Euro", "800");
+  }
+  Rule rule() const { return month_rule("[scope]\naccounts = [\"Main\", \"Euro\"]\n"); }
+};
+
 TEST_CASE(
     "propose across currencies: a name without a rate on the day is screened out, naming "
     "the pair and the day") {
@@ -330,10 +339,8 @@ TEST_CASE("propose across currencies: a sleeve without a rate on the day is refu
 TEST_CASE(
     "propose across currencies: accounts in two currencies are valued in the first "
     "account's, or in the one asked") {
-  Month m;
-  m.account("Euro", BasisMethod::fifo, false, "EUR");
-  m.cash(TxnKind::deposit, "2024-01-02", "Euro", "800");
-  const auto rule = month_rule("[scope]\naccounts = [\"Main\", \"Euro\"]\n");
+  TwoCurrencies m;
+  const auto rule = m.rule();
   CHECK_THROWS_WITH_AS(propose(m.db, rule),
                        "account 'Euro' keeps EUR and the proposal is valued in USD: no exchange "
                        "rate for EUR/USD on or before 2024-05-31; import one with 'keel import fx "
@@ -722,4 +729,22 @@ TEST_CASE(
     expect_at_rest(propose(g.db, r));
   });
   CHECK(raised > 8);
+}
+
+TEST_CASE(
+    "regression: planned cash for an account in another currency was taken in the "
+    "proposal's") {
+  TwoCurrencies m;
+  m.fx({{"EUR", "USD", "2024-05-31", "1.25"}});
+  const auto rule = m.rule();
+  const auto p = propose(m.db, rule, std::nullopt, {parse_planned_cash("--deposit", "Euro=100")});
+  // 10100 USD, 800 EUR and the planned 100 EUR, at 1.25.
+  CHECK(p.plan.pool_value == Decimal(11225));
+  REQUIRE(p.planned.size() == 1);
+  CHECK(p.planned[0].currency == "EUR");
+  CHECK(p.planned[0].converted == Decimal(125));
+  // A withdrawal gives its amount in euros too.
+  const auto w = propose(m.db, rule, std::nullopt, {parse_planned_cash("--withdraw", "Euro=80")});
+  CHECK(w.plan.pool_value == Decimal(11000));
+  CHECK(w.planned[0].converted == Decimal(-100));
 }
