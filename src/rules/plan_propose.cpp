@@ -241,15 +241,19 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
                             "cash first",
                             printable_list(result.accounts), as_of.str(), value.str()));
 
-    result.plan = orders(portfolio, targets, quotes, *trading, as_of, Explain::all, prefs);
-    refuse_ungiven(portfolio, result.plan, prefs, plan.tax.gain_cap, as_of);
     result.currency = currency;
     result.converted =
         fx_state.converted || std::any_of(quotes.begin(), quotes.end(),
                                           [](const auto& q) { return q.second.fx.has_value(); });
-    if (result.converted)
-      result.conversions =
-          settle(result.plan, fx_state, quotes, currency, *trading, view, as_of, p.notes);
+    if (result.converted) {
+      auto fx =
+          fx_orders(fx_state, targets, quotes, currency, *trading, view, as_of, prefs, p.notes);
+      result.plan = std::move(fx.plan);
+      result.conversions = std::move(fx.conversions);
+    } else {
+      result.plan = orders(portfolio, targets, quotes, *trading, as_of, Explain::all, prefs);
+    }
+    refuse_ungiven(portfolio, result.plan, prefs, plan.tax.gain_cap, as_of);
     for (const auto& o : result.plan.orders)
       for (const auto& a : portfolio.accounts)
         if (a.id == o.account_id && a.tax == TaxStatus::taxable)

@@ -157,14 +157,18 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
                           "cash first",
                           printable_list(p.accounts), as_of.str(), pool_value.str()));
 
-  p.plan = orders(portfolio, p.targets, quotes, rule.trading, as_of, Explain::all, prefs);
-  refuse_ungiven(portfolio, p.plan, prefs, rule.tax.gain_cap, as_of);
   p.converted = fx_state.converted || std::any_of(quotes.begin(), quotes.end(), [](const auto& q) {
                   return q.second.fx.has_value();
                 });
-  if (p.converted)
-    p.conversions =
-        settle(p.plan, fx_state, quotes, p.currency, rule.trading, view, as_of, p.notes);
+  if (p.converted) {
+    auto fx = fx_orders(fx_state, p.targets, quotes, p.currency, rule.trading, view, as_of, prefs,
+                        p.notes);
+    p.plan = std::move(fx.plan);
+    p.conversions = std::move(fx.conversions);
+  } else {
+    p.plan = orders(portfolio, p.targets, quotes, rule.trading, as_of, Explain::all, prefs);
+  }
+  refuse_ungiven(portfolio, p.plan, prefs, rule.tax.gain_cap, as_of);
   p.cautions = proposal_cautions(as_of);
   if (rule.tax_keys()) p.cautions.push_back(tax_caution("rule"));
   return p;

@@ -748,3 +748,35 @@ TEST_CASE(
   CHECK(w.plan.pool_value == Decimal(11000));
   CHECK(w.planned[0].converted == Decimal(-100));
 }
+
+TEST_CASE(
+    "regression: with no cash reserve, a conversion's fee left the account short of its own "
+    "cash") {
+  Market m;
+  m.account("Main");
+  m.cash(TxnKind::deposit, "2024-01-02", "Main", "1000");
+  m.stock("EUF", "1", SecurityKind::stock, "EUR");
+  m.stock("U1");
+  m.stock("U2");
+  m.closes({{"EUF", "2024-05-31", "1"}, {"U1", "2024-05-31", "10"}, {"U2", "2024-05-31", "10"}});
+  m.figures("pe", {{"EUF", "2024-03-31", "2024-04-30", "5"},
+                   {"U1", "2024-03-31", "2024-04-30", "10"},
+                   {"U2", "2024-03-31", "2024-04-30", "15"}});
+  m.fx({{"EUR", "USD", "2024-05-31", "1.1"}});
+  const auto p = propose(
+      m.db, month_rule("[scope]\naccounts = [\"Main\"]\n[screen]\nmin_names = 3\n[select]\nby = "
+                       "\"count\"\ncount = 1\n[trading]\nfee_fixed = 5\n"));
+  // EUF is 1 EUR at 1.1 USD. Sized without the conversion, 904 units (994.40 USD) and the
+  // order's fee (5) left 0.60, and the conversion's fee (5) took the account 4.40 short.
+  // Inside the sizing: 900 units, 990 USD, the order's fee and the conversion's, 0 left.
+  REQUIRE(p.plan.orders.size() == 1);
+  CHECK(p.plan.orders[0].quantity == Decimal(900));
+  CHECK(p.plan.orders[0].value == Decimal(990));
+  REQUIRE(p.conversions.size() == 1);
+  CHECK(p.conversions[0].amount == Decimal(900));
+  CHECK(p.conversions[0].fee == Decimal(5));
+  REQUIRE(p.plan.cash_after.size() == 1);
+  CHECK(p.plan.cash_after[0].cash == Decimal(0));
+  CHECK(p.plan.estimated_fees == Decimal(10));
+  for (const auto& n : p.notes) CHECK(n.find("short") == std::string::npos);
+}
