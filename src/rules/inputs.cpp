@@ -163,6 +163,12 @@ market::Series::Request Inputs::series_request(const market::View& catalog, Date
   request.from = from;
   request.to = to;
   for (const auto& m : rule_.screen.metrics()) request.metrics.push_back(m.name);
+  // Converting, the rates of every loaded name's currency into the rule's.
+  if (convert_ == Convert::yes && currency_) {
+    std::set<std::string> codes{*currency_};
+    for (const std::int64_t id : *request.securities) codes.insert(catalog.security(id)->currency);
+    request.currencies.assign(codes.begin(), codes.end());
+  }
   return request;
 }
 

@@ -82,13 +82,18 @@ class Inputs {
   const std::vector<std::int64_t>& sleeves() const { return sleeves_; }
   // The currency the rule trades in; unset only when nothing has one.
   const std::optional<std::string>& currency() const { return currency_; }
+  // The currency prices are converted into (Convert::yes); unset otherwise.
+  std::optional<std::string> converts_into() const {
+    return convert_ == Convert::yes ? currency_ : std::nullopt;
+  }
   // Notes about the universe (stocks left out for their currency).
   const std::vector<std::string>& notes() const { return notes_; }
   // The universe and the sleeves: what a preloaded view must hold.
   std::vector<std::int64_t> securities() const;
   // What a market::Series over [from, to] must load for the rule: the
   // universe, the sleeves and `extra`, what a merger or spin-off in the span
-  // hands out (and so on), and the rule's metric.
+  // hands out (and so on), and the rule's metric; converting, the exchange
+  // rates of their currencies too.
   market::Series::Request series_request(const market::View& catalog, Date from, Date to,
                                          std::vector<std::int64_t> extra = {}) const;
   // With a track record attached (rules/track_record.h), candidates() carry

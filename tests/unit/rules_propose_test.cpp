@@ -780,3 +780,20 @@ TEST_CASE(
   CHECK(p.plan.estimated_fees == Decimal(10));
   for (const auto& n : p.notes) CHECK(n.find("short") == std::string::npos);
 }
+
+TEST_CASE(
+    "regression: a track record over names in another currency stopped with an internal "
+    "error") {
+  EuroMonth m;
+  m.fx({{"EUR", "USD", "2024-01-02", "1.1"}});
+  // One month of figures is too short a record: the rule's own refusal, where the record's
+  // market data lacked the exchange rates before (std::out_of_range).
+  CHECK_THROWS_WITH_AS(
+      propose(m.db, month_rule(std::string(kMonthRule) +
+                               "[track_record]\nwindow_months = 6\nhorizon_months = 1\n"
+                               "min_observations = 3\n")),
+      "month.toml: key 'track_record.max_correlation' (default 0): selects no name on "
+      "2024-05-31: all 6 names passing the screen fail the track record (fewer than 3 "
+      "observations, or a correlation above 0.00)",
+      InputError);
+}
