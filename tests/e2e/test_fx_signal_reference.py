@@ -17,7 +17,7 @@ import pandas as pd
 from scipy import stats
 
 sys.path.insert(0, os.path.dirname(__file__))
-from keel_cli import Ledger  # noqa: E402
+from keel_cli import Ledger, write_market  # noqa: E402
 
 TOL = 1e-9
 NAMES = {"DOLA": "USD", "DOLB": "USD", "DOLC": "USD", "DOLD": "USD",
@@ -58,15 +58,7 @@ def generate(folder):
     rates = [(date(2024, m, 15), rng.uniform(1.0, 1.2)) for m in range(1, 13)]
     rates += [(d, rng.uniform(1.0, 1.2)) for d in days[2::3]]
     rates.insert(0, (date(2023, 12, 29), 1.1))
-    with open(os.path.join(folder, "securities.csv"), "w") as f:
-        f.write("symbol,name,kind,currency,lot_size,sector\n")
-        f.writelines(f"{s},Invented {s},stock,{c},1,Tools\n" for s, c in NAMES.items())
-    with open(os.path.join(folder, "prices.csv"), "w") as f:
-        f.write("date,symbol,close\n")
-        f.writelines(",".join(row) + "\n" for row in prices)
-    with open(os.path.join(folder, "metrics.csv"), "w") as f:
-        f.write("date,symbol,metric,value,known_on\n")
-        f.writelines(",".join(row) + "\n" for row in metrics)
+    write_market(folder, list(NAMES), prices, metrics, currencies=NAMES)
     with open(os.path.join(folder, "fx.csv"), "w") as f:
         f.write("date,base,quote,rate\n")
         f.writelines(f"{d.isoformat()},EUR,USD,{r:.4f}\n" for d, r in sorted(rates))
