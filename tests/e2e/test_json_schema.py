@@ -111,7 +111,7 @@ MORE = {
 }
 # Documents whose members changed since their first version.
 VERSIONS = {"holdings": 2, "lots": 2, "gains": 2, "backtest": 2, "propose": 5, "plan-proposal": 4,
-            "proposal": 3, "proposals-list": 2, "returns": 3, "signal": 3, "statement": 3}
+            "proposal": 3, "proposals-list": 2, "returns": 3, "signal": 3, "statement": 4}
 ON_DEMO = {"returns", "propose", "plan-proposal", "proposals-list", "proposal", "backtest", "compare", "signal", "sweep", "statement"}
 # The commands of the reference each report stands for.
 COMMANDS = {"holdings": "holdings", "lots": "lots", "gains": "gains", "history": "history",
