@@ -1,12 +1,14 @@
 #include "backtest/signal.h"
 
 #include <fmt/format.h>
+#include <fmt/ranges.h>
 
 #include <algorithm>
 #include <cmath>
 #include <map>
 #include <memory>
 #include <numeric>
+#include <set>
 #include <stdexcept>
 #include <unordered_set>
 
@@ -74,7 +76,7 @@ void by_name(const History& h, const rules::Rule& rule, const SignalRequest& req
 
 SignalResult signal(store::Database& db, const rules::Rule& rule, const SignalRequest& req) {
   check_request(req);
-  return signal(load_history(db, rule, req.from, req.to), rule, req);
+  return signal(load_history(db, rule, req.from, req.to, {}, rules::Convert::yes), rule, req);
 }
 
 SignalResult signal(const History& h, const rules::Rule& rule, const SignalRequest& req) {
@@ -90,14 +92,14 @@ SignalResult signal(const History& h, const rules::Rule& rule, const SignalReque
   std::map<int, Date> by_month;  // year * 12 + month - 1
   for (Date d : month_last) by_month[d.year() * 12 + d.month() - 1] = d;
 
-  const rules::ForwardReturns forward(h.market);
+  rules::Inputs inputs(rule, h.market, h.currency, h.convert);
+  const rules::ForwardReturns forward(h.market, inputs.converts_into());
 
   for (int months : req.horizons) {
     HorizonResult hr;
     hr.months = months;
     res.horizons.push_back(std::move(hr));
   }
-  rules::Inputs inputs(rule, h.market, h.currency);
   std::unique_ptr<rules::TrackRecord> track;
   if (rule.track_record) {
     track = std::make_unique<rules::TrackRecord>(rule, inputs, h.market);
@@ -176,6 +178,15 @@ SignalResult signal(const History& h, const rules::Rule& rule, const SignalReque
       hr.t_stat = *hr.mean_ic / *hr.ic_standard_error;
     }
   }
+  std::set<std::string> foreign;
+  for (int c = 0; c < h.market.columns(); ++c)
+    if (h.foreign(c)) foreign.insert(h.security(h.market.security_id(c)).currency);
+  if (!foreign.empty())
+    res.notes.insert(res.notes.begin(),
+                     fmt::format("forward returns are in {}: the closes and cash of names priced "
+                                 "in {} are taken at each day's rate (the latest on or before "
+                                 "it); a name is not ranked on a day without one",
+                                 *h.currency, fmt::join(foreign, ", ")));
   res.cautions = backtest_cautions();
   res.cautions.insert(res.cautions.begin(),
                       "Forward windows longer than the rebalancing step overlap, so their "

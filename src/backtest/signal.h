@@ -16,6 +16,11 @@
 //    is the cash it paid plus the acquirer's units at their close on that
 //    day. A name off the market at the start is not screened at all. A
 //    forward return is only ever paired with the score known at its start.
+//  - Across currencies (a ledger with a currency of its own): names priced in
+//    other currencies are screened and ranked too, with forward returns in
+//    the ledger's currency (rules::ForwardReturns: each close and each cash
+//    amount at its day's rate, point in time), and so is the track record; a
+//    note names the currencies converted.
 //  - Information coefficient (IC) of a day: Spearman's rank correlation of z
 //    with the forward return (average ranks for ties; Pearson's r of the
 //    ranks), as scipy.stats.spearmanr computes it.

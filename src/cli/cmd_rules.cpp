@@ -40,14 +40,17 @@ void add_propose(CLI::App& app, Context& ctx) {
       "Plan file: several rules and fixed sleeves proposed together (TOML; see docs/plan.md)");
   rule_opt->excludes(plan_opt);
   cmd->add_option("--deposit", o->deposits,
-                  "Cash to plan with that is not booked yet, ACCOUNT=AMOUNT (repeatable)");
+                  "Cash to plan with that is not booked yet, ACCOUNT=AMOUNT in that account's "
+                  "currency (repeatable)");
   cmd->add_option("--withdraw", o->withdrawals,
-                  "Cash to take out that is not booked yet, ACCOUNT=AMOUNT (repeatable)");
+                  "Cash to take out that is not booked yet, ACCOUNT=AMOUNT in that account's "
+                  "currency (repeatable)");
   cmd->add_option("--as-of", o->as_of,
                   "Day to propose for, YYYY-MM-DD (default: the latest day with a close)");
   cmd->add_option("--currency", o->currency,
-                  "With --rule: value the pool and size the orders in this currency, a "
-                  "three-letter code (default: the first account's)");
+                  "Value the pool and size the orders in this currency, a three-letter code "
+                  "(default: a rule's first account's; each pool of a plan its accounts' "
+                  "currency, or the ledger's when they keep several)");
   add_json_flag(*cmd, o->json);
   cmd->add_flag("--save", o->save, "Keep the proposal, to compare with what is traded later");
   auto* window =
@@ -66,10 +69,11 @@ void add_propose(CLI::App& app, Context& ctx) {
     const auto currency = currency_option(o->currency);
     if (!o->plan.empty()) {
       if (window->count() > 0) throw InputError("--repurchase-window: applies only with --rule");
-      if (currency) throw InputError("--currency: applies only with --rule");
       const auto plan = rules::load_plan(o->plan);
       auto db = ctx.open_ledger(o->save ? store::Access::write : store::Access::read);
-      const auto proposal = rules::propose_plan(db, plan, as_of, std::move(planned));
+      const auto proposal = with_currency_option(currency, [&] {
+        return rules::propose_plan(db, plan, as_of, std::move(planned), currency);
+      });
       std::optional<std::int64_t> id;
       if (o->save) id = rules::save_plan(db, plan, proposal);
       out(o->json ? report::plan_proposal_json(proposal, id)

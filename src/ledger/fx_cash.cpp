@@ -30,26 +30,6 @@ BookedAmount booked_amount(const Decimal& amount, const std::string& currency,
           view.rate(account_currency, currency, day)};
 }
 
-void refuse_other_currencies(const LedgerLog& log, std::string_view what,
-                             const std::vector<std::int64_t>& accounts) {
-  const auto voided = voided_ids(log.transactions);
-  for (const auto& t : log.transactions) {
-    if (t.kind == TxnKind::void_entry || voided.count(t.id)) continue;
-    if (!t.currency && !t.to_currency) continue;
-    if (!accounts.empty() &&
-        std::find(accounts.begin(), accounts.end(), t.account_id) == accounts.end())
-      continue;
-    std::string name;
-    for (const auto& a : log.accounts)
-      if (a.id == t.account_id) name = a.name;
-    throw InputError(fmt::format(
-        "{}: account '{}' has rows in another currency (transaction {}, {} in {}); these "
-        "figures do not convert currencies yet ('keel holdings', 'keel gains' and 'keel returns' "
-        "do)",
-        what, printable(name), t.id, to_string(t.kind), t.currency.value_or(*t.to_currency)));
-  }
-}
-
 }  // namespace ledger
 
 Decimal Book::at_day_rate(const Decimal& amount, const std::string& from, const std::string& to,

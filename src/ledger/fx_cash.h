@@ -67,12 +67,4 @@ BookedAmount booked_amount(const Decimal& amount, const std::string& currency,
                            const std::optional<Decimal>& rate, const std::string& account_currency,
                            Date day, const market::View& view);
 
-// For the reports that value a whole ledger over time and do not convert
-// yet (the statement, proposals): throws InputError naming `what`,
-// the first live row in another currency than its account's (or an
-// exchange) and its account, so no figure adds two currencies. `accounts`
-// limits the rows looked at (all when empty).
-void refuse_other_currencies(const LedgerLog& log, std::string_view what,
-                             const std::vector<std::int64_t>& accounts = {});
-
 }  // namespace keel::ledger

@@ -50,7 +50,7 @@ void screen_json(JsonWriter& j, const rules::ScreenResult& screen) {
   j.end_array();
 }
 
-// An order's currency side (propose only; a plan's orders have none).
+// An order's currency side: null for a name in the pool's currency.
 void order_fx_json(JsonWriter& j, const rules::Order& o) {
   if (!o.fx) {
     j.key("fx").null();
@@ -259,7 +259,7 @@ std::string fx_orders_text(const std::vector<rules::Order>& orders, const std::s
 }
 
 std::string orders_text(const std::vector<rules::Order>& orders, const Style& style,
-                        const std::string& currency = {}) {
+                        const std::string& currency) {
   std::string s;
   if (orders.empty()) {
     s += "No orders.\n\n";
@@ -295,25 +295,62 @@ std::string orders_text(const std::vector<rules::Order>& orders, const Style& st
   return s;
 }
 
-// Planned cash, one line each: never booked by a proposal.
+// Planned cash, one line each: never booked by a proposal. An amount in
+// another currency than the proposal's shows what it comes to there.
 std::string planned_text(const std::vector<rules::PlannedCash>& planned) {
   std::string s;
-  for (const auto& c : planned)
-    s += fmt::format("Planned, not booked: {} {} {} {}\n",
+  for (const auto& c : planned) {
+    s += fmt::format("Planned, not booked: {} {}{} {} {}",
                      c.amount.is_negative() ? "withdraw" : "deposit", money(c.amount.abs()),
-                     c.amount.is_negative() ? "from" : "to", printable(c.account));
+                     c.converted ? " " + c.currency : "", c.amount.is_negative() ? "from" : "to",
+                     printable(c.account));
+    if (c.converted) s += fmt::format(" (about {} {})", money(c.converted->abs()), c.into);
+    s += "\n";
+  }
   return s;
 }
 
 void planned_json(JsonWriter& j, const std::vector<rules::PlannedCash>& planned) {
   j.key("planned_cash").begin_array();
-  for (const auto& c : planned)
-    j.begin_object()
-        .member("account", c.account)
-        .member("amount", c.amount)
-        .member("booked", false)
-        .end_object();
+  for (const auto& c : planned) {
+    j.begin_object().member("account", c.account).member("amount", c.amount);
+    j.member("currency", c.currency);
+    if (c.converted)
+      j.member("converted", *c.converted);
+    else
+      j.key("converted").null();
+    j.member("booked", false).end_object();
+  }
   j.end_array();
+}
+
+void conversions_json(JsonWriter& j, const std::vector<rules::Conversion>& conversions) {
+  j.key("conversions").begin_array();
+  for (const auto& c : conversions) {
+    j.begin_object().member("account", c.account).member("from", c.from).member("to", c.to);
+    j.member("amount", c.amount).member("about", c.about).member("rate_source", c.rate_text);
+    j.member("fee", c.fee).end_object();
+  }
+  j.end_array();
+}
+
+std::string conversions_text(const std::vector<rules::Conversion>& conversions,
+                             const std::string& currency) {
+  if (conversions.empty()) return "";
+  std::string s = "Currency conversions the orders need (estimates)\n";
+  for (const auto& c : conversions)
+    s += fmt::format("  {}: about {} {} into {} {} at {}; est. fee {} {}\n", printable(c.account),
+                     c.about.str(), c.from, c.amount.str(), c.to, c.rate_text, money(c.fee),
+                     currency);
+  return s + "\n";
+}
+
+// "value 10040.00 EUR (other currencies converted ...)" or "value 10040.00".
+std::string pool_value_text(const Decimal& value, bool converted, const std::string& currency,
+                            Date as_of) {
+  if (!converted) return money(value);
+  return fmt::format("{} {} (other currencies converted at the latest rates on or before {})",
+                     money(value), currency, as_of.str());
 }
 
 std::string result_text(const rules::OrderPlan& plan, const Style& style) {
@@ -343,7 +380,7 @@ std::string result_text(const rules::OrderPlan& plan, const Style& style) {
 std::string proposal_json(const rules::Proposal& p, std::optional<std::int64_t> saved_id) {
   std::string s;
   JsonWriter j(s);
-  begin_document(j, "propose", 4);
+  begin_document(j, "propose", 5);
   j.member("as_of", p.as_of.str());
   j.member("rule", p.rule_name);
   j.member("rule_sha256", p.rule_sha256);
@@ -353,13 +390,7 @@ std::string proposal_json(const rules::Proposal& p, std::optional<std::int64_t> 
   j.member("pool_value", p.plan.pool_value);
   screen_json(j, p.screen);
   orders_json(j, p.plan.orders, WithFx::yes);
-  j.key("conversions").begin_array();
-  for (const auto& c : p.conversions) {
-    j.begin_object().member("account", c.account).member("from", c.from).member("to", c.to);
-    j.member("amount", c.amount).member("about", c.about).member("rate_source", c.rate_text);
-    j.member("fee", c.fee).end_object();
-  }
-  j.end_array();
+  conversions_json(j, p.conversions);
   result_json(j, p.plan);
   j.member("notes", p.notes);
   j.member("cautions", p.cautions);
@@ -371,26 +402,13 @@ std::string proposal_json(const rules::Proposal& p, std::optional<std::int64_t> 
 std::string proposal_text(const rules::Proposal& p, const Style& style) {
   std::string s =
       fmt::format("Proposal of rule '{}' as of {}\n", printable(p.rule_name), p.as_of.str());
-  if (p.converted)
-    s += fmt::format(
-        "Accounts: {}; pool value {} {} (other currencies converted at the latest rates on or "
-        "before {})\n",
-        printable_list(p.accounts), money(p.plan.pool_value), p.currency, p.as_of.str());
-  else
-    s += fmt::format("Accounts: {}; pool value {}\n", printable_list(p.accounts),
-                     money(p.plan.pool_value));
+  s += fmt::format("Accounts: {}; pool value {}\n", printable_list(p.accounts),
+                   pool_value_text(p.plan.pool_value, p.converted, p.currency, p.as_of));
   s += planned_text(p.planned) + "\n";
 
   s += "1. Screen: " + screen_text(p.screen, style);
   s += "2. Orders (estimates at the closes used)\n" + orders_text(p.plan.orders, style, p.currency);
-  if (!p.conversions.empty()) {
-    s += "Currency conversions the orders need (estimates)\n";
-    for (const auto& c : p.conversions)
-      s += fmt::format("  {}: about {} {} into {} {} at {}; est. fee {} {}\n", printable(c.account),
-                       c.about.str(), c.from, c.amount.str(), c.to, c.rate_text, money(c.fee),
-                       p.currency);
-    s += "\n";
-  }
+  s += conversions_text(p.conversions, p.currency);
   s += "3. Result\n" + result_text(p.plan, style);
   for (const auto& n : p.notes) s += fmt::format("Note: {}\n", printable(n));
   s += "\nCautions:\n";
@@ -401,7 +419,7 @@ std::string proposal_text(const rules::Proposal& p, const Style& style) {
 std::string plan_proposal_json(const rules::PlanProposal& p, std::optional<std::int64_t> saved_id) {
   std::string s;
   JsonWriter j(s);
-  begin_document(j, "plan-proposal", 3);
+  begin_document(j, "plan-proposal", 4);
   j.member("as_of", p.as_of.str()).member("plan", p.plan_name);
   planned_json(j, p.planned);
   j.key("parts").begin_array();
@@ -424,7 +442,7 @@ std::string plan_proposal_json(const rules::PlanProposal& p, std::optional<std::
           .member("why", t.why)
           .end_object();
     j.end_array();
-    orders_json(j, part.orders);
+    orders_json(j, part.orders, WithFx::yes);
     j.end_object();
   }
   j.end_array();
@@ -435,8 +453,9 @@ std::string plan_proposal_json(const rules::PlanProposal& p, std::optional<std::
       j.key("trading_from").null();
     else
       j.member("trading_from", pool.trading_from);
-    j.member("pool_value", pool.plan.pool_value);
-    orders_json(j, pool.plan.orders);
+    j.member("currency", pool.currency).member("pool_value", pool.plan.pool_value);
+    orders_json(j, pool.plan.orders, WithFx::yes);
+    conversions_json(j, pool.conversions);
     result_json(j, pool.plan);
     j.end_object();
   }
@@ -466,16 +485,20 @@ std::string plan_proposal_text(const rules::PlanProposal& p, const Style& style)
     Table t({{"symbol"}, {"target", Align::right}, {"why", Align::left, true}});
     for (const auto& x : part.targets) t.add_row({x.symbol, pct(x.weight), x.why});
     s += "Targets (of the pool's invested value)\n" + t.render(style);
-    s += "Orders\n" + orders_text(part.orders, style);
+    const auto pool = std::find_if(p.pools.begin(), p.pools.end(),
+                                   [&](const rules::PoolResult& x) { return x.name == part.pool; });
+    s += "Orders\n" + orders_text(part.orders, style, pool->currency);
   }
   for (const auto& pool : p.pools) {
     s += fmt::format("Pool '{}': {}; value {}; trading settings {}\n", printable(pool.name),
-                     printable_list(pool.accounts), money(pool.plan.pool_value),
+                     printable_list(pool.accounts),
+                     pool_value_text(pool.plan.pool_value, pool.converted, pool.currency, p.as_of),
                      pool.trading_from.empty()
                          ? std::string("the defaults")
                          : fmt::format("of part '{}'", printable(pool.trading_from)));
     s += "All orders, one per account and security (estimates at the closes used)\n" +
-         orders_text(pool.plan.orders, style);
+         orders_text(pool.plan.orders, style, pool.currency);
+    s += conversions_text(pool.conversions, pool.currency);
     s += "Result\n" + result_text(pool.plan, style);
   }
   if (!p.unmanaged.empty()) {

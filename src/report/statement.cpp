@@ -353,17 +353,22 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
   struct Reported {
     Decimal amount;
     std::optional<RateUsed> rate;
+    std::optional<RateUsed> translated;  // the second step of a payment in a third currency
   };
   auto booked = [&](const Transaction& t, const Decimal& amount) {
     const std::string& own = account_currency.at(t.account_id);
     try {
       const auto b =
           ledger::booked_amount(amount, t.currency.value_or(own), t.rate, own, t.date, view);
-      Reported out{b.amount, std::nullopt};
+      Reported out{b.amount, std::nullopt, std::nullopt};
       if (b.converted()) out.rate = RateUsed{*t.currency, amount, b.row_rate, b.day_rate};
       if (own != s.currency) {
         out.amount = view.convert(b.amount, own, s.currency, t.date);
-        out.rate = RateUsed{own, b.amount, std::nullopt, view.rate(s.currency, own, t.date)};
+        if (out.rate)  // the second step: reporting units per unit of the account's
+          out.translated =
+              RateUsed{own, b.amount, std::nullopt, view.rate(own, s.currency, t.date)};
+        else
+          out.rate = RateUsed{own, b.amount, std::nullopt, view.rate(s.currency, own, t.date)};
       }
       return out;
     } catch (const InputError& e) {
@@ -411,7 +416,7 @@ Statement build_statement(store::Database& db, const StatementRequest& request) 
         if (taxable)
           s.income.push_back({account_names[t->account_id], t->date,
                               std::string(to_string(t->kind)), symbol, gross.amount, Decimal(),
-                              gross.rate});
+                              gross.rate, gross.translated});
         else
           s.not_taxable.push_back({account_names[t->account_id], std::string(to_string(status)),
                                    t->date, std::string(to_string(t->kind)), symbol, gross.amount,

@@ -181,6 +181,10 @@ struct IncomeRow {
   std::string symbol;  // empty when none
   Decimal gross, withheld;
   std::optional<RateUsed> converted = std::nullopt;  // a payment in another currency
+  // A payment in a third currency: `converted` took it into its account's
+  // currency as booked, this into the reporting one (the stored rate of its
+  // day, as reporting units per unit of the account's currency).
+  std::optional<RateUsed> translated = std::nullopt;
   Decimal net() const { return gross - withheld; }
 };
 

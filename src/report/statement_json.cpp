@@ -47,7 +47,7 @@ void currency(JsonWriter& j, const std::string& code) {
 std::string statement_json(const Statement& s) {
   std::string text;
   JsonWriter j(text);
-  begin_document(j, "statement", 3);
+  begin_document(j, "statement", 4);
   j.member("year", s.year).member("scope", s.scope).member("currency", s.currency);
   j.member("from", s.from.str()).member("to", s.to.str()).member("as_of", s.as_of.str());
   j.member("inception", s.inception.str()).member("partial_year", s.partial_year);
@@ -173,6 +173,16 @@ std::string statement_json(const Statement& s) {
       j.begin_object().member("currency", u.currency).member("local_gross", u.local);
       j.member("rate", u.rate()).member("source", u.row_rate ? "row" : "stored");
       quote(j, "stored_rate", u.day);
+      j.key("translated");
+      if (!r.translated) {
+        j.null();
+      } else {
+        const RateUsed& t = *r.translated;
+        j.begin_object().member("currency", t.currency).member("booked_gross", t.local);
+        j.member("rate", t.rate());
+        quote(j, "stored_rate", t.day);
+        j.end_object();
+      }
       j.end_object();
     }
     j.end_object();

@@ -422,18 +422,36 @@ Section income_conversion_section(const Statement& s) {
                  {"rate", Align::right},
                  {"rate from", Align::left, false, 1},
                  {"gross", Align::right}};
+  // A payment in a third currency shows both steps, a line each: into its
+  // account's currency as booked, then that amount into the reporting one.
+  bool two_steps = false;
   for (const auto& r : s.income) {
     if (!r.converted) continue;
     const RateUsed& u = *r.converted;
     sec.rows.push_back({C::of_text(r.account), C::of_date(r.day), C::of_text(r.symbol),
                         C::of_text(u.currency), C::of_quantity(u.local), C::of_quantity(u.rate()),
-                        C::of_text(u.source()), C::of_money(r.gross)});
+                        C::of_text(u.source()),
+                        r.translated ? C::of_text("") : C::of_money(r.gross)});
+    if (!r.translated) continue;
+    two_steps = true;
+    const RateUsed& t = *r.translated;
+    sec.rows.push_back({C::of_text(""), C::of_text(""), C::of_text(""), C::of_text(t.currency),
+                        C::of_quantity(t.local), C::of_quantity(t.rate()),
+                        C::of_text("then " + t.source()), C::of_money(r.gross)});
   }
   sec.notes.push_back(fmt::format(
       "The rate is units of the payment's currency per {}: the rate given on the row when it "
       "has one (the payment settled in {}), else the latest stored rate on or before its day. "
       "Withholding is converted the same way, row by row.",
       s.currency, s.currency));
+  if (two_steps)
+    sec.notes.push_back(fmt::format(
+        "A payment in a third currency has two lines: its amount and the rate it was booked at "
+        "in its account's currency (units of the payment's currency per unit of the account's), "
+        "then that booked amount and the stored rate of its day that took it into {} (units of "
+        "{} per unit of the account's currency: the gross is the booked amount times it, "
+        "rounded once).",
+        s.currency, s.currency));
   return sec;
 }
 

@@ -291,6 +291,9 @@ struct HouseholdPrefs {
   // Cash an account must give (a planned withdrawal): when its cash is
   // below zero, sells in it raise the shortfall, in the order the keys prefer.
   std::map<std::int64_t, Decimal> must_give;  // account id -> amount
+  // Cash an account's buys may not spend, beyond its reserve: what the
+  // currency conversions of its orders cost (rules/fx_orders.h).
+  std::map<std::int64_t, Decimal> withheld;  // account id -> amount
   bool tax_keys() const { return !place_deferred.empty() || sell_deferred_first || gain_cap; }
 };
 

@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <tuple>
 
+#include "core/currency.h"
 #include "core/error.h"
 #include "core/text.h"
 #include "rules/inputs.h"
@@ -66,10 +67,37 @@ FxPool fx_pool(const Book& book, const std::vector<Account>& pool, const std::st
   return out;
 }
 
-std::vector<Conversion> settle(OrderPlan& plan, const FxPool& pool, const Quotes& quotes,
-                               const std::string& currency, const TradingRule& trading,
-                               const market::View& view, Date day,
-                               std::vector<std::string>& notes) {
+void plan_cash(FxPool& pool, std::vector<PlannedCash>& planned, HouseholdPrefs& prefs,
+               const std::string& currency, const market::View& view, Date day) {
+  for (auto& c : planned)
+    for (std::size_t a = 0; a < pool.portfolio.accounts.size(); ++a) {
+      auto& st = pool.portfolio.accounts[a];
+      if (st.name != c.account) continue;
+      const std::string& own = pool.currency[a];
+      c.currency = own;
+      const Decimal in_pool = view.convert(c.amount, own, currency, day);
+      if (own != currency) {
+        c.converted = in_pool;
+        c.into = currency;
+      }
+      pool.cash[a][own] += c.amount;
+      st.cash += in_pool;
+      if (in_pool.is_negative()) prefs.must_give[st.id] -= in_pool;
+    }
+}
+
+namespace {
+
+struct Settlement {
+  std::vector<Conversion> conversions;
+  // Each account's own cash at the end, in its units, and all of its cash in
+  // the pool's currency.
+  std::vector<Decimal> own_after, after;
+};
+
+Settlement settle(OrderPlan& plan, const FxPool& pool, const Quotes& quotes,
+                  const std::string& currency, const TradingRule& trading, const market::View& view,
+                  Date day) {
   auto cash = pool.cash;
   const auto& accounts = pool.portfolio.accounts;
   auto index_of = [&](std::int64_t account_id) {
@@ -137,7 +165,7 @@ std::vector<Conversion> settle(OrderPlan& plan, const FxPool& pool, const Quotes
     }
   }
 
-  std::vector<Conversion> conversions;
+  Settlement settled;
   for (auto& [a, c] : out) {
     c.fee = trading.fee(view.convert(c.amount, c.to, currency, day));
     plan.estimated_fees += c.fee;
@@ -146,17 +174,58 @@ std::vector<Conversion> settle(OrderPlan& plan, const FxPool& pool, const Quotes
       if (after.account == c.account) after.cash -= c.fee;
     const std::string& own = pool.currency[a];
     cash[a][own] -= view.convert(c.fee, currency, own, day);
-    conversions.push_back(std::move(c));
+    settled.conversions.push_back(std::move(c));
   }
   for (std::size_t a = 0; a < accounts.size(); ++a) {
-    const std::string& own = pool.currency[a];
-    if (cash[a][own].is_negative())
-      notes.push_back(fmt::format(
-          "'{}' would end about {} {} short of its own cash after the orders, the conversions "
-          "and their estimated fees: keep a cash reserve (trading.cash_reserve_pct) or trade less",
-          printable(accounts[a].name), (-cash[a][own]).str(), own));
+    settled.own_after.push_back(cash[a][pool.currency[a]]);
+    Decimal all;
+    for (const auto& [code, units] : cash[a])
+      if (view.try_rate(code, currency, day)) all += view.convert(units, code, currency, day);
+    settled.after.push_back(all);
   }
-  return conversions;
+  return settled;
+}
+
+}  // namespace
+
+FxOrders fx_orders(const FxPool& pool, const std::vector<Target>& targets, const Quotes& quotes,
+                   const std::string& currency, const TradingRule& trading,
+                   const market::View& view, Date day, HouseholdPrefs prefs,
+                   std::vector<std::string>& notes) {
+  const auto& accounts = pool.portfolio.accounts;
+  // The smallest amount of the pool's currency: what a short account gives
+  // up at least each round, so the rounds always move.
+  const Decimal step = Decimal::scaled(1, minor_units(currency));
+  FxOrders out;
+  for (int round = 0;; ++round) {
+    out.plan = orders(pool.portfolio, targets, quotes, trading, day, Explain::all, prefs);
+    std::vector<Decimal> engine_after;
+    for (const auto& c : out.plan.cash_after) engine_after.push_back(c.cash);
+    auto settled = settle(out.plan, pool, quotes, currency, trading, view, day);
+    out.conversions = std::move(settled.conversions);
+    bool fits = true;
+    for (std::size_t a = 0; a < accounts.size(); ++a) {
+      if (!settled.own_after[a].is_negative()) continue;
+      fits = false;
+      // Withhold what the conversions cost beyond the engine's view (their
+      // fees, the rounding of each), and at least the shortfall more.
+      Decimal& withheld = prefs.withheld[accounts[a].id];
+      const Decimal short_by =
+          std::max(step, view.convert(-settled.own_after[a], pool.currency[a], currency, day));
+      withheld = std::max(withheld + short_by, engine_after[a] - settled.after[a]);
+    }
+    if (fits) return out;
+    if (round == kSizingRounds) {
+      for (std::size_t a = 0; a < accounts.size(); ++a)
+        if (settled.own_after[a].is_negative())
+          notes.push_back(fmt::format(
+              "'{}' would end about {} {} short of its own cash after the orders, the "
+              "conversions and their estimated fees: keep a cash reserve "
+              "(trading.cash_reserve_pct) or trade less",
+              printable(accounts[a].name), (-settled.own_after[a]).str(), pool.currency[a]));
+      return out;
+    }
+  }
 }
 
 }  // namespace keel::rules

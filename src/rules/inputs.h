@@ -82,6 +82,10 @@ class Inputs {
   const std::vector<std::int64_t>& sleeves() const { return sleeves_; }
   // The currency the rule trades in; unset only when nothing has one.
   const std::optional<std::string>& currency() const { return currency_; }
+  // The currency prices are converted into (Convert::yes); unset otherwise.
+  std::optional<std::string> converts_into() const {
+    return convert_ == Convert::yes ? currency_ : std::nullopt;
+  }
   // Notes about the universe (stocks left out for their currency).
   const std::vector<std::string>& notes() const { return notes_; }
   // The universe and the sleeves: what a preloaded view must hold.

@@ -483,7 +483,10 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
   std::vector<Decimal> spendable;
   Decimal total_spendable;
   for (std::size_t a = 0; a < n_accounts; ++a) {
-    spendable.push_back(std::max(Decimal(), cash[a] - reserve[a]));
+    const auto withheld = prefs.withheld.find(portfolio.accounts[a].id);
+    spendable.push_back(std::max(
+        Decimal(),
+        cash[a] - reserve[a] - (withheld == prefs.withheld.end() ? Decimal() : withheld->second)));
     total_spendable += spendable.back();
   }
   Decimal need;

@@ -10,6 +10,7 @@
 #include "core/error.h"
 #include "core/text.h"
 #include "io/sha256.h"
+#include "ledger/accounts.h"
 #include "ledger/fx_cash.h"
 #include "ledger/posting.h"
 #include "ledger/tax.h"
@@ -38,7 +39,7 @@ std::string pct_text(const Decimal& fraction) {
 }  // namespace
 
 PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<Date> as_of_opt,
-                          std::vector<PlannedCash> planned) {
+                          std::vector<PlannedCash> planned, std::optional<std::string> asked) {
   PlanProposal p;
   p.plan_name = plan.name;
   const market::DayView view(db);
@@ -57,7 +58,7 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
     }));
     all.insert(all.end(), pool_accounts_of.back().begin(), pool_accounts_of.back().end());
   }
-  const auto log = pool_log(db, all);
+  const auto log = ledger::load_log(db);
   p.as_of = choose_as_of(view, log, all, as_of_opt, "the plan's accounts", p.notes);
   const Date as_of = p.as_of;
 
@@ -89,7 +90,12 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
   for (std::size_t pi = 0; pi < plan.pools.size(); ++pi) {
     const PlanPool& pool = plan.pools[pi];
     const auto& accounts = pool_accounts_of[pi];
-    const std::string& currency = accounts.front().currency;
+    const std::string currency =
+        asked ? *asked
+        : !ledger::mixed_currencies(accounts)
+            ? accounts.front().currency
+            : store::ledger_currency(db).value_or(accounts.front().currency);
+    require_rates(accounts, currency, view, as_of);
     PoolResult result;
     result.name = pool.name;
     for (const auto& a : accounts) result.accounts.push_back(a.name);
@@ -107,7 +113,7 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
       const PlanPart& part = plan.parts[parts[k]];
       std::vector<std::int64_t> ids;
       if (part.rule) {
-        inputs[k].emplace(*part.rule, view, currency);
+        inputs[k].emplace(*part.rule, view, currency, Convert::yes);
         if (part.rule->track_record)
           tracks[k] = std::make_unique<LedgerTrackRecord>(db, *part.rule, *inputs[k], view, as_of);
         p.notes.insert(p.notes.end(), inputs[k]->notes().begin(), inputs[k]->notes().end());
@@ -127,11 +133,6 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
           if (!sec)
             plan.fail(part.fixed_at, "part.fixed." + s.symbol,
                       fmt::format("no security '{}' in the ledger", printable(s.symbol)));
-          if (!sec->currency.empty() && sec->currency != currency)
-            plan.fail(part.fixed_at, "part.fixed." + s.symbol,
-                      fmt::format("'{}' is priced in {}, the pool's accounts keep {}; keel does "
-                                  "not convert between currencies yet",
-                                  printable(s.symbol), sec->currency, currency));
           ids.push_back(sec->id);
         }
       }
@@ -150,7 +151,8 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
 
     // The pool on the as-of day, with the planned cash; unmanaged names out.
     std::set<std::int64_t> held;
-    Portfolio portfolio = portfolio_of(book, accounts, held);
+    FxPool fx_state = fx_pool(book, accounts, currency, view, as_of, held, p.notes);
+    Portfolio& portfolio = fx_state.portfolio;
     // Placed names: a part's (part.place) and a rule part's sleeves' (sleeve.place).
     std::set<std::int64_t> placed;
     for (const auto& [id, k] : owner) {
@@ -163,11 +165,12 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
     }
     HouseholdPrefs prefs = household_prefs(plan.tax, std::move(placed), gain_used);
     for (auto& a : portfolio.accounts) a.tax = statuses.on(a.id, as_of);
-    apply_planned(portfolio, p.planned, prefs);
+    plan_cash(fx_state, p.planned, prefs, currency, view, as_of);
     std::set<std::int64_t> unmanaged;
     for (const std::int64_t id : held)
       if (!owner.count(id)) unmanaged.insert(id);
-    const Quotes unmanaged_quotes = quote_names(view, as_of, {}, unmanaged, last_trade, p.notes);
+    const Quotes unmanaged_quotes =
+        quote_names(view, as_of, {}, unmanaged, last_trade, p.notes, currency);
     for (auto& a : portfolio.accounts)
       for (auto it = a.holdings.begin(); it != a.holdings.end();) {
         if (!unmanaged.count(it->first) || !it->second.quantity.is_positive()) {
@@ -214,7 +217,8 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
         t.weight = (t.weight * part.share).rounded(12);
         targets.push_back(t);
       }
-      const auto part_quotes = quote_names(view, as_of, r.targets, own_held, last_trade, p.notes);
+      const auto part_quotes =
+          quote_names(view, as_of, r.targets, own_held, last_trade, p.notes, currency);
       quotes.insert(part_quotes.begin(), part_quotes.end());
       p.parts.push_back(std::move(r));
     }
@@ -237,7 +241,18 @@ PlanProposal propose_plan(store::Database& db, const Plan& plan, std::optional<D
                             "cash first",
                             printable_list(result.accounts), as_of.str(), value.str()));
 
-    result.plan = orders(portfolio, targets, quotes, *trading, as_of, Explain::all, prefs);
+    result.currency = currency;
+    result.converted =
+        fx_state.converted || std::any_of(quotes.begin(), quotes.end(),
+                                          [](const auto& q) { return q.second.fx.has_value(); });
+    if (result.converted) {
+      auto fx =
+          fx_orders(fx_state, targets, quotes, currency, *trading, view, as_of, prefs, p.notes);
+      result.plan = std::move(fx.plan);
+      result.conversions = std::move(fx.conversions);
+    } else {
+      result.plan = orders(portfolio, targets, quotes, *trading, as_of, Explain::all, prefs);
+    }
     refuse_ungiven(portfolio, result.plan, prefs, plan.tax.gain_cap, as_of);
     for (const auto& o : result.plan.orders)
       for (const auto& a : portfolio.accounts)

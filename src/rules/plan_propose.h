@@ -19,6 +19,13 @@
 //    before the orders and is never booked; an account outside the plan, or
 //    a withdrawal larger than the cash, is an InputError naming the option
 //    (and the plan's nearest account for a near miss).
+//  - Across currencies, each pool works as a rule's proposal does
+//    (rules/propose.h, rules/fx_orders.h): valued in `currency` (by default
+//    its accounts' one currency, else the ledger's), names in other
+//    currencies screened, quoted and sized at the as-of day's rates, each
+//    such order with its local price, rate and settlement, and the pool's
+//    conversions with their estimated fees. Planned cash is in its account's
+//    own currency.
 //  - Orders carry the part's name before their reason. The as-of day, notes
 //    and cautions are those of rules::propose(). Reads the ledger; writes
 //    nothing.
@@ -30,6 +37,7 @@
 
 #include "core/date.h"
 #include "rules/engine.h"
+#include "rules/fx_orders.h"
 #include "rules/plan.h"
 #include "rules/planned_cash.h"
 #include "store/database.h"
@@ -57,7 +65,10 @@ struct PoolResult {
   std::string name;
   std::vector<std::string> accounts;
   std::string trading_from;  // the part whose [trading] the pool uses; empty: defaults
+  std::string currency;      // what the pool's value, targets and order values are in
+  bool converted = false;    // some amount or price was converted into it
   OrderPlan plan;
+  std::vector<Conversion> conversions;  // the currency conversions its orders need
 };
 
 struct PlanProposal {
@@ -72,9 +83,12 @@ struct PlanProposal {
   std::vector<std::string> cautions;
 };
 
+// `currency`: what every pool is valued in (default: its accounts' currency
+// when they share one, else the ledger's).
 PlanProposal propose_plan(store::Database& db, const Plan& plan,
                           std::optional<Date> as_of = std::nullopt,
-                          std::vector<PlannedCash> planned = {});
+                          std::vector<PlannedCash> planned = {},
+                          std::optional<std::string> currency = std::nullopt);
 
 // Stores a plan's proposal (the plan's text, its accounts, each order under
 // its part) in one write transaction and returns its id; review() in

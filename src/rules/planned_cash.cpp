@@ -61,16 +61,6 @@ void resolve_planned(std::vector<PlannedCash>& planned, const std::vector<Accoun
   }
 }
 
-void apply_planned(Portfolio& portfolio, const std::vector<PlannedCash>& planned,
-                   HouseholdPrefs& prefs) {
-  for (const auto& c : planned)
-    for (auto& a : portfolio.accounts)
-      if (a.name == c.account) {
-        a.cash += c.amount;
-        if (c.amount.is_negative()) prefs.must_give[a.id] -= c.amount;
-      }
-}
-
 // More than the account holds (managed, at a close) cannot be raised.
 void refuse_unraisable(const Portfolio& portfolio, const Quotes& quotes,
                        const HouseholdPrefs& prefs, Date as_of) {

@@ -9,9 +9,9 @@
 //  - resolve_planned(): fills in the account of a bare amount; an account
 //    outside the proposal's accounts is an InputError naming the option (and
 //    the nearest account for a near miss). `whose` is "plan" or "rule".
-//  - apply_planned(): moves each account's cash by its planned amounts and
-//    records what a withdrawal must give (HouseholdPrefs::must_give); never
-//    booked.
+//  - A proposal moves each account's cash by its planned amounts, in the
+//    account's own currency, and records what a withdrawal must give
+//    (rules::plan_cash in rules/fx_orders.h); never booked.
 //  - refuse_unraisable() (before the orders) and refuse_ungiven() (after):
 //    a withdrawal larger than the account's cash and managed holdings at a
 //    close, or one its sells could not raise (the gain cap, nothing more to
@@ -33,16 +33,18 @@ namespace keel::rules {
 struct PlannedCash {
   std::string option;   // "--deposit" or "--withdraw", for messages
   std::string account;  // empty: the proposal's only account
-  Decimal amount;       // deposits positive, withdrawals negative
+  Decimal amount;       // deposits positive, withdrawals negative, in the account's currency
+  // Filled in by a proposal: the account's currency, and the amount in the
+  // proposal's currency when that is another (at the as-of day's rate).
+  std::string currency;
+  std::optional<Decimal> converted;
+  std::string into;  // the proposal's currency, with `converted`
 };
 
 PlannedCash parse_planned_cash(std::string_view option, std::string_view text);
 
 void resolve_planned(std::vector<PlannedCash>& planned, const std::vector<Account>& accounts,
                      std::string_view whose);
-
-void apply_planned(Portfolio& portfolio, const std::vector<PlannedCash>& planned,
-                   HouseholdPrefs& prefs);
 
 void refuse_unraisable(const Portfolio& portfolio, const Quotes& quotes,
                        const HouseholdPrefs& prefs, Date as_of);

@@ -36,8 +36,7 @@ std::vector<std::string> proposal_cautions(Date as_of) {
 }
 
 std::vector<Account> pool_accounts(store::Database& db, const std::vector<std::string>& names,
-                                   const std::function<void(const std::string&)>& fail,
-                                   MixedCurrencies mixed) {
+                                   const std::function<void(const std::string&)>& fail) {
   std::vector<Account> pool;
   std::vector<std::string> known;
   for (const auto& a : store::list_accounts(db)) known.push_back(a.name);
@@ -48,21 +47,7 @@ std::vector<Account> pool_accounts(store::Database& db, const std::vector<std::s
                        known.empty() ? "" : " (accounts: " + printable_list(known) + ")"));
     pool.push_back(*a);
   }
-  if (mixed == MixedCurrencies::refuse)
-    if (const auto kept = ledger::mixed_currencies(pool))
-      fail(
-          fmt::format("the accounts keep different currencies ({}) and keel does not convert "
-                      "between them yet; give each currency a rule of its own",
-                      *kept));
   return pool;
-}
-
-LedgerLog pool_log(store::Database& db, const std::vector<Account>& pool) {
-  auto log = ledger::load_log(db);
-  std::vector<std::int64_t> ids;
-  for (const auto& a : pool) ids.push_back(a.id);
-  ledger::refuse_other_currencies(log, "propose", ids);
-  return log;
 }
 
 Date choose_as_of(const market::DayView& view, const LedgerLog& log,
@@ -106,28 +91,6 @@ Date choose_as_of(const market::DayView& view, const LedgerLog& log,
   return *latest;
 }
 
-Portfolio portfolio_of(const Book& book, const std::vector<Account>& pool,
-                       std::set<std::int64_t>& held) {
-  Portfolio portfolio;
-  for (const auto& a : pool) {
-    AccountState st;
-    st.id = a.id;
-    st.name = a.name;
-    const auto& ab = book.account(a.id);
-    st.cash = ab.cash;
-    for (const auto& [id, pos] : ab.positions) {
-      HoldingState h;
-      h.quantity = pos.quantity();
-      for (const auto& lot : pos.lots)
-        h.lots.push_back(LotState{lot.lot_id, lot.acquired, lot.quantity, lot.cost});
-      if (h.quantity.is_positive()) held.insert(id);
-      st.holdings[id] = std::move(h);
-    }
-    portfolio.accounts.push_back(std::move(st));
-  }
-  return portfolio;
-}
-
 Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_of_opt,
                  std::vector<PlannedCash> planned, std::optional<std::string> currency) {
   Proposal p;
@@ -135,8 +98,7 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
   p.rule_sha256 = io::sha256_hex(rule.text);
   const market::DayView view(db);
   const auto pool = pool_accounts(
-      db, rule.accounts, [&](const std::string& why) { rule.fail("scope.accounts", why); },
-      MixedCurrencies::allow);
+      db, rule.accounts, [&](const std::string& why) { rule.fail("scope.accounts", why); });
   for (const auto& a : pool) p.accounts.push_back(a.name);
   p.currency = currency ? *currency : pool.front().currency;
 
@@ -181,13 +143,7 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
     for (const auto& s : rule.weights.sleeves)
       if (t.sleeve && s.place_deferred && s.symbol == t.symbol) placed.insert(t.security_id);
   HouseholdPrefs prefs = household_prefs(rule.tax, std::move(placed), Decimal());
-  apply_planned(portfolio, p.planned, prefs);
-  // Planned cash is in the account's own currency (as the proposal's when
-  // they differ: see docs/rules.md); the settlement spends it there.
-  for (const auto& c : p.planned)
-    for (std::size_t a = 0; a < portfolio.accounts.size(); ++a)
-      if (portfolio.accounts[a].name == c.account)
-        fx_state.cash[a][fx_state.currency[a]] += c.amount;
+  plan_cash(fx_state, p.planned, prefs, p.currency, view, as_of);
   refuse_unraisable(portfolio, quotes, prefs, as_of);
 
   Decimal pool_value;
@@ -201,14 +157,18 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
                           "cash first",
                           printable_list(p.accounts), as_of.str(), pool_value.str()));
 
-  p.plan = orders(portfolio, p.targets, quotes, rule.trading, as_of, Explain::all, prefs);
-  refuse_ungiven(portfolio, p.plan, prefs, rule.tax.gain_cap, as_of);
   p.converted = fx_state.converted || std::any_of(quotes.begin(), quotes.end(), [](const auto& q) {
                   return q.second.fx.has_value();
                 });
-  if (p.converted)
-    p.conversions =
-        settle(p.plan, fx_state, quotes, p.currency, rule.trading, view, as_of, p.notes);
+  if (p.converted) {
+    auto fx = fx_orders(fx_state, p.targets, quotes, p.currency, rule.trading, view, as_of, prefs,
+                        p.notes);
+    p.plan = std::move(fx.plan);
+    p.conversions = std::move(fx.conversions);
+  } else {
+    p.plan = orders(portfolio, p.targets, quotes, rule.trading, as_of, Explain::all, prefs);
+  }
+  refuse_ungiven(portfolio, p.plan, prefs, rule.tax.gain_cap, as_of);
   p.cautions = proposal_cautions(as_of);
   if (rule.tax_keys()) p.cautions.push_back(tax_caution("rule"));
   return p;

@@ -85,25 +85,14 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
                  std::optional<std::string> currency = std::nullopt);
 
 // The steps propose() shares with plan proposals (rules/plan_propose.h).
-// The named accounts; `fail` (which must throw) gets why one is missing or
-// (unless `mixed` allows it) why they cannot share a pool.
-enum class MixedCurrencies { refuse, allow };
+// The named accounts; `fail` (which must throw) gets why one is missing.
 std::vector<Account> pool_accounts(store::Database& db, const std::vector<std::string>& names,
-                                   const std::function<void(const std::string&)>& fail,
-                                   MixedCurrencies mixed = MixedCurrencies::refuse);
-// The ledger's log, refused (ledger/fx_cash.h) when the accounts hold rows in
-// another currency.
-LedgerLog pool_log(store::Database& db, const std::vector<Account>& pool);
+                                   const std::function<void(const std::string&)>& fail);
 // The given day, or by default the later of the latest close and the latest
 // transaction in the accounts; the notes say why, in `whose` words.
 Date choose_as_of(const market::DayView& view, const LedgerLog& log,
                   const std::vector<Account>& pool, std::optional<Date> as_of,
                   std::string_view whose, std::vector<std::string>& notes);
-// Cash, holdings and lots of the accounts in `book`; `held` gains every
-// security with a positive quantity.
-Portfolio portfolio_of(const Book& book, const std::vector<Account>& pool,
-                       std::set<std::int64_t>& held);
-
 // The cautions every proposal ends with.
 std::vector<std::string> proposal_cautions(Date as_of);
 

@@ -68,7 +68,8 @@ std::vector<Date> month_ends(const std::vector<Date>& trading_days, std::optiona
 
 // ---------------------------------------------------------------- forward returns
 
-ForwardReturns::ForwardReturns(const market::Series& series) : m_(series) {
+ForwardReturns::ForwardReturns(const market::Series& series, std::optional<std::string> into)
+    : m_(series), into_(std::move(into)) {
   for (const auto& s : m_.split_events())
     events_[s.security_id].push_back(Event{s.date, 0, s.ratio.to_double(), nullptr});
   for (const auto& a : m_.action_events())
@@ -86,7 +87,13 @@ ForwardReturns::ForwardReturns(const market::Series& series) : m_(series) {
 // The closes as the nearest doubles to the stored decimals (as scipy reads them).
 double ForwardReturns::price(std::int64_t id, Date day) const {
   const int c = m_.column(id);
-  return c < 0 ? std::nan("") : m_.value(m_.row(day), c);
+  return c < 0 ? std::nan("") : m_.value(m_.row(day), c) * rate(id, day);
+}
+
+double ForwardReturns::rate(std::int64_t id, Date day) const {
+  if (!into_) return 1;
+  const auto q = m_.try_rate(m_.security(id)->currency, *into_, day);
+  return q ? q->rate.to_double() : std::nan("");
 }
 
 std::optional<double> ForwardReturns::operator()(std::int64_t id, Date start, Date end) const {
@@ -107,12 +114,12 @@ std::optional<double> ForwardReturns::operator()(std::int64_t id, Date start, Da
       if (e.rank == 0) {
         units *= e.amount;
       } else if (e.rank == 2) {
-        cash += units * e.amount;
+        cash += units * e.amount * rate(id, e.day);
       } else {
         const UnitEffect u = unit_effect(*e.action);
         if (!u.target_units.is_zero())
           other.emplace_back(*e.action->target_id, units * u.target_units.to_double());
-        cash += units * u.cash.to_double();
+        cash += units * u.cash.to_double() * rate(id, e.day);
         units *= u.keeps.to_double();
         // Off the market: the window ends here, at what the action paid.
         if (u.keeps.is_zero()) {
@@ -130,7 +137,7 @@ std::optional<double> ForwardReturns::operator()(std::int64_t id, Date start, Da
 // ---------------------------------------------------------------- track record
 
 TrackRecord::TrackRecord(const Rule& rule, const Inputs& inputs, const market::Series& series)
-    : rule_(rule), forward_(series) {
+    : rule_(rule), forward_(series, inputs.converts_into()) {
   ends_ = month_ends(series.trading_days(), series.next_trading_day(), series.from(), series.to());
   z_.resize(ends_.size());
   for (std::size_t k = 0; k < ends_.size(); ++k) {

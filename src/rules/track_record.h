@@ -25,6 +25,8 @@
 //    distributions are added as cash (not reinvested), corporate actions act
 //    on the one unit held (ledger/actions.h: unit_effect); a merger or
 //    delisting ends the window at what it paid. Doubles: a statistic.
+//    When the rule's Inputs convert (Convert::yes), returns are in the
+//    rule's currency: closes and cash at each day's rate, point in time.
 //  - LedgerTrackRecord loads the series a decision on one day needs
 //    (Inputs::series_request from first_day to the day) and attaches the
 //    record to the Inputs.
@@ -62,7 +64,12 @@ std::vector<Date> month_ends(const std::vector<Date>& trading_days, std::optiona
 
 class ForwardReturns {
  public:
-  explicit ForwardReturns(const market::Series& series);
+  // With `into`, a name priced in another currency is held in `into`: each
+  // close is taken at the rate known on its day, and cash paid at the rate
+  // of the day it is counted (the ex-date, the action's day); a day without
+  // a rate leaves the return unset.
+  explicit ForwardReturns(const market::Series& series,
+                          std::optional<std::string> into = std::nullopt);
   // Total return of one unit of `id` held from its close on or before
   // `start` to `end`; unset without a positive start close or an end value.
   std::optional<double> operator()(std::int64_t id, Date start, Date end) const;
@@ -75,7 +82,11 @@ class ForwardReturns {
     const CorporateAction* action = nullptr;
   };
   double price(std::int64_t id, Date day) const;
+  // The rate of `id`'s currency into `into_` on `day` (1 without `into_`, NaN
+  // without a rate).
+  double rate(std::int64_t id, Date day) const;
   const market::Series& m_;
+  std::optional<std::string> into_;
   std::unordered_map<std::int64_t, std::vector<Event>> events_;
 };
 

@@ -121,15 +121,14 @@ def sound(path, keel_args=()):
     return ledger_digest(path)[0]
 
 
-def write_market(folder, names, prices, metrics, sectors=None):
-    """securities.csv (invented stocks in USD), prices.csv (date, symbol,
-    close) and metrics.csv (date, symbol, metric, value, known_on) in
-    `folder`, for `keel import`; each name's sector from `sectors` (else
-    Tools)."""
+def write_market(folder, names, prices, metrics, sectors=None, currencies=None):
+    """securities.csv (invented stocks, each in its currency from `currencies`, else USD),
+    prices.csv (date, symbol, close) and metrics.csv (date, symbol, metric, value, known_on) in
+    `folder`, for `keel import`; each name's sector from `sectors` (else Tools)."""
     with open(os.path.join(folder, "securities.csv"), "w") as f:
         f.write("symbol,name,kind,currency,lot_size,sector\n")
-        f.writelines(f"{s},Invented {s},stock,USD,1,{(sectors or {}).get(s, 'Tools')}\n"
-                     for s in names)
+        f.writelines(f"{s},Invented {s},stock,{(currencies or {}).get(s, 'USD')},1,"
+                     f"{(sectors or {}).get(s, 'Tools')}\n" for s in names)
     with open(os.path.join(folder, "prices.csv"), "w") as f:
         f.write("date,symbol,close\n")
         f.writelines(",".join(row) + "\n" for row in prices)

@@ -525,9 +525,6 @@ row("propose: --currency not an ISO 4217 code",
     ["propose", "--rule", "{d}/rule.toml", "--currency", "DOLLARS"], INPUT,
     "keel: error: --currency: 'DOLLARS' is not an ISO 4217 currency code (such as EUR, USD, JPY)",
     {"rule.toml": b"[scope]\naccounts = [\"Alder Taxable\"]\n\n[select]\nz_max = -0.5\n"})
-row("propose: --currency with --plan",
-    ["propose", "--plan", "{d}/plan.toml", "--currency", "EUR"], INPUT,
-    "keel: error: --currency: applies only with --rule")
 RULE_HEAD = b"[scope]\naccounts = [\"Alder Taxable\"]\n"
 row("rule: a track-record window shorter than its horizon",
     ["propose", "--rule", "{d}/track-1.toml"], INPUT,
@@ -676,6 +673,12 @@ row("compare: a holding period of no months",
 PLAN_FIXED = (b'[pools.home]\naccounts = ["Alder Taxable", "Birch Pension"]\n'
               b'[[part]]\nname = "core"\npool = "home"\nshare_pct = 100\n'
               b'fixed = { QRX = 100 }\n')
+row("propose --plan: --currency without an exchange rate on the day",
+    ["propose", "--plan", "{d}/plan.toml", "--currency", "JPY", "--as-of", "2024-02-01"], INPUT,
+    "keel: error: --currency JPY: account 'Alder Taxable' keeps USD and the proposal is valued in "
+    "JPY: no exchange rate for USD/JPY on or before 2024-02-01; import one with 'keel import fx "
+    "FILE.csv'",
+    {"plan.toml": PLAN_FIXED})
 row("propose: neither --rule nor --plan", ["propose"], INPUT,
     "keel: error: propose: give a rule (--rule FILE) or a plan (--plan FILE)")
 row("propose: --rule and --plan together",

@@ -170,7 +170,7 @@ check(abs(translation - by_route) <= Decimal("0.05"),
 
 # --- keel's statement in pounds.
 s = led.json("statement", "--year", "2024", "--currency", "GBP")
-equal(s["schema"], {"name": "keel.statement", "version": 3}, "schema tag")
+equal(s["schema"], {"name": "keel.statement", "version": 4}, "schema tag")
 with open(os.path.join(SOURCE, "docs", "schema", "statement.json")) as f:
     errors = list(jsonschema.Draft202012Validator(json.load(f)).iter_errors(s))
 check(not errors, "; ".join(f"{list(e.path)}: {e.message}" for e in errors[:5]))

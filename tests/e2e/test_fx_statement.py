@@ -105,7 +105,7 @@ equal(explained, total, "the independent figures add up to the independent closi
 
 # --- keel's statement.
 s = led.json("statement", "--year", "2024")
-equal(s["schema"], {"name": "keel.statement", "version": 3}, "schema tag")
+equal(s["schema"], {"name": "keel.statement", "version": 4}, "schema tag")
 # Checked with python3-jsonschema (Debian) against docs/schema/statement.json, as every report is.
 with open(os.path.join(SOURCE, "docs", "schema", "statement.json")) as f:
     errors = list(jsonschema.Draft202012Validator(json.load(f)).iter_errors(s))

@@ -81,9 +81,10 @@ plan = write(os.path.join(D, "household.toml"), PLAN.format(unmanaged=""))
 before = ledger_digest(led.path)
 
 doc = led.json("propose", "--plan", plan, "--deposit", "Taxable=1000")
-equal(doc["schema"], {"name": "keel.plan-proposal", "version": 3}, "schema tag")
+equal(doc["schema"], {"name": "keel.plan-proposal", "version": 4}, "schema tag")
 equal(doc["as_of"], "2026-01-30", "as of the latest close")
-equal(doc["planned_cash"], [{"account": "Taxable", "amount": "1000", "booked": False}],
+equal(doc["planned_cash"], [{"account": "Taxable", "amount": "1000", "currency": "USD",
+                              "converted": None, "booked": False}],
       "the deposit is planned, not booked")
 equal(ledger_digest(led.path), before, "proposing a plan writes nothing (not even the deposit)")
 
@@ -438,8 +439,9 @@ print("propose --plan --withdraw: the withdrawal's sale does the rebalance's wor
 # its cash and orders booked as filled, it is at rest and its planned cash shows as booked.
 both = os.path.join(N, "rules", "both.toml")
 first = net.json("propose", "--rule", both, "--withdraw", "Retirement=500", "--save")
-equal(first["schema"], {"name": "keel.propose", "version": 4}, "the rule proposal's schema")
-equal(first["planned_cash"], [{"account": "Retirement", "amount": "-500", "booked": False}],
+equal(first["schema"], {"name": "keel.propose", "version": 5}, "the rule proposal's schema")
+equal(first["planned_cash"], [{"account": "Retirement", "amount": "-500", "currency": "USD",
+                              "converted": None, "booked": False}],
       "a rule's planned withdrawal, not booked")
 equal([(o["account"], o["symbol"], o["side"], o["quantity"]) for o in first["orders"]],
       [("Retirement", "ACRN", "sell", "5"), ("Brokerage", "BOLT", "buy", "10")],

@@ -326,3 +326,119 @@ TEST_CASE("saved plan: each order keeps its part and the review covers the plan'
   CHECK(later.lines.back().status == "not proposed");
   CHECK(later.lines.back().part.empty());
 }
+
+namespace {
+
+// The household with a euro account beside the dollar one, and a euro bond
+// fund: 1 EUR buys 1.25 USD on the as-of day.
+struct EuroHousehold : Household {
+  EuroHousehold() {
+    account("Depot", BasisMethod::fifo, false, "EUR");
+    cash(TxnKind::deposit, "2026-01-02", "Depot", "2000");
+    Security s;
+    s.symbol = "EBND";
+    s.name = "EBND (invented)";
+    s.kind = SecurityKind::bond;
+    s.currency = "EUR";
+    store::insert_security(db, s);
+    closes({{"EBND", "2026-01-30", "80"}});
+  }
+  void rate() { fx({{"EUR", "USD", "2026-01-30", "1.25"}}); }
+};
+
+const char* kEuroPlan = R"(name = "Two currencies"
+[pools.home]
+accounts = ["Taxable", "Depot"]
+
+[[part]]
+name = "bonds"
+pool = "home"
+share_pct = 100
+fixed = { BOND = 50, EBND = 50 }
+)";
+
+const Order* order_of(const PoolResult& pool, const std::string& account,
+                      const std::string& symbol) {
+  for (const auto& o : pool.plan.orders)
+    if (o.account == account && o.symbol == symbol) return &o;
+  return nullptr;
+}
+
+}  // namespace
+
+TEST_CASE("plan across currencies: an account without a rate on the day is refused naming it") {
+  EuroHousehold h;
+  CHECK_THROWS_WITH_AS(h.run(kEuroPlan),
+                       "account 'Depot' keeps EUR and the proposal is valued in USD: no exchange "
+                       "rate for EUR/USD on or before 2026-01-30; import one with 'keel import "
+                       "fx FILE.csv'",
+                       InputError);
+}
+
+TEST_CASE("plan across currencies: a pool of two currencies is valued at the day's rate") {
+  EuroHousehold h;
+  h.rate();
+  const auto p = h.run(kEuroPlan);
+  REQUIRE(p.pools.size() == 1);
+  const auto& pool = p.pools[0];
+  // The ledger has no currency of its own: the first account's, dollars.
+  CHECK(pool.currency == "USD");
+  CHECK(pool.converted);
+  // Taxable's 5000 USD (C, outside the plan, is unmanaged) and Depot's 2000
+  // EUR at 1.25.
+  CHECK(pool.plan.pool_value == dec("7500"));
+  // EBND at 80 EUR is 100 USD; its half, 3750 USD, buys it where the cash
+  // is: Depot's 2500 USD (25 units), then 12 units in Taxable.
+  const Order* depot = order_of(pool, "Depot", "EBND");
+  REQUIRE(depot);
+  CHECK(depot->quantity == dec("25"));
+  CHECK(depot->price == dec("100"));
+  REQUIRE(depot->fx);
+  CHECK(depot->fx->quote.local_price == dec("80"));
+  CHECK(depot->fx->quote.rate == dec("1.25"));
+  CHECK(depot->fx->settles_in.empty());  // paid from the euro cash
+  const Order* taxable = order_of(pool, "Taxable", "EBND");
+  REQUIRE(taxable);
+  CHECK(taxable->quantity == dec("12"));
+  REQUIRE(taxable->fx);
+  CHECK(taxable->fx->settles_in == "USD");
+  CHECK(taxable->fx->settled == taxable->value);
+  REQUIRE(pool.conversions.size() == 1);
+  CHECK((pool.conversions[0].account == "Taxable" && pool.conversions[0].from == "USD" &&
+         pool.conversions[0].to == "EUR"));
+  CHECK(pool.conversions[0].amount == taxable->fx->local_settled);
+  // The part's orders carry the same currency side.
+  for (const auto& o : p.parts[0].orders)
+    if (o.symbol == "EBND") CHECK(o.fx);
+}
+
+TEST_CASE("plan across currencies: the pool is valued in the currency asked") {
+  EuroHousehold h;
+  h.rate();
+  const auto p =
+      propose_plan(h.db, parse_plan(kEuroPlan, "plan.toml", h.f.path), std::nullopt, {}, "EUR");
+  CHECK(p.pools[0].currency == "EUR");
+  // 5000 USD at 0.8 and 2000 EUR.
+  CHECK(p.pools[0].plan.pool_value == dec("6000"));
+}
+
+TEST_CASE("plan across currencies: planned cash is in its account's own currency") {
+  EuroHousehold h;
+  h.rate();
+  const auto p = h.run(kEuroPlan, {parse_planned_cash("--deposit", "Depot=100")});
+  // 100 EUR at 1.25: 125 USD more in the pool.
+  CHECK(p.pools[0].plan.pool_value == dec("7625"));
+  REQUIRE(p.planned.size() == 1);
+  CHECK(p.planned[0].currency == "EUR");
+  CHECK(p.planned[0].converted == dec("125"));
+  CHECK(p.planned[0].into == "USD");
+}
+
+TEST_CASE("plan: planned cash in the pool's currency states no conversion") {
+  EuroHousehold h;
+  h.rate();
+  const auto p = h.run(kEuroPlan, {parse_planned_cash("--deposit", "Taxable=100")});
+  REQUIRE(p.planned.size() == 1);
+  CHECK(p.planned[0].currency == "USD");
+  CHECK_FALSE(p.planned[0].converted);
+}

@@ -218,6 +218,15 @@ struct EuroMonth : Month {
   }
 };
 
+// The month with a euro account of 800 EUR beside the dollar one, under one rule.
+struct TwoCurrencies : Month {
+  TwoCurrencies() {
+    account("Euro", BasisMethod::fifo, false, "EUR");
+    cash(TxnKind::deposit, "2024-01-02", "Euro", "800");
+  }
+  Rule rule() const { return month_rule("[scope]\naccounts = [\"Main\", \"Euro\"]\n"); }
+};
+
 TEST_CASE(
     "propose across currencies: a name without a rate on the day is screened out, naming "
     "the pair and the day") {
@@ -330,10 +339,8 @@ TEST_CASE("propose across currencies: a sleeve without a rate on the day is refu
 TEST_CASE(
     "propose across currencies: accounts in two currencies are valued in the first "
     "account's, or in the one asked") {
-  Month m;
-  m.account("Euro", BasisMethod::fifo, false, "EUR");
-  m.cash(TxnKind::deposit, "2024-01-02", "Euro", "800");
-  const auto rule = month_rule("[scope]\naccounts = [\"Main\", \"Euro\"]\n");
+  TwoCurrencies m;
+  const auto rule = m.rule();
   CHECK_THROWS_WITH_AS(propose(m.db, rule),
                        "account 'Euro' keeps EUR and the proposal is valued in USD: no exchange "
                        "rate for EUR/USD on or before 2024-05-31; import one with 'keel import fx "
@@ -722,4 +729,71 @@ TEST_CASE(
     expect_at_rest(propose(g.db, r));
   });
   CHECK(raised > 8);
+}
+
+TEST_CASE(
+    "regression: planned cash for an account in another currency was taken in the "
+    "proposal's") {
+  TwoCurrencies m;
+  m.fx({{"EUR", "USD", "2024-05-31", "1.25"}});
+  const auto rule = m.rule();
+  const auto p = propose(m.db, rule, std::nullopt, {parse_planned_cash("--deposit", "Euro=100")});
+  // 10100 USD, 800 EUR and the planned 100 EUR, at 1.25.
+  CHECK(p.plan.pool_value == Decimal(11225));
+  REQUIRE(p.planned.size() == 1);
+  CHECK(p.planned[0].currency == "EUR");
+  CHECK(p.planned[0].converted == Decimal(125));
+  // A withdrawal gives its amount in euros too.
+  const auto w = propose(m.db, rule, std::nullopt, {parse_planned_cash("--withdraw", "Euro=80")});
+  CHECK(w.plan.pool_value == Decimal(11000));
+  CHECK(w.planned[0].converted == Decimal(-100));
+}
+
+TEST_CASE(
+    "regression: with no cash reserve, a conversion's fee left the account short of its own "
+    "cash") {
+  Market m;
+  m.account("Main");
+  m.cash(TxnKind::deposit, "2024-01-02", "Main", "1000");
+  m.stock("EUF", "1", SecurityKind::stock, "EUR");
+  m.stock("U1");
+  m.stock("U2");
+  m.closes({{"EUF", "2024-05-31", "1"}, {"U1", "2024-05-31", "10"}, {"U2", "2024-05-31", "10"}});
+  m.figures("pe", {{"EUF", "2024-03-31", "2024-04-30", "5"},
+                   {"U1", "2024-03-31", "2024-04-30", "10"},
+                   {"U2", "2024-03-31", "2024-04-30", "15"}});
+  m.fx({{"EUR", "USD", "2024-05-31", "1.1"}});
+  const auto p = propose(
+      m.db, month_rule("[scope]\naccounts = [\"Main\"]\n[screen]\nmin_names = 3\n[select]\nby = "
+                       "\"count\"\ncount = 1\n[trading]\nfee_fixed = 5\n"));
+  // EUF is 1 EUR at 1.1 USD. Sized without the conversion, 904 units (994.40 USD) and the
+  // order's fee (5) left 0.60, and the conversion's fee (5) took the account 4.40 short.
+  // Inside the sizing: 900 units, 990 USD, the order's fee and the conversion's, 0 left.
+  REQUIRE(p.plan.orders.size() == 1);
+  CHECK(p.plan.orders[0].quantity == Decimal(900));
+  CHECK(p.plan.orders[0].value == Decimal(990));
+  REQUIRE(p.conversions.size() == 1);
+  CHECK(p.conversions[0].amount == Decimal(900));
+  CHECK(p.conversions[0].fee == Decimal(5));
+  REQUIRE(p.plan.cash_after.size() == 1);
+  CHECK(p.plan.cash_after[0].cash == Decimal(0));
+  CHECK(p.plan.estimated_fees == Decimal(10));
+  for (const auto& n : p.notes) CHECK(n.find("short") == std::string::npos);
+}
+
+TEST_CASE(
+    "regression: a track record over names in another currency stopped with an internal "
+    "error") {
+  EuroMonth m;
+  m.fx({{"EUR", "USD", "2024-01-02", "1.1"}});
+  // One month of figures is too short a record: the rule's own refusal, where the record's
+  // market data lacked the exchange rates before (std::out_of_range).
+  CHECK_THROWS_WITH_AS(
+      propose(m.db, month_rule(std::string(kMonthRule) +
+                               "[track_record]\nwindow_months = 6\nhorizon_months = 1\n"
+                               "min_observations = 3\n")),
+      "month.toml: key 'track_record.max_correlation' (default 0): selects no name on "
+      "2024-05-31: all 6 names passing the screen fail the track record (fewer than 3 "
+      "observations, or a correlation above 0.00)",
+      InputError);
 }

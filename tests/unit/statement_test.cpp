@@ -600,9 +600,10 @@ struct EuroStatement : LedgerFixture {
     sell("2025-09-01", "Depot", "HLX", "10", "120");
     closes({{"HLX", "2025-12-31", "110"}});
   }
-  report::Statement statement() {
+  report::Statement statement(std::optional<std::string> currency = std::nullopt) {
     report::StatementRequest r;
     r.year = 2025;
+    r.currency = std::move(currency);
     return report::build_statement(db, r);
   }
 };
@@ -671,6 +672,44 @@ TEST_CASE("statement in two currencies: income converts at the row's rate, else 
   CHECK(settled.converted->rate() == dec("1.28"));
   CHECK(settled.converted->source() == "the row's rate");
   CHECK(s.withholding.total == dec("7.50"));
+}
+
+TEST_CASE(
+    "statement in another currency: a payment in another currency than its account's shows "
+    "both steps") {
+  EuroStatement k;
+  const auto s = k.statement("USD");
+  REQUIRE(s.income.size() == 2);
+  // 60 USD booked at the stored 1.20 as 50.00 EUR, that translated at the day's EUR/USD 1.20.
+  const auto& kept = s.income[0];
+  REQUIRE(kept.converted);
+  CHECK(kept.converted->currency == "USD");
+  CHECK(kept.converted->local == dec("60"));
+  CHECK(kept.converted->rate() == dec("1.20"));
+  REQUIRE(kept.translated);
+  CHECK(kept.translated->currency == "EUR");
+  CHECK(kept.translated->local == dec("50.00"));
+  // The second step's rate is dollars per euro, as stored: 50.00 x 1.20 = 60.00 exactly.
+  CHECK(kept.translated->rate() == dec("1.20"));
+  CHECK(kept.translated->source() == "stored, 2025-06-02");
+  CHECK(kept.gross == dec("60.00"));
+  // 24 USD settled at the row's 1.28 as 18.75 EUR, then 18.75 x 1.20.
+  const auto& settled = s.income[1];
+  REQUIRE(settled.translated);
+  CHECK(settled.converted->source() == "the row's rate");
+  CHECK(settled.translated->local == dec("18.75"));
+  CHECK(settled.gross == dec("22.50"));
+  const auto text = report::statement_text(s, report::Style{});
+  CHECK(widest_line(s) <= 100);
+  CHECK(text.find("then stored, 2025-06-02") != std::string::npos);
+  CHECK(text.find("A payment in a third currency has two lines") != std::string::npos);
+}
+
+TEST_CASE("statement in two currencies: a payment with one step shows no second") {
+  EuroStatement k;
+  const auto s = k.statement();
+  for (const auto& i : s.income) CHECK_FALSE(i.translated);
+  CHECK(report::statement_text(s, report::Style{}).find("two lines") == std::string::npos);
 }
 
 TEST_CASE("statement in two currencies: spending dollar cash shows its gain apart from prices") {
