@@ -232,12 +232,14 @@ Decision decide(const Work& x, const TradingRule& trading, Date as_of, Explain e
     });
   if (x.now_value.is_positive() && x.target_value.is_positive()) {
     // The drift band applies to names that stay; entries and exits always trade.
-    const Decimal gap = (x.w_now - x.w_target).abs();
     const bool pp_on = trading.drift_pct_points.is_positive();
     const bool rel_on = trading.drift_rel_pct.is_positive();
-    const bool outside = (!pp_on && !rel_on) ||
-                         (pp_on && gap * Decimal(100) > trading.drift_pct_points) ||
-                         (rel_on && gap * Decimal(100) > trading.drift_rel_pct * x.w_target);
+    bool outside = !pp_on && !rel_on;
+    if (!outside) {
+      const Decimal gap_pct = (x.w_now - x.w_target).abs() * Decimal(100);
+      outside = (pp_on && gap_pct > trading.drift_pct_points) ||
+                (rel_on && gap_pct > trading.drift_rel_pct * x.w_target);
+    }
     if (!outside)
       return skip([&] {
         return fmt::format("within the drift band: {} now, target {}", pct(x.w_now),
@@ -669,10 +671,14 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
   }
 
   Buys out;
+  out.orders.reserve(buys.size());
+  out.skipped.reserve(buys.size());
   for (auto& b : buys) {
     if (b.by_account.empty())
-      out.skipped.push_back({b.wish->work->quote->symbol,
-                             b.why_none.empty() ? "no cash left above the reserve" : b.why_none});
+      out.skipped.push_back({b.wish->work->quote->symbol, !words ? std::string()
+                                                          : b.why_none.empty()
+                                                              ? "no cash left above the reserve"
+                                                              : std::move(b.why_none)});
     for (auto& [a, o] : b.by_account) {
       if (words && placed(o.security_id))
         o.reason += deferred(a)
@@ -775,6 +781,8 @@ Draft plan_once(const Portfolio& portfolio, const std::vector<Decimal>& values,
 
   steps::aim(work, pool, first);
   std::vector<steps::BuyWish> wishes;
+  wishes.reserve(work.size());
+  plan.orders.reserve(work.size());
   steps::SellTax tax{&prefs, Decimal(), {}};
   for (const auto& x : work) {
     auto d = steps::decide(x, trading, as_of, explain);
@@ -817,7 +825,9 @@ Draft plan_once(const Portfolio& portfolio, const std::vector<Decimal>& values,
   for (auto& k : tax.kept) plan.skipped.push_back(std::move(k));
   auto buys =
       steps::buy_orders(wishes, portfolio, pool.cash, pool.reserve, trading, explain, prefs);
+  plan.orders.reserve(plan.orders.size() + buys.orders.size());
   for (auto& o : buys.orders) plan.orders.push_back(std::move(o));
+  plan.skipped.reserve(plan.skipped.size() + buys.skipped.size());
   for (auto& s : buys.skipped) plan.skipped.push_back(std::move(s));
   draft.summarize = true;
   return draft;

@@ -545,3 +545,18 @@ TEST_CASE("order steps: aiming again sets the target values on the new pool") {
     CHECK(fresh[i].w_target == work[i].w_target);
   }
 }
+
+TEST_CASE("orders: without explanations a buy that gets nothing is skipped without words") {
+  // The cash of 50 buys no unit of X at 100: the skip names X, and says why
+  // only when asked to.
+  const Portfolio p{{account(1, "Main", "50")}};
+  const auto q = quotes({{10, "X", "100"}});
+  const auto told = orders(p, {target(10, "X", "1")}, q, {}, kAsOf);
+  REQUIRE(told.skipped.size() == 1);
+  CHECK(told.skipped[0].why == "less than one lot (1 at 100) fits the cash to spend");
+  const auto quiet = orders(p, {target(10, "X", "1")}, q, {}, kAsOf, Explain::none);
+  REQUIRE(quiet.skipped.size() == 1);
+  CHECK(quiet.skipped[0].symbol == "X");
+  CHECK(quiet.skipped[0].why.empty());
+  CHECK(quiet.orders.empty());
+}
