@@ -52,6 +52,9 @@ Decimal held_in(const Portfolio& portfolio, std::size_t a, std::int64_t id) {
 
 Decimal floor_to(const Decimal& x, const Decimal& step) {
   if (!x.is_positive()) return Decimal();
+  // Whole units (the usual lot): x to 10 places divided by 1 is x itself.
+  static const Decimal one(1);
+  if (step == one && x.scale() <= 10) return x.floored(0);
   return Decimal::divide(x, step, 10).floored(0) * step;
 }
 
