@@ -306,7 +306,7 @@ std::vector<Order> sell_orders(const Work& x, const Decimal& units, const std::s
     if (prefs && acct.cash.is_negative() && prefs->must_give.count(acct.id)) return 0;
     return prefs && prefs->sell_deferred_first && taxable(acct) ? 2 : 1;
   };
-  std::stable_sort(picks.begin(), picks.end(), [&](const Pick& a, const Pick& b) {
+  auto before = [&](const Pick& a, const Pick& b) {
     if (account_rank(a) != account_rank(b)) return account_rank(a) < account_rank(b);
     if (a.real != b.real) return a.real;  // lots without detail go last
     if (!a.real) return false;
@@ -317,7 +317,9 @@ std::vector<Order> sell_orders(const Work& x, const Decimal& units, const std::s
     if (rank(a) != rank(b)) return rank(a) < rank(b);
     if (dearer(a.lot, b.lot) != dearer(b.lot, a.lot)) return dearer(a.lot, b.lot);
     return a.lot.acquired < b.lot.acquired;
-  });
+  };
+  // One pick (one account, no lot detail) needs no sorting, nor its buffer.
+  if (picks.size() > 1) std::stable_sort(picks.begin(), picks.end(), before);
   const Decimal step = step_of(*x.quote, trading);
   std::map<std::size_t, Order> by_account;
   std::map<std::size_t, Decimal> kept;  // units the gain cap kept, by account
