@@ -187,7 +187,7 @@ std::vector<Work> work_names(const Portfolio& portfolio, const std::vector<Targe
     for (std::size_t a = 0; a < portfolio.accounts.size(); ++a)
       x.held += held_in(portfolio, a, x.security_id);
     x.now_value = x.held * x.quote->price;
-    x.w_now = Decimal::divide(x.now_value, pool_value, 6);
+    if (!x.now_value.is_zero()) x.w_now = Decimal::divide(x.now_value, pool_value, 6);
   }
   return work;
 }
@@ -200,7 +200,7 @@ void aim(std::vector<Work>& work, const PoolValue& pool, bool fresh) {
     // Money: a target value is set to the cent.
     Decimal value = (weight * pool.invested_target).rounded(2);
     if (!fresh && value == x.target_value) continue;
-    x.w_target = Decimal::divide(value, pool.value, 6);
+    x.w_target = value.is_zero() ? Decimal() : Decimal::divide(value, pool.value, 6);
     x.target_value = std::move(value);
   }
 }
