@@ -592,23 +592,25 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
     auto it = b.by_account.find(a);
     const bool fresh = it == b.by_account.end();
     const Decimal limit = std::min(budget, spendable[a]);
-    // Nothing held yet and cash less the fixed fee below 0.999 of a step:
-    // the quotient below is then under 0.999 + 10^-4 steps, so no step fits.
-    if (fresh && b.no_step_below && limit - trading.fee_fixed < *b.no_step_below)
-      return less_than_a_lot(b);
     const Decimal have_q = fresh ? Decimal() : it->second.quantity;
     const Decimal have_cost = fresh ? Decimal() : it->second.value + it->second.fee;
+    // What the order may cost before its fixed fee. A fresh order adds no
+    // zeros: its quantity and cost so far are nothing.
+    const Decimal room = fresh ? limit - trading.fee_fixed : limit + have_cost - trading.fee_fixed;
+    // Nothing held yet and cash less the fixed fee below 0.999 of a step:
+    // the quotient below is then under 0.999 + 10^-4 steps, so no step fits.
+    if (fresh && b.no_step_below && room < *b.no_step_below) return less_than_a_lot(b);
     // Largest added quantity whose order (value + fee) grows by at most `limit`.
-    Decimal q =
-        floor_to(Decimal::divide(limit + have_cost - trading.fee_fixed, b.unit, 10), step) - have_q;
+    Decimal q = floor_to(Decimal::divide(room, b.unit, 10), step);
+    if (!fresh) q -= have_q;
     if (max_q && q > *max_q) q = *max_q;
     // The order's value and fee at the last quantity tried: the loop ends on
     // the quantity that fits.
     Decimal value, order_fee;
     auto grown = [&](const Decimal& add_q) {
-      value = (have_q + add_q) * price;
+      value = (fresh ? add_q : have_q + add_q) * price;
       order_fee = fee(value);
-      return value + order_fee - have_cost;
+      return fresh ? value + order_fee : value + order_fee - have_cost;
     };
     while (q.is_positive() && grown(q) > limit) q -= step;
     if (!q.is_positive()) return less_than_a_lot(b);
@@ -618,13 +620,13 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
                                  trading.min_trade.str());
       return Decimal();
     }
-    const Decimal spent = value + order_fee - have_cost;
+    const Decimal spent = fresh ? value + order_fee : value + order_fee - have_cost;
     if (fresh)
       it = b.by_account
                .emplace(a,
                         make_order(x, portfolio, a, Side::buy, Decimal(), b.wish->reason, trading))
                .first;
-    it->second.quantity = have_q + q;
+    it->second.quantity = fresh ? std::move(q) : have_q + q;
     it->second.value = std::move(value);
     it->second.fee = std::move(order_fee);
     spendable[a] -= spent;
