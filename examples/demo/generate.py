@@ -4,20 +4,24 @@
 The Ardwyn household of Thistlecombe (invented, like everything here) keeps two
 accounts, a joint taxable one and a retirement one, from 2016-01-04 to
 2025-12-31. Each month they pay in, and on the first business day they follow
-a written rule: hold the ten stocks of the universe with the lowest positive
-price/earnings figure that could be known that day, keep a name while it stays
-in the best sixteen, sell it when it drops out or reports a loss. The
-retirement account also keeps about a third in a bond fund.
+a written rule: hold the ten dollar stocks of the universe with the lowest
+positive price/earnings figure that could be known that day, keep a name while
+it stays in the best sixteen, sell it when it drops out or reports a loss. The
+retirement account also keeps about a third in a bond fund. A third account, in
+dollars too, holds four names priced in euros and pounds from 2021 (see
+overseas()).
 
 Every security, name, symbol, price and figure below is invented: a random
 model with a market factor, sector factors, a slowly mean-reverting valuation
 and, for some cyclical stocks, years of losses (negative P/E).
 
 Output (keel's layouts, docs/import-formats.md), into --out:
-  accounts.csv       the two accounts
-  securities.csv     40 x scale stocks in eight sectors, a bond fund, a
-                     total-return index (kind index) used as benchmark
+  accounts.csv       the three accounts
+  securities.csv     40 x scale dollar stocks in eight sectors, four stocks in
+                     euros and pounds, a bond fund, a total-return index (kind
+                     index) in dollars used as benchmark
   prices.csv         a close per security per business day
+  rates.csv          dollars per euro and per pound each business day
   metrics.csv        monthly 'pe' figures known 30 to 45 days after the month
                      ends; some restated later (a second row, later known_on)
   distributions.csv  quarterly cash distributions
@@ -26,6 +30,8 @@ Output (keel's layouts, docs/import-formats.md), into --out:
                      an account fee, a transfer between the accounts and a
                      withdrawal, each with a ref, simulated so that no sell
                      takes more than is held and no day ends with negative cash
+                     (in any currency); abroad, trades settled in dollars at a
+                     rate, exchanges, trades and dividends in euros and pounds
   scenario.toml      what the demo command needs to know about the scenario
 
 Same arguments, same bytes: one random.Random(seed), money in decimal.Decimal
@@ -36,7 +42,7 @@ import datetime as dt
 import math
 import os
 import random
-from decimal import ROUND_HALF_EVEN, Decimal
+from decimal import ROUND_HALF_EVEN, Decimal, getcontext
 
 START = dt.date(2016, 1, 4)
 END = dt.date(2025, 12, 31)
@@ -46,6 +52,7 @@ BENCHMARK = "ZXTR"
 BOND_FUND = "XJBF"
 WITHHOLDING = Decimal("0.15")
 CENT = Decimal("0.01")
+getcontext().prec = 50  # settlements divide; round once, to the cent
 
 # Invented symbols and names, five per sector. Symbols pair Q, X, Z and J so
 # as not to collide with listed tickers.
@@ -84,6 +91,22 @@ OPENING = {TAXABLE: Decimal("50000"), RETIREMENT: Decimal("30000")}
 MONTHLY = {TAXABLE: Decimal("1500"), RETIREMENT: Decimal("500")}
 HOLD, KEEP_WITHIN = 10, 16
 
+# Four invented names abroad, priced in euros and pounds, and the household's
+# third account, in dollars, that holds them (the monthly rule above keeps to
+# the dollar stocks). Their prices and the exchange rates come from a
+# random.Random of their own, so the dollar scenario is the same with or
+# without them.
+ABROAD = [("ZQEO", "Eloquarz Optics", "Technology", "EUR"),
+          ("XJKA", "Kajvenne Chemicals", "Materials", "EUR"),
+          ("QZBN", "Benzquell Insurance", "Financials", "GBP"),
+          ("ZJHW", "Hawjerin Water", "Utilities", "GBP")]
+FIRST_RATE = {"EUR": 1.09, "GBP": 1.45}  # dollars per unit on the first day (invented)
+OVERSEAS = "Ardwyn Overseas"
+OVERSEAS_OPENS = dt.date(2021, 3, 1)
+OVERSEAS_FEE = Decimal("5")          # a trade's fee, in the trade's currency
+EXCHANGE_FEE = Decimal("2.50")       # a conversion's fee, in the currency sold
+SPREAD = Decimal("0.0025")           # the broker's margin on a conversion
+
 
 def business_days():
     day = START
@@ -119,18 +142,21 @@ def extra_symbols(count):
         yield "QJ" + letters[(i // len(letters)) % len(letters)] + letters[i % len(letters)]
 
 
+def dollar_stocks(scale):
+    """(symbol, name, sector) of the 40 x scale dollar stocks."""
+    stocks = [(sym, name, sector) for sector, names in SECTORS.items() for sym, name in names]
+    sectors = list(SECTORS)
+    taken = {s for s, _, _ in stocks}
+    for i, sym in enumerate(s for s in extra_symbols(40 * scale) if s not in taken):
+        if len(stocks) >= 40 * scale:
+            break
+        stocks.append((sym, f"Invented Holding {sym.title()}", sectors[i % len(sectors)]))
+    return stocks
+
+
 class Universe:
-    def __init__(self, rng, scale):
-        self.stocks = []  # (symbol, name, sector)
-        for sector, names in SECTORS.items():
-            for sym, name in names:
-                self.stocks.append((sym, name, sector))
-        sectors = list(SECTORS)
-        taken = {s for s, _, _ in self.stocks}
-        for i, sym in enumerate(s for s in extra_symbols(40 * scale) if s not in taken):
-            if len(self.stocks) >= 40 * scale:
-                break
-            self.stocks.append((sym, f"Invented Holding {sym.title()}", sectors[i % len(sectors)]))
+    def __init__(self, rng, stocks):
+        self.stocks = stocks  # (symbol, name, sector)
         self.params = {}
         for sym, _, sector in self.stocks:
             self.params[sym] = {
@@ -234,36 +260,60 @@ class PointInTime:
 
 
 class Books:
-    """Whole-share positions and cash per account, checked as keel checks them."""
+    """Whole-share positions and cash per account, checked as keel checks them.
 
-    def __init__(self):
-        self.cash = {a: Decimal(0) for a in OPENING}
-        self.units = {a: {} for a in OPENING}
+    A row with a `currency` (its figures' currency, not the account's) settles
+    in the account's dollars at its `rate` (units of the currency per dollar,
+    rounded half to even to the cent, as keel settles it), or without a rate
+    moves the account's cash in that currency; an `exchange` sells `amount`
+    (plus `fee`) of its currency for `to_currency` at `rate`.
+    """
+
+    def __init__(self, accounts, prefix):
+        self.cash = {a: Decimal(0) for a in accounts}
+        self.units = {a: {} for a in accounts}
+        self.foreign = {a: {} for a in accounts}  # account -> currency -> units of cash
         self.rows = []
+        self.prefix = prefix
 
     def add(self, day, account, kind, **f):
         self.rows.append((day, account, kind, f))
-        ref = f"AW-{len(self.rows):05d}"
+        ref = f"{self.prefix}-{len(self.rows):05d}"
         f["ref"] = ref
         sym, q, price = f.get("symbol"), f.get("quantity"), f.get("price")
         amount, fee = f.get("amount"), f.get("fee", Decimal(0))
+        currency, rate = f.get("currency"), f.get("rate")
+        foreign = self.foreign[account]
+
+        def move(x, into=currency):
+            if into is None or into == "USD":
+                self.cash[account] += x
+            elif rate is not None and kind != "exchange":
+                self.cash[account] += cents(x / rate)
+            else:
+                foreign[into] = foreign.get(into, 0) + x
+
         if kind == "buy":
-            self.cash[account] -= q * price + fee
+            move(-(q * price + fee))
             self.units[account][sym] = self.units[account].get(sym, 0) + q
         elif kind == "sell":
             assert self.units[account].get(sym, 0) >= q, (day, account, sym)
-            self.cash[account] += q * price - fee
+            move(q * price - fee)
             self.units[account][sym] -= q
             if self.units[account][sym] == 0:
                 del self.units[account][sym]
         elif kind in ("deposit", "dividend"):
-            self.cash[account] += amount
+            move(amount)
         elif kind in ("withdrawal", "tax", "fee"):
-            self.cash[account] -= amount
+            move(-amount)
+        elif kind == "exchange":
+            move(-(amount + fee))
+            move(cents(amount * rate), f["to_currency"])
         elif kind == "transfer_out":
             self.cash[account] -= amount
             self.cash[f["to_account"]] += amount
         assert self.cash[account] >= 0, (day, account, kind, self.cash[account])
+        assert all(x >= 0 for x in foreign.values()), (day, account, kind, foreign)
 
     def value(self, account, close):
         return self.cash[account] + sum(q * close[s] for s, q in self.units[account].items())
@@ -327,7 +377,7 @@ def rebalance(books, account, day, close, pit, universe, reserve):
 
 
 def simulate(days, closes, pit, dist_rows, universe):
-    books = Books()
+    books = Books(OPENING, "AW")
     split_on = {}
     for sym, day, ratio in SPLITS:
         split_on.setdefault(day, []).append((sym, ratio))
@@ -378,6 +428,103 @@ def simulate(days, closes, pit, dist_rows, universe):
     return books
 
 
+def exchange_rates(rng, days):
+    """Dollars per euro and per pound each business day, {day: {currency: Decimal}}:
+    a random walk in the logarithm, pulled slowly back to its first level."""
+    first = {c: math.log(r) for c, r in FIRST_RATE.items()}
+    level = dict(first)
+    rates = {}
+    for day in days:
+        for c in sorted(level):
+            level[c] += (first[c] - level[c]) / 500 + rng.gauss(0, 0.005)
+        rates[day] = {c: places(math.exp(x), 4) for c, x in level.items()}
+    return rates
+
+
+def broker_rate(per_unit, currency_bought):
+    """The broker's rate for a conversion between dollars and a currency worth
+    `per_unit` dollars, its margin taken: units of the row's currency per
+    dollar when buying that currency (USD units sold), else when selling it."""
+    mid = 1 / per_unit
+    rate = mid * (1 - SPREAD) if currency_bought else mid * (1 + SPREAD)
+    return rate.quantize(Decimal("0.0001"), rounding=ROUND_HALF_EVEN)
+
+
+def overseas(days, closes, rates, dist_rows):
+    """The third account's story: opened with dollars in March 2021, one euro
+    name bought at the broker's settlement rate, the rest paid from euros and
+    pounds bought first; a top-up each March to 2024; dividends kept in their
+    currency with 15 % withheld there; in 2025 the euro name sold at a
+    settlement rate, half the first pound name sold into pounds and the pounds
+    exchanged back into dollars."""
+    books = Books([OVERSEAS], "AO")
+    currency = {sym: c for sym, _, _, c in ABROAD}
+    held = books.units[OVERSEAS]
+    cash = books.foreign[OVERSEAS]
+    marches = [d for n, d in enumerate(days) if d.month == 3 and days[n - 1].month != 3]
+    opens = [d for d in marches if OVERSEAS_OPENS <= d <= dt.date(2024, 12, 31)]
+    ex_on, pay_on = {}, {}
+    for ex, pay, sym, per_share in dist_rows:
+        ex_on.setdefault(ex, []).append((pay, sym, per_share))
+
+    def buy_from_cash(day, syms, note):
+        for i, sym in enumerate(syms):
+            c = currency[sym]
+            budget = cash.get(c, 0) / (len(syms) - i)
+            q = int((budget - OVERSEAS_FEE) / closes[day][sym])
+            if q > 0:
+                books.add(day, OVERSEAS, "buy", symbol=sym, quantity=Decimal(q),
+                          price=closes[day][sym], fee=OVERSEAS_FEE, note=note, currency=c)
+
+    def exchange(day, amount, into, note):
+        books.add(day, OVERSEAS, "exchange", amount=amount, fee=EXCHANGE_FEE, note=note,
+                  rate=broker_rate(rates[day][into], True), to_currency=into)
+
+    for day in days:
+        if day < OVERSEAS_OPENS:
+            continue
+        for pay, sym, per_share in ex_on.get(day, ()):
+            if held.get(sym):
+                pay_on.setdefault(pay, []).append((sym, cents(held[sym] * per_share)))
+        for sym, amount in pay_on.pop(day, ()):
+            c = currency[sym]
+            books.add(day, OVERSEAS, "dividend", symbol=sym, amount=amount, currency=c)
+            books.add(day, OVERSEAS, "tax", symbol=sym, amount=cents(amount * WITHHOLDING),
+                      note="withheld 15 %", currency=c)
+        if day == OVERSEAS_OPENS:
+            books.add(day, OVERSEAS, "deposit", amount=Decimal(20000), note="opening deposit")
+            sym = "ZQEO"
+            rate = broker_rate(rates[day]["EUR"], True)
+            q = int((6000 * rate - OVERSEAS_FEE) / closes[day][sym])
+            books.add(day, OVERSEAS, "buy", symbol=sym, quantity=Decimal(q),
+                      price=closes[day][sym], fee=OVERSEAS_FEE, currency="EUR", rate=rate,
+                      note="settled in dollars")
+            exchange(day, Decimal(7000), "GBP", "pounds for the pound names")
+            buy_from_cash(day, ["QZBN", "ZJHW"], "paid in pounds")
+            exchange(day, Decimal(6000), "EUR", "euros for the euro names")
+            buy_from_cash(day, ["XJKA"], "paid in euros")
+        elif day in opens:
+            books.add(day, OVERSEAS, "deposit", amount=Decimal(4000), note="yearly top-up")
+            exchange(day, Decimal(2000), "EUR", "euros for the euro names")
+            exchange(day, Decimal(2000), "GBP", "pounds for the pound names")
+            buy_from_cash(day, ["XJKA", "ZQEO"], "paid in euros")
+            buy_from_cash(day, ["QZBN", "ZJHW"], "paid in pounds")
+        elif day == dt.date(2025, 6, 2):
+            books.add(day, OVERSEAS, "sell", symbol="ZQEO", quantity=held["ZQEO"],
+                      price=closes[day]["ZQEO"], fee=OVERSEAS_FEE, currency="EUR",
+                      rate=broker_rate(rates[day]["EUR"], False), note="settled in dollars")
+        elif day == dt.date(2025, 9, 1):
+            q = held["QZBN"] // 2
+            books.add(day, OVERSEAS, "sell", symbol="QZBN", quantity=q,
+                      price=closes[day]["QZBN"], fee=OVERSEAS_FEE, currency="GBP",
+                      note="kept in pounds")
+            pounds = cash["GBP"] - EXCHANGE_FEE
+            books.add(day, OVERSEAS, "exchange", amount=pounds, fee=EXCHANGE_FEE,
+                      currency="GBP", to_currency="USD", note="pounds back into dollars",
+                      rate=(rates[day]["GBP"] * (1 - SPREAD)).quantize(Decimal("0.0001")))
+    return books
+
+
 def write(path, header, rows):
     with open(path, "w", newline="") as f:
         f.write(header + "\n")
@@ -402,16 +549,26 @@ def main():
     if a.scale < 1:
         ap.error("--scale must be 1 or more")
     rng = random.Random(a.seed)
-    universe = Universe(rng, a.scale)
+    universe = Universe(rng, dollar_stocks(a.scale))
     days, closes, pe_rows, dist_rows = model(rng, universe)
     pit = PointInTime(pe_rows)
     books = simulate(days, closes, pit, dist_rows, universe)
+    abroad_rng = random.Random(a.seed + 1)
+    abroad = Universe(abroad_rng, [(s, n, sec) for s, n, sec, _ in ABROAD])
+    _, abroad_closes, abroad_pe, abroad_dist = model(abroad_rng, abroad)
+    for day in days:  # the abroad model's own bond fund and index are not used
+        closes[day].update((s, abroad_closes[day][s]) for s, _, _, _ in ABROAD)
+    abroad_dist = [r for r in abroad_dist if r[2] != BOND_FUND]
+    rates = exchange_rates(abroad_rng, days)
+    third = overseas(days, closes, rates, abroad_dist)
     os.makedirs(a.out, exist_ok=True)
     out = lambda name: os.path.join(a.out, name)
 
     write(out("accounts.csv"), "name,currency,basis,allow_negative_cash",
-          [(TAXABLE, "USD", "fifo", "no"), (RETIREMENT, "USD", "hifo", "no")])
+          [(TAXABLE, "USD", "fifo", "no"), (RETIREMENT, "USD", "hifo", "no"),
+           (OVERSEAS, "USD", "fifo", "no")])
     secs = [(s, n, "stock", "USD", 1, sec) for s, n, sec in universe.stocks]
+    secs += [(s, n, "stock", c, 1, sec) for s, n, sec, c in ABROAD]
     secs.append((BOND_FUND, "Fenmoor Aggregate Bond Fund", "fund", "USD", 1, "Bonds"))
     secs.append((BENCHMARK, "Zanthe Total Return Index", "index", "USD", 1, ""))
     write(out("securities.csv"), "symbol,name,kind,currency,lot_size,sector", sorted(secs))
@@ -419,13 +576,16 @@ def main():
     write(out("prices.csv"), "date,symbol,close",
           ((d, s, closes[d][s]) for d in days for s in symbols))
     write(out("metrics.csv"), "date,symbol,metric,value,known_on",
-          sorted((me, s, "pe", pe, k) for me, s, pe, k in pe_rows))
+          sorted((me, s, "pe", pe, k) for me, s, pe, k in pe_rows + abroad_pe))
     write(out("distributions.csv"), "ex_date,pay_date,symbol,per_share",
-          sorted(dist_rows))
+          sorted(dist_rows + abroad_dist))
+    write(out("rates.csv"), "date,base,quote,rate",
+          ((d, c, "USD", r) for d in days for c, r in sorted(rates[d].items())))
     write(out("splits.csv"), "date,symbol,ratio", sorted((d, s, r) for s, d, r in SPLITS))
-    cols = ["symbol", "quantity", "price", "amount", "fee", "ref", "note", "to_account"]
+    cols = ["symbol", "quantity", "price", "amount", "fee", "ref", "note", "to_account",
+            "currency", "rate", "to_currency"]
     txn = []
-    for day, account, kind, f in books.rows:
+    for day, account, kind, f in sorted(books.rows + third.rows, key=lambda r: r[0]):
         fee = f.get("fee")
         f = dict(f, fee=fee if fee else "")
         txn.append([day, account, kind] + [f.get(c, "") for c in cols])
@@ -436,7 +596,7 @@ def main():
         f.write(f'first_day = "{START.isoformat()}"\n')
         f.write(f'last_day = "{END.isoformat()}"\n')
         f.write(f'benchmark = "{BENCHMARK}"\n')
-        f.write(f'accounts = ["{TAXABLE}", "{RETIREMENT}"]\n')
+        f.write(f'accounts = ["{TAXABLE}", "{RETIREMENT}", "{OVERSEAS}"]\n')
 
 
 if __name__ == "__main__":

@@ -4,7 +4,9 @@
 //
 // Contract
 //  - kDemoFiles lists the scenario's CSV files in import order: accounts,
-//    securities, prices, metrics, distributions, splits, transactions.
+//    securities, prices, fx (exchange rates, rates.csv; before the
+//    transactions, whose rows in other currencies need them), metrics,
+//    distributions, splits, transactions.
 //  - built_in_scenario() reads the scenario compiled into keel (io/demo_data.h);
 //    its files are named "built-in demo data/<file>" in messages and the
 //    import log.
@@ -44,9 +46,10 @@ struct DemoFile {
   std::string_view what;  // the importer: accounts, securities, ..., transactions
   std::string_view file;  // file name inside the scenario folder
 };
-inline constexpr std::array<DemoFile, 7> kDemoFiles{{{"accounts", "accounts.csv"},
+inline constexpr std::array<DemoFile, 8> kDemoFiles{{{"accounts", "accounts.csv"},
                                                      {"securities", "securities.csv"},
                                                      {"prices", "prices.csv"},
+                                                     {"fx", "rates.csv"},
                                                      {"metrics", "metrics.csv"},
                                                      {"distributions", "distributions.csv"},
                                                      {"splits", "splits.csv"},

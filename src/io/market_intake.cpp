@@ -245,6 +245,7 @@ void import_rows(MarketKind what, Run& r, const ImportOptions& options, CsvReade
       break;
     case MarketKind::fx: {
       std::set<std::tuple<std::string, std::string, std::string>> seen;
+      store::FxWriter rates(r.db);
       auto code = [&](std::size_t col, std::string& out) {
         std::string_view raw;
         if (!t.text(col, raw)) return false;
@@ -276,7 +277,7 @@ void import_rows(MarketKind what, Run& r, const ImportOptions& options, CsvReade
           } else {
             const store::FxRateRow row{b, c, Date::parse(a), Decimal::parse(d)};
             r.count(
-                store::upsert_fx_rate(r.db, row, options.replace, r.existing), 3,
+                rates.upsert(row, options.replace, r.existing), 3,
                 [&] { return fmt::format("{}/{} on {}", b, c, a); }, "rate");
           }
         }

@@ -3,11 +3,14 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <limits>
+#include <optional>
 #include <stdexcept>
 
 #include "core/error.h"
 #include "core/text.h"
 #include "ledger/actions.h"
+#include "ledger/allocation.h"
 
 namespace keel {
 
@@ -23,16 +26,147 @@ Decimal Position::cost() const {
   return total;
 }
 
-std::vector<Decimal> allocate(const Decimal& total, const std::vector<Decimal>& weights,
-                              int places) {
+namespace {
+
+__extension__ typedef __int128 Wide;  // GCC and Clang; -Wpedantic wants the marker
+
+constexpr Wide kWordMax = std::numeric_limits<long long>::max();
+
+// `d` as mantissa x 10^-scale when the mantissa has at most 18 digits, read
+// from its canonical text (Decimal keeps its mantissa to itself).
+std::optional<long long> small_mantissa(const Decimal& d) {
+  const std::string text = d.str();
+  long long m = 0;
+  int digits = 0;
+  for (const char c : text) {
+    if (c < '0' || c > '9') continue;  // the sign and the point
+    if (++digits > 18) return std::nullopt;
+    m = m * 10 + (c - '0');
+  }
+  return d.is_negative() ? -m : m;
+}
+
+// The parts' indices by what their quotas lost to the floor, most first
+// (ties: the earlier part): the order in which the units left over go.
+template <typename Remainder>
+std::vector<std::size_t> by_remainder(const std::vector<Remainder>& remainder) {
+  std::vector<std::size_t> order(remainder.size());
+  for (std::size_t i = 0; i < order.size(); ++i) order[i] = i;
+  std::stable_sort(order.begin(), order.end(),
+                   [&](std::size_t a, std::size_t b) { return remainder[a] > remainder[b]; });
+  return order;
+}
+
+// What lies below the grid stays with the last part that has weight; every
+// part takes the sign of the total.
+void finish_parts(std::vector<Decimal>& parts, const std::vector<Decimal>& weights,
+                  const Decimal& below_grid, const Decimal& total) {
+  std::size_t last = weights.size() - 1;
+  while (weights[last].is_zero()) --last;
+  parts[last] += below_grid;
+  if (total.is_negative())
+    for (auto& p : parts) p = -p;
+}
+
+// 10^n as a Wide, for 0 <= n <= 36.
+Wide power_of_ten(int n) {
+  Wide p = 1;
+  while (n-- > 0) p *= 10;
+  return p;
+}
+
+}  // namespace
+
+// Every product is at most (units on the grid) x (one weight) < 2^126, so
+// nothing overflows.
+std::optional<std::vector<Decimal>> allocate_in_integers(const Decimal& total,
+                                                         const std::vector<Decimal>& weights,
+                                                         int places) {
+  const auto total_mantissa = small_mantissa(total);
+  if (!total_mantissa || places < 0 || places > Decimal::kMaxScale) return std::nullopt;
+  int weight_scale = 0;
+  std::vector<long long> mantissas;
+  mantissas.reserve(weights.size());
+  for (const auto& w : weights) {
+    const auto m = small_mantissa(w);
+    if (!m) return std::nullopt;
+    mantissas.push_back(*m);
+    weight_scale = std::max(weight_scale, w.scale());
+  }
+  std::vector<Wide> w(weights.size());
+  Wide weight_sum = 0;
+  for (std::size_t i = 0; i < weights.size(); ++i) {
+    const int shift = weight_scale - weights[i].scale();
+    if (shift > 18) return std::nullopt;
+    w[i] = static_cast<Wide>(mantissas[i]) * power_of_ten(shift);
+    if (w[i] > kWordMax) return std::nullopt;
+    weight_sum += w[i];
+  }
+  // The magnitude in whole units of 10^-places, and what lies below them.
+  const Wide magnitude = *total_mantissa < 0 ? -static_cast<Wide>(*total_mantissa)
+                                             : static_cast<Wide>(*total_mantissa);
+  Wide units = 0;
+  Decimal below_grid;
+  if (total.scale() <= places) {
+    if (places - total.scale() > 18) return std::nullopt;
+    units = magnitude * power_of_ten(places - total.scale());
+  } else {
+    const Wide step = power_of_ten(total.scale() - places);
+    units = magnitude / step;
+    below_grid = Decimal::scaled(static_cast<long long>(magnitude % step), total.scale());
+  }
+  if (units > kWordMax) return std::nullopt;
+
+  std::vector<Wide> count(weights.size()), remainder(weights.size());
+  Wide assigned = 0;
+  for (std::size_t i = 0; i < weights.size(); ++i) {
+    const Wide quota_times_w = units * w[i];
+    count[i] = quota_times_w / weight_sum;  // the quota floored to the grid
+    remainder[i] = quota_times_w - count[i] * weight_sum;
+    assigned += count[i];
+  }
+  const auto order = by_remainder(remainder);
+  for (std::size_t k = 0; assigned < units && k < order.size(); ++k) {
+    ++count[order[k]];
+    ++assigned;
+  }
   std::vector<Decimal> parts(weights.size());
+  for (std::size_t i = 0; i < parts.size(); ++i)
+    parts[i] = Decimal::scaled(static_cast<long long>(count[i]), places);
+  finish_parts(parts, weights, below_grid, total);
+  return parts;
+}
+
+namespace {
+
+// Checks the weights as allocate() promises; false when there are none.
+bool check_weights(const std::vector<Decimal>& weights) {
   Decimal weight_sum;
   for (const auto& w : weights) {
     if (w.is_negative()) throw std::invalid_argument("allocate: a weight is negative");
     weight_sum += w;
   }
-  if (weights.empty()) return parts;
+  if (weights.empty()) return false;
   if (!weight_sum.is_positive()) throw std::invalid_argument("allocate: the weights are all zero");
+  return true;
+}
+
+}  // namespace
+
+std::vector<Decimal> allocate(const Decimal& total, const std::vector<Decimal>& weights,
+                              int places) {
+  if (!check_weights(weights)) return {};
+  if (weights.size() == 1) return {total};
+  if (auto parts = allocate_in_integers(total, weights, places)) return std::move(*parts);
+  return allocate_in_decimals(total, weights, places);
+}
+
+std::vector<Decimal> allocate_in_decimals(const Decimal& total, const std::vector<Decimal>& weights,
+                                          int places) {
+  std::vector<Decimal> parts(weights.size());
+  if (!check_weights(weights)) return parts;
+  Decimal weight_sum;
+  for (const auto& w : weights) weight_sum += w;
   // One part takes the whole total: the general steps below give it exactly
   // that (its quota is the grid part, the rest lies below the grid), only slower.
   if (weights.size() == 1) {
@@ -57,22 +191,14 @@ std::vector<Decimal> allocate(const Decimal& total, const std::vector<Decimal>& 
     remainder[i] = quota_times_w - floor * weight_sum;
     assigned += floor;
   }
-  std::vector<std::size_t> order(weights.size());
-  for (std::size_t i = 0; i < order.size(); ++i) order[i] = i;
-  std::stable_sort(order.begin(), order.end(),
-                   [&](std::size_t a, std::size_t b) { return remainder[a] > remainder[b]; });
+  const auto order = by_remainder(remainder);
   // Fewer units are left than parts with a nonzero remainder, so a part of
   // weight zero never gets one and no part passes the total.
   for (std::size_t k = 0; assigned < on_grid && k < order.size(); ++k) {
     parts[order[k]] += unit;
     assigned += unit;
   }
-  // What lies below the grid stays with the last part that has weight.
-  std::size_t last = weights.size() - 1;
-  while (weights[last].is_zero()) --last;
-  parts[last] += below_grid;
-  if (total.is_negative())
-    for (auto& p : parts) p = -p;
+  finish_parts(parts, weights, below_grid, total);
   return parts;
 }
 
@@ -438,9 +564,13 @@ Replayer::Replayer(const LedgerLog& log) : book_(log.accounts, log.pending, log.
   const auto voided = voided_ids(log.transactions);
   for (const auto& t : log.transactions)
     if (t.kind != TxnKind::void_entry && !voided.count(t.id)) live_.push_back(&t);
-  std::sort(live_.begin(), live_.end(), [](const Transaction* a, const Transaction* b) {
+  const auto posting_order = [](const Transaction* a, const Transaction* b) {
     return a->date != b->date ? a->date < b->date : a->id < b->id;
-  });
+  };
+  // The store lists rows in posting order already; sorting them again
+  // would still compare each row about log2(n) times.
+  if (!std::is_sorted(live_.begin(), live_.end(), posting_order))
+    std::sort(live_.begin(), live_.end(), posting_order);
   actions_ = live_actions(log.actions);
   for (const auto& split : log.splits) splits_.push_back(&split);
   std::sort(splits_.begin(), splits_.end(), [](const Split* a, const Split* b) {

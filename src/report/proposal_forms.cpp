@@ -197,15 +197,17 @@ std::string screen_text(const rules::ScreenResult& sc, const Style& style) {
 // Each order's local price and rate, and how it settles, under it.
 std::string fx_orders_text(const std::vector<rules::Order>& orders, const std::string& currency,
                            const Style& style) {
+  // At a narrow terminal the weights now and the fee make way first, then
+  // the rate (the lines under the table name each rate used).
   Table t({{"account", Align::left, true},
            {"symbol"},
            {"side"},
            {"quantity", Align::right},
            {"local price", Align::right},
-           {"rate", Align::right},
+           {"rate", Align::right, false, 1},
            {"est. value " + currency, Align::right},
-           {"est. fee", Align::right, false, 1},
-           {"now", Align::right, false, 2},
+           {"est. fee", Align::right, false, 2},
+           {"now", Align::right, false, 3},
            {"target", Align::right},
            {"reason", Align::left, true}});
   bool derived = false;

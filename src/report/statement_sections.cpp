@@ -374,12 +374,14 @@ Section gains_parts_section(const Statement& s) {
   Section sec;
   sec.key = "realized_currency";
   sec.title = "Realized gains in other currencies: price part and currency part";
+  // At a narrow terminal the lot goes first, then the local figures: the
+  // gain and its two parts stay.
   sec.columns = {{"account", Align::left, true},
                  {"symbol"},
-                 {"lot", Align::right, false, 1},
+                 {"lot", Align::right, false, 3},
                  {"disposed"},
-                 {"proceeds, local", Align::right},
-                 {"cost, local", Align::right},
+                 {"proceeds, local", Align::right, false, 2},
+                 {"cost, local", Align::right, false, 1},
                  {"gain", Align::right},
                  {"price part", Align::right},
                  {"currency part", Align::right}};
@@ -444,7 +446,7 @@ Section fx_cash_section(const Statement& s) {
   sec.columns = {{"account", Align::left, true},
                  {"currency"},
                  {"state"},
-                 {"acquired"},
+                 {"acquired", Align::left, false, 1},  // first to go at a narrow terminal
                  {"day"},
                  {"amount", Align::right},
                  {"worth", Align::right},

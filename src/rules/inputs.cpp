@@ -163,6 +163,14 @@ market::Series::Request Inputs::series_request(const market::View& catalog, Date
   request.from = from;
   request.to = to;
   for (const auto& m : rule_.screen.metrics()) request.metrics.push_back(m.name);
+  // Converting, the screen asks the series for each name's rate into the
+  // rule's currency: every currency loaded must have its rates too.
+  if (convert_ == Convert::yes && currency_) {
+    std::set<std::string> codes{*currency_};
+    for (const std::int64_t id : *request.securities)
+      if (const auto s = catalog.security(id)) codes.insert(s->currency);
+    request.currencies.assign(codes.begin(), codes.end());
+  }
   return request;
 }
 

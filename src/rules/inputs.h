@@ -88,7 +88,8 @@ class Inputs {
   std::vector<std::int64_t> securities() const;
   // What a market::Series over [from, to] must load for the rule: the
   // universe, the sleeves and `extra`, what a merger or spin-off in the span
-  // hands out (and so on), and the rule's metric.
+  // hands out (and so on), the rule's metric, and with Convert::yes the
+  // exchange rates of their currencies and the rule's.
   market::Series::Request series_request(const market::View& catalog, Date from, Date to,
                                          std::vector<std::int64_t> extra = {}) const;
   // With a track record attached (rules/track_record.h), candidates() carry

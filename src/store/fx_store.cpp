@@ -4,34 +4,43 @@
 
 namespace keel::store {
 
-Upsert upsert_fx_rate(Database& db, const FxRateRow& row, bool replace, std::string& existing) {
-  SQLite::Statement find(db.sql(),
-                         "SELECT rate FROM fx_rate WHERE base = ? AND quote = ? AND date = ?");
-  find.bind(1, row.base);
-  find.bind(2, row.quote);
-  find.bind(3, row.date.str());
+FxWriter::FxWriter(Database& db)
+    : find_(db.sql(), "SELECT rate FROM fx_rate WHERE base = ? AND quote = ? AND date = ?"),
+      update_(db.sql(), "UPDATE fx_rate SET rate = ? WHERE base = ? AND quote = ? AND date = ?"),
+      insert_(db.sql(), "INSERT INTO fx_rate (base, quote, date, rate) VALUES (?, ?, ?, ?)") {}
+
+Upsert FxWriter::upsert(const FxRateRow& row, bool replace, std::string& existing) {
+  const std::string date = row.date.str();
   const std::string rate = row.rate.str();
-  if (find.executeStep()) {
-    existing = find.getColumn(0).getString();
+  find_.reset();
+  find_.bind(1, row.base);
+  find_.bind(2, row.quote);
+  find_.bind(3, date);
+  const bool found = find_.executeStep();
+  if (found) existing = find_.getColumn(0).getString();
+  find_.reset();  // no read left open between rows
+  if (found) {
     if (existing == rate) return Upsert::unchanged;
     if (!replace) return Upsert::conflict;
-    SQLite::Statement up(db.sql(),
-                         "UPDATE fx_rate SET rate = ? WHERE base = ? AND quote = ? AND date = ?");
-    up.bind(1, rate);
-    up.bind(2, row.base);
-    up.bind(3, row.quote);
-    up.bind(4, row.date.str());
-    up.exec();
+    update_.reset();
+    update_.bind(1, rate);
+    update_.bind(2, row.base);
+    update_.bind(3, row.quote);
+    update_.bind(4, date);
+    update_.exec();
     return Upsert::replaced;
   }
-  SQLite::Statement ins(db.sql(),
-                        "INSERT INTO fx_rate (base, quote, date, rate) VALUES (?, ?, ?, ?)");
-  ins.bind(1, row.base);
-  ins.bind(2, row.quote);
-  ins.bind(3, row.date.str());
-  ins.bind(4, rate);
-  ins.exec();
+  insert_.reset();
+  insert_.bind(1, row.base);
+  insert_.bind(2, row.quote);
+  insert_.bind(3, date);
+  insert_.bind(4, rate);
+  insert_.exec();
   return Upsert::added;
+}
+
+Upsert upsert_fx_rate(Database& db, const FxRateRow& row, bool replace, std::string& existing) {
+  return FxWriter(db).upsert(row, replace, existing);
 }
 
 namespace {

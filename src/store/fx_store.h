@@ -1,7 +1,8 @@
 // Exchange rates in the ledger (table fx_rate, migration 0005).
 //
 // Contract
-//  - upsert_fx_rate(): adds one row inside the caller's WriteTransaction.
+//  - upsert_fx_rate(), FxWriter::upsert(): adds one row inside the caller's
+//    WriteTransaction.
 //    The same row again is `unchanged`; a different rate for the same
 //    (base, quote, date) is a `conflict` (`existing` gets the stored rate)
 //    unless `replace`, then `replaced`. Codes and the rate are checked by the
@@ -10,6 +11,8 @@
 //    currency and a day: the rows with that currency on either side dated on
 //    or before the day, in the same order.
 #pragma once
+
+#include <SQLiteCpp/Statement.h>
 
 #include <string>
 #include <vector>
@@ -25,6 +28,17 @@ struct FxRateRow {
   std::string base, quote;
   Date date;
   Decimal rate;
+};
+
+// upsert_fx_rate() for many rows, as an import writes them: its statements
+// are prepared once. Lives inside the caller's WriteTransaction.
+class FxWriter {
+ public:
+  explicit FxWriter(Database& db);
+  Upsert upsert(const FxRateRow& row, bool replace, std::string& existing);
+
+ private:
+  SQLite::Statement find_, update_, insert_;
 };
 
 Upsert upsert_fx_rate(Database& db, const FxRateRow& row, bool replace, std::string& existing);

@@ -49,6 +49,10 @@ constexpr const char* kTxnColumns =
     "link_id, voids_id, coalesce(txn.ref, correction.ref), row_hash, note, txn.currency, "
     "txn.rate, txn.to_currency";
 constexpr const char* kTxnFrom = "txn LEFT JOIN correction ON correction.new_txn_id = txn.id";
+// The same columns from txn alone, its own ref in place of the coalesce.
+constexpr const char* kTxnPlainColumns =
+    "id, account_id, date, kind, security_id, quantity, price, amount, fee, acquired, lots, "
+    "link_id, voids_id, ref, row_hash, note, currency, rate, to_currency";
 
 // Read through the raw statement: the ledger's every row passes here on
 // each report, and views of the row's text spare a copy of each column.
@@ -352,9 +356,37 @@ std::vector<Transaction> list_transactions(Database& db) {
   Statement count(db.sql().getHandle(), "SELECT count(*) FROM txn");
   if (count.next()) out.reserve(static_cast<std::size_t>(count.integer(0)));
   count.reset();
+  // The few corrections first, so that the rows can be read in one pass over
+  // the table in id order: walking the (date, id) index instead costs a
+  // lookup of the table row, and one in correction, for every row.
+  std::vector<std::pair<std::int64_t, std::string>> corrections;
+  Statement refs(db.sql().getHandle(),
+                 "SELECT new_txn_id, ref FROM correction ORDER BY new_txn_id");
+  while (refs.next()) corrections.emplace_back(refs.integer(0), std::string(refs.text(1)));
   Statement st(db.sql().getHandle(),
-               fmt::format("SELECT {} FROM {} ORDER BY date, id", kTxnColumns, kTxnFrom).c_str());
+               fmt::format("SELECT {} FROM txn ORDER BY id", kTxnPlainColumns).c_str());
   while (st.next()) out.push_back(read_txn(st));
+  auto correction = corrections.begin();
+  for (auto& t : out) {
+    while (correction != corrections.end() && correction->first < t.id) ++correction;
+    if (correction != corrections.end() && correction->first == t.id && !t.ref)
+      t.ref = correction->second;
+  }
+  // Posting order is (date, id). Rows are mostly posted in date order, so
+  // the check alone usually settles it.
+  const auto by_date_then_id = [](const Transaction& a, const Transaction& b) {
+    return a.date != b.date ? a.date < b.date : a.id < b.id;
+  };
+  if (!std::is_sorted(out.begin(), out.end(), by_date_then_id)) {
+    std::vector<std::size_t> order(out.size());
+    for (std::size_t i = 0; i < order.size(); ++i) order[i] = i;
+    std::sort(order.begin(), order.end(),
+              [&](std::size_t a, std::size_t b) { return by_date_then_id(out[a], out[b]); });
+    std::vector<Transaction> sorted;
+    sorted.reserve(out.size());
+    for (const auto i : order) sorted.push_back(std::move(out[i]));
+    out = std::move(sorted);
+  }
   return out;
 }
 

@@ -57,6 +57,18 @@ class Ledger:
     def json(self, *args):
         return json.loads(self.ok(*args, "--json"))
 
+    def import_demo(self, transactions=True):
+        """Imports the demo scenario's files (examples/demo/data, invented) in keel demo's
+        order: exchange rates before the transactions, whose rows abroad need them."""
+        data = os.path.join(SOURCE, "examples", "demo", "data")
+        for what, name in (("accounts", "accounts"), ("securities", "securities"),
+                           ("prices", "prices"), ("fx", "rates"), ("metrics", "metrics"),
+                           ("distributions", "distributions"), ("splits", "splits"),
+                           ("transactions", "transactions")):
+            if what != "transactions" or transactions:
+                self.ok("import", what, os.path.join(data, f"{name}.csv"),
+                        *([] if what in ("accounts", "transactions") else ["--quiet"]))
+
     def fails(self, *args):
         """Runs a command that must fail; returns its stderr."""
         code, out, err = self.run(*args)

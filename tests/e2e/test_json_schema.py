@@ -49,10 +49,7 @@ led.ok("security", "change", "BRNV", "--name", "Brenvaal Shipping Lines", "--dat
 
 # The demo scenario's files (invented) in a ledger of their own, for the reports of a rule.
 demo = Ledger(currency=None)
-DATA = os.path.join(SOURCE, "examples", "demo", "data")
-for what in ["accounts", "securities", "prices", "metrics", "distributions", "splits",
-             "transactions"]:
-    demo.ok("import", what, os.path.join(DATA, f"{what}.csv"), *([] if what in ("accounts", "transactions") else ["--quiet"]))
+demo.import_demo()
 RULE = os.path.join(SOURCE, "examples", "demo", "rule.toml")
 TRACK_RULE = os.path.join(SOURCE, "examples", "demo", "rule-track-record.toml")
 demo.ok("propose", "--rule", RULE, "--as-of", "2025-11-28", "--save", "--deposit",

@@ -29,10 +29,7 @@ if not chromium:
 
 T0 = time.time()
 demo = Ledger(currency=None)
-DATA = os.path.join(SOURCE, "examples", "demo", "data")
-for what in ["accounts", "securities", "prices", "metrics", "distributions", "splits"]:
-    demo.ok("import", what, os.path.join(DATA, f"{what}.csv"),
-            *([] if what == "accounts" else ["--quiet"]))
+demo.import_demo(transactions=False)
 RULE = os.path.join(SOURCE, "examples", "demo", "rule.toml")
 FIVE = os.path.join(SOURCE, "examples", "compare", "five.toml")
 PERIOD = ["--from", "2022-01-01", "--to", "2025-12-31"]

@@ -17,10 +17,7 @@ from keel_cli import SOURCE, Ledger, check, equal  # noqa: E402
 import overfit_reference as ref  # noqa: E402
 
 demo = Ledger(currency=None)
-DATA = os.path.join(SOURCE, "examples", "demo", "data")
-for what in ["accounts", "securities", "prices", "metrics", "distributions", "splits"]:
-    demo.ok("import", what, os.path.join(DATA, f"{what}.csv"),
-            *([] if what == "accounts" else ["--quiet"]))
+demo.import_demo(transactions=False)
 RULE = os.path.join(SOURCE, "examples", "demo", "rule.toml")
 with open(RULE) as f:
     RULE_TEXT = f.read()

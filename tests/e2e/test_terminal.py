@@ -199,11 +199,7 @@ equal((p.returncode, p.stderr.strip()),
 from keel_cli import SOURCE  # noqa: E402
 
 demo = Ledger(currency=None)
-data = os.path.join(SOURCE, "examples", "demo", "data")
-for what in ["accounts", "securities", "prices", "metrics", "distributions", "splits",
-             "transactions"]:
-    demo.ok("import", what, os.path.join(data, f"{what}.csv"),
-            *([] if what in ("accounts", "transactions") else ["--quiet"]))
+demo.import_demo()
 rule = os.path.join(SOURCE, "examples", "demo", "rule.toml")
 REPORTS = [
     ["holdings", "--as-of", "2025-12-31"],

@@ -49,6 +49,7 @@ struct Scenario {
               "USD\n");
     dir.write("prices.csv",
               "date,symbol,close\n2024-01-02,QVNA,20\n2024-03-28,QVNA,22.5\n2024-01-02,QZIX,100\n");
+    dir.write("rates.csv", "date,base,quote,rate\n2024-01-02,EUR,USD,1.0931\n");
     dir.write("metrics.csv",
               "date,symbol,metric,value,known_on\n2023-12-31,QVNA,pe,-4.5,2024-02-05\n");
     dir.write("distributions.csv",
@@ -127,13 +128,14 @@ TEST_CASE("demo: the files import in order and the ledger holds their story") {
   Scenario s;
   auto db = keel::store::Database::in_memory();
   const auto done = import_scenario(db, load_scenario(s.dir.path(), "--data"));
-  REQUIRE(done.size() == 7);
+  REQUIRE(done.size() == 8);
   std::vector<std::string> order;
   for (const auto& d : done) order.push_back(d.what);
-  CHECK(order == std::vector<std::string>{"accounts", "securities", "prices", "metrics",
+  CHECK(order == std::vector<std::string>{"accounts", "securities", "prices", "fx", "metrics",
                                           "distributions", "splits", "transactions"});
   CHECK(done[2].rows == 3);
-  CHECK(done[6].added == 4);
+  CHECK(done[3].rows == 1);
+  CHECK(done[7].added == 4);
   // 1000 - (10 x 20 + 1) + 4 - 0.6 = 802.4 cash; the split doubles 10 units to 20 at 22.5.
   const auto h = keel::ledger::holdings(db, Date::parse("2024-03-28"));
   REQUIRE(h.positions.size() == 1);
@@ -205,8 +207,9 @@ TEST_CASE("demo: the built-in files are examples/demo's, byte for byte") {
     CHECK_MESSAGE(committed == f.text, f.name);
   }
   CHECK(names == std::vector<std::string>{"accounts.csv", "distributions.csv", "metrics.csv",
-                                          "prices.csv", "scenario.toml", "securities.csv",
-                                          "splits.csv", "transactions.csv", "rule.toml"});
+                                          "prices.csv", "rates.csv", "scenario.toml",
+                                          "securities.csv", "splits.csv", "transactions.csv",
+                                          "rule.toml"});
 }
 
 TEST_CASE("demo: the built-in scenario reads and imports without any file") {
@@ -216,9 +219,10 @@ TEST_CASE("demo: the built-in scenario reads and imports without any file") {
   CHECK(sc.benchmark == "ZXTR");
   auto db = keel::store::Database::in_memory();
   const auto done = import_scenario(db, sc);
-  REQUIRE(done.size() == 7);
+  REQUIRE(done.size() == 8);
   CHECK(done[0].file == "built-in demo data/accounts.csv");
-  CHECK(done[6].file == "built-in demo data/transactions.csv");
-  CHECK(done[6].rows == 2030);
-  CHECK(keel::store::list_transactions(db).size() == 2031);
+  CHECK(done[3].file == "built-in demo data/rates.csv");
+  CHECK(done[7].file == "built-in demo data/transactions.csv");
+  CHECK(done[7].rows == 2135);
+  CHECK(keel::store::list_transactions(db).size() == 2136);
 }

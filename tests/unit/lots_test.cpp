@@ -5,6 +5,7 @@
 #include <cstdint>
 #include <stdexcept>
 
+#include "ledger/allocation.h"
 #include "ledger_fixture.h"
 
 using namespace keel;
@@ -138,6 +139,19 @@ TEST_CASE("lots: partial closes never lose or make a cent") {
   Decimal cost;
   for (const auto& g : f.gains()) cost += g.part.cost;
   CHECK(cost == dec("100.009"));
+}
+
+TEST_CASE("ledger rows: a back-dated row is listed in posting order, by day and then by id") {
+  LedgerFixture f;
+  f.account("Main");
+  f.security("ALFA");
+  const auto late = f.cash(TxnKind::deposit, "2024-03-01", "Main", "100");
+  const auto early = f.cash(TxnKind::deposit, "2024-01-01", "Main", "200");
+  const auto same_day = f.cash(TxnKind::deposit, "2024-03-01", "Main", "300");
+  const auto buy = f.buy("2024-02-01", "Main", "ALFA", "1", "50");
+  std::vector<std::int64_t> ids;
+  for (const auto& t : store::list_transactions(f.db)) ids.push_back(t.id);
+  CHECK(ids == std::vector<std::int64_t>{early, buy, late, same_day});
 }
 
 TEST_CASE("splits: a two-for-one split doubles units and keeps total cost") {
@@ -359,6 +373,48 @@ TEST_CASE("allocate: refuses negative weights and weights that are all zero") {
   CHECK_THROWS_AS(allocate(dec("1"), decs({"1", "-1"}), 2), std::invalid_argument);
   CHECK_THROWS_AS(allocate(dec("1"), decs({"0", "0"}), 2), std::invalid_argument);
   CHECK(allocate(dec("1"), {}, 2).empty());
+}
+
+TEST_CASE("allocate: machine integers give the same parts as Decimal arithmetic, to the digit") {
+  // A fixed linear congruential sequence (Knuth's MMIX constants): the same cases every run.
+  std::uint64_t state = 2718;
+  auto next = [&](std::uint64_t bound) {
+    state = state * 6364136223846793005ULL + 1442695040888963407ULL;
+    return (state >> 11) % bound;
+  };
+  // Mantissas of every size up to a machine word and past it, scales 0..12:
+  // sizes that overflow the integer path fall back, the rest must agree.
+  auto number = [&](bool may_be_zero) {
+    const int digits = 1 + static_cast<int>(next(20));
+    std::string text;
+    for (int d = 0; d < digits; ++d) text += static_cast<char>('0' + next(10));
+    if (!may_be_zero && text.find_first_not_of('0') == std::string::npos) text.back() = '7';
+    return Decimal::parse(fmt::format("{}e-{}", text, next(13)));
+  };
+  int in_integers = 0;
+  for (int round = 0; round < 20000; ++round) {
+    const int places = static_cast<int>(next(7));
+    Decimal total = number(true);
+    if (next(3) == 0) total = -total;
+    std::vector<Decimal> weights;
+    const std::size_t n = 2 + next(8);
+    // Few distinct small weights give ties in the remainders.
+    const bool ties = next(2) == 0;
+    for (std::size_t i = 0; i < n; ++i)
+      weights.push_back(next(5) == 0 ? Decimal()
+                        : ties       ? Decimal(1 + static_cast<long long>(next(3)))
+                                     : number(false));
+    if (sum(weights).is_zero()) weights.back() = dec("1");
+    const auto expected = allocate_in_decimals(total, weights, places);
+    CHECK(allocate(total, weights, places) == expected);
+    if (const auto fast = allocate_in_integers(total, weights, places)) {
+      ++in_integers;
+      REQUIRE(*fast == expected);
+    }
+  }
+  // Most cases fit machine integers; the rest took the Decimal path.
+  CHECK(in_integers > 10000);
+  CHECK(in_integers < 20000);
 }
 
 TEST_CASE("allocate: on many generated splits every part lies within the total and they add up") {

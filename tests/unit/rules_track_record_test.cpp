@@ -141,3 +141,37 @@ TEST_CASE("track record: Pearson's r is undefined without spread") {
   CHECK_FALSE(pearson(x, same).has_value());
   CHECK(*pearson(x, x) == 1.0);
 }
+
+// The track record's series once lacked the exchange rates of a universe
+// converted into the rule's currency: the screen then failed inside it on
+// the first name priced in another currency.
+TEST_CASE("track record: a name priced in another currency has its rates loaded") {
+  Months m;
+  keel::Security abroad;
+  abroad.symbol = "T9";
+  abroad.name = "T9 (invented)";
+  abroad.currency = "EUR";
+  abroad.kind = keel::SecurityKind::stock;
+  keel::store::insert_security(m.f.db, abroad);
+  std::vector<std::tuple<std::string, std::string, std::string>> closes;
+  std::vector<std::tuple<std::string, std::string, std::string, std::string>> pe;
+  for (int k = 0; k < kMonths; ++k) {
+    const std::string d = month_end(k).str();
+    closes.emplace_back("T9", d, fmt::format("{:.2f}", close_of(2, k)));
+    pe.emplace_back("T9", d, d, fmt::format("{:.1f}", pe_of(2, k)));
+  }
+  m.f.closes(closes);
+  m.f.figures("pe", pe);
+  m.f.fx({{"EUR", "USD", "2022-12-30", "1.08"}});
+  const Rule rule = parse_rule(
+      "[scope]\naccounts = [\"Main\"]\n[track_record]\nmin_observations = 3\n", "r.toml");
+  const keel::market::DayView catalog(m.f.db);
+  Inputs inputs(rule, catalog, std::string("USD"), Convert::yes);
+  const auto request = inputs.series_request(catalog, day("2023-01-01"), day("2024-04-30"));
+  CHECK(request.currencies == std::vector<std::string>{"EUR", "USD"});
+  const auto series = keel::market::Series::load(m.f.db, request);
+  const TrackRecord record(rule, inputs, series);
+  const auto stats = record.at(day("2024-04-30"));
+  CHECK(stats.count(catalog.security("T9")->id) == 1);
+  CHECK(stats.size() == kNames + 1);
+}
