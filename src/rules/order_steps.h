@@ -57,6 +57,11 @@ struct PoolValue {
 };
 PoolValue value_pool(const Portfolio& portfolio, const Quotes& quotes, const TradingRule& trading,
                      const std::vector<Decimal>& fee_guess);
+// value_pool() in two parts, for the rounds of orders(): each account's value
+// (which the fee guesses do not change), then the pool on a guess.
+std::vector<Decimal> account_values(const Portfolio& portfolio, const Quotes& quotes);
+PoolValue pool_of(const Portfolio& portfolio, const std::vector<Decimal>& values,
+                  const TradingRule& trading, const std::vector<Decimal>& fee_guess);
 
 struct Work {
   std::int64_t security_id = 0;
@@ -70,6 +75,13 @@ struct Work {
 };
 std::vector<Work> work_list(const Portfolio& portfolio, const std::vector<Target>& targets,
                             const Quotes& quotes, const PoolValue& pool);
+// work_list() in two parts, for the rounds of orders(): the names with what
+// they hold now (pool_value > 0), then aim(): each target value and weight on
+// `pool`. With `fresh` false a target value that did not change keeps its
+// weight as it is.
+std::vector<Work> work_names(const Portfolio& portfolio, const std::vector<Target>& targets,
+                             const Quotes& quotes, const Decimal& pool_value);
+void aim(std::vector<Work>& work, const PoolValue& pool, bool fresh);
 
 struct Decision {
   enum class Kind { none, skip, buy, sell };

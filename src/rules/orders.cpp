@@ -7,6 +7,8 @@
 #include <optional>
 #include <set>
 #include <stdexcept>
+#include <string_view>
+#include <unordered_set>
 
 #include "ledger/holdings.h"
 #include "rules/engine.h"
@@ -50,6 +52,9 @@ Decimal held_in(const Portfolio& portfolio, std::size_t a, std::int64_t id) {
 
 Decimal floor_to(const Decimal& x, const Decimal& step) {
   if (!x.is_positive()) return Decimal();
+  // Whole units (the usual lot): x to 10 places divided by 1 is x itself.
+  static const Decimal one(1);
+  if (step == one && x.scale() <= 10) return x.floored(0);
   return Decimal::divide(x, step, 10).floored(0) * step;
 }
 
@@ -117,18 +122,30 @@ Decimal step_of(const Quote& quote, const TradingRule& trading) {
   return trading.fractional ? fraction_step : quote.lot_size;
 }
 
-PoolValue value_pool(const Portfolio& portfolio, const Quotes& quotes, const TradingRule& trading,
-                     const std::vector<Decimal>& fee_guess) {
-  PoolValue pool;
-  Decimal after_fees, reserves;
-  for (std::size_t a = 0; a < portfolio.accounts.size(); ++a) {
-    const auto& acct = portfolio.accounts[a];
+// Each account's value at the quotes: cash and holdings. The fee guesses do
+// not change it, so orders() computes it once for all its rounds.
+std::vector<Decimal> account_values(const Portfolio& portfolio, const Quotes& quotes) {
+  std::vector<Decimal> values;
+  values.reserve(portfolio.accounts.size());
+  for (const auto& acct : portfolio.accounts) {
     Decimal value = acct.cash;
     for (const auto& [id, h] : acct.holdings) value += h.quantity * quote_of(quotes, id).price;
-    pool.value += value;
-    const Decimal net = value - fee_guess[a];
+    values.push_back(std::move(value));
+  }
+  return values;
+}
+
+PoolValue pool_of(const Portfolio& portfolio, const std::vector<Decimal>& values,
+                  const TradingRule& trading, const std::vector<Decimal>& fee_guess) {
+  PoolValue pool;
+  Decimal after_fees, reserves;
+  pool.cash.reserve(values.size());
+  pool.reserve.reserve(values.size());
+  for (std::size_t a = 0; a < values.size(); ++a) {
+    pool.value += values[a];
+    const Decimal net = values[a] - fee_guess[a];
     after_fees += net;
-    pool.cash.push_back(acct.cash);
+    pool.cash.push_back(portfolio.accounts[a].cash);
     // Money: the reserve is set to the cent, half-to-even.
     pool.reserve.push_back(net.is_positive()
                                ? (net * trading.cash_reserve_pct * one_percent()).rounded(2)
@@ -139,13 +156,15 @@ PoolValue value_pool(const Portfolio& portfolio, const Quotes& quotes, const Tra
   return pool;
 }
 
-std::vector<Work> work_list(const Portfolio& portfolio, const std::vector<Target>& targets,
-                            const Quotes& quotes, const PoolValue& pool) {
+// The work list without the targets' values: what the fee guesses do not change.
+std::vector<Work> work_names(const Portfolio& portfolio, const std::vector<Target>& targets,
+                             const Quotes& quotes, const Decimal& pool_value) {
   std::vector<Work> work;
-  std::map<std::int64_t, std::size_t> index;
+  work.reserve(targets.size());
+  std::unordered_set<std::int64_t> listed;
+  listed.reserve(targets.size() * 2);
   for (const auto& t : targets) {
-    if (index.count(t.security_id)) continue;
-    index[t.security_id] = work.size();
+    if (!listed.insert(t.security_id).second) continue;
     Work w;
     w.security_id = t.security_id;
     w.quote = &quote_of(quotes, t.security_id);
@@ -153,12 +172,11 @@ std::vector<Work> work_list(const Portfolio& portfolio, const std::vector<Target
     w.why = t.why;
     work.push_back(std::move(w));
   }
-  std::map<std::string, std::int64_t> others;  // by symbol
+  std::map<std::string_view, std::int64_t> others;  // by symbol
   for (const auto& acct : portfolio.accounts)
     for (const auto& [id, h] : acct.holdings)
-      if (!index.count(id) && h.quantity.is_positive()) others[quote_of(quotes, id).symbol] = id;
+      if (!listed.count(id) && h.quantity.is_positive()) others[quote_of(quotes, id).symbol] = id;
   for (const auto& [symbol, id] : others) {
-    index[id] = work.size();
     Work w;
     w.security_id = id;
     w.quote = &quote_of(quotes, id);
@@ -169,12 +187,33 @@ std::vector<Work> work_list(const Portfolio& portfolio, const std::vector<Target
     for (std::size_t a = 0; a < portfolio.accounts.size(); ++a)
       x.held += held_in(portfolio, a, x.security_id);
     x.now_value = x.held * x.quote->price;
+    if (!x.now_value.is_zero()) x.w_now = Decimal::divide(x.now_value, pool_value, 6);
+  }
+  return work;
+}
+
+// Sets each name's target value and weight on the pool's invested target.
+// A target value that did not change keeps its weight (no division).
+void aim(std::vector<Work>& work, const PoolValue& pool, bool fresh) {
+  for (auto& x : work) {
     const Decimal weight = x.target ? x.target->weight : Decimal();
     // Money: a target value is set to the cent.
-    x.target_value = (weight * pool.invested_target).rounded(2);
-    x.w_now = Decimal::divide(x.now_value, pool.value, 6);
-    x.w_target = Decimal::divide(x.target_value, pool.value, 6);
+    Decimal value = (weight * pool.invested_target).rounded(2);
+    if (!fresh && value == x.target_value) continue;
+    x.w_target = value.is_zero() ? Decimal() : Decimal::divide(value, pool.value, 6);
+    x.target_value = std::move(value);
   }
+}
+
+PoolValue value_pool(const Portfolio& portfolio, const Quotes& quotes, const TradingRule& trading,
+                     const std::vector<Decimal>& fee_guess) {
+  return pool_of(portfolio, account_values(portfolio, quotes), trading, fee_guess);
+}
+
+std::vector<Work> work_list(const Portfolio& portfolio, const std::vector<Target>& targets,
+                            const Quotes& quotes, const PoolValue& pool) {
+  std::vector<Work> work = work_names(portfolio, targets, quotes, pool.value);
+  aim(work, pool, true);
   return work;
 }
 
@@ -196,12 +235,14 @@ Decision decide(const Work& x, const TradingRule& trading, Date as_of, Explain e
     });
   if (x.now_value.is_positive() && x.target_value.is_positive()) {
     // The drift band applies to names that stay; entries and exits always trade.
-    const Decimal gap = (x.w_now - x.w_target).abs();
     const bool pp_on = trading.drift_pct_points.is_positive();
     const bool rel_on = trading.drift_rel_pct.is_positive();
-    const bool outside = (!pp_on && !rel_on) ||
-                         (pp_on && gap * Decimal(100) > trading.drift_pct_points) ||
-                         (rel_on && gap * Decimal(100) > trading.drift_rel_pct * x.w_target);
+    bool outside = !pp_on && !rel_on;
+    if (!outside) {
+      const Decimal gap_pct = (x.w_now - x.w_target).abs() * Decimal(100);
+      outside = (pp_on && gap_pct > trading.drift_pct_points) ||
+                (rel_on && gap_pct > trading.drift_rel_pct * x.w_target);
+    }
     if (!outside)
       return skip([&] {
         return fmt::format("within the drift band: {} now, target {}", pct(x.w_now),
@@ -265,7 +306,7 @@ std::vector<Order> sell_orders(const Work& x, const Decimal& units, const std::s
     if (prefs && acct.cash.is_negative() && prefs->must_give.count(acct.id)) return 0;
     return prefs && prefs->sell_deferred_first && taxable(acct) ? 2 : 1;
   };
-  std::stable_sort(picks.begin(), picks.end(), [&](const Pick& a, const Pick& b) {
+  auto before = [&](const Pick& a, const Pick& b) {
     if (account_rank(a) != account_rank(b)) return account_rank(a) < account_rank(b);
     if (a.real != b.real) return a.real;  // lots without detail go last
     if (!a.real) return false;
@@ -276,7 +317,9 @@ std::vector<Order> sell_orders(const Work& x, const Decimal& units, const std::s
     if (rank(a) != rank(b)) return rank(a) < rank(b);
     if (dearer(a.lot, b.lot) != dearer(b.lot, a.lot)) return dearer(a.lot, b.lot);
     return a.lot.acquired < b.lot.acquired;
-  });
+  };
+  // One pick (one account, no lot detail) needs no sorting, nor its buffer.
+  if (picks.size() > 1) std::stable_sort(picks.begin(), picks.end(), before);
   const Decimal step = step_of(*x.quote, trading);
   std::map<std::size_t, Order> by_account;
   std::map<std::size_t, Decimal> kept;  // units the gain cap kept, by account
@@ -460,9 +503,24 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
   auto deferred = [&](std::size_t a) {
     return portfolio.accounts[a].tax == TaxStatus::tax_deferred;
   };
+  // The proportional fee as a fraction, multiplied once: `fee` is
+  // TradingRule::fee with it, the same exact product, so the same cents.
+  const Decimal fee_rate = trading.fee_bps * basis_point();
+  auto fee = [&](const Decimal& value) {
+    return value.is_zero() ? Decimal() : (trading.fee_fixed + value * fee_rate).rounded(2);
+  };
+  // A unit's cost with the proportional fee, as a multiple of its price.
+  const Decimal fee_factor = Decimal(1) + fee_rate;
+  static const Decimal almost_one = Decimal::parse("0.999");
+  static const Decimal smallest_quick_step = Decimal::parse("0.000001");
   struct Buy {
     const BuyWish* wish = nullptr;
-    std::string why_none = "no cash left above the reserve";
+    Decimal price, step;
+    Decimal unit;  // a unit's price with the proportional fee
+    // Below this, cash less the fixed fee cannot pay for one step (see `add`);
+    // unset for steps too small for that bound to hold.
+    std::optional<Decimal> no_step_below;
+    std::string why_none;  // empty: no cash left above the reserve
     std::map<std::size_t, Order> by_account;
     Decimal bought() const {
       Decimal v;
@@ -470,10 +528,16 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
       return v;
     }
   };
-  std::vector<Buy> buys;
-  for (const auto& w : wishes) {
-    buys.emplace_back();
-    buys.back().wish = &w;
+  std::vector<Buy> buys(wishes.size());
+  for (std::size_t i = 0; i < wishes.size(); ++i) {
+    Buy& b = buys[i];
+    b.wish = &wishes[i];
+    const Quote& quote = *wishes[i].work->quote;
+    b.price = quote.price;
+    b.step = step_of(quote, trading);
+    b.unit = b.price * fee_factor;
+    if (b.step >= smallest_quick_step && b.unit.is_positive())
+      b.no_step_below = b.unit * b.step * almost_one;
   }
   const std::size_t n_accounts = portfolio.accounts.size();
 
@@ -489,78 +553,92 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
         cash[a] - reserve[a] - (withheld == prefs.withheld.end() ? Decimal() : withheld->second)));
     total_spendable += spendable.back();
   }
+  auto any_spendable = [&] {
+    return std::any_of(spendable.begin(), spendable.end(),
+                       [](const Decimal& s) { return s.is_positive(); });
+  };
   Decimal need;
-  for (const auto& w : wishes) need += w.want + trading.fee(w.want);
+  for (const auto& w : wishes) need += w.want + fee(w.want);
   const Decimal factor =
       need > total_spendable ? Decimal::divide(total_spendable, need, 12) : Decimal(1);
 
   // Accounts for a buy: those holding the name (largest holding first), then
-  // the others by cash to spend.
-  auto account_order = [&](std::int64_t id) {
-    std::vector<std::size_t> order;
-    for (std::size_t a = 0; a < n_accounts; ++a) order.push_back(a);
-    if (n_accounts == 1) return order;
+  // the others by cash to spend. The list is reused: read it before asking again.
+  std::vector<std::size_t> accounts;
+  auto account_order = [&](std::int64_t id) -> const std::vector<std::size_t>& {
+    accounts.clear();
+    for (std::size_t a = 0; a < n_accounts; ++a) accounts.push_back(a);
+    if (n_accounts == 1) return accounts;
     const bool place = placed(id);
-    std::stable_sort(order.begin(), order.end(), [&](std::size_t a, std::size_t c) {
+    std::stable_sort(accounts.begin(), accounts.end(), [&](std::size_t a, std::size_t c) {
       if (place && deferred(a) != deferred(c)) return deferred(a);
       const Decimal ha = held_in(portfolio, a, id), hc = held_in(portfolio, c, id);
       if (ha != hc) return ha > hc;
       return spendable[a] > spendable[c];
     });
-    return order;
+    return accounts;
   };
-  // A unit's cost with the proportional fee, as a multiple of its price.
-  const Decimal fee_factor = Decimal(1) + trading.fee_bps * basis_point();
+  auto less_than_a_lot = [&](Buy& b) {
+    if (words)
+      b.why_none = fmt::format("less than one lot ({} at {}) fits the cash to spend", b.step.str(),
+                               b.price.str());
+    return Decimal();
+  };
   // Adds to `b` in account `a` at most `max_q` units costing at most `budget`
   // (fees included); returns the amount spent. An order's value stays at or
   // above the minimum trade.
   auto add = [&](Buy& b, std::size_t a, const Decimal& budget,
                  const std::optional<Decimal>& max_q) -> Decimal {
     const Work& x = *b.wish->work;
-    const Decimal step = step_of(*x.quote, trading);
-    const Decimal price = x.quote->price;
+    const Decimal& step = b.step;
+    const Decimal& price = b.price;
     auto it = b.by_account.find(a);
-    const Decimal have_q = it == b.by_account.end() ? Decimal() : it->second.quantity;
-    const Decimal have_cost =
-        it == b.by_account.end() ? Decimal() : it->second.value + it->second.fee;
+    const bool fresh = it == b.by_account.end();
     const Decimal limit = std::min(budget, spendable[a]);
+    const Decimal have_q = fresh ? Decimal() : it->second.quantity;
+    const Decimal have_cost = fresh ? Decimal() : it->second.value + it->second.fee;
+    // What the order may cost before its fixed fee. A fresh order adds no
+    // zeros: its quantity and cost so far are nothing.
+    const Decimal room = fresh ? limit - trading.fee_fixed : limit + have_cost - trading.fee_fixed;
+    // Nothing held yet and cash less the fixed fee below 0.999 of a step:
+    // the quotient below is then under 0.999 + 10^-4 steps, so no step fits.
+    if (fresh && b.no_step_below && room < *b.no_step_below) return less_than_a_lot(b);
     // Largest added quantity whose order (value + fee) grows by at most `limit`.
-    const Decimal unit = price * fee_factor;
-    Decimal q =
-        floor_to(Decimal::divide(limit + have_cost - trading.fee_fixed, unit, 10), step) - have_q;
-    auto grown = [&](const Decimal& add_q) {
-      const Decimal v = (have_q + add_q) * price;
-      return v + trading.fee(v) - have_cost;
-    };
+    Decimal q = floor_to(Decimal::divide(room, b.unit, 10), step);
+    if (!fresh) q -= have_q;
     if (max_q && q > *max_q) q = *max_q;
+    // The order's value and fee at the last quantity tried: the loop ends on
+    // the quantity that fits.
+    Decimal value, order_fee;
+    auto grown = [&](const Decimal& add_q) {
+      value = (fresh ? add_q : have_q + add_q) * price;
+      order_fee = fee(value);
+      return fresh ? value + order_fee : value + order_fee - have_cost;
+    };
     while (q.is_positive() && grown(q) > limit) q -= step;
-    if (!q.is_positive()) {
+    if (!q.is_positive()) return less_than_a_lot(b);
+    if (value < trading.min_trade) {
       if (words)
-        b.why_none = fmt::format("less than one lot ({} at {}) fits the cash to spend", step.str(),
-                                 price.str());
+        b.why_none = fmt::format("a buy of {} is below the minimum trade ({})", value.fixed(2),
+                                 trading.min_trade.str());
       return Decimal();
     }
-    if ((have_q + q) * price < trading.min_trade) {
-      if (words)
-        b.why_none = fmt::format("a buy of {} is below the minimum trade ({})",
-                                 ((have_q + q) * price).fixed(2), trading.min_trade.str());
-      return Decimal();
-    }
-    const Decimal spent = grown(q);
-    if (it == b.by_account.end())
+    const Decimal spent = fresh ? value + order_fee : value + order_fee - have_cost;
+    if (fresh)
       it = b.by_account
                .emplace(a,
                         make_order(x, portfolio, a, Side::buy, Decimal(), b.wish->reason, trading))
                .first;
-    it->second.quantity = have_q + q;
-    it->second.value = it->second.quantity * price;
-    it->second.fee = trading.fee(it->second.value);
+    it->second.quantity = fresh ? std::move(q) : have_q + q;
+    it->second.value = std::move(value);
+    it->second.fee = std::move(order_fee);
     spendable[a] -= spent;
     cash[a] -= spent;
     return spent;
   };
   // Names placed in tax-deferred accounts buy first, so the cash there is theirs.
   std::vector<Buy*> turn;
+  turn.reserve(buys.size());
   for (auto& b : buys) turn.push_back(&b);
   std::stable_partition(turn.begin(), turn.end(),
                         [&](const Buy* b) { return placed(b->wish->work->security_id); });
@@ -572,30 +650,45 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
       if (spendable[a].is_positive()) budget -= add(b, a, budget, std::nullopt);
     }
   }
-  // The fill: the gap to target in value, largest first.
-  std::vector<std::pair<Decimal, Buy*>> by_gap;
-  for (auto& b : buys) by_gap.emplace_back(b.wish->want - b.bought(), &b);
-  std::stable_sort(by_gap.begin(), by_gap.end(), [&](const auto& a, const auto& b) {
-    const bool pa = placed(a.second->wish->work->security_id);
-    const bool pb = placed(b.second->wish->work->security_id);
-    if (pa != pb) return pa;
-    return a.first > b.first;
-  });
-  for (auto& [gap0, b] : by_gap) {
-    const Work& x = *b->wish->work;
-    const Decimal step = step_of(*x.quote, trading);
-    for (std::size_t a : account_order(x.security_id)) {
-      // Value left to target; fees come out of the cash, not the target.
-      const Decimal gap = b->wish->want - b->bought();
-      if (gap < x.quote->price * step) break;
-      if (!spendable[a].is_positive()) continue;
-      add(*b, a, spendable[a], units_within(gap, x.quote->price, step));
+  // The fill: the gap to target in value, largest first. A buy's gap is
+  // still what it was here when its turn comes (only its own orders change
+  // it), so a gap below one step's value, which would stop at once, is left
+  // out; and with no cash to spend in any account nothing is filled.
+  if (any_spendable()) {
+    std::vector<std::pair<Decimal, Buy*>> by_gap;
+    for (auto& b : buys) {
+      Decimal gap = b.wish->want - b.bought();
+      if (gap < b.price * b.step) continue;
+      by_gap.emplace_back(std::move(gap), &b);
+    }
+    std::stable_sort(by_gap.begin(), by_gap.end(), [&](const auto& a, const auto& b) {
+      const bool pa = placed(a.second->wish->work->security_id);
+      const bool pb = placed(b.second->wish->work->security_id);
+      if (pa != pb) return pa;
+      return a.first > b.first;
+    });
+    for (auto& [gap0, b] : by_gap) {
+      const Decimal one_step = b->price * b->step;
+      for (std::size_t a : account_order(b->wish->work->security_id)) {
+        // Value left to target; fees come out of the cash, not the target.
+        const Decimal gap = b->wish->want - b->bought();
+        if (gap < one_step) break;
+        if (!spendable[a].is_positive()) continue;
+        add(*b, a, spendable[a], units_within(gap, b->price, b->step));
+      }
+      if (!any_spendable()) break;  // no later buy could add anything
     }
   }
 
   Buys out;
+  out.orders.reserve(buys.size());
+  out.skipped.reserve(buys.size());
   for (auto& b : buys) {
-    if (b.by_account.empty()) out.skipped.push_back({b.wish->work->quote->symbol, b.why_none});
+    if (b.by_account.empty())
+      out.skipped.push_back({b.wish->work->quote->symbol, !words ? std::string()
+                                                          : b.why_none.empty()
+                                                              ? "no cash left above the reserve"
+                                                              : std::move(b.why_none)});
     for (auto& [a, o] : b.by_account) {
       if (words && placed(o.security_id))
         o.reason += deferred(a)
@@ -672,32 +765,34 @@ void summarize(OrderPlan& plan, const Portfolio& portfolio, const std::vector<Wo
 
 namespace {
 
-// A plan before its summary (steps::summarize), with what the summary needs:
-// only the last of the rounds below is summarized.
+// A plan before its summary (steps::summarize), with the pool the summary
+// needs: only the last of the rounds below is summarized.
 struct Draft {
   OrderPlan plan;
-  std::vector<steps::Work> work;
   steps::PoolValue pool;
   bool summarize = false;  // false: an empty pool, nothing to summarize
 };
 
 // One plan with the pool's targets set on its value less `fee_guess[a]` for
-// each account a (the fees the plan itself is expected to cost).
-Draft plan_once(const Portfolio& portfolio, const std::vector<Target>& targets,
-                const Quotes& quotes, const TradingRule& trading, Date as_of,
-                const std::vector<Decimal>& fee_guess, Explain explain,
+// each account a (the fees the plan itself is expected to cost). `values`:
+// each account's value (steps::value_pool); `work`: the names the plan
+// touches, their targets set here for this guess.
+Draft plan_once(const Portfolio& portfolio, const std::vector<Decimal>& values,
+                std::vector<steps::Work>& work, const TradingRule& trading, Date as_of,
+                const std::vector<Decimal>& fee_guess, bool first, Explain explain,
                 const HouseholdPrefs& prefs) {
   Draft draft;
   OrderPlan& plan = draft.plan;
   steps::PoolValue& pool = draft.pool;
-  pool = steps::value_pool(portfolio, quotes, trading, fee_guess);
+  pool = steps::pool_of(portfolio, values, trading, fee_guess);
   plan.pool_value = pool.value;
   plan.invested_target = pool.invested_target;
   if (!plan.pool_value.is_positive()) return draft;
 
-  draft.work = steps::work_list(portfolio, targets, quotes, pool);
-  const auto& work = draft.work;
+  steps::aim(work, pool, first);
   std::vector<steps::BuyWish> wishes;
+  wishes.reserve(work.size());
+  plan.orders.reserve(work.size());
   steps::SellTax tax{&prefs, Decimal(), {}};
   for (const auto& x : work) {
     auto d = steps::decide(x, trading, as_of, explain);
@@ -720,19 +815,29 @@ Draft plan_once(const Portfolio& portfolio, const std::vector<Target>& targets,
         break;
     }
   }
-  std::set<std::int64_t> bought;
-  for (const auto& w : wishes) bought.insert(w.work->security_id);
-  std::vector<Decimal> before_raise;
-  for (const auto& o : plan.orders) before_raise.push_back(o.quantity);
+  // Accounts that must give more cash than they hold after the sells raise
+  // it; without them nothing is raised and nothing is bought back.
+  std::vector<std::size_t> short_of_cash;
   for (std::size_t a = 0; a < portfolio.accounts.size(); ++a)
     if (pool.cash[a].is_negative() && prefs.must_give.count(portfolio.accounts[a].id))
+      short_of_cash.push_back(a);
+  if (!short_of_cash.empty()) {
+    std::set<std::int64_t> bought;
+    for (const auto& w : wishes) bought.insert(w.work->security_id);
+    std::vector<Decimal> before_raise;
+    for (const auto& o : plan.orders) before_raise.push_back(o.quantity);
+    for (const std::size_t a : short_of_cash)
       steps::raise_cash(a, work, portfolio, trading, as_of, plan.orders, pool.cash, tax, explain,
                         bought);
-  steps::rebuy_after_raise(work, plan.orders, before_raise, trading, wishes, plan.skipped, explain);
+    steps::rebuy_after_raise(work, plan.orders, before_raise, trading, wishes, plan.skipped,
+                             explain);
+  }
   for (auto& k : tax.kept) plan.skipped.push_back(std::move(k));
   auto buys =
       steps::buy_orders(wishes, portfolio, pool.cash, pool.reserve, trading, explain, prefs);
+  plan.orders.reserve(plan.orders.size() + buys.orders.size());
   for (auto& o : buys.orders) plan.orders.push_back(std::move(o));
+  plan.skipped.reserve(plan.skipped.size() + buys.skipped.size());
   for (auto& s : buys.skipped) plan.skipped.push_back(std::move(s));
   draft.summarize = true;
   return draft;
@@ -746,9 +851,15 @@ OrderPlan orders(const Portfolio& portfolio, const std::vector<Target>& targets,
   // Targets are set on the pool as it will stand after this plan's own fees,
   // so that posting the orders and proposing again finds nothing to do. The
   // fees depend on the orders, so iterate to a fixed point (a few rounds;
-  // the last plan is used if it has not settled).
+  // the last plan is used if it has not settled). The pool's value and the
+  // names it touches do not depend on the fees: they are found once.
+  const std::vector<Decimal> values = steps::account_values(portfolio, quotes);
+  Decimal pool_value;
+  for (const auto& v : values) pool_value += v;
+  std::vector<steps::Work> work;
+  if (pool_value.is_positive()) work = steps::work_names(portfolio, targets, quotes, pool_value);
   std::vector<Decimal> guess(portfolio.accounts.size());
-  Draft draft = plan_once(portfolio, targets, quotes, trading, as_of, guess, explain, prefs);
+  Draft draft = plan_once(portfolio, values, work, trading, as_of, guess, true, explain, prefs);
   for (int round = 0; round < 8; ++round) {
     std::vector<Decimal> fees(portfolio.accounts.size());
     for (const auto& o : draft.plan.orders)
@@ -756,9 +867,9 @@ OrderPlan orders(const Portfolio& portfolio, const std::vector<Target>& targets,
         if (portfolio.accounts[a].id == o.account_id) fees[a] += o.fee;
     if (fees == guess) break;
     guess = std::move(fees);
-    draft = plan_once(portfolio, targets, quotes, trading, as_of, guess, explain, prefs);
+    draft = plan_once(portfolio, values, work, trading, as_of, guess, false, explain, prefs);
   }
-  if (draft.summarize) steps::summarize(draft.plan, portfolio, draft.work, draft.pool);
+  if (draft.summarize) steps::summarize(draft.plan, portfolio, work, draft.pool);
   return std::move(draft.plan);
 }
 

@@ -452,3 +452,111 @@ TEST_CASE("order steps: buys short of cash share it in proportion to their needs
   CHECK(buys.skipped.empty());
   CHECK(cash[0].is_zero());
 }
+
+namespace {
+
+// One name to buy, priced by `quote`.
+steps::Work to_buy(const Quote& quote, std::int64_t id) {
+  steps::Work w;
+  w.quote = &quote;
+  w.security_id = id;
+  return w;
+}
+
+// Buys `wishes` from one account holding `cash` and no reserve.
+steps::Buys buy_from(const char* cash, const std::vector<steps::BuyWish>& wishes,
+                     const TradingRule& trading, std::vector<Decimal>& left) {
+  const Portfolio p{{account(1, "Main", "0")}};
+  left = {dec(cash)};
+  return steps::buy_orders(wishes, p, left, {Decimal()}, trading);
+}
+
+}  // namespace
+
+TEST_CASE("order steps: a buy gets one lot exactly when its cost with fees fits the cash") {
+  // One unit of X at 100 costs 100 + (1 + 0.1) of fees = 101.10. Cash of 101.10
+  // buys it; a cent less, or far less, buys nothing and says why.
+  const Quote qx{"X", Decimal(100), true, Decimal(1)};
+  const steps::Work x = to_buy(qx, 10);
+  TradingRule g;
+  g.fee_fixed = Decimal(1);
+  g.fee_bps = Decimal(10);
+  const std::vector<steps::BuyWish> wishes{{&x, Decimal(1000), "x"}};
+  std::vector<Decimal> cash;
+  for (const char* fits : {"101.10", "101.11", "201.19"}) {
+    const auto buys = buy_from(fits, wishes, g, cash);
+    REQUIRE(buys.orders.size() == 1);
+    CHECK(buys.orders[0].quantity == Decimal(1));
+    CHECK(buys.orders[0].fee == dec("1.1"));
+    CHECK(cash[0] == dec(fits) - dec("101.1"));
+  }
+  for (const char* short_of : {"101.09", "100.90", "50", "1"}) {
+    const auto buys = buy_from(short_of, wishes, g, cash);
+    CHECK(buys.orders.empty());
+    REQUIRE(buys.skipped.size() == 1);
+    CHECK(buys.skipped[0].why == "less than one lot (1 at 100) fits the cash to spend");
+    CHECK(cash[0] == dec(short_of));
+  }
+}
+
+TEST_CASE("order steps: a fractional buy gets one step exactly when it fits the cash") {
+  // A step of 0.0001 of Y at 50 is worth 0.005; with a fixed fee of 1 it costs 1.005.
+  const Quote qy{"Y", Decimal(50), true, Decimal(1)};
+  const steps::Work y = to_buy(qy, 11);
+  TradingRule g;
+  g.fractional = true;
+  g.fee_fixed = Decimal(1);
+  const std::vector<steps::BuyWish> wishes{{&y, Decimal(10), "y"}};
+  std::vector<Decimal> cash;
+  auto buys = buy_from("1.005", wishes, g, cash);
+  REQUIRE(buys.orders.size() == 1);
+  CHECK(buys.orders[0].quantity == dec("0.0001"));
+  buys = buy_from("1.0049", wishes, g, cash);
+  CHECK(buys.orders.empty());
+  REQUIRE(buys.skipped.size() == 1);
+  CHECK(buys.skipped[0].why == "less than one lot (0.0001 at 50) fits the cash to spend");
+}
+
+TEST_CASE("order steps: aiming again sets the target values on the new pool") {
+  // The fee rounds of orders() aim the same work list at pools that differ
+  // only in their invested target.
+  AccountState a = account(1, "Main", "1000");
+  a.holdings[12] = HoldingState{Decimal(10), {}};
+  const Portfolio p{{a}};
+  const std::vector<Target> t{target(10, "X", "0.6"), target(12, "H", "0.4")};
+  const auto q = quotes({{10, "X", "30"}, {12, "H", "100"}});
+  auto pool = steps::value_pool(p, q, {}, {Decimal()});
+  auto work = steps::work_names(p, t, q, pool.value);
+  steps::aim(work, pool, true);
+  CHECK(work[0].target_value == Decimal(1200));
+  CHECK(work[0].w_target == dec("0.6"));
+  CHECK(work[1].w_now == dec("0.5"));
+  pool.invested_target = Decimal(1990);
+  steps::aim(work, pool, false);
+  CHECK(work[0].target_value == Decimal(1194));
+  CHECK(work[0].w_target == dec("0.597"));
+  CHECK(work[1].target_value == Decimal(796));
+  CHECK(work[1].w_target == dec("0.398"));
+  CHECK(work[1].w_now == dec("0.5"));
+  const auto fresh = steps::work_list(p, t, q, pool);
+  REQUIRE(fresh.size() == work.size());
+  for (std::size_t i = 0; i < work.size(); ++i) {
+    CHECK(fresh[i].target_value == work[i].target_value);
+    CHECK(fresh[i].w_target == work[i].w_target);
+  }
+}
+
+TEST_CASE("orders: without explanations a buy that gets nothing is skipped without words") {
+  // The cash of 50 buys no unit of X at 100: the skip names X, and says why
+  // only when asked to.
+  const Portfolio p{{account(1, "Main", "50")}};
+  const auto q = quotes({{10, "X", "100"}});
+  const auto told = orders(p, {target(10, "X", "1")}, q, {}, kAsOf);
+  REQUIRE(told.skipped.size() == 1);
+  CHECK(told.skipped[0].why == "less than one lot (1 at 100) fits the cash to spend");
+  const auto quiet = orders(p, {target(10, "X", "1")}, q, {}, kAsOf, Explain::none);
+  REQUIRE(quiet.skipped.size() == 1);
+  CHECK(quiet.skipped[0].symbol == "X");
+  CHECK(quiet.skipped[0].why.empty());
+  CHECK(quiet.orders.empty());
+}
