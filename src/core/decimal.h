@@ -89,6 +89,12 @@ class Decimal {
   bool is_negative() const { return sign() < 0; }
   bool is_positive() const { return sign() > 0; }
   int scale() const { return scale_; }
+  // value x 10^scale() when it is held in a machine word; unset when it needs
+  // the arbitrary-precision form. For integer fast paths that must not format.
+  std::optional<long long> machine_mantissa() const {
+    if (big_) return std::nullopt;
+    return small_;
+  }
   double to_double() const;
 
   Decimal operator-() const;

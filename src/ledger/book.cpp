@@ -32,18 +32,12 @@ __extension__ typedef __int128 Wide;  // GCC and Clang; -Wpedantic wants the mar
 
 constexpr Wide kWordMax = std::numeric_limits<long long>::max();
 
-// `d` as mantissa x 10^-scale when the mantissa has at most 18 digits, read
-// from its canonical text (Decimal keeps its mantissa to itself).
+// `d` as mantissa x 10^-scale when the mantissa has at most 18 digits.
 std::optional<long long> small_mantissa(const Decimal& d) {
-  const std::string text = d.str();
-  long long m = 0;
-  int digits = 0;
-  for (const char c : text) {
-    if (c < '0' || c > '9') continue;  // the sign and the point
-    if (++digits > 18) return std::nullopt;
-    m = m * 10 + (c - '0');
-  }
-  return d.is_negative() ? -m : m;
+  constexpr long long kLimit = 1'000'000'000'000'000'000;  // 10^18: at most 18 digits
+  const auto m = d.machine_mantissa();
+  if (!m || *m <= -kLimit || *m >= kLimit) return std::nullopt;
+  return m;
 }
 
 // The parts' indices by what their quotas lost to the floor, most first
