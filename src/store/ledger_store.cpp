@@ -55,33 +55,39 @@ constexpr const char* kTxnPlainColumns =
     "link_id, voids_id, ref, row_hash, note, currency, rate, to_currency";
 
 // Read through the raw statement: the ledger's every row passes here on
-// each report, and views of the row's text spare a copy of each column.
+// each report. Each column is fetched once (Statement::value), and its text
+// is parsed in place, without a std::string in between.
 Transaction read_txn(const Statement& st) {
   auto text = [&](int c) -> std::optional<std::string> {
-    if (st.null(c)) return std::nullopt;
-    return std::string(st.text(c));
+    const auto v = st.value(c);
+    if (v.null()) return std::nullopt;
+    return std::string(v.text());
   };
   auto decimal = [&](int c) -> std::optional<Decimal> {
-    if (st.null(c)) return std::nullopt;
-    return Decimal::parse(st.text(c));
+    const auto v = st.value(c);
+    if (v.null()) return std::nullopt;
+    return Decimal::parse(v.text());
   };
   auto id = [&](int c) -> std::optional<std::int64_t> {
-    if (st.null(c)) return std::nullopt;
-    return st.integer(c);
+    const auto v = st.value(c);
+    if (v.null()) return std::nullopt;
+    return v.integer();
   };
   Transaction t;
-  t.id = st.integer(0);
-  t.account_id = st.integer(1);
-  t.date = Date::parse(st.text(2));
-  const std::string_view kind = st.text(3);
+  t.id = st.value(0).integer();
+  t.account_id = st.value(1).integer();
+  t.date = Date::parse(st.value(2).text());
+  const std::string_view kind = st.value(3).text();
   t.kind = kind == "void" ? TxnKind::void_entry : parse_txn_kind(kind);
   t.security_id = id(4);
   t.quantity = decimal(5);
   t.price = decimal(6);
   t.amount = decimal(7);
-  t.fee = Decimal::parse(st.text(8));
-  if (!st.null(9)) t.acquired = Date::parse(st.text(9));
-  if (!st.null(10) && !st.text(10).empty()) t.lots = parse_lot_picks(st.text(10));
+  t.fee = Decimal::parse(st.value(8).text());
+  if (const auto acquired = st.value(9); !acquired.null())
+    t.acquired = Date::parse(acquired.text());
+  if (const auto lots = st.value(10); !lots.null() && !lots.text().empty())
+    t.lots = parse_lot_picks(lots.text());
   t.link_id = id(11);
   t.voids_id = id(12);
   t.ref = text(13);
