@@ -3,6 +3,8 @@
 #include <SQLiteCpp/Statement.h>
 #include <fmt/format.h>
 #include <sqlite3.h>
+#include <sys/mman.h>
+#include <unistd.h>
 
 #include <algorithm>
 #include <cctype>
@@ -97,6 +99,26 @@ Transaction read_txn(const Statement& st) {
   t.rate = decimal(17);
   t.to_currency = text(18);
   return t;
+}
+
+// Maps the pages of a block that is about to be written whole in one call,
+// instead of taking a page fault for each 4 KiB page as the rows arrive: a
+// Transaction is some 600 bytes, so 20,000 rows would fault about 3,000
+// times, each costing more than reading a row. Huge pages are asked for
+// first, where the kernel gives them on request (transparent huge pages in
+// "madvise" mode), so that the block takes a few large pages instead. Advice
+// only: a kernel that refuses either (MADV_POPULATE_WRITE needs Linux 5.14)
+// leaves the pages to come one fault at a time, as before.
+void populate(const void* data, std::size_t bytes) {
+  const auto page = static_cast<std::uintptr_t>(sysconf(_SC_PAGESIZE));
+  if (page == 0 || (page & (page - 1)) != 0) return;
+  const auto start = reinterpret_cast<std::uintptr_t>(data);
+  const std::uintptr_t first = (start + page - 1) & ~(page - 1);
+  const std::uintptr_t end = (start + bytes) & ~(page - 1);
+  if (end <= first) return;
+  void* const block = reinterpret_cast<void*>(first);
+  madvise(block, end - first, MADV_HUGEPAGE);
+  madvise(block, end - first, MADV_POPULATE_WRITE);
 }
 
 bool is_unique_violation(const SQLite::Exception& e) {
@@ -362,6 +384,7 @@ std::vector<Transaction> list_transactions(Database& db) {
   Statement count(db.sql().getHandle(), "SELECT count(*) FROM txn");
   if (count.next()) out.reserve(static_cast<std::size_t>(count.integer(0)));
   count.reset();
+  populate(out.data(), out.capacity() * sizeof(Transaction));
   // The few corrections first, so that the rows can be read in one pass over
   // the table in id order: walking the (date, id) index instead costs a
   // lookup of the table row, and one in correction, for every row.
