@@ -1,7 +1,7 @@
 # Installing keel and packaging it as a .deb (CPack).
 #
 # `cmake --install build [--prefix P]` puts in P (default /usr/local):
-#   bin/keel, share/man/man1/keel.1.gz, share/bash-completion/completions/keel,
+#   bin/keel, its OFX module lib/keel/keel-ofx.so, share/man/man1/keel.1.gz, share/bash-completion/completions/keel,
 #   the zsh completion _keel (share/zsh/vendor-completions under /usr, where
 #   Debian's zsh looks for packaged completions; share/zsh/site-functions
 #   elsewhere), share/doc/keel/copyright.
@@ -20,6 +20,8 @@ add_custom_command(
   VERBATIM)
 
 install(TARGETS keel RUNTIME DESTINATION ${CMAKE_INSTALL_BINDIR})
+# Loaded by keel for OFX files only, found relative to bin/keel (CMakeLists.txt).
+install(TARGETS keel_ofx LIBRARY DESTINATION ${KEEL_OFX_MODULE_DIR})
 install(FILES ${KEEL_INSTALLED_DOCS}/keel.1.gz DESTINATION ${CMAKE_INSTALL_MANDIR}/man1)
 install(FILES ${KEEL_INSTALLED_DOCS}/keel.bash
         DESTINATION ${CMAKE_INSTALL_DATADIR}/bash-completion/completions RENAME keel)

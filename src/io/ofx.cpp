@@ -1,7 +1,7 @@
 #include "io/ofx.h"
 
+#include <dlfcn.h>
 #include <fmt/format.h>
-#include <libofx/libofx.h>
 
 #include <algorithm>
 #include <array>
@@ -13,6 +13,15 @@
 #include "core/error.h"
 #include "core/files.h"
 #include "core/text.h"
+#include "io/ofx_module.h"
+
+// Defined when the program links the libofx pass into itself (the unit tests
+// and fuzz targets do); the keel program does not, and loads its module.
+#pragma weak keel_ofx_read_v1
+
+#ifndef KEEL_OFX_MODULE_FROM_BIN
+#error "KEEL_OFX_MODULE_FROM_BIN: the module's folder relative to the program's (CMakeLists.txt)"
+#endif
 
 namespace keel::io {
 namespace {
@@ -214,6 +223,42 @@ class Scanner {
 
 std::string cstr(const char* s, std::size_t max) {
   return std::string(s, strnlen(s, max));
+}
+
+// The libofx pass: linked in, else from keel-ofx.so, looked for first where
+// `cmake --install` puts it relative to the program (KEEL_OFX_MODULE_FROM_BIN,
+// e.g. ../lib/keel), then beside the program (the build folder). Loaded
+// once, on the first OFX file, and kept.
+KeelOfxRead ofx_reader(const std::string& name) {
+  if (&keel_ofx_read_v1 != nullptr) return &keel_ofx_read_v1;
+  static KeelOfxRead loaded = nullptr;
+  if (loaded) return loaded;
+  namespace fs = std::filesystem;
+  std::error_code ec;
+  const fs::path program = fs::read_symlink("/proc/self/exe", ec);
+  if (ec)
+    throw InputError(fmt::format("{}: cannot find keel's OFX module: where is this program? {}",
+                                 printable(name), ec.message()));
+  const fs::path folders[] = {(program.parent_path() / KEEL_OFX_MODULE_FROM_BIN).lexically_normal(),
+                              program.parent_path()};
+  for (const auto& folder : folders) {
+    const fs::path module = folder / kOfxModuleFile;
+    if (!fs::exists(module, ec)) continue;
+    void* handle = dlopen(module.c_str(), RTLD_NOW | RTLD_LOCAL);
+    if (!handle)
+      throw InputError(fmt::format("{}: keel's OFX module cannot be loaded: {}", printable(name),
+                                   printable(dlerror())));
+    loaded = reinterpret_cast<KeelOfxRead>(dlsym(handle, kOfxModuleEntry));
+    if (!loaded)
+      throw InputError(fmt::format("{}: {} is not this keel's OFX module (it has no {})",
+                                   printable(name), printable(module.string()), kOfxModuleEntry));
+    return loaded;
+  }
+  throw InputError(fmt::format(
+      "{}: reading OFX needs keel's OFX module, {}, found neither in {} nor in {}; install keel "
+      "with it, or import the statement as CSV",
+      printable(name), kOfxModuleFile, printable(folders[0].string()),
+      printable(folders[1].string())));
 }
 
 struct Collected {
@@ -420,18 +465,11 @@ OfxStatement read_ofx(const std::filesystem::path& file) {
         "per file",
         printable(name), scan.statements));
 
-  ofx_PARSER_msg = ofx_DEBUG_msg = ofx_DEBUG1_msg = ofx_DEBUG2_msg = ofx_DEBUG3_msg =
-      ofx_DEBUG4_msg = ofx_DEBUG5_msg = ofx_STATUS_msg = ofx_INFO_msg = ofx_WARNING_msg =
-          ofx_ERROR_msg = 0;
+  const KeelOfxRead read = ofx_reader(name);
   Collected c;
-  LibofxContextPtr ctx = libofx_get_new_context();
-  ofx_set_account_cb(ctx, on_account, &c);
-  ofx_set_statement_cb(ctx, on_statement, &c);
-  ofx_set_security_cb(ctx, on_security, &c);
-  ofx_set_transaction_cb(ctx, on_transaction, &c);
-  ofx_set_position_cb(ctx, on_position, &c);
-  libofx_proc_file(ctx, name.c_str(), OFX);
-  libofx_free_context(ctx);
+  const KeelOfxCallbacks callbacks{on_account,     on_statement, on_security,
+                                   on_transaction, on_position,  &c};
+  read(name.c_str(), &callbacks);
   if (!c.statement)
     throw InputError(fmt::format("{}: libofx found no statement in it", printable(name)));
 

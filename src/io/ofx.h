@@ -17,6 +17,12 @@
 //    its element. Elements keel does not book (REINVEST, RETOFCAP, SPLIT,
 //    CLOSUREOPT) carry `refused` with the reason; JRNLFUND and JRNLSEC
 //    (journals between sub-accounts of the same account) are `skipped`.
+//  - libofx runs in keel's OFX module, keel-ofx.so (io/ofx_module.h), loaded
+//    on the first OFX file only: from where `cmake --install` puts it
+//    relative to the program (<prefix>/lib/keel for <prefix>/bin/keel), else
+//    from the program's own folder (the build folder). A module that is
+//    missing or cannot be loaded is an InputError naming the file, the
+//    folders looked in or the loader's reason.
 //  - Not exposed by libofx 0.10 and so not read: cost basis of positions,
 //    per-transaction sub-account moves beyond the above, and margin and
 //    short balances (read but not used).

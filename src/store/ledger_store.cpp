@@ -3,6 +3,8 @@
 #include <SQLiteCpp/Statement.h>
 #include <fmt/format.h>
 #include <sqlite3.h>
+#include <sys/mman.h>
+#include <unistd.h>
 
 #include <algorithm>
 #include <cctype>
@@ -55,33 +57,39 @@ constexpr const char* kTxnPlainColumns =
     "link_id, voids_id, ref, row_hash, note, currency, rate, to_currency";
 
 // Read through the raw statement: the ledger's every row passes here on
-// each report, and views of the row's text spare a copy of each column.
+// each report. Each column is fetched once (Statement::value), and its text
+// is parsed in place, without a std::string in between.
 Transaction read_txn(const Statement& st) {
   auto text = [&](int c) -> std::optional<std::string> {
-    if (st.null(c)) return std::nullopt;
-    return std::string(st.text(c));
+    const auto v = st.value(c);
+    if (v.null()) return std::nullopt;
+    return std::string(v.text());
   };
   auto decimal = [&](int c) -> std::optional<Decimal> {
-    if (st.null(c)) return std::nullopt;
-    return Decimal::parse(st.text(c));
+    const auto v = st.value(c);
+    if (v.null()) return std::nullopt;
+    return Decimal::parse(v.text());
   };
   auto id = [&](int c) -> std::optional<std::int64_t> {
-    if (st.null(c)) return std::nullopt;
-    return st.integer(c);
+    const auto v = st.value(c);
+    if (v.null()) return std::nullopt;
+    return v.integer();
   };
   Transaction t;
-  t.id = st.integer(0);
-  t.account_id = st.integer(1);
-  t.date = Date::parse(st.text(2));
-  const std::string_view kind = st.text(3);
+  t.id = st.value(0).integer();
+  t.account_id = st.value(1).integer();
+  t.date = Date::parse(st.value(2).text());
+  const std::string_view kind = st.value(3).text();
   t.kind = kind == "void" ? TxnKind::void_entry : parse_txn_kind(kind);
   t.security_id = id(4);
   t.quantity = decimal(5);
   t.price = decimal(6);
   t.amount = decimal(7);
-  t.fee = Decimal::parse(st.text(8));
-  if (!st.null(9)) t.acquired = Date::parse(st.text(9));
-  if (!st.null(10) && !st.text(10).empty()) t.lots = parse_lot_picks(st.text(10));
+  t.fee = Decimal::parse(st.value(8).text());
+  if (const auto acquired = st.value(9); !acquired.null())
+    t.acquired = Date::parse(acquired.text());
+  if (const auto lots = st.value(10); !lots.null() && !lots.text().empty())
+    t.lots = parse_lot_picks(lots.text());
   t.link_id = id(11);
   t.voids_id = id(12);
   t.ref = text(13);
@@ -91,6 +99,26 @@ Transaction read_txn(const Statement& st) {
   t.rate = decimal(17);
   t.to_currency = text(18);
   return t;
+}
+
+// Maps the pages of a block that is about to be written whole in one call,
+// instead of taking a page fault for each 4 KiB page as the rows arrive: a
+// Transaction is some 600 bytes, so 20,000 rows would fault about 3,000
+// times, each costing more than reading a row. Huge pages are asked for
+// first, where the kernel gives them on request (transparent huge pages in
+// "madvise" mode), so that the block takes a few large pages instead. Advice
+// only: a kernel that refuses either (MADV_POPULATE_WRITE needs Linux 5.14)
+// leaves the pages to come one fault at a time, as before.
+void populate(const void* data, std::size_t bytes) {
+  const auto page = static_cast<std::uintptr_t>(sysconf(_SC_PAGESIZE));
+  if (page == 0 || (page & (page - 1)) != 0) return;
+  const auto start = reinterpret_cast<std::uintptr_t>(data);
+  const std::uintptr_t first = (start + page - 1) & ~(page - 1);
+  const std::uintptr_t end = (start + bytes) & ~(page - 1);
+  if (end <= first) return;
+  void* const block = reinterpret_cast<void*>(first);
+  madvise(block, end - first, MADV_HUGEPAGE);
+  madvise(block, end - first, MADV_POPULATE_WRITE);
 }
 
 bool is_unique_violation(const SQLite::Exception& e) {
@@ -356,6 +384,7 @@ std::vector<Transaction> list_transactions(Database& db) {
   Statement count(db.sql().getHandle(), "SELECT count(*) FROM txn");
   if (count.next()) out.reserve(static_cast<std::size_t>(count.integer(0)));
   count.reset();
+  populate(out.data(), out.capacity() * sizeof(Transaction));
   // The few corrections first, so that the rows can be read in one pass over
   // the table in id order: walking the (date, id) index instead costs a
   // lookup of the table row, and one in correction, for every row.

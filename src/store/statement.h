@@ -9,6 +9,11 @@
 //  - next() steps to the next row (false at the end, and the statement is
 //    then reset); the column accessors read the current row, and the views
 //    they return stay valid until the next step or reset.
+//  - value(col) is the current row's column read once: its null test, text
+//    and integer then cost no further call into the statement (each
+//    sqlite3_column_* call costs about as much as decoding a short value).
+//    Like every column accessor, it belongs to the connection's one thread
+//    (the ledger is opened without SQLite's mutexes).
 //  - A failure of SQLite throws through the ledger's one error policy
 //    (store/sqlite_error.h): a LedgerError saying in words what happened.
 //  - Not copyable; it borrows the connection, which must outlive it.
@@ -88,6 +93,24 @@ class Statement {
   }
   std::int64_t integer(int col) const { return sqlite3_column_int64(st_, col); }
   bool null(int col) const { return sqlite3_column_type(st_, col) == SQLITE_NULL; }
+
+  // One column of the current row; valid until the next step or reset.
+  class Value {
+   public:
+    explicit Value(sqlite3_value* v) : v_(v) {}
+    bool null() const { return sqlite3_value_type(v_) == SQLITE_NULL; }
+    // Empty for NULL.
+    std::string_view text() const {
+      const auto* p = reinterpret_cast<const char*>(sqlite3_value_text(v_));
+      return p ? std::string_view(p, static_cast<std::size_t>(sqlite3_value_bytes(v_)))
+               : std::string_view{};
+    }
+    std::int64_t integer() const { return sqlite3_value_int64(v_); }
+
+   private:
+    sqlite3_value* v_;
+  };
+  Value value(int col) const { return Value(sqlite3_column_value(st_, col)); }
 
  private:
   sqlite3* db_;

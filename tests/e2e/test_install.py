@@ -1,13 +1,15 @@
 """keel installs and packages like a Debian tool, and the installed keel needs nothing from the
 folders it was built in.
 
-- `cmake --install` into a scratch prefix puts exactly the binary, the gzipped manual page, the
-  bash and zsh completions and the copyright file there.
+- `cmake --install` into a scratch prefix puts exactly the binary, its OFX module, the gzipped
+  manual page, the bash and zsh completions and the copyright file there.
 - The installed binary holds no path of the source or build folder (`strings`), and runs from a
   copy of the prefix in another scratch folder, with an environment that names nothing of the
   tree, inside a mount namespace where tmpfs mounts hide the source and build folders (unshare
   from util-linux; where the kernel refuses a namespace the run goes on without it and says so).
-  There it runs `keel demo`, `keel --help` and `keel --version`.
+  There it runs `keel demo`, `keel --help` and `keel --version`, and imports an OFX statement
+  through the module it finds relative to itself; a copy of the binary without the module
+  refuses the OFX file, saying where it looked, and books nothing.
 - `man -l` formats the installed page without a warning and shows every section; the installed
   completions complete.
 - `cpack -G DEB` builds a .deb whose control fields (package, version, dependencies found by
@@ -22,6 +24,7 @@ import gzip
 import os
 import re
 import shutil
+import sqlite3
 import subprocess
 import sys
 import tempfile
@@ -44,6 +47,7 @@ check(not scratch.startswith(SOURCE_DIR + os.sep) and not scratch.startswith(BUI
 
 INSTALLED = {
     "bin/keel",
+    "lib/keel/keel-ofx.so",
     "share/man/man1/keel.1.gz",
     "share/bash-completion/completions/keel",
     "share/doc/keel/copyright",
@@ -68,12 +72,13 @@ equal(files_under(prefix), INSTALLED | {"share/zsh/site-functions/_keel"},
 # --- no path of the tree inside the binary ---
 # (AddressSanitizer writes each source file's name into the binary for its reports, so a
 # sanitizer build is exempt; the runs below, with the tree hidden, hold for it too.)
-strings = run(["strings", "-a", os.path.join(prefix, "bin", "keel")]).stdout
-if os.environ.get("KEEL_SANITIZED") == "1":
-    print("note: sanitizer build; the binary names its source files for AddressSanitizer")
-else:
-    for tree in (SOURCE_DIR, BUILD_DIR):
-        check(tree not in strings, f"the installed binary names {tree}")
+for installed in ("bin/keel", "lib/keel/keel-ofx.so"):
+    strings = run(["strings", "-a", os.path.join(prefix, installed)]).stdout
+    if os.environ.get("KEEL_SANITIZED") == "1":
+        print(f"note: sanitizer build; {installed} names its source files for AddressSanitizer")
+    else:
+        for tree in (SOURCE_DIR, BUILD_DIR):
+            check(tree not in strings, f"the installed {installed} names {tree}")
 
 
 # --- run where the tree cannot be reached ---
@@ -116,6 +121,30 @@ def check_demo(keel, where, path="/usr/bin:/bin"):
     return out
 
 
+# An invented statement (examples/import), copied out of the source folder that the runs hide.
+statement = os.path.join(scratch, "broker-statement.ofx")
+shutil.copyfile(os.path.join(SOURCE_DIR, "examples", "import", "broker-statement.ofx"), statement)
+
+
+def ofx_import(keel, where):
+    """Books the statement into a fresh ledger with `keel`; (code, stdout, stderr) of the import."""
+    ledger = os.path.join(scratch, where, "ledger.db")
+    os.makedirs(os.path.dirname(ledger))
+    for args in (["init", "--currency", "EUR"], ["account", "add", "Brokerage"],
+                 ["security", "add", "QRX", "--name", "Quarry Rex", "--kind", "stock"],
+                 ["security", "add", "VLM", "--name", "Vellum Mills", "--kind", "stock"]):
+        code, _, err = hidden_run(keel, "--db", ledger, *args)
+        equal((code, err), (0, ""), f"{where}: keel {' '.join(args)}")
+    return hidden_run(keel, "--db", ledger, "import", "transactions", statement, "--account",
+                      "Brokerage")
+
+
+def check_ofx_import(keel, where):
+    code, out, err = ofx_import(keel, where)
+    equal((code, err), (0, ""), f"{where}: OFX import through the installed module")
+    check("6 rows read; added 7, 0 already booked" in out, f"{where}: {out}")
+
+
 elsewhere = os.path.join(scratch, "elsewhere", "keel")
 shutil.copytree(prefix, elsewhere, symlinks=True)
 installed_keel = os.path.join(elsewhere, "bin", "keel")
@@ -127,6 +156,19 @@ equal((code, err), (0, ""), "keel --help")
 check(out.startswith("keel: an exact ledger of your own accounts"), out[:200])
 check(re.search(r"^  demo\s", out, re.M), "keel --help lists the commands")
 equal(hidden_run(installed_keel, "--version")[:2], (0, "keel 0.1.0\n"), "keel --version")
+check_ofx_import(installed_keel, "ofx-installed")
+lonely_keel = os.path.join(scratch, "lonely", "bin", "keel")
+os.makedirs(os.path.dirname(lonely_keel))
+shutil.copy2(installed_keel, lonely_keel)
+code, out, err = ofx_import(lonely_keel, "ofx-lonely")
+equal((code, out, err), (1, "", f"keel: error: {statement}: reading OFX needs keel's OFX module, "
+                                 f"keel-ofx.so, found neither in {scratch}/lonely/lib/keel nor in "
+                                 f"{scratch}/lonely/bin; install keel with it, or import the "
+                                 "statement as CSV\n"),
+      "a keel without its OFX module refuses the file, saying where it looked")
+con = sqlite3.connect(os.path.join(scratch, "ofx-lonely", "ledger.db"))
+equal(con.execute("SELECT count(*) FROM txn").fetchone()[0], 0, "the refused import books nothing")
+con.close()
 
 # --- the manual page, as man shows it ---
 page = os.path.join(prefix, "share", "man", "man1", "keel.1.gz")
@@ -175,9 +217,10 @@ equal(field("Section"), "utils", "Section")
 check(re.fullmatch(r"[^<>]+ <[^<>@ ]+@[^<>@ ]+>", field("Maintainer")), field("Maintainer"))
 depends = {re.sub(r"\s*\(.*\)", "", d.strip()) for d in field("Depends").split(",")}
 check({"libc6", "libfmt9", "libsqlite3-0", "libstdc++6", "libtomlplusplus3",
-       "libxlsxwriter4"} <= depends, f"Depends names the libraries keel links: {depends}")
+       "libxlsxwriter4", "libofx7"} <= depends, f"Depends names the libraries keel links: {depends}")
 # ... and nothing else: every package named owns a library the binary loads (ldd, dpkg -S).
-loaded = re.findall(r"=> (/\S+)", run(["ldd", os.path.join(prefix, "bin", "keel")]).stdout)
+loaded = [lib for installed in ("bin/keel", "lib/keel/keel-ofx.so") for lib in
+          re.findall(r"=> (/\S+)", run(["ldd", os.path.join(prefix, installed)]).stdout)]
 owners = set()
 for lib in loaded:
     found = run(["dpkg", "-S", os.path.realpath(lib)])
@@ -207,8 +250,11 @@ check(copyright_text.startswith(
 check(re.search(r"^Files: \*\nCopyright: .+\nLicense: .+", copyright_text, re.M),
       "the copyright file covers every file")
 deb_keel = os.path.join(root, "usr", "bin", "keel")
-check(".symtab" not in run(["readelf", "-S", deb_keel]).stdout, "the packaged binary is stripped")
+for packed in ("bin/keel", "lib/keel/keel-ofx.so"):
+    check(".symtab" not in run(["readelf", "-S", os.path.join(root, "usr", packed)]).stdout,
+          f"the packaged {packed} is stripped")
 check_demo(deb_keel, "demo-deb", path="/nonexistent")  # no Chromium: the HTML only
+check_ofx_import(deb_keel, "ofx-deb")
 
 size = os.path.getsize(deb)
 print(f"install: prefix and .deb check out; binary {os.path.getsize(installed_keel)} bytes, "
