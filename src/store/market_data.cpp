@@ -10,6 +10,7 @@
 #include "core/error.h"
 #include "core/text.h"
 #include "store/ledger_store.h"
+#include "store/price_buffer.h"
 #include "store/sqlite_error.h"
 #include "store/statement.h"
 
@@ -30,6 +31,10 @@ std::string describe(const Security& s) {
                      s.sector ? "," + *s.sector : std::string());
 }
 
+// Page caches (KiB when negative). SQLite's default is 2 MiB.
+constexpr const char* kBulkCache = "PRAGMA cache_size = -65536";
+constexpr const char* kPriceCache = "PRAGMA cache_size = -8192";
+
 }  // namespace
 
 // ---------------------------------------------------------------- writing
@@ -41,25 +46,15 @@ struct MarketWriter::Impl {
   std::unordered_map<std::string, std::size_t> by_symbol;
   std::vector<std::int64_t> ids;
   std::vector<std::array<Range, kKinds>> ranges;
-  std::string key;  // reused lookup key
+  std::string key;                // reused lookup key
+  std::size_t last_security = 0;  // the handle security() gave last
   std::vector<std::string> securities_seen;
   std::vector<std::string> symbols;
 
   // Buffered prices, see MarketWriter::price().
-  struct Pending {
-    std::uint64_t key;  // sec << 32 | YYYYMMDD: orders as (sec, date) does
-    std::uint32_t sec;
-    std::uint32_t close_len;
-    std::uint64_t line;
-    std::uint64_t close_off;
-    std::array<char, 10> date;
-  };
-  static constexpr std::size_t kBatch = 1 << 18;
+  std::size_t buffer_bytes = 0;  // write the buffered prices when they hold this much
   static constexpr std::size_t kBlock = 256;
-  std::vector<Pending> pending;
-  std::vector<std::uint32_t> order;    // of `pending`, in key order
-  std::vector<std::size_t> group_end;  // per security, into `order`
-  std::string arena;                   // closes, each followed by a NUL
+  PriceBuffer prices{0};
   PriceProblem problem;
   Counts counts;
   std::string existing;
@@ -73,11 +68,15 @@ struct MarketWriter::Impl {
   Statement pack_drop;
   std::vector<char> pack_dropped;  // per security: its pack is gone in this transaction
 
-  Impl(Database& d, bool r)
+  Impl(Database& d, bool r, std::size_t buffer)
       : db(d),
         h(d.sql().getHandle()),
         replace(r),
-        range{{h, "SELECT min(date), max(date) FROM price WHERE security_id = ?"},
+        // min() and max() apart: SQLite reads just one end of the key for a
+        // lone min() or max(), but every row of the security for both at once.
+        range{{h,
+               "SELECT (SELECT min(date) FROM price WHERE security_id = ?1), "
+               "(SELECT max(date) FROM price WHERE security_id = ?1)"},
               {h, "SELECT min(date), max(date) FROM metric WHERE security_id = ?"},
               {h, "SELECT min(ex_date), max(ex_date) FROM distribution WHERE security_id = ?"},
               {h, "SELECT min(date), max(date) FROM split WHERE security_id = ?"}},
@@ -111,9 +110,10 @@ struct MarketWriter::Impl {
                      "VALUES (?, ?, ?, ?) ON CONFLICT DO NOTHING"),
         split_get(h, "SELECT ratio FROM split WHERE security_id = ? AND date = ?"),
         pack_drop(h, "DELETE FROM close_pack WHERE security_id = ?") {
-    // Larger page cache for bulk work (64 MiB; SQLite's default is 2 MiB).
-    sqlite3_exec(h, "PRAGMA cache_size = -65536", nullptr, nullptr, nullptr);
-    SQLite::Statement st(db.sql(), "SELECT id, symbol FROM security");
+    // Larger page cache for bulk work written in file order (metrics and
+    // the like); prices set their own, see CacheForPrices.
+    sqlite3_exec(h, kBulkCache, nullptr, nullptr, nullptr);
+    SQLite::Statement st(db.sql(), "SELECT id, symbol FROM security ORDER BY id");
     while (st.executeStep()) {
       by_symbol.emplace(st.getColumn(1).getString(), ids.size());
       symbols.push_back(st.getColumn(1).getString());
@@ -121,6 +121,8 @@ struct MarketWriter::Impl {
     }
     ranges.resize(ids.size());
     pack_dropped.assign(ids.size(), 0);
+    prices = PriceBuffer(ids.size());
+    buffer_bytes = buffer;
   }
 
   static std::string block_insert_sql(std::size_t rows) {
@@ -187,8 +189,8 @@ ForeignKeyPause::~ForeignKeyPause() {
   }
 }
 
-MarketWriter::MarketWriter(Database& db, bool replace)
-    : impl_(std::make_unique<Impl>(db, replace)) {}
+MarketWriter::MarketWriter(Database& db, bool replace, std::size_t price_buffer_bytes)
+    : impl_(std::make_unique<Impl>(db, replace, price_buffer_bytes)) {}
 
 MarketWriter::~MarketWriter() {
   if (impl_) sqlite3_exec(impl_->h, "DELETE FROM temp.intake_seen", nullptr, nullptr, nullptr);
@@ -196,9 +198,15 @@ MarketWriter::~MarketWriter() {
 
 std::size_t MarketWriter::security(std::string_view symbol) {
   auto& m = *impl_;
+  // Files list one security's rows together, or every security each day in
+  // the same order: the last row's security, or the one after it, is
+  // usually this one.
+  for (const std::size_t guess : {m.last_security, m.last_security + 1})
+    if (guess < m.symbols.size() && m.symbols[guess] == symbol) return m.last_security = guess;
   m.key.assign(symbol);
   const auto it = m.by_symbol.find(m.key);
-  return it == m.by_symbol.end() ? kUnknown : it->second;
+  if (it == m.by_symbol.end()) return kUnknown;
+  return m.last_security = it->second;
 }
 
 void MarketWriter::on_price_problem(PriceProblem fn) {
@@ -212,21 +220,8 @@ const std::string& MarketWriter::symbol(std::size_t sec) const {
 void MarketWriter::price(std::size_t sec, std::string_view date, std::string_view close,
                          std::uint64_t line) {
   auto& m = *impl_;
-  // `date` is ISO YYYY-MM-DD here, so its digits read as YYYYMMDD.
-  std::uint64_t ymd = 0;
-  for (const char c : date)
-    if (c != '-') ymd = ymd * 10 + static_cast<std::uint64_t>(c - '0');
-  Impl::Pending p{static_cast<std::uint64_t>(sec) << 32 | ymd,
-                  static_cast<std::uint32_t>(sec),
-                  static_cast<std::uint32_t>(close.size()),
-                  line,
-                  m.arena.size(),
-                  {}};
-  std::copy_n(date.data(), std::min<std::size_t>(date.size(), 10), p.date.begin());
-  m.arena.append(close);
-  m.arena.push_back('\0');  // see Statement::bind_terminated()
-  m.pending.push_back(p);
-  if (m.pending.size() >= Impl::kBatch) m.flush_prices();
+  m.prices.add(sec, date, close, line);
+  if (m.prices.bytes() >= m.buffer_bytes) m.flush_prices();
 }
 
 MarketWriter::Counts MarketWriter::finish_prices() {
@@ -257,40 +252,36 @@ class TriggersOff {
   sqlite3* h_;
 };
 
+// Prices go in key order, so the table changes at one place at a time and
+// a small page cache serves them as well as a large one; the writer's bulk
+// cache would only fill with pages waiting for the commit. Set while it
+// lives, the bulk cache again after.
+class CacheForPrices {
+ public:
+  explicit CacheForPrices(sqlite3* h) : h_(h) {
+    sqlite3_exec(h_, kPriceCache, nullptr, nullptr, nullptr);
+  }
+  ~CacheForPrices() { sqlite3_exec(h_, kBulkCache, nullptr, nullptr, nullptr); }
+  CacheForPrices(const CacheForPrices&) = delete;
+  CacheForPrices& operator=(const CacheForPrices&) = delete;
+
+ private:
+  sqlite3* h_;
+};
+
 }  // namespace
 
 void MarketWriter::Impl::flush_prices() {
-  if (pending.empty()) return;
-  for (const Pending& p : pending)
-    if (!pack_dropped[p.sec]) {
-      pack_drop.bind(1, ids[p.sec]).run();
-      pack_dropped[p.sec] = 1;
+  if (prices.empty()) return;
+  for (std::size_t sec = 0; sec < ids.size(); ++sec)
+    if (prices.rows(sec) > 0 && !pack_dropped[sec]) {
+      pack_drop.bind(1, ids[sec]).run();
+      pack_dropped[sec] = 1;
     }
   const TriggersOff off(h);
-  // Order the rows by (security, day, line). A stable counting sort groups
-  // them by security keeping file order, which is line order; a group is
-  // then sorted only where the file did not already list it by day.
-  const auto before = [this](std::uint32_t a, std::uint32_t b) {
-    const Pending& x = pending[a];
-    const Pending& y = pending[b];
-    return x.key != y.key ? x.key < y.key : x.line < y.line;
-  };
-  group_end.assign(ids.size() + 1, 0);
-  for (const Pending& p : pending) ++group_end[p.sec + 1];
-  for (std::size_t g = 1; g < group_end.size(); ++g) group_end[g] += group_end[g - 1];
-  order.resize(pending.size());
-  for (std::uint32_t i = 0; i < pending.size(); ++i) order[group_end[pending[i].sec]++] = i;
-  for (std::size_t g = 0, begin = 0; g < ids.size(); begin = group_end[g++]) {
-    const auto first = order.begin() + static_cast<std::ptrdiff_t>(begin);
-    const auto last = order.begin() + static_cast<std::ptrdiff_t>(group_end[g]);
-    if (!std::is_sorted(first, last, before)) std::sort(first, last, before);
-  }
-  auto date_of = [](const Pending& p) { return std::string_view(p.date.data(), p.date.size()); };
-  auto close_of = [&](const Pending& p) {
-    return std::string_view(arena.data() + p.close_off, p.close_len);
-  };
-  auto one = [&](const Pending& p) {
-    const Upsert u = upsert_price(p.sec, date_of(p), close_of(p));
+  const CacheForPrices cache(h);
+  auto one = [&](std::size_t sec, const BufferedPrice& p) {
+    const Upsert u = upsert_price(sec, p.day(), p.close());
     if (u == Upsert::added)
       ++counts.added;
     else if (u == Upsert::unchanged)
@@ -298,21 +289,22 @@ void MarketWriter::Impl::flush_prices() {
     else if (u == Upsert::replaced)
       ++counts.replaced;
     else if (problem)
-      problem(p.line, u, p.sec, date_of(p), existing);
+      problem(p.line, u, sec, p.day(), existing);
   };
   // Rows outside the ledger's existing range for their security cannot meet
   // a stored row; they go in blocks of kBlock through one multi-row INSERT.
   // A plain INSERT that hits a key undoes the whole statement, and then the
   // block is redone row by row to find the duplicate.
   std::size_t block_rows = 0;
-  const Pending* block[kBlock];
+  std::array<BufferedPrice, kBlock> block;
+  std::array<std::size_t, kBlock> block_sec;
   auto run_block = [&] {
     if (block_rows == kBlock) {
       for (std::size_t i = 0; i < kBlock; ++i) {
-        price_block.bind(static_cast<int>(3 * i + 1), ids[block[i]->sec]);
-        price_block.bind(static_cast<int>(3 * i + 2), date_of(*block[i]));
-        price_block.bind_terminated(static_cast<int>(3 * i + 3),
-                                    arena.data() + block[i]->close_off);
+        const int at = static_cast<int>(3 * i);
+        price_block.bind(at + 1, ids[block_sec[i]]);
+        price_block.bind(at + 2, block[i].day());
+        price_block.bind_terminated(at + 3, block[i].close_text());
       }
       if (price_block.try_run()) {
         counts.added += kBlock;
@@ -320,25 +312,33 @@ void MarketWriter::Impl::flush_prices() {
         return;
       }
     }
-    for (std::size_t i = 0; i < block_rows; ++i) one(*block[i]);
+    for (std::size_t i = 0; i < block_rows; ++i) one(block_sec[i], block[i]);
     block_rows = 0;
   };
-  const Pending* prev = nullptr;
-  for (const std::uint32_t i : order) {
-    const Pending& p = pending[i];
-    const bool repeat = prev && prev->key == p.key;
-    prev = &p;
-    if (repeat || range_of(kPrice, p.sec).covers(date_of(p))) {
-      run_block();
-      one(p);  // a repeat inside the batch conflicts with its predecessor
-      continue;
+  // In key order, security by security (handles are in id order), so that
+  // where the ledger holds nothing later the table only grows at its end.
+  BufferedPrice p;
+  for (std::size_t sec = 0; sec < ids.size(); ++sec) {
+    if (prices.rows(sec) == 0) continue;
+    auto rows = prices.read(sec);
+    bool first = true;
+    std::uint32_t prev = 0;
+    while (rows.next(p)) {
+      const bool repeat = !first && p.ymd == prev;
+      first = false;
+      prev = p.ymd;
+      if (repeat || range_of(kPrice, sec).covers(p.day())) {
+        run_block();
+        one(sec, p);  // a repeat conflicts with its predecessor
+        continue;
+      }
+      block[block_rows] = p;
+      block_sec[block_rows++] = sec;
+      if (block_rows == kBlock) run_block();
     }
-    block[block_rows++] = &p;
-    if (block_rows == kBlock) run_block();
   }
   run_block();
-  pending.clear();
-  arena.clear();
+  prices.clear();
 }
 
 Upsert MarketWriter::Impl::upsert_price(std::size_t sec, std::string_view date,
@@ -436,6 +436,8 @@ Upsert MarketWriter::security_row(const Security& s, std::string& existing) {
     m.symbols.push_back(s.symbol);
     m.ids.push_back(id);
     m.ranges.emplace_back();
+    m.pack_dropped.push_back(0);
+    m.prices.add_security();
     return Upsert::added;
   }
   if (describe(*old) == describe(s)) return Upsert::unchanged;

@@ -11,9 +11,10 @@
 //    says what happened to one row: added, unchanged (identical row already
 //    there), replaced (different value, replace mode), conflict (different
 //    value, `existing` says what is stored) or duplicate (the same key came
-//    earlier through this writer). Memory stays flat in the number of rows:
-//    keys are tracked in SQLite, and only where the ledger already held rows
-//    in the same date range for that security.
+//    earlier through this writer). Memory stays bounded in the number of
+//    rows: prices are held compactly (store/price_buffer.h) up to a bound,
+//    and other keys are tracked in SQLite, only where the ledger already held
+//    rows in the same date range for that security.
 #pragma once
 
 #include <cstdint>
@@ -51,7 +52,10 @@ class ForeignKeyPause {
 class MarketWriter {
  public:
   // The caller holds a WriteTransaction on `db` for the writer's lifetime.
-  MarketWriter(Database& db, bool replace);
+  // Buffered prices are written whenever they hold `price_buffer_bytes`
+  // (64 MiB: about ten million daily closes) and at finish_prices().
+  static constexpr std::size_t kPriceBufferBytes = std::size_t{64} << 20;
+  MarketWriter(Database& db, bool replace, std::size_t price_buffer_bytes = kPriceBufferBytes);
   ~MarketWriter();
   MarketWriter(const MarketWriter&) = delete;
   MarketWriter& operator=(const MarketWriter&) = delete;
@@ -63,10 +67,11 @@ class MarketWriter {
   // Text arguments are canonical (ISO dates, Decimal::str() numbers).
   //
   // Prices are the bulk of most imports: they are buffered and written in
-  // batches (of bounded size) sorted by key, which keeps the table's pages
-  // hot however the file is ordered. Outcomes other than added/unchanged/
-  // replaced reach `on_problem` with the row's line, possibly later than the
-  // call; finish() writes what is buffered.
+  // key order (security id, then day), so that where the ledger holds no
+  // later closes the table only grows at its end, however the file is
+  // ordered. Outcomes other than added/unchanged/replaced reach `on_problem`
+  // with the row's line, possibly later than the call; finish_prices()
+  // writes what is buffered.
   using PriceProblem = std::function<void(std::uint64_t line, Upsert outcome, std::size_t sec,
                                           std::string_view date, std::string_view existing)>;
   void on_price_problem(PriceProblem fn);

@@ -6,7 +6,8 @@
 #
 #   tests/bench/import_bench.sh [KEEL_BINARY] [WORK_DIR]
 #   BENCH_SECURITIES=1916 BENCH_YEARS=10 (5.0 M rows) set the size;
-#   BENCH_ROUNDS=3 the rounds.
+#   BENCH_ROUNDS=3 the rounds. KEEL_BASELINE=/path/to/another/keel times that
+#   binary too, in the same rounds (before and after a change in one run).
 #
 # Build keel optimized first (-DCMAKE_BUILD_TYPE=Release). Needs python3,
 # sqlite3 and GNU time (/usr/bin/time; Debian package 'time').
@@ -38,7 +39,15 @@ rm -f "$work"/base.db*
 "$keel" --db "$work/base.db" init > /dev/null
 "$keel" --db "$work/base.db" import securities "$work/securities.csv" > /dev/null
 sync
+set -- --cmd "keel import prices" "rm -f $work/keel.db*; cp $work/base.db $work/keel.db; $keel --db $work/keel.db import prices $work/prices.csv --quiet"
+if [ -n "${KEEL_BASELINE:-}" ]; then
+  set -- "$@" --cmd "baseline keel import prices" "rm -f $work/baseline.db*; cp $work/base.db $work/baseline.db; $KEEL_BASELINE --db $work/baseline.db import prices $work/prices.csv --quiet"
+fi
 /usr/bin/python3 "$here/interleave.py" --pairs "$rounds" \
   --ref "sqlite3 .import, file db" "rm -f $work/plain.db*; /usr/bin/sqlite3 $work/plain.db 'CREATE TABLE price (date TEXT, symbol TEXT, close TEXT)' '.mode csv' '.import --skip 1 $work/prices.csv price'" \
-  --cmd "keel import prices" "rm -f $work/keel.db*; cp $work/base.db $work/keel.db; $keel --db $work/keel.db import prices $work/prices.csv --quiet"
+  "$@"
 echo "rows stored: keel $(/usr/bin/sqlite3 "$work/keel.db" 'SELECT count(*) FROM price'), sqlite3 $(/usr/bin/sqlite3 "$work/plain.db" 'SELECT count(*) FROM price')"
+if [ -n "${KEEL_BASELINE:-}" ]; then
+  digest() { /usr/bin/sqlite3 "$1" 'SELECT * FROM price ORDER BY 1, 2' | md5sum | cut -d' ' -f1; }
+  echo "stored rows' md5: keel $(digest "$work/keel.db"), baseline $(digest "$work/baseline.db")"
+fi

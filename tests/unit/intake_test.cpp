@@ -2,6 +2,10 @@
 // point-in-time view of metrics.
 #include <doctest/doctest.h>
 
+#include <string>
+#include <tuple>
+#include <vector>
+
 #include "core/error.h"
 #include "io/errors.h"
 #include "io/market_intake.h"
@@ -300,4 +304,53 @@ TEST_CASE("a mapping made for another kind of import is refused") {
   CHECK_THROWS_WITH_AS(l.import("x.csv", MarketKind::metrics, "date\n", o),
                        doctest::Contains("this mapping is for importing prices, not metrics"),
                        keel::InputError);
+}
+
+namespace {
+
+// Closes through MarketWriter, written whenever `buffer_bytes` are held;
+// gives the problems reported, as "line: outcome".
+std::vector<std::string> write_closes(
+    Database& db, std::size_t buffer_bytes,
+    const std::vector<std::tuple<std::string, std::string, std::string>>& rows) {
+  std::vector<std::string> problems;
+  keel::store::WriteTransaction tx(db);
+  keel::store::MarketWriter w(db, false, buffer_bytes);
+  w.on_price_problem([&](std::uint64_t line, keel::store::Upsert u, std::size_t, std::string_view,
+                         std::string_view) {
+    problems.push_back(std::to_string(line) +
+                       (u == keel::store::Upsert::duplicate ? ": duplicate" : ": conflict"));
+  });
+  std::uint64_t line = 1;
+  for (const auto& [sym, date, close] : rows) w.price(w.security(sym), date, close, ++line);
+  w.finish_prices();
+  tx.commit();
+  return problems;
+}
+
+}  // namespace
+
+TEST_CASE("prices written a row at a time store what one write of them stores") {
+  std::vector<std::tuple<std::string, std::string, std::string>> rows;
+  for (int d = 28; d >= 1; --d)
+    for (const char* sym : {"VLM", "QRX"}) {
+      const std::string date = "2024-02-" + std::string(d < 10 ? "0" : "") + std::to_string(d);
+      rows.emplace_back(sym, date, std::to_string(d) + (sym[0] == 'V' ? ".5" : ""));
+    }
+  Ledger one, many;
+  CHECK(write_closes(one.db, keel::store::MarketWriter::kPriceBufferBytes, rows).empty());
+  CHECK(write_closes(many.db, 1, rows).empty());
+  CHECK(keel::store::content_dump(many.db) == keel::store::content_dump(one.db));
+}
+
+TEST_CASE("a key repeated after the buffered prices were written is still a duplicate") {
+  Ledger l;
+  l.import("p.csv", MarketKind::prices, prices_csv("2024-01-02,QRX,1\n"));
+  const auto problems = write_closes(l.db, 1,
+                                     {{"QRX", "2024-01-05", "2"},
+                                      {"QRX", "2024-01-02", "1"},
+                                      {"QRX", "2024-01-05", "2"},
+                                      {"QRX", "2024-01-02", "1"},
+                                      {"QRX", "2024-01-02", "3"}});
+  CHECK(problems == std::vector<std::string>{"4: duplicate", "5: duplicate", "6: duplicate"});
 }
