@@ -323,6 +323,7 @@ class OrderPool {
     acct.id = 1;
     acct.name = "simulated pool";
     acct.cash = cash_;
+    acct.holdings.reserve(held_.columns.size());
     for (const int c : held_.columns)
       acct.holdings[h_.market.security_id(c)] = rules::HoldingState{unit(c), {}};
     p.accounts.push_back(std::move(acct));
@@ -333,25 +334,32 @@ class OrderPool {
         inputs_.quotes(h_.market, day, sel.targets, held(), {}, quote_notes);
     const auto plan =
         rules::orders(p, sel.targets, quotes, rule_.trading, day, rules::Explain::none);
-    const auto after = rules::apply(p, plan.orders);
+    // The orders applied as rules::apply() applies them, on the pool's own
+    // units: what is held afterwards, by column.
+    std::vector<int> touched = held_.columns;
     for (const auto& o : plan.orders) {
       rd.traded += o.value;
       rd.fees += o.fee;
-      if (!keep_trades_) continue;
-      rd.trades.push_back(Trade{o.security_id, o.side, o.quantity, o.price, o.fee});
-    }
-    cash_ = after.accounts.front().cash;
-    for (const int c : held_.columns) set(c, Decimal());
-    held_.clear();
-    std::vector<int> bought;
-    for (const auto& [id, hs] : after.accounts.front().holdings)
-      if (hs.quantity.is_positive()) {
-        const int c = h_.market.column(id);
-        bought.push_back(c);
-        set(c, hs.quantity);
+      const int c = h_.market.column(o.security_id);
+      touched.push_back(c);
+      if (o.side == rules::Side::buy) {
+        set(c, unit(c) + o.quantity);
+        cash_ -= o.value + o.fee;
+      } else {
+        if (o.quantity > unit(c))
+          throw std::logic_error(fmt::format("backtest: selling {} of security {}, holding {}",
+                                             o.quantity.str(), o.security_id, unit(c).str()));
+        set(c, unit(c) - o.quantity);
+        cash_ += o.value - o.fee;
       }
-    std::sort(bought.begin(), bought.end());
-    for (const int c : bought) held_.add(c);
+      if (keep_trades_)
+        rd.trades.push_back(Trade{o.security_id, o.side, o.quantity, o.price, o.fee});
+    }
+    held_.clear();
+    std::sort(touched.begin(), touched.end());
+    touched.erase(std::unique(touched.begin(), touched.end()), touched.end());
+    for (const int c : touched)
+      if (unit(c).is_positive()) held_.add(c);
   }
 
  private:

@@ -3,6 +3,7 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <array>
 #include <boost/multiprecision/cpp_int.hpp>
 #include <limits>
 #include <new>
@@ -90,6 +91,43 @@ Int from_int128(Wide v) {
 }
 
 constexpr long long kSmallMax = std::numeric_limits<long long>::max();
+
+// Mantissas past a machine word but below 2^127 are worked on in 128 bits:
+// the same results as the multi-precision code, without its generic work.
+constexpr Wide kWideMax = static_cast<Wide>(~static_cast<UWide>(0) >> 1);  // 2^127 - 1
+
+// 10^0 .. 10^38, every power of ten below 2^127.
+constexpr auto kWideTens = [] {
+  std::array<Wide, 39> tens{};
+  Wide p = 1;
+  for (std::size_t i = 0; i < tens.size(); ++i) {
+    tens[i] = p;
+    if (i + 1 < tens.size()) p *= 10;
+  }
+  return tens;
+}();
+
+// The value of a multi-precision `v` when its magnitude is below 2^127.
+bool wide_value(const Int& v, Wide& out) {
+  const auto& b = v.backend();
+  static_assert(sizeof(*b.limbs()) == 8, "cpp_int limbs of 64 bits");
+  if (b.size() > 2) return false;
+  UWide m = *b.limbs();
+  if (b.size() == 2) m |= static_cast<UWide>(b.limbs()[1]) << 64;
+  if (m > static_cast<UWide>(kWideMax)) return false;
+  out = b.sign() ? -static_cast<Wide>(m) : static_cast<Wide>(m);
+  return true;
+}
+
+// x * 10^shift when it stays within +-(2^127 - 1).
+bool shift_wide(Wide& x, int shift) {
+  if (shift < 0 || shift > 38) return false;
+  Wide r = 0;
+  if (__builtin_mul_overflow(x, kWideTens[static_cast<std::size_t>(shift)], &r) || r < -kWideMax)
+    return false;
+  x = r;
+  return true;
+}
 
 }  // namespace
 
@@ -192,20 +230,30 @@ Decimal Decimal::from_mantissa(auto&& value, int scale) {
   return out;
 }
 
-// a and b as 128-bit mantissas at the larger of their scales, when both are
-// small and the shifts are at most 18 digits: then each product is below
-// 2^63 * 10^18 < 2^123, and a sum or difference of two fits as well.
+// a and b as 128-bit mantissas at the larger of their scales, when both
+// mantissas and the shifted one stay within +-(2^127 - 1).
 bool Decimal::small_aligned(const Decimal& a, const Decimal& b, Wide& x, Wide& y) {
-  if (a.big_ || b.big_) return false;
-  const int scale = std::max(a.scale_, b.scale_);
-  if (scale - a.scale_ > 18 || scale - b.scale_ > 18) return false;
-  x = static_cast<Wide>(a.small_) * kPow10[scale - a.scale_];
-  y = static_cast<Wide>(b.small_) * kPow10[scale - b.scale_];
-  return true;
+  if (a.big_ ? !wide_value(a.mantissa(), x) : (x = a.small_, false)) return false;
+  if (b.big_ ? !wide_value(b.mantissa(), y) : (y = b.small_, false)) return false;
+  return a.scale_ < b.scale_ ? shift_wide(x, b.scale_ - a.scale_)
+                             : shift_wide(y, a.scale_ - b.scale_);
 }
 
 Decimal Decimal::from_wide(Wide value, int scale) {
-  if (value < -kSmallMax || value > kSmallMax) return from_mantissa(from_int128(value), scale);
+  if (value < -kSmallMax || value > kSmallMax) {
+    // Trailing zeros dropped in 128 bits; what is left is normalized.
+    while (scale > 0 && value % 10 == 0) {
+      value /= 10;
+      --scale;
+    }
+    Decimal out;
+    if (value < -kSmallMax || value > kSmallMax)
+      out.set_int(from_int128(value));
+    else
+      out.small_ = static_cast<long long>(value);
+    out.scale_ = scale;
+    return out;
+  }
   Decimal out;
   out.small_ = static_cast<long long>(value);
   out.scale_ = scale;
@@ -402,8 +450,13 @@ namespace {
 
 // q = x / y rounded half-to-even, for y > 0.
 Wide divide_half_even(Wide x, Wide y) {
-  Wide q = x / y;
-  const Wide r = x % y;  // same sign as x
+  constexpr Wide kWord = std::numeric_limits<long long>::max();
+  // One machine division when both fit a word (a 128-bit one is a library call).
+  const Wide q0 = x >= -kWord && x <= kWord && y <= kWord
+                      ? static_cast<long long>(x) / static_cast<long long>(y)
+                      : x / y;
+  Wide q = q0;
+  const Wide r = x - q0 * y;  // same sign as x
   const Wide twice = (r < 0 ? -r : r) * 2;
   if (twice > y || (twice == y && q % 2 != 0)) q += x < 0 ? -1 : 1;
   return q;
@@ -415,6 +468,12 @@ Decimal Decimal::rounded(int places) const {
   if (scale_ <= places) return *this;
   if (places >= 0 && scale_ - places <= 18 && !big_)
     return from_wide(divide_half_even(small_, kPow10[scale_ - places]), places);
+  // Below 2^127 and at most 37 digits dropped: twice a remainder fits too.
+  Wide w = 0;
+  if (places >= 0 && scale_ - places <= 37 &&
+      (big_ ? wide_value(mantissa(), w) : (w = small_, true)))
+    return from_wide(divide_half_even(w, kWideTens[static_cast<std::size_t>(scale_ - places)]),
+                     places);
   return from_mantissa(round_half_even(as_int(), scale_ - places), places);
 }
 
@@ -422,6 +481,10 @@ Decimal Decimal::truncated(int places) const {
   if (scale_ <= places) return *this;
   if (places >= 0 && scale_ - places <= 18 && !big_)
     return from_wide(small_ / kPow10[scale_ - places], places);
+  Wide w = 0;
+  if (places >= 0 && scale_ - places <= 38 &&
+      (big_ ? wide_value(mantissa(), w) : (w = small_, true)))
+    return from_wide(w / kWideTens[static_cast<std::size_t>(scale_ - places)], places);
   return from_mantissa(Int(as_int() / pow10(scale_ - places)), places);
 }
 
@@ -441,6 +504,20 @@ Decimal Decimal::divide(const Decimal& numerator, const Decimal& denominator, in
     Wide d = static_cast<Wide>(denominator.small_) * kPow10[numerator.scale_];
     if (d < 0) n = -n, d = -d;
     return from_wide(divide_half_even(n, d), places);
+  }
+  // In 128 bits when both scaled sides fit and the divisor is below 2^126,
+  // so that twice a remainder fits as well.
+  if (places >= 0) {
+    Wide n = 0, d = 0;
+    const bool wide =
+        (numerator.big_ ? wide_value(numerator.mantissa(), n) : (n = numerator.small_, true)) &&
+        (denominator.big_ ? wide_value(denominator.mantissa(), d)
+                          : (d = denominator.small_, true)) &&
+        shift_wide(n, denominator.scale_ + places) && shift_wide(d, numerator.scale_);
+    if (wide) {
+      if (d < 0) n = -n, d = -d;
+      if (d <= kWideMax / 2) return from_wide(divide_half_even(n, d), places);
+    }
   }
   // (n / 10^a) / (d / 10^b) at `places` digits = n * 10^(b + places) / (d * 10^a).
   const Int n = numerator.as_int() * pow10(denominator.scale_ + places);
@@ -477,33 +554,40 @@ Decimal Decimal::operator-() const {
   return from_mantissa(Int(-mantissa()), scale_);
 }
 
-Decimal operator+(const Decimal& a, const Decimal& b) {
+Decimal Decimal::plus(const Decimal& a, const Decimal& b) {
   const int scale = std::max(a.scale_, b.scale_);
   Wide x = 0, y = 0;
-  if (Decimal::small_aligned(a, b, x, y)) return Decimal::from_wide(x + y, scale);
+  Wide r = 0;
+  if (Decimal::small_aligned(a, b, x, y) && !__builtin_add_overflow(x, y, &r))
+    return Decimal::from_wide(r, scale);
   return Decimal::from_mantissa(Int(a.scaled_to(scale) + b.scaled_to(scale)), scale);
 }
 
-Decimal operator-(const Decimal& a, const Decimal& b) {
+Decimal Decimal::minus(const Decimal& a, const Decimal& b) {
   const int scale = std::max(a.scale_, b.scale_);
   Wide x = 0, y = 0;
-  if (Decimal::small_aligned(a, b, x, y)) return Decimal::from_wide(x - y, scale);
+  Wide r = 0;
+  if (Decimal::small_aligned(a, b, x, y) && !__builtin_sub_overflow(x, y, &r))
+    return Decimal::from_wide(r, scale);
   return Decimal::from_mantissa(Int(a.scaled_to(scale) - b.scaled_to(scale)), scale);
 }
 
-Decimal operator*(const Decimal& a, const Decimal& b) {
+Decimal Decimal::times(const Decimal& a, const Decimal& b) {
   if (!a.big_ && !b.big_)
     return Decimal::from_wide(static_cast<Wide>(a.small_) * b.small_, a.scale_ + b.scale_);
+  Wide x = 0, y = 0, r = 0;
+  if ((a.big_ ? wide_value(a.mantissa(), x) : (x = a.small_, true)) &&
+      (b.big_ ? wide_value(b.mantissa(), y) : (y = b.small_, true)) &&
+      !__builtin_mul_overflow(x, y, &r))
+    return Decimal::from_wide(r, a.scale_ + b.scale_);
   return Decimal::from_mantissa(Int(a.as_int() * b.as_int()), a.scale_ + b.scale_);
 }
 
-bool operator==(const Decimal& a, const Decimal& b) {
-  // Normalized values compare equal only when both parts match.
-  if (a.scale_ != b.scale_ || a.big_ != b.big_) return false;
-  return a.big_ ? a.mantissa() == b.mantissa() : a.small_ == b.small_;
+bool Decimal::equal_big(const Decimal& a, const Decimal& b) {
+  return a.mantissa() == b.mantissa();
 }
 
-std::strong_ordering operator<=>(const Decimal& a, const Decimal& b) {
+std::strong_ordering Decimal::compare(const Decimal& a, const Decimal& b) {
   Wide sx = 0, sy = 0;
   if (Decimal::small_aligned(a, b, sx, sy)) return sx <=> sy;
   const int scale = std::max(a.scale_, b.scale_);

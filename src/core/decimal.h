@@ -13,7 +13,10 @@
 //    kMaxScale.
 //  - to_double() exists only for statistics; never feed its result back into a
 //    ledger amount.
-//  - A mantissa that fits a machine word takes no arbitrary-precision work.
+//  - A mantissa that fits a machine word takes no arbitrary-precision work;
+//    +, -, * and comparisons of two such values whose result fits one too are
+//    done inline here. Mantissas below 2^127 (and results that fit there)
+//    are worked on in 128 bits. Both give what the general code gives.
 //  - Only decimal.cpp sees the mantissa's type: Boost.Multiprecision is the
 //    costliest header of the build, and every file of keel includes this one.
 #pragma once
@@ -99,17 +102,93 @@ class Decimal {
 
   Decimal operator-() const;
   Decimal abs() const { return is_negative() ? -*this : *this; }
-  friend Decimal operator+(const Decimal& a, const Decimal& b);
-  friend Decimal operator-(const Decimal& a, const Decimal& b);
-  friend Decimal operator*(const Decimal& a, const Decimal& b);
+  friend Decimal operator+(const Decimal& a, const Decimal& b) {
+    long long x = 0, y = 0, r = 0;
+    if (word_aligned(a, b, x, y) && !__builtin_add_overflow(x, y, &r) && r != kLowest)
+      return from_word(r, a.scale_ > b.scale_ ? a.scale_ : b.scale_);
+    return plus(a, b);
+  }
+  friend Decimal operator-(const Decimal& a, const Decimal& b) {
+    long long x = 0, y = 0, r = 0;
+    if (word_aligned(a, b, x, y) && !__builtin_sub_overflow(x, y, &r) && r != kLowest)
+      return from_word(r, a.scale_ > b.scale_ ? a.scale_ : b.scale_);
+    return minus(a, b);
+  }
+  friend Decimal operator*(const Decimal& a, const Decimal& b) {
+    long long r = 0;
+    if (!a.big_ && !b.big_ && !__builtin_mul_overflow(a.small_, b.small_, &r) && r != kLowest)
+      return from_word(r, a.scale_ + b.scale_);
+    return times(a, b);
+  }
   Decimal& operator+=(const Decimal& other) { return *this = *this + other; }
   Decimal& operator-=(const Decimal& other) { return *this = *this - other; }
   Decimal& operator*=(const Decimal& other) { return *this = *this * other; }
 
-  friend bool operator==(const Decimal& a, const Decimal& b);
-  friend std::strong_ordering operator<=>(const Decimal& a, const Decimal& b);
+  friend bool operator==(const Decimal& a, const Decimal& b) {
+    // Normalized values compare equal only when both parts match.
+    if (a.scale_ != b.scale_ || a.big_ != b.big_) return false;
+    return a.big_ ? equal_big(a, b) : a.small_ == b.small_;
+  }
+  friend std::strong_ordering operator<=>(const Decimal& a, const Decimal& b) {
+    long long x = 0, y = 0;
+    if (word_aligned(a, b, x, y)) return x <=> y;
+    return compare(a, b);
+  }
 
  private:
+  static constexpr long long kLowest = std::numeric_limits<long long>::min();
+  // 10^0 .. 10^18, every power of ten that fits a long long.
+  static constexpr long long kTens[] = {1LL,
+                                        10LL,
+                                        100LL,
+                                        1000LL,
+                                        10000LL,
+                                        100000LL,
+                                        1000000LL,
+                                        10000000LL,
+                                        100000000LL,
+                                        1000000000LL,
+                                        10000000000LL,
+                                        100000000000LL,
+                                        1000000000000LL,
+                                        10000000000000LL,
+                                        100000000000000LL,
+                                        1000000000000000LL,
+                                        10000000000000000LL,
+                                        100000000000000000LL,
+                                        1000000000000000000LL};
+  // a and b as machine-word mantissas at the larger of their scales, when
+  // both are small and the shifted one still fits a word (else false).
+  static bool word_aligned(const Decimal& a, const Decimal& b, long long& x, long long& y) {
+    if (a.big_ || b.big_) return false;
+    x = a.small_;
+    y = b.small_;
+    if (a.scale_ == b.scale_) return true;
+    if (a.scale_ < b.scale_) {
+      const int shift = b.scale_ - a.scale_;
+      return shift <= 18 && !__builtin_mul_overflow(x, kTens[shift], &x) && x != kLowest;
+    }
+    const int shift = a.scale_ - b.scale_;
+    return shift <= 18 && !__builtin_mul_overflow(y, kTens[shift], &y) && y != kLowest;
+  }
+  // mantissa x 10^-scale, normalized, for a mantissa other than kLowest.
+  static Decimal from_word(long long mantissa, int scale) {
+    Decimal out;
+    if (mantissa == 0) return out;
+    while (scale > 0 && mantissa % 10 == 0) {
+      mantissa /= 10;
+      --scale;
+    }
+    out.small_ = mantissa;
+    out.scale_ = scale;
+    return out;
+  }
+  // The general forms of the operators above.
+  static Decimal plus(const Decimal& a, const Decimal& b);
+  static Decimal minus(const Decimal& a, const Decimal& b);
+  static Decimal times(const Decimal& a, const Decimal& b);
+  static std::strong_ordering compare(const Decimal& a, const Decimal& b);
+  static bool equal_big(const Decimal& a, const Decimal& b);  // both big, same scale
   // A mantissa that fits a machine word (all but the rarest) is kept in
   // small_; only a larger one makes a cpp_int, in raw storage that
   // decimal.cpp alone constructs (deduced types, used only there; it checks

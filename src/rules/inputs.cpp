@@ -295,6 +295,7 @@ Quotes quote_names(const market::View& view, Date day, const std::vector<Target>
                    const std::set<std::int64_t>& held, const Inputs::LastTrade& last_trade,
                    std::vector<std::string>& notes, const std::optional<std::string>& into) {
   Quotes quotes;
+  quotes.reserve(targets.size() + held.size());
   auto add = [&](std::int64_t id, bool wanted) {
     if (quotes.count(id)) return;
     const Security& s = *view.security(id);

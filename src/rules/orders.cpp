@@ -8,6 +8,7 @@
 #include <set>
 #include <stdexcept>
 #include <string_view>
+#include <unordered_map>
 #include <unordered_set>
 
 #include "ledger/holdings.h"
@@ -279,6 +280,23 @@ std::vector<Order> sell_orders(const Work& x, const Decimal& units, const std::s
                                const Portfolio& portfolio, const TradingRule& trading, Date as_of,
                                SellTax* tax) {
   const HouseholdPrefs* prefs = tax ? tax->prefs : nullptr;
+  // One account holding the name, without lot detail: one order of the
+  // units, at most what it holds (the general path below, without its lists).
+  if (portfolio.accounts.size() == 1) {
+    const auto it = portfolio.accounts[0].holdings.find(x.security_id);
+    if (it != portfolio.accounts[0].holdings.end() && it->second.lots.empty()) {
+      if (!units.is_positive()) return {};
+      std::vector<Order> out;
+      out.push_back(make_order(x, portfolio, 0, Side::sell, Decimal(), reason, trading));
+      Order& o = out.back();
+      o.quantity = std::min(units, it->second.quantity);
+      o.value = o.quantity * o.price;
+      o.fee = trading.fee(o.value);
+      if (prefs && prefs->tax_keys() && !reason.empty() && !taxable(portfolio.accounts[0]))
+        o.reason += "; " + tax_words(portfolio.accounts[0]);
+      return out;
+    }
+  }
   // Lots across the pool's accounts, in the rule's order of preference.
   struct Pick {
     std::size_t account;
@@ -521,7 +539,18 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
     // unset for steps too small for that bound to hold.
     std::optional<Decimal> no_step_below;
     std::string why_none;  // empty: no cash left above the reserve
-    std::map<std::size_t, Order> by_account;
+    // Orders by account, in account order (most buys have one).
+    std::vector<std::pair<std::size_t, Order>> by_account;
+    Order* find(std::size_t a) {
+      for (auto& [k, o] : by_account)
+        if (k == a) return &o;
+      return nullptr;
+    }
+    Order& emplace(std::size_t a, Order o) {
+      auto at = std::find_if(by_account.begin(), by_account.end(),
+                             [&](const auto& e) { return e.first > a; });
+      return by_account.emplace(at, a, std::move(o))->second;
+    }
     Decimal bought() const {
       Decimal v;
       for (const auto& [a, o] : by_account) v += o.value;
@@ -592,11 +621,11 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
     const Work& x = *b.wish->work;
     const Decimal& step = b.step;
     const Decimal& price = b.price;
-    auto it = b.by_account.find(a);
-    const bool fresh = it == b.by_account.end();
+    Order* it = b.find(a);
+    const bool fresh = it == nullptr;
     const Decimal limit = std::min(budget, spendable[a]);
-    const Decimal have_q = fresh ? Decimal() : it->second.quantity;
-    const Decimal have_cost = fresh ? Decimal() : it->second.value + it->second.fee;
+    const Decimal have_q = fresh ? Decimal() : it->quantity;
+    const Decimal have_cost = fresh ? Decimal() : it->value + it->fee;
     // What the order may cost before its fixed fee. A fresh order adds no
     // zeros: its quantity and cost so far are nothing.
     const Decimal room = fresh ? limit - trading.fee_fixed : limit + have_cost - trading.fee_fixed;
@@ -625,13 +654,11 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
     }
     const Decimal spent = fresh ? value + order_fee : value + order_fee - have_cost;
     if (fresh)
-      it = b.by_account
-               .emplace(a,
-                        make_order(x, portfolio, a, Side::buy, Decimal(), b.wish->reason, trading))
-               .first;
-    it->second.quantity = fresh ? std::move(q) : have_q + q;
-    it->second.value = std::move(value);
-    it->second.fee = std::move(order_fee);
+      it =
+          &b.emplace(a, make_order(x, portfolio, a, Side::buy, Decimal(), b.wish->reason, trading));
+    it->quantity = fresh ? std::move(q) : have_q + q;
+    it->value = std::move(value);
+    it->fee = std::move(order_fee);
     spendable[a] -= spent;
     cash[a] -= spent;
     return spent;
@@ -743,17 +770,37 @@ void summarize(OrderPlan& plan, const Portfolio& portfolio, const std::vector<Wo
     traded += o.value;
   }
   plan.turnover = Decimal::divide(traded, plan.pool_value * Decimal(2), 6);
-  const Portfolio after = rules::apply(portfolio, plan.orders);
+  // The orders applied as rules::apply() applies them, without a copy of the
+  // portfolio: each account's cash, and each name's units bought less sold.
+  // A name's value after is then (units held + moved) x price: exactly the
+  // sum of its value in each account.
+  std::vector<Decimal> cash;
+  cash.reserve(portfolio.accounts.size());
+  for (const auto& acct : portfolio.accounts) cash.push_back(acct.cash);
+  std::unordered_map<std::int64_t, Decimal> moved;  // by security
+  moved.reserve(plan.orders.size());
+  for (const auto& o : plan.orders) {
+    std::size_t a = 0;
+    while (a < portfolio.accounts.size() && portfolio.accounts[a].id != o.account_id) ++a;
+    if (a == portfolio.accounts.size())
+      throw std::invalid_argument(fmt::format("rules::apply: no account {}", o.account_id));
+    Decimal& units = moved[o.security_id];
+    if (o.side == Side::buy) {
+      units += o.quantity;
+      cash[a] -= o.value + o.fee;
+    } else {
+      units -= o.quantity;
+      cash[a] += o.value - o.fee;
+    }
+  }
   const Decimal pool_after = plan.pool_value - plan.estimated_fees;
-  for (std::size_t a = 0; a < after.accounts.size(); ++a) {
-    plan.cash_after.push_back({after.accounts[a].name, after.accounts[a].cash, pool.reserve[a]});
-    plan.cash_after_total += after.accounts[a].cash;
+  for (std::size_t a = 0; a < portfolio.accounts.size(); ++a) {
+    plan.cash_after.push_back({portfolio.accounts[a].name, cash[a], pool.reserve[a]});
+    plan.cash_after_total += cash[a];
   }
   for (const auto& x : work) {
-    Decimal value;
-    for (const auto& acct : after.accounts)
-      if (auto it = acct.holdings.find(x.security_id); it != acct.holdings.end())
-        value += it->second.quantity * x.quote->price;
+    const auto m = moved.find(x.security_id);
+    const Decimal value = (m == moved.end() ? x.held : x.held + m->second) * x.quote->price;
     if (value.is_zero() && x.target_value.is_zero()) continue;
     plan.weights_after.push_back(
         {x.security_id, x.quote->symbol, value,

@@ -4,7 +4,10 @@
 
 #include <doctest/doctest.h>
 
+#include <algorithm>
+#include <cstdint>
 #include <limits>
+#include <string>
 #include <vector>
 
 #include "core/error.h"
@@ -14,6 +17,29 @@ using keel::Decimal;
 namespace {
 Decimal d(const char* text) {
   return Decimal::parse(text);
+}
+
+// Marsaglia's xorshift64 (2003): reproducible pseudo-random test values.
+struct Xorshift {
+  std::uint64_t seed;
+  std::uint64_t operator()() {
+    seed ^= seed << 13;
+    seed ^= seed >> 7;
+    seed ^= seed << 17;
+    return seed;
+  }
+};
+
+// a + b, a - b, a x b and a <=> b against the same numbers moved by `big` (or
+// multiplied by it), which takes the general (multi-precision) path.
+void check_against_moved(const Decimal& a, const Decimal& b, const Decimal& big) {
+  CAPTURE(a.str());
+  CAPTURE(b.str());
+  REQUIRE(a + b == ((a + big) + b) - big);
+  REQUIRE(a - b == ((a + big) - b) - big);
+  REQUIRE((a * b) * big == (a * big) * b);
+  REQUIRE((a <=> b) == ((a + big) <=> (b + big)));
+  REQUIRE((a == b) == ((a + big) == (b + big)));
 }
 }  // namespace
 
@@ -226,4 +252,74 @@ TEST_CASE("decimal: copies and moves keep values past the machine word") {
   many.push_back(d("1"));  // reallocation moves every element
   CHECK(many.front() == big);
   CHECK(many.back() == Decimal(1));
+}
+
+// Sums, differences, products and comparisons of two machine-word values are
+// done inline when the result fits a word, and by the general (multi-precision)
+// path otherwise. The same numbers moved by 10^30 (sums, comparisons) or
+// multiplied by it (products) take the general path; both must agree, also
+// where the word overflows, the scales differ by more than a word can shift,
+// or the result is the lowest machine integer.
+TEST_CASE("decimal: inline word arithmetic agrees with the general path") {
+  const Decimal big = d("1000000000000000000000000000000");  // 10^30
+  Xorshift next{2463534242ULL};
+  // Mantissas of every size up to a full word, scales 0 to 24.
+  auto any = [&] {
+    const int bits = static_cast<int>(next() % 64);
+    const auto m = static_cast<long long>(next() >> (64 - bits) >> 1);
+    return Decimal::scaled(next() % 2 ? m : -m, static_cast<int>(next() % 25));
+  };
+  for (int i = 0; i < 2000; ++i) {
+    const Decimal a = any(), b = any();
+    check_against_moved(a, b, big);
+  }
+  const Decimal max64 = d("9223372036854775807");  // 2^63 - 1 (from memory, as above)
+  CHECK((-max64 - Decimal(1)).str() == "-9223372036854775808");
+  CHECK((d("-4611686018427387904") * Decimal(2)).str() == "-9223372036854775808");
+  CHECK((max64 + d("0.000000000000000001")).str() == "9223372036854775807.000000000000000001");
+  CHECK((d("0.5") + d("0.5")).scale() == 0);
+  CHECK((d("1.25") * d("0.8")).str() == "1");
+}
+
+// Mantissas past a machine word but below 2^127 are worked on in 128 bits.
+// The same numbers moved by 10^45 (sums, comparisons, truncation) or
+// multiplied by it (products, quotients, rounding) take the general
+// (multi-precision) path; both must agree, up to and across 2^127.
+TEST_CASE("decimal: 128-bit arithmetic agrees with the general path") {
+  const Decimal big = Decimal::parse("1" + std::string(45, '0'));  // 10^45
+  Xorshift next{88172645463325252ULL};
+  // 1 to 39 digits, 0 to 30 of them after the point, either sign.
+  auto any = [&] {
+    std::string digits(1 + next() % 39, '0');
+    for (auto& c : digits) c = static_cast<char>('0' + next() % 10);
+    const std::size_t point = next() % std::min<std::size_t>(digits.size(), 31);
+    if (point > 0) digits.insert(digits.size() - point, ".");
+    return Decimal::parse((next() % 2 ? "-" : "") + digits);
+  };
+  for (int i = 0; i < 1000; ++i) {
+    const Decimal a = any(), b = any();
+    check_against_moved(a, b, big);
+    const int places = static_cast<int>(next() % 20);
+    CAPTURE(a.str());
+    CAPTURE(b.str());
+    CAPTURE(places);
+    REQUIRE(a.rounded(places) == Decimal::divide(a * big, big, places));
+    const Decimal shift = a.is_negative() ? -big : big;
+    REQUIRE(a.truncated(places) == (a + shift).truncated(places) - shift);
+    if (!b.is_zero())
+      REQUIRE(Decimal::divide(a, b, places) == Decimal::divide(a * big, b * big, places));
+  }
+  // 2^127 - 1, 2^127 and 2^126, and the square below, computed with Python's
+  // exact integers (python3 -c 'print(2**127)').
+  const Decimal top = d("170141183460469231731687303715884105727");
+  const Decimal over = d("170141183460469231731687303715884105728");
+  CHECK(over == d("85070591730234615865843651857942052864") * Decimal(2));
+  CHECK((top + Decimal(1)) == over);
+  CHECK((-top - Decimal(1)).str() == "-170141183460469231731687303715884105728");
+  CHECK((top - over).str() == "-1");
+  CHECK(top < over);
+  CHECK((d("13043817825332782212") * d("13043817825332782212")).str() ==
+        "170141183460469231722567801800623612944");  // just below 2^127
+  CHECK(Decimal::divide(top, d("0.5"), 0) == top * Decimal(2));
+  CHECK(d("12345678901234567890123.456789").rounded(2).str() == "12345678901234567890123.46");
 }

@@ -560,3 +560,65 @@ TEST_CASE("orders: without explanations a buy that gets nothing is skipped witho
   CHECK(quiet.skipped[0].why.empty());
   CHECK(quiet.orders.empty());
 }
+
+TEST_CASE("order steps: a sell from one account without lots is one order of at most its units") {
+  AccountState a = account(1, "Main", "0");
+  a.holdings[10] = HoldingState{Decimal(7), {}};
+  const Portfolio p{{a}};
+  const Quote q{"X", dec("12.5"), true, Decimal(1)};
+  steps::Work x;
+  x.security_id = 10;
+  x.quote = &q;
+  TradingRule g;
+  g.fee_fixed = Decimal(1);
+  g.fee_bps = Decimal(10);
+  // 4 of 7 units: 4 x 12.5 = 50, fee 1 + 0.05 = 1.05.
+  auto out = steps::sell_orders(x, Decimal(4), "trim", p, g, kAsOf);
+  REQUIRE(out.size() == 1);
+  CHECK(out[0].account == "Main");
+  CHECK(out[0].side == Side::sell);
+  CHECK(out[0].quantity == Decimal(4));
+  CHECK(out[0].value == Decimal(50));
+  CHECK(out[0].fee == dec("1.05"));
+  CHECK(out[0].reason == "trim");
+  CHECK(out[0].lots.empty());
+  // Asked for more than it holds: the 7 units held, 87.50, fee 1.0875 -> 1.09.
+  out = steps::sell_orders(x, Decimal(9), "exit", p, g, kAsOf);
+  REQUIRE(out.size() == 1);
+  CHECK(out[0].quantity == Decimal(7));
+  CHECK(out[0].fee == dec("1.09"));
+  CHECK(steps::sell_orders(x, Decimal(), "none", p, g, kAsOf).empty());
+}
+
+TEST_CASE("orders: the summary's cash and values after are those of the orders applied") {
+  AccountState a = account(1, "Taxable", "100");
+  a.holdings[10] = HoldingState{Decimal(20), {}};  // 20 x 50
+  AccountState b = account(2, "Retirement", "900");
+  b.holdings[10] = HoldingState{Decimal(4), {}};
+  b.holdings[11] = HoldingState{Decimal(10), {}};  // 10 x 30, not a target: sold
+  const Portfolio p{{a, b}};
+  TradingRule g;
+  g.fee_fixed = Decimal(1);
+  const auto q = quotes({{10, "X", "50"}, {11, "Y", "30"}, {12, "Z", "8"}});
+  const auto plan = orders(p, {target(10, "X", "0.5"), target(12, "Z", "0.5")}, q, g, kAsOf);
+  const Portfolio after = apply(p, plan.orders);
+  REQUIRE(plan.cash_after.size() == 2);
+  Decimal total;
+  for (std::size_t i = 0; i < 2; ++i) {
+    CHECK(plan.cash_after[i].account == p.accounts[i].name);
+    CHECK(plan.cash_after[i].cash == after.accounts[i].cash);
+    total += after.accounts[i].cash;
+  }
+  CHECK(plan.cash_after_total == total);
+  // Y, sold out and without a target, is not listed.
+  REQUIRE(plan.weights_after.size() == 2);
+  for (const auto& w : plan.weights_after) {
+    Decimal value;
+    for (const auto& acct : after.accounts)
+      if (const auto it = acct.holdings.find(w.security_id); it != acct.holdings.end())
+        value += it->second.quantity * q.at(w.security_id).price;
+    CAPTURE(w.symbol);
+    CHECK(w.value == value);
+    CHECK(w.value.is_positive());
+  }
+}
