@@ -86,7 +86,23 @@ int Date::day() const {
 }
 
 std::string Date::str() const {
-  return fmt::format("{:04}-{:02}-{:02}", year(), month(), day());
+  const auto ymd = to_ymd(days_);
+  const int y = static_cast<int>(ymd.year());
+  const auto m = static_cast<int>(static_cast<unsigned>(ymd.month()));
+  const auto d = static_cast<int>(static_cast<unsigned>(ymd.day()));
+  if (y < 0 || y > 9999) return fmt::format("{:04}-{:02}-{:02}", y, m, d);
+  // YYYY-MM-DD written digit by digit: reports and loads format many dates.
+  std::string out(10, '-');
+  const auto digit = [](int v) { return static_cast<char>('0' + v); };
+  out[0] = digit(y / 1000);
+  out[1] = digit(y / 100 % 10);
+  out[2] = digit(y / 10 % 10);
+  out[3] = digit(y % 10);
+  out[5] = digit(m / 10);
+  out[6] = digit(m % 10);
+  out[8] = digit(d / 10);
+  out[9] = digit(d % 10);
+  return out;
 }
 
 Date Date::plus_months(int n) const {

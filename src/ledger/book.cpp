@@ -14,16 +14,54 @@
 
 namespace keel {
 
+namespace {
+
+__extension__ typedef __int128 Wide;  // GCC and Clang; -Wpedantic wants the marker
+
+// The exact sum of one member of every lot. While each value is a machine
+// word the sum is kept as one 128-bit integer at the largest scale met and
+// turned into a Decimal once; anything else (a value too long, a sum or a
+// shift that would overflow) is added up as Decimals. Either way the result
+// is the same exact, normalized Decimal.
+template <typename Member>
+Decimal sum_of(const std::vector<Lot>& lots, Member member) {
+  constexpr Wide kWord = std::numeric_limits<long long>::max();
+  Wide sum = 0;
+  int scale = 0;
+  auto shift = [](Wide& v, int digits) {
+    for (; digits > 0; --digits)
+      if (__builtin_mul_overflow(v, Wide(10), &v)) return false;
+    return true;
+  };
+  for (const auto& lot : lots) {
+    const Decimal& d = lot.*member;
+    const auto m = d.machine_mantissa();
+    Wide v = m ? Wide(*m) : 0;
+    if (!m || (d.scale() > scale && !shift(sum, d.scale() - scale)) ||
+        (d.scale() < scale && !shift(v, scale - d.scale())) ||
+        __builtin_add_overflow(sum, v, &sum)) {
+      Decimal total;
+      for (const auto& l : lots) total += l.*member;
+      return total;
+    }
+    scale = std::max(scale, d.scale());
+  }
+  if (sum < -kWord || sum > kWord || scale > Decimal::kMaxScale) {
+    Decimal total;
+    for (const auto& l : lots) total += l.*member;
+    return total;
+  }
+  return Decimal::scaled(static_cast<long long>(sum), scale);
+}
+
+}  // namespace
+
 Decimal Position::quantity() const {
-  Decimal total;
-  for (const auto& lot : lots) total += lot.quantity;
-  return total;
+  return sum_of(lots, &Lot::quantity);
 }
 
 Decimal Position::cost() const {
-  Decimal total;
-  for (const auto& lot : lots) total += lot.cost;
-  return total;
+  return sum_of(lots, &Lot::cost);
 }
 
 namespace {
@@ -202,10 +240,8 @@ Decimal cost_share(const Decimal& cost, const Decimal& taken, const Decimal& hel
 }
 
 Decimal AccountBook::foreign_balance(const std::string& currency) const {
-  Decimal total;
-  if (const auto it = foreign_cash.find(currency); it != foreign_cash.end())
-    for (const auto& lot : it->second) total += lot.quantity;
-  return total;
+  const auto it = foreign_cash.find(currency);
+  return it == foreign_cash.end() ? Decimal() : sum_of(it->second, &Lot::quantity);
 }
 
 Book::Book(const std::vector<Account>& accounts,
@@ -556,8 +592,16 @@ std::unordered_set<std::int64_t> voided_ids(const std::vector<Transaction>& tran
 
 Replayer::Replayer(const LedgerLog& log) : book_(log.accounts, log.pending, log.rates) {
   const auto voided = voided_ids(log.transactions);
+  std::size_t lot_rows = 0;
   for (const auto& t : log.transactions)
-    if (t.kind != TxnKind::void_entry && !voided.count(t.id)) live_.push_back(&t);
+    if (t.kind != TxnKind::void_entry && !voided.count(t.id)) {
+      live_.push_back(&t);
+      lot_rows += t.security_id && t.quantity ? 1 : 0;
+    }
+  // Each lot opened is disposed of at most once whole, and a sale or
+  // transfer out cuts into about one more: the realized parts of most
+  // ledgers, without counting them first.
+  book_.reserve_realized(lot_rows);
   const auto posting_order = [](const Transaction* a, const Transaction* b) {
     return a->date != b->date ? a->date < b->date : a->id < b->id;
   };
@@ -618,7 +662,11 @@ const Book& Replayer::finish(const DayObserver& observer) {
 
 Book replay(const LedgerLog& log, std::optional<Date> until, const DayObserver& observer) {
   Replayer replayer(log);
-  return until ? replayer.advance_to(*until, observer) : replayer.finish(observer);
+  if (until)
+    replayer.advance_to(*until, observer);
+  else
+    replayer.finish(observer);
+  return std::move(replayer).release();
 }
 
 }  // namespace keel

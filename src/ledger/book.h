@@ -44,6 +44,7 @@
 #include <string>
 #include <unordered_map>
 #include <unordered_set>
+#include <utility>
 #include <vector>
 
 #include "core/date.h"
@@ -140,6 +141,9 @@ class Book {
   const Account& account_info(std::int64_t account_id) const;
   const std::vector<Account>& accounts() const { return accounts_; }
   const std::vector<RealizedPart>& realized() const { return realized_; }
+  // Room for `parts` realized parts, a hint only: a long history then does
+  // not copy itself each time it outgrows its storage.
+  void reserve_realized(std::size_t parts) { realized_.reserve(parts); }
   const std::vector<MovedCost>& moved() const { return moved_; }  // in replay order
   const std::vector<FxRealized>& fx_realized() const { return fx_realized_; }
   // Foreign cash moved by a transfer (security_id 0): the cost of its lots in
@@ -241,6 +245,9 @@ class Replayer {
   const Book& advance_to(Date day, const DayObserver& observer = {});
   const Book& finish(const DayObserver& observer = {});  // everything
   const Book& book() const { return book_; }
+  // The book as it stands, moved out rather than copied; nothing may be
+  // asked of the Replayer afterwards.
+  Book release() && { return std::move(book_); }
   // The live (not voided) transactions, in posting order.
   const std::vector<const Transaction*>& live() const { return live_; }
 

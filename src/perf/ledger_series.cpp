@@ -3,9 +3,11 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <limits>
 #include <map>
 #include <set>
 #include <stdexcept>
+#include <tuple>
 #include <unordered_set>
 
 #include "core/error.h"
@@ -45,20 +47,23 @@ std::vector<EntryDay> entry_days(const Replayer& replayer, const LedgerLog& log,
 
 __extension__ typedef __int128 Wide;  // GCC and Clang; -Wpedantic wants the marker
 
-// `d` as mantissa x 10^-scale when the mantissa has at most 18 digits. Read
-// from its canonical text: asked only when a holding's quantity changes.
+// `d` as mantissa x 10^-scale when the mantissa has at most 18 digits.
 bool small_mantissa(const Decimal& d, long long& mantissa, int& scale) {
-  const std::string text = d.str();
-  long long m = 0;
-  int digits = 0;
-  for (const char c : text) {
-    if (c < '0' || c > '9') continue;  // the sign and the point
-    if (++digits > 18) return false;
-    m = m * 10 + (c - '0');
-  }
-  mantissa = d.is_negative() ? -m : m;
+  constexpr long long kLimit = 1'000'000'000'000'000'000;  // 10^18
+  const auto m = d.machine_mantissa();
+  if (!m || *m <= -kLimit || *m >= kLimit) return false;
+  mantissa = *m;
   scale = d.scale();
   return true;
+}
+
+// The close x 10^places as an integer: what Series::scaled_close() gives,
+// rounded here without a call into the maths library. The product lies
+// within a small fraction of an integer below 2^50 (market/series.h), where
+// adding a half and truncating is exact.
+long long scaled_close(const market::Series& prices, std::size_t row, int column, int places) {
+  const double x = prices.value(row, column) * market::Series::kScales[places];
+  return static_cast<long long>(x < 0 ? x - 0.5 : x + 0.5);
 }
 
 // An exact sum of decimals kept as one 128-bit integer at one scale while it
@@ -72,7 +77,10 @@ class ExactSum {
     scale_ = 0;
     rest_ = Decimal();
   }
-  void add(const Decimal& d) { rest_ += d; }
+  void add(const Decimal& d) {
+    if (const auto m = d.machine_mantissa()) return add(Wide(*m), d.scale());
+    rest_ += d;
+  }
   // Adds mantissa x 10^-scale.
   void add(Wide mantissa, int scale) {
     Wide sum = sum_;
@@ -82,7 +90,13 @@ class ExactSum {
     sum_ = sum;
     scale_ = std::max(scale, scale_);
   }
-  Decimal total() const { return rest_ + decimal(sum_, scale_); }
+  Decimal total() const {
+    if (sum_ >= kWordMin && sum_ <= kWordMax && scale_ <= Decimal::kMaxScale) {
+      const Decimal sum = Decimal::scaled(static_cast<long long>(sum_), scale_);
+      return rest_.is_zero() ? sum : rest_ + sum;
+    }
+    return rest_ + decimal(sum_, scale_);
+  }
 
  private:
   static bool shifted(Wide& v, int digits) {
@@ -103,6 +117,8 @@ class ExactSum {
       out *= Decimal::scaled(1, std::min(scale, Decimal::kMaxScale));
     return out;
   }
+  static constexpr Wide kWordMax = std::numeric_limits<long long>::max();
+  static constexpr Wide kWordMin = -kWordMax;  // one machine word either way
   Wide sum_ = 0;
   int scale_ = 0;
   Decimal rest_;
@@ -223,39 +239,101 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
     local[slot].used = true;
     return local[slot].sum;
   };
-  // Open quantities in scope, by (account, security), with the security's
-  // price column and currency looked up once, not on every day; the
-  // quantity's mantissa when it fits a machine word.
-  struct Held {
-    Decimal quantity;
+  // Open quantities in scope, by security and, within it, by account; with
+  // the security's price column and currency looked up once, not on every
+  // day. Each security's quantities are added up over the accounts (exact,
+  // so the value is the same as valuing each account's units apart), and its
+  // sum's mantissa kept when it fits a machine word: a day is then one
+  // product per security.
+  struct Holding {
+    std::vector<std::pair<std::int64_t, Decimal>> by_account;  // ascending by account
+    Decimal quantity;                                          // their sum
     bool small = false;
     long long mantissa = 0;
     int scale = 0;
     int column = -1;
     int places = -1;  // of the column's closes; -1: kept as decimals
     std::size_t slot = 0;
-    bool placed = false;
   };
-  std::map<std::pair<std::int64_t, std::int64_t>, Held> held;
-  auto hold = [&](std::int64_t account, std::int64_t security, Decimal quantity) {
-    Held& h = held[{account, security}];
-    h.quantity = std::move(quantity);
+  std::map<std::int64_t, Holding> held;  // by security; only those with units in scope
+  std::vector<const Holding*> valued;    // held's entries, in one array for the daily loop
+  bool held_changed = true;
+  auto hold = [&](std::int64_t account, std::int64_t security, std::optional<Decimal> quantity) {
+    auto found = held.find(security);
+    if (found == held.end()) {
+      if (!quantity) return;
+      Holding h;
+      h.column = prices.column(security);
+      if (h.column < 0)
+        throw std::logic_error("build_series: the price series lacks a held security");
+      h.places = prices.price_places(h.column);
+      h.slot = slot_of(security_currency(security));
+      found = held.emplace(security, std::move(h)).first;
+      held_changed = true;
+    }
+    Holding& h = found->second;
+    auto& owners = h.by_account;
+    auto at = std::lower_bound(owners.begin(), owners.end(), account,
+                               [](const auto& e, std::int64_t a) { return e.first < a; });
+    if (!quantity) {
+      if (at != owners.end() && at->first == account) owners.erase(at);
+      if (owners.empty()) {
+        held.erase(found);
+        held_changed = true;
+        return;
+      }
+    } else if (at != owners.end() && at->first == account) {
+      at->second = std::move(*quantity);
+    } else {
+      owners.insert(at, {account, std::move(*quantity)});
+    }
+    h.quantity = Decimal();
+    for (const auto& e : owners) h.quantity += e.second;
     h.small = small_mantissa(h.quantity, h.mantissa, h.scale);
-    if (h.placed) return;
-    h.column = prices.column(security);
-    if (h.column < 0)
-      throw std::logic_error("build_series: the price series lacks a held security");
-    h.places = prices.price_places(h.column);
-    h.slot = slot_of(security_currency(security));
-    h.placed = true;
   };
   auto refresh = [&](const Book& book, std::int64_t account, std::int64_t security) {
     const auto& positions = book.account(account).positions;
     const auto it = positions.find(security);
-    if (it == positions.end())
-      held.erase({account, security});
-    else
-      hold(account, security, it->second.quantity());
+    hold(account, security,
+         it == positions.end() ? std::nullopt : std::optional<Decimal>(it->second.quantity()));
+  };
+  // The accounts in scope and the sum of the currency each keeps.
+  std::vector<std::pair<std::int64_t, std::size_t>> scoped;
+  for (const auto& a : log.accounts)
+    if (!account_id || a.id == *account_id) scoped.emplace_back(a.id, slot_of(a.currency));
+  // Starts a day's sums with the cash in scope, in every currency.
+  auto add_cash = [&](const Book& book) {
+    for (auto& l : local) {
+      l.sum.clear();
+      l.used = false;
+    }
+    for (const auto& [account, slot] : scoped) {
+      const AccountBook& ab = book.account(account);
+      add_local(slot).add(ab.cash);
+      for (const auto& [c, lots] : ab.foreign_cash)
+        add_local(slot_of(c)).add(ab.foreign_balance(c));
+    }
+  };
+  // A day on which some holding has no close values each account's units
+  // apart, by (account, security), as the fall-backs and the list of
+  // unpriced securities go by that order.
+  auto value_apart = [&](const Book& book, Date d, std::size_t row) {
+    std::vector<std::tuple<std::int64_t, std::int64_t, const Holding*, const Decimal*>> units;
+    for (const auto& [security, h] : held)
+      for (const auto& [account, quantity] : h.by_account)
+        units.emplace_back(account, security, &h, &quantity);
+    std::sort(units.begin(), units.end(), [](const auto& a, const auto& b) {
+      return std::tie(std::get<0>(a), std::get<1>(a)) < std::tie(std::get<0>(b), std::get<1>(b));
+    });
+    for (const auto& [account, security, h, quantity] : units) {
+      if (prices.has(row, h->column)) {
+        add_local(h->slot).add(*quantity * prices.exact(row, h->column));
+      } else if (const auto traded = book.last_trade_price(security)) {
+        add_local(h->slot).add(*quantity * *traded);
+      } else {
+        out.unpriced_on.emplace_back(d, security);
+      }
+    }
   };
 
   // Not a structured binding: clang before 16 cannot capture one in the
@@ -291,30 +369,29 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
           }
     }
     // What is held, by currency, converted once per currency.
-    for (auto& l : local) {
-      l.sum.clear();
-      l.used = false;
-    }
-    for (const auto& info : book.accounts())
-      if (!account_id || info.id == *account_id) {
-        const AccountBook& ab = book.account(info.id);
-        add_local(slot_of(info.currency)).add(ab.cash);
-        for (const auto& [c, lots] : ab.foreign_cash)
-          add_local(slot_of(c)).add(ab.foreign_balance(c));
-      }
+    add_cash(book);
     const std::size_t row = prices.row(d);
-    for (const auto& [key, h] : held) {
-      if (prices.has(row, h.column)) {
-        if (h.small && h.places >= 0)
-          add_local(h.slot).add(Wide(h.mantissa) * prices.scaled_close(row, h.column),
-                                h.scale + h.places);
-        else
-          add_local(h.slot).add(h.quantity * prices.exact(row, h.column));
-      } else if (const auto traded = book.last_trade_price(key.second)) {
-        add_local(h.slot).add(h.quantity * *traded);
-      } else {
-        out.unpriced_on.emplace_back(d, key.second);
+    if (held_changed) {
+      valued.clear();
+      for (const auto& entry : held) valued.push_back(&entry.second);
+      held_changed = false;
+    }
+    bool all_closed = true;
+    for (const Holding* h : valued) {
+      if (!prices.has(row, h->column)) {
+        all_closed = false;
+        break;
       }
+      if (h->small && h->places >= 0)
+        add_local(h->slot).add(Wide(h->mantissa) * scaled_close(prices, row, h->column, h->places),
+                               h->scale + h->places);
+      else
+        add_local(h->slot).add(h->quantity * prices.exact(row, h->column));
+    }
+    if (!all_closed) {
+      // Start the day's holdings over, one account's units at a time.
+      add_cash(book);
+      value_apart(book, d, row);
     }
     bool foreign = false;
     for (const auto& l : local) {
@@ -386,7 +463,15 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
     }
     out.series.push_back(std::move(point));
   }
-  take_books(Date::from_ymd(9999, 12, 31));
+  // Book days from the last entry on: the last one takes the replay's own
+  // book, moved rather than copied (a book of many years is megabytes).
+  for (; next_book < book_days.size(); ++next_book) {
+    replayer.advance_to(book_days[next_book]);
+    if (next_book + 1 == book_days.size())
+      out.books.push_back(std::move(replayer).release());
+    else
+      out.books.push_back(replayer.book());
+  }
   for (const auto& t : out.totals) {
     out.income += t.income;
     out.tax += t.tax;

@@ -82,8 +82,9 @@ struct LedgerSeries {
 LedgerSeries slice(const LedgerSeries& built, Date from, Date to);
 
 // `book_days` (ascending, none before from - 1, else std::invalid_argument):
-// days whose closing book is copied into `books` on the way, so that a caller
-// needing holdings or gains on them does not replay the log again.
+// days whose closing book is copied into `books` on the way (the last one,
+// from the series' last entry on, is the replay's own book, moved), so that a
+// caller needing holdings or gains on them does not replay the log again.
 LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
                           std::optional<std::int64_t> account_id, Date from, Date to,
                           const std::string& currency, const std::vector<Date>& book_days = {});

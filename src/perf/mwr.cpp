@@ -134,18 +134,26 @@ std::pair<double, double> root_bounds(const std::vector<Flow>& flows) {
 }
 
 // Grid dense near y = 0 (ordinary rates) and coarser far out: uniform in
-// asinh(y). A step of about 0.0025 in ln(1+r) near zero.
-std::vector<double> scan_grid(double lo, double hi) {
-  constexpr int kSteps = 8192;
-  const double u0 = std::asinh(lo);
-  const double u1 = std::asinh(hi);
-  std::vector<double> ys;
-  ys.reserve(kSteps + 1);
-  for (int k = 0; k <= kSteps; ++k) ys.push_back(std::sinh(u0 + (u1 - u0) * k / kSteps));
-  ys.front() = lo;
-  ys.back() = hi;
-  return ys;
-}
+// asinh(y). A step of about 0.0025 in ln(1+r) near zero. A point is worked
+// out when first asked for: the scan looks at few of them.
+class ScanGrid {
+ public:
+  static constexpr int kSteps = 8192;
+  ScanGrid(double lo, double hi)
+      : lo_(lo), hi_(hi), u0_(std::asinh(lo)), u1_(std::asinh(hi)), ys_(kSteps + 1) {}
+  std::size_t size() const { return ys_.size(); }
+  double operator[](std::size_t k) {
+    if (k == 0) return lo_;
+    if (k == kSteps) return hi_;
+    auto& y = ys_[k];
+    if (!y) y = std::sinh(u0_ + (u1_ - u0_) * static_cast<int>(k) / kSteps);
+    return *y;
+  }
+
+ private:
+  double lo_, hi_, u0_, u1_;
+  std::vector<std::optional<double>> ys_;
+};
 
 // Proof that f has no root on a stretch of the scan. Split f into its inflow
 // and outflow parts, f = P - N with P, N >= 0: each is a sum of c exp(-y t)
@@ -201,7 +209,7 @@ class SignBound {
 // proved to keep one sign is skipped.
 template <typename F>
 std::vector<double> scan_roots(const std::vector<Flow>& flows, const F& g, double lo, double hi) {
-  const std::vector<double> ys = scan_grid(lo, hi);
+  ScanGrid ys(lo, hi);
   const SignBound bound(flows);
   const std::size_t last = ys.size() - 1;
   std::vector<std::optional<SignBound::Logs>> logs(ys.size());
@@ -259,19 +267,28 @@ MwrSolution solve_mwr(std::span<const CashFlow> input, Date start, Date end) {
     throw InputError(
         fmt::format("money-weighted return: the period ends ({}) before it starts ({})", end.str(),
                     start.str()));
-  std::map<Date, double> by_day;
-  for (const CashFlow& f : input) {
+  // One amount a day, by day; input already in that form (measure()'s) is
+  // taken as it is.
+  bool by_day_already = true;
+  for (std::size_t i = 0; i < input.size(); ++i) {
+    const CashFlow& f = input[i];
     if (f.day < start || f.day > end)
       throw InputError(fmt::format("money-weighted return: a flow on {} lies outside {}..{}",
                                    f.day.str(), start.str(), end.str()));
     if (!std::isfinite(f.amount))
       throw InputError(
           fmt::format("money-weighted return: the flow on {} is not a finite number", f.day.str()));
-    by_day[f.day] += f.amount;
+    if (i > 0 && !(input[i - 1].day < f.day)) by_day_already = false;
   }
   std::vector<Flow> flows;
-  for (const auto& [day, amount] : by_day) {
-    if (amount != 0) flows.push_back({(day - start) / kDaysPerYear, amount});
+  if (by_day_already) {
+    for (const CashFlow& f : input)
+      if (f.amount != 0) flows.push_back({(f.day - start) / kDaysPerYear, f.amount});
+  } else {
+    std::map<Date, double> by_day;
+    for (const CashFlow& f : input) by_day[f.day] += f.amount;
+    for (const auto& [day, amount] : by_day)
+      if (amount != 0) flows.push_back({(day - start) / kDaysPerYear, amount});
   }
 
   MwrSolution out;

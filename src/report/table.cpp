@@ -40,7 +40,15 @@ namespace {
 // identifiers) rather than a table of our own: the East Asian Width property
 // and the general categories follow each Unicode version as Debian updates
 // ICU, where a copied table would silently go stale.
+// Printable ASCII, nearly every character of a report, takes one column
+// (ICU's properties say so: none is a mark or ignorable, none is wide); it is
+// counted without asking ICU.
+bool printable_ascii(UChar32 c) {
+  return c >= 0x20 && c < 0x7f;
+}
+
 std::size_t code_point_width(UChar32 c) {
+  if (printable_ascii(c)) return 1;
   if (c < 0) return 1;  // an ill-formed byte (printable() has escaped it already)
   const auto type = u_charType(c);
   if (type == U_NON_SPACING_MARK || type == U_ENCLOSING_MARK || type == U_FORMAT_CHAR ||
@@ -65,6 +73,9 @@ void each_code_point(const std::string& text, Visit&& visit) {
 }  // namespace
 
 std::size_t display_width(const std::string& text) {
+  if (std::all_of(text.begin(), text.end(),
+                  [](char c) { return printable_ascii(static_cast<unsigned char>(c)); }))
+    return text.size();
   std::size_t width = 0;
   each_code_point(text, [&](UChar32 c, std::size_t, std::size_t) {
     width += code_point_width(c);

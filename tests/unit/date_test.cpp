@@ -2,6 +2,9 @@
 #include "core/date.h"
 
 #include <doctest/doctest.h>
+#include <fmt/format.h>
+
+#include <utility>
 
 #include "core/error.h"
 
@@ -10,6 +13,15 @@ using keel::Date;
 TEST_CASE("date: ISO text round-trips") {
   for (const char* text : {"2025-12-31", "0001-01-01", "9999-12-31", "2024-02-29"})
     CHECK(Date::parse(text).str() == text);
+}
+
+TEST_CASE("date: ISO text pads each calendar part with zeros, at both ends of the calendar") {
+  for (const auto& [from, to] :
+       {std::pair{Date::from_ymd(1, 1, 1), Date::from_ymd(2, 12, 31)},
+        std::pair{Date::from_ymd(1999, 12, 1), Date::from_ymd(2001, 1, 31)},
+        std::pair{Date::from_ymd(9998, 12, 1), Date::from_ymd(9999, 12, 31)}})
+    for (Date d = from; d <= to; d = d.plus_days(1))
+      REQUIRE(d.str() == fmt::format("{:04}-{:02}-{:02}", d.year(), d.month(), d.day()));
 }
 
 TEST_CASE("date: days that do not exist are refused") {

@@ -55,6 +55,18 @@ TEST_CASE("display width: wide characters count 2 and combining marks 0, as glib
   CHECK(display_width("e\xCC\x81") == 1);
 }
 
+TEST_CASE("display width: every printable ASCII character counts 1, as glibc's wcswidth") {
+  std::string all;
+  for (char c = 0x20; c < 0x7f; ++c) {
+    const std::string one(1, c);
+    CAPTURE(one);
+    CHECK(static_cast<int>(display_width(one)) == glibc_width(one));
+    all += c;
+  }
+  CHECK(display_width(all) == 95);
+  CHECK(display_width(all + "中") == 97);  // one wide character among them
+}
+
 TEST_CASE("display width: shortening keeps whole characters and ends in an ellipsis") {
   CHECK(shorten_to_width("Hollow Creek", 8) == "Hollow …");
   CHECK(shorten_to_width("中文中文", 5) == "中文…");  // a wide character never splits
