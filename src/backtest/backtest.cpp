@@ -22,9 +22,11 @@ namespace {
 // any price's cent (see Request::exact_frictionless).
 constexpr int kUnitPlaces = 20;
 
-// A double as a Decimal with 10 places (the simulated values shown).
+// A double as a Decimal with 10 places (the simulated values shown): the
+// decimal that fmt's "{:.10f}" prints, without formatting (core/decimal.h:
+// Decimal::of_double).
 Decimal decimal_of(double x) {
-  return Decimal::parse(fmt::format("{:.10f}", x));
+  return Decimal::of_double(x, 10);
 }
 
 struct Owed {

@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <array>
 #include <boost/multiprecision/cpp_int.hpp>
+#include <cmath>
 #include <limits>
 #include <new>
 #include <stdexcept>
@@ -265,6 +266,31 @@ Decimal Decimal::scaled(long long mantissa, int scale) {
   if (scale < 0 || scale > kMaxScale)
     throw std::invalid_argument(fmt::format("Decimal::scaled: scale {} out of range", scale));
   return from_wide(mantissa, scale);
+}
+
+Decimal Decimal::of_double(double x, int places) {
+  if (places < 0 || places > 18)
+    throw std::invalid_argument(fmt::format("Decimal::of_double: places {} out of range", places));
+  // x = m x 2^e with m below 2^53; x x 10^places = m x 10^places x 2^e, and
+  // m x 10^places stays below 2^113: exact in 128 bits for any e up to 13.
+  int e = 0;
+  const double f = std::frexp(std::fabs(x), &e);
+  if (!std::isfinite(x) || e > 13 + 53) return parse(fmt::format("{:.{}f}", x, places));
+  const auto m = static_cast<long long>(std::ldexp(f, 53));
+  e -= 53;
+  Wide n = static_cast<Wide>(m) * kPow10[places];
+  if (e >= 0) {
+    n <<= e;
+  } else if (e < -120) {
+    n = 0;  // below half a unit of the last place
+  } else {
+    const int k = -e;
+    const Wide q = n >> k;
+    const Wide rest = n - (q << k);
+    const Wide half = static_cast<Wide>(1) << (k - 1);
+    n = q + (rest > half || (rest == half && (q & 1) != 0) ? 1 : 0);
+  }
+  return from_wide(x < 0 ? -n : n, places);
 }
 
 void Decimal::normalize() {

@@ -76,6 +76,11 @@ class Decimal {
   // mantissa x 10^-scale, exactly; 0 <= scale <= kMaxScale (std::invalid_argument otherwise).
   static Decimal scaled(long long mantissa, int scale);
   static std::optional<Decimal> try_parse(std::string_view text) noexcept;
+  // The decimal that fmt's "{:.Nf}" prints for x with N = places (0..18):
+  // the binary value exactly, rounded half-to-even to `places` digits, with
+  // no text in between. Throws InputError, as parse() of that text does, for
+  // a value that is not finite.
+  static Decimal of_double(double x, int places);
 
   // Exact quotient rounded half-to-even to `places` fractional digits.
   // Throws InputError on division by zero.

@@ -13,10 +13,17 @@
 //  - pack_closes() packs closes ascending by day; unpack_closes() gives them
 //    back exactly, and false (with `out` unspecified) for bytes that are not
 //    a pack this program wrote. kUnpackable is the pack of a security with a
-//    close outside those limits: its closes are read from the table.
+//    close outside those limits: its closes are read from the table; it is
+//    kept with the last day kUnpackableLastDay, so that any change of the
+//    security's closes drops it.
+//  - The ledger keeps a pack with the day of its last close (close_pack,
+//    migration 0012); closes dated after that day are its tail, read from the
+//    rows and merged at load (market::Series). A load that finds at least
+//    kPackTailLimit closes in a tail packs the security again.
 //  - Nothing here throws but std::bad_alloc.
 #pragma once
 
+#include <cstddef>
 #include <cstdint>
 #include <string>
 #include <string_view>
@@ -39,6 +46,8 @@ constexpr std::int64_t kPackMantissaLimit = std::int64_t{1} << 50;
 bool plain_close(std::string_view text, std::int64_t& mantissa, int& scale);
 
 inline const std::string kUnpackable(1, '\0');
+constexpr std::string_view kUnpackableLastDay = "9999-12-31";
+constexpr std::size_t kPackTailLimit = 64;
 std::string pack_closes(const std::vector<PackedClose>& closes);
 bool unpack_closes(std::string_view packed, std::vector<PackedClose>& out);
 

@@ -148,10 +148,11 @@ struct ColumnReader {
   }
 };
 
-// Every close of a security from its rows, for a pack; false when one is
-// outside what a pack keeps.
-bool read_all_closes(store::MarketRows& rows, std::int64_t id, std::vector<PackedClose>& out) {
-  out.clear();
+// The closes of a security dated on or after `from` (every one for ""),
+// appended from its rows, for a pack; false when one is outside what a pack
+// keeps.
+bool read_closes(store::MarketRows& rows, std::int64_t id, std::string_view from,
+                 std::vector<PackedClose>& out) {
   bool packable = true;
   auto take = [&](const store::MarketRows::Row& x) {
     PackedClose c;
@@ -163,7 +164,7 @@ bool read_all_closes(store::MarketRows& rows, std::int64_t id, std::vector<Packe
     out.push_back(c);
     return true;
   };
-  rows.scan_closes(id, "", take);
+  rows.scan_closes(id, from, take);
   return packable;
 }
 
@@ -211,22 +212,38 @@ Series Series::load(store::Database& db, const Request& req) {
   // whole and packed for the next load (kept at the end, see below).
   const bool keep = store::can_keep_close_packs(db);
   const std::int64_t version = keep ? store::change_count(db) : 0;
-  std::vector<std::pair<std::int64_t, std::string>> packs;
+  std::vector<store::KeptPack> packs;
   std::vector<PackedClose> closes;
-  // The whole closes of a security, from its pack or (where packs can be
-  // kept) its rows; nullptr when they are to be read from the rows by span.
+  auto kept = [&](std::int64_t id, std::string packed) {
+    packs.push_back(store::KeptPack{id, closes.empty() ? std::string() : closes.back().day.str(),
+                                    std::move(packed)});
+  };
+  // The whole closes of a security, from its pack and the closes after the
+  // pack's last day (its tail), or (where packs can be kept) from its rows;
+  // nullptr when they are to be read from the rows by span.
   auto whole = [&](std::int64_t id) -> const std::vector<PackedClose>* {
-    if (const auto packed = rows.close_pack(id)) {
-      if (*packed == kUnpackable) return nullptr;
-      if (unpack_closes(*packed, closes)) return &closes;
+    if (const auto pack = rows.close_pack(id)) {
+      if (pack->packed == kUnpackable) return nullptr;
+      const std::string last(pack->last_day);
+      if (unpack_closes(pack->packed, closes) &&
+          (closes.empty() ? last.empty() : closes.back().day.str() == last)) {
+        const std::size_t packed = closes.size();
+        if (read_closes(rows, id, last.empty() ? "" : Date::parse(last).plus_days(1).str(),
+                        closes)) {
+          if (keep && closes.size() - packed >= kPackTailLimit) kept(id, pack_closes(closes));
+          return &closes;
+        }
+      }
     }
     if (!keep) return nullptr;
-    if (!read_all_closes(rows, id, closes)) {
-      packs.emplace_back(id, kUnpackable);
+    closes.clear();
+    if (!read_closes(rows, id, "", closes)) {
+      // Any change of its closes drops it: its last day is the last there is.
+      packs.push_back(store::KeptPack{id, std::string(kUnpackableLastDay), kUnpackable});
       return nullptr;
     }
     // A security without closes costs one empty range read: no pack.
-    if (!closes.empty()) packs.emplace_back(id, pack_closes(closes));
+    if (!closes.empty()) kept(id, pack_closes(closes));
     return &closes;
   };
   // The first close after the span, from a security's whole closes.

@@ -471,6 +471,7 @@ Targets targets(const Rule& rule, const ScreenResult& screened,
     return result;
   }
   std::vector<Target>& out = result.list;
+  out.reserve(rule.weights.sleeves.size() + screened.lines.size());
   const auto& w = rule.weights;
   for (std::size_t i = 0; i < w.sleeves.size(); ++i)
     out.push_back(Target{sleeve_ids.at(i), w.sleeves[i].symbol, w.sleeves[i].weight, true,

@@ -124,12 +124,11 @@ std::string Inputs::unpriced(const market::View& view, const std::string& curren
 }
 
 std::optional<std::string> Inputs::group_of(const market::View& view, std::int64_t id) const {
-  const Security* s = view.security(id);
   switch (rule_.screen.within) {
     case Within::sector:
-      return s->sector;
+      return view.security(id)->sector;
     case Within::country:
-      return s->country;
+      return view.security(id)->country;
     case Within::universe:
       break;
   }
@@ -187,6 +186,23 @@ std::vector<Candidate> Inputs::candidates(const market::View& view, Date day,
   return out;
 }
 
+const std::vector<int>& Inputs::columns_in(const market::Series& series) const {
+  // Kept from the last call when every column still holds its name (a
+  // series at the same address may be another one).
+  bool same = columns_.size() == universe_.size();
+  for (std::size_t i = 0; same && i < universe_.size(); ++i)
+    same = columns_[i] < series.columns() && series.security_id(columns_[i]) == universe_[i];
+  if (same) return columns_;
+  columns_.clear();
+  for (const std::int64_t id : universe_) {
+    const int col = series.column(id);
+    if (col < 0)
+      throw std::out_of_range(fmt::format("rules::Inputs: security {} is not loaded", id));
+    columns_.push_back(col);
+  }
+  return columns_;
+}
+
 std::vector<Candidate> Inputs::candidates_without_track(const market::View& view, Date day,
                                                         const std::set<std::int64_t>& held) const {
   std::vector<Candidate> out;
@@ -201,11 +217,10 @@ std::vector<Candidate> Inputs::candidates_without_track(const market::View& view
       more.back()->advance_to(day);
     }
     const std::size_t row = series->row(day);
+    const auto& columns = columns_in(*series);
     for (std::size_t i = 0; i < universe_.size(); ++i) {
       const std::int64_t id = universe_[i];
-      const int col = series->column(id);
-      if (col < 0)
-        throw std::out_of_range(fmt::format("rules::Inputs: security {} is not loaded", id));
+      const int col = columns[i];
       Candidate c;
       c.security_id = id;
       c.symbol = symbols_[i];
@@ -266,10 +281,12 @@ Selection Inputs::select(const market::View& view, Date day, const std::set<std:
   out.targets = std::move(chosen.list);
   if (out.refusal) return out;
   // Held names outside the universe leave the pool.
-  std::set<std::int64_t> targeted;
-  for (const auto& t : out.targets) targeted.insert(t.security_id);
+  std::vector<std::int64_t> targeted;
+  targeted.reserve(out.targets.size());
+  for (const auto& t : out.targets) targeted.push_back(t.security_id);
+  std::sort(targeted.begin(), targeted.end());
   for (const std::int64_t id : held)
-    if (!targeted.count(id))
+    if (!std::binary_search(targeted.begin(), targeted.end(), id))
       out.targets.push_back(Target{id, view.security(id)->symbol, Decimal(), false, std::nullopt,
                                    true, "not in the rule's universe"});
   for (std::size_t i = 0; i < sleeves_.size(); ++i) {

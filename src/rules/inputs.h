@@ -121,6 +121,10 @@ class Inputs {
                                                   const std::set<std::int64_t>& held) const;
 
   std::optional<std::string> group_of(const market::View& view, std::int64_t id) const;
+  // The series' column of each universe name (std::out_of_range for one not
+  // loaded), found again only when the series' columns differ.
+  const std::vector<int>& columns_in(const market::Series& series) const;
+  mutable std::vector<int> columns_;
 
   std::vector<std::string> metrics_;  // the screen's, in order
   std::vector<std::int64_t> universe_;

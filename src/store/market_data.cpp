@@ -109,7 +109,7 @@ struct MarketWriter::Impl {
                      "INSERT INTO split (security_id, date, ratio, recorded_at) "
                      "VALUES (?, ?, ?, ?) ON CONFLICT DO NOTHING"),
         split_get(h, "SELECT ratio FROM split WHERE security_id = ? AND date = ?"),
-        pack_drop(h, "DELETE FROM close_pack WHERE security_id = ?") {
+        pack_drop(h, "DELETE FROM close_pack WHERE security_id = ? AND last_day >= ?") {
     // Larger page cache for bulk work written in file order (metrics and
     // the like); prices set their own, see CacheForPrices.
     sqlite3_exec(h, kBulkCache, nullptr, nullptr, nullptr);
@@ -232,9 +232,9 @@ MarketWriter::Counts MarketWriter::finish_prices() {
 namespace {
 
 // Statements prepared while it lives run without triggers. The only triggers
-// on price drop close packs (migration 0011), once per row: for a bulk load,
-// a fifth of its time. flush_prices() drops the pack of every security it
-// writes itself, in the same transaction, and turns them back on after.
+// on price drop close packs (migration 0012), once per row: for a bulk load,
+// a fifth of its time. flush_prices() drops the packs they would drop itself,
+// in the same transaction, and turns them back on after.
 // Turning triggers off or on makes SQLite prepare each statement again.
 class TriggersOff {
  public:
@@ -273,11 +273,14 @@ class CacheForPrices {
 
 void MarketWriter::Impl::flush_prices() {
   if (prices.empty()) return;
+  // What the triggers of migration 0012 do, once per security: a pack whose
+  // last day is on or after the earliest day written goes; one that ends
+  // before every day written keeps them as its tail.
+  BufferedPrice first;
   for (std::size_t sec = 0; sec < ids.size(); ++sec)
-    if (prices.rows(sec) > 0 && !pack_dropped[sec]) {
-      pack_drop.bind(1, ids[sec]).run();
+    if (prices.rows(sec) > 0 && !pack_dropped[sec] && prices.read(sec).next(first) &&
+        pack_drop.bind(1, ids[sec]).bind(2, first.day()).run() > 0)
       pack_dropped[sec] = 1;
-    }
   const TriggersOff off(h);
   const CacheForPrices cache(h);
   auto one = [&](std::size_t sec, const BufferedPrice& p) {

@@ -109,7 +109,7 @@ struct MarketRows::Impl {
         splits_all(h,
                    "SELECT security_id, date, ratio FROM split WHERE date >= ? AND date <= ? "
                    "ORDER BY date, security_id"),
-        close_pack(h, "SELECT packed FROM close_pack WHERE security_id = ?") {}
+        close_pack(h, "SELECT last_day, packed FROM close_pack WHERE security_id = ?") {}
 
   Statement scan_closes, scan_close_days, scan_figures;
   Statement closes_until, first_close_after;
@@ -165,12 +165,12 @@ void MarketRows::scan_figures(std::int64_t security_id, std::string_view metric,
   m.scan.run(restart(m.scan_figures, security_id, m.a, metric), take, context);
 }
 
-std::optional<std::string_view> MarketRows::close_pack(std::int64_t security_id) {
+std::optional<MarketRows::PackRow> MarketRows::close_pack(std::int64_t security_id) {
   auto& st = impl_->close_pack;
   st.reset();
   st.bind(1, security_id);
   if (!st.next()) return std::nullopt;
-  return st.blob(0);  // valid until the next call resets the statement
+  return PackRow{st.text(0), st.blob(1)};  // valid until the next call resets the statement
 }
 
 Statement& MarketRows::first_close_after(std::int64_t security_id, std::string_view day) {
@@ -220,8 +220,7 @@ std::int64_t change_count(Database& db) {
   return v;
 }
 
-bool keep_close_packs(Database& db, const std::vector<std::pair<std::int64_t, std::string>>& packs,
-                      std::int64_t since) {
+bool keep_close_packs(Database& db, const std::vector<KeptPack>& packs, std::int64_t since) {
   if (packs.empty() || !can_keep_close_packs(db)) return false;
   try {
     WriteTransaction tx(db);
@@ -229,10 +228,10 @@ bool keep_close_packs(Database& db, const std::vector<std::pair<std::int64_t, st
     // changed them: those packs could be stale, so keep none.
     if (change_count(db) != since) return false;
     Statement put(db.sql().getHandle(),
-                  "INSERT OR REPLACE INTO close_pack (security_id, packed) VALUES (?, ?)");
-    for (const auto& [id, packed] : packs) {
-      put.bind(1, id).bind_blob(2, packed).run();
-    }
+                  "INSERT OR REPLACE INTO close_pack (security_id, last_day, packed) "
+                  "VALUES (?, ?, ?)");
+    for (const auto& p : packs)
+      put.bind(1, p.security_id).bind(2, p.last_day).bind_blob(3, p.packed).run();
     tx.commit();
     return true;
   } catch (const LedgerError&) {

@@ -64,8 +64,13 @@ class MarketRows {
   }
 
   // The closes of one security packed (market/close_pack.h), when the ledger
-  // keeps a pack of them; the view stays valid until the next call.
-  std::optional<std::string_view> close_pack(std::int64_t security_id);
+  // keeps a pack of them: the last day the pack covers ('' for none) and
+  // its bytes. The views stay valid until the next call.
+  struct PackRow {
+    std::string_view last_day;
+    std::string_view packed;
+  };
+  std::optional<PackRow> close_pack(std::int64_t security_id);
 
   // (date) of one security's first close after `day`: at most one row.
   Statement& first_close_after(std::int64_t security_id, std::string_view day);
@@ -93,18 +98,24 @@ class MarketRows {
   std::unique_ptr<Impl> impl_;
 };
 
-// Close packs are derived data: a pack is deleted with any change to its
-// security's closes (triggers, migration 0011), so the closes are always the
-// record. change_count() is SQLite's data_version: it moves when another
+// Close packs are derived data: a pack holds every close of its security
+// dated on or before its last day, and is deleted with any change to a close
+// dated on or before that day (triggers, migration 0012), so the closes are
+// always the record; closes dated after it are the pack's tail, read from the
+// rows. change_count() is SQLite's data_version: it moves when another
 // connection commits. keep_close_packs() writes packs in one write transaction
 // only if nothing else has been committed since `since` (they were read from
 // what is still stored), the ledger can be written and no transaction is open;
 // otherwise, and when the ledger is busy or the write fails, it keeps nothing
 // and says false: packs only save time.
+struct KeptPack {
+  std::int64_t security_id = 0;
+  std::string last_day;  // ISO day of the last close packed; '' for none
+  std::string packed;
+};
 bool can_keep_close_packs(Database& db);
 std::int64_t change_count(Database& db);
-bool keep_close_packs(Database& db, const std::vector<std::pair<std::int64_t, std::string>>& packs,
-                      std::int64_t since);
+bool keep_close_packs(Database& db, const std::vector<KeptPack>& packs, std::int64_t since);
 
 // The latest day with any close, found through the (security_id, date) key
 // one security at a time; unset when the ledger has no closes.

@@ -13,6 +13,12 @@
 #  - the frictionless back-test cold: the packs dropped first (sqlite3
 #    DELETE FROM close_pack, inside the timed command), so it reads the
 #    price rows and keeps the packs again;
+#  - the frictionless back-test after one new close per name: a sqlite3
+#    command inside the timed one adds a close of every security on the day
+#    after its last (its last close repeated), as a daily price update would
+#    (each run one more day, after the span); the packs keep the closes after
+#    their last day as their tail (a keel whose packs do not, reads the price
+#    rows and packs them again);
 #  - then the frictionless back-test against the pandas recomputation
 #    (tests/reference/backtest_reference.py, reading the CSV files), and the
 #    two results' time-weighted returns.
@@ -49,6 +55,8 @@ echo "prices.csv: $(($(wc -l < "$work/prices.csv") - 1)) rows; metrics.csv: $(($
 db="$work/keel.db"
 bt="$keel --db $db backtest --rule $work/rule.toml --from $from --to $to"
 first=$(date -d "$from - 1 day" +%F)
+# One close per security on the day after its last (its last close repeated).
+append="/usr/bin/sqlite3 $db \"INSERT INTO price (security_id, date, close) SELECT s.id, date(p.date, '+1 day'), p.close FROM security s CROSS JOIN price p ON p.security_id = s.id AND p.date = (SELECT max(date) FROM price WHERE security_id = s.id)\""
 $bt --frictionless > /dev/null  # keeps the close packs, if the ledger has none yet
 /usr/bin/python3 "$here/interleave.py" --pairs "$rounds" \
   --ref "sqlite3 sum, every close" "/usr/bin/sqlite3 $db 'SELECT sum(close) FROM price'" \
@@ -57,7 +65,8 @@ $bt --frictionless > /dev/null  # keeps the close packs, if the ledger has none 
   --cmd "backtest frictionless --json" "$bt --frictionless --json" \
   --cmd "backtest with frictions" "$keel --db $db backtest --rule $work/fees.toml --from $from --to $to" \
   --cmd "signal, five horizons" "$keel --db $db signal --rule $work/rule.toml --from $from --to $to" \
-  --cmd "backtest frictionless, cold" "/usr/bin/sqlite3 $db 'DELETE FROM close_pack' && $bt --frictionless"
+  --cmd "backtest frictionless, cold" "/usr/bin/sqlite3 $db 'DELETE FROM close_pack' && $bt --frictionless" \
+  --cmd "backtest frictionless, after one new close per name" "$append && $bt --frictionless"
 # The cold run keeps the packs again: every other command, in either order
 # of a round, reads them.
 

@@ -25,11 +25,25 @@ namespace {
 int packs(store::Database& db) {
   return db.sql().execAndGet("SELECT count(*) FROM close_pack").getInt();
 }
+std::string last_day(store::Database& db, std::int64_t id) {
+  SQLite::Statement st(db.sql(), "SELECT last_day FROM close_pack WHERE security_id = ?");
+  st.bind(1, static_cast<std::int64_t>(id));
+  return st.executeStep() ? st.getColumn(0).getString() : "(no pack)";
+}
 bool packed(store::Database& db, std::int64_t id) {
   SQLite::Statement st(db.sql(), "SELECT count(*) FROM close_pack WHERE security_id = ?");
   st.bind(1, static_cast<std::int64_t>(id));
   st.executeStep();
   return st.getColumn(0).getInt() == 1;
+}
+
+// `n` closes of `symbol` on consecutive days from `first`: 4 + i mod 7.
+std::vector<std::tuple<std::string, std::string, std::string>> daily(const char* symbol,
+                                                                     const char* first, int n) {
+  std::vector<std::tuple<std::string, std::string, std::string>> rows;
+  for (int i = 0; i < n; ++i)
+    rows.emplace_back(symbol, day(first).plus_days(i).str(), std::to_string(4 + i % 7));
+  return rows;
 }
 
 // Everything a Series answers about closes, as text, to compare two loads.
@@ -142,7 +156,7 @@ TEST_CASE("close packs: a security not loaded gives the trading days from its pa
         "trading 2024-03-28\nnext 2024-04-02\n");
 }
 
-TEST_CASE("close packs: a new close drops its security's pack, and the next load has it") {
+TEST_CASE("close packs: a close between packed ones drops its security's pack") {
   Closes m;
   load(m.db);
   m.closes({{"BELLWAY", "2024-03-15", "40.5"}});
@@ -153,6 +167,21 @@ TEST_CASE("close packs: a new close drops its security's pack, and the next load
   CHECK(packed(m.db, m.id("BELLWAY")));
 }
 
+TEST_CASE("close packs: a close after the last one packed keeps the pack, and loads merge it") {
+  Closes m;
+  load(m.db);
+  m.closes({{"BELLWAY", "2024-03-29", "42"}});
+  CHECK(last_day(m.db, m.id("BELLWAY")) == "2024-03-28");
+  const auto s = load(m.db);
+  CHECK(s.close(m.id("BELLWAY"), day("2024-03-30")) == market::Close{day("2024-03-29"), dec("42")});
+  CHECK(s.trading_days().back() == day("2024-03-29"));
+  // A short tail stays a tail: the pack is not written again.
+  CHECK(last_day(m.db, m.id("BELLWAY")) == "2024-03-28");
+  m.closes({{"BELLWAY", "2024-03-01", "39"}});  // before the tail: the pack goes
+  CHECK_FALSE(packed(m.db, m.id("BELLWAY")));
+  CHECK(load(m.db).close(m.id("BELLWAY"), day("2024-03-04"))->price == dec("39"));
+}
+
 TEST_CASE("close packs: a replaced close drops the pack, and the next load has the new one") {
   Closes m;
   load(m.db);
@@ -161,25 +190,89 @@ TEST_CASE("close packs: a replaced close drops the pack, and the next load has t
   CHECK(load(m.db).close(m.id("ARBOR"), day("2024-03-05"))->price == dec("10.75"));
 }
 
-TEST_CASE("close packs: a bulk import of later closes drops the pack, and triggers work after it") {
+TEST_CASE("close packs: an appended close, then an older one replaced, drops the pack") {
+  Closes m;
+  load(m.db);
+  m.closes({{"CORVEN", "2024-03-13", "3.4"}});
+  REQUIRE(packed(m.db, m.id("CORVEN")));
+  m.closes({{"CORVEN", "2024-03-12", "3.25"}}, true);
+  CHECK_FALSE(packed(m.db, m.id("CORVEN")));
+  const auto s = load(m.db);
+  CHECK(s.close(m.id("CORVEN"), day("2024-03-12"))->price == dec("3.25"));
+  CHECK(s.close(m.id("CORVEN"), day("2024-03-14"))->price == dec("3.4"));
+  CHECK(last_day(m.db, m.id("CORVEN")) == "2024-03-13");
+}
+
+TEST_CASE("close packs: a close of the tail replaced or deleted keeps the pack, loads follow it") {
+  Closes m;
+  load(m.db);
+  m.closes({{"CORVEN", "2024-03-13", "3.4"}, {"CORVEN", "2024-03-14", "3.5"}});
+  m.closes({{"CORVEN", "2024-03-14", "3.6"}}, true);
+  CHECK(packed(m.db, m.id("CORVEN")));
+  CHECK(load(m.db).close(m.id("CORVEN"), day("2024-03-15"))->price == dec("3.6"));
+  m.db.sql().exec("DELETE FROM price WHERE security_id = 3 AND date = '2024-03-14'");
+  CHECK(packed(m.db, m.id("CORVEN")));
+  CHECK(load(m.db).close(m.id("CORVEN"), day("2024-03-15"))->price == dec("3.4"));
+}
+
+TEST_CASE("close packs: the triggers keep a pack for rows after its last day only") {
+  Closes m;
+  load(m.db);
+  auto& sql = m.db.sql();
+  sql.exec("INSERT INTO price (security_id, date, close) VALUES (3, '2024-03-13', '3.4')");
+  sql.exec("UPDATE price SET close = '3.45' WHERE security_id = 3 AND date = '2024-03-13'");
+  CHECK(packed(m.db, m.id("CORVEN")));
+  CHECK(load(m.db).close(m.id("CORVEN"), day("2024-03-14"))->price == dec("3.45"));
+  sql.exec("UPDATE price SET date = '2024-03-11' WHERE security_id = 3 AND date = '2024-03-13'");
+  CHECK_FALSE(packed(m.db, m.id("CORVEN")));  // moved into the packed days
+  load(m.db);
+  REQUIRE(last_day(m.db, m.id("CORVEN")) == "2024-03-12");
+  sql.exec("INSERT INTO price (security_id, date, close) VALUES (3, '2024-03-05', '3')");
+  CHECK_FALSE(packed(m.db, m.id("CORVEN")));  // between packed days
+  CHECK(load(m.db).close(m.id("CORVEN"), day("2024-03-06"))->price == dec("3"));
+}
+
+TEST_CASE("close packs: a bulk import of later closes keeps the pack, and a long tail is packed") {
   Closes m;
   load(m.db);
   // Enough rows after the stored ones for the importer's multi-row insert,
   // which runs with triggers off and drops the packs itself.
-  std::vector<std::tuple<std::string, std::string, std::string>> rows;
-  for (int i = 0; i < 600; ++i)
-    rows.emplace_back("CORVEN", day("2024-04-01").plus_days(i).str(), std::to_string(4 + i % 7));
-  m.closes(rows);
-  CHECK_FALSE(packed(m.db, m.id("CORVEN")));
+  m.closes(daily("CORVEN", "2024-04-01", 600));
+  CHECK(last_day(m.db, m.id("CORVEN")) == "2024-03-12");
   CHECK(packed(m.db, m.id("ARBOR")));
   market::Series::Request r;
   r.from = day("2024-03-01");
   r.to = day("2025-12-31");
   // The last row: 2025-11-21, close 4 + 599 mod 7.
   CHECK(market::Series::load(m.db, r).close(m.id("CORVEN"), day("2025-11-22"))->price == dec("8"));
-  REQUIRE(packed(m.db, m.id("CORVEN")));
+  // 600 closes after the pack, more than market::kPackTailLimit: packed again.
+  CHECK(last_day(m.db, m.id("CORVEN")) == "2025-11-21");
   m.db.sql().exec("UPDATE price SET close = '5' WHERE security_id = 3 AND date = '2024-04-01'");
   CHECK_FALSE(packed(m.db, m.id("CORVEN")));
+}
+
+TEST_CASE("close packs: a bulk import that reaches back into a pack drops it") {
+  Closes m;
+  load(m.db);
+  m.closes(daily("CORVEN", "2024-03-11", 600), true);
+  CHECK_FALSE(packed(m.db, m.id("CORVEN")));
+  CHECK(packed(m.db, m.id("ARBOR")));
+  CHECK(load(m.db).close(m.id("CORVEN"), day("2024-03-12"))->price == dec("5"));
+}
+
+TEST_CASE("close packs: a tail just short of the limit is merged, one more packs it again") {
+  Closes m;
+  load(m.db);
+  std::vector<std::tuple<std::string, std::string, std::string>> rows;
+  for (std::size_t i = 0; i + 1 < market::kPackTailLimit; ++i)
+    rows.emplace_back("ARBOR", day("2024-04-03").plus_days(static_cast<int>(i)).str(), "12");
+  m.closes(rows);
+  const std::string merged = closes_of(load(m.db));
+  CHECK(last_day(m.db, m.id("ARBOR")) == "2024-04-02");
+  m.closes({{"ARBOR", "2024-12-31", "13"}});
+  load(m.db);
+  CHECK(last_day(m.db, m.id("ARBOR")) == "2024-12-31");
+  CHECK(closes_of(load(m.db)) == merged);  // the span's answers, from the new pack
 }
 
 TEST_CASE("close packs: closes changed or deleted by other means drop the pack too") {
@@ -229,9 +322,9 @@ TEST_CASE("close packs: none are kept when another connection changed the ledger
   other.sql().exec(
       "INSERT INTO security (symbol, name, kind, currency, lot_size) "
       "VALUES ('DOVETAIL', 'Dovetail (invented)', 'stock', 'USD', '1')");
-  CHECK_FALSE(store::keep_close_packs(db, {{1, market::pack_closes({})}}, since));
+  CHECK_FALSE(store::keep_close_packs(db, {{1, "", market::pack_closes({})}}, since));
   CHECK(packs(db) == 0);
-  CHECK(store::keep_close_packs(db, {{1, market::pack_closes({})}}, store::change_count(db)));
+  CHECK(store::keep_close_packs(db, {{1, "", market::pack_closes({})}}, store::change_count(db)));
   CHECK(packs(db) == 1);
 }
 

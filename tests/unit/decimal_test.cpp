@@ -3,8 +3,10 @@
 #include "core/decimal.h"
 
 #include <doctest/doctest.h>
+#include <fmt/format.h>
 
 #include <algorithm>
+#include <cmath>
 #include <cstdint>
 #include <limits>
 #include <string>
@@ -322,4 +324,31 @@ TEST_CASE("decimal: 128-bit arithmetic agrees with the general path") {
         "170141183460469231722567801800623612944");  // just below 2^127
   CHECK(Decimal::divide(top, d("0.5"), 0) == top * Decimal(2));
   CHECK(d("12345678901234567890123.456789").rounded(2).str() == "12345678901234567890123.46");
+}
+
+TEST_CASE("decimal: of_double gives the decimal fmt prints, exact ties to even") {
+  // Ties: 2^-11 = 0.00048828125 has eleven places, so ten places is a tie.
+  CHECK(Decimal::of_double(0.00048828125, 10) == d("0.0004882812"));
+  CHECK(Decimal::of_double(100000.00048828125, 10) == d("100000.0004882812"));
+  CHECK(Decimal::of_double(0.00146484375, 10) == d("0.0014648438"));
+  CHECK(Decimal::of_double(-0.00048828125, 10) == d("-0.0004882812"));
+  CHECK(Decimal::of_double(2.5, 0) == d("2"));
+  CHECK(Decimal::of_double(3.5, 0) == d("4"));
+  CHECK(Decimal::of_double(0.1, 10) == d("0.1"));
+  CHECK(Decimal::of_double(-1e-12, 10).is_zero());
+  CHECK(Decimal::of_double(2626523971089.2812, 10) == d("2626523971089.28125"));
+  CHECK(Decimal::of_double(1e30, 10) == d("1000000000000000019884624838656"));
+  CHECK_THROWS_AS(Decimal::of_double(std::numeric_limits<double>::infinity(), 10),
+                  keel::InputError);
+  // Against fmt's own text over many magnitudes (a linear congruential walk).
+  std::uint64_t state = 12345;
+  for (int i = 0; i < 20000; ++i) {
+    state = state * 6364136223846793005ULL + 1442695040888963407ULL;
+    const double x =
+        std::ldexp(static_cast<double>(state >> 11), static_cast<int>(state % 90) - 90);
+    const int places = static_cast<int>(state % 19);
+    const double y = i % 2 ? -x : x;
+    REQUIRE_MESSAGE(Decimal::of_double(y, places) == d(fmt::format("{:.{}f}", y, places).c_str()),
+                    fmt::format("{:.17g} at {} places", y, places));
+  }
 }

@@ -136,6 +136,27 @@ struct Repacked {
   }
 };
 
+// Series from packs that end on 2024-03-04, with every later close as their
+// tails: the later closes are taken out, packed without them, and put back
+// (after the packs' last days, which keeps the packs).
+struct Tailed {
+  static std::unique_ptr<market::View> make(store::Database& db) {
+    auto& sql = db.sql();
+    sql.exec("CREATE TEMP TABLE later AS SELECT * FROM price WHERE date > '2024-03-04'");
+    sql.exec("DELETE FROM price WHERE date > '2024-03-04'");
+    Preloaded::make(db);
+    sql.exec("INSERT INTO price SELECT * FROM temp.later");
+    sql.exec("DROP TABLE temp.later");
+    REQUIRE(
+        sql.execAndGet("SELECT count(*) FROM close_pack WHERE last_day <= '2024-03-04'").getInt() >
+        0);
+    REQUIRE(sql.execAndGet("SELECT count(*) FROM price p JOIN close_pack c ON c.security_id = "
+                           "p.security_id AND p.date > c.last_day")
+                .getInt() > 0);
+    return Preloaded::make(db);
+  }
+};
+
 std::optional<Close> close_at(const char* d, const char* price) {
   return Close{day(d), dec(price)};
 }
@@ -148,9 +169,10 @@ std::optional<Figure> figure_of(const char* value, const char* period, const cha
 TYPE_TO_STRING(OneDay);
 TYPE_TO_STRING(Preloaded);
 TYPE_TO_STRING(Repacked);
+TYPE_TO_STRING(Tailed);
 
 TEST_CASE_TEMPLATE("market view: a close on the day, else the latest before it", V, OneDay,
-                   Preloaded, Repacked) {
+                   Preloaded, Repacked, Tailed) {
   MarketLedger m;
   const auto view = V::make(m.db);
   const auto avel = m.id("AVEL");
@@ -162,7 +184,7 @@ TEST_CASE_TEMPLATE("market view: a close on the day, else the latest before it",
 }
 
 TEST_CASE_TEMPLATE("market view: a weekday with no close at all gives the day before's", V, OneDay,
-                   Preloaded, Repacked) {
+                   Preloaded, Repacked, Tailed) {
   MarketLedger m;
   const auto view = V::make(m.db);
   CHECK(view->close(m.id("AVEL"), day("2024-03-29")) == close_at("2024-03-28", "11"));
@@ -170,7 +192,7 @@ TEST_CASE_TEMPLATE("market view: a weekday with no close at all gives the day be
 }
 
 TEST_CASE_TEMPLATE("market view: a late listing has no close before its first", V, OneDay,
-                   Preloaded, Repacked) {
+                   Preloaded, Repacked, Tailed) {
   MarketLedger m;
   const auto view = V::make(m.db);
   const auto brisk = m.id("BRISK");
@@ -182,7 +204,7 @@ TEST_CASE_TEMPLATE("market view: a late listing has no close before its first", 
 }
 
 TEST_CASE_TEMPLATE("market view: a stale close and a stale figure are given with their days", V,
-                   OneDay, Preloaded, Repacked) {
+                   OneDay, Preloaded, Repacked, Tailed) {
   MarketLedger m;
   const auto view = V::make(m.db);
   const auto caldo = m.id("CALDO");
@@ -191,7 +213,7 @@ TEST_CASE_TEMPLATE("market view: a stale close and a stale figure are given with
 }
 
 TEST_CASE_TEMPLATE("market view: a restatement replaces the figure from its known_on on", V, OneDay,
-                   Preloaded, Repacked) {
+                   Preloaded, Repacked, Tailed) {
   MarketLedger m;
   const auto view = V::make(m.db);
   const auto avel = m.id("AVEL");
@@ -201,7 +223,7 @@ TEST_CASE_TEMPLATE("market view: a restatement replaces the figure from its know
 }
 
 TEST_CASE_TEMPLATE("market view: a figure known after the day is invisible on it", V, OneDay,
-                   Preloaded, Repacked) {
+                   Preloaded, Repacked, Tailed) {
   MarketLedger m;
   const auto view = V::make(m.db);
   const auto avel = m.id("AVEL");
@@ -216,7 +238,7 @@ TEST_CASE_TEMPLATE("market view: a figure known after the day is invisible on it
 }
 
 TEST_CASE_TEMPLATE("market view: splits in a span, a Saturday's included", V, OneDay, Preloaded,
-                   Repacked) {
+                   Repacked, Tailed) {
   MarketLedger m;
   const auto view = V::make(m.db);
   const auto dunmore = m.id("DUNMORE");
@@ -229,7 +251,7 @@ TEST_CASE_TEMPLATE("market view: splits in a span, a Saturday's included", V, On
 }
 
 TEST_CASE_TEMPLATE("market view: distributions on weekends, by date and then security", V, OneDay,
-                   Preloaded, Repacked) {
+                   Preloaded, Repacked, Tailed) {
   MarketLedger m;
   const auto view = V::make(m.db);
   const auto avel = m.id("AVEL"), dunmore = m.id("DUNMORE");
@@ -243,7 +265,7 @@ TEST_CASE_TEMPLATE("market view: distributions on weekends, by date and then sec
 }
 
 TEST_CASE_TEMPLATE("market view: corporate actions in a span, a Saturday's included", V, OneDay,
-                   Preloaded, Repacked) {
+                   Preloaded, Repacked, Tailed) {
   MarketLedger m;
   const auto view = V::make(m.db);
   const auto all = view->actions(std::nullopt, day("2024-01-01"), day("2024-06-30"));
@@ -261,7 +283,7 @@ TEST_CASE_TEMPLATE("market view: corporate actions in a span, a Saturday's inclu
 }
 
 TEST_CASE_TEMPLATE("market view: a delisting ends a name from its day on, a spin-off does not", V,
-                   OneDay, Preloaded, Repacked) {
+                   OneDay, Preloaded, Repacked, Tailed) {
   MarketLedger m;
   const auto view = V::make(m.db);
   CHECK_FALSE(view->ended(m.id("CALDO"), day("2024-03-14")).has_value());
@@ -273,7 +295,7 @@ TEST_CASE_TEMPLATE("market view: a delisting ends a name from its day on, a spin
 }
 
 TEST_CASE_TEMPLATE("market view: the securities, their stocks' sectors and the metric names", V,
-                   OneDay, Preloaded, Repacked) {
+                   OneDay, Preloaded, Repacked, Tailed) {
   MarketLedger m;
   const auto view = V::make(m.db);
   CHECK(view->securities().size() == 5);
@@ -309,7 +331,7 @@ std::string answers_until(const market::View& view, Date first, Date last) {
 }
 
 TEST_CASE_TEMPLATE("look-ahead: changing the future leaves every answer about the past as it was",
-                   V, OneDay, Preloaded, Repacked) {
+                   V, OneDay, Preloaded, Repacked, Tailed) {
   MarketLedger m;
   const Date first = day("2024-01-01"), last = day("2024-03-15");
   const std::string before = answers_until(*V::make(m.db), first, last);
@@ -332,7 +354,7 @@ TEST_CASE_TEMPLATE("look-ahead: changing the future leaves every answer about th
 }
 
 TEST_CASE_TEMPLATE("market view: a stored rate on or before the day, and none before the first", V,
-                   OneDay, Preloaded, Repacked) {
+                   OneDay, Preloaded, Repacked, Tailed) {
   MarketLedger m;
   const auto view = V::make(m.db);
   const auto q = view->rate("EUR", "USD", day("2024-03-04"));
@@ -347,7 +369,7 @@ TEST_CASE_TEMPLATE("market view: a stored rate on or before the day, and none be
 }
 
 TEST_CASE_TEMPLATE("market view: the inverse of a stored pair is derived and says so", V, OneDay,
-                   Preloaded, Repacked) {
+                   Preloaded, Repacked, Tailed) {
   MarketLedger m;
   const auto view = V::make(m.db);
   const auto q = view->rate("USD", "EUR", day("2024-03-04"));
@@ -357,7 +379,7 @@ TEST_CASE_TEMPLATE("market view: the inverse of a stored pair is derived and say
 }
 
 TEST_CASE_TEMPLATE("market view: a cross through one pivot currency, dated by its older leg", V,
-                   OneDay, Preloaded, Repacked) {
+                   OneDay, Preloaded, Repacked, Tailed) {
   MarketLedger m;
   const auto view = V::make(m.db);
   const auto q = view->rate("EUR", "JPY", day("2024-03-04"));
@@ -372,7 +394,7 @@ TEST_CASE_TEMPLATE("market view: a cross through one pivot currency, dated by it
 }
 
 TEST_CASE_TEMPLATE("market view: no rate is assumed between currencies without a path", V, OneDay,
-                   Preloaded, Repacked) {
+                   Preloaded, Repacked, Tailed) {
   MarketLedger m;
   const auto view = V::make(m.db);
   // GBP/CHF is stored, but nothing links either to the euro.
@@ -385,7 +407,7 @@ TEST_CASE_TEMPLATE("market view: no rate is assumed between currencies without a
 }
 
 TEST_CASE_TEMPLATE("market view: a currency to itself is 1, and only that", V, OneDay, Preloaded,
-                   Repacked) {
+                   Repacked, Tailed) {
   MarketLedger m;
   const auto view = V::make(m.db);
   const auto q = view->rate("EUR", "EUR", day("2024-01-01"));  // before any stored rate
