@@ -7,7 +7,6 @@
 #include <boost/multiprecision/cpp_int.hpp>
 #include <cmath>
 #include <limits>
-#include <new>
 #include <stdexcept>
 #include <utility>
 
@@ -132,15 +131,14 @@ bool shift_wide(Wide& x, int shift) {
 
 }  // namespace
 
-static_assert(sizeof(Int) == 32 && alignof(Int) <= 16,
-              "Decimal::kMantissaBytes and its alignment must fit cpp_int");
+static_assert(sizeof(Decimal) == 16, "a Decimal is a machine word, a scale and a flag");
 
 auto& Decimal::mantissa() {
-  return *std::launder(reinterpret_cast<Int*>(storage_));
+  return *static_cast<Int*>(big_mantissa_);
 }
 
 const auto& Decimal::mantissa() const {
-  return *std::launder(reinterpret_cast<const Int*>(storage_));
+  return *static_cast<const Int*>(big_mantissa_);
 }
 
 auto Decimal::as_int() const {
@@ -148,20 +146,21 @@ auto Decimal::as_int() const {
 }
 
 void Decimal::set_lowest() {
-  new (storage_) Int(std::numeric_limits<long long>::min());
+  big_mantissa_ = new Int(std::numeric_limits<long long>::min());
   big_ = true;
 }
 
 void Decimal::copy_big(const Decimal& other) {
-  new (storage_) Int(other.mantissa());
+  big_mantissa_ = new Int(other.mantissa());
   big_ = true;
 }
 
 void Decimal::move_big(Decimal& other) noexcept {
-  new (storage_) Int(std::move(other.mantissa()));
+  // The mantissa changes hands; the moved-from value becomes a plain zero, so
+  // it keeps one representation.
+  big_mantissa_ = other.big_mantissa_;
   big_ = true;
-  // The moved-from value becomes a plain zero, so it keeps one representation.
-  other.destroy_big();
+  other.big_ = false;
   other.small_ = 0;
   other.scale_ = 0;
 }
@@ -185,13 +184,8 @@ Decimal& Decimal::move_assign_big(Decimal& other) noexcept {
   if (this == &other) return *this;
   const int scale = other.scale_;  // before `other` becomes a plain zero
   if (other.big_) {
-    if (big_) {
-      mantissa() = std::move(other.mantissa());
-      other.destroy_big();
-      other.scale_ = 0;
-    } else {
-      move_big(other);
-    }
+    if (big_) destroy_big();
+    move_big(other);
   } else {
     destroy_big();
     small_ = other.small_;
@@ -201,7 +195,7 @@ Decimal& Decimal::move_assign_big(Decimal& other) noexcept {
 }
 
 void Decimal::destroy_big() noexcept {
-  mantissa().~Int();
+  delete static_cast<Int*>(big_mantissa_);
   big_ = false;
   small_ = 0;
 }
@@ -218,7 +212,7 @@ void Decimal::set_int(auto&& value) {
   } else if (big_) {
     mantissa() = std::forward<decltype(value)>(value);
   } else {
-    new (storage_) Int(std::forward<decltype(value)>(value));
+    big_mantissa_ = new Int(std::forward<decltype(value)>(value));
     big_ = true;
   }
 }

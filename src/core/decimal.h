@@ -195,12 +195,12 @@ class Decimal {
   static std::strong_ordering compare(const Decimal& a, const Decimal& b);
   static bool equal_big(const Decimal& a, const Decimal& b);  // both big, same scale
   // A mantissa that fits a machine word (all but the rarest) is kept in
-  // small_; only a larger one makes a cpp_int, in raw storage that
-  // decimal.cpp alone constructs (deduced types, used only there; it checks
-  // the size and alignment). big_ says which: a value is big exactly when
-  // its mantissa lies outside [-(2^63 - 1), 2^63 - 1], so each value has one
-  // representation.
-  static constexpr std::size_t kMantissaBytes = 32;
+  // small_; only a larger one makes a cpp_int, on the heap, which decimal.cpp
+  // alone allocates and frees (deduced types, used only there). big_ says
+  // which: a value is big exactly when its mantissa lies outside
+  // [-(2^63 - 1), 2^63 - 1], so each value has one representation. Keeping
+  // the rare large mantissa out of line makes a Decimal 16 bytes instead of
+  // 48: every ledger row, lot and position holds several.
   auto& mantissa();                                       // big_ only
   const auto& mantissa() const;                           // big_ only
   auto as_int() const;                                    // the mantissa as a cpp_int, either way
@@ -223,7 +223,7 @@ class Decimal {
 
   union {
     long long small_ = 0;
-    alignas(16) unsigned char storage_[kMantissaBytes];
+    void* big_mantissa_;  // a cpp_int, owned, when big_
   };
   int scale_ = 0;
   bool big_ = false;
