@@ -267,7 +267,7 @@ TEST_CASE("decimal: inline word arithmetic agrees with the general path") {
   Xorshift next{2463534242ULL};
   // Mantissas of every size up to a full word, scales 0 to 24.
   auto any = [&] {
-    const int bits = static_cast<int>(next() % 64);
+    const int bits = 1 + static_cast<int>(next() % 64);  // a shift of 64 would be undefined
     const auto m = static_cast<long long>(next() >> (64 - bits) >> 1);
     return Decimal::scaled(next() % 2 ? m : -m, static_cast<int>(next() % 25));
   };
