@@ -1,5 +1,7 @@
 #include "market/close_pack.h"
 
+#include "core/zigzag.h"
+
 namespace keel::market {
 namespace {
 
@@ -10,13 +12,6 @@ namespace {
 // to day, so most take three or four bytes.
 constexpr char kVersion = 1;
 constexpr std::int64_t kDayLimit = 1 << 24;  // far beyond any calendar day keel reads
-
-std::uint64_t zigzag(std::int64_t v) {
-  return (static_cast<std::uint64_t>(v) << 1) ^ static_cast<std::uint64_t>(v >> 63);
-}
-std::int64_t unzigzag(std::uint64_t v) {
-  return static_cast<std::int64_t>(v >> 1) ^ -static_cast<std::int64_t>(v & 1);
-}
 
 void put(std::string& out, std::uint64_t v) {
   while (v >= 0x80) {

@@ -3,6 +3,8 @@
 #include <algorithm>
 #include <stdexcept>
 
+#include "core/zigzag.h"
+
 namespace keel::store {
 namespace {
 
@@ -13,13 +15,6 @@ namespace {
 constexpr std::uint64_t kAside = 7;
 constexpr std::size_t kMaxScale = 6;
 constexpr std::size_t kMaxDigits = 18;
-
-std::uint64_t zigzag(std::int64_t v) {
-  return (static_cast<std::uint64_t>(v) << 1) ^ static_cast<std::uint64_t>(v >> 63);
-}
-std::int64_t unzigzag(std::uint64_t v) {
-  return static_cast<std::int64_t>(v >> 1) ^ -static_cast<std::int64_t>(v & 1);
-}
 
 // Writes v at `out`; gives the end. At most 10 bytes.
 char* put_varint(char* out, std::uint64_t v) {
