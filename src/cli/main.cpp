@@ -1,5 +1,4 @@
 // keel: the command line. Parses, calls the modules, prints; see cli/context.h.
-#include <SQLiteCpp/Exception.h>
 #include <fmt/format.h>
 
 #include <CLI/CLI.hpp>
@@ -96,10 +95,11 @@ int main(int argc, char** argv) {
   } catch (const keel::LedgerError& e) {
     report_error(e.what());
     return keel::kExitLedger;
-  } catch (const SQLite::Exception& e) {
-    report_error(keel::store::ledger_error(e).what());
-    return keel::kExitLedger;
   } catch (const std::exception& e) {
+    if (const auto escaped = keel::store::escaped_ledger_error(e)) {
+      report_error(escaped->what());
+      return keel::kExitLedger;
+    }
     report_error(fmt::format("internal error (please report): {}", e.what()));
     return keel::kExitInternal;
   }

@@ -76,6 +76,11 @@ LedgerError ledger_error(const SQLite::Exception& e, std::string_view doing) {
   return ledger_error(sqlite_code(e), last.system_errno, e.what(), last.file, doing);
 }
 
+std::optional<LedgerError> escaped_ledger_error(const std::exception& e) {
+  if (const auto* sqlite = dynamic_cast<const SQLite::Exception*>(&e)) return ledger_error(*sqlite);
+  return std::nullopt;
+}
+
 void throw_sqlite_error(sqlite3* handle, int rc, std::string_view doing) {
   const char* name = handle ? sqlite3_db_filename(handle, "main") : nullptr;
   const int extended = handle ? sqlite3_extended_errcode(handle) : rc;

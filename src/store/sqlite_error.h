@@ -22,7 +22,9 @@
 
 #include <sqlite3.h>
 
+#include <exception>
 #include <filesystem>
+#include <optional>
 #include <string>
 #include <string_view>
 
@@ -39,6 +41,9 @@ std::string sqlite_reason(int extended_code, int system_errno, std::string_view 
 LedgerError ledger_error(int extended_code, int system_errno, std::string_view sqlite_text,
                          const std::filesystem::path& file, std::string_view doing = "ledger");
 LedgerError ledger_error(const SQLite::Exception& e, std::string_view doing = "ledger");
+// For the command line's last catch: the LedgerError when `e` is an SQLiteCpp
+// exception that escaped every wrapper, else nothing.
+std::optional<LedgerError> escaped_ledger_error(const std::exception& e);
 [[noreturn]] void throw_sqlite_error(sqlite3* handle, int rc, std::string_view doing = "ledger");
 
 // An SQLiteCpp exception's extended code, or its primary code where it has

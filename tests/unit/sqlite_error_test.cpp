@@ -7,6 +7,7 @@
 #include <sqlite3.h>
 
 #include <cerrno>
+#include <stdexcept>
 
 #include "core/decimal.h"
 #include "core/error.h"
@@ -82,6 +83,29 @@ TEST_CASE("sqlite errors: an exception that closed the ledger is reported with i
     CHECK(std::string(store::ledger_error(e).what()) ==
           "ledger " + file.string() + ": no such table: no_such_table");
   }
+}
+
+TEST_CASE(
+    "sqlite errors: the command line's last catch turns an escaped SQLite exception into a "
+    "LedgerError") {
+  test::TempDir dir;
+  const auto file = dir.path() / "ledger.db";
+  store::OpenOptions options;
+  options.access = store::Access::create;
+  try {
+    auto db = store::Database::open(file, options);
+    db.sql().exec("SELECT * FROM no_such_table");
+    FAIL("no exception");
+  } catch (const std::exception& e) {
+    const auto escaped = store::escaped_ledger_error(e);
+    REQUIRE(escaped.has_value());
+    CHECK(std::string(escaped->what()) ==
+          "ledger " + file.string() + ": no such table: no_such_table");
+  }
+}
+
+TEST_CASE("sqlite errors: the last catch leaves other exceptions alone") {
+  CHECK_FALSE(store::escaped_ledger_error(std::runtime_error("not a ledger error")).has_value());
 }
 
 TEST_CASE(
