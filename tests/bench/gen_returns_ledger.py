@@ -1,6 +1,11 @@
 """Writes an invented 20-year daily ledger for timing `keel returns`.
 
-Usage: gen_returns_ledger.py KEEL_BIN LEDGER_PATH
+Usage: gen_returns_ledger.py KEEL_BIN LEDGER_PATH [--securities 50] [--years 20]
+                             [--transactions 20000]
+
+The ledger's years end on 2024-12-31 and start on 3 January of the first
+year; the defaults make the 20-year ledger of the other benchmarks, byte for
+byte.
 
 Accounts and securities go through the keel binary; the 20,000 transactions
 and the daily closes of 50 securities are written straight into the ledger's
@@ -9,17 +14,25 @@ does not have yet). The generator keeps its own books so every sell is
 covered and no account's cash goes negative; keel replays and checks it all
 when it reads the ledger.
 """
+import argparse
 import datetime as dt
 import math
 import random
 import sqlite3
 import subprocess
-import sys
 from decimal import Decimal, ROUND_FLOOR, ROUND_HALF_EVEN
 
-KEEL, PATH = sys.argv[1], sys.argv[2]
-N_SEC, N_TXN = 50, 20000
-START, END = dt.date(2005, 1, 3), dt.date(2024, 12, 31)
+ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+ap.add_argument("keel")
+ap.add_argument("path")
+ap.add_argument("--securities", type=int, default=50)
+ap.add_argument("--years", type=int, default=20)
+ap.add_argument("--transactions", type=int, default=20000)
+args = ap.parse_args()
+KEEL, PATH = args.keel, args.path
+N_SEC, N_TXN = args.securities, args.transactions
+END = dt.date(2024, 12, 31)
+START = dt.date(END.year - args.years + 1, 1, 3)
 ACCOUNTS = ["Bench Main", "Bench Spare"]
 CENT = Decimal("0.01")
 

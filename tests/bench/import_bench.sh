@@ -6,8 +6,10 @@
 #
 #   tests/bench/import_bench.sh [KEEL_BINARY] [WORK_DIR]
 #   BENCH_SECURITIES=1916 BENCH_YEARS=10 (5.0 M rows) set the size;
-#   BENCH_ROUNDS=3 the rounds. KEEL_BASELINE=/path/to/another/keel times that
-#   binary too, in the same rounds (before and after a change in one run).
+#   BENCH_ROUNDS=3 the rounds; BENCH_RECORD=FILE appends the figures to FILE
+#   for a table over several sizes (import_scaling.sh).
+#   KEEL_BASELINE=/path/to/another/keel times that binary too, in the same
+#   rounds (before and after a change in one run).
 #
 # Build keel optimized first (-DCMAKE_BUILD_TYPE=Release). Needs python3,
 # sqlite3 and GNU time (/usr/bin/time; Debian package 'time').
@@ -42,6 +44,9 @@ sync
 set -- --cmd "keel import prices" "rm -f $work/keel.db*; cp $work/base.db $work/keel.db; $keel --db $work/keel.db import prices $work/prices.csv --quiet"
 if [ -n "${KEEL_BASELINE:-}" ]; then
   set -- "$@" --cmd "baseline keel import prices" "rm -f $work/baseline.db*; cp $work/base.db $work/baseline.db; $KEEL_BASELINE --db $work/baseline.db import prices $work/prices.csv --quiet"
+fi
+if [ -n "${BENCH_RECORD:-}" ]; then
+  set -- --record "$BENCH_RECORD" "${securities}x${years}" "$@"
 fi
 /usr/bin/python3 "$here/interleave.py" --pairs "$rounds" \
   --ref "sqlite3 .import, file db" "rm -f $work/plain.db*; /usr/bin/sqlite3 $work/plain.db 'CREATE TABLE price (date TEXT, symbol TEXT, close TEXT)' '.mode csv' '.import --skip 1 $work/prices.csv price'" \

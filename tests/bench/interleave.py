@@ -14,7 +14,11 @@ then per command the ratio's minimum and median over the rounds, and its
 peak memory. The same ratios of processor time follow: on a machine that
 other work keeps busy, wall time also counts the time a command waited for a
 core, and processor time does not. Output of the commands goes to
-/dev/null; a command that fails stops the run. --repeat K runs each command K
+/dev/null; a command that fails stops the run. --record FILE LABEL appends one
+tab-separated line per command to FILE (label, command, processor time's
+ratio minimum and median, the command's median processor seconds, wall
+time's ratio median, peak MiB) for a table over several runs
+(scaling_table.py). --repeat K runs each command K
 times back to back inside one measurement and reports the time of one run:
 for commands of a few tens of milliseconds, which GNU time's 10 ms steps
 would otherwise blur.
@@ -46,6 +50,7 @@ def main():
     ap.add_argument("--repeat", type=int, default=1)
     ap.add_argument("--ref", nargs=2, metavar=("NAME", "COMMAND"), required=True)
     ap.add_argument("--cmd", nargs=2, metavar=("NAME", "COMMAND"), action="append", required=True)
+    ap.add_argument("--record", nargs=2, metavar=("FILE", "LABEL"))
     a = ap.parse_args()
     if a.pairs < 3:
         sys.exit("--pairs: at least 3 rounds are needed for a median worth the name")
@@ -71,6 +76,15 @@ def main():
             ratios = [t / max(r, 0.01 / a.repeat) for t, r in zip(series[name], series[ref])]
             print(f"{name:<28} {min(series[name]):8.3f} {statistics.median(series[name]):9.3f} "
                   f"{min(ratios):10.3f} {statistics.median(ratios):13.3f} {peak[name]:9.1f}")
+    if a.record:
+        floor = 0.01 / a.repeat
+        with open(a.record[0], "a") as f:
+            for name, _ in commands:
+                cpu_ratios = [t / max(r, floor) for t, r in zip(cpu[name], cpu[ref])]
+                wall_ratios = [t / max(r, floor) for t, r in zip(times[name], times[ref])]
+                f.write(f"{a.record[1]}\t{name}\t{min(cpu_ratios):.3f}\t"
+                        f"{statistics.median(cpu_ratios):.3f}\t{statistics.median(cpu[name]):.3f}\t"
+                        f"{statistics.median(wall_ratios):.3f}\t{peak[name]:.1f}\n")
 
 
 if __name__ == "__main__":
