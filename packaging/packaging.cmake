@@ -56,6 +56,34 @@ set(CPACK_DEBIAN_FILE_NAME DEB-DEFAULT)
 set(CPACK_DEBIAN_PACKAGE_SECTION utils)
 set(CPACK_DEBIAN_PACKAGE_PRIORITY optional)
 set(CPACK_DEBIAN_PACKAGE_SHLIBDEPS ON)  # Depends from the libraries keel links (dpkg-shlibdeps)
+# keel opens libcrypto and libxlsxwriter by SONAME when first needed
+# (core/shared_library.h), so dpkg-shlibdeps, which reads what keel links,
+# does not see them: each one's dependency is taken from the shlibs file of
+# the package that owns it here, as dpkg-shlibdeps would ("libssl3 (>= 3.0.22)").
+find_program(KEEL_DPKG_QUERY dpkg-query)
+set(KEEL_OPENED_DEPENDS "")
+foreach(opened "${OPENSSL_CRYPTO_LIBRARY};${KEEL_LIBCRYPTO_SONAME}"
+               "${KEEL_XLSXWRITER_LIBRARY};${KEEL_XLSXWRITER_SONAME}")
+  list(GET opened 0 library)
+  list(GET opened 1 soname)
+  if(NOT KEEL_DPKG_QUERY)
+    message(WARNING "no dpkg-query: the .deb will not depend on the package of ${soname}")
+    continue()
+  endif()
+  file(REAL_PATH ${library} real)
+  execute_process(COMMAND ${KEEL_DPKG_QUERY} -S ${real} OUTPUT_VARIABLE owner
+                  COMMAND_ERROR_IS_FATAL ANY)
+  string(REGEX REPLACE ":.*" "" owner "${owner}")
+  execute_process(COMMAND ${KEEL_DPKG_QUERY} --control-show ${owner} shlibs
+                  OUTPUT_VARIABLE shlibs COMMAND_ERROR_IS_FATAL ANY)
+  # libcrypto.so.3 is "libcrypto 3 <dependency>" in shlibs.
+  string(REGEX REPLACE "^(.+)\\.so\\.(.+)$" "\\1 \\2" key ${soname})
+  if(NOT shlibs MATCHES "(^|\n)${key} ([^\n]+)")
+    message(FATAL_ERROR "the shlibs file of ${owner} has no line for ${soname}")
+  endif()
+  list(APPEND KEEL_OPENED_DEPENDS ${CMAKE_MATCH_2})
+endforeach()
+list(JOIN KEEL_OPENED_DEPENDS ", " CPACK_DEBIAN_PACKAGE_DEPENDS)
 set(CPACK_DEBIAN_PACKAGE_RECOMMENDS chromium)  # prints the statement as PDF
 set(CPACK_DEBIAN_PACKAGE_SUGGESTS "man-db, bash-completion")
 set(CPACK_SET_DESTDIR ON)

@@ -118,6 +118,7 @@ void add_statement(CLI::App& app, Context& ctx) {
       throw InputError(
           "--pdf: no Chromium found on PATH to print the PDF; install it (Debian: apt-get "
           "install chromium) or write --html and print that");
+    if (!o->xlsx.empty()) report::load_xlsx_writer("--xlsx");
     std::optional<OutputFile> html_file, pdf_file, xlsx_file;
     open_output(html_file, o->html, "--html", false);
     open_output(pdf_file, o->pdf, "--pdf", true);

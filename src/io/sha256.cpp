@@ -9,13 +9,47 @@
 
 #include "core/error.h"
 #include "core/files.h"
+#include "core/shared_library.h"
 #include "core/text.h"
 
+#ifndef KEEL_LIBCRYPTO_SONAME
+#error "KEEL_LIBCRYPTO_SONAME: the SONAME of the libcrypto keel was built with (CMakeLists.txt)"
+#endif
+static_assert(sizeof(KEEL_LIBCRYPTO_SONAME) > 1, "KEEL_LIBCRYPTO_SONAME is empty");
+
 namespace keel::io {
+namespace {
+
+// The few functions of libcrypto a digest uses, typed from <openssl/evp.h>.
+// clang-format off
+#define KEEL_CRYPTO_FUNCTIONS(X)                                                                   \
+  X(EVP_MD_CTX_new) X(EVP_MD_CTX_free) X(EVP_sha256) X(EVP_DigestInit_ex) X(EVP_DigestUpdate)      \
+  X(EVP_DigestFinal_ex)
+// clang-format on
+
+struct Crypto {
+  KEEL_CRYPTO_FUNCTIONS(KEEL_LIBRARY_MEMBER)
+};
+
+// libcrypto, opened on the first digest of the run (core/shared_library.h).
+const Crypto& crypto() {
+  static const Crypto loaded = [] {
+    constexpr const char* soname = KEEL_LIBCRYPTO_SONAME;
+    constexpr std::string_view need = "computing a SHA-256 digest";
+    Crypto table;
+    void* handle = open_shared_library(soname, need);
+    KEEL_CRYPTO_FUNCTIONS(KEEL_LIBRARY_BIND)
+    return table;
+  }();
+  return loaded;
+}
+
+}  // namespace
 
 struct Sha256::Context {
-  EVP_MD_CTX* md = EVP_MD_CTX_new();
-  ~Context() { EVP_MD_CTX_free(md); }
+  const Crypto& c = crypto();
+  EVP_MD_CTX* md = c.EVP_MD_CTX_new();
+  ~Context() { c.EVP_MD_CTX_free(md); }
 };
 
 namespace {
@@ -28,19 +62,19 @@ void check(int ok, const char* what) {
 
 Sha256::Sha256() : ctx_(std::make_unique<Context>()) {
   if (!ctx_->md) throw std::runtime_error("SHA-256: libcrypto has no digest context");
-  check(EVP_DigestInit_ex(ctx_->md, EVP_sha256(), nullptr), "EVP_DigestInit_ex");
+  check(ctx_->c.EVP_DigestInit_ex(ctx_->md, ctx_->c.EVP_sha256(), nullptr), "EVP_DigestInit_ex");
 }
 
 Sha256::~Sha256() = default;
 
 void Sha256::update(const void* data, std::size_t size) {
-  check(EVP_DigestUpdate(ctx_->md, data, size), "EVP_DigestUpdate");
+  check(ctx_->c.EVP_DigestUpdate(ctx_->md, data, size), "EVP_DigestUpdate");
 }
 
 std::string Sha256::hex() {
   unsigned char digest[EVP_MAX_MD_SIZE];
   unsigned int length = 0;
-  check(EVP_DigestFinal_ex(ctx_->md, digest, &length), "EVP_DigestFinal_ex");
+  check(ctx_->c.EVP_DigestFinal_ex(ctx_->md, digest, &length), "EVP_DigestFinal_ex");
   static const char kHex[] = "0123456789abcdef";
   std::string out;
   out.reserve(2 * length);

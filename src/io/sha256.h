@@ -1,8 +1,11 @@
 // SHA-256 (FIPS 180-4), incremental: update() any number of times, then
 // hex() once for the lowercase hexadecimal digest. The digest is OpenSSL's
 // libcrypto (Debian's libssl-dev), which uses the processor's SHA
-// extensions where it has them. Throws std::runtime_error only if libcrypto
-// fails, which it does not for a digest in memory.
+// extensions where it has them. It is opened on the first digest of a run
+// (core/shared_library.h), so commands that take no digest do not load it.
+// The first Sha256 throws InputError when libcrypto cannot be loaded;
+// otherwise only std::runtime_error if libcrypto fails, which it does not for
+// a digest in memory.
 #pragma once
 
 #include <cstddef>

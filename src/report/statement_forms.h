@@ -27,6 +27,7 @@
 #include <filesystem>
 #include <optional>
 #include <string>
+#include <string_view>
 #include <vector>
 
 #include "core/files.h"
@@ -84,7 +85,13 @@ std::string statement_json(const Statement& s);  // ends with a newline
 // parent must exist). `option` names the folder in messages ("--csv").
 void write_statement_csv(const Statement& s, const std::filesystem::path& dir,
                          const std::string& option);
+// The workbook through libxlsxwriter, which is opened on the first XLSX of a
+// run (core/shared_library.h); throws InputError "<out's option>: writing
+// XLSX needs the shared library ..." when it cannot be loaded.
 void write_statement_xlsx(const Statement& s, OutputFile& out, Paper paper);
+// Opens libxlsxwriter now, so that a command can refuse before it works:
+// throws the same InputError, naming `option` ("--xlsx").
+void load_xlsx_writer(std::string_view option);
 
 // The first of chromium, chromium-browser on PATH; nullopt when there is none.
 std::optional<std::filesystem::path> find_chromium();

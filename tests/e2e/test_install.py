@@ -10,6 +10,11 @@ folders it was built in.
   There it runs `keel demo`, `keel --help` and `keel --version`, and imports an OFX statement
   through the module it finds relative to itself; a copy of the binary without the module
   refuses the OFX file, saying where it looked, and books nothing.
+- libcrypto (SHA-256) and libxlsxwriter are not loaded at start-up (`LD_DEBUG=files` of
+  `keel --version`) but by the command that needs them: the installed keel opens libxlsxwriter
+  for `statement --xlsx`, and libcrypto for an import. With the library's file replaced by an
+  empty one (a bind mount in the same namespace) it refuses, naming the library and the option,
+  and writes or books nothing.
 - `man -l` formats the installed page without a warning and shows every section; the installed
   completions complete.
 - `cpack -G DEB` builds a .deb whose control fields (package, version, dependencies found by
@@ -82,15 +87,17 @@ for installed in ("bin/keel", "lib/keel/keel-ofx.so"):
 
 
 # --- run where the tree cannot be reached ---
-def hidden_run(keel, *args, path="/usr/bin:/bin"):
+def hidden_run(keel, *args, path="/usr/bin:/bin", env_extra=None, emptied=()):
     """Runs keel with the source and build folders hidden, from a scratch folder, with an
-    environment that names nothing of the tree. Returns (code, stdout, stderr)."""
+    environment that names nothing of the tree (plus env_extra), and each file of `emptied`
+    replaced by an empty one. Returns (code, stdout, stderr)."""
     home = os.path.join(scratch, "home")
     os.makedirs(os.path.join(home, "tmp"), exist_ok=True)
     env = {"PATH": "/usr/bin:/bin", "HOME": home, "TMPDIR": os.path.join(home, "tmp"),
-           "LANG": "C.UTF-8", "NO_COLOR": "1"}
+           "LANG": "C.UTF-8", "NO_COLOR": "1", **(env_extra or {})}
     hide = [SOURCE_DIR] + ([] if BUILD_DIR.startswith(SOURCE_DIR + os.sep) else [BUILD_DIR])
-    script = "set -e\n" + "".join(f"mount -t tmpfs keel-hidden '{d}'\n" for d in hide) + (
+    script = "set -e\n" + "".join(f"mount -t tmpfs keel-hidden '{d}'\n" for d in hide) + "".join(
+        f"mount --bind /dev/null '{f}'\n" for f in emptied) + (
         f"test ! -e '{SOURCE_DIR}/CMakeLists.txt'\ntest ! -e '{BUILD_DIR}/CMakeCache.txt'\n"
         f"exec env PATH='{path}' \"$@\"\n")
     wrapped = ["unshare", "--mount", "--map-root-user", "sh", "-c", script, "hidden", keel, *args]
@@ -99,6 +106,7 @@ def hidden_run(keel, *args, path="/usr/bin:/bin"):
         print(f"note: no mount namespace here ({p.stderr.strip()}); running without one")
         hidden_run.warned = True
     if hidden_run.warned:
+        check(not emptied, "emptying a library file needs a mount namespace")
         p = run(["env", f"PATH={path}", keel, *args], env=env, cwd=home)
     return p.returncode, p.stdout, p.stderr
 
@@ -170,6 +178,63 @@ con = sqlite3.connect(os.path.join(scratch, "ofx-lonely", "ledger.db"))
 equal(con.execute("SELECT count(*) FROM txn").fetchone()[0], 0, "the refused import books nothing")
 con.close()
 
+
+# --- libcrypto and libxlsxwriter: opened by the commands that need them ---
+def opened(stderr):
+    """{soname: file} of the libraries a run opened itself (dlopen), from LD_DEBUG=files,libs."""
+    files = {os.path.basename(f): f for f in re.findall(r"calling init: (\S+)", stderr)}
+    return {n: files.get(n) for n in re.findall(r"file=(\S+) \[0\];  dynamically loaded by",
+                                                  stderr)}
+
+
+debug = {"LD_DEBUG": "files,libs"}
+code, out, err = hidden_run(installed_keel, "--version", env_extra=debug)
+equal(code, 0, "keel --version under LD_DEBUG")
+for library in ("libcrypto", "libxlsxwriter", "libofx", "libminizip"):
+    check(f"file={library}." not in err, f"keel --version loads no {library}")
+demo_db = os.path.join(scratch, "demo-installed", "keel.db")
+workbook = os.path.join(scratch, "demo-installed", "statement-2025.xlsx")
+code, out, err = hidden_run(installed_keel, "--db", demo_db, "statement", "--year", "2025",
+                            "--xlsx", workbook, env_extra=debug)
+equal((code, out), (0, f"wrote XLSX {workbook}\n"), "the installed keel writes the XLSX")
+xlsx_library = opened(err)
+equal(sorted(xlsx_library), ["libxlsxwriter.so.4"], "statement --xlsx opens libxlsxwriter itself")
+prices = os.path.join(scratch, "prices.csv")
+with open(prices, "w", encoding="utf-8") as f:
+    f.write("date,symbol,close\n2025-12-31,QRX,12.5\n")
+ledger_args = ["--db", os.path.join(scratch, "ofx-installed", "ledger.db")]
+code, out, err = hidden_run(installed_keel, *ledger_args, "import", "prices", prices,
+                            env_extra=debug)
+equal(code, 0, f"the installed keel imports prices: {out} {err[-400:]}")
+crypto_library = opened(err)
+equal(sorted(crypto_library), ["libcrypto.so.3"], "an import opens libcrypto itself")
+
+if hidden_run.warned:
+    print("note: no mount namespace; the runs without libcrypto and libxlsxwriter are skipped")
+else:
+    refused = os.path.join(scratch, "refused.xlsx")
+    code, out, err = hidden_run(installed_keel, "--db", demo_db, "statement", "--year", "2025",
+                                "--xlsx", refused,
+                                emptied=[xlsx_library["libxlsxwriter.so.4"]])
+    equal((code, out), (1, ""), f"without libxlsxwriter: exit status and output ({err})")
+    check(err.startswith("keel: error: --xlsx: writing XLSX needs the shared library "
+                         "libxlsxwriter.so.4, which cannot be loaded from LD_LIBRARY_PATH, "
+                         "/etc/ld.so.cache, /lib or /usr/lib: "), err)
+    equal([f for f in os.listdir(scratch) if "refused" in f], [],
+          "no workbook, nor its temporary file, without libxlsxwriter")
+    before = sqlite3.connect(ledger_args[1]).execute("SELECT count(*) FROM price").fetchone()
+    more = os.path.join(scratch, "more-prices.csv")
+    with open(more, "w", encoding="utf-8") as f:
+        f.write("date,symbol,close\n2025-12-30,QRX,12.25\n")
+    code, out, err = hidden_run(installed_keel, *ledger_args, "import", "prices", more,
+                                emptied=[crypto_library["libcrypto.so.3"]])
+    equal((code, out), (1, ""), f"without libcrypto: exit status and output ({err})")
+    check(err.startswith("keel: error: computing a SHA-256 digest needs the shared library "
+                         "libcrypto.so.3, which cannot be loaded from LD_LIBRARY_PATH, "
+                         "/etc/ld.so.cache, /lib or /usr/lib: "), err)
+    equal(sqlite3.connect(ledger_args[1]).execute("SELECT count(*) FROM price").fetchone(),
+          before, "an import without libcrypto books nothing")
+
 # --- the manual page, as man shows it ---
 page = os.path.join(prefix, "share", "man", "man1", "keel.1.gz")
 with gzip.open(page, "rt", encoding="utf-8") as f:
@@ -217,10 +282,13 @@ equal(field("Section"), "utils", "Section")
 check(re.fullmatch(r"[^<>]+ <[^<>@ ]+@[^<>@ ]+>", field("Maintainer")), field("Maintainer"))
 depends = {re.sub(r"\s*\(.*\)", "", d.strip()) for d in field("Depends").split(",")}
 check({"libc6", "libfmt9", "libsqlite3-0", "libstdc++6", "libtomlplusplus3",
-       "libxlsxwriter4", "libofx7"} <= depends, f"Depends names the libraries keel links: {depends}")
-# ... and nothing else: every package named owns a library the binary loads (ldd, dpkg -S).
+       "libxlsxwriter4", "libofx7", "libssl3"} <= depends,
+      f"Depends names the libraries keel links or opens: {depends}")
+# ... and nothing else: every package named owns a library the binary loads (ldd, dpkg -S),
+# or one it opens when needed (above).
 loaded = [lib for installed in ("bin/keel", "lib/keel/keel-ofx.so") for lib in
           re.findall(r"=> (/\S+)", run(["ldd", os.path.join(prefix, installed)]).stdout)]
+loaded += list(xlsx_library.values()) + list(crypto_library.values())
 owners = set()
 for lib in loaded:
     found = run(["dpkg", "-S", os.path.realpath(lib)])
