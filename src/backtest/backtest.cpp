@@ -13,6 +13,7 @@
 #include "core/text.h"
 #include "ledger/actions.h"
 #include "rules/inputs.h"
+#include "rules/order_rounds.h"
 #include "rules/track_record.h"
 
 namespace keel::backtest {
@@ -335,7 +336,7 @@ class OrderPool {
     const rules::Quotes quotes =
         inputs_.quotes(h_.market, day, sel.targets, held(), {}, quote_notes);
     const auto plan =
-        rules::orders(p, sel.targets, quotes, rule_.trading, day, rules::Explain::none);
+        rules::orders_only(p, sel.targets, quotes, rule_.trading, day, rules::Explain::none);
     // The orders applied as rules::apply() applies them, on the pool's own
     // units: what is held afterwards, by column.
     std::vector<int> touched = held_.columns;

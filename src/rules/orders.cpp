@@ -3,6 +3,7 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <limits>
 #include <map>
 #include <optional>
 #include <set>
@@ -13,6 +14,7 @@
 
 #include "ledger/holdings.h"
 #include "rules/engine.h"
+#include "rules/order_rounds.h"
 #include "rules/order_steps.h"
 
 namespace keel::rules {
@@ -32,6 +34,32 @@ const Decimal& basis_point() {
 const Decimal& one_percent() {
   static const Decimal pc = Decimal::parse("0.01");
   return pc;
+}
+
+// (a * b).rounded(places), exactly, without the product as a value of its
+// own when both mantissas fit a machine word: their product (below 2^126)
+// is rounded half-to-even in 128 bits, with at most 37 digits dropped so
+// that twice a remainder fits too. Only trailing zeros separate it from the
+// normalized product, so the quotient is the one rounded() gives.
+Decimal times_rounded(const Decimal& a, const Decimal& b, int places) {
+  __extension__ typedef __int128 Wide;
+  const auto x = a.machine_mantissa(), y = b.machine_mantissa();
+  const int scale = a.scale() + b.scale();
+  if (x && y && places >= 0 && scale - places <= 37) {
+    Wide q = static_cast<Wide>(*x) * *y;
+    if (scale > places) {
+      Wide ten = 1;
+      for (int i = places; i < scale; ++i) ten *= 10;
+      const Wide r = q % ten;  // same sign as q
+      q /= ten;
+      const Wide twice = (r < 0 ? -r : r) * 2;
+      if (twice > ten || (twice == ten && q % 2 != 0)) q += r < 0 ? -1 : 1;
+    }
+    constexpr Wide kWord = std::numeric_limits<long long>::max();
+    if (q >= -kWord && q <= kWord && std::min(scale, places) <= Decimal::kMaxScale)
+      return Decimal::scaled(static_cast<long long>(q), std::min(scale, places));
+  }
+  return (a * b).rounded(places);
 }
 
 std::string pct(const Decimal& fraction) {
@@ -162,10 +190,16 @@ std::vector<Work> work_names(const Portfolio& portfolio, const std::vector<Targe
                              const Quotes& quotes, const Decimal& pool_value) {
   std::vector<Work> work;
   work.reserve(targets.size());
-  std::unordered_set<std::int64_t> listed;
-  listed.reserve(targets.size() * 2);
+  // The targets' securities, sorted: one allocation, not one per name. A
+  // security named twice keeps its first target (rare: a set then says which).
+  std::vector<std::int64_t> listed;
+  listed.reserve(targets.size());
+  for (const auto& t : targets) listed.push_back(t.security_id);
+  std::sort(listed.begin(), listed.end());
+  const bool repeats = std::adjacent_find(listed.begin(), listed.end()) != listed.end();
+  std::unordered_set<std::int64_t> seen;
   for (const auto& t : targets) {
-    if (!listed.insert(t.security_id).second) continue;
+    if (repeats && !seen.insert(t.security_id).second) continue;
     Work w;
     w.security_id = t.security_id;
     w.quote = &quote_of(quotes, t.security_id);
@@ -176,7 +210,8 @@ std::vector<Work> work_names(const Portfolio& portfolio, const std::vector<Targe
   std::map<std::string_view, std::int64_t> others;  // by symbol
   for (const auto& acct : portfolio.accounts)
     for (const auto& [id, h] : acct.holdings)
-      if (!listed.count(id) && h.quantity.is_positive()) others[quote_of(quotes, id).symbol] = id;
+      if (h.quantity.is_positive() && !std::binary_search(listed.begin(), listed.end(), id))
+        others[quote_of(quotes, id).symbol] = id;
   for (const auto& [symbol, id] : others) {
     Work w;
     w.security_id = id;
@@ -199,7 +234,7 @@ void aim(std::vector<Work>& work, const PoolValue& pool, bool fresh) {
   for (auto& x : work) {
     const Decimal weight = x.target ? x.target->weight : Decimal();
     // Money: a target value is set to the cent.
-    Decimal value = (weight * pool.invested_target).rounded(2);
+    Decimal value = times_rounded(weight, pool.invested_target, 2);
     if (!fresh && value == x.target_value) continue;
     x.w_target = value.is_zero() ? Decimal() : Decimal::divide(value, pool.value, 6);
     x.target_value = std::move(value);
@@ -223,17 +258,19 @@ Decision decide(const Work& x, const TradingRule& trading, Date as_of, Explain e
   const Decimal diff = x.target_value - x.now_value;
   if (diff.is_zero()) return d;
   const bool words = explain == Explain::all;
-  // Reasons are formatted only when they are shown.
+  // Reasons are formatted only when they are shown. Every path returns `d`
+  // itself, so it is built in place.
   auto skip = [&](auto why) {
     d.kind = Decision::Kind::skip;
     if (words) d.why = why();
-    return d;
   };
-  if (!x.quote->tradable)
-    return skip([&] {
+  if (!x.quote->tradable) {
+    skip([&] {
       return fmt::format("no close on or before {}; valued at the last trade price, not traded",
                          as_of.str());
     });
+    return d;
+  }
   if (x.now_value.is_positive() && x.target_value.is_positive()) {
     // The drift band applies to names that stay; entries and exits always trade.
     const bool pp_on = trading.drift_pct_points.is_positive();
@@ -244,11 +281,13 @@ Decision decide(const Work& x, const TradingRule& trading, Date as_of, Explain e
       outside = (pp_on && gap_pct > trading.drift_pct_points) ||
                 (rel_on && gap_pct > trading.drift_rel_pct * x.w_target);
     }
-    if (!outside)
-      return skip([&] {
+    if (!outside) {
+      skip([&] {
         return fmt::format("within the drift band: {} now, target {}", pct(x.w_now),
                            pct(x.w_target));
       });
+      return d;
+    }
   }
   if (diff.is_positive()) {
     d.kind = Decision::Kind::buy;
@@ -261,15 +300,19 @@ Decision decide(const Work& x, const TradingRule& trading, Date as_of, Explain e
   const Decimal step = step_of(*x.quote, trading);
   const bool exit = !x.target_value.is_positive();
   const Decimal qty = exit ? x.held : std::min(x.held, units_within(-diff, x.quote->price, step));
-  if (!qty.is_positive())
-    return skip([&] {
+  if (!qty.is_positive()) {
+    skip([&] {
       return fmt::format("{} above target is less than one lot ({})", (-diff).fixed(2), step.str());
     });
-  if (!exit && qty * x.quote->price < trading.min_trade)
-    return skip([&] {
+    return d;
+  }
+  if (!exit && qty * x.quote->price < trading.min_trade) {
+    skip([&] {
       return fmt::format("a sell of {} is below the minimum trade ({})",
                          (qty * x.quote->price).fixed(2), trading.min_trade.str());
     });
+    return d;
+  }
   d.kind = Decision::Kind::sell;
   d.sell_units = qty;
   if (words) d.reason = fmt::format("{}: {}", x.why, exit ? "sell all" : "trim to target");
@@ -513,9 +556,15 @@ bool raise_cash(std::size_t a, const std::vector<Work>& work, const Portfolio& p
   return !cash[a].is_negative();
 }
 
-Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
-                std::vector<Decimal>& cash, const std::vector<Decimal>& reserve,
-                const TradingRule& trading, Explain explain, const HouseholdPrefs& prefs) {
+namespace {
+
+// buy_orders(), with each name's buy cost taken from `costs` (in the order of
+// `work`) for the wishes whose name is in `work`, and worked out here for the
+// others.
+Buys buy_orders_at(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
+                   std::vector<Decimal>& cash, const std::vector<Decimal>& reserve,
+                   const TradingRule& trading, Explain explain, const HouseholdPrefs& prefs,
+                   const std::vector<Work>* work, const std::vector<BuyCost>* costs) {
   const bool words = explain == Explain::all;
   auto placed = [&](std::int64_t id) { return prefs.place_deferred.count(id) > 0; };
   auto deferred = [&](std::size_t a) {
@@ -527,18 +576,11 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
   auto fee = [&](const Decimal& value) {
     return value.is_zero() ? Decimal() : (trading.fee_fixed + value * fee_rate).rounded(2);
   };
-  // A unit's cost with the proportional fee, as a multiple of its price.
-  const Decimal fee_factor = Decimal(1) + fee_rate;
-  static const Decimal almost_one = Decimal::parse("0.999");
-  static const Decimal smallest_quick_step = Decimal::parse("0.000001");
   struct Buy {
     const BuyWish* wish = nullptr;
-    Decimal price, step;
-    Decimal unit;  // a unit's price with the proportional fee
-    // Below this, cash less the fixed fee cannot pay for one step (see `add`);
-    // unset for steps too small for that bound to hold.
-    std::optional<Decimal> no_step_below;
-    std::string why_none;  // empty: no cash left above the reserve
+    const Decimal* price = nullptr;  // the quote's
+    const BuyCost* cost = nullptr;   // the name's, or one worked out here
+    std::string why_none;            // empty: no cash left above the reserve
     // Orders by account, in account order (most buys have one).
     std::vector<std::pair<std::size_t, Order>> by_account;
     Order* find(std::size_t a) {
@@ -557,16 +599,29 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
       return v;
     }
   };
+  // The cost given for a wish's name, if any.
+  auto given = [&](const BuyWish& w) -> const BuyCost* {
+    if (!work || !costs || work->empty() || w.work < work->data() ||
+        w.work >= work->data() + work->size())
+      return nullptr;
+    return &(*costs)[static_cast<std::size_t>(w.work - work->data())];
+  };
+  // Costs for the names without one given; reserved first, so the pointers
+  // to them stay valid.
+  std::vector<BuyCost> own;
+  own.reserve(static_cast<std::size_t>(std::count_if(
+      wishes.begin(), wishes.end(), [&](const BuyWish& w) { return given(w) == nullptr; })));
   std::vector<Buy> buys(wishes.size());
   for (std::size_t i = 0; i < wishes.size(); ++i) {
     Buy& b = buys[i];
     b.wish = &wishes[i];
-    const Quote& quote = *wishes[i].work->quote;
-    b.price = quote.price;
-    b.step = step_of(quote, trading);
-    b.unit = b.price * fee_factor;
-    if (b.step >= smallest_quick_step && b.unit.is_positive())
-      b.no_step_below = b.unit * b.step * almost_one;
+    const Work& x = *wishes[i].work;
+    b.price = &x.quote->price;
+    b.cost = given(wishes[i]);
+    if (!b.cost) {
+      own.push_back(buy_cost(*x.quote, trading));
+      b.cost = &own.back();
+    }
   }
   const std::size_t n_accounts = portfolio.accounts.size();
 
@@ -609,8 +664,8 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
   };
   auto less_than_a_lot = [&](Buy& b) {
     if (words)
-      b.why_none = fmt::format("less than one lot ({} at {}) fits the cash to spend", b.step.str(),
-                               b.price.str());
+      b.why_none = fmt::format("less than one lot ({} at {}) fits the cash to spend",
+                               b.cost->step.str(), b.price->str());
     return Decimal();
   };
   // Adds to `b` in account `a` at most `max_q` units costing at most `budget`
@@ -619,8 +674,8 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
   auto add = [&](Buy& b, std::size_t a, const Decimal& budget,
                  const std::optional<Decimal>& max_q) -> Decimal {
     const Work& x = *b.wish->work;
-    const Decimal& step = b.step;
-    const Decimal& price = b.price;
+    const Decimal& step = b.cost->step;
+    const Decimal& price = *b.price;
     Order* it = b.find(a);
     const bool fresh = it == nullptr;
     const Decimal limit = std::min(budget, spendable[a]);
@@ -631,9 +686,9 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
     const Decimal room = fresh ? limit - trading.fee_fixed : limit + have_cost - trading.fee_fixed;
     // Nothing held yet and cash less the fixed fee below 0.999 of a step:
     // the quotient below is then under 0.999 + 10^-4 steps, so no step fits.
-    if (fresh && b.no_step_below && room < *b.no_step_below) return less_than_a_lot(b);
+    if (fresh && b.cost->no_step_below && room < *b.cost->no_step_below) return less_than_a_lot(b);
     // Largest added quantity whose order (value + fee) grows by at most `limit`.
-    Decimal q = floor_to(Decimal::divide(room, b.unit, 10), step);
+    Decimal q = floor_to(Decimal::divide(room, b.cost->unit, 10), step);
     if (!fresh) q -= have_q;
     if (max_q && q > *max_q) q = *max_q;
     // The order's value and fee at the last quantity tried: the loop ends on
@@ -685,7 +740,7 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
     std::vector<std::pair<Decimal, Buy*>> by_gap;
     for (auto& b : buys) {
       Decimal gap = b.wish->want - b.bought();
-      if (gap < b.price * b.step) continue;
+      if (gap < b.cost->one_step) continue;
       by_gap.emplace_back(std::move(gap), &b);
     }
     std::stable_sort(by_gap.begin(), by_gap.end(), [&](const auto& a, const auto& b) {
@@ -695,13 +750,13 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
       return a.first > b.first;
     });
     for (auto& [gap0, b] : by_gap) {
-      const Decimal one_step = b->price * b->step;
+      const Decimal& one_step = b->cost->one_step;
       for (std::size_t a : account_order(b->wish->work->security_id)) {
         // Value left to target; fees come out of the cash, not the target.
         const Decimal gap = b->wish->want - b->bought();
         if (gap < one_step) break;
         if (!spendable[a].is_positive()) continue;
-        add(*b, a, spendable[a], units_within(gap, b->price, b->step));
+        add(*b, a, spendable[a], units_within(gap, *b->price, b->cost->step));
       }
       if (!any_spendable()) break;  // no later buy could add anything
     }
@@ -725,6 +780,14 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
     }
   }
   return out;
+}
+
+}  // namespace
+
+Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
+                std::vector<Decimal>& cash, const std::vector<Decimal>& reserve,
+                const TradingRule& trading, Explain explain, const HouseholdPrefs& prefs) {
+  return buy_orders_at(wishes, portfolio, cash, reserve, trading, explain, prefs, nullptr, nullptr);
 }
 
 void rebuy_after_raise(const std::vector<Work>& work, const std::vector<Order>& orders,
@@ -810,6 +873,21 @@ void summarize(OrderPlan& plan, const Portfolio& portfolio, const std::vector<Wo
 
 }  // namespace steps
 
+BuyCost buy_cost(const Quote& quote, const TradingRule& trading) {
+  static const Decimal almost_one = Decimal::parse("0.999");
+  static const Decimal smallest_quick_step = Decimal::parse("0.000001");
+  BuyCost c;
+  c.step = steps::step_of(quote, trading);
+  // A unit's cost with the proportional fee, as a multiple of its price.
+  c.unit = quote.price * (Decimal(1) + trading.fee_bps * steps::basis_point());
+  c.one_step = quote.price * c.step;
+  // Cash less the fixed fee below 0.999 of a step's cost: the quotient in
+  // buy_orders() is then under 0.999 + 10^-4 steps, so no step fits.
+  if (c.step >= smallest_quick_step && c.unit.is_positive())
+    c.no_step_below = c.unit * c.step * almost_one;
+  return c;
+}
+
 namespace {
 
 // A plan before its summary (steps::summarize), with the pool the summary
@@ -825,9 +903,9 @@ struct Draft {
 // each account's value (steps::value_pool); `work`: the names the plan
 // touches, their targets set here for this guess.
 Draft plan_once(const Portfolio& portfolio, const std::vector<Decimal>& values,
-                std::vector<steps::Work>& work, const TradingRule& trading, Date as_of,
-                const std::vector<Decimal>& fee_guess, bool first, Explain explain,
-                const HouseholdPrefs& prefs) {
+                std::vector<steps::Work>& work, const std::vector<BuyCost>& costs,
+                const TradingRule& trading, Date as_of, const std::vector<Decimal>& fee_guess,
+                bool first, Explain explain, const HouseholdPrefs& prefs) {
   Draft draft;
   OrderPlan& plan = draft.plan;
   steps::PoolValue& pool = draft.pool;
@@ -880,8 +958,8 @@ Draft plan_once(const Portfolio& portfolio, const std::vector<Decimal>& values,
                              explain);
   }
   for (auto& k : tax.kept) plan.skipped.push_back(std::move(k));
-  auto buys =
-      steps::buy_orders(wishes, portfolio, pool.cash, pool.reserve, trading, explain, prefs);
+  auto buys = steps::buy_orders_at(wishes, portfolio, pool.cash, pool.reserve, trading, explain,
+                                   prefs, &work, &costs);
   plan.orders.reserve(plan.orders.size() + buys.orders.size());
   for (auto& o : buys.orders) plan.orders.push_back(std::move(o));
   plan.skipped.reserve(plan.skipped.size() + buys.skipped.size());
@@ -890,11 +968,10 @@ Draft plan_once(const Portfolio& portfolio, const std::vector<Decimal>& values,
   return draft;
 }
 
-}  // namespace
-
-OrderPlan orders(const Portfolio& portfolio, const std::vector<Target>& targets,
-                 const Quotes& quotes, const TradingRule& trading, Date as_of, Explain explain,
-                 const HouseholdPrefs& prefs) {
+// orders() and orders_only(): with `summary` false the last plan is not summarized.
+OrderPlan plan_orders(const Portfolio& portfolio, const std::vector<Target>& targets,
+                      const Quotes& quotes, const TradingRule& trading, Date as_of, Explain explain,
+                      const HouseholdPrefs& prefs, bool summary) {
   // Targets are set on the pool as it will stand after this plan's own fees,
   // so that posting the orders and proposing again finds nothing to do. The
   // fees depend on the orders, so iterate to a fixed point (a few rounds;
@@ -904,9 +981,16 @@ OrderPlan orders(const Portfolio& portfolio, const std::vector<Target>& targets,
   Decimal pool_value;
   for (const auto& v : values) pool_value += v;
   std::vector<steps::Work> work;
-  if (pool_value.is_positive()) work = steps::work_names(portfolio, targets, quotes, pool_value);
+  if (pool_value.is_positive()) {
+    work = steps::work_names(portfolio, targets, quotes, pool_value);
+  }
+  // What a step of each name costs, the same in every round.
+  std::vector<BuyCost> costs;
+  costs.reserve(work.size());
+  for (const auto& x : work) costs.push_back(buy_cost(*x.quote, trading));
   std::vector<Decimal> guess(portfolio.accounts.size());
-  Draft draft = plan_once(portfolio, values, work, trading, as_of, guess, true, explain, prefs);
+  Draft draft =
+      plan_once(portfolio, values, work, costs, trading, as_of, guess, true, explain, prefs);
   for (int round = 0; round < 8; ++round) {
     std::vector<Decimal> fees(portfolio.accounts.size());
     for (const auto& o : draft.plan.orders)
@@ -914,10 +998,24 @@ OrderPlan orders(const Portfolio& portfolio, const std::vector<Target>& targets,
         if (portfolio.accounts[a].id == o.account_id) fees[a] += o.fee;
     if (fees == guess) break;
     guess = std::move(fees);
-    draft = plan_once(portfolio, values, work, trading, as_of, guess, false, explain, prefs);
+    draft = plan_once(portfolio, values, work, costs, trading, as_of, guess, false, explain, prefs);
   }
-  if (draft.summarize) steps::summarize(draft.plan, portfolio, work, draft.pool);
+  if (summary && draft.summarize) steps::summarize(draft.plan, portfolio, work, draft.pool);
   return std::move(draft.plan);
+}
+
+}  // namespace
+
+OrderPlan orders(const Portfolio& portfolio, const std::vector<Target>& targets,
+                 const Quotes& quotes, const TradingRule& trading, Date as_of, Explain explain,
+                 const HouseholdPrefs& prefs) {
+  return plan_orders(portfolio, targets, quotes, trading, as_of, explain, prefs, true);
+}
+
+OrderPlan orders_only(const Portfolio& portfolio, const std::vector<Target>& targets,
+                      const Quotes& quotes, const TradingRule& trading, Date as_of, Explain explain,
+                      const HouseholdPrefs& prefs) {
+  return plan_orders(portfolio, targets, quotes, trading, as_of, explain, prefs, false);
 }
 
 Portfolio apply(const Portfolio& portfolio, const std::vector<Order>& orders) {

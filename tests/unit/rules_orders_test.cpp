@@ -5,6 +5,7 @@
 
 #include "core/error.h"
 #include "rules/engine.h"
+#include "rules/order_rounds.h"
 #include "rules/order_steps.h"
 
 using namespace keel;
@@ -471,6 +472,32 @@ steps::Buys buy_from(const char* cash, const std::vector<steps::BuyWish>& wishes
   return steps::buy_orders(wishes, p, left, {Decimal()}, trading);
 }
 
+// The same orders: names, quantities, values, fees and reasons.
+void check_same_orders(const std::vector<Order>& got, const std::vector<Order>& want) {
+  REQUIRE(got.size() == want.size());
+  for (std::size_t i = 0; i < want.size(); ++i) {
+    CHECK(got[i].symbol == want[i].symbol);
+    CHECK(got[i].quantity == want[i].quantity);
+    CHECK(got[i].value == want[i].value);
+    CHECK(got[i].fee == want[i].fee);
+    CHECK(got[i].reason == want[i].reason);
+  }
+}
+
+// Main holds 10 of H at 100 and 1000 of cash; the targets: X 0.6 and H 0.4.
+struct TwoNames {
+  Portfolio p;
+  std::vector<Target> t;
+  Quotes q;
+};
+TwoNames two_names() {
+  AccountState a = account(1, "Main", "1000");
+  a.holdings[12] = HoldingState{Decimal(10), {}};
+  return {Portfolio{{a}},
+          {target(10, "X", "0.6"), target(12, "H", "0.4")},
+          quotes({{10, "X", "30"}, {12, "H", "100"}})};
+}
+
 }  // namespace
 
 TEST_CASE("order steps: a buy gets one lot exactly when its cost with fees fits the cash") {
@@ -517,14 +544,80 @@ TEST_CASE("order steps: a fractional buy gets one step exactly when it fits the 
   CHECK(buys.skipped[0].why == "less than one lot (0.0001 at 50) fits the cash to spend");
 }
 
+TEST_CASE("orders: buy_cost is a step's cost, worked out once for every fee round") {
+  // X at 100 in lots of 1 with 10 bp: a unit costs 100.1, a step is worth
+  // 100, and below 0.999 x 100.1 = 99.9999 (less the fixed fee) no step fits.
+  const Quote qx{"X", Decimal(100), true, Decimal(1)};
+  TradingRule g;
+  g.fee_fixed = Decimal(1);
+  g.fee_bps = Decimal(10);
+  auto c = buy_cost(qx, g);
+  CHECK(c.step == Decimal(1));
+  CHECK(c.unit == dec("100.1"));
+  CHECK(c.one_step == Decimal(100));
+  REQUIRE(c.no_step_below);
+  CHECK(*c.no_step_below == dec("99.9999"));
+  // Fractional steps of 10^-4: worth 0.01.
+  g.fractional = true;
+  c = buy_cost(qx, g);
+  CHECK(c.step == dec("0.0001"));
+  CHECK(c.one_step == dec("0.01"));
+}
+
+TEST_CASE("orders: buys in orders() are the buys of the buy_orders step") {
+  // orders() takes each step's cost from buy_cost() once; buy_orders() alone
+  // works it out itself. X at 37.13 and Y at 251.70, from 5000.
+  const Portfolio p{{account(1, "Main", "5000")}};
+  const std::vector<Target> t{target(10, "X", "0.4"), target(11, "Y", "0.6")};
+  const auto q = quotes({{10, "X", "37.13"}, {11, "Y", "251.7"}});
+  TradingRule g;
+  g.fee_fixed = dec("4.95");
+  g.fee_bps = Decimal(7);
+  const auto plan = orders(p, t, q, g, kAsOf);
+  REQUIRE(plan.orders.size() == 2);
+  // The last round's targets: what the plan's fees leave invested.
+  const steps::Work x = to_buy(q.at(10), 10), y = to_buy(q.at(11), 11);
+  const Decimal invested = Decimal(5000) - plan.estimated_fees;
+  const std::vector<steps::BuyWish> wishes{{&x, (dec("0.4") * invested).rounded(2), "x"},
+                                           {&y, (dec("0.6") * invested).rounded(2), "y"}};
+  std::vector<Decimal> cash;
+  const auto buys = buy_from("5000", wishes, g, cash);
+  REQUIRE(buys.orders.size() == 2);
+  for (std::size_t i = 0; i < 2; ++i) {
+    CHECK(buys.orders[i].quantity == plan.orders[i].quantity);
+    CHECK(buys.orders[i].fee == plan.orders[i].fee);
+  }
+  // 1994.76 and 2992.14 wanted: X 53 units, Y 11.
+  CHECK(plan.orders[0].quantity == Decimal(53));
+  CHECK(plan.orders[1].quantity == Decimal(11));
+}
+
+TEST_CASE("order steps: aim rounds each target value to the cent, ties to even") {
+  // Expected values from Python's decimal module (quantize, ROUND_HALF_EVEN).
+  auto aimed = [](const char* weight, const char* invested) {
+    const Target t = target(10, "X", weight);
+    const Quote q{"X", Decimal(10), true, Decimal(1)};
+    std::vector<steps::Work> work(1);
+    work[0].quote = &q;
+    work[0].target = &t;
+    steps::PoolValue pool;
+    pool.value = dec(invested) + Decimal(1);
+    pool.invested_target = dec(invested);
+    steps::aim(work, pool, true);
+    return work[0].target_value.str();
+  };
+  CHECK(aimed("0.125", "0.2") == "0.02");  // 0.025
+  CHECK(aimed("0.375", "0.2") == "0.08");  // 0.075
+  CHECK(aimed("-0.125", "0.2") == "-0.02");
+  // 2173913043 x 9876543210 is past a machine word: 214707.46103972088030.
+  CHECK(aimed("0.002173913043", "98765432.10") == "214707.46");
+  CHECK(aimed("0.5", "1000") == "500");
+}
+
 TEST_CASE("order steps: aiming again sets the target values on the new pool") {
   // The fee rounds of orders() aim the same work list at pools that differ
   // only in their invested target.
-  AccountState a = account(1, "Main", "1000");
-  a.holdings[12] = HoldingState{Decimal(10), {}};
-  const Portfolio p{{a}};
-  const std::vector<Target> t{target(10, "X", "0.6"), target(12, "H", "0.4")};
-  const auto q = quotes({{10, "X", "30"}, {12, "H", "100"}});
+  const auto [p, t, q] = two_names();
   auto pool = steps::value_pool(p, q, {}, {Decimal()});
   auto work = steps::work_names(p, t, q, pool.value);
   steps::aim(work, pool, true);
@@ -559,6 +652,23 @@ TEST_CASE("orders: without explanations a buy that gets nothing is skipped witho
   CHECK(quiet.skipped[0].symbol == "X");
   CHECK(quiet.skipped[0].why.empty());
   CHECK(quiet.orders.empty());
+}
+
+TEST_CASE("orders: orders_only gives the orders of orders() without the summary") {
+  const auto [p, t, q] = two_names();
+  TradingRule g;
+  g.fee_fixed = Decimal(1);
+  g.fee_bps = Decimal(5);
+  const auto full = orders(p, t, q, g, kAsOf);
+  const auto only = orders_only(p, t, q, g, kAsOf);
+  REQUIRE(!full.orders.empty());
+  check_same_orders(only.orders, full.orders);
+  CHECK(only.pool_value == full.pool_value);
+  CHECK(only.invested_target == full.invested_target);
+  CHECK(full.estimated_fees.is_positive());
+  CHECK(only.estimated_fees.is_zero());
+  CHECK(only.weights_after.empty());
+  CHECK(only.cash_after.empty());
 }
 
 TEST_CASE("order steps: a sell from one account without lots is one order of at most its units") {
