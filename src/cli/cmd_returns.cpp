@@ -7,6 +7,7 @@
 #include "cli/context.h"
 #include "cli/options.h"
 #include "core/error.h"
+#include "core/memory.h"
 #include "perf/returns_report.h"
 #include "report/returns_forms.h"
 
@@ -47,6 +48,7 @@ void add_returns(CLI::App& app, Context& ctx) {
                 "Also each account's time- and money-weighted returns in its own currency");
   add_json_flag(*cmd, o->json);
   cmd->callback([&ctx, o] {
+    keep_freed_memory();  // core/memory.h: the report builds and drops large series
     if (o->method != "daily" && o->method != "dietz")
       throw InputError(
           fmt::format("--method: '{}' is not a method; choose daily or dietz", o->method));

@@ -15,6 +15,7 @@
 #include "cli/options.h"
 #include "core/error.h"
 #include "core/files.h"
+#include "core/memory.h"
 #include "core/text.h"
 #include "report/statement.h"
 #include "report/statement_forms.h"
@@ -85,6 +86,7 @@ void add_statement(CLI::App& app, Context& ctx) {
   add_currency_option(*cmd, o->currency);
   add_json_flag(*cmd, o->json);
   cmd->callback([&ctx, o] {
+    keep_freed_memory();  // core/memory.h: the report builds and drops large series
     report::StatementRequest request;
     request.year =
         whole_number(o->year, "--year", report::kFirstStatementYear, report::kLastStatementYear,

@@ -269,6 +269,16 @@ std::optional<Decimal> Book::last_trade_price(std::int64_t security_id) const {
   return std::nullopt;
 }
 
+Book Book::holdings_copy() const {
+  Book copy(accounts_, pending_, rates_);
+  copy.books_ = books_;
+  copy.last_trade_ = last_trade_;
+  copy.in_transit_ = in_transit_;
+  copy.touched_today_ = touched_today_;
+  copy.last_txn_today_ = last_txn_today_;
+  return copy;
+}
+
 const Account& Book::account_info(std::int64_t account_id) const {
   return accounts_.at(index_.at(account_id));
 }
@@ -325,7 +335,10 @@ std::vector<std::size_t> taking_order(const std::vector<Lot>& lots, BasisMethod 
       });
       break;
     default:  // fifo, and average (which takes quantities oldest first)
-      std::stable_sort(order.begin(), order.end(), older);
+      // Lots are opened in posting order, so they are usually oldest first
+      // already; stable sorting them again would only copy the order.
+      if (!std::is_sorted(order.begin(), order.end(), older))
+        std::stable_sort(order.begin(), order.end(), older);
   }
   return order;
 }
@@ -393,7 +406,9 @@ std::vector<Lot> Book::take_lots(const Transaction& txn, const Account& account,
                     "'keel lots')",
                     describe(txn), printable(account.name)));
 
-  const Decimal cost_before = position.cost();
+  // Only average cost re-pools what it takes; the other methods take each
+  // lot's own cost, and need no sum of them.
+  const Decimal cost_before = account.basis == BasisMethod::average ? position.cost() : Decimal();
   Decimal remaining = wanted;
   for (std::size_t i : taking_order(position.lots, account.basis)) {
     if (remaining.is_zero()) break;

@@ -157,6 +157,12 @@ class Book {
   };
   std::optional<TradePrice> last_trade(std::int64_t security_id) const;
   std::optional<Decimal> last_trade_price(std::int64_t security_id) const;
+  // A copy of what is held: accounts, cash, positions and their lots, foreign
+  // cash, lots in transit and last trades, replaying on from here as this
+  // book would. The history lists stay behind: realized(), moved(),
+  // fx_realized() and fx_cash_moved() of the copy are empty. Holdings at a
+  // past day, without copying every part realized before it.
+  Book holdings_copy() const;
 
  private:
   friend class ActionEngine;

@@ -264,7 +264,8 @@ Series Series::load(store::Database& db, const Request& req) {
   // A block of columns is read column by column, then written into the
   // row-major grid row by row: both sides stay sequential in memory.
   constexpr std::size_t kBlock = 64;
-  std::vector<double> block(kBlock * n_rows);
+  // As wide as the widest block: fewer columns than kBlock need no more room.
+  std::vector<double> block(std::min(kBlock, n_cols) * n_rows);
   for (std::size_t c0 = 0; c0 < n_cols; c0 += kBlock) {
     const std::size_t width = std::min(kBlock, n_cols - c0);
     for (std::size_t k = 0; k < width; ++k) {

@@ -194,11 +194,14 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
 
   LedgerSeries out;
   // The replay below passes every day once; the books asked for are copied
-  // on the way, so a caller needs no replay of its own.
+  // on the way, so a caller needs no replay of its own. Every one but the
+  // last is a copy of what is held only (Book::holdings_copy()).
   std::size_t next_book = 0;
   auto take_books = [&](Date through) {
-    for (; next_book < book_days.size() && book_days[next_book] <= through; ++next_book)
-      out.books.push_back(replayer.advance_to(book_days[next_book]));
+    for (; next_book < book_days.size() && book_days[next_book] <= through; ++next_book) {
+      const Book& book = replayer.advance_to(book_days[next_book]);
+      out.books.push_back(next_book + 1 == book_days.size() ? book : book.holdings_copy());
+    }
   };
   const auto days = entry_days(replayer, log, prices, first, to);
   out.series.reserve(days.size());
@@ -470,7 +473,7 @@ LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
     if (next_book + 1 == book_days.size())
       out.books.push_back(std::move(replayer).release());
     else
-      out.books.push_back(replayer.book());
+      out.books.push_back(replayer.book().holdings_copy());
   }
   for (const auto& t : out.totals) {
     out.income += t.income;
@@ -492,8 +495,9 @@ LedgerSeries slice(const LedgerSeries& built, Date from, Date to) {
   --opening;
   const Date opened = opening->day;
   LedgerSeries out;
-  for (auto it = opening; it != built.series.end() && it->day <= to; ++it)
-    out.series.push_back(*it);
+  const auto end = std::upper_bound(opening, built.series.end(), to,
+                                    [](Date d, const DayPoint& p) { return d < p.day; });
+  out.series.assign(opening, end);
   for (const auto& t : built.totals)
     if (t.day >= from && t.day <= to) {
       out.totals.push_back(t);

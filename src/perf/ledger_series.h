@@ -69,7 +69,9 @@ struct LedgerSeries {
   std::vector<DayTotals> totals;
   std::vector<std::pair<Date, std::int64_t>> unpriced_on;
   // The whole ledger's book at the close of each of the book days asked for
-  // (every account, whatever the scope), in their order.
+  // (every account, whatever the scope), in their order. Every one but the
+  // last holds what is held only (Book::holdings_copy(): no realized parts,
+  // moved cost or currency gains); the last is the whole book.
   std::vector<Book> books;
 };
 
@@ -83,8 +85,9 @@ LedgerSeries slice(const LedgerSeries& built, Date from, Date to);
 
 // `book_days` (ascending, none before from - 1, else std::invalid_argument):
 // days whose closing book is copied into `books` on the way (the last one,
-// from the series' last entry on, is the replay's own book, moved), so that a
-// caller needing holdings or gains on them does not replay the log again.
+// from the series' last entry on, is the replay's own book, moved; the others
+// are holdings copies), so that a caller needing holdings on them, or gains on
+// the last, does not replay the log again.
 LedgerSeries build_series(const LedgerLog& log, const market::Series& prices,
                           std::optional<std::int64_t> account_id, Date from, Date to,
                           const std::string& currency, const std::vector<Date>& book_days = {});

@@ -100,7 +100,8 @@ ReturnsReport returns_report(store::Database& db, const LedgerData& data,
 // over their union and sliced (perf::slice): one replay and one load of the closes. Each report
 // equals returns_report() of its request. That replay also copies the whole
 // ledger's book at the close of each of `book_days` (ascending, none before
-// the earliest period's day before; see build_series()).
+// the earliest period's day before; see build_series(): every book but the
+// last holds what is held only, the last is whole).
 struct PeriodReports {
   std::vector<ReturnsReport> reports;  // one per request, in their order
   std::vector<Book> books;             // one per book day, in their order

@@ -4,6 +4,8 @@
 
 #include <cstdint>
 #include <stdexcept>
+#include <utility>
+#include <vector>
 
 #include "ledger/allocation.h"
 #include "ledger_fixture.h"
@@ -22,6 +24,20 @@ void three_lots(LedgerFixture& f, BasisMethod method) {
   f.buy("2024-01-03", "Main", "ALFA", "10", "100", "5");  // lot 2: cost 1005
   f.buy("2024-02-03", "Main", "ALFA", "10", "120", "5");  // lot 3: cost 1205
   f.buy("2024-03-03", "Main", "ALFA", "10", "90", "5");   // lot 4: cost 905
+}
+
+// Units of ALFA brought into Main from outside at a unit cost, held since `acquired`.
+ledger::PostRequest brought_in(const char* date, const char* quantity, const char* price,
+                               const char* acquired) {
+  ledger::PostRequest r;
+  r.kind = TxnKind::transfer_in;
+  r.date = day(date);
+  r.account = "Main";
+  r.symbol = "ALFA";
+  r.quantity = dec(quantity);
+  r.price = dec(price);
+  r.acquired = day(acquired);
+  return r;
 }
 
 }  // namespace
@@ -206,19 +222,57 @@ TEST_CASE("transfers: units brought in from outside take the given unit cost and
   LedgerFixture f;
   f.account("Main");
   f.security("ALFA");
-  ledger::PostRequest r;
-  r.kind = TxnKind::transfer_in;
-  r.date = day("2024-07-01");
-  r.account = "Main";
-  r.symbol = "ALFA";
-  r.quantity = dec("8");
-  r.price = dec("12.5");
-  r.acquired = day("2019-03-04");
-  ledger::post(f.db, r);
+  ledger::post(f.db, brought_in("2024-07-01", "8", "12.5", "2019-03-04"));
   const Book book = f.book();
   const auto& lot = book.account(1).positions.at(1).lots.at(0);
   CHECK(lot.cost == dec("100"));
   CHECK(lot.acquired == day("2019-03-04"));
+}
+
+TEST_CASE("lots: fifo takes a lot brought in with an older date before earlier purchases") {
+  LedgerFixture f;
+  three_lots(f, BasisMethod::fifo);
+  const auto ids = ledger::post(f.db, brought_in("2024-04-01", "4", "50", "2019-03-04"));
+  f.sell("2024-06-03", "Main", "ALFA", "6", "130");
+  // The lot acquired 2019-03-04 (opened last) goes whole, then 2 of lot 2's
+  // 10 units (1005 x 2/10).
+  std::vector<std::pair<std::int64_t, Decimal>> taken;
+  for (const auto& g : f.gains()) taken.emplace_back(g.part.lot_id, g.part.cost);
+  CHECK(taken ==
+        std::vector<std::pair<std::int64_t, Decimal>>{{ids.front(), dec("200")}, {2, dec("201")}});
+}
+
+TEST_CASE("book: a holdings copy keeps what is held, not the parts realized before") {
+  LedgerFixture f;
+  three_lots(f, BasisMethod::fifo);
+  f.sell("2024-06-03", "Main", "ALFA", "15", "130", "5");
+  Book book = f.book();
+  Book copy = book.holdings_copy();
+  REQUIRE(book.realized().size() == 2);
+  CHECK(copy.realized().empty());
+  CHECK(copy.account(1).cash == book.account(1).cash);
+  CHECK(copy.last_trade_price(1) == book.last_trade_price(1));
+  const auto& lots = copy.account(1).positions.at(1).lots;
+  REQUIRE(lots.size() == 2);
+  CHECK(lots[0].lot_id == 3);
+  CHECK(lots[0].cost == dec("602.5"));
+  CHECK(lots[1].lot_id == 4);
+  // Replayed on, the copy books the next sale as the whole book does.
+  Transaction sale;
+  sale.id = 99;
+  sale.account_id = 1;
+  sale.date = day("2024-07-01");
+  sale.kind = TxnKind::sell;
+  sale.security_id = 1;
+  sale.quantity = dec("7");
+  sale.price = dec("140");
+  book.apply(sale);
+  copy.apply(sale);
+  REQUIRE(copy.realized().size() == 2);
+  CHECK(copy.realized()[0].cost == book.realized()[2].cost);
+  CHECK(copy.realized()[1].proceeds == book.realized()[3].proceeds);
+  CHECK(copy.account(1).cash == book.account(1).cash);
+  CHECK(copy.account(1).positions.at(1).cost() == book.account(1).positions.at(1).cost());
 }
 
 TEST_CASE("gains: a lot held more than a year is long-term") {
