@@ -28,9 +28,9 @@ namespace keel::cli {
 namespace {
 
 // A bar per rebalancing day on stderr, only when it is a terminal.
-class Progress {
+class DayProgress {
  public:
-  Progress() : on_(isatty(fileno(stderr)) != 0) {}
+  DayProgress() : on_(isatty(fileno(stderr)) != 0) {}
   void operator()(std::size_t done, std::size_t total, Date day) const {
     if (!on_ || total == 0) return;
     constexpr std::size_t kWidth = 30;
@@ -57,7 +57,7 @@ struct BacktestOptions : RunOptions {
   int rolling = 12;
 };
 
-backtest::Request run_request(const RunOptions& o, const Progress& progress) {
+backtest::Request run_request(const RunOptions& o, const DayProgress& progress) {
   backtest::Request req;
   req.from = date_value(o.from, "--from");
   req.to = date_value(o.to, "--to");
@@ -144,7 +144,7 @@ void add_backtest(CLI::App& app, Context& ctx) {
                 "No fees, bands, minimum trade or reserve; fractional units, fully invested");
   cmd->add_option("--rolling", o->rolling, "Months held in the rolling-window table");
   cmd->callback([&ctx, o] {
-    const Progress progress;
+    const DayProgress progress;
     auto req = run_request(*o, progress);
     req.keep_trades = o->json;  // the text report lists no trades
     req.rolling_months = o->rolling;
@@ -217,7 +217,7 @@ void add_compare(CLI::App& app, Context& ctx) {
   cmd->add_flag("--frictionless", o->frictionless,
                 "No fees, bands, minimum trade or reserve; fractional units, fully invested");
   cmd->callback([&ctx, o] {
-    const Progress progress;
+    const DayProgress progress;
     auto req = run_request(*o, progress);
     req.keep_trades = false;  // a comparison lists no trades
     req.rolling_months = o->hold_months;

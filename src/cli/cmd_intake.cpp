@@ -27,9 +27,9 @@ namespace {
 
 // Rows per second on stderr, redrawn in place; only on a terminal and only
 // once the file has passed 100,000 rows.
-class Progress {
+class RowProgress {
  public:
-  explicit Progress(bool enabled) : enabled_(enabled && ::isatty(STDERR_FILENO)) {}
+  explicit RowProgress(bool enabled) : enabled_(enabled && ::isatty(STDERR_FILENO)) {}
   void update(std::uint64_t rows, std::uint64_t bytes, std::uint64_t total) {
     if (!enabled_ || rows < 100000) return;
     shown_ = true;
@@ -39,7 +39,7 @@ class Progress {
     std::fputs(fmt::format("\r{:>11} rows  {:>9.0f} rows/s  {:5.1f}%", rows, rate, pct).c_str(),
                stderr);
   }
-  ~Progress() {
+  ~RowProgress() {
     if (shown_) std::fputs("\n", stderr);
   }
 
@@ -165,7 +165,7 @@ void add_import(CLI::App& app, Context& ctx) {
     auto db = ctx.open_ledger(store::Access::write);
     io::ImportSummary sum;
     {
-      Progress progress(!o->quiet);
+      RowProgress progress(!o->quiet);
       options.progress = [&](std::uint64_t r, std::uint64_t b, std::uint64_t t) {
         progress.update(r, b, t);
       };
