@@ -497,6 +497,22 @@ Decimal Decimal::rounded(int places) const {
   return from_mantissa(round_half_even(as_int(), scale_ - places), places);
 }
 
+Decimal Decimal::times_rounded(const Decimal& a, const Decimal& b, int places) {
+  // Two machine words multiply below 2^126; with at most 37 digits dropped,
+  // twice a remainder fits too (as in rounded()). The quotient differs from
+  // rounding the normalized product only by trailing zeros, which from_wide
+  // drops.
+  const int scale = a.scale_ + b.scale_;
+  if (!a.big_ && !b.big_ && places >= 0 && scale - places <= 37 &&
+      std::min(scale, places) <= kMaxScale) {
+    const Wide product = static_cast<Wide>(a.small_) * b.small_;
+    if (scale <= places) return from_wide(product, scale);
+    return from_wide(divide_half_even(product, kWideTens[static_cast<std::size_t>(scale - places)]),
+                     places);
+  }
+  return (a * b).rounded(places);
+}
+
 Decimal Decimal::truncated(int places) const {
   if (scale_ <= places) return *this;
   if (places >= 0 && scale_ - places <= 18 && !big_)

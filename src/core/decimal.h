@@ -85,6 +85,9 @@ class Decimal {
   // Exact quotient rounded half-to-even to `places` fractional digits.
   // Throws InputError on division by zero.
   static Decimal divide(const Decimal& numerator, const Decimal& denominator, int places);
+  // (a * b).rounded(places), the same value; where both mantissas fit a
+  // machine word the product is rounded in 128 bits, never built on the heap.
+  static Decimal times_rounded(const Decimal& a, const Decimal& b, int places);
 
   std::string str() const;              // canonical, lossless
   std::string fixed(int places) const;  // rounded half-to-even, exactly `places` digits

@@ -3,7 +3,6 @@
 #include <fmt/format.h>
 
 #include <algorithm>
-#include <limits>
 #include <map>
 #include <optional>
 #include <set>
@@ -34,32 +33,6 @@ const Decimal& basis_point() {
 const Decimal& one_percent() {
   static const Decimal pc = Decimal::parse("0.01");
   return pc;
-}
-
-// (a * b).rounded(places), exactly, without the product as a value of its
-// own when both mantissas fit a machine word: their product (below 2^126)
-// is rounded half-to-even in 128 bits, with at most 37 digits dropped so
-// that twice a remainder fits too. Only trailing zeros separate it from the
-// normalized product, so the quotient is the one rounded() gives.
-Decimal times_rounded(const Decimal& a, const Decimal& b, int places) {
-  __extension__ typedef __int128 Wide;
-  const auto x = a.machine_mantissa(), y = b.machine_mantissa();
-  const int scale = a.scale() + b.scale();
-  if (x && y && places >= 0 && scale - places <= 37) {
-    Wide q = static_cast<Wide>(*x) * *y;
-    if (scale > places) {
-      Wide ten = 1;
-      for (int i = places; i < scale; ++i) ten *= 10;
-      const Wide r = q % ten;  // same sign as q
-      q /= ten;
-      const Wide twice = (r < 0 ? -r : r) * 2;
-      if (twice > ten || (twice == ten && q % 2 != 0)) q += r < 0 ? -1 : 1;
-    }
-    constexpr Wide kWord = std::numeric_limits<long long>::max();
-    if (q >= -kWord && q <= kWord && std::min(scale, places) <= Decimal::kMaxScale)
-      return Decimal::scaled(static_cast<long long>(q), std::min(scale, places));
-  }
-  return (a * b).rounded(places);
 }
 
 std::string pct(const Decimal& fraction) {
@@ -234,7 +207,7 @@ void aim(std::vector<Work>& work, const PoolValue& pool, bool fresh) {
   for (auto& x : work) {
     const Decimal weight = x.target ? x.target->weight : Decimal();
     // Money: a target value is set to the cent.
-    Decimal value = times_rounded(weight, pool.invested_target, 2);
+    Decimal value = Decimal::times_rounded(weight, pool.invested_target, 2);
     if (!fresh && value == x.target_value) continue;
     x.w_target = value.is_zero() ? Decimal() : Decimal::divide(value, pool.value, 6);
     x.target_value = std::move(value);

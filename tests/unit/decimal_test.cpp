@@ -283,6 +283,28 @@ TEST_CASE("decimal: inline word arithmetic agrees with the general path") {
   CHECK((d("1.25") * d("0.8")).str() == "1");
 }
 
+TEST_CASE("decimal: a product rounded in 128 bits is the rounded product") {
+  Xorshift next{1181783497276652981ULL};
+  // Word mantissas of every size, scales 0 to 24, rounded to 0 to 24 places.
+  auto any = [&] {
+    const int bits = 1 + static_cast<int>(next() % 64);
+    const auto m = static_cast<long long>(next() >> (64 - bits) >> 1);
+    return Decimal::scaled(next() % 2 ? m : -m, static_cast<int>(next() % 25));
+  };
+  for (int i = 0; i < 2000; ++i) {
+    const Decimal a = any(), b = any();
+    const int places = static_cast<int>(next() % 25);
+    CAPTURE(a.str());
+    CAPTURE(b.str());
+    CAPTURE(places);
+    CHECK(Decimal::times_rounded(a, b, places).str() == (a * b).rounded(places).str());
+  }
+  // Ties go to the even neighbour (values worked by hand).
+  CHECK(Decimal::times_rounded(d("0.25"), d("0.1"), 2).str() == "0.02");
+  CHECK(Decimal::times_rounded(d("0.35"), d("0.1"), 2).str() == "0.04");
+  CHECK(Decimal::times_rounded(d("-0.25"), d("0.1"), 2).str() == "-0.02");
+}
+
 // Mantissas past a machine word but below 2^127 are worked on in 128 bits.
 // The same numbers moved by 10^45 (sums, comparisons, truncation) or
 // multiplied by it (products, quotients, rounding) take the general
