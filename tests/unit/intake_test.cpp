@@ -340,6 +340,9 @@ TEST_CASE("prices written a row at a time store what one write of them stores") 
   Ledger one, many;
   CHECK(write_closes(one.db, keel::store::MarketWriter::kPriceBufferBytes, rows).empty());
   CHECK(write_closes(many.db, 1, rows).empty());
+  // The two ledgers' securities were imported a moment apart: that moment,
+  // not what the writes stored, may differ (a second boundary under load).
+  for (auto* l : {&one, &many}) l->db.sql().exec("UPDATE import_run SET imported_at = 'then'");
   CHECK(keel::store::content_dump(many.db) == keel::store::content_dump(one.db));
 }
 
