@@ -240,12 +240,17 @@ bool keep_close_packs(Database& db, const std::vector<KeptPack>& packs, std::int
   }
 }
 
-std::optional<std::string> latest_close_day(Database& db) {
-  SQLite::Statement st(db.sql(),
-                       "SELECT max((SELECT max(p.date) FROM price p WHERE p.security_id = s.id)) "
-                       "FROM security s");
-  if (!st.executeStep() || st.getColumn(0).isNull()) return std::nullopt;
-  return st.getColumn(0).getString();
+std::vector<LatestClose> latest_closes(Database& db) {
+  // Per security: max(date) seeks to the end of its key range, and the row
+  // of that day is found through the key again.
+  Statement st(db.sql().getHandle(),
+               "SELECT s.id, p.date, p.close FROM security s JOIN price p "
+               "ON p.security_id = s.id AND p.date = "
+               "(SELECT max(date) FROM price WHERE security_id = s.id) ORDER BY s.id");
+  std::vector<LatestClose> out;
+  while (st.next())
+    out.push_back(LatestClose{st.integer(0), std::string(st.text(1)), std::string(st.text(2))});
+  return out;
 }
 
 std::vector<std::string> metric_names(Database& db) {

@@ -480,6 +480,33 @@ TEST_CASE("day view: the latest day with a close, of any security") {
   CHECK_FALSE(market::DayView(empty.db).latest_close_day().has_value());
 }
 
+TEST_CASE("day view: after the latest close day, every close reads as a fresh view reads it") {
+  MarketLedger m;
+  m.stock("FALLOW", "Tools");  // no close at all
+  market::DayView kept(m.db), fresh(m.db);
+  REQUIRE(kept.latest_close_day() == day("2024-04-02"));
+  for (const char* symbol : {"AVEL", "BRISK", "CALDO", "DUNMORE", "EVENFUND", "FALLOW"})
+    for (Date d = day("2023-12-28"); d <= day("2024-04-05"); d = d.plus_days(1)) {
+      CAPTURE(symbol);
+      CAPTURE(d.str());
+      const auto got = kept.close(m.id(symbol), d);
+      const auto want = fresh.close(m.id(symbol), d);
+      REQUIRE(got.has_value() == want.has_value());
+      if (got) CHECK(*got == *want);
+    }
+}
+
+TEST_CASE("day view: a latest close that does not parse keeps no closes, and stops only its own") {
+  MarketLedger m;
+  m.db.sql().exec("INSERT INTO price (security_id, date, close) VALUES (" +
+                  std::to_string(m.id("CALDO")) + ", '2024-02-30', '5')");
+  market::DayView view(m.db);
+  CHECK(view.latest_close_day() == day("2024-04-02"));
+  CHECK(view.close(m.id("AVEL"), day("2024-04-05"))->price == dec("11.125"));
+  CHECK_THROWS_WITH_AS(view.close(m.id("CALDO"), day("2024-04-05")),
+                       "'2024-02-30' is not a calendar date", InputError);
+}
+
 TEST_CASE("series: a malformed date stored by other means stops the load, naming it") {
   MarketLedger m;
   m.db.sql().exec("INSERT INTO price (security_id, date, close) VALUES (1, '2024-02-30', '5')");
