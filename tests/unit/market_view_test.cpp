@@ -3,6 +3,7 @@
 // and Series, preloaded in columns. Dates and figures are invented; each
 // expectation is worked out by hand from the rows written below.
 #include <doctest/doctest.h>
+#include <sqlite3.h>
 
 #include <functional>
 #include <memory>
@@ -15,6 +16,7 @@
 #include "market/day_view.h"
 #include "market/series.h"
 #include "store/action_store.h"
+#include "store/read_transaction.h"
 
 using namespace keel;
 using namespace keel::testing;
@@ -505,6 +507,29 @@ TEST_CASE("day view: a latest close that does not parse keeps no closes, and sto
   CHECK(view.close(m.id("AVEL"), day("2024-04-05"))->price == dec("11.125"));
   CHECK_THROWS_WITH_AS(view.close(m.id("CALDO"), day("2024-04-05")),
                        "'2024-02-30' is not a calendar date", InputError);
+}
+
+TEST_CASE("read transaction: it ends with its scope, so a write transaction can follow") {
+  MarketLedger m;
+  sqlite3* h = m.db.sql().getHandle();
+  {
+    store::ReadTransaction snapshot(m.db);
+    CHECK(market::DayView(m.db).latest_close_day() == day("2024-04-02"));
+    CHECK(sqlite3_get_autocommit(h) == 0);
+  }
+  CHECK(sqlite3_get_autocommit(h) != 0);
+  m.closes({{"CALDO", "2024-06-07", "3"}});  // a write transaction of its own
+  CHECK(market::DayView(m.db).latest_close_day() == day("2024-06-07"));
+}
+
+TEST_CASE("read transaction: inside a write transaction it leaves that one open") {
+  MarketLedger m;
+  sqlite3* h = m.db.sql().getHandle();
+  store::WriteTransaction tx(m.db);
+  { store::ReadTransaction inner(m.db); }
+  CHECK(sqlite3_get_autocommit(h) == 0);
+  tx.commit();
+  CHECK(sqlite3_get_autocommit(h) != 0);
 }
 
 TEST_CASE("series: a malformed date stored by other means stops the load, naming it") {
