@@ -118,8 +118,9 @@ std::int64_t change_count(Database& db);
 bool keep_close_packs(Database& db, const std::vector<KeptPack>& packs, std::int64_t since);
 
 // Each security's latest close, (security_id, date, close) as stored, by
-// security id; a security without closes is left out. One statement, two
-// seeks through the (security_id, date) key per security.
+// security id; a security without closes is left out. One statement, one
+// seek through the (security_id, date) key per security (two where a date
+// is not 10 bytes long).
 struct LatestClose {
   std::int64_t security_id = 0;
   std::string date;

@@ -509,6 +509,15 @@ TEST_CASE("day view: a latest close that does not parse keeps no closes, and sto
                        "'2024-02-30' is not a calendar date", InputError);
 }
 
+TEST_CASE("day view: a latest close dated in another form stops the latest close day, naming it") {
+  MarketLedger m;
+  m.db.sql().exec("INSERT INTO price (security_id, date, close) VALUES (" +
+                  std::to_string(m.id("CALDO")) + ", '2024-5-1', '5')");
+  market::DayView view(m.db);
+  CHECK_THROWS_WITH_AS(view.latest_close_day(), "'2024-5-1' is not a date in the form YYYY-MM-DD",
+                       InputError);
+}
+
 TEST_CASE("read transaction: it ends with its scope, so a write transaction can follow") {
   MarketLedger m;
   sqlite3* h = m.db.sql().getHandle();
