@@ -41,20 +41,54 @@ std::pair<bool, std::size_t> next_sequence(std::string_view s) {
   return {true, need + 1};
 }
 
+// Whether `text` goes out between quotes as it is: printable ASCII without
+// a quote or a backslash (keys, symbols, dates, decimals).
+bool plain(std::string_view text) {
+  for (const char ch : text) {
+    const auto c = static_cast<unsigned char>(ch);
+    if (c < 0x20 || c >= 0x80 || c == '"' || c == '\\') return false;
+  }
+  return true;
+}
+
 }  // namespace
 
 void append_json_string(std::string& out, std::string_view text) {
+  if (text.size() <= 62 && plain(text)) {  // one append of a short plain string
+    char buf[64];
+    buf[0] = '"';
+    std::memcpy(buf + 1, text.data(), text.size());
+    buf[text.size() + 1] = '"';
+    out.append(buf, text.size() + 2);
+    return;
+  }
   out += '"';
-  const bool valid = valid_utf8(text);
+  // Runs of bytes written as they are go out in one append; text is checked
+  // for UTF-8 only when it holds a byte above 0x7F.
+  int valid = -1;  // unknown until the first such byte
+  std::size_t run = 0;
   for (std::size_t i = 0; i < text.size();) {
     const auto c = static_cast<unsigned char>(text[i]);
-    if (c >= 0x80 && !valid) {
+    if (c >= 0x20 && c != '"' && c != '\\') {
+      if (c < 0x80) {
+        ++i;
+        continue;
+      }
+      if (valid < 0) valid = valid_utf8(text) ? 1 : 0;
+      if (valid) {
+        ++i;
+        continue;
+      }
+    }
+    out.append(text.substr(run, i - run));
+    if (c >= 0x80) {
       const auto [ok, n] = next_sequence(text.substr(i));
       if (ok)
         out.append(text.substr(i, n));
       else
         out += "\xEF\xBF\xBD";
       i += n;
+      run = i;
       continue;
     }
     switch (c) {
@@ -79,18 +113,16 @@ void append_json_string(std::string& out, std::string_view text) {
       case '\t':
         out += "\\t";
         break;
-      default:
-        if (c < 0x20) {
-          static const char kHex[] = "0123456789abcdef";
-          out += "\\u00";
-          out += kHex[c >> 4];
-          out += kHex[c & 15];
-        } else {
-          out += static_cast<char>(c);
-        }
+      default: {
+        static const char kHex[] = "0123456789abcdef";
+        out += "\\u00";
+        out += kHex[c >> 4];
+        out += kHex[c & 15];
+      }
     }
-    ++i;
+    run = ++i;
   }
+  out.append(text.substr(run));
   out += '"';
 }
 
@@ -110,9 +142,11 @@ void append_json_number(std::string& out, double x) {
       std::to_chars(buf, buf + sizeof buf, std::fabs(x), std::chars_format::scientific);
   const std::string_view sci(buf, static_cast<std::size_t>(res.ptr - buf));
   const std::size_t e_at = sci.find('e');
-  std::string digits;
+  char digit_buf[24];  // at most 17 significant digits
+  std::size_t digit_count = 0;
   for (const char c : sci.substr(0, e_at))
-    if (c != '.') digits += c;
+    if (c != '.') digit_buf[digit_count++] = c;
+  const std::string_view digits(digit_buf, digit_count);
   int exp10 = 0;
   std::from_chars(sci.data() + e_at + 1 + (sci[e_at + 1] == '+'), sci.data() + sci.size(), exp10);
   const int k = static_cast<int>(digits.size());
@@ -123,9 +157,9 @@ void append_json_number(std::string& out, double x) {
     out.append(static_cast<std::size_t>(n - k), '0');
     out += ".0";
   } else if (0 < n && n <= 15) {
-    out.append(digits, 0, static_cast<std::size_t>(n));
+    out.append(digits.substr(0, static_cast<std::size_t>(n)));
     out += '.';
-    out.append(digits, static_cast<std::size_t>(n));
+    out.append(digits.substr(static_cast<std::size_t>(n)));
   } else if (-4 < n && n <= 0) {
     out += "0.";
     out.append(static_cast<std::size_t>(-n), '0');
@@ -134,7 +168,7 @@ void append_json_number(std::string& out, double x) {
     out += digits[0];
     if (k > 1) {
       out += '.';
-      out.append(digits, 1);
+      out.append(digits.substr(1));
     }
     const int e = n - 1;
     out += e < 0 ? "e-" : "e+";
@@ -167,12 +201,34 @@ JsonWriter& JsonWriter::key(std::string_view name) {
   if (stack_.empty() || !stack_.back().object || after_key_)
     throw std::logic_error("JsonWriter: a key outside an object");
   Level& level = stack_.back();
-  if (!level.empty) out_ += ',';
+  const bool first = level.empty;
   level.empty = false;
+  after_key_ = true;
+  // Most keys are short plain words: the comma, the line, its indent and
+  // the key go out in one append.
+  const std::size_t pad = indent_ < 0 ? 0 : stack_.size() * static_cast<std::size_t>(indent_);
+  char buf[160];
+  if (pad + name.size() + 6 <= sizeof buf && plain(name)) {
+    std::size_t n = 0;
+    if (!first) buf[n++] = ',';
+    if (indent_ >= 0) {
+      buf[n++] = '\n';
+      std::memset(buf + n, ' ', pad);
+      n += pad;
+    }
+    buf[n++] = '"';
+    std::memcpy(buf + n, name.data(), name.size());
+    n += name.size();
+    buf[n++] = '"';
+    buf[n++] = ':';
+    if (indent_ >= 0) buf[n++] = ' ';
+    out_.append(buf, n);
+    return *this;
+  }
+  if (!first) out_ += ',';
   newline(stack_.size());
   append_json_string(out_, name);
   out_ += indent_ < 0 ? ":" : ": ";
-  after_key_ = true;
   return *this;
 }
 
@@ -224,13 +280,17 @@ JsonWriter& JsonWriter::value(bool b) {
 
 JsonWriter& JsonWriter::value(long long v) {
   before_value();
-  out_ += std::to_string(v);
+  char buf[24];
+  const auto res = std::to_chars(buf, buf + sizeof buf, v);
+  out_.append(buf, res.ptr);
   return *this;
 }
 
 JsonWriter& JsonWriter::value(unsigned long long v) {
   before_value();
-  out_ += std::to_string(v);
+  char buf[24];
+  const auto res = std::to_chars(buf, buf + sizeof buf, v);
+  out_.append(buf, res.ptr);
   return *this;
 }
 

@@ -5,9 +5,35 @@
 #include "store/ledger_store.h"
 
 namespace keel::market {
+namespace {
 
-DayView::DayView(store::Database& db)
-    : db_(db), rows_(db), securities_(store::list_securities(db)) {}
+// Whether Date::parse takes `text` (without the cost of an exception).
+bool well_formed_day(std::string_view text) {
+  if (text.size() != 10 || text[4] != '-' || text[7] != '-') return false;
+  int v[3] = {0, 0, 0};
+  const int at[3] = {0, 5, 8}, len[3] = {4, 2, 2};
+  for (int f = 0; f < 3; ++f)
+    for (int i = 0; i < len[f]; ++i) {
+      const char c = text[static_cast<std::size_t>(at[f] + i)];
+      if (c < '0' || c > '9') return false;
+      v[f] = v[f] * 10 + (c - '0');
+    }
+  return Date::valid_ymd(v[0], v[1], v[2]);
+}
+
+}  // namespace
+
+DayView::DayView(store::Database& db) : db_(db) {}
+
+store::MarketRows& DayView::rows() const {
+  if (!rows_) rows_ = std::make_unique<store::MarketRows>(db_);
+  return *rows_;
+}
+
+const std::vector<Security>& DayView::securities() const {
+  if (!securities_) securities_ = store::list_securities(db_);
+  return *securities_;
+}
 
 const std::string& DayView::text(Date day) const {
   if (day_ != day) day_ = day, day_text_ = day.str();
@@ -15,8 +41,15 @@ const std::string& DayView::text(Date day) const {
 }
 
 std::optional<Close> DayView::close(std::int64_t security_id, Date day) const {
+  if (latest_) {
+    // On or after a security's latest close, that close is the answer; a
+    // security without closes has none.
+    const auto it = latest_->find(security_id);
+    if (it == latest_->end()) return std::nullopt;
+    if (it->second.day <= day) return it->second;
+  }
   // Newest first: the first row is the close on or before the day.
-  auto& rows = rows_.closes_until(security_id, text(day));
+  auto& rows = this->rows().closes_until(security_id, text(day));
   if (!rows.next()) return std::nullopt;
   Close c{Date::parse(rows.text(0)), Decimal::parse(rows.text(1))};
   rows.reset();
@@ -27,7 +60,7 @@ std::optional<Figure> DayView::figure(std::int64_t security_id, std::string_view
                                       Date day) const {
   // Rows known on the day, latest period first and within it the latest
   // known_on first: the first row is the figure known on the day.
-  auto& rows = rows_.figures_until(security_id, metric, text(day));
+  auto& rows = this->rows().figures_until(security_id, metric, text(day));
   if (!rows.next()) return std::nullopt;
   Figure f{Decimal::parse(rows.text(2)), Date::parse(rows.text(0)), Date::parse(rows.text(1))};
   rows.reset();
@@ -37,7 +70,7 @@ std::optional<Figure> DayView::figure(std::int64_t security_id, std::string_view
 std::vector<Distribution> DayView::distributions(std::optional<std::int64_t> security_id, Date from,
                                                  Date to) const {
   std::vector<Distribution> out;
-  auto& rows = rows_.distributions_between(security_id, from.str(), to.str());
+  auto& rows = this->rows().distributions_between(security_id, from.str(), to.str());
   while (rows.next())
     out.push_back(Distribution{rows.integer(0), Date::parse(rows.text(1)),
                                Date::parse(rows.text(2)), Decimal::parse(rows.text(3))});
@@ -47,7 +80,7 @@ std::vector<Distribution> DayView::distributions(std::optional<std::int64_t> sec
 std::vector<SplitEvent> DayView::splits(std::optional<std::int64_t> security_id, Date from,
                                         Date to) const {
   std::vector<SplitEvent> out;
-  auto& rows = rows_.splits_between(security_id, from.str(), to.str());
+  auto& rows = this->rows().splits_between(security_id, from.str(), to.str());
   while (rows.next())
     out.push_back(
         SplitEvent{rows.integer(0), Date::parse(rows.text(1)), Decimal::parse(rows.text(2))});
@@ -87,13 +120,32 @@ const FxRates& DayView::rates_for(const std::string&, const std::string&, Date) 
 }
 
 std::optional<Date> DayView::latest_close_day() const {
-  const auto day = store::latest_close_day(db_);
-  if (!day) return std::nullopt;
-  return Date::parse(*day);
+  // Dates are compared as the ledger stores them (ISO text) and only the
+  // latest must parse, as before; a close that does not parse keeps none
+  // (close() then reads the rows and stops at it when asked about it).
+  const auto rows = store::latest_closes(db_);
+  const store::LatestClose* latest = nullptr;
+  for (const auto& r : rows)
+    if (!latest || r.date > latest->date) latest = &r;
+  latest_.reset();
+  if (!latest) {
+    latest_.emplace();
+    return std::nullopt;
+  }
+  const Date day = Date::parse(latest->date);
+  std::unordered_map<std::int64_t, Close> kept;
+  kept.reserve(rows.size());
+  for (const auto& r : rows) {
+    const auto close = Decimal::try_parse(r.close);
+    if (!close || !well_formed_day(r.date)) return day;
+    kept.emplace(r.security_id, Close{Date::parse(r.date), *close});
+  }
+  latest_ = std::move(kept);
+  return day;
 }
 
 std::optional<Date> DayView::first_close_after(std::int64_t security_id, Date day) const {
-  auto& rows = rows_.first_close_after(security_id, text(day));
+  auto& rows = this->rows().first_close_after(security_id, text(day));
   if (!rows.next()) return std::nullopt;
   const Date d = Date::parse(rows.text(0));
   rows.reset();

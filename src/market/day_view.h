@@ -3,13 +3,18 @@
 // a few names on one day; it answers for any security and any day.
 //
 // Contract: as market/view.h. The view borrows the Database, which must
-// outlive it; the securities are read when it is made, the corporate actions
-// on first use, the exchange rates at the first question about one, the rest
-// when asked.
+// outlive it; its statements are prepared at the first question that needs
+// them, the securities, corporate actions and exchange rates are read at the
+// first question about them, the rest when asked. latest_close_day() reads
+// each security's latest close, in one statement, and keeps them: close()
+// then answers a day on or after a security's latest close from them, as the
+// ledger stood at that read (the next call reads them again).
 #pragma once
 
+#include <memory>
 #include <optional>
 #include <string>
+#include <unordered_map>
 #include <vector>
 
 #include "market/view.h"
@@ -32,10 +37,11 @@ class DayView final : public View {
   std::vector<CorporateAction> actions(std::optional<std::int64_t> security_id, Date from,
                                        Date to) const override;
   std::optional<Date> ended(std::int64_t security_id, Date day) const override;
-  const std::vector<Security>& securities() const override { return securities_; }
+  const std::vector<Security>& securities() const override;
   std::vector<std::string> metric_names() const override;
 
-  // The latest day with any close; unset when the ledger has none.
+  // The latest day with any close; unset when the ledger has none. Keeps
+  // each security's latest close for close().
   std::optional<Date> latest_close_day() const;
   // The first day after `day` with a close of the security; unset when none.
   std::optional<Date> first_close_after(std::int64_t security_id, Date day) const;
@@ -46,9 +52,12 @@ class DayView final : public View {
 
  private:
   const std::string& text(Date day) const;  // the last day's ISO text, kept
+  store::MarketRows& rows() const;          // prepared on first use
   store::Database& db_;
-  mutable store::MarketRows rows_;
-  std::vector<Security> securities_;
+  mutable std::unique_ptr<store::MarketRows> rows_;
+  mutable std::optional<std::vector<Security>> securities_;
+  // Each security's latest close, by id, as latest_close_day() read them.
+  mutable std::optional<std::unordered_map<std::int64_t, Close>> latest_;
   mutable std::optional<std::vector<std::string>> metric_names_;
   const std::vector<CorporateAction>& live() const;  // read on first use
   mutable std::optional<std::vector<CorporateAction>> live_;

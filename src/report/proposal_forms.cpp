@@ -255,7 +255,8 @@ std::string fx_orders_text(const std::vector<rules::Order>& orders, const std::s
       rates.push_back(o.fx->quote.rate_text);
   for (const auto& r : rates) s += "rate " + r + "\n";
   if (derived) s += "* derived from the stored rates, not stored itself\n";
-  return s + "\n";
+  s += '\n';
+  return s;
 }
 
 std::string orders_text(const std::vector<rules::Order>& orders, const Style& style,
@@ -342,7 +343,8 @@ std::string conversions_text(const std::vector<rules::Conversion>& conversions,
     s += fmt::format("  {}: about {} {} into {} {} at {}; est. fee {} {}\n", printable(c.account),
                      c.about.str(), c.from, c.amount.str(), c.to, c.rate_text, money(c.fee),
                      currency);
-  return s + "\n";
+  s += '\n';
+  return s;
 }
 
 // "value 10040.00 EUR (other currencies converted ...)" or "value 10040.00".
@@ -379,6 +381,9 @@ std::string result_text(const rules::OrderPlan& plan, const Style& style) {
 
 std::string proposal_json(const rules::Proposal& p, std::optional<std::int64_t> saved_id) {
   std::string s;
+  // About what a screened name (~280 bytes) and an order with its weight
+  // (~500) take: one allocation instead of a copy at each doubling.
+  s.reserve(4096 + 320 * p.screen.lines.size() + 700 * p.plan.orders.size());
   JsonWriter j(s);
   begin_document(j, "propose", 5);
   j.member("as_of", p.as_of.str());
@@ -396,7 +401,8 @@ std::string proposal_json(const rules::Proposal& p, std::optional<std::int64_t> 
   j.member("cautions", p.cautions);
   if (saved_id) j.member("proposal_id", static_cast<long long>(*saved_id));
   j.end_object();
-  return s + "\n";
+  s += '\n';
+  return s;
 }
 
 std::string proposal_text(const rules::Proposal& p, const Style& style) {
@@ -470,7 +476,8 @@ std::string plan_proposal_json(const rules::PlanProposal& p, std::optional<std::
   j.member("notes", p.notes).member("cautions", p.cautions);
   if (saved_id) j.member("proposal_id", static_cast<long long>(*saved_id));
   j.end_object();
-  return s + "\n";
+  s += '\n';
+  return s;
 }
 
 std::string plan_proposal_text(const rules::PlanProposal& p, const Style& style) {
@@ -536,7 +543,8 @@ std::string proposals_list_json(const std::vector<store::ProposalRow>& all) {
     j.end_object();
   }
   j.end_array().end_object();
-  return s + "\n";
+  s += '\n';
+  return s;
 }
 
 std::string proposals_list_text(const std::vector<store::ProposalRow>& all, const Style& style) {
@@ -590,7 +598,8 @@ std::string review_json(const rules::Review& r) {
   j.end_array();
   j.member("cautions", rules::proposal_cautions(p.as_of));
   j.end_object();
-  return s + "\n";
+  s += '\n';
+  return s;
 }
 
 std::string review_text(const rules::Review& r, const Style& style) {

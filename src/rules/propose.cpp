@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <map>
 #include <memory>
+#include <optional>
 #include <set>
 
 #include "core/error.h"
@@ -19,6 +20,7 @@
 #include "rules/tax_keys.h"
 #include "rules/track_record.h"
 #include "store/ledger_store.h"
+#include "store/read_transaction.h"
 
 namespace keel::rules {
 std::vector<std::string> proposal_cautions(Date as_of) {
@@ -96,6 +98,10 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
   Proposal p;
   p.rule_name = rule.name;
   p.rule_sha256 = io::sha256_hex(rule.text);
+  // One state of the ledger for the whole proposal, read under one lock; a
+  // track record's series first, outside it, where it may keep close packs.
+  std::optional<store::ReadTransaction> snapshot;
+  if (!rule.track_record) snapshot.emplace(db);
   const market::DayView view(db);
   const auto pool = pool_accounts(
       db, rule.accounts, [&](const std::string& why) { rule.fail("scope.accounts", why); });
@@ -113,7 +119,10 @@ Proposal propose(store::Database& db, const Rule& rule, std::optional<Date> as_o
   Inputs inputs(rule, view, p.currency, Convert::yes);
   p.notes.insert(p.notes.end(), inputs.notes().begin(), inputs.notes().end());
   std::unique_ptr<LedgerTrackRecord> track;
-  if (rule.track_record) track = std::make_unique<LedgerTrackRecord>(db, rule, inputs, view, as_of);
+  if (rule.track_record) {
+    track = std::make_unique<LedgerTrackRecord>(db, rule, inputs, view, as_of);
+    snapshot.emplace(db);
+  }
 
   // The pool's state on the as-of day.
   Replayer replayer(log);

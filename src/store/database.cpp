@@ -13,6 +13,7 @@
 #include "core/error.h"
 #include "core/files.h"
 #include "store/migrations.h"
+#include "store/read_transaction.h"
 #include "store/sqlite_error.h"
 
 namespace keel::store {
@@ -284,6 +285,24 @@ void Database::migrate() {
                       check.getColumn(2).getString()));
     tx.commit();
   }
+}
+
+ReadTransaction::ReadTransaction(Database& db) : db_(db) {
+  if (sqlite3_get_autocommit(db_.sql().getHandle()) == 0) return;
+  try {
+    db_.sql().exec("BEGIN DEFERRED");
+    open_ = true;
+  } catch (const SQLite::Exception& e) {
+    throw_sqlite_error(db_.sql().getHandle(), e.getErrorCode());
+  }
+}
+
+ReadTransaction::~ReadTransaction() {
+  if (!open_) return;
+  // Nothing was written: ending it either way loses nothing.
+  sqlite3* h = db_.sql().getHandle();
+  if (sqlite3_exec(h, "COMMIT", nullptr, nullptr, nullptr) != SQLITE_OK)
+    sqlite3_exec(h, "ROLLBACK", nullptr, nullptr, nullptr);
 }
 
 WriteTransaction::WriteTransaction(Database& db) : db_(db) {

@@ -312,12 +312,23 @@ Security security_with_symbol(Database& db, std::string_view symbol) {
 }
 
 std::vector<Security> list_securities(Database& db) {
-  SQLite::Statement st(
-      db.sql(),
-      "SELECT id, symbol, name, kind, currency, lot_size, sector, country FROM security "
-      "ORDER BY symbol");
+  // Through the raw statement: a ledger of thousands of names is listed at
+  // every proposal, and each column is read without a copy in between.
+  Statement st(db.sql().getHandle(),
+               "SELECT id, symbol, name, kind, currency, lot_size, sector, country FROM security "
+               "ORDER BY symbol");
   std::vector<Security> out;
-  while (st.executeStep()) out.push_back(read_security(st));
+  while (st.next()) {
+    Security& s = out.emplace_back();
+    s.id = st.integer(0);
+    s.symbol = st.text(1);
+    s.name = st.text(2);
+    s.kind = parse_security_kind(st.text(3));
+    s.currency = st.text(4);
+    s.lot_size = Decimal::parse(st.text(5));
+    if (!st.null(6)) s.sector = std::string(st.text(6));
+    if (!st.null(7)) s.country = std::string(st.text(7));
+  }
   return out;
 }
 

@@ -240,12 +240,37 @@ bool keep_close_packs(Database& db, const std::vector<KeptPack>& packs, std::int
   }
 }
 
-std::optional<std::string> latest_close_day(Database& db) {
-  SQLite::Statement st(db.sql(),
-                       "SELECT max((SELECT max(p.date) FROM price p WHERE p.security_id = s.id)) "
-                       "FROM security s");
-  if (!st.executeStep() || st.getColumn(0).isNull()) return std::nullopt;
-  return st.getColumn(0).getString();
+std::vector<LatestClose> latest_closes(Database& db) {
+  // One seek per security to the end of its key range gives one value: the
+  // date and the close joined, the date being the first 10 bytes of an ISO
+  // day; '' for a date of another length (stored by other means), for which
+  // the exact statement below runs instead.
+  Statement joined(db.sql().getHandle(),
+                   "SELECT s.id, (SELECT CASE WHEN length(CAST(p.date AS BLOB)) = 10 "
+                   "THEN p.date || p.close ELSE '' END FROM price p WHERE p.security_id = s.id "
+                   "ORDER BY p.date DESC LIMIT 1) FROM security s ORDER BY s.id");
+  std::vector<LatestClose> out;
+  bool odd = false;
+  while (!odd && joined.next()) {
+    if (joined.null(1)) continue;
+    const std::string_view both = joined.text(1);
+    odd = both.size() <= 10;
+    if (!odd)
+      out.push_back(LatestClose{joined.integer(0), std::string(both.substr(0, 10)),
+                                std::string(both.substr(10))});
+  }
+  if (!odd) return out;
+  joined.reset();
+  out.clear();
+  // Per security: max(date) seeks to the end of its key range, and the row
+  // of that day is found through the key again.
+  Statement st(db.sql().getHandle(),
+               "SELECT s.id, p.date, p.close FROM security s JOIN price p "
+               "ON p.security_id = s.id AND p.date = "
+               "(SELECT max(date) FROM price WHERE security_id = s.id) ORDER BY s.id");
+  while (st.next())
+    out.push_back(LatestClose{st.integer(0), std::string(st.text(1)), std::string(st.text(2))});
+  return out;
 }
 
 std::vector<std::string> metric_names(Database& db) {

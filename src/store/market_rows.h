@@ -117,9 +117,16 @@ bool can_keep_close_packs(Database& db);
 std::int64_t change_count(Database& db);
 bool keep_close_packs(Database& db, const std::vector<KeptPack>& packs, std::int64_t since);
 
-// The latest day with any close, found through the (security_id, date) key
-// one security at a time; unset when the ledger has no closes.
-std::optional<std::string> latest_close_day(Database& db);
+// Each security's latest close, (security_id, date, close) as stored, by
+// security id; a security without closes is left out. One statement, one
+// seek through the (security_id, date) key per security (two where a date
+// is not 10 bytes long).
+struct LatestClose {
+  std::int64_t security_id = 0;
+  std::string date;
+  std::string close;
+};
+std::vector<LatestClose> latest_closes(Database& db);
 // Names of the stored metrics, ascending, one index seek per name.
 std::vector<std::string> metric_names(Database& db);
 

@@ -18,7 +18,10 @@
 #   "1000x20 3000x20 6000x20 3000x10"); BENCH_ROUNDS=5 the rounds (3 or
 #   more); BENCH_REPEAT=5 the runs of each command per measurement (times are
 #   per run). Making each ledger is setup, not timed (its import time is
-#   printed).
+#   printed). BENCH_BEFORE=OTHER_KEEL also times `propose --json` and
+#   `--version` of another build of the same schema (say, the one before a
+#   change) in the same rounds, on the same ledger (propose only reads it),
+#   beside this build's `--version`.
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 keel="${1:-$here/../../build/keel}"
@@ -83,10 +86,17 @@ PY
 )
   floor="SELECT sum((SELECT close FROM price p WHERE p.security_id = s.id AND p.date <= '$as_of' ORDER BY p.date DESC LIMIT 1)), sum((SELECT value FROM metric m WHERE m.security_id = s.id AND m.name = 'pe' AND m.known_on <= '$as_of' ORDER BY m.date DESC, m.known_on DESC LIMIT 1)) FROM security s WHERE s.kind = 'stock'"
   echo "floor: $(/usr/bin/sqlite3 "$db" "$floor"); load $(cut -d' ' -f1-3 /proc/loadavg)"
+  before=()
+  if [ -n "${BENCH_BEFORE:-}" ]; then
+    before=(--cmd "before: keel propose --json" "$BENCH_BEFORE --db $db propose --rule $work/rule.toml --json"
+            --cmd "before: keel --version" "$BENCH_BEFORE --version"
+            --cmd "keel --version" "$keel --version")
+  fi
   scaling_rounds "$shape" --pairs "$rounds" --repeat "$repeat" \
     --ref "floor: sqlite3 point-in-time read" "/usr/bin/sqlite3 $db \"$floor\"" \
     --cmd "keel holdings" "$keel --db $db holdings" \
     --cmd "keel propose --json" "$keel --db $db propose --rule $work/rule.toml --json" \
-    --cmd "keel propose" "$keel --db $db propose --rule $work/rule.toml"
+    --cmd "keel propose" "$keel --db $db propose --rule $work/rule.toml" \
+    ${before[@]+"${before[@]}"}
 done
 scaling_table "processor time against the floor"

@@ -6,6 +6,7 @@
 
 #include <cstdlib>
 #include <cstring>
+#include <limits>
 #include <nlohmann/json.hpp>
 #include <random>
 
@@ -107,6 +108,24 @@ TEST_CASE("json: text that is not UTF-8 gets U+FFFD as nlohmann's replace mode w
   }
   // Well-formed text passes through untouched.
   CHECK(one_string("\xe2\x82\xac \xf0\x9f\x98\x80") == "\"\xe2\x82\xac \xf0\x9f\x98\x80\"");
+}
+
+TEST_CASE("json: escapes between runs of plain text keep every byte in its place") {
+  const std::string text = std::string("plain \"q\" \\ tab\tend\x01 caf\xc3\xa9 ") + '\0' + "tail";
+  CHECK(one_string(text) == Json(text).dump());
+  CHECK(one_string("") == "\"\"");
+  CHECK(one_string("\n") == "\"\\n\"");
+  CHECK(one_string("x\xff") == "\"x\xef\xbf\xbd\"");
+}
+
+TEST_CASE("json: integers at their limits are written whole") {
+  std::string s;
+  JsonWriter w(s, -1);
+  w.begin_array()
+      .value(std::numeric_limits<long long>::min())
+      .value(std::numeric_limits<unsigned long long>::max());
+  w.value(0).end_array();
+  CHECK(s == "[-9223372036854775808,18446744073709551615,0]");
 }
 
 TEST_CASE("json: misuse is refused") {

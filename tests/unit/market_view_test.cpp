@@ -3,6 +3,7 @@
 // and Series, preloaded in columns. Dates and figures are invented; each
 // expectation is worked out by hand from the rows written below.
 #include <doctest/doctest.h>
+#include <sqlite3.h>
 
 #include <functional>
 #include <memory>
@@ -15,6 +16,7 @@
 #include "market/day_view.h"
 #include "market/series.h"
 #include "store/action_store.h"
+#include "store/read_transaction.h"
 
 using namespace keel;
 using namespace keel::testing;
@@ -478,6 +480,65 @@ TEST_CASE("day view: the latest day with a close, of any security") {
   CHECK(view.latest_close_day() == day("2024-06-07"));
   LedgerFixture empty;
   CHECK_FALSE(market::DayView(empty.db).latest_close_day().has_value());
+}
+
+TEST_CASE("day view: after the latest close day, every close reads as a fresh view reads it") {
+  MarketLedger m;
+  m.stock("FALLOW", "Tools");  // no close at all
+  market::DayView kept(m.db), fresh(m.db);
+  REQUIRE(kept.latest_close_day() == day("2024-04-02"));
+  for (const char* symbol : {"AVEL", "BRISK", "CALDO", "DUNMORE", "EVENFUND", "FALLOW"})
+    for (Date d = day("2023-12-28"); d <= day("2024-04-05"); d = d.plus_days(1)) {
+      CAPTURE(symbol);
+      CAPTURE(d.str());
+      const auto got = kept.close(m.id(symbol), d);
+      const auto want = fresh.close(m.id(symbol), d);
+      REQUIRE(got.has_value() == want.has_value());
+      if (got) CHECK(*got == *want);
+    }
+}
+
+TEST_CASE("day view: a latest close that does not parse keeps no closes, and stops only its own") {
+  MarketLedger m;
+  m.db.sql().exec("INSERT INTO price (security_id, date, close) VALUES (" +
+                  std::to_string(m.id("CALDO")) + ", '2024-02-30', '5')");
+  market::DayView view(m.db);
+  CHECK(view.latest_close_day() == day("2024-04-02"));
+  CHECK(view.close(m.id("AVEL"), day("2024-04-05"))->price == dec("11.125"));
+  CHECK_THROWS_WITH_AS(view.close(m.id("CALDO"), day("2024-04-05")),
+                       "'2024-02-30' is not a calendar date", InputError);
+}
+
+TEST_CASE("day view: a latest close dated in another form stops the latest close day, naming it") {
+  MarketLedger m;
+  m.db.sql().exec("INSERT INTO price (security_id, date, close) VALUES (" +
+                  std::to_string(m.id("CALDO")) + ", '2024-5-1', '5')");
+  market::DayView view(m.db);
+  CHECK_THROWS_WITH_AS(view.latest_close_day(), "'2024-5-1' is not a date in the form YYYY-MM-DD",
+                       InputError);
+}
+
+TEST_CASE("read transaction: it ends with its scope, so a write transaction can follow") {
+  MarketLedger m;
+  sqlite3* h = m.db.sql().getHandle();
+  {
+    store::ReadTransaction snapshot(m.db);
+    CHECK(market::DayView(m.db).latest_close_day() == day("2024-04-02"));
+    CHECK(sqlite3_get_autocommit(h) == 0);
+  }
+  CHECK(sqlite3_get_autocommit(h) != 0);
+  m.closes({{"CALDO", "2024-06-07", "3"}});  // a write transaction of its own
+  CHECK(market::DayView(m.db).latest_close_day() == day("2024-06-07"));
+}
+
+TEST_CASE("read transaction: inside a write transaction it leaves that one open") {
+  MarketLedger m;
+  sqlite3* h = m.db.sql().getHandle();
+  store::WriteTransaction tx(m.db);
+  { store::ReadTransaction inner(m.db); }
+  CHECK(sqlite3_get_autocommit(h) == 0);
+  tx.commit();
+  CHECK(sqlite3_get_autocommit(h) != 0);
 }
 
 TEST_CASE("series: a malformed date stored by other means stops the load, naming it") {
