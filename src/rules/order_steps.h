@@ -78,10 +78,11 @@ std::vector<Work> work_list(const Portfolio& portfolio, const std::vector<Target
 // work_list() in two parts, for the rounds of orders(): the names with what
 // they hold now (pool_value > 0), then aim(): each target value and weight on
 // `pool`. With `fresh` false a target value that did not change keeps its
-// weight as it is.
+// weight as it is. aim() returns whether it set any target value anew
+// (always, with `fresh`): when not, the work list is what it was.
 std::vector<Work> work_names(const Portfolio& portfolio, const std::vector<Target>& targets,
                              const Quotes& quotes, const Decimal& pool_value);
-void aim(std::vector<Work>& work, const PoolValue& pool, bool fresh);
+bool aim(std::vector<Work>& work, const PoolValue& pool, bool fresh);
 
 struct Decision {
   enum class Kind { none, skip, buy, sell };

@@ -73,21 +73,28 @@ bool dearer(const LotState& a, const LotState& b) {
   return a.cost * b.quantity > b.cost * a.quantity;
 }
 
-Order make_order(const Work& x, const Portfolio& portfolio, std::size_t account, Side side,
-                 const Decimal& qty, std::string reason, const TradingRule& trading) {
-  Order o;
+// Sets a new order `o` (built where it is kept: an order is large) for
+// name x in an account, with no quantity yet.
+void start_order(Order& o, const Work& x, const Portfolio& portfolio, std::size_t account,
+                 Side side, std::string reason) {
   o.account_id = portfolio.accounts[account].id;
   o.account = portfolio.accounts[account].name;
   o.security_id = x.security_id;
   o.symbol = x.quote->symbol;
   o.side = side;
-  o.quantity = qty;
   o.price = x.quote->price;
-  o.value = qty * x.quote->price;
-  o.fee = trading.fee(o.value);
   o.weight_now = x.w_now;
   o.weight_target = x.w_target;
   o.reason = std::move(reason);
+}
+
+Order make_order(const Work& x, const Portfolio& portfolio, std::size_t account, Side side,
+                 const Decimal& qty, std::string reason, const TradingRule& trading) {
+  Order o;
+  start_order(o, x, portfolio, account, side, std::move(reason));
+  o.quantity = qty;
+  o.value = qty * x.quote->price;
+  o.fee = trading.fee(o.value);
   return o;
 }
 
@@ -203,15 +210,18 @@ std::vector<Work> work_names(const Portfolio& portfolio, const std::vector<Targe
 
 // Sets each name's target value and weight on the pool's invested target.
 // A target value that did not change keeps its weight (no division).
-void aim(std::vector<Work>& work, const PoolValue& pool, bool fresh) {
+bool aim(std::vector<Work>& work, const PoolValue& pool, bool fresh) {
+  bool changed = fresh;
   for (auto& x : work) {
-    const Decimal weight = x.target ? x.target->weight : Decimal();
     // Money: a target value is set to the cent.
-    Decimal value = Decimal::times_rounded(weight, pool.invested_target, 2);
+    Decimal value =
+        x.target ? Decimal::times_rounded(x.target->weight, pool.invested_target, 2) : Decimal();
     if (!fresh && value == x.target_value) continue;
+    changed = true;
     x.w_target = value.is_zero() ? Decimal() : Decimal::divide(value, pool.value, 6);
     x.target_value = std::move(value);
   }
+  return changed;
 }
 
 PoolValue value_pool(const Portfolio& portfolio, const Quotes& quotes, const TradingRule& trading,
@@ -302,9 +312,9 @@ std::vector<Order> sell_orders(const Work& x, const Decimal& units, const std::s
     const auto it = portfolio.accounts[0].holdings.find(x.security_id);
     if (it != portfolio.accounts[0].holdings.end() && it->second.lots.empty()) {
       if (!units.is_positive()) return {};
-      std::vector<Order> out;
-      out.push_back(make_order(x, portfolio, 0, Side::sell, Decimal(), reason, trading));
+      std::vector<Order> out(1);
       Order& o = out.back();
+      start_order(o, x, portfolio, 0, Side::sell, reason);
       o.quantity = std::min(units, it->second.quantity);
       o.value = o.quantity * o.price;
       o.fee = trading.fee(o.value);
@@ -533,11 +543,12 @@ namespace {
 
 // buy_orders(), with each name's buy cost taken from `costs` (in the order of
 // `work`) for the wishes whose name is in `work`, and worked out here for the
-// others.
-Buys buy_orders_at(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
+// others; the orders and skips are added to `orders` and `skipped`.
+void buy_orders_at(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
                    std::vector<Decimal>& cash, const std::vector<Decimal>& reserve,
                    const TradingRule& trading, Explain explain, const HouseholdPrefs& prefs,
-                   const std::vector<Work>* work, const std::vector<BuyCost>* costs) {
+                   const std::vector<Work>* work, const std::vector<BuyCost>* costs,
+                   std::vector<Order>& orders, std::vector<Skipped>& skipped) {
   const bool words = explain == Explain::all;
   auto placed = [&](std::int64_t id) { return prefs.place_deferred.count(id) > 0; };
   auto deferred = [&](std::size_t a) {
@@ -549,28 +560,27 @@ Buys buy_orders_at(const std::vector<BuyWish>& wishes, const Portfolio& portfoli
   auto fee = [&](const Decimal& value) {
     return value.is_zero() ? Decimal() : (trading.fee_fixed + value * fee_rate).rounded(2);
   };
+  // What a buy has in one account so far (its order, once `made`): the
+  // orders themselves are built once, at the end, where they are kept.
+  struct Fill {
+    Decimal quantity, value, fee;
+    bool made = false;
+  };
   struct Buy {
     const BuyWish* wish = nullptr;
     const Decimal* price = nullptr;  // the quote's
     const BuyCost* cost = nullptr;   // the name's, or one worked out here
     std::string why_none;            // empty: no cash left above the reserve
-    // Orders by account, in account order (most buys have one).
-    std::vector<std::pair<std::size_t, Order>> by_account;
-    Order* find(std::size_t a) {
-      for (auto& [k, o] : by_account)
-        if (k == a) return &o;
-      return nullptr;
-    }
-    Order& emplace(std::size_t a, Order o) {
-      auto at = std::find_if(by_account.begin(), by_account.end(),
-                             [&](const auto& e) { return e.first > a; });
-      return by_account.emplace(at, a, std::move(o))->second;
-    }
-    Decimal bought() const {
-      Decimal v;
-      for (const auto& [a, o] : by_account) v += o.value;
-      return v;
-    }
+    Fill* fills = nullptr;           // one per account, in account order
+    bool any = false;                // an order in some account
+  };
+  const std::size_t n_accounts = portfolio.accounts.size();
+  std::vector<Fill> fills(wishes.size() * n_accounts);
+  auto bought = [&](const Buy& b) {
+    Decimal v;
+    for (std::size_t a = 0; a < n_accounts; ++a)
+      if (b.fills[a].made) v += b.fills[a].value;
+    return v;
   };
   // The cost given for a wish's name, if any.
   auto given = [&](const BuyWish& w) -> const BuyCost* {
@@ -588,6 +598,7 @@ Buys buy_orders_at(const std::vector<BuyWish>& wishes, const Portfolio& portfoli
   for (std::size_t i = 0; i < wishes.size(); ++i) {
     Buy& b = buys[i];
     b.wish = &wishes[i];
+    b.fills = fills.data() + i * n_accounts;
     const Work& x = *wishes[i].work;
     b.price = &x.quote->price;
     b.cost = given(wishes[i]);
@@ -596,7 +607,6 @@ Buys buy_orders_at(const std::vector<BuyWish>& wishes, const Portfolio& portfoli
       b.cost = &own.back();
     }
   }
-  const std::size_t n_accounts = portfolio.accounts.size();
 
   // First the cash above the reserves is shared in proportion to what each
   // buy needs; then what rounding left is filled greedily, largest gap
@@ -646,11 +656,10 @@ Buys buy_orders_at(const std::vector<BuyWish>& wishes, const Portfolio& portfoli
   // above the minimum trade.
   auto add = [&](Buy& b, std::size_t a, const Decimal& budget,
                  const std::optional<Decimal>& max_q) -> Decimal {
-    const Work& x = *b.wish->work;
     const Decimal& step = b.cost->step;
     const Decimal& price = *b.price;
-    Order* it = b.find(a);
-    const bool fresh = it == nullptr;
+    Fill* it = &b.fills[a];
+    const bool fresh = !it->made;
     const Decimal limit = std::min(budget, spendable[a]);
     const Decimal have_q = fresh ? Decimal() : it->quantity;
     const Decimal have_cost = fresh ? Decimal() : it->value + it->fee;
@@ -681,9 +690,8 @@ Buys buy_orders_at(const std::vector<BuyWish>& wishes, const Portfolio& portfoli
       return Decimal();
     }
     const Decimal spent = fresh ? value + order_fee : value + order_fee - have_cost;
-    if (fresh)
-      it =
-          &b.emplace(a, make_order(x, portfolio, a, Side::buy, Decimal(), b.wish->reason, trading));
+    it->made = true;
+    b.any = true;
     it->quantity = fresh ? std::move(q) : have_q + q;
     it->value = std::move(value);
     it->fee = std::move(order_fee);
@@ -712,7 +720,7 @@ Buys buy_orders_at(const std::vector<BuyWish>& wishes, const Portfolio& portfoli
   if (any_spendable()) {
     std::vector<std::pair<Decimal, Buy*>> by_gap;
     for (auto& b : buys) {
-      Decimal gap = b.wish->want - b.bought();
+      Decimal gap = b.wish->want - bought(b);
       if (gap < b.cost->one_step) continue;
       by_gap.emplace_back(std::move(gap), &b);
     }
@@ -726,7 +734,7 @@ Buys buy_orders_at(const std::vector<BuyWish>& wishes, const Portfolio& portfoli
       const Decimal& one_step = b->cost->one_step;
       for (std::size_t a : account_order(b->wish->work->security_id)) {
         // Value left to target; fees come out of the cash, not the target.
-        const Decimal gap = b->wish->want - b->bought();
+        const Decimal gap = b->wish->want - bought(*b);
         if (gap < one_step) break;
         if (!spendable[a].is_positive()) continue;
         add(*b, a, spendable[a], units_within(gap, *b->price, b->cost->step));
@@ -735,24 +743,28 @@ Buys buy_orders_at(const std::vector<BuyWish>& wishes, const Portfolio& portfoli
     }
   }
 
-  Buys out;
-  out.orders.reserve(buys.size());
-  out.skipped.reserve(buys.size());
+  orders.reserve(orders.size() + buys.size());
+  skipped.reserve(skipped.size() + buys.size());
   for (auto& b : buys) {
-    if (b.by_account.empty())
-      out.skipped.push_back({b.wish->work->quote->symbol, !words ? std::string()
-                                                          : b.why_none.empty()
-                                                              ? "no cash left above the reserve"
-                                                              : std::move(b.why_none)});
-    for (auto& [a, o] : b.by_account) {
+    if (!b.any)
+      skipped.push_back({b.wish->work->quote->symbol, !words ? std::string()
+                                                      : b.why_none.empty()
+                                                          ? "no cash left above the reserve"
+                                                          : std::move(b.why_none)});
+    for (std::size_t a = 0; a < n_accounts; ++a) {
+      Fill& f = b.fills[a];
+      if (!f.made) continue;
+      Order& o = orders.emplace_back();
+      start_order(o, *b.wish->work, portfolio, a, Side::buy, b.wish->reason);
+      o.quantity = std::move(f.quantity);
+      o.value = std::move(f.value);
+      o.fee = std::move(f.fee);
       if (words && placed(o.security_id))
         o.reason += deferred(a)
                         ? fmt::format("; placed in {}: tax-deferred first", o.account)
                         : fmt::format("; placed in {}: no tax-deferred cash left", o.account);
-      out.orders.push_back(std::move(o));
     }
   }
-  return out;
 }
 
 }  // namespace
@@ -760,7 +772,10 @@ Buys buy_orders_at(const std::vector<BuyWish>& wishes, const Portfolio& portfoli
 Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
                 std::vector<Decimal>& cash, const std::vector<Decimal>& reserve,
                 const TradingRule& trading, Explain explain, const HouseholdPrefs& prefs) {
-  return buy_orders_at(wishes, portfolio, cash, reserve, trading, explain, prefs, nullptr, nullptr);
+  Buys out;
+  buy_orders_at(wishes, portfolio, cash, reserve, trading, explain, prefs, nullptr, nullptr,
+                out.orders, out.skipped);
+  return out;
 }
 
 void rebuy_after_raise(const std::vector<Work>& work, const std::vector<Order>& orders,
@@ -871,23 +886,21 @@ struct Draft {
   bool summarize = false;  // false: an empty pool, nothing to summarize
 };
 
-// One plan with the pool's targets set on its value less `fee_guess[a]` for
-// each account a (the fees the plan itself is expected to cost). `values`:
-// each account's value (steps::value_pool); `work`: the names the plan
-// touches, their targets set here for this guess.
-Draft plan_once(const Portfolio& portfolio, const std::vector<Decimal>& values,
-                std::vector<steps::Work>& work, const std::vector<BuyCost>& costs,
-                const TradingRule& trading, Date as_of, const std::vector<Decimal>& fee_guess,
-                bool first, Explain explain, const HouseholdPrefs& prefs) {
+// One plan on `pool` (steps::pool_of on the fees the plan itself is
+// expected to cost), with `work`, the names the plan touches, aimed at it
+// (steps::aim). The plan depends on the fee guess only through the pool's
+// reserves and the work's target values and weights.
+Draft plan_once(const Portfolio& portfolio, steps::PoolValue pool,
+                const std::vector<steps::Work>& work, const std::vector<BuyCost>& costs,
+                const TradingRule& trading, Date as_of, Explain explain,
+                const HouseholdPrefs& prefs) {
   Draft draft;
   OrderPlan& plan = draft.plan;
-  steps::PoolValue& pool = draft.pool;
-  pool = steps::pool_of(portfolio, values, trading, fee_guess);
-  plan.pool_value = pool.value;
-  plan.invested_target = pool.invested_target;
+  draft.pool = std::move(pool);
+  plan.pool_value = draft.pool.value;
+  plan.invested_target = draft.pool.invested_target;
   if (!plan.pool_value.is_positive()) return draft;
-
-  steps::aim(work, pool, first);
+  steps::PoolValue& pool_now = draft.pool;
   std::vector<steps::BuyWish> wishes;
   wishes.reserve(work.size());
   plan.orders.reserve(work.size());
@@ -907,7 +920,7 @@ Draft plan_once(const Portfolio& portfolio, const std::vector<Decimal>& values,
         for (auto& o :
              steps::sell_orders(x, d.sell_units, d.reason, portfolio, trading, as_of, &tax)) {
           for (std::size_t a = 0; a < portfolio.accounts.size(); ++a)
-            if (portfolio.accounts[a].id == o.account_id) pool.cash[a] += o.value - o.fee;
+            if (portfolio.accounts[a].id == o.account_id) pool_now.cash[a] += o.value - o.fee;
           plan.orders.push_back(std::move(o));
         }
         break;
@@ -917,7 +930,7 @@ Draft plan_once(const Portfolio& portfolio, const std::vector<Decimal>& values,
   // it; without them nothing is raised and nothing is bought back.
   std::vector<std::size_t> short_of_cash;
   for (std::size_t a = 0; a < portfolio.accounts.size(); ++a)
-    if (pool.cash[a].is_negative() && prefs.must_give.count(portfolio.accounts[a].id))
+    if (pool_now.cash[a].is_negative() && prefs.must_give.count(portfolio.accounts[a].id))
       short_of_cash.push_back(a);
   if (!short_of_cash.empty()) {
     std::set<std::int64_t> bought;
@@ -925,18 +938,14 @@ Draft plan_once(const Portfolio& portfolio, const std::vector<Decimal>& values,
     std::vector<Decimal> before_raise;
     for (const auto& o : plan.orders) before_raise.push_back(o.quantity);
     for (const std::size_t a : short_of_cash)
-      steps::raise_cash(a, work, portfolio, trading, as_of, plan.orders, pool.cash, tax, explain,
-                        bought);
+      steps::raise_cash(a, work, portfolio, trading, as_of, plan.orders, pool_now.cash, tax,
+                        explain, bought);
     steps::rebuy_after_raise(work, plan.orders, before_raise, trading, wishes, plan.skipped,
                              explain);
   }
   for (auto& k : tax.kept) plan.skipped.push_back(std::move(k));
-  auto buys = steps::buy_orders_at(wishes, portfolio, pool.cash, pool.reserve, trading, explain,
-                                   prefs, &work, &costs);
-  plan.orders.reserve(plan.orders.size() + buys.orders.size());
-  for (auto& o : buys.orders) plan.orders.push_back(std::move(o));
-  plan.skipped.reserve(plan.skipped.size() + buys.skipped.size());
-  for (auto& s : buys.skipped) plan.skipped.push_back(std::move(s));
+  steps::buy_orders_at(wishes, portfolio, pool_now.cash, pool_now.reserve, trading, explain, prefs,
+                       &work, &costs, plan.orders, plan.skipped);
   draft.summarize = true;
   return draft;
 }
@@ -962,8 +971,9 @@ OrderPlan plan_orders(const Portfolio& portfolio, const std::vector<Target>& tar
   costs.reserve(work.size());
   for (const auto& x : work) costs.push_back(buy_cost(*x.quote, trading));
   std::vector<Decimal> guess(portfolio.accounts.size());
-  Draft draft =
-      plan_once(portfolio, values, work, costs, trading, as_of, guess, true, explain, prefs);
+  steps::PoolValue pool = steps::pool_of(portfolio, values, trading, guess);
+  if (pool.value.is_positive()) steps::aim(work, pool, true);
+  Draft draft = plan_once(portfolio, std::move(pool), work, costs, trading, as_of, explain, prefs);
   for (int round = 0; round < 8; ++round) {
     std::vector<Decimal> fees(portfolio.accounts.size());
     for (const auto& o : draft.plan.orders)
@@ -971,7 +981,18 @@ OrderPlan plan_orders(const Portfolio& portfolio, const std::vector<Target>& tar
         if (portfolio.accounts[a].id == o.account_id) fees[a] += o.fee;
     if (fees == guess) break;
     guess = std::move(fees);
-    draft = plan_once(portfolio, values, work, costs, trading, as_of, guess, false, explain, prefs);
+    pool = steps::pool_of(portfolio, values, trading, guess);
+    // A round whose reserves and target values are the last round's plans
+    // the same orders, whose fees are then the guess it was given: the
+    // rounds have settled on the last plan, with this pool's invested target.
+    const bool same_reserves = pool.reserve == draft.pool.reserve;
+    const bool aimed_anew = pool.value.is_positive() && steps::aim(work, pool, false);
+    if (same_reserves && !aimed_anew) {
+      draft.plan.invested_target = pool.invested_target;
+      draft.pool.invested_target = std::move(pool.invested_target);
+      break;
+    }
+    draft = plan_once(portfolio, std::move(pool), work, costs, trading, as_of, explain, prefs);
   }
   if (summary && draft.summarize) steps::summarize(draft.plan, portfolio, work, draft.pool);
   return std::move(draft.plan);

@@ -639,6 +639,64 @@ TEST_CASE("order steps: aiming again sets the target values on the new pool") {
   }
 }
 
+TEST_CASE("order steps: aim says whether it set any target value anew") {
+  const auto [p, t, q] = two_names();
+  auto pool = steps::value_pool(p, q, {}, {Decimal()});
+  auto work = steps::work_names(p, t, q, pool.value);
+  CHECK(steps::aim(work, pool, true));
+  CHECK_FALSE(steps::aim(work, pool, false));
+  // 0.6 x 1999.999 and 0.4 x 1999.999 round to the cents of 0.6 x 2000 and 0.4 x 2000.
+  pool.invested_target = dec("1999.999");
+  CHECK_FALSE(steps::aim(work, pool, false));
+  CHECK(work[0].target_value == Decimal(1200));
+  pool.invested_target = Decimal(1990);
+  CHECK(steps::aim(work, pool, false));
+  CHECK(work[0].target_value == Decimal(1194));
+  CHECK(steps::aim(work, pool, true));
+}
+
+TEST_CASE("orders: a fee round whose targets are the last round's keeps its orders") {
+  // 1007 of cash, four names at a quarter each, fees 0.10 + 5 bp. Guess 0:
+  // fees 0.89. Guess 0.89: targets 251.53 each (a quarter of 1006.11),
+  // fees 0.88. Guess 0.88: a quarter of 1006.12 is 251.53 again, so the
+  // orders are those of guess 0.89, and the invested target is 1006.12.
+  const Portfolio p{{account(1, "Main", "1007")}};
+  const std::vector<Target> t{target(10, "W", "0.25"), target(11, "X", "0.25"),
+                              target(12, "Y", "0.25"), target(13, "Z", "0.25")};
+  const auto q =
+      quotes({{10, "W", "7.13"}, {11, "X", "12.5"}, {12, "Y", "3.07"}, {13, "Z", "41.2"}});
+  TradingRule g;
+  g.fee_fixed = dec("0.1");
+  g.fee_bps = Decimal(5);
+  // The premise: aimed at guess 0.89 and then at 0.88, no target value changes.
+  const auto values = steps::account_values(p, q);
+  auto work = steps::work_names(p, t, q, Decimal(1007));
+  steps::aim(work, steps::pool_of(p, values, g, {dec("0.89")}), true);
+  CHECK(work[0].target_value == dec("251.53"));
+  CHECK_FALSE(steps::aim(work, steps::pool_of(p, values, g, {dec("0.88")}), false));
+
+  const auto plan = orders(p, t, q, g, kAsOf);
+  CHECK(plan.estimated_fees == dec("0.88"));
+  CHECK(plan.invested_target == dec("1006.12"));
+  // The orders are the buy step's on those targets.
+  const steps::Work w = to_buy(q.at(10), 10), x = to_buy(q.at(11), 11), y = to_buy(q.at(12), 12),
+                    z = to_buy(q.at(13), 13);
+  const Decimal quarter = dec("251.53");
+  std::vector<steps::BuyWish> wishes{{&w, quarter, t[0].why + ": new position"},
+                                     {&x, quarter, t[1].why + ": new position"},
+                                     {&y, quarter, t[2].why + ": new position"},
+                                     {&z, quarter, t[3].why + ": new position"}};
+  std::vector<Decimal> cash;
+  const auto buys = buy_from("1007", wishes, g, cash);
+  check_same_orders(plan.orders, buys.orders);
+  Decimal fees;
+  for (const auto& o : buys.orders) fees += o.fee;
+  CHECK(fees == dec("0.88"));
+  const auto only = orders_only(p, t, q, g, kAsOf);
+  check_same_orders(only.orders, plan.orders);
+  CHECK(only.invested_target == dec("1006.12"));
+}
+
 TEST_CASE("orders: without explanations a buy that gets nothing is skipped without words") {
   // The cash of 50 buys no unit of X at 100: the skip names X, and says why
   // only when asked to.
