@@ -46,20 +46,28 @@ Security read_security(SQLite::Statement& st) {
 
 // A correction's replacement row carries its reference in the correction
 // table (the voided row keeps it in txn, where a ref is unique per account).
+// The descriptive texts come last, so that a read for the replay
+// (TxnFields::replay) is the same columns without its last three.
 constexpr const char* kTxnColumns =
     "id, account_id, date, kind, security_id, quantity, price, amount, fee, acquired, lots, "
-    "link_id, voids_id, coalesce(txn.ref, correction.ref), row_hash, note, txn.currency, "
-    "txn.rate, txn.to_currency";
+    "link_id, voids_id, txn.currency, txn.rate, txn.to_currency, "
+    "coalesce(txn.ref, correction.ref), row_hash, note";
 constexpr const char* kTxnFrom = "txn LEFT JOIN correction ON correction.new_txn_id = txn.id";
 // The same columns from txn alone, its own ref in place of the coalesce.
 constexpr const char* kTxnPlainColumns =
     "id, account_id, date, kind, security_id, quantity, price, amount, fee, acquired, lots, "
-    "link_id, voids_id, ref, row_hash, note, currency, rate, to_currency";
+    "link_id, voids_id, currency, rate, to_currency, ref, row_hash, note";
+constexpr const char* kTxnReplayColumns =
+    "id, account_id, date, kind, security_id, quantity, price, amount, fee, acquired, lots, "
+    "link_id, voids_id, currency, rate, to_currency";
 
 // Read through the raw statement: the ledger's every row passes here on
 // each report. Each column is fetched once (Statement::value), and its text
-// is parsed in place, without a std::string in between.
-Transaction read_txn(const Statement& st) {
+// is parsed in place, without a std::string in between. The descriptive
+// texts (columns 16 to 18) are read for TxnFields::all only.
+// Fills `t`, a default Transaction (in place: a row read into a temporary
+// and moved into the vector costs a move and a destruction of some 400 bytes).
+void read_txn(const Statement& st, TxnFields fields, Transaction& t) {
   auto text = [&](int c) -> std::optional<std::string> {
     const auto v = st.value(c);
     if (v.null()) return std::nullopt;
@@ -75,7 +83,6 @@ Transaction read_txn(const Statement& st) {
     if (v.null()) return std::nullopt;
     return v.integer();
   };
-  Transaction t;
   t.id = st.value(0).integer();
   t.account_id = st.value(1).integer();
   t.date = Date::parse(st.value(2).text());
@@ -92,13 +99,14 @@ Transaction read_txn(const Statement& st) {
     t.lots = parse_lot_picks(lots.text());
   t.link_id = id(11);
   t.voids_id = id(12);
-  t.ref = text(13);
-  t.row_hash = text(14);
-  t.note = text(15);
-  t.currency = text(16);
-  t.rate = decimal(17);
-  t.to_currency = text(18);
-  return t;
+  t.currency = text(13);
+  t.rate = decimal(14);
+  t.to_currency = text(15);
+  if (fields == TxnFields::all) {
+    t.ref = text(16);
+    t.row_hash = text(17);
+    t.note = text(18);
+  }
 }
 
 // Maps the pages of a block that is about to be written whole in one call,
@@ -372,12 +380,13 @@ std::optional<Transaction> find_transaction(Database& db, std::int64_t id) {
                fmt::format("SELECT {} FROM {} WHERE id = ?", kTxnColumns, kTxnFrom).c_str());
   st.bind(1, id);
   if (!st.next()) return std::nullopt;
-  auto t = read_txn(st);
+  Transaction t;
+  read_txn(st, TxnFields::all, t);
   st.reset();
   return t;
 }
 
-std::vector<Transaction> list_transactions(Database& db) {
+std::vector<Transaction> list_transactions(Database& db, TxnFields fields) {
   std::vector<Transaction> out;
   // Reserved up front: a Transaction is large, and growing the vector by
   // doubling would move every row read so far, again and again.
@@ -389,12 +398,16 @@ std::vector<Transaction> list_transactions(Database& db) {
   // the table in id order: walking the (date, id) index instead costs a
   // lookup of the table row, and one in correction, for every row.
   std::vector<std::pair<std::int64_t, std::string>> corrections;
-  Statement refs(db.sql().getHandle(),
-                 "SELECT new_txn_id, ref FROM correction ORDER BY new_txn_id");
-  while (refs.next()) corrections.emplace_back(refs.integer(0), std::string(refs.text(1)));
+  if (fields == TxnFields::all) {
+    Statement refs(db.sql().getHandle(),
+                   "SELECT new_txn_id, ref FROM correction ORDER BY new_txn_id");
+    while (refs.next()) corrections.emplace_back(refs.integer(0), std::string(refs.text(1)));
+  }
   Statement st(db.sql().getHandle(),
-               fmt::format("SELECT {} FROM txn ORDER BY id", kTxnPlainColumns).c_str());
-  while (st.next()) out.push_back(read_txn(st));
+               fmt::format("SELECT {} FROM txn ORDER BY id",
+                           fields == TxnFields::all ? kTxnPlainColumns : kTxnReplayColumns)
+                   .c_str());
+  while (st.next()) read_txn(st, fields, out.emplace_back());
   auto correction = corrections.begin();
   for (auto& t : out) {
     while (correction != corrections.end() && correction->first < t.id) ++correction;
