@@ -173,7 +173,7 @@ TEST_CASE("ledger rows: a back-dated row is listed in posting order, by day and 
 TEST_CASE(
     "ledger rows: a read for the replay leaves ref, row hash and note unset, the rest equal") {
   LedgerFixture f;
-  f.account("Main");
+  f.account("Main", BasisMethod::specific);
   f.security("ALFA");
   f.cash(TxnKind::deposit, "2024-01-02", "Main", "1000");
   ledger::PostRequest r;
@@ -191,14 +191,20 @@ TEST_CASE(
   r.note.reset();
   r.row_hash = "9f3c";
   r.date = day("2024-01-04");
-  ledger::post(f.db, r);
+  const auto second = ledger::post(f.db, r).front();
+  f.sell("2024-01-05", "Main", "ALFA", "1", "13", "0", {LotPick{second, dec("1")}});
+  const auto extra = f.cash(TxnKind::deposit, "2024-01-06", "Main", "5");
+  ledger::void_transaction(f.db, extra, "booked twice");
   const auto all = store::list_transactions(f.db);
   const auto replay = store::list_transactions(f.db, store::TxnFields::replay);
-  REQUIRE(all.size() == 3);
-  REQUIRE(replay.size() == 3);
+  REQUIRE(all.size() == 6);
+  REQUIRE(replay.size() == 6);
   CHECK(all[1].ref == "B-17");
   CHECK(all[1].note == "first lot");
   CHECK(all[2].row_hash == "9f3c");
+  CHECK(all[3].lots.size() == 1);
+  CHECK(all[5].voids_id == extra);
+  CHECK(store::optional_fields_indexed(f.db));
   for (std::size_t i = 0; i < all.size(); ++i) {
     CHECK_FALSE(replay[i].ref);
     CHECK_FALSE(replay[i].row_hash);
@@ -215,6 +221,10 @@ TEST_CASE(
     CHECK(replay[i].fee == e.fee);
     CHECK(replay[i].currency == e.currency);
     CHECK(replay[i].rate == e.rate);
+    CHECK(replay[i].acquired == e.acquired);
+    CHECK(replay[i].link_id == e.link_id);
+    CHECK(replay[i].voids_id == e.voids_id);
+    CHECK(replay[i].lots.size() == e.lots.size());
   }
 }
 
