@@ -102,7 +102,7 @@ bool held_long_term(Date acquired, Date disposed) {
 Holdings holdings(store::Database& db, Date as_of, const std::optional<std::string>& account,
                   const std::optional<std::string>& currency) {
   const auto only = account_filter(db, account);
-  const Book book = replay(load_log(db), as_of);
+  const Book book = replay(load_log(db, store::TxnFields::replay), as_of);
   return holdings_of(book, market::DayView(db), as_of, only, currency);
 }
 
@@ -192,7 +192,7 @@ std::vector<LotLine> open_lots(store::Database& db, Date as_of,
                                const std::optional<std::string>& currency) {
   const auto only = account_filter(db, account);
   const auto symbols = symbols_by_id(db);
-  const Book book = replay(load_log(db), as_of);
+  const Book book = replay(load_log(db, store::TxnFields::replay), as_of);
   const market::DayView view(db);
   std::vector<LotLine> out;
   for (const auto& info : book.accounts()) {
@@ -216,7 +216,7 @@ std::vector<GainLine> realized_gains(store::Database& db, std::optional<int> yea
                                      std::optional<int> long_term_days,
                                      const std::optional<std::string>& currency) {
   const auto only = account_filter(db, account);
-  const Book book = replay(load_log(db));
+  const Book book = replay(load_log(db, store::TxnFields::replay));
   return realized_gains_of(book, market::DayView(db), TaxStatuses::load(db), year, only,
                            long_term_days, currency);
 }

@@ -259,10 +259,10 @@ std::vector<std::int64_t> write_unchecked(store::Database& db, const PostRequest
   return ids;
 }
 
-LedgerLog load_log(store::Database& db) {
+LedgerLog load_log(store::Database& db, store::TxnFields fields) {
   LedgerLog log;
   log.accounts = store::list_accounts(db);
-  log.transactions = store::list_transactions(db);
+  log.transactions = store::list_transactions(db, fields);
   log.splits = store::list_splits(db);
   log.rates = std::make_shared<const market::DayView>(db);
   log.actions = store::list_actions(db);

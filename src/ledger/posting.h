@@ -22,6 +22,7 @@
 #include "ledger/period.h"
 #include "model/records.h"
 #include "store/database.h"
+#include "store/ledger_store.h"
 
 namespace keel::ledger {
 
@@ -120,8 +121,10 @@ struct VoidResult {
 };
 VoidResult void_transaction(store::Database& db, std::int64_t id, const std::string& reason);
 
-// Loads accounts, transactions, splits and exchange rates.
-LedgerLog load_log(store::Database& db);
+// Loads accounts, transactions, splits and exchange rates. `fields`:
+// store::TxnFields::replay for a caller that reads no transaction's ref,
+// row hash or note (they are then left unset).
+LedgerLog load_log(store::Database& db, store::TxnFields fields = store::TxnFields::all);
 
 // Refuses `rate` for base/quote on `day` when it is nearer the inverse of the
 // stored rate than the rate itself (a rate given the wrong way round); the

@@ -25,15 +25,21 @@ struct EntryDay {
 };
 std::vector<EntryDay> entry_days(const Replayer& replayer, const LedgerLog& log,
                                  const market::Series& prices, Date first, Date to) {
-  std::vector<Date> days{first};
-  auto keep = [&](Date d) {
-    if (d > first && d <= to) days.push_back(d);
+  // The live rows and the trading days come in ascending order already:
+  // they are merged, not sorted (the few splits and actions are).
+  auto keep = [&](std::vector<Date>& into, Date d) {
+    if (d > first && d <= to && (into.empty() || into.back() != d)) into.push_back(d);
   };
-  for (const Transaction* t : replayer.live()) keep(t->date);
-  for (const auto& s : log.splits) keep(s.date);
-  for (const auto* a : live_actions(log.actions)) keep(a->date);
-  for (const Date d : prices.trading_days()) keep(d);
-  std::sort(days.begin(), days.end());
+  std::vector<Date> rows{first}, market, events;
+  for (const Transaction* t : replayer.live()) keep(rows, t->date);
+  for (const Date d : prices.trading_days()) keep(market, d);
+  for (const auto& s : log.splits) keep(events, s.date);
+  for (const auto* a : live_actions(log.actions)) keep(events, a->date);
+  std::sort(events.begin(), events.end());
+  std::vector<Date> merged(rows.size() + market.size());
+  std::merge(rows.begin(), rows.end(), market.begin(), market.end(), merged.begin());
+  std::vector<Date> days(merged.size() + events.size());
+  std::merge(merged.begin(), merged.end(), events.begin(), events.end(), days.begin());
   days.erase(std::unique(days.begin(), days.end()), days.end());
   std::vector<EntryDay> out;
   for (const Date d : days) out.push_back({d, false});

@@ -196,7 +196,11 @@ ResolvedPeriod resolve(const LedgerData& data, const ReturnsRequest& request) {
 }
 
 LedgerData LedgerData::load(store::Database& db) {
-  LedgerData data{ledger::load_log(db), {}, market::DayView(db).latest_close_day(), {}};
+  // No report built on the series reads a transaction's ref, row hash or note.
+  LedgerData data{ledger::load_log(db, store::TxnFields::replay),
+                  {},
+                  market::DayView(db).latest_close_day(),
+                  {}};
   const auto securities = store::list_securities(db);
   for (const auto& s : securities) data.symbols[s.id] = s.symbol;
   data.currencies = currencies_of(data.log, securities);

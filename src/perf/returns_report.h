@@ -79,6 +79,8 @@ struct LedgerData {
   std::map<std::int64_t, std::string> symbols;  // security id -> symbol
   std::optional<Date> latest_close;             // the latest day with any close
   std::vector<std::string> currencies;          // every currency in use (currencies_of)
+  // The log's transactions without ref, row hash or note
+  // (store::TxnFields::replay): nothing measured from it reads them.
   static LedgerData load(store::Database& db);
 };
 

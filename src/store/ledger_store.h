@@ -40,9 +40,20 @@ std::vector<Security> list_securities(Database& db);
 
 std::int64_t insert_transaction(Database& db, const Transaction& txn);
 std::optional<Transaction> find_transaction(Database& db, std::int64_t id);
+// What a read of the transactions fills in.
+enum class TxnFields {
+  all,     // every field
+  replay,  // all but the descriptive texts ref, row_hash and note, left unset:
+           // what the lot engine and the reports built on its replay read
+};
 // Every row, voids included, in posting order (date, then id). A
 // correction's replacement row carries the ref it corrects.
-std::vector<Transaction> list_transactions(Database& db);
+std::vector<Transaction> list_transactions(Database& db, TxnFields fields = TxnFields::all);
+// Whether the replay's read finds the rows with an optional field set
+// (acquired, lots, link, void, currency, rate, currency bought) through the
+// partial index of schema version 13, as its query is written to, rather
+// than by testing every row.
+bool optional_fields_indexed(Database& db);
 bool ref_exists(Database& db, std::int64_t account_id, std::string_view ref);
 bool row_hash_exists(Database& db, std::int64_t account_id, std::string_view row_hash);
 std::optional<std::int64_t> void_of(Database& db, std::int64_t txn_id);

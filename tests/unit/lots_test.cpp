@@ -170,6 +170,64 @@ TEST_CASE("ledger rows: a back-dated row is listed in posting order, by day and 
   CHECK(ids == std::vector<std::int64_t>{early, buy, late, same_day});
 }
 
+TEST_CASE(
+    "ledger rows: a read for the replay leaves ref, row hash and note unset, the rest equal") {
+  LedgerFixture f;
+  f.account("Main", BasisMethod::specific);
+  f.security("ALFA");
+  f.cash(TxnKind::deposit, "2024-01-02", "Main", "1000");
+  ledger::PostRequest r;
+  r.kind = TxnKind::buy;
+  r.date = day("2024-01-03");
+  r.account = "Main";
+  r.symbol = "ALFA";
+  r.quantity = dec("4");
+  r.price = dec("12.5");
+  r.fee = dec("0.75");
+  r.ref = "B-17";
+  r.note = "first lot";
+  ledger::post(f.db, r);
+  r.ref.reset();
+  r.note.reset();
+  r.row_hash = "9f3c";
+  r.date = day("2024-01-04");
+  const auto second = ledger::post(f.db, r).front();
+  f.sell("2024-01-05", "Main", "ALFA", "1", "13", "0", {LotPick{second, dec("1")}});
+  const auto extra = f.cash(TxnKind::deposit, "2024-01-06", "Main", "5");
+  ledger::void_transaction(f.db, extra, "booked twice");
+  const auto all = store::list_transactions(f.db);
+  const auto replay = store::list_transactions(f.db, store::TxnFields::replay);
+  REQUIRE(all.size() == 6);
+  REQUIRE(replay.size() == 6);
+  CHECK(all[1].ref == "B-17");
+  CHECK(all[1].note == "first lot");
+  CHECK(all[2].row_hash == "9f3c");
+  CHECK(all[3].lots.size() == 1);
+  CHECK(all[5].voids_id == extra);
+  CHECK(store::optional_fields_indexed(f.db));
+  for (std::size_t i = 0; i < all.size(); ++i) {
+    CHECK_FALSE(replay[i].ref);
+    CHECK_FALSE(replay[i].row_hash);
+    CHECK_FALSE(replay[i].note);
+    const Transaction& e = all[i];
+    CHECK(replay[i].id == e.id);
+    CHECK(replay[i].account_id == e.account_id);
+    CHECK(replay[i].date == e.date);
+    CHECK(replay[i].kind == e.kind);
+    CHECK(replay[i].security_id == e.security_id);
+    CHECK(replay[i].quantity == e.quantity);
+    CHECK(replay[i].price == e.price);
+    CHECK(replay[i].amount == e.amount);
+    CHECK(replay[i].fee == e.fee);
+    CHECK(replay[i].currency == e.currency);
+    CHECK(replay[i].rate == e.rate);
+    CHECK(replay[i].acquired == e.acquired);
+    CHECK(replay[i].link_id == e.link_id);
+    CHECK(replay[i].voids_id == e.voids_id);
+    CHECK(replay[i].lots.size() == e.lots.size());
+  }
+}
+
 TEST_CASE("splits: a two-for-one split doubles units and keeps total cost") {
   LedgerFixture f;
   three_lots(f, BasisMethod::fifo);
