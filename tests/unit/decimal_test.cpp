@@ -374,3 +374,139 @@ TEST_CASE("decimal: of_double gives the decimal fmt prints, exact ties to even")
                     fmt::format("{:.17g} at {} places", y, places));
   }
 }
+
+// The edges of the fast paths: +-(2^63 - 1) and +-2^63 (the machine word),
+// +-(2^127 - 1) and +-2^127 (128 bits), and kMaxDigits nines, each at scales
+// 0 and 30. Every pair goes through +, -, *, comparison, rounding,
+// division, truncation and a rounded product, and must give what the same
+// numbers moved by 10^45 (or multiplied by it) give on the multi-precision path.
+TEST_CASE(
+    "decimal: every operation at the word and 128-bit edges agrees with the multi-precision path") {
+  const Decimal big = Decimal::parse("1" + std::string(45, '0'));  // 10^45
+  // Powers of two from Python's exact integers (python3 -c 'print(2**63, 2**127)').
+  const std::vector<std::string> mantissas = {
+      "9223372036854775807", "9223372036854775808", "170141183460469231731687303715884105727",
+      "170141183460469231731687303715884105728", std::string(Decimal::kMaxDigits, '9')};
+  std::vector<Decimal> edges;
+  for (const auto& m : mantissas)
+    for (const int scale : {0, 30})
+      for (const char* sign : {"", "-"}) {
+        std::string digits = m;
+        if (digits.size() <= static_cast<std::size_t>(scale))
+          digits.insert(0, static_cast<std::size_t>(scale) + 1 - digits.size(), '0');
+        if (scale > 0) digits.insert(digits.size() - static_cast<std::size_t>(scale), ".");
+        const std::string text = sign + digits;
+        const Decimal value = Decimal::parse(text);
+        REQUIRE(value.str() == text);
+        edges.push_back(value);
+      }
+  for (const Decimal& a : edges)
+    for (const Decimal& b : edges) {
+      check_against_moved(a, b, big);
+      for (const int places : {0, 18}) {
+        CAPTURE(places);
+        REQUIRE(a.rounded(places) == Decimal::divide(a * big, big, places));
+        REQUIRE(Decimal::divide(a, b, places) == Decimal::divide(a * big, b * big, places));
+        REQUIRE(Decimal::times_rounded(a, b, places) == (a * b).rounded(places));
+        const Decimal shift = a.is_negative() ? -big : big;
+        REQUIRE(a.truncated(places) == (a + shift).truncated(places) - shift);
+      }
+    }
+}
+
+// Mantissas of 60 to 128 bits, either sign, scales 0 to 30: values on
+// either side of 2^63 and 2^127 against the multi-precision path, as above.
+TEST_CASE("decimal: random values around 2^63 and 2^127 agree with the multi-precision path") {
+  const Decimal big = Decimal::parse("1" + std::string(45, '0'));  // 10^45
+  const Decimal two64 = d("18446744073709551616");                 // 2^64 (python3: 2**64)
+  Xorshift next{0x9E3779B97F4A7C15ULL};
+  auto any = [&] {
+    const int bits = 60 + static_cast<int>(next() % 69);  // 60 .. 128
+    const std::uint64_t high = bits > 64 ? next() >> (128 - bits) : 0;
+    const std::uint64_t low = bits >= 64 ? next() : next() >> (64 - bits);
+    // high x 2^64 + low, built from two halves below 2^63 so each fits a word.
+    const Decimal h = Decimal(static_cast<long long>(high >> 1)) * Decimal(2) +
+                      Decimal(static_cast<long long>(high & 1));
+    const Decimal l = Decimal(static_cast<long long>(low >> 1)) * Decimal(2) +
+                      Decimal(static_cast<long long>(low & 1));
+    const Decimal m = (h * two64 + l) * Decimal::scaled(1, static_cast<int>(next() % 31));
+    return next() % 2 ? -m : m;
+  };
+  for (int i = 0; i < 500; ++i) {
+    const Decimal a = any(), b = any();
+    check_against_moved(a, b, big);
+    const int places = static_cast<int>(next() % 25);
+    CAPTURE(places);
+    REQUIRE(Decimal::parse(a.str()) == a);
+    REQUIRE(a.rounded(places) == Decimal::divide(a * big, big, places));
+    REQUIRE(Decimal::times_rounded(a, b, places) == (a * b).rounded(places));
+    if (!b.is_zero())
+      REQUIRE(Decimal::divide(a, b, places) == Decimal::divide(a * big, b * big, places));
+  }
+}
+
+// Results computed with Python's decimal module (python3, getcontext().prec =
+// 400, quantize(..., rounding=ROUND_HALF_EVEN) for rounding), from the same
+// operands; the expression is beside each line.
+TEST_CASE("decimal: results at the word and 128-bit edges match Python's decimal module") {
+  const Decimal max64 = d("9223372036854775807");                       // 2**63 - 1
+  const Decimal two63 = d("9223372036854775808");                       // 2**63
+  const Decimal max127 = d("170141183460469231731687303715884105727");  // 2**127 - 1
+  const Decimal two127 = d("170141183460469231731687303715884105728");  // 2**127
+  CHECK((max64 + Decimal(1)).str() == "9223372036854775808");
+  CHECK((-two63 - Decimal(1)).str() == "-9223372036854775809");
+  CHECK((max127 + Decimal(1)).str() == "170141183460469231731687303715884105728");
+  CHECK((-max127 - Decimal(1)).str() == "-170141183460469231731687303715884105728");
+  CHECK((max127 + max127).str() == "340282366920938463463374607431768211454");
+  CHECK((-max127 - two127).str() == "-340282366920938463463374607431768211455");
+  CHECK((two63 - max64).str() == "1");
+  CHECK((max64 * max64).str() == "85070591730234615847396907784232501249");
+  CHECK((two63 * two63).str() == "85070591730234615865843651857942052864");
+  CHECK((d("18446744073709551616") * two63).str() == "170141183460469231731687303715884105728");
+  CHECK((max127 * max127).str() ==
+        "28948022309329048855892746252171976962977213799489202546401021394546514198529");
+  CHECK((-two63 * d("0.000000000001")).str() == "-9223372.036854775808");
+  CHECK((d("460000000000") * d("1.234567890123")).str() == "567901229456.58");
+  const Decimal max127_30 = d("170141183.460469231731687303715884105727");  // (2**127 - 1) / 10**30
+  const Decimal two127_30 = d("170141183.460469231731687303715884105728");  // 2**127 / 10**30
+  const Decimal two63_12 = d("9223372.036854775808");                       // 2**63 / 10**12
+  CHECK(max127_30.rounded(2).str() == "170141183.46");
+  CHECK((-max127_30).rounded(0).str() == "-170141183");
+  CHECK(two127_30.rounded(5).str() == "170141183.46047");
+  CHECK(two63_12.rounded(11).str() == "9223372.03685477581");
+  CHECK(Decimal::divide(max127, Decimal(3), 10).str() ==
+        "56713727820156410577229101238628035242.3333333333");
+  CHECK(Decimal::divide(-two127, d("0.7"), 3).str() ==
+        "-243058833514956045330981862451263008182.857");
+  CHECK(Decimal::divide(two63, max64, 30).str() == "1.000000000000000000108420217249");
+  CHECK(Decimal::times_rounded(two63_12, two63_12, 6).str() == "85070591730234.615866");
+  CHECK(
+      Decimal::times_rounded(d("1701411834604692317.31687303715884105727"), d("-1.5"), 19).str() ==
+      "-2552117751907038475.9753095557382615859");
+  // Ordering across the edges.
+  CHECK(max64 < two63);
+  CHECK(-two63 < -max64);
+  CHECK(max127 < two127);
+  CHECK(-two127 < -max127);
+  CHECK((two127 - Decimal(1)) == max127);
+  CHECK((-two127 + Decimal(1)) == -max127);
+}
+
+TEST_CASE("decimal: copies and moves keep values past 2^127") {
+  const Decimal huge = d("-1701411834604692317316873037158841057280.5");  // below -2^127 x 10
+  const Decimal wide = d("-17014118346046923173168730371588410.5727");
+  Decimal copy = huge;
+  CHECK(copy == huge);
+  copy = wide;  // the heap form takes an inline one
+  CHECK(copy == wide);
+  copy = huge;  // and an inline one a heap form
+  CHECK(copy.str() == "-1701411834604692317316873037158841057280.5");
+  Decimal moved = std::move(copy);
+  CHECK(moved == huge);
+  std::vector<Decimal> many(50, huge);
+  many.insert(many.begin(), wide);  // moves every element
+  CHECK(many.front() == wide);
+  CHECK(many.back() == huge);
+  CHECK((huge - huge).is_zero());
+  CHECK((wide - wide).is_zero());
+}
