@@ -14,6 +14,7 @@
 #include "core/error.h"
 #include "core/suggest.h"
 #include "core/text.h"
+#include "store/read_transaction.h"
 #include "store/record_change_store.h"
 #include "store/sql_values.h"
 #include "store/statement.h"
@@ -415,6 +416,8 @@ std::optional<Transaction> find_transaction(Database& db, std::int64_t id) {
 }
 
 std::vector<Transaction> list_transactions(Database& db, TxnFields fields) {
+  // Its several statements read one state of the ledger.
+  const ReadTransaction snapshot(db);
   std::vector<Transaction> out;
   // Reserved up front: a Transaction is large, and growing the vector by
   // doubling would move every row read so far, again and again.

@@ -46,8 +46,9 @@ enum class TxnFields {
   replay,  // all but the descriptive texts ref, row_hash and note, left unset:
            // what the lot engine and the reports built on its replay read
 };
-// Every row, voids included, in posting order (date, then id). A
-// correction's replacement row carries the ref it corrects.
+// Every row, voids included, in posting order (date, then id), as one state
+// of the ledger (a read transaction). A correction's replacement row carries
+// the ref it corrects.
 std::vector<Transaction> list_transactions(Database& db, TxnFields fields = TxnFields::all);
 // Whether the replay's read finds the rows with an optional field set
 // (acquired, lots, link, void, currency, rate, currency bought) through the
