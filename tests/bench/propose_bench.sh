@@ -19,9 +19,10 @@
 #   more); BENCH_REPEAT=5 the runs of each command per measurement (times are
 #   per run). Making each ledger is setup, not timed (its import time is
 #   printed). BENCH_BEFORE=OTHER_KEEL also times `propose --json` and
-#   `--version` of another build of the same schema (say, the one before a
-#   change) in the same rounds, on the same ledger (propose only reads it),
-#   beside this build's `--version`.
+#   `--version` of another build (say, the one before a change) in the same
+#   rounds, beside this build's `--version`. That build then makes the ledger,
+#   and reads a copy of it made before this build opens it: an older build
+#   refuses a ledger a newer one has migrated.
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
 keel="${1:-$here/../../build/keel}"
@@ -35,9 +36,10 @@ for shape in ${BENCH_SHAPES:-3000x20}; do
   years=${shape#*x}
   work="$base/$shape"
   db="$work/bench.db"
-  k() { "$keel" --db "$db" "$@"; }
+  k() { "${BENCH_BEFORE:-$keel}" --db "$db" "$@"; }
   /usr/bin/python3 "$here/gen_propose_market.py" "$work/data" --securities "$names" --years "$years" \
     --start-year $(( 2024 - years ))  # every shape ends with 2023
+  before_db="$work/before.db"
   k init --currency USD > /dev/null
   start=$(date +%s%N)
   for kind in securities prices metrics; do k import "$kind" "$work/data/$kind.csv" --quiet > /dev/null; done
@@ -74,6 +76,10 @@ drift_pct_points = 0.25
 lot_order = "losses-first"
 RULE
   k propose --rule "$work/rule.toml" --json > "$work/first.json"  # warm the cache
+  if [ -n "${BENCH_BEFORE:-}" ]; then
+    /usr/bin/sqlite3 "$db" ".backup '$before_db'"
+    "$keel" --db "$db" propose --rule "$work/rule.toml" --json > /dev/null  # may migrate it
+  fi
   as_of=$(/usr/bin/python3 - "$work/first.json" <<'PY'
 import json, sys
 j = json.load(open(sys.argv[1]))
@@ -88,7 +94,7 @@ PY
   echo "floor: $(/usr/bin/sqlite3 "$db" "$floor"); load $(cut -d' ' -f1-3 /proc/loadavg)"
   before=()
   if [ -n "${BENCH_BEFORE:-}" ]; then
-    before=(--cmd "before: keel propose --json" "$BENCH_BEFORE --db $db propose --rule $work/rule.toml --json"
+    before=(--cmd "before: keel propose --json" "$BENCH_BEFORE --db $before_db propose --rule $work/rule.toml --json"
             --cmd "before: keel --version" "$BENCH_BEFORE --version"
             --cmd "keel --version" "$keel --version")
   fi
