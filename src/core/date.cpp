@@ -39,6 +39,13 @@ bool parse_fixed_digits(std::string_view text, std::size_t from, std::size_t cou
   return true;
 }
 
+// The year, month and day of "YYYY-MM-DD" text; false for any other shape.
+bool iso_fields(std::string_view text, int& y, int& m, int& d) {
+  return text.size() == 10 && text[4] == '-' && text[7] == '-' &&
+         parse_fixed_digits(text, 0, 4, y) && parse_fixed_digits(text, 5, 2, m) &&
+         parse_fixed_digits(text, 8, 2, d);
+}
+
 }  // namespace
 
 bool Date::valid_ymd(int year, int month, int day) {
@@ -56,11 +63,15 @@ Date Date::from_ymd(int year, int month, int day) {
   return Date(static_cast<int>(chr::sys_days{ymd}.time_since_epoch().count()));
 }
 
+std::optional<Date> Date::try_parse(std::string_view text) noexcept {
+  int y = 0, m = 0, d = 0;
+  if (!iso_fields(text, y, m, d) || !valid_ymd(y, m, d)) return std::nullopt;
+  return Date(days_from_civil(y, m, d));
+}
+
 Date Date::parse(std::string_view text) {
   int y = 0, m = 0, d = 0;
-  const bool shaped = text.size() == 10 && text[4] == '-' && text[7] == '-' &&
-                      parse_fixed_digits(text, 0, 4, y) && parse_fixed_digits(text, 5, 2, m) &&
-                      parse_fixed_digits(text, 8, 2, d);
+  const bool shaped = iso_fields(text, y, m, d);
   // printable(): the text may hold any byte, NUL included, and what() is a C string.
   if (!shaped)
     throw InputError(fmt::format("'{}' is not a date in the form YYYY-MM-DD", printable(text)));

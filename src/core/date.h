@@ -2,12 +2,14 @@
 //
 // Contract
 //  - parse() accepts exactly ISO 8601 "YYYY-MM-DD" and throws InputError for
-//    anything else, including days that do not exist (2025-02-29).
+//    anything else, including days that do not exist (2025-02-29);
+//    try_parse() takes the same texts and gives no value for the rest.
 //  - str() gives the same form back. Ordering and arithmetic are by day count.
 //  - today() is the local calendar date of the machine (respects TZ).
 #pragma once
 
 #include <compare>
+#include <optional>
 #include <string>
 #include <string_view>
 
@@ -18,6 +20,7 @@ class Date {
   Date() = default;                                    // 1970-01-01
   static Date from_ymd(int year, int month, int day);  // throws InputError
   static Date parse(std::string_view text);
+  static std::optional<Date> try_parse(std::string_view text) noexcept;
   static bool valid_ymd(int year, int month, int day);
   static Date from_days(int days_since_epoch) { return Date(days_since_epoch); }
   static Date today();

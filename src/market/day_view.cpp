@@ -5,24 +5,6 @@
 #include "store/ledger_store.h"
 
 namespace keel::market {
-namespace {
-
-// Whether Date::parse takes `text` (without the cost of an exception).
-bool well_formed_day(std::string_view text) {
-  if (text.size() != 10 || text[4] != '-' || text[7] != '-') return false;
-  int v[3] = {0, 0, 0};
-  const int at[3] = {0, 5, 8}, len[3] = {4, 2, 2};
-  for (int f = 0; f < 3; ++f)
-    for (int i = 0; i < len[f]; ++i) {
-      const char c = text[static_cast<std::size_t>(at[f] + i)];
-      if (c < '0' || c > '9') return false;
-      v[f] = v[f] * 10 + (c - '0');
-    }
-  return Date::valid_ymd(v[0], v[1], v[2]);
-}
-
-}  // namespace
-
 DayView::DayView(store::Database& db) : db_(db) {}
 
 store::MarketRows& DayView::rows() const {
@@ -137,8 +119,9 @@ std::optional<Date> DayView::latest_close_day() const {
   kept.reserve(rows.size());
   for (const auto& r : rows) {
     const auto close = Decimal::try_parse(r.close);
-    if (!close || !well_formed_day(r.date)) return day;
-    kept.emplace(r.security_id, Close{Date::parse(r.date), *close});
+    const auto date = Date::try_parse(r.date);
+    if (!close || !date) return day;
+    kept.emplace(r.security_id, Close{*date, *close});
   }
   latest_ = std::move(kept);
   return day;

@@ -40,6 +40,14 @@ TEST_CASE("date: other shapes are refused with the expected form named") {
   CHECK_THROWS_AS(Date::parse(""), keel::InputError);
 }
 
+TEST_CASE("date: try_parse takes what parse takes and gives no value for the rest") {
+  CHECK(Date::try_parse("2024-02-29") == Date::parse("2024-02-29"));
+  CHECK(Date::try_parse("9999-12-31") == Date::parse("9999-12-31"));
+  for (const char* text : {"2025-02-29", "2025-13-01", "0000-01-01", "31/12/2025", "2025-1-01",
+                           "2025-01-01T00:00", ""})
+    CHECK_FALSE(Date::try_parse(text));
+}
+
 TEST_CASE("date: differences count calendar days, leap years included") {
   CHECK(Date::parse("2025-01-01") - Date::parse("2024-01-01") == 366);
   CHECK(Date::parse("2024-03-01") - Date::parse("2024-02-28") == 2);
