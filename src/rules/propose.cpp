@@ -20,7 +20,6 @@
 #include "rules/tax_keys.h"
 #include "rules/track_record.h"
 #include "store/ledger_store.h"
-#include "store/read_transaction.h"
 
 namespace keel::rules {
 std::vector<std::string> proposal_cautions(Date as_of) {

@@ -13,7 +13,6 @@
 #include "core/error.h"
 #include "core/files.h"
 #include "store/migrations.h"
-#include "store/read_transaction.h"
 #include "store/sqlite_error.h"
 
 namespace keel::store {

@@ -105,4 +105,23 @@ class WriteTransaction {
   bool open_ = false;
 };
 
+// RAII read transaction taken with BEGIN DEFERRED: every statement run inside
+// it reads one state of the ledger, under one read lock instead of one each
+// (for a reader of thousands of names, about a twentieth of its time). Not
+// for writes: close packs, for one, are kept only outside a transaction
+// (store/market_rows.h). Inside a transaction already open it does nothing.
+// Ends in the destructor, which never throws. Errors of BEGIN follow
+// store/sqlite_error.h.
+class ReadTransaction {
+ public:
+  explicit ReadTransaction(Database& db);
+  ~ReadTransaction();
+  ReadTransaction(const ReadTransaction&) = delete;
+  ReadTransaction& operator=(const ReadTransaction&) = delete;
+
+ private:
+  Database& db_;
+  bool open_ = false;
+};
+
 }  // namespace keel::store

@@ -14,7 +14,6 @@
 #include "core/error.h"
 #include "core/suggest.h"
 #include "core/text.h"
-#include "store/read_transaction.h"
 #include "store/record_change_store.h"
 #include "store/sql_values.h"
 #include "store/statement.h"

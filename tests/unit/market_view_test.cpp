@@ -16,7 +16,6 @@
 #include "market/day_view.h"
 #include "market/series.h"
 #include "store/action_store.h"
-#include "store/read_transaction.h"
 
 using namespace keel;
 using namespace keel::testing;
