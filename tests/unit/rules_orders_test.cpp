@@ -863,3 +863,16 @@ TEST_CASE("order steps: names of one weight are aimed as each would be alone") {
   CHECK(work[0].target_value == Decimal(594));
   CHECK(work[2].target_value == Decimal(792));
 }
+
+TEST_CASE("order steps: target ids are sorted and say whether a security is named twice") {
+  auto ids =
+      steps::target_ids({target(12, "Y", "0.5"), target(10, "W", "0.25"), target(11, "X", "0.25")});
+  CHECK(ids.sorted == std::vector<std::int64_t>{10, 11, 12});
+  CHECK_FALSE(ids.repeats);
+  CHECK(ids.has(11));
+  CHECK_FALSE(ids.has(13));
+  ids =
+      steps::target_ids({target(12, "Y", "0.5"), target(10, "W", "0.25"), target(12, "Y", "0.25")});
+  CHECK(ids.repeats);
+  CHECK(steps::target_ids({}).sorted.empty());
+}
