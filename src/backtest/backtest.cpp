@@ -254,7 +254,13 @@ class OrderPool {
         held_(h.market.columns()),
         units_(static_cast<std::size_t>(h.market.columns())),
         approx_(static_cast<std::size_t>(h.market.columns())),
-        cash_(start) {}
+        touched_(static_cast<std::size_t>(h.market.columns())),
+        cash_(start) {
+    rules::AccountState acct;
+    acct.id = 1;
+    acct.name = "simulated pool";
+    portfolio_.accounts.push_back(std::move(acct));
+  }
 
   void split(int c, const Decimal& ratio) {
     if (!held_.has(c)) return;
@@ -319,32 +325,26 @@ class OrderPool {
   Decimal distributions() const { return distributions_; }
   std::set<std::int64_t> held() const { return held_.ids(h_.market); }
 
-  void rebalance(const Selection& sel, std::size_t row, Date day, RebalanceDay& rd) {
+  // `held`: held() as it stands.
+  void rebalance(const Selection& sel, std::size_t row, Date day,
+                 const std::set<std::int64_t>& held, RebalanceDay& rd) {
     rd.value_before = decimal_of(invested(row));
-    rules::Portfolio p;
-    rules::AccountState acct;
-    acct.id = 1;
-    acct.name = "simulated pool";
-    acct.cash = cash_;
-    acct.holdings.reserve(held_.columns.size());
-    for (const int c : held_.columns)
-      acct.holdings[h_.market.security_id(c)] = rules::HoldingState{unit(c), {}};
-    p.accounts.push_back(std::move(acct));
+    const rules::Portfolio& p = portfolio();
     // A held security always has a close on or before any later day: it was
     // bought at one. The simulated pool has no ledger trades.
     std::vector<std::string> quote_notes;  // stale closes: traded at as they are
-    const rules::Quotes quotes =
-        inputs_.quotes(h_.market, day, sel.targets, held(), {}, quote_notes);
+    inputs_.requote(h_.market, day, sel.targets, held, {}, quote_notes, quotes_);
     const auto plan =
-        rules::orders_only(p, sel.targets, quotes, rule_.trading, day, rules::Explain::none);
+        rules::orders_only(p, sel.targets, quotes_, rule_.trading, day, rules::Explain::none);
     // The orders applied as rules::apply() applies them, on the pool's own
-    // units: what is held afterwards, by column.
-    std::vector<int> touched = held_.columns;
+    // units: what is held afterwards, in the order of the columns (marked
+    // here, read in order below: no sort).
+    for (const int c : held_.columns) touched_[static_cast<std::size_t>(c)] = 1;
     for (const auto& o : plan.orders) {
       rd.traded += o.value;
       rd.fees += o.fee;
       const int c = h_.market.column(o.security_id);
-      touched.push_back(c);
+      touched_[static_cast<std::size_t>(c)] = 1;
       if (o.side == rules::Side::buy) {
         set(c, unit(c) + o.quantity);
         cash_ -= o.value + o.fee;
@@ -359,13 +359,26 @@ class OrderPool {
         rd.trades.push_back(Trade{o.security_id, o.side, o.quantity, o.price, o.fee});
     }
     held_.clear();
-    std::sort(touched.begin(), touched.end());
-    touched.erase(std::unique(touched.begin(), touched.end()), touched.end());
-    for (const int c : touched)
+    for (std::size_t i = 0; i < touched_.size(); ++i) {
+      if (!touched_[i]) continue;
+      touched_[i] = 0;
+      const int c = static_cast<int>(i);
       if (unit(c).is_positive()) held_.add(c);
+    }
   }
 
  private:
+  // The pool as one account for the rule's orders: its cash and units now.
+  // The account is kept from one rebalance to the next, so that a name held
+  // in both keeps its place in the holdings (no allocation).
+  const rules::Portfolio& portfolio() {
+    rules::AccountState& acct = portfolio_.accounts.front();
+    acct.cash = cash_;
+    std::erase_if(acct.holdings,
+                  [&](const auto& kv) { return !held_.has(h_.market.column(kv.first)); });
+    for (const int c : held_.columns) acct.holdings[h_.market.security_id(c)].quantity = unit(c);
+    return portfolio_;
+  }
   // Cash of column c's security in the pool's currency, at `day`'s rate,
   // rounded once to its minor units (market::View::convert).
   Decimal in_pool(const Decimal& amount, int c, Date day) const {
@@ -385,10 +398,13 @@ class OrderPool {
   Held held_;
   std::vector<Decimal> units_;  // per column, exact
   std::vector<double> approx_;  // the same in doubles, for the daily value
+  std::vector<char> touched_;   // per column: held or traded in the rebalance (then cleared)
   Decimal cash_;
   std::vector<Owed> owed_;
   double owed_total_ = 0;
   Decimal distributions_;
+  rules::Portfolio portfolio_;  // see portfolio()
+  rules::Quotes quotes_;        // kept from one rebalance to the next (Inputs::requote)
 };
 
 template <typename Pool>
@@ -433,7 +449,8 @@ StrategyRun simulate(const History& h, const rules::Rule& rule, const Request& r
     if (next_rebalance != rebalance.end() && *next_rebalance == day) {
       RebalanceDay rd;
       rd.day = day;
-      const Selection sel = select(h, inputs, rule, day, pool.held());
+      const std::set<std::int64_t> held = pool.held();
+      const Selection sel = select(h, inputs, rule, day, held);
       rd.passed = sel.passed;
       rd.selected = sel.selected;
       rd.no_selection = sel.none;
@@ -441,7 +458,7 @@ StrategyRun simulate(const History& h, const rules::Rule& rule, const Request& r
         notes.push_back(fmt::format("{} ({}): nothing selected, the pool holds cash: {}", day.str(),
                                     run.label, *sel.none));
       if constexpr (std::is_same_v<Pool, OrderPool>)
-        pool.rebalance(sel, row, day, rd);
+        pool.rebalance(sel, row, day, held, rd);
       else
         pool.rebalance(sel, row, rd);
       rd.names_after = pool.names();

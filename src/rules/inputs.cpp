@@ -6,10 +6,12 @@
 #include <algorithm>
 #include <map>
 #include <stdexcept>
+#include <unordered_set>
 
 #include "core/error.h"
 #include "core/text.h"
 #include "market/series.h"
+#include "rules/order_steps.h"
 #include "rules/track_record.h"
 
 namespace keel::rules {
@@ -313,12 +315,33 @@ Quotes quote_names(const market::View& view, Date day, const std::vector<Target>
                    std::vector<std::string>& notes, const std::optional<std::string>& into) {
   Quotes quotes;
   quotes.reserve(targets.size() + held.size());
+  requote_names(view, day, targets, held, last_trade, notes, into, quotes);
+  return quotes;
+}
+
+void Inputs::requote(const market::View& view, Date day, const std::vector<Target>& targets,
+                     const std::set<std::int64_t>& held, const LastTrade& last_trade,
+                     std::vector<std::string>& notes, Quotes& quotes) const {
+  requote_names(view, day, targets, held, last_trade, notes,
+                convert_ == Convert::yes ? currency_ : std::nullopt, quotes);
+}
+
+void requote_names(const market::View& view, Date day, const std::vector<Target>& targets,
+                   const std::set<std::int64_t>& held, const Inputs::LastTrade& last_trade,
+                   std::vector<std::string>& notes, const std::optional<std::string>& into,
+                   Quotes& quotes) {
+  // A quote kept from an earlier call has its security's symbol and lot size
+  // already; only its price (and what goes with it) is set again.
   auto add = [&](std::int64_t id, bool wanted) {
-    if (quotes.count(id)) return;
-    const Security& s = *view.security(id);
-    Quote q;
-    q.symbol = s.symbol;
-    q.lot_size = s.lot_size;
+    auto [it, fresh] = quotes.try_emplace(id);
+    Quote& q = it->second;
+    const Security* s = fresh || into ? view.security(id) : nullptr;
+    if (fresh) {
+      q.symbol = s->symbol;
+      q.lot_size = s->lot_size;
+    }
+    q.tradable = true;
+    q.fx = std::nullopt;
     const auto trade = last_trade ? last_trade(id) : std::nullopt;
     if (const auto c = view.close(id, day); c && trade && trade->day > c->day) {
       // Traded after its latest close: the trade is the fresher price.
@@ -326,12 +349,12 @@ Quotes quote_names(const market::View& view, Date day, const std::vector<Target>
       notes.push_back(
           fmt::format("{}: valued at its trade price {} of {}, later than its "
                       "latest close ({})",
-                      printable(s.symbol), trade->price.str(), trade->day.str(), c->day.str()));
+                      printable(q.symbol), trade->price.str(), trade->day.str(), c->day.str()));
     } else if (c) {
       q.price = c->price;
       if (day - c->day > Inputs::kOldCloseDays && (wanted || held.count(id)))
         notes.push_back(fmt::format("{}: the latest close on or before {} is from {}",
-                                    printable(s.symbol), day.str(), c->day.str()));
+                                    printable(q.symbol), day.str(), c->day.str()));
     } else {
       if (!last_trade)
         throw std::logic_error(
@@ -339,12 +362,12 @@ Quotes quote_names(const market::View& view, Date day, const std::vector<Target>
       q.tradable = false;
       q.price = trade ? trade->price : Decimal();
       notes.push_back(fmt::format(
-          "{}: no close on or before {}; valued at {}", printable(s.symbol), day.str(),
+          "{}: no close on or before {}; valued at {}", printable(q.symbol), day.str(),
           trade ? "its last trade price " + trade->price.str() : "zero (it never traded)"));
     }
-    if (into && s.currency != *into) {
-      if (const auto fx = view.try_rate(s.currency, *into, day)) {
-        q.fx = QuoteFx{s.currency, q.price, fx->rate,
+    if (into && s->currency != *into) {
+      if (const auto fx = view.try_rate(s->currency, *into, day)) {
+        q.fx = QuoteFx{s->currency, q.price, fx->rate,
                        fx->how == market::FxHow::inverted || fx->how == market::FxHow::crossed,
                        fx->describe()};
         q.price = (q.price * fx->rate).rounded(Inputs::kQuotePlaces);
@@ -353,15 +376,20 @@ Quotes quote_names(const market::View& view, Date day, const std::vector<Target>
         // would be a guess.
         q.tradable = false;
         q.price = Decimal();
-        notes.push_back(fmt::format("{}: {}; valued at zero and not traded", printable(s.symbol),
-                                    no_rate_text(s.currency, *into, day)));
+        notes.push_back(fmt::format("{}: {}; valued at zero and not traded", printable(q.symbol),
+                                    no_rate_text(s->currency, *into, day)));
       }
     }
-    quotes.emplace(id, std::move(q));
   };
-  for (const auto& t : targets) add(t.security_id, t.weight.is_positive());
-  for (const std::int64_t id : held) add(id, false);
-  return quotes;
+  // Each name once: a target named twice takes its first line, a held name
+  // that is a target its target's.
+  const steps::TargetIds listed = steps::target_ids(targets);
+  std::unordered_set<std::int64_t> seen;  // with repeats only
+  for (const auto& t : targets)
+    if (!listed.repeats || seen.insert(t.security_id).second)
+      add(t.security_id, t.weight.is_positive());
+  for (const std::int64_t id : held)
+    if (!listed.has(id)) add(id, false);
 }
 
 }  // namespace keel::rules

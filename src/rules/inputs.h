@@ -114,6 +114,14 @@ class Inputs {
   Quotes quotes(const market::View& view, Date day, const std::vector<Target>& targets,
                 const std::set<std::int64_t>& held, const LastTrade& last_trade,
                 std::vector<std::string>& notes) const;
+  // quotes() into `quotes`, kept from call to call (a run of many days): a
+  // name already there keeps its symbol and lot size and is priced anew on
+  // `day`, with the same notes. Names there from an earlier call that are
+  // neither targets nor held now stay, priced as they were: rules::orders()
+  // reads only the quotes of the targets and of the names held.
+  void requote(const market::View& view, Date day, const std::vector<Target>& targets,
+               const std::set<std::int64_t>& held, const LastTrade& last_trade,
+               std::vector<std::string>& notes, Quotes& quotes) const;
 
  private:
   const Rule& rule_;
@@ -147,6 +155,11 @@ Quotes quote_names(const market::View& view, Date day, const std::vector<Target>
                    const std::set<std::int64_t>& held, const Inputs::LastTrade& last_trade,
                    std::vector<std::string>& notes,
                    const std::optional<std::string>& into = std::nullopt);
+// Inputs::requote() without a rule.
+void requote_names(const market::View& view, Date day, const std::vector<Target>& targets,
+                   const std::set<std::int64_t>& held, const Inputs::LastTrade& last_trade,
+                   std::vector<std::string>& notes, const std::optional<std::string>& into,
+                   Quotes& quotes);
 // "no exchange rate for USD/EUR on or before 2025-03-03"
 std::string no_rate_text(const std::string& from, const std::string& to, Date day);
 

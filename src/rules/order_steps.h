@@ -63,6 +63,16 @@ std::vector<Decimal> account_values(const Portfolio& portfolio, const Quotes& qu
 PoolValue pool_of(const Portfolio& portfolio, const std::vector<Decimal>& values,
                   const TradingRule& trading, const std::vector<Decimal>& fee_guess);
 
+// The targets' securities, sorted (one allocation, not one per name), and
+// whether one is named twice: work_names() and Inputs::quotes() then keep
+// its first target (rare: a set says which).
+struct TargetIds {
+  std::vector<std::int64_t> sorted;
+  bool repeats = false;
+  bool has(std::int64_t id) const;
+};
+TargetIds target_ids(const std::vector<Target>& targets);
+
 struct Work {
   std::int64_t security_id = 0;
   const Quote* quote = nullptr;
@@ -111,6 +121,11 @@ struct SellTax {
 std::vector<Order> sell_orders(const Work& work, const Decimal& units, const std::string& reason,
                                const Portfolio& portfolio, const TradingRule& trading, Date as_of,
                                SellTax* tax = nullptr);
+// The same orders, added at the end of `out` (built where they are kept: an
+// order is large); the orders already in `out` are left as they are.
+void sell_orders(const Work& work, const Decimal& units, const std::string& reason,
+                 const Portfolio& portfolio, const TradingRule& trading, Date as_of, SellTax* tax,
+                 std::vector<Order>& out);
 
 // Sells in account `a` (adding to `orders`, one order per account and
 // security) until its cash `cash[a]` is at least zero, or nothing more can

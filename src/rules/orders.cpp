@@ -165,43 +165,56 @@ PoolValue pool_of(const Portfolio& portfolio, const std::vector<Decimal>& values
   return pool;
 }
 
+bool TargetIds::has(std::int64_t id) const {
+  return std::binary_search(sorted.begin(), sorted.end(), id);
+}
+
+TargetIds target_ids(const std::vector<Target>& targets) {
+  TargetIds ids;
+  ids.sorted.reserve(targets.size());
+  for (const auto& t : targets) ids.sorted.push_back(t.security_id);
+  std::sort(ids.sorted.begin(), ids.sorted.end());
+  ids.repeats = std::adjacent_find(ids.sorted.begin(), ids.sorted.end()) != ids.sorted.end();
+  return ids;
+}
+
 // The work list without the targets' values: what the fee guesses do not change.
 std::vector<Work> work_names(const Portfolio& portfolio, const std::vector<Target>& targets,
                              const Quotes& quotes, const Decimal& pool_value) {
   std::vector<Work> work;
-  work.reserve(targets.size());
-  // The targets' securities, sorted: one allocation, not one per name. A
-  // security named twice keeps its first target (rare: a set then says which).
-  std::vector<std::int64_t> listed;
-  listed.reserve(targets.size());
-  for (const auto& t : targets) listed.push_back(t.security_id);
-  std::sort(listed.begin(), listed.end());
-  const bool repeats = std::adjacent_find(listed.begin(), listed.end()) != listed.end();
-  std::unordered_set<std::int64_t> seen;
+  // Room for every name at once: a Work is large, and a second allocation
+  // would move every name already listed.
+  std::size_t holdings = 0;
+  for (const auto& acct : portfolio.accounts) holdings += acct.holdings.size();
+  work.reserve(targets.size() + holdings);
+  const TargetIds listed = target_ids(targets);
+  std::unordered_set<std::int64_t> seen;  // with repeats only
   for (const auto& t : targets) {
-    if (repeats && !seen.insert(t.security_id).second) continue;
-    Work w;
+    if (listed.repeats && !seen.insert(t.security_id).second) continue;
+    Work& w = work.emplace_back();
     w.security_id = t.security_id;
     w.quote = &quote_of(quotes, t.security_id);
     w.target = &t;
     w.why = t.why;
-    work.push_back(std::move(w));
   }
   std::map<std::string_view, std::int64_t> others;  // by symbol
   for (const auto& acct : portfolio.accounts)
     for (const auto& [id, h] : acct.holdings)
-      if (h.quantity.is_positive() && !std::binary_search(listed.begin(), listed.end(), id))
-        others[quote_of(quotes, id).symbol] = id;
+      if (h.quantity.is_positive() && !listed.has(id)) others[quote_of(quotes, id).symbol] = id;
   for (const auto& [symbol, id] : others) {
-    Work w;
+    Work& w = work.emplace_back();
     w.security_id = id;
     w.quote = &quote_of(quotes, id);
     w.why = "not among the rule's targets";
-    work.push_back(std::move(w));
   }
   for (auto& x : work) {
-    for (std::size_t a = 0; a < portfolio.accounts.size(); ++a)
-      x.held += held_in(portfolio, a, x.security_id);
+    if (portfolio.accounts.size() == 1) {
+      x.held = held_in(portfolio, 0, x.security_id);
+    } else {
+      for (std::size_t a = 0; a < portfolio.accounts.size(); ++a)
+        x.held += held_in(portfolio, a, x.security_id);
+    }
+    if (x.held.is_zero()) continue;  // nothing held: worth nothing, of no weight
     x.now_value = x.held * x.quote->price;
     if (!x.now_value.is_zero()) x.w_now = Decimal::divide(x.now_value, pool_value, 6);
   }
@@ -209,16 +222,38 @@ std::vector<Work> work_names(const Portfolio& portfolio, const std::vector<Targe
 }
 
 // Sets each name's target value and weight on the pool's invested target.
-// A target value that did not change keeps its weight (no division).
+// A target value that did not change keeps its weight (no division). Names
+// of one weight (an equal-weight rule gives it to all its targets) have one
+// target value, and names of one target value one weight: each is worked
+// out once for a run of such names, and copied.
 bool aim(std::vector<Work>& work, const PoolValue& pool, bool fresh) {
   bool changed = fresh;
+  const Decimal* weight = nullptr;  // the last weight multiplied, and its product:
+  Decimal weighed;
+  bool divided = false;  // the last target value divided, and its quotient:
+  Decimal value_divided, quotient;
   for (auto& x : work) {
-    // Money: a target value is set to the cent.
-    Decimal value =
-        x.target ? Decimal::times_rounded(x.target->weight, pool.invested_target, 2) : Decimal();
+    Decimal value;
+    if (x.target) {
+      if (!weight || !(*weight == x.target->weight)) {
+        weight = &x.target->weight;
+        // Money: a target value is set to the cent.
+        weighed = Decimal::times_rounded(*weight, pool.invested_target, 2);
+      }
+      value = weighed;
+    }
     if (!fresh && value == x.target_value) continue;
     changed = true;
-    x.w_target = value.is_zero() ? Decimal() : Decimal::divide(value, pool.value, 6);
+    if (value.is_zero()) {
+      x.w_target = Decimal();
+    } else {
+      if (!divided || !(value == value_divided)) {
+        quotient = Decimal::divide(value, pool.value, 6);
+        value_divided = value;
+        divided = true;
+      }
+      x.w_target = quotient;
+    }
     x.target_value = std::move(value);
   }
   return changed;
@@ -238,7 +273,7 @@ std::vector<Work> work_list(const Portfolio& portfolio, const std::vector<Target
 
 Decision decide(const Work& x, const TradingRule& trading, Date as_of, Explain explain) {
   Decision d;
-  const Decimal diff = x.target_value - x.now_value;
+  Decimal diff = x.target_value - x.now_value;  // moved into a buy
   if (diff.is_zero()) return d;
   const bool words = explain == Explain::all;
   // Reasons are formatted only when they are shown. Every path returns `d`
@@ -274,7 +309,7 @@ Decision decide(const Work& x, const TradingRule& trading, Date as_of, Explain e
   }
   if (diff.is_positive()) {
     d.kind = Decision::Kind::buy;
-    d.buy_value = diff;
+    d.buy_value = std::move(diff);
     if (words)
       d.reason = fmt::format("{}: {}", x.why,
                              x.now_value.is_positive() ? "add to target" : "new position");
@@ -305,22 +340,29 @@ Decision decide(const Work& x, const TradingRule& trading, Date as_of, Explain e
 std::vector<Order> sell_orders(const Work& x, const Decimal& units, const std::string& reason,
                                const Portfolio& portfolio, const TradingRule& trading, Date as_of,
                                SellTax* tax) {
+  std::vector<Order> out;
+  sell_orders(x, units, reason, portfolio, trading, as_of, tax, out);
+  return out;
+}
+
+void sell_orders(const Work& x, const Decimal& units, const std::string& reason,
+                 const Portfolio& portfolio, const TradingRule& trading, Date as_of, SellTax* tax,
+                 std::vector<Order>& out) {
   const HouseholdPrefs* prefs = tax ? tax->prefs : nullptr;
   // One account holding the name, without lot detail: one order of the
   // units, at most what it holds (the general path below, without its lists).
   if (portfolio.accounts.size() == 1) {
     const auto it = portfolio.accounts[0].holdings.find(x.security_id);
     if (it != portfolio.accounts[0].holdings.end() && it->second.lots.empty()) {
-      if (!units.is_positive()) return {};
-      std::vector<Order> out(1);
-      Order& o = out.back();
+      if (!units.is_positive()) return;
+      Order& o = out.emplace_back();
       start_order(o, x, portfolio, 0, Side::sell, reason);
       o.quantity = std::min(units, it->second.quantity);
       o.value = o.quantity * o.price;
       o.fee = trading.fee(o.value);
       if (prefs && prefs->tax_keys() && !reason.empty() && !taxable(portfolio.accounts[0]))
         o.reason += "; " + tax_words(portfolio.accounts[0]);
-      return out;
+      return;
     }
   }
   // Lots across the pool's accounts, in the rule's order of preference.
@@ -393,7 +435,6 @@ std::vector<Order> sell_orders(const Work& x, const Decimal& units, const std::s
       if (tax && taxable(portfolio.accounts[p.account])) tax->gain_used += take * price - cost;
     }
   }
-  std::vector<Order> out;
   for (auto& [a, o] : by_account) {
     o.value = o.quantity * o.price;
     o.fee = trading.fee(o.value);
@@ -412,7 +453,6 @@ std::vector<Order> sell_orders(const Work& x, const Decimal& units, const std::s
         tax->kept.push_back(
             {x.quote->symbol, fmt::format("{} units {}", q.str(),
                                           cap_words(portfolio.accounts[a], *prefs->gain_cap))});
-  return out;
 }
 
 bool raise_cash(std::size_t a, const std::vector<Work>& work, const Portfolio& portfolio,
@@ -886,14 +926,40 @@ struct Draft {
   bool summarize = false;  // false: an empty pool, nothing to summarize
 };
 
+// What a step of each name of the work list costs (buy_cost), the same in
+// every round: worked out the first time a round buys the name, since most
+// rounds buy only some of the names they touch.
+class StepCosts {
+ public:
+  StepCosts(const std::vector<steps::Work>& work, const TradingRule& trading)
+      : work_(work), trading_(trading), costs_(work.size()), known_(work.size(), 0) {}
+  // The costs, with those of the names in `wishes` worked out.
+  const std::vector<BuyCost>& of(const std::vector<steps::BuyWish>& wishes) {
+    for (const auto& w : wishes) {
+      // A wish for a name outside the list gets its cost in buy_orders().
+      if (w.work < work_.data() || w.work >= work_.data() + work_.size()) continue;
+      const auto i = static_cast<std::size_t>(w.work - work_.data());
+      if (known_[i]) continue;
+      costs_[i] = buy_cost(*w.work->quote, trading_);
+      known_[i] = 1;
+    }
+    return costs_;
+  }
+
+ private:
+  const std::vector<steps::Work>& work_;
+  const TradingRule& trading_;
+  std::vector<BuyCost> costs_;  // by position in the work list
+  std::vector<char> known_;     // 1: costs_ holds the name's cost
+};
+
 // One plan on `pool` (steps::pool_of on the fees the plan itself is
 // expected to cost), with `work`, the names the plan touches, aimed at it
 // (steps::aim). The plan depends on the fee guess only through the pool's
 // reserves and the work's target values and weights.
 Draft plan_once(const Portfolio& portfolio, steps::PoolValue pool,
-                const std::vector<steps::Work>& work, const std::vector<BuyCost>& costs,
-                const TradingRule& trading, Date as_of, Explain explain,
-                const HouseholdPrefs& prefs) {
+                const std::vector<steps::Work>& work, StepCosts& costs, const TradingRule& trading,
+                Date as_of, Explain explain, const HouseholdPrefs& prefs) {
   Draft draft;
   OrderPlan& plan = draft.plan;
   draft.pool = std::move(pool);
@@ -913,17 +979,24 @@ Draft plan_once(const Portfolio& portfolio, steps::PoolValue pool,
       case steps::Decision::Kind::skip:
         plan.skipped.push_back({x.quote->symbol, std::move(d.why)});
         break;
-      case steps::Decision::Kind::buy:
-        wishes.push_back({&x, d.buy_value, std::move(d.reason)});
+      case steps::Decision::Kind::buy: {
+        // Built in place: a wish moved would move its reason twice.
+        steps::BuyWish& w = wishes.emplace_back();
+        w.work = &x;
+        w.want = std::move(d.buy_value);
+        w.reason = std::move(d.reason);
         break;
-      case steps::Decision::Kind::sell:
-        for (auto& o :
-             steps::sell_orders(x, d.sell_units, d.reason, portfolio, trading, as_of, &tax)) {
+      }
+      case steps::Decision::Kind::sell: {
+        const std::size_t first = plan.orders.size();
+        steps::sell_orders(x, d.sell_units, d.reason, portfolio, trading, as_of, &tax, plan.orders);
+        for (std::size_t k = first; k < plan.orders.size(); ++k) {
+          const Order& o = plan.orders[k];
           for (std::size_t a = 0; a < portfolio.accounts.size(); ++a)
             if (portfolio.accounts[a].id == o.account_id) pool_now.cash[a] += o.value - o.fee;
-          plan.orders.push_back(std::move(o));
         }
         break;
+      }
     }
   }
   // Accounts that must give more cash than they hold after the sells raise
@@ -945,7 +1018,7 @@ Draft plan_once(const Portfolio& portfolio, steps::PoolValue pool,
   }
   for (auto& k : tax.kept) plan.skipped.push_back(std::move(k));
   steps::buy_orders_at(wishes, portfolio, pool_now.cash, pool_now.reserve, trading, explain, prefs,
-                       &work, &costs, plan.orders, plan.skipped);
+                       &work, &costs.of(wishes), plan.orders, plan.skipped);
   draft.summarize = true;
   return draft;
 }
@@ -966,10 +1039,7 @@ OrderPlan plan_orders(const Portfolio& portfolio, const std::vector<Target>& tar
   if (pool_value.is_positive()) {
     work = steps::work_names(portfolio, targets, quotes, pool_value);
   }
-  // What a step of each name costs, the same in every round.
-  std::vector<BuyCost> costs;
-  costs.reserve(work.size());
-  for (const auto& x : work) costs.push_back(buy_cost(*x.quote, trading));
+  StepCosts costs(work, trading);
   std::vector<Decimal> guess(portfolio.accounts.size());
   steps::PoolValue pool = steps::pool_of(portfolio, values, trading, guess);
   if (pool.value.is_positive()) steps::aim(work, pool, true);

@@ -129,13 +129,23 @@ TEST_CASE("inputs: a day that selects nothing is a result, not an error") {
         "2024-05-31; the rule needs at least 5");
 }
 
-TEST_CASE("inputs: quotes at the latest close, with notes for old and missing ones") {
+namespace {
+
+// Inputs on Small, with ALDER and BIRCH as targets at a half each.
+struct Quoting {
   Small m;
-  const market::DayView view(m.db);
-  const Rule r = rule("");
-  const Inputs in(r, view);
-  const std::vector<Target> t{{m.id("ALDER"), "ALDER", dec("0.5"), false, std::nullopt, false, ""},
-                              {m.id("BIRCH"), "BIRCH", dec("0.5"), false, std::nullopt, false, ""}};
+  market::DayView view{m.db};
+  Rule r = rule("");
+  Inputs in{r, view};
+  std::vector<Target> t{{m.id("ALDER"), "ALDER", dec("0.5"), false, std::nullopt, false, ""},
+                        {m.id("BIRCH"), "BIRCH", dec("0.5"), false, std::nullopt, false, ""}};
+};
+
+}  // namespace
+
+TEST_CASE("inputs: quotes at the latest close, with notes for old and missing ones") {
+  Quoting s;
+  auto& [m, view, r, in, t] = s;
   std::vector<std::string> notes;
   const auto q = in.quotes(
       view, day("2024-05-31"), t, {m.id("CEDAR")},
@@ -200,4 +210,39 @@ TEST_CASE("inputs: a name traded after its latest close is quoted at the trade's
   CHECK(q.at(m.id("BIRCH")).tradable);
   CHECK(notes == std::vector<std::string>{"BIRCH: valued at its trade price 21.5 of 2024-05-20, "
                                           "later than its latest close (2024-05-10)"});
+}
+
+TEST_CASE("inputs: quotes kept from an earlier day are priced anew, with the same notes") {
+  Quoting s;
+  auto& [m, view, r, in, t] = s;
+  const auto never = [](std::int64_t) { return std::optional<Inputs::Trade>(); };
+  std::vector<std::string> notes;
+  Quotes kept;
+  in.requote(view, day("2024-05-15"), t, {m.id("DUNE")}, never, notes, kept);
+  CHECK(kept.at(m.id("ALDER")).price == Decimal());  // no close yet: valued at zero
+  CHECK_FALSE(kept.at(m.id("ALDER")).tradable);
+  CHECK(kept.at(m.id("DUNE")).price == Decimal());
+  // Two weeks on: ALDER has its close, BIRCH's is three weeks old, DUNE is
+  // no longer held (its quote stays, as it was).
+  const std::vector<Target> later{t[1], t[0], t[0]};  // ALDER named twice: once
+  notes.clear();
+  in.requote(view, day("2024-05-31"), later, {m.id("ALDER")}, never, notes, kept);
+  std::vector<std::string> fresh_notes;
+  const auto fresh = in.quotes(view, day("2024-05-31"), later, {m.id("ALDER")}, never, fresh_notes);
+  CHECK(notes == fresh_notes);
+  CHECK(notes == std::vector<std::string>{
+                     "BIRCH: the latest close on or before 2024-05-31 is from 2024-05-10"});
+  for (const auto& [id, q] : fresh) {
+    CAPTURE(q.symbol);
+    const Quote& k = kept.at(id);
+    CHECK(k.symbol == q.symbol);
+    CHECK(k.price == q.price);
+    CHECK(k.tradable == q.tradable);
+    CHECK(k.lot_size == q.lot_size);
+    CHECK(k.fx.has_value() == q.fx.has_value());
+  }
+  CHECK(kept.at(m.id("ALDER")).price == Decimal(10));
+  CHECK(kept.at(m.id("ALDER")).tradable);
+  CHECK(kept.size() == 3);
+  CHECK(kept.at(m.id("DUNE")).price == Decimal());
 }

@@ -729,17 +729,30 @@ TEST_CASE("orders: orders_only gives the orders of orders() without the summary"
   CHECK(only.cash_after.empty());
 }
 
-TEST_CASE("order steps: a sell from one account without lots is one order of at most its units") {
-  AccountState a = account(1, "Main", "0");
-  a.holdings[10] = HoldingState{Decimal(7), {}};
-  const Portfolio p{{a}};
-  const Quote q{"X", dec("12.5"), true, Decimal(1)};
+namespace {
+
+// One account holding 7 X at 12.5, without lots; fees 1 + 10 bp.
+struct SevenHeld {
+  Portfolio p;
+  Quote q{"X", dec("12.5"), true, Decimal(1)};
   steps::Work x;
-  x.security_id = 10;
-  x.quote = &q;
   TradingRule g;
-  g.fee_fixed = Decimal(1);
-  g.fee_bps = Decimal(10);
+  SevenHeld() {
+    AccountState a = account(1, "Main", "0");
+    a.holdings[10] = HoldingState{Decimal(7), {}};
+    p.accounts.push_back(a);
+    x.security_id = 10;
+    x.quote = &q;
+    g.fee_fixed = Decimal(1);
+    g.fee_bps = Decimal(10);
+  }
+};
+
+}  // namespace
+
+TEST_CASE("order steps: a sell from one account without lots is one order of at most its units") {
+  const SevenHeld h;
+  const auto& [p, q, x, g] = h;
   // 4 of 7 units: 4 x 12.5 = 50, fee 1 + 0.05 = 1.05.
   auto out = steps::sell_orders(x, Decimal(4), "trim", p, g, kAsOf);
   REQUIRE(out.size() == 1);
@@ -789,4 +802,77 @@ TEST_CASE("orders: the summary's cash and values after are those of the orders a
     CHECK(w.value == value);
     CHECK(w.value.is_positive());
   }
+}
+
+TEST_CASE("order steps: sells are added after the orders already made, as made alone") {
+  const SevenHeld h;
+  const auto& [p, q, x, g] = h;
+  std::vector<Order> out(1);
+  out[0].symbol = "EARLIER";
+  out[0].quantity = Decimal(3);
+  steps::sell_orders(x, Decimal(4), "trim", p, g, kAsOf, nullptr, out);
+  REQUIRE(out.size() == 2);
+  CHECK(out[0].symbol == "EARLIER");
+  CHECK(out[0].quantity == Decimal(3));
+  const auto alone = steps::sell_orders(x, Decimal(4), "trim", p, g, kAsOf);
+  REQUIRE(alone.size() == 1);
+  CHECK(out[1].symbol == "X");
+  CHECK(out[1].quantity == alone[0].quantity);
+  CHECK(out[1].value == alone[0].value);
+  CHECK(out[1].fee == alone[0].fee);
+  CHECK(out[1].reason == alone[0].reason);
+  // Nothing to sell adds nothing.
+  steps::sell_orders(x, Decimal(), "none", p, g, kAsOf, nullptr, out);
+  CHECK(out.size() == 2);
+}
+
+TEST_CASE("order steps: names of one weight are aimed as each would be alone") {
+  // Equal weights share one product and one quotient; a different weight
+  // between them is worked out for itself. 0.3 x 1990 = 597 and
+  // 0.4 x 1990 = 796, on a pool of 2000: weights 0.2985 and 0.398.
+  const Quote q{"X", Decimal(10), true, Decimal(1)};
+  const std::vector<Target> t{target(10, "A", "0.3"), target(11, "B", "0.3"),
+                              target(12, "C", "0.4"), target(13, "D", "0.3")};
+  std::vector<steps::Work> work(5);
+  for (std::size_t i = 0; i < work.size(); ++i) {
+    work[i].quote = &q;
+    if (i < t.size()) work[i].target = &t[i];  // the last: held, not a target
+  }
+  steps::PoolValue pool;
+  pool.value = Decimal(2000);
+  pool.invested_target = Decimal(1990);
+  CHECK(steps::aim(work, pool, true));
+  const char* values[] = {"597", "597", "796", "597", "0"};
+  const char* weights[] = {"0.2985", "0.2985", "0.398", "0.2985", "0"};
+  for (std::size_t i = 0; i < work.size(); ++i) {
+    CAPTURE(i);
+    CHECK(work[i].target_value == dec(values[i]));
+    CHECK(work[i].w_target == dec(weights[i]));
+  }
+  // Aimed again at 1980: 594 and 792; each as a work list of its own name.
+  pool.invested_target = Decimal(1980);
+  CHECK(steps::aim(work, pool, false));
+  for (std::size_t i = 0; i < work.size(); ++i) {
+    std::vector<steps::Work> alone{work[i]};
+    alone[0].target_value = Decimal();
+    steps::aim(alone, pool, true);
+    CAPTURE(i);
+    CHECK(work[i].target_value == alone[0].target_value);
+    CHECK(work[i].w_target == alone[0].w_target);
+  }
+  CHECK(work[0].target_value == Decimal(594));
+  CHECK(work[2].target_value == Decimal(792));
+}
+
+TEST_CASE("order steps: target ids are sorted and say whether a security is named twice") {
+  auto ids =
+      steps::target_ids({target(12, "Y", "0.5"), target(10, "W", "0.25"), target(11, "X", "0.25")});
+  CHECK(ids.sorted == std::vector<std::int64_t>{10, 11, 12});
+  CHECK_FALSE(ids.repeats);
+  CHECK(ids.has(11));
+  CHECK_FALSE(ids.has(13));
+  ids =
+      steps::target_ids({target(12, "Y", "0.5"), target(10, "W", "0.25"), target(12, "Y", "0.25")});
+  CHECK(ids.repeats);
+  CHECK(steps::target_ids({}).sorted.empty());
 }
