@@ -121,13 +121,22 @@ bool wide_value(const Int& v, Wide& out) {
   return true;
 }
 
-// x * 10^shift when it stays within +-(2^127 - 1).
+// (2^127 - 1) / 10^k: the largest magnitude 10^k multiplies within 128 bits.
+constexpr auto kWideShiftLimits = [] {
+  std::array<UWide, kWideTens.size()> limits{};
+  for (std::size_t i = 0; i < limits.size(); ++i)
+    limits[i] = static_cast<UWide>(kWideMax) / static_cast<UWide>(kWideTens[i]);
+  return limits;
+}();
+
+// x * 10^shift when it stays within +-(2^127 - 1): a comparison with the
+// limit above, then a multiplication that cannot overflow.
 bool shift_wide(Wide& x, int shift) {
   if (shift < 0 || shift > 38) return false;
-  Wide r = 0;
-  if (__builtin_mul_overflow(x, kWideTens[static_cast<std::size_t>(shift)], &r) || r < -kWideMax)
-    return false;
-  x = r;
+  const auto k = static_cast<std::size_t>(shift);
+  const UWide magnitude = x < 0 ? -static_cast<UWide>(x) : static_cast<UWide>(x);
+  if (magnitude > kWideShiftLimits[k]) return false;
+  x *= kWideTens[k];
   return true;
 }
 
