@@ -4,6 +4,7 @@
 
 #include <algorithm>
 #include <array>
+#include <bit>
 #include <boost/multiprecision/cpp_int.hpp>
 #include <cmath>
 #include <limits>
@@ -78,16 +79,17 @@ bool small_value(const Int& v, long long& out) {
   return true;
 }
 
-// `v` as an Int: from a long long when it fits, else through two limbs.
-Int from_int128(Wide v) {
-  if (v >= std::numeric_limits<long long>::min() && v <= std::numeric_limits<long long>::max())
-    return Int(static_cast<long long>(v));
-  const bool negative = v < 0;
-  const UWide m = negative ? -static_cast<UWide>(v) : static_cast<UWide>(v);
-  Int out = Int(static_cast<unsigned long long>(m >> 64));
-  out <<= 64;
-  out += static_cast<unsigned long long>(m);
-  return negative ? Int(-out) : out;
+// The integer of a 128-bit magnitude and a sign, its two limbs written in
+// place (no shifts or additions of multi-precision values).
+Int int_of(UWide magnitude, bool negative) {
+  Int out;
+  auto& b = out.backend();
+  b.resize(2, 2);
+  b.limbs()[0] = static_cast<unsigned long long>(magnitude);
+  b.limbs()[1] = static_cast<unsigned long long>(magnitude >> 64);
+  b.normalize();
+  b.sign(negative && magnitude != 0);
+  return out;
 }
 
 constexpr long long kSmallMax = std::numeric_limits<long long>::max();
@@ -119,14 +121,94 @@ bool wide_value(const Int& v, Wide& out) {
   return true;
 }
 
-// x * 10^shift when it stays within +-(2^127 - 1).
+// (2^127 - 1) / 10^k: the largest magnitude 10^k multiplies within 128 bits.
+constexpr auto kWideShiftLimits = [] {
+  std::array<UWide, kWideTens.size()> limits{};
+  for (std::size_t i = 0; i < limits.size(); ++i)
+    limits[i] = static_cast<UWide>(kWideMax) / static_cast<UWide>(kWideTens[i]);
+  return limits;
+}();
+
+// x * 10^shift when it stays within +-(2^127 - 1): a comparison with the
+// limit above, then a multiplication that cannot overflow.
 bool shift_wide(Wide& x, int shift) {
   if (shift < 0 || shift > 38) return false;
-  Wide r = 0;
-  if (__builtin_mul_overflow(x, kWideTens[static_cast<std::size_t>(shift)], &r) || r < -kWideMax)
-    return false;
-  x = r;
+  const auto k = static_cast<std::size_t>(shift);
+  const UWide magnitude = x < 0 ? -static_cast<UWide>(x) : static_cast<UWide>(x);
+  if (magnitude > kWideShiftLimits[k]) return false;
+  x *= kWideTens[k];
   return true;
+}
+
+// Trailing zeros without a division (Granlund and Montgomery, "Division by
+// invariant integers using multiplication", PLDI 1994, section 9; Warren,
+// "Hacker's Delight", 10-17): with i the inverse of 5 modulo 2^N, u is a
+// multiple of 10 exactly when rotr(u x i, 1) <= (2^N - 1) / 10, and that
+// rotation is then u / 10. One multiplication a step, in 64 or 128 bits.
+constexpr unsigned long long kInverse5 = 0xCCCCCCCCCCCCCCCDULL;
+static_assert(kInverse5 * 5 == 1, "the inverse of 5 modulo 2^64");
+constexpr UWide kInverse5Wide = (static_cast<UWide>(0xCCCCCCCCCCCCCCCCULL) << 64) | kInverse5;
+static_assert(kInverse5Wide * 5 == 1, "the inverse of 5 modulo 2^128");
+
+// u / 10 in `u` when u is a multiple of 10 (else false, u unchanged).
+bool tenth(unsigned long long& u) {
+  const unsigned long long q = std::rotr(u * kInverse5, 1);
+  if (q > std::numeric_limits<unsigned long long>::max() / 10) return false;
+  u = q;
+  return true;
+}
+
+bool tenth(UWide& u) {
+  const UWide p = u * kInverse5Wide;
+  const UWide q = (p >> 1) | (p << 127);
+  if (q > ~static_cast<UWide>(0) / 10) return false;
+  u = q;
+  return true;
+}
+
+// |x| / y and |x| % y for y > 0 below 2^64: one machine division when the
+// quotient fits a word (x86-64's divq), a library call otherwise.
+UWide divide_magnitude(UWide u, unsigned long long y, unsigned long long& remainder) {
+#if defined(__x86_64__)
+  const auto high = static_cast<unsigned long long>(u >> 64);
+  if (high < y) {
+    unsigned long long q = 0;
+    __asm__("divq %[y]"
+            : "=a"(q), "=d"(remainder)
+            : [y] "r"(y), "a"(static_cast<unsigned long long>(u)), "d"(high));
+    return q;
+  }
+#endif
+  remainder = static_cast<unsigned long long>(u % y);
+  return u / y;
+}
+
+// x / y rounded half-to-even, for y > 0, in machine words.
+long long round_divide(long long x, long long y) {
+  long long q = x / y;
+  const long long r = x % y;  // same sign as x
+  const long long below = r < 0 ? -r : r;
+  const long long above = y - below;  // both distances to a multiple of y
+  if (below > above || (below == above && (q & 1) != 0)) q += x < 0 ? -1 : 1;
+  return q;
+}
+
+// x / y rounded half-to-even, for y > 0: the magnitude's quotient rounded,
+// then x's sign.
+Wide round_divide(Wide x, Wide y) {
+  const UWide u = x < 0 ? -static_cast<UWide>(x) : static_cast<UWide>(x);
+  UWide q = 0, below = 0;
+  if (y <= static_cast<Wide>(std::numeric_limits<unsigned long long>::max())) {
+    unsigned long long r = 0;
+    q = divide_magnitude(u, static_cast<unsigned long long>(y), r);
+    below = r;
+  } else {
+    q = u / static_cast<UWide>(y);
+    below = u - q * static_cast<UWide>(y);
+  }
+  const UWide above = static_cast<UWide>(y) - below;
+  if (below > above || (below == above && (q & 1) != 0)) ++q;
+  return x < 0 ? -static_cast<Wide>(q) : static_cast<Wide>(q);
 }
 
 }  // namespace
@@ -230,29 +312,42 @@ Decimal Decimal::from_mantissa(auto&& value, int scale) {
 bool Decimal::small_aligned(const Decimal& a, const Decimal& b, Wide& x, Wide& y) {
   if (a.big_ ? !wide_value(a.mantissa(), x) : (x = a.small_, false)) return false;
   if (b.big_ ? !wide_value(b.mantissa(), y) : (y = b.small_, false)) return false;
+  if (a.scale_ == b.scale_) return true;
   return a.scale_ < b.scale_ ? shift_wide(x, b.scale_ - a.scale_)
                              : shift_wide(y, a.scale_ - b.scale_);
 }
 
+Decimal Decimal::strip_word(long long mantissa, int scale) {
+  if (mantissa == 0) return Decimal();
+  const bool negative = mantissa < 0;
+  unsigned long long u = negative ? 0 - static_cast<unsigned long long>(mantissa)
+                                  : static_cast<unsigned long long>(mantissa);
+  while (scale > 0 && tenth(u)) --scale;
+  const auto m = static_cast<long long>(u);  // below 2^63: |mantissa| was
+  return word(negative ? -m : m, scale);
+}
+
 Decimal Decimal::from_wide(Wide value, int scale) {
-  if (value < -kSmallMax || value > kSmallMax) {
-    // Trailing zeros dropped in 128 bits; what is left is normalized.
-    while (scale > 0 && value % 10 == 0) {
-      value /= 10;
-      --scale;
-    }
-    Decimal out;
-    if (value < -kSmallMax || value > kSmallMax)
-      out.set_int(from_int128(value));
-    else
-      out.small_ = static_cast<long long>(value);
-    out.scale_ = scale;
-    return out;
-  }
+  if (value >= -kSmallMax && value <= kSmallMax)
+    return from_word(static_cast<long long>(value), scale);
+  return from_past_word(value, scale);
+}
+
+// Kept apart from from_wide() so that its word path does not pay for this
+// frame.
+[[gnu::noinline]] Decimal Decimal::from_past_word(Wide value, int scale) {
+  // Trailing zeros dropped in 128 bits; what is left is normalized.
+  const bool negative = value < 0;
+  UWide u = negative ? -static_cast<UWide>(value) : static_cast<UWide>(value);
+  while (scale > 0 && tenth(u)) --scale;
   Decimal out;
-  out.small_ = static_cast<long long>(value);
+  if (u <= static_cast<UWide>(kSmallMax)) {
+    const auto m = static_cast<long long>(u);
+    out.small_ = negative ? -m : m;
+  } else {
+    out.set_int(int_of(u, negative));
+  }
   out.scale_ = scale;
-  out.normalize();
   return out;
 }
 
@@ -293,10 +388,7 @@ void Decimal::normalize() {
       scale_ = 0;
       return;
     }
-    while (scale_ > 0 && small_ % 10 == 0) {
-      small_ /= 10;
-      --scale_;
-    }
+    *this = from_word(small_, scale_);
     return;
   }
   while (scale_ > 0) {
@@ -466,34 +558,21 @@ std::string Decimal::fixed(int places) const {
   return out;
 }
 
-namespace {
-
-// q = x / y rounded half-to-even, for y > 0.
-Wide divide_half_even(Wide x, Wide y) {
-  constexpr Wide kWord = std::numeric_limits<long long>::max();
-  // One machine division when both fit a word (a 128-bit one is a library call).
-  const Wide q0 = x >= -kWord && x <= kWord && y <= kWord
-                      ? static_cast<long long>(x) / static_cast<long long>(y)
-                      : x / y;
-  Wide q = q0;
-  const Wide r = x - q0 * y;  // same sign as x
-  const Wide twice = (r < 0 ? -r : r) * 2;
-  if (twice > y || (twice == y && q % 2 != 0)) q += x < 0 ? -1 : 1;
-  return q;
-}
-
-}  // namespace
-
 Decimal Decimal::rounded(int places) const {
   if (scale_ <= places) return *this;
   if (places >= 0 && scale_ - places <= 18 && !big_)
-    return from_wide(divide_half_even(small_, kPow10[scale_ - places]), places);
-  // Below 2^127 and at most 37 digits dropped: twice a remainder fits too.
+    return from_word(round_divide(small_, kPow10[scale_ - places]), places);
+  return rounded_past_word(places);
+}
+
+// Kept apart from rounded() so that its word path does not pay for this
+// frame.
+[[gnu::noinline]] Decimal Decimal::rounded_past_word(int places) const {
+  // Below 2^127 and at most 37 digits dropped.
   Wide w = 0;
   if (places >= 0 && scale_ - places <= 37 &&
       (big_ ? wide_value(mantissa(), w) : (w = small_, true)))
-    return from_wide(divide_half_even(w, kWideTens[static_cast<std::size_t>(scale_ - places)]),
-                     places);
+    return from_wide(round_divide(w, kWideTens[static_cast<std::size_t>(scale_ - places)]), places);
   return from_mantissa(round_half_even(as_int(), scale_ - places), places);
 }
 
@@ -505,9 +584,15 @@ Decimal Decimal::times_rounded(const Decimal& a, const Decimal& b, int places) {
   const int scale = a.scale_ + b.scale_;
   if (!a.big_ && !b.big_ && places >= 0 && scale - places <= 37 &&
       std::min(scale, places) <= kMaxScale) {
+    long long word_product = 0;
+    if (scale - places <= 18 && !__builtin_mul_overflow(a.small_, b.small_, &word_product) &&
+        word_product != kLowest)
+      return scale <= places
+                 ? from_word(word_product, scale)
+                 : from_word(round_divide(word_product, kPow10[scale - places]), places);
     const Wide product = static_cast<Wide>(a.small_) * b.small_;
     if (scale <= places) return from_wide(product, scale);
-    return from_wide(divide_half_even(product, kWideTens[static_cast<std::size_t>(scale - places)]),
+    return from_wide(round_divide(product, kWideTens[static_cast<std::size_t>(scale - places)]),
                      places);
   }
   return (a * b).rounded(places);
@@ -516,7 +601,7 @@ Decimal Decimal::times_rounded(const Decimal& a, const Decimal& b, int places) {
 Decimal Decimal::truncated(int places) const {
   if (scale_ <= places) return *this;
   if (places >= 0 && scale_ - places <= 18 && !big_)
-    return from_wide(small_ / kPow10[scale_ - places], places);
+    return from_word(small_ / kPow10[scale_ - places], places);
   Wide w = 0;
   if (places >= 0 && scale_ - places <= 38 &&
       (big_ ? wide_value(mantissa(), w) : (w = small_, true)))
@@ -525,6 +610,18 @@ Decimal Decimal::truncated(int places) const {
 }
 
 Decimal Decimal::floored(int places) const {
+  if (scale_ <= places) return *this;
+  if (places >= 0 && scale_ - places <= 18 && !big_) {
+    // One division: the truncated quotient, one lower when a negative value
+    // leaves a remainder.
+    const long long unit = kPow10[scale_ - places];
+    const long long q = small_ / unit;
+    return from_word(small_ % unit < 0 ? q - 1 : q, places);
+  }
+  return floored_past_word(places);
+}
+
+[[gnu::noinline]] Decimal Decimal::floored_past_word(int places) const {
   const Decimal t = truncated(places);
   return (is_negative() && t != *this) ? t - from_wide(1, places) : t;
 }
@@ -536,13 +633,25 @@ Decimal Decimal::divide(const Decimal& numerator, const Decimal& denominator, in
   // as the general path below.
   if (places >= 0 && denominator.scale_ + places <= 18 && numerator.scale_ <= 18 &&
       !numerator.big_ && !denominator.big_) {
+    long long n64 = 0, d64 = 0;
+    if (!__builtin_mul_overflow(numerator.small_, kPow10[denominator.scale_ + places], &n64) &&
+        !__builtin_mul_overflow(denominator.small_, kPow10[numerator.scale_], &d64) &&
+        n64 != kLowest && d64 != kLowest) {
+      if (d64 < 0) n64 = -n64, d64 = -d64;
+      return from_word(round_divide(n64, d64), places);
+    }
     Wide n = static_cast<Wide>(numerator.small_) * kPow10[denominator.scale_ + places];
     Wide d = static_cast<Wide>(denominator.small_) * kPow10[numerator.scale_];
     if (d < 0) n = -n, d = -d;
-    return from_wide(divide_half_even(n, d), places);
+    return from_wide(round_divide(n, d), places);
   }
-  // In 128 bits when both scaled sides fit and the divisor is below 2^126,
-  // so that twice a remainder fits as well.
+  return divide_past_word(numerator, denominator, places);
+}
+
+// Kept apart from divide() so that its word paths do not pay for this frame.
+[[gnu::noinline]] Decimal Decimal::divide_past_word(const Decimal& numerator,
+                                                    const Decimal& denominator, int places) {
+  // In 128 bits when both scaled sides fit and the divisor is below 2^126.
   if (places >= 0) {
     Wide n = 0, d = 0;
     const bool wide =
@@ -552,7 +661,7 @@ Decimal Decimal::divide(const Decimal& numerator, const Decimal& denominator, in
         shift_wide(n, denominator.scale_ + places) && shift_wide(d, numerator.scale_);
     if (wide) {
       if (d < 0) n = -n, d = -d;
-      if (d <= kWideMax / 2) return from_wide(divide_half_even(n, d), places);
+      if (d <= kWideMax / 2) return from_wide(round_divide(n, d), places);
     }
   }
   // (n / 10^a) / (d / 10^b) at `places` digits = n * 10^(b + places) / (d * 10^a).
@@ -586,7 +695,7 @@ double Decimal::to_double() const {
 }
 
 Decimal Decimal::operator-() const {
-  if (!big_) return from_wide(-static_cast<Wide>(small_), scale_);
+  if (!big_) return word(-small_, scale_);  // small_ is never kLowest
   return from_mantissa(Int(-mantissa()), scale_);
 }
 

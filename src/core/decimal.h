@@ -113,13 +113,13 @@ class Decimal {
   friend Decimal operator+(const Decimal& a, const Decimal& b) {
     long long x = 0, y = 0, r = 0;
     if (word_aligned(a, b, x, y) && !__builtin_add_overflow(x, y, &r) && r != kLowest)
-      return from_word(r, a.scale_ > b.scale_ ? a.scale_ : b.scale_);
+      return aligned_word(r, a.scale_, b.scale_);
     return plus(a, b);
   }
   friend Decimal operator-(const Decimal& a, const Decimal& b) {
     long long x = 0, y = 0, r = 0;
     if (word_aligned(a, b, x, y) && !__builtin_sub_overflow(x, y, &r) && r != kLowest)
-      return from_word(r, a.scale_ > b.scale_ ? a.scale_ : b.scale_);
+      return aligned_word(r, a.scale_, b.scale_);
     return minus(a, b);
   }
   friend Decimal operator*(const Decimal& a, const Decimal& b) {
@@ -138,9 +138,9 @@ class Decimal {
     return a.big_ ? equal_big(a, b) : a.small_ == b.small_;
   }
   friend std::strong_ordering operator<=>(const Decimal& a, const Decimal& b) {
-    long long x = 0, y = 0;
-    if (word_aligned(a, b, x, y)) return x <=> y;
-    return compare(a, b);
+    if (a.big_ || b.big_) return compare(a, b);
+    if (a.scale_ == b.scale_) return a.small_ <=> b.small_;
+    return compare_words(a, b);
   }
 
  private:
@@ -179,17 +179,49 @@ class Decimal {
     const int shift = a.scale_ - b.scale_;
     return shift <= 18 && !__builtin_mul_overflow(y, kTens[shift], &y) && y != kLowest;
   }
-  // mantissa x 10^-scale, normalized, for a mantissa other than kLowest.
-  static Decimal from_word(long long mantissa, int scale) {
+  // mantissa x 10^-scale as it stands: the caller knows it is normalized.
+  static Decimal word(long long mantissa, int scale) {
     Decimal out;
-    if (mantissa == 0) return out;
-    while (scale > 0 && mantissa % 10 == 0) {
-      mantissa /= 10;
-      --scale;
-    }
     out.small_ = mantissa;
     out.scale_ = scale;
     return out;
+  }
+  // mantissa x 10^-scale, normalized, for a mantissa other than kLowest. An
+  // odd mantissa has no factor ten, so only an even one at a positive scale
+  // is tested, and only a multiple of ten is stripped (out of line).
+  static Decimal from_word(long long mantissa, int scale) {
+    if ((mantissa & 1) != 0 || scale == 0 || !multiple_of_ten(mantissa))
+      return word(mantissa, scale);
+    return strip_word(mantissa, scale);
+  }
+  // |m| is a multiple of 10: rotr(|m| x 5^-1 mod 2^64, 1) <= (2^64 - 1) / 10
+  // (Granlund and Montgomery 1994, section 9), a multiplication, not a division.
+  static bool multiple_of_ten(long long m) {
+    const unsigned long long u =
+        m < 0 ? 0 - static_cast<unsigned long long>(m) : static_cast<unsigned long long>(m);
+    const unsigned long long p = u * 0xCCCCCCCCCCCCCCCDULL;  // the inverse of 5
+    return ((p >> 1) | (p << 63)) <= 0x1999999999999999ULL;  // (2^64 - 1) / 10
+  }
+  static Decimal strip_word(long long mantissa, int scale);  // from_word: a multiple of ten
+  // The sum or difference r of two normalized word mantissas aligned by
+  // word_aligned(). When their scales differ, the one at the larger scale
+  // (positive, so it ends in a digit other than 0) meets one shifted by at
+  // least a place (ending in 0): r ends in that digit too and is normalized
+  // as it stands. At equal scales r may end in zeros.
+  static Decimal aligned_word(long long r, int scale_a, int scale_b) {
+    if (scale_a != scale_b) return word(r, scale_a > scale_b ? scale_a : scale_b);
+    return from_word(r, scale_a);
+  }
+  // Two word mantissas at different scales. When word_aligned() cannot shift
+  // the one at the smaller scale (more than 18 places, or past a word), that
+  // one, unless zero, is beyond 2^63 - 1 in magnitude once shifted, so larger
+  // than the other's: its sign decides.
+  static std::strong_ordering compare_words(const Decimal& a, const Decimal& b) {
+    long long x = 0, y = 0;
+    if (word_aligned(a, b, x, y)) return x <=> y;
+    const Decimal& shifted = a.scale_ < b.scale_ ? a : b;
+    if (shifted.small_ == 0) return a.small_ <=> b.small_;  // 0 against the other's sign
+    return &shifted == &a ? a.small_ <=> 0 : 0 <=> b.small_;
   }
   // The general forms of the operators above.
   static Decimal plus(const Decimal& a, const Decimal& b);
@@ -210,6 +242,12 @@ class Decimal {
   static Decimal from_mantissa(auto&& value, int scale);  // normalized
   __extension__ typedef __int128 Wide;              // GCC and Clang; -Wpedantic wants the marker
   static Decimal from_wide(Wide value, int scale);  // normalized
+  // The parts of from_wide(), rounded(), floored() and divide() past a
+  // machine word (128 bits, then the general path), out of line.
+  static Decimal from_past_word(Wide value, int scale);
+  Decimal rounded_past_word(int places) const;
+  Decimal floored_past_word(int places) const;
+  static Decimal divide_past_word(const Decimal& numerator, const Decimal& denominator, int places);
   static bool small_aligned(const Decimal& a, const Decimal& b, Wide& x, Wide& y);
   void set_int(auto&& value);                         // any mantissa
   void set_lowest();                                  // the mantissa -2^63

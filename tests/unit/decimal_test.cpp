@@ -510,3 +510,106 @@ TEST_CASE("decimal: copies and moves keep values past 2^127") {
   CHECK((huge - huge).is_zero());
   CHECK((wide - wide).is_zero());
 }
+
+// Trailing zeros are found with a multiplication by the inverse of 5
+// instead of a division by 10, in 64 bits and in 128. The expected text is
+// the mantissa's digits with the point put in and the zeros after it cut,
+// written out here by string work alone.
+TEST_CASE("decimal: trailing zeros are stripped by the multiple-of-ten test in 64 and 128 bits") {
+  CHECK((d("1.25") * d("0.8")).str() == "1");
+  CHECK((d("1.25") * d("0.8")).scale() == 0);
+  CHECK(Decimal::scaled(1000000000000000000LL, 18) == Decimal(1));
+  CHECK(Decimal::scaled(-5000, 3).str() == "-5");
+  CHECK(Decimal::scaled(-5010, 3).str() == "-5.01");
+  CHECK(Decimal::scaled(5, 0).str() == "5");
+  CHECK(Decimal::scaled(0, 7).scale() == 0);
+  // Even mantissas without a factor of five keep every digit.
+  CHECK(Decimal::scaled(1024, 3).str() == "1.024");
+  CHECK(Decimal::scaled(-6, 1).str() == "-0.6");
+  // Past a machine word (2^64 = 18446744073709551616, python3 -c 'print(2**64)'):
+  // 2^64 x 5 has one zero to drop and stays past the word; 10^19 has nineteen.
+  CHECK((d("18446744073709551616") * d("0.00000000000000000005")).str() == "0.9223372036854775808");
+  CHECK((d("-10000000000000000000") * d("0.0000000000000000001")).str() == "-1");
+  CHECK((d("-1000000000000000000000") * d("0.000000000000000000000000000001")).str() ==
+        "-0.000000001");
+  Xorshift next{0x2545F4914F6CDD1DULL};
+  for (int i = 0; i < 3000; ++i) {
+    // Digits, then 0 to 20 zeros, at a scale of 0 to 30.
+    std::string digits(1 + next() % 19, '0');
+    for (auto& c : digits) c = static_cast<char>('1' + next() % 9);
+    digits.append(next() % 21, '0');
+    const int scale = static_cast<int>(next() % 31);
+    const bool negative = next() % 2 != 0;
+    std::string expected = digits;
+    if (expected.size() <= static_cast<std::size_t>(scale))
+      expected.insert(0, static_cast<std::size_t>(scale) + 1 - expected.size(), '0');
+    if (scale > 0) {
+      expected.insert(expected.size() - static_cast<std::size_t>(scale), ".");
+      while (expected.back() == '0') expected.pop_back();
+      if (expected.back() == '.') expected.pop_back();
+    }
+    if (negative) expected.insert(0, "-");
+    // The same digits reached by a product that must be normalized.
+    const Decimal whole = Decimal::parse((negative ? "-" : "") + digits);
+    CAPTURE(expected);
+    REQUIRE((whole * Decimal::scaled(1, scale)).str() == expected);
+  }
+}
+
+// Two machine-word values whose scales are too far apart to align in a word
+// are ordered by the sign of the one at the smaller scale, unless it is zero.
+TEST_CASE("decimal: word values too far apart in scale to align are ordered by sign") {
+  const Decimal tiny = Decimal::scaled(1, 25);  // 10^-25
+  CHECK(Decimal(0) < tiny);
+  CHECK(-tiny < Decimal(0));
+  CHECK(Decimal(5) > tiny);
+  CHECK(Decimal(-5) < tiny);
+  CHECK(tiny < Decimal(5));
+  CHECK(Decimal::scaled(-999999999, 20) > Decimal(-1));
+  // A shift that overflows the word: 922337203685477581 x 10 > 2^63 - 1.
+  CHECK(d("922337203685477581") > d("1.5"));
+  CHECK(d("-922337203685477581") < d("-1.5"));
+  CHECK(d("1.5") < d("922337203685477581"));
+  CHECK(d("922337203685477580") > d("922337203685477579.9"));  // still shifts
+  const Decimal big = d("1000000000000000000000000000000");    // 10^30: the general path
+  for (const Decimal& a :
+       {Decimal(0), Decimal(7), Decimal(-7), d("922337203685477581"), d("-922337203685477581")})
+    for (const Decimal& b : {tiny, -tiny, Decimal::scaled(123456789, 19), d("1.5"), d("-1.5")}) {
+      CAPTURE(a.str());
+      CAPTURE(b.str());
+      CHECK((a <=> b) == ((a + big) <=> (b + big)));
+      CHECK((b <=> a) == ((b + big) <=> (a + big)));
+    }
+}
+
+// rounded(), floored(), divide() and times_rounded() work in machine words
+// when everything fits one, and fall back to 128 bits (one divq when the
+// quotient fits a word, a library division otherwise) when it does not.
+// Expected values from Python's decimal module (prec 400, ROUND_HALF_EVEN).
+TEST_CASE("decimal: word rounding, flooring and division fall back to 128 bits where they must") {
+  // Flooring: one division, one lower for a negative remainder.
+  CHECK(d("-7.91").floored(1).str() == "-8");
+  CHECK(d("-7.9").floored(1).str() == "-7.9");
+  CHECK(d("-0.001").floored(2).str() == "-0.01");
+  CHECK(d("0.019").floored(2).str() == "0.01");
+  CHECK(d("-12.5").floored(0).str() == "-13");
+  CHECK(d("-0.5").floored(30).str() == "-0.5");
+  // Ties to even in a word and past it.
+  CHECK(d("0.125").rounded(2).str() == "0.12");
+  CHECK(d("-0.135").rounded(2).str() == "-0.14");
+  // 922337203685477580.7 x 10 overflows a word: the quotient is taken in 128 bits.
+  CHECK(Decimal::divide(d("922337203685477580.7"), d("0.3"), 1).str() == "3074457345618258602.3");
+  CHECK(Decimal::divide(d("1"), d("3"), 18).str() == "0.333333333333333333");
+  CHECK(Decimal::divide(d("-2"), d("3"), 18).str() == "-0.666666666666666667");
+  // A numerator past 2^64 x the divisor: the quotient needs more than a word.
+  CHECK(Decimal::divide(d("170141183460469231731687303715884105727"), d("2"), 0).str() ==
+        "85070591730234615865843651857942052864");  // (2^127 - 1) / 2 = 2^126 - 0.5, to even
+  // A divisor past 2^64 (18446744073709551617 = 2^64 + 1).
+  CHECK(Decimal::divide(d("36893488147419103234"), d("18446744073709551617"), 3).str() == "2");
+  CHECK(Decimal::divide(d("-27670116110564327425.5"), d("18446744073709551617"), 1).str() ==
+        "-1.5");
+  // A product that fits a word, and one that does not (rounded in 128 bits).
+  CHECK(Decimal::times_rounded(d("1.005"), d("0.5"), 3).str() == "0.502");
+  CHECK(Decimal::times_rounded(d("3037000499.97605"), d("3037000499.97605"), 2).str() ==
+        "9223372036854777676.05");
+}
