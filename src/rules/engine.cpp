@@ -49,6 +49,7 @@ struct Stat {
 // the result's order, when the scoring is done: a line is large, and a screen
 // of a thousand names runs on every month of a back-test.
 struct Scoring {
+  Scoring() {}  // NOLINT(modernize-use-equals-default): not zeroed first (see Candidate)
   int age_days = 0;
   bool passed = false;
   std::optional<double> value, z;
