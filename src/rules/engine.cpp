@@ -339,7 +339,7 @@ void build_lines(ScreenResult& out, bool words, std::vector<Candidate>& candidat
     line.z = w.z;
     line.held = c.held;
     line.passed = w.passed;
-    line.track = c.track;
+    if (c.track) line.track = c.track;
     if (!w.metric_values.empty()) line.metric_values = std::move(w.metric_values);
     if (!w.metric_z.empty()) line.metric_z = std::move(w.metric_z);
     if (c.group) line.group = std::move(c.group);
@@ -349,6 +349,18 @@ void build_lines(ScreenResult& out, bool words, std::vector<Candidate>& candidat
   };
   for (const std::size_t i : pass) build(i);
   for (const std::size_t i : rest) build(i);
+}
+
+// Why a track record keeps a name from being selected.
+std::string track_why(const std::optional<TrackStat>& t, const TrackRecordRule& tr) {
+  if (!t) return "no track record";
+  if (t->observations < tr.min_observations)
+    return fmt::format("track record of {} observation{}, fewer than {}", t->observations,
+                       t->observations == 1 ? "" : "s", tr.min_observations);
+  if (!t->correlation)
+    return fmt::format("track record of {} observations has no spread", t->observations);
+  return fmt::format("track record {} > {} over {} observations", z_text(*t->correlation),
+                     z_text(tr.max_correlation), t->observations);
 }
 
 // Selection and the hysteresis band for names already held, over the
@@ -374,21 +386,10 @@ std::size_t select_lines(const Rule& rule, bool words, ScreenResult& out) {
   for (std::size_t i = 0; i < passed; ++i) {
     auto& l = out.lines[i];
     const double z = *l.z;
-    std::string track_why;
     if (tr) {
       const auto& t = l.track;
       l.track_ok = t && t->observations >= tr->min_observations && t->correlation &&
                    *t->correlation <= tr->max_correlation;
-      if (words && !l.track_ok)
-        track_why =
-            !t ? "no track record"
-            : t->observations < tr->min_observations
-                ? fmt::format("track record of {} observation{}, fewer than {}", t->observations,
-                              t->observations == 1 ? "" : "s", tr->min_observations)
-            : !t->correlation
-                ? fmt::format("track record of {} observations has no spread", t->observations)
-                : fmt::format("track record {} > {} over {} observations", z_text(*t->correlation),
-                              z_text(tr->max_correlation), t->observations);
     }
     const bool would = sel.by == SelectBy::z ? z <= sel.z_max : rank < keep;
     const bool entered = would && l.track_ok;
@@ -401,7 +402,7 @@ std::size_t select_lines(const Rule& rule, bool words, ScreenResult& out) {
                                would ? "<=" : ">", keep);
     };
     if (!l.track_ok) {
-      if (words) l.note = test() + ", but its " + track_why;
+      if (words) l.note = test() + ", but its " + track_why(l.track, *tr);
     } else if (entered) {
       l.selected = true;
       if (words) l.note = test();
@@ -502,6 +503,7 @@ ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candida
   std::vector<Scoring> work(candidates.size());
   std::vector<std::size_t> pass, rest;  // indices of candidates and work
   pass.reserve(candidates.size());
+  rest.reserve(candidates.size());
   for (std::size_t i = 0; i < candidates.size(); ++i) {
     const bool passes = simple && !words
                             ? passes_quietly(s, as_of, candidates[i], work[i])
