@@ -71,7 +71,12 @@ struct TrackStat {
   int observations = 0;
 };
 
+// Candidate and ScreenLine have a constructor of their own (every member has
+// its default here): value-initialization, as std::vector's emplace_back()
+// does it, then skips zeroing the record before constructing it. A screen
+// builds a thousand of each every month of a back-test.
 struct Candidate {
+  Candidate() {}  // NOLINT(modernize-use-equals-default): see above
   std::int64_t security_id = 0;
   std::string symbol;
   std::optional<Figure> figure;
@@ -91,6 +96,7 @@ struct Candidate {
 };
 
 struct ScreenLine {
+  ScreenLine() {}  // NOLINT(modernize-use-equals-default): see Candidate
   std::int64_t security_id = 0;
   std::string symbol;
   std::optional<Figure> figure;

@@ -98,10 +98,13 @@ Inputs::Inputs(const Rule& rule, const market::View& view, std::optional<std::st
     if (auto note = keep_currency(rule, *currency_, sleeves, universe))
       notes_.push_back(std::move(*note));
   for (const Security* s : universe) {
+    by_id_.emplace_back(s->id, universe_.size());
     universe_.push_back(s->id);
     symbols_.push_back(s->symbol);
     currencies_.push_back(s->currency);
   }
+  std::sort(by_id_.begin(), by_id_.end());
+  per_name_ = convert_ == Convert::yes || rule.screen.within != Within::universe;
 
   const auto names = view.metric_names();
   for (const auto& metric : rule.screen.metrics()) {
@@ -220,16 +223,20 @@ std::vector<Candidate> Inputs::candidates_without_track(const market::View& view
     }
     const std::size_t row = series->row(day);
     const auto& columns = columns_in(*series);
+    const auto is_held = held_flags(held);
     for (std::size_t i = 0; i < universe_.size(); ++i) {
       const std::int64_t id = universe_[i];
       const int col = columns[i];
-      Candidate c;
+      // Built in place, once: a back-test asks for a thousand every month.
+      Candidate& c = out.emplace_back();
       c.security_id = id;
       c.symbol = symbols_[i];
-      c.held = held.count(id) > 0;
+      c.held = is_held[i] != 0;
       c.ended = series->ended(id, day);
-      if (const auto* f = figures.at(col)) c.figure = Figure{f->value, f->period, f->known_on};
+      if (const auto* f = figures.at(col))
+        c.figure.emplace(Figure{f->value, f->period, f->known_on});
       bool any = c.figure.has_value();
+      if (!more.empty()) c.more.reserve(more.size());
       for (auto* cursor : more) {
         const auto* f = cursor->at(col);
         c.more.push_back(f ? std::optional<Figure>(Figure{f->value, f->period, f->known_on})
@@ -237,21 +244,17 @@ std::vector<Candidate> Inputs::candidates_without_track(const market::View& view
         any = any || f;
       }
       if (any) c.has_price = series->has(row, col);
-      if (c.has_price) {
-        c.unpriced_why = unpriced(view, currencies_[i], day);
-        c.has_price = c.unpriced_why.empty();
-      }
-      c.group = group_of(view, id);
-      out.push_back(std::move(c));
+      if (per_name_) price_and_group(view, i, day, c);
     }
     return out;
   }
+  const auto is_held = held_flags(held);
   for (std::size_t i = 0; i < universe_.size(); ++i) {
     const std::int64_t id = universe_[i];
-    Candidate c;
+    Candidate& c = out.emplace_back();
     c.security_id = id;
     c.symbol = symbols_[i];
-    c.held = held.count(id) > 0;
+    c.held = is_held[i] != 0;
     c.ended = view.ended(id, day);
     if (auto f = view.figure(id, rule_.screen.metric, day))
       c.figure = Figure{std::move(f->value), f->period, f->known_on};
@@ -264,13 +267,37 @@ std::vector<Candidate> Inputs::candidates_without_track(const market::View& view
       any = any || f;
     }
     if (any) c.has_price = view.has_close(id, day);
-    if (c.has_price) {
-      c.unpriced_why = unpriced(view, currencies_[i], day);
-      c.has_price = c.unpriced_why.empty();
-    }
-    c.group = group_of(view, id);
-    out.push_back(std::move(c));
+    if (per_name_) price_and_group(view, i, day, c);
   }
+  return out;
+}
+
+void Inputs::price_and_group(const market::View& view, std::size_t i, Date day,
+                             Candidate& c) const {
+  if (c.has_price && convert_ == Convert::yes) {
+    c.unpriced_why = unpriced(view, currencies_[i], day);
+    c.has_price = c.unpriced_why.empty();
+  }
+  if (rule_.screen.within != Within::universe) c.group = group_of(view, universe_[i]);
+}
+
+template <typename Inside, typename Outside>
+void Inputs::match_held(const std::set<std::int64_t>& held, Inside inside, Outside outside) const {
+  // Both in id order: one walk.
+  auto it = by_id_.begin();
+  for (const std::int64_t id : held) {
+    while (it != by_id_.end() && it->first < id) ++it;
+    if (it != by_id_.end() && it->first == id)
+      inside(it->second);
+    else
+      outside(id);
+  }
+}
+
+std::vector<char> Inputs::held_flags(const std::set<std::int64_t>& held) const {
+  std::vector<char> out(universe_.size(), 0);
+  match_held(
+      held, [&](std::size_t at) { out[at] = 1; }, [](std::int64_t) {});
   return out;
 }
 
@@ -282,15 +309,16 @@ Selection Inputs::select(const market::View& view, Date day, const std::set<std:
   out.refusal = std::move(chosen.refusal);
   out.targets = std::move(chosen.list);
   if (out.refusal) return out;
-  // Held names outside the universe leave the pool.
-  std::vector<std::int64_t> targeted;
-  targeted.reserve(out.targets.size());
-  for (const auto& t : out.targets) targeted.push_back(t.security_id);
-  std::sort(targeted.begin(), targeted.end());
-  for (const std::int64_t id : held)
-    if (!std::binary_search(targeted.begin(), targeted.end(), id))
-      out.targets.push_back(Target{id, view.security(id)->symbol, Decimal(), false, std::nullopt,
-                                   true, "not in the rule's universe"});
+  // Held names outside the universe leave the pool. (A held name of the
+  // universe is a target already: selected, or an exit of the screen's; so
+  // is a sleeve.)
+  match_held(
+      held, [](std::size_t) {},
+      [&](std::int64_t id) {
+        if (std::find(sleeves_.begin(), sleeves_.end(), id) == sleeves_.end())
+          out.targets.push_back(Target{id, view.security(id)->symbol, Decimal(), false,
+                                       std::nullopt, true, "not in the rule's universe"});
+      });
   for (std::size_t i = 0; i < sleeves_.size(); ++i) {
     if (!view.has_close(sleeves_[i], day))
       rule_.fail("sleeve.symbol",

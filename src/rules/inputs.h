@@ -48,6 +48,7 @@
 #include <optional>
 #include <set>
 #include <string>
+#include <utility>
 #include <vector>
 
 #include "core/date.h"
@@ -136,6 +137,18 @@ class Inputs {
 
   std::vector<std::string> metrics_;  // the screen's, in order
   std::vector<std::int64_t> universe_;
+  // (id, position in universe_) of every universe name, by id.
+  std::vector<std::pair<std::int64_t, std::size_t>> by_id_;
+  // Calls inside(position in universe_) for each name of `held` in the
+  // universe and outside(id) for the others, in id order.
+  template <typename Inside, typename Outside>
+  void match_held(const std::set<std::int64_t>& held, Inside inside, Outside outside) const;
+  // A flag per universe name: 1 when `held` holds it.
+  std::vector<char> held_flags(const std::set<std::int64_t>& held) const;
+  // Universe name i's price in the rule's currency (with Convert::yes: why
+  // it has none on `day`) and its group, on its candidate.
+  void price_and_group(const market::View& view, std::size_t i, Date day, Candidate& c) const;
+  bool per_name_ = false;                // price_and_group() has anything to do
   std::vector<std::string> symbols_;     // of the universe
   std::vector<std::string> currencies_;  // of the universe
   // Why the universe name in `currency` has no price in the rule's on `day`

@@ -3,6 +3,8 @@
 // shares. Invented securities; expectations worked out by hand.
 #include <doctest/doctest.h>
 
+#include <tuple>
+
 #include "ledger_fixture.h"
 #include "market/day_view.h"
 #include "rules/inputs.h"
@@ -102,19 +104,70 @@ TEST_CASE("inputs: candidates carry the figure known on the day and whether a cl
   CHECK_FALSE(Inputs(r, view).candidates(view, day("2024-04-29"), {})[0].figure.has_value());
 }
 
-TEST_CASE("inputs: a held name outside the universe becomes an exit") {
-  Small m;
+namespace {
+
+// The targets' symbols of a rule over ALDER, BIRCH and CEDAR selecting one
+// name on 2024-05-31 (with `extra` rule text), `held` held.
+std::vector<Target> targets_of(Small& m, const std::string& extra,
+                               const std::set<std::int64_t>& held) {
   const market::DayView view(m.db);
   const Rule r = rule(
       "symbols = [\"ALDER\", \"BIRCH\", \"CEDAR\"]\n[screen]\nmin_names = 2\n"
-      "[select]\nby = \"count\"\ncount = 1\n");
-  const auto s = Inputs(r, view).select(view, day("2024-05-31"), {m.id("DUNE")});
+      "[select]\nby = \"count\"\ncount = 1\n" +
+      extra);
+  const auto s = Inputs(r, view).select(view, day("2024-05-31"), held);
   REQUIRE_FALSE(s.refusal);
-  REQUIRE(s.targets.size() == 2);
-  CHECK(s.targets[0].symbol == "ALDER");
-  CHECK(s.targets[1].symbol == "DUNE");
-  CHECK(s.targets[1].weight.is_zero());
-  CHECK(s.targets[1].why == "not in the rule's universe");
+  return s.targets;
+}
+
+std::vector<std::string> symbols_of(const std::vector<Target>& targets) {
+  std::vector<std::string> out;
+  for (const auto& t : targets) out.push_back(t.symbol);
+  return out;
+}
+
+// What the screen reads of a candidate.
+using Seen = std::tuple<std::int64_t, std::string, bool, bool, bool>;
+std::vector<Seen> seen(const std::vector<Candidate>& candidates) {
+  std::vector<Seen> out;
+  for (const auto& c : candidates)
+    out.emplace_back(c.security_id, c.symbol, c.held, c.has_price, c.figure.has_value());
+  return out;
+}
+
+}  // namespace
+
+TEST_CASE("inputs: a held name outside the universe becomes an exit") {
+  Small m;
+  const auto t = targets_of(m, "", {m.id("DUNE")});
+  CHECK(symbols_of(t) == std::vector<std::string>{"ALDER", "DUNE"});
+  CHECK(t[1].weight.is_zero());
+  CHECK(t[1].why == "not in the rule's universe");
+}
+
+TEST_CASE("inputs: a held name of the universe and a held sleeve are targets once") {
+  Small m;
+  const auto t = targets_of(m, "[[sleeve]]\nsymbol = \"DUNE\"\nweight_pct = 10\n",
+                            {m.id("BIRCH"), m.id("DUNE")});
+  CHECK(symbols_of(t) == std::vector<std::string>{"DUNE", "ALDER", "BIRCH"});
+  CHECK(t[2].weight.is_zero());
+  CHECK(t[2].why == "z = 0.71, rank 2 > 1");
+}
+
+TEST_CASE("inputs: candidates from a preloaded series are those of the day view") {
+  Small m;
+  const market::DayView view(m.db);
+  const Rule r = rule("");
+  const Inputs in(r, view);
+  const auto series =
+      market::Series::load(m.db, in.series_request(view, day("2024-05-01"), day("2024-05-31")));
+  const std::set<std::int64_t> held{m.id("CEDAR"), m.id("DUNE")};
+  const auto a = in.candidates(view, day("2024-05-31"), held);
+  const auto b = in.candidates(series, day("2024-05-31"), held);
+  CHECK(seen(b) == seen(a));
+  CHECK(seen(b) == std::vector<Seen>{{m.id("ALDER"), "ALDER", false, true, true},
+                                     {m.id("BIRCH"), "BIRCH", false, true, true},
+                                     {m.id("CEDAR"), "CEDAR", true, false, true}});
 }
 
 TEST_CASE("inputs: a day that selects nothing is a result, not an error") {

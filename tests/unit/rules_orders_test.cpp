@@ -78,6 +78,26 @@ TEST_CASE("targets: equal weights share what the sleeve leaves") {
   CHECK(t[2].weight == dec("0.4"));
 }
 
+TEST_CASE("targets: equal weights at the cap to 12 places are not capped") {
+  // 20% / 3 is 0.066666666667 to 12 places: the cap itself.
+  const Rule r = rule(
+      "[select]\nby = \"count\"\ncount = 3\n[weights]\nmax_weight_pct = 6.6666666667\n"
+      "[[sleeve]]\nsymbol = \"BOND\"\nweight_pct = 80\n");
+  const auto t = targets(r, screen(r, kAsOf, five()), {99}).list;
+  REQUIRE(t.size() == 4);
+  for (std::size_t i = 1; i < 4; ++i) CHECK(t[i].weight == dec("0.066666666667"));
+  CHECK(t[1].why == "z = -1.26, rank 1 <= 3");
+}
+
+TEST_CASE("targets: equal weights below the cap are the share over the names, to 12 places") {
+  const Rule r =
+      rule("[select]\nby = \"count\"\ncount = 3\n[[sleeve]]\nsymbol = \"BOND\"\nweight_pct = 80\n");
+  const auto t = targets(r, screen(r, kAsOf, five()), {99}).list;
+  REQUIRE(t.size() == 4);
+  for (std::size_t i = 1; i < 4; ++i) CHECK(t[i].weight == dec("0.066666666667"));
+  CHECK(t[1].why == "z = -1.26, rank 1 <= 3");
+}
+
 TEST_CASE("targets: a tilt weighs cheaper names more, in proportion to exp(-z)") {
   const Rule r = rule("[select]\nby = \"count\"\ncount = 3\n[weights]\nscheme = \"tilt\"\n");
   const auto t = targets(r, screen(r, kAsOf, five()), {}).list;

@@ -73,6 +73,55 @@ TEST_CASE("screen: passing names come by z, the excluded after them by symbol") 
   CHECK(order == std::vector<std::string>{"A", "B", "C", "D", "E", "Y", "Z"});
 }
 
+TEST_CASE("screen: names with the same z come by symbol") {
+  std::vector<Candidate> c{name("B", "6"), name("D", "8"), name("C", "8"), name("A", "10"),
+                           name("E", "14")};
+  const auto r = screen(rule(), kAsOf, c);
+  std::vector<std::string> order;
+  for (const auto& l : r.lines) order.push_back(l.symbol);
+  CHECK(order == std::vector<std::string>{"B", "C", "D", "A", "E"});
+  CHECK(*line(r, "C").z == *line(r, "D").z);
+}
+
+TEST_CASE("screen: without words the lines, z's and selection are the same, with no notes") {
+  auto c = five(true);
+  c.push_back(name("OLD", "9", false, "2023-10-31"));
+  c.push_back(name("NEG", "-3.5", true));
+  auto gone = name("GONE", "9");
+  gone.ended = Date::parse("2024-05-02");
+  c.push_back(gone);
+  auto no_close = name("NOCLOSE", "9");
+  no_close.has_price = false;
+  c.push_back(no_close);
+  Candidate none;
+  none.security_id = 900;
+  none.symbol = "NOFIG";
+  none.has_price = true;
+  c.push_back(none);
+  const Rule r = rule("[select]\nexit_z = 0\n");
+  const auto said = screen(r, kAsOf, c);
+  const auto quiet = screen(r, kAsOf, c, Explain::none);
+  CHECK_FALSE(quiet.explained);
+  REQUIRE(quiet.lines.size() == said.lines.size());
+  CHECK(quiet.passed == said.passed);
+  CHECK(quiet.selected == said.selected);
+  for (std::size_t i = 0; i < said.lines.size(); ++i) {
+    const auto& a = said.lines[i];
+    const auto& b = quiet.lines[i];
+    CHECK(b.symbol == a.symbol);
+    CHECK(b.z == a.z);
+    CHECK(b.value == a.value);
+    CHECK(b.age_days == a.age_days);
+    CHECK(b.passed == a.passed);
+    CHECK(b.selected == a.selected);
+    CHECK(b.held == a.held);
+    CHECK(b.note.empty());
+    CHECK(b.excluded_reason.empty());
+  }
+  CHECK(line(said, "C").note == "held; z = 0.00 <= exit 0.00");
+  CHECK(line(said, "NEG").note == "out: not positive (-3.5)");
+}
+
 TEST_CASE("screen: each exclusion says why") {
   auto c = five();
   Candidate none;
@@ -202,6 +251,13 @@ TEST_CASE("selection: a threshold that selects nothing is a result with the reas
   CHECK(s.selected == 0);
   CHECK(s.lines.front().symbol == "A");  // still in z order
   CHECK(*s.lines.front().z < *s.lines.back().z);
+}
+
+TEST_CASE("selection: a screen that selects nothing keeps each passing name's note") {
+  const auto s = screen(rule("[select]\nz_max = -2\n"), kAsOf, five());
+  REQUIRE(s.refusal);
+  CHECK(s.lines.front().note == "z = -1.26 > -2.00");
+  CHECK(s.lines.back().note == "z = 1.26 > -2.00");
 }
 
 namespace {
@@ -374,6 +430,23 @@ TEST_CASE("within sector: a sector smaller than min_group_size fails with the re
   CHECK(line(r, "D").excluded_reason ==
         "sector 'Water' has 2 names passing the screen, fewer than screen.min_group_size (3)");
   CHECK(r.passed == 3);
+}
+
+TEST_CASE("within sector: names a small sector leaves out follow the failing names by symbol") {
+  auto c = five();
+  for (int i = 0; i < 5; ++i) c[static_cast<std::size_t>(i)].group = i < 3 ? "Tools" : "Water";
+  c.push_back(name("F", "-1"));  // fails: not positive
+  c.front().group = "Water";     // A joins D and E: Tools keeps B and C
+  const auto r =
+      screen(rule("[screen]\nwithin = \"sector\"\nmin_group_size = 3\nmin_names = 2\n"), kAsOf, c);
+  std::vector<std::string> order;
+  for (const auto& l : r.lines) order.push_back(l.symbol);
+  CHECK(order == std::vector<std::string>{"A", "D", "E", "B", "C", "F"});
+  CHECK(r.passed == 3);
+  CHECK(line(r, "B").note ==
+        "out: sector 'Tools' has 2 names passing the screen, fewer than screen.min_group_size (3)");
+  CHECK(line(r, "B").metric_z.empty());
+  CHECK(line(r, "B").metric_values.size() == 1);
 }
 
 TEST_CASE("within sector: a small sector can be scored against the whole universe") {
