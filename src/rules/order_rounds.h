@@ -7,8 +7,8 @@
 //   value, and the cash less the fixed fee below which no step fits (unset
 //   for steps under 10^-6 units, where that bound does not hold). Exact
 //   (Decimal); steps::buy_orders() works the same out for each call.
-// orders_only(): orders() without its summary: the same orders and skips,
-//   pool_value and invested_target, and nothing else (no estimated fees,
+// orders_only(): orders() without its summary: the same orders, pool_value
+//   and invested_target, and nothing else (no skips, estimated fees,
 //   turnover, cash or weights after).
 #pragma once
 

@@ -583,12 +583,13 @@ namespace {
 
 // buy_orders(), with each name's buy cost taken from `costs` (in the order of
 // `work`) for the wishes whose name is in `work`, and worked out here for the
-// others; the orders and skips are added to `orders` and `skipped`.
+// others; the orders are added to `orders`, and the skips to `skipped` when
+// it is given.
 void buy_orders_at(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
                    std::vector<Decimal>& cash, const std::vector<Decimal>& reserve,
                    const TradingRule& trading, Explain explain, const HouseholdPrefs& prefs,
                    const std::vector<Work>* work, const std::vector<BuyCost>* costs,
-                   std::vector<Order>& orders, std::vector<Skipped>& skipped) {
+                   std::vector<Order>& orders, std::vector<Skipped>* skipped) {
   const bool words = explain == Explain::all;
   auto placed = [&](std::int64_t id) { return prefs.place_deferred.count(id) > 0; };
   auto deferred = [&](std::size_t a) {
@@ -612,16 +613,13 @@ void buy_orders_at(const std::vector<BuyWish>& wishes, const Portfolio& portfoli
     const BuyCost* cost = nullptr;   // the name's, or one worked out here
     std::string why_none;            // empty: no cash left above the reserve
     Fill* fills = nullptr;           // one per account, in account order
+    Decimal bought;                  // the value of its fills
+    Decimal gap;                     // in the fill: value left to target
+    bool placed = false;             // in tax-deferred accounts first
     bool any = false;                // an order in some account
   };
   const std::size_t n_accounts = portfolio.accounts.size();
   std::vector<Fill> fills(wishes.size() * n_accounts);
-  auto bought = [&](const Buy& b) {
-    Decimal v;
-    for (std::size_t a = 0; a < n_accounts; ++a)
-      if (b.fills[a].made) v += b.fills[a].value;
-    return v;
-  };
   // The cost given for a wish's name, if any.
   auto given = [&](const BuyWish& w) -> const BuyCost* {
     if (!work || !costs || work->empty() || w.work < work->data() ||
@@ -641,6 +639,7 @@ void buy_orders_at(const std::vector<BuyWish>& wishes, const Portfolio& portfoli
     b.fills = fills.data() + i * n_accounts;
     const Work& x = *wishes[i].work;
     b.price = &x.quote->price;
+    b.placed = placed(x.security_id);
     b.cost = given(wishes[i]);
     if (!b.cost) {
       own.push_back(buy_cost(*x.quote, trading));
@@ -660,23 +659,29 @@ void buy_orders_at(const std::vector<BuyWish>& wishes, const Portfolio& portfoli
         cash[a] - reserve[a] - (withheld == prefs.withheld.end() ? Decimal() : withheld->second)));
     total_spendable += spendable.back();
   }
+  // Every amount spent comes out of both an account's cash and its cash to
+  // spend: the cash is brought down once, at the end, by what was spent.
+  const std::vector<Decimal> spendable_before = spendable;
   auto any_spendable = [&] {
     return std::any_of(spendable.begin(), spendable.end(),
                        [](const Decimal& s) { return s.is_positive(); });
   };
   Decimal need;
   for (const auto& w : wishes) need += w.want + fee(w.want);
-  const Decimal factor =
-      need > total_spendable ? Decimal::divide(total_spendable, need, 12) : Decimal(1);
+  // The share of what it wants each buy may spend at first: all of it when
+  // the cash covers every buy, else the same fraction for each.
+  const bool cash_short = need > total_spendable;
+  const Decimal factor = cash_short ? Decimal::divide(total_spendable, need, 12) : Decimal(1);
 
   // Accounts for a buy: those holding the name (largest holding first), then
   // the others by cash to spend. The list is reused: read it before asking again.
   std::vector<std::size_t> accounts;
-  auto account_order = [&](std::int64_t id) -> const std::vector<std::size_t>& {
+  auto account_order = [&](const Buy& b) -> const std::vector<std::size_t>& {
     accounts.clear();
     for (std::size_t a = 0; a < n_accounts; ++a) accounts.push_back(a);
     if (n_accounts == 1) return accounts;
-    const bool place = placed(id);
+    const bool place = b.placed;
+    const std::int64_t id = b.wish->work->security_id;
     std::stable_sort(accounts.begin(), accounts.end(), [&](std::size_t a, std::size_t c) {
       if (place && deferred(a) != deferred(c)) return deferred(a);
       const Decimal ha = held_in(portfolio, a, id), hc = held_in(portfolio, c, id);
@@ -698,30 +703,37 @@ void buy_orders_at(const std::vector<BuyWish>& wishes, const Portfolio& portfoli
                  const std::optional<Decimal>& max_q) -> Decimal {
     const Decimal& step = b.cost->step;
     const Decimal& price = *b.price;
-    Fill* it = &b.fills[a];
-    const bool fresh = !it->made;
-    const Decimal limit = std::min(budget, spendable[a]);
-    const Decimal have_q = fresh ? Decimal() : it->quantity;
-    const Decimal have_cost = fresh ? Decimal() : it->value + it->fee;
-    // What the order may cost before its fixed fee. A fresh order adds no
-    // zeros: its quantity and cost so far are nothing.
-    const Decimal room = fresh ? limit - trading.fee_fixed : limit + have_cost - trading.fee_fixed;
+    Fill& fill = b.fills[a];
+    const bool fresh = !fill.made;
+    // std::min's choice, without a copy: read before spendable[a] changes.
+    const Decimal& limit = spendable[a] < budget ? spendable[a] : budget;
+    // What the order costs so far (nothing for a fresh one) and what it may
+    // cost before its fixed fee. A fresh order adds no zeros.
+    Decimal have_cost, room;
+    if (fresh) {
+      room = limit - trading.fee_fixed;
+    } else {
+      have_cost = fill.value + fill.fee;
+      room = limit + have_cost - trading.fee_fixed;
+    }
     // Nothing held yet and cash less the fixed fee below 0.999 of a step:
     // the quotient below is then under 0.999 + 10^-4 steps, so no step fits.
     if (fresh && b.cost->no_step_below && room < *b.cost->no_step_below) return less_than_a_lot(b);
     // Largest added quantity whose order (value + fee) grows by at most `limit`.
     Decimal q = floor_to(Decimal::divide(room, b.cost->unit, 10), step);
-    if (!fresh) q -= have_q;
+    if (!fresh) q -= fill.quantity;
     if (max_q && q > *max_q) q = *max_q;
-    // The order's value and fee at the last quantity tried: the loop ends on
-    // the quantity that fits.
-    Decimal value, order_fee;
-    auto grown = [&](const Decimal& add_q) {
-      value = (fresh ? add_q : have_q + add_q) * price;
+    // The order's value, fee and growth at the last quantity tried: the loop
+    // ends on the quantity that fits.
+    Decimal value, order_fee, spent;
+    auto grows_past = [&](const Decimal& add_q) {
+      value = (fresh ? add_q : fill.quantity + add_q) * price;
       order_fee = fee(value);
-      return fresh ? value + order_fee : value + order_fee - have_cost;
+      spent = value + order_fee;
+      if (!fresh) spent -= have_cost;
+      return spent > limit;
     };
-    while (q.is_positive() && grown(q) > limit) q -= step;
+    while (q.is_positive() && grows_past(q)) q -= step;
     if (!q.is_positive()) return less_than_a_lot(b);
     if (value < trading.min_trade) {
       if (words)
@@ -729,28 +741,35 @@ void buy_orders_at(const std::vector<BuyWish>& wishes, const Portfolio& portfoli
                                  trading.min_trade.str());
       return Decimal();
     }
-    const Decimal spent = fresh ? value + order_fee : value + order_fee - have_cost;
-    it->made = true;
     b.any = true;
-    it->quantity = fresh ? std::move(q) : have_q + q;
-    it->value = std::move(value);
-    it->fee = std::move(order_fee);
+    if (fresh) {
+      fill.made = true;
+      fill.quantity = std::move(q);
+      b.bought += value;
+    } else {
+      fill.quantity += q;
+      b.bought += value - fill.value;
+    }
+    fill.value = std::move(value);
+    fill.fee = std::move(order_fee);
     spendable[a] -= spent;
-    cash[a] -= spent;
     return spent;
   };
   // Names placed in tax-deferred accounts buy first, so the cash there is theirs.
   std::vector<Buy*> turn;
   turn.reserve(buys.size());
   for (auto& b : buys) turn.push_back(&b);
-  std::stable_partition(turn.begin(), turn.end(),
-                        [&](const Buy* b) { return placed(b->wish->work->security_id); });
+  std::stable_partition(turn.begin(), turn.end(), [](const Buy* b) { return b->placed; });
   for (Buy* bp : turn) {
     Buy& b = *bp;
-    Decimal budget = b.wish->want * factor;
-    for (std::size_t a : account_order(b.wish->work->security_id)) {
+    Decimal budget = cash_short ? b.wish->want * factor : b.wish->want;
+    const auto& order = account_order(b);
+    for (std::size_t i = 0; i < order.size(); ++i) {
+      const std::size_t a = order[i];
       if (!budget.is_positive()) break;
-      if (spendable[a].is_positive()) budget -= add(b, a, budget, std::nullopt);
+      if (!spendable[a].is_positive()) continue;
+      const Decimal spent = add(b, a, budget, std::nullopt);
+      if (i + 1 < order.size()) budget -= spent;  // the last account leaves it unread
     }
   }
   // The fill: the gap to target in value, largest first. A buy's gap is
@@ -758,39 +777,39 @@ void buy_orders_at(const std::vector<BuyWish>& wishes, const Portfolio& portfoli
   // it), so a gap below one step's value, which would stop at once, is left
   // out; and with no cash to spend in any account nothing is filled.
   if (any_spendable()) {
-    std::vector<std::pair<Decimal, Buy*>> by_gap;
+    // Value left to target; fees come out of the cash, not the target.
+    std::vector<Buy*> by_gap;
+    by_gap.reserve(buys.size());
     for (auto& b : buys) {
-      Decimal gap = b.wish->want - bought(b);
-      if (gap < b.cost->one_step) continue;
-      by_gap.emplace_back(std::move(gap), &b);
+      b.gap = b.wish->want - b.bought;
+      if (b.gap >= b.cost->one_step) by_gap.push_back(&b);
     }
-    std::stable_sort(by_gap.begin(), by_gap.end(), [&](const auto& a, const auto& b) {
-      const bool pa = placed(a.second->wish->work->security_id);
-      const bool pb = placed(b.second->wish->work->security_id);
-      if (pa != pb) return pa;
-      return a.first > b.first;
+    std::stable_sort(by_gap.begin(), by_gap.end(), [](const Buy* l, const Buy* r) {
+      if (l->placed != r->placed) return l->placed;
+      return l->gap > r->gap;
     });
-    for (auto& [gap0, b] : by_gap) {
+    for (Buy* b : by_gap) {
       const Decimal& one_step = b->cost->one_step;
-      for (std::size_t a : account_order(b->wish->work->security_id)) {
-        // Value left to target; fees come out of the cash, not the target.
-        const Decimal gap = b->wish->want - bought(*b);
-        if (gap < one_step) break;
+      for (std::size_t a : account_order(*b)) {
+        if (b->gap < one_step) break;
         if (!spendable[a].is_positive()) continue;
-        add(*b, a, spendable[a], units_within(gap, *b->price, b->cost->step));
+        add(*b, a, spendable[a], units_within(b->gap, *b->price, b->cost->step));
+        b->gap = b->wish->want - b->bought;
       }
       if (!any_spendable()) break;  // no later buy could add anything
     }
   }
+  for (std::size_t a = 0; a < n_accounts; ++a)
+    if (spendable[a] != spendable_before[a]) cash[a] -= spendable_before[a] - spendable[a];
 
   orders.reserve(orders.size() + buys.size());
-  skipped.reserve(skipped.size() + buys.size());
+  if (skipped) skipped->reserve(skipped->size() + buys.size());
   for (auto& b : buys) {
-    if (!b.any)
-      skipped.push_back({b.wish->work->quote->symbol, !words ? std::string()
-                                                      : b.why_none.empty()
-                                                          ? "no cash left above the reserve"
-                                                          : std::move(b.why_none)});
+    if (!b.any && skipped)
+      skipped->push_back({b.wish->work->quote->symbol, !words ? std::string()
+                                                       : b.why_none.empty()
+                                                           ? "no cash left above the reserve"
+                                                           : std::move(b.why_none)});
     for (std::size_t a = 0; a < n_accounts; ++a) {
       Fill& f = b.fills[a];
       if (!f.made) continue;
@@ -799,7 +818,7 @@ void buy_orders_at(const std::vector<BuyWish>& wishes, const Portfolio& portfoli
       o.quantity = std::move(f.quantity);
       o.value = std::move(f.value);
       o.fee = std::move(f.fee);
-      if (words && placed(o.security_id))
+      if (words && b.placed)
         o.reason += deferred(a)
                         ? fmt::format("; placed in {}: tax-deferred first", o.account)
                         : fmt::format("; placed in {}: no tax-deferred cash left", o.account);
@@ -814,7 +833,7 @@ Buys buy_orders(const std::vector<BuyWish>& wishes, const Portfolio& portfolio,
                 const TradingRule& trading, Explain explain, const HouseholdPrefs& prefs) {
   Buys out;
   buy_orders_at(wishes, portfolio, cash, reserve, trading, explain, prefs, nullptr, nullptr,
-                out.orders, out.skipped);
+                out.orders, &out.skipped);
   return out;
 }
 
@@ -956,10 +975,11 @@ class StepCosts {
 // One plan on `pool` (steps::pool_of on the fees the plan itself is
 // expected to cost), with `work`, the names the plan touches, aimed at it
 // (steps::aim). The plan depends on the fee guess only through the pool's
-// reserves and the work's target values and weights.
+// reserves and the work's target values and weights. `skips`: list the
+// names skipped (orders_only() lists none).
 Draft plan_once(const Portfolio& portfolio, steps::PoolValue pool,
                 const std::vector<steps::Work>& work, StepCosts& costs, const TradingRule& trading,
-                Date as_of, Explain explain, const HouseholdPrefs& prefs) {
+                Date as_of, Explain explain, const HouseholdPrefs& prefs, bool skips) {
   Draft draft;
   OrderPlan& plan = draft.plan;
   draft.pool = std::move(pool);
@@ -977,7 +997,7 @@ Draft plan_once(const Portfolio& portfolio, steps::PoolValue pool,
       case steps::Decision::Kind::none:
         break;
       case steps::Decision::Kind::skip:
-        plan.skipped.push_back({x.quote->symbol, std::move(d.why)});
+        if (skips) plan.skipped.push_back({x.quote->symbol, std::move(d.why)});
         break;
       case steps::Decision::Kind::buy: {
         // Built in place: a wish moved would move its reason twice.
@@ -1016,14 +1036,16 @@ Draft plan_once(const Portfolio& portfolio, steps::PoolValue pool,
     steps::rebuy_after_raise(work, plan.orders, before_raise, trading, wishes, plan.skipped,
                              explain);
   }
-  for (auto& k : tax.kept) plan.skipped.push_back(std::move(k));
+  if (skips)
+    for (auto& k : tax.kept) plan.skipped.push_back(std::move(k));
   steps::buy_orders_at(wishes, portfolio, pool_now.cash, pool_now.reserve, trading, explain, prefs,
-                       &work, &costs.of(wishes), plan.orders, plan.skipped);
+                       &work, &costs.of(wishes), plan.orders, skips ? &plan.skipped : nullptr);
   draft.summarize = true;
   return draft;
 }
 
-// orders() and orders_only(): with `summary` false the last plan is not summarized.
+// orders() and orders_only(): with `summary` false the last plan is not
+// summarized and lists no skips.
 OrderPlan plan_orders(const Portfolio& portfolio, const std::vector<Target>& targets,
                       const Quotes& quotes, const TradingRule& trading, Date as_of, Explain explain,
                       const HouseholdPrefs& prefs, bool summary) {
@@ -1043,7 +1065,8 @@ OrderPlan plan_orders(const Portfolio& portfolio, const std::vector<Target>& tar
   std::vector<Decimal> guess(portfolio.accounts.size());
   steps::PoolValue pool = steps::pool_of(portfolio, values, trading, guess);
   if (pool.value.is_positive()) steps::aim(work, pool, true);
-  Draft draft = plan_once(portfolio, std::move(pool), work, costs, trading, as_of, explain, prefs);
+  Draft draft =
+      plan_once(portfolio, std::move(pool), work, costs, trading, as_of, explain, prefs, summary);
   for (int round = 0; round < 8; ++round) {
     std::vector<Decimal> fees(portfolio.accounts.size());
     for (const auto& o : draft.plan.orders)
@@ -1062,7 +1085,8 @@ OrderPlan plan_orders(const Portfolio& portfolio, const std::vector<Target>& tar
       draft.pool.invested_target = std::move(pool.invested_target);
       break;
     }
-    draft = plan_once(portfolio, std::move(pool), work, costs, trading, as_of, explain, prefs);
+    draft =
+        plan_once(portfolio, std::move(pool), work, costs, trading, as_of, explain, prefs, summary);
   }
   if (summary && draft.summarize) steps::summarize(draft.plan, portfolio, work, draft.pool);
   return std::move(draft.plan);

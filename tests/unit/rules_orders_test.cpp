@@ -749,6 +749,37 @@ TEST_CASE("orders: orders_only gives the orders of orders() without the summary"
   CHECK(only.cash_after.empty());
 }
 
+TEST_CASE("orders: orders_only lists no skips") {
+  // The cash of 50 buys no unit of X at 100: orders() names X as skipped;
+  // orders_only(), whose runs only apply the orders, lists nothing.
+  const Portfolio p{{account(1, "Main", "50")}};
+  const auto q = quotes({{10, "X", "100"}});
+  const auto full = orders(p, {target(10, "X", "1")}, q, {}, kAsOf);
+  REQUIRE(full.skipped.size() == 1);
+  const auto only = orders_only(p, {target(10, "X", "1")}, q, {}, kAsOf);
+  CHECK(only.skipped.empty());
+  CHECK(only.orders.empty());
+}
+
+TEST_CASE("buy step: each account's cash comes down by what its orders cost there") {
+  // 250 of X at 100 with a fee of 1: one unit in Main (150 to spend), one in
+  // Spare (120), and the 50 left is less than a unit.
+  const Portfolio p{{account(1, "Main", "0"), account(2, "Spare", "0")}};
+  const Quote quote{"X", dec("100"), true, Decimal(1)};
+  const steps::Work x = to_buy(quote, 10);
+  TradingRule g;
+  g.fee_fixed = Decimal(1);
+  std::vector<Decimal> cash{dec("150"), dec("120")};
+  const auto buys =
+      steps::buy_orders({{&x, dec("250"), "wanted"}}, p, cash, {Decimal(), Decimal()}, g);
+  REQUIRE(buys.orders.size() == 2);
+  CHECK(buys.orders[0].account == "Main");
+  CHECK(buys.orders[1].account == "Spare");
+  CHECK(buys.orders[1].quantity == Decimal(1));
+  CHECK(cash == std::vector<Decimal>{dec("49"), dec("19")});
+  CHECK(buys.skipped.empty());
+}
+
 namespace {
 
 // One account holding 7 X at 12.5, without lots; fees 1 + 10 bp.
