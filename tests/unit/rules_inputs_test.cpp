@@ -285,9 +285,10 @@ TEST_CASE("inputs: quotes kept from an earlier day are priced anew, with the sam
   CHECK(notes == fresh_notes);
   CHECK(notes == std::vector<std::string>{
                      "BIRCH: the latest close on or before 2024-05-31 is from 2024-05-10"});
-  for (const auto& [id, q] : fresh) {
+  for (const auto& entry : fresh) {
+    const Quote& q = entry.second;  // not a structured binding: CAPTURE is a lambda
     CAPTURE(q.symbol);
-    const Quote& k = kept.at(id);
+    const Quote& k = kept.at(entry.first);
     CHECK(k.symbol == q.symbol);
     CHECK(k.price == q.price);
     CHECK(k.tradable == q.tradable);
