@@ -275,17 +275,6 @@ bool check(const Rule& rule, const std::vector<MetricSpec>& metrics, bool simple
   return true;
 }
 
-// check() for a screen of one metric across the universe, without words:
-// the same tests, and nothing written but the figure's age.
-bool passes_quietly(const ScreenRule& s, Date as_of, const Candidate& c, Scoring& work) {
-  if (c.ended || !c.figure) return false;
-  const auto& f = *c.figure;
-  work.age_days = as_of - f.period;
-  if (work.age_days > s.max_age_days) return false;
-  if (s.exclude_non_positive && !f.value.is_positive()) return false;
-  return c.has_price;
-}
-
 // Sorts indices by `less`, leaving them alone when already in order.
 template <typename T, typename Less>
 void sort_unless_sorted(std::vector<T>& v, Less less) {
@@ -505,10 +494,7 @@ ScreenResult screen(const Rule& rule, Date as_of, std::vector<Candidate> candida
   pass.reserve(candidates.size());
   rest.reserve(candidates.size());
   for (std::size_t i = 0; i < candidates.size(); ++i) {
-    const bool passes = simple && !words
-                            ? passes_quietly(s, as_of, candidates[i], work[i])
-                            : check(rule, metrics, simple, as_of, words, candidates[i], work[i]);
-    if (!passes) {
+    if (!check(rule, metrics, simple, as_of, words, candidates[i], work[i])) {
       rest.push_back(i);
       continue;
     }
